@@ -1,0 +1,200 @@
+// Package bregman builds a scoring rule from a concave generator H by the
+// Bregman construction: effort L(p, k) = H(p) + g_k - <g, p> with g the
+// gradient of H, expected effort Phi(q, p) = sum_k q_k L(p, k) and
+// divergence D(q, p) = Phi(q, p) - H(q).
+//
+// The construction needs only H and its exact derivatives, so any source
+// of a generator — a compiled formula, a weight integrated twice — plugs in
+// through the Generator interface.
+package bregman
+
+import (
+	"fmt"
+
+	"scorewright/generator/formula"
+)
+
+// Evaluator computes a generator and its exact derivatives at a point of
+// the simplex. An Evaluator owns scratch space and is used by one goroutine.
+type Evaluator interface {
+	// Value returns H(p).
+	Value(p []float64) float64
+	// Gradient writes the formal partial derivatives of H into grad and
+	// returns H(p).
+	Gradient(grad, p []float64) float64
+	// Hessian writes the n×n matrix of second partials (row-major) into
+	// hess, the gradient into grad, and returns H(p).
+	Hessian(hess, grad, p []float64) float64
+}
+
+// Generator is a concave function on the probability simplex over a fixed
+// number of outcomes. It is immutable and shared; each goroutine asks it
+// for its own Evaluator.
+type Generator interface {
+	Outcomes() int
+	NewEvaluator() Evaluator
+}
+
+// Options describe the outcomes a generator formula is compiled for. The
+// zero value of each field means its default.
+type Options struct {
+	// Outcomes is n, 2..12.
+	Outcomes int
+	// Ordered marks ordinal outcomes and allows csum().
+	Ordered bool
+	// Weights are the outcome weights w seen inside sum(); nil means all 1.
+	Weights []float64
+	// Params override parameter values set in the formula.
+	Params map[string]float64
+}
+
+// Formula is a generator written in scorewright's formula language.
+type Formula struct {
+	// Source is the formula text as given.
+	Source string
+	prog   *formula.Program
+	n      int
+}
+
+// NewFormula compiles src as a generator over opt.Outcomes outcomes.
+// Formula errors are *formula.Error values with line and column.
+func NewFormula(src string, opt Options) (*Formula, error) {
+	prog, err := formula.CompileString(src, formula.Scope{
+		Outcomes: opt.Outcomes, Ordered: opt.Ordered, Weights: opt.Weights, Params: opt.Params,
+	})
+	if err != nil {
+		return nil, err
+	}
+	return &Formula{Source: src, prog: prog, n: opt.Outcomes}, nil
+}
+
+// Outcomes is the number of outcomes.
+func (f *Formula) Outcomes() int { return f.n }
+
+// Program is the compiled formula.
+func (f *Formula) Program() *formula.Program { return f.prog }
+
+// NewEvaluator returns a machine for the compiled formula.
+func (f *Formula) NewEvaluator() Evaluator { return f.prog.NewMachine() }
+
+// Rule is a scoring rule in effort orientation: lower is better.
+type Rule struct {
+	Gen Generator
+	// Labels name the outcomes; nil means "1".."n".
+	Labels []string
+	// Ordered marks ordinal outcomes.
+	Ordered bool
+}
+
+// Outcomes is the number of outcomes.
+func (r *Rule) Outcomes() int { return r.Gen.Outcomes() }
+
+// Label returns the name of outcome k (0-based).
+func (r *Rule) Label(k int) string {
+	if k < len(r.Labels) {
+		return r.Labels[k]
+	}
+	return fmt.Sprint(k + 1)
+}
+
+// Scorer evaluates a rule at points of the simplex without allocating. It
+// is used by one goroutine; make one per worker with NewScorer.
+type Scorer struct {
+	ev   Evaluator
+	n    int
+	grad []float64
+	eff  []float64
+	hess []float64
+}
+
+// NewScorer returns a Scorer for r.
+func (r *Rule) NewScorer() *Scorer {
+	n := r.Outcomes()
+	return &Scorer{ev: r.Gen.NewEvaluator(), n: n, grad: make([]float64, n), eff: make([]float64, n), hess: make([]float64, n*n)}
+}
+
+func (s *Scorer) check(name string, v []float64) {
+	if len(v) != s.n {
+		panic(fmt.Sprintf("bregman: %s has %d entries for %d outcomes", name, len(v), s.n))
+	}
+}
+
+// Entropy returns H(q).
+func (s *Scorer) Entropy(q []float64) float64 {
+	s.check("belief", q)
+	return s.ev.Value(q)
+}
+
+// Efforts writes L(p, k) for every outcome k into dst and returns H(p).
+// An outcome the report rules out (p_k = 0) may cost +Inf; that is a value,
+// not an error.
+func (s *Scorer) Efforts(dst, p []float64) float64 {
+	s.check("report", p)
+	s.check("effort", dst)
+	h := s.ev.Gradient(s.grad, p)
+	gp := Dot(s.grad, p)
+	for k := range dst {
+		dst[k] = h + s.grad[k] - gp
+	}
+	return h
+}
+
+// Gradient writes grad H(p) into dst and returns H(p).
+func (s *Scorer) Gradient(dst, p []float64) float64 {
+	s.check("report", p)
+	s.check("gradient", dst)
+	return s.ev.Gradient(dst, p)
+}
+
+// Hessian writes the n×n Hessian of H at p into dst (row-major) and
+// returns H(p).
+func (s *Scorer) Hessian(dst, p []float64) float64 {
+	s.check("report", p)
+	if len(dst) != s.n*s.n {
+		panic(fmt.Sprintf("bregman: Hessian needs %d entries, got %d", s.n*s.n, len(dst)))
+	}
+	return s.ev.Hessian(dst, s.grad, p)
+}
+
+// Expected returns Phi(q, p) = sum_k q_k L(p, k), the expected effort of
+// report p for a forecaster whose belief is q.
+func (s *Scorer) Expected(q, p []float64) float64 {
+	s.check("belief", q)
+	s.Efforts(s.eff, p)
+	return Dot(q, s.eff)
+}
+
+// Divergence returns D(q, p) = Phi(q, p) - H(q), which is at least 0 for
+// every q, p exactly when H is concave.
+func (s *Scorer) Divergence(q, p []float64) float64 {
+	return s.Expected(q, p) - s.Entropy(q)
+}
+
+// Binary returns, for n = 2 and p the probability of outcome 1, the
+// generator h = H(p, 1-p), its derivative dh = H'(p) and the emphasis
+// weight w = -H''(p).
+func (s *Scorer) Binary(p float64) (h, dh, w float64) {
+	if s.n != 2 {
+		panic("bregman: Binary needs 2 outcomes")
+	}
+	x := [2]float64{p, 1 - p}
+	h = s.ev.Hessian(s.hess, s.grad, x[:])
+	dh = s.grad[0] - s.grad[1]
+	w = -(s.hess[0] - s.hess[1] - s.hess[2] + s.hess[3])
+	return h, dh, w
+}
+
+// Dot returns sum_k a_k b_k with the convention 0 · ±Inf = 0, so that an
+// outcome of probability zero contributes nothing even where its effort is
+// infinite. NaN stays NaN.
+func Dot(a, b []float64) float64 {
+	var s float64
+	for k, x := range a {
+		y := b[k]
+		if x == 0 && y == y || y == 0 && x == x {
+			continue
+		}
+		s += x * y
+	}
+	return s
+}

@@ -1,0 +1,661 @@
+package formula
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strconv"
+	"strings"
+)
+
+// Scope says what the names of a formula mean where it is used.
+type Scope struct {
+	// Outcomes is n, the number of outcomes, for formulas over a
+	// probability vector (generators and payouts); 0 for scalar formulas
+	// (point forecasts in x, emphasis weights in c).
+	Outcomes int
+	// Weights are the outcome weights w inside sum(); nil means all 1.
+	Weights []float64
+	// Ordered allows csum(), the sum over cumulative probabilities.
+	Ordered bool
+	// Payout allows y, hit and hitc: the formula is a payment for the
+	// outcome Outcome (1..n), which it sees as y.
+	Payout  bool
+	Outcome int
+	// Vars are scalar variables read after p1..pn, such as "x" or "c".
+	Vars []string
+	// Params overrides parameter values set in the formula. Naming a
+	// parameter the formula does not set is an error.
+	Params map[string]float64
+}
+
+// Functions lists the function names of the language, for help screens.
+var functionArity = map[string][2]int{
+	"ln": {1, 1}, "log": {1, 1}, "log2": {1, 1}, "log10": {1, 1}, "exp": {1, 1},
+	"sqrt": {1, 1}, "abs": {1, 1}, "min": {1, -1}, "max": {1, -1}, "if": {3, 3},
+	"sum": {1, 1}, "csum": {1, 1},
+}
+
+// Functions returns the names of the built-in functions, sorted.
+func Functions() []string {
+	names := make([]string, 0, len(functionArity))
+	for k := range functionArity {
+		names = append(names, k)
+	}
+	sort.Strings(names)
+	return names
+}
+
+// MaxOutcomes is the largest outcome count the engine supports.
+const MaxOutcomes = 12
+
+// Compile resolves the names of f in scope, unrolls sums, folds constants
+// and returns the program. Errors are *Error values with a position, except
+// for a bad scope or an override of an unknown parameter, which are plain.
+func Compile(f *File, scope Scope) (*Program, error) {
+	if scope.Outcomes != 0 && (scope.Outcomes < 2 || scope.Outcomes > MaxOutcomes) {
+		return nil, fmt.Errorf("formula: outcome count %d is outside 2..%d", scope.Outcomes, MaxOutcomes)
+	}
+	if scope.Weights != nil && len(scope.Weights) != scope.Outcomes {
+		return nil, fmt.Errorf("formula: %d weights given for %d outcomes", len(scope.Weights), scope.Outcomes)
+	}
+	if scope.Payout && scope.Outcomes > 0 && (scope.Outcome < 1 || scope.Outcome > scope.Outcomes) {
+		return nil, fmt.Errorf("formula: payout outcome %d is outside 1..%d", scope.Outcome, scope.Outcomes)
+	}
+	c := &compiler{src: f.Source, scope: scope, cse: map[instr]int32{}, params: map[string]float64{}}
+	for k := 1; k <= scope.Outcomes; k++ {
+		c.varNames = append(c.varNames, "p"+strconv.Itoa(k))
+	}
+	c.varNames = append(c.varNames, scope.Vars...)
+	var out int32
+	err := c.run(func() {
+		for _, p := range f.Params {
+			if c.reserved(p.Name) {
+				c.fail(p.At, "parameter %q clashes with a built-in name; choose another", p.Name)
+			}
+			v := c.constant(p.Value, "the value of parameter "+strconv.Quote(p.Name))
+			if o, ok := scope.Params[p.Name]; ok {
+				v = o
+			}
+			c.params[p.Name] = v
+			c.paramList = append(c.paramList, ParamValue{p.Name, v})
+		}
+		out = c.emit(f.Expr, ctx{})
+	})
+	if err != nil {
+		return nil, err
+	}
+	for name := range scope.Params {
+		if _, ok := c.params[name]; !ok {
+			known := make([]string, 0, len(c.paramList))
+			for _, p := range c.paramList {
+				known = append(known, p.Name)
+			}
+			if len(known) == 0 {
+				return nil, fmt.Errorf("unknown parameter %q: the formula sets no parameters", name)
+			}
+			return nil, fmt.Errorf("unknown parameter %q; the formula sets: %s", name, strings.Join(known, ", "))
+		}
+	}
+	return &Program{code: c.code, out: out, varNames: c.varNames, params: c.paramList}, nil
+}
+
+// CompileString parses and compiles src in one step.
+func CompileString(src string, scope Scope) (*Program, error) {
+	f, err := Parse(src)
+	if err != nil {
+		return nil, err
+	}
+	return Compile(f, scope)
+}
+
+// ctx is where in the formula the compiler is: inside a sum over outcome i,
+// or a cumulative sum at k.
+type ctx struct {
+	inSum  bool
+	i      int // 1-based outcome inside sum, cumulative index inside csum
+	inCsum bool
+	cum    int32 // slot of c = p1 + ... + pi inside csum
+}
+
+type compiler struct {
+	src       string
+	scope     Scope
+	code      []instr
+	cse       map[instr]int32
+	varNames  []string
+	params    map[string]float64
+	paramList []ParamValue
+	// constOnly is set while folding a parameter value or a subscript.
+	constOnly string
+}
+
+func (c *compiler) run(f func()) (err error) {
+	defer func() {
+		if r := recover(); r != nil {
+			if e, ok := r.(*Error); ok {
+				err = e
+				return
+			}
+			panic(r)
+		}
+	}()
+	f()
+	return nil
+}
+
+func (c *compiler) fail(at Pos, format string, args ...any) {
+	panic(newError(c.src, at, format, args...))
+}
+
+var builtinConstants = map[string]float64{"pi": math.Pi, "e": math.E}
+
+func (c *compiler) reserved(name string) bool {
+	if _, ok := builtinConstants[name]; ok {
+		return true
+	}
+	if _, ok := functionArity[name]; ok {
+		return true
+	}
+	switch name {
+	case "p", "n", "i", "w", "c", "x", "y", "hit", "hitc":
+		return true
+	}
+	if isOutcomeVar(name) > 0 {
+		return true
+	}
+	for _, v := range c.scope.Vars {
+		if v == name {
+			return true
+		}
+	}
+	return false
+}
+
+// isOutcomeVar returns k for a name p<k> with k >= 1, else 0.
+func isOutcomeVar(name string) int {
+	if len(name) < 2 || name[0] != 'p' || name[1] == '0' {
+		return 0
+	}
+	k, err := strconv.Atoi(name[1:])
+	if err != nil || k < 1 {
+		return 0
+	}
+	return k
+}
+
+// constant folds n, which may use only numbers, pi, e, n and earlier
+// parameters.
+func (c *compiler) constant(n Node, what string) float64 {
+	saved := c.constOnly
+	c.constOnly = what
+	s := c.emit(n, ctx{})
+	c.constOnly = saved
+	in := c.code[s]
+	if in.op != opConst {
+		c.fail(n.Pos(), "%s must be a constant", what)
+	}
+	return in.k
+}
+
+// known lists the names valid at a place, for "unknown name" messages.
+func (c *compiler) known(x ctx) string {
+	var names []string
+	if c.constOnly != "" {
+		names = append(names, "pi", "e")
+		if c.scope.Outcomes > 0 {
+			names = append(names, "n")
+		}
+		for _, p := range c.paramList {
+			names = append(names, p.Name)
+		}
+		if x.inSum || x.inCsum {
+			names = append(names, "i")
+		}
+		if c.scope.Payout && c.scope.Outcomes > 0 {
+			names = append(names, "y")
+		}
+		return strings.Join(names, ", ")
+	}
+	if x.inSum {
+		names = append(names, "p", "i", "w")
+		if c.scope.Payout {
+			names = append(names, "hit")
+		}
+	}
+	if x.inCsum {
+		names = append(names, "c", "i")
+		if c.scope.Payout {
+			names = append(names, "hitc")
+		}
+	}
+	if n := c.scope.Outcomes; n > 0 {
+		if n == 2 && !x.inSum {
+			names = append(names, "p")
+		}
+		names = append(names, fmt.Sprintf("p1..p%d", n), "n")
+		if c.scope.Payout {
+			names = append(names, "y", "p[y]")
+		}
+	}
+	names = append(names, c.scope.Vars...)
+	names = append(names, "pi", "e")
+	for _, p := range c.paramList {
+		names = append(names, p.Name)
+	}
+	return strings.Join(names, ", ")
+}
+
+func (c *compiler) push(in instr) int32 {
+	if s, ok := c.cse[in]; ok {
+		return s
+	}
+	s := int32(len(c.code))
+	c.code = append(c.code, in)
+	c.cse[in] = s
+	return s
+}
+
+func (c *compiler) konst(v float64) int32 {
+	// NaN never equals itself, so key NaN constants by their bits via a
+	// canonical NaN: one shared slot is enough.
+	if v != v {
+		v = math.NaN()
+	}
+	return c.push(instr{op: opConst, k: v})
+}
+
+func (c *compiler) isConst(s int32) (float64, bool) {
+	in := c.code[s]
+	return in.k, in.op == opConst
+}
+
+// op emits a unary or binary operation, folding it when its operands are
+// constants.
+func (c *compiler) op(o opcode, a, b int32, k float64) int32 {
+	ka, ca := c.isConst(a)
+	kb, cb := c.isConst(b)
+	unary := o == opNeg || o == opSq || o == opPowK || o == opPowB || o == opExp || o == opLn || o == opSqrt || o == opAbs
+	if ca && (unary || cb) {
+		return c.konst(apply(o, ka, kb, k))
+	}
+	switch o {
+	case opAdd:
+		if ca && ka == 0 {
+			return b
+		}
+		if cb && kb == 0 {
+			return a
+		}
+	case opSub:
+		if cb && kb == 0 {
+			return a
+		}
+	case opMul:
+		if ca && ka == 1 {
+			return b
+		}
+		if cb && kb == 1 {
+			return a
+		}
+	case opDiv:
+		if cb && kb == 1 {
+			return a
+		}
+	case opPow:
+		if cb {
+			switch kb {
+			case 1:
+				return a
+			case 2:
+				return c.push(instr{op: opSq, a: a})
+			}
+			return c.push(instr{op: opPowK, a: a, k: kb})
+		}
+		if ca {
+			return c.push(instr{op: opPowB, a: b, k: ka})
+		}
+	}
+	if unary {
+		b = 0
+	}
+	// Commutative operations get a canonical operand order so CSE sees
+	// p1*p2 and p2*p1 as one.
+	if (o == opAdd || o == opMul || o == opMin || o == opMax) && a > b {
+		a, b = b, a
+	}
+	return c.push(instr{op: o, a: a, b: b, k: k})
+}
+
+// apply evaluates one operation on numbers; shared by folding and the machine.
+func apply(o opcode, a, b, k float64) float64 {
+	switch o {
+	case opAdd:
+		return a + b
+	case opSub:
+		return a - b
+	case opMul:
+		return mul0(a, b)
+	case opDiv:
+		return a / b
+	case opNeg:
+		return -a
+	case opSq:
+		return a * a
+	case opPowK:
+		return math.Pow(a, k)
+	case opPowB:
+		return math.Pow(k, a)
+	case opPow:
+		return math.Pow(a, b)
+	case opExp:
+		return math.Exp(a)
+	case opLn:
+		return math.Log(a)
+	case opSqrt:
+		return math.Sqrt(a)
+	case opAbs:
+		return math.Abs(a)
+	case opMin:
+		return min2(a, b)
+	case opMax:
+		return max2(a, b)
+	case opLt:
+		return cmp(a, b, a < b)
+	case opLe:
+		return cmp(a, b, a <= b)
+	case opGt:
+		return cmp(a, b, a > b)
+	case opGe:
+		return cmp(a, b, a >= b)
+	}
+	panic("formula: apply of " + o.String())
+}
+
+// mul0 multiplies with the entropy convention 0 * ±Inf = 0; NaN stays NaN.
+func mul0(a, b float64) float64 {
+	r := a * b
+	if r != r && (a == 0 || b == 0) && a == a && b == b {
+		return 0
+	}
+	return r
+}
+
+func min2(a, b float64) float64 {
+	if a != a || b != b {
+		return math.NaN()
+	}
+	if b < a {
+		return b
+	}
+	return a
+}
+
+func max2(a, b float64) float64 {
+	if a != a || b != b {
+		return math.NaN()
+	}
+	if b > a {
+		return b
+	}
+	return a
+}
+
+// cmp turns a comparison into 1 or 0; a NaN operand makes it NaN, so
+// trouble is not silently taken as "false".
+func cmp(a, b float64, r bool) float64 {
+	if a != a || b != b {
+		return math.NaN()
+	}
+	if r {
+		return 1
+	}
+	return 0
+}
+
+func (c *compiler) emit(n Node, x ctx) int32 {
+	switch n := n.(type) {
+	case *Num:
+		return c.konst(n.Value)
+	case *Ident:
+		return c.ident(n, x)
+	case *Index:
+		return c.index(n, x)
+	case *Unary:
+		v := c.emit(n.X, x)
+		if n.Op == "+" {
+			return v
+		}
+		return c.op(opNeg, v, 0, 0)
+	case *Binary:
+		a := c.emit(n.X, x)
+		b := c.emit(n.Y, x)
+		o := map[string]opcode{"+": opAdd, "-": opSub, "*": opMul, "/": opDiv, "^": opPow,
+			"<": opLt, "<=": opLe, ">": opGt, ">=": opGe}[n.Op]
+		return c.op(o, a, b, 0)
+	case *Call:
+		return c.call(n, x)
+	}
+	panic(fmt.Sprintf("formula: unknown node %T", n))
+}
+
+func (c *compiler) ident(n *Ident, x ctx) int32 {
+	name := n.Name
+	if v, ok := c.params[name]; ok {
+		return c.konst(v)
+	}
+	if v, ok := builtinConstants[name]; ok {
+		return c.konst(v)
+	}
+	if _, ok := functionArity[name]; ok {
+		c.fail(n.At, "%s is a function; write %s(...)", name, name)
+	}
+	nOut := c.scope.Outcomes
+	switch name {
+	case "n":
+		if nOut > 0 {
+			return c.konst(float64(nOut))
+		}
+	case "i":
+		if x.inSum || x.inCsum {
+			return c.konst(float64(x.i))
+		}
+		if c.constOnly == "" {
+			c.fail(n.At, "i is the outcome index and exists only inside sum(...) or csum(...)")
+		}
+	case "y":
+		if c.scope.Payout && nOut > 0 {
+			return c.konst(float64(c.scope.Outcome))
+		}
+	}
+	if c.constOnly != "" {
+		c.fail(n.At, "%s must be a constant, but uses %q; known here: %s", c.constOnly, name, c.known(x))
+	}
+	switch name {
+	case "p":
+		if x.inSum {
+			return c.outcomeVar(x.i)
+		}
+		if nOut == 2 {
+			return c.outcomeVar(1)
+		}
+		if nOut > 0 && !x.inSum {
+			c.fail(n.At, "p alone is the event's probability only when there are 2 outcomes; use p1..p%d, or p inside sum(...)", nOut)
+		}
+	case "w":
+		if x.inSum {
+			if c.scope.Weights == nil {
+				return c.konst(1)
+			}
+			return c.konst(c.scope.Weights[x.i-1])
+		}
+		if nOut > 0 {
+			c.fail(n.At, "w is the outcome weight and exists only inside sum(...)")
+		}
+	case "c":
+		if x.inCsum {
+			return x.cum
+		}
+	case "hit":
+		if c.scope.Payout && x.inSum {
+			return c.konst(b2f(x.i == c.scope.Outcome))
+		}
+		if c.scope.Payout {
+			c.fail(n.At, "hit exists only inside sum(...); outside it, compare y with an outcome number")
+		}
+	case "hitc":
+		if c.scope.Payout && x.inCsum {
+			return c.konst(b2f(c.scope.Outcome <= x.i))
+		}
+		if c.scope.Payout {
+			c.fail(n.At, "hitc exists only inside csum(...)")
+		}
+	}
+	for k, v := range c.scope.Vars {
+		if v == name {
+			return c.push(instr{op: opVar, a: int32(nOut + k)})
+		}
+	}
+	if k := isOutcomeVar(name); k > 0 && nOut > 0 {
+		if k <= nOut {
+			return c.outcomeVar(k)
+		}
+		c.fail(n.At, "%s names outcome %d, but there are only %d outcomes", name, k, nOut)
+	}
+	c.fail(n.At, "unknown name %q; known here: %s", name, c.known(x))
+	return 0
+}
+
+func b2f(b bool) float64 {
+	if b {
+		return 1
+	}
+	return 0
+}
+
+func (c *compiler) outcomeVar(k int) int32 {
+	return c.push(instr{op: opVar, a: int32(k - 1)})
+}
+
+func (c *compiler) index(n *Index, x ctx) int32 {
+	if n.Name != "p" {
+		c.fail(n.At, "only p can be subscripted (p[y], p[k]); %q cannot", n.Name)
+	}
+	if c.scope.Outcomes == 0 {
+		c.fail(n.At, "p[...] needs a formula over outcomes")
+	}
+	saved := c.constOnly
+	if saved == "" {
+		c.constOnly = "the subscript of p"
+	}
+	s := c.emit(n.Index, x)
+	c.constOnly = saved
+	v, ok := c.isConst(s)
+	if !ok {
+		c.fail(n.Index.Pos(), "the subscript of p must be y, i or an outcome number")
+	}
+	k := int(v)
+	if float64(k) != v || k < 1 || k > c.scope.Outcomes {
+		c.fail(n.Index.Pos(), "subscript %g is not an outcome number 1..%d", v, c.scope.Outcomes)
+	}
+	return c.outcomeVar(k)
+}
+
+func (c *compiler) call(n *Call, x ctx) int32 {
+	ar, ok := functionArity[n.Func]
+	if !ok {
+		if _, isParam := c.params[n.Func]; isParam || c.reserved(n.Func) {
+			c.fail(n.At, "%s is not a function; write * to multiply, as in %s*(...)", n.Func, n.Func)
+		}
+		c.fail(n.At, "unknown function %q; known: %s", n.Func, strings.Join(Functions(), ", "))
+	}
+	if len(n.Args) < ar[0] || ar[1] >= 0 && len(n.Args) > ar[1] {
+		want := fmt.Sprintf("%d argument", ar[0])
+		if ar[0] != 1 {
+			want += "s"
+		}
+		if ar[1] < 0 {
+			want = "at least " + want
+		}
+		c.fail(n.At, "%s takes %s, found %d", n.Func, want, len(n.Args))
+	}
+	switch n.Func {
+	case "sum":
+		return c.sum(n, x)
+	case "csum":
+		return c.csum(n, x)
+	case "if":
+		cond := c.emit(n.Args[0], x)
+		a := c.emit(n.Args[1], x)
+		b := c.emit(n.Args[2], x)
+		if kc, ok := c.isConst(cond); ok && kc == kc {
+			if kc != 0 {
+				return a
+			}
+			return b
+		}
+		if a == b {
+			return a
+		}
+		return c.push(instr{op: opSelect, a: a, b: b, c: cond})
+	case "min", "max":
+		o := opMin
+		if n.Func == "max" {
+			o = opMax
+		}
+		acc := c.emit(n.Args[0], x)
+		for _, a := range n.Args[1:] {
+			acc = c.op(o, acc, c.emit(a, x), 0)
+		}
+		return acc
+	}
+	a := c.emit(n.Args[0], x)
+	switch n.Func {
+	case "ln", "log":
+		return c.op(opLn, a, 0, 0)
+	case "log2":
+		return c.op(opMul, c.op(opLn, a, 0, 0), c.konst(1/math.Ln2), 0)
+	case "log10":
+		return c.op(opMul, c.op(opLn, a, 0, 0), c.konst(1/math.Ln10), 0)
+	case "exp":
+		return c.op(opExp, a, 0, 0)
+	case "sqrt":
+		return c.op(opSqrt, a, 0, 0)
+	case "abs":
+		return c.op(opAbs, a, 0, 0)
+	}
+	panic("formula: unhandled function " + n.Func)
+}
+
+func (c *compiler) sum(n *Call, x ctx) int32 {
+	if c.scope.Outcomes == 0 {
+		c.fail(n.At, "sum(...) runs over outcomes, and this formula has none")
+	}
+	if x.inSum || x.inCsum {
+		c.fail(n.At, "sum(...) cannot be nested inside sum(...) or csum(...)")
+	}
+	acc := c.konst(0)
+	for i := 1; i <= c.scope.Outcomes; i++ {
+		acc = c.op(opAdd, acc, c.emit(n.Args[0], ctx{inSum: true, i: i}), 0)
+	}
+	return acc
+}
+
+func (c *compiler) csum(n *Call, x ctx) int32 {
+	if c.scope.Outcomes == 0 {
+		c.fail(n.At, "csum(...) runs over outcomes, and this formula has none")
+	}
+	if !c.scope.Ordered {
+		c.fail(n.At, "csum(...) needs ordered outcomes (cumulative probabilities have no meaning otherwise)")
+	}
+	if x.inSum || x.inCsum {
+		c.fail(n.At, "csum(...) cannot be nested inside sum(...) or csum(...)")
+	}
+	acc := c.konst(0)
+	cum := c.konst(0)
+	for k := 1; k < c.scope.Outcomes; k++ {
+		cum = c.op(opAdd, cum, c.outcomeVar(k), 0)
+		acc = c.op(opAdd, acc, c.emit(n.Args[0], ctx{inCsum: true, i: k, cum: cum}), 0)
+	}
+	return acc
+}
