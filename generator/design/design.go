@@ -1,0 +1,133 @@
+// Package design is the description of a scoring-rule design as a user
+// states it — outcomes, the formula or preset, parameters, budget — and
+// turns it into the objects the engine computes with. The same Design
+// comes from command-line flags, from the workbench and from a saved file.
+package design
+
+import (
+	"fmt"
+	"strconv"
+	"strings"
+
+	"scorewright/generator/bregman"
+	"scorewright/generator/formula"
+)
+
+// Mode says what the formula of a design describes.
+type Mode string
+
+// The modes a design can be in.
+const (
+	// ModeGenerator: the formula is a concave generator H over p1..pn.
+	ModeGenerator Mode = "generator"
+	// ModePayout: the formula is somebody's payout pay(p, y) under audit.
+	ModePayout Mode = "payout"
+	// ModePoint: the formula is a concave phi(x) for point forecasts of a mean.
+	ModePoint Mode = "point"
+	// ModeEmphasis: the formula is a weight w(c) >= 0 on (0, 1) for n = 2.
+	ModeEmphasis Mode = "emphasis"
+)
+
+// Budget is how a rule is turned into money. Zero values mean "not set".
+type Budget struct {
+	// Floor and Cap bound every payment over the report menu.
+	Floor float64 `toml:"floor"`
+	Cap   float64 `toml:"cap"`
+	// MeanPay, when set, replaces Cap: the expected payment of a truthful
+	// forecaster at the reference belief.
+	MeanPay *float64 `toml:"mean_pay,omitempty"`
+	// Reference is the reference belief for MeanPay; nil means uniform.
+	Reference []float64 `toml:"reference,omitempty"`
+	// Step is the report menu step (n = 2) or 1/K for a simplex grid.
+	Step float64 `toml:"step"`
+	// Unit is the currency rounding unit; 0 means no rounding.
+	Unit float64 `toml:"unit"`
+	// Rounding is the rounding mode: "nearest" (half away from zero),
+	// "down" or "up"; empty means nearest.
+	Rounding string `toml:"rounding,omitempty"`
+	// ReportFloor is the smallest probability the menu allows (e.g. 0.01),
+	// the way out for rules that are infinite at p_k = 0.
+	ReportFloor float64 `toml:"report_floor,omitempty"`
+}
+
+// Design is everything that defines a scoring rule and its contract.
+type Design struct {
+	// Version is the file schema version.
+	Version int `toml:"version"`
+	// Title is a free-text name for the design.
+	Title string `toml:"title,omitempty"`
+	// Labels name the outcomes; their count is n.
+	Labels []string `toml:"outcomes"`
+	// Ordered marks ordinal outcomes.
+	Ordered bool `toml:"ordered,omitempty"`
+	// Mode says what Formula describes.
+	Mode Mode `toml:"mode"`
+	// Preset is the preset the formula came from, if any.
+	Preset string `toml:"preset,omitempty"`
+	// Formula is the formula text in scorewright's formula language.
+	Formula string `toml:"formula"`
+	// Params override parameter values of the formula.
+	Params map[string]float64 `toml:"params,omitempty"`
+	// Weights are outcome weights (w inside sum).
+	Weights []float64 `toml:"weights,omitempty"`
+	// Interval is [lo, hi] for point forecasts.
+	Interval []float64 `toml:"interval,omitempty"`
+	// Budget is the contract's money side.
+	Budget Budget `toml:"budget"`
+}
+
+// SchemaVersion is the design file version this build writes.
+const SchemaVersion = 1
+
+// N is the number of outcomes.
+func (d *Design) N() int { return len(d.Labels) }
+
+// DefaultLabels returns "1".."n".
+func DefaultLabels(n int) []string {
+	l := make([]string, n)
+	for i := range l {
+		l[i] = strconv.Itoa(i + 1)
+	}
+	return l
+}
+
+// ParseOutcomes reads the --outcomes form: a count "3" or labels
+// "frost,no frost".
+func ParseOutcomes(s string) ([]string, error) {
+	s = strings.TrimSpace(s)
+	if n, err := strconv.Atoi(s); err == nil {
+		if n < 2 || n > formula.MaxOutcomes {
+			return nil, fmt.Errorf("outcome count %d is outside 2..%d", n, formula.MaxOutcomes)
+		}
+		return DefaultLabels(n), nil
+	}
+	parts := strings.Split(s, ",")
+	seen := map[string]bool{}
+	for i, p := range parts {
+		p = strings.TrimSpace(p)
+		if p == "" {
+			return nil, fmt.Errorf("outcome label %d is empty", i+1)
+		}
+		if seen[p] {
+			return nil, fmt.Errorf("outcome label %q appears twice", p)
+		}
+		seen[p] = true
+		parts[i] = p
+	}
+	if len(parts) < 2 || len(parts) > formula.MaxOutcomes {
+		return nil, fmt.Errorf("%d outcome labels given; need 2..%d", len(parts), formula.MaxOutcomes)
+	}
+	return parts, nil
+}
+
+// Rule compiles a generator-mode design into a rule.
+func (d *Design) Rule() (*bregman.Rule, error) {
+	if d.Mode != ModeGenerator && d.Mode != "" {
+		return nil, fmt.Errorf("design is in %s mode, not generator mode", d.Mode)
+	}
+	f, err := bregman.NewFormula(d.Formula, bregman.Options{Outcomes: d.N(), Ordered: d.Ordered, Weights: d.Weights, Params: d.Params})
+	if err != nil {
+		return nil, err
+	}
+	return &bregman.Rule{Gen: f, Labels: d.Labels, Ordered: d.Ordered}, nil
+}

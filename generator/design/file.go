@@ -1,0 +1,165 @@
+package design
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"math"
+	"os"
+	"strings"
+
+	"github.com/BurntSushi/toml"
+
+	"scorewright/generator/formula"
+	"scorewright/generator/safefile"
+)
+
+// Load reads and validates a design file.
+func Load(path string) (*Design, error) {
+	b, err := os.ReadFile(path)
+	if err != nil {
+		return nil, err
+	}
+	d, err := Decode(b)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", path, err)
+	}
+	return d, nil
+}
+
+// Decode parses and validates design TOML.
+func Decode(b []byte) (*Design, error) {
+	var d Design
+	md, err := toml.Decode(string(b), &d)
+	if err != nil {
+		var pe toml.ParseError
+		if errors.As(err, &pe) {
+			return nil, fmt.Errorf("line %d: %s", pe.Position.Line, pe.Message)
+		}
+		return nil, err
+	}
+	if und := md.Undecoded(); len(und) > 0 {
+		keys := make([]string, len(und))
+		for i, k := range und {
+			keys[i] = k.String()
+		}
+		return nil, fmt.Errorf("unknown key %s (a typo, or a file from a newer scorewright?)", strings.Join(keys, ", "))
+	}
+	if err := d.Validate(); err != nil {
+		return nil, err
+	}
+	return &d, nil
+}
+
+// Validate checks a design for problems a user must fix, naming the field.
+func (d *Design) Validate() error {
+	switch {
+	case d.Version == 0:
+		return errors.New("version: missing (this build writes version 1)")
+	case d.Version > SchemaVersion:
+		return fmt.Errorf("version: %d is newer than this build understands (%d)", d.Version, SchemaVersion)
+	}
+	switch d.Mode {
+	case ModeGenerator, ModePayout, ModePoint, ModeEmphasis:
+	case "":
+		return errors.New(`mode: missing; one of "generator", "payout", "point", "emphasis"`)
+	default:
+		return fmt.Errorf(`mode: %q is not one of "generator", "payout", "point", "emphasis"`, d.Mode)
+	}
+	if d.Mode != ModePoint {
+		if n := d.N(); n < 2 || n > formula.MaxOutcomes {
+			return fmt.Errorf("outcomes: %d labels; need 2..%d", n, formula.MaxOutcomes)
+		}
+		seen := map[string]bool{}
+		for i, l := range d.Labels {
+			if strings.TrimSpace(l) == "" {
+				return fmt.Errorf("outcomes: label %d is empty", i+1)
+			}
+			if seen[l] {
+				return fmt.Errorf("outcomes: label %q appears twice", l)
+			}
+			seen[l] = true
+		}
+	}
+	if d.Mode == ModeEmphasis && d.N() != 2 {
+		return fmt.Errorf("mode: emphasis designs are for 2 outcomes, the design has %d", d.N())
+	}
+	if strings.TrimSpace(d.Formula) == "" && d.Preset == "" {
+		return errors.New("formula: empty, and no preset named")
+	}
+	if d.Weights != nil {
+		if len(d.Weights) != d.N() {
+			return fmt.Errorf("weights: %d given for %d outcomes", len(d.Weights), d.N())
+		}
+		for i, w := range d.Weights {
+			if !(w > 0) || math.IsInf(w, 0) {
+				return fmt.Errorf("weights: entry %d is %g; weights must be positive and finite", i+1, w)
+			}
+		}
+	}
+	if d.Mode == ModePoint {
+		if len(d.Interval) != 2 || !(d.Interval[0] < d.Interval[1]) {
+			return errors.New("interval: point designs need interval = [lo, hi] with lo < hi")
+		}
+	}
+	return d.Budget.Validate()
+}
+
+// Validate checks budget fields for values that can never work.
+func (b *Budget) Validate() error {
+	fin := func(name string, v float64) error {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return fmt.Errorf("budget.%s: %g is not a finite number", name, v)
+		}
+		return nil
+	}
+	for _, f := range []struct {
+		n string
+		v float64
+	}{{"floor", b.Floor}, {"cap", b.Cap}, {"step", b.Step}, {"unit", b.Unit}, {"report_floor", b.ReportFloor}} {
+		if err := fin(f.n, f.v); err != nil {
+			return err
+		}
+	}
+	if b.Step < 0 || b.Step > 0.5 {
+		return fmt.Errorf("budget.step: %g; the report step must be in (0, 0.5]", b.Step)
+	}
+	if b.Unit < 0 {
+		return fmt.Errorf("budget.unit: %g; the rounding unit must be positive (or 0 for none)", b.Unit)
+	}
+	if b.ReportFloor < 0 || b.ReportFloor >= 0.5 {
+		return fmt.Errorf("budget.report_floor: %g; must be in [0, 0.5)", b.ReportFloor)
+	}
+	switch b.Rounding {
+	case "", "nearest", "down", "up":
+	default:
+		return fmt.Errorf(`budget.rounding: %q is not one of "nearest", "down", "up"`, b.Rounding)
+	}
+	if b.MeanPay == nil && b.Cap != 0 && !(b.Cap > b.Floor) {
+		return fmt.Errorf("budget: cap %g must be above floor %g", b.Cap, b.Floor)
+	}
+	return nil
+}
+
+// Encode writes d as TOML.
+func (d *Design) Encode() ([]byte, error) {
+	var buf bytes.Buffer
+	buf.WriteString("# scorewright design file\n")
+	if err := toml.NewEncoder(&buf).Encode(d); err != nil {
+		return nil, err
+	}
+	return buf.Bytes(), nil
+}
+
+// Save writes d to path atomically. An existing file is replaced only when
+// overwrite is true; otherwise Save returns an error wrapping safefile.ErrExists.
+func (d *Design) Save(path string, overwrite bool) error {
+	if d.Version == 0 {
+		d.Version = SchemaVersion
+	}
+	b, err := d.Encode()
+	if err != nil {
+		return err
+	}
+	return safefile.Write(path, b, overwrite)
+}

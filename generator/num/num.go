@@ -1,0 +1,138 @@
+// Package num holds small numeric helpers shared by the engine's packages:
+// a JSON-safe float that keeps NaN and ±Inf as data, and formatting and
+// parsing of probability vectors.
+package num
+
+import (
+	"encoding/json"
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+)
+
+// Float is a float64 that survives JSON: finite values are numbers, NaN
+// and ±Inf are the strings "NaN", "+Inf" and "-Inf" (JSON has no literal
+// for them, and dropping them would hide exactly what a check must show).
+type Float float64
+
+// MarshalJSON writes finite values as numbers and others as strings.
+func (f Float) MarshalJSON() ([]byte, error) {
+	v := float64(f)
+	switch {
+	case math.IsNaN(v):
+		return []byte(`"NaN"`), nil
+	case math.IsInf(v, 1):
+		return []byte(`"+Inf"`), nil
+	case math.IsInf(v, -1):
+		return []byte(`"-Inf"`), nil
+	}
+	return strconv.AppendFloat(nil, v, 'g', -1, 64), nil
+}
+
+// UnmarshalJSON reads what MarshalJSON writes.
+func (f *Float) UnmarshalJSON(b []byte) error {
+	var s string
+	if err := json.Unmarshal(b, &s); err == nil {
+		switch s {
+		case "NaN":
+			*f = Float(math.NaN())
+		case "+Inf", "Inf":
+			*f = Float(math.Inf(1))
+		case "-Inf":
+			*f = Float(math.Inf(-1))
+		default:
+			return fmt.Errorf("num: %q is not a number", s)
+		}
+		return nil
+	}
+	var v float64
+	if err := json.Unmarshal(b, &v); err != nil {
+		return err
+	}
+	*f = Float(v)
+	return nil
+}
+
+// Floats converts a slice for JSON output.
+func Floats(v []float64) []Float {
+	if v == nil {
+		return nil
+	}
+	out := make([]Float, len(v))
+	for i, x := range v {
+		out[i] = Float(x)
+	}
+	return out
+}
+
+// SimplexTolerance is how far from 1 the entries of a probability vector
+// typed by a person may sum: enough for three-decimal inputs such as
+// 0.333,0.333,0.334, far too little to hide a mistake.
+const SimplexTolerance = 1e-6
+
+// ParseVector reads a comma-separated list of numbers.
+func ParseVector(s string) ([]float64, error) {
+	parts := strings.Split(s, ",")
+	v := make([]float64, len(parts))
+	for i, p := range parts {
+		x, err := strconv.ParseFloat(strings.TrimSpace(p), 64)
+		if err != nil {
+			return nil, fmt.Errorf("entry %d (%q) is not a number", i+1, strings.TrimSpace(p))
+		}
+		v[i] = x
+	}
+	return v, nil
+}
+
+// ParseDistribution reads a probability vector over n outcomes. For n = 2 a
+// single number is the probability of outcome 1. Entries must lie in [0, 1]
+// and sum to 1 within SimplexTolerance; the result is renormalised to sum
+// to 1 exactly.
+func ParseDistribution(s string, n int) ([]float64, error) {
+	v, err := ParseVector(s)
+	if err != nil {
+		return nil, err
+	}
+	if n == 2 && len(v) == 1 {
+		v = append(v, 1-v[0])
+	}
+	if len(v) != n {
+		return nil, fmt.Errorf("%d entries given for %d outcomes", len(v), n)
+	}
+	if err := CheckDistribution(v, SimplexTolerance); err != nil {
+		return nil, err
+	}
+	var sum float64
+	for _, x := range v {
+		sum += x
+	}
+	for i := range v {
+		v[i] /= sum
+	}
+	return v, nil
+}
+
+// CheckDistribution reports why v is not a probability vector within tol.
+func CheckDistribution(v []float64, tol float64) error {
+	var sum float64
+	for i, x := range v {
+		if math.IsNaN(x) || x < 0 || x > 1 {
+			return fmt.Errorf("entry %d is %g, outside [0, 1]", i+1, x)
+		}
+		sum += x
+	}
+	if math.Abs(sum-1) > tol {
+		return fmt.Errorf("entries sum to %.10g, not 1 (tolerance %g)", sum, tol)
+	}
+	return nil
+}
+
+// Format writes a vector as "(0.3, 0.7)" with up to 6 significant digits.
+func Format(v []float64) string {
+	parts := make([]string, len(v))
+	for i, x := range v {
+		parts[i] = strconv.FormatFloat(x, 'g', 6, 64)
+	}
+	return "(" + strings.Join(parts, ", ") + ")"
+}

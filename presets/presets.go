@@ -1,0 +1,124 @@
+// Package presets is scorewright's library of well-known generators, each
+// written in the formula language so that it runs through the same engine
+// as a formula a user types, each with the publication it comes from.
+package presets
+
+import (
+	"fmt"
+	"sort"
+	"strings"
+
+	"scorewright/generator/design"
+)
+
+// Kind says what a preset's formula describes.
+type Kind string
+
+// Preset kinds.
+const (
+	// KindGenerator: a concave generator H over p1..pn.
+	KindGenerator Kind = "generator"
+	// KindEmphasis: a weight w(c) on (0, 1) for n = 2, integrated twice.
+	KindEmphasis Kind = "emphasis"
+	// KindPoint: a concave phi(x) for point forecasts of a mean.
+	KindPoint Kind = "point"
+)
+
+// Preset is one built-in rule.
+type Preset struct {
+	// Name is what --preset takes.
+	Name string
+	// Title is a short human description.
+	Title string
+	// Kind says what Formula describes.
+	Kind Kind
+	// Formula is the formula text, with default parameter lines.
+	Formula string
+	// Source is the publication the rule is taken from.
+	Source string
+	// Ordered presets need ordered outcomes.
+	Ordered bool
+	// BinaryOnly presets are defined for n = 2 only.
+	BinaryOnly bool
+	// Weighted presets read outcome weights (w inside sum).
+	Weighted bool
+}
+
+// all returns the presets in display order. It builds a fresh slice each
+// call so callers cannot change the library.
+func all() []Preset {
+	return []Preset{
+		{Name: "log", Title: "logarithmic rule (effort -ln p_k)", Kind: KindGenerator,
+			Formula: "-sum(p*ln(p))",
+			Source:  "Good (1952), J. R. Statist. Soc. B 14:107-114; Gneiting & Raftery (2007), JASA 102:359-378"},
+		{Name: "quadratic", Title: "quadratic (Brier) rule, effort sum (p_i - [i=k])^2", Kind: KindGenerator,
+			Formula: "1 - sum(p^2)",
+			Source:  "Brier (1950), Monthly Weather Review 78:1-3"},
+		{Name: "spherical", Title: "spherical rule, reward p_k / ||p||_2", Kind: KindGenerator,
+			Formula: "-sqrt(sum(p^2))",
+			Source:  "Gneiting & Raftery (2007), JASA 102:359-378, Sec. 3"},
+		{Name: "pseudospherical", Title: "pseudospherical rule, reward (p_k / ||p||_a)^(a-1)", Kind: KindGenerator,
+			Formula: "a = 3\n-sum(p^a)^(1/a)",
+			Source:  "Gneiting & Raftery (2007), JASA 102:359-378, Sec. 3"},
+		{Name: "power", Title: "power (Tsallis) rule; g -> 1 is log, g = 2 quadratic", Kind: KindGenerator,
+			Formula: "g = 3\n(1 - sum(p^g)) / (g - 1)",
+			Source:  "Gneiting & Raftery (2007), JASA 102:359-378, Sec. 3 (power score)"},
+		{Name: "beta", Title: "beta family for yes/no events, emphasis c^(a-1) (1-c)^(b-1)", Kind: KindEmphasis,
+			Formula: "a = 1\nb = 1\nc^(a-1) * (1-c)^(b-1)", BinaryOnly: true,
+			Source: "Buja, Stuetzle & Shen (2005), Loss functions for binary class probability estimation; Schervish (1989), Ann. Statist. 17:1856-1879"},
+		{Name: "ranked", Title: "ranked probability rule for ordered outcomes", Kind: KindGenerator,
+			Formula: "csum(c*(1-c))", Ordered: true,
+			Source:  "Epstein (1969), J. Appl. Meteor. 8:985-987"},
+		{Name: "weighted-quadratic", Title: "quadratic rule with outcome weights, effort sum w_i (p_i - [i=k])^2", Kind: KindGenerator,
+			Formula: "sum(w*p*(1-p))", Weighted: true,
+			Source:  "Brier (1950) with outcome weights, as in Gneiting & Raftery (2007), JASA 102:359-378, Sec. 3"},
+	}
+}
+
+// All returns every preset, in display order.
+func All() []Preset { return all() }
+
+// Names returns the preset names, sorted.
+func Names() []string {
+	var names []string
+	for _, p := range all() {
+		names = append(names, p.Name)
+	}
+	sort.Strings(names)
+	return names
+}
+
+// Lookup returns the preset called name.
+func Lookup(name string) (Preset, error) {
+	for _, p := range all() {
+		if p.Name == name {
+			return p, nil
+		}
+	}
+	return Preset{}, fmt.Errorf("unknown preset %q; known: %s", name, strings.Join(Names(), ", "))
+}
+
+// Apply fills a design's formula, mode and ordering from its Preset name,
+// and checks that the preset fits the design's outcomes.
+func Apply(d *design.Design) error {
+	p, err := Lookup(d.Preset)
+	if err != nil {
+		return err
+	}
+	if p.BinaryOnly && d.N() != 2 {
+		return fmt.Errorf("preset %q is for 2 outcomes, the design has %d", p.Name, d.N())
+	}
+	if p.Ordered && !d.Ordered {
+		d.Ordered = true
+	}
+	d.Formula = p.Formula
+	switch p.Kind {
+	case KindEmphasis:
+		d.Mode = design.ModeEmphasis
+	case KindPoint:
+		d.Mode = design.ModePoint
+	default:
+		d.Mode = design.ModeGenerator
+	}
+	return nil
+}
