@@ -68,10 +68,10 @@ func all() []Preset {
 			Source: "Buja, Stuetzle & Shen (2005), Loss functions for binary class probability estimation; Schervish (1989), Ann. Statist. 17:1856-1879"},
 		{Name: "ranked", Title: "ranked probability rule for ordered outcomes", Kind: KindGenerator,
 			Formula: "csum(c*(1-c))", Ordered: true,
-			Source:  "Epstein (1969), J. Appl. Meteor. 8:985-987"},
+			Source: "Epstein (1969), J. Appl. Meteor. 8:985-987"},
 		{Name: "weighted-quadratic", Title: "quadratic rule with outcome weights, effort sum w_i (p_i - [i=k])^2", Kind: KindGenerator,
 			Formula: "sum(w*p*(1-p))", Weighted: true,
-			Source:  "Brier (1950) with outcome weights, as in Gneiting & Raftery (2007), JASA 102:359-378, Sec. 3"},
+			Source: "Brier (1950) with outcome weights, as in Gneiting & Raftery (2007), JASA 102:359-378, Sec. 3"},
 	}
 }
 

@@ -172,7 +172,7 @@ func (s *Scorer) Divergence(q, p []float64) float64 {
 
 // Binary returns, for n = 2 and p the probability of outcome 1, the
 // generator h = H(p, 1-p), its derivative dh = H'(p) and the emphasis
-// weight w = -H''(p).
+// weight w = -H”(p).
 func (s *Scorer) Binary(p float64) (h, dh, w float64) {
 	if s.n != 2 {
 		panic("bregman: Binary needs 2 outcomes")

@@ -263,7 +263,7 @@ func (m *Machine) Hessian(hess, grad, vars []float64) float64 {
 	return v[out]
 }
 
-// unary applies the chain rule for z = f(u): G = f' Gu, H = f' Hu + f'' Gu Guᵀ.
+// unary applies the chain rule for z = f(u): G = f' Gu, H = f' Hu + f” Gu Guᵀ.
 // Terms whose coefficient is exactly zero are skipped so that a structural
 // zero never meets an infinite factor.
 func (m *Machine) unary(i int, in instr, fu, fuu float64) {

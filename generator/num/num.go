@@ -27,6 +27,9 @@ func (f Float) MarshalJSON() ([]byte, error) {
 	case math.IsInf(v, -1):
 		return []byte(`"-Inf"`), nil
 	}
+	if v == 0 {
+		v = 0 // no "-0" in output
+	}
 	return strconv.AppendFloat(nil, v, 'g', -1, 64), nil
 }
 

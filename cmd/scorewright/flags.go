@@ -1,0 +1,259 @@
+package main
+
+import (
+	"encoding/json"
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"strconv"
+	"strings"
+
+	"scorewright/generator/design"
+	"scorewright/generator/num"
+	"scorewright/presets"
+)
+
+// errHelp means --help was asked for and printed.
+var errHelp = errors.New("help shown")
+
+// newFlags returns a flag set whose errors come back as one-line usage
+// errors instead of being printed with the whole usage text.
+func newFlags(name, usage string) *flag.FlagSet {
+	fs := flag.NewFlagSet(name, flag.ContinueOnError)
+	fs.SetOutput(io.Discard)
+	fs.Usage = func() {}
+	_ = usage
+	return fs
+}
+
+// parseFlags parses args, printing help on --help and turning every other
+// problem into a usage error. Positional arguments are refused unless the
+// caller wants them.
+func parseFlags(e *env, fs *flag.FlagSet, usage string, args []string, positional bool) error {
+	if err := fs.Parse(args); err != nil {
+		if errors.Is(err, flag.ErrHelp) {
+			fmt.Fprintf(e.stdout, "usage: scorewright %s %s\n\n", fs.Name(), usage)
+			fs.SetOutput(e.stdout)
+			fs.PrintDefaults()
+			return errHelp
+		}
+		return usagef("%v", err)
+	}
+	if !positional && fs.NArg() > 0 {
+		return usagef("unexpected argument %q (options start with --)", fs.Arg(0))
+	}
+	return nil
+}
+
+// paramFlag collects repeated --param name=value.
+type paramFlag map[string]float64
+
+func (p paramFlag) String() string { return fmt.Sprint(map[string]float64(p)) }
+
+func (p paramFlag) Set(s string) error {
+	name, val, ok := strings.Cut(s, "=")
+	name = strings.TrimSpace(name)
+	if !ok || name == "" {
+		return fmt.Errorf("--param wants name=value, got %q", s)
+	}
+	v, err := strconv.ParseFloat(strings.TrimSpace(val), 64)
+	if err != nil {
+		return fmt.Errorf("--param %s: %q is not a number", name, val)
+	}
+	p[name] = v
+	return nil
+}
+
+// ruleFlags are the options that say which rule a command works on.
+type ruleFlags struct {
+	outcomes  string
+	generator string
+	preset    string
+	params    paramFlag
+	ordered   bool
+	file      string
+	weights   string
+	emphasis  string
+	interval  string
+}
+
+const ruleUsage = "--outcomes N|label1,label2,... (--generator EXPR | --preset NAME | --emphasis EXPR) [--param name=value] [--ordered] [--weights w1,w2,...] | --design FILE | --interval LO,HI --generator EXPR"
+
+func addRuleFlags(fs *flag.FlagSet) *ruleFlags {
+	r := &ruleFlags{params: paramFlag{}}
+	fs.StringVar(&r.outcomes, "outcomes", "", "outcome count or comma-separated labels")
+	fs.StringVar(&r.generator, "generator", "", "concave generator formula in p1..pn (or in x with --interval)")
+	fs.StringVar(&r.preset, "preset", "", "built-in rule name (see scorewright presets)")
+	fs.Var(r.params, "param", "override a formula parameter, name=value (repeatable)")
+	fs.BoolVar(&r.ordered, "ordered", false, "outcomes are ordered (allows csum)")
+	fs.StringVar(&r.file, "design", "", "read the rule (and budget) from a design file")
+	fs.StringVar(&r.weights, "weights", "", "outcome weights w1,w2,... (w inside sum)")
+	fs.StringVar(&r.emphasis, "emphasis", "", "n = 2: design the rule from a weight w(c) >= 0 in c")
+	fs.StringVar(&r.interval, "interval", "", "point forecasts of a mean on [LO, HI]")
+	return r
+}
+
+// design builds the design the flags describe. A design file supplies
+// everything; flags given beside it override its parameters.
+func (r *ruleFlags) design() (*design.Design, error) {
+	var d *design.Design
+	if r.file != "" {
+		if r.generator != "" || r.preset != "" || r.emphasis != "" || r.outcomes != "" {
+			return nil, usagef("--design gives the whole rule; do not combine it with --outcomes, --generator, --preset or --emphasis")
+		}
+		var err error
+		d, err = design.Load(r.file)
+		if err != nil {
+			return nil, usagef("%v", err)
+		}
+	} else {
+		d = &design.Design{Version: design.SchemaVersion, Mode: design.ModeGenerator, Ordered: r.ordered}
+		sources := 0
+		for _, s := range []string{r.generator, r.preset, r.emphasis} {
+			if s != "" {
+				sources++
+			}
+		}
+		if sources != 1 {
+			return nil, usagef("give exactly one of --generator, --preset or --emphasis")
+		}
+		if r.interval != "" {
+			if r.generator == "" {
+				return nil, usagef("--interval needs --generator EXPR in x")
+			}
+			iv, err := num.ParseVector(r.interval)
+			if err != nil || len(iv) != 2 || !(iv[0] < iv[1]) {
+				return nil, usagef("--interval wants LO,HI with LO < HI, got %q", r.interval)
+			}
+			d.Mode, d.Interval, d.Formula = design.ModePoint, iv, r.generator
+		} else {
+			if r.outcomes == "" {
+				return nil, usagef("--outcomes is required (a count such as 3, or labels such as frost,clear)")
+			}
+			labels, err := design.ParseOutcomes(r.outcomes)
+			if err != nil {
+				return nil, usagef("--outcomes: %v", err)
+			}
+			d.Labels = labels
+			switch {
+			case r.preset != "":
+				d.Preset = r.preset
+				if err := presets.Apply(d); err != nil {
+					return nil, usagef("--preset: %v", err)
+				}
+			case r.emphasis != "":
+				if len(labels) != 2 {
+					return nil, usagef("--emphasis designs rules for 2 outcomes, not %d", len(labels))
+				}
+				d.Mode, d.Formula = design.ModeEmphasis, r.emphasis
+			default:
+				d.Formula = r.generator
+			}
+		}
+	}
+	if r.ordered {
+		d.Ordered = true
+	}
+	if len(r.params) > 0 {
+		if d.Params == nil {
+			d.Params = map[string]float64{}
+		}
+		for k, v := range r.params {
+			d.Params[k] = v
+		}
+	}
+	if r.weights != "" {
+		w, err := num.ParseVector(r.weights)
+		if err != nil {
+			return nil, usagef("--weights: %v", err)
+		}
+		d.Weights = w
+	}
+	if d.Preset != "" && d.Formula == "" {
+		if err := presets.Apply(d); err != nil {
+			return nil, usagef("%v", err)
+		}
+	}
+	if d.Weights == nil && d.Preset != "" {
+		if p, err := presets.Lookup(d.Preset); err == nil && p.Weighted && d.Mode == design.ModeGenerator {
+			return nil, usagef("preset %q needs --weights w1,...,w%d", d.Preset, d.N())
+		}
+	}
+	if err := d.Validate(); err != nil {
+		return nil, usagef("%v", err)
+	}
+	return d, nil
+}
+
+// budgetFlags are the options that fit a rule to money.
+type budgetFlags struct {
+	floor, cap, meanPay, step, unit, reportFloor float64
+	rounding, reference                          string
+	set                                          map[string]bool
+}
+
+const budgetUsage = "--floor F (--cap C | --mean-pay M [--reference q1,...]) [--step S] [--unit U] [--rounding nearest|down|up] [--report-floor P]"
+
+func addBudgetFlags(fs *flag.FlagSet) *budgetFlags {
+	b := &budgetFlags{}
+	fs.Float64Var(&b.floor, "floor", 0, "smallest payment")
+	fs.Float64Var(&b.cap, "cap", 0, "largest payment")
+	fs.Float64Var(&b.meanPay, "mean-pay", 0, "target expected payment of a truthful forecaster at the reference belief (instead of --cap)")
+	fs.StringVar(&b.reference, "reference", "", "reference belief for --mean-pay (default uniform)")
+	fs.Float64Var(&b.step, "step", 0, "report menu step (n = 2), or 1/K for a simplex grid")
+	fs.Float64Var(&b.unit, "unit", 0, "currency rounding unit (0: no rounding)")
+	fs.StringVar(&b.rounding, "rounding", "nearest", "rounding mode: nearest, down or up")
+	fs.Float64Var(&b.reportFloor, "report-floor", 0, "smallest probability a report may give an outcome (e.g. 0.01)")
+	return b
+}
+
+// apply writes the budget flags that were given over the design's budget.
+func (b *budgetFlags) apply(fs *flag.FlagSet, d *design.Design) error {
+	set := map[string]bool{}
+	fs.Visit(func(f *flag.Flag) { set[f.Name] = true })
+	bd := &d.Budget
+	if set["floor"] {
+		bd.Floor = b.floor
+	}
+	if set["cap"] {
+		bd.Cap = b.cap
+	}
+	if set["mean-pay"] {
+		if set["cap"] {
+			return usagef("give --cap or --mean-pay, not both")
+		}
+		m := b.meanPay
+		bd.MeanPay = &m
+	}
+	if set["reference"] {
+		q, err := num.ParseDistribution(b.reference, d.N())
+		if err != nil {
+			return usagef("--reference: %v", err)
+		}
+		bd.Reference = q
+	}
+	if set["step"] {
+		bd.Step = b.step
+	}
+	if set["unit"] {
+		bd.Unit = b.unit
+	}
+	if set["rounding"] || bd.Rounding == "" {
+		bd.Rounding = b.rounding
+	}
+	if set["report-floor"] {
+		bd.ReportFloor = b.reportFloor
+	}
+	if err := bd.Validate(); err != nil {
+		return usagef("%v", err)
+	}
+	return nil
+}
+
+// writeJSON prints v as indented JSON.
+func writeJSON(w io.Writer, v any) error {
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	return enc.Encode(v)
+}
