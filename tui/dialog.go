@@ -82,7 +82,9 @@ func (d *fileDialog) askOverwrite() {
 	d.msg = d.Path() + " exists. Replace it? y / n"
 }
 
-func (d *fileDialog) failed(msg string) { d.msg, d.busy, d.confirm, d.overwrite = msg, false, false, false }
+func (d *fileDialog) failed(msg string) {
+	d.msg, d.busy, d.confirm, d.overwrite = msg, false, false, false
+}
 
 // Update handles a key.
 func (d fileDialog) Update(km tea.KeyMsg) (fileDialog, tea.Cmd, dialogAction) {

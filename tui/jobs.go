@@ -68,7 +68,7 @@ type (
 		gen uint64
 		c   *compiled
 	}
-	debounceMsg struct{ gen uint64 }
+	debounceMsg      struct{ gen uint64 }
 	checkProgressMsg struct {
 		gen         uint64
 		done, total int64

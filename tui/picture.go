@@ -488,4 +488,3 @@ func round2(q []float64) []float64 {
 	}
 	return out
 }
-

@@ -41,16 +41,16 @@ func (s Settings) debounce() time.Duration {
 // can pin the colour profile.
 type Styles struct {
 	Border, BorderFocus lipgloss.Style
-	Title, TitleFocus lipgloss.Style
-	Header            lipgloss.Style
-	Label             lipgloss.Style
-	Selected          lipgloss.Style
-	Dim               lipgloss.Style
-	Error             lipgloss.Style
-	Pass, Fail        lipgloss.Style
-	Key               lipgloss.Style
-	Dialog            lipgloss.Style
-	Series            [4]lipgloss.Style
+	Title, TitleFocus   lipgloss.Style
+	Header              lipgloss.Style
+	Label               lipgloss.Style
+	Selected            lipgloss.Style
+	Dim                 lipgloss.Style
+	Error               lipgloss.Style
+	Pass, Fail          lipgloss.Style
+	Key                 lipgloss.Style
+	Dialog              lipgloss.Style
+	Series              [4]lipgloss.Style
 }
 
 // NewStyles returns the workbench styles rendered by r (nil: the default
