@@ -282,7 +282,7 @@ func (m *Machine) copySlot(dst, src int) {
 	copy(m.hess[dst*nv*nv:(dst+1)*nv*nv], m.hess[src*nv*nv:(src+1)*nv*nv])
 }
 
-// unary applies the chain rule for z = f(u): G = f' Gu, H = f' Hu + f'' Gu Guᵀ.
+// unary applies the chain rule for z = f(u): G = f' Gu, H = f' Hu + f” Gu Guᵀ.
 // Terms whose coefficient is exactly zero are skipped so that a structural
 // zero never meets an infinite factor.
 func (m *Machine) unary(i int, in instr, fu, fuu float64) {
