@@ -300,6 +300,14 @@ func (c *compiler) op(o opcode, a, b int32, k float64) int32 {
 		if cb && kb == 1 {
 			return a
 		}
+		// x * ln(x), the term of every entropy, is fused: one instruction,
+		// and its derivative ln(x) + 1 needs no division in the backward sweep.
+		if in := c.code[b]; in.op == opLn && in.a == a {
+			return c.push(instr{op: opXLnX, a: a})
+		}
+		if in := c.code[a]; in.op == opLn && in.a == b {
+			return c.push(instr{op: opXLnX, a: b})
+		}
 	case opDiv:
 		if cb && kb == 1 {
 			return a
@@ -370,6 +378,8 @@ func apply(o opcode, a, b, k float64) float64 {
 		return cmp(a, b, a > b)
 	case opGe:
 		return cmp(a, b, a >= b)
+	case opXLnX:
+		return mul0(a, math.Log(a))
 	}
 	panic("formula: apply of " + o.String())
 }
