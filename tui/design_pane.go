@@ -528,13 +528,13 @@ func (p DesignPane) errorLines(iw int) []string {
 	}
 	var fe *formula.Error
 	if errors.As(p.err, &fe) {
-		out := strings.Split(p.st.Error.Width(max(10, iw-2)).Render("  ✗ "+fe.Error()), "\n")
+		out := strings.Split(p.st.Error.Width(max(10, iw-2)).PaddingLeft(2).Render("✗ "+fe.Error()), "\n")
 		for _, l := range strings.Split(fe.Caret(), "\n") {
 			out = append(out, p.st.Error.Render("    "+l))
 		}
 		return out
 	}
-	return strings.Split(p.st.Error.Width(max(10, iw-2)).Render("  ✗ "+p.err.Error()), "\n")
+	return strings.Split(p.st.Error.Width(max(10, iw-2)).PaddingLeft(2).Render("✗ "+p.err.Error()), "\n")
 }
 
 func (p DesignPane) pickerLines(d *design.Design) []string {

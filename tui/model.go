@@ -371,6 +371,7 @@ func (m *Model) routeToPane(km tea.KeyMsg) tea.Cmd {
 func (m *Model) edited() tea.Cmd {
 	m.gen++
 	m.stopCheck()
+	m.checkRun++ // answers of the run for the old design are now stale
 	m.checks.edited()
 	m.budget.edited()
 	m.status = ""
@@ -522,7 +523,11 @@ func (m *Model) openDialog(kind dialogKind) {
 		d := newFileDialog(m.st, m.keys, kind, m.defaultName("toml"), []string{"toml"})
 		m.dialog = &d
 	case dialogOpen:
-		d := newFileDialog(m.st, m.keys, kind, m.set.Dir, nil)
+		dir := m.set.Dir
+		if dir != "" && !strings.HasSuffix(dir, string(filepath.Separator)) {
+			dir += string(filepath.Separator)
+		}
+		d := newFileDialog(m.st, m.keys, kind, dir, nil)
 		m.dialog = &d
 	case dialogExport:
 		if m.set.Exporter == nil {
