@@ -126,15 +126,15 @@ type ctx struct {
 }
 
 type compiler struct {
-	src       string
-	scope     Scope
-	code      []instr
-	cse       map[instr]int32
-	konsts    map[uint64]int32
+	src    string
+	scope  Scope
+	code   []instr
+	cse    map[instr]int32
+	konsts map[uint64]int32
 	// vconsts holds the values of vector constants (opVConst's a indexes
 	// it); vkeys shares equal vectors.
-	vconsts [][]float64
-	vkeys   map[string]int32
+	vconsts   [][]float64
+	vkeys     map[string]int32
 	varNames  []string
 	params    map[string]float64
 	paramList []ParamValue
