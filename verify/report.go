@@ -41,7 +41,7 @@ const (
 
 // DefaultResolution is the grid resolution used when Settings.Resolution
 // is 0: fine for few outcomes, coarser as the grid grows as K^(n-1), and
-// for n >= 7 a resolution whose full grid is sampled.
+// for n >= 7 a fine lattice that is sampled, not enumerated.
 func DefaultResolution(n int) int {
 	switch n {
 	case 2:
@@ -55,7 +55,8 @@ func DefaultResolution(n int) int {
 	case 6:
 		return 12
 	}
-	return 2 * n
+	// Sampled: the lattice only fixes the rounding of the sample.
+	return 10 * n
 }
 
 func (s Settings) withDefaults(n int) Settings {

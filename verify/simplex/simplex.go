@@ -93,7 +93,9 @@ func (g *Grid) add(comp []int) {
 // Sample returns a sample of the lattice of resolution k: the n vertices,
 // then count points drawn uniformly from the simplex (a flat Dirichlet)
 // and rounded to the lattice, a quarter of them on a random face so that
-// the boundary is examined too. The same seed gives the same points.
+// the boundary is examined too. Points are distinct; on a lattice too
+// small to hold count of them, fewer are returned. The same seed gives the
+// same points.
 func Sample(n, k, count int, seed uint64) (*Grid, error) {
 	if n < 2 {
 		return nil, fmt.Errorf("simplex: need at least 2 outcomes, got %d", n)
@@ -110,9 +112,16 @@ func Sample(n, k, count int, seed uint64) (*Grid, error) {
 		g.add(comp)
 	}
 	x := make([]float64, n)
-	for s := 0; s < count; s++ {
+	seen := map[string]bool{}
+	key := func(c []int) string { return fmt.Sprint(c) }
+	for v := 0; v < n; v++ {
+		clear(comp)
+		comp[v] = k
+		seen[key(comp)] = true
+	}
+	for s, tries := 0, 0; s < count && tries < 20*count; tries++ {
 		var sum float64
-		face := s%4 == 3
+		face := tries%4 == 3
 		for i := range x {
 			x[i] = rng.ExpFloat64()
 			if face && rng.IntN(2) == 0 {
@@ -124,7 +133,12 @@ func Sample(n, k, count int, seed uint64) (*Grid, error) {
 			x[rng.IntN(n)], sum = 1, 1
 		}
 		Round(comp, x, sum, k)
+		if seen[key(comp)] {
+			continue // a repeated point would look like a tie
+		}
+		seen[key(comp)] = true
 		g.add(comp)
+		s++
 	}
 	return g, nil
 }
