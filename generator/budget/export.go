@@ -2,6 +2,7 @@ package budget
 
 import (
 	"fmt"
+	"strconv"
 	"strings"
 
 	"scorewright/generator/num"
@@ -67,7 +68,7 @@ func (f *Fit) BudgetDesc() string {
 
 // MenuDesc describes the menu, clamp included.
 func (f *Fit) MenuDesc() string {
-	d := f.Menu.Desc
+	d := strings.Replace(f.Menu.Desc, firstOutcome, strconv.Quote(f.Labels[0]), 1)
 	if f.Clamp > 0 {
 		d += fmt.Sprintf("; clamp %s: each report is paid as if every probability were at least %s, rescaled to sum 1", short(f.Clamp), short(f.Clamp))
 	}
@@ -91,7 +92,7 @@ func (f *Fit) Notes(rc *Recheck) []string {
 			notes = append(notes, fmt.Sprintf("%d menu items are the unique best report for no belief on the grid: %s (%s)", len(rc.NeverChosen), f.listItems(rc.NeverChosen), rc.Grid))
 		}
 		if rc.TiedBeliefs > 0 {
-			notes = append(notes, fmt.Sprintf("%d of %d grid beliefs have a tie for the best report", rc.TiedBeliefs, rc.Beliefs))
+			notes = append(notes, fmt.Sprintf("%d of %d grid beliefs sit where two menu items tie for the best report (cell boundaries)", rc.TiedBeliefs, rc.Beliefs))
 		}
 		if g := rc.ClampGap; g != nil {
 			if g.Max > 0 {

@@ -264,7 +264,16 @@ func (f *Fit) truthfulRange(s *bregman.Scorer) TruthfulRange {
 	tr := TruthfulRange{Min: math.Inf(1), Max: math.Inf(-1)}
 	cp := make([]float64, n)
 	skipped := 0
-	for _, q := range SimplexGrid(K, n) {
+	// The grid, plus the uniform belief (where symmetric generators peak)
+	// and the menu items.
+	beliefs := SimplexGrid(K, n)
+	uniform := make([]float64, n)
+	for k := range uniform {
+		uniform[k] = 1 / float64(n)
+	}
+	beliefs = append(beliefs, uniform)
+	beliefs = append(beliefs, f.Menu.Reports...)
+	for _, q := range beliefs {
 		v := f.exact(s.Expected(q, ClampReport(cp, q, f.Clamp)))
 		if math.IsNaN(v) || math.IsInf(v, 0) {
 			skipped++
@@ -277,7 +286,7 @@ func (f *Fit) truthfulRange(s *bregman.Scorer) TruthfulRange {
 			tr.Max, tr.MaxBelief = v, q
 		}
 	}
-	tr.Grid = fmt.Sprintf("beliefs on a simplex grid of step 1/%d (%.0f points)", K, gridCount(K, n))
+	tr.Grid = fmt.Sprintf("beliefs on a simplex grid of step 1/%d (%.0f points), the uniform belief and the menu items", K, gridCount(K, n))
 	if skipped > 0 {
 		tr.Grid += fmt.Sprintf("; %d beliefs where the rule is not finite left out", skipped)
 	}

@@ -84,7 +84,7 @@ func StepMenu(n int, step, reportFloor float64) (*Menu, error) {
 	}
 	if n == 2 {
 		lo, hi := m.Reports[0][0], m.Reports[len(m.Reports)-1][0]
-		m.Desc = fmt.Sprintf("probability of the first outcome in steps of %s from %s to %s (%d reports)",
+		m.Desc = fmt.Sprintf("probability of "+firstOutcome+" in steps of %s from %s to %s (%d reports)",
 			short(step), short(lo), short(hi), len(m.Reports))
 	} else {
 		m.Desc = fmt.Sprintf("every report with entries in steps of 1/%d over %d outcomes (%d reports)", K, n, len(m.Reports))
@@ -94,6 +94,10 @@ func StepMenu(n int, step, reportFloor float64) (*Menu, error) {
 	}
 	return m, nil
 }
+
+// firstOutcome stands for the event in a two-outcome menu description
+// until the fit, which knows the labels, names it.
+const firstOutcome = "the first outcome"
 
 func short(v float64) string { return strconv.FormatFloat(v, 'g', 6, 64) }
 

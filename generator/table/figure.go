@@ -24,11 +24,14 @@ import (
 // Figure layout. Sizes are fixed so that a figure reads the same in every
 // format.
 const (
-	figWidth     = 18 * vg.Centimeter
-	panelHeight  = 9 * vg.Centimeter
-	metaFontSize = 6.5
-	metaWrap     = 130 // characters per metadata line
-	panelCols    = 3
+	figWidth    = 18 * vg.Centimeter
+	panelHeight = 9 * vg.Centimeter
+	// trianglePanelHeight makes a third of the width show the triangle's
+	// x range 1.2 and y range 1.1 at about the same scale.
+	trianglePanelHeight = 6 * vg.Centimeter
+	metaFontSize        = 6.5
+	metaWrap            = 130 // characters per metadata line
+	panelCols           = 3
 )
 
 // writeFigure draws pay against report for each outcome, with the
@@ -67,11 +70,20 @@ func (t *Table) writeFigure(w io.Writer, format string) error {
 		}
 	}
 
-	lines, colours := t.figureText()
-	sty := draw.TextStyle{Font: font.From(plot.DefaultFont, metaFontSize), Handler: plot.DefaultTextHandler, YAlign: draw.YTop}
+	// The metadata is set in a monospaced face, so that wrapped lines
+	// keep their spacing in every format and the wrap width is exact.
+	mono := font.Font{Typeface: "Liberation", Variant: "Mono"}
+	sty := draw.TextStyle{Font: font.From(mono, metaFontSize), Handler: plot.DefaultTextHandler, YAlign: draw.YTop}
+	wrapAt := int((figWidth - vg.Centimeter) / sty.Width("M"))
+	lines, colours := t.figureText(wrapAt)
 	lineH := sty.Height("Ag") * 1.25
 	textH := lineH*vg.Length(len(lines)) + vg.Centimeter/2
-	height := panelHeight*vg.Length(rows) + textH
+	ph := panelHeight
+	if n == 3 {
+		// Keep the simplex triangle close to equilateral.
+		ph = trianglePanelHeight
+	}
+	height := ph*vg.Length(rows) + textH
 
 	cw, err := draw.NewFormattedCanvas(figWidth, height, format)
 	if err != nil {
@@ -107,7 +119,7 @@ func (t *Table) writeFigure(w io.Writer, format string) error {
 
 // figureText is the metadata block wrapped to the figure's width, with
 // warnings in red.
-func (t *Table) figureText() ([]string, []color.Color) {
+func (t *Table) figureText(width int) ([]string, []color.Color) {
 	var lines []string
 	var colours []color.Color
 	warn := color.RGBA{R: 0xb0, A: 0xff}
@@ -116,7 +128,7 @@ func (t *Table) figureText() ([]string, []color.Color) {
 		if f.Key == "WARNING" {
 			c = warn
 		}
-		for i, l := range wrap(f.Key+": "+oneLine(f.Value), metaWrap) {
+		for i, l := range wrap(f.Key+": "+oneLine(f.Value), width-4) {
 			if i > 0 {
 				l = "    " + l
 			}
@@ -239,15 +251,18 @@ func (t *Table) trianglePlots() ([]*plot.Plot, error) {
 			return draw.GlyphStyle{Color: c, Radius: vg.Points(2.5), Shape: draw.CircleGlyph{}}
 		}
 		labels, err := plotter.NewLabels(plotter.XYLabels{
-			XYs:    plotter.XYs{{X: -0.04, Y: -0.06}, {X: 1.0, Y: -0.06}, {X: 0.5, Y: s3 + 0.02}},
+			XYs:    plotter.XYs{{X: 0, Y: -0.12}, {X: 1, Y: -0.12}, {X: 0.5, Y: s3 + 0.03}},
 			Labels: []string{t.Labels[0], t.Labels[1], t.Labels[2]},
 		})
 		if err != nil {
 			return nil, err
 		}
+		for i := range labels.TextStyle {
+			labels.TextStyle[i].XAlign = draw.XCenter
+		}
 		p.Add(edge, sc, labels)
 		p.X.Min, p.X.Max = -0.1, 1.1
-		p.Y.Min, p.Y.Max = -0.1, 1
+		p.Y.Min, p.Y.Max = -0.15, 1
 		plots = append(plots, p)
 	}
 	return plots, nil

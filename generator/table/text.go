@@ -142,6 +142,8 @@ type jsonRow struct {
 }
 
 type jsonTable struct {
+	// Warnings repeat the metadata's warnings at the top of the document.
+	Warnings  []string  `json:"warnings,omitempty"`
 	Kind      Kind      `json:"kind"`
 	ValueName string    `json:"value_name"`
 	Decimals  int       `json:"decimals"`
@@ -151,7 +153,7 @@ type jsonTable struct {
 }
 
 func (t *Table) writeJSON(w io.Writer) error {
-	jt := jsonTable{Kind: t.Kind, ValueName: t.ValueName, Decimals: t.Decimals, Outcomes: t.Labels, Meta: t.Meta}
+	jt := jsonTable{Warnings: t.Meta.Warnings, Kind: t.Kind, ValueName: t.ValueName, Decimals: t.Decimals, Outcomes: t.Labels, Meta: t.Meta}
 	for i, p := range t.Reports {
 		jt.Rows = append(jt.Rows, jsonRow{Report: num.Floats(p), Values: num.Floats(t.Values[i])})
 	}
@@ -192,7 +194,7 @@ func texEscape(s string) string {
 	r := strings.NewReplacer(
 		`\`, `\textbackslash{}`, "{", `\{`, "}", `\}`, "$", `\$`, "&", `\&`, "#", `\#`,
 		"^", `\textasciicircum{}`, "_", `\_`, "~", `\textasciitilde{}`, "%", `\%`,
-		"<", `\textless{}`, ">", `\textgreater{}`, "|", `\textbar{}`,
+		"<", `\textless{}`, ">", `\textgreater{}`, "|", `\textbar{}`, "·", `\textperiodcentered{}`,
 	)
 	return r.Replace(s)
 }
