@@ -62,7 +62,7 @@ func Compile(f *File, scope Scope) (*Program, error) {
 	if scope.Payout && scope.Outcomes > 0 && (scope.Outcome < 1 || scope.Outcome > scope.Outcomes) {
 		return nil, fmt.Errorf("formula: payout outcome %d is outside 1..%d", scope.Outcome, scope.Outcomes)
 	}
-	c := &compiler{src: f.Source, scope: scope, cse: map[instr]int32{}, params: map[string]float64{}}
+	c := &compiler{src: f.Source, scope: scope, cse: map[instr]int32{}, konsts: map[uint64]int32{}, params: map[string]float64{}}
 	for k := 1; k <= scope.Outcomes; k++ {
 		c.varNames = append(c.varNames, "p"+strconv.Itoa(k))
 	}
@@ -97,7 +97,9 @@ func Compile(f *File, scope Scope) (*Program, error) {
 			return nil, fmt.Errorf("unknown parameter %q; the formula sets: %s", name, strings.Join(known, ", "))
 		}
 	}
-	return &Program{code: c.code, out: out, varNames: c.varNames, params: c.paramList}, nil
+	p := link(c.code, out, c.varNames)
+	p.params = c.paramList
+	return p, nil
 }
 
 // CompileString parses and compiles src in one step.
@@ -123,6 +125,7 @@ type compiler struct {
 	scope     Scope
 	code      []instr
 	cse       map[instr]int32
+	konsts    map[uint64]int32
 	varNames  []string
 	params    map[string]float64
 	paramList []ParamValue
@@ -257,12 +260,19 @@ func (c *compiler) push(in instr) int32 {
 }
 
 func (c *compiler) konst(v float64) int32 {
-	// NaN never equals itself, so key NaN constants by their bits via a
-	// canonical NaN: one shared slot is enough.
+	// Constants are shared by their bits, not by ==: 0 and -0 are equal
+	// but divide differently, and NaN equals nothing. All NaNs share one.
 	if v != v {
 		v = math.NaN()
 	}
-	return c.push(instr{op: opConst, k: v})
+	bits := math.Float64bits(v)
+	if s, ok := c.konsts[bits]; ok {
+		return s
+	}
+	s := int32(len(c.code))
+	c.code = append(c.code, instr{op: opConst, k: v})
+	c.konsts[bits] = s
+	return s
 }
 
 func (c *compiler) isConst(s int32) (float64, bool) {
@@ -275,7 +285,7 @@ func (c *compiler) isConst(s int32) (float64, bool) {
 func (c *compiler) op(o opcode, a, b int32, k float64) int32 {
 	ka, ca := c.isConst(a)
 	kb, cb := c.isConst(b)
-	unary := o == opNeg || o == opSq || o == opPowK || o == opPowB || o == opExp || o == opLn || o == opSqrt || o == opAbs
+	unary := o.unary()
 	if ca && (unary || cb) {
 		return c.konst(apply(o, ka, kb, k))
 	}
@@ -297,6 +307,14 @@ func (c *compiler) op(o opcode, a, b int32, k float64) int32 {
 		}
 		if cb && kb == 1 {
 			return a
+		}
+		// x * ln(x), the term of every entropy, is fused: one instruction,
+		// and its derivative ln(x) + 1 needs no division in the backward sweep.
+		if in := c.code[b]; in.op == opLn && in.a == a {
+			return c.push(instr{op: opXLnX, a: a})
+		}
+		if in := c.code[a]; in.op == opLn && in.a == b {
+			return c.push(instr{op: opXLnX, a: b})
 		}
 	case opDiv:
 		if cb && kb == 1 {
@@ -368,6 +386,8 @@ func apply(o opcode, a, b, k float64) float64 {
 		return cmp(a, b, a > b)
 	case opGe:
 		return cmp(a, b, a >= b)
+	case opXLnX:
+		return mul0(a, math.Log(a))
 	}
 	panic("formula: apply of " + o.String())
 }
@@ -593,9 +613,6 @@ func (c *compiler) call(n *Call, x ctx) int32 {
 				return a
 			}
 			return b
-		}
-		if a == b {
-			return a
 		}
 		return c.push(instr{op: opSelect, a: a, b: b, c: cond})
 	case "min", "max":
