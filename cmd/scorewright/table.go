@@ -361,8 +361,71 @@ func printTableSummary(w io.Writer, f *budget.Fit, rc *budget.Recheck, s *tableS
 	for _, n := range s.Notes {
 		fmt.Fprintf(w, "note: %s\n", n)
 	}
+	if err := printItems(w, f, rc); err != nil {
+		return err
+	}
 	if s.Output.Written {
 		fmt.Fprintf(w, "wrote %s (%s)\n", s.Output.File, s.Output.Format)
+	}
+	return nil
+}
+
+// maxItemRows bounds the per-item listing; --json has every item.
+const maxItemRows = 41
+
+// printItems lists each menu item's margin, closest rival and belief cell
+// when the menu is short enough to read (two outcomes), and otherwise the
+// items that fail.
+func printItems(w io.Writer, f *budget.Fit, rc *budget.Recheck) error {
+	reps := f.Menu.Reports
+	binary := len(f.Labels) == 2
+	var rows []int
+	for i, m := range rc.Margins {
+		if binary && len(reps) <= maxItemRows || !(m > rc.Tolerance) {
+			rows = append(rows, i)
+		}
+	}
+	if len(rows) == 0 {
+		return nil
+	}
+	more := 0
+	if len(rows) > maxItemRows {
+		rows, more = rows[:maxItemRows], len(rows)-maxItemRows
+	}
+	fmt.Fprintln(w)
+	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', 0)
+	cellHead := "beliefs that pick it"
+	if binary {
+		cellHead = fmt.Sprintf("beliefs in %q that pick it", f.Labels[0])
+	}
+	fmt.Fprintf(tw, "report\tmargin\t\tclosest rival\t%s\n", cellHead)
+	for _, i := range rows {
+		verdict := ""
+		switch m := rc.Margins[i]; {
+		case math.Abs(m) <= rc.Tolerance:
+			verdict = "TIE"
+		case m < 0:
+			verdict = "BEATEN"
+		}
+		rival := "-"
+		if r := rc.Rivals[i]; r >= 0 {
+			rival = num.Format(reps[r])
+		}
+		c := rc.Cells[i]
+		cell := "none on the grid"
+		switch {
+		case c.Beliefs > 0 && binary:
+			cell = fmt.Sprintf("[%s, %s]", table.FormatNumber(c.Lo), table.FormatNumber(c.Hi))
+		case c.Beliefs > 0:
+			cell = fmt.Sprintf("%d of %d", c.Beliefs, rc.Beliefs)
+		}
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\n", num.Format(reps[i]), table.FormatNumber(rc.Margins[i]), verdict, rival, cell)
+	}
+	if err := tw.Flush(); err != nil {
+		return err
+	}
+	if more > 0 {
+		fmt.Fprintf(w, "... and %d more items (--json lists them all)\n", more)
 	}
 	return nil
 }

@@ -137,18 +137,19 @@ func (f *Fit) Recheck(ctx context.Context, set RecheckSettings) (*Recheck, error
 	}
 	rc.MinMargin = math.Inf(1)
 	for i, mg := range rc.Margins {
+		if math.Abs(mg) <= tol {
+			// A tie reads as a tie, not as float noise.
+			mg, rc.Margins[i] = 0, 0
+		}
 		if mg < rc.MinMargin {
 			rc.MinMargin, rc.MinMarginItem, rc.MinMarginRival = mg, i, rc.Rivals[i]
 		}
 		switch {
-		case math.Abs(mg) <= tol:
+		case mg == 0:
 			rc.Ties = append(rc.Ties, i)
 		case mg < 0:
 			rc.Beaten = append(rc.Beaten, i)
 		}
-	}
-	if math.Abs(rc.MinMargin) <= tol {
-		rc.MinMargin = 0 // a tie reads as a tie, not as float noise
 	}
 	for i := range rc.Cells {
 		rc.Cells[i] = Cell{Lo: math.NaN(), Hi: math.NaN()}
@@ -182,16 +183,28 @@ func (f *Fit) Recheck(ctx context.Context, set RecheckSettings) (*Recheck, error
 	return rc, nil
 }
 
+// expectedPay is sum_k q_k pays[j][k] over the flat n-column pay matrix.
+// Payments in a fitted table are finite, so the plain product is exact
+// (no 0·Inf convention needed).
+func expectedPay(pays []float64, n int, q []float64, j int) float64 {
+	row := pays[j*n : j*n+n : j*n+n]
+	var s float64
+	for k, x := range q[:n] {
+		s += x * row[k]
+	}
+	return s
+}
+
 // margin returns, for belief q = menu item i, the expected pay of
 // reporting i minus the best expected pay of another item, and that item.
 func margin(pays []float64, n int, q []float64, i int) (float64, int) {
-	own := bregman.Dot(q, pays[i*n:(i+1)*n])
+	own := expectedPay(pays, n, q, i)
 	rival, rv := -1, math.Inf(-1)
 	for j := 0; j*n < len(pays); j++ {
 		if j == i {
 			continue
 		}
-		if v := bregman.Dot(q, pays[j*n:(j+1)*n]); v > rv {
+		if v := expectedPay(pays, n, q, j); v > rv {
 			rival, rv = j, v
 		}
 	}
@@ -207,7 +220,7 @@ func top2(pays []float64, n int, q []float64) (best, second int, bv, sv float64)
 	best, second = -1, -1
 	bv, sv = math.Inf(-1), math.Inf(-1)
 	for j := 0; j*n < len(pays); j++ {
-		v := bregman.Dot(q, pays[j*n:(j+1)*n])
+		v := expectedPay(pays, n, q, j)
 		switch {
 		case v > bv:
 			second, sv = best, bv

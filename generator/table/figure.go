@@ -5,6 +5,7 @@ import (
 	"image/color"
 	"io"
 	"math"
+	"sort"
 	"strings"
 
 	"gonum.org/v1/plot"
@@ -178,6 +179,8 @@ func (t *Table) binaryPlot() (*plot.Plot, error) {
 		for i, r := range t.Reports {
 			xys[i] = plotter.XY{X: r[0], Y: finiteOr(t.Values[i][k])}
 		}
+		// A menu read from a file may list reports in any order.
+		sort.Slice(xys, func(a, b int) bool { return xys[a].X < xys[b].X })
 		line, points, err := plotter.NewLinePoints(xys)
 		if err != nil {
 			return nil, err
