@@ -245,19 +245,19 @@ type truthfulJSON struct {
 }
 
 type recheckJSON struct {
-	Passed      bool          `json:"passed"`
-	Verdict     string        `json:"verdict"`
-	MinMargin   num.Float     `json:"min_margin"`
-	At          []num.Float   `json:"at"`
-	Rival       []num.Float   `json:"rival,omitempty"`
-	Ties        [][]num.Float `json:"ties"`
-	Beaten      [][]num.Float `json:"beaten"`
-	NeverChosen [][]num.Float `json:"never_chosen"`
-	TiedBeliefs int           `json:"tied_beliefs"`
-	Grid        gridJSON      `json:"grid"`
+	Passed      bool            `json:"passed"`
+	Verdict     string          `json:"verdict"`
+	MinMargin   num.Float       `json:"min_margin"`
+	At          []num.Float     `json:"at"`
+	Rival       []num.Float     `json:"rival,omitempty"`
+	Ties        [][]num.Float   `json:"ties"`
+	Beaten      [][]num.Float   `json:"beaten"`
+	NeverChosen [][]num.Float   `json:"never_chosen"`
+	TiedBeliefs int             `json:"tied_beliefs"`
+	Grid        recheckGridJSON `json:"grid"`
 }
 
-type gridJSON struct {
+type recheckGridJSON struct {
 	Desc      string    `json:"desc"`
 	Points    int       `json:"points"`
 	Tolerance num.Float `json:"tolerance"`
@@ -318,7 +318,7 @@ func newTableSummary(f *budget.Fit, rc *budget.Recheck, format, out string) *tab
 		Recheck: recheckJSON{Passed: rc.Passed, Verdict: rc.Verdict(f), MinMargin: num.Float(rc.MinMargin),
 			At: report(rc.MinMarginItem), Rival: report(rc.MinMarginRival),
 			Ties: items(rc.Ties), Beaten: items(rc.Beaten), NeverChosen: items(rc.NeverChosen),
-			TiedBeliefs: rc.TiedBeliefs, Grid: gridJSON{Desc: rc.Grid, Points: rc.Beliefs, Tolerance: num.Float(rc.Tolerance)}},
+			TiedBeliefs: rc.TiedBeliefs, Grid: recheckGridJSON{Desc: rc.Grid, Points: rc.Beliefs, Tolerance: num.Float(rc.Tolerance)}},
 		Output:  tableOutput{Format: format, File: out},
 		Notes:   f.Notes(rc),
 		Caution: table.Caution,
