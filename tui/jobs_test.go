@@ -2,6 +2,8 @@ package tui
 
 import (
 	"bytes"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 	"time"
@@ -136,13 +138,12 @@ func TestStaleRunDropped(t *testing.T) {
 	}
 }
 
-// A whole session through a real program: edit the formula, see the
-// error, fix it, see the checks (a stand-in checker) pass, change the
-// budget, save the design, quit.
+// A whole session through a real program, with the real checks, fit and
+// export: edit the formula, see the error, fix it, see the checks pass,
+// change the budget, export a CSV, save the design, quit.
 func TestSessionFlow(t *testing.T) {
-	fc := &fakeChecker{points: 4096}
 	dir := t.TempDir()
-	m := testModel(t, nil, Settings{Checker: fc.check, Dir: dir})
+	m := testModel(t, nil, Settings{Dir: dir, Version: "test"})
 	tm := teatest.NewTestModel(t, m, teatest.WithInitialTermSize(120, 40))
 	// The renderer only redraws lines that changed, so a wait looks at all
 	// output since the last action rather than since the last wait.
@@ -155,21 +156,22 @@ func TestSessionFlow(t *testing.T) {
 		teatest.WaitFor(t, tm.Output(), func(b []byte) bool {
 			all = append(base[:len(base):len(base)], b...)
 			return bytes.Contains(all[mark:], []byte(what))
-		}, teatest.WithDuration(10*time.Second), teatest.WithCheckInterval(5*time.Millisecond))
+		}, teatest.WithDuration(20*time.Second), teatest.WithCheckInterval(5*time.Millisecond))
 	}
-	wait("test-pass")
+	wait("Verdict strictly-proper")
 	act()
 	for _, k := range []tea.KeyMsg{keyDown, keyDown, keyDown, keyEnter, keyEnd} {
 		tm.Send(k)
 	}
 	tm.Type(" + zz")
 	wait(`unknown name "zz"`)
+	wait("not run: the formula does not compile")
 	act()
 	for i := 0; i < 5; i++ {
 		tm.Send(keyBack)
 	}
 	wait("compiles")
-	wait("test-pass")
+	wait("Verdict strictly-proper")
 	act()
 	tm.Send(keyEsc)
 	// To the budget pane (design → picture → checks → budget): raise the cap.
@@ -179,6 +181,13 @@ func TestSessionFlow(t *testing.T) {
 	tm.Send(keyDown)
 	tm.Send(keyRight)
 	wait("41")
+	wait("menu re-check passed")
+	act()
+	tm.Send(tea.KeyMsg{Type: tea.KeyCtrlX})
+	wait("Export the payment table")
+	act()
+	tm.Send(keyEnter)
+	wait("exported:")
 	act()
 	tm.Send(keyCtrlS)
 	wait("Save the design")
@@ -194,11 +203,21 @@ func TestSessionFlow(t *testing.T) {
 	if !strings.HasSuffix(d.Formula, "(g - 1)") {
 		t.Errorf("formula %q", d.Formula)
 	}
-	if fm.CheckReport() == nil || fm.CheckReport().Verdict != "test-pass" {
-		t.Errorf("no check report at the end")
+	if r := fm.CheckReport(); r == nil || r.Verdict != "strictly-proper" {
+		t.Errorf("check report at the end: %+v", r)
 	}
-	if fc.started.Load() < 2 {
-		t.Errorf("checks ran %d times; want a rerun after the edits", fc.started.Load())
+	csv, err := os.ReadFile(filepath.Join(dir, "orchard-co-operative-frost-night-forecasts.csv"))
+	if err != nil {
+		t.Fatalf("no CSV: %v", err)
+	}
+	if !bytes.Contains(csv, []byte("frost")) || !bytes.Contains(csv, []byte("41")) {
+		t.Errorf("CSV lacks the labels or the new cap:\n%s", csv)
+	}
+	if !bytes.Contains(bytes.ToLower(csv), []byte("counsel")) {
+		t.Errorf("CSV lacks the caution")
+	}
+	if _, err := os.Stat(filepath.Join(dir, "orchard-co-operative-frost-night-forecasts.toml")); err != nil {
+		t.Errorf("design not saved: %v", err)
 	}
 }
 

@@ -104,7 +104,7 @@ func New(d *design.Design, path string, set Settings, st Styles) *Model {
 		set.Fitter = defaultFitter()
 	}
 	if set.Exporter == nil {
-		set.Exporter = defaultExporter()
+		set.Exporter = defaultExporter(set.Version)
 	}
 	keys := DefaultKeyMap()
 	ctx, cancel := context.WithCancel(context.Background())
