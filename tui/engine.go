@@ -22,8 +22,8 @@ import (
 // package verify, the budget fit of generator/budget and the exports of
 // generator/table. Tests replace them through Settings.
 
-func defaultChecker() Checker   { return verifyChecker }
-func defaultFitter() Fitter     { return budgetFitter }
+func defaultChecker() Checker                 { return verifyChecker }
+func defaultFitter() Fitter                   { return budgetFitter }
 func defaultExporter(version string) Exporter { return tableExporter{version: version} }
 
 // workers leaves one core to the screen when there are several.
