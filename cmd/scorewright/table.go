@@ -52,13 +52,13 @@ func (t *tableFlags) resolveFormat() (string, error) {
 		case "markdown":
 			f = "md"
 		case "txt", "":
-			return "", usagef("cannot tell the format from %q; give --format %s", t.out, strings.Join(table.Formats, "|"))
+			return "", usagef("cannot tell the format from %q; give --format %s", t.out, strings.Join(table.Formats(), "|"))
 		}
 	}
 	if f == "" {
 		f = "md"
 	}
-	for _, known := range table.Formats {
+	for _, known := range table.Formats() {
 		if f == known {
 			if table.IsFigure(f) && t.out == "" {
 				return "", usagef("a %s figure needs --out FILE", f)
@@ -66,7 +66,7 @@ func (t *tableFlags) resolveFormat() (string, error) {
 			return f, nil
 		}
 	}
-	return "", usagef("--format %q is not one of %s", f, strings.Join(table.Formats, ", "))
+	return "", usagef("--format %q is not one of %s", f, strings.Join(table.Formats(), ", "))
 }
 
 func runTable(e *env, args []string) error {
@@ -321,7 +321,7 @@ func newTableSummary(f *budget.Fit, rc *budget.Recheck, format, out string) *tab
 			TiedBeliefs: rc.TiedBeliefs, Grid: recheckGridJSON{Desc: rc.Grid, Points: rc.Beliefs, Tolerance: num.Float(rc.Tolerance)}},
 		Output:  tableOutput{Format: format, File: out},
 		Notes:   f.Notes(rc),
-		Caution: table.Caution,
+		Caution: table.Caution(),
 	}
 	if f.MeanPay != nil {
 		m := num.Float(*f.MeanPay)

@@ -320,6 +320,8 @@ func TestRounding(t *testing.T) {
 		{7.3, 0, RoundNearest, 7.3},
 		{12, 5, RoundNearest, 10},
 		{12.5, 5, RoundNearest, 15},
+		{0.95, 0.3, RoundNearest, 0.9}, // 3 units of 0.3, written 0.9
+		{1234.5678, 0.25, RoundDown, 1234.5},
 	}
 	for _, c := range cases {
 		r, err := newRounder(c.unit, c.mode)

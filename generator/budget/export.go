@@ -129,7 +129,7 @@ func (f *Fit) Table(rc *Recheck, info Info) *table.Table {
 		Passed: rc.Passed, Verdict: rc.Verdict(f), MinMargin: num.Float(rc.MinMargin),
 		Notes:   f.Notes(rc),
 		Version: info.Version, Date: info.Date,
-		Cautions: append([]string(nil), table.Caution...),
+		Cautions: table.Caution(),
 	}
 	if !rc.Passed {
 		meta.Warnings = []string{"this table FAILED the menu re-check after scaling and rounding and was exported only on request (--force): some forecasters would gain by not reporting their belief. Do not sign it as it stands."}

@@ -16,11 +16,14 @@ type Kind string
 // KindMoney: values are payments in currency.
 const KindMoney Kind = "money"
 
-// Caution is the line every export carries.
-var Caution = []string{
-	"scorewright checks mathematics, not law.",
-	"Payment schemes (lottery-style payments especially) can be regulated, for example as gambling, wages or prizes.",
-	"Have any contract that uses this table reviewed by qualified counsel.",
+// Caution returns the caution every export carries, a fresh slice each
+// call so that a transform can append its own line.
+func Caution() []string {
+	return []string{
+		"scorewright checks mathematics, not law.",
+		"Payment schemes (lottery-style payments especially) can be regulated, for example as gambling, wages or prizes.",
+		"Have any contract that uses this table reviewed by qualified counsel.",
+	}
 }
 
 // Table is a payment table with its record.

@@ -129,6 +129,7 @@ func TestCSVRoundTrip(t *testing.T) {
 	tables := map[string]*table.Table{
 		"unit 1":    brier(t),
 		"unit 0.01": build(t, "-sum(p*ln(p))", []string{"frost", "clear"}, 0.05, design.Budget{Floor: 0, Cap: 50, Unit: 0.01, ReportFloor: 0.01}),
+		"unit 0.3":  build(t, "1 - sum(p^2)", []string{"frost", "clear"}, 0.05, design.Budget{Floor: 0, Cap: 10, Unit: 0.3}),
 		"unrounded": build(t, "-sum(p*ln(p))", []string{"below", "near", "above"}, 0.25, design.Budget{Floor: 3, Cap: 7.5, ReportFloor: 0.01}),
 	}
 	for name, tb := range tables {
