@@ -96,7 +96,7 @@ func (m *Meta) Fields() []Field {
 		add("WARNING", w)
 	}
 	add("title", m.Title)
-	add("formula", m.Formula)
+	add("formula", formulaLine(m.Formula))
 	add("preset", m.Preset)
 	add("parameters", formatParams(m.Params))
 	add("outcomes", strings.Join(m.Outcomes, ", "))
@@ -121,6 +121,18 @@ func (m *Meta) Fields() []Field {
 		add("caution", c)
 	}
 	return f
+}
+
+// formulaLine writes a formula of several lines (parameter lines, then
+// the expression) on one line, lines separated by "; ", comments kept.
+func formulaLine(src string) string {
+	var lines []string
+	for _, l := range strings.Split(src, "\n") {
+		if l = strings.TrimSpace(l); l != "" {
+			lines = append(lines, l)
+		}
+	}
+	return strings.Join(lines, "; ")
 }
 
 func formatParams(p map[string]float64) string {

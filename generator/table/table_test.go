@@ -201,6 +201,15 @@ func TestFigures(t *testing.T) {
 	}
 }
 
+func TestMultiLineFormula(t *testing.T) {
+	tb := build(t, "g = 3\n(1 - sum(p^g)) / (g - 1)", []string{"frost", "clear"}, 0.1, design.Budget{Floor: 0, Cap: 10})
+	for _, format := range []string{"csv", "md", "tex"} {
+		if s := string(render(t, tb, format)); !strings.Contains(s, "g = 3; (1 - sum(p") {
+			t.Errorf("%s: the formula's lines run together", format)
+		}
+	}
+}
+
 func TestBadTable(t *testing.T) {
 	tb := brier(t)
 	tb.Values = tb.Values[:3]
