@@ -219,6 +219,7 @@ type tableSummary struct {
 	MinPay       num.Float     `json:"min_pay"`
 	MaxPay       num.Float     `json:"max_pay"`
 	Truthful     truthfulJSON  `json:"truthful_pay"`
+	MenuPay      truthfulJSON  `json:"menu_pay"`
 	Recheck      recheckJSON   `json:"recheck"`
 	ClampGap     *clampGapJSON `json:"clamp_gap,omitempty"`
 	Output       tableOutput   `json:"output"`
@@ -315,6 +316,8 @@ func newTableSummary(f *budget.Fit, rc *budget.Recheck, format, out string) *tab
 		MinPay: num.Float(f.MinPay), MaxPay: num.Float(f.MaxPay),
 		Truthful: truthfulJSON{Min: num.Float(f.Truthful.Min), Max: num.Float(f.Truthful.Max),
 			MinBelief: num.Floats(f.Truthful.MinBelief), MaxBelief: num.Floats(f.Truthful.MaxBelief), Grid: f.Truthful.Grid},
+		MenuPay: truthfulJSON{Min: num.Float(rc.MenuPay.Min), Max: num.Float(rc.MenuPay.Max),
+			MinBelief: num.Floats(rc.MenuPay.MinBelief), MaxBelief: num.Floats(rc.MenuPay.MaxBelief), Grid: rc.Grid},
 		Recheck: recheckJSON{Passed: rc.Passed, Verdict: rc.Verdict(f), MinMargin: num.Float(rc.MinMargin),
 			At: report(rc.MinMarginItem), Rival: report(rc.MinMarginRival),
 			Ties: items(rc.Ties), Beaten: items(rc.Beaten), NeverChosen: items(rc.NeverChosen),

@@ -108,6 +108,12 @@ func TestQuadraticBrierTable(t *testing.T) {
 	if math.Abs(f.Truthful.Min-75) > 1e-9 || math.Abs(f.Truthful.Max-100) > 1e-9 {
 		t.Errorf("truthful range [%g, %g], want [75, 100]", f.Truthful.Min, f.Truthful.Max)
 	}
+	// On the table, a forecaster with a belief in [0.45, 0.55] picks item
+	// 0.5, whose row (75, 75) is flat, and expects 75, the least; one who
+	// is certain expects 100 (derived by hand from the rows above).
+	if mp := rc.MenuPay; mp.Min != 75 || mp.Max != 100 || mp.MinBelief[0] < 0.45 || mp.MinBelief[0] > 0.55 {
+		t.Errorf("expected pay on the menu %+v, want 75 at 1/2 up to 100", mp)
+	}
 	if f.MaxPay != 100 || f.MinPay != 0 {
 		t.Errorf("buyer's worst case %g, smallest pay %g; want 100, 0", f.MaxPay, f.MinPay)
 	}

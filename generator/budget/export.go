@@ -78,9 +78,13 @@ func (f *Fit) MenuDesc() string {
 // Notes are the findings a table's record carries besides the verdict.
 func (f *Fit) Notes(rc *Recheck) []string {
 	tr := f.Truthful
+	formula := "A - B·H(q)"
+	if f.Clamp > 0 {
+		formula = "A - B·Phi(q, clamped q)"
+	}
 	notes := []string{
-		fmt.Sprintf("expected pay of a truthful forecaster, A - B·H(q) before rounding, ranges from %s (belief %s) to %s (belief %s), over %s",
-			table.FormatNumber(tr.Min), num.Format(tr.MinBelief), table.FormatNumber(tr.Max), num.Format(tr.MaxBelief), tr.Grid),
+		fmt.Sprintf("expected pay of a truthful forecaster under the exact rule, %s before rounding and menu, ranges from %s (belief %s) to %s (belief %s), over %s",
+			formula, table.FormatNumber(tr.Min), num.Format(tr.MinBelief), table.FormatNumber(tr.Max), num.Format(tr.MaxBelief), tr.Grid),
 		fmt.Sprintf("buyer's worst case per forecast: %s (the largest payment in the table); the smallest is %s",
 			table.FormatNumber(f.MaxPay), table.FormatNumber(f.MinPay)),
 	}
@@ -88,6 +92,9 @@ func (f *Fit) Notes(rc *Recheck) []string {
 		notes = append(notes, fmt.Sprintf("rounding takes payments outside the budget: from %s to %s", table.FormatNumber(f.MinPay), table.FormatNumber(f.MaxPay)))
 	}
 	if rc != nil {
+		mp := rc.MenuPay
+		notes = append(notes, fmt.Sprintf("expected pay per forecast on this table, for a forecaster who picks the best menu item for the belief, ranges from %s (belief %s) to %s (belief %s), over %s",
+			table.FormatNumber(mp.Min), num.Format(mp.MinBelief), table.FormatNumber(mp.Max), num.Format(mp.MaxBelief), rc.Grid))
 		if len(rc.NeverChosen) > 0 {
 			notes = append(notes, fmt.Sprintf("%d menu items are the unique best report for no belief on the grid: %s (%s)", len(rc.NeverChosen), f.listItems(rc.NeverChosen), rc.Grid))
 		}

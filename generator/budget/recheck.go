@@ -59,6 +59,16 @@ type Recheck struct {
 	Tolerance float64
 	// ClampGap is the clamp's honesty gap, when the menu has a clamp.
 	ClampGap *ClampGap
+	// MenuPay is the range over grid beliefs of the expected payment of a
+	// forecaster who picks the best menu item for the belief, on the
+	// rounded table: what the buyer should expect to pay per forecast.
+	MenuPay PayRange
+}
+
+// PayRange is a range of expected payments over beliefs.
+type PayRange struct {
+	Min, Max             float64
+	MinBelief, MaxBelief []float64
 }
 
 // Cell is the set of grid beliefs that pick one menu item.
@@ -119,6 +129,7 @@ func (f *Fit) Recheck(ctx context.Context, set RecheckSettings) (*Recheck, error
 		Grid: fmt.Sprintf("beliefs on a simplex grid of step 1/%d (%d points), tie tolerance %.3g", K, len(grid), tol),
 	}
 	best := make([]int, len(grid)) // -1: a tie
+	bestPay := make([]float64, len(grid))
 	total := M + len(grid)
 	err := parallel(ctx, total, set.Workers, set.Progress, func(t int) {
 		if t < M {
@@ -130,7 +141,7 @@ func (f *Fit) Recheck(ctx context.Context, set RecheckSettings) (*Recheck, error
 		if bv-sv <= tol && second >= 0 {
 			b = -1
 		}
-		best[t-M] = b
+		best[t-M], bestPay[t-M] = b, bv
 	})
 	if err != nil {
 		return nil, err
@@ -153,6 +164,15 @@ func (f *Fit) Recheck(ctx context.Context, set RecheckSettings) (*Recheck, error
 	}
 	for i := range rc.Cells {
 		rc.Cells[i] = Cell{Lo: math.NaN(), Hi: math.NaN()}
+	}
+	rc.MenuPay = PayRange{Min: math.Inf(1), Max: math.Inf(-1)}
+	for g, v := range bestPay {
+		if v < rc.MenuPay.Min {
+			rc.MenuPay.Min, rc.MenuPay.MinBelief = v, grid[g]
+		}
+		if v > rc.MenuPay.Max {
+			rc.MenuPay.Max, rc.MenuPay.MaxBelief = v, grid[g]
+		}
 	}
 	for g, b := range best {
 		if b < 0 {
