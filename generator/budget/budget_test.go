@@ -251,6 +251,17 @@ func TestCoarseRoundingTiesCaught(t *testing.T) {
 	}
 }
 
+func TestTableWithoutRecheck(t *testing.T) {
+	f, err := FitRule(rule(t, "1 - sum(p^2)", 2), stepMenu(t, 2, 0.1, 0), design.Budget{Cap: 100, Unit: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	tb := f.Table(nil, Info{})
+	if tb.Meta.Passed || len(tb.Meta.Warnings) == 0 || tb.Meta.Verdict != "not re-checked" {
+		t.Errorf("an unchecked table reads %+v", tb.Meta)
+	}
+}
+
 func contains(s []int, v int) bool {
 	for _, x := range s {
 		if x == v {

@@ -2,6 +2,7 @@ package budget
 
 import (
 	"fmt"
+	"math"
 	"strconv"
 	"strings"
 
@@ -36,6 +37,9 @@ func (f *Fit) listItems(items []int) string {
 
 // Verdict says in one sentence what the re-check found.
 func (rc *Recheck) Verdict(f *Fit) string {
+	if rc.MinMarginItem < 0 {
+		return "not re-checked"
+	}
 	M := len(f.Menu.Reports)
 	where := ""
 	if rc.MinMarginRival >= 0 {
@@ -113,10 +117,21 @@ func (f *Fit) Notes(rc *Recheck) []string {
 	return notes
 }
 
+// notChecked stands in for a missing re-check: it fails, so that a table
+// nobody re-checked says so.
+func notChecked() *Recheck {
+	return &Recheck{MinMargin: math.NaN(), MinMarginItem: -1, MinMarginRival: -1}
+}
+
 // Table builds the payment table of f with its record. A table whose
-// re-check failed carries a warning in its record, which every format
-// shows before anything else.
+// re-check failed (or that was not re-checked: rc nil) carries a warning
+// in its record, which every format shows before anything else.
 func (f *Fit) Table(rc *Recheck, info Info) *table.Table {
+	notes := f.Notes(rc)
+	checked := rc != nil
+	if !checked {
+		rc = notChecked()
+	}
 	rows := make([][]float64, len(f.Menu.Reports))
 	vals := make([][]float64, len(f.Pays))
 	for i := range rows {
@@ -134,11 +149,14 @@ func (f *Fit) Table(rc *Recheck, info Info) *table.Table {
 		A: num.Float(f.A), B: num.Float(f.B),
 		Budget: f.BudgetDesc(), Rounding: f.RoundingDesc(),
 		Passed: rc.Passed, Verdict: rc.Verdict(f), MinMargin: num.Float(rc.MinMargin),
-		Notes:   f.Notes(rc),
+		Notes:   notes,
 		Version: info.Version, Date: info.Date,
 		Cautions: table.Caution(),
 	}
-	if !rc.Passed {
+	switch {
+	case !checked:
+		meta.Warnings = []string{"this table was NOT re-checked after scaling and rounding; do not sign it before it is."}
+	case !rc.Passed:
 		meta.Warnings = []string{"this table FAILED the menu re-check after scaling and rounding and was exported only on request (--force): some forecasters would gain by not reporting their belief. Do not sign it as it stands."}
 	}
 	return &table.Table{
