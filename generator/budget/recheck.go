@@ -14,8 +14,9 @@ import (
 // RecheckSettings tune Recheck. The zero value means the defaults.
 type RecheckSettings struct {
 	// Resolution is K for the belief grid of step 1/K used for the belief
-	// cells and the clamp audit; 0 picks 1000 for two outcomes and the
-	// finest grid up to 1/200 that keeps the work bounded for more.
+	// cells and the clamp audit; 0 picks, for two outcomes, 1000 or about
+	// ten beliefs per menu item, whichever is finer, and for more the
+	// finest grid up to 1/200 that keeps beliefs × items × n <= 5e7.
 	Resolution int
 	// Tolerance, in currency, below which two expected payments count as
 	// equal; 0 means 1e-9 × the largest payment (at least 1e-9).
@@ -117,7 +118,9 @@ func (f *Fit) Recheck(ctx context.Context, set RecheckSettings) (*Recheck, error
 	K := set.Resolution
 	if K <= 0 {
 		if n == 2 {
-			K = 1000
+			// About ten beliefs per item, at least 1/1000, within the
+			// same work bound as below.
+			K = max(1000, min(10*(M-1), int(5e7/float64(2*M))))
 		} else {
 			K = beliefResolution(n, 200, math.Max(100, math.Min(50000, 5e7/float64(M*n))))
 		}
