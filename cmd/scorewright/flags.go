@@ -222,6 +222,11 @@ func (b *budgetFlags) apply(fs *flag.FlagSet, d *design.Design) error {
 	}
 	if set["cap"] {
 		bd.Cap = b.cap
+		if !set["mean-pay"] {
+			// --cap on the command line overrides a design file's
+			// mean_pay rather than being silently outranked by it.
+			bd.MeanPay = nil
+		}
 	}
 	if set["mean-pay"] {
 		if set["cap"] {
