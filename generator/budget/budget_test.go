@@ -139,6 +139,12 @@ func TestPayerOffMenu(t *testing.T) {
 	if got[0] != 93 || got[1] != 47 {
 		t.Errorf("pay at 0.73: %v, want [93 47]", got)
 	}
+	// A forecaster who believes 0.73 and may only use the menu picks the
+	// nearest item, 0.7 (the quadratic rule's divergence is squared
+	// distance, and the unit-1 table equals the exact one at every item).
+	if i := f.BestItem([]float64{0.73, 0.27}); f.Menu.Reports[i][0] != 0.7 {
+		t.Errorf("best item for 0.73: %v", f.Menu.Reports[i])
+	}
 	pr := f.NewPayer()
 	dst := make([]float64, 2)
 	for i, r := range f.Menu.Reports {
