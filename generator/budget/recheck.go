@@ -149,13 +149,13 @@ func (f *Fit) Recheck(ctx context.Context, set RecheckSettings) (*Recheck, error
 	if err != nil {
 		return nil, err
 	}
-	rc.MinMargin = math.Inf(1)
+	rc.MinMargin, rc.MinMarginItem, rc.MinMarginRival = rc.Margins[0], 0, rc.Rivals[0]
 	for i, mg := range rc.Margins {
 		if math.Abs(mg) <= tol {
 			// A tie reads as a tie, not as float noise.
 			mg, rc.Margins[i] = 0, 0
 		}
-		if mg < rc.MinMargin {
+		if mg < rc.MinMargin || i == 0 {
 			rc.MinMargin, rc.MinMarginItem, rc.MinMarginRival = mg, i, rc.Rivals[i]
 		}
 		switch {
