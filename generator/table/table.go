@@ -46,7 +46,9 @@ type Table struct {
 }
 
 // Meta is the metadata block of an export. Every field is written by every
-// format.
+// format; the machine-readable numbers (Unit, RoundingMode, Floor, Cap) go
+// to JSON as numbers and to the other formats inside the Budget and
+// Rounding sentences.
 type Meta struct {
 	Title    string             `json:"title,omitempty"`
 	Formula  string             `json:"formula"`
@@ -62,7 +64,11 @@ type Meta struct {
 	// Budget states what the fit aimed at.
 	Budget string `json:"budget"`
 	// Rounding states the unit and mode.
-	Rounding string `json:"rounding"`
+	Rounding     string    `json:"rounding"`
+	Unit         num.Float `json:"unit"`
+	RoundingMode string    `json:"rounding_mode"`
+	Floor        num.Float `json:"floor"`
+	Cap          num.Float `json:"cap"`
 	// Passed is the verdict of the re-check after scaling and rounding.
 	Passed bool `json:"recheck_passed"`
 	// Verdict explains the re-check in one sentence.
