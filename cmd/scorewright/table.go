@@ -275,7 +275,8 @@ type clampGapJSON struct {
 type cellJSON struct {
 	Report  []num.Float `json:"report"`
 	Beliefs int         `json:"beliefs"`
-	// Lo and Hi bound the first outcome's probability (n = 2 cells).
+	// Lo and Hi are the exact cell (lo, hi) in the first outcome's
+	// probability (n = 2).
 	Lo *num.Float `json:"lo,omitempty"`
 	Hi *num.Float `json:"hi,omitempty"`
 }
@@ -335,7 +336,7 @@ func newTableSummary(f *budget.Fit, rc *budget.Recheck, format, out string) *tab
 	}
 	for i, c := range rc.Cells {
 		cj := cellJSON{Report: num.Floats(reps[i]), Beliefs: c.Beliefs}
-		if len(f.Labels) == 2 && c.Beliefs > 0 {
+		if c.Exact && c.Lo < c.Hi {
 			lo, hi := num.Float(c.Lo), num.Float(c.Hi)
 			cj.Lo, cj.Hi = &lo, &hi
 		}
@@ -371,6 +372,12 @@ func printTableSummary(w io.Writer, f *budget.Fit, rc *budget.Recheck, s *tableS
 		fmt.Fprintf(w, "wrote %s (%s)\n", s.Output.File, s.Output.Format)
 	}
 	return nil
+}
+
+// cellEnd writes a cell boundary to six decimals: the exact boundary is
+// offset by the tie tolerance, which is not worth showing.
+func cellEnd(x float64) string {
+	return strconv.FormatFloat(math.Round(x*1e6)/1e6+0, 'g', -1, 64)
 }
 
 // maxItemRows bounds the per-item listing; --json has every item.
@@ -417,8 +424,10 @@ func printItems(w io.Writer, f *budget.Fit, rc *budget.Recheck) error {
 		c := rc.Cells[i]
 		cell := "none on the grid"
 		switch {
-		case c.Beliefs > 0 && binary:
-			cell = fmt.Sprintf("[%s, %s]", table.FormatNumber(c.Lo), table.FormatNumber(c.Hi))
+		case c.Exact && c.Lo < c.Hi:
+			cell = fmt.Sprintf("(%s, %s)", cellEnd(c.Lo), cellEnd(c.Hi))
+		case c.Exact:
+			cell = "none"
 		case c.Beliefs > 0:
 			cell = fmt.Sprintf("%d of %d", c.Beliefs, rc.Beliefs)
 		}

@@ -117,15 +117,14 @@ func TestQuadraticBrierTable(t *testing.T) {
 	if f.MaxPay != 100 || f.MinPay != 0 {
 		t.Errorf("buyer's worst case %g, smallest pay %g; want 100, 0", f.MaxPay, f.MinPay)
 	}
-	// Belief cells: for the quadratic rule the best menu item is the
-	// nearest one (D is squared distance), so item 0.7 is picked by the
-	// beliefs strictly between 0.65 and 0.75; on the 1/1000 grid that is
-	// 0.651..0.749 (derived by hand; 0.65 and 0.75 are ties). Rounding to
-	// whole units does not move these cells, because the rounded table
-	// still equals the exact one at every item (all values are integers).
+	// Belief cells, derived by hand: item 0.7 pays (91, 51), so a belief x
+	// expects 51 + 40x from it; item 0.6 (84, 64) gives 64 + 20x and item
+	// 0.8 (96, 36) gives 36 + 60x. They cross at x = 13/20 and x = 3/4, so
+	// the cell of 0.7 is the open interval (0.65, 0.75), up to the tie
+	// tolerance; the 1/1000 grid has 99 beliefs inside it (0.651..0.749).
 	c := rc.Cells[item(t, m, 0.7)]
-	if c.Beliefs != 99 || math.Abs(c.Lo-0.651) > 1e-12 || math.Abs(c.Hi-0.749) > 1e-12 {
-		t.Errorf("cell of 0.7: %+v, want 99 beliefs over [0.651, 0.749]", c)
+	if !c.Exact || c.Beliefs != 99 || math.Abs(c.Lo-0.65) > 1e-6 || math.Abs(c.Hi-0.75) > 1e-6 {
+		t.Errorf("cell of 0.7: %+v, want (0.65, 0.75) with 99 grid beliefs", c)
 	}
 }
 
@@ -250,6 +249,15 @@ func TestCoarseRoundingTiesCaught(t *testing.T) {
 	i4, i6 := item(t, m, 0.4), item(t, m, 0.6)
 	if !contains(rc.Ties, i4) || !contains(rc.Ties, i6) {
 		t.Errorf("ties %v do not include items 0.4 and 0.6", rc.Ties)
+	}
+	// Identical rows: neither is ever the unique best, exactly.
+	if !contains(rc.NeverChosen, i4) || !contains(rc.NeverChosen, i6) {
+		t.Errorf("never chosen %v do not include items 0.4 and 0.6", rc.NeverChosen)
+	}
+	// Item 0.2 pays (25, 100): 100 - 75x, above item 0 (100 - 100x) for
+	// x > 0 and above item 0.4 (75) for x < 1/3 (derived by hand).
+	if c := rc.Cells[item(t, m, 0.2)]; math.Abs(c.Lo) > 1e-6 || math.Abs(c.Hi-1.0/3) > 1e-6 {
+		t.Errorf("cell of 0.2: %+v, want (0, 1/3)", c)
 	}
 	tb := f.Table(rc, Info{})
 	if len(tb.Meta.Warnings) == 0 || tb.Meta.Passed {

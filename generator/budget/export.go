@@ -97,10 +97,18 @@ func (f *Fit) Notes(rc *Recheck) []string {
 	}
 	if rc != nil {
 		mp := rc.MenuPay
-		notes = append(notes, fmt.Sprintf("expected pay per forecast on this table, for a forecaster who picks the best menu item for the belief, ranges from %s (belief %s) to %s (belief %s), over %s",
-			table.FormatNumber(mp.Min), num.Format(mp.MinBelief), table.FormatNumber(mp.Max), num.Format(mp.MaxBelief), rc.Grid))
+		over := "over " + rc.Grid
+		if mp.Exact {
+			over = "exactly (expected pay is linear in the belief)"
+		}
+		notes = append(notes, fmt.Sprintf("expected pay per forecast on this table, for a forecaster who picks the best menu item for the belief, ranges from %s (belief %s) to %s (belief %s), %s",
+			table.FormatNumber(mp.Min), num.Format(mp.MinBelief), table.FormatNumber(mp.Max), num.Format(mp.MaxBelief), over))
 		if len(rc.NeverChosen) > 0 {
-			notes = append(notes, fmt.Sprintf("%d menu items are the unique best report for no belief on the grid: %s (%s)", len(rc.NeverChosen), f.listItems(rc.NeverChosen), rc.Grid))
+			where := "on the grid (" + rc.Grid + ")"
+			if mp.Exact {
+				where = "(exact)"
+			}
+			notes = append(notes, fmt.Sprintf("%d menu items are the unique best report for no belief %s: %s", len(rc.NeverChosen), where, f.listItems(rc.NeverChosen)))
 		}
 		if rc.TiedBeliefs > 0 {
 			notes = append(notes, fmt.Sprintf("%d of %d grid beliefs sit where two menu items tie for the best report (cell boundaries)", rc.TiedBeliefs, rc.Beliefs))
