@@ -486,3 +486,42 @@ func TestRecheckCancelled(t *testing.T) {
 		t.Errorf("progress called %d times, err %v", calls, err)
 	}
 }
+
+// The exact two-outcome cells agree with brute force: every belief on an
+// odd grid (step 1/997, unrelated to the menu) picks, by BestItem, an item
+// whose exact cell contains it, unless the belief sits on a tie.
+func TestBinaryCellsAgainstBruteForce(t *testing.T) {
+	for _, c := range []struct {
+		src  string
+		b    design.Budget
+		step float64
+	}{
+		{"-sum(p*ln(p))", design.Budget{Floor: 0, Cap: 50, Unit: 0.01, ReportFloor: 0.01}, 0.05},
+		{"1 - sum(p^2)", design.Budget{Floor: 0, Cap: 100, Unit: 5}, 0.05},
+		{"-sqrt(sum(p^2))", design.Budget{Floor: 10, Cap: 20, Unit: 0.25}, 0.1},
+	} {
+		f, rc := fit(t, rule(t, c.src, 2), stepMenu(t, 2, c.step, c.b.ReportFloor), c.b)
+		for g := 0; g <= 997; g++ {
+			x := float64(g) / 997
+			q := []float64{x, 1 - x}
+			j := f.BestItem(q)
+			cell := rc.Cells[j]
+			if cell.Lo < cell.Hi && x >= cell.Lo-1e-9 && x <= cell.Hi+1e-9 {
+				continue
+			}
+			// Not in j's cell: only allowed on a tie with another item.
+			_, second, bv, sv := top2(flat(f.Pays), 2, q)
+			if second < 0 || bv-sv > rc.Tolerance {
+				t.Errorf("%s: belief %g picks %v, outside its cell (%g, %g)", c.src, x, f.Menu.Reports[j], cell.Lo, cell.Hi)
+			}
+		}
+	}
+}
+
+func flat(rows [][]float64) []float64 {
+	var out []float64
+	for _, r := range rows {
+		out = append(out, r...)
+	}
+	return out
+}
