@@ -515,6 +515,20 @@ func TestBinaryCellsAgainstBruteForce(t *testing.T) {
 				t.Errorf("%s: belief %g picks %v, outside its cell (%g, %g)", c.src, x, f.Menu.Reports[j], cell.Lo, cell.Hi)
 			}
 		}
+		// Conversely, a belief well inside a cell picks that cell's item.
+		for i, cell := range rc.Cells {
+			if !(cell.Lo < cell.Hi) {
+				continue
+			}
+			for g := 0; g <= 997; g++ {
+				x := float64(g) / 997
+				if x > cell.Lo+1e-6 && x < cell.Hi-1e-6 {
+					if j := f.BestItem([]float64{x, 1 - x}); j != i {
+						t.Errorf("%s: belief %g inside the cell of %v picks %v", c.src, x, f.Menu.Reports[i], f.Menu.Reports[j])
+					}
+				}
+			}
+		}
 	}
 }
 
