@@ -79,6 +79,9 @@ func (f *Fit) MenuDesc() string {
 	return d
 }
 
+// gridCaveat follows every finding that comes from a search over beliefs.
+const gridCaveat = "; a grid search: evidence, not proof"
+
 // Notes are the findings a table's record carries besides the verdict.
 func (f *Fit) Notes(rc *Recheck) []string {
 	tr := f.Truthful
@@ -88,7 +91,7 @@ func (f *Fit) Notes(rc *Recheck) []string {
 	}
 	notes := []string{
 		fmt.Sprintf("expected pay of a truthful forecaster under the exact rule, %s before rounding and menu, ranges from %s (belief %s) to %s (belief %s), over %s",
-			formula, table.FormatNumber(tr.Min), num.Format(tr.MinBelief), table.FormatNumber(tr.Max), num.Format(tr.MaxBelief), tr.Grid),
+			formula, table.FormatNumber(tr.Min), num.Format(tr.MinBelief), table.FormatNumber(tr.Max), num.Format(tr.MaxBelief), tr.Grid+gridCaveat),
 		fmt.Sprintf("buyer's worst case per forecast: %s (the largest payment in the table); the smallest is %s",
 			table.FormatNumber(f.MaxPay), table.FormatNumber(f.MinPay)),
 	}
@@ -97,14 +100,14 @@ func (f *Fit) Notes(rc *Recheck) []string {
 	}
 	if rc != nil {
 		mp := rc.MenuPay
-		over := "over " + rc.Grid
+		over := "over " + rc.Grid + gridCaveat
 		if mp.Exact {
 			over = "exactly (expected pay is linear in the belief)"
 		}
 		notes = append(notes, fmt.Sprintf("expected pay per forecast on this table, for a forecaster who picks the best menu item for the belief, ranges from %s (belief %s) to %s (belief %s), %s",
 			table.FormatNumber(mp.Min), num.Format(mp.MinBelief), table.FormatNumber(mp.Max), num.Format(mp.MaxBelief), over))
 		if len(rc.NeverChosen) > 0 {
-			where := "on the grid (" + rc.Grid + ")"
+			where := "on the grid (" + rc.Grid + gridCaveat + ")"
 			if mp.Exact {
 				where = "(exact)"
 			}
@@ -116,9 +119,9 @@ func (f *Fit) Notes(rc *Recheck) []string {
 		if g := rc.ClampGap; g != nil {
 			if g.Max > 0 {
 				notes = append(notes, fmt.Sprintf("clamp %s: honesty gap %s (exact currency: the most a forecaster gains by reporting a menu item instead of the belief itself, both paid by the clamped rule) at belief %s, best report %s; over %s",
-					short(f.Clamp), table.FormatNumber(g.Max), num.Format(g.Belief), num.Format(g.Best), g.Grid))
+					short(f.Clamp), table.FormatNumber(g.Max), num.Format(g.Belief), num.Format(g.Best), g.Grid+gridCaveat))
 			} else {
-				notes = append(notes, fmt.Sprintf("clamp %s: no honesty gap found over %s", short(f.Clamp), g.Grid))
+				notes = append(notes, fmt.Sprintf("clamp %s: no honesty gap found over %s", short(f.Clamp), g.Grid+gridCaveat))
 			}
 		}
 	}
