@@ -68,7 +68,7 @@ func runEval(e *env, args []string) error {
 		d1, w1 := num.Float(dh), num.Float(w)
 		out.Derivative, out.Emphasis = &d1, &w1
 	}
-	out.Notes = nonFiniteNotes(d.Labels, p, h, eff)
+	out.Notes = append(nonFiniteNotes(d.Labels, p, h, eff), ruleWarnings(rule)...)
 	if *asJSON {
 		return writeJSON(e.stdout, out)
 	}
