@@ -97,7 +97,9 @@ func Compile(f *File, scope Scope) (*Program, error) {
 			return nil, fmt.Errorf("unknown parameter %q; the formula sets: %s", name, strings.Join(known, ", "))
 		}
 	}
-	return &Program{code: c.code, out: out, varNames: c.varNames, params: c.paramList}, nil
+	p := link(c.code, out, c.varNames)
+	p.params = c.paramList
+	return p, nil
 }
 
 // CompileString parses and compiles src in one step.
@@ -275,7 +277,7 @@ func (c *compiler) isConst(s int32) (float64, bool) {
 func (c *compiler) op(o opcode, a, b int32, k float64) int32 {
 	ka, ca := c.isConst(a)
 	kb, cb := c.isConst(b)
-	unary := o == opNeg || o == opSq || o == opPowK || o == opPowB || o == opExp || o == opLn || o == opSqrt || o == opAbs
+	unary := o.unary()
 	if ca && (unary || cb) {
 		return c.konst(apply(o, ka, kb, k))
 	}
