@@ -1,20 +1,11 @@
 package main
 
 import (
-	"bytes"
 	"encoding/json"
 	"math"
 	"strings"
 	"testing"
 )
-
-// runCmd runs the binary's entry point and returns stdout, stderr and the
-// exit status.
-func runCmd(args ...string) (string, string, int) {
-	var out, errb bytes.Buffer
-	code := run(args, &env{stdin: strings.NewReader(""), stdout: &out, stderr: &errb})
-	return out.String(), errb.String(), code
-}
 
 func TestEvalEmphasis(t *testing.T) {
 	cases := []struct {
@@ -32,7 +23,7 @@ func TestEvalEmphasis(t *testing.T) {
 	}
 	for _, tc := range cases {
 		args := append([]string{"eval", "--outcomes", "frost,clear", "--report", "0.3", "--json"}, tc.args...)
-		out, errs, code := runCmd(args...)
+		code, out, errs := runCmd(t, args...)
 		if code != 0 {
 			t.Fatalf("%v: exit %d, %s", tc.args, code, errs)
 		}
@@ -58,7 +49,7 @@ func TestEmphasisRefused(t *testing.T) {
 		{"c^(-3)", "not integrable near c = 0"},
 		{"q", `unknown name "q"`},
 	} {
-		_, errs, code := runCmd("eval", "--outcomes", "2", "--report", "0.3", "--emphasis", tc.weight)
+		code, _, errs := runCmd(t, "eval", "--outcomes", "2", "--report", "0.3", "--emphasis", tc.weight)
 		if code != exitUsage || !strings.Contains(errs, tc.says) {
 			t.Errorf("%s: exit %d, stderr %q; want 2 and %q", tc.weight, code, errs, tc.says)
 		}
