@@ -1,10 +1,13 @@
 package main
 
 import (
+	"bytes"
 	"encoding/json"
 	"math"
 	"strings"
 	"testing"
+
+	"scorewright/generator/design"
 )
 
 func TestEvalEmphasis(t *testing.T) {
@@ -53,5 +56,113 @@ func TestEmphasisRefused(t *testing.T) {
 		if code != exitUsage || !strings.Contains(errs, tc.says) {
 			t.Errorf("%s: exit %d, stderr %q; want 2 and %q", tc.weight, code, errs, tc.says)
 		}
+	}
+}
+
+func TestEvalPoint(t *testing.T) {
+	// Squared error: D(y, x) = (y - x)^2; the belief 100, 150, 200 equally
+	// likely has mean 150 (derived by hand).
+	code, out, errs := runCmd(t, "eval", "--interval", "0,500", "--preset", "squared-error", "--report", "120", "--belief", "100,150,200", "--json")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var got struct {
+		Effort []float64 `json:"effort"`
+		Mean   float64   `json:"mean"`
+	}
+	if err := json.Unmarshal([]byte(out), &got); err != nil {
+		t.Fatal(err)
+	}
+	if len(got.Effort) != 3 || got.Effort[0] != 400 || got.Effort[2] != 6400 || got.Mean != 150 {
+		t.Errorf("got %+v", got)
+	}
+	for _, bad := range [][]string{
+		{"--interval", "0,500", "--preset", "log", "--report", "1"},
+		{"--interval", "0,500", "--generator", "-x^2", "--report", "600"},
+		{"--interval", "5,1", "--generator", "-x^2", "--report", "2"},
+		{"--interval", "0,5", "--generator", "-x^2", "--report", "2", "--belief", "1:0.5,2"},
+	} {
+		if code, _, _ := runCmd(t, append([]string{"eval"}, bad...)...); code != exitUsage {
+			t.Errorf("%v: exit %d, want 2", bad, code)
+		}
+	}
+}
+
+// pointEnv returns an env writing into buffers.
+func pointEnv() (*env, *bytes.Buffer) {
+	var out bytes.Buffer
+	return &env{stdin: strings.NewReader(""), stdout: &out, stderr: &out}, &out
+}
+
+func TestCheckAndAuditPoint(t *testing.T) {
+	d := &design.Design{Version: 1, Mode: design.ModePoint, Formula: "-x^2", Interval: []float64{0, 500}}
+	e, out := pointEnv()
+	if err := runCheckPoint(e, d, 20, 0, true); err != nil {
+		t.Fatalf("%v\n%s", err, out)
+	}
+	var rep struct {
+		Verdict string `json:"verdict"`
+		Grid    struct {
+			Resolution int `json:"resolution"`
+		} `json:"grid"`
+		Checks []struct {
+			Name   string `json:"name"`
+			Passed bool   `json:"passed"`
+		} `json:"checks"`
+		Gap *struct {
+			Max float64 `json:"max"`
+		} `json:"gap"`
+		Identified *struct {
+			Preset string  `json:"preset"`
+			Scale  float64 `json:"scale"`
+		} `json:"identified"`
+	}
+	if err := json.Unmarshal(out.Bytes(), &rep); err != nil || rep.Verdict != "strictly-proper" || rep.Grid.Resolution != 20 || len(rep.Checks) != 5 {
+		t.Errorf("check: %v %+v", err, rep)
+	}
+	d.Formula = "x^2"
+	e, out = pointEnv()
+	if err := runCheckPoint(e, d, 10, 0, false); err != errFailed || !strings.Contains(out.String(), "verdict: improper") {
+		t.Errorf("convex generator: %v\n%s", err, out)
+	}
+
+	// A dairy pays 40 - 0.01 (x - y)^2 for a milk-yield forecast: recognised
+	// as squared error with scale 0.01.
+	e, out = pointEnv()
+	if err := runAuditPoint(e, "40 - 0.01*(x - y)^2", "0,60", nil, 20, 0, true); err != nil {
+		t.Fatalf("%v\n%s", err, out)
+	}
+	rep.Identified = nil
+	if err := json.Unmarshal(out.Bytes(), &rep); err != nil || rep.Verdict != "strictly-proper" || rep.Identified == nil || rep.Identified.Preset != "squared-error" || math.Abs(rep.Identified.Scale-0.01) > 1e-9 {
+		t.Errorf("audit: %v %+v", err, rep)
+	}
+	e, out = pointEnv()
+	if err := runAuditPoint(e, "40 - abs(x - y)", "0,60", nil, 20, 0, true); err != errFailed {
+		t.Errorf("absolute error: %v\n%s", err, out)
+	}
+	if err := runAuditPoint(e, "40 - abs(x - q)", "0,60", nil, 20, 0, true); err == nil || !strings.Contains(err.Error(), "payout formula") {
+		t.Errorf("bad payout formula: %v", err)
+	}
+}
+
+func TestTablePoint(t *testing.T) {
+	d := &design.Design{Version: 1, Mode: design.ModePoint, Formula: "-x^2", Interval: []float64{0, 10}, Budget: design.Budget{Floor: 0, Cap: 100, Step: 1}}
+	e, out := pointEnv()
+	if err := runTablePoint(e, d, "csv", "", false); err != nil {
+		t.Fatal(err)
+	}
+	// pay = 100 - (y - x)^2 (derived by hand: the worst cell has D = 100).
+	if !strings.Contains(out.String(), "\n3,91,96,99,100,99,96,91,84,75,64,51\n") || !strings.Contains(out.String(), "counsel") {
+		t.Errorf("table:\n%s", out)
+	}
+	path := t.TempDir() + "/dairy.csv"
+	if err := runTablePoint(e, d, "json", path, false); err != nil {
+		t.Fatal(err)
+	}
+	if err := runTablePoint(e, d, "json", path, false); err == nil || !strings.Contains(err.Error(), "--force") {
+		t.Errorf("overwrote without --force: %v", err)
+	}
+	if err := runTablePoint(e, d, "json", path, true); err != nil {
+		t.Errorf("--force: %v", err)
 	}
 }

@@ -1,0 +1,171 @@
+package point
+
+import (
+	"context"
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+)
+
+// TableSpec says how a point-forecast rule is turned into a payment table:
+// rows are the reports on the menu, columns the outcome values.
+type TableSpec struct {
+	// Floor and Cap bound every payment in the table. A perfect forecast
+	// (D = 0) is paid Cap, the worst cell Floor.
+	Floor, Cap float64
+	// Step is the spacing of the report menu from Lo; 0 means (Hi-Lo)/20.
+	Step float64
+	// Columns is the number of outcome values, Lo..Hi evenly; 0 means 11.
+	Columns int
+	// Unit is the currency rounding unit; 0 means no rounding.
+	Unit float64
+	// Rounding is "nearest" (default), "down" or "up".
+	Rounding string
+}
+
+// Table is a payment table for point forecasts. Pay[i][j] is what report
+// Reports[i] earns when the outcome is Outcomes[j]; the rule is
+// pay = A - B D(y, x) before rounding.
+type Table struct {
+	Reports, Outcomes []float64
+	Pay               [][]float64
+	A, B              float64
+	// Notes explain how to read the table.
+	Notes []string
+}
+
+// ErrUnbounded is returned when D is infinite or NaN somewhere on the
+// table, so no finite budget fits.
+var ErrUnbounded = errors.New("point: the effort is not finite on the table")
+
+// BuildTable fits the rule to the budget over the menu × outcome grid.
+// It honours ctx between rows.
+func (g *Generator) BuildTable(ctx context.Context, spec TableSpec) (*Table, error) {
+	if !(spec.Cap > spec.Floor) {
+		return nil, fmt.Errorf("point: cap %g must exceed floor %g", spec.Cap, spec.Floor)
+	}
+	step := spec.Step
+	if step == 0 {
+		step = (g.Hi - g.Lo) / 20
+	}
+	if !(step > 0) {
+		return nil, fmt.Errorf("point: menu step %g must be positive", step)
+	}
+	rows := int(math.Floor((g.Hi-g.Lo)/step*(1+1e-12))) + 1
+	if rows > 10000 {
+		return nil, fmt.Errorf("point: a step of %g gives %d reports; at most 10000", step, rows)
+	}
+	cols := spec.Columns
+	if cols == 0 {
+		cols = 11
+	}
+	if cols < 2 || cols > 1000 {
+		return nil, fmt.Errorf("point: %d outcome columns; need 2..1000", cols)
+	}
+	t := &Table{Reports: make([]float64, rows), Outcomes: make([]float64, cols)}
+	for i := range t.Reports {
+		t.Reports[i] = math.Min(g.Lo+float64(i)*step, g.Hi)
+	}
+	for j := range t.Outcomes {
+		t.Outcomes[j] = g.Lo + (g.Hi-g.Lo)*float64(j)/float64(cols-1)
+	}
+	ev := g.NewEvaluator()
+	d := make([][]float64, rows)
+	var worst float64
+	for i, x := range t.Reports {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
+		d[i] = make([]float64, cols)
+		for j, y := range t.Outcomes {
+			v := ev.Divergence(y, x)
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				return nil, fmt.Errorf("%w: D(y = %g, x = %g) = %v", ErrUnbounded, y, x, v)
+			}
+			d[i][j] = v
+			worst = math.Max(worst, v)
+		}
+	}
+	if worst == 0 {
+		return nil, errors.New("point: the effort is zero everywhere on the table; the generator is affine")
+	}
+	t.A, t.B = spec.Cap, (spec.Cap-spec.Floor)/worst
+	t.Pay = make([][]float64, rows)
+	for i := range d {
+		t.Pay[i] = make([]float64, cols)
+		for j, v := range d[i] {
+			t.Pay[i][j] = round(t.A-t.B*v, spec.Unit, spec.Rounding, spec.Floor, spec.Cap)
+		}
+	}
+	t.Notes = []string{
+		fmt.Sprintf("pay = %.6g - %.6g * D(y, x), D from phi = %s on [%g, %g]", t.A, t.B, g.Source, g.Lo, g.Hi),
+		"for an outcome between two columns, pay by linear interpolation between them: the part of the pay that depends on the report is affine in the outcome, so interpolation keeps the mean the best report on the menu",
+		"paying each column's value for a whole bin instead makes the best report the mean of the binned outcome, which can differ from the mean by up to half a bin",
+	}
+	if spec.Unit > 0 {
+		t.Notes = append(t.Notes, fmt.Sprintf("payments rounded to %g (%s); rounding can make neighbouring reports tie", spec.Unit, roundingName(spec.Rounding)))
+	}
+	return t, nil
+}
+
+func roundingName(mode string) string {
+	if mode == "" {
+		return "nearest"
+	}
+	return mode
+}
+
+// round rounds v to the unit in the given mode and keeps it in [lo, hi].
+func round(v, unit float64, mode string, lo, hi float64) float64 {
+	if unit > 0 {
+		q := v / unit
+		switch mode {
+		case "down":
+			q = math.Floor(q + 1e-9)
+		case "up":
+			q = math.Ceil(q - 1e-9)
+		default:
+			q = math.Round(q)
+		}
+		v = q * unit
+	}
+	return math.Min(math.Max(v, lo), hi)
+}
+
+// Caution is printed with every export.
+const Caution = "scorewright checks mathematics, not law: payment schemes can be regulated where you operate; have the contract reviewed by qualified counsel."
+
+// WriteCSV writes the table as CSV: '#' comment lines with the notes and
+// the caution, a header row "report" followed by the outcome values, then
+// one row per report.
+func (t *Table) WriteCSV(w io.Writer) error {
+	for _, n := range append(append([]string(nil), t.Notes...), Caution) {
+		if _, err := fmt.Fprintf(w, "# %s\n", n); err != nil {
+			return err
+		}
+	}
+	cw := csv.NewWriter(w)
+	head := []string{"report \\ outcome"}
+	for _, y := range t.Outcomes {
+		head = append(head, fmtNum(y))
+	}
+	if err := cw.Write(head); err != nil {
+		return err
+	}
+	for i, x := range t.Reports {
+		row := []string{fmtNum(x)}
+		for _, p := range t.Pay[i] {
+			row = append(row, fmtNum(p))
+		}
+		if err := cw.Write(row); err != nil {
+			return err
+		}
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+func fmtNum(v float64) string { return strconv.FormatFloat(v, 'g', 10, 64) }
