@@ -62,7 +62,7 @@ func Compile(f *File, scope Scope) (*Program, error) {
 	if scope.Payout && scope.Outcomes > 0 && (scope.Outcome < 1 || scope.Outcome > scope.Outcomes) {
 		return nil, fmt.Errorf("formula: payout outcome %d is outside 1..%d", scope.Outcome, scope.Outcomes)
 	}
-	c := &compiler{src: f.Source, scope: scope, cse: map[instr]int32{}, params: map[string]float64{}}
+	c := &compiler{src: f.Source, scope: scope, cse: map[instr]int32{}, konsts: map[uint64]int32{}, params: map[string]float64{}}
 	for k := 1; k <= scope.Outcomes; k++ {
 		c.varNames = append(c.varNames, "p"+strconv.Itoa(k))
 	}
@@ -125,6 +125,7 @@ type compiler struct {
 	scope     Scope
 	code      []instr
 	cse       map[instr]int32
+	konsts    map[uint64]int32
 	varNames  []string
 	params    map[string]float64
 	paramList []ParamValue
@@ -259,12 +260,19 @@ func (c *compiler) push(in instr) int32 {
 }
 
 func (c *compiler) konst(v float64) int32 {
-	// NaN never equals itself, so key NaN constants by their bits via a
-	// canonical NaN: one shared slot is enough.
+	// Constants are shared by their bits, not by ==: 0 and -0 are equal
+	// but divide differently, and NaN equals nothing. All NaNs share one.
 	if v != v {
 		v = math.NaN()
 	}
-	return c.push(instr{op: opConst, k: v})
+	bits := math.Float64bits(v)
+	if s, ok := c.konsts[bits]; ok {
+		return s
+	}
+	s := int32(len(c.code))
+	c.code = append(c.code, instr{op: opConst, k: v})
+	c.konsts[bits] = s
+	return s
 }
 
 func (c *compiler) isConst(s int32) (float64, bool) {
@@ -299,6 +307,14 @@ func (c *compiler) op(o opcode, a, b int32, k float64) int32 {
 		}
 		if cb && kb == 1 {
 			return a
+		}
+		// x * ln(x), the term of every entropy, is fused: one instruction,
+		// and its derivative ln(x) + 1 needs no division in the backward sweep.
+		if in := c.code[b]; in.op == opLn && in.a == a {
+			return c.push(instr{op: opXLnX, a: a})
+		}
+		if in := c.code[a]; in.op == opLn && in.a == b {
+			return c.push(instr{op: opXLnX, a: b})
 		}
 	case opDiv:
 		if cb && kb == 1 {
@@ -370,6 +386,8 @@ func apply(o opcode, a, b, k float64) float64 {
 		return cmp(a, b, a > b)
 	case opGe:
 		return cmp(a, b, a >= b)
+	case opXLnX:
+		return mul0(a, math.Log(a))
 	}
 	panic("formula: apply of " + o.String())
 }
@@ -595,9 +613,6 @@ func (c *compiler) call(n *Call, x ctx) int32 {
 				return a
 			}
 			return b
-		}
-		if a == b {
-			return a
 		}
 		return c.push(instr{op: opSelect, a: a, b: b, c: cond})
 	case "min", "max":

@@ -14,6 +14,8 @@ type Machine struct {
 	base int
 	val  []float64
 	adj  []float64
+	// aux keeps ln(a) of each opXLnX for the backward sweep.
+	aux []float64
 	// Second-order forward mode: gradient and Hessian of every slot,
 	// allocated on first use of Hessian.
 	grad []float64
@@ -24,7 +26,7 @@ type Machine struct {
 func (p *Program) NewMachine() *Machine {
 	nv, base := len(p.varNames), p.base()
 	total := base + len(p.code)
-	m := &Machine{prog: p, nv: nv, base: base, val: make([]float64, total), adj: make([]float64, total)}
+	m := &Machine{prog: p, nv: nv, base: base, val: make([]float64, total), adj: make([]float64, total), aux: make([]float64, total)}
 	// Constants never change: place them once.
 	copy(m.val[nv:base], p.consts)
 	return m
@@ -48,7 +50,11 @@ func (m *Machine) Value(vars []float64) float64 {
 
 func (m *Machine) forward(vars []float64) {
 	v := m.val
-	copy(v, vars)
+	// Loops, not copy(): for a handful of variables the call costs more
+	// than the copying.
+	for k, x := range vars {
+		v[k] = x
+	}
 	i := m.base
 	for _, in := range m.prog.code {
 		switch in.op {
@@ -70,6 +76,15 @@ func (m *Machine) forward(vars []float64) {
 			v[i] = v[in.a] * v[in.a]
 		case opLn:
 			v[i] = math.Log(v[in.a])
+		case opXLnX:
+			x := v[in.a]
+			l := math.Log(x)
+			m.aux[i] = l
+			r := x * l
+			if r != r {
+				r = mul0(x, l)
+			}
+			v[i] = r
 		case opSelect:
 			c := v[in.c]
 			switch {
@@ -99,7 +114,9 @@ func (m *Machine) Gradient(grad, vars []float64) float64 {
 	m.forward(vars)
 	v, adj := m.val, m.adj
 	out := int(m.prog.out)
-	clear(adj[:out+1])
+	for k := range adj[:out+1] {
+		adj[k] = 0
+	}
 	adj[out] = 1
 	code := m.prog.code
 	for i := out; i >= m.base; i-- {
@@ -130,11 +147,15 @@ func (m *Machine) Gradient(grad, vars []float64) float64 {
 			adj[in.a] += 2 * mul0(g, v[in.a])
 		case opLn:
 			adj[in.a] += g / v[in.a]
+		case opXLnX:
+			adj[in.a] += g * (m.aux[i] + 1)
 		default:
 			m.backwardRare(in, i, g)
 		}
 	}
-	copy(grad, adj[:m.nv])
+	for k := range grad {
+		grad[k] = adj[k]
+	}
 	return v[out]
 }
 
@@ -245,6 +266,8 @@ func (m *Machine) Hessian(hess, grad, vars []float64) float64 {
 			m.unary(i, in, z, z)
 		case opLn:
 			m.unary(i, in, 1/a, -1/(a*a))
+		case opXLnX:
+			m.unary(i, in, math.Log(a)+1, 1/a)
 		case opSqrt:
 			m.unary(i, in, 0.5/z, -0.25/(z*a))
 		case opAbs:

@@ -26,16 +26,17 @@ const (
 	opGt                   // a > b
 	opGe                   // a >= b
 	opSelect               // c != 0 ? a : b
+	opXLnX                 // a * ln(a), with 0 ln 0 = 0: the entropy term, fused
 )
 
-var opNames = [...]string{"const", "var", "add", "sub", "mul", "div", "neg", "sq", "powk", "powb", "pow", "exp", "ln", "sqrt", "abs", "min", "max", "lt", "le", "gt", "ge", "select"}
+var opNames = [...]string{"const", "var", "add", "sub", "mul", "div", "neg", "sq", "powk", "powb", "pow", "exp", "ln", "sqrt", "abs", "min", "max", "lt", "le", "gt", "ge", "select", "xlnx"}
 
 func (o opcode) String() string { return opNames[o] }
 
 // unary reports operations that read only operand a.
 func (o opcode) unary() bool {
 	switch o {
-	case opNeg, opSq, opPowK, opPowB, opExp, opLn, opSqrt, opAbs:
+	case opNeg, opSq, opPowK, opPowB, opExp, opLn, opSqrt, opAbs, opXLnX:
 		return true
 	}
 	return false
