@@ -163,25 +163,32 @@ const stallGradient = 1e-8
 // ErrNotConverged wraps an optimiser that stopped without converging.
 var ErrNotConverged = errors.New("risk: the optimiser did not converge")
 
+// setBelief stores q and sets the reference wealth to the truthful
+// forecaster's expected final wealth; it returns the truthful report
+// (raised to the report floor) and its expected pay.
+func (s *Solver) setBelief(q []float64) ([]float64, float64) {
+	copy(s.q, q)
+	truth := make([]float64, s.n)
+	for i, v := range q {
+		truth[i] = math.Max(v, s.c.ReportFloor)
+	}
+	normalise(truth)
+	pay := s.c.A - s.c.B*s.sc.Expected(q, truth)
+	s.ref = s.wealth + pay
+	return truth, pay
+}
+
 // Best returns the report that maximises the forecaster's expected utility
 // for belief q (a probability vector over the rule's outcomes).
 func (s *Solver) Best(q []float64) (*Result, error) {
 	if len(q) != s.n {
 		panic(fmt.Sprintf("risk: belief has %d entries for %d outcomes", len(q), s.n))
 	}
-	copy(s.q, q)
-	// Reference wealth: the truthful forecaster's expected final wealth.
-	f := s.c.ReportFloor
-	truth := make([]float64, s.n)
-	for i, v := range q {
-		truth[i] = math.Max(v, f)
-	}
-	normalise(truth)
-	truthPay := s.c.A - s.c.B*s.sc.Expected(q, truth)
-	s.ref = s.wealth + truthPay
-	if s.u.Kind == CRRA && !(s.ref > 0) {
+	truth, truthPay := s.setBelief(q)
+	if s.u.Kind == CRRA && s.u.Coef != 0 && !(s.ref > 0) {
 		return nil, fmt.Errorf("risk: expected final wealth %g is not positive; CRRA needs positive wealth", s.ref)
 	}
+	f := s.c.ReportFloor
 	z0 := make([]float64, s.n-1)
 	last := math.Max((truth[s.n-1]-f)/(1-float64(s.n)*f), 1e-12)
 	for i := range z0 {
@@ -218,6 +225,37 @@ func (s *Solver) Best(q []float64) (*Result, error) {
 		out.Size = math.Max(out.Size, 100*math.Abs(out.Report[i]-q[i]))
 	}
 	return out, nil
+}
+
+// Utility returns the forecaster's expected utility of report p under
+// belief q, normalised as in Best (comparable between reports for the same
+// belief only).
+func (s *Solver) Utility(q, p []float64) float64 {
+	if len(q) != s.n || len(p) != s.n {
+		panic(fmt.Sprintf("risk: belief and report need %d entries", s.n))
+	}
+	s.setBelief(q)
+	s.sc.Efforts(s.eff, p)
+	var eu float64
+	for k, qk := range q {
+		if qk != 0 {
+			v, _ := s.u.normalised(s.wealth+s.c.A-s.c.B*s.eff[k], s.ref)
+			eu += qk * v
+		}
+	}
+	return eu
+}
+
+// BestOf returns the index of the report in menu with the largest expected
+// utility for belief q: what a forecaster restricted to a menu picks.
+func (s *Solver) BestOf(q []float64, menu [][]float64) int {
+	best, at := math.Inf(-1), -1
+	for i, p := range menu {
+		if u := s.Utility(q, p); u > best {
+			best, at = u, i
+		}
+	}
+	return at
 }
 
 func normalise(p []float64) {
