@@ -97,7 +97,7 @@ func pointEnv() (*env, *bytes.Buffer) {
 func TestCheckAndAuditPoint(t *testing.T) {
 	d := &design.Design{Version: 1, Mode: design.ModePoint, Formula: "-x^2", Interval: []float64{0, 500}}
 	e, out := pointEnv()
-	if err := runCheckPoint(e, d, 20, 0, true); err != nil {
+	if err := runCheckPoint(e, d, &verifyFlags{resolution: 20, tolerance: 1e-9, asJSON: true}); err != nil {
 		t.Fatalf("%v\n%s", err, out)
 	}
 	var rep struct {
@@ -122,14 +122,14 @@ func TestCheckAndAuditPoint(t *testing.T) {
 	}
 	d.Formula = "x^2"
 	e, out = pointEnv()
-	if err := runCheckPoint(e, d, 10, 0, false); err != errFailed || !strings.Contains(out.String(), "verdict: improper") {
+	if err := runCheckPoint(e, d, &verifyFlags{resolution: 10, tolerance: 1e-9}); err != errFailed || !strings.Contains(out.String(), "verdict: improper") {
 		t.Errorf("convex generator: %v\n%s", err, out)
 	}
 
 	// A dairy pays 40 - 0.01 (x - y)^2 for a milk-yield forecast: recognised
 	// as squared error with scale 0.01.
 	e, out = pointEnv()
-	if err := runAuditPoint(e, "40 - 0.01*(x - y)^2", "0,60", nil, 20, 0, true); err != nil {
+	if err := runAuditPoint(e, "40 - 0.01*(x - y)^2", "0,60", nil, &verifyFlags{resolution: 20, tolerance: 1e-9, asJSON: true}); err != nil {
 		t.Fatalf("%v\n%s", err, out)
 	}
 	rep.Identified = nil
@@ -137,10 +137,10 @@ func TestCheckAndAuditPoint(t *testing.T) {
 		t.Errorf("audit: %v %+v", err, rep)
 	}
 	e, out = pointEnv()
-	if err := runAuditPoint(e, "40 - abs(x - y)", "0,60", nil, 20, 0, true); err != errFailed {
+	if err := runAuditPoint(e, "40 - abs(x - y)", "0,60", nil, &verifyFlags{resolution: 20, tolerance: 1e-9, asJSON: true}); err != errFailed {
 		t.Errorf("absolute error: %v\n%s", err, out)
 	}
-	if err := runAuditPoint(e, "40 - abs(x - q)", "0,60", nil, 20, 0, true); err == nil || !strings.Contains(err.Error(), "payout formula") {
+	if err := runAuditPoint(e, "40 - abs(x - q)", "0,60", nil, &verifyFlags{resolution: 20, tolerance: 1e-9, asJSON: true}); err == nil || !strings.Contains(err.Error(), "payout formula") {
 		t.Errorf("bad payout formula: %v", err)
 	}
 }
@@ -148,7 +148,7 @@ func TestCheckAndAuditPoint(t *testing.T) {
 func TestTablePoint(t *testing.T) {
 	d := &design.Design{Version: 1, Mode: design.ModePoint, Formula: "-x^2", Interval: []float64{0, 10}, Budget: design.Budget{Floor: 0, Cap: 100, Step: 1}}
 	e, out := pointEnv()
-	if err := runTablePoint(e, d, "csv", "", false); err != nil {
+	if err := runTablePoint(e, d, "csv", &tableFlags{}); err != nil {
 		t.Fatal(err)
 	}
 	// pay = 100 - (y - x)^2 (derived by hand: the worst cell has D = 100).
@@ -156,13 +156,36 @@ func TestTablePoint(t *testing.T) {
 		t.Errorf("table:\n%s", out)
 	}
 	path := t.TempDir() + "/dairy.csv"
-	if err := runTablePoint(e, d, "json", path, false); err != nil {
+	if err := runTablePoint(e, d, "json", &tableFlags{out: path}); err != nil {
 		t.Fatal(err)
 	}
-	if err := runTablePoint(e, d, "json", path, false); err == nil || !strings.Contains(err.Error(), "--force") {
+	if err := runTablePoint(e, d, "json", &tableFlags{out: path}); err == nil || !strings.Contains(err.Error(), "--force") {
 		t.Errorf("overwrote without --force: %v", err)
 	}
-	if err := runTablePoint(e, d, "json", path, true); err != nil {
+	if err := runTablePoint(e, d, "json", &tableFlags{out: path, force: true}); err != nil {
 		t.Errorf("--force: %v", err)
+	}
+}
+
+func TestPointCommands(t *testing.T) {
+	cases := []struct {
+		args []string
+		code int
+		says string
+	}{
+		{[]string{"check", "--interval", "0,500", "--generator", "-x^2", "--resolution", "10"}, 0, "verdict: strictly-proper"},
+		{[]string{"check", "--interval", "0,10", "--generator", "x^2", "--resolution", "10"}, 1, "verdict: improper"},
+		{[]string{"audit", "--interval", "0,60", "--payout", "40 - abs(x - y)", "--resolution", "10"}, 1, "the mean is not the best report"},
+		{[]string{"audit", "--interval", "0,60", "--payout", "40 - (x - y)^2/90", "--resolution", "10", "--json"}, 0, `"preset": "squared-error"`},
+		// A step in litres, not a probability.
+		{[]string{"table", "--interval", "0,60", "--preset", "squared-error", "--floor", "0", "--cap", "40", "--step", "10", "--format", "csv"}, 0, "qualified counsel"},
+		{[]string{"table", "--interval", "0,60", "--preset", "squared-error", "--floor", "0", "--cap", "40", "--step", "100"}, 2, "at most the interval's width"},
+		{[]string{"table", "--interval", "0,60", "--preset", "squared-error", "--floor", "0", "--cap", "40", "--format", "svg", "--out", "x.svg"}, 2, "csv, md or json"},
+	}
+	for _, tc := range cases {
+		code, out, errs := runCmd(t, tc.args...)
+		if code != tc.code || !strings.Contains(out+errs, tc.says) {
+			t.Errorf("%v: exit %d, want %d and %q in\n%s%s", tc.args, code, tc.code, tc.says, out, errs)
+		}
 	}
 }

@@ -252,7 +252,7 @@ func (b *budgetFlags) apply(fs *flag.FlagSet, d *design.Design) error {
 	if set["report-floor"] {
 		bd.ReportFloor = b.reportFloor
 	}
-	if err := bd.Validate(); err != nil {
+	if err := d.ValidateBudget(); err != nil {
 		return usagef("%v", err)
 	}
 	return nil

@@ -190,29 +190,48 @@ func runEvalPoint(e *env, d *design.Design, report, belief string, asJSON bool) 
 	return nil
 }
 
-// runCheckPoint is check for a point design. It returns errFailed after
-// printing when a check fails.
-func runCheckPoint(e *env, d *design.Design, resolution int, tolerance float64, asJSON bool) error {
+// runCheckPoint is check for a point design (--interval LO,HI). It
+// returns errFailed after printing when a check fails.
+func runCheckPoint(e *env, d *design.Design, vf *verifyFlags) error {
 	g, err := pointGenerator(d)
 	if err != nil {
 		return err
 	}
-	rep, err := vpoint.CheckGenerator(context.Background(), g, vpoint.Settings{Resolution: resolution, Tolerance: tolerance})
+	s, err := pointSettings(e, vf)
 	if err != nil {
 		return err
 	}
-	return printPointReport(e, rep, asJSON)
+	ctx, stop := interruptible()
+	defer stop()
+	rep, err := vpoint.CheckGenerator(ctx, g, s)
+	if err != nil {
+		return usagef("check: %v", err)
+	}
+	return printPointReport(e, rep, vf.asJSON)
+}
+
+// pointSettings maps check's and audit's flags to the point checks.
+func pointSettings(e *env, vf *verifyFlags) (vpoint.Settings, error) {
+	vs, err := vf.settings(e)
+	if err != nil {
+		return vpoint.Settings{}, err
+	}
+	s := vpoint.Settings{Resolution: vs.Resolution, Tolerance: vs.Tolerance}
+	if vs.Progress != nil {
+		s.Progress = func(done, total int) { vs.Progress(int64(done), int64(total)) }
+	}
+	return s, nil
 }
 
 // addPointAuditFlag registers audit's --interval; the audit command calls
 // runAuditPoint when it is set.
 func addPointAuditFlag(fs *flag.FlagSet) *string {
-	return fs.String("interval", "", "audit a point-forecast payout pay(x, y) on [LO, HI] (x the report, y the outcome)")
+	return fs.String("interval", "", "audit a point-forecast payout pay(x, y) on [LO, HI] (x the report, y the outcome) instead of --outcomes")
 }
 
 // runAuditPoint is audit for a point-forecast payout pay(x, y) on the
 // interval "LO,HI".
-func runAuditPoint(e *env, payout, interval string, params map[string]float64, resolution int, tolerance float64, asJSON bool) error {
+func runAuditPoint(e *env, payout, interval string, params map[string]float64, vf *verifyFlags) error {
 	iv, err := num.ParseVector(interval)
 	if err != nil || len(iv) != 2 || !(iv[0] < iv[1]) || math.IsInf(iv[0], 0) || math.IsInf(iv[1], 0) {
 		return usagef("--interval wants LO,HI with LO < HI, got %q", interval)
@@ -220,17 +239,26 @@ func runAuditPoint(e *env, payout, interval string, params map[string]float64, r
 	if payout == "" {
 		return usagef("--payout EXPR in x (the report) and y (the outcome) is required")
 	}
+	if len(params) == 0 {
+		params = nil
+	}
 	p, err := vpoint.NewPayout(payout, params)
 	if _, ok := err.(*formula.Error); ok {
 		return formulaError("payout", err)
 	} else if err != nil {
 		return usagef("%v", err)
 	}
-	rep, err := vpoint.AuditPayout(context.Background(), p, iv[0], iv[1], vpoint.Settings{Resolution: resolution, Tolerance: tolerance}, pointCandidates(iv[0], iv[1]))
+	s, err := pointSettings(e, vf)
 	if err != nil {
 		return err
 	}
-	return printPointReport(e, rep, asJSON)
+	ctx, stop := interruptible()
+	defer stop()
+	rep, err := vpoint.AuditPayout(ctx, p, iv[0], iv[1], s, pointCandidates(iv[0], iv[1]))
+	if err != nil {
+		return usagef("audit: %v", err)
+	}
+	return printPointReport(e, rep, vf.asJSON)
 }
 
 type pointCheckJSON struct {
@@ -281,15 +309,16 @@ func printPointReport(e *env, rep *vpoint.Report, asJSON bool) error {
 			}
 			at := ""
 			if c.At != nil && len(c.At.Report) > 0 {
-				at = fmt.Sprintf(" at report %.6g", c.At.Report[0])
+				at = fmt.Sprintf("at report %.6g", c.At.Report[0])
 				if len(c.At.Outcomes) > 0 {
-					at += fmt.Sprintf(", outcomes %v", c.At.Outcomes)
+					at += ", outcomes " + num.Format(c.At.Outcomes)
 				}
 				if len(c.At.Weights) > 0 {
-					at += fmt.Sprintf(" weighted %v", c.At.Weights)
+					at += " weighted " + num.Format(c.At.Weights)
 				}
 			}
-			fmt.Fprintf(tw, "%s\t%s\t%.4g%s\t%s\n", mark, c.Name, c.Worst, at, c.What)
+			fmt.Fprintf(tw, "%s\t%s\t%.4g\t%s\n", mark, c.Name, c.Worst, at)
+			fmt.Fprintf(tw, "\t\t\t  (%s)\n", c.What)
 		}
 		if err := tw.Flush(); err != nil {
 			return err
@@ -308,19 +337,22 @@ func printPointReport(e *env, rep *vpoint.Report, asJSON bool) error {
 }
 
 // runTablePoint is table for a point design: the menu of reports (budget
-// step) against outcome columns, fitted to the budget's floor and cap,
-// as CSV or JSON, to stdout or (atomically) to a file.
-func runTablePoint(e *env, d *design.Design, format, out string, force bool) error {
+// step, default a twentieth of the interval) against outcome columns,
+// fitted to the budget's floor and cap, written as CSV, Markdown or JSON
+// to stdout or atomically to --out.
+func runTablePoint(e *env, d *design.Design, format string, tf *tableFlags) error {
 	g, err := pointGenerator(d)
 	if err != nil {
 		return err
 	}
 	b := d.Budget
-	if b.MeanPay != nil {
+	switch {
+	case b.MeanPay != nil:
 		return usagef("point-forecast tables are fitted to --floor and --cap; --mean-pay is for rules over outcomes")
-	}
-	if !(b.Cap > b.Floor) {
+	case !(b.Cap > b.Floor):
 		return usagef("give --floor F --cap C with C > F")
+	case tf.menu != "" || tf.clamp != 0:
+		return usagef("--menu and --clamp are for rules over outcomes; a point-forecast menu is --step S in the units of the interval")
 	}
 	t, err := g.BuildTable(context.Background(), gpoint.TableSpec{Floor: b.Floor, Cap: b.Cap, Step: b.Step, Unit: b.Unit, Rounding: b.Rounding})
 	if errors.Is(err, gpoint.ErrUnbounded) {
@@ -330,17 +362,28 @@ func runTablePoint(e *env, d *design.Design, format, out string, force bool) err
 	}
 	var buf bytes.Buffer
 	switch format {
-	case "", "csv":
+	case "csv":
 		err = t.WriteCSV(&buf)
+	case "md":
+		err = t.WriteMarkdown(&buf)
 	case "json":
-		err = writeJSON(&buf, map[string]any{"reports": t.Reports, "outcomes": t.Outcomes, "pay": t.Pay, "shift": t.A, "scale": t.B, "notes": t.Notes, "caution": gpoint.Caution})
+		err = writeJSON(&buf, t)
 	default:
-		return usagef("--format %q: point-forecast tables are written as csv or json", format)
+		return usagef("--format %s: point-forecast tables are written as csv, md or json", format)
 	}
 	if err != nil {
 		return err
 	}
-	return writeOut(e.stdout, out, buf.Bytes(), force)
+	if tf.json && tf.out == "" {
+		return writeJSON(e.stdout, t)
+	}
+	if err := writeOut(e.stdout, tf.out, buf.Bytes(), tf.force); err != nil {
+		return err
+	}
+	if tf.out != "" {
+		fmt.Fprintf(e.stdout, "wrote %s: %d reports × %d outcome columns, pay = %.6g - %.6g * D(y, x)\n", tf.out, len(t.Reports), len(t.Outcomes), t.A, t.B)
+	}
+	return nil
 }
 
 // writeOut writes data to stdout, or atomically to path (refusing to

@@ -88,6 +88,9 @@ func runTable(e *env, args []string) error {
 	if err := bf.apply(fs, d); err != nil {
 		return err
 	}
+	if d.Mode == design.ModePoint {
+		return runTablePoint(e, d, format, tf)
+	}
 	rule, err := categoricalRule(d)
 	if err != nil {
 		return err

@@ -8,6 +8,9 @@ import (
 	"io"
 	"math"
 	"strconv"
+	"strings"
+
+	"scorewright/generator/table"
 )
 
 // TableSpec says how a point-forecast rule is turned into a payment table:
@@ -30,11 +33,18 @@ type TableSpec struct {
 // Reports[i] earns when the outcome is Outcomes[j]; the rule is
 // pay = A - B D(y, x) before rounding.
 type Table struct {
-	Reports, Outcomes []float64
-	Pay               [][]float64
-	A, B              float64
+	Reports  []float64   `json:"reports"`
+	Outcomes []float64   `json:"outcomes"`
+	Pay      [][]float64 `json:"pay"`
+	A        float64     `json:"A"`
+	B        float64     `json:"B"`
+	// Kind is what Pay holds: money, or after Lottery the chance of
+	// winning the prize.
+	Kind string `json:"kind"`
 	// Notes explain how to read the table.
-	Notes []string
+	Notes []string `json:"notes"`
+	// Cautions close every export.
+	Cautions []string `json:"caution"`
 }
 
 // ErrUnbounded is returned when D is infinite or NaN somewhere on the
@@ -65,7 +75,7 @@ func (g *Generator) BuildTable(ctx context.Context, spec TableSpec) (*Table, err
 	if cols < 2 || cols > 1000 {
 		return nil, fmt.Errorf("point: %d outcome columns; need 2..1000", cols)
 	}
-	t := &Table{Reports: make([]float64, rows), Outcomes: make([]float64, cols)}
+	t := &Table{Reports: make([]float64, rows), Outcomes: make([]float64, cols), Kind: string(table.KindMoney), Cautions: append([]string(nil), table.Caution...)}
 	for i := range t.Reports {
 		t.Reports[i] = math.Min(g.Lo+float64(i)*step, g.Hi)
 	}
@@ -102,7 +112,7 @@ func (g *Generator) BuildTable(ctx context.Context, spec TableSpec) (*Table, err
 	}
 	t.Notes = []string{
 		fmt.Sprintf("pay = %.6g - %.6g * D(y, x), D from phi = %s on [%g, %g]", t.A, t.B, g.Source, g.Lo, g.Hi),
-		"for an outcome between two columns, pay by linear interpolation between them: the part of the pay that depends on the report is affine in the outcome, so interpolation keeps the mean the best report on the menu",
+		"for an outcome between two columns, pay by linear interpolation between them: the part of the pay that depends on the report is affine in the outcome, so with interpolation the best menu report is still the one nearest the mean in the rule's divergence D(mean, x)",
 		"paying each column's value for a whole bin instead makes the best report the mean of the binned outcome, which can differ from the mean by up to half a bin",
 	}
 	if spec.Unit > 0 {
@@ -135,37 +145,70 @@ func round(v, unit float64, mode string, lo, hi float64) float64 {
 	return math.Min(math.Max(v, lo), hi)
 }
 
-// Caution is printed with every export.
-const Caution = "scorewright checks mathematics, not law: payment schemes can be regulated where you operate; have the contract reviewed by qualified counsel."
-
 // WriteCSV writes the table as CSV: '#' comment lines with the notes and
-// the caution, a header row "report" followed by the outcome values, then
-// one row per report.
+// the caution, a header row "report \ outcome" followed by the outcome
+// values, then one row per report.
 func (t *Table) WriteCSV(w io.Writer) error {
-	for _, n := range append(append([]string(nil), t.Notes...), Caution) {
-		if _, err := fmt.Fprintf(w, "# %s\n", n); err != nil {
+	for _, n := range t.Notes {
+		if _, err := fmt.Fprintf(w, "# note: %s\n", n); err != nil {
+			return err
+		}
+	}
+	for _, c := range t.Cautions {
+		if _, err := fmt.Fprintf(w, "# caution: %s\n", c); err != nil {
 			return err
 		}
 	}
 	cw := csv.NewWriter(w)
-	head := []string{"report \\ outcome"}
-	for _, y := range t.Outcomes {
-		head = append(head, fmtNum(y))
-	}
-	if err := cw.Write(head); err != nil {
+	if err := cw.Write(t.header()); err != nil {
 		return err
 	}
-	for i, x := range t.Reports {
-		row := []string{fmtNum(x)}
-		for _, p := range t.Pay[i] {
-			row = append(row, fmtNum(p))
-		}
-		if err := cw.Write(row); err != nil {
+	for i := range t.Reports {
+		if err := cw.Write(t.row(i)); err != nil {
 			return err
 		}
 	}
 	cw.Flush()
 	return cw.Error()
+}
+
+// WriteMarkdown writes the table as a Markdown table followed by the notes
+// and the caution.
+func (t *Table) WriteMarkdown(w io.Writer) error {
+	var b strings.Builder
+	b.WriteString("| " + strings.Join(t.header(), " | ") + " |\n|")
+	for range t.header() {
+		b.WriteString("---:|")
+	}
+	b.WriteString("\n")
+	for i := range t.Reports {
+		b.WriteString("| " + strings.Join(t.row(i), " | ") + " |\n")
+	}
+	b.WriteString("\n")
+	for _, n := range t.Notes {
+		b.WriteString("- " + n + "\n")
+	}
+	for _, c := range t.Cautions {
+		b.WriteString("- **Caution:** " + c + "\n")
+	}
+	_, err := io.WriteString(w, b.String())
+	return err
+}
+
+func (t *Table) header() []string {
+	head := []string{"report \\ outcome"}
+	for _, y := range t.Outcomes {
+		head = append(head, fmtNum(y))
+	}
+	return head
+}
+
+func (t *Table) row(i int) []string {
+	row := []string{fmtNum(t.Reports[i])}
+	for _, p := range t.Pay[i] {
+		row = append(row, fmtNum(p))
+	}
+	return row
 }
 
 func fmtNum(v float64) string { return strconv.FormatFloat(v, 'g', 10, 64) }

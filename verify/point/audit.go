@@ -6,6 +6,7 @@ import (
 	"math"
 
 	"scorewright/generator/formula"
+	"scorewright/generator/num"
 	gpoint "scorewright/generator/point"
 )
 
@@ -176,7 +177,7 @@ func AuditPayout(ctx context.Context, p *Payout, lo, hi float64, s Settings, can
 	switch {
 	case !proper.Passed || !nonneg.Passed:
 		rep.Verdict = Improper
-		rep.Notes = append(rep.Notes, fmt.Sprintf("the mean is not the best report: with outcomes %v weighted %v (mean %.6g) the report %.6g earns %.6g more in expectation", gap.Outcomes, gap.Weights, gap.Mean, gap.BestReport, gap.Max))
+		rep.Notes = append(rep.Notes, fmt.Sprintf("the mean is not the best report: with outcomes %s weighted %s (mean %.6g) the report %.6g earns %.6g more in expectation", num.Format(gap.Outcomes), num.Format(gap.Weights), gap.Mean, gap.BestReport, gap.Max))
 	case strictMargin > tol*scale:
 		rep.Verdict = StrictlyProper
 	default:
