@@ -189,3 +189,45 @@ func TestPointCommands(t *testing.T) {
 		}
 	}
 }
+
+func TestDistort(t *testing.T) {
+	var got struct {
+		B      float64   `json:"B"`
+		Report []float64 `json:"report"`
+		Points float64   `json:"points"`
+		Curve  []struct {
+			Points float64 `json:"points"`
+		} `json:"curve"`
+		Largest struct {
+			Points float64 `json:"points"`
+		} `json:"largest"`
+	}
+	base := []string{"distort", "--outcomes", "frost,clear", "--preset", "log", "--floor", "0", "--cap", "10", "--step", "0.05", "--report-floor", "0.01", "--belief", "0.8", "--json"}
+	// Risk-neutral: no distortion anywhere on the curve.
+	code, out, errs := runCmd(t, append(base, "--utility", "linear")...)
+	if code != 0 || json.Unmarshal([]byte(out), &got) != nil {
+		t.Fatalf("exit %d: %s %s", code, errs, out)
+	}
+	if got.Points > 1e-5 || got.Largest.Points > 1e-5 || len(got.Curve) != 99 {
+		t.Errorf("linear utility: %+v", got)
+	}
+	// CARA with the log rule: the report's odds are the belief's odds to
+	// the power 1/(1 + aB) (derived by hand in generator/risk's tests).
+	code, out, errs = runCmd(t, append(base, "--utility", "cara:0.3")...)
+	if code != 0 || json.Unmarshal([]byte(out), &got) != nil {
+		t.Fatalf("exit %d: %s %s", code, errs, out)
+	}
+	odds := math.Pow(4, 1/(1+0.3*got.B))
+	if want := odds / (1 + odds); math.Abs(got.Report[0]-want) > 1e-7 {
+		t.Errorf("CARA: report %v, want %v (B = %v)", got.Report, want, got.B)
+	}
+	for _, bad := range [][]string{
+		{"--utility", "crra:2"}, // no wealth: final wealth can be 0
+		{"--utility", "power:2"},
+		{},
+	} {
+		if code, _, _ := runCmd(t, append(base, bad...)...); code != exitUsage {
+			t.Errorf("%v: exit %d, want 2", bad, code)
+		}
+	}
+}
