@@ -1,10 +1,15 @@
 package main
 
 import (
+	"math"
+
 	"scorewright/generator/bregman"
+	"scorewright/generator/budget"
 	"scorewright/generator/design"
 	"scorewright/generator/emphasis"
 	"scorewright/generator/formula"
+	"scorewright/generator/lottery"
+	"scorewright/generator/table"
 )
 
 // emphasisRule integrates an emphasis-mode design's weight into a binary
@@ -22,6 +27,17 @@ func emphasisRule(d *design.Design) (*bregman.Rule, error) {
 		return nil, usagef("%v", err)
 	}
 	return &bregman.Rule{Gen: g, Labels: d.Labels}, nil
+}
+
+// lotteryTable turns a fitted money table into chances of winning a
+// prize of cap - floor, with the bounds taken wide enough to hold every
+// rounded payment.
+func lotteryTable(tb *table.Table, fit *budget.Fit) error {
+	lo, hi := math.Min(fit.Floor, fit.MinPay), math.Max(fit.Cap, fit.MaxPay)
+	if err := lottery.Convert(tb, lo, hi); err != nil {
+		return usagef("--lottery: %v", err)
+	}
+	return nil
 }
 
 // ruleWarnings are remarks about a rule a user should see beside its

@@ -360,6 +360,11 @@ func runTablePoint(e *env, d *design.Design, format string, tf *tableFlags) erro
 	} else if err != nil {
 		return usagef("%v", err)
 	}
+	if tf.lottery {
+		if err := t.Lottery(b.Floor, b.Cap); err != nil {
+			return usagef("--lottery: %v", err)
+		}
+	}
 	var buf bytes.Buffer
 	switch format {
 	case "csv":

@@ -10,6 +10,7 @@ import (
 	"strconv"
 	"strings"
 
+	"scorewright/generator/lottery"
 	"scorewright/generator/table"
 )
 
@@ -119,6 +120,28 @@ func (g *Generator) BuildTable(ctx context.Context, spec TableSpec) (*Table, err
 		t.Notes = append(t.Notes, fmt.Sprintf("payments rounded to %g (%s); rounding can make neighbouring reports tie", spec.Unit, roundingName(spec.Rounding)))
 	}
 	return t, nil
+}
+
+// Lottery rewrites the table in place as chances of winning a prize of
+// Cap - Floor (see package lottery), with the explanation, the settling
+// rule and the extra caution.
+func (t *Table) Lottery(floor, cap float64) error {
+	if t.Kind != string(table.KindMoney) {
+		return fmt.Errorf("point: the table holds %s, not money", t.Kind)
+	}
+	for i, row := range t.Pay {
+		for j, v := range row {
+			c, err := lottery.Chance(v, floor, cap)
+			if err != nil {
+				return fmt.Errorf("%w (report %g, outcome %g)", err, t.Reports[i], t.Outcomes[j])
+			}
+			t.Pay[i][j] = c
+		}
+	}
+	t.Kind = string(lottery.KindChance)
+	t.Notes = append(t.Notes, fmt.Sprintf("each cell is the chance of winning a prize of %g: (pay - %g)/%g", cap-floor, floor, cap-floor), lottery.Why, lottery.Draw)
+	t.Cautions = append(t.Cautions, lottery.Caution)
+	return nil
 }
 
 func roundingName(mode string) string {
