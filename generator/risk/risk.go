@@ -54,7 +54,10 @@ func NewSolver(rule *bregman.Rule, c Contract, u Utility, wealth float64) (*Solv
 		g: make([]float64, n), sig: make([]float64, n), q: make([]float64, n)}, nil
 }
 
-// Result is the best report for one belief.
+// Result is the best report for one belief. When the best report is a
+// corner of the simplex (a risk-seeking forecaster under a bounded rule)
+// the softmax coordinates run off to infinity and the report comes within
+// about 1e-6 of the corner before the gradient test stops the search.
 type Result struct {
 	Belief, Report []float64
 	// Size is the distortion max_k |report_k - belief_k| in probability
