@@ -251,3 +251,13 @@ func TestTableLottery(t *testing.T) {
 		t.Errorf("point lottery table: exit %d %s\n%s", code, errs, out)
 	}
 }
+
+func TestCheckEmphasis(t *testing.T) {
+	// The beta family with a = 2, b = 3 has w = c (1-c)^2 > 0 inside (0, 1)
+	// and is integrable at both ends: a bounded, strictly proper rule
+	// (Buja, Stuetzle & Shen 2005).
+	code, out, errs := runCmd(t, "check", "--outcomes", "frost,clear", "--preset", "beta", "--param", "a=2", "--param", "b=3", "--resolution", "200")
+	if code != 0 || !strings.Contains(out, "strictly-proper") {
+		t.Errorf("exit %d: %s%s", code, out, errs)
+	}
+}
