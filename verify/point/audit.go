@@ -18,11 +18,14 @@ type Candidate struct {
 }
 
 // Identified says that a payout equals Shift - Scale * D(y, x) for a known
-// generator, to within the tolerance on the grid.
+// generator, to within the tolerance on the grid; with OutcomeTerm, it is
+// g(y) - Scale * D(y, x) with a term g in the outcome alone (which changes
+// no incentive) and Shift is 0.
 type Identified struct {
-	Preset string  `json:"preset"`
-	Scale  float64 `json:"scale"`
-	Shift  float64 `json:"shift"`
+	Preset      string  `json:"preset"`
+	Scale       float64 `json:"scale"`
+	Shift       float64 `json:"shift"`
+	OutcomeTerm bool    `json:"outcome_term,omitempty"`
 }
 
 // Payout is a compiled payout formula pay(x, y) for point forecasts.
@@ -135,13 +138,19 @@ func AuditPayout(ctx context.Context, p *Payout, lo, hi float64, s Settings, can
 		}
 		vals, mean := d.values(ys)
 		atMean := pr.expected(mean, vals, d.w)
+		if math.IsNaN(atMean) {
+			continue // counted under boundedness
+		}
 		best, bestX, away := math.Inf(-1), 0.0, math.Inf(-1)
 		for i, x := range xs {
 			var e float64
 			for j, yi := range d.idx {
 				e += d.w[j] * pm[i][yi]
 			}
-			if e > best || math.IsNaN(e) {
+			if math.IsNaN(e) {
+				continue // a report the payout does not define; counted under boundedness
+			}
+			if e > best {
 				best, bestX = e, x
 			}
 			if math.Abs(x-mean) >= 2*step {
@@ -212,51 +221,63 @@ func goldenMax(f func(float64) float64, a, b float64) (float64, float64) {
 	return x, f(x)
 }
 
-// identify fits pay ≈ Shift - Scale * D_phi(y, x) for each candidate by
-// least squares on the grid, and returns the first that fits every cell
-// to within tol·scale with Scale > 0.
+// identify fits pay[i][j] ≈ g_j - Scale·D(y_j, x_i) for each candidate by
+// least squares on the grid, with g a free term per outcome (which does
+// not change any incentive), and returns the first candidate that fits
+// every cell to within tol·scale with Scale > 0. When g is constant the
+// payout is Shift - Scale·D.
 func identify(pm [][]float64, xs, ys []float64, scale, tol float64, cands []Candidate) *Identified {
+	limit := math.Max(tol, 1e-9) * scale
 	for _, c := range cands {
 		if c.Gen.Lo > xs[0] || c.Gen.Hi < xs[len(xs)-1] {
 			continue
 		}
 		ev := c.Gen.NewEvaluator()
-		var n, sd, sp, sdd, sdp float64
-		dm := make([][]float64, len(xs))
-		ok := true
-		for i, x := range xs {
-			dm[i] = make([]float64, len(ys))
-			for j, y := range ys {
-				d, p := ev.Divergence(y, x), pm[i][j]
-				if !finite(d) || !finite(p) {
-					ok = false
+		dm, bad, _ := fill(context.Background(), xs, ys, "D", ev.Divergence)
+		if len(bad) > 0 {
+			continue
+		}
+		// Centre each outcome column, then fit the common slope.
+		var sdp, sdd float64
+		mp, md := make([]float64, len(ys)), make([]float64, len(ys))
+		for j := range ys {
+			for i := range xs {
+				if !finite(pm[i][j]) {
+					return nil
 				}
-				dm[i][j] = d
-				n++
-				sd += d
-				sp += p
-				sdd += d * d
-				sdp += d * p
+				mp[j] += pm[i][j] / float64(len(xs))
+				md[j] += dm[i][j] / float64(len(xs))
+			}
+			for i := range xs {
+				sdp += (pm[i][j] - mp[j]) * (dm[i][j] - md[j])
+				sdd += (dm[i][j] - md[j]) * (dm[i][j] - md[j])
 			}
 		}
-		den := n*sdd - sd*sd
-		if !ok || den <= 0 {
+		if !(sdd > 0) {
 			continue
 		}
-		slope := (n*sdp - sd*sp) / den
-		shift := (sp - slope*sd) / n
-		if !(slope < 0) {
+		s := -sdp / sdd
+		if !(s > 0) {
 			continue
 		}
-		worst := 0.0
-		for i := range xs {
-			for j := range ys {
-				worst = math.Max(worst, math.Abs(pm[i][j]-(shift+slope*dm[i][j])))
+		worst, gmin, gmax := 0.0, math.Inf(1), math.Inf(-1)
+		for j := range ys {
+			g := mp[j] + s*md[j]
+			gmin, gmax = math.Min(gmin, g), math.Max(gmax, g)
+			for i := range xs {
+				worst = math.Max(worst, math.Abs(pm[i][j]-(g-s*dm[i][j])))
 			}
 		}
-		if worst <= math.Max(tol, 1e-9)*scale {
-			return &Identified{Preset: c.Name, Scale: -slope, Shift: shift}
+		if worst > limit {
+			continue
 		}
+		id := &Identified{Preset: c.Name, Scale: s}
+		if gmax-gmin <= limit {
+			id.Shift = (gmin + gmax) / 2
+		} else {
+			id.OutcomeTerm = true
+		}
+		return id
 	}
 	return nil
 }

@@ -260,15 +260,15 @@ func CheckGenerator(ctx context.Context, g *gpoint.Generator, s Settings) (*Repo
 			for j, yi := range d.idx {
 				e += d.w[j] * dm[i][yi]
 			}
-			if e < best {
+			if e < best { // NaN never wins; it is counted under boundedness
 				best, bestX = e, xs[i]
 			}
 		}
 		gap := atMean - best
-		if !finite(atMean) && !finite(best) {
-			continue // both infinite: nothing to compare
+		if math.IsNaN(atMean) || !finite(atMean) && !finite(best) {
+			continue // undefined, or both infinite: counted under boundedness
 		}
-		if gap > worstGap || math.IsNaN(gap) {
+		if gap > worstGap {
 			worstGap, gapAt = gap, At{Outcomes: vals, Weights: d.w, Report: []float64{bestX}}
 		}
 	}

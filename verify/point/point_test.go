@@ -108,6 +108,19 @@ func TestAuditPayout(t *testing.T) {
 	if r.Verdict != Proper {
 		t.Errorf("constant payout: %s", r.Verdict)
 	}
+	// A QLIKE-type reward -(y/x) - ln x equals -(y/x - ln(y/x) - 1) - ln y - 1
+	// (derived by hand): the qlike effort plus a term in y alone.
+	ql, _ := gpoint.New("ln(x)", 0.5, 10, gpoint.Options{})
+	p, _ = NewPayout("-(y/x) - ln(x)", nil)
+	r, _ = AuditPayout(context.Background(), p, 0.5, 10, Settings{Resolution: 10}, []Candidate{{"squared-error", sq}, {"qlike", ql}})
+	if r.Verdict != StrictlyProper || r.Identified == nil || r.Identified.Preset != "qlike" || !r.Identified.OutcomeTerm || math.Abs(r.Identified.Scale-1) > 1e-9 {
+		t.Errorf("qlike-type payout: %s %+v", r.Verdict, r.Identified)
+	}
+	// Undefined at x = 0: boundedness fails, the gap stays a number.
+	r, _ = AuditPayout(context.Background(), p, 0, 10, Settings{Resolution: 10}, nil)
+	if check(r, "boundedness").Passed || math.IsNaN(r.Gap.Max) {
+		t.Errorf("undefined at 0: %+v gap %v", check(r, "boundedness"), r.Gap.Max)
+	}
 	if _, err := NewPayout("x + q", nil); err == nil {
 		t.Error("unknown name accepted")
 	}
