@@ -75,7 +75,7 @@ func all() []Preset {
 		{Name: "squared-error", Title: "point forecast of a mean, effort (y - x)^2", Kind: KindPoint,
 			Formula: "-x^2",
 			Source:  "Savage (1971), JASA 66:783-801; Gneiting (2011), Making and evaluating point forecasts, JASA 106:746-762"},
-		{Name: "patton", Title: "point forecast of a mean, homogeneous Bregman family; b = 0 is half squared error (needs lo >= 0 unless b is an integer; b = -1, -2 are limits)", Kind: KindPoint,
+		{Name: "patton", Title: "point forecast of a mean, homogeneous Bregman family for a positive quantity (needs lo >= 0); b = 0 is half squared error; b = -1, -2 are limits (qlike is b = -2)", Kind: KindPoint,
 			Formula: "b = 1\n-x^(b+2) / ((b+1)*(b+2))",
 			Source:  "Patton (2011), Volatility forecast comparison using imperfect volatility proxies, J. Econometrics 160:246-256"},
 		{Name: "qlike", Title: "point forecast of a positive mean, effort y/x - ln(y/x) - 1 (needs lo > 0)", Kind: KindPoint,
