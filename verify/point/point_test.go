@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	gpoint "scorewright/generator/point"
+	"scorewright/presets"
 )
 
 func gen(t *testing.T, src string, lo, hi float64) *gpoint.Generator {
@@ -148,3 +149,26 @@ func BenchmarkCheckGenerator(b *testing.B) {
 }
 
 func itoa(k int) string { return string(rune('0'+k/10)) + string(rune('0'+k%10)) }
+
+// Every point preset is a concave generator on a positive interval, so
+// the mean is the best report (Savage 1971; Gneiting 2011).
+func TestPointPresets(t *testing.T) {
+	n := 0
+	for _, p := range presets.All() {
+		if p.Kind != presets.KindPoint {
+			continue
+		}
+		n++
+		g, err := gpoint.New(p.Formula, 0.5, 50, gpoint.Options{})
+		if err != nil {
+			t.Fatalf("%s: %v", p.Name, err)
+		}
+		r, err := CheckGenerator(context.Background(), g, Settings{Resolution: 10})
+		if err != nil || r.Verdict != StrictlyProper || r.Failed() {
+			t.Errorf("%s: %v %s %+v", p.Name, err, r.Verdict, r.Checks)
+		}
+	}
+	if n < 3 {
+		t.Errorf("%d point presets; want squared error and at least two more", n)
+	}
+}
