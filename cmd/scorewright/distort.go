@@ -94,7 +94,7 @@ func runDistort(e *env, args []string) error {
 	} else if err != nil {
 		return fitError(err)
 	}
-	solver, err := risk.NewSolver(rule, risk.Contract{A: fit.A, B: fit.B, MinPay: fit.Floor, ReportFloor: d.Budget.ReportFloor}, u, *wealth)
+	solver, err := risk.NewSolver(rule, risk.Contract{A: fit.A, B: fit.B, MinPay: math.Min(fit.Floor, fit.MinPay), ReportFloor: d.Budget.ReportFloor}, u, *wealth)
 	if err != nil {
 		return usagef("%v", err)
 	}
@@ -119,7 +119,7 @@ func runDistort(e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	pick := menu.Reports[solver.BestOf(q, menu.Reports)]
+	pick := menu.Reports[solver.BestOf(q, fit.Pays)]
 
 	var beliefs [][]float64
 	along := "event probability, step 0.01"
@@ -149,7 +149,7 @@ func runDistort(e *env, args []string) error {
 		out.Notes = append(out.Notes, "with CARA utility initial wealth does not change the report")
 	}
 	out.Notes = append(out.Notes,
-		"the best report is over all reports; a forecaster held to the menu picks the menu item with the largest expected utility (the menu pick)",
+		"the best report is over all reports at the exact pay A - B·effort; a forecaster held to the menu picks the menu item whose rounded payments in the table give the largest expected utility (the menu pick)",
 		"paying a fixed prize with probability (pay - floor)/(cap - floor) instead of money (table --lottery) makes the truthful report best for any expected-utility maximiser",
 	)
 	if *asJSON {

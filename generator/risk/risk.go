@@ -239,22 +239,37 @@ func (s *Solver) Utility(q, p []float64) float64 {
 	}
 	s.setBelief(q)
 	s.sc.Efforts(s.eff, p)
+	for k := range s.eff {
+		s.eff[k] = s.c.A - s.c.B*s.eff[k]
+	}
+	return s.utilityOf(q, s.eff)
+}
+
+func (s *Solver) utilityOf(q, pays []float64) float64 {
 	var eu float64
 	for k, qk := range q {
 		if qk != 0 {
-			v, _ := s.u.normalised(s.wealth+s.c.A-s.c.B*s.eff[k], s.ref)
+			v, _ := s.u.normalised(s.wealth+pays[k], s.ref)
 			eu += qk * v
 		}
 	}
 	return eu
 }
 
-// BestOf returns the index of the report in menu with the largest expected
-// utility for belief q: what a forecaster restricted to a menu picks.
-func (s *Solver) BestOf(q []float64, menu [][]float64) int {
+// BestOf returns the index of the row of pays (pays[i][k]: what menu item
+// i pays when outcome k happens, e.g. a rounded table) with the largest
+// expected utility for belief q: what a forecaster held to the menu picks.
+func (s *Solver) BestOf(q []float64, pays [][]float64) int {
+	if len(q) != s.n {
+		panic(fmt.Sprintf("risk: belief has %d entries for %d outcomes", len(q), s.n))
+	}
+	s.setBelief(q)
 	best, at := math.Inf(-1), -1
-	for i, p := range menu {
-		if u := s.Utility(q, p); u > best {
+	for i, row := range pays {
+		if len(row) != s.n {
+			panic(fmt.Sprintf("risk: pay row %d has %d entries for %d outcomes", i, len(row), s.n))
+		}
+		if u := s.utilityOf(q, row); u > best {
 			best, at = u, i
 		}
 	}

@@ -186,15 +186,27 @@ func TestBestOfMenu(t *testing.T) {
 	}
 	menu = menu[1:20] // the log rule is infinite at 0 and 1
 	q := []float64{0.8, 0.2}
+	payRows := func(c Contract) [][]float64 {
+		sc := rule(t, logGen, 2).NewScorer()
+		rows := make([][]float64, len(menu))
+		for i, p := range menu {
+			rows[i] = make([]float64, 2)
+			sc.Efforts(rows[i], p)
+			for k := range rows[i] {
+				rows[i][k] = c.A - c.B*rows[i][k]
+			}
+		}
+		return rows
+	}
 	// Risk-neutral: the belief itself is on the menu and is best (proper rule).
 	lin, _ := NewSolver(rule(t, logGen, 2), Contract{A: 10, B: 1}, Utility{Kind: Linear}, 0)
-	if i := lin.BestOf(q, menu); menu[i][0] != 0.8 {
+	if i := lin.BestOf(q, payRows(Contract{A: 10, B: 1})); menu[i][0] != 0.8 {
 		t.Errorf("linear: menu pick %v", menu[i])
 	}
 	// CARA a·B = 1: the continuous best is 2/3 (TestCARALogRule); the menu
 	// pick is a neighbour of it.
 	cara, _ := NewSolver(rule(t, logGen, 2), Contract{A: 10, B: 1}, Utility{Kind: CARA, Coef: 1}, 0)
-	if i := cara.BestOf(q, menu); math.Abs(menu[i][0]-2.0/3) > 0.05 {
+	if i := cara.BestOf(q, payRows(Contract{A: 10, B: 1})); math.Abs(menu[i][0]-2.0/3) > 0.05 {
 		t.Errorf("CARA: menu pick %v, want a neighbour of 2/3", menu[i])
 	}
 }
