@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"scorewright/generator/bregman"
+	"scorewright/generator/emphasis"
 )
 
 func rule(t *testing.T, src string, n int) *bregman.Rule {
@@ -208,5 +209,28 @@ func TestBestOfMenu(t *testing.T) {
 	cara, _ := NewSolver(rule(t, logGen, 2), Contract{A: 10, B: 1}, Utility{Kind: CARA, Coef: 1}, 0)
 	if i := cara.BestOf(q, payRows(Contract{A: 10, B: 1})); math.Abs(menu[i][0]-2.0/3) > 0.05 {
 		t.Errorf("CARA: menu pick %v, want a neighbour of 2/3", menu[i])
+	}
+}
+
+// An emphasis-designed log rule (w = 1/(c(1-c)), Schervish 1989) gives the
+// same CARA report as the log generator: odds shrink by the power
+// 1/(1 + aB) (derived by hand in TestCARALogRule). This runs the solver
+// through the emphasis generator's homogeneous Hessian.
+func TestCARAEmphasisLogRule(t *testing.T) {
+	g, err := emphasis.New("1/(c*(1-c))", emphasis.Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	s, err := NewSolver(&bregman.Rule{Gen: g}, Contract{A: 10, B: 2, ReportFloor: 0.001}, Utility{Kind: CARA, Coef: 0.25}, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	r, err := s.Best([]float64{0.9, 0.1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	odds := math.Pow(9, 1/(1+0.25*2))
+	if want := odds / (1 + odds); math.Abs(r.Report[0]-want) > 1e-7 {
+		t.Errorf("report %v, want %v (status %s)", r.Report, want, r.Status)
 	}
 }
