@@ -22,13 +22,14 @@ import (
 	"scorewright/generator/table"
 )
 
-const tableUsage = "RULE BUDGET [--menu FILE] [--clamp P] [--format csv|md|json|tex|svg|png|pdf] [--out FILE] [--force] [--json]\n\nRULE: " + ruleUsage + "\nBUDGET: " + budgetUsage
+const tableUsage = "RULE BUDGET [--menu FILE] [--clamp P] [--format csv|md|json|tex|svg|png|pdf] [--out FILE] [--force] [--lottery] [--json]\n\nRULE: " + ruleUsage + "\nBUDGET: " + budgetUsage
 
 // tableFlags are the options of the table command beyond RULE and BUDGET.
 type tableFlags struct {
 	format, out, menu string
 	clamp             float64
 	force, json       bool
+	lottery           bool
 }
 
 func addTableFlags(fs *flag.FlagSet) *tableFlags {
@@ -37,6 +38,7 @@ func addTableFlags(fs *flag.FlagSet) *tableFlags {
 	fs.StringVar(&t.out, "out", "", "write the table to FILE, atomically (figures need it)")
 	fs.BoolVar(&t.force, "force", false, "replace an existing --out file, and export a table that failed the re-check (it then carries a warning)")
 	fs.BoolVar(&t.json, "json", false, "print the fit and re-check summary as JSON (the table itself goes to --out)")
+	fs.BoolVar(&t.lottery, "lottery", false, "pay a chance of winning a fixed prize, (pay - floor)/(cap - floor), instead of money")
 	fs.StringVar(&t.menu, "menu", "", "read the report menu from a CSV file: one report per line, n probabilities (n = 2: one number), '#' comments")
 	fs.Float64Var(&t.clamp, "clamp", 0, "pay every report as if each probability were at least P (rescaled to sum 1); for rules infinite at 0")
 	return t
@@ -88,6 +90,9 @@ func runTable(e *env, args []string) error {
 	if err := bf.apply(fs, d); err != nil {
 		return err
 	}
+	if d.Mode == design.ModePoint {
+		return runTablePoint(e, d, format, tf)
+	}
 	rule, err := categoricalRule(d)
 	if err != nil {
 		return err
@@ -108,6 +113,11 @@ func runTable(e *env, args []string) error {
 		Title: d.Title, Formula: d.Formula, Preset: d.Preset, Params: d.Params,
 		Version: version, Date: exportDate(),
 	})
+	if tf.lottery {
+		if err := lotteryTable(tb, fit); err != nil {
+			return err
+		}
+	}
 	sum := newTableSummary(fit, rc, format, tf.out)
 	refused := !rc.Passed && !tf.force
 
