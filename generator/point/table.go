@@ -76,7 +76,7 @@ func (g *Generator) BuildTable(ctx context.Context, spec TableSpec) (*Table, err
 	if cols < 2 || cols > 1000 {
 		return nil, fmt.Errorf("point: %d outcome columns; need 2..1000", cols)
 	}
-	t := &Table{Reports: make([]float64, rows), Outcomes: make([]float64, cols), Kind: string(table.KindMoney), Cautions: append([]string(nil), table.Caution...)}
+	t := &Table{Reports: make([]float64, rows), Outcomes: make([]float64, cols), Kind: string(table.KindMoney), Cautions: table.Caution()}
 	for i := range t.Reports {
 		t.Reports[i] = math.Min(g.Lo+float64(i)*step, g.Hi)
 	}
