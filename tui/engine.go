@@ -133,7 +133,7 @@ func budgetFitter(ctx context.Context, d *design.Design) (*TableView, error) {
 // tableExporter writes the fitted table with generator/table.
 type tableExporter struct{ version string }
 
-func (tableExporter) Formats() []string { return append([]string(nil), table.Formats...) }
+func (tableExporter) Formats() []string { return table.Formats() }
 
 func (te tableExporter) Export(ctx context.Context, d *design.Design, format, path string, overwrite bool) ([]string, error) {
 	fit, rc, err := fitDesign(ctx, d)
