@@ -40,13 +40,18 @@ const (
 	editPreset
 )
 
-// modes lists the modes this build can compute, in the order ←/→ cycle.
-var modes = []design.Mode{design.ModeGenerator, design.ModePayout}
+// modes lists the modes the workbench computes, in the order ←/→ cycle;
+// emphasis is skipped unless there are 2 outcomes.
+var modes = []design.Mode{design.ModeGenerator, design.ModePayout, design.ModeEmphasis}
 
 // samplePayout is the formula offered the first time a design switches to
 // payout mode: a scaled quadratic payment, to be replaced by the payout
 // under audit.
 const samplePayout = "# pay(p, y): the payment when outcome y happens\n10 - 5*sum((p - hit)^2)"
+
+// sampleEmphasis is the weight offered the first time a design switches
+// to emphasis mode: the beta family, a = b = 1 the quadratic rule.
+const sampleEmphasis = "# w(c): where the rule puts its incentive\na = 1\nb = 1\nc^(a-1) * (1-c)^(b-1)"
 
 // DesignPane edits the design: outcomes, order, mode, formula, parameters
 // and preset.
@@ -62,6 +67,7 @@ type DesignPane struct {
 	pick     int
 	params   []formula.ParamValue
 	err      error  // the compile error of the current design
+	warnings []string
 	note     string // a one-line remark on the last action
 	byMode   map[design.Mode]string
 	compiles bool
@@ -127,7 +133,7 @@ func (p DesignPane) KeyHelp() []key.Binding {
 
 // setCompiled takes the result of compiling the current design.
 func (p *DesignPane) setCompiled(c *compiled) {
-	p.err = c.err
+	p.err, p.warnings = c.err, c.warnings
 	p.compiles = c.err == nil
 	if c.err == nil {
 		p.params = c.params
@@ -312,16 +318,26 @@ func (p *DesignPane) cycleMode(d *design.Design, up bool) {
 			i = j
 		}
 	}
-	if up {
-		i = (i + 1) % len(modes)
-	} else {
-		i = (i + len(modes) - 1) % len(modes)
+	for {
+		if up {
+			i = (i + 1) % len(modes)
+		} else {
+			i = (i + len(modes) - 1) % len(modes)
+		}
+		if modes[i] != design.ModeEmphasis || d.N() == 2 {
+			break
+		}
 	}
 	p.byMode[d.Mode] = d.Formula
 	d.Mode = modes[i]
 	f, ok := p.byMode[d.Mode]
-	if !ok && d.Mode == design.ModePayout {
-		f = samplePayout
+	if !ok {
+		switch d.Mode {
+		case design.ModePayout:
+			f = samplePayout
+		case design.ModeEmphasis:
+			f = sampleEmphasis
+		}
 	}
 	if f != "" {
 		d.Formula = f
@@ -371,8 +387,8 @@ func (p DesignPane) updatePicker(km tea.KeyMsg, d *design.Design) (DesignPane, t
 // presetUnavailable says why preset ps cannot be used for d, or "".
 func presetUnavailable(ps presets.Preset, d *design.Design) string {
 	switch {
-	case ps.Kind != presets.KindGenerator:
-		return string(ps.Kind) + " designs cannot be computed by this build yet"
+	case ps.Kind == presets.KindPoint:
+		return "point forecasts: use the command line"
 	case ps.BinaryOnly && d.N() != 2:
 		return "for 2 outcomes only"
 	}
@@ -513,6 +529,8 @@ func modeLine(m design.Mode) string {
 		return "generator (concave H; ←/→)"
 	case design.ModePayout:
 		return "payout audit (pay(p, y); ←/→)"
+	case design.ModeEmphasis:
+		return "emphasis weight w(c) (←/→)"
 	}
 	return string(m) + " (not computed by this build)"
 }
@@ -522,7 +540,11 @@ func modeLine(m design.Mode) string {
 func (p DesignPane) errorLines(iw int) []string {
 	if p.err == nil {
 		if p.compiles {
-			return []string{p.st.Pass.Render("  ✓ compiles")}
+			out := []string{p.st.Pass.Render("  ✓ compiles")}
+			for _, w := range p.warnings {
+				out = append(out, strings.Split(p.st.Dim.Width(max(10, iw-2)).PaddingLeft(2).Render("! "+w), "\n")...)
+			}
+			return out
 		}
 		return []string{""}
 	}

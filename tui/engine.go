@@ -39,8 +39,8 @@ func workers(s Settings) int {
 func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress func(done, total int64)) (*CheckReport, error) {
 	vs := verify.Settings{Resolution: s.Resolution, Tolerance: s.Tolerance, Workers: workers(s), Progress: progress}
 	switch d.Mode {
-	case design.ModeGenerator:
-		r, err := d.Rule()
+	case design.ModeGenerator, design.ModeEmphasis:
+		r, _, _, err := designRule(d)
 		if err != nil {
 			return nil, err
 		}
@@ -83,13 +83,13 @@ func fromVerify(r *verify.Report) *CheckReport {
 // fitDesign fits a generator design to its budget on its step menu and
 // re-checks the menu.
 func fitDesign(ctx context.Context, d *design.Design) (*budget.Fit, *budget.Recheck, error) {
-	if d.Mode != design.ModeGenerator {
-		return nil, nil, fmt.Errorf("the budget fit works on generator designs; this one is in %s mode", d.Mode)
+	if d.Mode != design.ModeGenerator && d.Mode != design.ModeEmphasis {
+		return nil, nil, fmt.Errorf("the budget fit works on generator and emphasis designs; this one is in %s mode", d.Mode)
 	}
 	if d.Budget.Step <= 0 {
 		return nil, nil, errors.New("set a report menu step (Step) to see the payment table")
 	}
-	r, err := d.Rule()
+	r, _, _, err := designRule(d)
 	if err != nil {
 		return nil, nil, err
 	}

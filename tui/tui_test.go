@@ -342,3 +342,34 @@ func TestResizeKeepsWorking(t *testing.T) {
 		t.Fatal("picture lost after resizing")
 	}
 }
+
+// Emphasis mode: the beta weight with a = b = 1 is the quadratic rule up
+// to scale (Buja, Stuetzle & Shen 2005), so the workbench draws it, the
+// checks pass and the budget fits.
+func TestEmphasisMode(t *testing.T) {
+	m := testModel(t, nil, Settings{})
+	start(t, m, 120, 40)
+	press(t, m, keyDown, keyDown, keyRight, keyRight) // generator → payout → emphasis
+	d := m.Design()
+	if d.Mode != design.ModeEmphasis || !strings.Contains(d.Formula, "c^(a-1)") {
+		t.Fatalf("mode %s formula %q", d.Mode, d.Formula)
+	}
+	v := m.View()
+	for _, want := range []string{"emphasis weight w(c)", "✓ compiles", "Verdict strictly-proper", "menu re-check passed"} {
+		if !strings.Contains(v, want) {
+			t.Errorf("view lacks %q:\n%s", want, v)
+		}
+	}
+	// Half squared error (Buja et al. 2005, a = b = 1): at report 0.3 the
+	// efforts are (1-0.3)^2/2 = 0.245 and 0.3^2/2 = 0.045.
+	eff := make([]float64, 2)
+	m.comp.newSampler().scores(eff, []float64{0.3, 0.7})
+	if math.Abs(eff[0]-0.245) > 1e-9 || math.Abs(eff[1]-0.045) > 1e-9 {
+		t.Errorf("efforts at 0.3: %v, want 0.245, 0.045", eff)
+	}
+	// With three outcomes the emphasis mode is skipped.
+	press(t, m, keyLeft, keyLeft, keyUp, keyUp, runes("+"), keyDown, keyDown, keyRight, keyRight)
+	if got := m.Design().Mode; got == design.ModeEmphasis {
+		t.Fatal("emphasis offered for 3 outcomes")
+	}
+}
