@@ -13,7 +13,7 @@ import (
 // Bregman rule in generator mode, one payout program per outcome in
 // payout mode.
 type compiled struct {
-	d      *design.Design // a private copy
+	d        *design.Design // a private copy
 	rule     *bregman.Rule
 	payout   []*formula.Program
 	params   []formula.ParamValue

@@ -66,7 +66,7 @@ type DesignPane struct {
 	ti       textinput.Model
 	pick     int
 	params   []formula.ParamValue
-	err      error  // the compile error of the current design
+	err      error // the compile error of the current design
 	warnings []string
 	note     string // a one-line remark on the last action
 	byMode   map[design.Mode]string
