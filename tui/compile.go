@@ -7,6 +7,7 @@ import (
 	"scorewright/generator/design"
 	"scorewright/generator/emphasis"
 	"scorewright/generator/formula"
+	gpoint "scorewright/generator/point"
 )
 
 // compiled is a design turned into something that can be evaluated: a
@@ -15,6 +16,7 @@ import (
 type compiled struct {
 	d        *design.Design // a private copy
 	rule     *bregman.Rule
+	point    *gpoint.Generator
 	payout   []*formula.Program
 	params   []formula.ParamValue
 	warnings []string
@@ -57,6 +59,17 @@ func compileDesign(d *design.Design) *compiled {
 	switch d.Mode {
 	case design.ModeGenerator, design.ModeEmphasis, "":
 		c.rule, c.params, c.warnings, c.err = designRule(d)
+	case design.ModePoint:
+		if len(d.Interval) != 2 || !(d.Interval[0] < d.Interval[1]) {
+			c.err = fmt.Errorf("a point-forecast design needs an interval lo < hi (Interval row)")
+			return c
+		}
+		g, err := gpoint.New(d.Formula, d.Interval[0], d.Interval[1], gpoint.Options{Params: d.Params})
+		if err != nil {
+			c.err = err
+			return c
+		}
+		c.point, c.params = g, g.Program().Params()
 	case design.ModePayout:
 		for y := 1; y <= d.N(); y++ {
 			prog, err := formula.CompileString(d.Formula, formula.Scope{
@@ -70,7 +83,7 @@ func compileDesign(d *design.Design) *compiled {
 		}
 		c.params = c.payout[0].Params()
 	default:
-		c.err = fmt.Errorf("the workbench does not compute %s designs yet; use the command line, or switch the mode", d.Mode)
+		c.err = fmt.Errorf("mode %q is not one the workbench knows", d.Mode)
 	}
 	return c
 }
@@ -94,6 +107,9 @@ type sampler struct {
 }
 
 func (c *compiled) newSampler() *sampler {
+	if c.point != nil {
+		return nil // point designs are drawn by renderPoint
+	}
 	n := c.d.N()
 	s := &sampler{n: n, reward: c.reward(), a: make([]float64, n), b: make([]float64, n)}
 	if c.rule != nil {

@@ -3,8 +3,10 @@ package tui
 import (
 	"bytes"
 	"context"
+	"encoding/json"
 	"errors"
 	"fmt"
+	"io"
 	"path/filepath"
 	"runtime"
 	"time"
@@ -13,9 +15,11 @@ import (
 	"scorewright/generator/design"
 	"scorewright/generator/num"
 	"scorewright/generator/payout"
+	gpoint "scorewright/generator/point"
 	"scorewright/generator/safefile"
 	"scorewright/generator/table"
 	"scorewright/verify"
+	vpoint "scorewright/verify/point"
 )
 
 // The engine parts the workbench plugs in by default: the checks of
@@ -49,6 +53,28 @@ func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress f
 			return nil, err
 		}
 		return fromVerify(rep), nil
+	case design.ModePoint:
+		c := compileDesign(d)
+		if c.err != nil {
+			return nil, c.err
+		}
+		ps := vpoint.Settings{Resolution: s.Resolution, Tolerance: s.Tolerance}
+		if progress != nil {
+			ps.Progress = func(done, total int) { progress(int64(done), int64(total)) }
+		}
+		rep, err := vpoint.CheckGenerator(ctx, c.point, ps)
+		if err != nil {
+			return nil, err
+		}
+		out := &CheckReport{Verdict: rep.Verdict, Resolution: rep.Grid.Resolution, Points: int64(rep.Grid.Points), Tolerance: rep.Grid.Tolerance, Notes: rep.Notes}
+		for _, ck := range rep.Checks {
+			row := CheckRow{Name: ck.Name, Passed: ck.Passed, Worst: ck.Worst, Note: ck.What}
+			if ck.At != nil {
+				row.Report = ck.At.Report
+			}
+			out.Rows = append(out.Rows, row)
+		}
+		return out, nil
 	case design.ModePayout:
 		p, err := payout.New(d.Formula, payout.Options{Outcomes: d.N(), Ordered: d.Ordered, Weights: d.Weights, Params: d.Params})
 		if err != nil {
@@ -108,8 +134,47 @@ func fitDesign(ctx context.Context, d *design.Design) (*budget.Fit, *budget.Rech
 	return fit, rc, nil
 }
 
+// pointTable builds the payment table of a point-forecast design.
+func pointTable(ctx context.Context, d *design.Design) (*gpoint.Table, error) {
+	c := compileDesign(d)
+	if c.err != nil {
+		return nil, c.err
+	}
+	b := d.Budget
+	if b.MeanPay != nil {
+		return nil, errors.New("point-forecast tables are fitted to a floor and a cap, not a mean pay")
+	}
+	if !(b.Cap > b.Floor) {
+		return nil, errors.New("set a cap above the floor to see the payment table")
+	}
+	t, err := c.point.BuildTable(ctx, gpoint.TableSpec{Floor: b.Floor, Cap: b.Cap, Step: b.Step, Unit: b.Unit, Rounding: b.Rounding})
+	if errors.Is(err, gpoint.ErrUnbounded) {
+		return nil, fmt.Errorf("%v; narrow the interval so the effort stays finite", err)
+	}
+	return t, err
+}
+
 // budgetFitter is the default Fitter.
 func budgetFitter(ctx context.Context, d *design.Design) (*TableView, error) {
+	if d.Mode == design.ModePoint {
+		t, err := pointTable(ctx, d)
+		if err != nil {
+			return nil, err
+		}
+		tv := &TableView{NoRecheck: "point tables: no menu re-check (that is for rules over outcomes)", Notes: t.Notes}
+		tv.Header = []string{"report \\ outcome"}
+		for _, y := range t.Outcomes {
+			tv.Header = append(tv.Header, table.FormatNumber(y))
+		}
+		for i, x := range t.Reports {
+			row := []string{table.FormatNumber(x)}
+			for _, v := range t.Pay[i] {
+				row = append(row, table.FormatNumber(v))
+			}
+			tv.Rows = append(tv.Rows, row)
+		}
+		return tv, nil
+	}
 	fit, rc, err := fitDesign(ctx, d)
 	if err != nil {
 		return nil, err
@@ -133,9 +198,17 @@ func budgetFitter(ctx context.Context, d *design.Design) (*TableView, error) {
 // tableExporter writes the fitted table with generator/table.
 type tableExporter struct{ version string }
 
-func (tableExporter) Formats() []string { return table.Formats() }
+func (tableExporter) Formats(d *design.Design) []string {
+	if d.Mode == design.ModePoint {
+		return []string{"csv", "md", "json"}
+	}
+	return table.Formats()
+}
 
 func (te tableExporter) Export(ctx context.Context, d *design.Design, format, path string, overwrite bool) ([]string, error) {
+	if d.Mode == design.ModePoint {
+		return exportPoint(ctx, d, format, path, overwrite)
+	}
 	fit, rc, err := fitDesign(ctx, d)
 	if err != nil {
 		return nil, err
@@ -149,7 +222,36 @@ func (te tableExporter) Export(ctx context.Context, d *design.Design, format, pa
 	if err := tb.Write(&buf, format); err != nil {
 		return nil, err
 	}
-	if err := safefile.Write(path, buf.Bytes(), overwrite); err != nil {
+	return writeExport(path, buf.Bytes(), overwrite)
+}
+
+func exportPoint(ctx context.Context, d *design.Design, format, path string, overwrite bool) ([]string, error) {
+	t, err := pointTable(ctx, d)
+	if err != nil {
+		return nil, err
+	}
+	write, ok := map[string]func(io.Writer) error{
+		"csv": t.WriteCSV,
+		"md":  t.WriteMarkdown,
+		"json": func(w io.Writer) error {
+			enc := json.NewEncoder(w)
+			enc.SetIndent("", "  ")
+			return enc.Encode(t)
+		},
+	}[format]
+	if !ok {
+		return nil, fmt.Errorf("point-forecast tables are written as csv, md or json, not %s", format)
+	}
+	var buf bytes.Buffer
+	if err := write(&buf); err != nil {
+		return nil, err
+	}
+	return writeExport(path, buf.Bytes(), overwrite)
+}
+
+// writeExport writes an export atomically and returns its absolute path.
+func writeExport(path string, data []byte, overwrite bool) ([]string, error) {
+	if err := safefile.Write(path, data, overwrite); err != nil {
 		return nil, err
 	}
 	if abs, err := filepath.Abs(path); err == nil {

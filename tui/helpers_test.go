@@ -141,3 +141,5 @@ func (f *fakeChecker) check(ctx context.Context, d *design.Design, s Settings, p
 func tea_ctrlO() tea.KeyMsg { return tea.KeyMsg{Type: tea.KeyCtrlO} }
 
 func sizeMsg(w, h int) tea.WindowSizeMsg { return tea.WindowSizeMsg{Width: w, Height: h} }
+
+func tea_ctrlX() tea.KeyMsg { return tea.KeyMsg{Type: tea.KeyCtrlX} }

@@ -373,3 +373,95 @@ func TestEmphasisMode(t *testing.T) {
 		t.Fatal("emphasis offered for 3 outcomes")
 	}
 }
+
+// Point mode: squared error on [0, 100] (Savage 1971; Gneiting 2011):
+// the effort of report x when y happens is (y - x)^2, the checks pass and
+// the budget pane shows the point table.
+func TestPointMode(t *testing.T) {
+	m := testModel(t, nil, Settings{})
+	start(t, m, 120, 40)
+	press(t, m, keyDown, keyDown, keyRight, keyRight, keyRight) // → point
+	d := m.Design()
+	if d.Mode != design.ModePoint || d.Formula != samplePoint || len(d.Interval) != 2 {
+		t.Fatalf("mode %s formula %q interval %v", d.Mode, d.Formula, d.Interval)
+	}
+	v := m.View()
+	for _, want := range []string{"Interval", "[0, 100]", "effort by report", "Verdict strictly-proper", "report \\ outcome"} {
+		if !strings.Contains(v, want) {
+			t.Errorf("view lacks %q:\n%s", want, v)
+		}
+	}
+	// D(y, x) = (y - x)^2 for phi = -x^2 (derived by hand: phi(x) - 2x(y - x) + y^2).
+	ev := m.comp.point.NewEvaluator()
+	if got := ev.Divergence(75, 30); math.Abs(got-2025) > 1e-9 {
+		t.Errorf("D(75, 30) = %v, want 2025", got)
+	}
+	// Edit the interval.
+	press(t, m, keyUp, keyUp, keyEnter)
+	for i := 0; i < 10; i++ {
+		press(t, m, keyBack)
+	}
+	press(t, m, runes("10, 20"), keyEnter)
+	if iv := m.Design().Interval; iv[0] != 10 || iv[1] != 20 {
+		t.Fatalf("interval %v", iv)
+	}
+	golden.RequireEqual(t, []byte(m.View()))
+	// Back to outcomes: the probability step comes back.
+	press(t, m, keyDown, keyDown, keyRight)
+	if d := m.Design(); d.Mode != design.ModeGenerator || d.Budget.Step != 0.05 {
+		t.Fatalf("back to generator: mode %s step %v", d.Mode, d.Budget.Step)
+	}
+}
+
+// The export dialog: tab changes the format and the file's extension;
+// an existing file is replaced only after y; the status says where.
+func TestExportDialog(t *testing.T) {
+	dir := t.TempDir()
+	m := testModel(t, nil, Settings{Dir: dir, Version: "test"})
+	start(t, m, 80, 24)
+	press(t, m, tea_ctrlX(), keyTab) // csv → md
+	if m.dialog == nil || m.dialog.Format() != "md" || !strings.HasSuffix(m.dialog.Path(), ".md") {
+		t.Fatalf("format change: %+v", m.dialog.Path())
+	}
+	press(t, m, keyEnter)
+	path := filepath.Join(dir, "orchard-co-operative-frost-night-forecasts.md")
+	b, err := os.ReadFile(path)
+	if err != nil || !strings.Contains(string(b), "| ") {
+		t.Fatalf("markdown export: %v\n%s", err, b)
+	}
+	if !strings.Contains(m.Status(), path) {
+		t.Fatalf("status %q does not say where", m.Status())
+	}
+	press(t, m, tea_ctrlX(), keyTab, keyEnter)
+	if m.dialog == nil || !m.dialog.confirm {
+		t.Fatal("no question before replacing an export")
+	}
+	press(t, m, runes("y"))
+	if m.dialog != nil {
+		t.Fatalf("dialog still open: %s", m.dialog.msg)
+	}
+}
+
+// A point design exports its own table.
+func TestPointExport(t *testing.T) {
+	dir := t.TempDir()
+	d := &design.Design{Version: 1, Title: "milk yield", Mode: design.ModePoint, Formula: "-x^2", Interval: []float64{0, 40},
+		Budget: design.Budget{Floor: 0, Cap: 20, Step: 10}}
+	ex := defaultExporter("test")
+	if got := ex.Formats(d); strings.Join(got, ",") != "csv,md,json" {
+		t.Fatalf("formats %v", got)
+	}
+	path := filepath.Join(dir, "milk.csv")
+	files, err := ex.Export(t.Context(), d, "csv", path, false)
+	if err != nil || len(files) != 1 {
+		t.Fatalf("export: %v %v", files, err)
+	}
+	b, _ := os.ReadFile(path)
+	// Five reports 0, 10, ..., 40; a perfect forecast is paid the cap.
+	if !strings.Contains(string(b), "20") || strings.Count(string(b), "\n") < 5 {
+		t.Fatalf("csv:\n%s", b)
+	}
+	if _, err := ex.Export(t.Context(), d, "csv", path, false); err == nil {
+		t.Fatal("an existing file was replaced without being asked")
+	}
+}
