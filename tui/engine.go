@@ -18,6 +18,7 @@ import (
 	gpoint "scorewright/generator/point"
 	"scorewright/generator/safefile"
 	"scorewright/generator/table"
+	"scorewright/presets"
 	"scorewright/verify"
 	vpoint "scorewright/verify/point"
 )
@@ -80,11 +81,14 @@ func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress f
 		if err != nil {
 			return nil, err
 		}
-		rep, err := verify.Audit(ctx, p, nil, vs)
+		rep, err := verify.Audit(ctx, p, auditCandidates(d), vs)
 		if err != nil {
 			return nil, err
 		}
 		out := fromVerify(&rep.Report)
+		if id := rep.Identified; id != nil {
+			out.Notes = append(out.Notes, fmt.Sprintf("identified: pay = %.6g - %.6g × effort of the %s preset", id.Shift, id.Scale, id.Preset))
+		}
 		if rep.Gap.Max > 0 {
 			out.Notes = append(out.Notes, fmt.Sprintf("largest honesty gap %.4g at belief %s: best report %s",
 				rep.Gap.Max, num.Format(rep.Gap.Belief), num.Format(rep.Gap.BestReport)))
@@ -258,4 +262,24 @@ func writeExport(path string, data []byte, overwrite bool) ([]string, error) {
 		path = abs
 	}
 	return []string{path}, nil
+}
+
+// auditCandidates are the generator presets an audited payout is compared
+// with, each built as the design would build it.
+func auditCandidates(d *design.Design) []verify.Candidate {
+	var out []verify.Candidate
+	for _, ps := range presets.All() {
+		if ps.Kind != presets.KindGenerator || ps.Ordered && !d.Ordered || ps.Weighted && d.Weights == nil {
+			continue
+		}
+		c := cloneDesign(d)
+		c.Mode, c.Preset, c.Params = design.ModeGenerator, ps.Name, nil
+		if presets.Apply(c) != nil {
+			continue
+		}
+		if r, _, _, err := designRule(c); err == nil {
+			out = append(out, verify.Candidate{Name: ps.Name, Rule: r})
+		}
+	}
+	return out
 }

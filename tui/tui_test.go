@@ -465,3 +465,32 @@ func TestPointExport(t *testing.T) {
 		t.Fatal("an existing file was replaced without being asked")
 	}
 }
+
+// Payout audit: the sample payout 10 - 5 sum (p - hit)^2 is the quadratic
+// rule scaled by 5 and shifted by 10 (its effort is the Brier sum, Brier
+// 1950), so the audit passes and names it; the linear rule p[y] is
+// improper (common practice).
+func TestPayoutAudit(t *testing.T) {
+	m := testModel(t, nil, Settings{})
+	start(t, m, 120, 40)
+	press(t, m, keyDown, keyDown, keyRight)
+	r := m.CheckReport()
+	if r == nil || r.Verdict == "improper" {
+		t.Fatalf("sample payout: %+v", r)
+	}
+	if !strings.Contains(strings.Join(r.Notes, "\n"), "quadratic") {
+		t.Errorf("not identified as the quadratic rule: %q", r.Notes)
+	}
+	press(t, m, keyDown, keyEnter)
+	for i := 0; i < 80; i++ {
+		press(t, m, keyBack)
+	}
+	press(t, m, runes("p[y]"), keyEsc)
+	r = m.CheckReport()
+	if r == nil || r.Verdict != "improper" {
+		t.Fatalf("linear payout verdict: %+v", r)
+	}
+	if !strings.Contains(m.View(), "✗ properness") {
+		t.Errorf("the failing check is not shown:\n%s", m.View())
+	}
+}
