@@ -70,7 +70,8 @@ func NewBudgetPane(st Styles, keys KeyMap, available bool) BudgetPane {
 func (p *BudgetPane) SetSize(w, h int) {
 	p.w, p.h = w, h
 	p.vp.Width = max(4, w-2)
-	p.vp.Height = max(1, h-2-len(budgetFields)-3)
+	p.vp.Height = max(1, h-2-len(budgetFields)-1)
+	p.vp.SetContent(p.tableText())
 	p.ti.Width = max(6, w-20)
 }
 
@@ -230,6 +231,14 @@ func (p BudgetPane) tableText() string {
 	for _, r := range t.Rows {
 		lines = append(lines, row(r))
 	}
+	// The notes follow the table in the same scroll, so the table gets the
+	// room first.
+	if len(t.Notes) > 0 {
+		lines = append(lines, "")
+		for _, n := range t.Notes {
+			lines = append(lines, strings.Split(p.st.Dim.Width(max(10, p.vp.Width)).Render(n), "\n")...)
+		}
+	}
 	return strings.Join(lines, "\n")
 }
 
@@ -269,10 +278,7 @@ func (p BudgetPane) View(d *design.Design) string {
 		if p.stale {
 			v += st.Dim.Render(" (previous design)")
 		}
-		lines = append(lines, v)
-		for _, n := range t.Notes {
-			lines = append(lines, st.Dim.Render(n))
-		}
+		lines = append(lines, v+st.Dim.Render("  pgup/pgdn: table and notes"))
 		vp := p.vp
 		vp.Height = max(1, p.h-2-len(lines))
 		lines = append(lines, vp.View())

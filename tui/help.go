@@ -19,7 +19,7 @@ func helpText(st Styles, km KeyMap, width int) string {
 		if len(b) == 2 {
 			desc = b[0].Help().Desc + " / " + strings.TrimPrefix(strings.TrimPrefix(b[1].Help().Desc, "step the item "), "small step ")
 		}
-		return st.Key.Render(fmt.Sprintf("%-12s", strings.Join(ks, " "))) + " " + desc
+		return st.Key.Render(fmt.Sprintf("%-16s", strings.Join(ks, " "))) + " " + desc
 	}
 	section := func(title string, rows ...string) string {
 		return st.Header.Render(title) + "\n" + strings.Join(rows, "\n")

@@ -312,7 +312,8 @@ func (m *Model) key(km tea.KeyMsg) tea.Cmd {
 			step = int(paneCount) - 1
 		}
 		m.setFocus((m.focus + pane(step)) % paneCount)
-		return nil
+		m.layout()
+		return m.requestPicture()
 	case key.Matches(km, k.Save):
 		m.openDialog(dialogSave)
 		return nil
@@ -599,6 +600,9 @@ func (m *Model) layout() {
 	lw := m.width / 2
 	rw := m.width - lw
 	top := bh * 55 / 100
+	if m.focus == paneChecks || m.focus == paneBudget {
+		top = bh * 40 / 100 // the focused lower pane gets the room
+	}
 	m.designPane.SetSize(lw, bh)
 	m.picture.SetSize(rw, top)
 	m.checks.SetSize(rw, bh-top)
