@@ -56,7 +56,10 @@ key "?"
 wait_for "Anywhere"
 key Escape
 
-# The harvest demo draws a ternary picture.
+# The harvest demo draws a ternary picture; the edits above are unsaved,
+# so the first ctrl+n asks and the second switches.
+key C-n
+wait_for "ctrl+n again discards them"
 key C-n
 wait_for "harvest outlook"
 wait_for "gap by belief"
@@ -76,6 +79,9 @@ wait_for "at least 80×24"
 t resize-window -t "$session" -x 100 -y 30
 wait_for "Picture"
 
+# Unsaved changes: the first q asks, the second quits.
+key q
+wait_for "unsaved changes"
 key q
 wait_for "EXITED-0"
 echo "e2e-tui: passed"

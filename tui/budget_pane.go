@@ -257,14 +257,15 @@ func (p BudgetPane) View(d *design.Design) string {
 		}
 		lines = append(lines, m+ls.Render(fmt.Sprintf("%-6s", f.label))+" "+fmt.Sprintf("%-8s", val)+" "+st.Dim.Render(f.help))
 	}
+	iw := max(10, p.w-2)
 	if p.note != "" {
-		lines = append(lines, st.Error.Render(p.note))
+		lines = append(lines, strings.Split(st.Error.Width(iw).Render(p.note), "\n")...)
 	}
 	switch {
 	case !p.available:
 		lines = append(lines, st.Dim.Render("The payment table (package generator/budget)"), st.Dim.Render("is not part of this build yet."))
 	case p.err != nil:
-		lines = append(lines, st.Error.Render("✗ "+p.err.Error()))
+		lines = append(lines, strings.Split(st.Error.Width(iw).Render("✗ "+p.err.Error()), "\n")...)
 	case p.table != nil:
 		t := p.table
 		v := st.Pass.Render("menu re-check passed")

@@ -101,7 +101,7 @@ func (p ChecksPane) View() string {
 		lines = append(lines, st.Dim.Render("design changed; checking shortly…"))
 	}
 	if p.err != nil {
-		lines = append(lines, st.Error.Render("✗ "+p.err.Error()))
+		lines = append(lines, strings.Split(st.Error.Width(max(10, p.w-2)).Render("✗ "+p.err.Error()), "\n")...)
 	}
 	if r := p.report; r != nil {
 		verdict := r.Verdict

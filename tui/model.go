@@ -39,6 +39,7 @@ const (
 type (
 	savedMsg struct {
 		path string
+		gen  uint64 // the generation that was saved
 		err  error
 	}
 	openedMsg struct {
@@ -75,6 +76,8 @@ type Model struct {
 	cancelPic  context.CancelFunc
 	cancelFit  context.CancelFunc
 	demoIndex  int
+	savedGen   uint64 // generation last opened or saved
+	armed      string // a key pressed once that needs a second press
 	focus      pane
 	lower      pane // which of checks/budget the small layout shows
 	designPane DesignPane
@@ -110,7 +113,7 @@ func New(d *design.Design, path string, set Settings, st Styles) *Model {
 	ctx, cancel := context.WithCancel(context.Background())
 	m := &Model{
 		set: set, st: st, keys: keys, d: cloneDesign(d), path: path,
-		ctx: ctx, cancelAll: cancel, gen: 1, lower: paneChecks,
+		ctx: ctx, cancelAll: cancel, gen: 1, savedGen: 1, lower: paneChecks,
 		designPane: NewDesignPane(st, keys, d),
 		picture:    NewPicturePane(st, keys),
 		checks:     NewChecksPane(st, keys, set.Checker != nil),
@@ -216,8 +219,10 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		}
 		return m, m.requestPicture()
 	case savedMsg:
+		gen := msg.gen
 		return m, m.fileDone(msg.err, func() {
 			m.path = msg.path
+			m.savedGen = gen
 			m.status = "saved the design to " + msg.path
 		})
 	case openedMsg:
@@ -272,6 +277,9 @@ func (m *Model) key(km tea.KeyMsg) tea.Cmd {
 	if key.Matches(km, k.QuitHard) {
 		return m.quit()
 	}
+	if km.String() != m.armed {
+		m.armed = ""
+	}
 	if m.tooSmall() {
 		if key.Matches(km, k.Quit) {
 			return m.quit()
@@ -323,12 +331,19 @@ func (m *Model) key(km tea.KeyMsg) tea.Cmd {
 	case key.Matches(km, k.Export):
 		m.openDialog(dialogExport)
 		return nil
-	case key.Matches(km, k.Demo):
+	case !typing && key.Matches(km, k.Demo):
+		if !m.confirmDiscard(km, "ctrl+n again discards them") {
+			return nil
+		}
 		m.demoIndex = (m.demoIndex + 1) % len(demos())
 		m.path = ""
-		m.status = "demo design: " + demos()[m.demoIndex]().Title
-		return m.replaceDesign(demos()[m.demoIndex]())
+		cmd := m.replaceDesign(demos()[m.demoIndex]())
+		m.status = "demo design: " + m.d.Title
+		return cmd
 	case !typing && !m.designPane.Picking() && key.Matches(km, k.Quit):
+		if !m.confirmDiscard(km, "q again quits without saving") {
+			return nil
+		}
 		return m.quit()
 	}
 	return m.routeToPane(km)
@@ -384,7 +399,24 @@ func (m *Model) replaceDesign(d *design.Design) tea.Cmd {
 	m.d = cloneDesign(d)
 	m.designPane.reset(m.d)
 	m.budget.setTable(nil, nil)
-	return m.edited()
+	cmd := m.edited()
+	m.savedGen = m.gen
+	return cmd
+}
+
+// Unsaved reports whether the design changed since it was opened or saved.
+func (m *Model) Unsaved() bool { return m.gen != m.savedGen }
+
+// confirmDiscard lets a key that would lose unsaved changes act only when
+// pressed twice in a row; the first press says so on the status line.
+func (m *Model) confirmDiscard(km tea.KeyMsg, again string) bool {
+	if !m.Unsaved() || m.armed == km.String() {
+		m.armed = ""
+		return true
+	}
+	m.armed = km.String()
+	m.status = "the design has unsaved changes (ctrl+s saves); " + again
+	return false
 }
 
 func (m *Model) stopCheck() {
@@ -529,6 +561,9 @@ func (m *Model) openDialog(kind dialogKind) {
 			dir += string(filepath.Separator)
 		}
 		d := newFileDialog(m.st, m.keys, kind, dir, nil)
+		if m.Unsaved() {
+			d.msg = "the current design has unsaved changes; opening replaces it"
+		}
 		m.dialog = &d
 	case dialogExport:
 		if m.set.Exporter == nil {
@@ -548,12 +583,12 @@ func (m *Model) submitDialog() tea.Cmd {
 	if !filepath.IsAbs(path) && m.set.Dir != "" && !strings.HasPrefix(path, m.set.Dir) {
 		path = filepath.Join(m.set.Dir, path)
 	}
-	d := cloneDesign(m.d)
+	d, gen := cloneDesign(m.d), m.gen
 	switch dl.kind {
 	case dialogSave:
 		return func() tea.Msg {
 			abs, _ := filepath.Abs(path)
-			return savedMsg{path: abs, err: d.Save(path, overwrite)}
+			return savedMsg{path: abs, gen: gen, err: d.Save(path, overwrite)}
 		}
 	case dialogOpen:
 		return func() tea.Msg {

@@ -7,6 +7,7 @@ import (
 	"strings"
 	"testing"
 
+	tea "github.com/charmbracelet/bubbletea"
 	"github.com/charmbracelet/x/exp/golden"
 
 	"scorewright/generator/design"
@@ -102,8 +103,12 @@ func TestTypingNeverTriggersShortcuts(t *testing.T) {
 		t.Fatal("+ added an outcome while typing")
 	}
 	press(t, m, keyEsc, runes("q"))
+	if m.quitting || !strings.Contains(m.Status(), "unsaved changes") {
+		t.Fatalf("q quit at once with unsaved changes (status %q)", m.Status())
+	}
+	press(t, m, runes("q"))
 	if !m.quitting {
-		t.Fatal("q does not quit once typing stopped")
+		t.Fatal("a second q does not quit once typing stopped")
 	}
 }
 
@@ -492,5 +497,37 @@ func TestPayoutAudit(t *testing.T) {
 	}
 	if !strings.Contains(m.View(), "✗ properness") {
 		t.Errorf("the failing check is not shown:\n%s", m.View())
+	}
+}
+
+// Keys that would lose unsaved work act on the second press; ctrl+n is
+// the editor's own key while typing, never the demo switch.
+func TestUnsavedChangesNeedASecondPress(t *testing.T) {
+	m := testModel(t, nil, Settings{})
+	start(t, m, 80, 24)
+	press(t, m, keyCtrlN)
+	if m.Design().Title != DemoHarvest().Title {
+		t.Fatal("ctrl+n with nothing to lose did not switch demos")
+	}
+	press(t, m, runes("+")) // an edit
+	press(t, m, keyCtrlN)
+	if m.Design().N() != 4 {
+		t.Fatal("ctrl+n discarded an edit on the first press")
+	}
+	press(t, m, keyCtrlN)
+	if m.Design().Title != DemoFrost().Title {
+		t.Fatal("second ctrl+n did not switch")
+	}
+	press(t, m, keyDown, keyDown, keyDown, keyEnter, keyCtrlN)
+	if m.Design().Title != DemoFrost().Title || !m.designPane.Typing() {
+		t.Fatal("ctrl+n while typing switched the design")
+	}
+	press(t, m, tea.KeyMsg{Type: tea.KeyF1})
+	if !m.help {
+		t.Fatal("F1 does not open the help while typing")
+	}
+	press(t, m, keyEsc, keyCtrlS)
+	if m.dialog == nil || m.dialog.kind != dialogSave {
+		t.Fatal("ctrl+s does not open the save dialog while typing")
 	}
 }
