@@ -79,7 +79,9 @@ wait_for "at least 80×24"
 t resize-window -t "$session" -x 100 -y 30
 wait_for "Picture"
 
-# Unsaved changes: the first q asks, the second quits.
+# Unsaved changes (one more outcome): the first q asks, the second quits.
+key +
+wait_for "4 outcomes"
 key q
 wait_for "unsaved changes"
 key q
