@@ -420,26 +420,26 @@ func renderBinary(ctx context.Context, st Styles, c *compiled, s *sampler, spec 
 		if spec.measure == mPay && pay != nil {
 			eff[0], eff[1] = pay(eff[0]), pay(eff[1])
 		}
-		at = fmt.Sprintf("%s %s / %s", ylabel, fmtTick(eff[0]), fmtTick(eff[1]))
+		at = fmt.Sprintf("%s / %s", fmtTick(eff[0]), fmtTick(eff[1]))
 	case mGenerator:
 		v, _, _ := sc.Binary(q)
-		at = "H " + fmtTick(v)
+		at = fmtTick(v)
 	case mEmphasis:
 		_, _, v := sc.Binary(q)
-		at = "weight " + fmtTick(v)
+		at = fmtTick(v)
 	case mGap:
-		at = "gap " + fmtTick(gapOnGrid(s, scores, p))
+		at = fmtTick(gapOnGrid(s, scores, p))
 	}
 	xl := "report"
 	if spec.measure == mGap {
 		xl = "belief"
 	}
-	head := legend(st, ss)
+	head := st.Dim.Render("y: "+ylabel+"  ") + legend(st, ss)
 	if clipped {
 		head += st.Dim.Render("  (y cut)")
 	}
-	foot := fmt.Sprintf("x: %s p(%s)  ┊ %.2f: %s", xl, l[0], q, at)
-	return st.Dim.Render(head) + "\n" + chart + "\n" + foot
+	foot := fmt.Sprintf("x: %s p(%s) ┊ %.2f: %s", xl, l[0], q, at)
+	return head + "\n" + chart + "\n" + foot
 }
 
 // gridScores evaluates the scores of every report on the simplex grid of
@@ -541,7 +541,11 @@ func renderPoint(st Styles, c *compiled, spec pictureSpec) string {
 	}
 	x := lo + spec.belief[0]*(hi-lo)
 	chart, clipped := drawLines(st, spec.w, max(4, spec.h-2), lo, hi, ss, x)
-	head := legend(st, ss)
+	ylabel := "effort D(y, x)"
+	if spec.measure == mGenerator {
+		ylabel = "phi"
+	}
+	head := st.Dim.Render("y: "+ylabel+"  ") + legend(st, ss)
 	if clipped {
 		head += st.Dim.Render("  (y cut)")
 	}
