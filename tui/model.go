@@ -9,6 +9,7 @@ import (
 	"strings"
 	"time"
 
+	"github.com/charmbracelet/bubbles/help"
 	"github.com/charmbracelet/bubbles/key"
 	"github.com/charmbracelet/bubbles/viewport"
 	tea "github.com/charmbracelet/bubbletea"
@@ -708,15 +709,46 @@ func (m *Model) headerLine() string {
 	return left + mid + strings.Repeat(" ", max(1, gap)) + right
 }
 
+// footerLine is the status message, or the keys of the focused pane.
 func (m *Model) footerLine() string {
 	if m.status != "" {
 		return m.st.Dim.Render(m.status)
 	}
-	keys := "tab pane · ? help · ctrl+s save · ctrl+o open · ctrl+x export · ctrl+n demo · q quit"
-	if m.designPane.Typing() || m.budget.Typing() {
-		keys = "typing: esc stop · tab next pane · F1 help · ctrl+s save · ctrl+c quit"
+	k := m.keys
+	as := func(b key.Binding, keyText, desc string) key.Binding {
+		return key.NewBinding(key.WithKeys(b.Keys()...), key.WithHelp(keyText, desc))
 	}
-	return m.st.Dim.Render(keys)
+	var keys []key.Binding
+	if m.designPane.Typing() || m.budget.Typing() {
+		keys = []key.Binding{as(k.Leave, "esc", "stop typing"), as(k.NextPane, "tab", "pane"), as(k.Help, "F1", "keys"), as(k.Save, "ctrl+s", "save"), k.QuitHard}
+	} else {
+		var pane []key.Binding
+		switch m.focus {
+		case paneDesign:
+			pane = m.designPane.KeyHelp()
+		case panePicture:
+			pane = m.picture.KeyHelp()
+		case paneChecks:
+			pane = m.checks.KeyHelp()
+		case paneBudget:
+			pane = m.budget.KeyHelp()
+		}
+		keys = []key.Binding{as(k.Help, "?", "keys"), as(k.NextPane, "tab", "pane"), k.Quit}
+		for _, b := range pane {
+			switch {
+			case b.Help() == k.Up.Help():
+				keys = append(keys, as(b, "↑/↓", "select"))
+			case b.Help() == k.Down.Help():
+			default:
+				keys = append(keys, b)
+			}
+		}
+		keys = append(keys, as(k.Save, "ctrl+s", "save"), as(k.Export, "ctrl+x", "export"))
+	}
+	h := help.New()
+	h.Width = m.width
+	h.Styles.ShortKey, h.Styles.ShortDesc, h.Styles.ShortSeparator, h.Styles.Ellipsis = m.st.Key, m.st.Dim, m.st.Dim, m.st.Dim
+	return h.ShortHelpView(keys)
 }
 
 // overlay centres box over screen.
