@@ -209,63 +209,93 @@ func scan(q, rows []float64, n int) best {
 		for k, x := range q {
 			phi += x * r[k]
 		}
-		if phi < m2 {
-			if phi < m1 {
-				m1, m2, arg, arg2 = phi, m1, j, arg
-			} else {
-				m2, arg2 = phi, j
-			}
-		}
+		m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j)
 	}
 	return best{m1, m2, int32(arg), int32(arg2)}
 }
 
 func scan2(q0, q1 float64, rows []float64) best {
 	m1, m2, arg, arg2 := math.Inf(1), math.Inf(1), -1, -1
-	for j, off := 0, 0; off+2 <= len(rows); j, off = j+1, off+2 {
-		r := rows[off : off+2 : off+2]
-		phi := q0*r[0] + q1*r[1]
-		if phi < m2 {
-			if phi < m1 {
-				m1, m2, arg, arg2 = phi, m1, j, arg
-			} else {
-				m2, arg2 = phi, j
+	j, off := 0, 0
+	for ; off+8 <= len(rows); j, off = j+4, off+8 {
+		r := rows[off : off+8 : off+8]
+		pa := q0*r[0] + q1*r[1]
+		pb := q0*r[2] + q1*r[3]
+		pc := q0*r[4] + q1*r[5]
+		pd := q0*r[6] + q1*r[7]
+		if pa < m2 || pb < m2 || pc < m2 || pd < m2 {
+			for t, phi := range [4]float64{pa, pb, pc, pd} {
+				m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j+t)
 			}
 		}
+	}
+	for ; off+2 <= len(rows); j, off = j+1, off+2 {
+		r := rows[off : off+2 : off+2]
+		phi := q0*r[0] + q1*r[1]
+		m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j)
 	}
 	return best{m1, m2, int32(arg), int32(arg2)}
 }
 
+// scan3 and its siblings take four reports per step: one well-predicted
+// test in the common case that none of them beats the second best so far.
 func scan3(q0, q1, q2 float64, rows []float64) best {
 	m1, m2, arg, arg2 := math.Inf(1), math.Inf(1), -1, -1
-	for j, off := 0, 0; off+3 <= len(rows); j, off = j+1, off+3 {
-		r := rows[off : off+3 : off+3]
-		phi := q0*r[0] + q1*r[1] + q2*r[2]
-		if phi < m2 {
-			if phi < m1 {
-				m1, m2, arg, arg2 = phi, m1, j, arg
-			} else {
-				m2, arg2 = phi, j
+	j, off := 0, 0
+	for ; off+12 <= len(rows); j, off = j+4, off+12 {
+		r := rows[off : off+12 : off+12]
+		pa := q0*r[0] + q1*r[1] + q2*r[2]
+		pb := q0*r[3] + q1*r[4] + q2*r[5]
+		pc := q0*r[6] + q1*r[7] + q2*r[8]
+		pd := q0*r[9] + q1*r[10] + q2*r[11]
+		if pa < m2 || pb < m2 || pc < m2 || pd < m2 {
+			for t, phi := range [4]float64{pa, pb, pc, pd} {
+				m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j+t)
 			}
 		}
+	}
+	for ; off+3 <= len(rows); j, off = j+1, off+3 {
+		r := rows[off : off+3 : off+3]
+		phi := q0*r[0] + q1*r[1] + q2*r[2]
+		m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j)
 	}
 	return best{m1, m2, int32(arg), int32(arg2)}
 }
 
 func scan4(q0, q1, q2, q3 float64, rows []float64) best {
 	m1, m2, arg, arg2 := math.Inf(1), math.Inf(1), -1, -1
-	for j, off := 0, 0; off+4 <= len(rows); j, off = j+1, off+4 {
-		r := rows[off : off+4 : off+4]
-		phi := q0*r[0] + q1*r[1] + q2*r[2] + q3*r[3]
-		if phi < m2 {
-			if phi < m1 {
-				m1, m2, arg, arg2 = phi, m1, j, arg
-			} else {
-				m2, arg2 = phi, j
+	j, off := 0, 0
+	for ; off+16 <= len(rows); j, off = j+4, off+16 {
+		r := rows[off : off+16 : off+16]
+		pa := q0*r[0] + q1*r[1] + q2*r[2] + q3*r[3]
+		pb := q0*r[4] + q1*r[5] + q2*r[6] + q3*r[7]
+		pc := q0*r[8] + q1*r[9] + q2*r[10] + q3*r[11]
+		pd := q0*r[12] + q1*r[13] + q2*r[14] + q3*r[15]
+		if pa < m2 || pb < m2 || pc < m2 || pd < m2 {
+			for t, phi := range [4]float64{pa, pb, pc, pd} {
+				m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j+t)
 			}
 		}
 	}
+	for ; off+4 <= len(rows); j, off = j+1, off+4 {
+		r := rows[off : off+4 : off+4]
+		phi := q0*r[0] + q1*r[1] + q2*r[2] + q3*r[3]
+		m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j)
+	}
 	return best{m1, m2, int32(arg), int32(arg2)}
+}
+
+// fold keeps the two smallest values seen, and where: phi at report j
+// against the best m1 (at a1) and the second best m2 (at a2). It is small
+// enough to be inlined into every kernel.
+func fold(m1, m2 float64, a1, a2 int, phi float64, j int) (float64, float64, int, int) {
+	if phi < m2 {
+		if phi < m1 {
+			return phi, m1, j, a1
+		}
+		return m1, phi, a1, j
+	}
+	return m1, m2, a1, a2
 }
 
 // scanSupport is scan for a belief with zero coordinates against a menu
@@ -286,13 +316,7 @@ func scanSupport(q, rows []float64, n int) best {
 		for _, k := range supp[:s] {
 			phi += q[k] * rows[off+k]
 		}
-		if phi < m2 {
-			if phi < m1 {
-				m1, m2, arg, arg2 = phi, m1, j, arg
-			} else {
-				m2, arg2 = phi, j
-			}
-		}
+		m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j)
 	}
 	return best{m1, m2, int32(arg), int32(arg2)}
 }

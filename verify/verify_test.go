@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"math"
+	"math/rand/v2"
 	"strings"
 	"sync/atomic"
 	"testing"
@@ -450,5 +451,43 @@ func TestScanDoesNotAllocate(t *testing.T) {
 	}
 	if a := testing.AllocsPerRun(20, func() { scanSupport(q, rows, 3) }); a != 0 {
 		t.Errorf("scanSupport: %v allocations", a)
+	}
+}
+
+func TestScanMatchesNaive(t *testing.T) {
+	// The unrolled kernels against the obvious loop, with a length that is
+	// not a multiple of four, ties and infinities.
+	rng := rand.New(rand.NewPCG(1, 2))
+	for _, n := range []int{2, 3, 4, 5} {
+		for _, G := range []int{1, 3, 4, 7, 1003} {
+			rows := make([]float64, n*G)
+			for i := range rows {
+				rows[i] = float64(rng.IntN(50)) / 7
+				if rng.IntN(40) == 0 {
+					rows[i] = math.Inf(1)
+				}
+			}
+			q := make([]float64, n)
+			for k := range q {
+				q[k] = rng.Float64() + 0.01
+			}
+			got := scan(q, rows, n)
+			want := best{math.Inf(1), math.Inf(1), -1, -1}
+			for j := 0; j < G; j++ {
+				var phi float64
+				for k := range q {
+					phi += q[k] * rows[j*n+k]
+				}
+				switch {
+				case phi < want.m1:
+					want = best{phi, want.m1, int32(j), want.arg}
+				case phi < want.m2:
+					want.m2, want.arg2 = phi, int32(j)
+				}
+			}
+			if got != want {
+				t.Errorf("n=%d G=%d: scan %+v, naive %+v", n, G, got, want)
+			}
+		}
 	}
 }
