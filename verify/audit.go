@@ -116,6 +116,7 @@ func Audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings)
 func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings, g *simplex.Grid, pr *progress) (*AuditReport, error) {
 	n, G := p.Outcomes(), g.Len()
 	rep := &AuditReport{Report: Report{Grid: gridInfo(g, s)}}
+	rep.Notes = gridNotes(rep.Grid, n)
 	if g.Sampled {
 		rep.Notes = append(rep.Notes, fmt.Sprintf("the full grid at resolution %d is larger than %d points, so %d random lattice points and the vertices were used", s.Resolution, s.MaxPoints, g.Len()-n))
 	}
@@ -198,6 +199,7 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 		prop.Passed, prop.Strict = false, false
 		prop.Worst, prop.Belief, prop.Report = rep.Gap.Max, rep.Gap.Belief, rep.Gap.BestReport
 		prop.Sharpened, prop.GridWorst, prop.Status = rep.Gap.Sharpened, rep.Gap.GridMax, rep.Gap.Status
+		markPart(&prop)
 	}
 	prop.Note = propernessNote(prop, "pay", "more")
 	rep.Checks = []CheckResult{prop, bounded}

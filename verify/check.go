@@ -73,6 +73,7 @@ func gridInfo(g *simplex.Grid, s Settings) Grid {
 func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid, pr *progress) (*Report, error) {
 	n, G := r.Outcomes(), g.Len()
 	rep := &Report{Grid: gridInfo(g, s)}
+	rep.Notes = gridNotes(rep.Grid, n)
 	if g.Sampled {
 		rep.Notes = append(rep.Notes, fmt.Sprintf("the full grid at resolution %d is larger than %d points, so %d random lattice points and the vertices were used, with local optimisation over reports", s.Resolution, s.MaxPoints, g.Len()-n))
 	}
@@ -191,7 +192,7 @@ func propernessNote(c CheckResult, what, better string) string {
 	case !c.Passed:
 		return joinNotes(fmt.Sprintf("a forecaster with belief %s expects %.6g %s %s by reporting %s than by reporting honestly", num.Format(c.Belief), c.Worst, better, what, num.Format(c.Report)), sharpenedNote(c))
 	case c.Strict:
-		return fmt.Sprintf("at every grid belief the honest report is the unique best grid report; the closest other report falls short by %.6g, at belief %s (strictness judged against the rounding floor %g, relative)", c.Margin, num.Format(c.MarginBelief), StrictFloor)
+		return fmt.Sprintf("at every grid belief the honest report is the unique best grid report, and the closest other report falls short by %.6g, at belief %s (strictness judged against the rounding floor %g, relative)", c.Margin, num.Format(c.MarginBelief), StrictFloor)
 	}
 	return fmt.Sprintf("the honest report is a best report at every grid belief, but not the only one: at belief %s the report %s does as well (difference %.3g)", num.Format(c.MarginBelief), num.Format(c.MarginReport), c.Margin)
 }
@@ -201,6 +202,27 @@ func nonnegNote(c CheckResult) string {
 		return fmt.Sprintf("D(q, p) >= 0 over every grid pair (smallest %.6g)", c.Worst)
 	}
 	return joinNotes(fmt.Sprintf("D(q, p) = %.6g < 0 at belief %s, report %s", c.Worst, num.Format(c.Belief), num.Format(c.Report)), sharpenedNote(c))
+}
+
+// markPart records a witness found off the grid in the region it lies
+// in, so that the interior/boundary split agrees with the overall result.
+func markPart(c *CheckResult) {
+	p := &c.Interior
+	if onBoundary(c.Belief) {
+		p = &c.Boundary
+	}
+	p.Passed = false
+	if !(p.Worst >= c.Worst) {
+		p.Worst, p.Belief, p.Report = c.Worst, clone(c.Belief), clone(c.Report)
+	}
+}
+
+// gridNotes warns about grids too coarse to say much.
+func gridNotes(g Grid, n int) []string {
+	if g.Interior == 0 {
+		return []string{fmt.Sprintf("the grid has no interior points (resolution %d, %d outcomes): the verdict covers boundary points only; use a resolution above %d", g.Resolution, n, n)}
+	}
+	return nil
 }
 
 // sharpenPair improves the witness of a pair check by local optimisation
@@ -290,11 +312,8 @@ func concavity(ctx context.Context, r *bregman.Rule, g *simplex.Grid, s Settings
 	c.Passed = c.Interior.Passed && c.Boundary.Passed
 	c.Strict = strict && in.seen
 	w := c.Interior
-	if !c.Interior.Passed || (c.Boundary.Passed == c.Interior.Passed && bd.seen && bd.Worst > in.Worst) || !in.seen {
+	if c.Interior.Passed && (!c.Boundary.Passed || !in.seen) {
 		w = c.Boundary
-	}
-	if !c.Interior.Passed {
-		w = c.Interior
 	}
 	c.Worst, c.Belief = w.Worst, clone(w.Belief)
 	var notes []string
@@ -306,13 +325,13 @@ func concavity(ctx context.Context, r *bregman.Rule, g *simplex.Grid, s Settings
 	case in.seen:
 		notes = append(notes, fmt.Sprintf("H is concave but not strictly: the projected Hessian has eigenvalue %.6g (within the tolerance of 0) at %s", c.Interior.Worst, num.Format(c.Interior.Belief)))
 	default:
-		notes = append(notes, "the grid has no interior points; raise the resolution above the number of outcomes")
+		notes = append(notes, "the grid has no interior points: raise the resolution above the number of outcomes")
 	}
 	if nonFiniteIn > 0 {
 		notes = append(notes, fmt.Sprintf("the Hessian is not finite at %d interior points (e.g. %s), so concavity there is unknown", nonFiniteIn, num.Format(nfIn)))
 	}
 	if nonFiniteBd > 0 {
-		notes = append(notes, fmt.Sprintf("the Hessian is not finite at %d boundary points (e.g. %s); there the pair checks stand in for curvature", nonFiniteBd, num.Format(nfBd)))
+		notes = append(notes, fmt.Sprintf("the Hessian is not finite at %d boundary points (e.g. %s), where the pair checks stand in for curvature", nonFiniteBd, num.Format(nfBd)))
 	}
 	c.Note = strings.Join(notes, "; ")
 	return c, nil
@@ -548,6 +567,7 @@ func searchReports(ctx context.Context, g *simplex.Grid, prop *CheckResult, s Se
 			prop.Worst, prop.Belief, prop.Report = fd.gap, fd.q, fd.p
 			prop.Passed, prop.Strict, prop.Sharpened = false, false, true
 			prop.Status = "found off the sampled grid by Nelder–Mead over reports"
+			markPart(prop)
 		}
 	}
 	return nil
@@ -662,9 +682,9 @@ func boundedness(g *simplex.Grid, m *menu, limit float64, label func(int) string
 				}
 			}
 			if boundary {
-				bd.offer(math.Abs(v), p, nil)
+				bd.offer(math.Abs(v), nil, p)
 			} else {
-				in.offer(math.Abs(v), p, nil)
+				in.offer(math.Abs(v), nil, p)
 			}
 		}
 	}
@@ -677,7 +697,7 @@ func boundedness(g *simplex.Grid, m *menu, limit float64, label func(int) string
 	c.Interior = in.result(inOK && nan == 0)
 	c.Boundary = bd.result(neg == 0 && nan == 0)
 	c.Passed = c.Interior.Passed && c.Boundary.Passed
-	c.Worst, c.Report = c.Interior.Worst, clone(c.Interior.Belief)
+	c.Worst, c.Report = c.Interior.Worst, clone(c.Interior.Report)
 	var notes, ranges, unb []string
 	for k, a := range st {
 		if a.lo <= a.hi {
@@ -706,7 +726,7 @@ func boundedness(g *simplex.Grid, m *menu, limit float64, label func(int) string
 		}
 	}
 	if len(unb) > 0 {
-		notes = append(notes, "unbounded on the boundary: "+what+" for outcome "+strings.Join(unb, ", ")+"; a report floor (or a clamp, whose effect on honesty must then be checked) is needed before fitting a budget")
+		notes = append(notes, "unbounded on the boundary: "+what+" for outcome "+strings.Join(unb, ", ")+", so a report floor (or a clamp, whose effect on honesty must then be checked) is needed before fitting a budget")
 	}
 	c.Note = strings.Join(notes, "; ")
 	return c

@@ -24,7 +24,23 @@ type menu struct {
 	// rows are set to +Inf so that the stream never picks them, and the
 	// boundedness check reports them.
 	bad []bool
+	// safe is rows with ±Inf replaced by ±safeBig, for beliefs with zero
+	// coordinates: 0 × safeBig is exactly 0, so finite expected efforts
+	// and their order are exactly those of the 0·Inf = 0 convention, and
+	// an infinite one becomes a huge finite one that is never preferred
+	// to a finite one. The stream then recomputes the winners' values
+	// exactly. nil when no entry is infinite, or when some finite entry
+	// is too large for the substitution to keep its order.
+	safe []float64
 }
+
+// safeBig stands in for an infinite effort; finite efforts must stay below
+// safeLimit in magnitude for the substitution to be exact in order (with
+// n <= 16 coordinates of at least 1/K, K <= 2^26).
+const (
+	safeBig   = 1e300
+	safeLimit = 1e250
+)
 
 func newMenu(n, g int) *menu {
 	return &menu{n: n, rows: make([]float64, n*g), bad: make([]bool, g)}
@@ -56,6 +72,22 @@ func (m *menu) seal() {
 		if pos || neg {
 			m.infinite = true
 		}
+	}
+	if !m.infinite {
+		return
+	}
+	m.safe = make([]float64, len(m.rows))
+	for i, v := range m.rows {
+		switch {
+		case math.IsInf(v, 1):
+			v = safeBig
+		case math.IsInf(v, -1):
+			v = -safeBig
+		case math.Abs(v) > safeLimit:
+			m.safe = nil
+			return
+		}
+		m.safe[i] = v
 	}
 }
 
@@ -179,10 +211,19 @@ func stream(ctx context.Context, g *simplex.Grid, m *menu, w int, pr *progress) 
 		for i := lo; i < hi; i++ {
 			q := g.Point(i)
 			var b best
-			if m.infinite && g.Boundary[i] {
-				b = scanSupport(q, m.rows, m.n)
-			} else {
+			switch {
+			case !m.infinite || !g.Boundary[i]:
 				b = scan(q, m.rows, m.n)
+			case m.safe != nil:
+				b = scan(q, m.safe, m.n)
+				if b.arg >= 0 {
+					b.m1 = m.phi(q, int(b.arg))
+				}
+				if b.arg2 >= 0 {
+					b.m2 = m.phi(q, int(b.arg2))
+				}
+			default:
+				b = scanSupport(q, m.rows, m.n)
 			}
 			out[i] = b
 			pr.add(int64(G))

@@ -12,6 +12,7 @@ import (
 	"scorewright/generator/bregman"
 	"scorewright/generator/payout"
 	"scorewright/presets"
+	"scorewright/verify/simplex"
 )
 
 func rule(t *testing.T, src string, n int) *bregman.Rule {
@@ -487,6 +488,40 @@ func TestScanMatchesNaive(t *testing.T) {
 			}
 			if got != want {
 				t.Errorf("n=%d G=%d: scan %+v, naive %+v", n, G, got, want)
+			}
+		}
+	}
+}
+
+func TestSafeRowsMatchSupportScan(t *testing.T) {
+	// Boundary beliefs against a menu with infinite efforts (the log rule,
+	// -ln 0 = +Inf): the substituted rows must give exactly the winners and
+	// values of the scan that skips the belief's zero coordinates.
+	for _, n := range []int{2, 3, 4, 6} {
+		g, err := simplex.Full(n, 12)
+		if err != nil {
+			t.Fatal(err)
+		}
+		sc := rule(t, "-sum(p*ln(p))", n).NewScorer()
+		m := newMenu(n, g.Len())
+		for j := 0; j < g.Len(); j++ {
+			sc.Efforts(m.rows[j*n:(j+1)*n], g.Point(j))
+		}
+		m.seal()
+		if m.safe == nil {
+			t.Fatal("no substituted rows for a menu with infinities")
+		}
+		bs, err := stream(context.Background(), g, m, 2, startProgress(nil, 0))
+		if err != nil {
+			t.Fatal(err)
+		}
+		for i := 0; i < g.Len(); i++ {
+			if !g.Boundary[i] {
+				continue
+			}
+			want := scanSupport(g.Point(i), m.rows, n)
+			if bs[i] != want {
+				t.Fatalf("n=%d belief %v: stream %+v, support scan %+v", n, g.Point(i), bs[i], want)
 			}
 		}
 	}
