@@ -122,20 +122,20 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	sc := scorers[0]
 	effQ, effP := make([]float64, n), make([]float64, n)
 	if !prop.Passed && prop.Belief != nil && prop.Report != nil {
-		sharpenPair(&prop, n, true, func(q, p []float64) float64 {
+		sharpenPair(&prop, n, func(q, p []float64) float64 {
 			sc.Efforts(effQ, q)
 			sc.Efforts(effP, p)
 			return -(bregman.Dot(q, effQ) - bregman.Dot(q, effP))
 		}, -1)
 	}
 	if !nonneg.Passed && nonneg.Belief != nil && nonneg.Report != nil {
-		sharpenPair(&nonneg, n, true, func(q, p []float64) float64 {
+		sharpenPair(&nonneg, n, func(q, p []float64) float64 {
 			sc.Efforts(effP, p)
 			return bregman.Dot(q, effP) - sc.Entropy(q)
 		}, 1)
 	}
 	if !conc.Passed && conc.Belief != nil && !math.IsInf(conc.Worst, 1) {
-		sharpenConcavity(&conc, r, g.Boundary != nil && onBoundary(conc.Belief))
+		sharpenConcavity(&conc, r, onBoundary(conc.Belief))
 	}
 
 	conc.Note = joinNotes(concavityWitness(conc), conc.Note)
@@ -228,9 +228,8 @@ func gridNotes(g Grid, n int) []string {
 // sharpenPair improves the witness of a pair check by local optimisation
 // of f (to be minimised) from the grid witness; sign converts the
 // optimised value back to the check's amount (amount = sign * f).
-func sharpenPair(c *CheckResult, n int, moveBelief bool, f func(q, p []float64) float64, sign float64) {
+func sharpenPair(c *CheckResult, n int, f func(q, p []float64) float64, sign float64) {
 	ps := newPairSearch(n)
-	ps.fixBelief = !moveBelief
 	ps.onBoundary = true
 	q, p, v, status, ok := ps.run(f, c.Belief, c.Report)
 	c.Status = status
@@ -600,7 +599,7 @@ func affinity(g *simplex.Grid, m *menu, s Settings) CheckResult {
 			for k := range mid {
 				mid[k] = (a[k] + b[k]) / 2
 			}
-			fa, fb, fm := m.phiVec(a, j), m.phiVec(b, j), m.phiVec(mid, j)
+			fa, fb, fm := m.phi(a, j), m.phi(b, j), m.phi(mid, j)
 			avg := (fa + fb) / 2
 			var dev float64
 			switch {
@@ -630,9 +629,6 @@ func affinity(g *simplex.Grid, m *menu, s Settings) CheckResult {
 	}
 	return c
 }
-
-// phiVec is phi for a belief that is not a grid point.
-func (m *menu) phiVec(q []float64, j int) float64 { return m.phi(q, j) }
 
 // boundedness summarises the menu's values per outcome: the finite range,
 // and where they are infinite, NaN or beyond the limit, interior reports

@@ -91,7 +91,8 @@ func (m *menu) seal() {
 	}
 }
 
-// phi returns sum_k q_k row_k with 0·Inf = 0.
+// phi returns sum_k q_k L(report j, k) with 0·Inf = 0, for any belief q
+// (a grid point or not).
 func (m *menu) phi(q []float64, j int) float64 {
 	r := m.rows[j*m.n : (j+1)*m.n]
 	var s float64
