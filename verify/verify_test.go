@@ -167,6 +167,23 @@ func TestPresetsStrictlyProper(t *testing.T) {
 		if p.Kind != presets.KindGenerator {
 			continue
 		}
+		for _, n := range []int{2, 4} {
+			opt := bregman.Options{Outcomes: n, Ordered: p.Ordered}
+			if p.Weighted {
+				opt.Weights = []float64{1, 2, 0.5, 3}[:n]
+			}
+			f, err := bregman.NewFormula(p.Formula, opt)
+			if err != nil {
+				t.Fatal(err)
+			}
+			rep, err := CheckRule(context.Background(), &bregman.Rule{Gen: f, Ordered: p.Ordered}, Settings{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if rep.Verdict != StrictlyProper || rep.Failed() {
+				t.Errorf("%s, n=%d: verdict %s, failed %v", p.Name, n, rep.Verdict, rep.Failed())
+			}
+		}
 		opt := bregman.Options{Outcomes: 3, Ordered: p.Ordered}
 		if p.Weighted {
 			opt.Weights = []float64{1, 2, 0.5}
