@@ -244,15 +244,18 @@ func sharpenPair(c *CheckResult, n int, f func(q, p []float64) float64, sign flo
 }
 
 // improves reports whether a sharpened amount is worse (so a better
-// witness) than the grid's: larger when bigger is worse, else smaller.
+// witness) than the grid's — larger when bigger is worse, else smaller —
+// by more than rounding, so that an exact grid witness is not traded for
+// a point a rounding error away.
 func improves(amount, grid float64, biggerWorse bool) bool {
 	if amount != amount || math.IsInf(amount, 0) {
 		return false
 	}
+	slack := StrictFloor * (1 + math.Abs(grid))
 	if biggerWorse {
-		return amount > grid
+		return amount > grid+slack
 	}
-	return amount < grid
+	return amount < grid-slack
 }
 
 // concavity computes, at every grid point, the largest eigenvalue of the
