@@ -187,7 +187,7 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	if rep.Gap.Max > s.Tolerance && !math.IsInf(rep.Gap.Max, 0) {
 		ev := p.NewEvaluator()
 		ps := newPairSearch(n)
-		ps.onBoundary = true
+		ps.onBoundary, ps.cell = true, cellOf(g)
 		q, r, v, status, ok := ps.run(func(q, r []float64) float64 { return -(ev.Expected(q, r) - ev.Expected(q, q)) }, rep.Gap.Belief, rep.Gap.BestReport)
 		rep.Gap.Status = status
 		if ok && improves(-v, rep.Gap.Max, true) {
@@ -255,7 +255,7 @@ func refineBeliefs(ctx context.Context, p *payout.Payout, g *simplex.Grid, bgs [
 	return parallel(ctx, s.Workers, len(idx), 4, func(w, lo, hi int) {
 		ev := evs[w]
 		ps := newPairSearch(g.N)
-		ps.fixBelief, ps.evals = true, searchEvals
+		ps.fixBelief, ps.evals, ps.cell = true, searchEvals, cellOf(g)
 		for _, i := range idx[lo:hi] {
 			bg := &bgs[i]
 			_, r, v, _, ok := ps.run(func(q, r []float64) float64 { return -ev.Expected(q, r) }, bg.Belief, bg.BestReport)

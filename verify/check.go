@@ -122,20 +122,20 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	sc := scorers[0]
 	effQ, effP := make([]float64, n), make([]float64, n)
 	if !prop.Passed && prop.Belief != nil && prop.Report != nil {
-		sharpenPair(&prop, n, func(q, p []float64) float64 {
+		sharpenPair(&prop, n, cellOf(g), func(q, p []float64) float64 {
 			sc.Efforts(effQ, q)
 			sc.Efforts(effP, p)
 			return -(bregman.Dot(q, effQ) - bregman.Dot(q, effP))
 		}, -1)
 	}
 	if !nonneg.Passed && nonneg.Belief != nil && nonneg.Report != nil {
-		sharpenPair(&nonneg, n, func(q, p []float64) float64 {
+		sharpenPair(&nonneg, n, cellOf(g), func(q, p []float64) float64 {
 			sc.Efforts(effP, p)
 			return bregman.Dot(q, effP) - sc.Entropy(q)
 		}, 1)
 	}
 	if !conc.Passed && conc.Belief != nil && !math.IsInf(conc.Worst, 1) {
-		sharpenConcavity(&conc, r, onBoundary(conc.Belief))
+		sharpenConcavity(&conc, r, onBoundary(conc.Belief), cellOf(g))
 	}
 
 	conc.Note = joinNotes(concavityWitness(conc), conc.Note)
@@ -204,6 +204,15 @@ func nonnegNote(c CheckResult) string {
 	return joinNotes(fmt.Sprintf("D(q, p) = %.6g < 0 at belief %s, report %s", c.Worst, num.Format(c.Belief), num.Format(c.Report)), sharpenedNote(c))
 }
 
+// cellOf is the half-width of a grid point's cell: half a grid step on a
+// full grid; unlimited on a sampled one, whose points are far apart.
+func cellOf(g *simplex.Grid) float64 {
+	if g.Sampled {
+		return 0
+	}
+	return 0.5 / float64(g.K)
+}
+
 // markPart records a witness found off the grid in the region it lies
 // in, so that the interior/boundary split agrees with the overall result.
 func markPart(c *CheckResult) {
@@ -228,9 +237,9 @@ func gridNotes(g Grid, n int) []string {
 // sharpenPair improves the witness of a pair check by local optimisation
 // of f (to be minimised) from the grid witness; sign converts the
 // optimised value back to the check's amount (amount = sign * f).
-func sharpenPair(c *CheckResult, n int, f func(q, p []float64) float64, sign float64) {
+func sharpenPair(c *CheckResult, n int, cell float64, f func(q, p []float64) float64, sign float64) {
 	ps := newPairSearch(n)
-	ps.onBoundary = true
+	ps.onBoundary, ps.cell = true, cell
 	q, p, v, status, ok := ps.run(f, c.Belief, c.Report)
 	c.Status = status
 	if !ok {
@@ -409,8 +418,9 @@ func (pj *projector) largest(sc *bregman.Scorer, p []float64) float64 {
 }
 
 // sharpenConcavity climbs the largest projected eigenvalue from the grid
-// witness, staying in the interior when the witness is interior.
-func sharpenConcavity(c *CheckResult, r *bregman.Rule, boundary bool) {
+// witness within its grid cell, staying in the interior when the witness
+// is interior.
+func sharpenConcavity(c *CheckResult, r *bregman.Rule, boundary bool, cell float64) {
 	n := r.Outcomes()
 	sc, pj := r.NewScorer(), newProjector(n)
 	q := make([]float64, n)
@@ -418,7 +428,7 @@ func sharpenConcavity(c *CheckResult, r *bregman.Rule, boundary bool) {
 	simplex.ToSquares(x0, c.Belief)
 	x, v, status, ok := minimise(func(x []float64) float64 {
 		simplex.FromSquares(q, x)
-		if !boundary && onBoundary(q) {
+		if !boundary && onBoundary(q) || !inCell(q, c.Belief, cell) {
 			return math.Inf(1)
 		}
 		l := pj.largest(sc, q)
