@@ -101,6 +101,9 @@ func Audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings)
 		return nil, fmt.Errorf("verify: no payout to audit")
 	}
 	n := p.Outcomes()
+	if err := checkOutcomes(n); err != nil {
+		return nil, err
+	}
 	s = s.withDefaults(n)
 	g, err := grid(n, s)
 	if err != nil {

@@ -10,6 +10,7 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"scorewright/generator/bregman"
+	"scorewright/generator/formula"
 	"scorewright/generator/num"
 	"scorewright/verify/simplex"
 )
@@ -37,6 +38,9 @@ func CheckRule(ctx context.Context, r *bregman.Rule, s Settings) (*Report, error
 		return nil, fmt.Errorf("verify: no rule to check")
 	}
 	n := r.Outcomes()
+	if err := checkOutcomes(n); err != nil {
+		return nil, err
+	}
 	s = s.withDefaults(n)
 	g, err := grid(n, s)
 	if err != nil {
@@ -47,6 +51,13 @@ func CheckRule(ctx context.Context, r *bregman.Rule, s Settings) (*Report, error
 	rep, err := checkRule(ctx, r, s, g, pr)
 	pr.finish(err == nil)
 	return rep, err
+}
+
+func checkOutcomes(n int) error {
+	if n < 2 || n > formula.MaxOutcomes {
+		return fmt.Errorf("verify: %d outcomes; need 2..%d", n, formula.MaxOutcomes)
+	}
+	return nil
 }
 
 // grid builds the full lattice, or a sample of it when the full one
