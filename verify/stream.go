@@ -258,9 +258,9 @@ func scan(q, rows []float64, n int) best {
 
 func scan2(q0, q1 float64, rows []float64) best {
 	m1, m2, arg, arg2 := math.Inf(1), math.Inf(1), -1, -1
-	j, off := 0, 0
-	for ; off+8 <= len(rows); j, off = j+4, off+8 {
-		r := rows[off : off+8 : off+8]
+	j, rest := 0, rows
+	for ; len(rest) >= 8; j, rest = j+4, rest[8:] {
+		r := rest[:8:8]
 		pa := q0*r[0] + q1*r[1]
 		pb := q0*r[2] + q1*r[3]
 		pc := q0*r[4] + q1*r[5]
@@ -271,8 +271,8 @@ func scan2(q0, q1 float64, rows []float64) best {
 			}
 		}
 	}
-	for ; off+2 <= len(rows); j, off = j+1, off+2 {
-		r := rows[off : off+2 : off+2]
+	for ; len(rest) >= 2; j, rest = j+1, rest[2:] {
+		r := rest[:2:2]
 		phi := q0*r[0] + q1*r[1]
 		m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j)
 	}
@@ -283,9 +283,9 @@ func scan2(q0, q1 float64, rows []float64) best {
 // test in the common case that none of them beats the second best so far.
 func scan3(q0, q1, q2 float64, rows []float64) best {
 	m1, m2, arg, arg2 := math.Inf(1), math.Inf(1), -1, -1
-	j, off := 0, 0
-	for ; off+12 <= len(rows); j, off = j+4, off+12 {
-		r := rows[off : off+12 : off+12]
+	j, rest := 0, rows
+	for ; len(rest) >= 12; j, rest = j+4, rest[12:] {
+		r := rest[:12:12]
 		pa := q0*r[0] + q1*r[1] + q2*r[2]
 		pb := q0*r[3] + q1*r[4] + q2*r[5]
 		pc := q0*r[6] + q1*r[7] + q2*r[8]
@@ -296,8 +296,8 @@ func scan3(q0, q1, q2 float64, rows []float64) best {
 			}
 		}
 	}
-	for ; off+3 <= len(rows); j, off = j+1, off+3 {
-		r := rows[off : off+3 : off+3]
+	for ; len(rest) >= 3; j, rest = j+1, rest[3:] {
+		r := rest[:3:3]
 		phi := q0*r[0] + q1*r[1] + q2*r[2]
 		m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j)
 	}
@@ -306,9 +306,9 @@ func scan3(q0, q1, q2 float64, rows []float64) best {
 
 func scan4(q0, q1, q2, q3 float64, rows []float64) best {
 	m1, m2, arg, arg2 := math.Inf(1), math.Inf(1), -1, -1
-	j, off := 0, 0
-	for ; off+16 <= len(rows); j, off = j+4, off+16 {
-		r := rows[off : off+16 : off+16]
+	j, rest := 0, rows
+	for ; len(rest) >= 16; j, rest = j+4, rest[16:] {
+		r := rest[:16:16]
 		pa := q0*r[0] + q1*r[1] + q2*r[2] + q3*r[3]
 		pb := q0*r[4] + q1*r[5] + q2*r[6] + q3*r[7]
 		pc := q0*r[8] + q1*r[9] + q2*r[10] + q3*r[11]
@@ -319,8 +319,8 @@ func scan4(q0, q1, q2, q3 float64, rows []float64) best {
 			}
 		}
 	}
-	for ; off+4 <= len(rows); j, off = j+1, off+4 {
-		r := rows[off : off+4 : off+4]
+	for ; len(rest) >= 4; j, rest = j+1, rest[4:] {
+		r := rest[:4:4]
 		phi := q0*r[0] + q1*r[1] + q2*r[2] + q3*r[3]
 		m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j)
 	}
