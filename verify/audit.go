@@ -139,6 +139,8 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	}
 	label := func(k int) string { return fmt.Sprint(k + 1) }
 	bounded := boundedness(g, pays, s.Limit, label, "payment", -1)
+	rep.Grid.Scale = scaleOf(bounded)
+	s.Tolerance *= rep.Grid.Scale
 
 	// The stream minimises effort, so it runs on -pay.
 	m := newMenu(n, G)

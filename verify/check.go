@@ -70,7 +70,7 @@ func grid(n int, s Settings) (*simplex.Grid, error) {
 }
 
 func gridInfo(g *simplex.Grid, s Settings) Grid {
-	out := Grid{Resolution: g.K, Points: g.Len(), Tolerance: s.Tolerance, Sampled: g.Sampled, Pairs: int64(g.Len()) * int64(g.Len())}
+	out := Grid{Resolution: g.K, Points: g.Len(), Tolerance: s.Tolerance, Scale: 1, Sampled: g.Sampled, Pairs: int64(g.Len()) * int64(g.Len())}
 	for _, b := range g.Boundary {
 		if b {
 			out.Boundary++
@@ -108,6 +108,9 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	}
 	bounded := boundedness(g, m, s.Limit, r.Label, "effort", 1)
 	m.seal()
+	rep.Grid.Scale = scaleOf(bounded)
+	affTol := s.Tolerance
+	s.Tolerance *= rep.Grid.Scale
 
 	conc, err := concavity(ctx, r, g, s, scorers, pr)
 	if err != nil {
@@ -127,7 +130,7 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 			return nil, err
 		}
 	}
-	aff := affinity(g, m, s)
+	aff := affinity(g, m, affTol, s.Seed)
 
 	// Sharpen the witnesses of failing checks beyond the grid.
 	sc := scorers[0]
@@ -170,7 +173,7 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 // more than StrictFloor × (1 + |honest expected effort|). It is far below
 // the tolerance on purpose: near a vertex the closest grid report of a
 // strictly proper rule can be worse by only about K^-3.
-const StrictFloor = 1e-12
+const StrictFloor = 1e-13
 
 func joinNotes(a ...string) string {
 	var out []string
@@ -235,6 +238,20 @@ func markPart(c *CheckResult) {
 	if !(p.Worst >= c.Worst) {
 		p.Worst, p.Belief, p.Report = c.Worst, clone(c.Belief), clone(c.Report)
 	}
+}
+
+// scaleOf is the size of a rule's values, max(1, largest finite
+// |value| over the grid reports), by which the tolerance is multiplied:
+// rounding error grows with the values, and a payout in millions must
+// not be called improper for a gap of 1e-9.
+func scaleOf(bounded CheckResult) float64 {
+	sc := 1.0
+	for _, w := range []float64{bounded.Interior.Worst, bounded.Boundary.Worst} {
+		if w > sc && !math.IsInf(w, 0) {
+			sc = w
+		}
+	}
+	return sc
 }
 
 // gridNotes warns about grids too coarse to say much.
@@ -602,9 +619,9 @@ func searchReports(ctx context.Context, g *simplex.Grid, prop *CheckResult, s Se
 // affine by construction, so for a generator rule this confirms the
 // evaluation (in particular the 0·Inf convention at the boundary); it is
 // a real test for an effort handed in with two arguments.
-func affinity(g *simplex.Grid, m *menu, s Settings) CheckResult {
+func affinity(g *simplex.Grid, m *menu, T float64, seed uint64) CheckResult {
 	n, G := g.N, g.Len()
-	rng := rand.New(rand.NewPCG(s.Seed, 0xaff1))
+	rng := rand.New(rand.NewPCG(seed, 0xaff1))
 	reports := min(G, 2000)
 	const pairs = 8
 	mid := make([]float64, n)
@@ -640,7 +657,6 @@ func affinity(g *simplex.Grid, m *menu, s Settings) CheckResult {
 			}
 		}
 	}
-	T := s.Tolerance
 	c := CheckResult{Name: NameAffinity}
 	c.Interior = in.result(!(in.Worst > T))
 	c.Boundary = bd.result(!(bd.Worst > T))
