@@ -313,6 +313,17 @@ func TestIdentifyScaledQuadratic(t *testing.T) {
 			t.Errorf("n=%d: gap %g for a proper payout", n, rep.Gap.Max)
 		}
 	}
+	// The same in large currency units: 1e9 - 5e8 L (derived as above).
+	// Rounding in values of 1e9 is about 1e-7, so the tolerance scales with
+	// the values and the verdict stays strictly proper.
+	big, err := Audit(context.Background(), pay(t, "1e9 - 5e8*sum((p-hit)^2)", 2), presetCandidates(t, 2), Settings{Resolution: 400})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if big.Verdict != StrictlyProper || big.Grid.Scale != 1e9 || big.Identified == nil || big.Identified.Preset != "quadratic" ||
+		math.Abs(big.Identified.Scale/5e8-1) > 1e-9 || math.Abs(big.Identified.Shift/1e9-1) > 1e-9 {
+		t.Errorf("large units: verdict %s, scale %g, identified %+v", big.Verdict, big.Grid.Scale, big.Identified)
+	}
 	// The log score ln p_y is the log rule with scale 1, shift 0
 	// (L = -ln p_k, Good 1952); its infinities match the rule's.
 	rep, err := Audit(context.Background(), pay(t, "ln(p[y])", 3), presetCandidates(t, 3), Settings{Resolution: 30})
