@@ -162,7 +162,8 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	for i, b := range bs {
 		q := g.Point(i)
 		bg := BeliefGap{Belief: q, BestReport: q, Honest: -honest[i]}
-		if gap := honest[i] - b.m1; b.arg >= 0 && gap > 0 && !math.IsInf(honest[i], 1) {
+		// A gap within the tolerance is rounding: the honest report stands.
+		if gap := honest[i] - b.m1; b.arg >= 0 && gap > s.Tolerance && !math.IsInf(honest[i], 1) {
 			bg.Gap, bg.BestReport = gap, g.Point(int(b.arg))
 		} else if math.IsInf(honest[i], 1) && b.arg >= 0 && !math.IsInf(b.m1, 1) {
 			bg.Gap, bg.BestReport = math.Inf(1), g.Point(int(b.arg))
