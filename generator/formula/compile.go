@@ -97,7 +97,49 @@ func Compile(f *File, scope Scope) (*Program, error) {
 			return nil, fmt.Errorf("unknown parameter %q; the formula sets: %s", name, strings.Join(known, ", "))
 		}
 	}
-	return &Program{code: c.code, out: out, varNames: c.varNames, params: c.paramList}, nil
+	code, out := compact(c.code, out)
+	return &Program{code: code, out: out, varNames: c.varNames, params: c.paramList}, nil
+}
+
+// compact drops instructions the result does not depend on (constants
+// left over from folding, subscripts, parameter values) and renumbers the
+// rest, keeping their order.
+func compact(code []instr, out int32) ([]instr, int32) {
+	live := make([]bool, len(code))
+	live[out] = true
+	for i := int(out); i >= 0; i-- {
+		if !live[i] {
+			continue
+		}
+		switch in := code[i]; {
+		case in.op == opConst || in.op == opVar:
+		case in.op.unary():
+			live[in.a] = true
+		case in.op == opSelect:
+			live[in.a], live[in.b], live[in.c] = true, true, true
+		default:
+			live[in.a], live[in.b] = true, true
+		}
+	}
+	renum := make([]int32, len(code))
+	var kept []instr
+	for i, in := range code {
+		if !live[i] {
+			continue
+		}
+		renum[i] = int32(len(kept))
+		switch {
+		case in.op == opConst || in.op == opVar:
+		case in.op.unary():
+			in.a = renum[in.a]
+		case in.op == opSelect:
+			in.a, in.b, in.c = renum[in.a], renum[in.b], renum[in.c]
+		default:
+			in.a, in.b = renum[in.a], renum[in.b]
+		}
+		kept = append(kept, in)
+	}
+	return kept, renum[out]
 }
 
 // CompileString parses and compiles src in one step.
@@ -275,7 +317,7 @@ func (c *compiler) isConst(s int32) (float64, bool) {
 func (c *compiler) op(o opcode, a, b int32, k float64) int32 {
 	ka, ca := c.isConst(a)
 	kb, cb := c.isConst(b)
-	unary := o == opNeg || o == opSq || o == opPowK || o == opPowB || o == opExp || o == opLn || o == opSqrt || o == opAbs
+	unary := o.unary()
 	if ca && (unary || cb) {
 		return c.konst(apply(o, ka, kb, k))
 	}

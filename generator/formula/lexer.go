@@ -107,8 +107,13 @@ func lex(src string) ([]token, *Error) {
 				continue
 			}
 			fallthrough
-		case '+', '-', '*', '/', '^', '(', ')', '[', ']', ',', '=':
+		case '+', '-', '*', '/', '^', '(', ')', '[', ']', ',':
 			toks = append(toks, token{kind: tokOp, text: string(r), pos: start})
+		case '=':
+			if i+1 < len(src) && src[i+1] == '=' {
+				return nil, newError(src, start, "\"==\" is not part of the language; compare with <, <=, > or >= inside if(...)")
+			}
+			toks = append(toks, token{kind: tokOp, text: "=", pos: start})
 		default:
 			toks = append(toks, token{kind: tokBad, text: string(r), pos: start})
 		}

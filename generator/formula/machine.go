@@ -198,7 +198,11 @@ func (m *Machine) Hessian(hess, grad, vars []float64) float64 {
 		H := m.hess[i*nv*nv : (i+1)*nv*nv]
 		clear(G)
 		clear(H)
-		a, b := v[in.a], v[in.b]
+		var a, b float64
+		if in.op != opVar && in.op != opConst {
+			// For opVar, in.a is a variable index, not a slot.
+			a, b = v[in.a], v[in.b]
+		}
 		z := v[i]
 		switch in.op {
 		case opConst:

@@ -117,6 +117,9 @@ func (p *parser) parseFile() *File {
 		f.Expr = p.parseExpr()
 		t = p.peekExpr()
 		if t.kind != tokEOF {
+			if t.kind == tokIdent && p.isOp(p.toks[p.i+1], "=") {
+				p.fail(p.toks[p.i+1], "expected an operator or end of formula, found \"=\" (parameter lines must come before the expression)")
+			}
 			if p.isOp(t, "=") {
 				p.fail(t, "expected an operator or end of formula, found \"=\" (parameter lines must come before the expression)")
 			}

@@ -32,6 +32,15 @@ var opNames = [...]string{"const", "var", "add", "sub", "mul", "div", "neg", "sq
 
 func (o opcode) String() string { return opNames[o] }
 
+// unary reports operations that read only operand a.
+func (o opcode) unary() bool {
+	switch o {
+	case opNeg, opSq, opPowK, opPowB, opExp, opLn, opSqrt, opAbs:
+		return true
+	}
+	return false
+}
+
 // instr writes slot i (its index in the program) from earlier slots a, b, c.
 type instr struct {
 	op      opcode
