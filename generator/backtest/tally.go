@@ -56,6 +56,9 @@ type Money struct {
 	Total, Mean float64
 	// MeanEffort is the mean effort L(p, y).
 	MeanEffort float64
+	// Min and Max are the smallest and largest payment (NaN with no
+	// forecasts).
+	Min, Max float64
 	// OffMenu counts forecasts that are not on the report menu (paid by the
 	// formula).
 	OffMenu int
@@ -131,10 +134,17 @@ func (a sum) value() float64 {
 
 type moneyTally struct {
 	pay, effort                                   sum
+	min, max                                      float64
 	count, off, low, high, nonFinite, firstNonFin int
 }
 
 func (m *moneyTally) add(p Paid, line int, s *Scheme) {
+	if m.count == 0 || p.Pay < m.min {
+		m.min = p.Pay
+	}
+	if m.count == 0 || p.Pay > m.max {
+		m.max = p.Pay
+	}
 	m.count++
 	m.pay.add(p.Pay)
 	m.effort.add(p.Effort)
@@ -162,12 +172,12 @@ func (m *moneyTally) add(p Paid, line int, s *Scheme) {
 
 func (m *moneyTally) money() Money {
 	out := Money{Count: m.count, Total: m.pay.value(), OffMenu: m.off, BelowLow: m.low, AboveHigh: m.high,
-		NonFinite: m.nonFinite, FirstNonFinite: m.firstNonFin}
+		NonFinite: m.nonFinite, FirstNonFinite: m.firstNonFin, Min: m.min, Max: m.max}
 	if m.count > 0 {
 		out.Mean = out.Total / float64(m.count)
 		out.MeanEffort = m.effort.value() / float64(m.count)
 	} else {
-		out.Mean, out.MeanEffort = math.NaN(), math.NaN()
+		out.Mean, out.MeanEffort, out.Min, out.Max = math.NaN(), math.NaN(), math.NaN(), math.NaN()
 	}
 	return out
 }

@@ -1,0 +1,184 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"math"
+	"strings"
+	"text/tabwriter"
+
+	"scorewright/generator/backtest"
+	"scorewright/generator/history"
+	"scorewright/generator/num"
+)
+
+// maxSkippedShown caps the skipped rows the text report lists; --json
+// lists every one the run kept.
+const maxSkippedShown = 20
+
+func newBacktestReport(path string, h *history.Reader, schemes []*backtestScheme, res *backtest.Result) *backtestReport {
+	r := &backtestReport{History: path, Outcomes: h.Labels(), Tolerance: h.Tolerance(), Rows: res.Rows,
+		SkipCount: res.SkippedCount, Skipped: []skippedReport{}, Caution: moneyCaution}
+	for _, s := range res.Skipped {
+		r.Skipped = append(r.Skipped, skippedReport(s))
+	}
+	for i, s := range schemes {
+		m := res.All[i]
+		r.decimals = append(r.decimals, s.money.decimals)
+		r.Rules = append(r.Rules, ruleReport{ID: s.id, Name: s.name, Formula: s.d.Formula, Pay: s.money.formula,
+			Menu: s.money.menu, Budget: s.money.budget, Count: m.Count, Total: num.Float(m.Total), Mean: num.Float(m.Mean),
+			Min: num.Float(m.Min), Max: num.Float(m.Max), OffMenu: m.OffMenu, BelowLow: m.BelowLow, AboveHigh: m.AboveHigh,
+			NonFinite: m.NonFinite})
+		if m.OffMenu > 0 {
+			r.Notes = append(r.Notes, fmt.Sprintf("rule %s: %d of %d forecasts are off the report menu (%s); the table has no row for them, so they are paid by the formula (%s)",
+				s.id, m.OffMenu, m.Count, s.money.menu, s.money.formula))
+		}
+		if m.NonFinite > 0 {
+			r.Notes = append(r.Notes, fmt.Sprintf("rule %s: %d payments are not finite (first on line %d): the forecast gave the outcome that happened a probability at which the rule's effort is infinite; totals include them",
+				s.id, m.NonFinite, m.FirstNonFinite))
+		}
+	}
+	for _, f := range res.Forecasters {
+		fr := forecasterReport{Name: f.Name, Count: f.Count, Total: num.Float(f.Money[0].Total), Mean: num.Float(f.Money[0].Mean),
+			Rank: f.Rank[0], Ranks: f.Rank, Binning: f.Binning.String()}
+		for i, m := range f.Money {
+			fr.Totals = append(fr.Totals, num.Float(m.Total))
+			fr.Means = append(fr.Means, num.Float(m.Mean))
+			fr.OffMenu = append(fr.OffMenu, m.OffMenu)
+			d := f.Decomposition[i]
+			fr.Decomposition = append(fr.Decomposition, decompositionReport{Rule: schemes[i].id, MeanEffort: num.Float(d.MeanEffort),
+				Uncertainty: num.Float(d.Uncertainty), Resolution: num.Float(d.Resolution), Reliability: num.Float(d.Reliability),
+				WithinBin: num.Float(d.WithinBin)})
+		}
+		if len(f.Rank) > 1 {
+			c := f.Rank[0] - f.Rank[1]
+			fr.RankChange = &c
+		}
+		r.Forecasters = append(r.Forecasters, fr)
+	}
+	if len(r.Outcomes) == 2 {
+		for _, c := range reliabilityCurves(res, 0) {
+			rr := reliabilityReport{Forecaster: c.Name, Outcome: r.Outcomes[0], Points: []pointJSON{}}
+			for _, p := range c.Points {
+				rr.Points = append(rr.Points, pointJSON{num.Float(p.Forecast), num.Float(p.Observed), p.Count})
+			}
+			r.Reliability = append(r.Reliability, rr)
+		}
+	}
+	return r
+}
+
+// cash formats a payment with the rule's currency decimals.
+func (r *backtestReport) cash(rule int, v num.Float) string {
+	x := float64(v)
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return fmt.Sprint(x)
+	}
+	if d := r.decimals[rule]; d >= 0 {
+		return fmt.Sprintf("%.*f", d, x)
+	}
+	return fmt.Sprintf("%.6g", x)
+}
+
+func (r *backtestReport) writeText(w io.Writer) error {
+	fmt.Fprintf(w, "history %s: %d forecasts scored, %d rows skipped (a row's probabilities must lie in [0, 1] and sum to 1 within %g)\n\n",
+		r.History, r.Rows, r.SkipCount, r.Tolerance)
+	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', 0)
+	for _, rule := range r.Rules {
+		fmt.Fprintf(tw, "rule %s\t%s\t%s\n", rule.ID, rule.Name, strings.ReplaceAll(rule.Formula, "\n", "; "))
+		fmt.Fprintf(tw, "\t%s\t%s; %s\n", rule.Budget, rule.Pay, rule.Menu)
+	}
+	tw.Flush()
+	fmt.Fprintln(w)
+
+	two := len(r.Rules) > 1
+	tw = tabwriter.NewWriter(w, 0, 4, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprint(tw, "forecaster\tforecasts\t")
+	for _, rule := range r.Rules {
+		fmt.Fprintf(tw, "total %s\tmean %s\trank %s\t", rule.ID, rule.ID, rule.ID)
+	}
+	if two {
+		fmt.Fprint(tw, "rank A→B\t")
+	}
+	fmt.Fprint(tw, "off menu\t\n")
+	for _, f := range r.Forecasters {
+		fmt.Fprintf(tw, "%s\t%d\t", f.Name, f.Count)
+		for i := range r.Rules {
+			fmt.Fprintf(tw, "%s\t%.4g\t%d\t", r.cash(i, f.Totals[i]), float64(f.Means[i]), f.Ranks[i])
+		}
+		if two {
+			change := "="
+			switch c := *f.RankChange; {
+			case c > 0:
+				change = fmt.Sprintf("%d→%d up", f.Ranks[0], f.Ranks[1])
+			case c < 0:
+				change = fmt.Sprintf("%d→%d down", f.Ranks[0], f.Ranks[1])
+			}
+			fmt.Fprintf(tw, "%s\t", change)
+		}
+		fmt.Fprintf(tw, "%d\t\n", f.OffMenu[0])
+	}
+	fmt.Fprintf(tw, "all\t%d\t", r.Rows)
+	for i, rule := range r.Rules {
+		fmt.Fprintf(tw, "%s\t%.4g\t\t", r.cash(i, rule.Total), float64(rule.Mean))
+	}
+	if two {
+		fmt.Fprint(tw, "\t")
+	}
+	fmt.Fprintf(tw, "%d\t\n", r.Rules[0].OffMenu)
+	tw.Flush()
+	fmt.Fprintln(w, "(ranks by mean pay per forecast; 1 is best)")
+	fmt.Fprintln(w)
+
+	fmt.Fprintln(w, "totals against the budget")
+	for i, rule := range r.Rules {
+		fmt.Fprintf(w, "  rule %s: paid %s for %d forecasts (mean %.4g, smallest %s, largest %s); ", rule.ID,
+			r.cash(i, rule.Total), rule.Count, float64(rule.Mean), r.cash(i, rule.Min), r.cash(i, rule.Max))
+		if rule.BelowLow+rule.AboveHigh == 0 {
+			fmt.Fprintf(w, "every payment within the budget (%s)\n", rule.Budget)
+		} else {
+			fmt.Fprintf(w, "%d payments below the floor and %d above the cap (%s)\n", rule.BelowLow, rule.AboveHigh, rule.Budget)
+		}
+	}
+	fmt.Fprintln(w)
+
+	fmt.Fprintln(w, "mean effort = uncertainty - resolution + reliability (+ within-bin, zero when bins are the distinct forecasts)")
+	tw = tabwriter.NewWriter(w, 0, 4, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprint(tw, "rule\tforecaster\tmean effort\tuncertainty\tresolution\treliability\twithin-bin\t\n")
+	for i, rule := range r.Rules {
+		for _, f := range r.Forecasters {
+			d := f.Decomposition[i]
+			fmt.Fprintf(tw, "%s\t%s\t%.6g\t%.6g\t%.6g\t%.6g\t%.2g\t\n", rule.ID, f.Name, float64(d.MeanEffort), float64(d.Uncertainty),
+				float64(d.Resolution), float64(d.Reliability), float64(d.WithinBin))
+		}
+	}
+	tw.Flush()
+	binnings := map[string][]string{}
+	var order []string
+	for _, f := range r.Forecasters {
+		if binnings[f.Binning] == nil {
+			order = append(order, f.Binning)
+		}
+		binnings[f.Binning] = append(binnings[f.Binning], f.Name)
+	}
+	for _, b := range order {
+		fmt.Fprintf(w, "(%s: %s)\n", strings.Join(binnings[b], ", "), b)
+	}
+
+	if r.SkipCount > 0 {
+		fmt.Fprintf(w, "\nskipped rows (%d):\n", r.SkipCount)
+		for i, s := range r.Skipped {
+			if i == maxSkippedShown {
+				fmt.Fprintf(w, "  ... and %d more (--json lists the first %d)\n", r.SkipCount-maxSkippedShown, len(r.Skipped))
+				break
+			}
+			fmt.Fprintf(w, "  line %d: %s\n", s.Line, s.Why)
+		}
+	}
+	fmt.Fprintln(w)
+	for _, n := range r.Notes {
+		fmt.Fprintln(w, "note:", n)
+	}
+	_, err := fmt.Fprintln(w, "caution:", r.Caution)
+	return err
+}
