@@ -19,11 +19,10 @@ var errHelp = errors.New("help shown")
 
 // newFlags returns a flag set whose errors come back as one-line usage
 // errors instead of being printed with the whole usage text.
-func newFlags(name, usage string) *flag.FlagSet {
+func newFlags(name, _ string) *flag.FlagSet {
 	fs := flag.NewFlagSet(name, flag.ContinueOnError)
 	fs.SetOutput(io.Discard)
 	fs.Usage = func() {}
-	_ = usage
 	return fs
 }
 
@@ -33,9 +32,14 @@ func newFlags(name, usage string) *flag.FlagSet {
 func parseFlags(e *env, fs *flag.FlagSet, usage string, args []string, positional bool) error {
 	if err := fs.Parse(args); err != nil {
 		if errors.Is(err, flag.ErrHelp) {
-			fmt.Fprintf(e.stdout, "usage: scorewright %s %s\n\n", fs.Name(), usage)
-			fs.SetOutput(e.stdout)
-			fs.PrintDefaults()
+			fmt.Fprintf(e.stdout, "usage: scorewright %s %s\n\noptions:\n", fs.Name(), usage)
+			fs.VisitAll(func(f *flag.Flag) {
+				arg, help := flag.UnquoteUsage(f)
+				if arg != "" {
+					arg = " " + arg
+				}
+				fmt.Fprintf(e.stdout, "  --%s%s\n        %s\n", f.Name, arg, help)
+			})
 			return errHelp
 		}
 		return usagef("%v", err)

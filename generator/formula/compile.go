@@ -97,49 +97,9 @@ func Compile(f *File, scope Scope) (*Program, error) {
 			return nil, fmt.Errorf("unknown parameter %q; the formula sets: %s", name, strings.Join(known, ", "))
 		}
 	}
-	code, out := compact(c.code, out)
-	return &Program{code: code, out: out, varNames: c.varNames, params: c.paramList}, nil
-}
-
-// compact drops instructions the result does not depend on (constants
-// left over from folding, subscripts, parameter values) and renumbers the
-// rest, keeping their order.
-func compact(code []instr, out int32) ([]instr, int32) {
-	live := make([]bool, len(code))
-	live[out] = true
-	for i := int(out); i >= 0; i-- {
-		if !live[i] {
-			continue
-		}
-		switch in := code[i]; {
-		case in.op == opConst || in.op == opVar:
-		case in.op.unary():
-			live[in.a] = true
-		case in.op == opSelect:
-			live[in.a], live[in.b], live[in.c] = true, true, true
-		default:
-			live[in.a], live[in.b] = true, true
-		}
-	}
-	renum := make([]int32, len(code))
-	var kept []instr
-	for i, in := range code {
-		if !live[i] {
-			continue
-		}
-		renum[i] = int32(len(kept))
-		switch {
-		case in.op == opConst || in.op == opVar:
-		case in.op.unary():
-			in.a = renum[in.a]
-		case in.op == opSelect:
-			in.a, in.b, in.c = renum[in.a], renum[in.b], renum[in.c]
-		default:
-			in.a, in.b = renum[in.a], renum[in.b]
-		}
-		kept = append(kept, in)
-	}
-	return kept, renum[out]
+	p := link(c.code, out, c.varNames)
+	p.params = c.paramList
+	return p, nil
 }
 
 // CompileString parses and compiles src in one step.
@@ -340,6 +300,14 @@ func (c *compiler) op(o opcode, a, b int32, k float64) int32 {
 		if cb && kb == 1 {
 			return a
 		}
+		// x * ln(x), the term of every entropy, is fused: one instruction,
+		// and its derivative ln(x) + 1 needs no division in the backward sweep.
+		if in := c.code[b]; in.op == opLn && in.a == a {
+			return c.push(instr{op: opXLnX, a: a})
+		}
+		if in := c.code[a]; in.op == opLn && in.a == b {
+			return c.push(instr{op: opXLnX, a: b})
+		}
 	case opDiv:
 		if cb && kb == 1 {
 			return a
@@ -410,6 +378,8 @@ func apply(o opcode, a, b, k float64) float64 {
 		return cmp(a, b, a > b)
 	case opGe:
 		return cmp(a, b, a >= b)
+	case opXLnX:
+		return mul0(a, math.Log(a))
 	}
 	panic("formula: apply of " + o.String())
 }

@@ -11,8 +11,11 @@ import (
 type Machine struct {
 	prog *Program
 	nv   int
+	base int
 	val  []float64
 	adj  []float64
+	// aux keeps ln(a) of each opXLnX for the backward sweep.
+	aux []float64
 	// Second-order forward mode: gradient and Hessian of every slot,
 	// allocated on first use of Hessian.
 	grad []float64
@@ -21,7 +24,12 @@ type Machine struct {
 
 // NewMachine returns a Machine for p.
 func (p *Program) NewMachine() *Machine {
-	return &Machine{prog: p, nv: len(p.varNames), val: make([]float64, len(p.code)), adj: make([]float64, len(p.code))}
+	nv, base := len(p.varNames), p.base()
+	total := base + len(p.code)
+	m := &Machine{prog: p, nv: nv, base: base, val: make([]float64, total), adj: make([]float64, total), aux: make([]float64, total)}
+	// Constants never change: place them once.
+	copy(m.val[nv:base], p.consts)
+	return m
 }
 
 // Program returns the program the machine runs.
@@ -42,18 +50,24 @@ func (m *Machine) Value(vars []float64) float64 {
 
 func (m *Machine) forward(vars []float64) {
 	v := m.val
-	for i, in := range m.prog.code {
+	// Loops, not copy(): for a handful of variables the call costs more
+	// than the copying.
+	for k, x := range vars {
+		v[k] = x
+	}
+	i := m.base
+	for _, in := range m.prog.code {
 		switch in.op {
-		case opConst:
-			v[i] = in.k
-		case opVar:
-			v[i] = vars[in.a]
 		case opAdd:
 			v[i] = v[in.a] + v[in.b]
 		case opSub:
 			v[i] = v[in.a] - v[in.b]
 		case opMul:
-			v[i] = mul0(v[in.a], v[in.b])
+			r := v[in.a] * v[in.b]
+			if r != r {
+				r = mul0(v[in.a], v[in.b])
+			}
+			v[i] = r
 		case opDiv:
 			v[i] = v[in.a] / v[in.b]
 		case opNeg:
@@ -62,6 +76,15 @@ func (m *Machine) forward(vars []float64) {
 			v[i] = v[in.a] * v[in.a]
 		case opLn:
 			v[i] = math.Log(v[in.a])
+		case opXLnX:
+			x := v[in.a]
+			l := math.Log(x)
+			m.aux[i] = l
+			r := x * l
+			if r != r {
+				r = mul0(x, l)
+			}
+			v[i] = r
 		case opSelect:
 			c := v[in.c]
 			switch {
@@ -75,6 +98,7 @@ func (m *Machine) forward(vars []float64) {
 		default:
 			v[i] = apply(in.op, v[in.a], v[in.b], in.k)
 		}
+		i++
 	}
 }
 
@@ -89,27 +113,21 @@ func (m *Machine) Gradient(grad, vars []float64) float64 {
 	}
 	m.forward(vars)
 	v, adj := m.val, m.adj
-	for i := range adj {
-		adj[i] = 0
+	out := int(m.prog.out)
+	for k := range adj[:out+1] {
+		adj[k] = 0
 	}
-	for i := range grad {
-		grad[i] = 0
-	}
-	out := m.prog.out
 	adj[out] = 1
 	code := m.prog.code
-	for i := int(out); i >= 0; i-- {
+	for i := out; i >= m.base; i-- {
 		g := adj[i]
 		if g == 0 {
 			// Nothing flows back from here; skipping also keeps 0 * Inf
 			// partials of unused branches out of the result.
 			continue
 		}
-		in := code[i]
+		in := code[i-m.base]
 		switch in.op {
-		case opConst:
-		case opVar:
-			grad[in.a] += g
 		case opAdd:
 			adj[in.a] += g
 			adj[in.b] += g
@@ -127,42 +145,57 @@ func (m *Machine) Gradient(grad, vars []float64) float64 {
 			adj[in.a] -= g
 		case opSq:
 			adj[in.a] += 2 * mul0(g, v[in.a])
-		case opPowK:
-			adj[in.a] += mul0(g, in.k*math.Pow(v[in.a], in.k-1))
-		case opPowB:
-			adj[in.a] += mul0(g, v[i]*math.Log(in.k))
-		case opPow:
-			a, b := v[in.a], v[in.b]
-			adj[in.a] += mul0(g, b*math.Pow(a, b-1))
-			adj[in.b] += mul0(g, mul0(v[i], math.Log(a)))
-		case opExp:
-			adj[in.a] += mul0(g, v[i])
 		case opLn:
 			adj[in.a] += g / v[in.a]
-		case opSqrt:
-			adj[in.a] += g * 0.5 / v[i]
-		case opAbs:
-			adj[in.a] += g * sign(v[in.a])
-		case opMin, opMax:
-			if v[in.a] == v[i] {
-				adj[in.a] += g
-			} else {
-				adj[in.b] += g
-			}
-		case opLt, opLe, opGt, opGe:
-		case opSelect:
-			c := v[in.c]
-			switch {
-			case c != c:
-				adj[in.a] += math.NaN()
-			case c != 0:
-				adj[in.a] += g
-			default:
-				adj[in.b] += g
-			}
+		case opXLnX:
+			adj[in.a] += g * (m.aux[i] + 1)
+		default:
+			m.backwardRare(in, i, g)
 		}
 	}
+	for k := range grad {
+		grad[k] = adj[k]
+	}
 	return v[out]
+}
+
+// backwardRare propagates the adjoint g of slot i through the less common
+// operations; kept apart so the hot loop stays small.
+func (m *Machine) backwardRare(in instr, i int, g float64) {
+	v, adj := m.val, m.adj
+	switch in.op {
+	case opPowK:
+		adj[in.a] += mul0(g, in.k*math.Pow(v[in.a], in.k-1))
+	case opPowB:
+		adj[in.a] += mul0(g, v[i]*math.Log(in.k))
+	case opPow:
+		a, b := v[in.a], v[in.b]
+		adj[in.a] += mul0(g, b*math.Pow(a, b-1))
+		adj[in.b] += mul0(g, mul0(v[i], math.Log(a)))
+	case opExp:
+		adj[in.a] += mul0(g, v[i])
+	case opSqrt:
+		adj[in.a] += g * 0.5 / v[i]
+	case opAbs:
+		adj[in.a] += g * sign(v[in.a])
+	case opMin, opMax:
+		if v[in.a] == v[i] {
+			adj[in.a] += g
+		} else {
+			adj[in.b] += g
+		}
+	case opLt, opLe, opGt, opGe:
+	case opSelect:
+		c := v[in.c]
+		switch {
+		case c != c:
+			adj[in.a] += math.NaN()
+		case c != 0:
+			adj[in.a] += g
+		default:
+			adj[in.b] += g
+		}
+	}
 }
 
 func sign(x float64) float64 {
@@ -186,28 +219,27 @@ func (m *Machine) Hessian(hess, grad, vars []float64) float64 {
 	if len(grad) != nv || len(hess) != nv*nv {
 		panic(fmt.Sprintf("formula: Hessian needs grad of %d and hess of %d", nv, nv*nv))
 	}
-	ns := len(m.prog.code)
+	ns := len(m.val)
 	if m.grad == nil {
+		// Variables have unit gradients and constants zero ones; both are
+		// fixed, so they are set once here.
 		m.grad = make([]float64, ns*nv)
 		m.hess = make([]float64, ns*nv*nv)
+		for k := 0; k < nv; k++ {
+			m.grad[k*nv+k] = 1
+		}
 	}
 	m.forward(vars)
 	v := m.val
-	for i, in := range m.prog.code {
+	for j, in := range m.prog.code {
+		i := m.base + j
 		G := m.grad[i*nv : (i+1)*nv]
 		H := m.hess[i*nv*nv : (i+1)*nv*nv]
 		clear(G)
 		clear(H)
-		var a, b float64
-		if in.op != opVar && in.op != opConst {
-			// For opVar, in.a is a variable index, not a slot.
-			a, b = v[in.a], v[in.b]
-		}
+		a, b := v[in.a], v[in.b]
 		z := v[i]
 		switch in.op {
-		case opConst:
-		case opVar:
-			G[in.a] = 1
 		case opAdd:
 			m.binary(i, in, 1, 1, 0, 0, 0)
 		case opSub:
@@ -234,6 +266,8 @@ func (m *Machine) Hessian(hess, grad, vars []float64) float64 {
 			m.unary(i, in, z, z)
 		case opLn:
 			m.unary(i, in, 1/a, -1/(a*a))
+		case opXLnX:
+			m.unary(i, in, math.Log(a)+1, 1/a)
 		case opSqrt:
 			m.unary(i, in, 0.5/z, -0.25/(z*a))
 		case opAbs:
@@ -243,8 +277,7 @@ func (m *Machine) Hessian(hess, grad, vars []float64) float64 {
 			if a != z {
 				src = in.b
 			}
-			copy(G, m.grad[int(src)*nv:(int(src)+1)*nv])
-			copy(H, m.hess[int(src)*nv*nv:(int(src)+1)*nv*nv])
+			m.copySlot(i, int(src))
 		case opLt, opLe, opGt, opGe:
 		case opSelect:
 			c := v[in.c]
@@ -252,8 +285,7 @@ func (m *Machine) Hessian(hess, grad, vars []float64) float64 {
 			if c == 0 {
 				src = in.b
 			}
-			copy(G, m.grad[int(src)*nv:(int(src)+1)*nv])
-			copy(H, m.hess[int(src)*nv*nv:(int(src)+1)*nv*nv])
+			m.copySlot(i, int(src))
 			if c != c {
 				for k := range G {
 					G[k] = math.NaN()
@@ -265,6 +297,12 @@ func (m *Machine) Hessian(hess, grad, vars []float64) float64 {
 	copy(grad, m.grad[out*nv:(out+1)*nv])
 	copy(hess, m.hess[out*nv*nv:(out+1)*nv*nv])
 	return v[out]
+}
+
+func (m *Machine) copySlot(dst, src int) {
+	nv := m.nv
+	copy(m.grad[dst*nv:(dst+1)*nv], m.grad[src*nv:(src+1)*nv])
+	copy(m.hess[dst*nv*nv:(dst+1)*nv*nv], m.hess[src*nv*nv:(src+1)*nv*nv])
 }
 
 // unary applies the chain rule for z = f(u): G = f' Gu, H = f' Hu + f” Gu Guᵀ.

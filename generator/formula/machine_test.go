@@ -164,8 +164,8 @@ func TestConstantFoldingAndSharing(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if got := prog.Len(); got != 9 {
-		t.Errorf("program has %d instructions, want 9 (3 var, 3 sq, 2 add, 1 add; constants folded away)", got)
+	if got := prog.Len(); got != 6 {
+		t.Errorf("program has %d instructions, want 6 (3 squares, 3 additions; variables and constants are slots, not instructions)", got)
 	}
 	prog, _ = CompileString("g = 2\nh = g*pi\nh/pi + n", Scope{Outcomes: 3})
 	if !prog.IsConstant() || prog.Constant() != 5 {
