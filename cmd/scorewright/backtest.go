@@ -330,16 +330,22 @@ func refuseExisting(path string, force bool) error {
 	return nil
 }
 
+// pictureCells is how many bins per unit of probability the reliability
+// picture groups forecasts into: the usual tenths.
+const pictureCells = 10
+
+// reliabilityCurves are the forecasters' curves for outcome k, in bins of
+// width 1/pictureCells.
 func reliabilityCurves(res *backtest.Result, k int) []backtest.Curve {
 	curves := make([]backtest.Curve, len(res.Forecasters))
 	for i, f := range res.Forecasters {
-		curves[i] = backtest.ReliabilityCurve(f.Name, f.Bins, k)
+		curves[i] = backtest.ReliabilityCurve(f.Name, backtest.Regroup(f.Bins, pictureCells), k)
 	}
 	return curves
 }
 
 func writeReliabilityFigure(path, format string, force bool, event string, res *backtest.Result) error {
-	p, err := figure.Reliability(reliabilityCurves(res, 0), event, "Reliability of forecasts of "+strconv.Quote(event))
+	p, err := figure.Reliability(reliabilityCurves(res, 0), event, fmt.Sprintf("Reliability of forecasts of %q (bins of width 1/%d)", event, pictureCells))
 	if err != nil {
 		return err
 	}

@@ -1,6 +1,9 @@
 package backtest
 
-import "sort"
+import (
+	"math"
+	"sort"
+)
 
 // ReliabilityPoint is one bin of a reliability curve.
 type ReliabilityPoint struct {
@@ -32,4 +35,37 @@ func ReliabilityCurve(name string, bins []Bin, k int) Curve {
 	}
 	sort.SliceStable(c.Points, func(i, j int) bool { return c.Points[i].Forecast < c.Points[j].Forecast })
 	return c
+}
+
+// Regroup merges bins into cells 1/k wide in every probability, by their
+// mean forecasts: coarser bins for a picture that should show a trend
+// rather than every distinct forecast. Counts and frequencies are kept
+// exactly; the result is sorted like Forecaster.Bins.
+func Regroup(bins []Bin, k int) []Bin {
+	if k <= 0 {
+		panic("backtest: Regroup needs k > 0")
+	}
+	if len(bins) == 0 {
+		return nil
+	}
+	n := len(bins[0].Forecast)
+	set := newBinSet(n, math.MaxInt, k)
+	set.grid = k
+	for _, b := range bins {
+		if b.Count == 0 {
+			continue
+		}
+		key := set.key(b.Forecast)
+		i, ok := set.index[key]
+		if !ok {
+			i = set.newBin(key)
+		}
+		c := float64(b.Count)
+		set.count[i] += b.Count
+		for j := range n {
+			set.sumP[i*n+j] += c * b.Forecast[j]
+			set.hits[i*n+j] += c * b.Observed[j]
+		}
+	}
+	return set.bins()
 }

@@ -105,8 +105,10 @@ func (b *binSet) key(p []float64) binKey {
 		copy(k[:], p)
 		return k
 	}
+	// The last probability follows from the others, so cells are cut in
+	// the first n-1 only (for two outcomes: in the event's probability).
 	g := float64(b.grid)
-	for i, x := range p {
+	for i, x := range p[:len(p)-1] {
 		k[i] = math.Round(x * g)
 	}
 	return k

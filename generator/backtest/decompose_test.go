@@ -221,3 +221,23 @@ func TestCoarsening(t *testing.T) {
 		t.Errorf("within-bin remainder is exactly 0 on a grid; expected the bins to mix forecasts")
 	}
 }
+
+// Regrouping for a picture keeps every forecast and every hit, and the
+// curve reads observed frequency against mean forecast. By hand for
+// murphySample on cells of width 1 (forecasts rounded to 0 or 1): 0.2
+// rounds to 0, 0.6 and 0.9 to 1, so the second point has 15 forecasts, mean forecast (5·0.6 + 10·0.9)/15
+// = 0.8 and frequency (4 + 8)/15 = 0.8.
+func TestRegroup(t *testing.T) {
+	res := murphyTally(t, rule(t, "1 - sum(p^2)", 2, false))
+	c := ReliabilityCurve("Alder", Regroup(res.Forecasters[0].Bins, 1), 0)
+	want := []ReliabilityPoint{{0.2, 0.2, 5}, {0.8, 0.8, 15}}
+	if len(c.Points) != len(want) {
+		t.Fatalf("points %+v, want %+v", c.Points, want)
+	}
+	for i, w := range want {
+		p := c.Points[i]
+		if p.Count != w.Count || math.Abs(p.Forecast-w.Forecast) > 1e-12 || math.Abs(p.Observed-w.Observed) > 1e-12 {
+			t.Errorf("point %d = %+v, want %+v", i, p, w)
+		}
+	}
+}

@@ -8,6 +8,7 @@ package reliability
 
 import (
 	"fmt"
+	"math"
 	"strings"
 
 	"github.com/NimbleMarkets/ntcharts/canvas"
@@ -58,25 +59,48 @@ func (c Chart) View(width, height int) string {
 		return fmt.Sprintf("(reliability chart needs at least %d×%d cells)", MinWidth, MinHeight)
 	}
 	legend := c.legend(width)
-	plotH := height - 2 - len(legend)
-	tick := func(_ int, v float64) string { return fmt.Sprintf("%.1f", v) }
-	lc := linechart.New(width, plotH, 0, 1, 0, 1,
-		linechart.WithXYSteps(max(4, width/8), max(2, plotH/4)),
-		linechart.WithXLabelFormatter(tick), linechart.WithYLabelFormatter(tick),
-		linechart.WithStyles(c.Styles.Axis, c.Styles.Label, lipgloss.Style{}))
+	plotW, plotH := width, height-2-len(legend)
+	// Ticks fall on multiples of 0.2 only when the graph area is a
+	// multiple of 5 cells each way, so shrink the plot to fit (the padding
+	// goes to the right and bottom).
+	lc := c.chart(plotW, plotH, 1, 1)
+	if gw := lc.GraphWidth(); gw > 5 {
+		plotW -= gw % 5
+	}
+	if gh := lc.GraphHeight(); gh > 5 {
+		plotH -= gh % 5
+	}
+	lc = c.chart(plotW, plotH, 1, 1)
+	lc = c.chart(plotW, plotH, max(1, lc.GraphWidth()/5), max(1, lc.GraphHeight()/5))
 	lc.DrawXYAxisAndLabel()
 	lc.DrawBrailleLineWithStyle(canvas.Float64Point{X: 0, Y: 0}, canvas.Float64Point{X: 1, Y: 1}, c.Styles.Diagonal)
+	// Markers go in the cell whose tick value is nearest, so that they
+	// agree with the axis labels (row i above the axis is i/height).
+	o, gw, gh := lc.Origin(), lc.GraphWidth(), lc.GraphHeight()
 	for i, cv := range c.Curves {
-		s := c.series(i)
+		cell := canvas.NewCellWithStyle(markers[i%len(markers)], c.series(i))
 		for _, p := range cv.Points {
-			lc.DrawRuneWithStyle(canvas.Float64Point{X: p.Forecast, Y: p.Observed}, markers[i%len(markers)], s)
+			x := o.X + int(math.Round(clamp01(p.Forecast)*float64(gw)))
+			y := o.Y - int(math.Round(clamp01(p.Observed)*float64(gh)))
+			lc.Canvas.SetCell(canvas.Point{X: min(x, lc.Canvas.Width()-1), Y: max(y, 0)}, cell)
 		}
 	}
 	lines := []string{clip(fmt.Sprintf("observed frequency of %q", c.Outcome), width)}
 	lines = append(lines, lc.View())
-	lines = append(lines, clip(fmt.Sprintf("%*s", width, fmt.Sprintf("forecast probability of %q", c.Outcome)), width))
+	lines = append(lines, clip(fmt.Sprintf("%*s", plotW, fmt.Sprintf("forecast probability of %q", c.Outcome)), width))
 	lines = append(lines, legend...)
+	for range height - 2 - len(legend) - plotH {
+		lines = append(lines, "")
+	}
 	return strings.Join(lines, "\n")
+}
+
+// chart makes the empty plot with ticks every xStep and yStep cells.
+func (c Chart) chart(w, h, xStep, yStep int) linechart.Model {
+	tick := func(_ int, v float64) string { return fmt.Sprintf("%.1f", v) }
+	return linechart.New(w, h, 0, 1, 0, 1, linechart.WithXYSteps(xStep, yStep),
+		linechart.WithXLabelFormatter(tick), linechart.WithYLabelFormatter(tick),
+		linechart.WithStyles(c.Styles.Axis, c.Styles.Label, lipgloss.Style{}))
 }
 
 func (c Chart) series(i int) lipgloss.Style {
@@ -115,5 +139,7 @@ func (c Chart) legend(width int) []string {
 	}
 	return lines
 }
+
+func clamp01(x float64) float64 { return math.Min(1, math.Max(0, x)) }
 
 func clip(s string, width int) string { return ansi.Truncate(s, width, "…") }

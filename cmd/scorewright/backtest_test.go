@@ -1,0 +1,295 @@
+package main
+
+import (
+	"bytes"
+	"encoding/csv"
+	"encoding/json"
+	"fmt"
+	"image/png"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+
+	"scorewright/generator/backtest"
+	"scorewright/generator/bregman"
+	"scorewright/generator/design"
+)
+
+const (
+	frostHistory   = "../../generator/history/testdata/orchard-frost.csv"
+	harvestHistory = "../../generator/history/testdata/harvest-outlook.csv"
+)
+
+// explicitFit pays A - B·effort with A = cap and B = 5, unrounded, on a
+// menu of multiples of the budget step: a fit written out by hand, so the
+// command can be tested apart from the table's budget fitting.
+func explicitFit(r *bregman.Rule, d *design.Design) (*money, error) {
+	step := d.Budget.Step
+	on := func(p []float64) bool {
+		for _, x := range p {
+			if math.Abs(x/step-math.Round(x/step)) > 1e-9 {
+				return false
+			}
+		}
+		return true
+	}
+	return &money{pay: backtest.Affine{A: d.Budget.Cap, B: 5}, onMenu: on, low: d.Budget.Floor, high: d.Budget.Cap,
+		formula: "pay = cap - 5·effort", menu: "steps of " + strconv.FormatFloat(step, 'g', -1, 64),
+		budget: "floor and cap as given", decimals: -1}, nil
+}
+
+func runBacktestCmd(t *testing.T, args ...string) (int, string, string) {
+	t.Helper()
+	var out, errb bytes.Buffer
+	e := &env{stdin: strings.NewReader(""), stdout: &out, stderr: &errb}
+	code := exitCode(e, "backtest", backtestWith(e, args, explicitFit))
+	return code, out.String(), errb.String()
+}
+
+var frostRule = []string{"--outcomes", "frost,clear", "--preset", "quadratic", "--floor", "0", "--cap", "10", "--step", "0.05"}
+
+func TestBacktestSampleJSON(t *testing.T) {
+	dir := t.TempDir()
+	payOut := filepath.Join(dir, "pay.csv")
+	args := append(append([]string{}, frostRule...), "--history", frostHistory, "--versus-preset", "spherical",
+		"--pay-out", payOut, "--json")
+	code, out, stderr := runBacktestCmd(t, args...)
+	if code != 0 {
+		t.Fatalf("exit %d, stderr %s", code, stderr)
+	}
+	var got struct {
+		Rows        int
+		Forecasters []struct {
+			Name   string
+			Count  int
+			Total  float64
+			Ranks  []int
+			Totals []float64
+		}
+		Skipped []struct {
+			Line int
+			Why  string
+		}
+		Rules []struct {
+			ID      string
+			OffMenu int `json:"off_menu"`
+		}
+		Caution string
+	}
+	if err := json.Unmarshal([]byte(out), &got); err != nil {
+		t.Fatalf("%v\n%s", err, out)
+	}
+	// The planted bad rows of the sample (see generator/history/sample_test.go).
+	var lines []int
+	for _, s := range got.Skipped {
+		lines = append(lines, s.Line)
+	}
+	if fmt.Sprint(lines) != "[24 61 101 147]" {
+		t.Errorf("skipped lines %v, want 24, 61, 101, 147", lines)
+	}
+	// Independent check: Brier (1950) in its binary form (f - o)^2, read
+	// straight from the file; the two-outcome quadratic effort is twice it.
+	want := map[string]float64{}
+	count := map[string]int{}
+	f, err := os.Open(frostHistory)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	cr := csv.NewReader(f)
+	cr.FieldsPerRecord = -1
+	cr.Read()
+	for {
+		rec, err := cr.Read()
+		if err == io.EOF {
+			break
+		}
+		if len(rec) != 5 || (rec[2] != "frost" && rec[2] != "clear") {
+			continue
+		}
+		fp, err1 := strconv.ParseFloat(rec[3], 64)
+		cp, err2 := strconv.ParseFloat(rec[4], 64)
+		if err1 != nil || err2 != nil || math.Abs(fp+cp-1) > 1e-6 {
+			continue
+		}
+		o := 0.0
+		if rec[2] == "frost" {
+			o = 1
+		}
+		want[rec[0]] += 10 - 5*2*(fp-o)*(fp-o)
+		count[rec[0]]++
+	}
+	if len(got.Forecasters) != 3 {
+		t.Fatalf("forecasters %+v, want Alder, Birch, Cedar", got.Forecasters)
+	}
+	for _, fc := range got.Forecasters {
+		if fc.Count != count[fc.Name] || math.Abs(fc.Total-want[fc.Name]) > 1e-9 || fc.Totals[0] != fc.Total || len(fc.Ranks) != 2 {
+			t.Errorf("%s: count %d total %.12g, want %d and %.12g (Brier 1950 by direct reading)", fc.Name, fc.Count, fc.Total, count[fc.Name], want[fc.Name])
+		}
+	}
+	// Cedar writes some probabilities with two decimals: off the 5 % menu.
+	if got.Rules[0].OffMenu == 0 || !strings.Contains(got.Caution, "counsel") {
+		t.Errorf("rules %+v caution %q: want off-menu forecasts counted and the caution", got.Rules, got.Caution)
+	}
+	// The pay-out file adds up to the same totals.
+	data, err := os.ReadFile(payOut)
+	if err != nil {
+		t.Fatal(err)
+	}
+	pr := csv.NewReader(bytes.NewReader(data))
+	pr.Comment = '#'
+	recs, err := pr.ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	sums := map[string]float64{}
+	for _, rec := range recs[1:] {
+		x, _ := strconv.ParseFloat(rec[4], 64)
+		sums[rec[1]] += x
+	}
+	for _, fc := range got.Forecasters {
+		if math.Abs(sums[fc.Name]-fc.Total) > 1e-9 {
+			t.Errorf("pay-out file sums %s to %g, report says %g", fc.Name, sums[fc.Name], fc.Total)
+		}
+	}
+	if len(recs) != got.Rows+1 || recs[0][4] != "pay A" || recs[0][7] != "pay B" {
+		t.Errorf("pay-out file has %d records, header %v", len(recs), recs[0])
+	}
+	// Without --force the pay-out file is not replaced.
+	if code, _, stderr := runBacktestCmd(t, args...); code != 2 || !strings.Contains(stderr, "file exists") {
+		t.Errorf("second run: exit %d, stderr %q, want a refusal to overwrite", code, stderr)
+	}
+}
+
+func TestBacktestText(t *testing.T) {
+	args := append(append([]string{}, frostRule...), "--history", frostHistory, "--versus-generator", "-sqrt(sum(p^2))", "--chart")
+	code, out, stderr := runBacktestCmd(t, args...)
+	if code != 0 {
+		t.Fatalf("exit %d, stderr %s", code, stderr)
+	}
+
+	for _, want := range []string{
+		"176 forecasts scored, 4 rows skipped",
+		"rank A→B", "totals against the budget",
+		"mean effort = uncertainty - resolution + reliability",
+		"line 24: probabilities sum to 1.1",
+		`line 61: outcome "hail"`,
+		"line 101: has 4 fields",
+		`line 147: probability of "frost" is "n/a"`,
+		"off the report menu",
+		"perfect reliability", "● Alder", "▲ Birch", "■ Cedar", `forecast probability of "frost"`,
+		"caution:",
+	} {
+		if !strings.Contains(out, want) {
+			t.Errorf("output lacks %q:\n%s", want, out)
+		}
+	}
+}
+
+func TestBacktestStrictAndErrors(t *testing.T) {
+	cases := []struct {
+		args []string
+		want string
+	}{
+		{append(append([]string{}, frostRule...), "--history", frostHistory, "--strict"), "line 24: probabilities sum to 1.1"},
+		{frostRule, "--history FILE.csv is required"},
+		{append(append([]string{}, frostRule...), "--history", "nosuch.csv"), "no such file"},
+		{append(append([]string{}, frostRule...), "--history", frostHistory, "--versus-preset", "log", "--versus-generator", "1"), "at most one of"},
+		{append(append([]string{}, frostRule...), "--history", frostHistory, "--versus-param", "g=2"), "--versus-param needs"},
+		{append(append([]string{}, frostRule...), "--history", frostHistory, "--versus-preset", "nosuch"), `second rule: --preset: unknown preset "nosuch"`},
+		{append(append([]string{}, frostRule...), "--history", frostHistory, "--figure", "x.gif"), "want a .svg, .png or .pdf"},
+		{[]string{"--outcomes", "below,near,above", "--preset", "quadratic", "--cap", "10", "--step", "0.05", "--history", harvestHistory, "--chart"}, "the reliability picture is for 2 outcomes"},
+		{[]string{"--outcomes", "3", "--preset", "quadratic", "--cap", "10", "--step", "0.05", "--history", harvestHistory}, `missing columns "1", "2", "3"; unexpected columns "below", "near", "above"`},
+		{append(append([]string{}, frostRule...), "--history", frostHistory, "--tolerance", "0"), "--tolerance 0"},
+	}
+	for _, c := range cases {
+		code, _, stderr := runBacktestCmd(t, c.args...)
+		if code != 2 || !strings.Contains(stderr, c.want) || strings.Count(stderr, "\n") != 1 {
+			t.Errorf("%v: exit %d, stderr %q, want exit 2 and one line containing %q", c.args, code, stderr, c.want)
+		}
+	}
+}
+
+// Three ordered outcomes, the ranked rule against the quadratic one, read
+// from stdin.
+func TestBacktestHarvestStdin(t *testing.T) {
+	data, err := os.ReadFile(harvestHistory)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var out, errb bytes.Buffer
+	e := &env{stdin: bytes.NewReader(data), stdout: &out, stderr: &errb}
+	args := []string{"--outcomes", "below,near,above", "--ordered", "--preset", "ranked", "--floor", "0", "--cap", "20", "--step", "0.05",
+		"--history", "-", "--versus-preset", "quadratic", "--json"}
+	if code := exitCode(e, "backtest", backtestWith(e, args, explicitFit)); code != 0 {
+		t.Fatalf("exit %d: %s", code, errb.String())
+	}
+	var got struct {
+		Rows         int
+		SkippedCount int `json:"skipped_count"`
+		Forecasters  []struct {
+			Name          string
+			Decomposition []struct {
+				MeanEffort                           float64 `json:"mean_effort"`
+				Uncertainty, Resolution, Reliability float64
+				WithinBin                            float64 `json:"within_bin"`
+			}
+		}
+	}
+	if err := json.Unmarshal(out.Bytes(), &got); err != nil {
+		t.Fatal(err)
+	}
+	if got.Rows != 70 || got.SkippedCount != 2 || len(got.Forecasters) != 3 {
+		t.Fatalf("rows %d, skipped %d, forecasters %d; want 70, 2, 3", got.Rows, got.SkippedCount, len(got.Forecasters))
+	}
+	for _, f := range got.Forecasters {
+		for _, d := range f.Decomposition {
+			// Bins are the distinct forecasts here, so the identity is exact.
+			if math.Abs(d.Uncertainty-d.Resolution+d.Reliability-d.MeanEffort) > 1e-12 || math.Abs(d.WithinBin) > 1e-12 {
+				t.Errorf("%s: %+v does not add up", f.Name, d)
+			}
+		}
+	}
+}
+
+func TestBacktestFigure(t *testing.T) {
+	dir := t.TempDir()
+	for _, name := range []string{"rel.svg", "rel.png", "rel.pdf"} {
+		path := filepath.Join(dir, name)
+		args := append(append([]string{}, frostRule...), "--history", frostHistory, "--figure", path)
+		if code, _, stderr := runBacktestCmd(t, args...); code != 0 {
+			t.Fatalf("%s: exit %d, %s", name, code, stderr)
+		}
+		data, err := os.ReadFile(path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		switch filepath.Ext(name) {
+		case ".svg":
+			for _, want := range []string{"<svg", "Alder", "Birch", "Cedar", "perfect reliability", "forecast probability of"} {
+				if !bytes.Contains(data, []byte(want)) {
+					t.Errorf("svg lacks %q", want)
+				}
+			}
+		case ".png":
+			img, err := png.Decode(bytes.NewReader(data))
+			if err != nil || img.Bounds().Dx() < 100 {
+				t.Errorf("png: %v, bounds %v", err, img)
+			}
+		case ".pdf":
+			if !bytes.HasPrefix(data, []byte("%PDF")) {
+				t.Errorf("pdf starts %q", data[:8])
+			}
+		}
+		if code, _, stderr := runBacktestCmd(t, args...); code != 2 || !strings.Contains(stderr, "use --force") {
+			t.Errorf("%s again: exit %d, %q; want a refusal", name, code, stderr)
+		}
+		if code, _, _ := runBacktestCmd(t, append(args, "--force")...); code != 0 {
+			t.Errorf("%s with --force: exit %d", name, code)
+		}
+	}
+}
