@@ -51,21 +51,16 @@ func Regroup(bins []Bin, k int) []Bin {
 	n := len(bins[0].Forecast)
 	set := newBinSet(n, math.MaxInt, k)
 	set.grid = k
+	sumP, hits := make([]float64, n), make([]float64, n)
 	for _, b := range bins {
 		if b.Count == 0 {
 			continue
 		}
-		key := set.key(b.Forecast)
-		i, ok := set.index[key]
-		if !ok {
-			i = set.newBin(key)
-		}
 		c := float64(b.Count)
-		set.count[i] += b.Count
 		for j := range n {
-			set.sumP[i*n+j] += c * b.Forecast[j]
-			set.hits[i*n+j] += c * b.Observed[j]
+			sumP[j], hits[j] = c*b.Forecast[j], c*b.Observed[j]
 		}
+		set.merge(b.Count, sumP, hits)
 	}
 	return set.bins()
 }

@@ -6,7 +6,6 @@ import (
 	"sort"
 
 	"scorewright/generator/bregman"
-	"scorewright/generator/formula"
 )
 
 // Bin is a group of forecasts scored together in the decomposition.
@@ -80,66 +79,160 @@ func Decompose(s *bregman.Scorer, bins []Bin) Decomposition {
 // Identity returns Uncertainty - Resolution + Reliability.
 func (d Decomposition) Identity() float64 { return d.Uncertainty - d.Resolution + d.Reliability }
 
-// binKey identifies a bin: the forecast itself, or its grid cell.
-type binKey [formula.MaxOutcomes]float64
+// keyTable finds short float vectors (forecasts, grid cells) by their
+// bits in an open-addressing table: a Go map with an array key would spend
+// most of its time hashing and comparing all twelve slots.
+type keyTable struct {
+	n     int
+	slots []int32   // entry index + 1; 0 is empty; length a power of two
+	keys  []float64 // n per entry
+}
+
+func newKeyTable(n int) keyTable { return keyTable{n: n, slots: make([]int32, 16)} }
+
+func (t *keyTable) len() int { return len(t.keys) / t.n }
+
+// hashKey mixes the bits of k. Probabilities such as 0.25 have long runs
+// of zero bits, so every word goes through a full 64-bit finaliser
+// (MurmurHash3's fmix64) before the table takes the low bits.
+func hashKey(k []float64) uint64 {
+	var h uint64
+	for _, x := range k {
+		h = fmix(h ^ math.Float64bits(x))
+	}
+	return h
+}
+
+func fmix(h uint64) uint64 {
+	h ^= h >> 33
+	h *= 0xff51afd7ed558ccd
+	h ^= h >> 33
+	h *= 0xc4ceb9fe1a85ec53
+	h ^= h >> 33
+	return h
+}
+
+// find returns the entry of key, adding it when add is set; made reports
+// a new entry, and i is -1 when key is absent and not added.
+func (t *keyTable) find(key []float64, add bool) (i int, made bool) {
+	mask := uint64(len(t.slots) - 1)
+	for s := hashKey(key) & mask; ; s = (s + 1) & mask {
+		j := int(t.slots[s]) - 1
+		if j < 0 {
+			if !add {
+				return -1, false
+			}
+			i = t.len()
+			t.slots[s] = int32(i + 1)
+			t.keys = append(t.keys, key...)
+			if 2*t.len() > len(t.slots) {
+				t.rehash(2 * len(t.slots))
+			}
+			return i, true
+		}
+		if equal(t.keys[j*t.n:(j+1)*t.n], key) {
+			return j, false
+		}
+	}
+}
+
+func equal(a, c []float64) bool {
+	for i, x := range a {
+		if x != c[i] {
+			return false
+		}
+	}
+	return true
+}
+
+func (t *keyTable) rehash(size int) {
+	t.slots = make([]int32, size)
+	mask := uint64(size - 1)
+	for j := range t.len() {
+		s := hashKey(t.keys[j*t.n:(j+1)*t.n]) & mask
+		for t.slots[s] != 0 {
+			s = (s + 1) & mask
+		}
+		t.slots[s] = int32(j + 1)
+	}
+}
 
 // binSet groups one forecaster's forecasts into bins in bounded memory:
 // by distinct forecast while there are at most max of them, then on a
-// grid of cells 1/grid wide, halving grid whenever the cells outgrow max.
+// grid of cells 1/grid wide in the first n-1 probabilities, halving grid
+// whenever the cells outgrow max (at grid 1 there are at most 2^(n-1)).
 type binSet struct {
 	n, max int
 	// grid is 0 while bins are distinct forecasts.
 	grid, startGrid int
-	index           map[binKey]int
+	table           keyTable
 	count           []int
 	sumP, hits      []float64 // n per bin
+	key             []float64 // scratch
 }
 
 func newBinSet(n, max, grid int) *binSet {
-	return &binSet{n: n, max: max, startGrid: grid, index: map[binKey]int{}}
+	return &binSet{n: n, max: max, startGrid: grid, table: newKeyTable(n), key: make([]float64, n)}
 }
 
-func (b *binSet) key(p []float64) binKey {
-	var k binKey
+// cell writes the key of forecast p into b.key: p itself, or its grid
+// cell. The last probability follows from the others, so cells are cut in
+// the first n-1 only (for two outcomes: in the event's probability).
+func (b *binSet) cell(p []float64) []float64 {
+	k := b.key
 	if b.grid == 0 {
-		copy(k[:], p)
+		for i, x := range p {
+			k[i] = x + 0 // -0 and +0 are one forecast
+		}
 		return k
 	}
-	// The last probability follows from the others, so cells are cut in
-	// the first n-1 only (for two outcomes: in the event's probability).
 	g := float64(b.grid)
-	for i, x := range p[:len(p)-1] {
+	for i, x := range p[:b.n-1] {
 		k[i] = math.Round(x * g)
 	}
+	k[b.n-1] = 0
 	return k
 }
 
-func (b *binSet) add(p []float64, y int) {
-	key := b.key(p)
-	i, ok := b.index[key]
-	if !ok {
-		i = b.newBin(key)
+// find returns the bin of key, making it if needed; made reports a new bin.
+func (b *binSet) find(key []float64) (i int, made bool) {
+	i, made = b.table.find(key, true)
+	if made {
+		b.count = append(b.count, 0)
+		for range b.n {
+			b.sumP = append(b.sumP, 0)
+			b.hits = append(b.hits, 0)
+		}
 	}
+	return i, made
+}
+
+func (b *binSet) add(p []float64, y int) {
+	i, made := b.find(b.cell(p))
 	b.count[i]++
 	row := b.sumP[i*b.n : (i+1)*b.n]
 	for k, x := range p {
 		row[k] += x
 	}
 	b.hits[i*b.n+y]++
-	if !ok && len(b.count) > b.max {
+	if made && len(b.count) > b.max {
 		b.coarsen()
 	}
 }
 
-func (b *binSet) newBin(key binKey) int {
-	i := len(b.count)
-	b.index[key] = i
-	b.count = append(b.count, 0)
-	for range b.n {
-		b.sumP = append(b.sumP, 0)
-		b.hits = append(b.hits, 0)
+// merge adds a whole group of c forecasts, with summed forecast sumP and
+// outcome counts hits, to the bin of its mean forecast.
+func (b *binSet) merge(c int, sumP, hits []float64) {
+	mean := make([]float64, b.n)
+	for k := range mean {
+		mean[k] = sumP[k] / float64(c)
 	}
-	return i
+	j, _ := b.find(b.cell(mean))
+	b.count[j] += c
+	for k := range mean {
+		b.sumP[j*b.n+k] += sumP[k]
+		b.hits[j*b.n+k] += hits[k]
+	}
 }
 
 // coarsen moves to a coarser grid and regroups the bins by their mean
@@ -153,23 +246,10 @@ func (b *binSet) coarsen() {
 			b.grid = max(1, b.grid/2)
 		}
 		count, sumP, hits := b.count, b.sumP, b.hits
-		b.index = map[binKey]int{}
+		b.table = newKeyTable(b.n)
 		b.count, b.sumP, b.hits = nil, nil, nil
-		mean := make([]float64, b.n)
 		for i, c := range count {
-			for k := range mean {
-				mean[k] = sumP[i*b.n+k] / float64(c)
-			}
-			key := b.key(mean)
-			j, ok := b.index[key]
-			if !ok {
-				j = b.newBin(key)
-			}
-			b.count[j] += c
-			for k := range mean {
-				b.sumP[j*b.n+k] += sumP[i*b.n+k]
-				b.hits[j*b.n+k] += hits[i*b.n+k]
-			}
+			b.merge(c, sumP[i*b.n:(i+1)*b.n], hits[i*b.n:(i+1)*b.n])
 		}
 	}
 }

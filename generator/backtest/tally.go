@@ -203,6 +203,7 @@ type Tally struct {
 	fc      []*forecasterTally
 	last    int
 	all     []moneyTally
+	cache   forecastCache
 }
 
 // Default binning bounds for the decomposition.
@@ -264,17 +265,68 @@ func (t *Tally) Add(forecaster string, line, y int, p []float64) []Paid {
 		panic(fmt.Sprintf("backtest: forecast of %d entries, outcome %d, for %d outcomes", len(p), y, t.n))
 	}
 	f := t.forecaster(forecaster)
+	c := t.cache.get(t, p)
 	for i := range t.schemes {
 		s := &t.schemes[i]
-		t.scorers[i].Efforts(t.eff, p)
-		l := t.eff[y]
-		pd := Paid{Effort: l, Pay: s.Pay.Pay(l), OnMenu: s.OnMenu == nil || s.OnMenu(p)}
+		var pd Paid
+		if c != nil {
+			pd = c[i*t.n+y]
+		} else {
+			t.scorers[i].Efforts(t.eff, p)
+			l := t.eff[y]
+			pd = Paid{Effort: l, Pay: s.Pay.Pay(l), OnMenu: s.OnMenu == nil || s.OnMenu(p)}
+		}
 		t.paid[i] = pd
 		f.money[i].add(pd, line, s)
 		t.all[i].add(pd, line, s)
 	}
 	f.bins.add(p, y)
 	return t.paid
+}
+
+// cacheEntries bounds the forecast cache: more than any report menu a
+// contract would print, small enough to stay in memory (about 2.5 MB for
+// three outcomes and two rules).
+const cacheEntries = 1 << 14
+
+// forecastCache remembers what each distinct forecast earns for every
+// outcome under every scheme. A history written on a report menu repeats a
+// few hundred forecasts millions of times; with the cache each generator
+// is evaluated once per distinct forecast instead of once per row. Payers
+// and menus must therefore be pure functions, as a payment table is.
+// Once full, new forecasts are scored directly and not remembered.
+type forecastCache struct {
+	table keyTable
+	paid  []Paid // schemes × n per entry
+	key   []float64
+}
+
+// get returns the cached payments of p (scheme i, outcome y at i*n+y),
+// computing them on first sight; nil when the cache is full.
+func (c *forecastCache) get(t *Tally, p []float64) []Paid {
+	if c.key == nil {
+		c.table = newKeyTable(t.n)
+		c.key = make([]float64, t.n)
+	}
+	for k, x := range p {
+		c.key[k] = x + 0
+	}
+	width := len(t.schemes) * t.n
+	i, made := c.table.find(c.key, c.table.len() < cacheEntries)
+	if i < 0 {
+		return nil
+	}
+	if made {
+		for s := range t.schemes {
+			sc := &t.schemes[s]
+			t.scorers[s].Efforts(t.eff, p)
+			on := sc.OnMenu == nil || sc.OnMenu(p)
+			for _, l := range t.eff {
+				c.paid = append(c.paid, Paid{Effort: l, Pay: sc.Pay.Pay(l), OnMenu: on})
+			}
+		}
+	}
+	return c.paid[i*width : (i+1)*width]
 }
 
 // forecaster finds (or makes) the tally of a forecaster; consecutive rows

@@ -29,8 +29,10 @@ type Options struct {
 	Tolerance float64
 }
 
-// Row is one valid forecast. Its strings and slice belong to the reader
-// and are valid only until the next call to Next; clone what you keep.
+// Row is one valid forecast. The Row and its P belong to the reader and
+// are overwritten by the next call to Next; the strings are ordinary Go
+// strings and stay valid (each holds on to its record's text, so clone a
+// name you keep for long).
 type Row struct {
 	// Line is the 1-based line of the file the row starts on.
 	Line int
