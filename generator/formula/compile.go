@@ -62,7 +62,7 @@ func Compile(f *File, scope Scope) (*Program, error) {
 	if scope.Payout && scope.Outcomes > 0 && (scope.Outcome < 1 || scope.Outcome > scope.Outcomes) {
 		return nil, fmt.Errorf("formula: payout outcome %d is outside 1..%d", scope.Outcome, scope.Outcomes)
 	}
-	c := &compiler{src: f.Source, scope: scope, cse: map[instr]int32{}, params: map[string]float64{}}
+	c := &compiler{src: f.Source, scope: scope, cse: map[instr]int32{}, konsts: map[uint64]int32{}, vkeys: map[string]int32{}, params: map[string]float64{}}
 	for k := 1; k <= scope.Outcomes; k++ {
 		c.varNames = append(c.varNames, "p"+strconv.Itoa(k))
 	}
@@ -97,7 +97,7 @@ func Compile(f *File, scope Scope) (*Program, error) {
 			return nil, fmt.Errorf("unknown parameter %q; the formula sets: %s", name, strings.Join(known, ", "))
 		}
 	}
-	p := link(c.code, out, c.varNames)
+	p := link(c.code, out, c.varNames, c.vconsts)
 	p.params = c.paramList
 	return p, nil
 }
@@ -113,18 +113,28 @@ func CompileString(src string, scope Scope) (*Program, error) {
 
 // ctx is where in the formula the compiler is: inside a sum over outcome i,
 // or a cumulative sum at k.
+//
+// A sum body is compiled once, in lanes: names that depend on the outcome
+// (p, i, w, hit; c, hitc in csum) are vectors with one lane per outcome, and
+// every operation on them is one vector instruction. The sum is then a
+// reduction. This keeps the instruction count independent of n.
 type ctx struct {
 	inSum  bool
-	i      int // 1-based outcome inside sum, cumulative index inside csum
 	inCsum bool
-	cum    int32 // slot of c = p1 + ... + pi inside csum
+	lanes  int   // lanes of the body: n in sum, n-1 in csum
+	cum    int32 // slot of the cumulative probabilities c inside csum
 }
 
 type compiler struct {
-	src       string
-	scope     Scope
-	code      []instr
-	cse       map[instr]int32
+	src    string
+	scope  Scope
+	code   []instr
+	cse    map[instr]int32
+	konsts map[uint64]int32
+	// vconsts holds the values of vector constants (opVConst's a indexes
+	// it); vkeys shares equal vectors.
+	vconsts   [][]float64
+	vkeys     map[string]int32
 	varNames  []string
 	params    map[string]float64
 	paramList []ParamValue
@@ -259,28 +269,91 @@ func (c *compiler) push(in instr) int32 {
 }
 
 func (c *compiler) konst(v float64) int32 {
-	// NaN never equals itself, so key NaN constants by their bits via a
-	// canonical NaN: one shared slot is enough.
+	// Constants are shared by their bits, not by ==: 0 and -0 are equal
+	// but divide differently, and NaN equals nothing. All NaNs share one.
 	if v != v {
 		v = math.NaN()
 	}
-	return c.push(instr{op: opConst, k: v})
+	bits := math.Float64bits(v)
+	if s, ok := c.konsts[bits]; ok {
+		return s
+	}
+	s := int32(len(c.code))
+	c.code = append(c.code, instr{op: opConst, k: v})
+	c.konsts[bits] = s
+	return s
 }
 
+// vkonst returns a vector constant; one whose lanes are all equal (bit for
+// bit) is the scalar constant, which broadcasts to the same thing.
+func (c *compiler) vkonst(v []float64) int32 {
+	uniform := true
+	for _, x := range v[1:] {
+		if math.Float64bits(x) != math.Float64bits(v[0]) {
+			uniform = false
+		}
+	}
+	if uniform {
+		return c.konst(v[0])
+	}
+	key := fmt.Sprint(v)
+	if s, ok := c.vkeys[key]; ok {
+		return s
+	}
+	s := int32(len(c.code))
+	c.code = append(c.code, instr{op: opVConst, a: int32(len(c.vconsts)), w: int32(len(v))})
+	c.vconsts = append(c.vconsts, append([]float64(nil), v...))
+	c.vkeys[key] = s
+	return s
+}
+
+// isConst reports a scalar constant and its value.
 func (c *compiler) isConst(s int32) (float64, bool) {
 	in := c.code[s]
 	return in.k, in.op == opConst
 }
 
+// constLanes returns the lanes of a scalar or vector constant.
+func (c *compiler) constLanes(s int32) ([]float64, bool) {
+	switch in := c.code[s]; in.op {
+	case opConst:
+		return []float64{in.k}, true
+	case opVConst:
+		return c.vconsts[in.a], true
+	}
+	return nil, false
+}
+
+// width is the number of lanes of a slot: 1 for a scalar.
+func (c *compiler) width(s int32) int32 { return max(1, c.code[s].w) }
+
+// lane returns lane l of constant lanes v, broadcasting a scalar.
+func lane(v []float64, l int) float64 {
+	if len(v) == 1 {
+		return v[0]
+	}
+	return v[l]
+}
+
 // op emits a unary or binary operation, folding it when its operands are
 // constants.
 func (c *compiler) op(o opcode, a, b int32, k float64) int32 {
+	unary := o.unary()
+	if unary {
+		b = a
+	}
+	w := max(c.width(a), c.width(b))
+	la, ca := c.constLanes(a)
+	lb, cb := c.constLanes(b)
+	if ca && cb {
+		out := make([]float64, w)
+		for l := range out {
+			out[l] = apply(o, lane(la, l), lane(lb, l), k)
+		}
+		return c.vkonst(out)
+	}
 	ka, ca := c.isConst(a)
 	kb, cb := c.isConst(b)
-	unary := o.unary()
-	if ca && (unary || cb) {
-		return c.konst(apply(o, ka, kb, k))
-	}
 	switch o {
 	case opAdd:
 		if ca && ka == 0 {
@@ -303,10 +376,10 @@ func (c *compiler) op(o opcode, a, b int32, k float64) int32 {
 		// x * ln(x), the term of every entropy, is fused: one instruction,
 		// and its derivative ln(x) + 1 needs no division in the backward sweep.
 		if in := c.code[b]; in.op == opLn && in.a == a {
-			return c.push(instr{op: opXLnX, a: a})
+			return c.push(instr{op: opXLnX, a: a, w: w})
 		}
 		if in := c.code[a]; in.op == opLn && in.a == b {
-			return c.push(instr{op: opXLnX, a: b})
+			return c.push(instr{op: opXLnX, a: b, w: w})
 		}
 	case opDiv:
 		if cb && kb == 1 {
@@ -318,12 +391,12 @@ func (c *compiler) op(o opcode, a, b int32, k float64) int32 {
 			case 1:
 				return a
 			case 2:
-				return c.push(instr{op: opSq, a: a})
+				return c.push(instr{op: opSq, a: a, w: w})
 			}
-			return c.push(instr{op: opPowK, a: a, k: kb})
+			return c.push(instr{op: opPowK, a: a, k: kb, w: w})
 		}
 		if ca {
-			return c.push(instr{op: opPowB, a: b, k: ka})
+			return c.push(instr{op: opPowB, a: b, k: ka, w: w})
 		}
 	}
 	if unary {
@@ -334,7 +407,7 @@ func (c *compiler) op(o opcode, a, b int32, k float64) int32 {
 	if (o == opAdd || o == opMul || o == opMin || o == opMax) && a > b {
 		a, b = b, a
 	}
-	return c.push(instr{op: o, a: a, b: b, k: k})
+	return c.push(instr{op: o, a: a, b: b, k: k, w: w})
 }
 
 // apply evaluates one operation on numbers; shared by folding and the machine.
@@ -470,7 +543,7 @@ func (c *compiler) ident(n *Ident, x ctx) int32 {
 		}
 	case "i":
 		if x.inSum || x.inCsum {
-			return c.konst(float64(x.i))
+			return c.indexLanes(x.lanes, func(k int) float64 { return float64(k) })
 		}
 		if c.constOnly == "" {
 			c.fail(n.At, "i is the outcome index and exists only inside sum(...) or csum(...)")
@@ -486,7 +559,7 @@ func (c *compiler) ident(n *Ident, x ctx) int32 {
 	switch name {
 	case "p":
 		if x.inSum {
-			return c.outcomeVar(x.i)
+			return c.outcomeVector()
 		}
 		if nOut == 2 {
 			return c.outcomeVar(1)
@@ -499,7 +572,7 @@ func (c *compiler) ident(n *Ident, x ctx) int32 {
 			if c.scope.Weights == nil {
 				return c.konst(1)
 			}
-			return c.konst(c.scope.Weights[x.i-1])
+			return c.vkonst(c.scope.Weights)
 		}
 		if nOut > 0 {
 			c.fail(n.At, "w is the outcome weight and exists only inside sum(...)")
@@ -510,14 +583,14 @@ func (c *compiler) ident(n *Ident, x ctx) int32 {
 		}
 	case "hit":
 		if c.scope.Payout && x.inSum {
-			return c.konst(b2f(x.i == c.scope.Outcome))
+			return c.indexLanes(x.lanes, func(k int) float64 { return b2f(k == c.scope.Outcome) })
 		}
 		if c.scope.Payout {
 			c.fail(n.At, "hit exists only inside sum(...); outside it, compare y with an outcome number")
 		}
 	case "hitc":
 		if c.scope.Payout && x.inCsum {
-			return c.konst(b2f(c.scope.Outcome <= x.i))
+			return c.indexLanes(x.lanes, func(k int) float64 { return b2f(c.scope.Outcome <= k) })
 		}
 		if c.scope.Payout {
 			c.fail(n.At, "hitc exists only inside csum(...)")
@@ -549,6 +622,20 @@ func (c *compiler) outcomeVar(k int) int32 {
 	return c.push(instr{op: opVar, a: int32(k - 1)})
 }
 
+// outcomeVector is p inside sum: the vector (p1, ..., pn).
+func (c *compiler) outcomeVector() int32 {
+	return c.push(instr{op: opVar, a: 0, w: int32(c.scope.Outcomes)})
+}
+
+// indexLanes is the constant vector f(1), ..., f(lanes).
+func (c *compiler) indexLanes(lanes int, f func(k int) float64) int32 {
+	v := make([]float64, lanes)
+	for l := range v {
+		v[l] = f(l + 1)
+	}
+	return c.vkonst(v)
+}
+
 func (c *compiler) index(n *Index, x ctx) int32 {
 	if n.Name != "p" {
 		c.fail(n.At, "only p can be subscripted (p[y], p[k]); %q cannot", n.Name)
@@ -562,6 +649,16 @@ func (c *compiler) index(n *Index, x ctx) int32 {
 	}
 	s := c.emit(n.Index, x)
 	c.constOnly = saved
+	if lanes, ok := c.constLanes(s); ok && len(lanes) == c.scope.Outcomes && x.inSum {
+		// p[i] inside sum is p itself; any other vector subscript is not
+		// an outcome number.
+		for l, v := range lanes {
+			if v != float64(l+1) {
+				c.fail(n.Index.Pos(), "the subscript of p must be y, i or an outcome number")
+			}
+		}
+		return c.outcomeVector()
+	}
 	v, ok := c.isConst(s)
 	if !ok {
 		c.fail(n.Index.Pos(), "the subscript of p must be y, i or an outcome number")
@@ -606,10 +703,7 @@ func (c *compiler) call(n *Call, x ctx) int32 {
 			}
 			return b
 		}
-		if a == b {
-			return a
-		}
-		return c.push(instr{op: opSelect, a: a, b: b, c: cond})
+		return c.push(instr{op: opSelect, a: a, b: b, c: cond, w: max(c.width(a), c.width(b), c.width(cond))})
 	case "min", "max":
 		o := opMin
 		if n.Func == "max" {
@@ -646,11 +740,27 @@ func (c *compiler) sum(n *Call, x ctx) int32 {
 	if x.inSum || x.inCsum {
 		c.fail(n.At, "sum(...) cannot be nested inside sum(...) or csum(...)")
 	}
-	acc := c.konst(0)
-	for i := 1; i <= c.scope.Outcomes; i++ {
-		acc = c.op(opAdd, acc, c.emit(n.Args[0], ctx{inSum: true, i: i}), 0)
+	lanes := c.scope.Outcomes
+	return c.reduce(c.emit(n.Args[0], ctx{inSum: true, lanes: lanes}), lanes)
+}
+
+// reduce sums the lanes of a sum body. A body that came out scalar (it
+// does not depend on the outcome) is the same in every lane.
+func (c *compiler) reduce(body int32, lanes int) int32 {
+	if v, ok := c.constLanes(body); ok {
+		var s float64
+		for l := 0; l < lanes; l++ {
+			s += lane(v, l)
+		}
+		return c.konst(s)
 	}
-	return acc
+	if c.width(body) == 1 {
+		if lanes == 1 {
+			return body
+		}
+		return c.op(opMul, c.konst(float64(lanes)), body, 0)
+	}
+	return c.push(instr{op: opVSum, a: body, w: 1})
 }
 
 func (c *compiler) csum(n *Call, x ctx) int32 {
@@ -663,11 +773,10 @@ func (c *compiler) csum(n *Call, x ctx) int32 {
 	if x.inSum || x.inCsum {
 		c.fail(n.At, "csum(...) cannot be nested inside sum(...) or csum(...)")
 	}
-	acc := c.konst(0)
-	cum := c.konst(0)
-	for k := 1; k < c.scope.Outcomes; k++ {
-		cum = c.op(opAdd, cum, c.outcomeVar(k), 0)
-		acc = c.op(opAdd, acc, c.emit(n.Args[0], ctx{inCsum: true, i: k, cum: cum}), 0)
+	lanes := c.scope.Outcomes - 1
+	cum := c.outcomeVar(1)
+	if lanes > 1 {
+		cum = c.push(instr{op: opCumsum, a: c.outcomeVector(), w: int32(lanes)})
 	}
-	return acc
+	return c.reduce(c.emit(n.Args[0], ctx{inCsum: true, lanes: lanes, cum: cum}), lanes)
 }

@@ -8,7 +8,8 @@ import (
 // FuzzParse feeds arbitrary text through the parser and, when it parses,
 // the compiler and all three evaluation modes. Nothing may panic, and a
 // parsed tree printed back must parse to the same tree. The seed corpus is
-// in testdata/fuzz/FuzzParse.
+// in testdata/fuzz/FuzzParse. Compiled values must match the tree-walking
+// reference evaluator of reference_test.go.
 func FuzzParse(f *testing.F) {
 	for _, s := range []string{
 		"-sum(p*ln(p))", "1 - sum(p^2)", "csum(c*(1-c))", "g = 1.5\n(1 - sum(p^g)) / (g - 1)",
@@ -53,6 +54,9 @@ func FuzzParse(f *testing.F) {
 			grad := make([]float64, nv)
 			hess := make([]float64, nv*nv)
 			v := m.Value(vars)
+			if want, ok := refFile(file, sc, vars); !ok || !agree(v, want) {
+				t.Fatalf("%q in %+v: machine %v, tree-walking reference %v (ok %v)", src, sc, v, want, ok)
+			}
 			v2 := m.Gradient(grad, vars)
 			v3 := m.Hessian(hess, grad, vars)
 			if !sameFloat(v, v2) || !sameFloat(v, v3) {

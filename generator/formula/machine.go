@@ -11,12 +11,11 @@ import (
 type Machine struct {
 	prog *Program
 	nv   int
-	base int
 	val  []float64
 	adj  []float64
-	// aux keeps ln(a) of each opXLnX for the backward sweep.
+	// aux keeps ln(a) of each opXLnX lane for the backward sweep.
 	aux []float64
-	// Second-order forward mode: gradient and Hessian of every slot,
+	// Second-order forward mode: gradient and Hessian of every cell,
 	// allocated on first use of Hessian.
 	grad []float64
 	hess []float64
@@ -24,11 +23,10 @@ type Machine struct {
 
 // NewMachine returns a Machine for p.
 func (p *Program) NewMachine() *Machine {
-	nv, base := len(p.varNames), p.base()
-	total := base + len(p.code)
-	m := &Machine{prog: p, nv: nv, base: base, val: make([]float64, total), adj: make([]float64, total), aux: make([]float64, total)}
+	nv := len(p.varNames)
+	m := &Machine{prog: p, nv: nv, val: make([]float64, p.cells), adj: make([]float64, p.cells), aux: make([]float64, p.cells)}
 	// Constants never change: place them once.
-	copy(m.val[nv:base], p.consts)
+	copy(m.val[nv:p.base()], p.consts)
 	return m
 }
 
@@ -50,13 +48,19 @@ func (m *Machine) Value(vars []float64) float64 {
 
 func (m *Machine) forward(vars []float64) {
 	v := m.val
-	// Loops, not copy(): for a handful of variables the call costs more
+	// A loop, not copy(): for a handful of variables the call costs more
 	// than the copying.
 	for k, x := range vars {
 		v[k] = x
 	}
-	i := m.base
-	for _, in := range m.prog.code {
+	code := m.prog.code
+	for j := range code {
+		in := &code[j]
+		if in.w > 1 {
+			m.forwardLanes(in)
+			continue
+		}
+		i := in.dst
 		switch in.op {
 		case opAdd:
 			v[i] = v[in.a] + v[in.b]
@@ -77,28 +81,111 @@ func (m *Machine) forward(vars []float64) {
 		case opLn:
 			v[i] = math.Log(v[in.a])
 		case opXLnX:
-			x := v[in.a]
-			l := math.Log(x)
-			m.aux[i] = l
-			r := x * l
-			if r != r {
-				r = mul0(x, l)
+			v[i] = m.xlnx(i, v[in.a])
+		case opVSum:
+			var s float64
+			for _, x := range v[in.a : in.a+in.n] {
+				s += x
 			}
-			v[i] = r
+			v[i] = s
 		case opSelect:
-			c := v[in.c]
-			switch {
-			case c != c:
-				v[i] = math.NaN()
-			case c != 0:
-				v[i] = v[in.a]
-			default:
-				v[i] = v[in.b]
-			}
+			v[i] = sel(v[in.c], v[in.a], v[in.b])
 		default:
 			v[i] = apply(in.op, v[in.a], v[in.b], in.k)
 		}
-		i++
+	}
+}
+
+// xlnx computes x ln x with 0 ln 0 = 0 and keeps ln x for the backward sweep.
+func (m *Machine) xlnx(i int32, x float64) float64 {
+	l := math.Log(x)
+	m.aux[i] = l
+	r := x * l
+	if r != r {
+		r = mul0(x, l)
+	}
+	return r
+}
+
+func sel(c, a, b float64) float64 {
+	switch {
+	case c != c:
+		return math.NaN()
+	case c != 0:
+		return a
+	}
+	return b
+}
+
+// forwardLanes runs a vector instruction. The common operations have loops
+// of their own; the rest go through apply lane by lane.
+func (m *Machine) forwardLanes(in *cell) {
+	v := m.val
+	d, a, b, w := in.dst, in.a, in.b, in.w
+	sa, sb := in.sa, in.sb
+	switch in.op {
+	case opCumsum:
+		var s float64
+		for l := int32(0); l < w; l++ {
+			s += v[a+l]
+			v[d+l] = s
+		}
+	case opSq:
+		if sa == 1 {
+			// Sub-slices of equal length let the compiler drop bounds checks.
+			dst := v[d : d+w]
+			src := v[a : a+w]
+			src = src[:len(dst)]
+			for l, x := range src {
+				dst[l] = x * x
+			}
+			return
+		}
+		for l := int32(0); l < w; l++ {
+			x := v[a+l*sa]
+			v[d+l] = x * x
+		}
+	case opXLnX:
+		if sa == 1 {
+			dst := v[d : d+w]
+			aux := m.aux[d : d+w]
+			src := v[a : a+w]
+			src, aux = src[:len(dst)], aux[:len(dst)]
+			for l, x := range src {
+				lx := math.Log(x)
+				aux[l] = lx
+				r := x * lx
+				if r != r {
+					r = mul0(x, lx)
+				}
+				dst[l] = r
+			}
+			return
+		}
+		for l := int32(0); l < w; l++ {
+			v[d+l] = m.xlnx(d+l, v[a+l*sa])
+		}
+	case opAdd:
+		for l := int32(0); l < w; l++ {
+			v[d+l] = v[a+l*sa] + v[b+l*sb]
+		}
+	case opSub:
+		for l := int32(0); l < w; l++ {
+			v[d+l] = v[a+l*sa] - v[b+l*sb]
+		}
+	case opMul:
+		for l := int32(0); l < w; l++ {
+			v[d+l] = mul0(v[a+l*sa], v[b+l*sb])
+		}
+	case opSelect:
+		c, sc := in.c, in.sc
+		for l := int32(0); l < w; l++ {
+			v[d+l] = sel(v[c+l*sc], v[a+l*sa], v[b+l*sb])
+		}
+	default:
+		for l := int32(0); l < w; l++ {
+			v[d+l] = apply(in.op, v[a+l*sa], v[b+l*sb], in.k)
+		}
 	}
 }
 
@@ -113,20 +200,22 @@ func (m *Machine) Gradient(grad, vars []float64) float64 {
 	}
 	m.forward(vars)
 	v, adj := m.val, m.adj
-	out := int(m.prog.out)
-	for k := range adj[:out+1] {
-		adj[k] = 0
-	}
+	out := m.prog.out
+	clear(adj[:out+1])
 	adj[out] = 1
 	code := m.prog.code
-	for i := out; i >= m.base; i-- {
-		g := adj[i]
+	for j := len(code) - 1; j >= 0; j-- {
+		in := &code[j]
+		if in.w > 1 {
+			m.backwardLanes(in)
+			continue
+		}
+		g := adj[in.dst]
 		if g == 0 {
 			// Nothing flows back from here; skipping also keeps 0 * Inf
 			// partials of unused branches out of the result.
 			continue
 		}
-		in := code[i-m.base]
 		switch in.op {
 		case opAdd:
 			adj[in.a] += g
@@ -137,63 +226,134 @@ func (m *Machine) Gradient(grad, vars []float64) float64 {
 		case opMul:
 			adj[in.a] += mul0(g, v[in.b])
 			adj[in.b] += mul0(g, v[in.a])
-		case opDiv:
-			b := v[in.b]
-			adj[in.a] += g / b
-			adj[in.b] -= mul0(g, v[i]) / b
-		case opNeg:
-			adj[in.a] -= g
-		case opSq:
-			adj[in.a] += 2 * mul0(g, v[in.a])
-		case opLn:
-			adj[in.a] += g / v[in.a]
-		case opXLnX:
-			adj[in.a] += g * (m.aux[i] + 1)
+		case opVSum:
+			for l := range adj[in.a : in.a+in.n] {
+				adj[in.a+int32(l)] += g
+			}
 		default:
-			m.backwardRare(in, i, g)
+			m.back(in.op, in.dst, in.a, in.b, in.c, in.k, g)
 		}
 	}
-	for k := range grad {
-		grad[k] = adj[k]
-	}
+	copy(grad, adj[:len(grad)])
 	return v[out]
 }
 
-// backwardRare propagates the adjoint g of slot i through the less common
-// operations; kept apart so the hot loop stays small.
-func (m *Machine) backwardRare(in instr, i int, g float64) {
+// backwardLanes propagates the adjoints of a vector instruction.
+func (m *Machine) backwardLanes(in *cell) {
 	v, adj := m.val, m.adj
+	d, a, b, w := in.dst, in.a, in.b, in.w
+	sa, sb := in.sa, in.sb
 	switch in.op {
+	case opCumsum:
+		// Lane k is a_1 + ... + a_k, so a_j collects the adjoints of
+		// lanes j..w.
+		var s float64
+		for l := w - 1; l >= 0; l-- {
+			s += adj[d+l]
+			adj[a+l] += s
+		}
+		return
+	case opSq:
+		if sa == 1 {
+			gs := adj[d : d+w]
+			xs := v[a : a+w]
+			as := adj[a : a+w]
+			xs, as = xs[:len(gs)], as[:len(gs)]
+			for l, g := range gs {
+				if g != 0 {
+					as[l] += 2 * mul0(g, xs[l])
+				}
+			}
+			return
+		}
+		for l := int32(0); l < w; l++ {
+			if g := adj[d+l]; g != 0 {
+				adj[a+l*sa] += 2 * mul0(g, v[a+l*sa])
+			}
+		}
+		return
+	case opXLnX:
+		if sa == 1 {
+			gs := adj[d : d+w]
+			ls := m.aux[d : d+w]
+			as := adj[a : a+w]
+			ls, as = ls[:len(gs)], as[:len(gs)]
+			for l, g := range gs {
+				if g != 0 {
+					as[l] += g * (ls[l] + 1)
+				}
+			}
+			return
+		}
+		for l := int32(0); l < w; l++ {
+			if g := adj[d+l]; g != 0 {
+				adj[a+l*sa] += g * (m.aux[d+l] + 1)
+			}
+		}
+		return
+	}
+	for l := int32(0); l < w; l++ {
+		if g := adj[d+l]; g != 0 {
+			m.back(in.op, d+l, a+l*sa, b+l*sb, in.c+l*in.sc, in.k, g)
+		}
+	}
+}
+
+// back propagates the adjoint g of cell i, computed by op from cells a, b
+// (and c for select), to its operands.
+func (m *Machine) back(op opcode, i, a, b, c int32, k, g float64) {
+	v, adj := m.val, m.adj
+	switch op {
+	case opAdd:
+		adj[a] += g
+		adj[b] += g
+	case opSub:
+		adj[a] += g
+		adj[b] -= g
+	case opMul:
+		adj[a] += mul0(g, v[b])
+		adj[b] += mul0(g, v[a])
+	case opDiv:
+		adj[a] += g / v[b]
+		adj[b] -= mul0(g, v[i]) / v[b]
+	case opNeg:
+		adj[a] -= g
+	case opSq:
+		adj[a] += 2 * mul0(g, v[a])
+	case opLn:
+		adj[a] += g / v[a]
+	case opXLnX:
+		adj[a] += g * (m.aux[i] + 1)
 	case opPowK:
-		adj[in.a] += mul0(g, in.k*math.Pow(v[in.a], in.k-1))
+		adj[a] += mul0(g, k*math.Pow(v[a], k-1))
 	case opPowB:
-		adj[in.a] += mul0(g, v[i]*math.Log(in.k))
+		adj[a] += mul0(g, v[i]*math.Log(k))
 	case opPow:
-		a, b := v[in.a], v[in.b]
-		adj[in.a] += mul0(g, b*math.Pow(a, b-1))
-		adj[in.b] += mul0(g, mul0(v[i], math.Log(a)))
+		x, y := v[a], v[b]
+		adj[a] += mul0(g, y*math.Pow(x, y-1))
+		adj[b] += mul0(g, mul0(v[i], math.Log(x)))
 	case opExp:
-		adj[in.a] += mul0(g, v[i])
+		adj[a] += mul0(g, v[i])
 	case opSqrt:
-		adj[in.a] += g * 0.5 / v[i]
+		adj[a] += g * 0.5 / v[i]
 	case opAbs:
-		adj[in.a] += g * sign(v[in.a])
+		adj[a] += g * sign(v[a])
 	case opMin, opMax:
-		if v[in.a] == v[i] {
-			adj[in.a] += g
+		if v[a] == v[i] {
+			adj[a] += g
 		} else {
-			adj[in.b] += g
+			adj[b] += g
 		}
 	case opLt, opLe, opGt, opGe:
 	case opSelect:
-		c := v[in.c]
+		cv := v[c]
 		switch {
-		case c != c:
-			adj[in.a] += math.NaN()
-		case c != 0:
-			adj[in.a] += g
+		case cv != cv:
+			adj[a] += math.NaN()
+		case cv != 0:
+			adj[a] += g
 		default:
-			adj[in.b] += g
+			adj[b] += g
 		}
 	}
 }
@@ -230,76 +390,96 @@ func (m *Machine) Hessian(hess, grad, vars []float64) float64 {
 		}
 	}
 	m.forward(vars)
-	v := m.val
-	for j, in := range m.prog.code {
-		i := m.base + j
-		G := m.grad[i*nv : (i+1)*nv]
-		H := m.hess[i*nv*nv : (i+1)*nv*nv]
-		clear(G)
-		clear(H)
-		a, b := v[in.a], v[in.b]
-		z := v[i]
-		switch in.op {
-		case opAdd:
-			m.binary(i, in, 1, 1, 0, 0, 0)
-		case opSub:
-			m.binary(i, in, 1, -1, 0, 0, 0)
-		case opMul:
-			m.binary(i, in, b, a, 0, 0, 1)
-		case opDiv:
-			m.binary(i, in, 1/b, -z/b, 0, 2*z/(b*b), -1/(b*b))
-		case opNeg:
-			m.unary(i, in, -1, 0)
-		case opSq:
-			m.unary(i, in, 2*a, 2)
-		case opPowK:
-			k := in.k
-			m.unary(i, in, k*math.Pow(a, k-1), k*(k-1)*math.Pow(a, k-2))
-		case opPowB:
-			l := math.Log(in.k)
-			m.unary(i, in, z*l, z*l*l)
-		case opPow:
-			la := math.Log(a)
-			m.binary(i, in, b*math.Pow(a, b-1), mul0(z, la), b*(b-1)*math.Pow(a, b-2), mul0(z, la*la),
-				math.Pow(a, b-1)*(1+mul0(b, la)))
-		case opExp:
-			m.unary(i, in, z, z)
-		case opLn:
-			m.unary(i, in, 1/a, -1/(a*a))
-		case opXLnX:
-			m.unary(i, in, math.Log(a)+1, 1/a)
-		case opSqrt:
-			m.unary(i, in, 0.5/z, -0.25/(z*a))
-		case opAbs:
-			m.unary(i, in, sign(a), 0)
-		case opMin, opMax:
-			src := in.a
-			if a != z {
-				src = in.b
-			}
-			m.copySlot(i, int(src))
-		case opLt, opLe, opGt, opGe:
-		case opSelect:
-			c := v[in.c]
-			src := in.a
-			if c == 0 {
-				src = in.b
-			}
-			m.copySlot(i, int(src))
-			if c != c {
-				for k := range G {
-					G[k] = math.NaN()
-				}
-			}
+	for j := range m.prog.code {
+		in := &m.prog.code[j]
+		for l := int32(0); l < in.w; l++ {
+			m.hessLane(in, l)
 		}
 	}
 	out := int(m.prog.out)
 	copy(grad, m.grad[out*nv:(out+1)*nv])
 	copy(hess, m.hess[out*nv*nv:(out+1)*nv*nv])
-	return v[out]
+	return m.val[out]
 }
 
-func (m *Machine) copySlot(dst, src int) {
+// hessLane computes the gradient and Hessian of lane l of an instruction.
+func (m *Machine) hessLane(in *cell, l int32) {
+	v, nv := m.val, m.nv
+	i := int(in.dst + l)
+	ia, ib := int(in.a+l*in.sa), int(in.b+l*in.sb)
+	G := m.grad[i*nv : (i+1)*nv]
+	H := m.hess[i*nv*nv : (i+1)*nv*nv]
+	clear(G)
+	clear(H)
+	a, b, z := v[ia], v[ib], v[i]
+	switch in.op {
+	case opAdd:
+		m.binary(i, ia, ib, 1, 1, 0, 0, 0)
+	case opSub:
+		m.binary(i, ia, ib, 1, -1, 0, 0, 0)
+	case opMul:
+		m.binary(i, ia, ib, b, a, 0, 0, 1)
+	case opDiv:
+		m.binary(i, ia, ib, 1/b, -z/b, 0, 2*z/(b*b), -1/(b*b))
+	case opNeg:
+		m.unary(i, ia, -1, 0)
+	case opSq:
+		m.unary(i, ia, 2*a, 2)
+	case opPowK:
+		k := in.k
+		m.unary(i, ia, k*math.Pow(a, k-1), k*(k-1)*math.Pow(a, k-2))
+	case opPowB:
+		lk := math.Log(in.k)
+		m.unary(i, ia, z*lk, z*lk*lk)
+	case opPow:
+		la := math.Log(a)
+		m.binary(i, ia, ib, b*math.Pow(a, b-1), mul0(z, la), b*(b-1)*math.Pow(a, b-2), mul0(z, la*la),
+			math.Pow(a, b-1)*(1+mul0(b, la)))
+	case opExp:
+		m.unary(i, ia, z, z)
+	case opLn:
+		m.unary(i, ia, 1/a, -1/(a*a))
+	case opXLnX:
+		m.unary(i, ia, math.Log(a)+1, 1/a)
+	case opSqrt:
+		m.unary(i, ia, 0.5/z, -0.25/(z*a))
+	case opAbs:
+		m.unary(i, ia, sign(a), 0)
+	case opMin, opMax:
+		src := ia
+		if a != z {
+			src = ib
+		}
+		m.copyCell(i, src)
+	case opLt, opLe, opGt, opGe:
+	case opSelect:
+		c := v[in.c+l*in.sc]
+		src := ia
+		if c == 0 {
+			src = ib
+		}
+		m.copyCell(i, src)
+		if c != c {
+			for k := range G {
+				G[k] = math.NaN()
+			}
+		}
+	case opVSum:
+		for s := int(in.a); s < int(in.a+in.n); s++ {
+			axpyNZ(G, 1, m.grad[s*nv:(s+1)*nv])
+			axpyNZ(H, 1, m.hess[s*nv*nv:(s+1)*nv*nv])
+		}
+	case opCumsum:
+		// Lane l is lane l-1 plus a_l.
+		if l > 0 {
+			m.copyCell(i, i-1)
+		}
+		axpyNZ(G, 1, m.grad[ia*nv:(ia+1)*nv])
+		axpyNZ(H, 1, m.hess[ia*nv*nv:(ia+1)*nv*nv])
+	}
+}
+
+func (m *Machine) copyCell(dst, src int) {
 	nv := m.nv
 	copy(m.grad[dst*nv:(dst+1)*nv], m.grad[src*nv:(src+1)*nv])
 	copy(m.hess[dst*nv*nv:(dst+1)*nv*nv], m.hess[src*nv*nv:(src+1)*nv*nv])
@@ -308,25 +488,22 @@ func (m *Machine) copySlot(dst, src int) {
 // unary applies the chain rule for z = f(u): G = f' Gu, H = f' Hu + f” Gu Guᵀ.
 // Terms whose coefficient is exactly zero are skipped so that a structural
 // zero never meets an infinite factor.
-func (m *Machine) unary(i int, in instr, fu, fuu float64) {
+func (m *Machine) unary(i, u int, fu, fuu float64) {
 	nv := m.nv
 	G := m.grad[i*nv : (i+1)*nv]
 	H := m.hess[i*nv*nv : (i+1)*nv*nv]
-	u := int(in.a)
 	Gu := m.grad[u*nv : (u+1)*nv]
-	Hu := m.hess[u*nv*nv : (u+1)*nv*nv]
 	axpyNZ(G, fu, Gu)
-	axpyNZ(H, fu, Hu)
+	axpyNZ(H, fu, m.hess[u*nv*nv:(u+1)*nv*nv])
 	outerNZ(H, fuu, Gu, Gu)
 }
 
 // binary applies the chain rule for z = f(a, b) with partials fa, fb and
 // second partials faa, fbb, fab.
-func (m *Machine) binary(i int, in instr, fa, fb, faa, fbb, fab float64) {
+func (m *Machine) binary(i, ia, ib int, fa, fb, faa, fbb, fab float64) {
 	nv := m.nv
 	G := m.grad[i*nv : (i+1)*nv]
 	H := m.hess[i*nv*nv : (i+1)*nv*nv]
-	ia, ib := int(in.a), int(in.b)
 	Ga := m.grad[ia*nv : (ia+1)*nv]
 	Gb := m.grad[ib*nv : (ib+1)*nv]
 	axpyNZ(G, fa, Ga)

@@ -164,8 +164,8 @@ func TestConstantFoldingAndSharing(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if got := prog.Len(); got != 6 {
-		t.Errorf("program has %d instructions, want 6 (3 squares, 3 additions; variables and constants are slots, not instructions)", got)
+	if got := prog.Len(); got != 3 {
+		t.Errorf("program has %d instructions, want 3 (one vector square, one lane sum shared by both sums, one addition; variables and constants are cells, not instructions)", got)
 	}
 	prog, _ = CompileString("g = 2\nh = g*pi\nh/pi + n", Scope{Outcomes: 3})
 	if !prog.IsConstant() || prog.Constant() != 5 {

@@ -27,37 +27,57 @@ const (
 	opGe                   // a >= b
 	opSelect               // c != 0 ? a : b
 	opXLnX                 // a * ln(a), with 0 ln 0 = 0: the entropy term, fused
+	opVConst               // a vector constant (compiler only)
+	opVSum                 // the sum of the lanes of vector a
+	opCumsum               // lanes k = a_1 + ... + a_k of vector a
 )
 
-var opNames = [...]string{"const", "var", "add", "sub", "mul", "div", "neg", "sq", "powk", "powb", "pow", "exp", "ln", "sqrt", "abs", "min", "max", "lt", "le", "gt", "ge", "select", "xlnx"}
+var opNames = [...]string{"const", "var", "add", "sub", "mul", "div", "neg", "sq", "powk", "powb", "pow", "exp", "ln", "sqrt", "abs", "min", "max", "lt", "le", "gt", "ge", "select", "xlnx", "vconst", "vsum", "cumsum"}
 
 func (o opcode) String() string { return opNames[o] }
 
 // unary reports operations that read only operand a.
 func (o opcode) unary() bool {
 	switch o {
-	case opNeg, opSq, opPowK, opPowB, opExp, opLn, opSqrt, opAbs, opXLnX:
+	case opNeg, opSq, opPowK, opPowB, opExp, opLn, opSqrt, opAbs, opXLnX, opVSum, opCumsum:
 		return true
 	}
 	return false
 }
 
-// instr computes one slot from earlier slots a, b, c.
+// instr is one operation of the compiler's SSA list: it computes slot i
+// (its index) from earlier slots a, b, c. w is its lane count, 0 or 1 for a
+// scalar.
 type instr struct {
 	op      opcode
 	a, b, c int32
 	k       float64
+	w       int32
 }
 
-// Program is a compiled formula: a straight-line list of instructions in
-// static single assignment form. Slots are laid out as variables first,
-// then constants, then one slot per instruction, so variables and constants
-// cost nothing to evaluate. A Program is immutable and safe to share
-// between goroutines; each goroutine evaluates it with its own Machine.
+// cell is one linked instruction: it writes lanes dst..dst+w-1 of the
+// machine's value array from operand cells a, b, c. An operand's stride is
+// 1 when it is a vector and 0 when a scalar is broadcast across the lanes.
+type cell struct {
+	op         opcode
+	w          int32 // lanes written
+	dst        int32
+	a, b, c    int32
+	sa, sb, sc int32
+	n          int32 // lanes read by opVSum
+	k          float64
+}
+
+// Program is a compiled formula: a straight-line list of instructions.
+// Cells (the machine's value array) are laid out as variables first, then
+// constants, then the lanes each instruction writes, so variables and
+// constants cost nothing to evaluate. A Program is immutable and safe to
+// share between goroutines; each goroutine evaluates it with its own Machine.
 type Program struct {
 	consts   []float64
-	code     []instr
+	code     []cell
 	out      int32
+	cells    int
 	varNames []string
 	params   []ParamValue
 }
@@ -81,7 +101,7 @@ func (p *Program) Params() []ParamValue { return append([]ParamValue(nil), p.par
 // Len is the number of instructions, a measure of evaluation cost.
 func (p *Program) Len() int { return len(p.code) }
 
-// base is the first instruction slot.
+// base is the first instruction cell.
 func (p *Program) base() int { return len(p.varNames) + len(p.consts) }
 
 // IsConstant reports whether the program's value does not depend on any
@@ -94,11 +114,12 @@ func (p *Program) IsConstant() bool {
 // Constant returns the program's value when IsConstant is true.
 func (p *Program) Constant() float64 { return p.consts[int(p.out)-len(p.varNames)] }
 
-// link lays out the compiler's SSA list as a Program: variables, then the
-// constants the result depends on, then the live instructions, renumbering
-// operands. Instructions the result does not depend on (constants left
-// over from folding, subscripts, parameter values) are dropped.
-func link(code []instr, out int32, varNames []string) *Program {
+// link lays out the compiler's SSA list as a Program: cells for the
+// variables, then for the constants the result depends on, then for the
+// lanes of each live instruction, renumbering operands. Instructions the
+// result does not depend on (constants left over from folding, subscripts,
+// parameter values) are dropped.
+func link(code []instr, out int32, varNames []string, vconsts [][]float64) *Program {
 	live := make([]bool, len(code))
 	live[out] = true
 	for i := int(out); i >= 0; i-- {
@@ -106,7 +127,7 @@ func link(code []instr, out int32, varNames []string) *Program {
 			continue
 		}
 		switch in := code[i]; {
-		case in.op == opConst || in.op == opVar:
+		case in.op == opConst || in.op == opVar || in.op == opVConst:
 		case in.op.unary():
 			live[in.a] = true
 		case in.op == opSelect:
@@ -117,34 +138,58 @@ func link(code []instr, out int32, varNames []string) *Program {
 	}
 	nv := int32(len(varNames))
 	p := &Program{varNames: varNames}
-	slot := make([]int32, len(code))
-	for i, in := range code {
-		if live[i] && in.op == opConst {
-			slot[i] = nv + int32(len(p.consts))
-			p.consts = append(p.consts, in.k)
-		}
-	}
-	base := nv + int32(len(p.consts))
+	at := make([]int32, len(code)) // first cell of each slot
 	for i, in := range code {
 		if !live[i] {
 			continue
 		}
-		switch {
-		case in.op == opConst:
-			continue
-		case in.op == opVar:
-			slot[i] = in.a
-			continue
-		case in.op.unary():
-			in.a, in.b = slot[in.a], 0
-		case in.op == opSelect:
-			in.a, in.b, in.c = slot[in.a], slot[in.b], slot[in.c]
-		default:
-			in.a, in.b = slot[in.a], slot[in.b]
+		switch in.op {
+		case opConst:
+			at[i] = nv + int32(len(p.consts))
+			p.consts = append(p.consts, in.k)
+		case opVConst:
+			at[i] = nv + int32(len(p.consts))
+			p.consts = append(p.consts, vconsts[in.a]...)
 		}
-		slot[i] = base + int32(len(p.code))
-		p.code = append(p.code, in)
 	}
-	p.out = slot[out]
+	next := nv + int32(len(p.consts))
+	stride := func(s int32) int32 {
+		if code[s].w > 1 {
+			return 1
+		}
+		return 0
+	}
+	for i, in := range code {
+		if !live[i] {
+			continue
+		}
+		switch in.op {
+		case opConst, opVConst:
+			continue
+		case opVar:
+			at[i] = in.a
+			continue
+		}
+		w := max(1, in.w)
+		cl := cell{op: in.op, w: w, dst: next, k: in.k}
+		switch {
+		case in.op == opVSum:
+			cl.a, cl.n = at[in.a], code[in.a].w
+		case in.op.unary():
+			cl.a, cl.sa = at[in.a], stride(in.a)
+			cl.b, cl.sb = cl.a, cl.sa
+		case in.op == opSelect:
+			cl.a, cl.b, cl.c = at[in.a], at[in.b], at[in.c]
+			cl.sa, cl.sb, cl.sc = stride(in.a), stride(in.b), stride(in.c)
+		default:
+			cl.a, cl.b = at[in.a], at[in.b]
+			cl.sa, cl.sb = stride(in.a), stride(in.b)
+		}
+		at[i] = next
+		next += w
+		p.code = append(p.code, cl)
+	}
+	p.out = at[out]
+	p.cells = int(next)
 	return p
 }

@@ -1,0 +1,176 @@
+package main
+
+import (
+	"fmt"
+	"math"
+
+	"scorewright/generator/bregman"
+	"scorewright/generator/design"
+	"scorewright/generator/num"
+	"scorewright/generator/payout"
+	"scorewright/presets"
+	"scorewright/verify"
+)
+
+type gapJSON struct {
+	Max        num.Float   `json:"max"`
+	Belief     []num.Float `json:"belief"`
+	BestReport []num.Float `json:"best_report"`
+	Sharpened  bool        `json:"sharpened,omitempty"`
+}
+
+type identJSON struct {
+	Preset   string    `json:"preset"`
+	Scale    num.Float `json:"scale"`
+	Shift    num.Float `json:"shift"`
+	Residual num.Float `json:"residual"`
+}
+
+type auditJSON struct {
+	reportJSON
+	Payout     string     `json:"payout"`
+	Outcomes   []string   `json:"outcomes"`
+	Gap        gapJSON    `json:"gap"`
+	Direction  string     `json:"direction,omitempty"`
+	Identified *identJSON `json:"identified,omitempty"`
+	Caution    string     `json:"caution"`
+}
+
+const auditCaution = "scorewright checks the mathematics, not the law: payment schemes (lottery-style payments especially) can be regulated; have the contract reviewed by qualified counsel"
+
+func runAudit(e *env, args []string) error {
+	fs := newFlags("audit", "")
+	outcomes := fs.String("outcomes", "", "outcome count or comma-separated labels")
+	src := fs.String("payout", "", "payout formula pay(p, y) in p, p1..pn, y, hit, hitc, p[y] (reward: more is better)")
+	ordered := fs.Bool("ordered", false, "outcomes are ordered (allows csum and hitc)")
+	weights := fs.String("weights", "", "outcome weights w1,w2,... (w inside sum)")
+	params := paramFlag{}
+	fs.Var(params, "param", "override a formula parameter, name=value (repeatable)")
+	vf := addVerifyFlags(fs)
+	if err := parseFlags(e, fs, "--outcomes N|label1,label2,... --payout EXPR [--ordered] [--weights w1,...] [--param name=value] "+verifyUsage, args, false); err != nil {
+		return err
+	}
+	if *outcomes == "" {
+		return usagef("--outcomes is required (a count such as 2, or labels such as frost,clear)")
+	}
+	labels, err := design.ParseOutcomes(*outcomes)
+	if err != nil {
+		return usagef("--outcomes: %v", err)
+	}
+	if *src == "" {
+		return usagef("--payout is required, e.g. --payout '10 - 5*sum((p - hit)^2)'")
+	}
+	n := len(labels)
+	var w []float64
+	if *weights != "" {
+		if w, err = num.ParseVector(*weights); err != nil {
+			return usagef("--weights: %v", err)
+		}
+		if len(w) != n {
+			return usagef("--weights has %d values for %d outcomes", len(w), n)
+		}
+	}
+	var ps map[string]float64
+	if len(params) > 0 {
+		ps = params
+	}
+	pay, err := payout.New(*src, payout.Options{Outcomes: n, Ordered: *ordered, Weights: w, Params: ps})
+	if err != nil {
+		return formulaError("payout", err)
+	}
+	s, err := vf.settings(e)
+	if err != nil {
+		return err
+	}
+	ctx, stop := interruptible()
+	defer stop()
+	rep, err := verify.Audit(ctx, pay, candidates(n, *ordered, w), s)
+	if err != nil {
+		if ctx.Err() != nil {
+			return usagef("audit interrupted")
+		}
+		return usagef("audit: %v", err)
+	}
+	if vf.asJSON {
+		out := auditJSON{reportJSON: toReportJSON(&rep.Report), Payout: *src, Outcomes: labels, Direction: rep.Direction, Caution: auditCaution,
+			Gap: gapJSON{Max: num.Float(rep.Gap.Max), Belief: num.Floats(rep.Gap.Belief), BestReport: num.Floats(rep.Gap.BestReport), Sharpened: rep.Gap.Sharpened}}
+		if id := rep.Identified; id != nil {
+			out.Identified = &identJSON{id.Preset, num.Float(id.Scale), num.Float(id.Shift), num.Float(id.Residual)}
+		}
+		if err := writeJSON(e.stdout, out); err != nil {
+			return err
+		}
+	} else {
+		printAudit(e, *src, labels, rep)
+	}
+	if rep.Verdict == verify.Improper || rep.Failed() {
+		return errFailed
+	}
+	return nil
+}
+
+// candidates compiles the generator presets that fit n outcomes, for
+// identifying a payout as an affine image of a known rule. Presets that
+// need weights are tried only when weights are given; ordered presets only
+// for ordered outcomes.
+func candidates(n int, ordered bool, w []float64) []verify.Candidate {
+	var out []verify.Candidate
+	for _, p := range presets.All() {
+		if p.Kind != presets.KindGenerator || p.BinaryOnly && n != 2 || p.Ordered && !ordered || p.Weighted && w == nil {
+			continue
+		}
+		f, err := bregman.NewFormula(p.Formula, bregman.Options{Outcomes: n, Ordered: p.Ordered || ordered, Weights: w})
+		if err != nil {
+			continue // a preset that does not compile here is simply not a candidate
+		}
+		out = append(out, verify.Candidate{Name: p.Name, Rule: &bregman.Rule{Gen: f, Ordered: p.Ordered}})
+	}
+	return out
+}
+
+func printAudit(e *env, src string, labels []string, rep *verify.AuditReport) {
+	w := e.stdout
+	fmt.Fprintf(w, "payout:  %q over %d outcomes (reward: more is better)\n", src, len(labels))
+	printReport(w, &rep.Report)
+	fmt.Fprintln(w)
+	if rep.Gap.Max > rep.Grid.Tolerance {
+		how := ""
+		if rep.Gap.Sharpened {
+			how = fmt.Sprintf(" (sharpened beyond the grid from %.6g)", rep.Gap.GridMax)
+		}
+		fmt.Fprintf(w, "largest honesty gap: %.6g%s at belief %s, best report %s\n", rep.Gap.Max, how, num.Format(rep.Gap.Belief), num.Format(rep.Gap.BestReport))
+	} else {
+		fmt.Fprintf(w, "largest honesty gap: %.3g (no grid belief gains from misreporting)\n", rep.Gap.Max)
+	}
+	if len(labels) == 2 && rep.Direction != "" {
+		fmt.Fprintf(w, "best misreport %s: %d beliefs exaggerate (away from 1/2), %d hedge (toward 1/2), %d flip to the other side\n",
+			rep.Direction, rep.Exaggerate, rep.Hedge, rep.Flip)
+	}
+	if rep.Verdict != verify.Improper && len(labels) == 2 {
+		fmt.Fprintln(w, "implied expected pay V(q) of an honest forecaster, by probability of", labels[0]+":")
+		for t := 0; t <= 10; t++ {
+			q := float64(t) / 10
+			if i := nearestBinary(rep.Beliefs, q); i >= 0 {
+				fmt.Fprintf(w, "  %-5.2g %.6g\n", rep.Beliefs[i].Belief[0], rep.Beliefs[i].Honest)
+			}
+		}
+	}
+	if id := rep.Identified; id != nil {
+		fmt.Fprintf(w, "identified: pay = %.6g - %.6g × effort of preset %q, i.e. shift %.6g + scale %.6g × its score (relative residual %.2g)\n",
+			id.Shift, id.Scale, id.Preset, id.Shift, id.Scale, id.Residual)
+	} else if len(rep.Fits) > 0 {
+		f := rep.Fits[0]
+		fmt.Fprintf(w, "not identified as a preset; closest %q: %s\n", f.Preset, f.Note)
+	}
+	fmt.Fprintln(w, "caution:", auditCaution)
+}
+
+func nearestBinary(bs []verify.BeliefGap, q float64) int {
+	best, bd := -1, math.Inf(1)
+	for i, b := range bs {
+		if d := math.Abs(b.Belief[0] - q); d < bd {
+			best, bd = i, d
+		}
+	}
+	return best
+}

@@ -1,0 +1,431 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"text/tabwriter"
+	"time"
+
+	"scorewright/generator/budget"
+	"scorewright/generator/design"
+	"scorewright/generator/num"
+	"scorewright/generator/safefile"
+	"scorewright/generator/table"
+)
+
+const tableUsage = "RULE BUDGET [--menu FILE] [--clamp P] [--format csv|md|json|tex|svg|png|pdf] [--out FILE] [--force] [--json]\n\nRULE: " + ruleUsage + "\nBUDGET: " + budgetUsage
+
+// tableFlags are the options of the table command beyond RULE and BUDGET.
+type tableFlags struct {
+	format, out, menu string
+	clamp             float64
+	force, json       bool
+}
+
+func addTableFlags(fs *flag.FlagSet) *tableFlags {
+	t := &tableFlags{}
+	fs.StringVar(&t.format, "format", "", "csv, md, json, tex, svg, png or pdf (default: from --out's extension, else md)")
+	fs.StringVar(&t.out, "out", "", "write the table to FILE, atomically (figures need it)")
+	fs.BoolVar(&t.force, "force", false, "replace an existing --out file, and export a table that failed the re-check (it then carries a warning)")
+	fs.BoolVar(&t.json, "json", false, "print the fit and re-check summary as JSON (the table itself goes to --out)")
+	fs.StringVar(&t.menu, "menu", "", "read the report menu from a CSV file: one report per line, n probabilities (n = 2: one number), '#' comments")
+	fs.Float64Var(&t.clamp, "clamp", 0, "pay every report as if each probability were at least P (rescaled to sum 1); for rules infinite at 0")
+	return t
+}
+
+// format picks the export format: --format, else --out's extension,
+// else Markdown.
+func (t *tableFlags) resolveFormat() (string, error) {
+	f := strings.ToLower(t.format)
+	if f == "" && t.out != "" {
+		f = strings.TrimPrefix(strings.ToLower(filepath.Ext(t.out)), ".")
+		switch f {
+		case "markdown":
+			f = "md"
+		case "txt", "":
+			return "", usagef("cannot tell the format from %q; give --format %s", t.out, strings.Join(table.Formats, "|"))
+		}
+	}
+	if f == "" {
+		f = "md"
+	}
+	for _, known := range table.Formats {
+		if f == known {
+			if table.IsFigure(f) && t.out == "" {
+				return "", usagef("a %s figure needs --out FILE", f)
+			}
+			return f, nil
+		}
+	}
+	return "", usagef("--format %q is not one of %s", f, strings.Join(table.Formats, ", "))
+}
+
+func runTable(e *env, args []string) error {
+	fs := newFlags("table", tableUsage)
+	rf := addRuleFlags(fs)
+	bf := addBudgetFlags(fs)
+	tf := addTableFlags(fs)
+	if err := parseFlags(e, fs, tableUsage, args, false); err != nil {
+		return err
+	}
+	format, err := tf.resolveFormat()
+	if err != nil {
+		return err
+	}
+	d, err := rf.design()
+	if err != nil {
+		return err
+	}
+	if err := bf.apply(fs, d); err != nil {
+		return err
+	}
+	rule, err := categoricalRule(d)
+	if err != nil {
+		return err
+	}
+	menu, err := tableMenu(fs, tf, d)
+	if err != nil {
+		return err
+	}
+	fit, err := budget.FitRule(rule, menu, d.Budget)
+	if err != nil {
+		return fitError(err)
+	}
+	rc, err := fit.Recheck(context.Background(), budget.RecheckSettings{})
+	if err != nil {
+		return err
+	}
+	tb := fit.Table(rc, budget.Info{
+		Title: d.Title, Formula: d.Formula, Preset: d.Preset, Params: d.Params,
+		Version: version, Date: exportDate(),
+	})
+	sum := newTableSummary(fit, rc, format, tf.out)
+	refused := !rc.Passed && !tf.force
+
+	var buf bytes.Buffer
+	if !refused {
+		if err := tb.Write(&buf, format); err != nil {
+			return err
+		}
+		if tf.out != "" {
+			if err := safefile.Write(tf.out, buf.Bytes(), tf.force); err != nil {
+				if errors.Is(err, safefile.ErrExists) {
+					return usagef("%v", err)
+				}
+				return err
+			}
+			sum.Output.Written = true
+		}
+	}
+	switch {
+	case tf.json:
+		if err := writeJSON(e.stdout, sum); err != nil {
+			return err
+		}
+	case tf.out != "" || refused:
+		if err := printTableSummary(e.stdout, fit, rc, sum); err != nil {
+			return err
+		}
+	default:
+		if _, err := e.stdout.Write(buf.Bytes()); err != nil {
+			return err
+		}
+	}
+	switch {
+	case refused:
+		fmt.Fprintln(e.stderr, "scorewright table: refused: the menu re-check failed, so nothing was written; --force exports the table anyway, with a warning in the file")
+		return errFailed
+	case !rc.Passed:
+		fmt.Fprintln(e.stderr, "scorewright table: the menu re-check FAILED; the table was exported because of --force and carries a warning")
+		return errFailed
+	}
+	return nil
+}
+
+// tableMenu builds the report menu from --menu or the budget's step.
+func tableMenu(fs *flag.FlagSet, tf *tableFlags, d *design.Design) (*budget.Menu, error) {
+	stepSet := false
+	fs.Visit(func(f *flag.Flag) { stepSet = stepSet || f.Name == "step" })
+	var m *budget.Menu
+	var err error
+	switch {
+	case tf.menu != "" && stepSet:
+		return nil, usagef("give --step or --menu FILE, not both")
+	case tf.menu != "":
+		m, err = budget.FileMenu(tf.menu, d.N())
+	case d.Budget.Step > 0:
+		m, err = budget.StepMenu(d.N(), d.Budget.Step, d.Budget.ReportFloor)
+	default:
+		return nil, usagef("the report menu is missing: give --step S (e.g. 0.05; 1/K for a simplex grid when n > 2) or --menu FILE")
+	}
+	if err != nil {
+		return nil, usagef("%v", err)
+	}
+	if math.IsNaN(tf.clamp) || tf.clamp < 0 {
+		return nil, usagef("--clamp %g must be a probability in [0, 1/%d)", tf.clamp, d.N())
+	}
+	m.Clamp = tf.clamp
+	return m, nil
+}
+
+// fitError turns a fit failure into a usage error; an unbounded rule gets
+// the two ways out in flag form.
+func fitError(err error) error {
+	var ue *budget.UnboundedError
+	if errors.As(err, &ue) && ue.AtZero {
+		return usagef("the rule's effort is %v at report %s when %q happens: the rule is unbounded where a report gives an outcome probability 0, so no budget can hold it. "+
+			"Two ways out: --report-floor 0.01 (the menu starts at 1 %%, every report gives each outcome at least that), "+
+			"or --clamp 0.01 (every report is paid as if each probability were at least 1 %%; this bends honesty near the boundary, and the table reports by how much)",
+			ue.Effort, num.Format(ue.Report), ue.Label)
+	}
+	return usagef("%v", err)
+}
+
+// exportDate is today's date in UTC, or the date of SOURCE_DATE_EPOCH
+// when that is set (the reproducible-builds convention), so that exports
+// can be made byte for byte again.
+func exportDate() string {
+	t := time.Now()
+	if s := os.Getenv("SOURCE_DATE_EPOCH"); s != "" {
+		if sec, err := strconv.ParseInt(s, 10, 64); err == nil {
+			t = time.Unix(sec, 0)
+		}
+	}
+	return t.UTC().Format("2006-01-02")
+}
+
+// tableSummary is what --json prints.
+type tableSummary struct {
+	Outcomes     []string      `json:"outcomes"`
+	Menu         menuJSON      `json:"menu"`
+	A            num.Float     `json:"A"`
+	B            num.Float     `json:"B"`
+	Floor        num.Float     `json:"floor"`
+	Cap          num.Float     `json:"cap"`
+	MeanPay      *num.Float    `json:"mean_pay,omitempty"`
+	Reference    []num.Float   `json:"reference,omitempty"`
+	ReferencePay num.Float     `json:"reference_pay"`
+	Unit         num.Float     `json:"unit"`
+	Rounding     string        `json:"rounding"`
+	MinPay       num.Float     `json:"min_pay"`
+	MaxPay       num.Float     `json:"max_pay"`
+	Truthful     truthfulJSON  `json:"truthful_pay"`
+	Recheck      recheckJSON   `json:"recheck"`
+	ClampGap     *clampGapJSON `json:"clamp_gap,omitempty"`
+	Output       tableOutput   `json:"output"`
+	Notes        []string      `json:"notes"`
+	Cells        []cellJSON    `json:"cells"`
+	Margins      []marginJSON  `json:"margins"`
+	Caution      []string      `json:"caution"`
+}
+
+type menuJSON struct {
+	Desc  string      `json:"desc"`
+	Items int         `json:"items"`
+	Clamp num.Float   `json:"clamp"`
+	First []num.Float `json:"first"`
+	Last  []num.Float `json:"last"`
+}
+
+type truthfulJSON struct {
+	Min       num.Float   `json:"min"`
+	Max       num.Float   `json:"max"`
+	MinBelief []num.Float `json:"min_belief"`
+	MaxBelief []num.Float `json:"max_belief"`
+	Grid      string      `json:"grid"`
+}
+
+type recheckJSON struct {
+	Passed      bool            `json:"passed"`
+	Verdict     string          `json:"verdict"`
+	MinMargin   num.Float       `json:"min_margin"`
+	At          []num.Float     `json:"at"`
+	Rival       []num.Float     `json:"rival,omitempty"`
+	Ties        [][]num.Float   `json:"ties"`
+	Beaten      [][]num.Float   `json:"beaten"`
+	NeverChosen [][]num.Float   `json:"never_chosen"`
+	TiedBeliefs int             `json:"tied_beliefs"`
+	Grid        recheckGridJSON `json:"grid"`
+}
+
+type recheckGridJSON struct {
+	Desc      string    `json:"desc"`
+	Points    int       `json:"points"`
+	Tolerance num.Float `json:"tolerance"`
+}
+
+type clampGapJSON struct {
+	Max     num.Float   `json:"max"`
+	Belief  []num.Float `json:"belief,omitempty"`
+	Best    []num.Float `json:"best_report,omitempty"`
+	Beliefs int         `json:"beliefs"`
+	Grid    string      `json:"grid"`
+}
+
+type cellJSON struct {
+	Report  []num.Float `json:"report"`
+	Beliefs int         `json:"beliefs"`
+	// Lo and Hi bound the first outcome's probability (n = 2 cells).
+	Lo *num.Float `json:"lo,omitempty"`
+	Hi *num.Float `json:"hi,omitempty"`
+}
+
+type marginJSON struct {
+	Report []num.Float `json:"report"`
+	Margin num.Float   `json:"margin"`
+	Rival  []num.Float `json:"rival,omitempty"`
+}
+
+type tableOutput struct {
+	Format  string `json:"format"`
+	File    string `json:"file,omitempty"`
+	Written bool   `json:"written"`
+}
+
+func newTableSummary(f *budget.Fit, rc *budget.Recheck, format, out string) *tableSummary {
+	reps := f.Menu.Reports
+	items := func(idx []int) [][]num.Float {
+		out := [][]num.Float{}
+		for _, i := range idx {
+			out = append(out, num.Floats(reps[i]))
+		}
+		return out
+	}
+	report := func(i int) []num.Float {
+		if i < 0 {
+			return nil
+		}
+		return num.Floats(reps[i])
+	}
+	s := &tableSummary{
+		Outcomes: f.Labels,
+		Menu:     menuJSON{Desc: f.MenuDesc(), Items: len(reps), Clamp: num.Float(f.Clamp), First: num.Floats(reps[0]), Last: num.Floats(reps[len(reps)-1])},
+		A:        num.Float(f.A), B: num.Float(f.B), Floor: num.Float(f.Floor), Cap: num.Float(f.Cap),
+		Reference: num.Floats(f.Reference), ReferencePay: num.Float(f.ReferencePay),
+		Unit: num.Float(f.Unit), Rounding: f.RoundingDesc(),
+		MinPay: num.Float(f.MinPay), MaxPay: num.Float(f.MaxPay),
+		Truthful: truthfulJSON{Min: num.Float(f.Truthful.Min), Max: num.Float(f.Truthful.Max),
+			MinBelief: num.Floats(f.Truthful.MinBelief), MaxBelief: num.Floats(f.Truthful.MaxBelief), Grid: f.Truthful.Grid},
+		Recheck: recheckJSON{Passed: rc.Passed, Verdict: rc.Verdict(f), MinMargin: num.Float(rc.MinMargin),
+			At: report(rc.MinMarginItem), Rival: report(rc.MinMarginRival),
+			Ties: items(rc.Ties), Beaten: items(rc.Beaten), NeverChosen: items(rc.NeverChosen),
+			TiedBeliefs: rc.TiedBeliefs, Grid: recheckGridJSON{Desc: rc.Grid, Points: rc.Beliefs, Tolerance: num.Float(rc.Tolerance)}},
+		Output:  tableOutput{Format: format, File: out},
+		Notes:   f.Notes(rc),
+		Caution: table.Caution,
+	}
+	if f.MeanPay != nil {
+		m := num.Float(*f.MeanPay)
+		s.MeanPay = &m
+	}
+	if g := rc.ClampGap; g != nil {
+		s.ClampGap = &clampGapJSON{Max: num.Float(g.Max), Belief: num.Floats(g.Belief), Best: num.Floats(g.Best), Beliefs: g.Beliefs, Grid: g.Grid}
+	}
+	for i, c := range rc.Cells {
+		cj := cellJSON{Report: num.Floats(reps[i]), Beliefs: c.Beliefs}
+		if len(f.Labels) == 2 && c.Beliefs > 0 {
+			lo, hi := num.Float(c.Lo), num.Float(c.Hi)
+			cj.Lo, cj.Hi = &lo, &hi
+		}
+		s.Cells = append(s.Cells, cj)
+		s.Margins = append(s.Margins, marginJSON{Report: num.Floats(reps[i]), Margin: num.Float(rc.Margins[i]), Rival: report(rc.Rivals[i])})
+	}
+	return s
+}
+
+// printTableSummary writes the fit and the re-check for a person.
+func printTableSummary(w io.Writer, f *budget.Fit, rc *budget.Recheck, s *tableSummary) error {
+	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', 0)
+	fmt.Fprintf(tw, "menu\t%s\n", f.MenuDesc())
+	fmt.Fprintf(tw, "payment\tpay = A - B·L(p, k), A = %s, B = %s\n", table.FormatNumber(f.A), table.FormatNumber(f.B))
+	fmt.Fprintf(tw, "budget\t%s\n", f.BudgetDesc())
+	fmt.Fprintf(tw, "rounding\t%s\n", f.RoundingDesc())
+	verdict := "FAILED"
+	if rc.Passed {
+		verdict = "passed"
+	}
+	fmt.Fprintf(tw, "re-check\t%s, smallest margin %s\n", verdict, table.FormatNumber(rc.MinMargin))
+	if err := tw.Flush(); err != nil {
+		return err
+	}
+	fmt.Fprintf(w, "  %s\n", s.Recheck.Verdict)
+	for _, n := range s.Notes {
+		fmt.Fprintf(w, "note: %s\n", n)
+	}
+	if err := printItems(w, f, rc); err != nil {
+		return err
+	}
+	if s.Output.Written {
+		fmt.Fprintf(w, "wrote %s (%s)\n", s.Output.File, s.Output.Format)
+	}
+	return nil
+}
+
+// maxItemRows bounds the per-item listing; --json has every item.
+const maxItemRows = 41
+
+// printItems lists each menu item's margin, closest rival and belief cell
+// when the menu is short enough to read (two outcomes), and otherwise the
+// items that fail.
+func printItems(w io.Writer, f *budget.Fit, rc *budget.Recheck) error {
+	reps := f.Menu.Reports
+	binary := len(f.Labels) == 2
+	var rows []int
+	for i, m := range rc.Margins {
+		if binary && len(reps) <= maxItemRows || !(m > rc.Tolerance) {
+			rows = append(rows, i)
+		}
+	}
+	if len(rows) == 0 {
+		return nil
+	}
+	more := 0
+	if len(rows) > maxItemRows {
+		rows, more = rows[:maxItemRows], len(rows)-maxItemRows
+	}
+	fmt.Fprintln(w)
+	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', 0)
+	cellHead := "beliefs that pick it"
+	if binary {
+		cellHead = fmt.Sprintf("beliefs in %q that pick it", f.Labels[0])
+	}
+	fmt.Fprintf(tw, "report\tmargin\t\tclosest rival\t%s\n", cellHead)
+	for _, i := range rows {
+		verdict := ""
+		switch m := rc.Margins[i]; {
+		case math.Abs(m) <= rc.Tolerance:
+			verdict = "TIE"
+		case m < 0:
+			verdict = "BEATEN"
+		}
+		rival := "-"
+		if r := rc.Rivals[i]; r >= 0 {
+			rival = num.Format(reps[r])
+		}
+		c := rc.Cells[i]
+		cell := "none on the grid"
+		switch {
+		case c.Beliefs > 0 && binary:
+			cell = fmt.Sprintf("[%s, %s]", table.FormatNumber(c.Lo), table.FormatNumber(c.Hi))
+		case c.Beliefs > 0:
+			cell = fmt.Sprintf("%d of %d", c.Beliefs, rc.Beliefs)
+		}
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\n", num.Format(reps[i]), table.FormatNumber(rc.Margins[i]), verdict, rival, cell)
+	}
+	if err := tw.Flush(); err != nil {
+		return err
+	}
+	if more > 0 {
+		fmt.Fprintf(w, "... and %d more items (--json lists them all)\n", more)
+	}
+	return nil
+}

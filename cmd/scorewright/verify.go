@@ -1,0 +1,197 @@
+package main
+
+import (
+	"context"
+	"flag"
+	"fmt"
+	"io"
+	"os"
+	"os/signal"
+	"strings"
+
+	"scorewright/generator/num"
+	"scorewright/verify"
+)
+
+// verifyFlags are the grid options check and audit share.
+type verifyFlags struct {
+	resolution int
+	tolerance  float64
+	limit      float64
+	workers    int
+	samples    int
+	asJSON     bool
+}
+
+const verifyUsage = "[--resolution K] [--tolerance T] [--limit L] [--workers W] [--samples S] [--json]"
+
+func addVerifyFlags(fs *flag.FlagSet) *verifyFlags {
+	v := &verifyFlags{}
+	fs.IntVar(&v.resolution, "resolution", 0, "grid resolution K: coordinates in steps of 1/K (default depends on the number of outcomes)")
+	fs.Float64Var(&v.tolerance, "tolerance", verify.DefaultTolerance, "slack allowed for rounding in every comparison")
+	fs.Float64Var(&v.limit, "limit", 0, "largest effort (payment) in absolute value the boundedness check accepts (0: no limit)")
+	fs.IntVar(&v.workers, "workers", 0, "goroutines to use (0: all cores)")
+	fs.IntVar(&v.samples, "samples", 0, "random lattice points when the full grid is too large (0: default)")
+	fs.BoolVar(&v.asJSON, "json", false, "print JSON")
+	return v
+}
+
+func (v *verifyFlags) settings(e *env) (verify.Settings, error) {
+	switch {
+	case v.resolution < 0:
+		return verify.Settings{}, usagef("--resolution must be positive, got %d", v.resolution)
+	case !(v.tolerance > 0):
+		return verify.Settings{}, usagef("--tolerance must be positive, got %g", v.tolerance)
+	case v.limit < 0:
+		return verify.Settings{}, usagef("--limit must be positive, got %g", v.limit)
+	case v.workers < 0 || v.samples < 0:
+		return verify.Settings{}, usagef("--workers and --samples must not be negative")
+	}
+	s := verify.Settings{Resolution: v.resolution, Tolerance: v.tolerance, Limit: v.limit, Workers: v.workers, Samples: v.samples}
+	if isTerminal(e.stderr) {
+		s.Progress = func(done, total int64) {
+			fmt.Fprintf(e.stderr, "\r%3.0f%% ", 100*float64(done)/float64(max(total, 1)))
+			if done >= total {
+				fmt.Fprint(e.stderr, "\r     \r")
+			}
+		}
+	}
+	return s, nil
+}
+
+// isTerminal reports whether w is a character device, so that progress
+// goes to a person watching and never into a pipe or a log.
+func isTerminal(w io.Writer) bool {
+	f, ok := w.(*os.File)
+	if !ok {
+		return false
+	}
+	st, err := f.Stat()
+	return err == nil && st.Mode()&os.ModeCharDevice != 0
+}
+
+// interruptible returns a context cancelled by Ctrl-C, so a long grid run
+// stops cleanly.
+func interruptible() (context.Context, context.CancelFunc) {
+	return signal.NotifyContext(context.Background(), os.Interrupt)
+}
+
+type gridJSON struct {
+	Resolution int       `json:"resolution"`
+	Points     int       `json:"points"`
+	Tolerance  num.Float `json:"tolerance"`
+	Sampled    bool      `json:"sampled"`
+	Interior   int       `json:"interior"`
+	Boundary   int       `json:"boundary"`
+	Pairs      int64     `json:"pairs"`
+	Statement  string    `json:"statement"`
+}
+
+type atJSON struct {
+	Belief []num.Float `json:"belief,omitempty"`
+	Report []num.Float `json:"report,omitempty"`
+}
+
+type partJSON struct {
+	Count  int64     `json:"count"`
+	Passed bool      `json:"passed"`
+	Worst  num.Float `json:"worst"`
+	At     atJSON    `json:"at"`
+}
+
+type checkJSON struct {
+	Name      string     `json:"name"`
+	Passed    bool       `json:"passed"`
+	Worst     num.Float  `json:"worst"`
+	At        atJSON     `json:"at"`
+	Strict    *bool      `json:"strict,omitempty"`
+	Margin    *num.Float `json:"margin,omitempty"`
+	Interior  partJSON   `json:"interior"`
+	Boundary  partJSON   `json:"boundary"`
+	Sharpened bool       `json:"sharpened,omitempty"`
+	GridWorst *num.Float `json:"grid_worst,omitempty"`
+	Status    string     `json:"optimiser_status,omitempty"`
+	Note      string     `json:"note"`
+}
+
+type reportJSON struct {
+	Verdict verify.Verdict `json:"verdict"`
+	Grid    gridJSON       `json:"grid"`
+	Checks  []checkJSON    `json:"checks"`
+	Notes   []string       `json:"notes,omitempty"`
+}
+
+func toReportJSON(r *verify.Report) reportJSON {
+	out := reportJSON{Verdict: r.Verdict, Notes: r.Notes, Grid: gridJSON{
+		Resolution: r.Grid.Resolution, Points: r.Grid.Points, Tolerance: num.Float(r.Grid.Tolerance), Sampled: r.Grid.Sampled,
+		Interior: r.Grid.Interior, Boundary: r.Grid.Boundary, Pairs: r.Grid.Pairs, Statement: r.Grid.String(),
+	}}
+	for _, c := range r.Checks {
+		cj := checkJSON{Name: c.Name, Passed: c.Passed, Worst: num.Float(c.Worst), At: atJSON{num.Floats(c.Belief), num.Floats(c.Report)},
+			Interior: toPartJSON(c.Interior), Boundary: toPartJSON(c.Boundary), Sharpened: c.Sharpened, Status: c.Status, Note: c.Note}
+		if c.Name == verify.NameConcavity || c.Name == verify.NameProperness {
+			st := c.Strict
+			cj.Strict = &st
+		}
+		if c.Name == verify.NameProperness {
+			m := num.Float(c.Margin)
+			cj.Margin = &m
+		}
+		if c.Sharpened {
+			gw := num.Float(c.GridWorst)
+			cj.GridWorst = &gw
+		}
+		out.Checks = append(out.Checks, cj)
+	}
+	return out
+}
+
+func toPartJSON(p verify.Part) partJSON {
+	return partJSON{Count: p.Count, Passed: p.Passed, Worst: num.Float(p.Worst), At: atJSON{num.Floats(p.Belief), num.Floats(p.Report)}}
+}
+
+// printReport writes the human form of a verification: verdict, grid
+// statement, one block per check, notes.
+func printReport(w io.Writer, r *verify.Report) {
+	fmt.Fprintf(w, "verdict: %s\n", r.Verdict)
+	fmt.Fprintf(w, "grid:    %s\n\n", r.Grid)
+	for _, c := range r.Checks {
+		status := "passed"
+		if !c.Passed {
+			status = "FAILED"
+		}
+		if (c.Name == verify.NameConcavity || c.Name == verify.NameProperness) && c.Passed {
+			if c.Strict {
+				status += ", strict"
+			} else {
+				status += ", not strict"
+			}
+		}
+		at := ""
+		if c.Belief != nil {
+			at += " at belief " + num.Format(c.Belief)
+		}
+		if c.Report != nil {
+			at += " report " + num.Format(c.Report)
+		}
+		fmt.Fprintf(w, "%-14s %s; worst %.6g%s\n", c.Name, status, c.Worst, at)
+		fmt.Fprintf(w, "               interior: %s; boundary: %s\n", partLine(c.Interior), partLine(c.Boundary))
+		for _, line := range strings.Split(c.Note, "; ") {
+			fmt.Fprintf(w, "               %s\n", line)
+		}
+	}
+	for _, n := range r.Notes {
+		fmt.Fprintf(w, "note: %s\n", n)
+	}
+}
+
+func partLine(p verify.Part) string {
+	if p.Count == 0 {
+		return "nothing examined"
+	}
+	s := "passed"
+	if !p.Passed {
+		s = "FAILED"
+	}
+	return fmt.Sprintf("%s (worst %.6g over %d)", s, p.Worst, p.Count)
+}

@@ -1,0 +1,12 @@
+// Package budget turns a proper scoring rule into money a contract can
+// promise: it builds the report menu the contract allows, fits
+// pay = A - B·L(p, k) (B > 0) to a budget, rounds payments to a currency
+// unit, and re-checks that scaling and rounding left every menu item the
+// strict best report for a forecaster who believes it.
+//
+// An affine change of pay with B > 0 keeps a rule proper, so the fit
+// itself costs no honesty; a finite menu, rounding and a clamp can, and
+// the re-check measures by how much. Every verdict here is computed on a
+// stated grid of beliefs with a stated tolerance: it is evidence, not
+// proof.
+package budget

@@ -1,0 +1,333 @@
+package budget
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"runtime"
+	"sync"
+	"sync/atomic"
+
+	"scorewright/generator/bregman"
+)
+
+// RecheckSettings tune Recheck. The zero value means the defaults.
+type RecheckSettings struct {
+	// Resolution is K for the belief grid of step 1/K used for the belief
+	// cells and the clamp audit; 0 picks 1000 for two outcomes and the
+	// finest grid up to 1/200 that keeps the work bounded for more.
+	Resolution int
+	// Tolerance, in currency, below which two expected payments count as
+	// equal; 0 means 1e-9 × the largest payment (at least 1e-9).
+	Tolerance float64
+	// Workers is the number of goroutines; 0 means GOMAXPROCS.
+	Workers int
+	// Progress, when set, is called from the calling goroutine with the
+	// number of beliefs done and the total.
+	Progress func(done, total int)
+}
+
+// Recheck is the verdict on a fitted, rounded table.
+type Recheck struct {
+	// Passed is true when every menu item is the strict best report (by a
+	// margin above Tolerance) for a forecaster whose belief is that item.
+	Passed bool
+	// MinMargin is the smallest incentive margin in currency: over menu
+	// items i, the expected pay of reporting i under belief i minus the
+	// best expected pay of any other item. Zero or less fails.
+	MinMargin float64
+	// MinMarginItem is the item with the smallest margin and
+	// MinMarginRival the other item that comes closest for that belief.
+	MinMarginItem, MinMarginRival int
+	// Margins[i] and Rivals[i] are the margin and closest rival of item i.
+	Margins []float64
+	Rivals  []int
+	// Ties are items whose margin is within Tolerance of zero; Beaten are
+	// items some other item beats for their own belief.
+	Ties, Beaten []int
+	// NeverChosen are items that no belief on the grid picks as its
+	// unique best report.
+	NeverChosen []int
+	// Cells[i] says which grid beliefs pick item i as their unique best.
+	Cells []Cell
+	// TiedBeliefs counts grid beliefs whose best report is a tie.
+	TiedBeliefs int
+	// Beliefs is the number of grid beliefs; Grid describes them.
+	Beliefs int
+	Grid    string
+	// Tolerance is the tie tolerance used, in currency.
+	Tolerance float64
+	// ClampGap is the clamp's honesty gap, when the menu has a clamp.
+	ClampGap *ClampGap
+}
+
+// Cell is the set of grid beliefs that pick one menu item.
+type Cell struct {
+	// Beliefs is how many grid beliefs pick the item as unique best.
+	Beliefs int
+	// Lo and Hi bound the first outcome's probability over those beliefs
+	// (meaningful for two outcomes, where cells are intervals); NaN when
+	// no belief picks the item.
+	Lo, Hi float64
+}
+
+// ClampGap measures what a clamp costs honesty: over beliefs q, the most a
+// forecaster gains (exact currency, before rounding) by reporting the best
+// menu item instead of q itself, when both are paid by the clamped rule.
+// A proper rule without a clamp has gap 0.
+type ClampGap struct {
+	// Max is the largest gap found; Belief is where, Best the menu item
+	// that beats the honest report there (BestItem its index).
+	Max          float64
+	Belief, Best []float64
+	BestItem     int
+	// Beliefs is the number of beliefs searched; Grid describes them.
+	Beliefs int
+	Grid    string
+}
+
+// Recheck checks the rounded table of f: each item against every other
+// for the belief that is that item, then which item each belief on a
+// finer grid picks. It is a grid check: evidence, not proof.
+func (f *Fit) Recheck(ctx context.Context, set RecheckSettings) (*Recheck, error) {
+	m := f.Menu.Reports
+	M, n := len(m), len(f.Labels)
+	pays := make([]float64, 0, M*n)
+	scale := 1.0
+	for _, row := range f.Pays {
+		pays = append(pays, row...)
+		for _, v := range row {
+			scale = math.Max(scale, math.Abs(v))
+		}
+	}
+	tol := set.Tolerance
+	if tol <= 0 {
+		tol = 1e-9 * scale
+	}
+	K := set.Resolution
+	if K <= 0 {
+		if n == 2 {
+			K = 1000
+		} else {
+			K = beliefResolution(n, 200, math.Max(100, math.Min(50000, 5e7/float64(M*n))))
+		}
+	}
+	grid := SimplexGrid(K, n)
+	rc := &Recheck{
+		Margins: make([]float64, M), Rivals: make([]int, M), Cells: make([]Cell, M),
+		Beliefs: len(grid), Tolerance: tol,
+		Grid: fmt.Sprintf("beliefs on a simplex grid of step 1/%d (%d points), tie tolerance %.3g", K, len(grid), tol),
+	}
+	best := make([]int, len(grid)) // -1: a tie
+	total := M + len(grid)
+	err := parallel(ctx, total, set.Workers, set.Progress, func(t int) {
+		if t < M {
+			rc.Margins[t], rc.Rivals[t] = margin(pays, n, m[t], t)
+			return
+		}
+		q := grid[t-M]
+		b, second, bv, sv := top2(pays, n, q)
+		if bv-sv <= tol && second >= 0 {
+			b = -1
+		}
+		best[t-M] = b
+	})
+	if err != nil {
+		return nil, err
+	}
+	rc.MinMargin = math.Inf(1)
+	for i, mg := range rc.Margins {
+		if math.Abs(mg) <= tol {
+			// A tie reads as a tie, not as float noise.
+			mg, rc.Margins[i] = 0, 0
+		}
+		if mg < rc.MinMargin {
+			rc.MinMargin, rc.MinMarginItem, rc.MinMarginRival = mg, i, rc.Rivals[i]
+		}
+		switch {
+		case mg == 0:
+			rc.Ties = append(rc.Ties, i)
+		case mg < 0:
+			rc.Beaten = append(rc.Beaten, i)
+		}
+	}
+	for i := range rc.Cells {
+		rc.Cells[i] = Cell{Lo: math.NaN(), Hi: math.NaN()}
+	}
+	for g, b := range best {
+		if b < 0 {
+			rc.TiedBeliefs++
+			continue
+		}
+		c := &rc.Cells[b]
+		x := grid[g][0]
+		if c.Beliefs == 0 || x < c.Lo {
+			c.Lo = x
+		}
+		if c.Beliefs == 0 || x > c.Hi {
+			c.Hi = x
+		}
+		c.Beliefs++
+	}
+	for i, c := range rc.Cells {
+		if c.Beliefs == 0 {
+			rc.NeverChosen = append(rc.NeverChosen, i)
+		}
+	}
+	rc.Passed = len(rc.Ties) == 0 && len(rc.Beaten) == 0
+	if f.Clamp > 0 {
+		if rc.ClampGap, err = f.clampGap(ctx, grid); err != nil {
+			return nil, err
+		}
+	}
+	return rc, nil
+}
+
+// expectedPay is sum_k q_k pays[j][k] over the flat n-column pay matrix.
+// Payments in a fitted table are finite, so the plain product is exact
+// (no 0·Inf convention needed).
+func expectedPay(pays []float64, n int, q []float64, j int) float64 {
+	row := pays[j*n : j*n+n : j*n+n]
+	var s float64
+	for k, x := range q[:n] {
+		s += x * row[k]
+	}
+	return s
+}
+
+// margin returns, for belief q = menu item i, the expected pay of
+// reporting i minus the best expected pay of another item, and that item.
+func margin(pays []float64, n int, q []float64, i int) (float64, int) {
+	own := expectedPay(pays, n, q, i)
+	rival, rv := -1, math.Inf(-1)
+	for j := 0; j*n < len(pays); j++ {
+		if j == i {
+			continue
+		}
+		if v := expectedPay(pays, n, q, j); v > rv {
+			rival, rv = j, v
+		}
+	}
+	if rival < 0 {
+		return math.Inf(1), -1
+	}
+	return own - rv, rival
+}
+
+// top2 returns the best and second-best items for belief q and their
+// expected pays.
+func top2(pays []float64, n int, q []float64) (best, second int, bv, sv float64) {
+	best, second = -1, -1
+	bv, sv = math.Inf(-1), math.Inf(-1)
+	for j := 0; j*n < len(pays); j++ {
+		v := expectedPay(pays, n, q, j)
+		switch {
+		case v > bv:
+			second, sv = best, bv
+			best, bv = j, v
+		case v > sv:
+			second, sv = j, v
+		}
+	}
+	return best, second, bv, sv
+}
+
+// parallel runs job(0..total-1) on workers goroutines in chunks, stops
+// early when ctx is cancelled, and reports progress from the calling
+// goroutine.
+func parallel(ctx context.Context, total, workers int, progress func(done, total int), job func(int)) error {
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	const chunk = 64
+	var next atomic.Int64
+	done := make(chan int, workers)
+	var wg sync.WaitGroup
+	for range workers {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for ctx.Err() == nil {
+				start := int(next.Add(chunk)) - chunk
+				if start >= total {
+					return
+				}
+				end := min(start+chunk, total)
+				for t := start; t < end; t++ {
+					job(t)
+				}
+				done <- end - start
+			}
+		}()
+	}
+	go func() { wg.Wait(); close(done) }()
+	count := 0
+	for d := range done {
+		count += d
+		if progress != nil {
+			progress(count, total)
+		}
+	}
+	return ctx.Err()
+}
+
+// clampGap searches the clamp's honesty gap over the grid beliefs that
+// the clamp touches (an entry below the clamp) and over probes near every
+// menu item: the item with one outcome's probability set to 1/4, 1/2 and
+// 3/4 of the clamp, the rest scaled to fit.
+func (f *Fit) clampGap(ctx context.Context, grid [][]float64) (*ClampGap, error) {
+	n := len(f.Labels)
+	c := f.Clamp
+	var beliefs [][]float64
+	for _, q := range grid {
+		for _, x := range q {
+			if x < c {
+				beliefs = append(beliefs, q)
+				break
+			}
+		}
+	}
+	gridPart := len(beliefs)
+	for _, p := range f.Menu.Reports {
+		for k := range n {
+			if p[k] >= 1 {
+				continue
+			}
+			for _, t := range []float64{0.25, 0.5, 0.75} {
+				q := make([]float64, n)
+				qk := t * c
+				scale := (1 - qk) / (1 - p[k])
+				for i := range q {
+					q[i] = p[i] * scale
+				}
+				q[k] = qk
+				beliefs = append(beliefs, q)
+			}
+		}
+	}
+	s := f.rule.NewScorer()
+	cp := make([]float64, n)
+	g := &ClampGap{Max: math.Inf(-1), BestItem: -1, Beliefs: len(beliefs),
+		Grid: fmt.Sprintf("%d grid beliefs with an entry below the clamp %g, and %d probes with one entry at 1/4, 1/2, 3/4 of the clamp next to each menu item", gridPart, c, len(beliefs)-gridPart)}
+	for b, q := range beliefs {
+		if b%256 == 0 && ctx.Err() != nil {
+			return nil, ctx.Err()
+		}
+		honest := s.Expected(q, ClampReport(cp, q, c))
+		bestItem, bestEff := -1, math.Inf(1)
+		for j, eff := range f.Efforts {
+			if v := bregman.Dot(q, eff); v < bestEff {
+				bestItem, bestEff = j, v
+			}
+		}
+		if gap := f.B * (honest - bestEff); gap > g.Max {
+			g.Max, g.Belief, g.BestItem = gap, q, bestItem
+			g.Best = f.Menu.Reports[bestItem]
+		}
+	}
+	if !(g.Max > 0) {
+		// Honesty wins everywhere searched.
+		g.Max, g.Belief, g.Best, g.BestItem = 0, nil, nil, -1
+	}
+	return g, nil
+}

@@ -1,0 +1,113 @@
+package budget
+
+import (
+	"fmt"
+	"math"
+)
+
+// Rounding modes for currency.
+const (
+	// RoundNearest rounds to the nearest unit, halves away from zero.
+	RoundNearest = "nearest"
+	// RoundDown rounds toward minus infinity (never pays more than exact).
+	RoundDown = "down"
+	// RoundUp rounds toward plus infinity (never pays less than exact).
+	RoundUp = "up"
+)
+
+// snapUnits is how close, in units, an amount must be to a whole number
+// of units to count as that number. Pay is computed in binary floating
+// point, so 100 - 100·0.3² comes out as 90.99999999999999; rounding it
+// "down" to 90 would pay a unit less than the contract's arithmetic says.
+// 1e-6 of a unit is far below any amount a contract distinguishes and far
+// above float noise.
+const snapUnits = 1e-6
+
+// rounder rounds amounts to a currency unit.
+type rounder struct {
+	unit float64
+	mode string
+	// inv is 1/unit when that is a whole number (0.01 -> 100), so that
+	// k/inv gives the float nearest the decimal amount; 0 otherwise.
+	inv float64
+}
+
+func newRounder(unit float64, mode string) (rounder, error) {
+	if mode == "" {
+		mode = RoundNearest
+	}
+	switch mode {
+	case RoundNearest, RoundDown, RoundUp:
+	default:
+		return rounder{}, fmt.Errorf("rounding: %q is not one of %q, %q, %q", mode, RoundNearest, RoundDown, RoundUp)
+	}
+	if math.IsNaN(unit) || math.IsInf(unit, 0) || unit < 0 {
+		return rounder{}, fmt.Errorf("rounding: unit %g must be a positive number (or 0 for none)", unit)
+	}
+	r := rounder{unit: unit, mode: mode}
+	if unit > 0 && unit < 1 {
+		if inv := math.Round(1 / unit); math.Abs(inv*unit-1) < 1e-12 {
+			r.inv = inv
+		}
+	}
+	return r, nil
+}
+
+// round returns x rounded to the unit in the rounder's mode; with unit 0
+// it returns x.
+func (r rounder) round(x float64) float64 {
+	if r.unit == 0 || math.IsNaN(x) || math.IsInf(x, 0) {
+		return x
+	}
+	v := x / r.unit
+	if w := math.Round(v); math.Abs(v-w) < snapUnits {
+		v = w
+	} else {
+		switch r.mode {
+		case RoundDown:
+			v = math.Floor(v)
+		case RoundUp:
+			v = math.Ceil(v)
+		default:
+			// Halves away from zero, a half blurred by float noise
+			// included.
+			if h := math.Floor(v) + 0.5; math.Abs(v-h) < snapUnits {
+				v = h
+			}
+			v = math.Round(v)
+		}
+	}
+	if r.inv > 0 {
+		return v / r.inv
+	}
+	return v * r.unit
+}
+
+// decimals is the number of decimals that writes every multiple of the
+// unit exactly (0.05 -> 2, 1 -> 0, 0.125 -> 3), or -1 when there is no
+// rounding or the unit has no short decimal form.
+func (r rounder) decimals() int {
+	if r.unit == 0 {
+		return -1
+	}
+	for d := 0; d <= 9; d++ {
+		s := r.unit * math.Pow(10, float64(d))
+		if math.Abs(s-math.Round(s)) < 1e-9*math.Max(1, s) {
+			return d
+		}
+	}
+	return -1
+}
+
+// describe says in words how amounts are rounded.
+func (r rounder) describe() string {
+	if r.unit == 0 {
+		return "none (exact amounts)"
+	}
+	mode := map[string]string{
+		RoundNearest: "nearest, halves away from zero",
+		RoundDown:    "down",
+		RoundUp:      "up",
+	}[r.mode]
+	return fmt.Sprintf("to multiples of %s, %s", short(r.unit), mode)
+}

@@ -1,0 +1,194 @@
+package table
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strconv"
+	"strings"
+
+	"scorewright/generator/num"
+)
+
+// Kind says what the values of a table are.
+type Kind string
+
+// KindMoney: values are payments in currency.
+const KindMoney Kind = "money"
+
+// Caution is the line every export carries.
+var Caution = []string{
+	"scorewright checks mathematics, not law.",
+	"Payment schemes (lottery-style payments especially) can be regulated, for example as gambling, wages or prizes.",
+	"Have any contract that uses this table reviewed by qualified counsel.",
+}
+
+// Table is a payment table with its record.
+type Table struct {
+	// Kind says what Values are.
+	Kind Kind
+	// ValueName heads the value columns: "pay" gives "pay if frost".
+	ValueName string
+	// Decimals is how many decimals values are written with; negative
+	// means the shortest form that reads back as the same float64.
+	Decimals int
+	// Labels name the outcomes.
+	Labels []string
+	// Reports are the menu items, one probability vector per row.
+	Reports [][]float64
+	// Values[i][k] is the value of report i when outcome k happens.
+	Values [][]float64
+	// Meta is the record that travels with the table.
+	Meta Meta
+}
+
+// Meta is the metadata block of an export. Every field is written by every
+// format.
+type Meta struct {
+	Title    string             `json:"title,omitempty"`
+	Formula  string             `json:"formula"`
+	Preset   string             `json:"preset,omitempty"`
+	Params   map[string]float64 `json:"params,omitempty"`
+	Outcomes []string           `json:"outcomes"`
+	// Menu describes the reports the contract allows.
+	Menu string `json:"menu"`
+	// Payment states the payment formula in words.
+	Payment string    `json:"payment"`
+	A       num.Float `json:"A"`
+	B       num.Float `json:"B"`
+	// Budget states what the fit aimed at.
+	Budget string `json:"budget"`
+	// Rounding states the unit and mode.
+	Rounding string `json:"rounding"`
+	// Passed is the verdict of the re-check after scaling and rounding.
+	Passed bool `json:"recheck_passed"`
+	// Verdict explains the re-check in one sentence.
+	Verdict string `json:"recheck_verdict"`
+	// MinMargin is the smallest incentive margin, in the table's values.
+	MinMargin num.Float `json:"min_margin"`
+	// Warnings are shown prominently; a table exported despite a failed
+	// re-check carries one.
+	Warnings []string `json:"warnings,omitempty"`
+	// Notes are further findings (truthful pay range, clamp gap...).
+	Notes   []string `json:"notes,omitempty"`
+	Version string   `json:"tool_version"`
+	Date    string   `json:"date"`
+	// Cautions close every export; transforms may add lines.
+	Cautions []string `json:"caution"`
+}
+
+// Field is one line of the metadata block.
+type Field struct{ Key, Value string }
+
+// Fields returns the metadata block in the order every text format writes
+// it. Warnings come first so nobody reads past them.
+func (m *Meta) Fields() []Field {
+	var f []Field
+	add := func(k, v string) {
+		if v != "" {
+			f = append(f, Field{k, v})
+		}
+	}
+	for _, w := range m.Warnings {
+		add("WARNING", w)
+	}
+	add("title", m.Title)
+	add("formula", m.Formula)
+	add("preset", m.Preset)
+	add("parameters", formatParams(m.Params))
+	add("outcomes", strings.Join(m.Outcomes, ", "))
+	add("menu", m.Menu)
+	add("payment", m.Payment)
+	add("A", FormatNumber(float64(m.A)))
+	add("B", FormatNumber(float64(m.B)))
+	add("budget", m.Budget)
+	add("rounding", m.Rounding)
+	verdict := "FAILED"
+	if m.Passed {
+		verdict = "passed"
+	}
+	add("re-check", verdict+": "+m.Verdict)
+	add("smallest margin", FormatNumber(float64(m.MinMargin)))
+	for _, n := range m.Notes {
+		add("note", n)
+	}
+	add("tool", "scorewright "+m.Version)
+	add("date", m.Date)
+	for _, c := range m.Cautions {
+		add("caution", c)
+	}
+	return f
+}
+
+func formatParams(p map[string]float64) string {
+	if len(p) == 0 {
+		return ""
+	}
+	keys := make([]string, 0, len(p))
+	for k := range p {
+		keys = append(keys, k)
+	}
+	sort.Strings(keys)
+	parts := make([]string, len(keys))
+	for i, k := range keys {
+		parts[i] = k + " = " + FormatNumber(p[k])
+	}
+	return strings.Join(parts, ", ")
+}
+
+// FormatNumber writes a metadata number with ten significant digits.
+func FormatNumber(v float64) string {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return fmt.Sprint(v)
+	}
+	if v == 0 {
+		v = 0
+	}
+	return strconv.FormatFloat(v, 'g', 10, 64)
+}
+
+// Value formats a table value with the table's decimals.
+func (t *Table) Value(v float64) string {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return fmt.Sprint(v)
+	}
+	if t.Decimals < 0 {
+		return strconv.FormatFloat(v+0, 'g', -1, 64)
+	}
+	s := strconv.FormatFloat(v, 'f', t.Decimals, 64)
+	if strings.Trim(s, "-0.") == "" {
+		s = strings.TrimPrefix(s, "-")
+	}
+	return s
+}
+
+// Probability formats a report entry: the shortest form that reads back
+// as the same float64.
+func Probability(v float64) string { return strconv.FormatFloat(v+0, 'g', -1, 64) }
+
+// ReportHeader is the column heading for the probability of outcome k.
+func (t *Table) ReportHeader(k int) string { return "report " + t.Labels[k] }
+
+// ValueHeader is the column heading for the value when outcome k happens.
+func (t *Table) ValueHeader(k int) string { return t.ValueName + " if " + t.Labels[k] }
+
+// Check reports a table whose shape does not add up; writers call it so
+// that a malformed table is an error, not a garbled file.
+func (t *Table) Check() error {
+	n := len(t.Labels)
+	if n < 2 {
+		return fmt.Errorf("table: %d outcome labels", n)
+	}
+	if len(t.Reports) != len(t.Values) || len(t.Reports) == 0 {
+		return fmt.Errorf("table: %d reports and %d value rows", len(t.Reports), len(t.Values))
+	}
+	for i := range t.Reports {
+		if len(t.Reports[i]) != n || len(t.Values[i]) != n {
+			return fmt.Errorf("table: row %d does not have %d entries", i+1, n)
+		}
+	}
+	if t.ValueName == "" {
+		return fmt.Errorf("table: no value name")
+	}
+	return nil
+}

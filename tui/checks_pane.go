@@ -1,0 +1,152 @@
+package tui
+
+import (
+	"fmt"
+	"strings"
+
+	"github.com/charmbracelet/bubbles/key"
+	"github.com/charmbracelet/bubbles/progress"
+
+	"scorewright/generator/num"
+)
+
+// ChecksPane shows the checks of the current design and their progress.
+type ChecksPane struct {
+	st          Styles
+	keys        KeyMap
+	w, h        int
+	focused     bool
+	available   bool
+	bar         progress.Model
+	running     bool
+	waiting     bool // an edit is waiting out the debounce
+	done, total int64
+	report      *CheckReport
+	err         error
+	stale       bool // the report is for an earlier design
+	blocked     string
+}
+
+// NewChecksPane returns a checks pane; available says whether the build
+// has a checker.
+func NewChecksPane(st Styles, keys KeyMap, available bool) ChecksPane {
+	bar := progress.New(progress.WithFillCharacters('█', '░'), progress.WithoutPercentage(), progress.WithSolidFill("#6FD3B5"))
+	return ChecksPane{st: st, keys: keys, available: available, bar: bar}
+}
+
+// SetSize sets the outer size of the pane.
+func (p *ChecksPane) SetSize(w, h int) {
+	p.w, p.h = w, h
+	p.bar.Width = max(10, w-16)
+}
+
+// Focus marks the pane as the one keys go to.
+func (p *ChecksPane) Focus() { p.focused = true }
+
+// Blur is Focus undone.
+func (p *ChecksPane) Blur() { p.focused = false }
+
+// KeyHelp lists the pane's keys.
+func (p ChecksPane) KeyHelp() []key.Binding { return []key.Binding{p.keys.Rerun} }
+
+// edited marks the shown report as stale and waits for the debounce.
+func (p *ChecksPane) edited() {
+	p.stale = p.report != nil || p.err != nil
+	p.waiting, p.running, p.blocked = true, false, ""
+}
+
+// block says the checks cannot run for the current design, and why.
+func (p *ChecksPane) block(why string) {
+	p.waiting, p.running, p.blocked = false, false, why
+}
+
+// started marks a run as begun.
+func (p *ChecksPane) started() {
+	p.waiting, p.running, p.done, p.total, p.blocked = false, true, 0, 0, ""
+}
+
+func (p *ChecksPane) progressed(done, total int64) { p.done, p.total = done, total }
+
+func (p *ChecksPane) finished(r *CheckReport, err error) {
+	p.running, p.report, p.err, p.stale = false, r, err, false
+}
+
+// Running reports whether a check is in progress.
+func (p ChecksPane) Running() bool { return p.running }
+
+// Report is the last finished report (nil if none).
+func (p ChecksPane) Report() *CheckReport { return p.report }
+
+// View draws the pane.
+func (p ChecksPane) View() string {
+	st := p.st
+	var lines []string
+	if !p.available {
+		lines = append(lines,
+			"The checks (package verify) are not part",
+			"of this build yet. The picture is a",
+			"drawing, not a verdict.")
+		return paneFrame(st, "Checks", p.focused, p.w, p.h, strings.Join(lines, "\n"))
+	}
+	switch {
+	case p.blocked != "":
+		lines = append(lines, st.Dim.Render("not run: "+p.blocked))
+	case p.running:
+		pct := 0.0
+		if p.total > 0 {
+			pct = float64(p.done) / float64(p.total)
+		}
+		lines = append(lines, p.bar.ViewAs(pct)+fmt.Sprintf(" %3.0f%% checking", pct*100))
+	case p.waiting:
+		lines = append(lines, st.Dim.Render("design changed; checking shortly…"))
+	}
+	if p.err != nil {
+		lines = append(lines, st.Error.Render("✗ "+p.err.Error()))
+	}
+	if r := p.report; r != nil {
+		verdict := r.Verdict
+		vs := st.Pass
+		if strings.Contains(verdict, "improper") || !allPassed(r) {
+			vs = st.Fail
+		}
+		head := "Verdict " + vs.Render(verdict)
+		if p.stale {
+			head += st.Dim.Render("  (for the previous design)")
+		}
+		lines = append(lines, head)
+		lines = append(lines, st.Dim.Render(fmt.Sprintf("grid resolution %d, %d points, tolerance %g", r.Resolution, r.Points, r.Tolerance)))
+		for _, c := range r.Rows {
+			mark := st.Pass.Render("✓")
+			if !c.Passed {
+				mark = st.Fail.Render("✗")
+			}
+			line := fmt.Sprintf("%s %-13s worst %.3g", mark, c.Name, c.Worst)
+			if c.Belief != nil {
+				line += " at q=" + num.Format(c.Belief)
+			}
+			if c.Report != nil {
+				line += " p=" + num.Format(c.Report)
+			}
+			lines = append(lines, line)
+			if c.Note != "" {
+				lines = append(lines, st.Dim.Render("  "+c.Note))
+			}
+		}
+		for _, n := range r.Notes {
+			lines = append(lines, st.Dim.Render(n))
+		}
+		lines = append(lines, st.Dim.Render("A grid check is evidence, not proof."))
+	} else if !p.running && p.err == nil && p.blocked == "" && !p.waiting {
+		lines = append(lines, st.Dim.Render("no checks run yet"))
+	}
+	return paneFrame(st, "Checks", p.focused, p.w, p.h, strings.Join(lines, "\n"))
+}
+
+func allPassed(r *CheckReport) bool {
+	for _, c := range r.Rows {
+		if !c.Passed {
+			return false
+		}
+	}
+	return true
+}

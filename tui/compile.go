@@ -1,0 +1,111 @@
+package tui
+
+import (
+	"fmt"
+
+	"scorewright/generator/bregman"
+	"scorewright/generator/design"
+	"scorewright/generator/formula"
+)
+
+// compiled is a design turned into something that can be evaluated: a
+// Bregman rule in generator mode, one payout program per outcome in
+// payout mode.
+type compiled struct {
+	d      *design.Design // a private copy
+	rule   *bregman.Rule
+	payout []*formula.Program
+	params []formula.ParamValue
+	err    error
+}
+
+// compileDesign compiles a copy of d. It never panics; trouble is in err.
+func compileDesign(d *design.Design) *compiled {
+	c := &compiled{d: d}
+	switch d.Mode {
+	case design.ModeGenerator, "":
+		r, err := d.Rule()
+		if err != nil {
+			c.err = err
+			return c
+		}
+		c.rule = r
+		if f, ok := r.Gen.(*bregman.Formula); ok {
+			c.params = f.Program().Params()
+		}
+	case design.ModePayout:
+		for y := 1; y <= d.N(); y++ {
+			prog, err := formula.CompileString(d.Formula, formula.Scope{
+				Outcomes: d.N(), Ordered: d.Ordered, Weights: d.Weights, Params: d.Params, Payout: true, Outcome: y,
+			})
+			if err != nil {
+				c.err = err
+				return c
+			}
+			c.payout = append(c.payout, prog)
+		}
+		c.params = c.payout[0].Params()
+	default:
+		c.err = fmt.Errorf("this build cannot compute %s designs yet; switch the mode to generator or payout", d.Mode)
+	}
+	return c
+}
+
+// ok reports whether the design compiled.
+func (c *compiled) ok() bool { return c != nil && c.err == nil }
+
+// reward reports whether scores are payments (higher is better) rather
+// than efforts (lower is better).
+func (c *compiled) reward() bool { return c.payout != nil }
+
+// sampler evaluates a compiled design at reports. It owns scratch space
+// and belongs to one goroutine.
+type sampler struct {
+	n        int
+	reward   bool
+	sc       *bregman.Scorer
+	machines []*formula.Machine
+	vars     []float64
+	a, b     []float64
+}
+
+func (c *compiled) newSampler() *sampler {
+	n := c.d.N()
+	s := &sampler{n: n, reward: c.reward(), a: make([]float64, n), b: make([]float64, n)}
+	if c.rule != nil {
+		s.sc = c.rule.NewScorer()
+	} else {
+		for _, p := range c.payout {
+			s.machines = append(s.machines, p.NewMachine())
+		}
+		s.vars = make([]float64, c.payout[0].NumVars())
+	}
+	return s
+}
+
+// scores writes the score of report p for every outcome into dst: the
+// effort L(p, k) in generator mode, the payment in payout mode.
+func (s *sampler) scores(dst, p []float64) {
+	if s.sc != nil {
+		s.sc.Efforts(dst, p)
+		return
+	}
+	copy(s.vars, p)
+	for k, m := range s.machines {
+		dst[k] = m.Value(s.vars)
+	}
+}
+
+// regret is what a forecaster with belief q loses in expectation by
+// reporting p instead of q: Phi(q, p) - Phi(q, q) for efforts, the
+// expected pay of q minus that of p for payments. It is at least 0 for
+// every p exactly when the rule is proper.
+func (s *sampler) regret(q, p []float64) float64 {
+	s.scores(s.a, p)
+	s.scores(s.b, q)
+	d := bregman.Dot(q, s.a) - bregman.Dot(q, s.b)
+	if s.reward {
+		d = -d
+	}
+	return d
+}

@@ -1,0 +1,80 @@
+package tui
+
+import (
+	"strings"
+
+	"scorewright/generator/design"
+	"scorewright/presets"
+)
+
+// The demo designs are invented scenarios; their numbers are demo data.
+
+// DemoFrost is the design the workbench opens with: an orchard
+// co-operative pays a contracted forecaster, night by night, for the
+// probability of a frost night.
+func DemoFrost() *design.Design {
+	return &design.Design{
+		Version: design.SchemaVersion,
+		Title:   "Orchard co-operative: frost-night forecasts",
+		Labels:  []string{"frost", "no frost"},
+		Mode:    design.ModeGenerator,
+		Preset:  "power",
+		Formula: "# power family; g = 2 is the quadratic rule\ng = 2\n(1 - sum(p^g)) / (g - 1)",
+		Budget:  design.Budget{Floor: 0, Cap: 40, Step: 0.05, Unit: 0.5, Rounding: "nearest"},
+	}
+}
+
+// DemoHarvest is the second demo, reachable from the first: the same
+// co-operative buys a three-way harvest outlook (below / near / above the
+// usual crop), whose outcomes are ordered.
+func DemoHarvest() *design.Design {
+	return &design.Design{
+		Version: design.SchemaVersion,
+		Title:   "Orchard co-operative: harvest outlook",
+		Labels:  []string{"below", "near", "above"},
+		Ordered: true,
+		Mode:    design.ModeGenerator,
+		Preset:  "ranked",
+		Formula: "csum(c*(1-c))",
+		Budget:  design.Budget{Floor: 5, Cap: 60, Step: 0.1, Unit: 1, Rounding: "nearest"},
+	}
+}
+
+// demos lists the demo designs in the order the demo key cycles them.
+func demos() []func() *design.Design { return []func() *design.Design{DemoFrost, DemoHarvest} }
+
+// cloneDesign returns a deep copy of d, so that background jobs never
+// share memory with the design being edited.
+func cloneDesign(d *design.Design) *design.Design {
+	c := *d
+	c.Labels = append([]string(nil), d.Labels...)
+	if d.Params != nil {
+		c.Params = make(map[string]float64, len(d.Params))
+		for k, v := range d.Params {
+			c.Params[k] = v
+		}
+	}
+	if d.Weights != nil {
+		c.Weights = append([]float64(nil), d.Weights...)
+	}
+	if d.Interval != nil {
+		c.Interval = append([]float64(nil), d.Interval...)
+	}
+	if d.Budget.MeanPay != nil {
+		m := *d.Budget.MeanPay
+		c.Budget.MeanPay = &m
+	}
+	if d.Budget.Reference != nil {
+		c.Budget.Reference = append([]float64(nil), d.Budget.Reference...)
+	}
+	return &c
+}
+
+// prepareDesign fills in what a design file may leave out: the formula of
+// a named preset.
+func prepareDesign(d *design.Design) error {
+	if strings.TrimSpace(d.Formula) == "" && d.Preset != "" {
+		return presets.Apply(d)
+	}
+	return nil
+}

@@ -1,0 +1,170 @@
+package tui
+
+import (
+	"path/filepath"
+	"strings"
+
+	"github.com/charmbracelet/bubbles/cursor"
+	"github.com/charmbracelet/bubbles/key"
+	"github.com/charmbracelet/bubbles/textinput"
+	tea "github.com/charmbracelet/bubbletea"
+	"github.com/charmbracelet/lipgloss"
+)
+
+// dialogKind says what a file dialog is for.
+type dialogKind int
+
+const (
+	dialogSave dialogKind = iota
+	dialogOpen
+	dialogExport
+)
+
+// dialogAction is what the root must do after a dialog key.
+type dialogAction int
+
+const (
+	actNone dialogAction = iota
+	actCancel
+	actSubmit
+)
+
+// fileDialog asks for a path (and, for exports, a format), and for
+// permission before a file is replaced.
+type fileDialog struct {
+	st        Styles
+	keys      KeyMap
+	kind      dialogKind
+	formats   []string
+	format    int
+	path      textinput.Model
+	confirm   bool // waiting for y/n on an existing file
+	overwrite bool
+	msg       string
+	busy      bool
+}
+
+func newFileDialog(st Styles, keys KeyMap, kind dialogKind, path string, formats []string) fileDialog {
+	ti := textinput.New()
+	ti.Prompt = "path › "
+	ti.Cursor.SetMode(cursor.CursorStatic)
+	ti.Width = 44
+	ti.SetValue(path)
+	ti.CursorEnd()
+	ti.Focus()
+	return fileDialog{st: st, keys: keys, kind: kind, formats: formats, path: ti}
+}
+
+func (d fileDialog) title() string {
+	switch d.kind {
+	case dialogSave:
+		return "Save the design"
+	case dialogOpen:
+		return "Open a design"
+	}
+	return "Export the payment table"
+}
+
+// Path is the path typed.
+func (d fileDialog) Path() string { return strings.TrimSpace(d.path.Value()) }
+
+// Format is the format chosen ("" when the dialog has none).
+func (d fileDialog) Format() string {
+	if len(d.formats) == 0 {
+		return ""
+	}
+	return d.formats[d.format]
+}
+
+// askOverwrite switches the dialog to asking before replacing a file.
+func (d *fileDialog) askOverwrite() {
+	d.confirm, d.busy = true, false
+	d.msg = d.Path() + " exists. Replace it? y / n"
+}
+
+func (d *fileDialog) failed(msg string) {
+	d.msg, d.busy, d.confirm, d.overwrite = msg, false, false, false
+}
+
+// Update handles a key.
+func (d fileDialog) Update(km tea.KeyMsg) (fileDialog, tea.Cmd, dialogAction) {
+	if d.busy {
+		return d, nil, actNone
+	}
+	if d.confirm {
+		switch {
+		case key.Matches(km, d.keys.Yes):
+			d.confirm, d.overwrite, d.busy = false, true, true
+			return d, nil, actSubmit
+		case key.Matches(km, d.keys.No), key.Matches(km, d.keys.Cancel):
+			d.confirm, d.msg = false, "kept the existing file; choose another path"
+		}
+		return d, nil, actNone
+	}
+	switch {
+	case key.Matches(km, d.keys.Cancel):
+		return d, nil, actCancel
+	case key.Matches(km, d.keys.Confirm):
+		if d.Path() == "" {
+			d.msg = "type a path first"
+			return d, nil, actNone
+		}
+		d.busy, d.overwrite, d.msg = true, false, "working…"
+		return d, nil, actSubmit
+	case len(d.formats) > 1 && (km.Type == tea.KeyTab || km.Type == tea.KeyShiftTab):
+		step := 1
+		if km.Type == tea.KeyShiftTab {
+			step = len(d.formats) - 1
+		}
+		old := d.formats[d.format]
+		d.format = (d.format + step) % len(d.formats)
+		d.path.SetValue(swapExt(d.Path(), old, d.formats[d.format]))
+		d.path.CursorEnd()
+		return d, nil, actNone
+	}
+	var cmd tea.Cmd
+	d.path, cmd = d.path.Update(km)
+	return d, cmd, actNone
+}
+
+// swapExt replaces extension old of path with new.
+func swapExt(path, old, new string) string {
+	if strings.EqualFold(filepath.Ext(path), "."+old) {
+		return strings.TrimSuffix(path, filepath.Ext(path)) + "." + new
+	}
+	return path
+}
+
+// View draws the dialog box.
+func (d fileDialog) View(width int) string {
+	st := d.st
+	lines := []string{st.Header.Render(d.title()), ""}
+	if len(d.formats) > 0 {
+		var fs []string
+		for i, f := range d.formats {
+			if i == d.format {
+				fs = append(fs, st.Selected.Render("["+f+"]"))
+			} else {
+				fs = append(fs, " "+f+" ")
+			}
+		}
+		lines = append(lines, "format "+strings.Join(fs, ""))
+		if len(d.formats) > 1 {
+			lines = append(lines, st.Dim.Render("       tab / shift+tab: change the format"))
+		}
+	}
+	lines = append(lines, d.path.View(), "")
+	if d.msg != "" {
+		ms := st.Dim
+		if d.confirm || strings.HasPrefix(d.msg, "✗") {
+			ms = st.Error
+		}
+		lines = append(lines, ms.Render(d.msg))
+	}
+	lines = append(lines, st.Dim.Render("enter confirm · esc cancel"))
+	if d.kind == dialogExport {
+		lines = append(lines, st.Dim.Render("Exports say: the tool checks mathematics, not law."))
+	}
+	w := min(width-4, 60)
+	return st.Dialog.Width(w).Render(lipgloss.JoinVertical(lipgloss.Left, lines...))
+}

@@ -1,0 +1,157 @@
+package tui
+
+import (
+	"context"
+
+	tea "github.com/charmbracelet/bubbletea"
+
+	"scorewright/generator/design"
+)
+
+// Checker runs the checks of a design in the background. It must return
+// soon after ctx is cancelled and may call progress from any goroutine.
+type Checker func(ctx context.Context, d *design.Design, s Settings, progress func(done, total int64)) (*CheckReport, error)
+
+// CheckReport is what the checks pane shows: a verdict with its grid and
+// tolerance, and one row per check.
+type CheckReport struct {
+	Verdict    string
+	Resolution int
+	Points     int64
+	Tolerance  float64
+	Rows       []CheckRow
+	Notes      []string
+}
+
+// CheckRow is one check: pass or fail and its worst witness.
+type CheckRow struct {
+	Name   string
+	Passed bool
+	// Worst is the worst value found and Belief/Report where it was found.
+	Worst          float64
+	Belief, Report []float64
+	Note           string
+}
+
+// Fitter fits a design to its budget: the payment table preview and the
+// re-check of the report menu.
+type Fitter func(ctx context.Context, d *design.Design) (*TableView, error)
+
+// TableView is the budget pane's content.
+type TableView struct {
+	// Header and Rows are the payment table preview, as text cells.
+	Header []string
+	Rows   [][]string
+	// Passed and MinMargin are the menu re-check: whether every menu item
+	// is the strict best report for a forecaster who believes it, and the
+	// smallest incentive margin in currency.
+	Passed    bool
+	MinMargin float64
+	Notes     []string
+	// Pay turns an effort into a payment; nil when not known.
+	Pay func(effort float64) float64
+}
+
+// Exporter writes payment tables.
+type Exporter interface {
+	// Formats lists the formats Export takes, the first being the default.
+	Formats() []string
+	// Export writes the table of d in format to path, replacing an existing
+	// file only when overwrite is true, and returns the files written.
+	Export(ctx context.Context, d *design.Design, format, path string, overwrite bool) ([]string, error)
+}
+
+// Messages answering the workbench's background work. Each carries the
+// generation number of the design it was computed for.
+type (
+	compiledMsg struct {
+		gen uint64
+		c   *compiled
+	}
+	debounceMsg      struct{ gen uint64 }
+	checkProgressMsg struct {
+		gen         uint64
+		done, total int64
+	}
+	checkDoneMsg struct {
+		gen    uint64
+		report *CheckReport
+		err    error
+	}
+	fitMsg struct {
+		gen   uint64
+		table *TableView
+		err   error
+	}
+)
+
+// streamMsg is one message of a background job that sends several; next
+// listens for the one after it. The receiver drops next when the job is
+// stale, which lets the job's goroutine finish unheard.
+type streamMsg struct {
+	msg  tea.Msg
+	next tea.Cmd
+}
+
+// runStream runs work in its own goroutine and returns a command that
+// answers with the first message work sends, wrapped in a streamMsg.
+// Progress sends (mustArrive false) are dropped while the previous one is
+// unread; the final send gives up once ctx is cancelled, so an abandoned
+// job never blocks.
+func runStream(ctx context.Context, work func(send func(m tea.Msg, mustArrive bool))) tea.Cmd {
+	return func() tea.Msg {
+		ch := make(chan tea.Msg, 1)
+		send := func(m tea.Msg, mustArrive bool) {
+			if !mustArrive {
+				select {
+				case ch <- m:
+				default:
+				}
+				return
+			}
+			select {
+			case ch <- m:
+			case <-ctx.Done():
+			}
+		}
+		go func() {
+			defer close(ch)
+			work(send)
+		}()
+		return listen(ch)()
+	}
+}
+
+// listen waits for the next message of a stream.
+func listen(ch <-chan tea.Msg) tea.Cmd {
+	return func() tea.Msg {
+		m, ok := <-ch
+		if !ok {
+			return nil
+		}
+		return streamMsg{msg: m, next: listen(ch)}
+	}
+}
+
+// checkCmd runs checker on d under ctx, reporting progress.
+func checkCmd(ctx context.Context, gen uint64, d *design.Design, s Settings, checker Checker) tea.Cmd {
+	return runStream(ctx, func(send func(tea.Msg, bool)) {
+		rep, err := checker(ctx, d, s, func(done, total int64) {
+			send(checkProgressMsg{gen: gen, done: done, total: total}, false)
+		})
+		send(checkDoneMsg{gen: gen, report: rep, err: err}, true)
+	})
+}
+
+// fitCmd fits d to its budget.
+func fitCmd(ctx context.Context, gen uint64, d *design.Design, fitter Fitter) tea.Cmd {
+	return func() tea.Msg {
+		t, err := fitter(ctx, d)
+		return fitMsg{gen: gen, table: t, err: err}
+	}
+}
+
+// compileCmd compiles d (a private copy) for generation gen.
+func compileCmd(gen uint64, d *design.Design) tea.Cmd {
+	return func() tea.Msg { return compiledMsg{gen: gen, c: compileDesign(d)} }
+}

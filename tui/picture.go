@@ -1,0 +1,490 @@
+package tui
+
+import (
+	"context"
+	"fmt"
+	"math"
+
+	"github.com/charmbracelet/bubbles/key"
+	tea "github.com/charmbracelet/bubbletea"
+
+	"scorewright/generator/num"
+)
+
+// measure is what the picture draws.
+type measure int
+
+const (
+	mScores     measure = iota // score per outcome against the report (n = 2) or along a slice (n > 3)
+	mPay                       // fitted payment per outcome (n = 2, when the budget fit is known)
+	mGenerator                 // H(p) (n = 2, generator mode)
+	mEmphasis                  // -H''(p) (n = 2, generator mode)
+	mGap                       // honesty gap against the belief (n = 2 line, n = 3 ternary)
+	mDivergence                // divergence from the chosen belief (n = 3 ternary, n > 3 slice)
+)
+
+// pictureSpec is everything a picture depends on besides the design.
+type pictureSpec struct {
+	measure measure
+	belief  []float64
+	active  int // n = 3: the outcome [ and ] move the belief toward; n > 3: first of the pair
+	pair    int // n > 3: index into the list of pairs
+	w, h    int
+	hasPay  bool
+}
+
+type pictureMsg struct {
+	gen, spec uint64
+	text      string
+}
+
+// PicturePane draws the design live.
+type PicturePane struct {
+	st            Styles
+	keys          KeyMap
+	w, h          int
+	focused       bool
+	spec          pictureSpec
+	specVersion   uint64
+	text          string
+	n             int
+	reward        bool
+	hasDesign     bool
+	waitingForGen uint64
+}
+
+// NewPicturePane returns an empty picture pane.
+func NewPicturePane(st Styles, keys KeyMap) PicturePane {
+	return PicturePane{st: st, keys: keys, text: "drawing…"}
+}
+
+// SetSize sets the outer size of the pane.
+func (p *PicturePane) SetSize(w, h int) {
+	p.w, p.h = w, h
+	p.spec.w, p.spec.h = max(10, w-2), max(4, h-2)
+	p.specVersion++
+}
+
+// Focus and Blur mark the pane as the one keys go to.
+func (p *PicturePane) Focus() { p.focused = true }
+
+// Blur is Focus undone.
+func (p *PicturePane) Blur() { p.focused = false }
+
+// KeyHelp lists the pane's keys.
+func (p PicturePane) KeyHelp() []key.Binding {
+	return []key.Binding{p.keys.Measure, p.keys.BeliefDown, p.keys.BeliefUp, p.keys.Pair}
+}
+
+// measures lists what can be drawn for n outcomes.
+func (p PicturePane) measures() []measure {
+	switch {
+	case p.n == 2 && p.reward:
+		return []measure{mScores, mGap}
+	case p.n == 2:
+		ms := []measure{mScores}
+		if p.spec.hasPay {
+			ms = append(ms, mPay)
+		}
+		return append(ms, mGenerator, mEmphasis, mGap)
+	case p.n == 3:
+		return []measure{mGap, mDivergence}
+	default:
+		return []measure{mScores, mDivergence}
+	}
+}
+
+// setDesign tells the pane the outcome count and orientation of the
+// compiled design, keeping the measure and belief when they still fit.
+func (p *PicturePane) setDesign(n int, reward, hasPay bool) {
+	if n != p.n || len(p.spec.belief) != n {
+		p.spec.belief = make([]float64, n)
+		for i := range p.spec.belief {
+			p.spec.belief[i] = 1 / float64(n)
+		}
+		if n == 2 {
+			p.spec.belief[0], p.spec.belief[1] = 0.3, 0.7
+		}
+		p.spec.active, p.spec.pair = 0, 0
+	}
+	p.n, p.reward, p.spec.hasPay, p.hasDesign = n, reward, hasPay, true
+	ok := false
+	for _, m := range p.measures() {
+		ok = ok || m == p.spec.measure
+	}
+	if !ok {
+		p.spec.measure = p.measures()[0]
+	}
+	p.specVersion++
+}
+
+// Update handles the pane's keys. changed says the picture must be redrawn.
+func (p PicturePane) Update(msg tea.Msg) (PicturePane, bool) {
+	km, ok := msg.(tea.KeyMsg)
+	if !ok || !p.hasDesign {
+		return p, false
+	}
+	switch {
+	case key.Matches(km, p.keys.Measure):
+		ms := p.measures()
+		for i, m := range ms {
+			if m == p.spec.measure {
+				p.spec.measure = ms[(i+1)%len(ms)]
+				break
+			}
+		}
+	case key.Matches(km, p.keys.BeliefUp), key.Matches(km, p.keys.BeliefDown):
+		d := 0.05
+		if key.Matches(km, p.keys.BeliefDown) {
+			d = -d
+		}
+		p.spec.belief = shiftBelief(p.spec.belief, p.spec.active, d)
+	case key.Matches(km, p.keys.Pair):
+		if p.n == 3 {
+			p.spec.active = (p.spec.active + 1) % 3
+		} else if p.n > 3 {
+			p.spec.pair = (p.spec.pair + 1) % len(pairs(p.n))
+			p.spec.active = pairs(p.n)[p.spec.pair][0]
+		} else {
+			return p, false
+		}
+	default:
+		return p, false
+	}
+	p.specVersion++
+	return p, true
+}
+
+// shiftBelief moves mass d to (or from) outcome k, taking it from (or
+// giving it to) the others in proportion, keeping every entry within
+// [0.01, 0.99] so the belief stays inside the simplex.
+func shiftBelief(q []float64, k int, d float64) []float64 {
+	out := append([]float64(nil), q...)
+	nv := math.Min(0.99, math.Max(0.01, q[k]+d))
+	rest := 1 - q[k]
+	for i := range out {
+		if i == k {
+			out[i] = nv
+		} else if rest > 0 {
+			out[i] = q[i] / rest * (1 - nv)
+		} else {
+			out[i] = (1 - nv) / float64(len(q)-1)
+		}
+	}
+	return out
+}
+
+// pairs lists the outcome pairs a slice can run along.
+func pairs(n int) [][2]int {
+	var ps [][2]int
+	for i := 0; i < n; i++ {
+		for j := i + 1; j < n; j++ {
+			ps = append(ps, [2]int{i, j})
+		}
+	}
+	return ps
+}
+
+// request returns the command drawing the picture for c, or nil.
+func (p PicturePane) request(ctx context.Context, gen uint64, c *compiled, pay func(float64) float64) tea.Cmd {
+	if !c.ok() || p.w == 0 {
+		return nil
+	}
+	spec, version, st := p.spec, p.specVersion, p.st
+	spec.belief = append([]float64(nil), spec.belief...)
+	return func() tea.Msg {
+		return pictureMsg{gen: gen, spec: version, text: renderPicture(ctx, st, c, spec, pay)}
+	}
+}
+
+// show takes a drawn picture if it is for the current spec.
+func (p *PicturePane) show(m pictureMsg) {
+	if m.spec == p.specVersion {
+		p.text = m.text
+	}
+}
+
+// View draws the pane.
+func (p PicturePane) View() string {
+	title := "Picture"
+	if p.hasDesign {
+		title += " · " + p.measureName()
+	}
+	return paneFrame(p.st, title, p.focused, p.w, p.h, p.text)
+}
+
+func (p PicturePane) measureName() string {
+	switch p.spec.measure {
+	case mScores:
+		if p.n > 3 {
+			return "slice"
+		}
+		if p.reward {
+			return "pay per outcome"
+		}
+		return "effort per outcome"
+	case mPay:
+		return "pay per outcome"
+	case mGenerator:
+		return "generator H"
+	case mEmphasis:
+		return "emphasis weight"
+	case mGap:
+		return "honesty gap"
+	default:
+		if p.n > 3 {
+			return "slice, divergence"
+		}
+		return "divergence from belief"
+	}
+}
+
+// pictureGrid is the report grid step the honesty gap is searched on.
+const pictureGrid = 40
+
+// renderPicture draws c for spec. It checks ctx between rows so that a
+// picture for an outdated design stops early.
+func renderPicture(ctx context.Context, st Styles, c *compiled, spec pictureSpec, pay func(float64) float64) string {
+	n := c.d.N()
+	s := c.newSampler()
+	w, h := spec.w, spec.h
+	orient := "effort"
+	if c.reward() {
+		orient = "pay"
+	}
+	switch {
+	case n == 2:
+		return renderBinary(ctx, st, c, s, spec, pay, orient)
+	case n == 3:
+		rows := max(3, min(h-4, (w-1)/2))
+		t := newTernaryCells(rows, max(2*rows+1, min(w-1, 4*rows+1)))
+		vals := make([][]float64, t.rows)
+		var what, note string
+		var worst float64
+		var worstAt []float64
+		scores := gridScores(s, n, pictureGrid)
+		for r := range vals {
+			if ctx.Err() != nil {
+				return "(cancelled)"
+			}
+			vals[r] = make([]float64, t.cols)
+			for col, q := range t.p[r] {
+				if q == nil {
+					continue
+				}
+				var v float64
+				if spec.measure == mGap {
+					v = gapOnGrid(s, scores, q)
+					if v > worst {
+						worst, worstAt = v, q
+					}
+				} else {
+					v = cleanZero(s.regret(spec.belief, q))
+				}
+				vals[r][col] = v
+			}
+		}
+		var mark []float64
+		if spec.measure == mGap {
+			what = "gap by belief"
+			if worstAt != nil {
+				note = fmt.Sprintf("largest %s at belief %s", fmtTick(worst), num.Format(round2(worstAt)))
+			} else {
+				note = "no belief gains by misreporting (reports on a 1/40 grid)"
+			}
+		} else {
+			what = "loss by report"
+			mark = spec.belief
+			note = fmt.Sprintf("belief %s (%s: [ ] to move, p to pick)", num.Format(round2(spec.belief)), c.d.Labels[spec.active])
+		}
+		pic := drawTernary(st, t, vals, c.d.Labels, mark, what)
+		return pic + "\n" + st.Dim.Render(note)
+	default:
+		pr := pairs(n)[spec.pair%len(pairs(n))]
+		i, j := pr[0], pr[1]
+		base := spec.belief
+		m := base[i] + base[j]
+		cols := max(10, w-8)
+		var ss []series
+		p := make([]float64, n)
+		eff := make([]float64, n)
+		if spec.measure == mScores {
+			ss = []series{{name: orient + " if " + c.d.Labels[i], y: make([]float64, cols)}, {name: orient + " if " + c.d.Labels[j], y: make([]float64, cols)}}
+		} else {
+			ss = []series{{name: "loss for the belief", y: make([]float64, cols)}}
+		}
+		for k := 0; k < cols; k++ {
+			t := (float64(k) + 0.5) / float64(cols)
+			copy(p, base)
+			p[i], p[j] = t*m, (1-t)*m
+			if spec.measure == mScores {
+				s.scores(eff, p)
+				ss[0].y[k], ss[1].y[k] = eff[i], eff[j]
+			} else {
+				ss[0].y[k] = cleanZero(s.regret(base, p))
+			}
+		}
+		chart, clipped := drawLines(st, w, max(4, h-3), 0, 1, ss, base[i]/m)
+		head := st.Dim.Render(fmt.Sprintf("slice %s–%s (p: next pair), rest at belief", c.d.Labels[i], c.d.Labels[j]))
+		lg := legend(st, ss)
+		if clipped {
+			lg += st.Dim.Render("  (y cut)")
+		}
+		foot := fmt.Sprintf("x: share of %s in the pair; belief %s", c.d.Labels[i], num.Format(round2(base)))
+		return head + "\n" + lg + "\n" + chart + "\n" + foot
+	}
+}
+
+func renderBinary(ctx context.Context, st Styles, c *compiled, s *sampler, spec pictureSpec, pay func(float64) float64, orient string) string {
+	w, h := spec.w, spec.h
+	cols := max(10, w-8)
+	var ss []series
+	l := c.d.Labels
+	p := make([]float64, 2)
+	eff := make([]float64, 2)
+	var sc interface {
+		Binary(float64) (float64, float64, float64)
+	}
+	if s.sc != nil {
+		sc = s.sc
+	}
+	ylabel := orient
+	var scores [][]float64
+	switch spec.measure {
+	case mScores, mPay:
+		ss = []series{{name: "if " + l[0], y: make([]float64, cols)}, {name: "if " + l[1], y: make([]float64, cols)}}
+		if spec.measure == mPay {
+			ylabel = "pay"
+		}
+	case mGenerator:
+		ss, ylabel = []series{{name: "H(p)", y: make([]float64, cols)}}, "generator"
+	case mEmphasis:
+		ss, ylabel = []series{{name: "-H''(p)", y: make([]float64, cols)}}, "weight"
+	case mGap:
+		ss, ylabel = []series{{name: "gap", y: make([]float64, cols)}}, "gap"
+		scores = gridScores(s, 2, 200)
+	}
+	for k := 0; k < cols; k++ {
+		if ctx.Err() != nil {
+			return "(cancelled)"
+		}
+		x := (float64(k) + 0.5) / float64(cols)
+		p[0], p[1] = x, 1-x
+		switch spec.measure {
+		case mScores, mPay:
+			s.scores(eff, p)
+			if spec.measure == mPay && pay != nil {
+				eff[0], eff[1] = pay(eff[0]), pay(eff[1])
+			}
+			ss[0].y[k], ss[1].y[k] = eff[0], eff[1]
+		case mGenerator:
+			ss[0].y[k], _, _ = sc.Binary(x)
+		case mEmphasis:
+			_, _, ss[0].y[k] = sc.Binary(x)
+		case mGap:
+			ss[0].y[k] = gapOnGrid(s, scores, p)
+		}
+	}
+	q := spec.belief[0]
+	chart, clipped := drawLines(st, w, max(4, h-2), 0, 1, ss, q)
+	// Values at the belief mark, so the picture can be read exactly.
+	p[0], p[1] = q, 1-q
+	var at string
+	switch spec.measure {
+	case mScores, mPay:
+		s.scores(eff, p)
+		if spec.measure == mPay && pay != nil {
+			eff[0], eff[1] = pay(eff[0]), pay(eff[1])
+		}
+		at = fmt.Sprintf("%s %s / %s", ylabel, fmtTick(eff[0]), fmtTick(eff[1]))
+	case mGenerator:
+		v, _, _ := sc.Binary(q)
+		at = "H " + fmtTick(v)
+	case mEmphasis:
+		_, _, v := sc.Binary(q)
+		at = "weight " + fmtTick(v)
+	case mGap:
+		at = "gap " + fmtTick(gapOnGrid(s, scores, p))
+	}
+	xl := "report"
+	if spec.measure == mGap {
+		xl = "belief"
+	}
+	head := legend(st, ss)
+	if clipped {
+		head += st.Dim.Render("  (y cut)")
+	}
+	foot := fmt.Sprintf("x: %s p(%s)  ┊ %.2f: %s", xl, l[0], q, at)
+	return st.Dim.Render(head) + "\n" + chart + "\n" + foot
+}
+
+// gridScores evaluates the scores of every report on the simplex grid of
+// step 1/k (n = 2: k+1 points).
+func gridScores(s *sampler, n, k int) [][]float64 {
+	var out [][]float64
+	p := make([]float64, n)
+	var rec func(i, left int)
+	rec = func(i, left int) {
+		if i == n-1 {
+			p[i] = float64(left) / float64(k)
+			sc := make([]float64, n)
+			s.scores(sc, p)
+			out = append(out, append(sc, p...))
+			return
+		}
+		for a := 0; a <= left; a++ {
+			p[i] = float64(a) / float64(k)
+			rec(i+1, left-a)
+		}
+	}
+	rec(0, k)
+	return out
+}
+
+// gapOnGrid is the honesty gap of belief q searched over the grid reports:
+// how much better than the honest report the best grid report does, in
+// expectation under q (0 when the honest report is best).
+func gapOnGrid(s *sampler, grid [][]float64, q []float64) float64 {
+	n := len(q)
+	honest := make([]float64, n)
+	s.scores(honest, q)
+	hv := expect(q, honest)
+	best := 0.0
+	for _, row := range grid {
+		d := expect(q, row[:n]) - hv
+		if !s.reward {
+			d = -d
+		}
+		if d > best {
+			best = d
+		}
+	}
+	return cleanZero(best)
+}
+
+func expect(q, sc []float64) float64 {
+	var t float64
+	for k, x := range q {
+		if x == 0 {
+			continue
+		}
+		t += x * sc[k]
+	}
+	return t
+}
+
+// cleanZero maps rounding noise around zero to zero.
+func cleanZero(v float64) float64 {
+	if math.Abs(v) < 1e-12 {
+		return 0
+	}
+	return v
+}
+
+func round2(q []float64) []float64 {
+	out := make([]float64, len(q))
+	for i, v := range q {
+		out[i] = math.Round(v*100) / 100
+	}
+	return out
+}

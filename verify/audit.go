@@ -1,0 +1,411 @@
+package verify
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"sort"
+
+	"gonum.org/v1/gonum/stat"
+
+	"scorewright/generator/bregman"
+	"scorewright/generator/num"
+	"scorewright/generator/payout"
+	"scorewright/verify/simplex"
+)
+
+// Candidate is a known rule a payout may be an affine image of.
+type Candidate struct {
+	Name string
+	Rule *bregman.Rule
+}
+
+// Gap is the largest honesty gap of an audit: the most a forecaster can
+// gain in expected pay over the honest report, at the belief where it is
+// largest and with the report that achieves it.
+type Gap struct {
+	Max                float64
+	Belief, BestReport []float64
+	// Sharpened is true when local optimisation improved on the grid's
+	// gap, which was GridMax.
+	Sharpened bool
+	GridMax   float64
+	Status    string
+}
+
+// BeliefGap is the audit's finding at one grid belief.
+type BeliefGap struct {
+	Belief, BestReport []float64
+	// Gap is the best expected pay minus the honest report's.
+	Gap float64
+	// Honest is the expected pay of the honest report, sum_k q_k pay(q, k):
+	// for a proper payout, its implied expected-pay function.
+	Honest float64
+}
+
+// Identification says a payout is shift + scale × a known rule's score
+// (score = -effort), i.e. pay = Shift - Scale × L.
+type Identification struct {
+	Preset       string
+	Scale, Shift float64
+	// Residual is the root-mean-square misfit relative to the spread of
+	// the payments, over Points finite (report, outcome) pairs.
+	Residual float64
+	Points   int
+	// Note explains a fit that was not accepted.
+	Note string
+}
+
+// Direction of the best misreport for yes/no events.
+const (
+	Exaggerates = "exaggerates" // away from 1/2
+	Hedges      = "hedges"      // toward 1/2
+	Flips       = "flips"       // to the other side of 1/2
+	Mixed       = "mixed"       // different at different beliefs
+)
+
+// DefaultIdentifyTolerance is the relative residual below which a payout
+// counts as an affine image of a candidate rule.
+const DefaultIdentifyTolerance = 1e-6
+
+// AuditReport is the result of Audit. Its embedded Report has the checks
+// properness and boundedness.
+type AuditReport struct {
+	Report
+	Gap Gap
+	// Direction, for n = 2, is where the best misreport goes (one of the
+	// constants above), "" when there is no misreport to gain from.
+	Direction string
+	// Exaggerate, Hedge and Flip count the beliefs of each kind (n = 2).
+	Exaggerate, Hedge, Flip int
+	// Identified is the best accepted fit, nil when none fits.
+	Identified *Identification
+	// Fits lists the fit to every candidate, best first.
+	Fits []Identification
+	// Beliefs holds the finding at every grid belief, in grid order.
+	Beliefs []BeliefGap
+}
+
+// auditRefine caps how many improper beliefs get their best report
+// refined by optimisation; the largest gaps go first.
+const auditRefine = 300
+
+// Audit examines a payout formula for honesty: for every grid belief the
+// best report (over the grid, then by optimisation) and the honesty gap,
+// the verdict, the direction of misreports for n = 2, the implied
+// expected-pay function, and whether the payout is shift + scale × one of
+// the candidate rules. It returns ctx.Err() promptly when ctx is
+// cancelled.
+func Audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings) (*AuditReport, error) {
+	if p == nil {
+		return nil, fmt.Errorf("verify: no payout to audit")
+	}
+	n := p.Outcomes()
+	s = s.withDefaults(n)
+	g, err := grid(n, s)
+	if err != nil {
+		return nil, err
+	}
+	G := int64(g.Len())
+	pr := startProgress(s.Progress, G*G+gradCost*G*int64(1+len(cands))+int64(auditRefine)*gradCost)
+	rep, err := audit(ctx, p, cands, s, g, pr)
+	pr.finish(err == nil)
+	return rep, err
+}
+
+func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings, g *simplex.Grid, pr *progress) (*AuditReport, error) {
+	n, G := p.Outcomes(), g.Len()
+	rep := &AuditReport{Report: Report{Grid: gridInfo(g, s)}}
+	if g.Sampled {
+		rep.Notes = append(rep.Notes, fmt.Sprintf("the full grid at resolution %d is larger than %d points, so %d random lattice points and the vertices were used", s.Resolution, s.MaxPoints, g.Len()-n))
+	}
+	pays := newMenu(n, G)
+	evs := make([]*payout.Evaluator, s.Workers)
+	for i := range evs {
+		evs[i] = p.NewEvaluator()
+	}
+	err := parallel(ctx, s.Workers, G, 256, func(w, lo, hi int) {
+		for j := lo; j < hi; j++ {
+			evs[w].Pays(pays.rows[j*n:(j+1)*n], g.Point(j))
+		}
+		pr.add(int64(hi-lo) * gradCost)
+	})
+	if err != nil {
+		return nil, err
+	}
+	label := func(k int) string { return fmt.Sprint(k + 1) }
+	bounded := boundedness(g, pays, s.Limit, label, "payment", -1)
+
+	// The stream minimises effort, so it runs on -pay.
+	m := newMenu(n, G)
+	for i, v := range pays.rows {
+		m.rows[i] = -v
+	}
+	m.seal()
+	bs, err := stream(ctx, g, m, s.Workers, pr)
+	if err != nil {
+		return nil, err
+	}
+	honest := make([]float64, G)
+	for i := range honest {
+		honest[i] = m.phi(g.Point(i), i)
+	}
+	prop, _ := properness(g, m, honest, bs, s.Tolerance)
+
+	rep.Beliefs = make([]BeliefGap, G)
+	for i, b := range bs {
+		q := g.Point(i)
+		bg := BeliefGap{Belief: q, BestReport: q, Honest: -honest[i]}
+		if gap := honest[i] - b.m1; b.arg >= 0 && gap > 0 && !math.IsInf(honest[i], 1) {
+			bg.Gap, bg.BestReport = gap, g.Point(int(b.arg))
+		} else if math.IsInf(honest[i], 1) && b.arg >= 0 && !math.IsInf(b.m1, 1) {
+			bg.Gap, bg.BestReport = math.Inf(1), g.Point(int(b.arg))
+		}
+		rep.Beliefs[i] = bg
+	}
+	if err := refineBeliefs(ctx, p, g, rep.Beliefs, s, pr); err != nil {
+		return nil, err
+	}
+	if err := searchReports(ctx, g, &prop, s, func(int) func(q, r []float64) float64 {
+		ev := p.NewEvaluator()
+		return func(q, r []float64) float64 { return -ev.Expected(q, r) }
+	}); err != nil {
+		return nil, err
+	}
+
+	// The largest gap, from the per-belief table (which now includes the
+	// refinement), then sharpened jointly over belief and report.
+	for _, bg := range rep.Beliefs {
+		if bg.Gap > rep.Gap.Max || rep.Gap.Belief == nil {
+			rep.Gap = Gap{Max: bg.Gap, Belief: bg.Belief, BestReport: bg.BestReport}
+		}
+	}
+	if prop.Worst > rep.Gap.Max && prop.Sharpened {
+		rep.Gap = Gap{Max: prop.Worst, Belief: prop.Belief, BestReport: prop.Report}
+	}
+	if rep.Gap.Max > s.Tolerance && !math.IsInf(rep.Gap.Max, 0) {
+		ev := p.NewEvaluator()
+		ps := newPairSearch(n)
+		ps.onBoundary = true
+		q, r, v, status, ok := ps.run(func(q, r []float64) float64 { return -(ev.Expected(q, r) - ev.Expected(q, q)) }, rep.Gap.Belief, rep.Gap.BestReport)
+		rep.Gap.Status = status
+		if ok && improves(-v, rep.Gap.Max, true) {
+			rep.Gap.GridMax, rep.Gap.Max, rep.Gap.Belief, rep.Gap.BestReport, rep.Gap.Sharpened = rep.Gap.Max, -v, q, r, true
+		}
+	}
+	rep.Gap.Belief, rep.Gap.BestReport = clone(rep.Gap.Belief), clone(rep.Gap.BestReport)
+	if rep.Gap.Max > s.Tolerance {
+		prop.Passed, prop.Strict = false, false
+		prop.Worst, prop.Belief, prop.Report = rep.Gap.Max, rep.Gap.Belief, rep.Gap.BestReport
+		prop.Sharpened, prop.GridWorst, prop.Status = rep.Gap.Sharpened, rep.Gap.GridMax, rep.Gap.Status
+	}
+	prop.Note = propernessNote(prop, "pay", "more")
+	rep.Checks = []CheckResult{prop, bounded}
+	switch {
+	case !prop.Passed:
+		rep.Verdict = Improper
+	case prop.Strict:
+		rep.Verdict = StrictlyProper
+	default:
+		rep.Verdict = Proper
+	}
+	if n == 2 {
+		direction(rep, s.Tolerance)
+	}
+	if rep.Verdict != Improper {
+		rep.Notes = append(rep.Notes, expectedPayNote(rep))
+	}
+
+	fits, err := identify(ctx, g, pays, cands, s, pr)
+	if err != nil {
+		return nil, err
+	}
+	rep.Fits = fits
+	if len(fits) > 0 && fits[0].Note == "" {
+		id := fits[0]
+		rep.Identified = &id
+		for _, f := range fits[1:] {
+			if f.Note == "" {
+				rep.Notes = append(rep.Notes, fmt.Sprintf("the payout also fits %q exactly (scale %.6g, shift %.6g): the two rules coincide up to scale and shift here", f.Preset, f.Scale, f.Shift))
+			}
+		}
+	}
+	return rep, nil
+}
+
+// refineBeliefs improves the best report of the improper beliefs (largest
+// gaps first, up to auditRefine) by Nelder–Mead over reports.
+func refineBeliefs(ctx context.Context, p *payout.Payout, g *simplex.Grid, bgs []BeliefGap, s Settings, pr *progress) error {
+	var idx []int
+	for i, bg := range bgs {
+		if bg.Gap > s.Tolerance && !math.IsInf(bg.Gap, 0) {
+			idx = append(idx, i)
+		}
+	}
+	sort.Slice(idx, func(a, b int) bool { return bgs[idx[a]].Gap > bgs[idx[b]].Gap })
+	if len(idx) > auditRefine {
+		idx = idx[:auditRefine]
+	}
+	evs := make([]*payout.Evaluator, s.Workers)
+	for i := range evs {
+		evs[i] = p.NewEvaluator()
+	}
+	return parallel(ctx, s.Workers, len(idx), 4, func(w, lo, hi int) {
+		ev := evs[w]
+		ps := newPairSearch(g.N)
+		ps.fixBelief, ps.evals = true, searchEvals
+		for _, i := range idx[lo:hi] {
+			bg := &bgs[i]
+			_, r, v, _, ok := ps.run(func(q, r []float64) float64 { return -ev.Expected(q, r) }, bg.Belief, bg.BestReport)
+			if gap := -v - bg.Honest; ok && gap > bg.Gap {
+				bg.Gap, bg.BestReport = gap, r
+			}
+		}
+		pr.add(int64(hi-lo) * gradCost)
+	})
+}
+
+// direction classifies, for n = 2, where the best misreport goes at every
+// improper belief, and summarises.
+func direction(rep *AuditReport, T float64) {
+	for _, bg := range rep.Beliefs {
+		if !(bg.Gap > T) {
+			continue
+		}
+		switch classify(bg.Belief[0], bg.BestReport[0]) {
+		case Exaggerates:
+			rep.Exaggerate++
+		case Hedges:
+			rep.Hedge++
+		case Flips:
+			rep.Flip++
+		}
+	}
+	kinds := 0
+	for _, c := range []int{rep.Exaggerate, rep.Hedge, rep.Flip} {
+		if c > 0 {
+			kinds++
+		}
+	}
+	switch {
+	case kinds > 1:
+		rep.Direction = Mixed
+	case rep.Exaggerate > 0:
+		rep.Direction = Exaggerates
+	case rep.Hedge > 0:
+		rep.Direction = Hedges
+	case rep.Flip > 0:
+		rep.Direction = Flips
+	}
+}
+
+// classify compares a belief q and report r (probabilities of outcome 1)
+// by their distance from 1/2.
+func classify(q, r float64) string {
+	dq, dr := q-0.5, r-0.5
+	switch {
+	case dq*dr < 0:
+		return Flips
+	case math.Abs(dr) > math.Abs(dq):
+		return Exaggerates
+	default:
+		return Hedges
+	}
+}
+
+// expectedPayNote describes the implied expected-pay function of a proper
+// payout, V(q) = sum_k q_k pay(q, k): its range and where it is reached.
+func expectedPayNote(rep *AuditReport) string {
+	lo, hi := math.Inf(1), math.Inf(-1)
+	var at, atHi []float64
+	for _, bg := range rep.Beliefs {
+		if bg.Honest < lo {
+			lo, at = bg.Honest, bg.Belief
+		}
+		if bg.Honest > hi {
+			hi, atHi = bg.Honest, bg.Belief
+		}
+	}
+	return fmt.Sprintf("implied expected pay of an honest forecaster, V(q) = sum_k q_k pay(q, k): from %.6g at %s to %.6g at %s (V is convex for a proper payout; -V is its generator in effort orientation)",
+		lo+0, num.Format(at), hi+0, num.Format(atHi))
+}
+
+// identify fits pay = shift + scale × (-L) for every candidate by least
+// squares over the grid reports and outcomes where both are finite.
+func identify(ctx context.Context, g *simplex.Grid, pays *menu, cands []Candidate, s Settings, pr *progress) ([]Identification, error) {
+	n, G := g.N, g.Len()
+	tol := DefaultIdentifyTolerance
+	var fits []Identification
+	x := make([]float64, 0, G*n)
+	y := make([]float64, 0, G*n)
+	eff := make([]float64, n)
+	for _, c := range cands {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
+		if c.Rule == nil || c.Rule.Outcomes() != n {
+			continue
+		}
+		sc := c.Rule.NewScorer()
+		x, y = x[:0], y[:0]
+		mismatch := 0
+		for j := 0; j < G; j++ {
+			sc.Efforts(eff, g.Point(j))
+			for k := 0; k < n; k++ {
+				sx, py := -eff[k], pays.rows[j*n+k]
+				fx, fy := !math.IsInf(sx, 0) && sx == sx, !math.IsInf(py, 0) && py == py
+				switch {
+				case fx && fy:
+					x, y = append(x, sx), append(y, py)
+				case fx != fy, sx != sx, py != py, math.Signbit(sx) != math.Signbit(py):
+					mismatch++
+				}
+			}
+		}
+		pr.add(int64(G) * gradCost)
+		id := Identification{Preset: c.Name, Points: len(x)}
+		if len(x) < 3 {
+			id.Note = "too few finite points to fit"
+			id.Residual = math.Inf(1)
+			fits = append(fits, id)
+			continue
+		}
+		shift, scale := stat.LinearRegression(x, y, nil, false)
+		var sse, sst float64
+		my := stat.Mean(y, nil)
+		for i := range x {
+			r := y[i] - shift - scale*x[i]
+			sse += r * r
+			sst += (y[i] - my) * (y[i] - my)
+		}
+		id.Scale, id.Shift = scale, shift
+		switch {
+		case sst == 0:
+			id.Residual = math.Inf(1)
+			id.Note = "the payout is constant"
+		default:
+			id.Residual = math.Sqrt(sse / sst)
+		}
+		switch {
+		case id.Note != "":
+		case mismatch > 0:
+			id.Note = fmt.Sprintf("the two are infinite in different places (%d report–outcome pairs)", mismatch)
+		case !(id.Residual < tol):
+			id.Note = fmt.Sprintf("relative residual %.3g is above %g", id.Residual, tol)
+		case !(scale > 0):
+			id.Note = fmt.Sprintf("the fitted scale %.6g is not positive, so the payout rewards the opposite", scale)
+		}
+		fits = append(fits, id)
+	}
+	// Accepted fits keep the candidates' order (several rules coincide up
+	// to scale for n = 2, and the caller lists the plainest first); the
+	// rejected follow, closest first.
+	sort.SliceStable(fits, func(a, b int) bool {
+		ea, eb := fits[a].Note == "", fits[b].Note == ""
+		if ea || eb {
+			return ea && !eb
+		}
+		return fits[a].Residual < fits[b].Residual
+	})
+	return fits, nil
+}

@@ -1,0 +1,229 @@
+package verify
+
+import (
+	"fmt"
+	"math"
+)
+
+// Settings tune a check. The zero value means the defaults.
+type Settings struct {
+	// Resolution K: grid coordinates are multiples of 1/K. 0 means
+	// DefaultResolution(n).
+	Resolution int
+	// Tolerance is the absolute slack every comparison allows for
+	// rounding: a violation smaller than it is not a violation, and a
+	// margin smaller than it is not strict. 0 means DefaultTolerance.
+	Tolerance float64
+	// Workers is the number of goroutines; 0 means GOMAXPROCS.
+	Workers int
+	// Progress, when set, is called from a single goroutine about ten
+	// times a second with the work done so far, and once at the end.
+	Progress func(done, total int64)
+	// Limit, when positive, is the largest effort (or, in an audit, the
+	// largest payment in absolute value) the boundedness check accepts.
+	Limit float64
+	// MaxPoints is the largest full grid; above it the grid is sampled.
+	// 0 means DefaultMaxPoints.
+	MaxPoints int
+	// Samples is the number of random lattice points of a sampled grid;
+	// 0 means DefaultSamples.
+	Samples int
+	// Seed fixes the random sample and the affinity test pairs.
+	Seed uint64
+}
+
+// Defaults.
+const (
+	DefaultTolerance = 1e-9
+	DefaultMaxPoints = 25000
+	DefaultSamples   = 3000
+)
+
+// DefaultResolution is the grid resolution used when Settings.Resolution
+// is 0: fine for few outcomes, coarser as the grid grows as K^(n-1), and
+// for n >= 7 a fine lattice that is sampled, not enumerated.
+func DefaultResolution(n int) int {
+	switch n {
+	case 2:
+		return 1000
+	case 3:
+		return 100
+	case 4:
+		return 30
+	case 5:
+		return 16
+	case 6:
+		return 12
+	}
+	// Sampled: the lattice only fixes the rounding of the sample.
+	return 10 * n
+}
+
+func (s Settings) withDefaults(n int) Settings {
+	if s.Resolution <= 0 {
+		s.Resolution = DefaultResolution(n)
+	}
+	if !(s.Tolerance > 0) {
+		s.Tolerance = DefaultTolerance
+	}
+	if s.MaxPoints <= 0 {
+		s.MaxPoints = DefaultMaxPoints
+	}
+	if s.Samples <= 0 {
+		s.Samples = DefaultSamples
+	}
+	s.Workers = workers(s.Workers)
+	return s
+}
+
+// Verdict is the summary of a check.
+type Verdict string
+
+// Verdicts.
+const (
+	StrictlyProper Verdict = "strictly-proper"
+	Proper         Verdict = "proper"
+	Improper       Verdict = "improper"
+)
+
+// Grid says what a result was computed on.
+type Grid struct {
+	// Resolution K, number of grid points, and the tolerance used.
+	Resolution, Points int
+	Tolerance          float64
+	// Sampled is true when the points are a random sample of the lattice.
+	Sampled bool
+	// Interior and Boundary count the points with every coordinate
+	// positive and with some coordinate 0.
+	Interior, Boundary int
+	// Pairs is the number of belief–report pairs streamed.
+	Pairs int64
+}
+
+// String states the grid the way every verdict must: resolution, points,
+// tolerance, and what a grid check is worth.
+func (g Grid) String() string {
+	kind := "full grid"
+	if g.Sampled {
+		kind = "sampled grid"
+	}
+	return fmt.Sprintf("%s at resolution %d (coordinates in steps of 1/%d): %d points (%d interior, %d on the boundary), %d pairs, tolerance %g; a grid check is evidence, not a proof",
+		kind, g.Resolution, g.Resolution, g.Points, g.Interior, g.Boundary, g.Pairs, g.Tolerance)
+}
+
+// Part is a check's finding on one region of the simplex.
+type Part struct {
+	// Count is how many points (or pairs) of the region were examined.
+	Count int64
+	// Passed is false when the region shows a violation.
+	Passed bool
+	// Worst is the check's amount at the worst place of the region, in
+	// the check's own units (see CheckResult); NaN when nothing was
+	// examined.
+	Worst float64
+	// Belief and Report locate it (Report nil for checks on one point).
+	Belief, Report []float64
+}
+
+// CheckResult is one named check.
+//
+// Worst is, per check: concavity — the largest eigenvalue of the Hessian
+// projected onto the simplex (passes at or below the tolerance);
+// properness — the largest honesty gap, expected effort of the honest
+// report minus the best report's (passes at or below the tolerance);
+// nonnegativity — the smallest divergence D(q, p) (passes at or above
+// minus the tolerance); affinity — the largest midpoint deviation of
+// Phi(q, p) in q (passes at or below the tolerance times the size of
+// Phi); boundedness — the largest absolute effort (payment, in an audit)
+// over interior reports.
+type CheckResult struct {
+	Name   string
+	Passed bool
+	Worst  float64
+	// Belief and Report are the worst witness (Report nil when the check
+	// is about one point).
+	Belief, Report []float64
+	// Note explains the finding in a sentence or two.
+	Note string
+	// Strict reports strictness where the check has it: concavity with a
+	// negative eigenvalue at every interior point; properness with every
+	// other report worse than the honest one by more than the tolerance.
+	Strict bool
+	// Margin is, for properness, the smallest amount by which the best
+	// other report falls short of the honest one, at MarginBelief and
+	// MarginReport.
+	Margin                     float64
+	MarginBelief, MarginReport []float64
+	// Interior and Boundary split the finding by where the belief lies
+	// (for boundedness, where the report lies).
+	Interior, Boundary Part
+	// Sharpened is true when local optimisation improved on the grid
+	// witness; GridWorst is then the grid's own worst amount.
+	Sharpened bool
+	GridWorst float64
+	// Status is the optimiser's status when it was run.
+	Status string
+}
+
+// Report is the result of CheckRule.
+type Report struct {
+	Verdict Verdict
+	Grid    Grid
+	Checks  []CheckResult
+	// Notes are findings worth a sentence that are not failures, such as
+	// infinite effort on the boundary.
+	Notes []string
+}
+
+// Check returns the check called name, or nil.
+func (r *Report) Check(name string) *CheckResult {
+	for i := range r.Checks {
+		if r.Checks[i].Name == name {
+			return &r.Checks[i]
+		}
+	}
+	return nil
+}
+
+// Failed reports whether any check failed.
+func (r *Report) Failed() bool {
+	for _, c := range r.Checks {
+		if !c.Passed {
+			return true
+		}
+	}
+	return false
+}
+
+// part accumulates the worst place of a region; larger amounts are worse.
+type part struct {
+	Part
+	seen bool
+}
+
+func (p *part) offer(amount float64, belief, report []float64) {
+	p.Count++
+	worse := !p.seen || amount > p.Worst || amount != amount && p.Worst == p.Worst
+	if !worse {
+		return
+	}
+	p.seen = true
+	p.Worst = amount
+	p.Belief = append(p.Belief[:0], belief...)
+	if report == nil {
+		p.Report = nil
+	} else {
+		p.Report = append(p.Report[:0], report...)
+	}
+}
+
+func (p *part) result(passed bool) Part {
+	out := p.Part
+	if !p.seen {
+		out.Worst = math.NaN()
+	}
+	out.Passed = passed
+	return out
+}
+
+func clone(v []float64) []float64 { return append([]float64(nil), v...) }
