@@ -13,8 +13,6 @@ import (
 	"strings"
 	"time"
 
-	"github.com/charmbracelet/x/term"
-
 	"scorewright/generator/backtest"
 	"scorewright/generator/backtest/figure"
 	"scorewright/generator/bregman"
@@ -25,7 +23,7 @@ import (
 	"scorewright/tui/reliability"
 )
 
-const backtestUsage = ruleUsage + " " + budgetUsage + " --history FILE.csv [--strict] [--tolerance T]" +
+const backtestUsage = ruleUsage + " " + budgetUsage + " [--menu FILE] [--clamp P] --history FILE.csv [--strict] [--tolerance T]" +
 	" [--versus-preset NAME | --versus-generator EXPR | --versus-design FILE] [--versus-param name=value]" +
 	" [--pay-out FILE.csv] [--figure FILE.svg|png|pdf] [--chart] [--force] [--progress] [--json]"
 
@@ -49,13 +47,18 @@ type money struct {
 	budget string
 	// decimals is how many decimals payments have; -1 when unrounded.
 	decimals int
+	// adjust, if set, is the report the contract pays for a forecast (the
+	// table's clamp).
+	adjust func(dst, p []float64) []float64
+	// warning, if set, says the fitted table failed its re-check.
+	warning string
 }
 
 // fitFunc fits a rule to a design's budget. The command uses the table's
 // fit; tests give an explicit A - B·effort.
 type fitFunc func(r *bregman.Rule, d *design.Design) (*money, error)
 
-func runBacktest(e *env, args []string) error { return backtestWith(e, args, fitBudget) }
+func runBacktest(e *env, args []string) error { return backtestWith(e, args, nil) }
 
 // backtestScheme is one rule of a backtest with its money and origin.
 type backtestScheme struct {
@@ -66,6 +69,7 @@ type backtestScheme struct {
 	money *money
 }
 
+// backtestWith runs the command; a nil fit means the table's budget fit.
 func backtestWith(e *env, args []string, fit fitFunc) error {
 	fs := newFlags("backtest", "")
 	rf := addRuleFlags(fs)
@@ -78,6 +82,8 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 	vsDesign := fs.String("versus-design", "", "second rule to compare with: a design file (its budget unless budget flags are given)")
 	vsParams := paramFlag{}
 	fs.Var(vsParams, "versus-param", "parameter of the second rule's formula, name=value (repeatable)")
+	menuFile := fs.String("menu", "", "read the report menu from a CSV file, as the table command does (instead of --step)")
+	clamp := fs.Float64("clamp", 0, "pay every report as if each probability were at least P, as the table command does")
 	payOut := fs.String("pay-out", "", "write every forecast's pay under each rule to this CSV file")
 	figPath := fs.String("figure", "", "n = 2: write the reliability picture to FILE.svg, .png or .pdf")
 	chart := fs.Bool("chart", false, "n = 2: print the reliability picture as a text chart")
@@ -89,6 +95,9 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 	}
 	if *historyPath == "" {
 		return usagef("--history FILE.csv is required")
+	}
+	if fit == nil {
+		fit = budgetFit(fs, *menuFile, *clamp)
 	}
 	if !(*tol > 0) || *tol >= 1 {
 		return usagef("--tolerance %g: want a number in (0, 1)", *tol)
@@ -156,7 +165,7 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 
 	bs := make([]backtest.Scheme, len(schemes))
 	for i, s := range schemes {
-		bs[i] = backtest.Scheme{Name: s.id, Rule: s.rule, Pay: s.money.pay, OnMenu: s.money.onMenu, Low: s.money.low, High: s.money.high}
+		bs[i] = backtest.Scheme{Name: s.id, Rule: s.rule, Pay: s.money.pay, OnMenu: s.money.onMenu, Low: s.money.low, High: s.money.high, Adjust: s.money.adjust}
 	}
 	opt := backtest.Options{Strict: *strict}
 	if *progress || isTerminal(e.stderr) {
@@ -277,13 +286,6 @@ func openHistory(e *env, path string) (io.Reader, int64, func(), error) {
 		size = st.Size()
 	}
 	return f, size, func() { f.Close() }, nil
-}
-
-// isTerminal reports whether w is a terminal, where a progress line that
-// rewrites itself makes sense.
-func isTerminal(w io.Writer) bool {
-	f, ok := w.(*os.File)
-	return ok && term.IsTerminal(f.Fd())
 }
 
 // newProgressLine returns a progress callback that rewrites one stderr

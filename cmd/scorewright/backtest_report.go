@@ -29,13 +29,16 @@ func newBacktestReport(path string, h *history.Reader, schemes []*backtestScheme
 			Menu: s.money.menu, Budget: s.money.budget, Count: m.Count, Total: num.Float(m.Total), Mean: num.Float(m.Mean),
 			Min: num.Float(m.Min), Max: num.Float(m.Max), OffMenu: m.OffMenu, BelowLow: m.BelowLow, AboveHigh: m.AboveHigh,
 			NonFinite: m.NonFinite})
+		if s.money.warning != "" {
+			r.Notes = append(r.Notes, fmt.Sprintf("rule %s: %s", s.id, s.money.warning))
+		}
 		if m.OffMenu > 0 {
-			r.Notes = append(r.Notes, fmt.Sprintf("rule %s: %d of %d forecasts are off the report menu (%s); the table has no row for them, so they are paid by the formula (%s)",
-				s.id, m.OffMenu, m.Count, s.money.menu, s.money.formula))
+			r.Notes = append(r.Notes, fmt.Sprintf("rule %s: %d of %d forecasts are off the report menu; the table has no row for them, so they are paid by the formula (A - B·L, then rounded as the table is)",
+				s.id, m.OffMenu, m.Count))
 		}
 		if m.NonFinite > 0 {
-			r.Notes = append(r.Notes, fmt.Sprintf("rule %s: %d payments are not finite (first on line %d): the forecast gave the outcome that happened a probability at which the rule's effort is infinite; totals include them",
-				s.id, m.NonFinite, m.FirstNonFinite))
+			r.Notes = append(r.Notes, fmt.Sprintf("rule %s: %s not finite (first on line %d): the forecast gave the outcome that happened a probability at which the rule's effort is infinite, and no clamp applies; totals include them",
+				s.id, plural(m.NonFinite, "payment is", "payments are"), m.FirstNonFinite))
 		}
 	}
 	for _, f := range res.Forecasters {
@@ -83,16 +86,14 @@ func (r *backtestReport) cash(rule int, v num.Float) string {
 func (r *backtestReport) writeText(w io.Writer) error {
 	fmt.Fprintf(w, "history %s: %d forecasts scored, %d rows skipped (a row's probabilities must lie in [0, 1] and sum to 1 within %g)\n\n",
 		r.History, r.Rows, r.SkipCount, r.Tolerance)
-	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', 0)
 	for _, rule := range r.Rules {
-		fmt.Fprintf(tw, "rule %s\t%s\t%s\n", rule.ID, rule.Name, strings.ReplaceAll(rule.Formula, "\n", "; "))
-		fmt.Fprintf(tw, "\t%s\t%s; %s\n", rule.Budget, rule.Pay, rule.Menu)
+		fmt.Fprintf(w, "rule %s: %s, generator %s\n", rule.ID, rule.Name, strings.ReplaceAll(rule.Formula, "\n", "; "))
+		fmt.Fprintf(w, "  %s\n  menu: %s\n  budget: %s\n", rule.Pay, rule.Menu, rule.Budget)
 	}
-	tw.Flush()
 	fmt.Fprintln(w)
 
 	two := len(r.Rules) > 1
-	tw = tabwriter.NewWriter(w, 0, 4, 2, ' ', tabwriter.AlignRight)
+	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprint(tw, "forecaster\tforecasts\t")
 	for _, rule := range r.Rules {
 		fmt.Fprintf(tw, "total %s\tmean %s\trank %s\t", rule.ID, rule.ID, rule.ID)
@@ -127,7 +128,7 @@ func (r *backtestReport) writeText(w io.Writer) error {
 	}
 	fmt.Fprintf(tw, "%d\t\n", r.Rules[0].OffMenu)
 	tw.Flush()
-	fmt.Fprintln(w, "(ranks by mean pay per forecast; 1 is best)")
+	fmt.Fprintln(w, "(ranks by mean pay per forecast, 1 is best; off menu: forecasts not on rule A's report menu)")
 	fmt.Fprintln(w)
 
 	fmt.Fprintln(w, "totals against the budget")
@@ -135,9 +136,9 @@ func (r *backtestReport) writeText(w io.Writer) error {
 		fmt.Fprintf(w, "  rule %s: paid %s for %d forecasts (mean %.4g, smallest %s, largest %s); ", rule.ID,
 			r.cash(i, rule.Total), rule.Count, float64(rule.Mean), r.cash(i, rule.Min), r.cash(i, rule.Max))
 		if rule.BelowLow+rule.AboveHigh == 0 {
-			fmt.Fprintf(w, "every payment within the budget (%s)\n", rule.Budget)
+			fmt.Fprintln(w, "every payment within the table's range")
 		} else {
-			fmt.Fprintf(w, "%d payments below the floor and %d above the cap (%s)\n", rule.BelowLow, rule.AboveHigh, rule.Budget)
+			fmt.Fprintf(w, "%s below the table's smallest payment, %s above its largest (all off the menu)\n", plural(rule.BelowLow, "payment"), plural(rule.AboveHigh, "payment"))
 		}
 	}
 	fmt.Fprintln(w)
@@ -181,4 +182,17 @@ func (r *backtestReport) writeText(w io.Writer) error {
 	}
 	_, err := fmt.Fprintln(w, "caution:", r.Caution)
 	return err
+}
+
+// plural writes "1 payment" or "3 payments"; forms gives the singular and,
+// when it is not just an added s, the plural.
+func plural(n int, forms ...string) string {
+	one, many := forms[0], forms[0]+"s"
+	if len(forms) > 1 {
+		many = forms[1]
+	}
+	if n == 1 {
+		return "1 " + one
+	}
+	return fmt.Sprintf("%d %s", n, many)
 }

@@ -293,3 +293,74 @@ func TestBacktestFigure(t *testing.T) {
 		}
 	}
 }
+
+// With the real budget fit, every forecast on the menu is paid exactly
+// its entry in the table the table command exports for the same flags.
+func TestBacktestPaysAsTheTable(t *testing.T) {
+	budgetArgs := []string{"--outcomes", "frost,clear", "--preset", "quadratic", "--floor", "0", "--cap", "10", "--step", "0.05", "--unit", "0.5"}
+	code, tableCSV, stderr := runCmd(t, append(append([]string{"table"}, budgetArgs...), "--format", "csv", "--force")...)
+	if code > 1 {
+		t.Fatalf("table: exit %d, %s", code, stderr)
+	}
+	tr := csv.NewReader(strings.NewReader(tableCSV))
+	tr.Comment = '#'
+	tr.FieldsPerRecord = -1
+	recs, err := tr.ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	// report frost, report clear, pay if frost, pay if clear
+	entry := map[string][2]string{}
+	for _, rec := range recs {
+		if len(rec) == 4 && rec[0] != "report frost" {
+			entry[rec[0]] = [2]string{rec[2], rec[3]}
+		}
+	}
+	if len(entry) != 21 {
+		t.Fatalf("table has %d rows, want 21:\n%s", len(entry), tableCSV)
+	}
+	payOut := filepath.Join(t.TempDir(), "pay.csv")
+	code, out, stderr := runCmd(t, append(append([]string{"backtest"}, budgetArgs...), "--history", frostHistory, "--pay-out", payOut)...)
+	if code != 0 {
+		t.Fatalf("backtest: exit %d, %s", code, stderr)
+	}
+	if !strings.Contains(out, "fails its re-check") {
+		t.Errorf("output does not pass on that the table fails its re-check:\n%s", out)
+	}
+	hist := map[string][]string{} // line -> history record
+	hf, _ := os.ReadFile(frostHistory)
+	for i, l := range strings.Split(string(hf), "\n") {
+		hist[strconv.Itoa(i+1)] = strings.Split(l, ",")
+	}
+	data, _ := os.ReadFile(payOut)
+	pr := csv.NewReader(bytes.NewReader(data))
+	pr.Comment = '#'
+	rows, err := pr.ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	checked := 0
+	for _, r := range rows[1:] {
+		if r[6] != "true" {
+			continue
+		}
+		h := hist[r[0]]
+		e, ok := entry[h[3]]
+		if !ok {
+			t.Fatalf("line %s: forecast %s on the menu but not in the table", r[0], h[3])
+		}
+		want := e[0]
+		if r[3] == "clear" {
+			want = e[1]
+		}
+		got, _ := strconv.ParseFloat(r[4], 64)
+		w, _ := strconv.ParseFloat(want, 64)
+		if got != w {
+			t.Errorf("line %s: forecast %s, outcome %s paid %g, the table says %s", r[0], h[3], r[3], got, want)
+		}
+		checked++
+	}
+	if checked < 150 {
+		t.Errorf("only %d forecasts on the menu were checked", checked)
+	}
+}

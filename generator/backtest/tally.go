@@ -38,12 +38,20 @@ type Scheme struct {
 	// Low and High are the payments the budget promises to stay within;
 	// payments outside are counted. Use -Inf and +Inf for no bound.
 	Low, High float64
+	// Adjust, if set, writes into dst the report the contract pays for
+	// forecast p (a clamp away from zero, say) and returns dst; the pay is
+	// A - B·L at that report. nil pays the forecast as written.
+	Adjust func(dst, p []float64) []float64
 }
 
 // Paid is what one forecast earns under one scheme.
 type Paid struct {
-	Effort, Pay float64
-	OnMenu      bool
+	// Effort is L(p, y) of the forecast as written; the decomposition
+	// splits its mean.
+	Effort float64
+	// Pay is the payment, at the report Scheme.Adjust makes of p.
+	Pay    float64
+	OnMenu bool
 }
 
 // Money is what a set of forecasts earns under one scheme.
@@ -204,6 +212,8 @@ type Tally struct {
 	last    int
 	all     []moneyTally
 	cache   forecastCache
+	one     []Paid    // scratch: one scheme, every outcome
+	adj     []float64 // scratch: adjusted report
 }
 
 // Default binning bounds for the decomposition.
@@ -252,6 +262,8 @@ func NewTally(schemes []Scheme, opt TallyOptions) (*Tally, error) {
 		t.scorers = append(t.scorers, s.Rule.NewScorer())
 	}
 	t.eff = make([]float64, n)
+	t.adj = make([]float64, n)
+	t.one = make([]Paid, n)
 	t.paid = make([]Paid, len(schemes))
 	t.all = make([]moneyTally, len(schemes))
 	return t, nil
@@ -272,9 +284,8 @@ func (t *Tally) Add(forecaster string, line, y int, p []float64) []Paid {
 		if c != nil {
 			pd = c[i*t.n+y]
 		} else {
-			t.scorers[i].Efforts(t.eff, p)
-			l := t.eff[y]
-			pd = Paid{Effort: l, Pay: s.Pay.Pay(l), OnMenu: s.OnMenu == nil || s.OnMenu(p)}
+			t.scoreAll(i, p, t.one)
+			pd = t.one[y]
 		}
 		t.paid[i] = pd
 		f.money[i].add(pd, line, s)
@@ -318,15 +329,27 @@ func (c *forecastCache) get(t *Tally, p []float64) []Paid {
 	}
 	if made {
 		for s := range t.schemes {
-			sc := &t.schemes[s]
-			t.scorers[s].Efforts(t.eff, p)
-			on := sc.OnMenu == nil || sc.OnMenu(p)
-			for _, l := range t.eff {
-				c.paid = append(c.paid, Paid{Effort: l, Pay: sc.Pay.Pay(l), OnMenu: on})
-			}
+			c.paid = append(c.paid, make([]Paid, t.n)...)
+			t.scoreAll(s, p, c.paid[len(c.paid)-t.n:])
 		}
 	}
 	return c.paid[i*width : (i+1)*width]
+}
+
+// scoreAll writes what forecast p earns under scheme s for every outcome.
+func (t *Tally) scoreAll(s int, p []float64, dst []Paid) {
+	sc := &t.schemes[s]
+	on := sc.OnMenu == nil || sc.OnMenu(p)
+	t.scorers[s].Efforts(t.eff, p)
+	for y, l := range t.eff {
+		dst[y] = Paid{Effort: l, Pay: sc.Pay.Pay(l), OnMenu: on}
+	}
+	if sc.Adjust != nil {
+		t.scorers[s].Efforts(t.eff, sc.Adjust(t.adj, p))
+		for y, l := range t.eff {
+			dst[y].Pay = sc.Pay.Pay(l)
+		}
+	}
 }
 
 // forecaster finds (or makes) the tally of a forecaster; consecutive rows

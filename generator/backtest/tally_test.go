@@ -182,3 +182,44 @@ func TestCompensatedSum(t *testing.T) {
 		t.Errorf("compensated sum %.17g, want 1e6 (plain sum gives %.17g)", got, plain)
 	}
 }
+
+// A clamp pays the report as if each probability were at least c; the
+// effort of the forecast as written stays what it is. Log rule, forecast
+// (1, 0), outcome 2, clamp 0.01: the paid report is (1/1.01, 0.01/1.01),
+// effort -ln(0.01/1.01) = ln 101 (derived by hand), the written effort +Inf.
+func TestAdjust(t *testing.T) {
+	lg := rule(t, "-sum(p*ln(p))", 2, false)
+	clamp := func(dst, p []float64) []float64 {
+		var s float64
+		for i, x := range p {
+			dst[i] = math.Max(x, 0.01)
+			s += dst[i]
+		}
+		for i := range dst {
+			dst[i] /= s
+		}
+		return dst
+	}
+	tl, _ := NewTally([]Scheme{{Name: "log", Rule: lg, Pay: Affine{A: 10, B: 1}, Adjust: clamp, Low: 0, High: 10}}, TallyOptions{})
+	paid := tl.Add("Birch", 2, 1, []float64{1, 0})
+	if !math.IsInf(paid[0].Effort, 1) || math.Abs(paid[0].Pay-(10-math.Log(101))) > 1e-12 {
+		t.Errorf("paid %+v, want effort +Inf and pay 10 - ln 101 = %g", paid[0], 10-math.Log(101))
+	}
+}
+
+// Past the cache's bound forecasts are scored directly, with the same
+// result: Brier (1950) effort 2 (f - o)^2 for every one.
+func TestCacheOverflow(t *testing.T) {
+	q := rule(t, "1 - sum(p^2)", 2, false)
+	tl, _ := NewTally([]Scheme{{Name: "q", Rule: q, Pay: Affine{A: 1, B: 1}}}, TallyOptions{})
+	for i := range cacheEntries + 500 {
+		f := float64(i) / (cacheEntries + 500)
+		paid := tl.Add("A", i+2, 0, []float64{f, 1 - f})
+		if want := 2 * (f - 1) * (f - 1); math.Abs(paid[0].Effort-want) > 1e-12 {
+			t.Fatalf("forecast %d: effort %g, want %g", i, paid[0].Effort, want)
+		}
+	}
+	if n := tl.cache.table.len(); n != cacheEntries {
+		t.Errorf("cache holds %d forecasts, want the bound %d", n, cacheEntries)
+	}
+}
