@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bufio"
 	"context"
 	"errors"
 	"flag"
@@ -285,7 +286,8 @@ func openHistory(e *env, path string) (io.Reader, int64, func(), error) {
 	if st, err := f.Stat(); err == nil && st.Mode().IsRegular() {
 		size = st.Size()
 	}
-	return f, size, func() { f.Close() }, nil
+	// A larger buffer than encoding/csv's own 4 KiB saves system calls.
+	return bufio.NewReaderSize(f, 1<<16), size, func() { f.Close() }, nil
 }
 
 // newProgressLine returns a progress callback that rewrites one stderr
@@ -304,7 +306,7 @@ func newProgressLine(w io.Writer, size int64) func(backtest.Progress) {
 		if size > 0 {
 			part = fmt.Sprintf(" (%.0f%% of %s)", 100*float64(p.Offset)/float64(size), byteSize(size))
 		}
-		fmt.Fprintf(w, "\rbacktest: %d rows read%s, %d skipped, %.3g rows/s   ", p.Rows, part, p.Skipped, rate)
+		fmt.Fprintf(w, "\rbacktest: %d rows read%s, %d skipped, %.2f million rows/s   ", p.Rows, part, p.Skipped, rate/1e6)
 	}
 }
 
