@@ -148,6 +148,36 @@ func BenchmarkPlainRead(b *testing.B) {
 	b.ReportMetric(float64(*benchRows)*float64(b.N)/b.Elapsed().Seconds(), "rows/s")
 }
 
+// BenchmarkHistoryRead reads and validates every row (history.Reader:
+// numbers parsed, ranges and sums checked) and scores nothing: the part of
+// the backtest that is reading.
+func BenchmarkHistoryRead(b *testing.B) {
+	path := benchHistory(b, *benchRows)
+	st, _ := os.Stat(path)
+	b.SetBytes(st.Size())
+	b.ResetTimer()
+	for b.Loop() {
+		in, f := openBench(b, path)
+		h, err := history.NewReader(in, benchLabels, history.Options{})
+		if err != nil {
+			b.Fatal(err)
+		}
+		n := 0
+		for {
+			_, err := h.Next()
+			if err == io.EOF {
+				break
+			}
+			n++
+		}
+		f.Close()
+		if n != *benchRows {
+			b.Fatalf("read %d rows", n)
+		}
+	}
+	b.ReportMetric(float64(*benchRows)*float64(b.N)/b.Elapsed().Seconds(), "rows/s")
+}
+
 // BenchmarkBacktest reads, validates and pays the same file under two
 // rules (quadratic and log, n = 3), with the decomposition's bins.
 func BenchmarkBacktest(b *testing.B) {
