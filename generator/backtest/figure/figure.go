@@ -21,7 +21,7 @@ import (
 	"scorewright/generator/backtest"
 )
 
-// Formats are the file extensions Encode writes.
+// formats are the file extensions Encode writes.
 var formats = []string{"svg", "png", "pdf"}
 
 // Format returns the format named by path's extension, or an error
@@ -44,6 +44,7 @@ func Reliability(curves []backtest.Curve, outcome, title string) (*plot.Plot, er
 	p.X.Label.Text = fmt.Sprintf("forecast probability of %q", outcome)
 	p.Y.Label.Text = fmt.Sprintf("observed frequency of %q", outcome)
 	p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = 0, 1, 0, 1
+	p.X.Tick.Marker, p.Y.Tick.Marker = tenths{}, tenths{}
 	p.Add(plotter.NewGrid())
 	diag, err := plotter.NewLine(plotter.XYs{{X: 0, Y: 0}, {X: 1, Y: 1}})
 	if err != nil {
@@ -84,10 +85,28 @@ func Reliability(curves []backtest.Curve, outcome, title string) (*plot.Plot, er
 		p.Add(line, pts)
 		p.Legend.Add(c.Name, line, pts)
 	}
-	p.Legend.Top = false
+	// Top left is where a reliability picture is emptiest: forecasts there
+	// would be low probabilities of events that nearly always happened.
+	p.Legend.Top = true
 	p.Legend.Left = true
-	p.Legend.XOffs, p.Legend.YOffs = vg.Points(6), vg.Points(6)
+	p.Legend.XOffs, p.Legend.YOffs = vg.Points(6), -vg.Points(18) // below the title
 	return p, nil
+}
+
+// tenths ticks the unit interval every 0.1, labelled every 0.2.
+type tenths struct{}
+
+// Ticks returns the ticks of [0, 1].
+func (tenths) Ticks(_, _ float64) []plot.Tick {
+	var t []plot.Tick
+	for i := 0; i <= 10; i++ {
+		label := ""
+		if i%2 == 0 {
+			label = fmt.Sprintf("%.1f", float64(i)/10)
+		}
+		t = append(t, plot.Tick{Value: float64(i) / 10, Label: label})
+	}
+	return t
 }
 
 // Encode renders p as a 12 cm square image in format (svg, png or pdf).
