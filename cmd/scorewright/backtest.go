@@ -4,7 +4,6 @@ import (
 	"bufio"
 	"context"
 	"errors"
-	"flag"
 	"fmt"
 	"io"
 	"math"
@@ -80,7 +79,7 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 	tol := fs.Float64("tolerance", history.DefaultTolerance, "how far from 1 a row's probabilities may sum")
 	vsPreset := fs.String("versus-preset", "", "second rule to compare with: a preset name")
 	vsGen := fs.String("versus-generator", "", "second rule to compare with: a generator formula")
-	vsDesign := fs.String("versus-design", "", "second rule to compare with: a design file (its budget unless budget flags are given)")
+	vsDesign := fs.String("versus-design", "", "second rule to compare with: a design file (with its own budget, if it has one; else the first rule's)")
 	vsParams := paramFlag{}
 	fs.Var(vsParams, "versus-param", "parameter of the second rule's formula, name=value (repeatable)")
 	menuFile := fs.String("menu", "", "read the report menu from a CSV file, as the table command does (instead of --step)")
@@ -123,7 +122,7 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 	case vs == 0 && len(vsParams) > 0:
 		return usagef("--versus-param needs --versus-preset, --versus-generator or --versus-design")
 	case vs == 1:
-		d2, err := versusDesign(fs, rf, bf, d1, *vsPreset, *vsGen, *vsDesign, vsParams)
+		d2, err := versusDesign(d1, *vsPreset, *vsGen, *vsDesign, vsParams)
 		if err != nil {
 			return err
 		}
@@ -224,10 +223,11 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 	return nil
 }
 
-// versusDesign builds the second rule: same outcomes as the first, its
-// own generator, the first rule's budget (a design file brings its own,
-// which budget flags given on the command line override).
-func versusDesign(fs *flag.FlagSet, rf *ruleFlags, bf *budgetFlags, d1 *design.Design, preset, gen, file string, params paramFlag) (*design.Design, error) {
+// versusDesign builds the second rule over the first rule's outcomes. A
+// design file keeps its own budget when it states one (a cap or a mean
+// pay); otherwise, and for a preset or generator, the second rule is fitted
+// to the first rule's budget, so that the two are compared on equal money.
+func versusDesign(d1 *design.Design, preset, gen, file string, params paramFlag) (*design.Design, error) {
 	vr := &ruleFlags{preset: preset, generator: gen, file: file, params: params, ordered: d1.Ordered}
 	if file == "" {
 		vr.outcomes = strings.Join(d1.Labels, ",")
@@ -247,16 +247,12 @@ func versusDesign(fs *flag.FlagSet, rf *ruleFlags, bf *budgetFlags, d1 *design.D
 		}
 		return nil, err
 	}
-	if file == "" {
-		d2.Budget = d1.Budget
-		d2.Budget.Reference = append([]float64(nil), d1.Budget.Reference...)
-		return d2, nil
-	}
-	if strings.Join(d2.Labels, "\x00") != strings.Join(d1.Labels, "\x00") {
+	if file != "" && strings.Join(d2.Labels, "\x00") != strings.Join(d1.Labels, "\x00") {
 		return nil, usagef("--versus-design %s has outcomes %s; the first rule has %s", file, strings.Join(d2.Labels, ", "), strings.Join(d1.Labels, ", "))
 	}
-	if err := bf.apply(fs, d2); err != nil {
-		return nil, err
+	if file == "" || (d2.Budget.Cap == 0 && d2.Budget.MeanPay == nil) {
+		d2.Budget = d1.Budget
+		d2.Budget.Reference = append([]float64(nil), d1.Budget.Reference...)
 	}
 	return d2, nil
 }

@@ -36,7 +36,7 @@ func budgetFit(fs *flag.FlagSet, menuFile string, clamp float64) fitFunc {
 			onMenu:   menuSet(menu.Reports),
 			low:      fit.MinPay,
 			high:     fit.MaxPay,
-			formula:  fmt.Sprintf("pay = %s - %s·effort, %s", table.FormatNumber(fit.A), table.FormatNumber(fit.B), fit.RoundingDesc()),
+			formula:  payFormula(fit),
 			menu:     fit.MenuDesc(),
 			budget:   fit.BudgetDesc(),
 			decimals: fit.Decimals(),
@@ -72,4 +72,14 @@ func menuSet(reports [][]float64) func(p []float64) bool {
 		set[keyOf(r)] = true
 	}
 	return func(p []float64) bool { return set[keyOf(p)] }
+}
+
+// payFormula says how pay follows from effort, e.g. "pay = 10 - 5·effort,
+// rounded to multiples of 0.5, nearest, halves away from zero".
+func payFormula(fit *budget.Fit) string {
+	f := fmt.Sprintf("pay = %s - %s·effort", table.FormatNumber(fit.A), table.FormatNumber(fit.B))
+	if fit.Unit == 0 {
+		return f + ", not rounded"
+	}
+	return f + ", rounded " + fit.RoundingDesc()
 }

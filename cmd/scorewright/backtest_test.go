@@ -364,3 +364,30 @@ func TestBacktestPaysAsTheTable(t *testing.T) {
 		t.Errorf("only %d forecasts on the menu were checked", checked)
 	}
 }
+
+// A second rule from a design file keeps that file's budget; one from a
+// preset is fitted to the first rule's.
+func TestBacktestVersusBudget(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "d.toml")
+	os.WriteFile(path, []byte("version = 1\noutcomes = [\"frost\", \"clear\"]\nmode = \"generator\"\nformula = \"1 - sum(p^2)\"\n[budget]\nfloor = 2\ncap = 12\nstep = 0.05\n"), 0o644)
+	maxPay := func(vs ...string) float64 {
+		args := append(append(append([]string{}, frostRule...), "--history", frostHistory, "--json"), vs...)
+		code, out, stderr := runBacktestCmd(t, args...)
+		if code != 0 {
+			t.Fatalf("%v: exit %d, %s", vs, code, stderr)
+		}
+		var got struct{ Rules []struct{ Max float64 } }
+		if err := json.Unmarshal([]byte(out), &got); err != nil {
+			t.Fatal(err)
+		}
+		return got.Rules[1].Max
+	}
+	// explicitFit pays cap - 5·effort, so the largest payment is the cap
+	// (effort 0 for a certain, correct forecast, which the sample has).
+	if m := maxPay("--versus-design", path); m != 12 {
+		t.Errorf("second rule from a design with cap 12 pays at most %g", m)
+	}
+	if m := maxPay("--versus-preset", "quadratic"); m != 10 {
+		t.Errorf("second rule from a preset pays at most %g, want the first rule's cap 10", m)
+	}
+}
