@@ -396,6 +396,13 @@ type ruleReport struct {
 	BelowLow  int       `json:"below_floor"`
 	AboveHigh int       `json:"above_cap"`
 	NonFinite int       `json:"non_finite"`
+	// MostTotal is what the forecasts could have cost at most: count × the
+	// table's largest payment.
+	MostTotal num.Float `json:"most_total"`
+	// TargetMean and TargetTotal are the mean-pay budget's aim per
+	// forecast, and times the count, when the budget has one.
+	TargetMean  *num.Float `json:"target_mean,omitempty"`
+	TargetTotal *num.Float `json:"target_total,omitempty"`
 }
 
 type forecasterReport struct {

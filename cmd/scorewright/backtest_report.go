@@ -25,10 +25,15 @@ func newBacktestReport(path string, h *history.Reader, schemes []*backtestScheme
 	for i, s := range schemes {
 		m := res.All[i]
 		r.decimals = append(r.decimals, s.money.decimals)
-		r.Rules = append(r.Rules, ruleReport{ID: s.id, Name: s.name, Formula: s.d.Formula, Pay: s.money.formula,
+		rr := ruleReport{ID: s.id, Name: s.name, Formula: s.d.Formula, Pay: s.money.formula,
 			Menu: s.money.menu, Budget: s.money.budget, Count: m.Count, Total: num.Float(m.Total), Mean: num.Float(m.Mean),
 			Min: num.Float(m.Min), Max: num.Float(m.Max), OffMenu: m.OffMenu, BelowLow: m.BelowLow, AboveHigh: m.AboveHigh,
-			NonFinite: m.NonFinite})
+			NonFinite: m.NonFinite, MostTotal: num.Float(float64(m.Count) * s.money.high)}
+		if mp := s.d.Budget.MeanPay; mp != nil {
+			mean, total := num.Float(*mp), num.Float(*mp*float64(m.Count))
+			rr.TargetMean, rr.TargetTotal = &mean, &total
+		}
+		r.Rules = append(r.Rules, rr)
 		if s.money.warning != "" {
 			r.Notes = append(r.Notes, fmt.Sprintf("rule %s: %s", s.id, s.money.warning))
 		}
@@ -140,6 +145,12 @@ func (r *backtestReport) writeText(w io.Writer) error {
 		} else {
 			fmt.Fprintf(w, "%s below the table's smallest payment, %s above its largest (all off the menu)\n", plural(rule.BelowLow, "payment"), plural(rule.AboveHigh, "payment"))
 		}
+		fmt.Fprintf(w, "          at most %s had every forecast earned the table's largest payment", r.cash(i, rule.MostTotal))
+		if rule.TargetMean != nil {
+			fmt.Fprintf(w, "; the budget aims at %s per forecast from a truthful forecaster at its reference belief, %s for %d forecasts",
+				r.cash(i, *rule.TargetMean), r.cash(i, *rule.TargetTotal), rule.Count)
+		}
+		fmt.Fprintln(w)
 	}
 	fmt.Fprintln(w)
 
