@@ -75,8 +75,9 @@ func TestBacktestSampleJSON(t *testing.T) {
 			Why  string
 		}
 		Rules []struct {
-			ID      string
-			OffMenu int `json:"off_menu"`
+			ID        string
+			OffMenu   int     `json:"off_menu"`
+			MostTotal float64 `json:"most_total"`
 		}
 		Caution string
 	}
@@ -130,6 +131,10 @@ func TestBacktestSampleJSON(t *testing.T) {
 		if fc.Count != count[fc.Name] || math.Abs(fc.Total-want[fc.Name]) > 1e-9 || fc.Totals[0] != fc.Total || len(fc.Ranks) != 2 {
 			t.Errorf("%s: count %d total %.12g, want %d and %.12g (Brier 1950 by direct reading)", fc.Name, fc.Count, fc.Total, count[fc.Name], want[fc.Name])
 		}
+	}
+	// At most the cap (10) for each of the 176 scored forecasts.
+	if got.Rules[0].MostTotal != 1760 {
+		t.Errorf("most_total %g, want 176 × 10", got.Rules[0].MostTotal)
 	}
 	// Cedar writes some probabilities with two decimals: off the 5 % menu.
 	if got.Rules[0].OffMenu == 0 || !strings.Contains(got.Caution, "counsel") {
