@@ -195,6 +195,13 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 		}
 		return usagef("%s: %v", *historyPath, err)
 	}
+	if res.Rows == 0 {
+		msg := fmt.Sprintf("%s has no valid forecasts", *historyPath)
+		if res.SkippedCount > 0 {
+			msg += fmt.Sprintf(" (%d rows skipped; the first, line %d: %s)", res.SkippedCount, res.Skipped[0].Line, res.Skipped[0].Why)
+		}
+		return usagef("%s", msg)
+	}
 	if out != nil {
 		if err := out.commit(); err != nil {
 			return err
@@ -432,9 +439,11 @@ type decompositionReport struct {
 }
 
 type reliabilityReport struct {
-	Forecaster string      `json:"forecaster"`
-	Outcome    string      `json:"outcome"`
-	Points     []pointJSON `json:"points"`
+	Forecaster string `json:"forecaster"`
+	Outcome    string `json:"outcome"`
+	// BinWidth is the width of the forecast bins the points group.
+	BinWidth num.Float   `json:"bin_width"`
+	Points   []pointJSON `json:"points"`
 }
 
 type pointJSON struct {

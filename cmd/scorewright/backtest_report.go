@@ -66,7 +66,7 @@ func newBacktestReport(path string, h *history.Reader, schemes []*backtestScheme
 	}
 	if len(r.Outcomes) == 2 {
 		for _, c := range reliabilityCurves(res, 0) {
-			rr := reliabilityReport{Forecaster: c.Name, Outcome: r.Outcomes[0], Points: []pointJSON{}}
+			rr := reliabilityReport{Forecaster: c.Name, Outcome: r.Outcomes[0], BinWidth: 1.0 / pictureCells, Points: []pointJSON{}}
 			for _, p := range c.Points {
 				rr.Points = append(rr.Points, pointJSON{num.Float(p.Forecast), num.Float(p.Observed), p.Count})
 			}

@@ -210,6 +210,7 @@ func TestBacktestStrictAndErrors(t *testing.T) {
 		{[]string{"--outcomes", "below,near,above", "--preset", "quadratic", "--cap", "10", "--step", "0.05", "--history", harvestHistory, "--chart"}, "the reliability picture is for 2 outcomes"},
 		{[]string{"--outcomes", "3", "--preset", "quadratic", "--cap", "10", "--step", "0.05", "--history", harvestHistory}, `missing columns "1", "2", "3"; unexpected columns "below", "near", "above"`},
 		{append(append([]string{}, frostRule...), "--history", frostHistory, "--tolerance", "0"), "--tolerance 0"},
+		{append(append([]string{}, frostRule...), "--history", headerOnly(t)), "has no valid forecasts"},
 	}
 	for _, c := range cases {
 		code, _, stderr := runBacktestCmd(t, c.args...)
@@ -395,4 +396,12 @@ func TestBacktestVersusBudget(t *testing.T) {
 	if m := maxPay("--versus-preset", "quadratic"); m != 10 {
 		t.Errorf("second rule from a preset pays at most %g, want the first rule's cap 10", m)
 	}
+}
+
+func headerOnly(t *testing.T) string {
+	path := filepath.Join(t.TempDir(), "empty.csv")
+	if err := os.WriteFile(path, []byte("forecaster,question,outcome,frost,clear\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return path
 }

@@ -87,6 +87,13 @@ func NewReader(r io.Reader, labels []string, opt Options) (*Reader, error) {
 	if err != nil {
 		return nil, fmt.Errorf("history header: %w", err)
 	}
+	if len(header) == 1 {
+		for _, sep := range []string{";", "\t", "|"} {
+			if strings.Contains(header[0], sep) {
+				return nil, fmt.Errorf("history header is one column %q: the file looks separated by %q, and a history is comma-separated", header[0], sep)
+			}
+		}
+	}
 	h := &Reader{csv: c, labels: labels, tol: tol, colF: -1, colQ: -1, colO: -1, colP: make([]int, len(labels)), fields: len(header)}
 	for k := range h.colP {
 		h.colP[k] = -1

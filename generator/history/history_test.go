@@ -125,6 +125,7 @@ func TestHeaderErrors(t *testing.T) {
 		{"missing label", "forecaster,question,outcome,frost\n", `missing column "clear"`},
 		{"wrong labels", "forecaster,question,outcome,1,2\n", `missing columns "frost", "clear"; unexpected columns "1", "2"`},
 		{"missing fixed", "forecaster,outcome,frost,clear\n", `missing column "question"`},
+		{"semicolons", "forecaster;question;outcome;frost;clear\n", `separated by ";", and a history is comma-separated`},
 		{"duplicate", "forecaster,question,outcome,frost,clear,frost\n", `column "frost" appears twice (columns 4 and 6)`},
 	}
 	for _, c := range cases {
