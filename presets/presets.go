@@ -72,6 +72,18 @@ func all() []Preset {
 		{Name: "weighted-quadratic", Title: "quadratic rule with outcome weights, effort sum w_i (p_i - [i=k])^2", Kind: KindGenerator,
 			Formula: "sum(w*p*(1-p))", Weighted: true,
 			Source: "Brier (1950) with outcome weights, as in Gneiting & Raftery (2007), JASA 102:359-378, Sec. 3"},
+		{Name: "squared-error", Title: "point forecast of a mean, effort (y - x)^2", Kind: KindPoint,
+			Formula: "-x^2",
+			Source:  "Savage (1971), JASA 66:783-801; Gneiting (2011), Making and evaluating point forecasts, JASA 106:746-762"},
+		{Name: "patton", Title: "point forecast of a mean, homogeneous Bregman family for a positive quantity (needs lo >= 0); b = 0 is half squared error; b = -1, -2 are limits (qlike is b = -2)", Kind: KindPoint,
+			Formula: "b = 1\n-x^(b+2) / ((b+1)*(b+2))",
+			Source:  "Patton (2011), Volatility forecast comparison using imperfect volatility proxies, J. Econometrics 160:246-256"},
+		{Name: "qlike", Title: "point forecast of a positive mean, effort y/x - ln(y/x) - 1 (needs lo > 0)", Kind: KindPoint,
+			Formula: "ln(x)",
+			Source:  "Patton (2011), J. Econometrics 160:246-256 (the b = -2 member, QLIKE)"},
+		{Name: "exponential", Title: "point forecast of a mean, exponential Bregman family; a > 0 penalises under-forecasts more", Kind: KindPoint,
+			Formula: "a = 1\n-2*exp(a*x) / a^2",
+			Source:  "Patton (2020), Comparing possibly misspecified forecasts, J. Business & Economic Statistics 38:796-809"},
 	}
 }
 

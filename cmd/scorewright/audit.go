@@ -47,8 +47,12 @@ func runAudit(e *env, args []string) error {
 	params := paramFlag{}
 	fs.Var(params, "param", "override a formula parameter, name=value (repeatable)")
 	vf := addVerifyFlags(fs)
-	if err := parseFlags(e, fs, "--outcomes N|label1,label2,... --payout EXPR [--ordered] [--weights w1,...] [--param name=value] "+verifyUsage, args, false); err != nil {
+	interval := addPointAuditFlag(fs)
+	if err := parseFlags(e, fs, "(--outcomes N|label1,label2,... | --interval LO,HI) --payout EXPR [--ordered] [--weights w1,...] [--param name=value] "+verifyUsage, args, false); err != nil {
 		return err
+	}
+	if *interval != "" {
+		return runAuditPoint(e, *src, *interval, params, vf)
 	}
 	if *outcomes == "" {
 		return usagef("--outcomes is required (a count such as 2, or labels such as frost,clear)")

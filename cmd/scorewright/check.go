@@ -3,6 +3,8 @@ package main
 import (
 	"fmt"
 
+	"scorewright/generator/design"
+
 	"scorewright/verify"
 )
 
@@ -16,6 +18,9 @@ func runCheck(e *env, args []string) error {
 	d, err := rf.design()
 	if err != nil {
 		return err
+	}
+	if d.Mode == design.ModePoint {
+		return runCheckPoint(e, d, vf)
 	}
 	rule, err := categoricalRule(d)
 	if err != nil {

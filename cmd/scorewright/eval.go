@@ -5,6 +5,7 @@ import (
 	"math"
 	"text/tabwriter"
 
+	"scorewright/generator/design"
 	"scorewright/generator/num"
 )
 
@@ -35,6 +36,9 @@ func runEval(e *env, args []string) error {
 	d, err := rf.design()
 	if err != nil {
 		return err
+	}
+	if d.Mode == design.ModePoint {
+		return runEvalPoint(e, d, *report, *belief, *asJSON)
 	}
 	rule, err := categoricalRule(d)
 	if err != nil {
@@ -68,7 +72,7 @@ func runEval(e *env, args []string) error {
 		d1, w1 := num.Float(dh), num.Float(w)
 		out.Derivative, out.Emphasis = &d1, &w1
 	}
-	out.Notes = nonFiniteNotes(d.Labels, p, h, eff)
+	out.Notes = append(nonFiniteNotes(d.Labels, p, h, eff), ruleWarnings(rule)...)
 	if *asJSON {
 		return writeJSON(e.stdout, out)
 	}

@@ -82,7 +82,7 @@ type ruleFlags struct {
 	interval  string
 }
 
-const ruleUsage = "--outcomes N|label1,label2,... (--generator EXPR | --preset NAME | --emphasis EXPR) [--param name=value] [--ordered] [--weights w1,w2,...] | --design FILE | --interval LO,HI --generator EXPR"
+const ruleUsage = "--outcomes N|label1,label2,... (--generator EXPR | --preset NAME | --emphasis EXPR) [--param name=value] [--ordered] [--weights w1,w2,...] | --design FILE | --interval LO,HI (--generator EXPR | --preset NAME)"
 
 func addRuleFlags(fs *flag.FlagSet) *ruleFlags {
 	r := &ruleFlags{params: paramFlag{}}
@@ -123,14 +123,17 @@ func (r *ruleFlags) design() (*design.Design, error) {
 			return nil, usagef("give exactly one of --generator, --preset or --emphasis")
 		}
 		if r.interval != "" {
-			if r.generator == "" {
-				return nil, usagef("--interval needs --generator EXPR in x")
+			if r.emphasis != "" {
+				return nil, usagef("--interval needs --generator EXPR in x or --preset NAME of a point-forecast preset")
 			}
 			iv, err := num.ParseVector(r.interval)
 			if err != nil || len(iv) != 2 || !(iv[0] < iv[1]) {
 				return nil, usagef("--interval wants LO,HI with LO < HI, got %q", r.interval)
 			}
 			d.Mode, d.Interval, d.Formula = design.ModePoint, iv, r.generator
+			if err := applyPointPreset(d, r.preset); err != nil {
+				return nil, err
+			}
 		} else {
 			if r.outcomes == "" {
 				return nil, usagef("--outcomes is required (a count such as 3, or labels such as frost,clear)")
@@ -222,6 +225,11 @@ func (b *budgetFlags) apply(fs *flag.FlagSet, d *design.Design) error {
 	}
 	if set["cap"] {
 		bd.Cap = b.cap
+		if !set["mean-pay"] {
+			// --cap on the command line overrides a design file's
+			// mean_pay rather than being silently outranked by it.
+			bd.MeanPay = nil
+		}
 	}
 	if set["mean-pay"] {
 		if set["cap"] {
@@ -249,7 +257,7 @@ func (b *budgetFlags) apply(fs *flag.FlagSet, d *design.Design) error {
 	if set["report-floor"] {
 		bd.ReportFloor = b.reportFloor
 	}
-	if err := bd.Validate(); err != nil {
+	if err := d.ValidateBudget(); err != nil {
 		return usagef("%v", err)
 	}
 	return nil

@@ -13,6 +13,8 @@ func categoricalRule(d *design.Design) (*bregman.Rule, error) {
 	case design.ModeGenerator:
 		r, err := d.Rule()
 		return r, formulaError("generator", err)
+	case design.ModeEmphasis:
+		return emphasisRule(d)
 	}
 	return nil, usagef("this command needs a generator rule over outcomes, and the design is in %s mode", d.Mode)
 }

@@ -22,13 +22,14 @@ import (
 	"scorewright/generator/table"
 )
 
-const tableUsage = "RULE BUDGET [--menu FILE] [--clamp P] [--format csv|md|json|tex|svg|png|pdf] [--out FILE] [--force] [--json]\n\nRULE: " + ruleUsage + "\nBUDGET: " + budgetUsage
+const tableUsage = "RULE BUDGET [--menu FILE] [--clamp P] [--format csv|md|json|tex|svg|png|pdf] [--out FILE] [--force] [--lottery] [--json]\n\nRULE: " + ruleUsage + "\nBUDGET: " + budgetUsage
 
 // tableFlags are the options of the table command beyond RULE and BUDGET.
 type tableFlags struct {
 	format, out, menu string
 	clamp             float64
 	force, json       bool
+	lottery           bool
 }
 
 func addTableFlags(fs *flag.FlagSet) *tableFlags {
@@ -37,6 +38,7 @@ func addTableFlags(fs *flag.FlagSet) *tableFlags {
 	fs.StringVar(&t.out, "out", "", "write the table to FILE, atomically (figures need it)")
 	fs.BoolVar(&t.force, "force", false, "replace an existing --out file, and export a table that failed the re-check (it then carries a warning)")
 	fs.BoolVar(&t.json, "json", false, "print the fit and re-check summary as JSON (the table itself goes to --out)")
+	fs.BoolVar(&t.lottery, "lottery", false, "pay a chance of winning a fixed prize, (pay - floor)/(cap - floor), instead of money")
 	fs.StringVar(&t.menu, "menu", "", "read the report menu from a CSV file: one report per line, n probabilities (n = 2: one number), '#' comments")
 	fs.Float64Var(&t.clamp, "clamp", 0, "pay every report as if each probability were at least P (rescaled to sum 1); for rules infinite at 0")
 	return t
@@ -52,13 +54,13 @@ func (t *tableFlags) resolveFormat() (string, error) {
 		case "markdown":
 			f = "md"
 		case "txt", "":
-			return "", usagef("cannot tell the format from %q; give --format %s", t.out, strings.Join(table.Formats, "|"))
+			return "", usagef("cannot tell the format from %q; give --format %s", t.out, strings.Join(table.Formats(), "|"))
 		}
 	}
 	if f == "" {
 		f = "md"
 	}
-	for _, known := range table.Formats {
+	for _, known := range table.Formats() {
 		if f == known {
 			if table.IsFigure(f) && t.out == "" {
 				return "", usagef("a %s figure needs --out FILE", f)
@@ -66,7 +68,7 @@ func (t *tableFlags) resolveFormat() (string, error) {
 			return f, nil
 		}
 	}
-	return "", usagef("--format %q is not one of %s", f, strings.Join(table.Formats, ", "))
+	return "", usagef("--format %q is not one of %s", f, strings.Join(table.Formats(), ", "))
 }
 
 func runTable(e *env, args []string) error {
@@ -88,6 +90,9 @@ func runTable(e *env, args []string) error {
 	if err := bf.apply(fs, d); err != nil {
 		return err
 	}
+	if d.Mode == design.ModePoint {
+		return runTablePoint(e, d, format, tf)
+	}
 	rule, err := categoricalRule(d)
 	if err != nil {
 		return err
@@ -108,6 +113,11 @@ func runTable(e *env, args []string) error {
 		Title: d.Title, Formula: d.Formula, Preset: d.Preset, Params: d.Params,
 		Version: version, Date: exportDate(),
 	})
+	if tf.lottery {
+		if err := lotteryTable(tb, fit); err != nil {
+			return err
+		}
+	}
 	sum := newTableSummary(fit, rc, format, tf.out)
 	refused := !rc.Passed && !tf.force
 
@@ -219,6 +229,7 @@ type tableSummary struct {
 	MinPay       num.Float     `json:"min_pay"`
 	MaxPay       num.Float     `json:"max_pay"`
 	Truthful     truthfulJSON  `json:"truthful_pay"`
+	MenuPay      truthfulJSON  `json:"menu_pay"`
 	Recheck      recheckJSON   `json:"recheck"`
 	ClampGap     *clampGapJSON `json:"clamp_gap,omitempty"`
 	Output       tableOutput   `json:"output"`
@@ -274,7 +285,8 @@ type clampGapJSON struct {
 type cellJSON struct {
 	Report  []num.Float `json:"report"`
 	Beliefs int         `json:"beliefs"`
-	// Lo and Hi bound the first outcome's probability (n = 2 cells).
+	// Lo and Hi are the exact cell (lo, hi) in the first outcome's
+	// probability (n = 2).
 	Lo *num.Float `json:"lo,omitempty"`
 	Hi *num.Float `json:"hi,omitempty"`
 }
@@ -315,13 +327,15 @@ func newTableSummary(f *budget.Fit, rc *budget.Recheck, format, out string) *tab
 		MinPay: num.Float(f.MinPay), MaxPay: num.Float(f.MaxPay),
 		Truthful: truthfulJSON{Min: num.Float(f.Truthful.Min), Max: num.Float(f.Truthful.Max),
 			MinBelief: num.Floats(f.Truthful.MinBelief), MaxBelief: num.Floats(f.Truthful.MaxBelief), Grid: f.Truthful.Grid},
+		MenuPay: truthfulJSON{Min: num.Float(rc.MenuPay.Min), Max: num.Float(rc.MenuPay.Max),
+			MinBelief: num.Floats(rc.MenuPay.MinBelief), MaxBelief: num.Floats(rc.MenuPay.MaxBelief), Grid: rc.Grid},
 		Recheck: recheckJSON{Passed: rc.Passed, Verdict: rc.Verdict(f), MinMargin: num.Float(rc.MinMargin),
 			At: report(rc.MinMarginItem), Rival: report(rc.MinMarginRival),
 			Ties: items(rc.Ties), Beaten: items(rc.Beaten), NeverChosen: items(rc.NeverChosen),
 			TiedBeliefs: rc.TiedBeliefs, Grid: recheckGridJSON{Desc: rc.Grid, Points: rc.Beliefs, Tolerance: num.Float(rc.Tolerance)}},
 		Output:  tableOutput{Format: format, File: out},
 		Notes:   f.Notes(rc),
-		Caution: table.Caution,
+		Caution: table.Caution(),
 	}
 	if f.MeanPay != nil {
 		m := num.Float(*f.MeanPay)
@@ -332,7 +346,7 @@ func newTableSummary(f *budget.Fit, rc *budget.Recheck, format, out string) *tab
 	}
 	for i, c := range rc.Cells {
 		cj := cellJSON{Report: num.Floats(reps[i]), Beliefs: c.Beliefs}
-		if len(f.Labels) == 2 && c.Beliefs > 0 {
+		if c.Exact && c.Lo < c.Hi {
 			lo, hi := num.Float(c.Lo), num.Float(c.Hi)
 			cj.Lo, cj.Hi = &lo, &hi
 		}
@@ -368,6 +382,12 @@ func printTableSummary(w io.Writer, f *budget.Fit, rc *budget.Recheck, s *tableS
 		fmt.Fprintf(w, "wrote %s (%s)\n", s.Output.File, s.Output.Format)
 	}
 	return nil
+}
+
+// cellEnd writes a cell boundary to six decimals: the exact boundary is
+// offset by the tie tolerance, which is not worth showing.
+func cellEnd(x float64) string {
+	return strconv.FormatFloat(math.Round(x*1e6)/1e6+0, 'g', -1, 64)
 }
 
 // maxItemRows bounds the per-item listing; --json has every item.
@@ -414,8 +434,10 @@ func printItems(w io.Writer, f *budget.Fit, rc *budget.Recheck) error {
 		c := rc.Cells[i]
 		cell := "none on the grid"
 		switch {
-		case c.Beliefs > 0 && binary:
-			cell = fmt.Sprintf("[%s, %s]", table.FormatNumber(c.Lo), table.FormatNumber(c.Hi))
+		case c.Exact && c.Lo < c.Hi:
+			cell = fmt.Sprintf("(%s, %s)", cellEnd(c.Lo), cellEnd(c.Hi))
+		case c.Exact:
+			cell = "none"
 		case c.Beliefs > 0:
 			cell = fmt.Sprintf("%d of %d", c.Beliefs, rc.Beliefs)
 		}

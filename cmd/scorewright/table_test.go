@@ -210,3 +210,49 @@ func TestTableMenuFile(t *testing.T) {
 		t.Errorf("bad menu line: exit %d, %q", code, errs)
 	}
 }
+
+// A design file carries rule and budget. The dairy's three-way outlook
+// with the ranked probability rule, a mean payment of 40 at the reference
+// (0.25, 0.5, 0.25) and a floor of 5: by hand, H(ref) = c1(1-c1) + c2(1-c2)
+// with c = (0.25, 0.75) is 0.375, the largest effort (report "below" with
+// certainty, "above" happens) is 1 + 1 = 2, so B = (40 - 5)/(2 - 0.375)
+// and A = 5 + 2B (Epstein 1969's cumulative form, unnormalised).
+func TestTableDesignFileMeanPay(t *testing.T) {
+	dir := t.TempDir()
+	path := filepath.Join(dir, "dairy.toml")
+	os.WriteFile(path, []byte(`version = 1
+title = "Regional dairy: milk-yield outlook"
+outcomes = ["below", "near", "above"]
+ordered = true
+mode = "generator"
+preset = "ranked"
+formula = "csum(c*(1-c))"
+
+[budget]
+floor = 5
+mean_pay = 40
+reference = [0.25, 0.5, 0.25]
+step = 0.25
+unit = 0.01
+`), 0o644)
+	out, errs, code := tableRun(t, "--design", path, "--json")
+	var sum struct {
+		A, B         float64
+		ReferencePay float64 `json:"reference_pay"`
+		MinPay       float64 `json:"min_pay"`
+	}
+	if err := json.Unmarshal([]byte(out), &sum); err != nil || code != exitOK {
+		t.Fatalf("exit %d, %v, %s", code, err, errs)
+	}
+	B := 35 / 1.625
+	if d := sum.B - B; d*d > 1e-18 || (sum.A-5-2*B)*(sum.A-5-2*B) > 1e-18 || (sum.ReferencePay-40)*(sum.ReferencePay-40) > 1e-18 || sum.MinPay != 5 {
+		t.Errorf("summary %+v, want B = %g, A = %g, reference pay 40, smallest pay 5", sum, B, 5+2*B)
+	}
+	// Flags override the file: --cap replaces the file's mean_pay, so
+	// payments span [5, 50] exactly (B = 45/2 with efforts from 0 to 2).
+	out, errs, code = tableRun(t, "--design", path, "--cap", "50", "--json")
+	sum.B = 0
+	if err := json.Unmarshal([]byte(out), &sum); err != nil || code != exitOK || sum.B != 22.5 {
+		t.Errorf("--cap over a mean-pay design: exit %d, %v, B = %g, %s", code, err, sum.B, errs)
+	}
+}

@@ -108,18 +108,23 @@ func TestQuadraticBrierTable(t *testing.T) {
 	if math.Abs(f.Truthful.Min-75) > 1e-9 || math.Abs(f.Truthful.Max-100) > 1e-9 {
 		t.Errorf("truthful range [%g, %g], want [75, 100]", f.Truthful.Min, f.Truthful.Max)
 	}
+	// On the table, a forecaster with a belief in [0.45, 0.55] picks item
+	// 0.5, whose row (75, 75) is flat, and expects 75, the least; one who
+	// is certain expects 100 (derived by hand from the rows above).
+	if mp := rc.MenuPay; mp.Min != 75 || mp.Max != 100 || mp.MinBelief[0] < 0.45 || mp.MinBelief[0] > 0.55 {
+		t.Errorf("expected pay on the menu %+v, want 75 at 1/2 up to 100", mp)
+	}
 	if f.MaxPay != 100 || f.MinPay != 0 {
 		t.Errorf("buyer's worst case %g, smallest pay %g; want 100, 0", f.MaxPay, f.MinPay)
 	}
-	// Belief cells: for the quadratic rule the best menu item is the
-	// nearest one (D is squared distance), so item 0.7 is picked by the
-	// beliefs strictly between 0.65 and 0.75; on the 1/1000 grid that is
-	// 0.651..0.749 (derived by hand; 0.65 and 0.75 are ties). Rounding to
-	// whole units does not move these cells, because the rounded table
-	// still equals the exact one at every item (all values are integers).
+	// Belief cells, derived by hand: item 0.7 pays (91, 51), so a belief x
+	// expects 51 + 40x from it; item 0.6 (84, 64) gives 64 + 20x and item
+	// 0.8 (96, 36) gives 36 + 60x. They cross at x = 13/20 and x = 3/4, so
+	// the cell of 0.7 is the open interval (0.65, 0.75), up to the tie
+	// tolerance; the 1/1000 grid has 99 beliefs inside it (0.651..0.749).
 	c := rc.Cells[item(t, m, 0.7)]
-	if c.Beliefs != 99 || math.Abs(c.Lo-0.651) > 1e-12 || math.Abs(c.Hi-0.749) > 1e-12 {
-		t.Errorf("cell of 0.7: %+v, want 99 beliefs over [0.651, 0.749]", c)
+	if !c.Exact || c.Beliefs != 99 || math.Abs(c.Lo-0.65) > 1e-6 || math.Abs(c.Hi-0.75) > 1e-6 {
+		t.Errorf("cell of 0.7: %+v, want (0.65, 0.75) with 99 grid beliefs", c)
 	}
 }
 
@@ -132,6 +137,12 @@ func TestPayerOffMenu(t *testing.T) {
 	got := f.NewPayer().Pay(make([]float64, 2), []float64{0.73, 0.27})
 	if got[0] != 93 || got[1] != 47 {
 		t.Errorf("pay at 0.73: %v, want [93 47]", got)
+	}
+	// A forecaster who believes 0.73 and may only use the menu picks the
+	// nearest item, 0.7 (the quadratic rule's divergence is squared
+	// distance, and the unit-1 table equals the exact one at every item).
+	if i := f.BestItem([]float64{0.73, 0.27}); f.Menu.Reports[i][0] != 0.7 {
+		t.Errorf("best item for 0.73: %v", f.Menu.Reports[i])
 	}
 	pr := f.NewPayer()
 	dst := make([]float64, 2)
@@ -239,9 +250,29 @@ func TestCoarseRoundingTiesCaught(t *testing.T) {
 	if !contains(rc.Ties, i4) || !contains(rc.Ties, i6) {
 		t.Errorf("ties %v do not include items 0.4 and 0.6", rc.Ties)
 	}
+	// Identical rows: neither is ever the unique best, exactly.
+	if !contains(rc.NeverChosen, i4) || !contains(rc.NeverChosen, i6) {
+		t.Errorf("never chosen %v do not include items 0.4 and 0.6", rc.NeverChosen)
+	}
+	// Item 0.2 pays (25, 100): 100 - 75x, above item 0 (100 - 100x) for
+	// x > 0 and above item 0.4 (75) for x < 1/3 (derived by hand).
+	if c := rc.Cells[item(t, m, 0.2)]; math.Abs(c.Lo) > 1e-6 || math.Abs(c.Hi-1.0/3) > 1e-6 {
+		t.Errorf("cell of 0.2: %+v, want (0, 1/3)", c)
+	}
 	tb := f.Table(rc, Info{})
 	if len(tb.Meta.Warnings) == 0 || tb.Meta.Passed {
 		t.Errorf("a failed table carries no warning")
+	}
+}
+
+func TestTableWithoutRecheck(t *testing.T) {
+	f, err := FitRule(rule(t, "1 - sum(p^2)", 2), stepMenu(t, 2, 0.1, 0), design.Budget{Cap: 100, Unit: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	tb := f.Table(nil, Info{})
+	if tb.Meta.Passed || len(tb.Meta.Warnings) == 0 || tb.Meta.Verdict != "not re-checked" {
+		t.Errorf("an unchecked table reads %+v", tb.Meta)
 	}
 }
 
@@ -320,6 +351,8 @@ func TestRounding(t *testing.T) {
 		{7.3, 0, RoundNearest, 7.3},
 		{12, 5, RoundNearest, 10},
 		{12.5, 5, RoundNearest, 15},
+		{0.95, 0.3, RoundNearest, 0.9}, // 3 units of 0.3, written 0.9
+		{1234.5678, 0.25, RoundDown, 1234.5},
 	}
 	for _, c := range cases {
 		r, err := newRounder(c.unit, c.mode)
@@ -452,4 +485,57 @@ func TestRecheckCancelled(t *testing.T) {
 	if _, err := f.Recheck(context.Background(), RecheckSettings{Workers: 1, Progress: func(done, total int) { calls++ }}); err != nil || calls == 0 {
 		t.Errorf("progress called %d times, err %v", calls, err)
 	}
+}
+
+// The exact two-outcome cells agree with brute force: every belief on an
+// odd grid (step 1/997, unrelated to the menu) picks, by BestItem, an item
+// whose exact cell contains it, unless the belief sits on a tie.
+func TestBinaryCellsAgainstBruteForce(t *testing.T) {
+	for _, c := range []struct {
+		src  string
+		b    design.Budget
+		step float64
+	}{
+		{"-sum(p*ln(p))", design.Budget{Floor: 0, Cap: 50, Unit: 0.01, ReportFloor: 0.01}, 0.05},
+		{"1 - sum(p^2)", design.Budget{Floor: 0, Cap: 100, Unit: 5}, 0.05},
+		{"-sqrt(sum(p^2))", design.Budget{Floor: 10, Cap: 20, Unit: 0.25}, 0.1},
+	} {
+		f, rc := fit(t, rule(t, c.src, 2), stepMenu(t, 2, c.step, c.b.ReportFloor), c.b)
+		for g := 0; g <= 997; g++ {
+			x := float64(g) / 997
+			q := []float64{x, 1 - x}
+			j := f.BestItem(q)
+			cell := rc.Cells[j]
+			if cell.Lo < cell.Hi && x >= cell.Lo-1e-9 && x <= cell.Hi+1e-9 {
+				continue
+			}
+			// Not in j's cell: only allowed on a tie with another item.
+			_, second, bv, sv := top2(flat(f.Pays), 2, q)
+			if second < 0 || bv-sv > rc.Tolerance {
+				t.Errorf("%s: belief %g picks %v, outside its cell (%g, %g)", c.src, x, f.Menu.Reports[j], cell.Lo, cell.Hi)
+			}
+		}
+		// Conversely, a belief well inside a cell picks that cell's item.
+		for i, cell := range rc.Cells {
+			if !(cell.Lo < cell.Hi) {
+				continue
+			}
+			for g := 0; g <= 997; g++ {
+				x := float64(g) / 997
+				if x > cell.Lo+1e-6 && x < cell.Hi-1e-6 {
+					if j := f.BestItem([]float64{x, 1 - x}); j != i {
+						t.Errorf("%s: belief %g inside the cell of %v picks %v", c.src, x, f.Menu.Reports[i], f.Menu.Reports[j])
+					}
+				}
+			}
+		}
+	}
+}
+
+func flat(rows [][]float64) []float64 {
+	var out []float64
+	for _, r := range rows {
+		out = append(out, r...)
+	}
+	return out
 }

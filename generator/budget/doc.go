@@ -6,7 +6,9 @@
 //
 // An affine change of pay with B > 0 keeps a rule proper, so the fit
 // itself costs no honesty; a finite menu, rounding and a clamp can, and
-// the re-check measures by how much. Every verdict here is computed on a
-// stated grid of beliefs with a stated tolerance: it is evidence, not
-// proof.
+// the re-check measures by how much. The re-check compares every menu item
+// with every other, and for two outcomes finds the belief cells exactly;
+// what is searched over beliefs (cells for more outcomes, the truthful pay
+// range, a clamp's honesty gap) is computed on a stated grid with a stated
+// tolerance: evidence, not proof.
 package budget

@@ -2,6 +2,7 @@ package budget
 
 import (
 	"fmt"
+	"math"
 	"strconv"
 	"strings"
 
@@ -36,6 +37,9 @@ func (f *Fit) listItems(items []int) string {
 
 // Verdict says in one sentence what the re-check found.
 func (rc *Recheck) Verdict(f *Fit) string {
+	if rc.MinMarginItem < 0 {
+		return "not re-checked"
+	}
 	M := len(f.Menu.Reports)
 	where := ""
 	if rc.MinMarginRival >= 0 {
@@ -75,12 +79,19 @@ func (f *Fit) MenuDesc() string {
 	return d
 }
 
+// gridCaveat follows every finding that comes from a search over beliefs.
+const gridCaveat = "; a grid search: evidence, not proof"
+
 // Notes are the findings a table's record carries besides the verdict.
 func (f *Fit) Notes(rc *Recheck) []string {
 	tr := f.Truthful
+	formula := "A - B·H(q)"
+	if f.Clamp > 0 {
+		formula = "A - B·Phi(q, clamped q)"
+	}
 	notes := []string{
-		fmt.Sprintf("expected pay of a truthful forecaster, A - B·H(q) before rounding, ranges from %s (belief %s) to %s (belief %s), over %s",
-			table.FormatNumber(tr.Min), num.Format(tr.MinBelief), table.FormatNumber(tr.Max), num.Format(tr.MaxBelief), tr.Grid),
+		fmt.Sprintf("expected pay of a truthful forecaster under the exact rule, %s before rounding and menu, ranges from %s (belief %s) to %s (belief %s), over %s",
+			formula, table.FormatNumber(tr.Min), num.Format(tr.MinBelief), table.FormatNumber(tr.Max), num.Format(tr.MaxBelief), tr.Grid+gridCaveat),
 		fmt.Sprintf("buyer's worst case per forecast: %s (the largest payment in the table); the smallest is %s",
 			table.FormatNumber(f.MaxPay), table.FormatNumber(f.MinPay)),
 	}
@@ -88,8 +99,19 @@ func (f *Fit) Notes(rc *Recheck) []string {
 		notes = append(notes, fmt.Sprintf("rounding takes payments outside the budget: from %s to %s", table.FormatNumber(f.MinPay), table.FormatNumber(f.MaxPay)))
 	}
 	if rc != nil {
+		mp := rc.MenuPay
+		over := "over " + rc.Grid + gridCaveat
+		if mp.Exact {
+			over = "exactly (expected pay is linear in the belief)"
+		}
+		notes = append(notes, fmt.Sprintf("expected pay per forecast on this table, for a forecaster who picks the best menu item for the belief, ranges from %s (belief %s) to %s (belief %s), %s",
+			table.FormatNumber(mp.Min), num.Format(mp.MinBelief), table.FormatNumber(mp.Max), num.Format(mp.MaxBelief), over))
 		if len(rc.NeverChosen) > 0 {
-			notes = append(notes, fmt.Sprintf("%d menu items are the unique best report for no belief on the grid: %s (%s)", len(rc.NeverChosen), f.listItems(rc.NeverChosen), rc.Grid))
+			where := "on the grid (" + rc.Grid + gridCaveat + ")"
+			if mp.Exact {
+				where = "(exact)"
+			}
+			notes = append(notes, fmt.Sprintf("%d menu items are the unique best report for no belief %s: %s", len(rc.NeverChosen), where, f.listItems(rc.NeverChosen)))
 		}
 		if rc.TiedBeliefs > 0 {
 			notes = append(notes, fmt.Sprintf("%d of %d grid beliefs sit where two menu items tie for the best report (cell boundaries)", rc.TiedBeliefs, rc.Beliefs))
@@ -97,19 +119,30 @@ func (f *Fit) Notes(rc *Recheck) []string {
 		if g := rc.ClampGap; g != nil {
 			if g.Max > 0 {
 				notes = append(notes, fmt.Sprintf("clamp %s: honesty gap %s (exact currency: the most a forecaster gains by reporting a menu item instead of the belief itself, both paid by the clamped rule) at belief %s, best report %s; over %s",
-					short(f.Clamp), table.FormatNumber(g.Max), num.Format(g.Belief), num.Format(g.Best), g.Grid))
+					short(f.Clamp), table.FormatNumber(g.Max), num.Format(g.Belief), num.Format(g.Best), g.Grid+gridCaveat))
 			} else {
-				notes = append(notes, fmt.Sprintf("clamp %s: no honesty gap found over %s", short(f.Clamp), g.Grid))
+				notes = append(notes, fmt.Sprintf("clamp %s: no honesty gap found over %s", short(f.Clamp), g.Grid+gridCaveat))
 			}
 		}
 	}
 	return notes
 }
 
+// notChecked stands in for a missing re-check: it fails, so that a table
+// nobody re-checked says so.
+func notChecked() *Recheck {
+	return &Recheck{MinMargin: math.NaN(), MinMarginItem: -1, MinMarginRival: -1}
+}
+
 // Table builds the payment table of f with its record. A table whose
-// re-check failed carries a warning in its record, which every format
-// shows before anything else.
+// re-check failed (or that was not re-checked: rc nil) carries a warning
+// in its record, which every format shows before anything else.
 func (f *Fit) Table(rc *Recheck, info Info) *table.Table {
+	notes := f.Notes(rc)
+	checked := rc != nil
+	if !checked {
+		rc = notChecked()
+	}
 	rows := make([][]float64, len(f.Menu.Reports))
 	vals := make([][]float64, len(f.Pays))
 	for i := range rows {
@@ -126,12 +159,16 @@ func (f *Fit) Table(rc *Recheck, info Info) *table.Table {
 		Menu:     f.MenuDesc(), Payment: payment,
 		A: num.Float(f.A), B: num.Float(f.B),
 		Budget: f.BudgetDesc(), Rounding: f.RoundingDesc(),
+		Unit: num.Float(f.Unit), RoundingMode: f.Rounding, Floor: num.Float(f.Floor), Cap: num.Float(f.Cap),
 		Passed: rc.Passed, Verdict: rc.Verdict(f), MinMargin: num.Float(rc.MinMargin),
-		Notes:   f.Notes(rc),
+		Notes:   notes,
 		Version: info.Version, Date: info.Date,
-		Cautions: append([]string(nil), table.Caution...),
+		Cautions: table.Caution(),
 	}
-	if !rc.Passed {
+	switch {
+	case !checked:
+		meta.Warnings = []string{"this table was NOT re-checked after scaling and rounding; do not sign it before it is."}
+	case !rc.Passed:
 		meta.Warnings = []string{"this table FAILED the menu re-check after scaling and rounding and was exported only on request (--force): some forecasters would gain by not reporting their belief. Do not sign it as it stands."}
 	}
 	return &table.Table{

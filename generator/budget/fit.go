@@ -245,6 +245,23 @@ func (p *Payer) Pay(dst, report []float64) []float64 {
 	return dst
 }
 
+// BestItem returns the index of the menu item with the highest expected
+// payment on the rounded table for a forecaster whose belief is q (the
+// first, if several tie): the report a contract that only accepts menu
+// items should expect from that forecaster. It does not allocate.
+func (f *Fit) BestItem(q []float64) int {
+	if len(q) != len(f.Labels) {
+		panic(fmt.Sprintf("budget: belief has %d entries for %d outcomes", len(q), len(f.Labels)))
+	}
+	best, bv := -1, math.Inf(-1)
+	for i, row := range f.Pays {
+		if v := bregman.Dot(q, row); v > bv {
+			best, bv = i, v
+		}
+	}
+	return best
+}
+
 // beliefResolution is the largest K <= kmax whose simplex grid over n
 // outcomes has at most limit points.
 func beliefResolution(n, kmax int, limit float64) int {

@@ -14,8 +14,9 @@ import (
 // RecheckSettings tune Recheck. The zero value means the defaults.
 type RecheckSettings struct {
 	// Resolution is K for the belief grid of step 1/K used for the belief
-	// cells and the clamp audit; 0 picks 1000 for two outcomes and the
-	// finest grid up to 1/200 that keeps the work bounded for more.
+	// cells and the clamp audit; 0 picks, for two outcomes, 1000 or about
+	// ten beliefs per menu item, whichever is finer, and for more the
+	// finest grid up to 1/200 that keeps beliefs × items × n <= 5e7.
 	Resolution int
 	// Tolerance, in currency, below which two expected payments count as
 	// equal; 0 means 1e-9 × the largest payment (at least 1e-9).
@@ -59,16 +60,34 @@ type Recheck struct {
 	Tolerance float64
 	// ClampGap is the clamp's honesty gap, when the menu has a clamp.
 	ClampGap *ClampGap
+	// MenuPay is the range over grid beliefs of the expected payment of a
+	// forecaster who picks the best menu item for the belief, on the
+	// rounded table: what the buyer should expect to pay per forecast.
+	MenuPay PayRange
 }
 
-// Cell is the set of grid beliefs that pick one menu item.
+// PayRange is a range of expected payments over beliefs.
+type PayRange struct {
+	Min, Max             float64
+	MinBelief, MaxBelief []float64
+	// Exact is true when the range is computed exactly (two outcomes)
+	// rather than over the grid.
+	Exact bool
+}
+
+// Cell is the set of beliefs that pick one menu item as their unique best
+// report.
 type Cell struct {
 	// Beliefs is how many grid beliefs pick the item as unique best.
 	Beliefs int
-	// Lo and Hi bound the first outcome's probability over those beliefs
-	// (meaningful for two outcomes, where cells are intervals); NaN when
-	// no belief picks the item.
+	// Lo and Hi bound the first outcome's probability over the cell. For
+	// two outcomes they are exact (Exact is true): expected pay is linear
+	// in the belief, so the cell is the open interval (Lo, Hi) where the
+	// item's line lies above every other by more than the tolerance. For
+	// more outcomes they bound the grid beliefs in the cell. NaN when the
+	// cell is empty.
 	Lo, Hi float64
+	Exact  bool
 }
 
 // ClampGap measures what a clamp costs honesty: over beliefs q, the most a
@@ -107,7 +126,9 @@ func (f *Fit) Recheck(ctx context.Context, set RecheckSettings) (*Recheck, error
 	K := set.Resolution
 	if K <= 0 {
 		if n == 2 {
-			K = 1000
+			// About ten beliefs per item, at least 1/1000, within the
+			// same work bound as below.
+			K = max(1000, min(10*(M-1), int(5e7/float64(2*M))))
 		} else {
 			K = beliefResolution(n, 200, math.Max(100, math.Min(50000, 5e7/float64(M*n))))
 		}
@@ -119,6 +140,7 @@ func (f *Fit) Recheck(ctx context.Context, set RecheckSettings) (*Recheck, error
 		Grid: fmt.Sprintf("beliefs on a simplex grid of step 1/%d (%d points), tie tolerance %.3g", K, len(grid), tol),
 	}
 	best := make([]int, len(grid)) // -1: a tie
+	bestPay := make([]float64, len(grid))
 	total := M + len(grid)
 	err := parallel(ctx, total, set.Workers, set.Progress, func(t int) {
 		if t < M {
@@ -130,18 +152,18 @@ func (f *Fit) Recheck(ctx context.Context, set RecheckSettings) (*Recheck, error
 		if bv-sv <= tol && second >= 0 {
 			b = -1
 		}
-		best[t-M] = b
+		best[t-M], bestPay[t-M] = b, bv
 	})
 	if err != nil {
 		return nil, err
 	}
-	rc.MinMargin = math.Inf(1)
+	rc.MinMargin, rc.MinMarginItem, rc.MinMarginRival = rc.Margins[0], 0, rc.Rivals[0]
 	for i, mg := range rc.Margins {
 		if math.Abs(mg) <= tol {
 			// A tie reads as a tie, not as float noise.
 			mg, rc.Margins[i] = 0, 0
 		}
-		if mg < rc.MinMargin {
+		if mg < rc.MinMargin || i == 0 {
 			rc.MinMargin, rc.MinMarginItem, rc.MinMarginRival = mg, i, rc.Rivals[i]
 		}
 		switch {
@@ -153,6 +175,15 @@ func (f *Fit) Recheck(ctx context.Context, set RecheckSettings) (*Recheck, error
 	}
 	for i := range rc.Cells {
 		rc.Cells[i] = Cell{Lo: math.NaN(), Hi: math.NaN()}
+	}
+	rc.MenuPay = PayRange{Min: math.Inf(1), Max: math.Inf(-1)}
+	for g, v := range bestPay {
+		if v < rc.MenuPay.Min {
+			rc.MenuPay.Min, rc.MenuPay.MinBelief = v, grid[g]
+		}
+		if v > rc.MenuPay.Max {
+			rc.MenuPay.Max, rc.MenuPay.MaxBelief = v, grid[g]
+		}
 	}
 	for g, b := range best {
 		if b < 0 {
@@ -169,8 +200,11 @@ func (f *Fit) Recheck(ctx context.Context, set RecheckSettings) (*Recheck, error
 		}
 		c.Beliefs++
 	}
+	if n == 2 {
+		binaryCells(rc, pays, tol)
+	}
 	for i, c := range rc.Cells {
-		if c.Beliefs == 0 {
+		if c.Beliefs == 0 && !(c.Exact && c.Lo < c.Hi) {
 			rc.NeverChosen = append(rc.NeverChosen, i)
 		}
 	}
@@ -181,6 +215,67 @@ func (f *Fit) Recheck(ctx context.Context, set RecheckSettings) (*Recheck, error
 		}
 	}
 	return rc, nil
+}
+
+// binaryCells replaces the grid bounds of two-outcome cells with exact
+// ones, and the grid range of menu pay with the exact one. With belief x
+// in the first outcome, item j pays y_j(x) = b_j + a_j·x in expectation
+// (a_j = pay(j, 1) - pay(j, 2), b_j = pay(j, 2)); item j is the unique best
+// where y_j - y_i > tol for every other i, an intersection of half-lines.
+// The best expected pay is the upper envelope of the lines, convex in x,
+// so its range over [0, 1] is found at the envelope's corners: the ends
+// of the cells computed without tolerance, identical rows counted once.
+func binaryCells(rc *Recheck, pays []float64, tol float64) {
+	ends := []float64{0, 1}
+	for j := range rc.Cells {
+		c := &rc.Cells[j]
+		c.Exact = true
+		c.Lo, c.Hi = math.NaN(), math.NaN()
+		if lo, hi := lineCell(pays, j, tol, false); lo < hi {
+			c.Lo, c.Hi = lo, hi
+		}
+		if lo, hi := lineCell(pays, j, 0, true); lo < hi {
+			ends = append(ends, lo, hi)
+		}
+	}
+	mp := PayRange{Min: math.Inf(1), Max: math.Inf(-1), Exact: true}
+	for _, x := range ends {
+		q := []float64{x, 1 - x}
+		_, _, v, _ := top2(pays, 2, q)
+		if v < mp.Min {
+			mp.Min, mp.MinBelief = v, q
+		}
+		if v > mp.Max {
+			mp.Max, mp.MaxBelief = v, q
+		}
+	}
+	rc.MenuPay = mp
+}
+
+// lineCell returns the interval of x in [0, 1] where item j's expected pay
+// exceeds every other item's by more than tol (empty when lo >= hi). With
+// skipSame, items whose row equals j's are left out of the comparison.
+func lineCell(pays []float64, j int, tol float64, skipSame bool) (lo, hi float64) {
+	aj, bj := pays[2*j]-pays[2*j+1], pays[2*j+1]
+	lo, hi = 0, 1
+	for i := 0; 2*i < len(pays) && lo < hi; i++ {
+		if i == j || skipSame && pays[2*i] == pays[2*j] && pays[2*i+1] == pays[2*j+1] {
+			continue
+		}
+		da, db := aj-(pays[2*i]-pays[2*i+1]), bj-pays[2*i+1]
+		// Need db + da·x > tol.
+		switch {
+		case da == 0:
+			if !(db > tol) {
+				return 1, 0
+			}
+		case da > 0:
+			lo = math.Max(lo, (tol-db)/da)
+		default:
+			hi = math.Min(hi, (tol-db)/da)
+		}
+	}
+	return lo, hi
 }
 
 // expectedPay is sum_k q_k pays[j][k] over the flat n-column pay matrix.

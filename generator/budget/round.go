@@ -27,9 +27,11 @@ const snapUnits = 1e-6
 type rounder struct {
 	unit float64
 	mode string
-	// inv is 1/unit when that is a whole number (0.01 -> 100), so that
-	// k/inv gives the float nearest the decimal amount; 0 otherwise.
-	inv float64
+	// pow10 is 10^d for the d decimals that write every multiple of the
+	// unit, or 0 when there are none; amounts are snapped to d decimals
+	// so that k·0.3 reads back as the decimal it is (0.9, not
+	// 0.8999999999999999).
+	pow10 float64
 }
 
 func newRounder(unit float64, mode string) (rounder, error) {
@@ -45,10 +47,8 @@ func newRounder(unit float64, mode string) (rounder, error) {
 		return rounder{}, fmt.Errorf("rounding: unit %g must be a positive number (or 0 for none)", unit)
 	}
 	r := rounder{unit: unit, mode: mode}
-	if unit > 0 && unit < 1 {
-		if inv := math.Round(1 / unit); math.Abs(inv*unit-1) < 1e-12 {
-			r.inv = inv
-		}
+	if d := r.decimals(); d >= 0 {
+		r.pow10 = math.Pow(10, float64(d))
 	}
 	return r, nil
 }
@@ -77,10 +77,12 @@ func (r rounder) round(x float64) float64 {
 			v = math.Round(v)
 		}
 	}
-	if r.inv > 0 {
-		return v / r.inv
+	amount := v * r.unit
+	if r.pow10 > 0 {
+		// Division by a power of ten gives the float nearest the decimal.
+		amount = math.Round(amount*r.pow10) / r.pow10
 	}
-	return v * r.unit
+	return amount
 }
 
 // decimals is the number of decimals that writes every multiple of the

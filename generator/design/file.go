@@ -102,7 +102,26 @@ func (d *Design) Validate() error {
 			return errors.New("interval: point designs need interval = [lo, hi] with lo < hi")
 		}
 	}
-	return d.Budget.Validate()
+	return d.ValidateBudget()
+}
+
+// ValidateBudget checks the budget as this design reads it: in point mode
+// the menu step is in the units of the interval (at most its width), in
+// every other mode a probability step.
+func (d *Design) ValidateBudget() error {
+	if d.Mode != ModePoint {
+		return d.Budget.Validate()
+	}
+	b := d.Budget
+	step := b.Step
+	b.Step = 0
+	if err := b.Validate(); err != nil {
+		return err
+	}
+	if math.IsNaN(step) || step < 0 || len(d.Interval) == 2 && step > d.Interval[1]-d.Interval[0] {
+		return fmt.Errorf("budget.step: %g; a point-forecast menu step must be positive and at most the interval's width", step)
+	}
+	return nil
 }
 
 // Validate checks budget fields for values that can never work.

@@ -2,6 +2,7 @@ package formula
 
 import (
 	"math"
+	"strings"
 	"testing"
 )
 
@@ -34,6 +35,11 @@ func FuzzParse(f *testing.F) {
 		}
 		printed := String(file.Expr)
 		again, err := Parse(printed)
+		if err != nil && strings.Contains(err.Error(), "nested too deeply") {
+			// The fully parenthesised form nests deeper than the source;
+			// the depth guard is a resource limit, not a grammar rule.
+			return
+		}
 		if err != nil {
 			t.Fatalf("printed form %q of %q does not parse: %v", printed, src, err)
 		}

@@ -30,6 +30,7 @@ const (
 	// trianglePanelHeight makes a third of the width show the triangle's
 	// x range 1.2 and y range 1.1 at about the same scale.
 	trianglePanelHeight = 6 * vg.Centimeter
+	slicePanelHeight    = 7 * vg.Centimeter
 	metaFontSize        = 6.5
 	metaWrap            = 130 // characters per metadata line
 	panelCols           = 3
@@ -80,9 +81,12 @@ func (t *Table) writeFigure(w io.Writer, format string) error {
 	lineH := sty.Height("Ag") * 1.25
 	textH := lineH*vg.Length(len(lines)) + vg.Centimeter/2
 	ph := panelHeight
-	if n == 3 {
+	switch {
+	case n == 3:
 		// Keep the simplex triangle close to equilateral.
 		ph = trianglePanelHeight
+	case n > 3:
+		ph = slicePanelHeight
 	}
 	height := ph*vg.Length(rows) + textH
 
@@ -192,6 +196,9 @@ func (t *Table) binaryPlot() (*plot.Plot, error) {
 		p.Legend.Add(t.ValueHeader(k), line, points)
 	}
 	p.Add(plotter.NewGrid())
+	// Headroom above the curves for the legend, which would otherwise sit
+	// on the curve that starts high at the left edge.
+	p.Y.Max += 0.25 * (p.Y.Max - p.Y.Min)
 	return p, nil
 }
 

@@ -16,11 +16,14 @@ type Kind string
 // KindMoney: values are payments in currency.
 const KindMoney Kind = "money"
 
-// Caution is the line every export carries.
-var Caution = []string{
-	"scorewright checks mathematics, not law.",
-	"Payment schemes (lottery-style payments especially) can be regulated, for example as gambling, wages or prizes.",
-	"Have any contract that uses this table reviewed by qualified counsel.",
+// Caution returns the caution every export carries, a fresh slice each
+// call so that a transform can append its own line.
+func Caution() []string {
+	return []string{
+		"scorewright checks mathematics, not law.",
+		"Payment schemes (lottery-style payments especially) can be regulated, for example as gambling, wages or prizes.",
+		"Have any contract that uses this table reviewed by qualified counsel.",
+	}
 }
 
 // Table is a payment table with its record.
@@ -43,7 +46,9 @@ type Table struct {
 }
 
 // Meta is the metadata block of an export. Every field is written by every
-// format.
+// format; the machine-readable numbers (Unit, RoundingMode, Floor, Cap) go
+// to JSON as numbers and to the other formats inside the Budget and
+// Rounding sentences.
 type Meta struct {
 	Title    string             `json:"title,omitempty"`
 	Formula  string             `json:"formula"`
@@ -59,7 +64,11 @@ type Meta struct {
 	// Budget states what the fit aimed at.
 	Budget string `json:"budget"`
 	// Rounding states the unit and mode.
-	Rounding string `json:"rounding"`
+	Rounding     string    `json:"rounding"`
+	Unit         num.Float `json:"unit"`
+	RoundingMode string    `json:"rounding_mode"`
+	Floor        num.Float `json:"floor"`
+	Cap          num.Float `json:"cap"`
 	// Passed is the verdict of the re-check after scaling and rounding.
 	Passed bool `json:"recheck_passed"`
 	// Verdict explains the re-check in one sentence.
@@ -93,7 +102,7 @@ func (m *Meta) Fields() []Field {
 		add("WARNING", w)
 	}
 	add("title", m.Title)
-	add("formula", m.Formula)
+	add("formula", formulaLine(m.Formula))
 	add("preset", m.Preset)
 	add("parameters", formatParams(m.Params))
 	add("outcomes", strings.Join(m.Outcomes, ", "))
@@ -118,6 +127,18 @@ func (m *Meta) Fields() []Field {
 		add("caution", c)
 	}
 	return f
+}
+
+// formulaLine writes a formula of several lines (parameter lines, then
+// the expression) on one line, lines separated by "; ", comments kept.
+func formulaLine(src string) string {
+	var lines []string
+	for _, l := range strings.Split(src, "\n") {
+		if l = strings.TrimSpace(l); l != "" {
+			lines = append(lines, l)
+		}
+	}
+	return strings.Join(lines, "; ")
 }
 
 func formatParams(p map[string]float64) string {

@@ -129,6 +129,7 @@ func TestCSVRoundTrip(t *testing.T) {
 	tables := map[string]*table.Table{
 		"unit 1":    brier(t),
 		"unit 0.01": build(t, "-sum(p*ln(p))", []string{"frost", "clear"}, 0.05, design.Budget{Floor: 0, Cap: 50, Unit: 0.01, ReportFloor: 0.01}),
+		"unit 0.3":  build(t, "1 - sum(p^2)", []string{"frost", "clear"}, 0.05, design.Budget{Floor: 0, Cap: 10, Unit: 0.3}),
 		"unrounded": build(t, "-sum(p*ln(p))", []string{"below", "near", "above"}, 0.25, design.Budget{Floor: 3, Cap: 7.5, ReportFloor: 0.01}),
 	}
 	for name, tb := range tables {
@@ -196,6 +197,15 @@ func TestFigures(t *testing.T) {
 		}
 		if svg := render(t, tb, "svg"); !bytes.Contains(svg[:min(200, len(svg))], []byte("<svg")) {
 			t.Errorf("%s: svg starts with %q", name, svg[:min(80, len(svg))])
+		}
+	}
+}
+
+func TestMultiLineFormula(t *testing.T) {
+	tb := build(t, "g = 3\n(1 - sum(p^g)) / (g - 1)", []string{"frost", "clear"}, 0.1, design.Budget{Floor: 0, Cap: 10})
+	for _, format := range []string{"csv", "md", "tex"} {
+		if s := string(render(t, tb, format)); !strings.Contains(s, "g = 3; (1 - sum(p") {
+			t.Errorf("%s: the formula's lines run together", format)
 		}
 	}
 }

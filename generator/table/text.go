@@ -12,7 +12,7 @@ import (
 )
 
 // Formats lists every export format, text formats first.
-var Formats = []string{"csv", "md", "json", "tex", "svg", "png", "pdf"}
+func Formats() []string { return []string{"csv", "md", "json", "tex", "svg", "png", "pdf"} }
 
 // IsFigure reports whether format is a figure (binary or drawing) rather
 // than a text table.
@@ -39,7 +39,7 @@ func (t *Table) Write(w io.Writer, format string) error {
 	case "svg", "png", "pdf":
 		err = t.writeFigure(&buf, format)
 	default:
-		return fmt.Errorf("table: unknown format %q; one of %s", format, strings.Join(Formats, ", "))
+		return fmt.Errorf("table: unknown format %q; one of %s", format, strings.Join(Formats(), ", "))
 	}
 	if err != nil {
 		return err

@@ -1,0 +1,182 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"text/tabwriter"
+
+	"gonum.org/v1/gonum/floats"
+
+	"scorewright/generator/budget"
+	"scorewright/generator/design"
+	"scorewright/generator/num"
+	"scorewright/generator/risk"
+)
+
+const distortUsage = "RULE BUDGET --utility crra:R|cara:A|linear [--wealth W] [--belief q1,q2,...] [--json]\n\nRULE: " + ruleUsage + "\nBUDGET: " + budgetUsage
+
+type distortPoint struct {
+	Belief []num.Float `json:"belief"`
+	Report []num.Float `json:"report"`
+	// Size is max_k |report_k - belief_k| in probability points.
+	Size num.Float `json:"points"`
+}
+
+type distortJSON struct {
+	Utility     string         `json:"utility"`
+	Wealth      float64        `json:"wealth"`
+	A           num.Float      `json:"A"`
+	B           num.Float      `json:"B"`
+	Belief      []num.Float    `json:"belief"`
+	Report      []num.Float    `json:"report"`
+	Size        num.Float      `json:"points"`
+	MenuReport  []num.Float    `json:"menu_report"`
+	ExpectedPay num.Float      `json:"expected_pay"`
+	TruthfulPay num.Float      `json:"truthful_pay"`
+	Status      string         `json:"status"`
+	Curve       []distortPoint `json:"curve"`
+	Largest     distortPoint   `json:"largest"`
+	// Along names the curve's beliefs: "event probability" (n = 2) or
+	// segments from the uniform belief toward each outcome.
+	Along string   `json:"along"`
+	Notes []string `json:"notes"`
+}
+
+func runDistort(e *env, args []string) error {
+	fs := newFlags("distort", distortUsage)
+	rf := addRuleFlags(fs)
+	bf := addBudgetFlags(fs)
+	utility := fs.String("utility", "", "the forecaster's utility of money: crra:R (relative risk aversion R), cara:A (absolute risk aversion A) or linear")
+	wealth := fs.Float64("wealth", 0, "initial wealth W; utility is of W + pay")
+	belief := fs.String("belief", "", "the forecaster's belief q1,q2,... (default: the budget's reference belief, else uniform)")
+	asJSON := fs.Bool("json", false, "print JSON")
+	if err := parseFlags(e, fs, distortUsage, args, false); err != nil {
+		return err
+	}
+	if *utility == "" {
+		return usagef("--utility is required: crra:R, cara:A or linear")
+	}
+	u, err := risk.ParseUtility(*utility)
+	if err != nil {
+		return usagef("--utility: %v", err)
+	}
+	if math.IsNaN(*wealth) || math.IsInf(*wealth, 0) {
+		return usagef("--wealth %g is not a finite number", *wealth)
+	}
+	d, err := rf.design()
+	if err != nil {
+		return err
+	}
+	if d.Mode == design.ModePoint {
+		return usagef("distort works on rules over outcomes; it does not take point-forecast designs")
+	}
+	if err := bf.apply(fs, d); err != nil {
+		return err
+	}
+	rule, err := categoricalRule(d)
+	if err != nil {
+		return err
+	}
+	n := rule.Outcomes()
+	if !(d.Budget.Step > 0) {
+		return usagef("the report menu is missing: give --step S (e.g. 0.05; 1/K for a simplex grid when n > 2)")
+	}
+	menu, err := budget.StepMenu(n, d.Budget.Step, d.Budget.ReportFloor)
+	if err != nil {
+		return usagef("%v", err)
+	}
+	fit, err := budget.FitRule(rule, menu, d.Budget)
+	var ue *budget.UnboundedError
+	if errors.As(err, &ue) && ue.AtZero {
+		return usagef("%v; give --report-floor P (e.g. 0.01) so that every report gives each outcome at least P", err)
+	} else if err != nil {
+		return fitError(err)
+	}
+	solver, err := risk.NewSolver(rule, risk.Contract{A: fit.A, B: fit.B, MinPay: math.Min(fit.Floor, fit.MinPay), ReportFloor: d.Budget.ReportFloor}, u, *wealth)
+	if err != nil {
+		return usagef("%v", err)
+	}
+	q := d.Budget.Reference
+	if *belief != "" {
+		if q, err = num.ParseDistribution(*belief, n); err != nil {
+			return usagef("--belief: %v", err)
+		}
+	}
+	if q == nil {
+		q = make([]float64, n)
+		for i := range q {
+			q[i] = 1 / float64(n)
+		}
+	}
+	for _, v := range q {
+		if v < d.Budget.ReportFloor {
+			return usagef("--belief %s gives an outcome less than the report floor %g", num.Format(q), d.Budget.ReportFloor)
+		}
+	}
+	best, err := solver.Best(q)
+	if err != nil {
+		return err
+	}
+	pick := menu.Reports[solver.BestOf(q, fit.Pays)]
+
+	var beliefs [][]float64
+	along := "event probability, step 0.01"
+	if n == 2 {
+		beliefs = risk.BinaryBeliefs(0.01, d.Budget.ReportFloor)
+	} else {
+		all, _ := risk.DirectionBeliefs(n, 10)
+		for _, b := range all {
+			if floats.Min(b) >= d.Budget.ReportFloor {
+				beliefs = append(beliefs, b)
+			}
+		}
+		along = fmt.Sprintf("segments from the uniform belief toward each of the %d outcomes, tenths of the way, beliefs below the report floor left out", n)
+	}
+	curve, err := solver.Distortion(context.Background(), beliefs, nil)
+	if err != nil {
+		return err
+	}
+	out := distortJSON{Utility: u.String(), Wealth: *wealth, A: num.Float(fit.A), B: num.Float(fit.B),
+		Belief: num.Floats(best.Belief), Report: num.Floats(best.Report), Size: num.Float(best.Size), MenuReport: num.Floats(pick),
+		ExpectedPay: num.Float(best.ExpectedPay), TruthfulPay: num.Float(best.TruthfulPay), Status: best.Status,
+		Largest: point(curve.Largest), Along: along}
+	for _, p := range curve.Points {
+		out.Curve = append(out.Curve, point(p))
+	}
+	if u.Kind == risk.CARA {
+		out.Notes = append(out.Notes, "with CARA utility initial wealth does not change the report")
+	}
+	out.Notes = append(out.Notes,
+		"the best report is over all reports at the exact pay A - B·effort; a forecaster held to the menu picks the menu item whose rounded payments in the table give the largest expected utility (the menu pick)",
+		"paying a fixed prize with probability (pay - floor)/(cap - floor) instead of money (table --lottery) makes the truthful report best for any expected-utility maximiser",
+	)
+	if *asJSON {
+		return writeJSON(e.stdout, out)
+	}
+	fmt.Fprintf(e.stdout, "utility: %s of initial wealth %g plus pay\n", u, *wealth)
+	fmt.Fprintf(e.stdout, "pay = %.6g - %.6g * effort (fitted to the budget on the menu: %s)\n", fit.A, fit.B, menu.Desc)
+	fmt.Fprintf(e.stdout, "belief %s: best report %s, %.3g probability points away; menu pick %s\n", num.Format(best.Belief), num.Format(best.Report), best.Size, num.Format(pick))
+	fmt.Fprintf(e.stdout, "expected pay %.6g against %.6g for the truthful report: what the forecaster gives up in expected pay for the risk they prefer\n", best.ExpectedPay, best.TruthfulPay)
+	fmt.Fprintf(e.stdout, "distortion curve over %d beliefs (%s): largest %.3g points, belief %s -> report %s\n", len(curve.Points), along, curve.Largest.Size, num.Format(curve.Largest.Belief), num.Format(curve.Largest.Report))
+	tw := tabwriter.NewWriter(e.stdout, 0, 4, 2, ' ', 0)
+	fmt.Fprintln(tw, "  belief\treport\tpoints")
+	every := max(1, len(curve.Points)/12)
+	for i, p := range curve.Points {
+		if i%every == 0 || i == len(curve.Points)-1 {
+			fmt.Fprintf(tw, "  %s\t%s\t%.3g\n", num.Format(p.Belief), num.Format(p.Report), p.Size)
+		}
+	}
+	if err := tw.Flush(); err != nil {
+		return err
+	}
+	for _, n := range out.Notes {
+		fmt.Fprintln(e.stdout, "note:", n)
+	}
+	return nil
+}
+
+func point(r risk.Result) distortPoint {
+	return distortPoint{num.Floats(r.Belief), num.Floats(r.Report), num.Float(r.Size)}
+}

@@ -1,0 +1,410 @@
+package main
+
+// Point forecasts of a mean in every command that takes a rule: the check,
+// audit, table and eval commands call these when the design is in point
+// mode (--interval LO,HI).
+
+import (
+	"bytes"
+	"context"
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+	"text/tabwriter"
+
+	"scorewright/generator/design"
+	"scorewright/generator/formula"
+	"scorewright/generator/num"
+	gpoint "scorewright/generator/point"
+	"scorewright/generator/safefile"
+	"scorewright/presets"
+	vpoint "scorewright/verify/point"
+)
+
+// applyPointPreset fills a point design from a point-forecast preset; an
+// empty name leaves the design alone.
+func applyPointPreset(d *design.Design, name string) error {
+	if name == "" {
+		return nil
+	}
+	p, err := presets.Lookup(name)
+	if err != nil {
+		return usagef("--preset: %v", err)
+	}
+	if p.Kind != presets.KindPoint {
+		return usagef("preset %q is a %s preset; with --interval use a point-forecast preset (%s)", name, p.Kind, strings.Join(pointPresetNames(), ", "))
+	}
+	d.Preset, d.Formula = name, p.Formula
+	return nil
+}
+
+func pointPresetNames() []string {
+	var names []string
+	for _, p := range presets.All() {
+		if p.Kind == presets.KindPoint {
+			names = append(names, p.Name)
+		}
+	}
+	return names
+}
+
+// pointGenerator compiles a point-mode design.
+func pointGenerator(d *design.Design) (*gpoint.Generator, error) {
+	if d.Mode != design.ModePoint || len(d.Interval) != 2 {
+		return nil, usagef("this needs a point-forecast design (--interval LO,HI)")
+	}
+	g, err := gpoint.New(d.Formula, d.Interval[0], d.Interval[1], gpoint.Options{Params: d.Params})
+	if _, ok := err.(*formula.Error); ok {
+		return nil, formulaError("point-forecast generator", err)
+	} else if err != nil {
+		return nil, usagef("%v", err)
+	}
+	return g, nil
+}
+
+// pointCandidates are the point presets an audited payout is compared with.
+func pointCandidates(lo, hi float64) []vpoint.Candidate {
+	var out []vpoint.Candidate
+	for _, p := range presets.All() {
+		if p.Kind != presets.KindPoint {
+			continue
+		}
+		if g, err := gpoint.New(p.Formula, lo, hi, gpoint.Options{}); err == nil {
+			out = append(out, vpoint.Candidate{Name: p.Name, Gen: g})
+		}
+	}
+	return out
+}
+
+// parseOutcomeDistribution reads "y1,y2,..." (equally likely) or
+// "y1:w1,y2:w2,..." (weights summing to 1).
+func parseOutcomeDistribution(s string) (ys, ws []float64, err error) {
+	parts := strings.Split(s, ",")
+	weighted := strings.Contains(s, ":")
+	for i, p := range parts {
+		yv, wv, hasW := strings.Cut(strings.TrimSpace(p), ":")
+		if hasW != weighted {
+			return nil, nil, fmt.Errorf("entry %d: give weights for every outcome (y:w) or for none", i+1)
+		}
+		y, err := strconv.ParseFloat(strings.TrimSpace(yv), 64)
+		if err != nil || math.IsNaN(y) || math.IsInf(y, 0) {
+			return nil, nil, fmt.Errorf("entry %d: %q is not a finite number", i+1, yv)
+		}
+		w := 1 / float64(len(parts))
+		if hasW {
+			if w, err = strconv.ParseFloat(strings.TrimSpace(wv), 64); err != nil || !(w >= 0 && w <= 1) {
+				return nil, nil, fmt.Errorf("entry %d: weight %q is not a number in [0, 1]", i+1, wv)
+			}
+		}
+		ys, ws = append(ys, y), append(ws, w)
+	}
+	if err := num.CheckDistribution(ws, num.SimplexTolerance); err != nil {
+		return nil, nil, fmt.Errorf("weights: %v", err)
+	}
+	return ys, ws, nil
+}
+
+type pointEvalJSON struct {
+	Interval         []float64   `json:"interval"`
+	Report           []num.Float `json:"report"`
+	Entropy          num.Float   `json:"entropy"`
+	Derivative       num.Float   `json:"derivative"`
+	SecondDerivative num.Float   `json:"second_derivative"`
+	Outcomes         []num.Float `json:"outcomes,omitempty"`
+	Weights          []num.Float `json:"weights,omitempty"`
+	Effort           []num.Float `json:"effort,omitempty"`
+	Expected         *num.Float  `json:"expected_effort,omitempty"`
+	Mean             *num.Float  `json:"mean,omitempty"`
+	AtMean           *num.Float  `json:"expected_effort_at_mean,omitempty"`
+	Notes            []string    `json:"notes,omitempty"`
+}
+
+// runEvalPoint is eval for a point design: phi and its derivatives at the
+// report x, and with --belief y1,y2,... (or y:w pairs) the effort
+// D(y, x) of each outcome, the expected effort and that of the mean.
+func runEvalPoint(e *env, d *design.Design, report, belief string, asJSON bool) error {
+	g, err := pointGenerator(d)
+	if err != nil {
+		return err
+	}
+	if report == "" {
+		return usagef("--report X is required (the point forecast)")
+	}
+	x, err := strconv.ParseFloat(strings.TrimSpace(report), 64)
+	if err != nil {
+		return usagef("--report: %q is not a number; a point forecast is one number", report)
+	}
+	if x < g.Lo || x > g.Hi {
+		return usagef("--report %g is outside the interval [%g, %g]", x, g.Lo, g.Hi)
+	}
+	ev := g.NewEvaluator()
+	phi, d1, d2 := ev.Derivatives(x)
+	out := pointEvalJSON{Interval: d.Interval, Report: num.Floats([]float64{x}), Entropy: num.Float(phi), Derivative: num.Float(d1), SecondDerivative: num.Float(d2)}
+	if belief != "" {
+		ys, ws, err := parseOutcomeDistribution(belief)
+		if err != nil {
+			return usagef("--belief: %v", err)
+		}
+		for _, y := range ys {
+			if y < g.Lo || y > g.Hi {
+				return usagef("--belief: outcome %g is outside the interval [%g, %g]", y, g.Lo, g.Hi)
+			}
+			out.Effort = append(out.Effort, num.Float(ev.Divergence(y, x)))
+		}
+		m := gpoint.Mean(ys, ws)
+		ex, mf, am := num.Float(ev.Expected(x, ys, ws)), num.Float(m), num.Float(ev.Expected(m, ys, ws))
+		out.Outcomes, out.Weights, out.Expected, out.Mean, out.AtMean = num.Floats(ys), num.Floats(ws), &ex, &mf, &am
+	}
+	if d2 > 0 {
+		out.Notes = append(out.Notes, fmt.Sprintf("phi''(%g) = %g > 0: phi is not concave here, so the mean need not be the best report", x, d2))
+	}
+	for _, v := range append([]num.Float{out.Entropy, out.Derivative}, out.Effort...) {
+		if f := float64(v); math.IsNaN(f) || math.IsInf(f, 0) {
+			out.Notes = append(out.Notes, fmt.Sprintf("a value is %v at report %g; the rule is not finite there", f, x))
+			break
+		}
+	}
+	if asJSON {
+		return writeJSON(e.stdout, out)
+	}
+	tw := tabwriter.NewWriter(e.stdout, 0, 4, 2, ' ', 0)
+	fmt.Fprintf(tw, "report x\t%.10g (interval [%g, %g])\n", x, g.Lo, g.Hi)
+	fmt.Fprintf(tw, "phi(x), phi'(x), phi''(x)\t%.10g, %.10g, %.10g\n", phi, d1, d2)
+	for j, y := range out.Outcomes {
+		fmt.Fprintf(tw, "effort D(%g, x)\t%.10g (weight %.4g)\n", float64(y), float64(out.Effort[j]), float64(out.Weights[j]))
+	}
+	if out.Expected != nil {
+		fmt.Fprintf(tw, "expected effort\t%.10g\n", float64(*out.Expected))
+		fmt.Fprintf(tw, "mean of the belief\t%.10g, expected effort there %.10g\n", float64(*out.Mean), float64(*out.AtMean))
+	}
+	if err := tw.Flush(); err != nil {
+		return err
+	}
+	for _, n := range out.Notes {
+		fmt.Fprintln(e.stdout, "note:", n)
+	}
+	return nil
+}
+
+// runCheckPoint is check for a point design (--interval LO,HI). It
+// returns errFailed after printing when a check fails.
+func runCheckPoint(e *env, d *design.Design, vf *verifyFlags) error {
+	g, err := pointGenerator(d)
+	if err != nil {
+		return err
+	}
+	s, err := pointSettings(e, vf)
+	if err != nil {
+		return err
+	}
+	ctx, stop := interruptible()
+	defer stop()
+	rep, err := vpoint.CheckGenerator(ctx, g, s)
+	if err != nil {
+		return usagef("check: %v", err)
+	}
+	return printPointReport(e, rep, vf.asJSON)
+}
+
+// pointSettings maps check's and audit's flags to the point checks.
+func pointSettings(e *env, vf *verifyFlags) (vpoint.Settings, error) {
+	vs, err := vf.settings(e)
+	if err != nil {
+		return vpoint.Settings{}, err
+	}
+	s := vpoint.Settings{Resolution: vs.Resolution, Tolerance: vs.Tolerance}
+	if vs.Progress != nil {
+		s.Progress = func(done, total int) { vs.Progress(int64(done), int64(total)) }
+	}
+	return s, nil
+}
+
+// addPointAuditFlag registers audit's --interval; the audit command calls
+// runAuditPoint when it is set.
+func addPointAuditFlag(fs *flag.FlagSet) *string {
+	return fs.String("interval", "", "audit a point-forecast payout pay(x, y) on [LO, HI] (x the report, y the outcome) instead of --outcomes")
+}
+
+// runAuditPoint is audit for a point-forecast payout pay(x, y) on the
+// interval "LO,HI".
+func runAuditPoint(e *env, payout, interval string, params map[string]float64, vf *verifyFlags) error {
+	iv, err := num.ParseVector(interval)
+	if err != nil || len(iv) != 2 || !(iv[0] < iv[1]) || math.IsInf(iv[0], 0) || math.IsInf(iv[1], 0) {
+		return usagef("--interval wants LO,HI with LO < HI, got %q", interval)
+	}
+	if payout == "" {
+		return usagef("--payout EXPR in x (the report) and y (the outcome) is required")
+	}
+	if len(params) == 0 {
+		params = nil
+	}
+	p, err := vpoint.NewPayout(payout, params)
+	if _, ok := err.(*formula.Error); ok {
+		return formulaError("payout", err)
+	} else if err != nil {
+		return usagef("%v", err)
+	}
+	s, err := pointSettings(e, vf)
+	if err != nil {
+		return err
+	}
+	ctx, stop := interruptible()
+	defer stop()
+	rep, err := vpoint.AuditPayout(ctx, p, iv[0], iv[1], s, pointCandidates(iv[0], iv[1]))
+	if err != nil {
+		return usagef("audit: %v", err)
+	}
+	return printPointReport(e, rep, vf.asJSON)
+}
+
+type pointCheckJSON struct {
+	Verdict    string             `json:"verdict"`
+	Grid       vpoint.Grid        `json:"grid"`
+	Checks     []pointCheckOut    `json:"checks"`
+	Gap        *pointGapOut       `json:"gap,omitempty"`
+	Identified *vpoint.Identified `json:"identified,omitempty"`
+	Notes      []string           `json:"notes,omitempty"`
+}
+
+type pointCheckOut struct {
+	Name   string     `json:"name"`
+	Passed bool       `json:"passed"`
+	Worst  num.Float  `json:"worst"`
+	At     *vpoint.At `json:"at,omitempty"`
+	What   string     `json:"what"`
+}
+
+type pointGapOut struct {
+	Max        num.Float `json:"max"`
+	Outcomes   []float64 `json:"outcomes"`
+	Weights    []float64 `json:"weights"`
+	Mean       num.Float `json:"mean"`
+	BestReport num.Float `json:"best_report"`
+}
+
+func printPointReport(e *env, rep *vpoint.Report, asJSON bool) error {
+	if asJSON {
+		out := pointCheckJSON{Verdict: rep.Verdict, Grid: rep.Grid, Identified: rep.Identified, Notes: rep.Notes}
+		for _, c := range rep.Checks {
+			out.Checks = append(out.Checks, pointCheckOut{c.Name, c.Passed, num.Float(c.Worst), c.At, c.What})
+		}
+		if g := rep.Gap; g != nil {
+			out.Gap = &pointGapOut{num.Float(g.Max), g.Outcomes, g.Weights, num.Float(g.Mean), num.Float(g.BestReport)}
+		}
+		if err := writeJSON(e.stdout, out); err != nil {
+			return err
+		}
+	} else {
+		fmt.Fprintf(e.stdout, "verdict: %s\n", rep.Verdict)
+		fmt.Fprintf(e.stdout, "grid: [%g, %g], resolution %d (%d reports), tolerance %g\n", rep.Grid.Lo, rep.Grid.Hi, rep.Grid.Resolution, rep.Grid.Points, rep.Grid.Tolerance)
+		tw := tabwriter.NewWriter(e.stdout, 0, 4, 2, ' ', 0)
+		for _, c := range rep.Checks {
+			mark := "pass"
+			if !c.Passed {
+				mark = "FAIL"
+			}
+			at := ""
+			if c.At != nil && len(c.At.Report) > 0 {
+				at = fmt.Sprintf("at report %.6g", c.At.Report[0])
+				if len(c.At.Outcomes) > 0 {
+					at += ", outcomes " + num.Format(c.At.Outcomes)
+				}
+				if len(c.At.Weights) > 0 {
+					at += " weighted " + num.Format(c.At.Weights)
+				}
+			}
+			fmt.Fprintf(tw, "%s\t%s\t%.4g\t%s\n", mark, c.Name, c.Worst, at)
+			fmt.Fprintf(tw, "\t\t\t  (%s)\n", c.What)
+		}
+		if err := tw.Flush(); err != nil {
+			return err
+		}
+		if id := rep.Identified; id != nil && id.OutcomeTerm {
+			fmt.Fprintf(e.stdout, "identified: g(y) - %.6g * (effort of preset %s), with a term g in the outcome alone that changes no incentive\n", id.Scale, id.Preset)
+		} else if id != nil {
+			fmt.Fprintf(e.stdout, "identified: %.6g - %.6g * (effort of preset %s)\n", id.Shift, id.Scale, id.Preset)
+		}
+		for _, n := range rep.Notes {
+			fmt.Fprintln(e.stdout, "note:", n)
+		}
+	}
+	if rep.Failed() {
+		return errFailed
+	}
+	return nil
+}
+
+// runTablePoint is table for a point design: the menu of reports (budget
+// step, default a twentieth of the interval) against outcome columns,
+// fitted to the budget's floor and cap, written as CSV, Markdown or JSON
+// to stdout or atomically to --out.
+func runTablePoint(e *env, d *design.Design, format string, tf *tableFlags) error {
+	g, err := pointGenerator(d)
+	if err != nil {
+		return err
+	}
+	b := d.Budget
+	switch {
+	case b.MeanPay != nil:
+		return usagef("point-forecast tables are fitted to --floor and --cap; --mean-pay is for rules over outcomes")
+	case !(b.Cap > b.Floor):
+		return usagef("give --floor F --cap C with C > F")
+	case tf.menu != "" || tf.clamp != 0:
+		return usagef("--menu and --clamp are for rules over outcomes; a point-forecast menu is --step S in the units of the interval")
+	}
+	t, err := g.BuildTable(context.Background(), gpoint.TableSpec{Floor: b.Floor, Cap: b.Cap, Step: b.Step, Unit: b.Unit, Rounding: b.Rounding})
+	if errors.Is(err, gpoint.ErrUnbounded) {
+		return usagef("%v; narrow the interval so the effort stays finite", err)
+	} else if err != nil {
+		return usagef("%v", err)
+	}
+	if tf.lottery {
+		if err := t.Lottery(b.Floor, b.Cap); err != nil {
+			return usagef("--lottery: %v", err)
+		}
+	}
+	var buf bytes.Buffer
+	switch format {
+	case "csv":
+		err = t.WriteCSV(&buf)
+	case "md":
+		err = t.WriteMarkdown(&buf)
+	case "json":
+		err = writeJSON(&buf, t)
+	default:
+		return usagef("--format %s: point-forecast tables are written as csv, md or json", format)
+	}
+	if err != nil {
+		return err
+	}
+	if tf.json && tf.out == "" {
+		return writeJSON(e.stdout, t)
+	}
+	if err := writeOut(e.stdout, tf.out, buf.Bytes(), tf.force); err != nil {
+		return err
+	}
+	if tf.out != "" {
+		fmt.Fprintf(e.stdout, "wrote %s: %d reports × %d outcome columns, pay = %.6g - %.6g * D(y, x)\n", tf.out, len(t.Reports), len(t.Outcomes), t.A, t.B)
+	}
+	return nil
+}
+
+// writeOut writes data to stdout, or atomically to path (refusing to
+// overwrite without force).
+func writeOut(w io.Writer, path string, data []byte, force bool) error {
+	if path == "" || path == "-" {
+		_, err := w.Write(data)
+		return err
+	}
+	if err := safefile.Write(path, data, force); err != nil {
+		if errors.Is(err, safefile.ErrExists) {
+			return usagef("%s exists; pass --force to replace it", path)
+		}
+		return usagef("%v", err)
+	}
+	return nil
+}

@@ -1,0 +1,136 @@
+// Package point builds payment rules for point forecasts of a mean: a
+// forecaster reports one number x for a quantity y known to lie in an
+// interval [lo, hi], and is paid so that the mean of their distribution is
+// the best report.
+//
+// A concave phi on the interval generates the rule (Savage 1971; Gneiting
+// 2011, JASA 106:746-762):
+//
+//	Phi(y, x) = phi(x) + phi'(x) (y - x)      expected-effort line, affine in y
+//	D(y, x)   = Phi(y, x) - phi(y) >= 0       effort of report x when y happens
+//
+// For any distribution of y with mean m, E D(Y, x) = D(m, x) + phi(m) -
+// E phi(Y), which is smallest at x = m. phi = -x^2 gives squared error.
+// Derivatives of phi are exact, from the formula machine.
+package point
+
+import (
+	"fmt"
+	"math"
+
+	"scorewright/generator/formula"
+)
+
+// Options are the settings of New; the zero value means the defaults.
+type Options struct {
+	// Params override parameter values set in the formula.
+	Params map[string]float64
+}
+
+// Generator is a point-forecast generator phi(x) on [Lo, Hi]. It is
+// immutable and safe to share; each goroutine takes its own Evaluator.
+type Generator struct {
+	// Source is the formula as given.
+	Source string
+	// Lo and Hi bound the quantity forecast.
+	Lo, Hi float64
+	prog   *formula.Program
+}
+
+// New compiles src, a formula in x, as a generator on [lo, hi]. Formula
+// errors are *formula.Error values with line and column.
+func New(src string, lo, hi float64, opt Options) (*Generator, error) {
+	if !(lo < hi) || math.IsInf(lo, 0) || math.IsInf(hi, 0) {
+		return nil, fmt.Errorf("point: interval [%g, %g] must be finite with lo < hi", lo, hi)
+	}
+	prog, err := formula.CompileString(src, formula.Scope{Vars: []string{"x"}, Params: opt.Params})
+	if err != nil {
+		return nil, err
+	}
+	return &Generator{Source: src, Lo: lo, Hi: hi, prog: prog}, nil
+}
+
+// Program is the compiled formula.
+func (g *Generator) Program() *formula.Program { return g.prog }
+
+// NewEvaluator returns an Evaluator for one goroutine.
+func (g *Generator) NewEvaluator() *Evaluator {
+	return &Evaluator{g: g, m: g.prog.NewMachine()}
+}
+
+// Evaluator computes phi, its exact derivatives, and the rule built from
+// it. It owns scratch space; use one per goroutine. It does not allocate.
+type Evaluator struct {
+	g             *Generator
+	m             *formula.Machine
+	v, grad, hess [1]float64
+}
+
+// Generator is the generator the evaluator computes.
+func (e *Evaluator) Generator() *Generator { return e.g }
+
+// Phi returns phi(x).
+func (e *Evaluator) Phi(x float64) float64 {
+	e.v[0] = x
+	return e.m.Value(e.v[:])
+}
+
+// Derivatives returns phi(x), phi'(x) and phi”(x).
+func (e *Evaluator) Derivatives(x float64) (phi, d1, d2 float64) {
+	e.v[0] = x
+	phi = e.m.Hessian(e.hess[:], e.grad[:], e.v[:])
+	return phi, e.grad[0], e.hess[0]
+}
+
+// Line returns Phi(y, x) = phi(x) + phi'(x)(y - x), the expected effort
+// line of report x evaluated at outcome y.
+func (e *Evaluator) Line(y, x float64) float64 {
+	e.v[0] = x
+	phi := e.m.Gradient(e.grad[:], e.v[:])
+	return phi + mul0(e.grad[0], y-x)
+}
+
+// Divergence returns D(y, x) = Phi(y, x) - phi(y), the effort of report x
+// when the outcome is y; it is >= 0 for every x, y exactly when phi is
+// concave, and 0 at x = y.
+func (e *Evaluator) Divergence(y, x float64) float64 {
+	l := e.Line(y, x)
+	return l - e.Phi(y)
+}
+
+// Expected returns sum_j w_j D(y_j, x), the expected effort of report x
+// for a forecaster who gives outcome y_j probability w_j. It panics if the
+// lengths differ.
+func (e *Evaluator) Expected(x float64, ys, ws []float64) float64 {
+	if len(ys) != len(ws) {
+		panic("point: outcomes and weights differ in length")
+	}
+	e.v[0] = x
+	phi := e.m.Gradient(e.grad[:], e.v[:])
+	d := e.grad[0]
+	var s float64
+	for j, y := range ys {
+		if ws[j] == 0 {
+			continue
+		}
+		s += ws[j] * (phi + mul0(d, y-x) - e.Phi(y))
+	}
+	return s
+}
+
+// Mean returns sum_j w_j y_j / sum_j w_j.
+func Mean(ys, ws []float64) float64 {
+	var s, t float64
+	for j, y := range ys {
+		s += ws[j] * y
+		t += ws[j]
+	}
+	return s / t
+}
+
+func mul0(a, b float64) float64 {
+	if a == 0 && b == b || b == 0 && a == a {
+		return 0
+	}
+	return a * b
+}
