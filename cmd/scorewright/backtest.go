@@ -27,9 +27,6 @@ const backtestUsage = ruleUsage + " " + budgetUsage + " [--menu FILE] [--clamp P
 	" [--versus-preset NAME | --versus-generator EXPR | --versus-design FILE] [--versus-param name=value]" +
 	" [--pay-out FILE.csv] [--figure FILE.svg|png|pdf] [--chart] [--force] [--progress] [--json]"
 
-// moneyCaution goes with every output that speaks of payments.
-const moneyCaution = "scorewright checks mathematics, not law; payment schemes (lottery-style payments especially) can be regulated; have the contract reviewed by qualified counsel."
-
 // money is how one rule turns effort into pay, as its fitted table does.
 type money struct {
 	pay backtest.Payer
@@ -378,7 +375,7 @@ type backtestReport struct {
 	Skipped     []skippedReport     `json:"skipped"`
 	Reliability []reliabilityReport `json:"reliability,omitempty"`
 	Notes       []string            `json:"notes,omitempty"`
-	Caution     string              `json:"caution"`
+	Caution     []string            `json:"caution"`
 	decimals    []int
 }
 

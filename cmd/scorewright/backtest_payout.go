@@ -11,6 +11,7 @@ import (
 	"scorewright/generator/backtest"
 	"scorewright/generator/history"
 	"scorewright/generator/safefile"
+	"scorewright/generator/table"
 )
 
 // payOutFile streams the pay of every forecast to a temporary file beside
@@ -37,8 +38,10 @@ func createPayOut(path string, force bool, labels []string, schemes []*backtestS
 	}
 	o := &payOutFile{path: path, tmp: f.Name(), force: force, f: f, buf: bufio.NewWriterSize(f, 1<<16), labels: labels}
 	o.w = csv.NewWriter(o.buf)
-	// A comment line, as CSV readers with a comment character skip it.
-	fmt.Fprintf(o.buf, "# caution: %s\n", moneyCaution)
+	// Comment lines, as CSV readers with a comment character skip them.
+	for _, c := range table.Caution() {
+		fmt.Fprintf(o.buf, "# caution: %s\n", c)
+	}
 	head := []string{"line", "forecaster", "question", "outcome"}
 	for _, s := range schemes {
 		head = append(head, "pay "+s.id, "effort "+s.id, "on menu "+s.id)

@@ -10,6 +10,7 @@ import (
 	"scorewright/generator/backtest"
 	"scorewright/generator/history"
 	"scorewright/generator/num"
+	"scorewright/generator/table"
 )
 
 // maxSkippedShown caps the skipped rows the text report lists; --json
@@ -18,7 +19,7 @@ const maxSkippedShown = 20
 
 func newBacktestReport(path string, h *history.Reader, schemes []*backtestScheme, res *backtest.Result) *backtestReport {
 	r := &backtestReport{History: path, Outcomes: h.Labels(), Tolerance: h.Tolerance(), Rows: res.Rows,
-		SkipCount: res.SkippedCount, Skipped: []skippedReport{}, Caution: moneyCaution}
+		SkipCount: res.SkippedCount, Skipped: []skippedReport{}, Caution: table.Caution()}
 	for _, s := range res.Skipped {
 		r.Skipped = append(r.Skipped, skippedReport(s))
 	}
@@ -191,7 +192,10 @@ func (r *backtestReport) writeText(w io.Writer) error {
 	for _, n := range r.Notes {
 		fmt.Fprintln(w, "note:", n)
 	}
-	_, err := fmt.Fprintln(w, "caution:", r.Caution)
+	var err error
+	for _, c := range r.Caution {
+		_, err = fmt.Fprintln(w, "caution:", c)
+	}
 	return err
 }
 
