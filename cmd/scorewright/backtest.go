@@ -9,6 +9,8 @@ import (
 	"math"
 	"os"
 	"os/signal"
+	"regexp"
+	"sort"
 	"strconv"
 	"strings"
 	"time"
@@ -261,15 +263,61 @@ func versusDesign(d1 *design.Design, preset, gen, file string, params paramFlag)
 	return d2, nil
 }
 
-// ruleName is how a report names a rule: its preset, title or "generator".
+// ruleName is how a report names a rule: its preset, title or kind.
 func ruleName(d *design.Design) string {
 	switch {
 	case d.Preset != "":
 		return d.Preset
 	case d.Title != "":
 		return d.Title
+	case d.Mode == design.ModeEmphasis:
+		return "emphasis"
 	}
 	return "generator"
+}
+
+// paramLine matches a formula's parameter line, "name = number".
+var paramLine = regexp.MustCompile(`^\s*([A-Za-z_][A-Za-z_0-9]*)\s*=\s*([-+0-9.eE]+)\s*$`)
+
+// ruleFormula says what the formula of a design is, with its parameters
+// (defaults from the formula, overridden by the design) after it, e.g.
+// "emphasis w(c) = c^(a-1) * (1-c)^(b-1) with a = 2, b = 1".
+func ruleFormula(d *design.Design) string {
+	kind := "generator H = "
+	if d.Mode == design.ModeEmphasis {
+		kind = "emphasis w(c) = "
+	}
+	params := map[string]string{}
+	var names, expr []string
+	for _, line := range strings.Split(d.Formula, "\n") {
+		line = strings.TrimSpace(line)
+		if line == "" || strings.HasPrefix(line, "#") {
+			continue
+		}
+		if m := paramLine.FindStringSubmatch(line); m != nil {
+			if _, seen := params[m[1]]; !seen {
+				names = append(names, m[1])
+			}
+			params[m[1]] = m[2]
+			continue
+		}
+		expr = append(expr, line)
+	}
+	for k, v := range d.Params {
+		if _, seen := params[k]; !seen {
+			names = append(names, k)
+		}
+		params[k] = strconv.FormatFloat(v, 'g', -1, 64)
+	}
+	f := kind + strings.Join(expr, " ")
+	if len(names) > 0 {
+		sort.Strings(names)
+		for i, k := range names {
+			names[i] = k + " = " + params[k]
+		}
+		f += " with " + strings.Join(names, ", ")
+	}
+	return f
 }
 
 // openHistory opens the history file ("-" is stdin) and returns its size

@@ -26,7 +26,7 @@ func newBacktestReport(path string, h *history.Reader, schemes []*backtestScheme
 	for i, s := range schemes {
 		m := res.All[i]
 		r.decimals = append(r.decimals, s.money.decimals)
-		rr := ruleReport{ID: s.id, Name: s.name, Formula: s.d.Formula, Pay: s.money.formula,
+		rr := ruleReport{ID: s.id, Name: s.name, Formula: ruleFormula(s.d), Pay: s.money.formula,
 			Menu: s.money.menu, Budget: s.money.budget, Count: m.Count, Total: num.Float(m.Total), Mean: num.Float(m.Mean),
 			Min: num.Float(m.Min), Max: num.Float(m.Max), OffMenu: m.OffMenu, BelowLow: m.BelowLow, AboveHigh: m.AboveHigh,
 			NonFinite: m.NonFinite, MostTotal: num.Float(float64(m.Count) * s.money.high)}
@@ -93,7 +93,7 @@ func (r *backtestReport) writeText(w io.Writer) error {
 	fmt.Fprintf(w, "history %s: %d forecasts scored, %d rows skipped (a row's probabilities must lie in [0, 1] and sum to 1 within %g)\n\n",
 		r.History, r.Rows, r.SkipCount, r.Tolerance)
 	for _, rule := range r.Rules {
-		fmt.Fprintf(w, "rule %s: %s, generator %s\n", rule.ID, rule.Name, strings.ReplaceAll(rule.Formula, "\n", "; "))
+		fmt.Fprintf(w, "rule %s: %s, %s\n", rule.ID, rule.Name, rule.Formula)
 		fmt.Fprintf(w, "  %s\n  menu: %s\n  budget: %s\n", rule.Pay, rule.Menu, rule.Budget)
 	}
 	fmt.Fprintln(w)
