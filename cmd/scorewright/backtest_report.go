@@ -6,6 +6,7 @@ import (
 	"math"
 	"strings"
 	"text/tabwriter"
+	"unicode/utf8"
 
 	"scorewright/generator/backtest"
 	"scorewright/generator/history"
@@ -16,6 +17,10 @@ import (
 // maxSkippedShown caps the skipped rows the text report lists; --json
 // lists every one the run kept.
 const maxSkippedShown = 20
+
+// fewPerBin is the mean number of forecasts per bin below which the
+// report warns that the decomposition's terms rest on few outcomes.
+const fewPerBin = 5
 
 func newBacktestReport(path string, h *history.Reader, schemes []*backtestScheme, res *backtest.Result) *backtestReport {
 	r := &backtestReport{History: path, Outcomes: h.Labels(), Tolerance: h.Tolerance(), Rows: res.Rows,
@@ -47,6 +52,7 @@ func newBacktestReport(path string, h *history.Reader, schemes []*backtestScheme
 				s.id, plural(m.NonFinite, "payment is", "payments are"), m.FirstNonFinite))
 		}
 	}
+	var thin []string
 	for _, f := range res.Forecasters {
 		fr := forecasterReport{Name: f.Name, Count: f.Count, Total: num.Float(f.Money[0].Total), Mean: num.Float(f.Money[0].Mean),
 			Rank: f.Rank[0], Ranks: f.Rank, Binning: f.Binning.String()}
@@ -63,7 +69,14 @@ func newBacktestReport(path string, h *history.Reader, schemes []*backtestScheme
 			c := f.Rank[0] - f.Rank[1]
 			fr.RankChange = &c
 		}
+		if len(f.Bins) > 0 && f.Count < fewPerBin*len(f.Bins) {
+			thin = append(thin, fmt.Sprintf("%s (%d forecasts in %d bins)", f.Name, f.Count, len(f.Bins)))
+		}
 		r.Forecasters = append(r.Forecasters, fr)
+	}
+	if len(thin) > 0 {
+		r.Notes = append(r.Notes, fmt.Sprintf("fewer than %d forecasts per bin on average for %s: resolution and reliability are then measured on few outcomes each and read high (the split stays exact, the terms are noisy)",
+			fewPerBin, strings.Join(thin, ", ")))
 	}
 	if len(r.Outcomes) == 2 {
 		for _, c := range reliabilityCurves(res, 0) {
@@ -100,7 +113,14 @@ func (r *backtestReport) writeText(w io.Writer) error {
 
 	two := len(r.Rules) > 1
 	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprint(tw, "forecaster\tforecasts\t")
+	// Names read left-aligned: pad them to one width before the
+	// right-aligning table sees them.
+	nw := len("forecaster")
+	for _, f := range r.Forecasters {
+		nw = max(nw, utf8.RuneCountInString(f.Name))
+	}
+	left := func(s string) string { return s + strings.Repeat(" ", nw-utf8.RuneCountInString(s)) }
+	fmt.Fprintf(tw, "%s\tforecasts\t", left("forecaster"))
 	for _, rule := range r.Rules {
 		fmt.Fprintf(tw, "total %s\tmean %s\trank %s\t", rule.ID, rule.ID, rule.ID)
 	}
@@ -109,7 +129,7 @@ func (r *backtestReport) writeText(w io.Writer) error {
 	}
 	fmt.Fprint(tw, "off menu\t\n")
 	for _, f := range r.Forecasters {
-		fmt.Fprintf(tw, "%s\t%d\t", f.Name, f.Count)
+		fmt.Fprintf(tw, "%s\t%d\t", left(f.Name), f.Count)
 		for i := range r.Rules {
 			fmt.Fprintf(tw, "%s\t%.4g\t%d\t", r.cash(i, f.Totals[i]), float64(f.Means[i]), f.Ranks[i])
 		}
@@ -125,7 +145,7 @@ func (r *backtestReport) writeText(w io.Writer) error {
 		}
 		fmt.Fprintf(tw, "%d\t\n", f.OffMenu[0])
 	}
-	fmt.Fprintf(tw, "all\t%d\t", r.Rows)
+	fmt.Fprintf(tw, "%s\t%d\t", left("all"), r.Rows)
 	for i, rule := range r.Rules {
 		fmt.Fprintf(tw, "%s\t%.4g\t\t", r.cash(i, rule.Total), float64(rule.Mean))
 	}
@@ -157,11 +177,11 @@ func (r *backtestReport) writeText(w io.Writer) error {
 
 	fmt.Fprintln(w, "mean effort = uncertainty - resolution + reliability (+ within-bin, zero when bins are the distinct forecasts)")
 	tw = tabwriter.NewWriter(w, 0, 4, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprint(tw, "rule\tforecaster\tmean effort\tuncertainty\tresolution\treliability\twithin-bin\t\n")
+	fmt.Fprintf(tw, "rule\t%s\tmean effort\tuncertainty\tresolution\treliability\twithin-bin\t\n", left("forecaster"))
 	for i, rule := range r.Rules {
 		for _, f := range r.Forecasters {
 			d := f.Decomposition[i]
-			fmt.Fprintf(tw, "%s\t%s\t%.6g\t%.6g\t%.6g\t%.6g\t%.2g\t\n", rule.ID, f.Name, float64(d.MeanEffort), float64(d.Uncertainty),
+			fmt.Fprintf(tw, "%s\t%s\t%.6g\t%.6g\t%.6g\t%.6g\t%.2g\t\n", rule.ID, left(f.Name), float64(d.MeanEffort), float64(d.Uncertainty),
 				float64(d.Resolution), float64(d.Reliability), float64(d.WithinBin))
 		}
 	}
