@@ -4,6 +4,7 @@ import (
 	"bufio"
 	"encoding/csv"
 	"fmt"
+	"math"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -25,6 +26,7 @@ type payOutFile struct {
 	w         *csv.Writer
 	rec       []string
 	labels    []string
+	decimals  []int // per scheme; -1 writes the shortest exact form
 	done      bool
 }
 
@@ -45,6 +47,7 @@ func createPayOut(path string, force bool, labels []string, schemes []*backtestS
 	head := []string{"line", "forecaster", "question", "outcome"}
 	for _, s := range schemes {
 		head = append(head, "pay "+s.id, "effort "+s.id, "on menu "+s.id)
+		o.decimals = append(o.decimals, s.money.decimals)
 	}
 	o.rec = make([]string, len(head))
 	if err := o.w.Write(head); err != nil {
@@ -60,7 +63,11 @@ func (o *payOutFile) write(row *history.Row, paid []backtest.Paid) error {
 	o.rec[1], o.rec[2] = row.Forecaster, row.Question
 	o.rec[3] = o.labels[row.Outcome]
 	for i, p := range paid {
-		o.rec[4+3*i] = strconv.FormatFloat(p.Pay, 'g', -1, 64)
+		if d := o.decimals[i]; d >= 0 && !math.IsInf(p.Pay, 0) && !math.IsNaN(p.Pay) {
+			o.rec[4+3*i] = strconv.FormatFloat(p.Pay, 'f', d, 64)
+		} else {
+			o.rec[4+3*i] = strconv.FormatFloat(p.Pay, 'g', -1, 64)
+		}
 		o.rec[5+3*i] = strconv.FormatFloat(p.Effort, 'g', -1, 64)
 		o.rec[6+3*i] = strconv.FormatBool(p.OnMenu)
 	}
