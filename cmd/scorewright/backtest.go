@@ -49,6 +49,11 @@ type money struct {
 	// adjust, if set, is the report the contract pays for a forecast (the
 	// table's clamp).
 	adjust func(dst, p []float64) []float64
+	// record, if set, is the report the contract records for a forecast
+	// (the menu's report floor).
+	record func(dst, p []float64) []float64
+	// notes are said under the results.
+	notes []string
 	// warning, if set, says the fitted table failed its re-check.
 	warning string
 }
@@ -164,7 +169,7 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 
 	bs := make([]backtest.Scheme, len(schemes))
 	for i, s := range schemes {
-		bs[i] = backtest.Scheme{Name: s.id, Rule: s.rule, Pay: s.money.pay, OnMenu: s.money.onMenu, Low: s.money.low, High: s.money.high, Adjust: s.money.adjust}
+		bs[i] = backtest.Scheme{Name: s.id, Rule: s.rule, Pay: s.money.pay, OnMenu: s.money.onMenu, Low: s.money.low, High: s.money.high, Adjust: s.money.adjust, Record: s.money.record}
 	}
 	opt := backtest.Options{Strict: *strict}
 	if *progress || isTerminal(e.stderr) {

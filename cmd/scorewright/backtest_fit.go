@@ -51,6 +51,12 @@ func budgetFit(fs *flag.FlagSet, menuFile string, clamp float64) fitFunc {
 		if c := fit.Clamp; c > 0 {
 			m.adjust = func(dst, p []float64) []float64 { return budget.ClampReport(dst, p, c) }
 		}
+		if f := d.Budget.ReportFloor; f > 0 && menuFile == "" {
+			// The menu gives no outcome less than the floor; a forecast
+			// that did is recorded as the menu would record it.
+			m.record = func(dst, p []float64) []float64 { return budget.FloorReport(dst, p, f) }
+			m.notes = append(m.notes, fmt.Sprintf("forecasts giving an outcome less than the report floor %s are recorded as the menu records its items: raised to %s, the difference taken from the largest entry", table.FormatNumber(f), table.FormatNumber(f)))
+		}
 		return m, nil
 	}
 }

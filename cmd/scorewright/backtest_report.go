@@ -40,6 +40,9 @@ func newBacktestReport(path string, h *history.Reader, schemes []*backtestScheme
 			rr.TargetMean, rr.TargetTotal = &mean, &total
 		}
 		r.Rules = append(r.Rules, rr)
+		for _, n := range s.money.notes {
+			r.Notes = append(r.Notes, fmt.Sprintf("rule %s: %s", s.id, n))
+		}
 		if s.money.warning != "" {
 			r.Notes = append(r.Notes, fmt.Sprintf("rule %s: %s", s.id, s.money.warning))
 		}

@@ -42,6 +42,11 @@ type Scheme struct {
 	// forecast p (a clamp away from zero, say) and returns dst; the pay is
 	// A - B·L at that report. nil pays the forecast as written.
 	Adjust func(dst, p []float64) []float64
+	// Record, if set, writes into dst the report the contract records for
+	// forecast p — a report floor raises entries below it, as the menu's
+	// items are raised — and returns dst. The menu test and the pay use the
+	// recorded report; Effort stays that of the forecast as written.
+	Record func(dst, p []float64) []float64
 }
 
 // Paid is what one forecast earns under one scheme.
@@ -214,6 +219,7 @@ type Tally struct {
 	cache   forecastCache
 	one     []Paid    // scratch: one scheme, every outcome
 	adj     []float64 // scratch: adjusted report
+	rec     []float64 // scratch: recorded report
 }
 
 // Default binning bounds for the decomposition.
@@ -263,6 +269,7 @@ func NewTally(schemes []Scheme, opt TallyOptions) (*Tally, error) {
 	}
 	t.eff = make([]float64, n)
 	t.adj = make([]float64, n)
+	t.rec = make([]float64, n)
 	t.one = make([]Paid, n)
 	t.paid = make([]Paid, len(schemes))
 	t.all = make([]moneyTally, len(schemes))
@@ -339,13 +346,21 @@ func (c *forecastCache) get(t *Tally, p []float64) []Paid {
 // scoreAll writes what forecast p earns under scheme s for every outcome.
 func (t *Tally) scoreAll(s int, p []float64, dst []Paid) {
 	sc := &t.schemes[s]
-	on := sc.OnMenu == nil || sc.OnMenu(p)
+	rec := p
+	if sc.Record != nil {
+		rec = sc.Record(t.rec, p)
+	}
+	on := sc.OnMenu == nil || sc.OnMenu(rec)
 	t.scorers[s].Efforts(t.eff, p)
 	for y, l := range t.eff {
 		dst[y] = Paid{Effort: l, Pay: sc.Pay.Pay(l), OnMenu: on}
 	}
-	if sc.Adjust != nil {
-		t.scorers[s].Efforts(t.eff, sc.Adjust(t.adj, p))
+	if sc.Adjust != nil || sc.Record != nil {
+		paid := rec
+		if sc.Adjust != nil {
+			paid = sc.Adjust(t.adj, rec)
+		}
+		t.scorers[s].Efforts(t.eff, paid)
 		for y, l := range t.eff {
 			dst[y].Pay = sc.Pay.Pay(l)
 		}

@@ -207,6 +207,30 @@ func TestAdjust(t *testing.T) {
 	}
 }
 
+// A report floor records the forecast as the menu would: log rule,
+// forecast (1, 0), outcome 2, floor 0.01: the recorded report is
+// (0.99, 0.01), on the menu, paid at effort -ln 0.01 = ln 100 (derived by
+// hand); the written effort stays +Inf.
+func TestRecord(t *testing.T) {
+	lg := rule(t, "-sum(p*ln(p))", 2, false)
+	floor := func(dst, p []float64) []float64 {
+		copy(dst, p)
+		for i := range dst {
+			if dst[i] < 0.01 {
+				dst[1-i] -= 0.01 - dst[i]
+				dst[i] = 0.01
+			}
+		}
+		return dst
+	}
+	onMenu := func(p []float64) bool { return math.Abs(p[0]-0.99) < 1e-12 }
+	tl, _ := NewTally([]Scheme{{Name: "log", Rule: lg, Pay: Affine{A: 10, B: 1}, Record: floor, OnMenu: onMenu, Low: 0, High: 10}}, TallyOptions{})
+	paid := tl.Add("Birch", 2, 1, []float64{1, 0})
+	if !math.IsInf(paid[0].Effort, 1) || math.Abs(paid[0].Pay-(10-math.Log(100))) > 1e-12 || !paid[0].OnMenu {
+		t.Errorf("paid %+v, want effort +Inf, pay 10 - ln 100 = %g, on the menu", paid[0], 10-math.Log(100))
+	}
+}
+
 // Past the cache's bound forecasts are scored directly, with the same
 // result: Brier (1950) effort 2 (f - o)^2 for every one.
 func TestCacheOverflow(t *testing.T) {
