@@ -101,6 +101,9 @@ func Audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings)
 		return nil, fmt.Errorf("verify: no payout to audit")
 	}
 	n := p.Outcomes()
+	if err := checkOutcomes(n); err != nil {
+		return nil, err
+	}
 	s = s.withDefaults(n)
 	g, err := grid(n, s)
 	if err != nil {
@@ -116,6 +119,7 @@ func Audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings)
 func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings, g *simplex.Grid, pr *progress) (*AuditReport, error) {
 	n, G := p.Outcomes(), g.Len()
 	rep := &AuditReport{Report: Report{Grid: gridInfo(g, s)}}
+	rep.Notes = gridNotes(rep.Grid, n)
 	if g.Sampled {
 		rep.Notes = append(rep.Notes, fmt.Sprintf("the full grid at resolution %d is larger than %d points, so %d random lattice points and the vertices were used", s.Resolution, s.MaxPoints, g.Len()-n))
 	}
@@ -186,7 +190,7 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	if rep.Gap.Max > s.Tolerance && !math.IsInf(rep.Gap.Max, 0) {
 		ev := p.NewEvaluator()
 		ps := newPairSearch(n)
-		ps.onBoundary = true
+		ps.onBoundary, ps.cell = true, cellOf(g)
 		q, r, v, status, ok := ps.run(func(q, r []float64) float64 { return -(ev.Expected(q, r) - ev.Expected(q, q)) }, rep.Gap.Belief, rep.Gap.BestReport)
 		rep.Gap.Status = status
 		if ok && improves(-v, rep.Gap.Max, true) {
@@ -198,6 +202,7 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 		prop.Passed, prop.Strict = false, false
 		prop.Worst, prop.Belief, prop.Report = rep.Gap.Max, rep.Gap.Belief, rep.Gap.BestReport
 		prop.Sharpened, prop.GridWorst, prop.Status = rep.Gap.Sharpened, rep.Gap.GridMax, rep.Gap.Status
+		markPart(&prop)
 	}
 	prop.Note = propernessNote(prop, "pay", "more")
 	rep.Checks = []CheckResult{prop, bounded}
@@ -253,7 +258,7 @@ func refineBeliefs(ctx context.Context, p *payout.Payout, g *simplex.Grid, bgs [
 	return parallel(ctx, s.Workers, len(idx), 4, func(w, lo, hi int) {
 		ev := evs[w]
 		ps := newPairSearch(g.N)
-		ps.fixBelief, ps.evals = true, searchEvals
+		ps.fixBelief, ps.evals, ps.cell = true, searchEvals, cellOf(g)
 		for _, i := range idx[lo:hi] {
 			bg := &bgs[i]
 			_, r, v, _, ok := ps.run(func(q, r []float64) float64 { return -ev.Expected(q, r) }, bg.Belief, bg.BestReport)

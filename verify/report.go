@@ -209,7 +209,11 @@ func (p *part) offer(amount float64, belief, report []float64) {
 	}
 	p.seen = true
 	p.Worst = amount
-	p.Belief = append(p.Belief[:0], belief...)
+	if belief == nil {
+		p.Belief = nil
+	} else {
+		p.Belief = append(p.Belief[:0], belief...)
+	}
 	if report == nil {
 		p.Report = nil
 	} else {
