@@ -27,7 +27,7 @@ import (
 
 const backtestUsage = ruleUsage + " " + budgetUsage + " [--menu FILE] [--clamp P] --history FILE.csv [--strict] [--tolerance T]" +
 	" [--versus-preset NAME | --versus-generator EXPR | --versus-design FILE] [--versus-param name=value]" +
-	" [--pay-out FILE.csv] [--figure FILE.svg|png|pdf] [--chart] [--force] [--progress] [--json]"
+	" [--pay-out FILE.csv] [--by-question] [--figure FILE.svg|png|pdf] [--chart] [--force] [--progress] [--json]"
 
 // money is how one rule turns effort into pay, as its fitted table does.
 type money struct {
@@ -89,6 +89,7 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 	menuFile := fs.String("menu", "", "read the report menu from a CSV file, as the table command does (instead of --step)")
 	clamp := fs.Float64("clamp", 0, "pay every report as if each probability were at least P, as the table command does")
 	payOut := fs.String("pay-out", "", "write every forecast's pay under each rule to this CSV file")
+	byQuestion := fs.Bool("by-question", false, "also total the pay per question (memory grows with the number of questions)")
 	figPath := fs.String("figure", "", "n = 2: write the reliability picture to FILE.svg, .png or .pdf")
 	chart := fs.Bool("chart", false, "n = 2: print the reliability picture as a text chart")
 	force := fs.Bool("force", false, "replace existing --pay-out and --figure files")
@@ -183,6 +184,20 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 		defer out.abort()
 		opt.OnRow = out.write
 	}
+	var questions *questionTally
+	if *byQuestion {
+		questions = newQuestionTally(d1.Labels)
+		if out != nil {
+			opt.OnRow = func(row *history.Row, paid []backtest.Paid) error {
+				if err := out.write(row, paid); err != nil {
+					return err
+				}
+				return questions.add(row, paid)
+			}
+		} else {
+			opt.OnRow = questions.add
+		}
+	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
 	res, err := backtest.Run(ctx, h, bs, opt)
@@ -212,6 +227,11 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 		}
 	}
 	report := newBacktestReport(*historyPath, h, schemes, res)
+	if questions != nil {
+		var notes []string
+		report.Questions, notes = questions.report()
+		report.Notes = append(report.Notes, notes...)
+	}
 	if *figPath != "" {
 		if err := writeReliabilityFigure(*figPath, figFormat, *force, d1.Labels[0], res); err != nil {
 			return err
@@ -427,6 +447,7 @@ type backtestReport struct {
 	SkipCount   int                 `json:"skipped_count"`
 	Skipped     []skippedReport     `json:"skipped"`
 	Reliability []reliabilityReport `json:"reliability,omitempty"`
+	Questions   []questionReport    `json:"questions,omitempty"`
 	Notes       []string            `json:"notes,omitempty"`
 	Caution     []string            `json:"caution"`
 	decimals    []int

@@ -201,6 +201,10 @@ func (r *backtestReport) writeText(w io.Writer) error {
 		fmt.Fprintf(w, "(%s: %s)\n", strings.Join(binnings[b], ", "), b)
 	}
 
+	if err := r.writeQuestions(w); err != nil {
+		return err
+	}
+
 	if r.SkipCount > 0 {
 		fmt.Fprintf(w, "\nskipped rows (%d):\n", r.SkipCount)
 		for i, s := range r.Skipped {
