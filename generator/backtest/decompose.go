@@ -286,6 +286,7 @@ type Binning struct {
 	Grid int
 }
 
+// String describes the binning in words, for reports.
 func (b Binning) String() string {
 	if b.Grid == 0 {
 		return "bins are the distinct forecasts (the decomposition is exact)"

@@ -52,6 +52,7 @@ type RowError struct {
 	Why  string
 }
 
+// Error writes "line N: why".
 func (e *RowError) Error() string { return fmt.Sprintf("line %d: %s", e.Line, e.Why) }
 
 // Reader streams forecasts from a history file.
