@@ -66,7 +66,7 @@ func ParseUtility(s string) (Utility, error) {
 	return Utility{}, fmt.Errorf("utility %q: unknown family %q; want crra or cara", s, kind)
 }
 
-// String writes the utility as it is given on the command line.
+// String describes the utility in words, for reports.
 func (u Utility) String() string {
 	switch {
 	case u.Kind == Linear || u.Coef == 0:
