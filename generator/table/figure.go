@@ -196,6 +196,9 @@ func (t *Table) binaryPlot() (*plot.Plot, error) {
 		p.Legend.Add(t.ValueHeader(k), line, points)
 	}
 	p.Add(plotter.NewGrid())
+	// Headroom above the curves for the legend, which would otherwise sit
+	// on the curve that starts high at the left edge.
+	p.Y.Max += 0.25 * (p.Y.Max - p.Y.Min)
 	return p, nil
 }
 
