@@ -41,18 +41,17 @@ type pictureMsg struct {
 
 // PicturePane draws the design live.
 type PicturePane struct {
-	st            Styles
-	keys          KeyMap
-	w, h          int
-	focused       bool
-	spec          pictureSpec
-	specVersion   uint64
-	text          string
-	n             int
-	reward        bool
-	point         bool
-	hasDesign     bool
-	waitingForGen uint64
+	st          Styles
+	keys        KeyMap
+	w, h        int
+	focused     bool
+	spec        pictureSpec
+	specVersion uint64
+	text        string
+	n           int
+	reward      bool
+	point       bool
+	hasDesign   bool
 }
 
 // NewPicturePane returns an empty picture pane.
