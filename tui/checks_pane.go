@@ -114,7 +114,9 @@ func (p ChecksPane) View() string {
 			head = st.Dim.Render("previous design's verdict: " + verdict)
 		}
 		lines = append(lines, head)
-		lines = append(lines, st.Dim.Render(fmt.Sprintf("grid resolution %d, %d points, tolerance %g", r.Resolution, r.Points, r.Tolerance)))
+		lines = append(lines, st.Dim.Render(fmt.Sprintf("grid step 1/%d, %d points, tolerance %g", r.Resolution, r.Points, r.Tolerance)))
+		// Each check's note only when there is room for all of them.
+		notes := p.h-2 >= len(lines)+2*len(r.Rows)+len(r.Notes)+1
 		for _, c := range r.Rows {
 			mark := st.Pass.Render("✓")
 			if !c.Passed {
@@ -128,7 +130,7 @@ func (p ChecksPane) View() string {
 				line += " p=" + num.Format(c.Report)
 			}
 			lines = append(lines, line)
-			if c.Note != "" {
+			if c.Note != "" && notes {
 				lines = append(lines, st.Dim.Render("  "+c.Note))
 			}
 		}

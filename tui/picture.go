@@ -313,7 +313,7 @@ func renderPicture(ctx context.Context, st Styles, c *compiled, spec pictureSpec
 			if worstAt != nil {
 				note = fmt.Sprintf("largest %s at belief %s", fmtTick(worst), num.Format(round2(worstAt)))
 			} else {
-				note = "no belief gains by misreporting (reports on a 1/40 grid)"
+				note = "no gain from misreporting (1/40 report grid)"
 			}
 		} else {
 			what = "loss by report"

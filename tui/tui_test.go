@@ -8,6 +8,7 @@ import (
 	"testing"
 
 	tea "github.com/charmbracelet/bubbletea"
+	"github.com/charmbracelet/x/ansi"
 	"github.com/charmbracelet/x/exp/golden"
 
 	"scorewright/generator/design"
@@ -80,7 +81,7 @@ func TestViewFitsTheTerminal(t *testing.T) {
 			t.Errorf("%v: %d lines", size, len(lines))
 		}
 		for i, l := range lines {
-			if w := len([]rune(l)); w > size[0] {
+			if w := ansi.StringWidth(l); w > size[0] {
 				t.Errorf("%v: line %d is %d wide", size, i, w)
 			}
 		}
