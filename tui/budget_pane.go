@@ -202,11 +202,9 @@ func nextStep(steps []float64, cur float64, up bool) float64 {
 	return steps[0]
 }
 
-func (p BudgetPane) tableText() string {
-	t := p.table
-	if t == nil {
-		return ""
-	}
+// layoutTable lines up the cells of t into text rows, header first. It
+// runs in the background with the fit, so Update only joins the rows.
+func layoutTable(t *TableView) {
 	widths := make([]int, len(t.Header))
 	for i, h := range t.Header {
 		widths[i] = len([]rune(h))
@@ -227,19 +225,32 @@ func (p BudgetPane) tableText() string {
 		}
 		return strings.Join(parts, "  ")
 	}
-	lines := []string{p.st.Label.Render(row(t.Header))}
+	t.lines = []string{row(t.Header)}
 	for _, r := range t.Rows {
-		lines = append(lines, row(r))
+		t.lines = append(t.lines, row(r))
 	}
-	// The notes follow the table in the same scroll, so the table gets the
-	// room first.
+}
+
+// tableText is the scroll content: the table, then the notes wrapped to
+// the pane, so the table gets the room first.
+func (p BudgetPane) tableText() string {
+	t := p.table
+	if t == nil || len(t.lines) == 0 {
+		return ""
+	}
+	var b strings.Builder
+	b.WriteString(p.st.Label.Render(t.lines[0]))
+	for _, l := range t.lines[1:] {
+		b.WriteByte('\n')
+		b.WriteString(l)
+	}
 	if len(t.Notes) > 0 {
-		lines = append(lines, "")
+		b.WriteByte('\n')
 		for _, n := range t.Notes {
-			lines = append(lines, strings.Split(p.st.Dim.Width(max(10, p.vp.Width)).Render(n), "\n")...)
+			b.WriteString("\n" + p.st.Dim.Width(max(10, p.vp.Width)).Render(n))
 		}
 	}
-	return strings.Join(lines, "\n")
+	return b.String()
 }
 
 // View draws the pane for design d.

@@ -52,6 +52,8 @@ type TableView struct {
 	Notes     []string
 	// Pay turns an effort into a payment; nil when not known.
 	Pay func(effort float64) float64
+
+	lines []string // the rows laid out as text, by layoutTable
 }
 
 // Exporter writes payment tables.
@@ -150,6 +152,9 @@ func checkCmd(ctx context.Context, gen uint64, d *design.Design, s Settings, che
 func fitCmd(ctx context.Context, gen uint64, d *design.Design, fitter Fitter) tea.Cmd {
 	return func() tea.Msg {
 		t, err := fitter(ctx, d)
+		if t != nil {
+			layoutTable(t)
+		}
 		return fitMsg{gen: gen, table: t, err: err}
 	}
 }

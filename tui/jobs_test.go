@@ -245,3 +245,29 @@ func BenchmarkUpdateWhileChecking(b *testing.B) {
 	}
 	m.Close()
 }
+
+// BenchmarkUpdateTyping measures one Update for a key typed into the
+// formula (the recompile it starts is a command, not run here).
+func BenchmarkUpdateTyping(b *testing.B) {
+	m := testModel(b, nil, Settings{})
+	start(b, m, 120, 40)
+	press(b, m, keyDown, keyDown, keyDown, keyEnter, keyEnd)
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		if i%2 == 0 {
+			m.Update(runes(" "))
+		} else {
+			m.Update(keyBack)
+		}
+	}
+}
+
+// BenchmarkView measures drawing the whole 120×40 screen.
+func BenchmarkView(b *testing.B) {
+	m := testModel(b, DemoHarvest(), Settings{})
+	start(b, m, 120, 40)
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		_ = m.View()
+	}
+}
