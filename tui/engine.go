@@ -9,6 +9,7 @@ import (
 	"io"
 	"path/filepath"
 	"runtime"
+	"strconv"
 	"time"
 
 	"scorewright/generator/budget"
@@ -189,10 +190,17 @@ func budgetFitter(ctx context.Context, d *design.Design) (*TableView, error) {
 	for k := range d.Labels {
 		tv.Header = append(tv.Header, tb.ValueHeader(k))
 	}
+	value := tb.Value
+	if d.Budget.Unit == 0 {
+		// Unrounded pay prints every digit; the preview shows four decimals
+		// and says so, the export keeps them all.
+		value = func(v float64) string { return strconv.FormatFloat(v, 'f', 4, 64) }
+		tv.Notes = append([]string{"preview shows 4 decimals; with no rounding unit the export keeps every digit"}, tv.Notes...)
+	}
 	for i, p := range fit.Menu.Reports {
 		row := []string{num.Format(p)}
 		for _, v := range fit.Pays[i] {
-			row = append(row, tb.Value(v))
+			row = append(row, value(v))
 		}
 		tv.Rows = append(tv.Rows, row)
 	}

@@ -182,6 +182,7 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 			m.picture.setDesign(msg.c.d.N(), msg.c.reward(), m.payFunc() != nil, msg.c.point != nil)
 		} else {
 			m.checks.block("the formula does not compile")
+			m.picture.noDesign("nothing to draw until the formula compiles")
 		}
 		return m, tea.Batch(m.requestPicture(), m.maybeStart())
 	case debounceMsg:

@@ -211,6 +211,13 @@ func (p PicturePane) request(ctx context.Context, gen uint64, c *compiled, pay f
 	}
 }
 
+// noDesign says why there is nothing to draw.
+func (p *PicturePane) noDesign(why string) {
+	p.hasDesign = false
+	p.text = p.st.Dim.Render(why)
+	p.specVersion++
+}
+
 // show takes a drawn picture if it is for the current spec.
 func (p *PicturePane) show(m pictureMsg) {
 	if m.spec == p.specVersion {
