@@ -532,3 +532,17 @@ func TestUnsavedChangesNeedASecondPress(t *testing.T) {
 		t.Fatal("ctrl+s does not open the save dialog while typing")
 	}
 }
+
+// Once the budget is fitted the picture can draw pay. Derived by hand: the
+// demo's g = 2 generator has effort 2(1-p)^2 and 2p^2 (Brier 1950), 0..2
+// over the menu, so floor 0 and cap 40 give pay = 40 - 20 L; at p = 0.3
+// that is 40 - 20(0.98) = 20.4 and 40 - 20(0.18) = 36.4.
+func TestPictureDrawsFittedPay(t *testing.T) {
+	m := testModel(t, nil, Settings{})
+	start(t, m, 120, 40)
+	press(t, m, keyTab, runes("m"))
+	v := m.View()
+	if !strings.Contains(v, "Picture · pay per outcome") || !strings.Contains(v, "┊ 0.30: 20.4 / 36.4") {
+		t.Fatalf("fitted pay not drawn:\n%s", v)
+	}
+}
