@@ -26,15 +26,18 @@ type budgetField struct {
 	step  float64
 }
 
-var budgetFields = []budgetField{
-	{label: "Floor", help: "smallest payment", step: 1,
-		get: func(b *design.Budget) float64 { return b.Floor }, set: func(b *design.Budget, v float64) { b.Floor = v }},
-	{label: "Cap", help: "largest payment", step: 1,
-		get: func(b *design.Budget) float64 { return b.Cap }, set: func(b *design.Budget, v float64) { b.Cap = v }},
-	{label: "Step", help: "report menu step", steps: []float64{0.01, 0.02, 0.025, 0.05, 0.1, 0.125, 0.2, 0.25, 0.5},
-		get: func(b *design.Budget) float64 { return b.Step }, set: func(b *design.Budget, v float64) { b.Step = v }},
-	{label: "Unit", help: "rounding unit (0: none)", steps: []float64{0, 0.01, 0.05, 0.1, 0.25, 0.5, 1, 5},
-		get: func(b *design.Budget) float64 { return b.Unit }, set: func(b *design.Budget, v float64) { b.Unit = v }},
+// budgetFields lists the editable fields, fresh on each call.
+func budgetFields() []budgetField {
+	return []budgetField{
+		{label: "Floor", help: "smallest payment", step: 1,
+			get: func(b *design.Budget) float64 { return b.Floor }, set: func(b *design.Budget, v float64) { b.Floor = v }},
+		{label: "Cap", help: "largest payment", step: 1,
+			get: func(b *design.Budget) float64 { return b.Cap }, set: func(b *design.Budget, v float64) { b.Cap = v }},
+		{label: "Step", help: "report menu step", steps: []float64{0.01, 0.02, 0.025, 0.05, 0.1, 0.125, 0.2, 0.25, 0.5},
+			get: func(b *design.Budget) float64 { return b.Step }, set: func(b *design.Budget, v float64) { b.Step = v }},
+		{label: "Unit", help: "rounding unit (0: none)", steps: []float64{0, 0.01, 0.05, 0.1, 0.25, 0.5, 1, 5},
+			get: func(b *design.Budget) float64 { return b.Unit }, set: func(b *design.Budget, v float64) { b.Unit = v }},
+	}
 }
 
 // BudgetPane edits the budget and shows the payment table preview and the
@@ -70,7 +73,7 @@ func NewBudgetPane(st Styles, keys KeyMap, available bool) BudgetPane {
 func (p *BudgetPane) SetSize(w, h int) {
 	p.w, p.h = w, h
 	p.vp.Width = max(4, w-2)
-	p.vp.Height = max(1, h-2-len(budgetFields)-1)
+	p.vp.Height = max(1, h-2-len(budgetFields())-1)
 	p.vp.SetContent(p.tableText())
 	p.ti.Width = max(6, w-20)
 }
@@ -108,7 +111,7 @@ func (p BudgetPane) Update(msg tea.Msg, d *design.Design) (BudgetPane, tea.Cmd, 
 		return p, nil, false
 	}
 	k := p.keys
-	f := budgetFields[p.sel]
+	f := budgetFields()[p.sel]
 	if p.typing {
 		switch {
 		case key.Matches(km, k.Leave):
@@ -133,7 +136,7 @@ func (p BudgetPane) Update(msg tea.Msg, d *design.Design) (BudgetPane, tea.Cmd, 
 	case key.Matches(km, k.Up):
 		p.sel = max(0, p.sel-1)
 	case key.Matches(km, k.Down):
-		p.sel = min(len(budgetFields)-1, p.sel+1)
+		p.sel = min(len(budgetFields())-1, p.sel+1)
 	case key.Matches(km, k.Edit):
 		p.typing = true
 		p.ti.SetValue(strconv.FormatFloat(f.get(&d.Budget), 'g', -1, 64))
@@ -257,7 +260,7 @@ func (p BudgetPane) tableText() string {
 func (p BudgetPane) View(d *design.Design) string {
 	st := p.st
 	var lines []string
-	for i, f := range budgetFields {
+	for i, f := range budgetFields() {
 		m, ls := "  ", st.Label
 		if p.focused && i == p.sel && !p.typing {
 			m, ls = st.Selected.Render("› "), st.Selected

@@ -42,7 +42,9 @@ const (
 
 // modes lists the modes the workbench computes, in the order ←/→ cycle;
 // emphasis is skipped unless there are 2 outcomes.
-var modes = []design.Mode{design.ModeGenerator, design.ModePayout, design.ModeEmphasis, design.ModePoint}
+func modes() []design.Mode {
+	return []design.Mode{design.ModeGenerator, design.ModePayout, design.ModeEmphasis, design.ModePoint}
+}
 
 // samplePoint is the generator offered the first time a design switches
 // to point mode: phi = -x^2, squared error.
@@ -50,7 +52,7 @@ const samplePoint = "-x^2"
 
 // defaultInterval is the interval a design gets when it first becomes a
 // point-forecast design.
-var defaultInterval = []float64{0, 100}
+func defaultInterval() []float64 { return []float64{0, 100} }
 
 // samplePayout is the formula offered the first time a design switches to
 // payout mode: a scaled quadratic payment, to be replaced by the payout
@@ -341,24 +343,25 @@ func (p *DesignPane) dropWeights(d *design.Design) {
 
 func (p *DesignPane) cycleMode(d *design.Design, up bool) {
 	i := 0
-	for j, m := range modes {
+	ms := modes()
+	for j, m := range ms {
 		if m == d.Mode {
 			i = j
 		}
 	}
 	for {
 		if up {
-			i = (i + 1) % len(modes)
+			i = (i + 1) % len(ms)
 		} else {
-			i = (i + len(modes) - 1) % len(modes)
+			i = (i + len(ms) - 1) % len(ms)
 		}
-		if modes[i] != design.ModeEmphasis || d.N() == 2 {
+		if ms[i] != design.ModeEmphasis || d.N() == 2 {
 			break
 		}
 	}
 	p.byMode[d.Mode] = d.Formula
 	p.stepByMode[d.Mode == design.ModePoint] = d.Budget.Step
-	d.Mode = modes[i]
+	d.Mode = ms[i]
 	f, ok := p.byMode[d.Mode]
 	if !ok {
 		switch d.Mode {
@@ -378,7 +381,7 @@ func (p *DesignPane) cycleMode(d *design.Design, up bool) {
 		d.Budget.Step = 0 // BuildTable's default: a twentieth of the interval
 	}
 	if d.Mode == design.ModePoint && len(d.Interval) != 2 {
-		d.Interval = append([]float64(nil), defaultInterval...)
+		d.Interval = defaultInterval()
 	}
 	if f != "" {
 		d.Formula = f
@@ -421,7 +424,7 @@ func (p DesignPane) updatePicker(km tea.KeyMsg, d *design.Design) (DesignPane, t
 			p.note = "preset " + ps.Name
 		}
 		if d.Mode == design.ModePoint && len(d.Interval) != 2 {
-			d.Interval = append([]float64(nil), defaultInterval...)
+			d.Interval = defaultInterval()
 		}
 		if wasPoint != (d.Mode == design.ModePoint) {
 			d.Budget.Step = p.stepByMode[d.Mode == design.ModePoint]
