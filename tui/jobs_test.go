@@ -53,6 +53,16 @@ func TestUpdateAnswersWhileACheckRuns(t *testing.T) {
 			t.Fatal("no check started")
 		}
 	}
+	// The progress bar follows the run.
+	for m.checks.done == 0 || !strings.Contains(m.View(), "% checking") {
+		select {
+		case msg := <-msgs:
+			_, cmd := m.Update(msg)
+			pump(cmd, msgs)
+		case <-deadline:
+			t.Fatal("no progress shown")
+		}
+	}
 	m.setFocus(panePicture)
 	const keys = 500
 	before := m.updates
