@@ -286,7 +286,7 @@ func renderPicture(ctx context.Context, st Styles, c *compiled, spec pictureSpec
 	case n == 2:
 		return renderBinary(ctx, st, c, s, spec, pay, orient)
 	case n == 3:
-		rows := max(3, min(h-4, (w-1)/2))
+		rows := max(3, min(h-5, (w-1)/2)) // vertex labels, legend, remarks and a note take five lines
 		t := newTernaryCells(rows, max(2*rows+1, min(w-1, 4*rows+1)))
 		vals := make([][]float64, t.rows)
 		var what, note string
@@ -320,7 +320,7 @@ func renderPicture(ctx context.Context, st Styles, c *compiled, spec pictureSpec
 			if worstAt != nil {
 				note = fmt.Sprintf("largest %s at belief %s", fmtTick(worst), num.Format(round2(worstAt)))
 			} else {
-				note = "no gain from misreporting (1/40 report grid)"
+				note = "no gain from misreporting (1/40 grid)"
 			}
 		} else {
 			what = "loss by report"
