@@ -546,3 +546,22 @@ func TestPictureDrawsFittedPay(t *testing.T) {
 		t.Fatalf("fitted pay not drawn:\n%s", v)
 	}
 }
+
+// The linear rule over three outcomes, as the workbench shows it. Derived
+// by hand: under belief q the best report is the vertex of the likeliest
+// outcome, so the gap is max_k q_k - sum_k q_k^2; at q = (2/3, 1/6, 1/6)
+// that is 2/3 - 1/2 = 1/6.
+func TestGoldenLinearAudit80x24(t *testing.T) {
+	d := DemoHarvest()
+	d.Mode, d.Formula, d.Preset = design.ModePayout, "p[y]", ""
+	m := testModel(t, d, Settings{})
+	start(t, m, 80, 24)
+	s := m.comp.newSampler()
+	if got := gapOnGrid(s, gridScores(s, 3, 6), []float64{2.0 / 3, 1.0 / 6, 1.0 / 6}); math.Abs(got-1.0/6) > 1e-12 {
+		t.Errorf("gap %v, want 1/6", got)
+	}
+	if r := m.CheckReport(); r == nil || r.Verdict != "improper" {
+		t.Fatalf("verdict: %+v", r)
+	}
+	golden.RequireEqual(t, []byte(m.View()))
+}
