@@ -72,12 +72,15 @@ wait_for "exported:"
 ls "$work"/*.csv >/dev/null
 
 # Resize: the layout follows, then the small-terminal message.
-t resize-window -t "$session" -x 80 -y 24
-wait_for "Picture"
-t resize-window -t "$session" -x 60 -y 20
-wait_for "at least 80×24"
-t resize-window -t "$session" -x 100 -y 30
-wait_for "Picture"
+if t resize-window -t "$session" -x 80 -y 24 2>/dev/null; then
+  wait_for "Picture"
+  t resize-window -t "$session" -x 60 -y 20
+  wait_for "at least 80×24"
+  t resize-window -t "$session" -x 100 -y 30
+  wait_for "Picture"
+else
+  echo "e2e-tui: WARNING: this tmux cannot resize a window (needs tmux >= 2.9); resize checks skipped"
+fi
 
 # Unsaved changes (one more outcome): the first q asks, the second quits.
 key +
