@@ -113,14 +113,27 @@ func runTable(e *env, args []string) error {
 		Title: d.Title, Formula: d.Formula, Preset: d.Preset, Params: d.Params,
 		Version: version, Date: exportDate(),
 	})
+	var lot *lotteryJSON
 	if tf.lottery {
-		if err := lotteryTable(tb, fit); err != nil {
+		if lot, err = lotteryTable(tb, math.Min(fit.Floor, fit.MinPay), math.Max(fit.Cap, fit.MaxPay)); err != nil {
 			return err
 		}
 	}
 	sum := newTableSummary(fit, rc, format, tf.out)
-	refused := !rc.Passed && !tf.force
+	sum.Lottery, sum.Caution = lot, tb.Meta.Cautions
+	return exportTable(e, tb, format, tf, rc.Passed, &sum.Output, sum, func() error {
+		return printTableSummary(e.stdout, fit, rc, sum)
+	})
+}
 
+// exportTable writes a built table: to --out atomically (an existing file
+// only with --force), or to stdout. A table whose re-check failed is
+// refused (nothing written, exit 1) unless --force, and then still exits
+// 1. With --out, or when refused, the summary goes to stdout: summary as
+// JSON with --json, else through printSummary. out records what was
+// written.
+func exportTable(e *env, tb *table.Table, format string, tf *tableFlags, passed bool, out *tableOutput, summary any, printSummary func() error) error {
+	refused := !passed && !tf.force
 	var buf bytes.Buffer
 	if !refused {
 		if err := tb.Write(&buf, format); err != nil {
@@ -131,18 +144,18 @@ func runTable(e *env, args []string) error {
 				if errors.Is(err, safefile.ErrExists) {
 					return usagef("%v", err)
 				}
-				return err
+				return usagef("--out: %v", err)
 			}
-			sum.Output.Written = true
+			out.Written = true
 		}
 	}
 	switch {
 	case tf.json:
-		if err := writeJSON(e.stdout, sum); err != nil {
+		if err := writeJSON(e.stdout, summary); err != nil {
 			return err
 		}
 	case tf.out != "" || refused:
-		if err := printTableSummary(e.stdout, fit, rc, sum); err != nil {
+		if err := printSummary(); err != nil {
 			return err
 		}
 	default:
@@ -154,7 +167,7 @@ func runTable(e *env, args []string) error {
 	case refused:
 		fmt.Fprintln(e.stderr, "scorewright table: refused: the menu re-check failed, so nothing was written; --force exports the table anyway, with a warning in the file")
 		return errFailed
-	case !rc.Passed:
+	case !passed:
 		fmt.Fprintln(e.stderr, "scorewright table: the menu re-check FAILED; the table was exported because of --force and carries a warning")
 		return errFailed
 	}
@@ -232,6 +245,7 @@ type tableSummary struct {
 	MenuPay      truthfulJSON  `json:"menu_pay"`
 	Recheck      recheckJSON   `json:"recheck"`
 	ClampGap     *clampGapJSON `json:"clamp_gap,omitempty"`
+	Lottery      *lotteryJSON  `json:"lottery,omitempty"`
 	Output       tableOutput   `json:"output"`
 	Notes        []string      `json:"notes"`
 	Cells        []cellJSON    `json:"cells"`
@@ -361,6 +375,7 @@ func printTableSummary(w io.Writer, f *budget.Fit, rc *budget.Recheck, s *tableS
 	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', 0)
 	fmt.Fprintf(tw, "menu\t%s\n", f.MenuDesc())
 	fmt.Fprintf(tw, "payment\tpay = A - B·L(p, k), A = %s, B = %s\n", table.FormatNumber(f.A), table.FormatNumber(f.B))
+	printLottery(tw, s.Lottery)
 	fmt.Fprintf(tw, "budget\t%s\n", f.BudgetDesc())
 	fmt.Fprintf(tw, "rounding\t%s\n", f.RoundingDesc())
 	verdict := "FAILED"

@@ -355,11 +355,11 @@ func TestRounding(t *testing.T) {
 		{1234.5678, 0.25, RoundDown, 1234.5},
 	}
 	for _, c := range cases {
-		r, err := newRounder(c.unit, c.mode)
+		r, err := NewRounder(c.unit, c.mode)
 		if err != nil {
 			t.Fatal(err)
 		}
-		if got := r.round(c.x); got != c.want {
+		if got := r.Round(c.x); got != c.want {
 			t.Errorf("round(%v, %v, %s) = %v, want %v", c.x, c.unit, c.mode, got, c.want)
 		}
 	}
@@ -367,8 +367,8 @@ func TestRounding(t *testing.T) {
 		unit float64
 		want int
 	}{{1, 0}, {0.01, 2}, {0.05, 2}, {0.125, 3}, {5, 0}, {0, -1}} {
-		r, _ := newRounder(c.unit, "")
-		if got := r.decimals(); got != c.want {
+		r, _ := NewRounder(c.unit, "")
+		if got := r.Decimals(); got != c.want {
 			t.Errorf("decimals(%v) = %d, want %d", c.unit, got, c.want)
 		}
 	}

@@ -48,7 +48,7 @@ type Fit struct {
 	ReferencePay float64
 
 	rule  *bregman.Rule
-	round rounder
+	round Rounder
 	// Payment is computed as base + B·(anchor - L): the same line as
 	// A - B·L, anchored at the largest menu effort so that the floor comes
 	// out exactly.
@@ -111,7 +111,7 @@ func FitRule(r *bregman.Rule, m *Menu, b design.Budget) (*Fit, error) {
 	if err := checkFloor("clamp", m.Clamp, n); err != nil {
 		return nil, err
 	}
-	rd, err := newRounder(b.Unit, b.Rounding)
+	rd, err := NewRounder(b.Unit, b.Rounding)
 	if err != nil {
 		return nil, err
 	}
@@ -203,17 +203,17 @@ func FitRule(r *bregman.Rule, m *Menu, b design.Budget) (*Fit, error) {
 func (f *Fit) exact(effort float64) float64 { return f.base + f.B*(f.anchor-effort) }
 
 // Pay returns A - B·effort rounded to the unit as the table pays it.
-func (f *Fit) Pay(effort float64) float64 { return f.round.round(f.exact(effort)) }
+func (f *Fit) Pay(effort float64) float64 { return f.round.Round(f.exact(effort)) }
 
 // Exact returns A - B·effort without rounding.
 func (f *Fit) Exact(effort float64) float64 { return f.exact(effort) }
 
 // Decimals is the number of decimals that writes every payment exactly,
 // or -1 when payments are not rounded.
-func (f *Fit) Decimals() int { return f.round.decimals() }
+func (f *Fit) Decimals() int { return f.round.Decimals() }
 
 // RoundingDesc says in words how payments are rounded.
-func (f *Fit) RoundingDesc() string { return f.round.describe() }
+func (f *Fit) RoundingDesc() string { return f.round.Describe() }
 
 // Rule is the rule the fit was made for.
 func (f *Fit) Rule() *bregman.Rule { return f.rule }

@@ -2,15 +2,13 @@ package point
 
 import (
 	"context"
-	"encoding/csv"
 	"errors"
 	"fmt"
-	"io"
 	"math"
 	"strconv"
-	"strings"
 
-	"scorewright/generator/lottery"
+	"scorewright/generator/budget"
+	"scorewright/generator/num"
 	"scorewright/generator/table"
 )
 
@@ -26,26 +24,27 @@ type TableSpec struct {
 	Columns int
 	// Unit is the currency rounding unit; 0 means no rounding.
 	Unit float64
-	// Rounding is "nearest" (default), "down" or "up".
+	// Rounding is "nearest" (default), "down" or "up"; see budget.Rounder.
 	Rounding string
 }
 
-// Table is a payment table for point forecasts. Pay[i][j] is what report
-// Reports[i] earns when the outcome is Outcomes[j]; the rule is
-// pay = A - B D(y, x) before rounding.
-type Table struct {
-	Reports  []float64   `json:"reports"`
-	Outcomes []float64   `json:"outcomes"`
-	Pay      [][]float64 `json:"pay"`
-	A        float64     `json:"A"`
-	B        float64     `json:"B"`
-	// Kind is what Pay holds: money, or after Lottery the chance of
-	// winning the prize.
-	Kind string `json:"kind"`
-	// Notes explain how to read the table.
-	Notes []string `json:"notes"`
-	// Cautions close every export.
-	Cautions []string `json:"caution"`
+// Fit is a point-forecast rule fitted to a budget: Pay[i][j] is what
+// report Reports[i] earns when the outcome is Outcomes[j], the rule
+// pay = A - B·D(y, x) rounded as the budget says. Between two columns the
+// contract pays by linear interpolation.
+type Fit struct {
+	Reports  []float64
+	Outcomes []float64
+	Pay      [][]float64
+	A, B     float64
+	// Floor and Cap are the budget; MinPay and MaxPay the smallest and
+	// largest payments in the rounded table.
+	Floor, Cap     float64
+	MinPay, MaxPay float64
+	// Step is the menu spacing.
+	Step  float64
+	gen   *Generator
+	round budget.Rounder
 }
 
 // ErrUnbounded is returned when D is infinite or NaN somewhere on the
@@ -54,9 +53,13 @@ var ErrUnbounded = errors.New("point: the effort is not finite on the table")
 
 // BuildTable fits the rule to the budget over the menu × outcome grid.
 // It honours ctx between rows.
-func (g *Generator) BuildTable(ctx context.Context, spec TableSpec) (*Table, error) {
+func (g *Generator) BuildTable(ctx context.Context, spec TableSpec) (*Fit, error) {
 	if !(spec.Cap > spec.Floor) {
 		return nil, fmt.Errorf("point: cap %g must exceed floor %g", spec.Cap, spec.Floor)
+	}
+	rd, err := budget.NewRounder(spec.Unit, spec.Rounding)
+	if err != nil {
+		return nil, fmt.Errorf("point: %v", err)
 	}
 	step := spec.Step
 	if step == 0 {
@@ -76,22 +79,22 @@ func (g *Generator) BuildTable(ctx context.Context, spec TableSpec) (*Table, err
 	if cols < 2 || cols > 1000 {
 		return nil, fmt.Errorf("point: %d outcome columns; need 2..1000", cols)
 	}
-	t := &Table{Reports: make([]float64, rows), Outcomes: make([]float64, cols), Kind: string(table.KindMoney), Cautions: table.Caution()}
-	for i := range t.Reports {
-		t.Reports[i] = math.Min(g.Lo+float64(i)*step, g.Hi)
+	f := &Fit{Reports: make([]float64, rows), Outcomes: make([]float64, cols), Floor: spec.Floor, Cap: spec.Cap, Step: step, gen: g, round: rd}
+	for i := range f.Reports {
+		f.Reports[i] = math.Min(g.Lo+float64(i)*step, g.Hi)
 	}
-	for j := range t.Outcomes {
-		t.Outcomes[j] = g.Lo + (g.Hi-g.Lo)*float64(j)/float64(cols-1)
+	for j := range f.Outcomes {
+		f.Outcomes[j] = g.Lo + (g.Hi-g.Lo)*float64(j)/float64(cols-1)
 	}
 	ev := g.NewEvaluator()
 	d := make([][]float64, rows)
 	var worst float64
-	for i, x := range t.Reports {
+	for i, x := range f.Reports {
 		if err := ctx.Err(); err != nil {
 			return nil, err
 		}
 		d[i] = make([]float64, cols)
-		for j, y := range t.Outcomes {
+		for j, y := range f.Outcomes {
 			v := ev.Divergence(y, x)
 			if math.IsNaN(v) || math.IsInf(v, 0) {
 				return nil, fmt.Errorf("%w: D(y = %g, x = %g) = %v", ErrUnbounded, y, x, v)
@@ -103,135 +106,184 @@ func (g *Generator) BuildTable(ctx context.Context, spec TableSpec) (*Table, err
 	if worst == 0 {
 		return nil, errors.New("point: the effort is zero everywhere on the table; the generator is affine")
 	}
-	t.A, t.B = spec.Cap, (spec.Cap-spec.Floor)/worst
-	t.Pay = make([][]float64, rows)
+	f.A, f.B = spec.Cap, (spec.Cap-spec.Floor)/worst
+	f.Pay = make([][]float64, rows)
+	f.MinPay, f.MaxPay = math.Inf(1), math.Inf(-1)
 	for i := range d {
-		t.Pay[i] = make([]float64, cols)
+		f.Pay[i] = make([]float64, cols)
 		for j, v := range d[i] {
-			t.Pay[i][j] = round(t.A-t.B*v, spec.Unit, spec.Rounding, spec.Floor, spec.Cap)
-		}
-	}
-	t.Notes = []string{
-		fmt.Sprintf("pay = %.6g - %.6g * D(y, x), D from phi = %s on [%g, %g]", t.A, t.B, g.Source, g.Lo, g.Hi),
-		"for an outcome between two columns, pay by linear interpolation between them: the part of the pay that depends on the report is affine in the outcome, so with interpolation the best menu report is still the one nearest the mean in the rule's divergence D(mean, x)",
-		"paying each column's value for a whole bin instead makes the best report the mean of the binned outcome, which can differ from the mean by up to half a bin",
-	}
-	if spec.Unit > 0 {
-		t.Notes = append(t.Notes, fmt.Sprintf("payments rounded to %g (%s); rounding can make neighbouring reports tie", spec.Unit, roundingName(spec.Rounding)))
-	}
-	return t, nil
-}
-
-// Lottery rewrites the table in place as chances of winning a prize of
-// Cap - Floor (see package lottery), with the explanation, the settling
-// rule and the extra caution.
-func (t *Table) Lottery(floor, cap float64) error {
-	if t.Kind != string(table.KindMoney) {
-		return fmt.Errorf("point: the table holds %s, not money", t.Kind)
-	}
-	for i, row := range t.Pay {
-		for j, v := range row {
-			c, err := lottery.Chance(v, floor, cap)
-			if err != nil {
-				return fmt.Errorf("%w (report %g, outcome %g)", err, t.Reports[i], t.Outcomes[j])
+			// The worst cell pays the floor exactly, whatever the float
+			// noise in A - B·worst.
+			pay := f.A - f.B*v
+			if v == worst {
+				pay = spec.Floor
 			}
-			t.Pay[i][j] = c
+			f.Pay[i][j] = rd.Round(pay)
+			f.MinPay, f.MaxPay = math.Min(f.MinPay, f.Pay[i][j]), math.Max(f.MaxPay, f.Pay[i][j])
 		}
 	}
-	t.Kind = string(lottery.KindChance)
-	t.Notes = append(t.Notes, fmt.Sprintf("each cell is the chance of winning a prize of %g: (pay - %g)/%g", cap-floor, floor, cap-floor), lottery.Why, lottery.Draw)
-	t.Cautions = append(t.Cautions, lottery.Caution)
-	return nil
+	return f, nil
 }
 
-func roundingName(mode string) string {
-	if mode == "" {
-		return "nearest"
+// Recheck is what the rounded table does to honesty. Between columns the
+// table pays by linear interpolation, so a forecaster's expected pay for
+// report i is sum_j w_j Pay[i][j] for weights w on the columns whose
+// mean sum_j w_j y_j is the forecaster's mean; the weights that make a
+// menu item look worst are, by linear programming, on at most two
+// columns around the mean. The re-check therefore tries, for each item
+// x_i and each rival, every point mass and every two-column mixture with
+// mean x_i: exact, not a grid search.
+type Recheck struct {
+	// Passed is true when every menu item is the strict best report for
+	// every forecaster whose mean is that item.
+	Passed bool
+	// Margins[i] is the smallest, over such forecasters and rivals, of
+	// the expected pay of x_i minus that of the rival; Rivals[i] is the
+	// rival that attains it.
+	Margins []float64
+	Rivals  []int
+	// MinMargin is the smallest margin, at item MinItem against MinRival.
+	MinMargin         float64
+	MinItem, MinRival int
+	// Ties and Beaten list the items whose margin is within Tolerance of
+	// zero, or below.
+	Ties, Beaten []int
+	Tolerance    float64
+}
+
+// maxRecheckWork bounds items² × column pairs.
+const maxRecheckWork = 4e8
+
+// Recheck checks every menu item against every rival on the rounded
+// table; it honours ctx between items.
+func (f *Fit) Recheck(ctx context.Context) (*Recheck, error) {
+	R, C := len(f.Reports), len(f.Outcomes)
+	if w := float64(R) * float64(R) * float64(C) * float64(C) / 4; w > maxRecheckWork {
+		return nil, fmt.Errorf("point: the re-check of %d reports × %d columns is too large (%.3g cell pairs; at most %.3g); take a coarser --step", R, C, w, maxRecheckWork)
 	}
-	return mode
-}
-
-// round rounds v to the unit in the given mode and keeps it in [lo, hi].
-func round(v, unit float64, mode string, lo, hi float64) float64 {
-	if unit > 0 {
-		q := v / unit
-		switch mode {
-		case "down":
-			q = math.Floor(q + 1e-9)
-		case "up":
-			q = math.Ceil(q - 1e-9)
-		default:
-			q = math.Round(q)
+	rc := &Recheck{Margins: make([]float64, R), Rivals: make([]int, R), MinMargin: math.Inf(1), MinItem: -1, MinRival: -1,
+		Tolerance: 1e-9 * math.Max(1, math.Max(math.Abs(f.MaxPay), math.Abs(f.MinPay)))}
+	diff := make([]float64, C)
+	for i, m := range f.Reports {
+		if err := ctx.Err(); err != nil {
+			return nil, err
 		}
-		v = q * unit
-	}
-	return math.Min(math.Max(v, lo), hi)
-}
-
-// WriteCSV writes the table as CSV: '#' comment lines with the notes and
-// the caution, a header row "report \ outcome" followed by the outcome
-// values, then one row per report.
-func (t *Table) WriteCSV(w io.Writer) error {
-	for _, n := range t.Notes {
-		if _, err := fmt.Fprintf(w, "# note: %s\n", n); err != nil {
-			return err
+		rc.Margins[i], rc.Rivals[i] = math.Inf(1), -1
+		for k := range f.Reports {
+			if k == i {
+				continue
+			}
+			for j := range diff {
+				diff[j] = f.Pay[i][j] - f.Pay[k][j]
+			}
+			if v := worstMixture(diff, f.Outcomes, m); v < rc.Margins[i] {
+				rc.Margins[i], rc.Rivals[i] = v, k
+			}
+		}
+		switch v := rc.Margins[i]; {
+		case math.Abs(v) <= rc.Tolerance:
+			rc.Ties = append(rc.Ties, i)
+		case v < 0:
+			rc.Beaten = append(rc.Beaten, i)
+		}
+		if rc.Margins[i] < rc.MinMargin {
+			rc.MinMargin, rc.MinItem, rc.MinRival = rc.Margins[i], i, rc.Rivals[i]
 		}
 	}
-	for _, c := range t.Cautions {
-		if _, err := fmt.Fprintf(w, "# caution: %s\n", c); err != nil {
-			return err
+	rc.Passed = len(rc.Ties) == 0 && len(rc.Beaten) == 0
+	return rc, nil
+}
+
+// worstMixture is the smallest sum_j w_j diff_j over weights w on at most
+// two columns with mean m (ys ascending), a point mass when m is a column.
+func worstMixture(diff, ys []float64, m float64) float64 {
+	best := math.Inf(1)
+	tol := 1e-12 * math.Max(1, math.Abs(m))
+	for j, y := range ys {
+		if math.Abs(y-m) <= tol {
+			best = math.Min(best, diff[j])
+		}
+		if y >= m-tol {
+			continue
+		}
+		for l := len(ys) - 1; l > j && ys[l] > m+tol; l-- {
+			t := (m - y) / (ys[l] - y)
+			best = math.Min(best, (1-t)*diff[j]+t*diff[l])
 		}
 	}
-	cw := csv.NewWriter(w)
-	if err := cw.Write(t.header()); err != nil {
-		return err
+	return best
+}
+
+// Verdict says in one sentence what the re-check found.
+func (rc *Recheck) Verdict(f *Fit) string {
+	M := len(f.Reports)
+	where := ""
+	if rc.MinItem >= 0 && rc.MinRival >= 0 {
+		where = fmt.Sprintf(" (smallest margin %s at report %s against %s)", table.FormatNumber(rc.MinMargin), short(f.Reports[rc.MinItem]), short(f.Reports[rc.MinRival]))
 	}
-	for i := range t.Reports {
-		if err := cw.Write(t.row(i)); err != nil {
-			return err
+	scope := "every forecaster whose mean is that report (every point mass and two-column mixture with that mean, pay interpolated between columns; exact), after scaling and rounding"
+	if rc.Passed {
+		return fmt.Sprintf("each of the %d menu reports is the strict best report for %s%s; tie tolerance %.3g", M, scope, where, rc.Tolerance)
+	}
+	return fmt.Sprintf("%d of the %d menu reports are not the strict best report for %s (%d tied, %d beaten)%s; tie tolerance %.3g",
+		len(rc.Ties)+len(rc.Beaten), M, scope, len(rc.Ties), len(rc.Beaten), where, rc.Tolerance)
+}
+
+// Info is what a table's record needs beyond the fit.
+type Info struct {
+	Title   string
+	Preset  string
+	Params  map[string]float64
+	Version string
+	Date    string
+}
+
+// Table builds the export of f with its record: the same metadata block,
+// warnings and cautions as a table over outcomes. A failed re-check (or
+// none, rc nil) puts a warning first.
+func (f *Fit) Table(rc *Recheck, info Info) *table.Table {
+	g := f.gen
+	labels := make([]string, len(f.Outcomes))
+	for j, y := range f.Outcomes {
+		labels[j] = "y = " + short(y)
+	}
+	reports := make([][]float64, len(f.Reports))
+	vals := make([][]float64, len(f.Pay))
+	for i, x := range f.Reports {
+		reports[i] = []float64{x}
+		vals[i] = append([]float64(nil), f.Pay[i]...)
+	}
+	meta := table.Meta{
+		Title: info.Title, Formula: g.Source, Preset: info.Preset, Params: info.Params,
+		Outcomes: labels,
+		Menu:     fmt.Sprintf("point forecasts x from %s to %s in steps of %s (%d reports); outcome columns y from %s to %s (%d)", short(g.Lo), short(f.Reports[len(f.Reports)-1]), short(f.Step), len(f.Reports), short(g.Lo), short(g.Hi), len(f.Outcomes)),
+		Payment:  fmt.Sprintf("pay(x, y) = A - B·D(y, x), D(y, x) = phi(x) + phi'(x)(y - x) - phi(y) with phi the formula on [%s, %s], rounded as stated; for an outcome between two columns, pay by linear interpolation between them", short(g.Lo), short(g.Hi)),
+		A:        num.Float(f.A), B: num.Float(f.B),
+		Budget:   fmt.Sprintf("payments span [%s, %s] over the menu and the outcome columns (before rounding): a perfect forecast pays the cap, the worst cell the floor", table.FormatNumber(f.Floor), table.FormatNumber(f.Cap)),
+		Rounding: f.round.Describe(), Unit: num.Float(f.round.Unit()), RoundingMode: f.round.Mode(),
+		Floor: num.Float(f.Floor), Cap: num.Float(f.Cap),
+		Notes: []string{
+			"with interpolation, the part of the pay that depends on the report is affine in the outcome, so the best report is the mean of the forecaster's distribution (before rounding) and on the menu the one nearest it in D(mean, x)",
+			"paying each column's value for a whole bin instead makes the best report the mean of the binned outcome, which can differ from the mean by up to half a bin",
+			fmt.Sprintf("buyer's worst case per forecast: %s (the largest payment in the table); the smallest is %s", table.FormatNumber(f.MaxPay), table.FormatNumber(f.MinPay)),
+		},
+		Version: info.Version, Date: info.Date,
+		Cautions: table.Caution(),
+	}
+	switch {
+	case rc == nil:
+		meta.Verdict, meta.MinMargin = "not re-checked", num.Float(math.NaN())
+		meta.Warnings = []string{"this table was NOT re-checked after scaling and rounding; do not sign it before it is."}
+	default:
+		meta.Passed, meta.Verdict, meta.MinMargin = rc.Passed, rc.Verdict(f), num.Float(rc.MinMargin)
+		if !rc.Passed {
+			meta.Warnings = []string{"this table FAILED the menu re-check after scaling and rounding and was exported only on request (--force): some forecasters would gain by not reporting their mean. Do not sign it as it stands."}
 		}
 	}
-	cw.Flush()
-	return cw.Error()
+	return &table.Table{
+		Kind: table.KindMoney, ValueName: "pay", Decimals: f.round.Decimals(),
+		ReportName: "report x", Labels: labels, Reports: reports, Values: vals, Meta: meta,
+	}
 }
 
-// WriteMarkdown writes the table as a Markdown table followed by the notes
-// and the caution.
-func (t *Table) WriteMarkdown(w io.Writer) error {
-	var b strings.Builder
-	b.WriteString("| " + strings.Join(t.header(), " | ") + " |\n|")
-	for range t.header() {
-		b.WriteString("---:|")
-	}
-	b.WriteString("\n")
-	for i := range t.Reports {
-		b.WriteString("| " + strings.Join(t.row(i), " | ") + " |\n")
-	}
-	b.WriteString("\n")
-	for _, n := range t.Notes {
-		b.WriteString("- " + n + "\n")
-	}
-	for _, c := range t.Cautions {
-		b.WriteString("- **Caution:** " + c + "\n")
-	}
-	_, err := io.WriteString(w, b.String())
-	return err
-}
-
-func (t *Table) header() []string {
-	head := []string{"report \\ outcome"}
-	for _, y := range t.Outcomes {
-		head = append(head, fmtNum(y))
-	}
-	return head
-}
-
-func (t *Table) row(i int) []string {
-	row := []string{fmtNum(t.Reports[i])}
-	for _, p := range t.Pay[i] {
-		row = append(row, fmtNum(p))
-	}
-	return row
-}
-
-func fmtNum(v float64) string { return strconv.FormatFloat(v, 'g', 10, 64) }
+func short(v float64) string { return strconv.FormatFloat(v, 'g', 6, 64) }

@@ -43,11 +43,16 @@ const (
 // n = 3: one panel per outcome over the simplex triangle, colour = value.
 // n > 3: one panel per outcome, the value when that outcome happens
 // against the probability the report gave it (a slice through the menu).
+// Point forecasts: one panel, a curve per outcome column over the report.
 func (t *Table) writeFigure(w io.Writer, format string) error {
 	n := len(t.Labels)
 	var plots []*plot.Plot
 	var err error
 	switch {
+	case t.ReportName != "":
+		var p *plot.Plot
+		p, err = t.pointPlot()
+		plots = []*plot.Plot{p}
 	case n == 2:
 		var p *plot.Plot
 		p, err = t.binaryPlot()
@@ -82,6 +87,7 @@ func (t *Table) writeFigure(w io.Writer, format string) error {
 	textH := lineH*vg.Length(len(lines)) + vg.Centimeter/2
 	ph := panelHeight
 	switch {
+	case t.ReportName != "":
 	case n == 3:
 		// Keep the simplex triangle close to equilateral.
 		ph = trianglePanelHeight
@@ -102,7 +108,7 @@ func (t *Table) writeFigure(w io.Writer, format string) error {
 	plotArea := dc
 	plotArea.Min.Y += textH
 	tiles := draw.Tiles{Rows: rows, Cols: cols, PadX: vg.Centimeter / 2, PadY: vg.Centimeter / 2,
-		PadTop: vg.Centimeter / 4, PadLeft: vg.Centimeter / 4, PadRight: vg.Centimeter / 4}
+		PadTop: vg.Centimeter / 4, PadLeft: vg.Centimeter / 4, PadRight: vg.Centimeter / 2}
 	canvases := plot.Align(grid, tiles, plotArea)
 	for r := range grid {
 		for c := range grid[r] {
@@ -173,8 +179,36 @@ func (t *Table) valueAxis() string {
 
 // binaryPlot draws one curve per outcome against the event's probability.
 func (t *Table) binaryPlot() (*plot.Plot, error) {
+	p, err := t.curvePlot("report: probability of " + t.Labels[0])
+	if err != nil {
+		return nil, err
+	}
+	// Headroom above the curves for the legend, which would otherwise sit
+	// on the curve that starts high at the left edge.
+	p.Y.Max += 0.25 * (p.Y.Max - p.Y.Min)
+	return p, nil
+}
+
+// pointPlot draws, for a point-forecast table, one curve per outcome
+// column against the report. Each curve peaks where the report equals
+// that outcome, so the legend goes into room added on the right, past
+// every peak.
+func (t *Table) pointPlot() (*plot.Plot, error) {
+	p, err := t.curvePlot(t.ReportName + " (point forecast)")
+	if err != nil {
+		return nil, err
+	}
+	p.Legend.Left = false
+	p.Legend.TextStyle.Font.Size = 9
+	p.X.Max += 0.3 * (p.X.Max - p.X.Min)
+	return p, nil
+}
+
+// curvePlot draws one curve per outcome (column) against the first entry
+// of each report, with a legend at the top left.
+func (t *Table) curvePlot(xLabel string) (*plot.Plot, error) {
 	p := plot.New()
-	p.X.Label.Text = "report: probability of " + t.Labels[0]
+	p.X.Label.Text = xLabel
 	p.Y.Label.Text = t.valueAxis()
 	p.Legend.Top = true
 	p.Legend.Left = true
@@ -196,9 +230,6 @@ func (t *Table) binaryPlot() (*plot.Plot, error) {
 		p.Legend.Add(t.ValueHeader(k), line, points)
 	}
 	p.Add(plotter.NewGrid())
-	// Headroom above the curves for the legend, which would otherwise sit
-	// on the curve that starts high at the left edge.
-	p.Y.Max += 0.25 * (p.Y.Max - p.Y.Min)
 	return p, nil
 }
 
@@ -286,8 +317,12 @@ func (t *Table) slicePlots() ([]*plot.Plot, error) {
 		p := plot.New()
 		p.Title.Text = t.ValueHeader(k)
 		p.Title.TextStyle.Font.Size = 9
+		// A third of the figure's width: axis labels at the title's size,
+		// so that a long outcome name is not cut at the panel's edge.
 		p.X.Label.Text = "report: probability of " + t.Labels[k]
+		p.X.Label.TextStyle.Font.Size = 9
 		p.Y.Label.Text = t.valueAxis()
+		p.Y.Label.TextStyle.Font.Size = 9
 		xys := make(plotter.XYs, len(t.Reports))
 		for i, r := range t.Reports {
 			xys[i] = plotter.XY{X: r[k], Y: finiteOr(t.Values[i][k])}

@@ -1,0 +1,159 @@
+package main
+
+import (
+	"bytes"
+	"compress/zlib"
+	"encoding/json"
+	"image/png"
+	"io"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// pdfText inflates every stream of a PDF (gonum's vgpdf compresses page
+// content with Flate) so that the text drawn on the page can be searched.
+func pdfText(t *testing.T, b []byte) string {
+	t.Helper()
+	var all strings.Builder
+	for rest := b; ; {
+		i := bytes.Index(rest, []byte("stream\n"))
+		if i < 0 {
+			break
+		}
+		rest = rest[i+len("stream\n"):]
+		j := bytes.Index(rest, []byte("endstream"))
+		if j < 0 {
+			break
+		}
+		if r, err := zlib.NewReader(bytes.NewReader(rest[:j])); err == nil {
+			data, _ := io.ReadAll(r)
+			all.Write(data)
+		}
+		rest = rest[j:]
+	}
+	return all.String()
+}
+
+// TestEveryExportCarriesTheCaution: every format of every kind of table
+// (over outcomes, point forecasts, and both as lotteries) carries the
+// metadata block and the caution, and lottery exports the gambling
+// caution besides. PNG text cannot be searched, so a PNG must decode and
+// be taller than the panels alone (the metadata block is drawn under them).
+func TestEveryExportCarriesTheCaution(t *testing.T) {
+	t.Setenv("SOURCE_DATE_EPOCH", "1790000000")
+	dir := t.TempDir()
+	kinds := []struct {
+		name string
+		args []string
+	}{
+		{"frost", []string{"--outcomes", "frost,clear", "--preset", "quadratic", "--floor", "0", "--cap", "100", "--step", "0.1", "--unit", "1"}},
+		{"harvest", []string{"--outcomes", "below,near,above", "--ordered", "--preset", "ranked", "--floor", "0", "--cap", "40", "--step", "0.25", "--unit", "0.5"}},
+		{"milk", []string{"--interval", "20,40", "--preset", "squared-error", "--floor", "0", "--cap", "50", "--step", "2", "--unit", "0.5"}},
+	}
+	for _, k := range kinds {
+		for _, lottery := range []bool{false, true} {
+			for _, format := range []string{"csv", "md", "json", "tex", "svg", "png", "pdf"} {
+				name := k.name + "." + format
+				args := append([]string{"table"}, k.args...)
+				if lottery {
+					name = k.name + "-lottery." + format
+					args = append(args, "--lottery")
+				}
+				path := filepath.Join(dir, name)
+				if code, _, errs := runCmd(t, append(args, "--out", path)...); code != 0 {
+					t.Errorf("%s: exit %d: %s", name, code, errs)
+					continue
+				}
+				b, err := os.ReadFile(path)
+				if err != nil {
+					t.Fatal(err)
+				}
+				text := string(b)
+				switch format {
+				case "png":
+					img, err := png.Decode(bytes.NewReader(b))
+					if err != nil {
+						t.Errorf("%s: %v", name, err)
+					} else if w, h := img.Bounds().Dx(), img.Bounds().Dy(); 3*h < 2*w {
+						// The tallest panel alone is half the width.
+						t.Errorf("%s: %d×%d pixels; no room for the metadata block", name, w, h)
+					}
+					continue
+				case "pdf":
+					if !strings.HasPrefix(text, "%PDF") {
+						t.Errorf("%s does not start with %%PDF", name)
+					}
+					text = pdfText(t, b)
+				case "json":
+					var v map[string]any
+					if err := json.Unmarshal(b, &v); err != nil {
+						t.Errorf("%s: not JSON: %v", name, err)
+					}
+				}
+				want := []string{"mathematics, not law", "regulated", "qualified counsel", "scorewright 0.1.0-dev", "2026-09-21", "smallest margin"}
+				if format == "json" {
+					want[3], want[5] = `"tool_version": "0.1.0-dev"`, `"min_margin"`
+				}
+				if lottery {
+					want = append(want, "gambling", "Hossain")
+				}
+				for _, w := range want {
+					if !strings.Contains(text, w) {
+						t.Errorf("%s lacks %q", name, w)
+					}
+				}
+			}
+		}
+	}
+}
+
+// TestPointTableRefusedWhenRoundingTies: squared error on [0, 10], cap
+// 100, floor 0 pays 100 - (y - x)^2; rounded to 25, a forecaster sure of
+// y = 5 gets 100 from x = 5 and from x = 4 (99 rounds to 100): a tie
+// (derived by hand), so the table is refused without --force (exit 1,
+// nothing written) and carries a warning with it.
+func TestPointTableRefusedWhenRoundingTies(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "milk.csv")
+	args := []string{"table", "--interval", "0,10", "--preset", "squared-error", "--floor", "0", "--cap", "100", "--step", "1", "--unit", "25", "--out", path}
+	code, out, errs := runCmd(t, args...)
+	if code != 1 || !strings.Contains(errs, "refused") || !strings.Contains(out, "re-check  FAILED") {
+		t.Errorf("exit %d\n%s%s", code, out, errs)
+	}
+	if _, err := os.Stat(path); !os.IsNotExist(err) {
+		t.Errorf("a refused table was written: %v", err)
+	}
+	code, _, _ = runCmd(t, append(args, "--force")...)
+	b, _ := os.ReadFile(path)
+	if code != 1 || !strings.HasPrefix(string(b), "# WARNING: this table FAILED") {
+		t.Errorf("--force: exit %d, file starts %.80q", code, b)
+	}
+}
+
+// TestLotterySummarySaysLottery: the --json summary of a lottery table
+// names the prize and carries the gambling caution, for tables over
+// outcomes and point tables alike. Brier rule on [10, 50]: the prize is
+// 50 - 10 = 40.
+func TestLotterySummarySaysLottery(t *testing.T) {
+	for _, rule := range [][]string{
+		{"--outcomes", "frost,clear", "--preset", "quadratic", "--floor", "10", "--cap", "50", "--step", "0.25"},
+		{"--interval", "20,40", "--preset", "squared-error", "--floor", "10", "--cap", "50", "--step", "5"},
+	} {
+		args := append(append([]string{"table"}, rule...), "--lottery", "--json", "--out", filepath.Join(t.TempDir(), "t.md"))
+		code, out, errs := runCmd(t, args...)
+		var got struct {
+			Lottery *struct{ Prize, Floor, Cap float64 } `json:"lottery"`
+			Caution []string                             `json:"caution"`
+		}
+		if err := json.Unmarshal([]byte(out), &got); err != nil || code != 0 {
+			t.Fatalf("%v: exit %d, %v\n%s%s", rule, code, err, out, errs)
+		}
+		if got.Lottery == nil || got.Lottery.Prize != 40 || got.Lottery.Floor != 10 {
+			t.Errorf("%v: lottery %+v", rule, got.Lottery)
+		}
+		if !strings.Contains(strings.Join(got.Caution, " "), "gambling") {
+			t.Errorf("%v: caution %q", rule, got.Caution)
+		}
+	}
+}
