@@ -261,3 +261,13 @@ func TestCheckEmphasis(t *testing.T) {
 		t.Errorf("exit %d: %s%s", code, out, errs)
 	}
 }
+
+// TestDistortUnboundedOffersOnlyItsFlags: distort has no --clamp, so the
+// log rule on a menu that reaches 0 is refused with the one way out it
+// takes, --report-floor, on one line.
+func TestDistortUnboundedOffersOnlyItsFlags(t *testing.T) {
+	code, _, errs := runCmd(t, "distort", "--outcomes", "frost,clear", "--preset", "log", "--floor", "0", "--cap", "100", "--step", "0.05", "--utility", "crra:2", "--wealth", "10")
+	if code != 2 || !strings.Contains(errs, "--report-floor") || strings.Contains(errs, "clamp") || strings.Count(errs, "\n") != 1 {
+		t.Errorf("exit %d, stderr %q", code, errs)
+	}
+}
