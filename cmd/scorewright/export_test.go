@@ -157,3 +157,40 @@ func TestLotterySummarySaysLottery(t *testing.T) {
 		}
 	}
 }
+
+// TestDesignFileTableRecordsWeights: a four-way storm outlook from a
+// design file, weighted quadratic with weights (1, 1, 2, 4) and ordered
+// outcomes. The weights and the order change the rule, so the table's
+// record must carry them. The effort is sum_i w_i (p_i - [i = k])^2; the
+// worst is report (0, 0, 1, 0) when "hurricane" happens, 2 + 4 = 6, the
+// best 0, so on [0, 30] B = 30/6 = 5 and A = 30 (derived by hand).
+func TestDesignFileTableRecordsWeights(t *testing.T) {
+	dir := t.TempDir()
+	design := filepath.Join(dir, "storm.toml")
+	src := `version = 1
+title = "Storm-category outlook"
+outcomes = ["calm", "gale", "storm", "hurricane"]
+ordered = true
+mode = "generator"
+formula = "sum(w*p*(1-p))"
+weights = [1, 1, 2, 4]
+
+[budget]
+floor = 0
+cap = 30
+step = 0.25
+unit = 0.5
+`
+	if err := os.WriteFile(design, []byte(src), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, out, errs := runCmd(t, "table", "--design", design, "--format", "csv")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	for _, want := range []string{"# title: Storm-category outlook\n", "# outcome weights: 1, 1, 2, 4\n", "# outcomes: calm, gale, storm, hurricane (ordered)\n", "# A: 30\n", "# B: 5\n"} {
+		if !strings.Contains(out, want) {
+			t.Errorf("CSV lacks %q:\n%s", want, out)
+		}
+	}
+}

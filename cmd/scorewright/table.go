@@ -111,6 +111,7 @@ func runTable(e *env, args []string) error {
 	}
 	tb := fit.Table(rc, budget.Info{
 		Title: d.Title, Formula: d.Formula, Preset: d.Preset, Params: d.Params,
+		Weights: d.Weights, Ordered: d.Ordered,
 		Version: version, Date: exportDate(),
 	})
 	var lot *lotteryJSON

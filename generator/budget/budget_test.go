@@ -539,3 +539,30 @@ func flat(rows [][]float64) []float64 {
 	}
 	return out
 }
+
+// TestFitHitsFloorAndCapExactly: unrounded, the menu's largest effort pays
+// the floor and its smallest the cap, bit for bit. The log rule clamped at
+// 0.01 on a 0.05 menu fitted to [0, 50] gives B = 50/(Lmax - Lmin), and
+// floor + B·(Lmax - Lmin) is 50.00000000000001 in floats; the table must
+// read 50 (derived by hand: the cap is the definition of the fit).
+func TestFitHitsFloorAndCapExactly(t *testing.T) {
+	m := stepMenu(t, 2, 0.05, 0)
+	m.Clamp = 0.01
+	for _, c := range []struct {
+		src        string
+		m          *Menu
+		floor, cap float64
+	}{
+		{"-sum(p*ln(p))", m, 0, 50},
+		{"-sum(p*ln(p))", stepMenu(t, 2, 0.05, 0.01), 3, 47.3},
+		{"1 - sum(p^2)", stepMenu(t, 2, 0.1, 0), 0.1, 0.7},
+	} {
+		f, err := FitRule(rule(t, c.src, 2), c.m, design.Budget{Floor: c.floor, Cap: c.cap})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if f.MinPay != c.floor || f.MaxPay != c.cap {
+			t.Errorf("%s on [%g, %g]: payments span [%v, %v]", c.src, c.floor, c.cap, f.MinPay, f.MaxPay)
+		}
+	}
+}

@@ -17,6 +17,9 @@ type Info struct {
 	Formula string
 	Preset  string
 	Params  map[string]float64
+	// Weights and Ordered are the design's outcome weights and order.
+	Weights []float64
+	Ordered bool
 	Version string
 	// Date is written as given, so tests can fix it.
 	Date string
@@ -155,6 +158,7 @@ func (f *Fit) Table(rc *Recheck, info Info) *table.Table {
 	}
 	meta := table.Meta{
 		Title: info.Title, Formula: info.Formula, Preset: info.Preset, Params: info.Params,
+		Weights: num.Floats(info.Weights), Ordered: info.Ordered,
 		Outcomes: append([]string(nil), f.Labels...),
 		Menu:     f.MenuDesc(), Payment: payment,
 		A: num.Float(f.A), B: num.Float(f.B),

@@ -56,11 +56,16 @@ type Table struct {
 // to JSON as numbers and to the other formats inside the Budget and
 // Rounding sentences.
 type Meta struct {
-	Title    string             `json:"title,omitempty"`
-	Formula  string             `json:"formula"`
-	Preset   string             `json:"preset,omitempty"`
-	Params   map[string]float64 `json:"params,omitempty"`
-	Outcomes []string           `json:"outcomes"`
+	Title   string             `json:"title,omitempty"`
+	Formula string             `json:"formula"`
+	Preset  string             `json:"preset,omitempty"`
+	Params  map[string]float64 `json:"params,omitempty"`
+	// Weights are the outcome weights (w inside sum), when the rule has
+	// them; Ordered says the outcomes are ordered (csum). Both change the
+	// rule, so a table without them could not be made again.
+	Weights  []num.Float `json:"weights,omitempty"`
+	Ordered  bool        `json:"ordered,omitempty"`
+	Outcomes []string    `json:"outcomes"`
 	// Menu describes the reports the contract allows.
 	Menu string `json:"menu"`
 	// Payment states the payment formula in words.
@@ -111,7 +116,18 @@ func (m *Meta) Fields() []Field {
 	add("formula", formulaLine(m.Formula))
 	add("preset", m.Preset)
 	add("parameters", formatParams(m.Params))
-	add("outcomes", strings.Join(m.Outcomes, ", "))
+	if len(m.Weights) > 0 {
+		w := make([]string, len(m.Weights))
+		for i, v := range m.Weights {
+			w[i] = FormatNumber(float64(v))
+		}
+		add("outcome weights", strings.Join(w, ", "))
+	}
+	outcomes := strings.Join(m.Outcomes, ", ")
+	if m.Ordered {
+		outcomes += " (ordered)"
+	}
+	add("outcomes", outcomes)
 	add("menu", m.Menu)
 	add("payment", m.Payment)
 	add("A", FormatNumber(float64(m.A)))
