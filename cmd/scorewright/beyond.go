@@ -49,7 +49,7 @@ func lotteryTable(tb *table.Table, lo, hi float64) (*lotteryJSON, error) {
 // printLottery adds the lottery line to a table summary.
 func printLottery(w io.Writer, l *lotteryJSON) {
 	if l != nil {
-		fmt.Fprintf(w, "lottery\tthe table pays a chance (pay - %s)/%s of winning a prize of %s (%s for certain besides); the re-check below is of the money table\n",
+		fmt.Fprintf(w, "lottery\teach cell is the chance (pay - %s)/%s of winning a prize of %s, besides %s paid for certain; margins below are in money\n",
 			table.FormatNumber(float64(l.Floor)), table.FormatNumber(float64(l.Prize)), table.FormatNumber(float64(l.Prize)), table.FormatNumber(float64(l.Floor)))
 	}
 }
