@@ -194,3 +194,50 @@ unit = 0.5
 		}
 	}
 }
+
+// csvRows returns the non-comment lines of a CSV export.
+func csvRows(s string) []string {
+	var rows []string
+	for _, l := range strings.Split(strings.TrimSpace(s), "\n") {
+		if !strings.HasPrefix(l, "#") {
+			rows = append(rows, l)
+		}
+	}
+	return rows
+}
+
+// TestLotteryChanceByHand: Brier rule for frost nights on [10, 50], step
+// 0.25, unit 1. Derived by hand: the largest effort is 2, so B = 40/2 = 20
+// and A = 50; at report 0.75, L(frost) = 2·0.25² = 0.125 pays 47.5 -> 48
+// (halves away from zero) and L(clear) = 2·0.75² = 1.125 pays 27.5 -> 28;
+// as chances of a prize of 40 above the 10 paid for certain:
+// (48 - 10)/40 = 0.95 and (28 - 10)/40 = 0.45.
+func TestLotteryChanceByHand(t *testing.T) {
+	code, out, errs := runCmd(t, "table", "--outcomes", "frost,clear", "--preset", "quadratic", "--floor", "10", "--cap", "50", "--step", "0.25", "--unit", "1", "--lottery", "--format", "csv")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	rows := csvRows(out)
+	if len(rows) != 6 || rows[0] != "report frost,report clear,chance if frost,chance if clear" || rows[4] != "0.75,0.25,0.95,0.45" {
+		t.Errorf("rows %q", rows)
+	}
+}
+
+// TestConstantEmphasisIsTheBrierTable: a constant weight w(c) = 1 gives
+// H(p) = p(1 - p)/2, a quarter of the Brier generator 2p(1 - p)
+// (Schervish 1989; Buja, Stuetzle & Shen 2005, a = b = 1). A positive
+// scale is absorbed by B when both are fitted to the same budget, so the
+// two tables must agree cell for cell; the metadata differs only in the
+// formula and B (B is 4 times larger for the emphasis rule).
+func TestConstantEmphasisIsTheBrierTable(t *testing.T) {
+	budget := []string{"--floor", "0", "--cap", "80", "--step", "0.05", "--unit", "0.01", "--format", "csv"}
+	_, brier, _ := runCmd(t, append([]string{"table", "--outcomes", "frost,clear", "--preset", "quadratic"}, budget...)...)
+	_, emph, errs := runCmd(t, append([]string{"table", "--outcomes", "frost,clear", "--emphasis", "1"}, budget...)...)
+	b, e := csvRows(brier), csvRows(emph)
+	if len(b) != 22 || strings.Join(b, "\n") != strings.Join(e, "\n") {
+		t.Errorf("tables differ:\nBrier %q\nemphasis %q\n%s", b, e, errs)
+	}
+	if !strings.Contains(brier, "# B: 40\n") || !strings.Contains(emph, "# B: 160\n") {
+		t.Errorf("B: Brier 80/2 = 40, emphasis 80/0.5 = 160 (derived by hand)")
+	}
+}

@@ -566,3 +566,33 @@ func TestFitHitsFloorAndCapExactly(t *testing.T) {
 		}
 	}
 }
+
+// TestClampGapAgainstClosedForm: log rule clamped at c = 0.01 on a 0.05
+// menu fitted to [0, 50]. Derived by hand: a forecaster with belief
+// q = (1 - e, e), e < c, is paid for the truthful report as for
+// (1 - e, c)/(1 - e + c) and for the menu item (1, 0) as for
+// (1, c)/(1 + c). The expected log efforts differ by
+//
+//	f(e) = -(1 - e) ln(1 - e) + ln((1 - e + c)/(1 + c)),
+//
+// positive on (0, c) (f(c/2) = 2.47e-5), so the clamp pays B·f(e) for
+// reporting certainty. The search probes e = c/4, c/2, 3c/4, so it must
+// find at least B·f(c/2) and at most B·max f.
+func TestClampGapAgainstClosedForm(t *testing.T) {
+	const c = 0.01
+	m := stepMenu(t, 2, 0.05, 0)
+	m.Clamp = c
+	f, rc := fit(t, rule(t, "-sum(p*ln(p))", 2), m, design.Budget{Floor: 0, Cap: 50})
+	gap := func(e float64) float64 { return -(1-e)*math.Log(1-e) + math.Log((1-e+c)/(1+c)) }
+	best := 0.0
+	for i := 1; i < 10000; i++ {
+		best = math.Max(best, gap(c*float64(i)/10000))
+	}
+	lo, hi := f.B*gap(c/2), f.B*best
+	if g := rc.ClampGap; g == nil || g.Max < lo-1e-12 || g.Max > hi+1e-12 {
+		t.Fatalf("clamp gap %+v, want within [%.6g, %.6g]", g, lo, hi)
+	}
+	if math.Abs(lo-2.47e-5*f.B) > 0.01e-5*f.B {
+		t.Errorf("f(c/2)·B = %g; the hand value is 2.47e-5·B = %g", lo, 2.47e-5*f.B)
+	}
+}
