@@ -161,7 +161,7 @@ func runDistort(e *env, args []string) error {
 		return writeJSON(e.stdout, out)
 	}
 	fmt.Fprintf(e.stdout, "utility: %s of initial wealth %g plus pay\n", u, *wealth)
-	fmt.Fprintf(e.stdout, "pay = %.6g - %.6g * effort (fitted to the budget on the menu: %s)\n", fit.A, fit.B, menu.Desc)
+	fmt.Fprintf(e.stdout, "pay = %.6g - %.6g * effort (fitted to the budget on the menu: %s)\n", fit.A, fit.B, fit.MenuDesc())
 	fmt.Fprintf(e.stdout, "belief %s: best report %s, %.3g probability points away; menu pick %s\n", num.Format(best.Belief), num.Format(best.Report), best.Size, num.Format(pick))
 	fmt.Fprintf(e.stdout, "expected pay %.6g against %.6g for the truthful report: what the forecaster gives up in expected pay for the risk they prefer\n", best.ExpectedPay, best.TruthfulPay)
 	fmt.Fprintf(e.stdout, "distortion curve over %d beliefs (%s): largest %.3g points, belief %s -> report %s\n", len(curve.Points), along, curve.Largest.Size, num.Format(curve.Largest.Belief), num.Format(curve.Largest.Report))

@@ -171,8 +171,12 @@ func wrap(s string, width int) []string {
 }
 
 func (t *Table) valueAxis() string {
-	if t.Kind == KindMoney {
+	switch {
+	case t.Kind == KindMoney:
 		return t.ValueName
+	case strings.Contains(string(t.Kind), t.ValueName):
+		// "chance of the prize", not "chance (chance of the prize)".
+		return string(t.Kind)
 	}
 	return fmt.Sprintf("%s (%s)", t.ValueName, t.Kind)
 }
