@@ -382,34 +382,17 @@ func runTablePoint(e *env, d *design.Design, format string, tf *tableFlags) erro
 // pointTableSummary is what table --json prints for a point design; the
 // names follow the summary of a table over outcomes.
 type pointTableSummary struct {
-	Interval []num.Float      `json:"interval"`
-	Menu     menuJSON         `json:"menu"`
-	Columns  []num.Float      `json:"outcome_columns"`
-	A        num.Float        `json:"A"`
-	B        num.Float        `json:"B"`
-	Floor    num.Float        `json:"floor"`
-	Cap      num.Float        `json:"cap"`
-	Unit     num.Float        `json:"unit"`
-	Rounding string           `json:"rounding"`
-	MinPay   num.Float        `json:"min_pay"`
-	MaxPay   num.Float        `json:"max_pay"`
-	Recheck  pointRecheckJSON `json:"recheck"`
-	Margins  []marginJSON     `json:"margins"`
-	Lottery  *lotteryJSON     `json:"lottery,omitempty"`
-	Output   tableOutput      `json:"output"`
-	Notes    []string         `json:"notes"`
-	Caution  []string         `json:"caution"`
+	Interval []num.Float `json:"interval"`
+	Menu     menuJSON    `json:"menu"`
+	Columns  []num.Float `json:"outcome_columns"`
+	fitJSON
+	Recheck pointRecheckJSON `json:"recheck"`
+	exportJSON
 }
 
 type pointRecheckJSON struct {
-	Passed    bool          `json:"passed"`
-	Verdict   string        `json:"verdict"`
-	MinMargin num.Float     `json:"min_margin"`
-	At        []num.Float   `json:"at"`
-	Rival     []num.Float   `json:"rival,omitempty"`
-	Ties      [][]num.Float `json:"ties"`
-	Beaten    [][]num.Float `json:"beaten"`
-	Tolerance num.Float     `json:"tolerance"`
+	recheckCore
+	Grid recheckGridJSON `json:"grid"`
 }
 
 func newPointTableSummary(f *gpoint.Fit, rc *gpoint.Recheck, tb *table.Table, format, out string) *pointTableSummary {
@@ -431,14 +414,11 @@ func newPointTableSummary(f *gpoint.Fit, rc *gpoint.Recheck, tb *table.Table, fo
 		Interval: num.Floats([]float64{f.Reports[0], f.Outcomes[len(f.Outcomes)-1]}),
 		Menu:     menuJSON{Desc: tb.Meta.Menu, Items: len(f.Reports), First: rep(0), Last: rep(last)},
 		Columns:  num.Floats(f.Outcomes),
-		A:        num.Float(f.A), B: num.Float(f.B), Floor: num.Float(f.Floor), Cap: num.Float(f.Cap),
-		Unit: tb.Meta.Unit, Rounding: tb.Meta.Rounding,
-		MinPay: num.Float(f.MinPay), MaxPay: num.Float(f.MaxPay),
-		Recheck: pointRecheckJSON{Passed: rc.Passed, Verdict: rc.Verdict(f), MinMargin: num.Float(rc.MinMargin),
-			At: rep(rc.MinItem), Rival: rep(rc.MinRival), Ties: reps(rc.Ties), Beaten: reps(rc.Beaten), Tolerance: num.Float(rc.Tolerance)},
-		Output:  tableOutput{Format: format, File: out},
-		Notes:   tb.Meta.Notes,
-		Caution: tb.Meta.Cautions,
+		fitJSON:  newFitJSON(&tb.Meta, f.MinPay, f.MaxPay),
+		Recheck: pointRecheckJSON{recheckCore: recheckCore{Passed: rc.Passed, Verdict: rc.Verdict(f), MinMargin: num.Float(rc.MinMargin),
+			At: rep(rc.MinItem), Rival: rep(rc.MinRival), Ties: reps(rc.Ties), Beaten: reps(rc.Beaten)},
+			Grid: recheckGridJSON{Desc: "exact: for each menu report, every point mass and two-column mixture of the outcome columns with that mean", Points: rc.Beliefs, Tolerance: num.Float(rc.Tolerance)}},
+		exportJSON: exportJSON{Output: tableOutput{Format: format, File: out}, Notes: tb.Meta.Notes, Caution: tb.Meta.Cautions},
 	}
 	for i := range f.Reports {
 		s.Margins = append(s.Margins, marginJSON{Report: rep(i), Margin: num.Float(rc.Margins[i]), Rival: rep(rc.Rivals[i])})
@@ -479,13 +459,7 @@ func printPointTableSummary(w io.Writer, f *gpoint.Fit, rc *gpoint.Recheck, s *p
 		tw = tabwriter.NewWriter(w, 0, 4, 2, ' ', 0)
 		fmt.Fprintf(tw, "report x\tmargin\t\tclosest rival\n")
 		for _, i := range rows[:min(len(rows), maxItemRows)] {
-			mark := ""
-			switch m := rc.Margins[i]; {
-			case math.Abs(m) <= rc.Tolerance:
-				mark = "TIE"
-			case m < 0:
-				mark = "BEATEN"
-			}
+			mark := marginMark(rc.Margins[i], rc.Tolerance)
 			rival := "-"
 			if r := rc.Rivals[i]; r >= 0 {
 				rival = table.FormatNumber(f.Reports[r])

@@ -120,7 +120,7 @@ func runTable(e *env, args []string) error {
 			return err
 		}
 	}
-	sum := newTableSummary(fit, rc, format, tf.out)
+	sum := newTableSummary(fit, rc, tb, format, tf.out)
 	sum.Lottery, sum.Caution = lot, tb.Meta.Cautions
 	return exportTable(e, tb, format, tf, rc.Passed, &sum.Output, sum, func() error {
 		return printTableSummary(e.stdout, fit, rc, sum)
@@ -229,29 +229,70 @@ func exportDate() string {
 
 // tableSummary is what --json prints.
 type tableSummary struct {
-	Outcomes     []string      `json:"outcomes"`
-	Menu         menuJSON      `json:"menu"`
-	A            num.Float     `json:"A"`
-	B            num.Float     `json:"B"`
-	Floor        num.Float     `json:"floor"`
-	Cap          num.Float     `json:"cap"`
+	Outcomes []string `json:"outcomes"`
+	Menu     menuJSON `json:"menu"`
+	fitJSON
 	MeanPay      *num.Float    `json:"mean_pay,omitempty"`
 	Reference    []num.Float   `json:"reference,omitempty"`
 	ReferencePay num.Float     `json:"reference_pay"`
-	Unit         num.Float     `json:"unit"`
-	Rounding     string        `json:"rounding"`
-	MinPay       num.Float     `json:"min_pay"`
-	MaxPay       num.Float     `json:"max_pay"`
 	Truthful     truthfulJSON  `json:"truthful_pay"`
 	MenuPay      truthfulJSON  `json:"menu_pay"`
 	Recheck      recheckJSON   `json:"recheck"`
 	ClampGap     *clampGapJSON `json:"clamp_gap,omitempty"`
-	Lottery      *lotteryJSON  `json:"lottery,omitempty"`
-	Output       tableOutput   `json:"output"`
-	Notes        []string      `json:"notes"`
 	Cells        []cellJSON    `json:"cells"`
-	Margins      []marginJSON  `json:"margins"`
-	Caution      []string      `json:"caution"`
+	exportJSON
+}
+
+// fitJSON is what every table summary (point tables too) says about the
+// fit; its fields sit at the top level of the JSON.
+type fitJSON struct {
+	A        num.Float `json:"A"`
+	B        num.Float `json:"B"`
+	Floor    num.Float `json:"floor"`
+	Cap      num.Float `json:"cap"`
+	Unit     num.Float `json:"unit"`
+	Rounding string    `json:"rounding"`
+	MinPay   num.Float `json:"min_pay"`
+	MaxPay   num.Float `json:"max_pay"`
+}
+
+// newFitJSON takes the fit from the table's record, and the range of the
+// rounded money payments (which the record states only in words).
+func newFitJSON(m *table.Meta, minPay, maxPay float64) fitJSON {
+	return fitJSON{A: m.A, B: m.B, Floor: m.Floor, Cap: m.Cap, Unit: m.Unit, Rounding: m.Rounding, MinPay: num.Float(minPay), MaxPay: num.Float(maxPay)}
+}
+
+// exportJSON closes every table summary: margins per menu item, the
+// lottery, what was written, the notes and the caution of the export.
+type exportJSON struct {
+	Margins []marginJSON `json:"margins"`
+	Lottery *lotteryJSON `json:"lottery,omitempty"`
+	Output  tableOutput  `json:"output"`
+	Notes   []string     `json:"notes"`
+	Caution []string     `json:"caution"`
+}
+
+// recheckCore is the part of the re-check every table summary has.
+type recheckCore struct {
+	Passed    bool          `json:"passed"`
+	Verdict   string        `json:"verdict"`
+	MinMargin num.Float     `json:"min_margin"`
+	At        []num.Float   `json:"at"`
+	Rival     []num.Float   `json:"rival,omitempty"`
+	Ties      [][]num.Float `json:"ties"`
+	Beaten    [][]num.Float `json:"beaten"`
+}
+
+// marginMark is TIE or BEATEN for a margin within the tolerance of 0 or
+// below it, else empty.
+func marginMark(m, tol float64) string {
+	switch {
+	case math.Abs(m) <= tol:
+		return "TIE"
+	case m < 0:
+		return "BEATEN"
+	}
+	return ""
 }
 
 type menuJSON struct {
@@ -271,13 +312,7 @@ type truthfulJSON struct {
 }
 
 type recheckJSON struct {
-	Passed      bool            `json:"passed"`
-	Verdict     string          `json:"verdict"`
-	MinMargin   num.Float       `json:"min_margin"`
-	At          []num.Float     `json:"at"`
-	Rival       []num.Float     `json:"rival,omitempty"`
-	Ties        [][]num.Float   `json:"ties"`
-	Beaten      [][]num.Float   `json:"beaten"`
+	recheckCore
 	NeverChosen [][]num.Float   `json:"never_chosen"`
 	TiedBeliefs int             `json:"tied_beliefs"`
 	Grid        recheckGridJSON `json:"grid"`
@@ -318,7 +353,7 @@ type tableOutput struct {
 	Written bool   `json:"written"`
 }
 
-func newTableSummary(f *budget.Fit, rc *budget.Recheck, format, out string) *tableSummary {
+func newTableSummary(f *budget.Fit, rc *budget.Recheck, tb *table.Table, format, out string) *tableSummary {
 	reps := f.Menu.Reports
 	items := func(idx []int) [][]num.Float {
 		out := [][]num.Float{}
@@ -334,23 +369,19 @@ func newTableSummary(f *budget.Fit, rc *budget.Recheck, format, out string) *tab
 		return num.Floats(reps[i])
 	}
 	s := &tableSummary{
-		Outcomes: f.Labels,
-		Menu:     menuJSON{Desc: f.MenuDesc(), Items: len(reps), Clamp: num.Float(f.Clamp), First: num.Floats(reps[0]), Last: num.Floats(reps[len(reps)-1])},
-		A:        num.Float(f.A), B: num.Float(f.B), Floor: num.Float(f.Floor), Cap: num.Float(f.Cap),
+		Outcomes:  f.Labels,
+		Menu:      menuJSON{Desc: f.MenuDesc(), Items: len(reps), Clamp: num.Float(f.Clamp), First: num.Floats(reps[0]), Last: num.Floats(reps[len(reps)-1])},
+		fitJSON:   newFitJSON(&tb.Meta, f.MinPay, f.MaxPay),
 		Reference: num.Floats(f.Reference), ReferencePay: num.Float(f.ReferencePay),
-		Unit: num.Float(f.Unit), Rounding: f.RoundingDesc(),
-		MinPay: num.Float(f.MinPay), MaxPay: num.Float(f.MaxPay),
 		Truthful: truthfulJSON{Min: num.Float(f.Truthful.Min), Max: num.Float(f.Truthful.Max),
 			MinBelief: num.Floats(f.Truthful.MinBelief), MaxBelief: num.Floats(f.Truthful.MaxBelief), Grid: f.Truthful.Grid},
 		MenuPay: truthfulJSON{Min: num.Float(rc.MenuPay.Min), Max: num.Float(rc.MenuPay.Max),
 			MinBelief: num.Floats(rc.MenuPay.MinBelief), MaxBelief: num.Floats(rc.MenuPay.MaxBelief), Grid: rc.Grid},
-		Recheck: recheckJSON{Passed: rc.Passed, Verdict: rc.Verdict(f), MinMargin: num.Float(rc.MinMargin),
-			At: report(rc.MinMarginItem), Rival: report(rc.MinMarginRival),
-			Ties: items(rc.Ties), Beaten: items(rc.Beaten), NeverChosen: items(rc.NeverChosen),
+		Recheck: recheckJSON{recheckCore: recheckCore{Passed: rc.Passed, Verdict: rc.Verdict(f), MinMargin: num.Float(rc.MinMargin),
+			At: report(rc.MinMarginItem), Rival: report(rc.MinMarginRival), Ties: items(rc.Ties), Beaten: items(rc.Beaten)},
+			NeverChosen: items(rc.NeverChosen),
 			TiedBeliefs: rc.TiedBeliefs, Grid: recheckGridJSON{Desc: rc.Grid, Points: rc.Beliefs, Tolerance: num.Float(rc.Tolerance)}},
-		Output:  tableOutput{Format: format, File: out},
-		Notes:   f.Notes(rc),
-		Caution: table.Caution(),
+		exportJSON: exportJSON{Output: tableOutput{Format: format, File: out}, Notes: f.Notes(rc), Caution: tb.Meta.Cautions},
 	}
 	if f.MeanPay != nil {
 		m := num.Float(*f.MeanPay)
@@ -436,13 +467,7 @@ func printItems(w io.Writer, f *budget.Fit, rc *budget.Recheck) error {
 	}
 	fmt.Fprintf(tw, "report\tmargin\t\tclosest rival\t%s\n", cellHead)
 	for _, i := range rows {
-		verdict := ""
-		switch m := rc.Margins[i]; {
-		case math.Abs(m) <= rc.Tolerance:
-			verdict = "TIE"
-		case m < 0:
-			verdict = "BEATEN"
-		}
+		verdict := marginMark(rc.Margins[i], rc.Tolerance)
 		rival := "-"
 		if r := rc.Rivals[i]; r >= 0 {
 			rival = num.Format(reps[r])

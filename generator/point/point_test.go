@@ -173,8 +173,16 @@ func TestWorstMixture(t *testing.T) {
 	ys := []float64{0, 1, 2}
 	diff := []float64{3, -1, 5}
 	for _, c := range []struct{ m, want float64 }{{1, -1}, {0.5, 1}, {0, 3}, {2, 5}, {1.5, 2}} {
-		if got := worstMixture(diff, ys, c.m); math.Abs(got-c.want) > 1e-12 {
+		if got, _ := worstMixture(diff, ys, c.m); math.Abs(got-c.want) > 1e-12 {
 			t.Errorf("mean %g: %v, want %v", c.m, got, c.want)
 		}
+	}
+	// Mean 1: the point mass at 1 and the mixture of 0 and 2; mean 0.5:
+	// the mixtures of 0 with 1 and with 2.
+	if _, n := worstMixture(diff, ys, 1); n != 2 {
+		t.Errorf("mean 1: %d weightings tried, want 2", n)
+	}
+	if _, n := worstMixture(diff, ys, 0.5); n != 2 {
+		t.Errorf("mean 0.5: %d weightings tried, want 2", n)
 	}
 }

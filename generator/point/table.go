@@ -149,6 +149,9 @@ type Recheck struct {
 	// zero, or below.
 	Ties, Beaten []int
 	Tolerance    float64
+	// Beliefs counts the (item, belief) pairs tried: every point mass and
+	// two-column mixture whose mean is the item.
+	Beliefs int
 }
 
 // maxRecheckWork bounds items² × column pairs.
@@ -176,7 +179,12 @@ func (f *Fit) Recheck(ctx context.Context) (*Recheck, error) {
 			for j := range diff {
 				diff[j] = f.Pay[i][j] - f.Pay[k][j]
 			}
-			if v := worstMixture(diff, f.Outcomes, m); v < rc.Margins[i] {
+			v, tried := worstMixture(diff, f.Outcomes, m)
+			if rc.Rivals[i] < 0 {
+				// The beliefs are the same for every rival: count them once.
+				rc.Beliefs += tried
+			}
+			if v < rc.Margins[i] || rc.Rivals[i] < 0 {
 				rc.Margins[i], rc.Rivals[i] = v, k
 			}
 		}
@@ -195,13 +203,15 @@ func (f *Fit) Recheck(ctx context.Context) (*Recheck, error) {
 }
 
 // worstMixture is the smallest sum_j w_j diff_j over weights w on at most
-// two columns with mean m (ys ascending), a point mass when m is a column.
-func worstMixture(diff, ys []float64, m float64) float64 {
+// two columns with mean m (ys ascending), a point mass when m is a column;
+// tried is how many such weightings there are.
+func worstMixture(diff, ys []float64, m float64) (worst float64, tried int) {
 	best := math.Inf(1)
 	tol := 1e-12 * math.Max(1, math.Abs(m))
 	for j, y := range ys {
 		if math.Abs(y-m) <= tol {
 			best = math.Min(best, diff[j])
+			tried++
 		}
 		if y >= m-tol {
 			continue
@@ -209,9 +219,10 @@ func worstMixture(diff, ys []float64, m float64) float64 {
 		for l := len(ys) - 1; l > j && ys[l] > m+tol; l-- {
 			t := (m - y) / (ys[l] - y)
 			best = math.Min(best, (1-t)*diff[j]+t*diff[l])
+			tried++
 		}
 	}
-	return best
+	return best, tried
 }
 
 // Verdict says in one sentence what the re-check found.
