@@ -17,3 +17,24 @@ func TestValueAxis(t *testing.T) {
 		}
 	}
 }
+
+// TestLegendOutsideTheData: curve figures keep their legend out of the
+// data area (it sat on the curves, or pushed a chance axis past 1), and
+// list one entry per outcome column for the strip under the panel.
+func TestLegendOutsideTheData(t *testing.T) {
+	tb := &Table{Kind: "chance of the prize", ValueName: "chance", Labels: []string{"frost", "clear"},
+		Reports: [][]float64{{0, 1}, {0.5, 0.5}, {1, 0}}, Values: [][]float64{{0, 1}, {0.75, 0.75}, {1, 0}}}
+	p, legend, err := tb.curvePlot("report")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(legend) != 2 || legend[0].label != "chance if frost" {
+		t.Errorf("legend %v", legend)
+	}
+	if p.Y.Max > 1 {
+		t.Errorf("value axis reaches %v for chances in [0, 1]", p.Y.Max)
+	}
+	if h := legendHeight(legend); !(h > 0) || legendHeight(nil) != 0 {
+		t.Errorf("legend strip %v, empty %v", h, legendHeight(nil))
+	}
+}
