@@ -241,3 +241,21 @@ func TestConstantEmphasisIsTheBrierTable(t *testing.T) {
 		t.Errorf("B: Brier 80/2 = 40, emphasis 80/0.5 = 160 (derived by hand)")
 	}
 }
+
+// TestEmphasisWeightAsGiven: eval of an emphasis design reports the
+// weight the formula gives (here the constant 1, and 1/(0.3·0.7) for
+// the log weight at 0.3), not the Hessian recombined with float noise.
+func TestEmphasisWeightAsGiven(t *testing.T) {
+	for _, c := range []struct {
+		weight string
+		want   float64
+	}{{"1", 1}, {"1/(c*(1-c))", 1 / (0.3 * 0.7)}} {
+		code, out, errs := runCmd(t, "eval", "--outcomes", "frost,clear", "--emphasis", c.weight, "--report", "0.3", "--json")
+		var got struct {
+			Emphasis float64 `json:"emphasis"`
+		}
+		if err := json.Unmarshal([]byte(out), &got); err != nil || code != 0 || got.Emphasis != c.want {
+			t.Errorf("w = %s: exit %d, emphasis %v, want %v (%v) %s", c.weight, code, got.Emphasis, c.want, err, errs)
+		}
+	}
+}
