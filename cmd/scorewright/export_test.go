@@ -259,3 +259,15 @@ func TestEmphasisWeightAsGiven(t *testing.T) {
 		}
 	}
 }
+
+// TestReferenceNeedsMeanPay: a reference belief with a cap fit would be
+// silently ignored; it is refused, naming the flag.
+func TestReferenceNeedsMeanPay(t *testing.T) {
+	code, _, errs := runCmd(t, "table", "--outcomes", "2", "--preset", "quadratic", "--floor", "0", "--cap", "10", "--step", "0.1", "--reference", "0.2,0.8")
+	if code != 2 || !strings.Contains(errs, "--reference") || !strings.Contains(errs, "--mean-pay") {
+		t.Errorf("exit %d, %q", code, errs)
+	}
+	if code, _, errs := runCmd(t, "table", "--outcomes", "2", "--preset", "quadratic", "--floor", "0", "--mean-pay", "8", "--step", "0.1", "--reference", "0.2,0.8"); code != 0 {
+		t.Errorf("with --mean-pay: exit %d, %s", code, errs)
+	}
+}
