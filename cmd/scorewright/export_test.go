@@ -240,6 +240,10 @@ func TestConstantEmphasisIsTheBrierTable(t *testing.T) {
 	if !strings.Contains(brier, "# B: 40\n") || !strings.Contains(emph, "# B: 160\n") {
 		t.Errorf("B: Brier 80/2 = 40, emphasis 80/0.5 = 160 (derived by hand)")
 	}
+	// The record says what each formula is: "1" is a weight, not a generator.
+	if !strings.Contains(emph, "# formula is: the emphasis weight w(c)") || !strings.Contains(brier, "# formula is: the generator H(p)") {
+		t.Errorf("the records do not say what the formula is")
+	}
 }
 
 // TestEmphasisWeightAsGiven: eval of an emphasis design reports the

@@ -115,7 +115,7 @@ func runTable(e *env, args []string) error {
 		return err
 	}
 	tb := fit.Table(rc, budget.Info{
-		Title: d.Title, Formula: d.Formula, Preset: d.Preset, Params: d.Params,
+		Title: d.Title, Formula: d.Formula, FormulaRole: formulaRole(d.Mode), Preset: d.Preset, Params: d.Params,
 		Weights: d.Weights, Ordered: d.Ordered,
 		Version: version, Date: exportDate(),
 	})
@@ -178,6 +178,14 @@ func exportTable(e *env, tb *table.Table, format string, tf *tableFlags, passed 
 		return errFailed
 	}
 	return nil
+}
+
+// formulaRole says in a table's record what the design's formula is.
+func formulaRole(m design.Mode) string {
+	if m == design.ModeEmphasis {
+		return "the emphasis weight w(c) of a yes/no rule, integrated twice into its generator (Schervish 1989), normalised so that a certain, correct forecast costs 0"
+	}
+	return "the generator H(p), concave; efforts by the Bregman construction L(p, k) = H(p) + dH_k - <dH, p>"
 }
 
 // tableMenu builds the report menu from --menu or the budget's step.

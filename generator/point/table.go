@@ -266,10 +266,11 @@ func (f *Fit) Table(rc *Recheck, info Info) *table.Table {
 	}
 	meta := table.Meta{
 		Title: info.Title, Formula: g.Source, Preset: info.Preset, Params: info.Params,
-		Outcomes: labels,
-		Menu:     fmt.Sprintf("point forecasts x from %s to %s in steps of %s (%d reports); outcome columns y from %s to %s (%d)", short(g.Lo), short(f.Reports[len(f.Reports)-1]), short(f.Step), len(f.Reports), short(g.Lo), short(g.Hi), len(f.Outcomes)),
-		Payment:  fmt.Sprintf("pay(x, y) = A - B·D(y, x), D(y, x) = phi(x) + phi'(x)(y - x) - phi(y) with phi the formula on [%s, %s], rounded as stated; for an outcome between two columns, pay by linear interpolation between them", short(g.Lo), short(g.Hi)),
-		A:        num.Float(f.A), B: num.Float(f.B),
+		FormulaRole: fmt.Sprintf("the generator phi(x) of a point forecast of the mean of a quantity in [%s, %s] (concave)", short(g.Lo), short(g.Hi)),
+		Outcomes:    labels,
+		Menu:        fmt.Sprintf("point forecasts x from %s to %s in steps of %s (%d reports); outcome columns y from %s to %s (%d)", short(g.Lo), short(f.Reports[len(f.Reports)-1]), short(f.Step), len(f.Reports), short(g.Lo), short(g.Hi), len(f.Outcomes)),
+		Payment:     fmt.Sprintf("pay(x, y) = A - B·D(y, x), D(y, x) = phi(x) + phi'(x)(y - x) - phi(y) with phi the formula on [%s, %s], rounded as stated; for an outcome between two columns, pay by linear interpolation between them", short(g.Lo), short(g.Hi)),
+		A:           num.Float(f.A), B: num.Float(f.B),
 		Budget:   fmt.Sprintf("payments span [%s, %s] over the menu and the outcome columns (before rounding): a perfect forecast pays the cap, the worst cell the floor", table.FormatNumber(f.Floor), table.FormatNumber(f.Cap)),
 		Rounding: f.round.Describe(), Unit: num.Float(f.round.Unit()), RoundingMode: f.round.Mode(),
 		Floor: num.Float(f.Floor), Cap: num.Float(f.Cap),

@@ -56,10 +56,14 @@ type Table struct {
 // to JSON as numbers and to the other formats inside the Budget and
 // Rounding sentences.
 type Meta struct {
-	Title   string             `json:"title,omitempty"`
-	Formula string             `json:"formula"`
-	Preset  string             `json:"preset,omitempty"`
-	Params  map[string]float64 `json:"params,omitempty"`
+	Title   string `json:"title,omitempty"`
+	Formula string `json:"formula"`
+	// FormulaRole says what the formula is (a generator, an emphasis
+	// weight, a point-forecast generator), so that nobody reads a weight
+	// in c as a generator.
+	FormulaRole string             `json:"formula_role,omitempty"`
+	Preset      string             `json:"preset,omitempty"`
+	Params      map[string]float64 `json:"params,omitempty"`
 	// Weights are the outcome weights (w inside sum), when the rule has
 	// them; Ordered says the outcomes are ordered (csum). Both change the
 	// rule, so a table without them could not be made again.
@@ -114,6 +118,7 @@ func (m *Meta) Fields() []Field {
 	}
 	add("title", m.Title)
 	add("formula", formulaLine(m.Formula))
+	add("formula is", m.FormulaRole)
 	add("preset", m.Preset)
 	add("parameters", formatParams(m.Params))
 	if len(m.Weights) > 0 {
