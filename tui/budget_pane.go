@@ -142,7 +142,14 @@ func (p BudgetPane) Update(msg tea.Msg, d *design.Design) (BudgetPane, tea.Cmd, 
 		up := key.Matches(km, k.More) || key.Matches(km, k.MoreFine)
 		cur := f.get(&d.Budget)
 		var v float64
-		if f.steps != nil {
+		if f.label == "Step" && d.Mode == design.ModePoint && len(d.Interval) == 2 {
+			// A point menu step is in the interval's units: hundredths of it.
+			s := (d.Interval[1] - d.Interval[0]) / 100
+			if !up {
+				s = -s
+			}
+			v = math.Max(0, math.Round((cur+s)/(d.Interval[1]-d.Interval[0])*100)*(d.Interval[1]-d.Interval[0])/100)
+		} else if f.steps != nil {
 			v = nextStep(f.steps, cur, up)
 		} else {
 			s := f.step
@@ -165,13 +172,13 @@ func (p BudgetPane) Update(msg tea.Msg, d *design.Design) (BudgetPane, tea.Cmd, 
 
 // apply sets a field if the budget stays valid, saying why not otherwise.
 func (p *BudgetPane) apply(d *design.Design, f budgetField, v float64) bool {
-	b := d.Budget
-	f.set(&b, v)
-	if err := b.Validate(); err != nil {
+	trial := *d
+	f.set(&trial.Budget, v)
+	if err := trial.ValidateBudget(); err != nil {
 		p.note = err.Error()
 		return false
 	}
-	d.Budget = b
+	d.Budget = trial.Budget
 	p.note = ""
 	return true
 }
@@ -256,6 +263,9 @@ func (p BudgetPane) View(d *design.Design) string {
 			v = st.Fail.Render("menu re-check FAILED")
 		}
 		v += fmt.Sprintf(", smallest margin %.4g", t.MinMargin)
+		if t.NoRecheck != "" {
+			v = st.Dim.Render(t.NoRecheck)
+		}
 		if p.stale {
 			v += st.Dim.Render(" (previous design)")
 		}

@@ -111,7 +111,7 @@ func (p ChecksPane) View() string {
 		}
 		head := "Verdict " + vs.Render(verdict)
 		if p.stale {
-			head += st.Dim.Render("  (for the previous design)")
+			head = st.Dim.Render("previous design's verdict: " + verdict)
 		}
 		lines = append(lines, head)
 		lines = append(lines, st.Dim.Render(fmt.Sprintf("grid resolution %d, %d points, tolerance %g", r.Resolution, r.Points, r.Tolerance)))

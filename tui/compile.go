@@ -5,34 +5,71 @@ import (
 
 	"scorewright/generator/bregman"
 	"scorewright/generator/design"
+	"scorewright/generator/emphasis"
 	"scorewright/generator/formula"
+	gpoint "scorewright/generator/point"
 )
 
 // compiled is a design turned into something that can be evaluated: a
 // Bregman rule in generator mode, one payout program per outcome in
 // payout mode.
 type compiled struct {
-	d      *design.Design // a private copy
-	rule   *bregman.Rule
-	payout []*formula.Program
-	params []formula.ParamValue
-	err    error
+	d        *design.Design // a private copy
+	rule     *bregman.Rule
+	point    *gpoint.Generator
+	payout   []*formula.Program
+	params   []formula.ParamValue
+	warnings []string
+	err      error
+}
+
+// designRule builds the Bregman rule of a generator or emphasis design;
+// warnings are remarks to show beside it (an emphasis weight that makes
+// the rule unbounded, say).
+func designRule(d *design.Design) (r *bregman.Rule, params []formula.ParamValue, warnings []string, err error) {
+	switch d.Mode {
+	case design.ModeGenerator, "":
+		r, err = d.Rule()
+		if err != nil {
+			return nil, nil, nil, err
+		}
+		if f, ok := r.Gen.(*bregman.Formula); ok {
+			params = f.Program().Params()
+		}
+		return r, params, nil, nil
+	case design.ModeEmphasis:
+		if d.N() != 2 {
+			return nil, nil, nil, fmt.Errorf("an emphasis weight designs rules for 2 outcomes; the design has %d", d.N())
+		}
+		g, err := emphasis.New(d.Formula, emphasis.Options{Params: d.Params})
+		if err != nil {
+			return nil, nil, nil, err
+		}
+		if err := g.Diagnostics().Problem(); err != nil {
+			return nil, nil, nil, err
+		}
+		return &bregman.Rule{Gen: g, Labels: d.Labels}, g.Program().Params(), g.Diagnostics().Warnings(), nil
+	}
+	return nil, nil, nil, fmt.Errorf("a %s design has no rule over outcomes", d.Mode)
 }
 
 // compileDesign compiles a copy of d. It never panics; trouble is in err.
 func compileDesign(d *design.Design) *compiled {
 	c := &compiled{d: d}
 	switch d.Mode {
-	case design.ModeGenerator, "":
-		r, err := d.Rule()
+	case design.ModeGenerator, design.ModeEmphasis, "":
+		c.rule, c.params, c.warnings, c.err = designRule(d)
+	case design.ModePoint:
+		if len(d.Interval) != 2 || !(d.Interval[0] < d.Interval[1]) {
+			c.err = fmt.Errorf("a point-forecast design needs an interval lo < hi (Interval row)")
+			return c
+		}
+		g, err := gpoint.New(d.Formula, d.Interval[0], d.Interval[1], gpoint.Options{Params: d.Params})
 		if err != nil {
 			c.err = err
 			return c
 		}
-		c.rule = r
-		if f, ok := r.Gen.(*bregman.Formula); ok {
-			c.params = f.Program().Params()
-		}
+		c.point, c.params = g, g.Program().Params()
 	case design.ModePayout:
 		for y := 1; y <= d.N(); y++ {
 			prog, err := formula.CompileString(d.Formula, formula.Scope{
@@ -46,7 +83,7 @@ func compileDesign(d *design.Design) *compiled {
 		}
 		c.params = c.payout[0].Params()
 	default:
-		c.err = fmt.Errorf("this build cannot compute %s designs yet; switch the mode to generator or payout", d.Mode)
+		c.err = fmt.Errorf("mode %q is not one the workbench knows", d.Mode)
 	}
 	return c
 }
@@ -70,6 +107,9 @@ type sampler struct {
 }
 
 func (c *compiled) newSampler() *sampler {
+	if c.point != nil {
+		return nil // point designs are drawn by renderPoint
+	}
 	n := c.d.N()
 	s := &sampler{n: n, reward: c.reward(), a: make([]float64, n), b: make([]float64, n)}
 	if c.rule != nil {

@@ -20,7 +20,7 @@ func DemoFrost() *design.Design {
 		Mode:    design.ModeGenerator,
 		Preset:  "power",
 		Formula: "# power family; g = 2 is the quadratic rule\ng = 2\n(1 - sum(p^g)) / (g - 1)",
-		Budget:  design.Budget{Floor: 0, Cap: 40, Step: 0.05, Unit: 0.5, Rounding: "nearest"},
+		Budget:  design.Budget{Floor: 0, Cap: 40, Step: 0.05, Unit: 0.1, Rounding: "nearest"},
 	}
 }
 
@@ -36,7 +36,7 @@ func DemoHarvest() *design.Design {
 		Mode:    design.ModeGenerator,
 		Preset:  "ranked",
 		Formula: "csum(c*(1-c))",
-		Budget:  design.Budget{Floor: 5, Cap: 60, Step: 0.1, Unit: 1, Rounding: "nearest"},
+		Budget:  design.Budget{Floor: 5, Cap: 60, Step: 0.1, Unit: 0.1, Rounding: "nearest"},
 	}
 }
 

@@ -40,13 +40,26 @@ const (
 	editPreset
 )
 
-// modes lists the modes this build can compute, in the order ←/→ cycle.
-var modes = []design.Mode{design.ModeGenerator, design.ModePayout}
+// modes lists the modes the workbench computes, in the order ←/→ cycle;
+// emphasis is skipped unless there are 2 outcomes.
+var modes = []design.Mode{design.ModeGenerator, design.ModePayout, design.ModeEmphasis, design.ModePoint}
+
+// samplePoint is the generator offered the first time a design switches
+// to point mode: phi = -x^2, squared error.
+const samplePoint = "-x^2"
+
+// defaultInterval is the interval a design gets when it first becomes a
+// point-forecast design.
+var defaultInterval = []float64{0, 100}
 
 // samplePayout is the formula offered the first time a design switches to
 // payout mode: a scaled quadratic payment, to be replaced by the payout
 // under audit.
 const samplePayout = "# pay(p, y): the payment when outcome y happens\n10 - 5*sum((p - hit)^2)"
+
+// sampleEmphasis is the weight offered the first time a design switches
+// to emphasis mode: the beta family, a = b = 1 the quadratic rule.
+const sampleEmphasis = "# w(c): where the rule puts its incentive\na = 1\nb = 1\nc^(a-1) * (1-c)^(b-1)"
 
 // DesignPane edits the design: outcomes, order, mode, formula, parameters
 // and preset.
@@ -61,10 +74,14 @@ type DesignPane struct {
 	ti       textinput.Model
 	pick     int
 	params   []formula.ParamValue
-	err      error  // the compile error of the current design
+	err      error // the compile error of the current design
+	warnings []string
 	note     string // a one-line remark on the last action
 	byMode   map[design.Mode]string
-	compiles bool
+	// stepByMode keeps the menu step of point (true) and outcome (false)
+	// designs apart when the mode changes.
+	stepByMode map[bool]float64
+	compiles   bool
 }
 
 // NewDesignPane returns a design pane showing d.
@@ -80,7 +97,7 @@ func NewDesignPane(st Styles, keys KeyMap, d *design.Design) DesignPane {
 	ti := textinput.New()
 	ti.Prompt = "› "
 	ti.Cursor.SetMode(cursor.CursorStatic)
-	return DesignPane{st: st, keys: keys, ta: ta, ti: ti, byMode: map[design.Mode]string{}}
+	return DesignPane{st: st, keys: keys, ta: ta, ti: ti, byMode: map[design.Mode]string{}, stepByMode: map[bool]float64{}}
 }
 
 // SetSize sets the outer size of the pane.
@@ -127,7 +144,7 @@ func (p DesignPane) KeyHelp() []key.Binding {
 
 // setCompiled takes the result of compiling the current design.
 func (p *DesignPane) setCompiled(c *compiled) {
-	p.err = c.err
+	p.err, p.warnings = c.err, c.warnings
 	p.compiles = c.err == nil
 	if c.err == nil {
 		p.params = c.params
@@ -141,7 +158,7 @@ func (p *DesignPane) setCompiled(c *compiled) {
 func (p *DesignPane) reset(d *design.Design) {
 	p.stopEditing()
 	p.ta.SetValue(d.Formula)
-	p.params, p.err, p.sel, p.byMode = nil, nil, 0, map[design.Mode]string{}
+	p.params, p.err, p.sel, p.byMode, p.stepByMode = nil, nil, 0, map[design.Mode]string{}, map[bool]float64{}
 }
 
 func (p DesignPane) presetRow() int { return int(rowParams) + len(p.params) }
@@ -201,9 +218,12 @@ func (p DesignPane) updateRows(km tea.KeyMsg, d *design.Design) (DesignPane, tea
 		case row == int(rowOutcomes):
 			p.edit = editLabels
 			p.ti.SetValue(strings.Join(d.Labels, ", "))
+			if d.Mode == design.ModePoint {
+				p.ti.SetValue(fmt.Sprintf("%g, %g", d.Interval[0], d.Interval[1]))
+			}
 			p.ti.CursorEnd()
 			return p, p.ti.Focus(), false
-		case row == int(rowOrder):
+		case row == int(rowOrder) && d.Mode != design.ModePoint:
 			d.Ordered = !d.Ordered
 			return p, nil, true
 		case row == int(rowFormula):
@@ -223,9 +243,12 @@ func (p DesignPane) updateRows(km tea.KeyMsg, d *design.Design) (DesignPane, tea
 				}
 			}
 		}
-	case key.Matches(km, k.Toggle) && row == int(rowOrder):
+	case key.Matches(km, k.Toggle) && row == int(rowOrder) && d.Mode != design.ModePoint:
 		d.Ordered = !d.Ordered
 		return p, nil, true
+	case (key.Matches(km, k.AddOutcome) || key.Matches(km, k.DropOutcome)) && d.Mode == design.ModePoint:
+		p.note = "a point forecast has no outcome list; set the interval instead"
+		return p, nil, false
 	case key.Matches(km, k.AddOutcome):
 		if d.N() >= formula.MaxOutcomes {
 			p.note = fmt.Sprintf("at most %d outcomes", formula.MaxOutcomes)
@@ -249,7 +272,7 @@ func (p DesignPane) updateRows(km tea.KeyMsg, d *design.Design) (DesignPane, tea
 		case row == int(rowMode):
 			p.cycleMode(d, up)
 			return p, nil, true
-		case row == int(rowOrder):
+		case row == int(rowOrder) && d.Mode != design.ModePoint:
 			d.Ordered = !d.Ordered
 			return p, nil, true
 		case row >= int(rowParams) && row < p.presetRow():
@@ -274,6 +297,17 @@ func (p DesignPane) updateRows(km tea.KeyMsg, d *design.Design) (DesignPane, tea
 // commitInput applies the labels or parameter value typed.
 func (p *DesignPane) commitInput(d *design.Design) bool {
 	val := p.ti.Value()
+	if p.edit == editLabels && d.Mode == design.ModePoint {
+		iv, err := parseInterval(val)
+		if err != nil {
+			p.note = "interval: " + err.Error()
+			return false
+		}
+		p.stopEditing()
+		d.Interval = iv
+		p.note = fmt.Sprintf("interval [%g, %g]", iv[0], iv[1])
+		return true
+	}
 	if p.edit == editLabels {
 		labels, err := design.ParseOutcomes(val)
 		if err != nil {
@@ -312,16 +346,39 @@ func (p *DesignPane) cycleMode(d *design.Design, up bool) {
 			i = j
 		}
 	}
-	if up {
-		i = (i + 1) % len(modes)
-	} else {
-		i = (i + len(modes) - 1) % len(modes)
+	for {
+		if up {
+			i = (i + 1) % len(modes)
+		} else {
+			i = (i + len(modes) - 1) % len(modes)
+		}
+		if modes[i] != design.ModeEmphasis || d.N() == 2 {
+			break
+		}
 	}
 	p.byMode[d.Mode] = d.Formula
+	p.stepByMode[d.Mode == design.ModePoint] = d.Budget.Step
 	d.Mode = modes[i]
 	f, ok := p.byMode[d.Mode]
-	if !ok && d.Mode == design.ModePayout {
-		f = samplePayout
+	if !ok {
+		switch d.Mode {
+		case design.ModePayout:
+			f = samplePayout
+		case design.ModeEmphasis:
+			f = sampleEmphasis
+		case design.ModePoint:
+			f = samplePoint
+		}
+	}
+	// The menu step means a probability step over outcomes and a step in
+	// the interval's units for point forecasts; each kind keeps its own.
+	if s, ok := p.stepByMode[d.Mode == design.ModePoint]; ok {
+		d.Budget.Step = s
+	} else if d.Mode == design.ModePoint {
+		d.Budget.Step = 0 // BuildTable's default: a twentieth of the interval
+	}
+	if d.Mode == design.ModePoint && len(d.Interval) != 2 {
+		d.Interval = append([]float64(nil), defaultInterval...)
 	}
 	if f != "" {
 		d.Formula = f
@@ -349,6 +406,7 @@ func (p DesignPane) updatePicker(km tea.KeyMsg, d *design.Design) (DesignPane, t
 		p.edit = editNone
 		d.Preset = ps.Name
 		d.Params = nil
+		wasPoint := d.Mode == design.ModePoint
 		if err := presets.Apply(d); err != nil {
 			p.note = err.Error()
 			return p, nil, false
@@ -362,17 +420,43 @@ func (p DesignPane) updatePicker(km tea.KeyMsg, d *design.Design) (DesignPane, t
 		} else {
 			p.note = "preset " + ps.Name
 		}
+		if d.Mode == design.ModePoint && len(d.Interval) != 2 {
+			d.Interval = append([]float64(nil), defaultInterval...)
+		}
+		if wasPoint != (d.Mode == design.ModePoint) {
+			d.Budget.Step = p.stepByMode[d.Mode == design.ModePoint]
+		}
 		p.ta.SetValue(d.Formula)
 		return p, nil, true
 	}
 	return p, nil, false
 }
 
+// parseInterval reads "lo, hi".
+func parseInterval(s string) ([]float64, error) {
+	parts := strings.Split(s, ",")
+	if len(parts) != 2 {
+		return nil, fmt.Errorf("give two numbers lo, hi, e.g. 0, 100")
+	}
+	iv := make([]float64, 2)
+	for i, part := range parts {
+		v, err := strconv.ParseFloat(strings.TrimSpace(part), 64)
+		if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
+			return nil, fmt.Errorf("%q is not a finite number", strings.TrimSpace(part))
+		}
+		iv[i] = v
+	}
+	if !(iv[0] < iv[1]) {
+		return nil, fmt.Errorf("lo %g must be below hi %g", iv[0], iv[1])
+	}
+	return iv, nil
+}
+
 // presetUnavailable says why preset ps cannot be used for d, or "".
 func presetUnavailable(ps presets.Preset, d *design.Design) string {
 	switch {
-	case ps.Kind != presets.KindGenerator:
-		return string(ps.Kind) + " designs cannot be computed by this build yet"
+	case ps.Kind == presets.KindEmphasis && d.N() != 2:
+		return "for 2 outcomes only"
 	case ps.BinaryOnly && d.N() != 2:
 		return "for 2 outcomes only"
 	}
@@ -454,14 +538,26 @@ func (p DesignPane) View(d *design.Design) string {
 		}
 		return m + ls.Render(fmt.Sprintf("%-9s", label)) + " " + value
 	}
-	if p.edit == editLabels {
+	switch {
+	case d.Mode == design.ModePoint && p.edit == editLabels:
+		lines = append(lines, mark(0, "Interval", "lo, hi:"), "  "+p.ti.View())
+	case d.Mode == design.ModePoint:
+		iv := "not set"
+		if len(d.Interval) == 2 {
+			iv = fmt.Sprintf("[%g, %g]  (point forecast of a mean)", d.Interval[0], d.Interval[1])
+		}
+		lines = append(lines, mark(0, "Interval", iv))
+	case p.edit == editLabels:
 		lines = append(lines, mark(0, "Outcomes", "labels, comma-separated:"), "  "+p.ti.View())
-	} else {
+	default:
 		lines = append(lines, mark(0, "Outcomes", fmt.Sprintf("%s  (%d)", strings.Join(d.Labels, ", "), d.N())))
 	}
 	order := "unordered"
 	if d.Ordered {
 		order = "ordered (csum allowed)"
+	}
+	if d.Mode == design.ModePoint {
+		order = st.Dim.Render("— (a number on the interval)")
 	}
 	lines = append(lines, mark(1, "Order", order))
 	lines = append(lines, mark(2, "Mode", modeLine(d.Mode)))
@@ -513,6 +609,10 @@ func modeLine(m design.Mode) string {
 		return "generator (concave H; ←/→)"
 	case design.ModePayout:
 		return "payout audit (pay(p, y); ←/→)"
+	case design.ModeEmphasis:
+		return "emphasis weight w(c) (←/→)"
+	case design.ModePoint:
+		return "point forecast phi(x) (←/→)"
 	}
 	return string(m) + " (not computed by this build)"
 }
@@ -522,19 +622,23 @@ func modeLine(m design.Mode) string {
 func (p DesignPane) errorLines(iw int) []string {
 	if p.err == nil {
 		if p.compiles {
-			return []string{p.st.Pass.Render("  ✓ compiles")}
+			out := []string{p.st.Pass.Render("  ✓ compiles")}
+			for _, w := range p.warnings {
+				out = append(out, strings.Split(p.st.Dim.Width(max(10, iw-2)).PaddingLeft(2).Render("! "+w), "\n")...)
+			}
+			return out
 		}
 		return []string{""}
 	}
 	var fe *formula.Error
 	if errors.As(p.err, &fe) {
-		out := strings.Split(p.st.Error.Width(max(10, iw-2)).Render("  ✗ "+fe.Error()), "\n")
+		out := strings.Split(p.st.Error.Width(max(10, iw-2)).PaddingLeft(2).Render("✗ "+fe.Error()), "\n")
 		for _, l := range strings.Split(fe.Caret(), "\n") {
 			out = append(out, p.st.Error.Render("    "+l))
 		}
 		return out
 	}
-	return strings.Split(p.st.Error.Width(max(10, iw-2)).Render("  ✗ "+p.err.Error()), "\n")
+	return strings.Split(p.st.Error.Width(max(10, iw-2)).PaddingLeft(2).Render("✗ "+p.err.Error()), "\n")
 }
 
 func (p DesignPane) pickerLines(d *design.Design) []string {

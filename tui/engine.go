@@ -1,9 +1,285 @@
 package tui
 
-// The engine parts the workbench plugs in. Each returns nil while its
-// package is not part of the build; the pane concerned then says so
-// instead of pretending.
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"path/filepath"
+	"runtime"
+	"time"
 
-func defaultChecker() Checker   { return nil }
-func defaultFitter() Fitter     { return nil }
-func defaultExporter() Exporter { return nil }
+	"scorewright/generator/budget"
+	"scorewright/generator/design"
+	"scorewright/generator/num"
+	"scorewright/generator/payout"
+	gpoint "scorewright/generator/point"
+	"scorewright/generator/safefile"
+	"scorewright/generator/table"
+	"scorewright/presets"
+	"scorewright/verify"
+	vpoint "scorewright/verify/point"
+)
+
+// The engine parts the workbench plugs in by default: the checks of
+// package verify, the budget fit of generator/budget and the exports of
+// generator/table. Tests replace them through Settings.
+
+func defaultChecker() Checker                 { return verifyChecker }
+func defaultFitter() Fitter                   { return budgetFitter }
+func defaultExporter(version string) Exporter { return tableExporter{version: version} }
+
+// workers leaves one core to the screen when there are several.
+func workers(s Settings) int {
+	if s.Workers > 0 {
+		return s.Workers
+	}
+	return max(1, runtime.GOMAXPROCS(0)-1)
+}
+
+// verifyChecker checks a generator design with verify.CheckRule and audits
+// a payout design with verify.Audit.
+func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress func(done, total int64)) (*CheckReport, error) {
+	vs := verify.Settings{Resolution: s.Resolution, Tolerance: s.Tolerance, Workers: workers(s), Progress: progress}
+	switch d.Mode {
+	case design.ModeGenerator, design.ModeEmphasis:
+		r, _, _, err := designRule(d)
+		if err != nil {
+			return nil, err
+		}
+		rep, err := verify.CheckRule(ctx, r, vs)
+		if err != nil {
+			return nil, err
+		}
+		return fromVerify(rep), nil
+	case design.ModePoint:
+		c := compileDesign(d)
+		if c.err != nil {
+			return nil, c.err
+		}
+		ps := vpoint.Settings{Resolution: s.Resolution, Tolerance: s.Tolerance}
+		if progress != nil {
+			ps.Progress = func(done, total int) { progress(int64(done), int64(total)) }
+		}
+		rep, err := vpoint.CheckGenerator(ctx, c.point, ps)
+		if err != nil {
+			return nil, err
+		}
+		out := &CheckReport{Verdict: rep.Verdict, Resolution: rep.Grid.Resolution, Points: int64(rep.Grid.Points), Tolerance: rep.Grid.Tolerance, Notes: rep.Notes}
+		for _, ck := range rep.Checks {
+			row := CheckRow{Name: ck.Name, Passed: ck.Passed, Worst: ck.Worst, Note: ck.What}
+			if ck.At != nil {
+				row.Report = ck.At.Report
+			}
+			out.Rows = append(out.Rows, row)
+		}
+		return out, nil
+	case design.ModePayout:
+		p, err := payout.New(d.Formula, payout.Options{Outcomes: d.N(), Ordered: d.Ordered, Weights: d.Weights, Params: d.Params})
+		if err != nil {
+			return nil, err
+		}
+		rep, err := verify.Audit(ctx, p, auditCandidates(d), vs)
+		if err != nil {
+			return nil, err
+		}
+		out := fromVerify(&rep.Report)
+		if id := rep.Identified; id != nil {
+			out.Notes = append(out.Notes, fmt.Sprintf("identified: pay = %.6g - %.6g × effort of the %s preset", id.Shift, id.Scale, id.Preset))
+		}
+		if rep.Gap.Max > 0 {
+			out.Notes = append(out.Notes, fmt.Sprintf("largest honesty gap %.4g at belief %s: best report %s",
+				rep.Gap.Max, num.Format(rep.Gap.Belief), num.Format(rep.Gap.BestReport)))
+		}
+		return out, nil
+	}
+	return nil, fmt.Errorf("this build cannot check %s designs", d.Mode)
+}
+
+func fromVerify(r *verify.Report) *CheckReport {
+	out := &CheckReport{Verdict: string(r.Verdict), Resolution: r.Grid.Resolution, Points: int64(r.Grid.Points),
+		Tolerance: r.Grid.Tolerance, Notes: r.Notes}
+	if r.Grid.Sampled {
+		out.Notes = append(out.Notes, "the grid points are a random sample of the lattice")
+	}
+	for _, c := range r.Checks {
+		out.Rows = append(out.Rows, CheckRow{Name: c.Name, Passed: c.Passed, Worst: c.Worst, Belief: c.Belief, Report: c.Report, Note: c.Note})
+	}
+	return out
+}
+
+// fitDesign fits a generator design to its budget on its step menu and
+// re-checks the menu.
+func fitDesign(ctx context.Context, d *design.Design) (*budget.Fit, *budget.Recheck, error) {
+	if d.Mode != design.ModeGenerator && d.Mode != design.ModeEmphasis {
+		return nil, nil, fmt.Errorf("the budget fit works on generator and emphasis designs; this one is in %s mode", d.Mode)
+	}
+	if d.Budget.Step <= 0 {
+		return nil, nil, errors.New("set a report menu step (Step) to see the payment table")
+	}
+	r, _, _, err := designRule(d)
+	if err != nil {
+		return nil, nil, err
+	}
+	menu, err := budget.StepMenu(d.N(), d.Budget.Step, d.Budget.ReportFloor)
+	if err != nil {
+		return nil, nil, err
+	}
+	fit, err := budget.FitRule(r, menu, d.Budget)
+	if err != nil {
+		return nil, nil, err
+	}
+	rc, err := fit.Recheck(ctx, budget.RecheckSettings{})
+	if err != nil {
+		return nil, nil, err
+	}
+	return fit, rc, nil
+}
+
+// pointTable builds the payment table of a point-forecast design.
+func pointTable(ctx context.Context, d *design.Design) (*gpoint.Table, error) {
+	c := compileDesign(d)
+	if c.err != nil {
+		return nil, c.err
+	}
+	b := d.Budget
+	if b.MeanPay != nil {
+		return nil, errors.New("point-forecast tables are fitted to a floor and a cap, not a mean pay")
+	}
+	if !(b.Cap > b.Floor) {
+		return nil, errors.New("set a cap above the floor to see the payment table")
+	}
+	t, err := c.point.BuildTable(ctx, gpoint.TableSpec{Floor: b.Floor, Cap: b.Cap, Step: b.Step, Unit: b.Unit, Rounding: b.Rounding})
+	if errors.Is(err, gpoint.ErrUnbounded) {
+		return nil, fmt.Errorf("%v; narrow the interval so the effort stays finite", err)
+	}
+	return t, err
+}
+
+// budgetFitter is the default Fitter.
+func budgetFitter(ctx context.Context, d *design.Design) (*TableView, error) {
+	if d.Mode == design.ModePoint {
+		t, err := pointTable(ctx, d)
+		if err != nil {
+			return nil, err
+		}
+		tv := &TableView{NoRecheck: "point tables: no menu re-check (that is for rules over outcomes)", Notes: t.Notes}
+		tv.Header = []string{"report \\ outcome"}
+		for _, y := range t.Outcomes {
+			tv.Header = append(tv.Header, table.FormatNumber(y))
+		}
+		for i, x := range t.Reports {
+			row := []string{table.FormatNumber(x)}
+			for _, v := range t.Pay[i] {
+				row = append(row, table.FormatNumber(v))
+			}
+			tv.Rows = append(tv.Rows, row)
+		}
+		return tv, nil
+	}
+	fit, rc, err := fitDesign(ctx, d)
+	if err != nil {
+		return nil, err
+	}
+	tb := fit.Table(rc, budget.Info{Title: d.Title, Formula: d.Formula, Preset: d.Preset, Params: d.Params})
+	tv := &TableView{Passed: rc.Passed, MinMargin: rc.MinMargin, Pay: fit.Pay, Notes: fit.Notes(rc)}
+	tv.Header = append(tv.Header, "report")
+	for k := range d.Labels {
+		tv.Header = append(tv.Header, tb.ValueHeader(k))
+	}
+	for i, p := range fit.Menu.Reports {
+		row := []string{num.Format(p)}
+		for _, v := range fit.Pays[i] {
+			row = append(row, tb.Value(v))
+		}
+		tv.Rows = append(tv.Rows, row)
+	}
+	return tv, nil
+}
+
+// tableExporter writes the fitted table with generator/table.
+type tableExporter struct{ version string }
+
+func (tableExporter) Formats(d *design.Design) []string {
+	if d.Mode == design.ModePoint {
+		return []string{"csv", "md", "json"}
+	}
+	return table.Formats()
+}
+
+func (te tableExporter) Export(ctx context.Context, d *design.Design, format, path string, overwrite bool) ([]string, error) {
+	if d.Mode == design.ModePoint {
+		return exportPoint(ctx, d, format, path, overwrite)
+	}
+	fit, rc, err := fitDesign(ctx, d)
+	if err != nil {
+		return nil, err
+	}
+	if !rc.Passed {
+		return nil, fmt.Errorf("the menu re-check failed (smallest margin %.4g), so nothing was written; change the budget or the step", rc.MinMargin)
+	}
+	tb := fit.Table(rc, budget.Info{Title: d.Title, Formula: d.Formula, Preset: d.Preset, Params: d.Params,
+		Version: te.version, Date: time.Now().UTC().Format("2006-01-02")})
+	var buf bytes.Buffer
+	if err := tb.Write(&buf, format); err != nil {
+		return nil, err
+	}
+	return writeExport(path, buf.Bytes(), overwrite)
+}
+
+func exportPoint(ctx context.Context, d *design.Design, format, path string, overwrite bool) ([]string, error) {
+	t, err := pointTable(ctx, d)
+	if err != nil {
+		return nil, err
+	}
+	write, ok := map[string]func(io.Writer) error{
+		"csv": t.WriteCSV,
+		"md":  t.WriteMarkdown,
+		"json": func(w io.Writer) error {
+			enc := json.NewEncoder(w)
+			enc.SetIndent("", "  ")
+			return enc.Encode(t)
+		},
+	}[format]
+	if !ok {
+		return nil, fmt.Errorf("point-forecast tables are written as csv, md or json, not %s", format)
+	}
+	var buf bytes.Buffer
+	if err := write(&buf); err != nil {
+		return nil, err
+	}
+	return writeExport(path, buf.Bytes(), overwrite)
+}
+
+// writeExport writes an export atomically and returns its absolute path.
+func writeExport(path string, data []byte, overwrite bool) ([]string, error) {
+	if err := safefile.Write(path, data, overwrite); err != nil {
+		return nil, err
+	}
+	if abs, err := filepath.Abs(path); err == nil {
+		path = abs
+	}
+	return []string{path}, nil
+}
+
+// auditCandidates are the generator presets an audited payout is compared
+// with, each built as the design would build it.
+func auditCandidates(d *design.Design) []verify.Candidate {
+	var out []verify.Candidate
+	for _, ps := range presets.All() {
+		if ps.Kind != presets.KindGenerator || ps.Ordered && !d.Ordered || ps.Weighted && d.Weights == nil {
+			continue
+		}
+		c := cloneDesign(d)
+		c.Mode, c.Preset, c.Params = design.ModeGenerator, ps.Name, nil
+		if presets.Apply(c) != nil {
+			continue
+		}
+		if r, _, _, err := designRule(c); err == nil {
+			out = append(out, verify.Candidate{Name: ps.Name, Rule: r})
+		}
+	}
+	return out
+}

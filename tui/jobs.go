@@ -47,6 +47,8 @@ type TableView struct {
 	// smallest incentive margin in currency.
 	Passed    bool
 	MinMargin float64
+	// NoRecheck, when set, says why there is no menu re-check.
+	NoRecheck string
 	Notes     []string
 	// Pay turns an effort into a payment; nil when not known.
 	Pay func(effort float64) float64
@@ -54,8 +56,9 @@ type TableView struct {
 
 // Exporter writes payment tables.
 type Exporter interface {
-	// Formats lists the formats Export takes, the first being the default.
-	Formats() []string
+	// Formats lists the formats Export takes for d, the first being the
+	// default.
+	Formats(d *design.Design) []string
 	// Export writes the table of d in format to path, replacing an existing
 	// file only when overwrite is true, and returns the files written.
 	Export(ctx context.Context, d *design.Design, format, path string, overwrite bool) ([]string, error)

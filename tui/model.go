@@ -104,7 +104,7 @@ func New(d *design.Design, path string, set Settings, st Styles) *Model {
 		set.Fitter = defaultFitter()
 	}
 	if set.Exporter == nil {
-		set.Exporter = defaultExporter()
+		set.Exporter = defaultExporter(set.Version)
 	}
 	keys := DefaultKeyMap()
 	ctx, cancel := context.WithCancel(context.Background())
@@ -175,7 +175,7 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		m.comp, m.compGen = msg.c, msg.gen
 		m.designPane.setCompiled(msg.c)
 		if msg.c.ok() {
-			m.picture.setDesign(msg.c.d.N(), msg.c.reward(), m.payFunc() != nil)
+			m.picture.setDesign(msg.c.d.N(), msg.c.reward(), m.payFunc() != nil, msg.c.point != nil)
 		} else {
 			m.checks.block("the formula does not compile")
 		}
@@ -212,7 +212,7 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		m.fitGen = msg.gen
 		m.budget.setTable(msg.table, msg.err)
 		if m.comp.ok() {
-			m.picture.setDesign(m.comp.d.N(), m.comp.reward(), m.payFunc() != nil)
+			m.picture.setDesign(m.comp.d.N(), m.comp.reward(), m.payFunc() != nil, m.comp.point != nil)
 		}
 		return m, m.requestPicture()
 	case savedMsg:
@@ -371,6 +371,7 @@ func (m *Model) routeToPane(km tea.KeyMsg) tea.Cmd {
 func (m *Model) edited() tea.Cmd {
 	m.gen++
 	m.stopCheck()
+	m.checkRun++ // answers of the run for the old design are now stale
 	m.checks.edited()
 	m.budget.edited()
 	m.status = ""
@@ -522,14 +523,18 @@ func (m *Model) openDialog(kind dialogKind) {
 		d := newFileDialog(m.st, m.keys, kind, m.defaultName("toml"), []string{"toml"})
 		m.dialog = &d
 	case dialogOpen:
-		d := newFileDialog(m.st, m.keys, kind, m.set.Dir, nil)
+		dir := m.set.Dir
+		if dir != "" && !strings.HasSuffix(dir, string(filepath.Separator)) {
+			dir += string(filepath.Separator)
+		}
+		d := newFileDialog(m.st, m.keys, kind, dir, nil)
 		m.dialog = &d
 	case dialogExport:
 		if m.set.Exporter == nil {
 			m.status = "export needs the table package, which is not part of this build yet"
 			return
 		}
-		fs := m.set.Exporter.Formats()
+		fs := m.set.Exporter.Formats(m.d)
 		d := newFileDialog(m.st, m.keys, kind, m.defaultName(fs[0]), fs)
 		m.dialog = &d
 	}
@@ -646,7 +651,11 @@ func (m *Model) headerLine() string {
 	if m.path != "" {
 		where = filepath.Base(m.path)
 	}
-	mid := m.st.Dim.Render(fmt.Sprintf(" · %s · %d outcomes · %s", where, m.d.N(), m.d.Mode))
+	what := fmt.Sprintf("%d outcomes", m.d.N())
+	if m.d.Mode == design.ModePoint && len(m.d.Interval) == 2 {
+		what = fmt.Sprintf("a mean on [%g, %g]", m.d.Interval[0], m.d.Interval[1])
+	}
+	mid := m.st.Dim.Render(fmt.Sprintf(" · %s · %s · %s", where, what, m.d.Mode))
 	var tabs []string
 	for p, name := range []string{"design", "picture", "checks", "budget"} {
 		if pane(p) == m.focus {

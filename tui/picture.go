@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"strings"
 
 	"github.com/charmbracelet/bubbles/key"
 	tea "github.com/charmbracelet/bubbletea"
@@ -49,6 +50,7 @@ type PicturePane struct {
 	text          string
 	n             int
 	reward        bool
+	point         bool
 	hasDesign     bool
 	waitingForGen uint64
 }
@@ -79,6 +81,8 @@ func (p PicturePane) KeyHelp() []key.Binding {
 // measures lists what can be drawn for n outcomes.
 func (p PicturePane) measures() []measure {
 	switch {
+	case p.point:
+		return []measure{mScores, mGenerator}
 	case p.n == 2 && p.reward:
 		return []measure{mScores, mGap}
 	case p.n == 2:
@@ -96,7 +100,11 @@ func (p PicturePane) measures() []measure {
 
 // setDesign tells the pane the outcome count and orientation of the
 // compiled design, keeping the measure and belief when they still fit.
-func (p *PicturePane) setDesign(n int, reward, hasPay bool) {
+func (p *PicturePane) setDesign(n int, reward, hasPay, point bool) {
+	if point {
+		n = 1 // one number: where the report mark sits, as a share of the interval
+	}
+	p.point = point
 	if n != p.n || len(p.spec.belief) != n {
 		p.spec.belief = make([]float64, n)
 		for i := range p.spec.belief {
@@ -104,6 +112,9 @@ func (p *PicturePane) setDesign(n int, reward, hasPay bool) {
 		}
 		if n == 2 {
 			p.spec.belief[0], p.spec.belief[1] = 0.3, 0.7
+		}
+		if n == 1 {
+			p.spec.belief[0] = 0.3
 		}
 		p.spec.active, p.spec.pair = 0, 0
 	}
@@ -138,7 +149,11 @@ func (p PicturePane) Update(msg tea.Msg) (PicturePane, bool) {
 		if key.Matches(km, p.keys.BeliefDown) {
 			d = -d
 		}
-		p.spec.belief = shiftBelief(p.spec.belief, p.spec.active, d)
+		if p.point {
+			p.spec.belief[0] = math.Min(1, math.Max(0, math.Round((p.spec.belief[0]+d)*100)/100))
+		} else {
+			p.spec.belief = shiftBelief(p.spec.belief, p.spec.active, d)
+		}
 	case key.Matches(km, p.keys.Pair):
 		if p.n == 3 {
 			p.spec.active = (p.spec.active + 1) % 3
@@ -214,6 +229,12 @@ func (p PicturePane) View() string {
 }
 
 func (p PicturePane) measureName() string {
+	if p.point {
+		if p.spec.measure == mGenerator {
+			return "generator phi(x)"
+		}
+		return "effort by report"
+	}
 	switch p.spec.measure {
 	case mScores:
 		if p.n > 3 {
@@ -245,6 +266,9 @@ const pictureGrid = 40
 // renderPicture draws c for spec. It checks ctx between rows so that a
 // picture for an outdated design stops early.
 func renderPicture(ctx context.Context, st Styles, c *compiled, spec pictureSpec, pay func(float64) float64) string {
+	if c.point != nil {
+		return renderPoint(st, c, spec)
+	}
 	n := c.d.N()
 	s := c.newSampler()
 	w, h := spec.w, spec.h
@@ -487,4 +511,50 @@ func round2(q []float64) []float64 {
 		out[i] = math.Round(v*100) / 100
 	}
 	return out
+}
+
+// renderPoint draws a point-forecast design over its interval: the effort
+// D(y, x) against the report x for three outcome values, or phi(x).
+func renderPoint(st Styles, c *compiled, spec pictureSpec) string {
+	g := c.point
+	ev := g.NewEvaluator()
+	lo, hi := g.Lo, g.Hi
+	cols := max(10, spec.w-8)
+	ys := []float64{lo + (hi-lo)/4, lo + (hi-lo)/2, lo + 3*(hi-lo)/4}
+	var ss []series
+	if spec.measure == mGenerator {
+		ss = []series{{name: "phi(x)", y: make([]float64, cols)}}
+	} else {
+		for _, y := range ys {
+			ss = append(ss, series{name: "y = " + fmtTick(y), y: make([]float64, cols)})
+		}
+	}
+	for k := 0; k < cols; k++ {
+		x := lo + (float64(k)+0.5)/float64(cols)*(hi-lo)
+		if spec.measure == mGenerator {
+			ss[0].y[k] = ev.Phi(x)
+			continue
+		}
+		for j, y := range ys {
+			ss[j].y[k] = ev.Divergence(y, x)
+		}
+	}
+	x := lo + spec.belief[0]*(hi-lo)
+	chart, clipped := drawLines(st, spec.w, max(4, spec.h-2), lo, hi, ss, x)
+	head := legend(st, ss)
+	if clipped {
+		head += st.Dim.Render("  (y cut)")
+	}
+	var at string
+	if spec.measure == mGenerator {
+		at = "phi " + fmtTick(ev.Phi(x))
+	} else {
+		var parts []string
+		for _, y := range ys {
+			parts = append(parts, fmtTick(ev.Divergence(y, x)))
+		}
+		at = "effort " + strings.Join(parts, " / ")
+	}
+	foot := fmt.Sprintf("x: report  ┊ %s: %s", fmtTick(x), at)
+	return head + "\n" + chart + "\n" + foot
 }

@@ -25,6 +25,8 @@ type Settings struct {
 	Fitter Fitter
 	// Exporter writes payment tables; nil means the build's default.
 	Exporter Exporter
+	// Version is the tool version written into exports.
+	Version string
 	// Dir is the directory relative paths in dialogs start from ("" is the
 	// working directory).
 	Dir string

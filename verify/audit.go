@@ -101,6 +101,9 @@ func Audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings)
 		return nil, fmt.Errorf("verify: no payout to audit")
 	}
 	n := p.Outcomes()
+	if err := checkOutcomes(n); err != nil {
+		return nil, err
+	}
 	s = s.withDefaults(n)
 	g, err := grid(n, s)
 	if err != nil {
@@ -116,6 +119,7 @@ func Audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings)
 func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings, g *simplex.Grid, pr *progress) (*AuditReport, error) {
 	n, G := p.Outcomes(), g.Len()
 	rep := &AuditReport{Report: Report{Grid: gridInfo(g, s)}}
+	rep.Notes = gridNotes(rep.Grid, n)
 	if g.Sampled {
 		rep.Notes = append(rep.Notes, fmt.Sprintf("the full grid at resolution %d is larger than %d points, so %d random lattice points and the vertices were used", s.Resolution, s.MaxPoints, g.Len()-n))
 	}
@@ -135,6 +139,8 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	}
 	label := func(k int) string { return fmt.Sprint(k + 1) }
 	bounded := boundedness(g, pays, s.Limit, label, "payment", -1)
+	rep.Grid.Scale = scaleOf(bounded)
+	s.Tolerance *= rep.Grid.Scale
 
 	// The stream minimises effort, so it runs on -pay.
 	m := newMenu(n, G)
@@ -156,7 +162,8 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	for i, b := range bs {
 		q := g.Point(i)
 		bg := BeliefGap{Belief: q, BestReport: q, Honest: -honest[i]}
-		if gap := honest[i] - b.m1; b.arg >= 0 && gap > 0 && !math.IsInf(honest[i], 1) {
+		// A gap within the tolerance is rounding: the honest report stands.
+		if gap := honest[i] - b.m1; b.arg >= 0 && gap > s.Tolerance && !math.IsInf(honest[i], 1) {
 			bg.Gap, bg.BestReport = gap, g.Point(int(b.arg))
 		} else if math.IsInf(honest[i], 1) && b.arg >= 0 && !math.IsInf(b.m1, 1) {
 			bg.Gap, bg.BestReport = math.Inf(1), g.Point(int(b.arg))
@@ -186,7 +193,7 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	if rep.Gap.Max > s.Tolerance && !math.IsInf(rep.Gap.Max, 0) {
 		ev := p.NewEvaluator()
 		ps := newPairSearch(n)
-		ps.onBoundary = true
+		ps.onBoundary, ps.cell = true, cellOf(g)
 		q, r, v, status, ok := ps.run(func(q, r []float64) float64 { return -(ev.Expected(q, r) - ev.Expected(q, q)) }, rep.Gap.Belief, rep.Gap.BestReport)
 		rep.Gap.Status = status
 		if ok && improves(-v, rep.Gap.Max, true) {
@@ -198,6 +205,7 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 		prop.Passed, prop.Strict = false, false
 		prop.Worst, prop.Belief, prop.Report = rep.Gap.Max, rep.Gap.Belief, rep.Gap.BestReport
 		prop.Sharpened, prop.GridWorst, prop.Status = rep.Gap.Sharpened, rep.Gap.GridMax, rep.Gap.Status
+		markPart(&prop)
 	}
 	prop.Note = propernessNote(prop, "pay", "more")
 	rep.Checks = []CheckResult{prop, bounded}
@@ -253,7 +261,7 @@ func refineBeliefs(ctx context.Context, p *payout.Payout, g *simplex.Grid, bgs [
 	return parallel(ctx, s.Workers, len(idx), 4, func(w, lo, hi int) {
 		ev := evs[w]
 		ps := newPairSearch(g.N)
-		ps.fixBelief, ps.evals = true, searchEvals
+		ps.fixBelief, ps.evals, ps.cell = true, searchEvals, cellOf(g)
 		for _, i := range idx[lo:hi] {
 			bg := &bgs[i]
 			_, r, v, _, ok := ps.run(func(q, r []float64) float64 { return -ev.Expected(q, r) }, bg.Belief, bg.BestReport)

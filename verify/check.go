@@ -10,6 +10,7 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"scorewright/generator/bregman"
+	"scorewright/generator/formula"
 	"scorewright/generator/num"
 	"scorewright/verify/simplex"
 )
@@ -37,6 +38,9 @@ func CheckRule(ctx context.Context, r *bregman.Rule, s Settings) (*Report, error
 		return nil, fmt.Errorf("verify: no rule to check")
 	}
 	n := r.Outcomes()
+	if err := checkOutcomes(n); err != nil {
+		return nil, err
+	}
 	s = s.withDefaults(n)
 	g, err := grid(n, s)
 	if err != nil {
@@ -49,6 +53,13 @@ func CheckRule(ctx context.Context, r *bregman.Rule, s Settings) (*Report, error
 	return rep, err
 }
 
+func checkOutcomes(n int) error {
+	if n < 2 || n > formula.MaxOutcomes {
+		return fmt.Errorf("verify: %d outcomes; need 2..%d", n, formula.MaxOutcomes)
+	}
+	return nil
+}
+
 // grid builds the full lattice, or a sample of it when the full one
 // would exceed s.MaxPoints.
 func grid(n int, s Settings) (*simplex.Grid, error) {
@@ -59,7 +70,7 @@ func grid(n int, s Settings) (*simplex.Grid, error) {
 }
 
 func gridInfo(g *simplex.Grid, s Settings) Grid {
-	out := Grid{Resolution: g.K, Points: g.Len(), Tolerance: s.Tolerance, Sampled: g.Sampled, Pairs: int64(g.Len()) * int64(g.Len())}
+	out := Grid{Resolution: g.K, Points: g.Len(), Tolerance: s.Tolerance, Scale: 1, Sampled: g.Sampled, Pairs: int64(g.Len()) * int64(g.Len())}
 	for _, b := range g.Boundary {
 		if b {
 			out.Boundary++
@@ -73,6 +84,7 @@ func gridInfo(g *simplex.Grid, s Settings) Grid {
 func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid, pr *progress) (*Report, error) {
 	n, G := r.Outcomes(), g.Len()
 	rep := &Report{Grid: gridInfo(g, s)}
+	rep.Notes = gridNotes(rep.Grid, n)
 	if g.Sampled {
 		rep.Notes = append(rep.Notes, fmt.Sprintf("the full grid at resolution %d is larger than %d points, so %d random lattice points and the vertices were used, with local optimisation over reports", s.Resolution, s.MaxPoints, g.Len()-n))
 	}
@@ -96,6 +108,9 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	}
 	bounded := boundedness(g, m, s.Limit, r.Label, "effort", 1)
 	m.seal()
+	rep.Grid.Scale = scaleOf(bounded)
+	affTol := s.Tolerance
+	s.Tolerance *= rep.Grid.Scale
 
 	conc, err := concavity(ctx, r, g, s, scorers, pr)
 	if err != nil {
@@ -115,26 +130,26 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 			return nil, err
 		}
 	}
-	aff := affinity(g, m, s)
+	aff := affinity(g, m, affTol, s.Seed)
 
 	// Sharpen the witnesses of failing checks beyond the grid.
 	sc := scorers[0]
 	effQ, effP := make([]float64, n), make([]float64, n)
 	if !prop.Passed && prop.Belief != nil && prop.Report != nil {
-		sharpenPair(&prop, n, true, func(q, p []float64) float64 {
+		sharpenPair(&prop, n, cellOf(g), func(q, p []float64) float64 {
 			sc.Efforts(effQ, q)
 			sc.Efforts(effP, p)
 			return -(bregman.Dot(q, effQ) - bregman.Dot(q, effP))
 		}, -1)
 	}
 	if !nonneg.Passed && nonneg.Belief != nil && nonneg.Report != nil {
-		sharpenPair(&nonneg, n, true, func(q, p []float64) float64 {
+		sharpenPair(&nonneg, n, cellOf(g), func(q, p []float64) float64 {
 			sc.Efforts(effP, p)
 			return bregman.Dot(q, effP) - sc.Entropy(q)
 		}, 1)
 	}
 	if !conc.Passed && conc.Belief != nil && !math.IsInf(conc.Worst, 1) {
-		sharpenConcavity(&conc, r, g.Boundary != nil && onBoundary(conc.Belief))
+		sharpenConcavity(&conc, r, onBoundary(conc.Belief), cellOf(g))
 	}
 
 	conc.Note = joinNotes(concavityWitness(conc), conc.Note)
@@ -158,7 +173,7 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 // more than StrictFloor × (1 + |honest expected effort|). It is far below
 // the tolerance on purpose: near a vertex the closest grid report of a
 // strictly proper rule can be worse by only about K^-3.
-const StrictFloor = 1e-12
+const StrictFloor = 1e-13
 
 func joinNotes(a ...string) string {
 	var out []string
@@ -191,7 +206,7 @@ func propernessNote(c CheckResult, what, better string) string {
 	case !c.Passed:
 		return joinNotes(fmt.Sprintf("a forecaster with belief %s expects %.6g %s %s by reporting %s than by reporting honestly", num.Format(c.Belief), c.Worst, better, what, num.Format(c.Report)), sharpenedNote(c))
 	case c.Strict:
-		return fmt.Sprintf("at every grid belief the honest report is the unique best grid report; the closest other report falls short by %.6g, at belief %s (strictness judged against the rounding floor %g, relative)", c.Margin, num.Format(c.MarginBelief), StrictFloor)
+		return fmt.Sprintf("at every grid belief the honest report is the unique best grid report, and the closest other report falls short by %.6g, at belief %s (strictness judged against the rounding floor %g, relative)", c.Margin, num.Format(c.MarginBelief), StrictFloor)
 	}
 	return fmt.Sprintf("the honest report is a best report at every grid belief, but not the only one: at belief %s the report %s does as well (difference %.3g)", num.Format(c.MarginBelief), num.Format(c.MarginReport), c.Margin)
 }
@@ -203,13 +218,56 @@ func nonnegNote(c CheckResult) string {
 	return joinNotes(fmt.Sprintf("D(q, p) = %.6g < 0 at belief %s, report %s", c.Worst, num.Format(c.Belief), num.Format(c.Report)), sharpenedNote(c))
 }
 
+// cellOf is the half-width of a grid point's cell: half a grid step on a
+// full grid; unlimited on a sampled one, whose points are far apart.
+func cellOf(g *simplex.Grid) float64 {
+	if g.Sampled {
+		return 0
+	}
+	return 0.5 / float64(g.K)
+}
+
+// markPart records a witness found off the grid in the region it lies
+// in, so that the interior/boundary split agrees with the overall result.
+func markPart(c *CheckResult) {
+	p := &c.Interior
+	if onBoundary(c.Belief) {
+		p = &c.Boundary
+	}
+	p.Passed = false
+	if !(p.Worst >= c.Worst) {
+		p.Worst, p.Belief, p.Report = c.Worst, clone(c.Belief), clone(c.Report)
+	}
+}
+
+// scaleOf is the size of a rule's values, max(1, largest finite
+// |value| over the grid reports), by which the tolerance is multiplied:
+// rounding error grows with the values, and a payout in millions must
+// not be called improper for a gap of 1e-9.
+func scaleOf(bounded CheckResult) float64 {
+	sc := 1.0
+	for _, w := range []float64{bounded.Interior.Worst, bounded.Boundary.Worst} {
+		if w > sc && !math.IsInf(w, 0) {
+			sc = w
+		}
+	}
+	return sc
+}
+
+// gridNotes warns about grids too coarse to say much.
+func gridNotes(g Grid, n int) []string {
+	if g.Interior == 0 {
+		return []string{fmt.Sprintf("the grid has no interior points (resolution %d, %d outcomes): the verdict covers boundary points only; use a resolution above %d", g.Resolution, n, n)}
+	}
+	return nil
+}
+
 // sharpenPair improves the witness of a pair check by local optimisation
 // of f (to be minimised) from the grid witness; sign converts the
 // optimised value back to the check's amount (amount = sign * f).
-func sharpenPair(c *CheckResult, n int, moveBelief bool, f func(q, p []float64) float64, sign float64) {
+func sharpenPair(c *CheckResult, n int, cell float64, f func(q, p []float64) float64, sign float64) {
 	ps := newPairSearch(n)
-	ps.fixBelief = !moveBelief
-	ps.onBoundary = true
+	ps.onBoundary, ps.cell = true, cell
 	q, p, v, status, ok := ps.run(f, c.Belief, c.Report)
 	c.Status = status
 	if !ok {
@@ -223,15 +281,18 @@ func sharpenPair(c *CheckResult, n int, moveBelief bool, f func(q, p []float64) 
 }
 
 // improves reports whether a sharpened amount is worse (so a better
-// witness) than the grid's: larger when bigger is worse, else smaller.
+// witness) than the grid's — larger when bigger is worse, else smaller —
+// by more than rounding, so that an exact grid witness is not traded for
+// a point a rounding error away.
 func improves(amount, grid float64, biggerWorse bool) bool {
 	if amount != amount || math.IsInf(amount, 0) {
 		return false
 	}
+	slack := StrictFloor * (1 + math.Abs(grid))
 	if biggerWorse {
-		return amount > grid
+		return amount > grid+slack
 	}
-	return amount < grid
+	return amount < grid-slack
 }
 
 // concavity computes, at every grid point, the largest eigenvalue of the
@@ -290,11 +351,8 @@ func concavity(ctx context.Context, r *bregman.Rule, g *simplex.Grid, s Settings
 	c.Passed = c.Interior.Passed && c.Boundary.Passed
 	c.Strict = strict && in.seen
 	w := c.Interior
-	if !c.Interior.Passed || (c.Boundary.Passed == c.Interior.Passed && bd.seen && bd.Worst > in.Worst) || !in.seen {
+	if c.Interior.Passed && (!c.Boundary.Passed || !in.seen) {
 		w = c.Boundary
-	}
-	if !c.Interior.Passed {
-		w = c.Interior
 	}
 	c.Worst, c.Belief = w.Worst, clone(w.Belief)
 	var notes []string
@@ -306,13 +364,13 @@ func concavity(ctx context.Context, r *bregman.Rule, g *simplex.Grid, s Settings
 	case in.seen:
 		notes = append(notes, fmt.Sprintf("H is concave but not strictly: the projected Hessian has eigenvalue %.6g (within the tolerance of 0) at %s", c.Interior.Worst, num.Format(c.Interior.Belief)))
 	default:
-		notes = append(notes, "the grid has no interior points; raise the resolution above the number of outcomes")
+		notes = append(notes, "the grid has no interior points: raise the resolution above the number of outcomes")
 	}
 	if nonFiniteIn > 0 {
 		notes = append(notes, fmt.Sprintf("the Hessian is not finite at %d interior points (e.g. %s), so concavity there is unknown", nonFiniteIn, num.Format(nfIn)))
 	}
 	if nonFiniteBd > 0 {
-		notes = append(notes, fmt.Sprintf("the Hessian is not finite at %d boundary points (e.g. %s); there the pair checks stand in for curvature", nonFiniteBd, num.Format(nfBd)))
+		notes = append(notes, fmt.Sprintf("the Hessian is not finite at %d boundary points (e.g. %s), where the pair checks stand in for curvature", nonFiniteBd, num.Format(nfBd)))
 	}
 	c.Note = strings.Join(notes, "; ")
 	return c, nil
@@ -388,8 +446,9 @@ func (pj *projector) largest(sc *bregman.Scorer, p []float64) float64 {
 }
 
 // sharpenConcavity climbs the largest projected eigenvalue from the grid
-// witness, staying in the interior when the witness is interior.
-func sharpenConcavity(c *CheckResult, r *bregman.Rule, boundary bool) {
+// witness within its grid cell, staying in the interior when the witness
+// is interior.
+func sharpenConcavity(c *CheckResult, r *bregman.Rule, boundary bool, cell float64) {
 	n := r.Outcomes()
 	sc, pj := r.NewScorer(), newProjector(n)
 	q := make([]float64, n)
@@ -397,7 +456,7 @@ func sharpenConcavity(c *CheckResult, r *bregman.Rule, boundary bool) {
 	simplex.ToSquares(x0, c.Belief)
 	x, v, status, ok := minimise(func(x []float64) float64 {
 		simplex.FromSquares(q, x)
-		if !boundary && onBoundary(q) {
+		if !boundary && onBoundary(q) || !inCell(q, c.Belief, cell) {
 			return math.Inf(1)
 		}
 		l := pj.largest(sc, q)
@@ -548,6 +607,7 @@ func searchReports(ctx context.Context, g *simplex.Grid, prop *CheckResult, s Se
 			prop.Worst, prop.Belief, prop.Report = fd.gap, fd.q, fd.p
 			prop.Passed, prop.Strict, prop.Sharpened = false, false, true
 			prop.Status = "found off the sampled grid by Nelder–Mead over reports"
+			markPart(prop)
 		}
 	}
 	return nil
@@ -559,9 +619,9 @@ func searchReports(ctx context.Context, g *simplex.Grid, prop *CheckResult, s Se
 // affine by construction, so for a generator rule this confirms the
 // evaluation (in particular the 0·Inf convention at the boundary); it is
 // a real test for an effort handed in with two arguments.
-func affinity(g *simplex.Grid, m *menu, s Settings) CheckResult {
+func affinity(g *simplex.Grid, m *menu, T float64, seed uint64) CheckResult {
 	n, G := g.N, g.Len()
-	rng := rand.New(rand.NewPCG(s.Seed, 0xaff1))
+	rng := rand.New(rand.NewPCG(seed, 0xaff1))
 	reports := min(G, 2000)
 	const pairs = 8
 	mid := make([]float64, n)
@@ -580,7 +640,7 @@ func affinity(g *simplex.Grid, m *menu, s Settings) CheckResult {
 			for k := range mid {
 				mid[k] = (a[k] + b[k]) / 2
 			}
-			fa, fb, fm := m.phiVec(a, j), m.phiVec(b, j), m.phiVec(mid, j)
+			fa, fb, fm := m.phi(a, j), m.phi(b, j), m.phi(mid, j)
 			avg := (fa + fb) / 2
 			var dev float64
 			switch {
@@ -597,7 +657,6 @@ func affinity(g *simplex.Grid, m *menu, s Settings) CheckResult {
 			}
 		}
 	}
-	T := s.Tolerance
 	c := CheckResult{Name: NameAffinity}
 	c.Interior = in.result(!(in.Worst > T))
 	c.Boundary = bd.result(!(bd.Worst > T))
@@ -610,9 +669,6 @@ func affinity(g *simplex.Grid, m *menu, s Settings) CheckResult {
 	}
 	return c
 }
-
-// phiVec is phi for a belief that is not a grid point.
-func (m *menu) phiVec(q []float64, j int) float64 { return m.phi(q, j) }
 
 // boundedness summarises the menu's values per outcome: the finite range,
 // and where they are infinite, NaN or beyond the limit, interior reports
@@ -662,9 +718,9 @@ func boundedness(g *simplex.Grid, m *menu, limit float64, label func(int) string
 				}
 			}
 			if boundary {
-				bd.offer(math.Abs(v), p, nil)
+				bd.offer(math.Abs(v), nil, p)
 			} else {
-				in.offer(math.Abs(v), p, nil)
+				in.offer(math.Abs(v), nil, p)
 			}
 		}
 	}
@@ -677,7 +733,7 @@ func boundedness(g *simplex.Grid, m *menu, limit float64, label func(int) string
 	c.Interior = in.result(inOK && nan == 0)
 	c.Boundary = bd.result(neg == 0 && nan == 0)
 	c.Passed = c.Interior.Passed && c.Boundary.Passed
-	c.Worst, c.Report = c.Interior.Worst, clone(c.Interior.Belief)
+	c.Worst, c.Report = c.Interior.Worst, clone(c.Interior.Report)
 	var notes, ranges, unb []string
 	for k, a := range st {
 		if a.lo <= a.hi {
@@ -706,7 +762,7 @@ func boundedness(g *simplex.Grid, m *menu, limit float64, label func(int) string
 		}
 	}
 	if len(unb) > 0 {
-		notes = append(notes, "unbounded on the boundary: "+what+" for outcome "+strings.Join(unb, ", ")+"; a report floor (or a clamp, whose effect on honesty must then be checked) is needed before fitting a budget")
+		notes = append(notes, "unbounded on the boundary: "+what+" for outcome "+strings.Join(unb, ", ")+", so a report floor (or a clamp, whose effect on honesty must then be checked) is needed before fitting a budget")
 	}
 	c.Note = strings.Join(notes, "; ")
 	return c

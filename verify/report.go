@@ -10,9 +10,10 @@ type Settings struct {
 	// Resolution K: grid coordinates are multiples of 1/K. 0 means
 	// DefaultResolution(n).
 	Resolution int
-	// Tolerance is the absolute slack every comparison allows for
-	// rounding: a violation smaller than it is not a violation, and a
-	// margin smaller than it is not strict. 0 means DefaultTolerance.
+	// Tolerance is the slack every comparison allows for rounding, relative
+	// to the size of the rule's values: a violation smaller than
+	// Tolerance × Grid.Scale is not a violation (affinity, already a
+	// relative test, uses Tolerance as it is). 0 means DefaultTolerance.
 	Tolerance float64
 	// Workers is the number of goroutines; 0 means GOMAXPROCS.
 	Workers int
@@ -88,9 +89,12 @@ const (
 
 // Grid says what a result was computed on.
 type Grid struct {
-	// Resolution K, number of grid points, and the tolerance used.
+	// Resolution K, number of grid points, and the tolerance asked for.
 	Resolution, Points int
 	Tolerance          float64
+	// Scale is max(1, largest finite |effort| or |payment| on the grid);
+	// comparisons allow Tolerance × Scale.
+	Scale float64
 	// Sampled is true when the points are a random sample of the lattice.
 	Sampled bool
 	// Interior and Boundary count the points with every coordinate
@@ -107,8 +111,12 @@ func (g Grid) String() string {
 	if g.Sampled {
 		kind = "sampled grid"
 	}
-	return fmt.Sprintf("%s at resolution %d (coordinates in steps of 1/%d): %d points (%d interior, %d on the boundary), %d pairs, tolerance %g; a grid check is evidence, not a proof",
-		kind, g.Resolution, g.Resolution, g.Points, g.Interior, g.Boundary, g.Pairs, g.Tolerance)
+	tol := fmt.Sprintf("tolerance %g", g.Tolerance)
+	if g.Scale > 1 {
+		tol += fmt.Sprintf(" × scale %.4g (the largest |value|) = %.3g", g.Scale, g.Tolerance*g.Scale)
+	}
+	return fmt.Sprintf("%s at resolution %d (coordinates in steps of 1/%d): %d points (%d interior, %d on the boundary), %d pairs, %s; a grid check is evidence, not a proof",
+		kind, g.Resolution, g.Resolution, g.Points, g.Interior, g.Boundary, g.Pairs, tol)
 }
 
 // Part is a check's finding on one region of the simplex.
@@ -209,7 +217,11 @@ func (p *part) offer(amount float64, belief, report []float64) {
 	}
 	p.seen = true
 	p.Worst = amount
-	p.Belief = append(p.Belief[:0], belief...)
+	if belief == nil {
+		p.Belief = nil
+	} else {
+		p.Belief = append(p.Belief[:0], belief...)
+	}
 	if report == nil {
 		p.Report = nil
 	} else {

@@ -73,6 +73,11 @@ type pairSearch struct {
 	fixBelief  bool
 	onBoundary bool // when false the belief must stay in the interior
 	evals      int
+	// cell, when positive, confines the search to the box of half-width
+	// cell around the start (half a grid step: the grid point's own
+	// cell), so that sharpening refines the grid's witness instead of
+	// running off to wherever the amount is unbounded.
+	cell float64
 }
 
 // searchEvals caps a search over reports alone, run for many beliefs.
@@ -101,9 +106,12 @@ func (s *pairSearch) run(f func(q, p []float64) float64, q0, p0 []float64) (q, p
 		} else {
 			simplex.FromSquares(s.q, x[:n])
 			simplex.FromSquares(s.p, x[n:])
-			if !s.onBoundary && onBoundary(s.q) {
+			if !s.onBoundary && onBoundary(s.q) || !inCell(s.q, q0, s.cell) {
 				return math.Inf(1)
 			}
+		}
+		if !inCell(s.p, p0, s.cell) {
+			return math.Inf(1)
 		}
 		return f(s.q, s.p)
 	}
@@ -117,6 +125,20 @@ func (s *pairSearch) run(f func(q, p []float64) float64, q0, p0 []float64) (q, p
 		simplex.FromSquares(p, x[n:])
 	}
 	return q, p, v, status, ok
+}
+
+// inCell reports whether x lies within half-width cell of centre in every
+// coordinate (always, when cell is 0).
+func inCell(x, centre []float64, cell float64) bool {
+	if cell <= 0 {
+		return true
+	}
+	for k, v := range x {
+		if math.Abs(v-centre[k]) > cell {
+			return false
+		}
+	}
+	return true
 }
 
 func onBoundary(q []float64) bool {

@@ -24,7 +24,23 @@ type menu struct {
 	// rows are set to +Inf so that the stream never picks them, and the
 	// boundedness check reports them.
 	bad []bool
+	// safe is rows with ±Inf replaced by ±safeBig, for beliefs with zero
+	// coordinates: 0 × safeBig is exactly 0, so finite expected efforts
+	// and their order are exactly those of the 0·Inf = 0 convention, and
+	// an infinite one becomes a huge finite one that is never preferred
+	// to a finite one. The stream then recomputes the winners' values
+	// exactly. nil when no entry is infinite, or when some finite entry
+	// is too large for the substitution to keep its order.
+	safe []float64
 }
+
+// safeBig stands in for an infinite effort; finite efforts must stay below
+// safeLimit in magnitude for the substitution to be exact in order (with
+// n <= 16 coordinates of at least 1/K, K <= 2^26).
+const (
+	safeBig   = 1e300
+	safeLimit = 1e250
+)
 
 func newMenu(n, g int) *menu {
 	return &menu{n: n, rows: make([]float64, n*g), bad: make([]bool, g)}
@@ -57,9 +73,26 @@ func (m *menu) seal() {
 			m.infinite = true
 		}
 	}
+	if !m.infinite {
+		return
+	}
+	m.safe = make([]float64, len(m.rows))
+	for i, v := range m.rows {
+		switch {
+		case math.IsInf(v, 1):
+			v = safeBig
+		case math.IsInf(v, -1):
+			v = -safeBig
+		case math.Abs(v) > safeLimit:
+			m.safe = nil
+			return
+		}
+		m.safe[i] = v
+	}
 }
 
-// phi returns sum_k q_k row_k with 0·Inf = 0.
+// phi returns sum_k q_k L(report j, k) with 0·Inf = 0, for any belief q
+// (a grid point or not).
 func (m *menu) phi(q []float64, j int) float64 {
 	r := m.rows[j*m.n : (j+1)*m.n]
 	var s float64
@@ -179,10 +212,19 @@ func stream(ctx context.Context, g *simplex.Grid, m *menu, w int, pr *progress) 
 		for i := lo; i < hi; i++ {
 			q := g.Point(i)
 			var b best
-			if m.infinite && g.Boundary[i] {
-				b = scanSupport(q, m.rows, m.n)
-			} else {
+			switch {
+			case !m.infinite || !g.Boundary[i]:
 				b = scan(q, m.rows, m.n)
+			case m.safe != nil:
+				b = scan(q, m.safe, m.n)
+				if b.arg >= 0 {
+					b.m1 = m.phi(q, int(b.arg))
+				}
+				if b.arg2 >= 0 {
+					b.m2 = m.phi(q, int(b.arg2))
+				}
+			default:
+				b = scanSupport(q, m.rows, m.n)
 			}
 			out[i] = b
 			pr.add(int64(G))
@@ -209,63 +251,93 @@ func scan(q, rows []float64, n int) best {
 		for k, x := range q {
 			phi += x * r[k]
 		}
-		if phi < m2 {
-			if phi < m1 {
-				m1, m2, arg, arg2 = phi, m1, j, arg
-			} else {
-				m2, arg2 = phi, j
-			}
-		}
+		m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j)
 	}
 	return best{m1, m2, int32(arg), int32(arg2)}
 }
 
 func scan2(q0, q1 float64, rows []float64) best {
 	m1, m2, arg, arg2 := math.Inf(1), math.Inf(1), -1, -1
-	for j, off := 0, 0; off+2 <= len(rows); j, off = j+1, off+2 {
-		r := rows[off : off+2 : off+2]
-		phi := q0*r[0] + q1*r[1]
-		if phi < m2 {
-			if phi < m1 {
-				m1, m2, arg, arg2 = phi, m1, j, arg
-			} else {
-				m2, arg2 = phi, j
+	j, rest := 0, rows
+	for ; len(rest) >= 8; j, rest = j+4, rest[8:] {
+		r := rest[:8:8]
+		pa := q0*r[0] + q1*r[1]
+		pb := q0*r[2] + q1*r[3]
+		pc := q0*r[4] + q1*r[5]
+		pd := q0*r[6] + q1*r[7]
+		if pa < m2 || pb < m2 || pc < m2 || pd < m2 {
+			for t, phi := range [4]float64{pa, pb, pc, pd} {
+				m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j+t)
 			}
 		}
+	}
+	for ; len(rest) >= 2; j, rest = j+1, rest[2:] {
+		r := rest[:2:2]
+		phi := q0*r[0] + q1*r[1]
+		m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j)
 	}
 	return best{m1, m2, int32(arg), int32(arg2)}
 }
 
+// scan3 and its siblings take four reports per step: one well-predicted
+// test in the common case that none of them beats the second best so far.
 func scan3(q0, q1, q2 float64, rows []float64) best {
 	m1, m2, arg, arg2 := math.Inf(1), math.Inf(1), -1, -1
-	for j, off := 0, 0; off+3 <= len(rows); j, off = j+1, off+3 {
-		r := rows[off : off+3 : off+3]
-		phi := q0*r[0] + q1*r[1] + q2*r[2]
-		if phi < m2 {
-			if phi < m1 {
-				m1, m2, arg, arg2 = phi, m1, j, arg
-			} else {
-				m2, arg2 = phi, j
+	j, rest := 0, rows
+	for ; len(rest) >= 12; j, rest = j+4, rest[12:] {
+		r := rest[:12:12]
+		pa := q0*r[0] + q1*r[1] + q2*r[2]
+		pb := q0*r[3] + q1*r[4] + q2*r[5]
+		pc := q0*r[6] + q1*r[7] + q2*r[8]
+		pd := q0*r[9] + q1*r[10] + q2*r[11]
+		if pa < m2 || pb < m2 || pc < m2 || pd < m2 {
+			for t, phi := range [4]float64{pa, pb, pc, pd} {
+				m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j+t)
 			}
 		}
+	}
+	for ; len(rest) >= 3; j, rest = j+1, rest[3:] {
+		r := rest[:3:3]
+		phi := q0*r[0] + q1*r[1] + q2*r[2]
+		m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j)
 	}
 	return best{m1, m2, int32(arg), int32(arg2)}
 }
 
 func scan4(q0, q1, q2, q3 float64, rows []float64) best {
 	m1, m2, arg, arg2 := math.Inf(1), math.Inf(1), -1, -1
-	for j, off := 0, 0; off+4 <= len(rows); j, off = j+1, off+4 {
-		r := rows[off : off+4 : off+4]
-		phi := q0*r[0] + q1*r[1] + q2*r[2] + q3*r[3]
-		if phi < m2 {
-			if phi < m1 {
-				m1, m2, arg, arg2 = phi, m1, j, arg
-			} else {
-				m2, arg2 = phi, j
+	j, rest := 0, rows
+	for ; len(rest) >= 16; j, rest = j+4, rest[16:] {
+		r := rest[:16:16]
+		pa := q0*r[0] + q1*r[1] + q2*r[2] + q3*r[3]
+		pb := q0*r[4] + q1*r[5] + q2*r[6] + q3*r[7]
+		pc := q0*r[8] + q1*r[9] + q2*r[10] + q3*r[11]
+		pd := q0*r[12] + q1*r[13] + q2*r[14] + q3*r[15]
+		if pa < m2 || pb < m2 || pc < m2 || pd < m2 {
+			for t, phi := range [4]float64{pa, pb, pc, pd} {
+				m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j+t)
 			}
 		}
 	}
+	for ; len(rest) >= 4; j, rest = j+1, rest[4:] {
+		r := rest[:4:4]
+		phi := q0*r[0] + q1*r[1] + q2*r[2] + q3*r[3]
+		m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j)
+	}
 	return best{m1, m2, int32(arg), int32(arg2)}
+}
+
+// fold keeps the two smallest values seen, and where: phi at report j
+// against the best m1 (at a1) and the second best m2 (at a2). It is small
+// enough to be inlined into every kernel.
+func fold(m1, m2 float64, a1, a2 int, phi float64, j int) (float64, float64, int, int) {
+	if phi < m2 {
+		if phi < m1 {
+			return phi, m1, j, a1
+		}
+		return m1, phi, a1, j
+	}
+	return m1, m2, a1, a2
 }
 
 // scanSupport is scan for a belief with zero coordinates against a menu
@@ -286,13 +358,7 @@ func scanSupport(q, rows []float64, n int) best {
 		for _, k := range supp[:s] {
 			phi += q[k] * rows[off+k]
 		}
-		if phi < m2 {
-			if phi < m1 {
-				m1, m2, arg, arg2 = phi, m1, j, arg
-			} else {
-				m2, arg2 = phi, j
-			}
-		}
+		m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j)
 	}
 	return best{m1, m2, int32(arg), int32(arg2)}
 }

@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"math"
+	"math/rand/v2"
 	"strings"
 	"sync/atomic"
 	"testing"
@@ -11,6 +12,7 @@ import (
 	"scorewright/generator/bregman"
 	"scorewright/generator/payout"
 	"scorewright/presets"
+	"scorewright/verify/simplex"
 )
 
 func rule(t *testing.T, src string, n int) *bregman.Rule {
@@ -165,6 +167,23 @@ func TestPresetsStrictlyProper(t *testing.T) {
 		if p.Kind != presets.KindGenerator {
 			continue
 		}
+		for _, n := range []int{2, 4} {
+			opt := bregman.Options{Outcomes: n, Ordered: p.Ordered}
+			if p.Weighted {
+				opt.Weights = []float64{1, 2, 0.5, 3}[:n]
+			}
+			f, err := bregman.NewFormula(p.Formula, opt)
+			if err != nil {
+				t.Fatal(err)
+			}
+			rep, err := CheckRule(context.Background(), &bregman.Rule{Gen: f, Ordered: p.Ordered}, Settings{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if rep.Verdict != StrictlyProper || rep.Failed() {
+				t.Errorf("%s, n=%d: verdict %s, failed %v", p.Name, n, rep.Verdict, rep.Failed())
+			}
+		}
 		opt := bregman.Options{Outcomes: 3, Ordered: p.Ordered}
 		if p.Weighted {
 			opt.Weights = []float64{1, 2, 0.5}
@@ -293,6 +312,17 @@ func TestIdentifyScaledQuadratic(t *testing.T) {
 		if rep.Gap.Max > 1e-9 {
 			t.Errorf("n=%d: gap %g for a proper payout", n, rep.Gap.Max)
 		}
+	}
+	// The same in large currency units: 1e9 - 5e8 L (derived as above).
+	// Rounding in values of 1e9 is about 1e-7, so the tolerance scales with
+	// the values and the verdict stays strictly proper.
+	big, err := Audit(context.Background(), pay(t, "1e9 - 5e8*sum((p-hit)^2)", 2), presetCandidates(t, 2), Settings{Resolution: 400})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if big.Verdict != StrictlyProper || big.Grid.Scale != 1e9 || big.Identified == nil || big.Identified.Preset != "quadratic" ||
+		math.Abs(big.Identified.Scale/5e8-1) > 1e-9 || math.Abs(big.Identified.Shift/1e9-1) > 1e-9 {
+		t.Errorf("large units: verdict %s, scale %g, identified %+v", big.Verdict, big.Grid.Scale, big.Identified)
 	}
 	// The log score ln p_y is the log rule with scale 1, shift 0
 	// (L = -ln p_k, Good 1952); its infinities match the rule's.
@@ -450,5 +480,77 @@ func TestScanDoesNotAllocate(t *testing.T) {
 	}
 	if a := testing.AllocsPerRun(20, func() { scanSupport(q, rows, 3) }); a != 0 {
 		t.Errorf("scanSupport: %v allocations", a)
+	}
+}
+
+func TestScanMatchesNaive(t *testing.T) {
+	// The unrolled kernels against the obvious loop, with a length that is
+	// not a multiple of four, ties and infinities.
+	rng := rand.New(rand.NewPCG(1, 2))
+	for _, n := range []int{2, 3, 4, 5} {
+		for _, G := range []int{1, 3, 4, 7, 1003} {
+			rows := make([]float64, n*G)
+			for i := range rows {
+				rows[i] = float64(rng.IntN(50)) / 7
+				if rng.IntN(40) == 0 {
+					rows[i] = math.Inf(1)
+				}
+			}
+			q := make([]float64, n)
+			for k := range q {
+				q[k] = rng.Float64() + 0.01
+			}
+			got := scan(q, rows, n)
+			want := best{math.Inf(1), math.Inf(1), -1, -1}
+			for j := 0; j < G; j++ {
+				var phi float64
+				for k := range q {
+					phi += q[k] * rows[j*n+k]
+				}
+				switch {
+				case phi < want.m1:
+					want = best{phi, want.m1, int32(j), want.arg}
+				case phi < want.m2:
+					want.m2, want.arg2 = phi, int32(j)
+				}
+			}
+			if got != want {
+				t.Errorf("n=%d G=%d: scan %+v, naive %+v", n, G, got, want)
+			}
+		}
+	}
+}
+
+func TestSafeRowsMatchSupportScan(t *testing.T) {
+	// Boundary beliefs against a menu with infinite efforts (the log rule,
+	// -ln 0 = +Inf): the substituted rows must give exactly the winners and
+	// values of the scan that skips the belief's zero coordinates.
+	for _, n := range []int{2, 3, 4, 6} {
+		g, err := simplex.Full(n, 12)
+		if err != nil {
+			t.Fatal(err)
+		}
+		sc := rule(t, "-sum(p*ln(p))", n).NewScorer()
+		m := newMenu(n, g.Len())
+		for j := 0; j < g.Len(); j++ {
+			sc.Efforts(m.rows[j*n:(j+1)*n], g.Point(j))
+		}
+		m.seal()
+		if m.safe == nil {
+			t.Fatal("no substituted rows for a menu with infinities")
+		}
+		bs, err := stream(context.Background(), g, m, 2, startProgress(nil, 0))
+		if err != nil {
+			t.Fatal(err)
+		}
+		for i := 0; i < g.Len(); i++ {
+			if !g.Boundary[i] {
+				continue
+			}
+			want := scanSupport(g.Point(i), m.rows, n)
+			if bs[i] != want {
+				t.Fatalf("n=%d belief %v: stream %+v, support scan %+v", n, g.Point(i), bs[i], want)
+			}
+		}
 	}
 }

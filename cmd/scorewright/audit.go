@@ -24,16 +24,18 @@ type identJSON struct {
 	Scale    num.Float `json:"scale"`
 	Shift    num.Float `json:"shift"`
 	Residual num.Float `json:"residual"`
+	Note     string    `json:"note,omitempty"`
 }
 
 type auditJSON struct {
 	reportJSON
-	Payout     string     `json:"payout"`
-	Outcomes   []string   `json:"outcomes"`
-	Gap        gapJSON    `json:"gap"`
-	Direction  string     `json:"direction,omitempty"`
-	Identified *identJSON `json:"identified,omitempty"`
-	Caution    string     `json:"caution"`
+	Payout     string      `json:"payout"`
+	Outcomes   []string    `json:"outcomes"`
+	Gap        gapJSON     `json:"gap"`
+	Direction  string      `json:"direction,omitempty"`
+	Identified *identJSON  `json:"identified,omitempty"`
+	Fits       []identJSON `json:"fits,omitempty"`
+	Caution    string      `json:"caution"`
 }
 
 const auditCaution = "scorewright checks the mathematics, not the law: payment schemes (lottery-style payments especially) can be regulated; have the contract reviewed by qualified counsel"
@@ -99,7 +101,10 @@ func runAudit(e *env, args []string) error {
 		out := auditJSON{reportJSON: toReportJSON(&rep.Report), Payout: *src, Outcomes: labels, Direction: rep.Direction, Caution: auditCaution,
 			Gap: gapJSON{Max: num.Float(rep.Gap.Max), Belief: num.Floats(rep.Gap.Belief), BestReport: num.Floats(rep.Gap.BestReport), Sharpened: rep.Gap.Sharpened}}
 		if id := rep.Identified; id != nil {
-			out.Identified = &identJSON{id.Preset, num.Float(id.Scale), num.Float(id.Shift), num.Float(id.Residual)}
+			out.Identified = &identJSON{id.Preset, num.Float(id.Scale), num.Float(id.Shift), num.Float(id.Residual), ""}
+		}
+		for _, f := range rep.Fits {
+			out.Fits = append(out.Fits, identJSON{f.Preset, num.Float(f.Scale), num.Float(f.Shift), num.Float(f.Residual), f.Note})
 		}
 		if err := writeJSON(e.stdout, out); err != nil {
 			return err
@@ -137,7 +142,7 @@ func printAudit(e *env, src string, labels []string, rep *verify.AuditReport) {
 	fmt.Fprintf(w, "payout:  %q over %d outcomes (reward: more is better)\n", src, len(labels))
 	printReport(w, &rep.Report)
 	fmt.Fprintln(w)
-	if rep.Gap.Max > rep.Grid.Tolerance {
+	if rep.Gap.Max > rep.Grid.Tolerance*rep.Grid.Scale {
 		how := ""
 		if rep.Gap.Sharpened {
 			how = fmt.Sprintf(" (sharpened beyond the grid from %.6g)", rep.Gap.GridMax)

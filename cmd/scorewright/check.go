@@ -2,9 +2,10 @@ package main
 
 import (
 	"fmt"
+	"sort"
+	"strings"
 
 	"scorewright/generator/design"
-
 	"scorewright/verify"
 )
 
@@ -44,11 +45,42 @@ func runCheck(e *env, args []string) error {
 			return err
 		}
 	} else {
-		fmt.Fprintf(e.stdout, "rule:    generator %q over %d outcomes\n", d.Formula, rule.Outcomes())
+		fmt.Fprintf(e.stdout, "rule:    %s\n", describeRule(d))
 		printReport(e.stdout, rep)
 	}
 	if rep.Verdict == verify.Improper || rep.Failed() {
 		return errFailed
 	}
 	return nil
+}
+
+// describeRule is the one-line statement of what was checked: mode,
+// formula (its lines joined), overridden parameters, outcomes.
+func describeRule(d *design.Design) string {
+	var b strings.Builder
+	mode := string(d.Mode)
+	if mode == "" {
+		mode = string(design.ModeGenerator)
+	}
+	if d.Preset != "" {
+		mode += " (preset " + d.Preset + ")"
+	}
+	fmt.Fprintf(&b, "%s %q", mode, strings.Join(strings.Split(strings.TrimSpace(d.Formula), "\n"), "; "))
+	if len(d.Params) > 0 {
+		names := make([]string, 0, len(d.Params))
+		for k := range d.Params {
+			names = append(names, k)
+		}
+		sort.Strings(names)
+		var ps []string
+		for _, k := range names {
+			ps = append(ps, fmt.Sprintf("%s = %g", k, d.Params[k]))
+		}
+		fmt.Fprintf(&b, " with %s", strings.Join(ps, ", "))
+	}
+	fmt.Fprintf(&b, " over %d outcomes (%s)", d.N(), strings.Join(d.Labels, ", "))
+	if d.Ordered {
+		b.WriteString(", ordered")
+	}
+	return b.String()
 }

@@ -28,7 +28,7 @@ const verifyUsage = "[--resolution K] [--tolerance T] [--limit L] [--workers W] 
 func addVerifyFlags(fs *flag.FlagSet) *verifyFlags {
 	v := &verifyFlags{}
 	fs.IntVar(&v.resolution, "resolution", 0, "grid resolution K: coordinates in steps of 1/K (default depends on the number of outcomes)")
-	fs.Float64Var(&v.tolerance, "tolerance", verify.DefaultTolerance, "slack allowed for rounding in every comparison")
+	fs.Float64Var(&v.tolerance, "tolerance", verify.DefaultTolerance, "slack allowed for rounding in every comparison, times the size of the rule's values")
 	fs.Float64Var(&v.limit, "limit", 0, "largest effort (payment) in absolute value the boundedness check accepts (0: no limit)")
 	fs.IntVar(&v.workers, "workers", 0, "goroutines to use (0: all cores)")
 	fs.IntVar(&v.samples, "samples", 0, "random lattice points when the full grid is too large (0: default)")
@@ -80,6 +80,7 @@ type gridJSON struct {
 	Resolution int       `json:"resolution"`
 	Points     int       `json:"points"`
 	Tolerance  num.Float `json:"tolerance"`
+	Scale      num.Float `json:"scale"`
 	Sampled    bool      `json:"sampled"`
 	Interior   int       `json:"interior"`
 	Boundary   int       `json:"boundary"`
@@ -123,7 +124,7 @@ type reportJSON struct {
 
 func toReportJSON(r *verify.Report) reportJSON {
 	out := reportJSON{Verdict: r.Verdict, Notes: r.Notes, Grid: gridJSON{
-		Resolution: r.Grid.Resolution, Points: r.Grid.Points, Tolerance: num.Float(r.Grid.Tolerance), Sampled: r.Grid.Sampled,
+		Resolution: r.Grid.Resolution, Points: r.Grid.Points, Tolerance: num.Float(r.Grid.Tolerance), Scale: num.Float(r.Grid.Scale), Sampled: r.Grid.Sampled,
 		Interior: r.Grid.Interior, Boundary: r.Grid.Boundary, Pairs: r.Grid.Pairs, Statement: r.Grid.String(),
 	}}
 	for _, c := range r.Checks {

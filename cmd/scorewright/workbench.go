@@ -24,7 +24,7 @@ func runWorkbench(e *env, d *design.Design, path ...string) error {
 	if len(path) > 0 {
 		p = path[0]
 	}
-	m := tui.New(d, p, tui.Settings{}, tui.NewStyles(lipgloss.DefaultRenderer()))
+	m := tui.New(d, p, tui.Settings{Version: version}, tui.NewStyles(lipgloss.DefaultRenderer()))
 	defer m.Close()
 	prog := tea.NewProgram(m, tea.WithAltScreen(), tea.WithInput(in), tea.WithOutput(out))
 	_, err := prog.Run()

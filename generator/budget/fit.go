@@ -79,6 +79,7 @@ type UnboundedError struct {
 	AtZero bool
 }
 
+// Error says where the rule is infinite and the two ways out.
 func (e *UnboundedError) Error() string {
 	s := fmt.Sprintf("the rule's effort is %v at report %s when %q happens", e.Effort, num.Format(e.Report), e.Label)
 	if e.AtZero {

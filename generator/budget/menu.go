@@ -109,6 +109,18 @@ func checkFloor(what string, v float64, n int) error {
 	return nil
 }
 
+// FloorReport writes into dst the report a menu with a report floor records
+// for p: every entry below floor raised to it, the difference taken from the
+// largest entry — the same rule StepMenu applies to its items. It returns dst.
+func FloorReport(dst, p []float64, floor float64) []float64 {
+	if len(dst) != len(p) {
+		panic("budget: FloorReport length mismatch")
+	}
+	copy(dst, p)
+	raiseToFloor(dst, floor)
+	return dst
+}
+
 // raiseToFloor lifts entries below floor to floor, taking the difference
 // from the largest entry.
 func raiseToFloor(p []float64, floor float64) {

@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"math"
 	"os"
+	"regexp"
 	"strings"
 
 	"github.com/BurntSushi/toml"
@@ -36,7 +37,7 @@ func Decode(b []byte) (*Design, error) {
 		if errors.As(err, &pe) {
 			return nil, fmt.Errorf("line %d: %s", pe.Position.Line, pe.Message)
 		}
-		return nil, err
+		return nil, typeError(err)
 	}
 	if und := md.Undecoded(); len(und) > 0 {
 		keys := make([]string, len(und))
@@ -181,4 +182,27 @@ func (d *Design) Save(path string, overwrite bool) error {
 		return err
 	}
 	return safefile.Write(path, b, overwrite)
+}
+
+// tomlTypeErr is the TOML decoder's message for a value of the wrong type.
+var tomlTypeErr = regexp.MustCompile(`^toml: line (\d+) \(last key "([^"]+)"\): incompatible types: TOML value has type (\w+); destination has type (\w+)$`)
+
+// typeError rewrites the decoder's type-mismatch message in the file's
+// own words ("line 3: outcomes: expected a list, found text"); other
+// errors pass unchanged.
+func typeError(err error) error {
+	m := tomlTypeErr.FindStringSubmatch(err.Error())
+	if m == nil {
+		return err
+	}
+	words := map[string]string{"slice": "a list", "array": "a list", "float": "a number", "float64": "a number",
+		"int": "a whole number", "int64": "a whole number", "integer": "a whole number", "string": "text", "bool": "true or false",
+		"map": "a table", "struct": "a table", "ptr": "a number"}
+	say := func(t string) string {
+		if w, ok := words[t]; ok {
+			return w
+		}
+		return t
+	}
+	return fmt.Errorf("line %s: %s: expected %s, found %s", m[1], m[2], say(m[4]), say(m[3]))
 }

@@ -9,6 +9,7 @@ import (
 // Span is a stretch [Lo, Hi] of grid points with the same trouble.
 type Span struct{ Lo, Hi float64 }
 
+// String writes the span as a range of c.
 func (s Span) String() string {
 	if s.Lo == s.Hi {
 		return fmt.Sprintf("c = %.6g", s.Lo)

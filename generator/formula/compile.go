@@ -3,7 +3,6 @@ package formula
 import (
 	"fmt"
 	"math"
-	"sort"
 	"strconv"
 	"strings"
 )
@@ -29,21 +28,24 @@ type Scope struct {
 	Params map[string]float64
 }
 
-// Functions lists the function names of the language, for help screens.
-var functionArity = map[string][2]int{
-	"ln": {1, 1}, "log": {1, 1}, "log2": {1, 1}, "log10": {1, 1}, "exp": {1, 1},
-	"sqrt": {1, 1}, "abs": {1, 1}, "min": {1, -1}, "max": {1, -1}, "if": {3, 3},
-	"sum": {1, 1}, "csum": {1, 1},
+// arity returns the least and most arguments of a built-in function (most
+// -1: any number), and whether name is one. A switch, not a map, so the
+// table cannot be changed at run time.
+func arity(name string) (lo, hi int, ok bool) {
+	switch name {
+	case "ln", "log", "log2", "log10", "exp", "sqrt", "abs", "sum", "csum":
+		return 1, 1, true
+	case "min", "max":
+		return 1, -1, true
+	case "if":
+		return 3, 3, true
+	}
+	return 0, 0, false
 }
 
 // Functions returns the names of the built-in functions, sorted.
 func Functions() []string {
-	names := make([]string, 0, len(functionArity))
-	for k := range functionArity {
-		names = append(names, k)
-	}
-	sort.Strings(names)
-	return names
+	return []string{"abs", "csum", "exp", "if", "ln", "log", "log10", "log2", "max", "min", "sqrt", "sum"}
 }
 
 // MaxOutcomes is the largest outcome count the engine supports.
@@ -160,13 +162,22 @@ func (c *compiler) fail(at Pos, format string, args ...any) {
 	panic(newError(c.src, at, format, args...))
 }
 
-var builtinConstants = map[string]float64{"pi": math.Pi, "e": math.E}
+// builtinConstant returns the value of a named constant of the language.
+func builtinConstant(name string) (float64, bool) {
+	switch name {
+	case "pi":
+		return math.Pi, true
+	case "e":
+		return math.E, true
+	}
+	return 0, false
+}
 
 func (c *compiler) reserved(name string) bool {
-	if _, ok := builtinConstants[name]; ok {
+	if _, ok := builtinConstant(name); ok {
 		return true
 	}
-	if _, ok := functionArity[name]; ok {
+	if _, _, ok := arity(name); ok {
 		return true
 	}
 	switch name {
@@ -529,10 +540,10 @@ func (c *compiler) ident(n *Ident, x ctx) int32 {
 	if v, ok := c.params[name]; ok {
 		return c.konst(v)
 	}
-	if v, ok := builtinConstants[name]; ok {
+	if v, ok := builtinConstant(name); ok {
 		return c.konst(v)
 	}
-	if _, ok := functionArity[name]; ok {
+	if _, _, ok := arity(name); ok {
 		c.fail(n.At, "%s is a function; write %s(...)", name, name)
 	}
 	nOut := c.scope.Outcomes
@@ -671,19 +682,19 @@ func (c *compiler) index(n *Index, x ctx) int32 {
 }
 
 func (c *compiler) call(n *Call, x ctx) int32 {
-	ar, ok := functionArity[n.Func]
+	lo, hi, ok := arity(n.Func)
 	if !ok {
 		if _, isParam := c.params[n.Func]; isParam || c.reserved(n.Func) {
 			c.fail(n.At, "%s is not a function; write * to multiply, as in %s*(...)", n.Func, n.Func)
 		}
 		c.fail(n.At, "unknown function %q; known: %s", n.Func, strings.Join(Functions(), ", "))
 	}
-	if len(n.Args) < ar[0] || ar[1] >= 0 && len(n.Args) > ar[1] {
-		want := fmt.Sprintf("%d argument", ar[0])
-		if ar[0] != 1 {
+	if len(n.Args) < lo || hi >= 0 && len(n.Args) > hi {
+		want := fmt.Sprintf("%d argument", lo)
+		if lo != 1 {
 			want += "s"
 		}
-		if ar[1] < 0 {
+		if hi < 0 {
 			want = "at least " + want
 		}
 		c.fail(n.At, "%s takes %s, found %d", n.Func, want, len(n.Args))

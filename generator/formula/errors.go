@@ -11,6 +11,7 @@ type Pos struct {
 	Line, Col int
 }
 
+// String writes the position as line:col.
 func (p Pos) String() string { return fmt.Sprintf("%d:%d", p.Line, p.Col) }
 
 // Error is a problem found in a formula, with the place it was found.

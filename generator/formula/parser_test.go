@@ -147,3 +147,17 @@ func TestCaret(t *testing.T) {
 		t.Errorf("position %s, want 2:6", e.Error())
 	}
 }
+
+// Functions() and the compiler's arity table name the same functions.
+func TestFunctionsListed(t *testing.T) {
+	for _, f := range Functions() {
+		if _, _, ok := arity(f); !ok {
+			t.Errorf("%s is listed but has no arity", f)
+		}
+	}
+	for _, f := range []string{"foo", "p", "sin"} {
+		if _, _, ok := arity(f); ok {
+			t.Errorf("%s has an arity but is not a function", f)
+		}
+	}
+}

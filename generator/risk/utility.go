@@ -66,6 +66,7 @@ func ParseUtility(s string) (Utility, error) {
 	return Utility{}, fmt.Errorf("utility %q: unknown family %q; want crra or cara", s, kind)
 }
 
+// String describes the utility in words, for reports.
 func (u Utility) String() string {
 	switch {
 	case u.Kind == Linear || u.Coef == 0:

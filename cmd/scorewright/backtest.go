@@ -1,0 +1,524 @@
+package main
+
+import (
+	"bufio"
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"os/signal"
+	"regexp"
+	"sort"
+	"strconv"
+	"strings"
+	"time"
+
+	"scorewright/generator/backtest"
+	"scorewright/generator/backtest/figure"
+	"scorewright/generator/bregman"
+	"scorewright/generator/design"
+	"scorewright/generator/history"
+	"scorewright/generator/num"
+	"scorewright/generator/safefile"
+	"scorewright/tui/reliability"
+)
+
+const backtestUsage = ruleUsage + " " + budgetUsage + " [--menu FILE] [--clamp P] --history FILE.csv [--strict] [--tolerance T]" +
+	" [--versus-preset NAME | --versus-generator EXPR | --versus-design FILE] [--versus-param name=value]" +
+	" [--pay-out FILE.csv] [--by-question] [--figure FILE.svg|png|pdf] [--chart] [--force] [--progress] [--json]"
+
+// money is how one rule turns effort into pay, as its fitted table does.
+type money struct {
+	pay backtest.Payer
+	// onMenu reports whether a forecast is on the report menu; nil when
+	// every forecast is.
+	onMenu func(p []float64) bool
+	// low and high are the payment bounds the budget promises.
+	low, high float64
+	// formula says how pay follows from effort, e.g.
+	// "pay = 12.5 - 25·effort, rounded to the nearest 0.5".
+	formula string
+	// menu describes the report menu, e.g. "reports in steps of 0.05".
+	menu string
+	// budget restates the budget, e.g. "floor 0, cap 10".
+	budget string
+	// decimals is how many decimals payments have; -1 when unrounded.
+	decimals int
+	// adjust, if set, is the report the contract pays for a forecast (the
+	// table's clamp).
+	adjust func(dst, p []float64) []float64
+	// record, if set, is the report the contract records for a forecast
+	// (the menu's report floor).
+	record func(dst, p []float64) []float64
+	// notes are said under the results.
+	notes []string
+	// warning, if set, says the fitted table failed its re-check.
+	warning string
+}
+
+// fitFunc fits a rule to a design's budget. The command uses the table's
+// fit; tests give an explicit A - B·effort.
+type fitFunc func(r *bregman.Rule, d *design.Design) (*money, error)
+
+func runBacktest(e *env, args []string) error { return backtestWith(e, args, nil) }
+
+// backtestScheme is one rule of a backtest with its money and origin.
+type backtestScheme struct {
+	id    string // "A", "B"
+	name  string // preset name or "generator"
+	d     *design.Design
+	rule  *bregman.Rule
+	money *money
+}
+
+// backtestWith runs the command; a nil fit means the table's budget fit.
+func backtestWith(e *env, args []string, fit fitFunc) error {
+	fs := newFlags("backtest", "")
+	rf := addRuleFlags(fs)
+	bf := addBudgetFlags(fs)
+	historyPath := fs.String("history", "", "forecast history CSV: forecaster, question, outcome, one probability column per outcome ('-' reads stdin)")
+	strict := fs.Bool("strict", false, "stop at the first bad row (exit 2) instead of skipping it")
+	tol := fs.Float64("tolerance", history.DefaultTolerance, "how far from 1 a row's probabilities may sum")
+	vsPreset := fs.String("versus-preset", "", "second rule to compare with: a preset name")
+	vsGen := fs.String("versus-generator", "", "second rule to compare with: a generator formula")
+	vsDesign := fs.String("versus-design", "", "second rule to compare with: a design file (with its own budget, if it has one; else the first rule's)")
+	vsParams := paramFlag{}
+	fs.Var(vsParams, "versus-param", "parameter of the second rule's formula, name=value (repeatable)")
+	menuFile := fs.String("menu", "", "read the report menu from a CSV file, as the table command does (instead of --step)")
+	clamp := fs.Float64("clamp", 0, "pay every report as if each probability were at least P, as the table command does")
+	payOut := fs.String("pay-out", "", "write every forecast's pay under each rule to this CSV file")
+	byQuestion := fs.Bool("by-question", false, "also total the pay per question (memory grows with the number of questions)")
+	figPath := fs.String("figure", "", "n = 2: write the reliability picture to FILE.svg, .png or .pdf")
+	chart := fs.Bool("chart", false, "n = 2: print the reliability picture as a text chart")
+	force := fs.Bool("force", false, "replace existing --pay-out and --figure files")
+	progress := fs.Bool("progress", false, "show a progress line on stderr even when it is not a terminal")
+	asJSON := fs.Bool("json", false, "print JSON")
+	if err := parseFlags(e, fs, backtestUsage, args, false); err != nil {
+		return err
+	}
+	if *historyPath == "" {
+		return usagef("--history FILE.csv is required")
+	}
+	if fit == nil {
+		fit = budgetFit(fs, *menuFile, *clamp)
+	}
+	if !(*tol > 0) || *tol >= 1 {
+		return usagef("--tolerance %g: want a number in (0, 1)", *tol)
+	}
+	d1, err := rf.design()
+	if err != nil {
+		return err
+	}
+	if err := bf.apply(fs, d1); err != nil {
+		return err
+	}
+	schemes := []*backtestScheme{{id: "A", d: d1}}
+	vs := 0
+	for _, s := range []string{*vsPreset, *vsGen, *vsDesign} {
+		if s != "" {
+			vs++
+		}
+	}
+	switch {
+	case vs > 1:
+		return usagef("give at most one of --versus-preset, --versus-generator and --versus-design")
+	case vs == 0 && len(vsParams) > 0:
+		return usagef("--versus-param needs --versus-preset, --versus-generator or --versus-design")
+	case vs == 1:
+		d2, err := versusDesign(d1, *vsPreset, *vsGen, *vsDesign, vsParams)
+		if err != nil {
+			return err
+		}
+		schemes = append(schemes, &backtestScheme{id: "B", d: d2})
+	}
+	n := d1.N()
+	for _, s := range schemes {
+		if s.rule, err = categoricalRule(s.d); err != nil {
+			return err
+		}
+		s.name = ruleName(s.d)
+		if s.money, err = fit(s.rule, s.d); err != nil {
+			return fmt.Errorf("rule %s (%s): %w", s.id, s.name, err)
+		}
+	}
+	var figFormat string
+	if *figPath != "" || *chart {
+		if n != 2 {
+			return usagef("the reliability picture is for 2 outcomes; this rule has %d", n)
+		}
+	}
+	if *figPath != "" {
+		if figFormat, err = figure.Format(*figPath); err != nil {
+			return usagef("--figure: %v", err)
+		}
+		if err := refuseExisting(*figPath, *force); err != nil {
+			return err
+		}
+	}
+
+	in, size, closeIn, err := openHistory(e, *historyPath)
+	if err != nil {
+		return err
+	}
+	defer closeIn()
+	h, err := history.NewReader(in, d1.Labels, history.Options{Tolerance: *tol})
+	if err != nil {
+		return usagef("%s: %v", *historyPath, err)
+	}
+
+	bs := make([]backtest.Scheme, len(schemes))
+	for i, s := range schemes {
+		bs[i] = backtest.Scheme{Name: s.id, Rule: s.rule, Pay: s.money.pay, OnMenu: s.money.onMenu, Low: s.money.low, High: s.money.high, Adjust: s.money.adjust, Record: s.money.record}
+	}
+	opt := backtest.Options{Strict: *strict}
+	if *progress || isTerminal(e.stderr) {
+		opt.Progress = newProgressLine(e.stderr, size)
+	}
+	var out *payOutFile
+	if *payOut != "" {
+		if out, err = createPayOut(*payOut, *force, d1.Labels, schemes); err != nil {
+			return err
+		}
+		defer out.abort()
+		opt.OnRow = out.write
+	}
+	var questions *questionTally
+	if *byQuestion {
+		questions = newQuestionTally(d1.Labels)
+		if out != nil {
+			opt.OnRow = func(row *history.Row, paid []backtest.Paid) error {
+				if err := out.write(row, paid); err != nil {
+					return err
+				}
+				return questions.add(row, paid)
+			}
+		} else {
+			opt.OnRow = questions.add
+		}
+	}
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	defer stop()
+	res, err := backtest.Run(ctx, h, bs, opt)
+	if opt.Progress != nil {
+		fmt.Fprintln(e.stderr)
+	}
+	if err != nil {
+		var re *history.RowError
+		if errors.As(err, &re) {
+			return usagef("%s line %d: %s (--strict stops at the first bad row)", *historyPath, re.Line, re.Why)
+		}
+		if errors.Is(err, context.Canceled) {
+			return usagef("interrupted; nothing was written")
+		}
+		return usagef("%s: %v", *historyPath, err)
+	}
+	if res.Rows == 0 {
+		msg := fmt.Sprintf("%s has no valid forecasts", *historyPath)
+		if res.SkippedCount > 0 {
+			msg += fmt.Sprintf(" (%d rows skipped; the first, line %d: %s)", res.SkippedCount, res.Skipped[0].Line, res.Skipped[0].Why)
+		}
+		return usagef("%s", msg)
+	}
+	if out != nil {
+		if err := out.commit(); err != nil {
+			return err
+		}
+	}
+	report := newBacktestReport(*historyPath, h, schemes, res)
+	if questions != nil {
+		var notes []string
+		report.Questions, notes = questions.report()
+		report.Notes = append(report.Notes, notes...)
+	}
+	if *figPath != "" {
+		if err := writeReliabilityFigure(*figPath, figFormat, *force, d1.Labels[0], res); err != nil {
+			return err
+		}
+		report.Notes = append(report.Notes, "reliability picture written to "+*figPath)
+	}
+	if out != nil {
+		report.Notes = append(report.Notes, "pay of every forecast written to "+*payOut)
+	}
+	if *asJSON {
+		return writeJSON(e.stdout, report)
+	}
+	if err := report.writeText(e.stdout); err != nil {
+		return err
+	}
+	if *chart {
+		fmt.Fprintln(e.stdout)
+		fmt.Fprintln(e.stdout, reliability.New(d1.Labels[0], reliabilityCurves(res, 0)).View(72, 22))
+	}
+	return nil
+}
+
+// versusDesign builds the second rule over the first rule's outcomes. A
+// design file keeps its own budget when it states one (a cap or a mean
+// pay); otherwise, and for a preset or generator, the second rule is fitted
+// to the first rule's budget, so that the two are compared on equal money.
+func versusDesign(d1 *design.Design, preset, gen, file string, params paramFlag) (*design.Design, error) {
+	vr := &ruleFlags{preset: preset, generator: gen, file: file, params: params, ordered: d1.Ordered}
+	if file == "" {
+		vr.outcomes = strings.Join(d1.Labels, ",")
+		if d1.Weights != nil {
+			w := make([]string, len(d1.Weights))
+			for i, x := range d1.Weights {
+				w[i] = strconv.FormatFloat(x, 'g', -1, 64)
+			}
+			vr.weights = strings.Join(w, ",")
+		}
+	}
+	d2, err := vr.design()
+	if err != nil {
+		var ue *usageError
+		if errors.As(err, &ue) {
+			return nil, usagef("second rule: %s", ue.msg)
+		}
+		return nil, err
+	}
+	if file != "" && strings.Join(d2.Labels, "\x00") != strings.Join(d1.Labels, "\x00") {
+		return nil, usagef("--versus-design %s has outcomes %s; the first rule has %s", file, strings.Join(d2.Labels, ", "), strings.Join(d1.Labels, ", "))
+	}
+	if file == "" || (d2.Budget.Cap == 0 && d2.Budget.MeanPay == nil) {
+		d2.Budget = d1.Budget
+		d2.Budget.Reference = append([]float64(nil), d1.Budget.Reference...)
+	}
+	return d2, nil
+}
+
+// ruleName is how a report names a rule: its preset, title or kind.
+func ruleName(d *design.Design) string {
+	switch {
+	case d.Preset != "":
+		return d.Preset
+	case d.Title != "":
+		return d.Title
+	case d.Mode == design.ModeEmphasis:
+		return "emphasis"
+	}
+	return "generator"
+}
+
+// paramLine matches a formula's parameter line, "name = number".
+var paramLine = regexp.MustCompile(`^\s*([A-Za-z_][A-Za-z_0-9]*)\s*=\s*([-+0-9.eE]+)\s*$`)
+
+// ruleFormula says what the formula of a design is, with its parameters
+// (defaults from the formula, overridden by the design) after it, e.g.
+// "emphasis w(c) = c^(a-1) * (1-c)^(b-1) with a = 2, b = 1".
+func ruleFormula(d *design.Design) string {
+	kind := "generator H = "
+	if d.Mode == design.ModeEmphasis {
+		kind = "emphasis w(c) = "
+	}
+	params := map[string]string{}
+	var names, expr []string
+	for _, line := range strings.Split(d.Formula, "\n") {
+		line = strings.TrimSpace(line)
+		if line == "" || strings.HasPrefix(line, "#") {
+			continue
+		}
+		if m := paramLine.FindStringSubmatch(line); m != nil {
+			if _, seen := params[m[1]]; !seen {
+				names = append(names, m[1])
+			}
+			params[m[1]] = m[2]
+			continue
+		}
+		expr = append(expr, line)
+	}
+	for k, v := range d.Params {
+		if _, seen := params[k]; !seen {
+			names = append(names, k)
+		}
+		params[k] = strconv.FormatFloat(v, 'g', -1, 64)
+	}
+	f := kind + strings.Join(expr, " ")
+	if len(names) > 0 {
+		sort.Strings(names)
+		for i, k := range names {
+			names[i] = k + " = " + params[k]
+		}
+		f += " with " + strings.Join(names, ", ")
+	}
+	return f
+}
+
+// openHistory opens the history file ("-" is stdin) and returns its size
+// when known (for progress), or 0.
+func openHistory(e *env, path string) (io.Reader, int64, func(), error) {
+	if path == "-" {
+		return e.stdin, 0, func() {}, nil
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, 0, nil, usagef("--history: %v", err)
+	}
+	var size int64
+	if st, err := f.Stat(); err == nil && st.Mode().IsRegular() {
+		size = st.Size()
+	}
+	// A larger buffer than encoding/csv's own 4 KiB saves system calls.
+	return bufio.NewReaderSize(f, 1<<16), size, func() { f.Close() }, nil
+}
+
+// newProgressLine returns a progress callback that rewrites one stderr
+// line at most four times a second.
+func newProgressLine(w io.Writer, size int64) func(backtest.Progress) {
+	start := time.Now()
+	var last time.Time
+	return func(p backtest.Progress) {
+		now := time.Now()
+		if now.Sub(last) < 250*time.Millisecond && p.Offset < size {
+			return
+		}
+		last = now
+		rate := float64(p.Rows) / math.Max(now.Sub(start).Seconds(), 1e-9)
+		part := ""
+		if size > 0 {
+			part = fmt.Sprintf(" (%.0f%% of %s)", 100*float64(p.Offset)/float64(size), byteSize(size))
+		}
+		fmt.Fprintf(w, "\rbacktest: %d rows read%s, %d skipped, %.2f million rows/s   ", p.Rows, part, p.Skipped, rate/1e6)
+	}
+}
+
+func byteSize(n int64) string {
+	switch {
+	case n >= 1<<30:
+		return fmt.Sprintf("%.1f GiB", float64(n)/(1<<30))
+	case n >= 1<<20:
+		return fmt.Sprintf("%.1f MiB", float64(n)/(1<<20))
+	case n >= 1<<10:
+		return fmt.Sprintf("%.1f KiB", float64(n)/(1<<10))
+	}
+	return fmt.Sprintf("%d B", n)
+}
+
+// refuseExisting fails early, before hours of reading, when an output
+// file exists and --force was not given.
+func refuseExisting(path string, force bool) error {
+	if force {
+		return nil
+	}
+	if _, err := os.Lstat(path); err == nil {
+		return usagef("%s: %v (use --force to replace it)", path, safefile.ErrExists)
+	}
+	return nil
+}
+
+// pictureCells is how many bins per unit of probability the reliability
+// picture groups forecasts into: the usual tenths.
+const pictureCells = 10
+
+// reliabilityCurves are the forecasters' curves for outcome k, in bins of
+// width 1/pictureCells.
+func reliabilityCurves(res *backtest.Result, k int) []backtest.Curve {
+	curves := make([]backtest.Curve, len(res.Forecasters))
+	for i, f := range res.Forecasters {
+		curves[i] = backtest.ReliabilityCurve(f.Name, backtest.Regroup(f.Bins, pictureCells), k)
+	}
+	return curves
+}
+
+func writeReliabilityFigure(path, format string, force bool, event string, res *backtest.Result) error {
+	p, err := figure.Reliability(reliabilityCurves(res, 0), event, fmt.Sprintf("Reliability of forecasts of %q (bins of width 1/%d)", event, pictureCells))
+	if err != nil {
+		return err
+	}
+	data, err := figure.Encode(p, format)
+	if err != nil {
+		return err
+	}
+	if err := safefile.Write(path, data, force); err != nil {
+		return usagef("%v", err)
+	}
+	return nil
+}
+
+// backtestReport is what the command prints (and its JSON).
+type backtestReport struct {
+	History     string              `json:"history"`
+	Outcomes    []string            `json:"outcomes"`
+	Tolerance   float64             `json:"tolerance"`
+	Rows        int                 `json:"rows"`
+	Rules       []ruleReport        `json:"rules"`
+	Forecasters []forecasterReport  `json:"forecasters"`
+	SkipCount   int                 `json:"skipped_count"`
+	Skipped     []skippedReport     `json:"skipped"`
+	Reliability []reliabilityReport `json:"reliability,omitempty"`
+	Questions   []questionReport    `json:"questions,omitempty"`
+	Notes       []string            `json:"notes,omitempty"`
+	Caution     []string            `json:"caution"`
+	decimals    []int
+}
+
+type skippedReport struct {
+	Line int    `json:"line"`
+	Why  string `json:"why"`
+}
+
+type ruleReport struct {
+	ID        string    `json:"id"`
+	Name      string    `json:"name"`
+	Formula   string    `json:"formula"`
+	Pay       string    `json:"pay"`
+	Menu      string    `json:"menu"`
+	Budget    string    `json:"budget"`
+	Count     int       `json:"count"`
+	Total     num.Float `json:"total"`
+	Mean      num.Float `json:"mean"`
+	Min       num.Float `json:"min"`
+	Max       num.Float `json:"max"`
+	OffMenu   int       `json:"off_menu"`
+	BelowLow  int       `json:"below_floor"`
+	AboveHigh int       `json:"above_cap"`
+	NonFinite int       `json:"non_finite"`
+	// MostTotal is what the forecasts could have cost at most: count × the
+	// table's largest payment.
+	MostTotal num.Float `json:"most_total"`
+	// TargetMean and TargetTotal are the mean-pay budget's aim per
+	// forecast, and times the count, when the budget has one.
+	TargetMean  *num.Float `json:"target_mean,omitempty"`
+	TargetTotal *num.Float `json:"target_total,omitempty"`
+}
+
+type forecasterReport struct {
+	Name  string `json:"name"`
+	Count int    `json:"count"`
+	// Total, Mean and Rank are under the first rule; Totals, Means and
+	// Ranks list every rule.
+	Total         num.Float             `json:"total"`
+	Mean          num.Float             `json:"mean"`
+	Rank          int                   `json:"rank"`
+	Totals        []num.Float           `json:"totals"`
+	Means         []num.Float           `json:"means"`
+	Ranks         []int                 `json:"ranks"`
+	RankChange    *int                  `json:"rank_change,omitempty"`
+	OffMenu       []int                 `json:"off_menu"`
+	Decomposition []decompositionReport `json:"decomposition"`
+	Binning       string                `json:"binning"`
+}
+
+type decompositionReport struct {
+	Rule        string    `json:"rule"`
+	MeanEffort  num.Float `json:"mean_effort"`
+	Uncertainty num.Float `json:"uncertainty"`
+	Resolution  num.Float `json:"resolution"`
+	Reliability num.Float `json:"reliability"`
+	WithinBin   num.Float `json:"within_bin"`
+}
+
+type reliabilityReport struct {
+	Forecaster string `json:"forecaster"`
+	Outcome    string `json:"outcome"`
+	// BinWidth is the width of the forecast bins the points group.
+	BinWidth num.Float   `json:"bin_width"`
+	Points   []pointJSON `json:"points"`
+}
+
+type pointJSON struct {
+	Forecast num.Float `json:"forecast"`
+	Observed num.Float `json:"observed"`
+	Count    int       `json:"count"`
+}

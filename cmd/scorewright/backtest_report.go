@@ -1,0 +1,240 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"math"
+	"strings"
+	"text/tabwriter"
+	"unicode/utf8"
+
+	"scorewright/generator/backtest"
+	"scorewright/generator/history"
+	"scorewright/generator/num"
+	"scorewright/generator/table"
+)
+
+// maxSkippedShown caps the skipped rows the text report lists; --json
+// lists every one the run kept.
+const maxSkippedShown = 20
+
+// fewPerBin is the mean number of forecasts per bin below which the
+// report warns that the decomposition's terms rest on few outcomes.
+const fewPerBin = 5
+
+func newBacktestReport(path string, h *history.Reader, schemes []*backtestScheme, res *backtest.Result) *backtestReport {
+	r := &backtestReport{History: path, Outcomes: h.Labels(), Tolerance: h.Tolerance(), Rows: res.Rows,
+		SkipCount: res.SkippedCount, Skipped: []skippedReport{}, Caution: table.Caution()}
+	for _, s := range res.Skipped {
+		r.Skipped = append(r.Skipped, skippedReport(s))
+	}
+	for i, s := range schemes {
+		m := res.All[i]
+		r.decimals = append(r.decimals, s.money.decimals)
+		rr := ruleReport{ID: s.id, Name: s.name, Formula: ruleFormula(s.d), Pay: s.money.formula,
+			Menu: s.money.menu, Budget: s.money.budget, Count: m.Count, Total: num.Float(m.Total), Mean: num.Float(m.Mean),
+			Min: num.Float(m.Min), Max: num.Float(m.Max), OffMenu: m.OffMenu, BelowLow: m.BelowLow, AboveHigh: m.AboveHigh,
+			NonFinite: m.NonFinite, MostTotal: num.Float(float64(m.Count) * s.money.high)}
+		if mp := s.d.Budget.MeanPay; mp != nil {
+			mean, total := num.Float(*mp), num.Float(*mp*float64(m.Count))
+			rr.TargetMean, rr.TargetTotal = &mean, &total
+		}
+		r.Rules = append(r.Rules, rr)
+		for _, n := range s.money.notes {
+			r.Notes = append(r.Notes, fmt.Sprintf("rule %s: %s", s.id, n))
+		}
+		if s.money.warning != "" {
+			r.Notes = append(r.Notes, fmt.Sprintf("rule %s: %s", s.id, s.money.warning))
+		}
+		if m.OffMenu > 0 {
+			r.Notes = append(r.Notes, fmt.Sprintf("rule %s: %d of %d forecasts are off the report menu; the table has no row for them, so they are paid by the formula (A - B·L, then rounded as the table is)",
+				s.id, m.OffMenu, m.Count))
+		}
+		if m.NonFinite > 0 {
+			r.Notes = append(r.Notes, fmt.Sprintf("rule %s: %s not finite (first on line %d): the forecast gave the outcome that happened a probability at which the rule's effort is infinite, and no clamp applies; totals include them",
+				s.id, plural(m.NonFinite, "payment is", "payments are"), m.FirstNonFinite))
+		}
+	}
+	var thin []string
+	for _, f := range res.Forecasters {
+		fr := forecasterReport{Name: f.Name, Count: f.Count, Total: num.Float(f.Money[0].Total), Mean: num.Float(f.Money[0].Mean),
+			Rank: f.Rank[0], Ranks: f.Rank, Binning: f.Binning.String()}
+		for i, m := range f.Money {
+			fr.Totals = append(fr.Totals, num.Float(m.Total))
+			fr.Means = append(fr.Means, num.Float(m.Mean))
+			fr.OffMenu = append(fr.OffMenu, m.OffMenu)
+			d := f.Decomposition[i]
+			fr.Decomposition = append(fr.Decomposition, decompositionReport{Rule: schemes[i].id, MeanEffort: num.Float(d.MeanEffort),
+				Uncertainty: num.Float(d.Uncertainty), Resolution: num.Float(d.Resolution), Reliability: num.Float(d.Reliability),
+				WithinBin: num.Float(d.WithinBin)})
+		}
+		if len(f.Rank) > 1 {
+			c := f.Rank[0] - f.Rank[1]
+			fr.RankChange = &c
+		}
+		if len(f.Bins) > 0 && f.Count < fewPerBin*len(f.Bins) {
+			thin = append(thin, fmt.Sprintf("%s (%d forecasts in %d bins)", f.Name, f.Count, len(f.Bins)))
+		}
+		r.Forecasters = append(r.Forecasters, fr)
+	}
+	if len(thin) > 0 {
+		r.Notes = append(r.Notes, fmt.Sprintf("fewer than %d forecasts per bin on average for %s: resolution and reliability are then measured on few outcomes each and read high (the split stays exact, the terms are noisy)",
+			fewPerBin, strings.Join(thin, ", ")))
+	}
+	if len(r.Outcomes) == 2 {
+		for _, c := range reliabilityCurves(res, 0) {
+			rr := reliabilityReport{Forecaster: c.Name, Outcome: r.Outcomes[0], BinWidth: 1.0 / pictureCells, Points: []pointJSON{}}
+			for _, p := range c.Points {
+				rr.Points = append(rr.Points, pointJSON{num.Float(p.Forecast), num.Float(p.Observed), p.Count})
+			}
+			r.Reliability = append(r.Reliability, rr)
+		}
+	}
+	return r
+}
+
+// cash formats a payment with the rule's currency decimals.
+func (r *backtestReport) cash(rule int, v num.Float) string {
+	x := float64(v)
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return fmt.Sprint(x)
+	}
+	if d := r.decimals[rule]; d >= 0 {
+		return fmt.Sprintf("%.*f", d, x)
+	}
+	return fmt.Sprintf("%.6g", x)
+}
+
+func (r *backtestReport) writeText(w io.Writer) error {
+	fmt.Fprintf(w, "history %s: %d forecasts scored, %d rows skipped (a row's probabilities must lie in [0, 1] and sum to 1 within %g)\n\n",
+		r.History, r.Rows, r.SkipCount, r.Tolerance)
+	for _, rule := range r.Rules {
+		fmt.Fprintf(w, "rule %s: %s, %s\n", rule.ID, rule.Name, rule.Formula)
+		fmt.Fprintf(w, "  %s\n  menu: %s\n  budget: %s\n", rule.Pay, rule.Menu, rule.Budget)
+	}
+	fmt.Fprintln(w)
+
+	two := len(r.Rules) > 1
+	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', tabwriter.AlignRight)
+	// Names read left-aligned: pad them to one width before the
+	// right-aligning table sees them.
+	nw := len("forecaster")
+	for _, f := range r.Forecasters {
+		nw = max(nw, utf8.RuneCountInString(f.Name))
+	}
+	left := func(s string) string { return s + strings.Repeat(" ", nw-utf8.RuneCountInString(s)) }
+	fmt.Fprintf(tw, "%s\tforecasts\t", left("forecaster"))
+	for _, rule := range r.Rules {
+		fmt.Fprintf(tw, "total %s\tmean %s\trank %s\t", rule.ID, rule.ID, rule.ID)
+	}
+	if two {
+		fmt.Fprint(tw, "rank A→B\t")
+	}
+	fmt.Fprint(tw, "off menu\t\n")
+	for _, f := range r.Forecasters {
+		fmt.Fprintf(tw, "%s\t%d\t", left(f.Name), f.Count)
+		for i := range r.Rules {
+			fmt.Fprintf(tw, "%s\t%.4g\t%d\t", r.cash(i, f.Totals[i]), float64(f.Means[i]), f.Ranks[i])
+		}
+		if two {
+			change := "="
+			switch c := *f.RankChange; {
+			case c > 0:
+				change = fmt.Sprintf("%d→%d up", f.Ranks[0], f.Ranks[1])
+			case c < 0:
+				change = fmt.Sprintf("%d→%d down", f.Ranks[0], f.Ranks[1])
+			}
+			fmt.Fprintf(tw, "%s\t", change)
+		}
+		fmt.Fprintf(tw, "%d\t\n", f.OffMenu[0])
+	}
+	fmt.Fprintf(tw, "%s\t%d\t", left("all"), r.Rows)
+	for i, rule := range r.Rules {
+		fmt.Fprintf(tw, "%s\t%.4g\t\t", r.cash(i, rule.Total), float64(rule.Mean))
+	}
+	if two {
+		fmt.Fprint(tw, "\t")
+	}
+	fmt.Fprintf(tw, "%d\t\n", r.Rules[0].OffMenu)
+	tw.Flush()
+	fmt.Fprintln(w, "(ranks by mean pay per forecast, 1 is best; off menu: forecasts not on rule A's report menu)")
+	fmt.Fprintln(w)
+
+	fmt.Fprintln(w, "totals against the budget")
+	for i, rule := range r.Rules {
+		fmt.Fprintf(w, "  rule %s: paid %s for %d forecasts (mean %.4g, smallest %s, largest %s); ", rule.ID,
+			r.cash(i, rule.Total), rule.Count, float64(rule.Mean), r.cash(i, rule.Min), r.cash(i, rule.Max))
+		if rule.BelowLow+rule.AboveHigh == 0 {
+			fmt.Fprintln(w, "every payment within the table's range")
+		} else {
+			fmt.Fprintf(w, "%s below the table's smallest payment, %s above its largest (all off the menu)\n", plural(rule.BelowLow, "payment"), plural(rule.AboveHigh, "payment"))
+		}
+		fmt.Fprintf(w, "          at most %s had every forecast earned the table's largest payment", r.cash(i, rule.MostTotal))
+		if rule.TargetMean != nil {
+			fmt.Fprintf(w, "; the budget aims at %s per forecast from a truthful forecaster at its reference belief, %s for %d forecasts",
+				r.cash(i, *rule.TargetMean), r.cash(i, *rule.TargetTotal), rule.Count)
+		}
+		fmt.Fprintln(w)
+	}
+	fmt.Fprintln(w)
+
+	fmt.Fprintln(w, "mean effort = uncertainty - resolution + reliability (+ within-bin, zero when bins are the distinct forecasts)")
+	tw = tabwriter.NewWriter(w, 0, 4, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintf(tw, "rule\t%s\tmean effort\tuncertainty\tresolution\treliability\twithin-bin\t\n", left("forecaster"))
+	for i, rule := range r.Rules {
+		for _, f := range r.Forecasters {
+			d := f.Decomposition[i]
+			fmt.Fprintf(tw, "%s\t%s\t%.6g\t%.6g\t%.6g\t%.6g\t%.2g\t\n", rule.ID, left(f.Name), float64(d.MeanEffort), float64(d.Uncertainty),
+				float64(d.Resolution), float64(d.Reliability), float64(d.WithinBin))
+		}
+	}
+	tw.Flush()
+	binnings := map[string][]string{}
+	var order []string
+	for _, f := range r.Forecasters {
+		if binnings[f.Binning] == nil {
+			order = append(order, f.Binning)
+		}
+		binnings[f.Binning] = append(binnings[f.Binning], f.Name)
+	}
+	for _, b := range order {
+		fmt.Fprintf(w, "(%s: %s)\n", strings.Join(binnings[b], ", "), b)
+	}
+
+	if err := r.writeQuestions(w); err != nil {
+		return err
+	}
+
+	if r.SkipCount > 0 {
+		fmt.Fprintf(w, "\nskipped rows (%d):\n", r.SkipCount)
+		for i, s := range r.Skipped {
+			if i == maxSkippedShown {
+				fmt.Fprintf(w, "  ... and %d more (--json lists the first %d)\n", r.SkipCount-maxSkippedShown, len(r.Skipped))
+				break
+			}
+			fmt.Fprintf(w, "  line %d: %s\n", s.Line, s.Why)
+		}
+	}
+	fmt.Fprintln(w)
+	for _, n := range r.Notes {
+		fmt.Fprintln(w, "note:", n)
+	}
+	var err error
+	for _, c := range r.Caution {
+		_, err = fmt.Fprintln(w, "caution:", c)
+	}
+	return err
+}
+
+// plural writes "1 payment" or "3 payments"; forms gives the singular and,
+// when it is not just an added s, the plural.
+func plural(n int, forms ...string) string {
+	one, many := forms[0], forms[0]+"s"
+	if len(forms) > 1 {
+		many = forms[1]
+	}
+	if n == 1 {
+		return "1 " + one
+	}
+	return fmt.Sprintf("%d %s", n, many)
+}

@@ -1,0 +1,114 @@
+package verify
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"testing"
+
+	"scorewright/generator/bregman"
+	"scorewright/verify/simplex"
+)
+
+// benchMenu builds the grid and the effort menu of the quadratic rule.
+func benchMenu(b *testing.B, n, k int) (*simplex.Grid, *menu) {
+	b.Helper()
+	g, err := simplex.Full(n, k)
+	if err != nil {
+		b.Fatal(err)
+	}
+	f, err := bregman.NewFormula("1 - sum(p^2)", bregman.Options{Outcomes: n})
+	if err != nil {
+		b.Fatal(err)
+	}
+	sc := (&bregman.Rule{Gen: f}).NewScorer()
+	m := newMenu(n, g.Len())
+	for j := 0; j < g.Len(); j++ {
+		sc.Efforts(m.rows[j*n:(j+1)*n], g.Point(j))
+	}
+	m.seal()
+	return g, m
+}
+
+var benchSizes = []struct{ n, k int }{{3, 200}, {4, 40}}
+
+// BenchmarkStream is the full pair check: every grid belief against every
+// grid report, best and second best tracked, on all cores.
+func BenchmarkStream(b *testing.B) {
+	for _, sz := range benchSizes {
+		b.Run(fmt.Sprintf("n=%d/K=%d", sz.n, sz.k), func(b *testing.B) {
+			g, m := benchMenu(b, sz.n, sz.k)
+			pairs := float64(g.Len()) * float64(g.Len())
+			pr := startProgress(nil, 0)
+			b.ResetTimer()
+			for range b.N {
+				if _, err := stream(context.Background(), g, m, 0, pr); err != nil {
+					b.Fatal(err)
+				}
+			}
+			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/pairs, "ns/pair")
+		})
+	}
+}
+
+// fusedLoop is the plain reference: the same multiply-adds and a running
+// minimum, one core, nothing else (verify/testdata/fused.c is the same
+// loop in C).
+func fusedLoop(q, rows []float64, n, G int) float64 {
+	var total float64
+	for i := 0; i < G; i++ {
+		qi := q[i*n : (i+1)*n]
+		best := math.Inf(1)
+		for j := 0; j < G; j++ {
+			r := rows[j*n : (j+1)*n]
+			var s float64
+			for k := range qi {
+				s += qi[k] * r[k]
+			}
+			if s < best {
+				best = s
+			}
+		}
+		total += best
+	}
+	return total
+}
+
+var sink float64
+
+func BenchmarkFusedLoop(b *testing.B) {
+	for _, sz := range benchSizes {
+		b.Run(fmt.Sprintf("n=%d/K=%d", sz.n, sz.k), func(b *testing.B) {
+			g, m := benchMenu(b, sz.n, sz.k)
+			pairs := float64(g.Len()) * float64(g.Len())
+			b.ResetTimer()
+			for range b.N {
+				sink += fusedLoop(g.Coords, m.rows, sz.n, g.Len())
+			}
+			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/pairs, "ns/pair")
+		})
+	}
+}
+
+// BenchmarkCheckRule is the whole check as the command runs it.
+func BenchmarkCheckRule(b *testing.B) {
+	for _, sz := range benchSizes {
+		b.Run(fmt.Sprintf("n=%d/K=%d", sz.n, sz.k), func(b *testing.B) {
+			f, err := bregman.NewFormula("-sum(p*ln(p))", bregman.Options{Outcomes: sz.n})
+			if err != nil {
+				b.Fatal(err)
+			}
+			r := &bregman.Rule{Gen: f}
+			pairs := float64(simplex.Count(sz.n, sz.k))
+			pairs *= pairs
+			b.ReportAllocs()
+			b.ResetTimer()
+			for range b.N {
+				if _, err := CheckRule(context.Background(), r, Settings{Resolution: sz.k}); err != nil {
+					b.Fatal(err)
+				}
+			}
+			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/pairs, "ns/pair")
+		})
+	}
+}
