@@ -366,7 +366,7 @@ func runTablePoint(e *env, d *design.Design, format string, tf *tableFlags) erro
 	if err != nil {
 		return usagef("%v", err)
 	}
-	tb := fit.Table(rc, gpoint.Info{Title: d.Title, Preset: d.Preset, Params: d.Params, Version: version, Date: exportDate()})
+	tb := fit.Export(rc, gpoint.Info{Title: d.Title, Preset: d.Preset, Params: d.Params, Version: version, Date: exportDate()})
 	sum := newPointTableSummary(fit, rc, tb, format, tf.out)
 	if tf.lottery {
 		if sum.Lottery, err = lotteryTable(tb, math.Min(fit.Floor, fit.MinPay), math.Max(fit.Cap, fit.MaxPay)); err != nil {
@@ -395,7 +395,7 @@ type pointRecheckJSON struct {
 	Grid recheckGridJSON `json:"grid"`
 }
 
-func newPointTableSummary(f *gpoint.Fit, rc *gpoint.Recheck, tb *table.Table, format, out string) *pointTableSummary {
+func newPointTableSummary(f *gpoint.Table, rc *gpoint.Recheck, tb *table.Table, format, out string) *pointTableSummary {
 	rep := func(i int) []num.Float {
 		if i < 0 {
 			return nil
@@ -429,7 +429,7 @@ func newPointTableSummary(f *gpoint.Fit, rc *gpoint.Recheck, tb *table.Table, fo
 // printPointTableSummary writes the fit and the re-check of a point table
 // for a person: the failing reports, or all of them when the menu is
 // short.
-func printPointTableSummary(w io.Writer, f *gpoint.Fit, rc *gpoint.Recheck, s *pointTableSummary) error {
+func printPointTableSummary(w io.Writer, f *gpoint.Table, rc *gpoint.Recheck, s *pointTableSummary) error {
 	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', 0)
 	fmt.Fprintf(tw, "menu\t%s\n", s.Menu.Desc)
 	fmt.Fprintf(tw, "payment\tpay = A - B·D(y, x), A = %s, B = %s\n", table.FormatNumber(f.A), table.FormatNumber(f.B))

@@ -3,6 +3,7 @@ package point
 import (
 	"bytes"
 	"context"
+	"encoding/json"
 	"math"
 	"strings"
 	"testing"
@@ -111,7 +112,7 @@ func TestTable(t *testing.T) {
 		t.Errorf("re-check passed %v, smallest margin %v; want passed, 1", rc.Passed, rc.MinMargin)
 	}
 	var b bytes.Buffer
-	if err := tb.Table(rc, Info{Version: "test", Date: "2026-01-01"}).Write(&b, "csv"); err != nil {
+	if err := tb.Export(rc, Info{Version: "test", Date: "2026-01-01"}).Write(&b, "csv"); err != nil {
 		t.Fatal(err)
 	}
 	out := b.String()
@@ -156,7 +157,7 @@ func TestRecheckCatchesCoarseRounding(t *testing.T) {
 		t.Errorf("margin at x = 5 is %v, want <= 0 (the point mass at 5 ties x = 5 with x = 4)", rc.Margins[5])
 	}
 	var b bytes.Buffer
-	if err := f.Table(rc, Info{}).Write(&b, "md"); err != nil {
+	if err := f.Export(rc, Info{}).Write(&b, "md"); err != nil {
 		t.Fatal(err)
 	}
 	if !strings.Contains(b.String(), "> **WARNING:** this table FAILED") {
@@ -184,5 +185,37 @@ func TestWorstMixture(t *testing.T) {
 	}
 	if _, n := worstMixture(diff, ys, 0.5); n != 2 {
 		t.Errorf("mean 0.5: %d weightings tried, want 2", n)
+	}
+}
+
+// TestTableWritersCarryTheRecord: the writers a caller without version or
+// date uses (WriteCSV, WriteMarkdown, encoding/json) re-check the table
+// and carry the record and the caution, like every export.
+func TestTableWritersCarryTheRecord(t *testing.T) {
+	g, _ := New("-x^2", 10, 20, Options{})
+	tb, err := g.BuildTable(context.Background(), TableSpec{Floor: 0, Cap: 40, Step: 0.5, Columns: 11, Unit: 0.1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var csv, md bytes.Buffer
+	if err := tb.WriteCSV(&csv); err != nil {
+		t.Fatal(err)
+	}
+	if err := tb.WriteMarkdown(&md); err != nil {
+		t.Fatal(err)
+	}
+	js, err := json.Marshal(tb)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for name, out := range map[string]string{"csv": csv.String(), "md": md.String(), "json": string(js)} {
+		for _, want := range []string{"re-check", "qualified counsel", "mathematics, not law"} {
+			if name == "json" && want == "re-check" {
+				want = "recheck_verdict"
+			}
+			if !strings.Contains(out, want) {
+				t.Errorf("%s lacks %q", name, want)
+			}
+		}
 	}
 }

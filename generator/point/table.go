@@ -1,9 +1,11 @@
 package point
 
 import (
+	"bytes"
 	"context"
 	"errors"
 	"fmt"
+	"io"
 	"math"
 	"strconv"
 
@@ -28,21 +30,25 @@ type TableSpec struct {
 	Rounding string
 }
 
-// Fit is a point-forecast rule fitted to a budget: Pay[i][j] is what
+// Table is a point-forecast rule fitted to a budget: Pay[i][j] is what
 // report Reports[i] earns when the outcome is Outcomes[j], the rule
 // pay = A - B·D(y, x) rounded as the budget says. Between two columns the
-// contract pays by linear interpolation.
-type Fit struct {
-	Reports  []float64
-	Outcomes []float64
-	Pay      [][]float64
-	A, B     float64
+// contract pays by linear interpolation. Recheck says what rounding did
+// to honesty and Export makes the table.Table every format writes.
+type Table struct {
+	Reports  []float64   `json:"reports"`
+	Outcomes []float64   `json:"outcomes"`
+	Pay      [][]float64 `json:"pay"`
+	A        float64     `json:"A"`
+	B        float64     `json:"B"`
 	// Floor and Cap are the budget; MinPay and MaxPay the smallest and
 	// largest payments in the rounded table.
 	Floor, Cap     float64
 	MinPay, MaxPay float64
 	// Step is the menu spacing.
-	Step  float64
+	Step float64
+	// Notes explain how to read the table.
+	Notes []string
 	gen   *Generator
 	round budget.Rounder
 }
@@ -53,7 +59,7 @@ var ErrUnbounded = errors.New("point: the effort is not finite on the table")
 
 // BuildTable fits the rule to the budget over the menu × outcome grid.
 // It honours ctx between rows.
-func (g *Generator) BuildTable(ctx context.Context, spec TableSpec) (*Fit, error) {
+func (g *Generator) BuildTable(ctx context.Context, spec TableSpec) (*Table, error) {
 	if !(spec.Cap > spec.Floor) {
 		return nil, fmt.Errorf("point: cap %g must exceed floor %g", spec.Cap, spec.Floor)
 	}
@@ -79,7 +85,7 @@ func (g *Generator) BuildTable(ctx context.Context, spec TableSpec) (*Fit, error
 	if cols < 2 || cols > 1000 {
 		return nil, fmt.Errorf("point: %d outcome columns; need 2..1000", cols)
 	}
-	f := &Fit{Reports: make([]float64, rows), Outcomes: make([]float64, cols), Floor: spec.Floor, Cap: spec.Cap, Step: step, gen: g, round: rd}
+	f := &Table{Reports: make([]float64, rows), Outcomes: make([]float64, cols), Floor: spec.Floor, Cap: spec.Cap, Step: step, gen: g, round: rd}
 	for i := range f.Reports {
 		f.Reports[i] = math.Min(g.Lo+float64(i)*step, g.Hi)
 	}
@@ -122,8 +128,18 @@ func (g *Generator) BuildTable(ctx context.Context, spec TableSpec) (*Fit, error
 			f.MinPay, f.MaxPay = math.Min(f.MinPay, f.Pay[i][j]), math.Max(f.MaxPay, f.Pay[i][j])
 		}
 	}
+	f.Notes = []string{
+		fmt.Sprintf("pay = %.6g - %.6g * D(y, x), D from phi = %s on [%g, %g]", f.A, f.B, g.Source, g.Lo, g.Hi),
+		"for an outcome between two columns, pay by linear interpolation between them: the part of the pay that depends on the report is affine in the outcome, so with interpolation the best menu report is still the one nearest the mean in the rule's divergence D(mean, x)",
+		binNote,
+	}
+	if spec.Unit > 0 {
+		f.Notes = append(f.Notes, fmt.Sprintf("payments rounded to %g (%s); rounding can make neighbouring reports tie", spec.Unit, rd.Mode()))
+	}
 	return f, nil
 }
+
+const binNote = "paying each column's value for a whole bin instead makes the best report the mean of the binned outcome, which can differ from the mean by up to half a bin"
 
 // Recheck is what the rounded table does to honesty. Between columns the
 // table pays by linear interpolation, so a forecaster's expected pay for
@@ -159,7 +175,7 @@ const maxRecheckWork = 4e8
 
 // Recheck checks every menu item against every rival on the rounded
 // table; it honours ctx between items.
-func (f *Fit) Recheck(ctx context.Context) (*Recheck, error) {
+func (f *Table) Recheck(ctx context.Context) (*Recheck, error) {
 	R, C := len(f.Reports), len(f.Outcomes)
 	if w := float64(R) * float64(R) * float64(C) * float64(C) / 4; w > maxRecheckWork {
 		return nil, fmt.Errorf("point: the re-check of %d reports × %d columns is too large (%.3g cell pairs; at most %.3g); take a coarser --step", R, C, w, maxRecheckWork)
@@ -226,7 +242,7 @@ func worstMixture(diff, ys []float64, m float64) (worst float64, tried int) {
 }
 
 // Verdict says in one sentence what the re-check found.
-func (rc *Recheck) Verdict(f *Fit) string {
+func (rc *Recheck) Verdict(f *Table) string {
 	M := len(f.Reports)
 	where := ""
 	if rc.MinItem >= 0 && rc.MinRival >= 0 {
@@ -249,10 +265,10 @@ type Info struct {
 	Date    string
 }
 
-// Table builds the export of f with its record: the same metadata block,
+// Export builds the export of f with its record: the same metadata block,
 // warnings and cautions as a table over outcomes. A failed re-check (or
 // none, rc nil) puts a warning first.
-func (f *Fit) Table(rc *Recheck, info Info) *table.Table {
+func (f *Table) Export(rc *Recheck, info Info) *table.Table {
 	g := f.gen
 	labels := make([]string, len(f.Outcomes))
 	for j, y := range f.Outcomes {
@@ -274,9 +290,11 @@ func (f *Fit) Table(rc *Recheck, info Info) *table.Table {
 		Budget:   fmt.Sprintf("payments span [%s, %s] over the menu and the outcome columns (before rounding): a perfect forecast pays the cap, the worst cell the floor", table.FormatNumber(f.Floor), table.FormatNumber(f.Cap)),
 		Rounding: f.round.Describe(), Unit: num.Float(f.round.Unit()), RoundingMode: f.round.Mode(),
 		Floor: num.Float(f.Floor), Cap: num.Float(f.Cap),
+		// The record states A, B, the formula and the rounding in their
+		// own lines, so its notes are the ones that say something new.
 		Notes: []string{
 			"with interpolation, the part of the pay that depends on the report is affine in the outcome, so the best report is the mean of the forecaster's distribution (before rounding) and on the menu the one nearest it in D(mean, x)",
-			"paying each column's value for a whole bin instead makes the best report the mean of the binned outcome, which can differ from the mean by up to half a bin",
+			binNote,
 			fmt.Sprintf("buyer's worst case per forecast: %s (the largest payment in the table); the smallest is %s", table.FormatNumber(f.MaxPay), table.FormatNumber(f.MinPay)),
 		},
 		Version: info.Version, Date: info.Date,
@@ -299,3 +317,31 @@ func (f *Fit) Table(rc *Recheck, info Info) *table.Table {
 }
 
 func short(v float64) string { return strconv.FormatFloat(v, 'g', 6, 64) }
+
+// write re-checks the table and writes its export in format, for callers
+// that hold no build version or date (the record then has none).
+func (f *Table) write(w io.Writer, format string) error {
+	rc, err := f.Recheck(context.Background())
+	if err != nil {
+		return err
+	}
+	return f.Export(rc, Info{}).Write(w, format)
+}
+
+// WriteCSV re-checks the table and writes it as CSV with its record.
+// Export(rc, info).Write is the way with a version and date.
+func (f *Table) WriteCSV(w io.Writer) error { return f.write(w, "csv") }
+
+// WriteMarkdown re-checks the table and writes it as Markdown with its
+// record.
+func (f *Table) WriteMarkdown(w io.Writer) error { return f.write(w, "md") }
+
+// MarshalJSON writes the JSON export (rows and record) rather than the
+// bare numbers, so that encoding a Table carries the caution too.
+func (f *Table) MarshalJSON() ([]byte, error) {
+	var b bytes.Buffer
+	if err := f.write(&b, "json"); err != nil {
+		return nil, err
+	}
+	return bytes.TrimSpace(b.Bytes()), nil
+}
