@@ -219,3 +219,21 @@ func TestTableWritersCarryTheRecord(t *testing.T) {
 		}
 	}
 }
+
+// TestRoundingUpPastTheCap: cap 40 rounded up to units of 3 pays 42 for a
+// perfect forecast (40/3 = 13.33 -> 14 units; derived by hand), and the
+// record says the budget was left.
+func TestRoundingUpPastTheCap(t *testing.T) {
+	g, _ := New("-x^2", 0, 10, Options{})
+	tb, err := g.BuildTable(context.Background(), TableSpec{Floor: 0, Cap: 40, Step: 5, Columns: 3, Unit: 3, Rounding: "up"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if tb.MaxPay != 42 {
+		t.Errorf("largest payment %v, want 42", tb.MaxPay)
+	}
+	notes := strings.Join(tb.Export(nil, Info{}).Meta.Notes, " ")
+	if !strings.Contains(notes, "outside the budget: from 0 to 42") {
+		t.Errorf("notes %q", notes)
+	}
+}

@@ -300,6 +300,9 @@ func (f *Table) Export(rc *Recheck, info Info) *table.Table {
 		Version: info.Version, Date: info.Date,
 		Cautions: table.Caution(),
 	}
+	if f.MinPay < f.Floor-1e-9 || f.MaxPay > f.Cap+1e-9 {
+		meta.Notes = append(meta.Notes, fmt.Sprintf("rounding takes payments outside the budget: from %s to %s", table.FormatNumber(f.MinPay), table.FormatNumber(f.MaxPay)))
+	}
 	switch {
 	case rc == nil:
 		meta.Verdict, meta.MinMargin = "not re-checked", num.Float(math.NaN())
