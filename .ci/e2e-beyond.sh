@@ -23,7 +23,7 @@ grep -q 'the mean is not the best report' "$work/out"
 grep -q '"preset": "squared-error"' "$work/out"
 # A point table in litres, written once, refused the second time (exit 2).
 "$sw" table --interval 0,60 --preset squared-error --floor 0 --cap 40 --step 10 --unit 0.5 --out "$work/dairy.csv" >/dev/null
-grep -q '^30,30,33.5,36.5,38.5,39.5,40,39.5,38.5,36.5,33.5,30$' "$work/dairy.csv"
+grep -q '^30,30.0,33.5,36.5,38.5,39.5,40.0,39.5,38.5,36.5,33.5,30.0$' "$work/dairy.csv"
 test "$(status "$sw" table --interval 0,60 --preset squared-error --floor 0 --cap 40 --step 10 --out "$work/dairy.csv")" -eq 2
 
 # Emphasis: the log weight reproduces -ln 0.3 and warns about both ends.

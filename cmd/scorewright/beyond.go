@@ -1,14 +1,15 @@
 package main
 
 import (
-	"math"
+	"fmt"
+	"io"
 
 	"scorewright/generator/bregman"
-	"scorewright/generator/budget"
 	"scorewright/generator/design"
 	"scorewright/generator/emphasis"
 	"scorewright/generator/formula"
 	"scorewright/generator/lottery"
+	"scorewright/generator/num"
 	"scorewright/generator/table"
 )
 
@@ -29,15 +30,28 @@ func emphasisRule(d *design.Design) (*bregman.Rule, error) {
 	return &bregman.Rule{Gen: g, Labels: d.Labels}, nil
 }
 
-// lotteryTable turns a fitted money table into chances of winning a
-// prize of cap - floor, with the bounds taken wide enough to hold every
-// rounded payment.
-func lotteryTable(tb *table.Table, fit *budget.Fit) error {
-	lo, hi := math.Min(fit.Floor, fit.MinPay), math.Max(fit.Cap, fit.MaxPay)
+// lotteryJSON is the lottery part of a table summary.
+type lotteryJSON struct {
+	Prize num.Float `json:"prize"`
+	Floor num.Float `json:"floor"`
+	Cap   num.Float `json:"cap"`
+}
+
+// lotteryTable turns a money table into chances of winning a prize of
+// hi - lo; lo and hi must hold every payment in the table.
+func lotteryTable(tb *table.Table, lo, hi float64) (*lotteryJSON, error) {
 	if err := lottery.Convert(tb, lo, hi); err != nil {
-		return usagef("--lottery: %v", err)
+		return nil, usagef("--lottery: %v", err)
 	}
-	return nil
+	return &lotteryJSON{Prize: num.Float(hi - lo), Floor: num.Float(lo), Cap: num.Float(hi)}, nil
+}
+
+// printLottery adds the lottery line to a table summary.
+func printLottery(w io.Writer, l *lotteryJSON) {
+	if l != nil {
+		fmt.Fprintf(w, "lottery\teach cell is the chance (pay - %s)/%s of winning a prize of %s, besides %s paid for certain; margins below are in money\n",
+			table.FormatNumber(float64(l.Floor)), table.FormatNumber(float64(l.Prize)), table.FormatNumber(float64(l.Prize)), table.FormatNumber(float64(l.Floor)))
+	}
 }
 
 // ruleWarnings are remarks about a rule a user should see beside its

@@ -180,7 +180,7 @@ func TestPointCommands(t *testing.T) {
 		// A step in litres, not a probability.
 		{[]string{"table", "--interval", "0,60", "--preset", "squared-error", "--floor", "0", "--cap", "40", "--step", "10", "--format", "csv"}, 0, "qualified counsel"},
 		{[]string{"table", "--interval", "0,60", "--preset", "squared-error", "--floor", "0", "--cap", "40", "--step", "100"}, 2, "at most the interval's width"},
-		{[]string{"table", "--interval", "0,60", "--preset", "squared-error", "--floor", "0", "--cap", "40", "--format", "svg", "--out", "x.svg"}, 2, "csv, md or json"},
+		{[]string{"table", "--interval", "0,60", "--preset", "squared-error", "--floor", "0", "--mean-pay", "30"}, 2, "--floor and --cap"},
 	}
 	for _, tc := range cases {
 		code, out, errs := runCmd(t, tc.args...)
@@ -259,5 +259,15 @@ func TestCheckEmphasis(t *testing.T) {
 	code, out, errs := runCmd(t, "check", "--outcomes", "frost,clear", "--preset", "beta", "--param", "a=2", "--param", "b=3", "--resolution", "200")
 	if code != 0 || !strings.Contains(out, "strictly-proper") {
 		t.Errorf("exit %d: %s%s", code, out, errs)
+	}
+}
+
+// TestDistortUnboundedOffersOnlyItsFlags: distort has no --clamp, so the
+// log rule on a menu that reaches 0 is refused with the one way out it
+// takes, --report-floor, on one line.
+func TestDistortUnboundedOffersOnlyItsFlags(t *testing.T) {
+	code, _, errs := runCmd(t, "distort", "--outcomes", "frost,clear", "--preset", "log", "--floor", "0", "--cap", "100", "--step", "0.05", "--utility", "crra:2", "--wealth", "10")
+	if code != 2 || !strings.Contains(errs, "--report-floor") || strings.Contains(errs, "clamp") || strings.Count(errs, "\n") != 1 {
+		t.Errorf("exit %d, stderr %q", code, errs)
 	}
 }

@@ -15,7 +15,7 @@ import (
 	"scorewright/generator/risk"
 )
 
-const distortUsage = "RULE BUDGET --utility crra:R|cara:A|linear [--wealth W] [--belief q1,q2,...] [--json]\n\nRULE: " + ruleUsage + "\nBUDGET: " + budgetUsage
+const distortUsage = "RULE BUDGET --utility crra:R|cara:A|linear [--wealth W] [--belief q1,q2,...] [--json]\n\nRULE: " + outcomeRuleUsage + "\nBUDGET: " + budgetUsage
 
 type distortPoint struct {
 	Belief []num.Float `json:"belief"`
@@ -49,9 +49,11 @@ func runDistort(e *env, args []string) error {
 	rf := addRuleFlags(fs)
 	bf := addBudgetFlags(fs)
 	utility := fs.String("utility", "", "the forecaster's utility of money: crra:R (relative risk aversion R), cara:A (absolute risk aversion A) or linear")
-	wealth := fs.Float64("wealth", 0, "initial wealth W; utility is of W + pay")
+	// distort takes rules over outcomes only; say so where --interval is listed.
+	fs.Lookup("interval").Usage = "not taken by distort (it works on rules over outcomes)"
+	wealth := fs.Float64("wealth", 0, "initial wealth W (default 0); utility is of W + pay, so CRRA needs W plus the smallest payment above 0")
 	belief := fs.String("belief", "", "the forecaster's belief q1,q2,... (default: the budget's reference belief, else uniform)")
-	asJSON := fs.Bool("json", false, "print JSON")
+	asJSON := fs.Bool("json", false, "print the best report, the menu pick and the distortion curve as JSON")
 	if err := parseFlags(e, fs, distortUsage, args, false); err != nil {
 		return err
 	}
@@ -90,7 +92,10 @@ func runDistort(e *env, args []string) error {
 	fit, err := budget.FitRule(rule, menu, d.Budget)
 	var ue *budget.UnboundedError
 	if errors.As(err, &ue) && ue.AtZero {
-		return usagef("%v; give --report-floor P (e.g. 0.01) so that every report gives each outcome at least P", err)
+		// distort has no --clamp: a clamped rule has kinks the optimiser's
+		// gradient cannot follow, so the report floor is the one way out.
+		return usagef("the rule's effort is %v at report %s when %q happens: the rule is unbounded where a report gives an outcome probability 0; give --report-floor P (e.g. 0.01) so that every report gives each outcome at least P",
+			ue.Effort, num.Format(ue.Report), ue.Label)
 	} else if err != nil {
 		return fitError(err)
 	}
@@ -156,7 +161,7 @@ func runDistort(e *env, args []string) error {
 		return writeJSON(e.stdout, out)
 	}
 	fmt.Fprintf(e.stdout, "utility: %s of initial wealth %g plus pay\n", u, *wealth)
-	fmt.Fprintf(e.stdout, "pay = %.6g - %.6g * effort (fitted to the budget on the menu: %s)\n", fit.A, fit.B, menu.Desc)
+	fmt.Fprintf(e.stdout, "pay = %.6g - %.6g * effort (fitted to the budget on the menu: %s)\n", fit.A, fit.B, fit.MenuDesc())
 	fmt.Fprintf(e.stdout, "belief %s: best report %s, %.3g probability points away; menu pick %s\n", num.Format(best.Belief), num.Format(best.Report), best.Size, num.Format(pick))
 	fmt.Fprintf(e.stdout, "expected pay %.6g against %.6g for the truthful report: what the forecaster gives up in expected pay for the risk they prefer\n", best.ExpectedPay, best.TruthfulPay)
 	fmt.Fprintf(e.stdout, "distortion curve over %d beliefs (%s): largest %.3g points, belief %s -> report %s\n", len(curve.Points), along, curve.Largest.Size, num.Format(curve.Largest.Belief), num.Format(curve.Largest.Report))

@@ -82,7 +82,12 @@ type ruleFlags struct {
 	interval  string
 }
 
-const ruleUsage = "--outcomes N|label1,label2,... (--generator EXPR | --preset NAME | --emphasis EXPR) [--param name=value] [--ordered] [--weights w1,w2,...] | --design FILE | --interval LO,HI (--generator EXPR | --preset NAME)"
+// outcomeRuleUsage is RULE for commands that take only rules over
+// outcomes; ruleUsage adds point forecasts.
+const (
+	outcomeRuleUsage = "--outcomes N|label1,label2,... (--generator EXPR | --preset NAME | --emphasis EXPR) [--param name=value] [--ordered] [--weights w1,w2,...] | --design FILE"
+	ruleUsage        = outcomeRuleUsage + " | --interval LO,HI (--generator EXPR | --preset NAME)"
+)
 
 func addRuleFlags(fs *flag.FlagSet) *ruleFlags {
 	r := &ruleFlags{params: paramFlag{}}
@@ -204,13 +209,13 @@ const budgetUsage = "--floor F (--cap C | --mean-pay M [--reference q1,...]) [--
 
 func addBudgetFlags(fs *flag.FlagSet) *budgetFlags {
 	b := &budgetFlags{}
-	fs.Float64Var(&b.floor, "floor", 0, "smallest payment")
+	fs.Float64Var(&b.floor, "floor", 0, "smallest payment (default 0)")
 	fs.Float64Var(&b.cap, "cap", 0, "largest payment")
 	fs.Float64Var(&b.meanPay, "mean-pay", 0, "target expected payment of a truthful forecaster at the reference belief (instead of --cap)")
 	fs.StringVar(&b.reference, "reference", "", "reference belief for --mean-pay (default uniform)")
-	fs.Float64Var(&b.step, "step", 0, "report menu step (n = 2), or 1/K for a simplex grid")
+	fs.Float64Var(&b.step, "step", 0, "report menu step: n = 2 a probability step (e.g. 0.05); n > 2 1/K for a simplex grid; with --interval a step in the interval's units")
 	fs.Float64Var(&b.unit, "unit", 0, "currency rounding unit (0: no rounding)")
-	fs.StringVar(&b.rounding, "rounding", "nearest", "rounding mode: nearest, down or up")
+	fs.StringVar(&b.rounding, "rounding", "nearest", "rounding mode: nearest (the default; halves away from zero), down or up")
 	fs.Float64Var(&b.reportFloor, "report-floor", 0, "smallest probability a report may give an outcome (e.g. 0.01)")
 	return b
 }

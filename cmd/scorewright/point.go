@@ -5,7 +5,6 @@ package main
 // mode (--interval LO,HI).
 
 import (
-	"bytes"
 	"context"
 	"errors"
 	"flag"
@@ -20,7 +19,7 @@ import (
 	"scorewright/generator/formula"
 	"scorewright/generator/num"
 	gpoint "scorewright/generator/point"
-	"scorewright/generator/safefile"
+	"scorewright/generator/table"
 	"scorewright/presets"
 	vpoint "scorewright/verify/point"
 )
@@ -340,8 +339,8 @@ func printPointReport(e *env, rep *vpoint.Report, asJSON bool) error {
 
 // runTablePoint is table for a point design: the menu of reports (budget
 // step, default a twentieth of the interval) against outcome columns,
-// fitted to the budget's floor and cap, written as CSV, Markdown or JSON
-// to stdout or atomically to --out.
+// fitted to the budget's floor and cap, rounded, re-checked and exported
+// like any other table.
 func runTablePoint(e *env, d *design.Design, format string, tf *tableFlags) error {
 	g, err := pointGenerator(d)
 	if err != nil {
@@ -356,55 +355,126 @@ func runTablePoint(e *env, d *design.Design, format string, tf *tableFlags) erro
 	case tf.menu != "" || tf.clamp != 0:
 		return usagef("--menu and --clamp are for rules over outcomes; a point-forecast menu is --step S in the units of the interval")
 	}
-	t, err := g.BuildTable(context.Background(), gpoint.TableSpec{Floor: b.Floor, Cap: b.Cap, Step: b.Step, Unit: b.Unit, Rounding: b.Rounding})
+	ctx := context.Background()
+	fit, err := g.BuildTable(ctx, gpoint.TableSpec{Floor: b.Floor, Cap: b.Cap, Step: b.Step, Unit: b.Unit, Rounding: b.Rounding})
 	if errors.Is(err, gpoint.ErrUnbounded) {
 		return usagef("%v; narrow the interval so the effort stays finite", err)
 	} else if err != nil {
 		return usagef("%v", err)
 	}
-	if tf.lottery {
-		if err := t.Lottery(b.Floor, b.Cap); err != nil {
-			return usagef("--lottery: %v", err)
-		}
-	}
-	var buf bytes.Buffer
-	switch format {
-	case "csv":
-		err = t.WriteCSV(&buf)
-	case "md":
-		err = t.WriteMarkdown(&buf)
-	case "json":
-		err = writeJSON(&buf, t)
-	default:
-		return usagef("--format %s: point-forecast tables are written as csv, md or json", format)
-	}
+	rc, err := fit.Recheck(ctx)
 	if err != nil {
-		return err
+		return usagef("%v", err)
 	}
-	if tf.json && tf.out == "" {
-		return writeJSON(e.stdout, t)
+	tb := fit.Export(rc, gpoint.Info{Title: d.Title, Preset: d.Preset, Params: d.Params, Version: version, Date: exportDate()})
+	sum := newPointTableSummary(fit, rc, tb, format, tf.out)
+	if tf.lottery {
+		if sum.Lottery, err = lotteryTable(tb, math.Min(fit.Floor, fit.MinPay), math.Max(fit.Cap, fit.MaxPay)); err != nil {
+			return err
+		}
+		sum.Caution = tb.Meta.Cautions
 	}
-	if err := writeOut(e.stdout, tf.out, buf.Bytes(), tf.force); err != nil {
-		return err
-	}
-	if tf.out != "" {
-		fmt.Fprintf(e.stdout, "wrote %s: %d reports × %d outcome columns, pay = %.6g - %.6g * D(y, x)\n", tf.out, len(t.Reports), len(t.Outcomes), t.A, t.B)
-	}
-	return nil
+	return exportTable(e, tb, format, tf, rc.Passed, &sum.Output, sum, func() error {
+		return printPointTableSummary(e.stdout, fit, rc, sum)
+	})
 }
 
-// writeOut writes data to stdout, or atomically to path (refusing to
-// overwrite without force).
-func writeOut(w io.Writer, path string, data []byte, force bool) error {
-	if path == "" || path == "-" {
-		_, err := w.Write(data)
+// pointTableSummary is what table --json prints for a point design; the
+// names follow the summary of a table over outcomes.
+type pointTableSummary struct {
+	Interval []num.Float `json:"interval"`
+	Menu     menuJSON    `json:"menu"`
+	Columns  []num.Float `json:"outcome_columns"`
+	fitJSON
+	Recheck pointRecheckJSON `json:"recheck"`
+	exportJSON
+}
+
+type pointRecheckJSON struct {
+	recheckCore
+	Grid recheckGridJSON `json:"grid"`
+}
+
+func newPointTableSummary(f *gpoint.Table, rc *gpoint.Recheck, tb *table.Table, format, out string) *pointTableSummary {
+	rep := func(i int) []num.Float {
+		if i < 0 {
+			return nil
+		}
+		return num.Floats([]float64{f.Reports[i]})
+	}
+	reps := func(idx []int) [][]num.Float {
+		out := [][]num.Float{}
+		for _, i := range idx {
+			out = append(out, rep(i))
+		}
+		return out
+	}
+	last := len(f.Reports) - 1
+	s := &pointTableSummary{
+		Interval: num.Floats([]float64{f.Reports[0], f.Outcomes[len(f.Outcomes)-1]}),
+		Menu:     menuJSON{Desc: tb.Meta.Menu, Items: len(f.Reports), First: rep(0), Last: rep(last)},
+		Columns:  num.Floats(f.Outcomes),
+		fitJSON:  newFitJSON(&tb.Meta, f.MinPay, f.MaxPay),
+		Recheck: pointRecheckJSON{recheckCore: recheckCore{Passed: rc.Passed, Verdict: rc.Verdict(f), MinMargin: num.Float(rc.MinMargin),
+			At: rep(rc.MinItem), Rival: rep(rc.MinRival), Ties: reps(rc.Ties), Beaten: reps(rc.Beaten)},
+			Grid: recheckGridJSON{Desc: "exact: for each menu report, every point mass and two-column mixture of the outcome columns with that mean", Points: rc.Beliefs, Tolerance: num.Float(rc.Tolerance)}},
+		exportJSON: exportJSON{Output: tableOutput{Format: format, File: out}, Notes: tb.Meta.Notes, Caution: tb.Meta.Cautions},
+	}
+	for i := range f.Reports {
+		s.Margins = append(s.Margins, marginJSON{Report: rep(i), Margin: num.Float(rc.Margins[i]), Rival: rep(rc.Rivals[i])})
+	}
+	return s
+}
+
+// printPointTableSummary writes the fit and the re-check of a point table
+// for a person: the failing reports, or all of them when the menu is
+// short.
+func printPointTableSummary(w io.Writer, f *gpoint.Table, rc *gpoint.Recheck, s *pointTableSummary) error {
+	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', 0)
+	fmt.Fprintf(tw, "menu\t%s\n", s.Menu.Desc)
+	fmt.Fprintf(tw, "payment\tpay = A - B·D(y, x), A = %s, B = %s\n", table.FormatNumber(f.A), table.FormatNumber(f.B))
+	printLottery(tw, s.Lottery)
+	fmt.Fprintf(tw, "budget\tpayments span [%s, %s] over the menu and the outcome columns (before rounding)\n", table.FormatNumber(f.Floor), table.FormatNumber(f.Cap))
+	fmt.Fprintf(tw, "rounding\t%s\n", s.Rounding)
+	verdict := "FAILED"
+	if rc.Passed {
+		verdict = "passed"
+	}
+	fmt.Fprintf(tw, "re-check\t%s, smallest margin %s\n", verdict, table.FormatNumber(rc.MinMargin))
+	if err := tw.Flush(); err != nil {
 		return err
 	}
-	if err := safefile.Write(path, data, force); err != nil {
-		if errors.Is(err, safefile.ErrExists) {
-			return usagef("%s exists; pass --force to replace it", path)
+	fmt.Fprintf(w, "  %s\n", s.Recheck.Verdict)
+	for _, n := range s.Notes {
+		fmt.Fprintf(w, "note: %s\n", n)
+	}
+	var rows []int
+	for i, m := range rc.Margins {
+		if len(f.Reports) <= maxItemRows || !(m > rc.Tolerance) {
+			rows = append(rows, i)
 		}
-		return usagef("%v", err)
+	}
+	if len(rows) > 0 {
+		fmt.Fprintln(w)
+		tw = tabwriter.NewWriter(w, 0, 4, 2, ' ', 0)
+		fmt.Fprintf(tw, "report x\tmargin\t\tclosest rival\n")
+		for _, i := range rows[:min(len(rows), maxItemRows)] {
+			mark := marginMark(rc.Margins[i], rc.Tolerance)
+			rival := "-"
+			if r := rc.Rivals[i]; r >= 0 {
+				rival = table.FormatNumber(f.Reports[r])
+			}
+			fmt.Fprintf(tw, "%s\t%s\t%s\t%s\n", table.FormatNumber(f.Reports[i]), table.FormatNumber(rc.Margins[i]), mark, rival)
+		}
+		if err := tw.Flush(); err != nil {
+			return err
+		}
+		if len(rows) > maxItemRows {
+			fmt.Fprintf(w, "... and %d more reports (--json lists them all)\n", len(rows)-maxItemRows)
+		}
+	}
+	if s.Output.Written {
+		fmt.Fprintf(w, "wrote %s (%s)\n", s.Output.File, s.Output.Format)
 	}
 	return nil
 }

@@ -90,6 +90,11 @@ func runTable(e *env, args []string) error {
 	if err := bf.apply(fs, d); err != nil {
 		return err
 	}
+	if fs.Lookup("reference").Value.String() != "" && d.Budget.MeanPay == nil {
+		// Without a mean-pay target the fit never looks at it, and a
+		// silently ignored base rate is a wrong table nobody notices.
+		return usagef("--reference is the belief a --mean-pay target is set at; give --mean-pay M with it, or leave it out")
+	}
 	if d.Mode == design.ModePoint {
 		return runTablePoint(e, d, format, tf)
 	}
@@ -110,17 +115,31 @@ func runTable(e *env, args []string) error {
 		return err
 	}
 	tb := fit.Table(rc, budget.Info{
-		Title: d.Title, Formula: d.Formula, Preset: d.Preset, Params: d.Params,
+		Title: d.Title, Formula: d.Formula, FormulaRole: formulaRole(d.Mode), Preset: d.Preset, Params: d.Params,
+		Weights: d.Weights, Ordered: d.Ordered,
 		Version: version, Date: exportDate(),
 	})
+	var lot *lotteryJSON
 	if tf.lottery {
-		if err := lotteryTable(tb, fit); err != nil {
+		if lot, err = lotteryTable(tb, math.Min(fit.Floor, fit.MinPay), math.Max(fit.Cap, fit.MaxPay)); err != nil {
 			return err
 		}
 	}
-	sum := newTableSummary(fit, rc, format, tf.out)
-	refused := !rc.Passed && !tf.force
+	sum := newTableSummary(fit, rc, tb, format, tf.out)
+	sum.Lottery, sum.Caution = lot, tb.Meta.Cautions
+	return exportTable(e, tb, format, tf, rc.Passed, &sum.Output, sum, func() error {
+		return printTableSummary(e.stdout, fit, rc, sum)
+	})
+}
 
+// exportTable writes a built table: to --out atomically (an existing file
+// only with --force), or to stdout. A table whose re-check failed is
+// refused (nothing written, exit 1) unless --force, and then still exits
+// 1. With --out, or when refused, the summary goes to stdout: summary as
+// JSON with --json, else through printSummary. out records what was
+// written.
+func exportTable(e *env, tb *table.Table, format string, tf *tableFlags, passed bool, out *tableOutput, summary any, printSummary func() error) error {
+	refused := !passed && !tf.force
 	var buf bytes.Buffer
 	if !refused {
 		if err := tb.Write(&buf, format); err != nil {
@@ -131,18 +150,18 @@ func runTable(e *env, args []string) error {
 				if errors.Is(err, safefile.ErrExists) {
 					return usagef("%v", err)
 				}
-				return err
+				return usagef("--out: %v", err)
 			}
-			sum.Output.Written = true
+			out.Written = true
 		}
 	}
 	switch {
 	case tf.json:
-		if err := writeJSON(e.stdout, sum); err != nil {
+		if err := writeJSON(e.stdout, summary); err != nil {
 			return err
 		}
 	case tf.out != "" || refused:
-		if err := printTableSummary(e.stdout, fit, rc, sum); err != nil {
+		if err := printSummary(); err != nil {
 			return err
 		}
 	default:
@@ -154,11 +173,19 @@ func runTable(e *env, args []string) error {
 	case refused:
 		fmt.Fprintln(e.stderr, "scorewright table: refused: the menu re-check failed, so nothing was written; --force exports the table anyway, with a warning in the file")
 		return errFailed
-	case !rc.Passed:
+	case !passed:
 		fmt.Fprintln(e.stderr, "scorewright table: the menu re-check FAILED; the table was exported because of --force and carries a warning")
 		return errFailed
 	}
 	return nil
+}
+
+// formulaRole says in a table's record what the design's formula is.
+func formulaRole(m design.Mode) string {
+	if m == design.ModeEmphasis {
+		return "the emphasis weight w(c) of a yes/no rule, integrated twice into its generator (Schervish 1989), normalised so that a certain, correct forecast costs 0"
+	}
+	return "the generator H(p), concave; efforts by the Bregman construction L(p, k) = H(p) + dH_k - <dH, p>"
 }
 
 // tableMenu builds the report menu from --menu or the budget's step.
@@ -215,28 +242,70 @@ func exportDate() string {
 
 // tableSummary is what --json prints.
 type tableSummary struct {
-	Outcomes     []string      `json:"outcomes"`
-	Menu         menuJSON      `json:"menu"`
-	A            num.Float     `json:"A"`
-	B            num.Float     `json:"B"`
-	Floor        num.Float     `json:"floor"`
-	Cap          num.Float     `json:"cap"`
+	Outcomes []string `json:"outcomes"`
+	Menu     menuJSON `json:"menu"`
+	fitJSON
 	MeanPay      *num.Float    `json:"mean_pay,omitempty"`
 	Reference    []num.Float   `json:"reference,omitempty"`
 	ReferencePay num.Float     `json:"reference_pay"`
-	Unit         num.Float     `json:"unit"`
-	Rounding     string        `json:"rounding"`
-	MinPay       num.Float     `json:"min_pay"`
-	MaxPay       num.Float     `json:"max_pay"`
 	Truthful     truthfulJSON  `json:"truthful_pay"`
 	MenuPay      truthfulJSON  `json:"menu_pay"`
 	Recheck      recheckJSON   `json:"recheck"`
 	ClampGap     *clampGapJSON `json:"clamp_gap,omitempty"`
-	Output       tableOutput   `json:"output"`
-	Notes        []string      `json:"notes"`
 	Cells        []cellJSON    `json:"cells"`
-	Margins      []marginJSON  `json:"margins"`
-	Caution      []string      `json:"caution"`
+	exportJSON
+}
+
+// fitJSON is what every table summary (point tables too) says about the
+// fit; its fields sit at the top level of the JSON.
+type fitJSON struct {
+	A        num.Float `json:"A"`
+	B        num.Float `json:"B"`
+	Floor    num.Float `json:"floor"`
+	Cap      num.Float `json:"cap"`
+	Unit     num.Float `json:"unit"`
+	Rounding string    `json:"rounding"`
+	MinPay   num.Float `json:"min_pay"`
+	MaxPay   num.Float `json:"max_pay"`
+}
+
+// newFitJSON takes the fit from the table's record, and the range of the
+// rounded money payments (which the record states only in words).
+func newFitJSON(m *table.Meta, minPay, maxPay float64) fitJSON {
+	return fitJSON{A: m.A, B: m.B, Floor: m.Floor, Cap: m.Cap, Unit: m.Unit, Rounding: m.Rounding, MinPay: num.Float(minPay), MaxPay: num.Float(maxPay)}
+}
+
+// exportJSON closes every table summary: margins per menu item, the
+// lottery, what was written, the notes and the caution of the export.
+type exportJSON struct {
+	Margins []marginJSON `json:"margins"`
+	Lottery *lotteryJSON `json:"lottery,omitempty"`
+	Output  tableOutput  `json:"output"`
+	Notes   []string     `json:"notes"`
+	Caution []string     `json:"caution"`
+}
+
+// recheckCore is the part of the re-check every table summary has.
+type recheckCore struct {
+	Passed    bool          `json:"passed"`
+	Verdict   string        `json:"verdict"`
+	MinMargin num.Float     `json:"min_margin"`
+	At        []num.Float   `json:"at"`
+	Rival     []num.Float   `json:"rival,omitempty"`
+	Ties      [][]num.Float `json:"ties"`
+	Beaten    [][]num.Float `json:"beaten"`
+}
+
+// marginMark is TIE or BEATEN for a margin within the tolerance of 0 or
+// below it, else empty.
+func marginMark(m, tol float64) string {
+	switch {
+	case math.Abs(m) <= tol:
+		return "TIE"
+	case m < 0:
+		return "BEATEN"
+	}
+	return ""
 }
 
 type menuJSON struct {
@@ -256,13 +325,7 @@ type truthfulJSON struct {
 }
 
 type recheckJSON struct {
-	Passed      bool            `json:"passed"`
-	Verdict     string          `json:"verdict"`
-	MinMargin   num.Float       `json:"min_margin"`
-	At          []num.Float     `json:"at"`
-	Rival       []num.Float     `json:"rival,omitempty"`
-	Ties        [][]num.Float   `json:"ties"`
-	Beaten      [][]num.Float   `json:"beaten"`
+	recheckCore
 	NeverChosen [][]num.Float   `json:"never_chosen"`
 	TiedBeliefs int             `json:"tied_beliefs"`
 	Grid        recheckGridJSON `json:"grid"`
@@ -303,7 +366,7 @@ type tableOutput struct {
 	Written bool   `json:"written"`
 }
 
-func newTableSummary(f *budget.Fit, rc *budget.Recheck, format, out string) *tableSummary {
+func newTableSummary(f *budget.Fit, rc *budget.Recheck, tb *table.Table, format, out string) *tableSummary {
 	reps := f.Menu.Reports
 	items := func(idx []int) [][]num.Float {
 		out := [][]num.Float{}
@@ -319,23 +382,19 @@ func newTableSummary(f *budget.Fit, rc *budget.Recheck, format, out string) *tab
 		return num.Floats(reps[i])
 	}
 	s := &tableSummary{
-		Outcomes: f.Labels,
-		Menu:     menuJSON{Desc: f.MenuDesc(), Items: len(reps), Clamp: num.Float(f.Clamp), First: num.Floats(reps[0]), Last: num.Floats(reps[len(reps)-1])},
-		A:        num.Float(f.A), B: num.Float(f.B), Floor: num.Float(f.Floor), Cap: num.Float(f.Cap),
+		Outcomes:  f.Labels,
+		Menu:      menuJSON{Desc: f.MenuDesc(), Items: len(reps), Clamp: num.Float(f.Clamp), First: num.Floats(reps[0]), Last: num.Floats(reps[len(reps)-1])},
+		fitJSON:   newFitJSON(&tb.Meta, f.MinPay, f.MaxPay),
 		Reference: num.Floats(f.Reference), ReferencePay: num.Float(f.ReferencePay),
-		Unit: num.Float(f.Unit), Rounding: f.RoundingDesc(),
-		MinPay: num.Float(f.MinPay), MaxPay: num.Float(f.MaxPay),
 		Truthful: truthfulJSON{Min: num.Float(f.Truthful.Min), Max: num.Float(f.Truthful.Max),
 			MinBelief: num.Floats(f.Truthful.MinBelief), MaxBelief: num.Floats(f.Truthful.MaxBelief), Grid: f.Truthful.Grid},
 		MenuPay: truthfulJSON{Min: num.Float(rc.MenuPay.Min), Max: num.Float(rc.MenuPay.Max),
 			MinBelief: num.Floats(rc.MenuPay.MinBelief), MaxBelief: num.Floats(rc.MenuPay.MaxBelief), Grid: rc.Grid},
-		Recheck: recheckJSON{Passed: rc.Passed, Verdict: rc.Verdict(f), MinMargin: num.Float(rc.MinMargin),
-			At: report(rc.MinMarginItem), Rival: report(rc.MinMarginRival),
-			Ties: items(rc.Ties), Beaten: items(rc.Beaten), NeverChosen: items(rc.NeverChosen),
+		Recheck: recheckJSON{recheckCore: recheckCore{Passed: rc.Passed, Verdict: rc.Verdict(f), MinMargin: num.Float(rc.MinMargin),
+			At: report(rc.MinMarginItem), Rival: report(rc.MinMarginRival), Ties: items(rc.Ties), Beaten: items(rc.Beaten)},
+			NeverChosen: items(rc.NeverChosen),
 			TiedBeliefs: rc.TiedBeliefs, Grid: recheckGridJSON{Desc: rc.Grid, Points: rc.Beliefs, Tolerance: num.Float(rc.Tolerance)}},
-		Output:  tableOutput{Format: format, File: out},
-		Notes:   f.Notes(rc),
-		Caution: table.Caution(),
+		exportJSON: exportJSON{Output: tableOutput{Format: format, File: out}, Notes: f.Notes(rc), Caution: tb.Meta.Cautions},
 	}
 	if f.MeanPay != nil {
 		m := num.Float(*f.MeanPay)
@@ -361,6 +420,7 @@ func printTableSummary(w io.Writer, f *budget.Fit, rc *budget.Recheck, s *tableS
 	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', 0)
 	fmt.Fprintf(tw, "menu\t%s\n", f.MenuDesc())
 	fmt.Fprintf(tw, "payment\tpay = A - B·L(p, k), A = %s, B = %s\n", table.FormatNumber(f.A), table.FormatNumber(f.B))
+	printLottery(tw, s.Lottery)
 	fmt.Fprintf(tw, "budget\t%s\n", f.BudgetDesc())
 	fmt.Fprintf(tw, "rounding\t%s\n", f.RoundingDesc())
 	verdict := "FAILED"
@@ -420,13 +480,7 @@ func printItems(w io.Writer, f *budget.Fit, rc *budget.Recheck) error {
 	}
 	fmt.Fprintf(tw, "report\tmargin\t\tclosest rival\t%s\n", cellHead)
 	for _, i := range rows {
-		verdict := ""
-		switch m := rc.Margins[i]; {
-		case math.Abs(m) <= rc.Tolerance:
-			verdict = "TIE"
-		case m < 0:
-			verdict = "BEATEN"
-		}
+		verdict := marginMark(rc.Margins[i], rc.Tolerance)
 		rival := "-"
 		if r := rc.Rivals[i]; r >= 0 {
 			rival = num.Format(reps[r])

@@ -170,12 +170,23 @@ func (s *Scorer) Divergence(q, p []float64) float64 {
 	return s.Expected(q, p) - s.Entropy(q)
 }
 
+// BinaryEvaluator is an Evaluator that knows its binary form directly,
+// as an emphasis-designed generator does (its weight is the formula).
+// Scorer.Binary uses it instead of recombining the Hessian, which would
+// give the weight 1 as 0.9999999999999999.
+type BinaryEvaluator interface {
+	Binary(p float64) (h, dh, w float64)
+}
+
 // Binary returns, for n = 2 and p the probability of outcome 1, the
 // generator h = H(p, 1-p), its derivative dh = H'(p) and the emphasis
 // weight w = -H”(p).
 func (s *Scorer) Binary(p float64) (h, dh, w float64) {
 	if s.n != 2 {
 		panic("bregman: Binary needs 2 outcomes")
+	}
+	if b, ok := s.ev.(BinaryEvaluator); ok {
+		return b.Binary(p)
 	}
 	x := [2]float64{p, 1 - p}
 	h = s.ev.Hessian(s.hess, s.grad, x[:])

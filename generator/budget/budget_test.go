@@ -355,11 +355,11 @@ func TestRounding(t *testing.T) {
 		{1234.5678, 0.25, RoundDown, 1234.5},
 	}
 	for _, c := range cases {
-		r, err := newRounder(c.unit, c.mode)
+		r, err := NewRounder(c.unit, c.mode)
 		if err != nil {
 			t.Fatal(err)
 		}
-		if got := r.round(c.x); got != c.want {
+		if got := r.Round(c.x); got != c.want {
 			t.Errorf("round(%v, %v, %s) = %v, want %v", c.x, c.unit, c.mode, got, c.want)
 		}
 	}
@@ -367,8 +367,8 @@ func TestRounding(t *testing.T) {
 		unit float64
 		want int
 	}{{1, 0}, {0.01, 2}, {0.05, 2}, {0.125, 3}, {5, 0}, {0, -1}} {
-		r, _ := newRounder(c.unit, "")
-		if got := r.decimals(); got != c.want {
+		r, _ := NewRounder(c.unit, "")
+		if got := r.Decimals(); got != c.want {
 			t.Errorf("decimals(%v) = %d, want %d", c.unit, got, c.want)
 		}
 	}
@@ -538,4 +538,61 @@ func flat(rows [][]float64) []float64 {
 		out = append(out, r...)
 	}
 	return out
+}
+
+// TestFitHitsFloorAndCapExactly: unrounded, the menu's largest effort pays
+// the floor and its smallest the cap, bit for bit. The log rule clamped at
+// 0.01 on a 0.05 menu fitted to [0, 50] gives B = 50/(Lmax - Lmin), and
+// floor + B·(Lmax - Lmin) is 50.00000000000001 in floats; the table must
+// read 50 (derived by hand: the cap is the definition of the fit).
+func TestFitHitsFloorAndCapExactly(t *testing.T) {
+	m := stepMenu(t, 2, 0.05, 0)
+	m.Clamp = 0.01
+	for _, c := range []struct {
+		src        string
+		m          *Menu
+		floor, cap float64
+	}{
+		{"-sum(p*ln(p))", m, 0, 50},
+		{"-sum(p*ln(p))", stepMenu(t, 2, 0.05, 0.01), 3, 47.3},
+		{"1 - sum(p^2)", stepMenu(t, 2, 0.1, 0), 0.1, 0.7},
+	} {
+		f, err := FitRule(rule(t, c.src, 2), c.m, design.Budget{Floor: c.floor, Cap: c.cap})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if f.MinPay != c.floor || f.MaxPay != c.cap {
+			t.Errorf("%s on [%g, %g]: payments span [%v, %v]", c.src, c.floor, c.cap, f.MinPay, f.MaxPay)
+		}
+	}
+}
+
+// TestClampGapAgainstClosedForm: log rule clamped at c = 0.01 on a 0.05
+// menu fitted to [0, 50]. Derived by hand: a forecaster with belief
+// q = (1 - e, e), e < c, is paid for the truthful report as for
+// (1 - e, c)/(1 - e + c) and for the menu item (1, 0) as for
+// (1, c)/(1 + c). The expected log efforts differ by
+//
+//	f(e) = -(1 - e) ln(1 - e) + ln((1 - e + c)/(1 + c)),
+//
+// positive on (0, c) (f(c/2) = 2.47e-5), so the clamp pays B·f(e) for
+// reporting certainty. The search probes e = c/4, c/2, 3c/4, so it must
+// find at least B·f(c/2) and at most B·max f.
+func TestClampGapAgainstClosedForm(t *testing.T) {
+	const c = 0.01
+	m := stepMenu(t, 2, 0.05, 0)
+	m.Clamp = c
+	f, rc := fit(t, rule(t, "-sum(p*ln(p))", 2), m, design.Budget{Floor: 0, Cap: 50})
+	gap := func(e float64) float64 { return -(1-e)*math.Log(1-e) + math.Log((1-e+c)/(1+c)) }
+	best := 0.0
+	for i := 1; i < 10000; i++ {
+		best = math.Max(best, gap(c*float64(i)/10000))
+	}
+	lo, hi := f.B*gap(c/2), f.B*best
+	if g := rc.ClampGap; g == nil || g.Max < lo-1e-12 || g.Max > hi+1e-12 {
+		t.Fatalf("clamp gap %+v, want within [%.6g, %.6g]", g, lo, hi)
+	}
+	if math.Abs(lo-2.47e-5*f.B) > 0.01e-5*f.B {
+		t.Errorf("f(c/2)·B = %g; the hand value is 2.47e-5·B = %g", lo, 2.47e-5*f.B)
+	}
 }

@@ -15,8 +15,13 @@ import (
 type Info struct {
 	Title   string
 	Formula string
-	Preset  string
-	Params  map[string]float64
+	// FormulaRole says what the formula is; see table.Meta.
+	FormulaRole string
+	Preset      string
+	Params      map[string]float64
+	// Weights and Ordered are the design's outcome weights and order.
+	Weights []float64
+	Ordered bool
 	Version string
 	// Date is written as given, so tests can fix it.
 	Date string
@@ -154,7 +159,8 @@ func (f *Fit) Table(rc *Recheck, info Info) *table.Table {
 		payment += "; L is taken at the clamped report"
 	}
 	meta := table.Meta{
-		Title: info.Title, Formula: info.Formula, Preset: info.Preset, Params: info.Params,
+		Title: info.Title, Formula: info.Formula, FormulaRole: info.FormulaRole, Preset: info.Preset, Params: info.Params,
+		Weights: num.Floats(info.Weights), Ordered: info.Ordered,
 		Outcomes: append([]string(nil), f.Labels...),
 		Menu:     f.MenuDesc(), Payment: payment,
 		A: num.Float(f.A), B: num.Float(f.B),

@@ -48,11 +48,13 @@ type Fit struct {
 	ReferencePay float64
 
 	rule  *bregman.Rule
-	round rounder
-	// Payment is computed as base + B·(anchor - L): the same line as
-	// A - B·L, anchored at the largest menu effort so that the floor comes
-	// out exactly.
-	base, anchor float64
+	round Rounder
+	// Payment is computed as base + B·(anchor - L), or Cap - B·(L - low)
+	// in the half of the effort range nearer the smallest menu effort low:
+	// the same line as A - B·L, anchored at both ends so that the floor
+	// and the cap come out exactly (B·(Lmax - Lmin) is the cap only up to
+	// float noise: 50.00000000000001).
+	base, anchor, low float64
 }
 
 // TruthfulRange is the range of A - B·H(q) over beliefs q on a grid.
@@ -112,7 +114,7 @@ func FitRule(r *bregman.Rule, m *Menu, b design.Budget) (*Fit, error) {
 	if err := checkFloor("clamp", m.Clamp, n); err != nil {
 		return nil, err
 	}
-	rd, err := newRounder(b.Unit, b.Rounding)
+	rd, err := NewRounder(b.Unit, b.Rounding)
 	if err != nil {
 		return nil, err
 	}
@@ -154,7 +156,7 @@ func FitRule(r *bregman.Rule, m *Menu, b design.Budget) (*Fit, error) {
 	}
 	href := s.Expected(ref, ClampReport(cp, ref, m.Clamp))
 
-	f.base, f.anchor = b.Floor, lmax
+	f.base, f.anchor, f.low = b.Floor, lmax, lmin
 	switch {
 	case b.MeanPay != nil:
 		mp := *b.MeanPay
@@ -201,20 +203,25 @@ func FitRule(r *bregman.Rule, m *Menu, b design.Budget) (*Fit, error) {
 }
 
 // exact is the unrounded payment for an effort.
-func (f *Fit) exact(effort float64) float64 { return f.base + f.B*(f.anchor-effort) }
+func (f *Fit) exact(effort float64) float64 {
+	if effort-f.low < f.anchor-effort && f.Cap > f.base {
+		return f.Cap - f.B*(effort-f.low)
+	}
+	return f.base + f.B*(f.anchor-effort)
+}
 
 // Pay returns A - B·effort rounded to the unit as the table pays it.
-func (f *Fit) Pay(effort float64) float64 { return f.round.round(f.exact(effort)) }
+func (f *Fit) Pay(effort float64) float64 { return f.round.Round(f.exact(effort)) }
 
 // Exact returns A - B·effort without rounding.
 func (f *Fit) Exact(effort float64) float64 { return f.exact(effort) }
 
 // Decimals is the number of decimals that writes every payment exactly,
 // or -1 when payments are not rounded.
-func (f *Fit) Decimals() int { return f.round.decimals() }
+func (f *Fit) Decimals() int { return f.round.Decimals() }
 
 // RoundingDesc says in words how payments are rounded.
-func (f *Fit) RoundingDesc() string { return f.round.describe() }
+func (f *Fit) RoundingDesc() string { return f.round.Describe() }
 
 // Rule is the rule the fit was made for.
 func (f *Fit) Rule() *bregman.Rule { return f.rule }

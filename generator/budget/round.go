@@ -23,8 +23,10 @@ const (
 // above float noise.
 const snapUnits = 1e-6
 
-// rounder rounds amounts to a currency unit.
-type rounder struct {
+// Rounder rounds amounts to a currency unit in a stated mode. Every table
+// that pays money (categorical or point forecasts) rounds through it, so
+// that the snapping and decimal rules below hold everywhere.
+type Rounder struct {
 	unit float64
 	mode string
 	// pow10 is 10^d for the d decimals that write every multiple of the
@@ -34,28 +36,30 @@ type rounder struct {
 	pow10 float64
 }
 
-func newRounder(unit float64, mode string) (rounder, error) {
+// NewRounder returns a Rounder for unit (0: no rounding) and mode ("" is
+// nearest); a bad mode or unit is an error naming it.
+func NewRounder(unit float64, mode string) (Rounder, error) {
 	if mode == "" {
 		mode = RoundNearest
 	}
 	switch mode {
 	case RoundNearest, RoundDown, RoundUp:
 	default:
-		return rounder{}, fmt.Errorf("rounding: %q is not one of %q, %q, %q", mode, RoundNearest, RoundDown, RoundUp)
+		return Rounder{}, fmt.Errorf("rounding: %q is not one of %q, %q, %q", mode, RoundNearest, RoundDown, RoundUp)
 	}
 	if math.IsNaN(unit) || math.IsInf(unit, 0) || unit < 0 {
-		return rounder{}, fmt.Errorf("rounding: unit %g must be a positive number (or 0 for none)", unit)
+		return Rounder{}, fmt.Errorf("rounding: unit %g must be a positive number (or 0 for none)", unit)
 	}
-	r := rounder{unit: unit, mode: mode}
-	if d := r.decimals(); d >= 0 {
+	r := Rounder{unit: unit, mode: mode}
+	if d := r.Decimals(); d >= 0 {
 		r.pow10 = math.Pow(10, float64(d))
 	}
 	return r, nil
 }
 
-// round returns x rounded to the unit in the rounder's mode; with unit 0
+// Round returns x rounded to the unit in the rounder's mode; with unit 0
 // it returns x.
-func (r rounder) round(x float64) float64 {
+func (r Rounder) Round(x float64) float64 {
 	if r.unit == 0 || math.IsNaN(x) || math.IsInf(x, 0) {
 		return x
 	}
@@ -85,10 +89,10 @@ func (r rounder) round(x float64) float64 {
 	return amount
 }
 
-// decimals is the number of decimals that writes every multiple of the
+// Decimals is the number of decimals that writes every multiple of the
 // unit exactly (0.05 -> 2, 1 -> 0, 0.125 -> 3), or -1 when there is no
 // rounding or the unit has no short decimal form.
-func (r rounder) decimals() int {
+func (r Rounder) Decimals() int {
 	if r.unit == 0 {
 		return -1
 	}
@@ -101,8 +105,8 @@ func (r rounder) decimals() int {
 	return -1
 }
 
-// describe says in words how amounts are rounded.
-func (r rounder) describe() string {
+// Describe says in words how amounts are rounded.
+func (r Rounder) Describe() string {
 	if r.unit == 0 {
 		return "none (exact amounts)"
 	}
@@ -113,3 +117,9 @@ func (r rounder) describe() string {
 	}[r.mode]
 	return fmt.Sprintf("to multiples of %s, %s", short(r.unit), mode)
 }
+
+// Unit is the rounding unit (0: none).
+func (r Rounder) Unit() float64 { return r.unit }
+
+// Mode is the rounding mode: nearest, down or up.
+func (r Rounder) Mode() string { return r.mode }

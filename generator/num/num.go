@@ -91,14 +91,15 @@ func ParseVector(s string) ([]float64, error) {
 // ParseDistribution reads a probability vector over n outcomes. For n = 2 a
 // single number is the probability of outcome 1. Entries must lie in [0, 1]
 // and sum to 1 within SimplexTolerance; the result is renormalised to sum
-// to 1 exactly.
+// to 1, unless the entries already do up to float rounding (then they are
+// kept exactly as typed).
 func ParseDistribution(s string, n int) ([]float64, error) {
 	v, err := ParseVector(s)
 	if err != nil {
 		return nil, err
 	}
 	if n == 2 && len(v) == 1 {
-		v = append(v, 1-v[0])
+		v = append(v, complement(v[0]))
 	}
 	if len(v) != n {
 		return nil, fmt.Errorf("%d entries given for %d outcomes", len(v), n)
@@ -110,10 +111,37 @@ func ParseDistribution(s string, n int) ([]float64, error) {
 	for _, x := range v {
 		sum += x
 	}
+	// Entries typed as decimals that add up to 1 (0.6, 0.3, 0.1) sum to
+	// 0.9999999999999999 in binary; dividing by that would turn them into
+	// 0.6000000000000001 and so on. Within float rounding of 1 the entries
+	// are kept as typed.
+	if math.Abs(sum-1) <= float64(len(v))*0x1p-52 {
+		return v, nil
+	}
 	for i := range v {
 		v[i] /= sum
 	}
 	return v, nil
+}
+
+// complement is 1 - x as the decimal it stands for: 1 - 0.7 is
+// 0.30000000000000004 in binary, but a report of 0.7 means 0.3 for the
+// other outcome. x's shortest decimal form gives the number of decimals.
+func complement(x float64) float64 {
+	c := 1 - x
+	s := strconv.FormatFloat(x, 'f', -1, 64)
+	d := 0
+	if i := strings.IndexByte(s, '.'); i >= 0 {
+		d = len(s) - i - 1
+	}
+	if d > 15 {
+		return c
+	}
+	p := math.Pow(10, float64(d))
+	if r := math.Round(c*p) / p; math.Abs(r-c) <= 0x1p-52 {
+		return r
+	}
+	return c
 }
 
 // CheckDistribution reports why v is not a probability vector within tol.

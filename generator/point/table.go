@@ -1,16 +1,16 @@
 package point
 
 import (
+	"bytes"
 	"context"
-	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
 	"math"
 	"strconv"
-	"strings"
 
-	"scorewright/generator/lottery"
+	"scorewright/generator/budget"
+	"scorewright/generator/num"
 	"scorewright/generator/table"
 )
 
@@ -26,26 +26,31 @@ type TableSpec struct {
 	Columns int
 	// Unit is the currency rounding unit; 0 means no rounding.
 	Unit float64
-	// Rounding is "nearest" (default), "down" or "up".
+	// Rounding is "nearest" (default), "down" or "up"; see budget.Rounder.
 	Rounding string
 }
 
-// Table is a payment table for point forecasts. Pay[i][j] is what report
-// Reports[i] earns when the outcome is Outcomes[j]; the rule is
-// pay = A - B D(y, x) before rounding.
+// Table is a point-forecast rule fitted to a budget: Pay[i][j] is what
+// report Reports[i] earns when the outcome is Outcomes[j], the rule
+// pay = A - B·D(y, x) rounded as the budget says. Between two columns the
+// contract pays by linear interpolation. Recheck says what rounding did
+// to honesty and Export makes the table.Table every format writes.
 type Table struct {
 	Reports  []float64   `json:"reports"`
 	Outcomes []float64   `json:"outcomes"`
 	Pay      [][]float64 `json:"pay"`
 	A        float64     `json:"A"`
 	B        float64     `json:"B"`
-	// Kind is what Pay holds: money, or after Lottery the chance of
-	// winning the prize.
-	Kind string `json:"kind"`
+	// Floor and Cap are the budget; MinPay and MaxPay the smallest and
+	// largest payments in the rounded table.
+	Floor, Cap     float64
+	MinPay, MaxPay float64
+	// Step is the menu spacing.
+	Step float64
 	// Notes explain how to read the table.
-	Notes []string `json:"notes"`
-	// Cautions close every export.
-	Cautions []string `json:"caution"`
+	Notes []string
+	gen   *Generator
+	round budget.Rounder
 }
 
 // ErrUnbounded is returned when D is infinite or NaN somewhere on the
@@ -57,6 +62,10 @@ var ErrUnbounded = errors.New("point: the effort is not finite on the table")
 func (g *Generator) BuildTable(ctx context.Context, spec TableSpec) (*Table, error) {
 	if !(spec.Cap > spec.Floor) {
 		return nil, fmt.Errorf("point: cap %g must exceed floor %g", spec.Cap, spec.Floor)
+	}
+	rd, err := budget.NewRounder(spec.Unit, spec.Rounding)
+	if err != nil {
+		return nil, fmt.Errorf("point: %v", err)
 	}
 	step := spec.Step
 	if step == 0 {
@@ -76,22 +85,22 @@ func (g *Generator) BuildTable(ctx context.Context, spec TableSpec) (*Table, err
 	if cols < 2 || cols > 1000 {
 		return nil, fmt.Errorf("point: %d outcome columns; need 2..1000", cols)
 	}
-	t := &Table{Reports: make([]float64, rows), Outcomes: make([]float64, cols), Kind: string(table.KindMoney), Cautions: table.Caution()}
-	for i := range t.Reports {
-		t.Reports[i] = math.Min(g.Lo+float64(i)*step, g.Hi)
+	f := &Table{Reports: make([]float64, rows), Outcomes: make([]float64, cols), Floor: spec.Floor, Cap: spec.Cap, Step: step, gen: g, round: rd}
+	for i := range f.Reports {
+		f.Reports[i] = math.Min(g.Lo+float64(i)*step, g.Hi)
 	}
-	for j := range t.Outcomes {
-		t.Outcomes[j] = g.Lo + (g.Hi-g.Lo)*float64(j)/float64(cols-1)
+	for j := range f.Outcomes {
+		f.Outcomes[j] = g.Lo + (g.Hi-g.Lo)*float64(j)/float64(cols-1)
 	}
 	ev := g.NewEvaluator()
 	d := make([][]float64, rows)
 	var worst float64
-	for i, x := range t.Reports {
+	for i, x := range f.Reports {
 		if err := ctx.Err(); err != nil {
 			return nil, err
 		}
 		d[i] = make([]float64, cols)
-		for j, y := range t.Outcomes {
+		for j, y := range f.Outcomes {
 			v := ev.Divergence(y, x)
 			if math.IsNaN(v) || math.IsInf(v, 0) {
 				return nil, fmt.Errorf("%w: D(y = %g, x = %g) = %v", ErrUnbounded, y, x, v)
@@ -103,135 +112,239 @@ func (g *Generator) BuildTable(ctx context.Context, spec TableSpec) (*Table, err
 	if worst == 0 {
 		return nil, errors.New("point: the effort is zero everywhere on the table; the generator is affine")
 	}
-	t.A, t.B = spec.Cap, (spec.Cap-spec.Floor)/worst
-	t.Pay = make([][]float64, rows)
+	f.A, f.B = spec.Cap, (spec.Cap-spec.Floor)/worst
+	f.Pay = make([][]float64, rows)
+	f.MinPay, f.MaxPay = math.Inf(1), math.Inf(-1)
 	for i := range d {
-		t.Pay[i] = make([]float64, cols)
+		f.Pay[i] = make([]float64, cols)
 		for j, v := range d[i] {
-			t.Pay[i][j] = round(t.A-t.B*v, spec.Unit, spec.Rounding, spec.Floor, spec.Cap)
+			// The worst cell pays the floor exactly, whatever the float
+			// noise in A - B·worst.
+			pay := f.A - f.B*v
+			if v == worst {
+				pay = spec.Floor
+			}
+			f.Pay[i][j] = rd.Round(pay)
+			f.MinPay, f.MaxPay = math.Min(f.MinPay, f.Pay[i][j]), math.Max(f.MaxPay, f.Pay[i][j])
 		}
 	}
-	t.Notes = []string{
-		fmt.Sprintf("pay = %.6g - %.6g * D(y, x), D from phi = %s on [%g, %g]", t.A, t.B, g.Source, g.Lo, g.Hi),
+	f.Notes = []string{
+		fmt.Sprintf("pay = %.6g - %.6g * D(y, x), D from phi = %s on [%g, %g]", f.A, f.B, g.Source, g.Lo, g.Hi),
 		"for an outcome between two columns, pay by linear interpolation between them: the part of the pay that depends on the report is affine in the outcome, so with interpolation the best menu report is still the one nearest the mean in the rule's divergence D(mean, x)",
-		"paying each column's value for a whole bin instead makes the best report the mean of the binned outcome, which can differ from the mean by up to half a bin",
+		binNote,
 	}
 	if spec.Unit > 0 {
-		t.Notes = append(t.Notes, fmt.Sprintf("payments rounded to %g (%s); rounding can make neighbouring reports tie", spec.Unit, roundingName(spec.Rounding)))
+		f.Notes = append(f.Notes, fmt.Sprintf("payments rounded to %g (%s); rounding can make neighbouring reports tie", spec.Unit, rd.Mode()))
 	}
-	return t, nil
+	return f, nil
 }
 
-// Lottery rewrites the table in place as chances of winning a prize of
-// Cap - Floor (see package lottery), with the explanation, the settling
-// rule and the extra caution.
-func (t *Table) Lottery(floor, cap float64) error {
-	if t.Kind != string(table.KindMoney) {
-		return fmt.Errorf("point: the table holds %s, not money", t.Kind)
+const binNote = "paying each column's value for a whole bin instead makes the best report the mean of the binned outcome, which can differ from the mean by up to half a bin"
+
+// Recheck is what the rounded table does to honesty. Between columns the
+// table pays by linear interpolation, so a forecaster's expected pay for
+// report i is sum_j w_j Pay[i][j] for weights w on the columns whose
+// mean sum_j w_j y_j is the forecaster's mean; the weights that make a
+// menu item look worst are, by linear programming, on at most two
+// columns around the mean. The re-check therefore tries, for each item
+// x_i and each rival, every point mass and every two-column mixture with
+// mean x_i: exact, not a grid search.
+type Recheck struct {
+	// Passed is true when every menu item is the strict best report for
+	// every forecaster whose mean is that item.
+	Passed bool
+	// Margins[i] is the smallest, over such forecasters and rivals, of
+	// the expected pay of x_i minus that of the rival; Rivals[i] is the
+	// rival that attains it.
+	Margins []float64
+	Rivals  []int
+	// MinMargin is the smallest margin, at item MinItem against MinRival.
+	MinMargin         float64
+	MinItem, MinRival int
+	// Ties and Beaten list the items whose margin is within Tolerance of
+	// zero, or below.
+	Ties, Beaten []int
+	Tolerance    float64
+	// Beliefs counts the (item, belief) pairs tried: every point mass and
+	// two-column mixture whose mean is the item.
+	Beliefs int
+}
+
+// maxRecheckWork bounds items² × column pairs.
+const maxRecheckWork = 4e8
+
+// Recheck checks every menu item against every rival on the rounded
+// table; it honours ctx between items.
+func (f *Table) Recheck(ctx context.Context) (*Recheck, error) {
+	R, C := len(f.Reports), len(f.Outcomes)
+	if w := float64(R) * float64(R) * float64(C) * float64(C) / 4; w > maxRecheckWork {
+		return nil, fmt.Errorf("point: the re-check of %d reports × %d columns is too large (%.3g cell pairs; at most %.3g); take a coarser --step", R, C, w, maxRecheckWork)
 	}
-	for i, row := range t.Pay {
-		for j, v := range row {
-			c, err := lottery.Chance(v, floor, cap)
-			if err != nil {
-				return fmt.Errorf("%w (report %g, outcome %g)", err, t.Reports[i], t.Outcomes[j])
+	rc := &Recheck{Margins: make([]float64, R), Rivals: make([]int, R), MinMargin: math.Inf(1), MinItem: -1, MinRival: -1,
+		Tolerance: 1e-9 * math.Max(1, math.Max(math.Abs(f.MaxPay), math.Abs(f.MinPay)))}
+	diff := make([]float64, C)
+	for i, m := range f.Reports {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
+		rc.Margins[i], rc.Rivals[i] = math.Inf(1), -1
+		for k := range f.Reports {
+			if k == i {
+				continue
 			}
-			t.Pay[i][j] = c
+			for j := range diff {
+				diff[j] = f.Pay[i][j] - f.Pay[k][j]
+			}
+			v, tried := worstMixture(diff, f.Outcomes, m)
+			if rc.Rivals[i] < 0 {
+				// The beliefs are the same for every rival: count them once.
+				rc.Beliefs += tried
+			}
+			if v < rc.Margins[i] || rc.Rivals[i] < 0 {
+				rc.Margins[i], rc.Rivals[i] = v, k
+			}
+		}
+		switch v := rc.Margins[i]; {
+		case math.Abs(v) <= rc.Tolerance:
+			rc.Ties = append(rc.Ties, i)
+		case v < 0:
+			rc.Beaten = append(rc.Beaten, i)
+		}
+		if rc.Margins[i] < rc.MinMargin {
+			rc.MinMargin, rc.MinItem, rc.MinRival = rc.Margins[i], i, rc.Rivals[i]
 		}
 	}
-	t.Kind = string(lottery.KindChance)
-	t.Notes = append(t.Notes, fmt.Sprintf("each cell is the chance of winning a prize of %g: (pay - %g)/%g", cap-floor, floor, cap-floor), lottery.Why, lottery.Draw)
-	t.Cautions = append(t.Cautions, lottery.Caution)
-	return nil
+	rc.Passed = len(rc.Ties) == 0 && len(rc.Beaten) == 0
+	return rc, nil
 }
 
-func roundingName(mode string) string {
-	if mode == "" {
-		return "nearest"
+// worstMixture is the smallest sum_j w_j diff_j over weights w on at most
+// two columns with mean m (ys ascending), a point mass when m is a column;
+// tried is how many such weightings there are.
+func worstMixture(diff, ys []float64, m float64) (worst float64, tried int) {
+	best := math.Inf(1)
+	tol := 1e-12 * math.Max(1, math.Abs(m))
+	for j, y := range ys {
+		if math.Abs(y-m) <= tol {
+			best = math.Min(best, diff[j])
+			tried++
+		}
+		if y >= m-tol {
+			continue
+		}
+		for l := len(ys) - 1; l > j && ys[l] > m+tol; l-- {
+			t := (m - y) / (ys[l] - y)
+			best = math.Min(best, (1-t)*diff[j]+t*diff[l])
+			tried++
+		}
 	}
-	return mode
+	return best, tried
 }
 
-// round rounds v to the unit in the given mode and keeps it in [lo, hi].
-func round(v, unit float64, mode string, lo, hi float64) float64 {
-	if unit > 0 {
-		q := v / unit
-		switch mode {
-		case "down":
-			q = math.Floor(q + 1e-9)
-		case "up":
-			q = math.Ceil(q - 1e-9)
-		default:
-			q = math.Round(q)
-		}
-		v = q * unit
+// Verdict says in one sentence what the re-check found.
+func (rc *Recheck) Verdict(f *Table) string {
+	M := len(f.Reports)
+	where := ""
+	if rc.MinItem >= 0 && rc.MinRival >= 0 {
+		where = fmt.Sprintf(" (smallest margin %s at report %s against %s)", table.FormatNumber(rc.MinMargin), short(f.Reports[rc.MinItem]), short(f.Reports[rc.MinRival]))
 	}
-	return math.Min(math.Max(v, lo), hi)
+	scope := "every forecaster whose mean is that report (every point mass and two-column mixture with that mean, pay interpolated between columns; exact), after scaling and rounding"
+	if rc.Passed {
+		return fmt.Sprintf("each of the %d menu reports is the strict best report for %s%s; tie tolerance %.3g", M, scope, where, rc.Tolerance)
+	}
+	return fmt.Sprintf("%d of the %d menu reports are not the strict best report for %s (%d tied, %d beaten)%s; tie tolerance %.3g",
+		len(rc.Ties)+len(rc.Beaten), M, scope, len(rc.Ties), len(rc.Beaten), where, rc.Tolerance)
 }
 
-// WriteCSV writes the table as CSV: '#' comment lines with the notes and
-// the caution, a header row "report \ outcome" followed by the outcome
-// values, then one row per report.
-func (t *Table) WriteCSV(w io.Writer) error {
-	for _, n := range t.Notes {
-		if _, err := fmt.Fprintf(w, "# note: %s\n", n); err != nil {
-			return err
+// Info is what a table's record needs beyond the fit.
+type Info struct {
+	Title   string
+	Preset  string
+	Params  map[string]float64
+	Version string
+	Date    string
+}
+
+// Export builds the export of f with its record: the same metadata block,
+// warnings and cautions as a table over outcomes. A failed re-check (or
+// none, rc nil) puts a warning first.
+func (f *Table) Export(rc *Recheck, info Info) *table.Table {
+	g := f.gen
+	labels := make([]string, len(f.Outcomes))
+	for j, y := range f.Outcomes {
+		labels[j] = "y = " + short(y)
+	}
+	reports := make([][]float64, len(f.Reports))
+	vals := make([][]float64, len(f.Pay))
+	for i, x := range f.Reports {
+		reports[i] = []float64{x}
+		vals[i] = append([]float64(nil), f.Pay[i]...)
+	}
+	meta := table.Meta{
+		Title: info.Title, Formula: g.Source, Preset: info.Preset, Params: info.Params,
+		FormulaRole: fmt.Sprintf("the generator phi(x) of a point forecast of the mean of a quantity in [%s, %s] (concave)", short(g.Lo), short(g.Hi)),
+		Outcomes:    labels,
+		Menu:        fmt.Sprintf("point forecasts x from %s to %s in steps of %s (%d reports); outcome columns y from %s to %s (%d)", short(g.Lo), short(f.Reports[len(f.Reports)-1]), short(f.Step), len(f.Reports), short(g.Lo), short(g.Hi), len(f.Outcomes)),
+		Payment:     fmt.Sprintf("pay(x, y) = A - B·D(y, x), D(y, x) = phi(x) + phi'(x)(y - x) - phi(y) with phi the formula on [%s, %s], rounded as stated; for an outcome between two columns, pay by linear interpolation between them", short(g.Lo), short(g.Hi)),
+		A:           num.Float(f.A), B: num.Float(f.B),
+		Budget:   fmt.Sprintf("payments span [%s, %s] over the menu and the outcome columns (before rounding): a perfect forecast pays the cap, the worst cell the floor", table.FormatNumber(f.Floor), table.FormatNumber(f.Cap)),
+		Rounding: f.round.Describe(), Unit: num.Float(f.round.Unit()), RoundingMode: f.round.Mode(),
+		Floor: num.Float(f.Floor), Cap: num.Float(f.Cap),
+		// The record states A, B, the formula and the rounding in their
+		// own lines, so its notes are the ones that say something new.
+		Notes: []string{
+			"with interpolation, the part of the pay that depends on the report is affine in the outcome, so the best report is the mean of the forecaster's distribution (before rounding) and on the menu the one nearest it in D(mean, x)",
+			binNote,
+			fmt.Sprintf("buyer's worst case per forecast: %s (the largest payment in the table); the smallest is %s", table.FormatNumber(f.MaxPay), table.FormatNumber(f.MinPay)),
+		},
+		Version: info.Version, Date: info.Date,
+		Cautions: table.Caution(),
+	}
+	if f.MinPay < f.Floor-1e-9 || f.MaxPay > f.Cap+1e-9 {
+		meta.Notes = append(meta.Notes, fmt.Sprintf("rounding takes payments outside the budget: from %s to %s", table.FormatNumber(f.MinPay), table.FormatNumber(f.MaxPay)))
+	}
+	switch {
+	case rc == nil:
+		meta.Verdict, meta.MinMargin = "not re-checked", num.Float(math.NaN())
+		meta.Warnings = []string{"this table was NOT re-checked after scaling and rounding; do not sign it before it is."}
+	default:
+		meta.Passed, meta.Verdict, meta.MinMargin = rc.Passed, rc.Verdict(f), num.Float(rc.MinMargin)
+		if !rc.Passed {
+			meta.Warnings = []string{"this table FAILED the menu re-check after scaling and rounding and was exported only on request (--force): some forecasters would gain by not reporting their mean. Do not sign it as it stands."}
 		}
 	}
-	for _, c := range t.Cautions {
-		if _, err := fmt.Fprintf(w, "# caution: %s\n", c); err != nil {
-			return err
-		}
+	return &table.Table{
+		Kind: table.KindMoney, ValueName: "pay", Decimals: f.round.Decimals(),
+		ReportName: "report x", Labels: labels, Reports: reports, Values: vals, Meta: meta,
 	}
-	cw := csv.NewWriter(w)
-	if err := cw.Write(t.header()); err != nil {
+}
+
+func short(v float64) string { return strconv.FormatFloat(v, 'g', 6, 64) }
+
+// write re-checks the table and writes its export in format, for callers
+// that hold no build version or date (the record then has none).
+func (f *Table) write(w io.Writer, format string) error {
+	rc, err := f.Recheck(context.Background())
+	if err != nil {
 		return err
 	}
-	for i := range t.Reports {
-		if err := cw.Write(t.row(i)); err != nil {
-			return err
-		}
-	}
-	cw.Flush()
-	return cw.Error()
+	return f.Export(rc, Info{}).Write(w, format)
 }
 
-// WriteMarkdown writes the table as a Markdown table followed by the notes
-// and the caution.
-func (t *Table) WriteMarkdown(w io.Writer) error {
-	var b strings.Builder
-	b.WriteString("| " + strings.Join(t.header(), " | ") + " |\n|")
-	for range t.header() {
-		b.WriteString("---:|")
-	}
-	b.WriteString("\n")
-	for i := range t.Reports {
-		b.WriteString("| " + strings.Join(t.row(i), " | ") + " |\n")
-	}
-	b.WriteString("\n")
-	for _, n := range t.Notes {
-		b.WriteString("- " + n + "\n")
-	}
-	for _, c := range t.Cautions {
-		b.WriteString("- **Caution:** " + c + "\n")
-	}
-	_, err := io.WriteString(w, b.String())
-	return err
-}
+// WriteCSV re-checks the table and writes it as CSV with its record.
+// Export(rc, info).Write is the way with a version and date.
+func (f *Table) WriteCSV(w io.Writer) error { return f.write(w, "csv") }
 
-func (t *Table) header() []string {
-	head := []string{"report \\ outcome"}
-	for _, y := range t.Outcomes {
-		head = append(head, fmtNum(y))
-	}
-	return head
-}
+// WriteMarkdown re-checks the table and writes it as Markdown with its
+// record.
+func (f *Table) WriteMarkdown(w io.Writer) error { return f.write(w, "md") }
 
-func (t *Table) row(i int) []string {
-	row := []string{fmtNum(t.Reports[i])}
-	for _, p := range t.Pay[i] {
-		row = append(row, fmtNum(p))
+// MarshalJSON writes the JSON export (rows and record) rather than the
+// bare numbers, so that encoding a Table carries the caution too.
+func (f *Table) MarshalJSON() ([]byte, error) {
+	var b bytes.Buffer
+	if err := f.write(&b, "json"); err != nil {
+		return nil, err
 	}
-	return row
+	return bytes.TrimSpace(b.Bytes()), nil
 }
-
-func fmtNum(v float64) string { return strconv.FormatFloat(v, 'g', 10, 64) }

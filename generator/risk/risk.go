@@ -323,9 +323,17 @@ func BinaryBeliefs(step, floor float64) [][]float64 {
 		step = 0.01
 	}
 	lo := math.Max(floor, step)
+	// When 1/step and lo/step are whole (0.01, a 1 % floor), belief i is
+	// the integer ratio (i + lo/step)/(1/step), the float nearest the
+	// decimal: 0.06, not 0.060000000000000005 as lo + 5·step gives.
+	K, L := math.Round(1/step), math.Round(lo/step)
+	whole := math.Abs(K*step-1) < 1e-9 && math.Abs(L*step-lo) < 1e-9*math.Max(1, lo)
 	var out [][]float64
 	for i := 0; ; i++ {
 		q := lo + float64(i)*step
+		if whole {
+			q = (L + float64(i)) / K
+		}
 		if q > 1-lo+1e-12 {
 			break
 		}

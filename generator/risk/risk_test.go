@@ -3,6 +3,7 @@ package risk
 import (
 	"context"
 	"math"
+	"strconv"
 	"testing"
 
 	"scorewright/generator/bregman"
@@ -232,5 +233,22 @@ func TestCARAEmphasisLogRule(t *testing.T) {
 	odds := math.Pow(9, 1/(1+0.25*2))
 	if want := odds / (1 + odds); math.Abs(r.Report[0]-want) > 1e-7 {
 		t.Errorf("report %v, want %v (status %s)", r.Report, want, r.Status)
+	}
+}
+
+// TestBinaryBeliefsAreDecimals: the curve's beliefs are the floats nearest
+// the decimals they stand for (k/100 is correctly rounded by IEEE
+// division), so JSON shows 0.06, and q + (1 - q) stays a belief.
+func TestBinaryBeliefsAreDecimals(t *testing.T) {
+	for _, c := range []struct{ step, floor float64 }{{0.01, 0}, {0.05, 0.01}, {0.01, 0.02}} {
+		bs := BinaryBeliefs(c.step, c.floor)
+		for _, q := range bs {
+			if s := strconv.FormatFloat(q[0], 'g', -1, 64); len(s) > 4 {
+				t.Errorf("step %g floor %g: belief %s is not a short decimal", c.step, c.floor, s)
+			}
+		}
+	}
+	if bs := BinaryBeliefs(0.01, 0); len(bs) != 99 || bs[5][0] != 0.06 || bs[98][0] != 0.99 {
+		t.Errorf("step 0.01: %d beliefs, [5] = %v, last %v", len(bs), bs[5], bs[len(bs)-1])
 	}
 }

@@ -26,7 +26,12 @@ func Write(path string, data []byte, overwrite bool) error {
 	dir := filepath.Dir(path)
 	tmp, err := os.CreateTemp(dir, "."+filepath.Base(path)+".tmp*")
 	if err != nil {
-		return err
+		// Name the file asked for, not the temporary one.
+		var pe *os.PathError
+		if errors.As(err, &pe) {
+			err = pe.Err
+		}
+		return fmt.Errorf("cannot write %s: %w", path, err)
 	}
 	name := tmp.Name()
 	if _, err := tmp.Write(data); err != nil {

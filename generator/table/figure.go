@@ -43,14 +43,21 @@ const (
 // n = 3: one panel per outcome over the simplex triangle, colour = value.
 // n > 3: one panel per outcome, the value when that outcome happens
 // against the probability the report gave it (a slice through the menu).
+// Point forecasts: one panel, a curve per outcome column over the report.
+// Curves have their legend in a strip under the panel.
 func (t *Table) writeFigure(w io.Writer, format string) error {
 	n := len(t.Labels)
 	var plots []*plot.Plot
+	var legend []legendEntry
 	var err error
 	switch {
+	case t.ReportName != "":
+		var p *plot.Plot
+		p, legend, err = t.curvePlot(t.ReportName + " (point forecast)")
+		plots = []*plot.Plot{p}
 	case n == 2:
 		var p *plot.Plot
-		p, err = t.binaryPlot()
+		p, legend, err = t.curvePlot("report: probability of " + t.Labels[0])
 		plots = []*plot.Plot{p}
 	case n == 3:
 		plots, err = t.trianglePlots()
@@ -82,13 +89,15 @@ func (t *Table) writeFigure(w io.Writer, format string) error {
 	textH := lineH*vg.Length(len(lines)) + vg.Centimeter/2
 	ph := panelHeight
 	switch {
+	case t.ReportName != "":
 	case n == 3:
 		// Keep the simplex triangle close to equilateral.
 		ph = trianglePanelHeight
 	case n > 3:
 		ph = slicePanelHeight
 	}
-	height := ph*vg.Length(rows) + textH
+	legendH := legendHeight(legend)
+	height := ph*vg.Length(rows) + legendH + textH
 
 	cw, err := draw.NewFormattedCanvas(figWidth, height, format)
 	if err != nil {
@@ -100,9 +109,12 @@ func (t *Table) writeFigure(w io.Writer, format string) error {
 	dc.Fill(dc.Rectangle.Path())
 
 	plotArea := dc
-	plotArea.Min.Y += textH
+	plotArea.Min.Y += textH + legendH
+	strip := dc
+	strip.Min.Y, strip.Max.Y = dc.Min.Y+textH, dc.Min.Y+textH+legendH
+	drawLegend(strip, legend)
 	tiles := draw.Tiles{Rows: rows, Cols: cols, PadX: vg.Centimeter / 2, PadY: vg.Centimeter / 2,
-		PadTop: vg.Centimeter / 4, PadLeft: vg.Centimeter / 4, PadRight: vg.Centimeter / 4}
+		PadTop: vg.Centimeter / 4, PadLeft: vg.Centimeter / 4, PadRight: vg.Centimeter / 2}
 	canvases := plot.Align(grid, tiles, plotArea)
 	for r := range grid {
 		for c := range grid[r] {
@@ -165,19 +177,81 @@ func wrap(s string, width int) []string {
 }
 
 func (t *Table) valueAxis() string {
-	if t.Kind == KindMoney {
+	switch {
+	case t.Kind == KindMoney:
 		return t.ValueName
+	case strings.Contains(string(t.Kind), t.ValueName):
+		// "chance of the prize", not "chance (chance of the prize)".
+		return string(t.Kind)
 	}
 	return fmt.Sprintf("%s (%s)", t.ValueName, t.Kind)
 }
 
-// binaryPlot draws one curve per outcome against the event's probability.
-func (t *Table) binaryPlot() (*plot.Plot, error) {
+// legendEntry is one line of a figure's legend.
+type legendEntry struct {
+	label  string
+	thumbs []plot.Thumbnailer
+}
+
+// Legend layout: entries in up to legendCols columns in a strip between
+// the panel and the metadata, so that no legend sits on a curve.
+const (
+	legendCols     = 3
+	legendFontSize = 10
+	legendPad      = 3 * vg.Millimeter / 2
+)
+
+// newLegend is an empty legend in the figure's style.
+func newLegend() plot.Legend {
+	l := plot.NewLegend()
+	l.TextStyle.Font.Size = legendFontSize
+	l.Padding = legendPad
+	l.Top, l.Left = true, true
+	return l
+}
+
+// legendRows is how many entries each legend column holds.
+func legendRows(entries []legendEntry) int {
+	return (len(entries) + legendCols - 1) / legendCols
+}
+
+// legendHeight is the height of the legend strip (0 without entries).
+func legendHeight(entries []legendEntry) vg.Length {
+	if len(entries) == 0 {
+		return 0
+	}
+	l := newLegend()
+	return vg.Length(legendRows(entries))*(l.TextStyle.Rectangle("Ag").Max.Y+legendPad) + vg.Centimeter/2
+}
+
+// drawLegend draws the entries column by column into c.
+func drawLegend(c draw.Canvas, entries []legendEntry) {
+	if len(entries) == 0 {
+		return
+	}
+	rows := legendRows(entries)
+	colW := (c.Max.X - c.Min.X - 2*vg.Centimeter) / legendCols
+	for col := 0; col*rows < len(entries); col++ {
+		l := newLegend()
+		for _, e := range entries[col*rows : min(len(entries), (col+1)*rows)] {
+			l.Add(e.label, e.thumbs...)
+		}
+		sub := c
+		sub.Min.X = c.Min.X + 1.5*vg.Centimeter + vg.Length(col)*colW
+		sub.Max.X = sub.Min.X + colW
+		sub.Max.Y -= vg.Centimeter / 4
+		l.Draw(sub)
+	}
+}
+
+// curvePlot draws one curve per outcome (or outcome column) against the
+// first entry of each report; the legend entries are returned, to be
+// drawn outside the data area.
+func (t *Table) curvePlot(xLabel string) (*plot.Plot, []legendEntry, error) {
 	p := plot.New()
-	p.X.Label.Text = "report: probability of " + t.Labels[0]
+	p.X.Label.Text = xLabel
 	p.Y.Label.Text = t.valueAxis()
-	p.Legend.Top = true
-	p.Legend.Left = true
+	var legend []legendEntry
 	for k := range t.Labels {
 		xys := make(plotter.XYs, len(t.Reports))
 		for i, r := range t.Reports {
@@ -187,19 +261,16 @@ func (t *Table) binaryPlot() (*plot.Plot, error) {
 		sort.Slice(xys, func(a, b int) bool { return xys[a].X < xys[b].X })
 		line, points, err := plotter.NewLinePoints(xys)
 		if err != nil {
-			return nil, err
+			return nil, nil, err
 		}
 		line.Color = plotutil.Color(k)
 		points.Color = plotutil.Color(k)
 		points.Shape = plotutil.Shape(k)
 		p.Add(line, points)
-		p.Legend.Add(t.ValueHeader(k), line, points)
+		legend = append(legend, legendEntry{t.ValueHeader(k), []plot.Thumbnailer{line, points}})
 	}
 	p.Add(plotter.NewGrid())
-	// Headroom above the curves for the legend, which would otherwise sit
-	// on the curve that starts high at the left edge.
-	p.Y.Max += 0.25 * (p.Y.Max - p.Y.Min)
-	return p, nil
+	return p, legend, nil
 }
 
 // finiteOr keeps a non-finite value from breaking the axis range; a table
@@ -286,8 +357,12 @@ func (t *Table) slicePlots() ([]*plot.Plot, error) {
 		p := plot.New()
 		p.Title.Text = t.ValueHeader(k)
 		p.Title.TextStyle.Font.Size = 9
+		// A third of the figure's width: axis labels at the title's size,
+		// so that a long outcome name is not cut at the panel's edge.
 		p.X.Label.Text = "report: probability of " + t.Labels[k]
+		p.X.Label.TextStyle.Font.Size = 9
 		p.Y.Label.Text = t.valueAxis()
+		p.Y.Label.TextStyle.Font.Size = 9
 		xys := make(plotter.XYs, len(t.Reports))
 		for i, r := range t.Reports {
 			xys[i] = plotter.XY{X: r[k], Y: finiteOr(t.Values[i][k])}

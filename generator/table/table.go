@@ -37,8 +37,14 @@ type Table struct {
 	Decimals int
 	// Labels name the outcomes.
 	Labels []string
-	// Reports are the menu items, one probability vector per row.
+	// Reports are the menu items, one probability vector per row; or,
+	// when ReportName is set, one number per row.
 	Reports [][]float64
+	// ReportName, when set, makes this a point-forecast table: each report
+	// is a single number (a forecast of a mean) headed ReportName, and
+	// Labels name the outcome columns (values of the quantity) instead of
+	// the outcomes a probability is given to.
+	ReportName string
 	// Values[i][k] is the value of report i when outcome k happens.
 	Values [][]float64
 	// Meta is the record that travels with the table.
@@ -50,11 +56,20 @@ type Table struct {
 // to JSON as numbers and to the other formats inside the Budget and
 // Rounding sentences.
 type Meta struct {
-	Title    string             `json:"title,omitempty"`
-	Formula  string             `json:"formula"`
-	Preset   string             `json:"preset,omitempty"`
-	Params   map[string]float64 `json:"params,omitempty"`
-	Outcomes []string           `json:"outcomes"`
+	Title   string `json:"title,omitempty"`
+	Formula string `json:"formula"`
+	// FormulaRole says what the formula is (a generator, an emphasis
+	// weight, a point-forecast generator), so that nobody reads a weight
+	// in c as a generator.
+	FormulaRole string             `json:"formula_role,omitempty"`
+	Preset      string             `json:"preset,omitempty"`
+	Params      map[string]float64 `json:"params,omitempty"`
+	// Weights are the outcome weights (w inside sum), when the rule has
+	// them; Ordered says the outcomes are ordered (csum). Both change the
+	// rule, so a table without them could not be made again.
+	Weights  []num.Float `json:"weights,omitempty"`
+	Ordered  bool        `json:"ordered,omitempty"`
+	Outcomes []string    `json:"outcomes"`
 	// Menu describes the reports the contract allows.
 	Menu string `json:"menu"`
 	// Payment states the payment formula in words.
@@ -103,9 +118,21 @@ func (m *Meta) Fields() []Field {
 	}
 	add("title", m.Title)
 	add("formula", formulaLine(m.Formula))
+	add("formula is", m.FormulaRole)
 	add("preset", m.Preset)
 	add("parameters", formatParams(m.Params))
-	add("outcomes", strings.Join(m.Outcomes, ", "))
+	if len(m.Weights) > 0 {
+		w := make([]string, len(m.Weights))
+		for i, v := range m.Weights {
+			w[i] = FormatNumber(float64(v))
+		}
+		add("outcome weights", strings.Join(w, ", "))
+	}
+	outcomes := strings.Join(m.Outcomes, ", ")
+	if m.Ordered {
+		outcomes += " (ordered)"
+	}
+	add("outcomes", outcomes)
 	add("menu", m.Menu)
 	add("payment", m.Payment)
 	add("A", FormatNumber(float64(m.A)))
@@ -187,8 +214,23 @@ func (t *Table) Value(v float64) string {
 // as the same float64.
 func Probability(v float64) string { return strconv.FormatFloat(v+0, 'g', -1, 64) }
 
-// ReportHeader is the column heading for the probability of outcome k.
-func (t *Table) ReportHeader(k int) string { return "report " + t.Labels[k] }
+// ReportHeader is the heading of report column k: the probability of
+// outcome k, or the point forecast.
+func (t *Table) ReportHeader(k int) string {
+	if t.ReportName != "" {
+		return t.ReportName
+	}
+	return "report " + t.Labels[k]
+}
+
+// ReportColumns is the number of report columns: one per outcome, or one
+// for a point-forecast table.
+func (t *Table) ReportColumns() int {
+	if t.ReportName != "" {
+		return 1
+	}
+	return len(t.Labels)
+}
 
 // ValueHeader is the column heading for the value when outcome k happens.
 func (t *Table) ValueHeader(k int) string { return t.ValueName + " if " + t.Labels[k] }
@@ -204,8 +246,8 @@ func (t *Table) Check() error {
 		return fmt.Errorf("table: %d reports and %d value rows", len(t.Reports), len(t.Values))
 	}
 	for i := range t.Reports {
-		if len(t.Reports[i]) != n || len(t.Values[i]) != n {
-			return fmt.Errorf("table: row %d does not have %d entries", i+1, n)
+		if len(t.Reports[i]) != t.ReportColumns() || len(t.Values[i]) != n {
+			return fmt.Errorf("table: row %d does not have %d report and %d value entries", i+1, t.ReportColumns(), n)
 		}
 	}
 	if t.ValueName == "" {

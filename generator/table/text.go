@@ -71,8 +71,8 @@ func (t *Table) writeCSV(w io.Writer) error {
 // headers returns the column headings, passed through esc when given.
 func (t *Table) headers(esc func(string) string) []string {
 	n := len(t.Labels)
-	head := make([]string, 0, 2*n)
-	for k := range n {
+	head := make([]string, 0, t.ReportColumns()+n)
+	for k := range t.ReportColumns() {
 		head = append(head, t.ReportHeader(k))
 	}
 	for k := range n {
@@ -88,7 +88,7 @@ func (t *Table) headers(esc func(string) string) []string {
 
 // cells returns row i as text: the report's probabilities, then the values.
 func (t *Table) cells(i int) []string {
-	row := make([]string, 0, 2*len(t.Labels))
+	row := make([]string, 0, t.ReportColumns()+len(t.Labels))
 	for _, x := range t.Reports[i] {
 		row = append(row, Probability(x))
 	}
@@ -143,17 +143,19 @@ type jsonRow struct {
 
 type jsonTable struct {
 	// Warnings repeat the metadata's warnings at the top of the document.
-	Warnings  []string  `json:"warnings,omitempty"`
-	Kind      Kind      `json:"kind"`
-	ValueName string    `json:"value_name"`
-	Decimals  int       `json:"decimals"`
-	Outcomes  []string  `json:"outcomes"`
-	Rows      []jsonRow `json:"rows"`
-	Meta      Meta      `json:"metadata"`
+	Warnings  []string `json:"warnings,omitempty"`
+	Kind      Kind     `json:"kind"`
+	ValueName string   `json:"value_name"`
+	// ReportName is set for a point-forecast table (one number a report).
+	ReportName string    `json:"report_name,omitempty"`
+	Decimals   int       `json:"decimals"`
+	Outcomes   []string  `json:"outcomes"`
+	Rows       []jsonRow `json:"rows"`
+	Meta       Meta      `json:"metadata"`
 }
 
 func (t *Table) writeJSON(w io.Writer) error {
-	jt := jsonTable{Warnings: t.Meta.Warnings, Kind: t.Kind, ValueName: t.ValueName, Decimals: t.Decimals, Outcomes: t.Labels, Meta: t.Meta}
+	jt := jsonTable{Warnings: t.Meta.Warnings, Kind: t.Kind, ValueName: t.ValueName, ReportName: t.ReportName, Decimals: t.Decimals, Outcomes: t.Labels, Meta: t.Meta}
 	for i, p := range t.Reports {
 		jt.Rows = append(jt.Rows, jsonRow{Report: num.Floats(p), Values: num.Floats(t.Values[i])})
 	}
@@ -173,8 +175,7 @@ func (t *Table) writeLaTeX(w io.Writer) {
 	for _, warn := range t.Meta.Warnings {
 		fmt.Fprintf(w, "\\noindent\\textbf{WARNING: %s}\\par\n", texEscape(oneLine(warn)))
 	}
-	n := len(t.Labels)
-	fmt.Fprintf(w, "\\begin{tabular}{%s|%s}\n\\hline\n", strings.Repeat("r", n), strings.Repeat("r", n))
+	fmt.Fprintf(w, "\\begin{tabular}{%s|%s}\n\\hline\n", strings.Repeat("r", t.ReportColumns()), strings.Repeat("r", len(t.Labels)))
 	fmt.Fprintf(w, "%s \\\\\n\\hline\n", strings.Join(t.headers(texEscape), " & "))
 	for i := range t.Reports {
 		fmt.Fprintf(w, "%s \\\\\n", strings.Join(t.cells(i), " & "))

@@ -1,0 +1,30 @@
+package num
+
+import "testing"
+
+// TestParseDistributionKeepsDecimals: 0.6 + 0.3 + 0.1 is 0.9999999999999999
+// in binary; the entries must come back as typed, not divided by that
+// sum. Entries that sum to 1 only within the tolerance are renormalised.
+func TestParseDistributionKeepsDecimals(t *testing.T) {
+	v, err := ParseDistribution("0.6,0.3,0.1", 3)
+	if err != nil || v[0] != 0.6 || v[1] != 0.3 || v[2] != 0.1 {
+		t.Errorf("got %v, %v", v, err)
+	}
+	w, err := ParseDistribution("0.3333333,0.3333333,0.3333333", 3)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s := w[0] + w[1] + w[2]; s < 1-1e-15 || s > 1+1e-15 {
+		t.Errorf("renormalised entries sum to %v", s)
+	}
+	// For n = 2 one number is the first outcome's probability; the other
+	// is the decimal complement 0.3, not the float 1 - 0.7.
+	for _, c := range []struct {
+		in   string
+		want float64
+	}{{"0.7", 0.3}, {"0.05", 0.95}, {"0.123456", 0.876544}, {"1", 0}, {"0", 1}} {
+		if b, err := ParseDistribution(c.in, 2); err != nil || b[1] != c.want {
+			t.Errorf("%s: %v, %v; want second entry %v", c.in, b, err, c.want)
+		}
+	}
+}
