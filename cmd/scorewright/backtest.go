@@ -408,17 +408,13 @@ func refuseExisting(path string, force bool) error {
 }
 
 // pictureCells is how many bins per unit of probability the reliability
-// picture groups forecasts into: the usual tenths.
-const pictureCells = 10
+// picture groups forecasts into.
+const pictureCells = backtest.PictureCells
 
 // reliabilityCurves are the forecasters' curves for outcome k, in bins of
 // width 1/pictureCells.
 func reliabilityCurves(res *backtest.Result, k int) []backtest.Curve {
-	curves := make([]backtest.Curve, len(res.Forecasters))
-	for i, f := range res.Forecasters {
-		curves[i] = backtest.ReliabilityCurve(f.Name, backtest.Regroup(f.Bins, pictureCells), k)
-	}
-	return curves
+	return backtest.ReliabilityCurves(res, k)
 }
 
 func writeReliabilityFigure(path, format string, force bool, event string, res *backtest.Result) error {

@@ -64,3 +64,18 @@ func Regroup(bins []Bin, k int) []Bin {
 	}
 	return set.bins()
 }
+
+// PictureCells is how many bins per unit of probability a reliability
+// picture groups forecasts into: the usual tenths.
+const PictureCells = 10
+
+// ReliabilityCurves are every forecaster's curves for outcome k, with the
+// bins regrouped into cells of width 1/PictureCells, as the command's
+// figure and the workbench draw them.
+func ReliabilityCurves(res *Result, k int) []Curve {
+	curves := make([]Curve, len(res.Forecasters))
+	for i, f := range res.Forecasters {
+		curves[i] = ReliabilityCurve(f.Name, Regroup(f.Bins, PictureCells), k)
+	}
+	return curves
+}
