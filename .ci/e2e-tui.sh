@@ -36,6 +36,7 @@ wait_for() {
 }
 key() { t send-keys -t "$session" "$@"; sleep 0.2; }
 
+repo=$(pwd)
 cd "$work"
 t new-session -d -s "$session" -x 120 -y 40 "TERM=xterm-256color ./scorewright; echo EXITED-\$?; sleep 30"
 wait_for "Orchard co-operative"
@@ -55,6 +56,20 @@ key Escape
 key "?"
 wait_for "Anywhere"
 key Escape
+
+# Backtest: load the frost history; the view shows the reliability
+# picture and the totals; esc goes back to the panes.
+key C-b
+wait_for "Load a forecast history"
+key C-u
+key "$repo/generator/history/testdata/orchard-frost.csv"
+key Enter
+wait_for "perfect reliability"
+wait_for 'observed frequency of "frost"'
+wait_for "176 forecasts, 4 rows skipped"
+wait_for "Alder"
+key Escape
+wait_for "Picture"
 
 # The harvest demo draws a ternary picture; the edits above are unsaved,
 # so the first ctrl+n asks and the second switches.

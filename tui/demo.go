@@ -11,12 +11,13 @@ import (
 
 // DemoFrost is the design the workbench opens with: an orchard
 // co-operative pays a contracted forecaster, night by night, for the
-// probability of a frost night.
+// probability of a frost night (against a clear one). Its labels are those
+// of the sample history generator/history/testdata/orchard-frost.csv.
 func DemoFrost() *design.Design {
 	return &design.Design{
 		Version: design.SchemaVersion,
 		Title:   "Orchard co-operative: frost-night forecasts",
-		Labels:  []string{"frost", "no frost"},
+		Labels:  []string{"frost", "clear"},
 		Mode:    design.ModeGenerator,
 		Preset:  "power",
 		Formula: "# power family; g = 2 is the quadratic rule\ng = 2\n(1 - sum(p^g)) / (g - 1)",

@@ -18,6 +18,7 @@ const (
 	dialogSave dialogKind = iota
 	dialogOpen
 	dialogExport
+	dialogHistory
 )
 
 // dialogAction is what the root must do after a dialog key.
@@ -61,6 +62,8 @@ func (d fileDialog) title() string {
 		return "Save the design"
 	case dialogOpen:
 		return "Open a design"
+	case dialogHistory:
+		return "Load a forecast history (CSV) for this design"
 	}
 	return "Export the payment table"
 }

@@ -27,7 +27,7 @@ func helpText(st Styles, km KeyMap, width int) string {
 	k := km
 	left := []string{
 		section("Anywhere", row(k.QuitHard), row(k.Quit), row(k.Help), row(k.NextPane), row(k.PrevPane),
-			row(k.Save), row(k.Open), row(k.Export), row(k.Demo)),
+			row(k.Save), row(k.Open), row(k.Export), row(k.Demo), row(k.Backtest)),
 		section("Design pane", row(k.Up), row(k.Down), row(k.Edit), row(k.Leave), row(k.Less, k.More),
 			row(k.LessFine, k.MoreFine), row(k.Toggle), row(k.AddOutcome), row(k.DropOutcome)),
 	}
@@ -44,6 +44,10 @@ func helpText(st Styles, km KeyMap, width int) string {
 		section("Picture pane", row(k.Measure), row(k.BeliefDown), row(k.BeliefUp), row(k.Pair)),
 		section("Checks pane", row(k.Rerun)),
 		section("Budget pane (↑ ↓ ← → enter as above)", row(k.PageUp), row(k.PageDown)),
+		section("Backtest view (ctrl+b)", row(k.History), row(k.StopRun),
+			"↑ ↓ pgup pgdn scroll, esc or ctrl+b close;",
+			"an edit reruns it after the debounce and",
+			"cancels the run for the old design"),
 		section("Dialogs", row(k.Field), row(k.Confirm), row(k.Cancel), row(k.Yes), row(k.No)),
 	}
 	l := strings.Join(left, "\n\n")

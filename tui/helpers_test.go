@@ -1,6 +1,7 @@
 package tui
 
 import (
+	"bytes"
 	"context"
 	"io"
 	"reflect"
@@ -10,6 +11,7 @@ import (
 
 	tea "github.com/charmbracelet/bubbletea"
 	"github.com/charmbracelet/lipgloss"
+	"github.com/charmbracelet/x/exp/teatest"
 	"github.com/muesli/termenv"
 
 	"scorewright/generator/design"
@@ -143,3 +145,27 @@ func tea_ctrlO() tea.KeyMsg { return tea.KeyMsg{Type: tea.KeyCtrlO} }
 func sizeMsg(w, h int) tea.WindowSizeMsg { return tea.WindowSizeMsg{Width: w, Height: h} }
 
 func tea_ctrlX() tea.KeyMsg { return tea.KeyMsg{Type: tea.KeyCtrlX} }
+
+// outputWatch waits on a teatest program's output. The renderer only
+// redraws lines that changed, so a wait looks at all output since the
+// last act rather than since the last wait.
+type outputWatch struct {
+	t    *testing.T
+	tm   *teatest.TestModel
+	all  []byte
+	mark int
+}
+
+// act marks the point after which the next waits look.
+func (o *outputWatch) act() { o.mark = len(o.all) }
+
+// wait blocks until what shows in the output since the last act (20 s at
+// most).
+func (o *outputWatch) wait(what string) {
+	o.t.Helper()
+	base := o.all
+	teatest.WaitFor(o.t, o.tm.Output(), func(b []byte) bool {
+		o.all = append(base[:len(base):len(base)], b...)
+		return bytes.Contains(o.all[o.mark:], []byte(what))
+	}, teatest.WithDuration(20*time.Second), teatest.WithCheckInterval(5*time.Millisecond))
+}

@@ -155,19 +155,8 @@ func TestSessionFlow(t *testing.T) {
 	dir := t.TempDir()
 	m := testModel(t, nil, Settings{Dir: dir, Version: "test"})
 	tm := teatest.NewTestModel(t, m, teatest.WithInitialTermSize(120, 40))
-	// The renderer only redraws lines that changed, so a wait looks at all
-	// output since the last action rather than since the last wait.
-	var all []byte
-	mark := 0
-	act := func() { mark = len(all) }
-	wait := func(what string) {
-		t.Helper()
-		base := all
-		teatest.WaitFor(t, tm.Output(), func(b []byte) bool {
-			all = append(base[:len(base):len(base)], b...)
-			return bytes.Contains(all[mark:], []byte(what))
-		}, teatest.WithDuration(20*time.Second), teatest.WithCheckInterval(5*time.Millisecond))
-	}
+	o := &outputWatch{t: t, tm: tm}
+	wait, act := o.wait, o.act
 	wait("Verdict strictly-proper")
 	act()
 	for _, k := range []tea.KeyMsg{keyDown, keyDown, keyDown, keyEnter, keyEnd} {

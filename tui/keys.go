@@ -7,7 +7,7 @@ import "github.com/charmbracelet/bubbles/key"
 // printable key first.
 type KeyMap struct {
 	// Global.
-	Quit, QuitHard, Help, NextPane, PrevPane, Save, Open, Export, Demo key.Binding
+	Quit, QuitHard, Help, NextPane, PrevPane, Save, Open, Export, Demo, Backtest key.Binding
 	// Moving inside a pane and changing the selected item.
 	Up, Down, Less, More, LessFine, MoreFine, Edit, Leave, Toggle key.Binding
 	// Design pane.
@@ -18,6 +18,8 @@ type KeyMap struct {
 	Rerun key.Binding
 	// Budget pane.
 	PageUp, PageDown key.Binding
+	// Backtest view.
+	History, StopRun key.Binding
 	// Dialogs.
 	Confirm, Cancel, Yes, No, Field key.Binding
 }
@@ -37,6 +39,7 @@ func DefaultKeyMap() KeyMap {
 		Open:     b([]string{"ctrl+o"}, "ctrl+o", "open a design"),
 		Export:   b([]string{"ctrl+x"}, "ctrl+x", "export the table"),
 		Demo:     b([]string{"ctrl+n"}, "ctrl+n", "next demo design"),
+		Backtest: b([]string{"ctrl+b"}, "ctrl+b", "backtest: replay a forecast history (open / close)"),
 
 		Up:       b([]string{"up"}, "↑", "previous item"),
 		Down:     b([]string{"down"}, "↓", "next item"),
@@ -61,6 +64,9 @@ func DefaultKeyMap() KeyMap {
 		PageUp:   b([]string{"pgup"}, "pgup", "scroll the table up"),
 		PageDown: b([]string{"pgdown"}, "pgdn", "scroll the table down"),
 
+		History: b([]string{"l"}, "l", "load a forecast history (CSV)"),
+		StopRun: b([]string{"x"}, "x", "stop the backtest"),
+
 		Confirm: b([]string{"enter"}, "enter", "confirm"),
 		Cancel:  b([]string{"esc"}, "esc", "cancel"),
 		Yes:     b([]string{"y"}, "y", "yes, replace the file"),
@@ -78,11 +84,12 @@ type helpGroup struct {
 // groups lists every key, for the help overlay.
 func (k KeyMap) groups() []helpGroup {
 	return []helpGroup{
-		{"Anywhere", []key.Binding{k.QuitHard, k.Quit, k.Help, k.NextPane, k.PrevPane, k.Save, k.Open, k.Export, k.Demo}},
+		{"Anywhere", []key.Binding{k.QuitHard, k.Quit, k.Help, k.NextPane, k.PrevPane, k.Save, k.Open, k.Export, k.Demo, k.Backtest}},
 		{"Design", []key.Binding{k.Up, k.Down, k.Edit, k.Leave, k.Less, k.More, k.LessFine, k.MoreFine, k.Toggle, k.AddOutcome, k.DropOutcome}},
 		{"Picture", []key.Binding{k.Measure, k.BeliefDown, k.BeliefUp, k.Pair}},
 		{"Checks", []key.Binding{k.Rerun}},
 		{"Budget", []key.Binding{k.Up, k.Down, k.Less, k.More, k.LessFine, k.MoreFine, k.Edit, k.PageUp, k.PageDown}},
+		{"Backtest", []key.Binding{k.History, k.StopRun, k.Up, k.Down, k.PageUp, k.PageDown, k.Leave}},
 		{"Dialogs", []key.Binding{k.Field, k.Confirm, k.Cancel, k.Yes, k.No}},
 	}
 }

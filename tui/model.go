@@ -76,6 +76,12 @@ type Model struct {
 	cancelChk  context.CancelFunc
 	cancelPic  context.CancelFunc
 	cancelFit  context.CancelFunc
+	cancelBt   context.CancelFunc
+	btRun      uint64 // id of the latest backtest run
+	btGen      uint64 // generation the latest backtest run is for
+	history    string // the forecast history the backtest replays ("" none)
+	showBT     bool   // the backtest view replaces the panes
+	bt         BacktestView
 	demoIndex  int
 	savedGen   uint64 // generation last opened or saved
 	armed      string // a key pressed once that needs a second press
@@ -120,6 +126,7 @@ func New(d *design.Design, path string, set Settings, st Styles) *Model {
 		checks:     NewChecksPane(st, keys, set.Checker != nil),
 		budget:     NewBudgetPane(st, keys, set.Fitter != nil),
 		helpView:   viewport.New(40, 10),
+		bt:         NewBacktestView(st, keys),
 	}
 	m.helpView.KeyMap = viewport.KeyMap{Up: keys.Up, Down: keys.Down, PageUp: keys.PageUp, PageDown: keys.PageDown}
 	m.designPane.Focus()
@@ -143,6 +150,15 @@ func (m *Model) CheckReport() *CheckReport { return m.checks.Report() }
 
 // Checking reports whether a check runs in the background.
 func (m *Model) Checking() bool { return m.checks.Running() }
+
+// Backtest is the last finished backtest, or nil.
+func (m *Model) Backtest() *BacktestResult { return m.bt.Result() }
+
+// BacktestShown reports whether the backtest view is open.
+func (m *Model) BacktestShown() bool { return m.showBT }
+
+// BacktestRunning reports whether a backtest runs in the background.
+func (m *Model) BacktestRunning() bool { return m.bt.Running() }
 
 // Status is the status line's message.
 func (m *Model) Status() string { return m.status }
@@ -220,6 +236,8 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 			m.picture.setDesign(m.comp.d.N(), m.comp.reward(), m.payFunc() != nil, m.comp.point != nil)
 		}
 		return m, m.requestPicture()
+	case btRunMsg:
+		return m, m.backtestMsg(msg)
 	case savedMsg:
 		gen := msg.gen
 		return m, m.fileDone(msg.err, func() {
@@ -242,8 +260,11 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 
 // wanted reports whether the stream carrying msg is still current.
 func (m *Model) wanted(msg tea.Msg) bool {
-	if r, ok := msg.(checkRunMsg); ok {
+	switch r := msg.(type) {
+	case checkRunMsg:
 		return r.run == m.checkRun
+	case btRunMsg:
+		return r.run == m.btRun
 	}
 	return false
 }
@@ -311,6 +332,29 @@ func (m *Model) key(km tea.KeyMsg) tea.Cmd {
 		}
 		return cmd
 	}
+	if m.showBT {
+		switch {
+		case key.Matches(km, k.Leave), key.Matches(km, k.Backtest):
+			m.showBT = false
+			return m.requestPicture()
+		case key.Matches(km, k.History):
+			m.openDialog(dialogHistory)
+			return nil
+		case key.Matches(km, k.StopRun):
+			if m.bt.Running() || m.cancelBt != nil {
+				m.stopBacktest()
+				m.btRun++ // its late answers are dropped
+				m.bt.stop()
+				m.status = "backtest stopped"
+			}
+			return nil
+		case key.Matches(km, k.Up), key.Matches(km, k.Down), key.Matches(km, k.PageUp), key.Matches(km, k.PageDown):
+			m.bt = m.bt.Update(km)
+			return nil
+		case key.Matches(km, k.NextPane), key.Matches(km, k.PrevPane):
+			m.showBT = false
+		}
+	}
 	typing := m.designPane.Typing() || m.budget.Typing()
 	switch {
 	case km.Type == tea.KeyF1 || (!typing && key.Matches(km, k.Help)):
@@ -333,6 +377,8 @@ func (m *Model) key(km tea.KeyMsg) tea.Cmd {
 	case key.Matches(km, k.Export):
 		m.openDialog(dialogExport)
 		return nil
+	case key.Matches(km, k.Backtest):
+		return m.toggleBacktest()
 	case !typing && key.Matches(km, k.Demo):
 		if !m.confirmDiscard(km, "ctrl+n again discards them") {
 			return nil
@@ -347,6 +393,9 @@ func (m *Model) key(km tea.KeyMsg) tea.Cmd {
 			return nil
 		}
 		return m.quit()
+	}
+	if m.showBT {
+		return nil
 	}
 	return m.routeToPane(km)
 }
@@ -392,6 +441,11 @@ func (m *Model) edited() tea.Cmd {
 	m.checkRun++ // answers of the run for the old design are now stale
 	m.checks.edited()
 	m.budget.edited()
+	if m.history != "" {
+		m.stopBacktest()
+		m.btRun++ // answers of the run for the old design are now stale
+		m.bt.edited()
+	}
 	m.status = ""
 	return tea.Batch(compileCmd(m.gen, cloneDesign(m.d)), m.debounce())
 }
@@ -431,8 +485,12 @@ func (m *Model) stopCheck() {
 // maybeStart starts the checks and the budget fit once the current
 // generation is compiled and its debounce has passed.
 func (m *Model) maybeStart() tea.Cmd {
-	if m.compGen != m.gen || m.debouncedGen != m.gen || m.checkGen == m.gen {
+	if m.compGen != m.gen || m.debouncedGen != m.gen {
 		return nil
+	}
+	bt := m.maybeBacktest()
+	if m.checkGen == m.gen {
+		return bt
 	}
 	if !m.comp.ok() {
 		m.checks.block("the formula does not compile")
@@ -456,7 +514,7 @@ func (m *Model) maybeStart() tea.Cmd {
 		m.cancelFit = cancel
 		cmds = append(cmds, fitCmd(ctx, m.gen, cloneDesign(m.d), m.set.Fitter))
 	}
-	return tea.Batch(cmds...)
+	return tea.Batch(append(cmds, bt)...)
 }
 
 // checkRunMsg stamps a check message with the run that sent it, so that
@@ -567,6 +625,16 @@ func (m *Model) openDialog(kind dialogKind) {
 			d.msg = "the current design has unsaved changes; opening replaces it"
 		}
 		m.dialog = &d
+	case dialogHistory:
+		dir := m.set.Dir
+		if m.history != "" {
+			dir = m.history
+		} else if dir != "" && !strings.HasSuffix(dir, string(filepath.Separator)) {
+			dir += string(filepath.Separator)
+		}
+		d := newFileDialog(m.st, m.keys, kind, dir, nil)
+		d.msg = "columns: forecaster, question, outcome, then " + strings.Join(m.d.Labels, ", ")
+		m.dialog = &d
 	case dialogExport:
 		if m.set.Exporter == nil {
 			m.status = "export needs the table package, which is not part of this build yet"
@@ -592,6 +660,8 @@ func (m *Model) submitDialog() tea.Cmd {
 			abs, _ := filepath.Abs(path)
 			return savedMsg{path: abs, gen: gen, err: d.Save(path, overwrite)}
 		}
+	case dialogHistory:
+		return m.startBacktest(path)
 	case dialogOpen:
 		return func() tea.Msg {
 			nd, err := design.Load(path)
@@ -623,6 +693,7 @@ func (m *Model) layout() {
 	if m.tooSmall() {
 		return
 	}
+	m.layoutBacktest()
 	bh := m.height - 2
 	if m.large() {
 		lw := m.width * 45 / 100
@@ -646,6 +717,89 @@ func (m *Model) layout() {
 	m.budget.SetSize(rw, bh-top)
 }
 
+// toggleBacktest opens the backtest view (asking for a history first when
+// none is loaded) or closes it.
+func (m *Model) toggleBacktest() tea.Cmd {
+	if m.showBT {
+		m.showBT = false
+		return m.requestPicture()
+	}
+	m.designPane.stopEditing()
+	if m.budget.Typing() {
+		m.budget.Blur()
+		m.budget.Focus()
+	}
+	if m.history == "" {
+		m.openDialog(dialogHistory)
+		return nil
+	}
+	m.showBT = true
+	return nil
+}
+
+// startBacktest replays the history at path under the current design,
+// cancelling any run before it. The history becomes the loaded one when
+// its header fits (btStartedMsg).
+func (m *Model) startBacktest(path string) tea.Cmd {
+	m.stopBacktest()
+	ctx, cancel := context.WithCancel(m.ctx)
+	m.cancelBt = cancel
+	m.btRun++
+	m.btGen = m.gen
+	return backtestCmd(ctx, m.btRun, m.gen, cloneDesign(m.d), path)
+}
+
+func (m *Model) stopBacktest() {
+	if m.cancelBt != nil {
+		m.cancelBt()
+		m.cancelBt = nil
+	}
+}
+
+// maybeBacktest reruns the loaded history for a design that compiled and
+// waited out its debounce.
+func (m *Model) maybeBacktest() tea.Cmd {
+	if m.history == "" || m.btGen == m.gen || !m.comp.ok() {
+		return nil
+	}
+	return m.startBacktest(m.history)
+}
+
+// backtestMsg takes a message of the current backtest run.
+func (m *Model) backtestMsg(msg btRunMsg) tea.Cmd {
+	if msg.run != m.btRun {
+		return nil
+	}
+	fromDialog := m.dialog != nil && m.dialog.kind == dialogHistory
+	switch inner := msg.msg.(type) {
+	case btStartedMsg:
+		m.history = inner.path
+		m.bt.started(inner.path)
+		if fromDialog {
+			m.dialog = nil
+			m.showBT = true
+			m.status = ""
+		}
+	case btProgressMsg:
+		m.bt.progressed(inner.done)
+	case btDoneMsg:
+		if errors.Is(inner.err, context.Canceled) {
+			return nil
+		}
+		m.cancelBt = nil
+		if inner.file && fromDialog {
+			m.bt.running = false
+			m.dialog.failed("✗ " + strings.ReplaceAll(inner.err.Error(), "\n", "; "))
+			return nil
+		}
+		m.bt.finished(inner.res, inner.err)
+	}
+	return nil
+}
+
+// layoutBacktest sizes the backtest view: the whole body.
+func (m *Model) layoutBacktest() { m.bt.SetSize(m.width, m.height-2) }
+
 func (m *Model) large() bool { return m.width >= 120 && m.height >= 40 }
 
 // View draws the screen.
@@ -662,7 +816,9 @@ func (m *Model) View() string {
 	}
 	header := m.headerLine()
 	var body string
-	if m.large() {
+	if m.showBT {
+		body = m.bt.View()
+	} else if m.large() {
 		left := lipgloss.JoinVertical(lipgloss.Left, m.designPane.View(m.d), m.budget.View(m.d))
 		right := lipgloss.JoinVertical(lipgloss.Left, m.picture.View(), m.checks.View())
 		body = lipgloss.JoinHorizontal(lipgloss.Top, left, right)
@@ -699,11 +855,14 @@ func (m *Model) headerLine() string {
 	mid := m.st.Dim.Render(fmt.Sprintf(" · %s · %s · %s", where, what, m.d.Mode))
 	var tabs []string
 	for p, name := range []string{"design", "picture", "checks", "budget"} {
-		if pane(p) == m.focus {
+		if pane(p) == m.focus && !m.showBT {
 			tabs = append(tabs, m.st.Selected.Render("["+name+"]"))
 		} else {
 			tabs = append(tabs, m.st.Dim.Render(" "+name+" "))
 		}
+	}
+	if m.showBT {
+		tabs = []string{m.st.Selected.Render("[backtest]"), m.st.Dim.Render(" esc: back to the panes")}
 	}
 	right := strings.Join(tabs, "")
 	gap := m.width - lipgloss.Width(left) - lipgloss.Width(mid) - lipgloss.Width(right)
@@ -724,14 +883,16 @@ func (m *Model) footerLine() string {
 		keys = []key.Binding{as(k.Leave, "esc", "stop typing"), as(k.NextPane, "tab", "pane"), as(k.Help, "F1", "keys"), as(k.Save, "ctrl+s", "save"), k.QuitHard}
 	} else {
 		var pane []key.Binding
-		switch m.focus {
-		case paneDesign:
+		switch {
+		case m.showBT:
+			pane = m.bt.KeyHelp()
+		case m.focus == paneDesign:
 			pane = m.designPane.KeyHelp()
-		case panePicture:
+		case m.focus == panePicture:
 			pane = m.picture.KeyHelp()
-		case paneChecks:
+		case m.focus == paneChecks:
 			pane = m.checks.KeyHelp()
-		case paneBudget:
+		case m.focus == paneBudget:
 			pane = m.budget.KeyHelp()
 		}
 		keys = []key.Binding{as(k.Help, "?", "keys"), as(k.NextPane, "tab", "pane"), k.Quit}

@@ -248,7 +248,7 @@ func TestOutcomesEditAndCount(t *testing.T) {
 	m := testModel(t, nil, Settings{})
 	start(t, m, 80, 24)
 	press(t, m, keyEnter)
-	for range "frost, no frost" {
+	for range "frost, clear" {
 		press(t, m, keyBack)
 	}
 	press(t, m, runes("hard frost, light frost, none"), keyEnter)
