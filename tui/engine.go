@@ -3,10 +3,8 @@ package tui
 import (
 	"bytes"
 	"context"
-	"encoding/json"
 	"errors"
 	"fmt"
-	"io"
 	"path/filepath"
 	"runtime"
 	"strconv"
@@ -139,34 +137,42 @@ func fitDesign(ctx context.Context, d *design.Design) (*budget.Fit, *budget.Rech
 	return fit, rc, nil
 }
 
-// pointTable builds the payment table of a point-forecast design.
-func pointTable(ctx context.Context, d *design.Design) (*gpoint.Table, error) {
+// pointTable builds the payment table of a point-forecast design and
+// re-checks it (generator/point, exact on the rounded table).
+func pointTable(ctx context.Context, d *design.Design) (*gpoint.Table, *gpoint.Recheck, error) {
 	c := compileDesign(d)
 	if c.err != nil {
-		return nil, c.err
+		return nil, nil, c.err
 	}
 	b := d.Budget
 	if b.MeanPay != nil {
-		return nil, errors.New("point-forecast tables are fitted to a floor and a cap, not a mean pay")
+		return nil, nil, errors.New("point-forecast tables are fitted to a floor and a cap, not a mean pay")
 	}
 	if !(b.Cap > b.Floor) {
-		return nil, errors.New("set a cap above the floor to see the payment table")
+		return nil, nil, errors.New("set a cap above the floor to see the payment table")
 	}
 	t, err := c.point.BuildTable(ctx, gpoint.TableSpec{Floor: b.Floor, Cap: b.Cap, Step: b.Step, Unit: b.Unit, Rounding: b.Rounding})
 	if errors.Is(err, gpoint.ErrUnbounded) {
-		return nil, fmt.Errorf("%v; narrow the interval so the effort stays finite", err)
+		return nil, nil, fmt.Errorf("%v; narrow the interval so the effort stays finite", err)
 	}
-	return t, err
+	if err != nil {
+		return nil, nil, err
+	}
+	rc, err := t.Recheck(ctx)
+	if err != nil {
+		return nil, nil, err
+	}
+	return t, rc, nil
 }
 
 // budgetFitter is the default Fitter.
 func budgetFitter(ctx context.Context, d *design.Design) (*TableView, error) {
 	if d.Mode == design.ModePoint {
-		t, err := pointTable(ctx, d)
+		t, rc, err := pointTable(ctx, d)
 		if err != nil {
 			return nil, err
 		}
-		tv := &TableView{NoRecheck: "point tables: no menu re-check (that is for rules over outcomes)", Notes: t.Notes}
+		tv := &TableView{Passed: rc.Passed, MinMargin: rc.MinMargin, Notes: append([]string{"re-check: " + rc.Verdict(t)}, t.Notes...)}
 		tv.Header = []string{"report \\ outcome"}
 		for _, y := range t.Outcomes {
 			tv.Header = append(tv.Header, table.FormatNumber(y))
@@ -210,55 +216,43 @@ func budgetFitter(ctx context.Context, d *design.Design) (*TableView, error) {
 // tableExporter writes the fitted table with generator/table.
 type tableExporter struct{ version string }
 
-func (tableExporter) Formats(d *design.Design) []string {
-	if d.Mode == design.ModePoint {
-		return []string{"csv", "md", "json"}
-	}
-	return table.Formats()
-}
+// Formats are every format of generator/table, for point tables too.
+func (tableExporter) Formats(d *design.Design) []string { return table.Formats() }
 
-func (te tableExporter) Export(ctx context.Context, d *design.Design, format, path string, overwrite bool) ([]string, error) {
+func (te tableExporter) Export(ctx context.Context, d *design.Design, req ExportRequest) ([]string, error) {
+	date := time.Now().UTC().Format("2006-01-02")
+	var tb *table.Table
 	if d.Mode == design.ModePoint {
-		return exportPoint(ctx, d, format, path, overwrite)
-	}
-	fit, rc, err := fitDesign(ctx, d)
-	if err != nil {
-		return nil, err
-	}
-	if !rc.Passed {
-		return nil, fmt.Errorf("the menu re-check failed (smallest margin %.4g), so nothing was written; change the budget or the step", rc.MinMargin)
-	}
-	tb := fit.Table(rc, budget.Info{Title: d.Title, Formula: d.Formula, Preset: d.Preset, Params: d.Params,
-		Version: te.version, Date: time.Now().UTC().Format("2006-01-02")})
-	var buf bytes.Buffer
-	if err := tb.Write(&buf, format); err != nil {
-		return nil, err
-	}
-	return writeExport(path, buf.Bytes(), overwrite)
-}
-
-func exportPoint(ctx context.Context, d *design.Design, format, path string, overwrite bool) ([]string, error) {
-	t, err := pointTable(ctx, d)
-	if err != nil {
-		return nil, err
-	}
-	write, ok := map[string]func(io.Writer) error{
-		"csv": t.WriteCSV,
-		"md":  t.WriteMarkdown,
-		"json": func(w io.Writer) error {
-			enc := json.NewEncoder(w)
-			enc.SetIndent("", "  ")
-			return enc.Encode(t)
-		},
-	}[format]
-	if !ok {
-		return nil, fmt.Errorf("point-forecast tables are written as csv, md or json, not %s", format)
+		t, rc, err := pointTable(ctx, d)
+		if err != nil {
+			return nil, err
+		}
+		if !rc.Passed {
+			return nil, refused(rc.MinMargin)
+		}
+		tb = t.Export(rc, gpoint.Info{Title: d.Title, Preset: d.Preset, Params: d.Params, Version: te.version, Date: date})
+	} else {
+		fit, rc, err := fitDesign(ctx, d)
+		if err != nil {
+			return nil, err
+		}
+		if !rc.Passed {
+			return nil, refused(rc.MinMargin)
+		}
+		tb = fit.Table(rc, budget.Info{Title: d.Title, Formula: d.Formula, Preset: d.Preset, Params: d.Params,
+			Version: te.version, Date: date})
 	}
 	var buf bytes.Buffer
-	if err := write(&buf); err != nil {
+	if err := tb.Write(&buf, req.Format); err != nil {
 		return nil, err
 	}
-	return writeExport(path, buf.Bytes(), overwrite)
+	return writeExport(req.Path, buf.Bytes(), req.Overwrite)
+}
+
+// refused is the error of an export whose table failed its re-check: as
+// `scorewright table` does without --force, nothing is written.
+func refused(margin float64) error {
+	return fmt.Errorf("the menu re-check failed (smallest margin %.4g), so nothing was written; change the budget or the step", margin)
 }
 
 // writeExport writes an export atomically and returns its absolute path.

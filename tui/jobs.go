@@ -61,9 +61,17 @@ type Exporter interface {
 	// Formats lists the formats Export takes for d, the first being the
 	// default.
 	Formats(d *design.Design) []string
-	// Export writes the table of d in format to path, replacing an existing
-	// file only when overwrite is true, and returns the files written.
-	Export(ctx context.Context, d *design.Design, format, path string, overwrite bool) ([]string, error)
+	// Export writes the table of d as req asks and returns the files
+	// written.
+	Export(ctx context.Context, d *design.Design, req ExportRequest) ([]string, error)
+}
+
+// ExportRequest is what the export dialog asks for.
+type ExportRequest struct {
+	// Format is one of Exporter.Formats; Path the file to write.
+	Format, Path string
+	// Overwrite allows replacing an existing file.
+	Overwrite bool
 }
 
 // Messages answering the workbench's background work. Each carries the

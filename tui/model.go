@@ -673,7 +673,7 @@ func (m *Model) submitDialog() tea.Cmd {
 	default:
 		ex, ctx := m.set.Exporter, m.ctx
 		return func() tea.Msg {
-			files, err := ex.Export(ctx, d, format, path, overwrite)
+			files, err := ex.Export(ctx, d, ExportRequest{Format: format, Path: path, Overwrite: overwrite})
 			return exportedMsg{files: files, err: err}
 		}
 	}

@@ -1,6 +1,7 @@
 package tui
 
 import (
+	"errors"
 	"math"
 	"os"
 	"path/filepath"
@@ -12,6 +13,8 @@ import (
 	"github.com/charmbracelet/x/exp/golden"
 
 	"scorewright/generator/design"
+	"scorewright/generator/safefile"
+	"scorewright/generator/table"
 	"scorewright/presets"
 )
 
@@ -448,27 +451,60 @@ func TestExportDialog(t *testing.T) {
 	}
 }
 
-// A point design exports its own table.
+// A point design exports its own table in every format, with the
+// re-check in the budget pane; a table that fails the re-check is refused
+// as a table over outcomes is.
 func TestPointExport(t *testing.T) {
 	dir := t.TempDir()
 	d := &design.Design{Version: 1, Title: "milk yield", Mode: design.ModePoint, Formula: "-x^2", Interval: []float64{0, 40},
 		Budget: design.Budget{Floor: 0, Cap: 20, Step: 10}}
 	ex := defaultExporter("test")
-	if got := ex.Formats(d); strings.Join(got, ",") != "csv,md,json" {
+	if got := ex.Formats(d); strings.Join(got, ",") != strings.Join(table.Formats(), ",") {
 		t.Fatalf("formats %v", got)
 	}
-	path := filepath.Join(dir, "milk.csv")
-	files, err := ex.Export(t.Context(), d, "csv", path, false)
-	if err != nil || len(files) != 1 {
-		t.Fatalf("export: %v %v", files, err)
+	for _, f := range ex.Formats(d) {
+		path := filepath.Join(dir, "milk."+f)
+		files, err := ex.Export(t.Context(), d, ExportRequest{Format: f, Path: path})
+		if err != nil || len(files) != 1 {
+			t.Fatalf("%s export: %v %v", f, files, err)
+		}
+		b, _ := os.ReadFile(path)
+		if len(b) == 0 {
+			t.Fatalf("%s export is empty", f)
+		}
+		if f == "csv" {
+			// Five reports 0, 10, ..., 40; a perfect forecast is paid the cap.
+			if !strings.Contains(string(b), "20") || strings.Count(string(b), "\n") < 5 || !strings.Contains(strings.ToLower(string(b)), "counsel") {
+				t.Fatalf("csv:\n%s", b)
+			}
+		}
 	}
-	b, _ := os.ReadFile(path)
-	// Five reports 0, 10, ..., 40; a perfect forecast is paid the cap.
-	if !strings.Contains(string(b), "20") || strings.Count(string(b), "\n") < 5 {
-		t.Fatalf("csv:\n%s", b)
+	if _, err := ex.Export(t.Context(), d, ExportRequest{Format: "csv", Path: filepath.Join(dir, "milk.csv")}); !errors.Is(err, safefile.ErrExists) {
+		t.Fatalf("an existing file was replaced without being asked: %v", err)
 	}
-	if _, err := ex.Export(t.Context(), d, "csv", path, false); err == nil {
-		t.Fatal("an existing file was replaced without being asked")
+
+	// Squared error on [0, 10], cap 100: pay = 100 - (y - x)^2, rounded
+	// to 25; a forecaster sure of y = 5 gets 100 from x = 5 and from
+	// x = 4 (99 rounds to 100), a tie (derived by hand; the same case as
+	// the table command's test), so the re-check fails.
+	bad := &design.Design{Version: 1, Title: "milk yield", Mode: design.ModePoint, Formula: "-x^2", Interval: []float64{0, 10},
+		Budget: design.Budget{Floor: 0, Cap: 100, Step: 1, Unit: 25}}
+	path := filepath.Join(dir, "refused.csv")
+	if _, err := ex.Export(t.Context(), bad, ExportRequest{Format: "csv", Path: path}); err == nil || !strings.Contains(err.Error(), "re-check failed") {
+		t.Fatalf("a failing point table was exported: %v", err)
+	}
+	if _, err := os.Stat(path); !os.IsNotExist(err) {
+		t.Fatalf("a refused table was written: %v", err)
+	}
+	m := testModel(t, bad, Settings{})
+	start(t, m, 120, 40)
+	if v := m.View(); !strings.Contains(v, "menu re-check FAILED") || strings.Contains(v, "no menu re-check") {
+		t.Fatalf("budget pane does not show the failed re-check:\n%s", v)
+	}
+	good := testModel(t, d, Settings{})
+	start(t, good, 120, 40)
+	if v := good.View(); !strings.Contains(v, "menu re-check passed, smallest margin") {
+		t.Fatalf("budget pane does not show the passed re-check:\n%s", v)
 	}
 }
 
