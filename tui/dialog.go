@@ -9,6 +9,8 @@ import (
 	"github.com/charmbracelet/bubbles/textinput"
 	tea "github.com/charmbracelet/bubbletea"
 	"github.com/charmbracelet/lipgloss"
+
+	"scorewright/generator/lottery"
 )
 
 // dialogKind says what a file dialog is for.
@@ -43,6 +45,9 @@ type fileDialog struct {
 	overwrite bool
 	msg       string
 	busy      bool
+	// lottery says the export pays a chance of winning a prize instead of
+	// money (generator/lottery); only export dialogs offer it.
+	lottery bool
 }
 
 func newFileDialog(st Styles, keys KeyMap, kind dialogKind, path string, formats []string) fileDialog {
@@ -114,6 +119,9 @@ func (d fileDialog) Update(km tea.KeyMsg) (fileDialog, tea.Cmd, dialogAction) {
 		}
 		d.busy, d.overwrite, d.msg = true, false, "working…"
 		return d, nil, actSubmit
+	case d.kind == dialogExport && key.Matches(km, d.keys.Lottery):
+		d.lottery = !d.lottery
+		return d, nil, actNone
 	case len(d.formats) > 1 && (km.Type == tea.KeyTab || km.Type == tea.KeyShiftTab):
 		step := 1
 		if km.Type == tea.KeyShiftTab {
@@ -156,6 +164,18 @@ func (d fileDialog) View(width int) string {
 			lines = append(lines, st.Dim.Render("       tab / shift+tab: change the format"))
 		}
 	}
+	if d.kind == dialogExport {
+		money, lot := " money ", " lottery "
+		if d.lottery {
+			lot = st.Selected.Render("[lottery]")
+		} else {
+			money = st.Selected.Render("[money]")
+		}
+		lines = append(lines, "pay    "+money+lot, st.Dim.Render("       ctrl+l: money, or a chance of winning one prize"))
+		if d.lottery {
+			lines = append(lines, st.Error.Render("Caution: "+lottery.Caution))
+		}
+	}
 	lines = append(lines, d.path.View(), "")
 	if d.msg != "" {
 		ms := st.Dim
@@ -169,5 +189,9 @@ func (d fileDialog) View(width int) string {
 		lines = append(lines, st.Dim.Render("Exports say: the tool checks mathematics, not law."))
 	}
 	w := min(width-4, 60)
+	for i, l := range lines {
+		// Long lines wrap inside the box (the frame's padding is 2).
+		lines[i] = lipgloss.NewStyle().Width(w - 2).Render(l)
+	}
 	return st.Dialog.Width(w).Render(lipgloss.JoinVertical(lipgloss.Left, lines...))
 }

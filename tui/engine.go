@@ -5,6 +5,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"math"
 	"path/filepath"
 	"runtime"
 	"strconv"
@@ -12,6 +13,7 @@ import (
 
 	"scorewright/generator/budget"
 	"scorewright/generator/design"
+	"scorewright/generator/lottery"
 	"scorewright/generator/num"
 	"scorewright/generator/payout"
 	gpoint "scorewright/generator/point"
@@ -222,6 +224,7 @@ func (tableExporter) Formats(d *design.Design) []string { return table.Formats()
 func (te tableExporter) Export(ctx context.Context, d *design.Design, req ExportRequest) ([]string, error) {
 	date := time.Now().UTC().Format("2006-01-02")
 	var tb *table.Table
+	var lo, hi float64 // every payment lies in [lo, hi]
 	if d.Mode == design.ModePoint {
 		t, rc, err := pointTable(ctx, d)
 		if err != nil {
@@ -231,6 +234,7 @@ func (te tableExporter) Export(ctx context.Context, d *design.Design, req Export
 			return nil, refused(rc.MinMargin)
 		}
 		tb = t.Export(rc, gpoint.Info{Title: d.Title, Preset: d.Preset, Params: d.Params, Version: te.version, Date: date})
+		lo, hi = math.Min(t.Floor, t.MinPay), math.Max(t.Cap, t.MaxPay)
 	} else {
 		fit, rc, err := fitDesign(ctx, d)
 		if err != nil {
@@ -241,6 +245,13 @@ func (te tableExporter) Export(ctx context.Context, d *design.Design, req Export
 		}
 		tb = fit.Table(rc, budget.Info{Title: d.Title, Formula: d.Formula, Preset: d.Preset, Params: d.Params,
 			Version: te.version, Date: date})
+		lo, hi = math.Min(fit.Floor, fit.MinPay), math.Max(fit.Cap, fit.MaxPay)
+	}
+	if req.Lottery {
+		// The same bounds as `scorewright table --lottery`.
+		if err := lottery.Convert(tb, lo, hi); err != nil {
+			return nil, fmt.Errorf("lottery: %w", err)
+		}
 	}
 	var buf bytes.Buffer
 	if err := tb.Write(&buf, req.Format); err != nil {

@@ -48,7 +48,7 @@ func helpText(st Styles, km KeyMap, width int) string {
 			"↑ ↓ pgup pgdn scroll, esc or ctrl+b close;",
 			"an edit reruns it after the debounce and",
 			"cancels the run for the old design"),
-		section("Dialogs", row(k.Field), row(k.Confirm), row(k.Cancel), row(k.Yes), row(k.No)),
+		section("Dialogs", row(k.Field), row(k.Lottery), row(k.Confirm), row(k.Cancel), row(k.Yes), row(k.No)),
 	}
 	l := strings.Join(left, "\n\n")
 	r := strings.Join(right, "\n\n")

@@ -72,6 +72,9 @@ type ExportRequest struct {
 	Format, Path string
 	// Overwrite allows replacing an existing file.
 	Overwrite bool
+	// Lottery pays a chance of winning one prize instead of money
+	// (generator/lottery, as `scorewright table --lottery`).
+	Lottery bool
 }
 
 // Messages answering the workbench's background work. Each carries the

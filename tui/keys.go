@@ -21,7 +21,7 @@ type KeyMap struct {
 	// Backtest view.
 	History, StopRun key.Binding
 	// Dialogs.
-	Confirm, Cancel, Yes, No, Field key.Binding
+	Confirm, Cancel, Yes, No, Field, Lottery key.Binding
 }
 
 // DefaultKeyMap returns the workbench's key map.
@@ -72,6 +72,7 @@ func DefaultKeyMap() KeyMap {
 		Yes:     b([]string{"y"}, "y", "yes, replace the file"),
 		No:      b([]string{"n"}, "n", "no, keep it"),
 		Field:   b([]string{"tab", "shift+tab"}, "tab", "change the export format"),
+		Lottery: b([]string{"ctrl+l"}, "ctrl+l", "export: pay money or a chance of a prize"),
 	}
 }
 
@@ -90,6 +91,6 @@ func (k KeyMap) groups() []helpGroup {
 		{"Checks", []key.Binding{k.Rerun}},
 		{"Budget", []key.Binding{k.Up, k.Down, k.Less, k.More, k.LessFine, k.MoreFine, k.Edit, k.PageUp, k.PageDown}},
 		{"Backtest", []key.Binding{k.History, k.StopRun, k.Up, k.Down, k.PageUp, k.PageDown, k.Leave}},
-		{"Dialogs", []key.Binding{k.Field, k.Confirm, k.Cancel, k.Yes, k.No}},
+		{"Dialogs", []key.Binding{k.Field, k.Lottery, k.Confirm, k.Cancel, k.Yes, k.No}},
 	}
 }

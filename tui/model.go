@@ -649,7 +649,7 @@ func (m *Model) openDialog(kind dialogKind) {
 // submitDialog returns the command doing what the dialog asked.
 func (m *Model) submitDialog() tea.Cmd {
 	dl := m.dialog
-	path, overwrite, format := dl.Path(), dl.overwrite, dl.Format()
+	path, overwrite, format, lot := dl.Path(), dl.overwrite, dl.Format(), dl.lottery
 	if !filepath.IsAbs(path) && m.set.Dir != "" && !strings.HasPrefix(path, m.set.Dir) {
 		path = filepath.Join(m.set.Dir, path)
 	}
@@ -673,7 +673,7 @@ func (m *Model) submitDialog() tea.Cmd {
 	default:
 		ex, ctx := m.set.Exporter, m.ctx
 		return func() tea.Msg {
-			files, err := ex.Export(ctx, d, ExportRequest{Format: format, Path: path, Overwrite: overwrite})
+			files, err := ex.Export(ctx, d, ExportRequest{Format: format, Path: path, Overwrite: overwrite, Lottery: lot})
 			return exportedMsg{files: files, err: err}
 		}
 	}

@@ -13,6 +13,7 @@ import (
 	"github.com/charmbracelet/x/exp/golden"
 
 	"scorewright/generator/design"
+	"scorewright/generator/lottery"
 	"scorewright/generator/safefile"
 	"scorewright/generator/table"
 	"scorewright/presets"
@@ -600,4 +601,51 @@ func TestGoldenLinearAudit80x24(t *testing.T) {
 		t.Fatalf("verdict: %+v", r)
 	}
 	golden.RequireEqual(t, []byte(m.View()))
+}
+
+// The export dialog's lottery option writes chances of one prize, as
+// `scorewright table --lottery` does, and says the gambling caution in
+// the dialog and in the file. Frost demo: floor 0, cap 40, so a cell's
+// chance is pay/40 (generator/lottery) and the prize is 40.
+func TestLotteryExport(t *testing.T) {
+	dir := t.TempDir()
+	m := testModel(t, nil, Settings{Dir: dir, Version: "test"})
+	start(t, m, 80, 24)
+	press(t, m, tea_ctrlX(), tea.KeyMsg{Type: tea.KeyCtrlL})
+	if m.dialog == nil || !m.dialog.lottery {
+		t.Fatal("ctrl+l did not choose the lottery")
+	}
+	if v := m.View(); !strings.Contains(v, "[lottery]") || !strings.Contains(v, "gambling") {
+		t.Fatalf("the dialog does not show the lottery and its caution:\n%s", v)
+	}
+	golden.RequireEqual(t, []byte(m.View()))
+	press(t, m, keyEnter)
+	b, err := os.ReadFile(filepath.Join(dir, "orchard-co-operative-frost-night-forecasts.csv"))
+	if err != nil {
+		t.Fatalf("no export: %v (status %q)", err, m.Status())
+	}
+	text := string(b)
+	if !strings.Contains(text, lottery.Caution) || !strings.Contains(strings.ToLower(text), "counsel") {
+		t.Errorf("the file lacks the lottery or the general caution:\n%s", text)
+	}
+	// The report (0.5, 0.5) pays 30 in money when either outcome happens
+	// (40 - 20·0.5, quadratic effort 0.5): a chance of 30/40 = 0.75.
+	if !strings.Contains(text, "\n0.5,0.5,0.75,0.75\n") || !strings.Contains(text, "chance if frost") {
+		t.Errorf("no chance 0.75 for the even report:\n%s", text)
+	}
+	// A point table too: squared error on [0, 40], floor 0, cap 20.
+	pd := &design.Design{Version: 1, Title: "milk yield", Mode: design.ModePoint, Formula: "-x^2", Interval: []float64{0, 40},
+		Budget: design.Budget{Floor: 0, Cap: 20, Step: 10}}
+	pp := filepath.Join(dir, "milk-lottery.md")
+	if _, err := defaultExporter("test").Export(t.Context(), pd, ExportRequest{Format: "md", Path: pp, Lottery: true}); err != nil {
+		t.Fatal(err)
+	}
+	if b, _ := os.ReadFile(pp); !strings.Contains(string(b), lottery.Caution) || !strings.Contains(string(b), "chance") {
+		t.Errorf("point lottery export:\n%s", b)
+	}
+	// Money again: ctrl+l toggles back.
+	press(t, m, tea_ctrlX(), tea.KeyMsg{Type: tea.KeyCtrlL}, tea.KeyMsg{Type: tea.KeyCtrlL})
+	if m.dialog.lottery {
+		t.Fatal("second ctrl+l did not go back to money")
+	}
 }
