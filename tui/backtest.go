@@ -130,6 +130,11 @@ func replay(ctx context.Context, d *design.Design, h *history.Reader, path strin
 	if m := res.All[0]; m.OffMenu > 0 {
 		out.Notes = append(out.Notes, fmt.Sprintf("%d of %d forecasts are off the report menu; they are paid by the formula", m.OffMenu, m.Count))
 	}
+	if mp := d.Budget.MeanPay; mp != nil {
+		n := res.All[0].Count
+		out.Notes = append(out.Notes, fmt.Sprintf("the budget aims at %s per forecast from a truthful forecaster at its reference belief, %s for %d forecasts; paid %s",
+			out.cash(*mp), out.cash(*mp*float64(n)), n, out.cash(res.All[0].Total)))
+	}
 	var thin []string
 	for _, f := range res.Forecasters {
 		if len(f.Bins) > 0 && f.Count < fewPerBin*len(f.Bins) {

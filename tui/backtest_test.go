@@ -179,6 +179,12 @@ func TestBacktestFollowsTheDesign(t *testing.T) {
 	if after == before || !strings.Contains(after.Budget, "[0, 41]") || m.btGen != m.gen {
 		t.Fatalf("after the edit: %+v (gen %d, run for %d)", after, m.gen, m.btGen)
 	}
+	// A mean-pay budget: the view says what it aimed at.
+	press(t, m, keyDown, keyRight) // Mean: none → 31 (three quarters of 0..41)
+	r := m.Backtest()
+	if r == nil || !strings.Contains(strings.Join(r.Notes, " "), "aims at 31.0 per forecast") {
+		t.Fatalf("mean-pay backtest notes: %+v", r)
+	}
 }
 
 // x stops a run; its late answers are dropped.

@@ -33,6 +33,20 @@ func budgetFields() []budgetField {
 			get: func(b *design.Budget) float64 { return b.Floor }, set: func(b *design.Budget, v float64) { b.Floor = v }},
 		{label: "Cap", help: "largest payment", step: 1,
 			get: func(b *design.Budget) float64 { return b.Cap }, set: func(b *design.Budget, v float64) { b.Cap = v }},
+		{label: "Mean", help: "mean pay instead of the cap", step: 1,
+			get: func(b *design.Budget) float64 {
+				if b.MeanPay == nil {
+					return 0
+				}
+				return *b.MeanPay
+			},
+			set: func(b *design.Budget, v float64) {
+				if v <= 0 {
+					b.MeanPay = nil
+					return
+				}
+				b.MeanPay = &v
+			}},
 		{label: "Step", help: "report menu step", steps: []float64{0.01, 0.02, 0.025, 0.05, 0.1, 0.125, 0.2, 0.25, 0.5},
 			get: func(b *design.Budget) float64 { return b.Step }, set: func(b *design.Budget, v float64) { b.Step = v }},
 		{label: "Unit", help: "rounding unit (0: none)", steps: []float64{0, 0.01, 0.05, 0.1, 0.25, 0.5, 1, 5},
@@ -153,6 +167,15 @@ func (p BudgetPane) Update(msg tea.Msg, d *design.Design) (BudgetPane, tea.Cmd, 
 				s = -s
 			}
 			v = math.Max(0, math.Round((cur+s)/(d.Interval[1]-d.Interval[0])*100)*(d.Interval[1]-d.Interval[0])/100)
+		} else if f.label == "Mean" && d.Budget.MeanPay == nil {
+			if !up {
+				return p, nil, false
+			}
+			// From none: three quarters of the way from floor to cap, what
+			// the quadratic rule pays a uniform belief on a cap budget.
+			v = math.Round(d.Budget.Floor + 0.75*(d.Budget.Cap-d.Budget.Floor))
+		} else if f.label == "Mean" && !up && f.get(&d.Budget)-f.step <= d.Budget.Floor {
+			v = 0 // stepping below the floor clears the mean pay
 		} else if f.steps != nil {
 			v = nextStep(f.steps, cur, up)
 		} else {
@@ -176,6 +199,10 @@ func (p BudgetPane) Update(msg tea.Msg, d *design.Design) (BudgetPane, tea.Cmd, 
 
 // apply sets a field if the budget stays valid, saying why not otherwise.
 func (p *BudgetPane) apply(d *design.Design, f budgetField, v float64) bool {
+	if f.label == "Mean" && v > 0 && d.Mode == design.ModePoint {
+		p.note = "point-forecast tables are fitted to a floor and a cap; a mean pay is for rules over outcomes"
+		return false
+	}
 	trial := *d
 	f.set(&trial.Budget, v)
 	if err := trial.ValidateBudget(); err != nil {
@@ -266,10 +293,21 @@ func (p BudgetPane) View(d *design.Design) string {
 			m, ls = st.Selected.Render("› "), st.Selected
 		}
 		val := strconv.FormatFloat(f.get(&d.Budget), 'g', 6, 64)
+		help := f.help
+		switch {
+		case f.label == "Mean" && d.Mode == design.ModePoint:
+			val, help = "—", "point tables: floor and cap"
+		case f.label == "Mean" && d.Budget.MeanPay == nil:
+			val = "none"
+		case f.label == "Mean":
+			help = "truthful mean pay (0: none)"
+		case f.label == "Cap" && d.Budget.MeanPay != nil:
+			help = "not used while a mean pay is set"
+		}
 		if p.typing && i == p.sel {
 			val = p.ti.View()
 		}
-		lines = append(lines, m+ls.Render(fmt.Sprintf("%-6s", f.label))+" "+fmt.Sprintf("%-8s", val)+" "+st.Dim.Render(f.help))
+		lines = append(lines, m+ls.Render(fmt.Sprintf("%-6s", f.label))+" "+fmt.Sprintf("%-8s", val)+" "+st.Dim.Render(help))
 	}
 	iw := max(10, p.w-2)
 	if p.note != "" {

@@ -649,3 +649,58 @@ func TestLotteryExport(t *testing.T) {
 		t.Fatal("second ctrl+l did not go back to money")
 	}
 }
+
+// A mean-pay budget from the budget pane. Frost demo (quadratic effort
+// L(p, k) = 1 - 2p_k + sum p^2, floor 0): the largest menu effort is 2
+// (report (0, 1), frost) and H(uniform) = 0.5, so a mean pay M gives
+// B = M/1.5 and A = 2B (derived by hand from pay = A - B·L, A - B·2 = floor,
+// A - B·0.5 = M). M = 30 is the cap-40 table again; M = 31 pays 41.3 (41.33
+// rounded to 0.1) for (0, 1) when it stays clear.
+func TestMeanPayBudget(t *testing.T) {
+	m := testModel(t, nil, Settings{})
+	start(t, m, 120, 40)
+	m.setFocus(paneBudget)
+	press(t, m, keyDown, keyDown, keyRight)
+	d := m.Design()
+	if d.Budget.MeanPay == nil || *d.Budget.MeanPay != 30 {
+		t.Fatalf("mean pay %v", d.Budget.MeanPay)
+	}
+	row := func() []string {
+		t.Helper()
+		tv := m.budget.table
+		if tv == nil || m.budget.err != nil || len(tv.Rows) == 0 {
+			t.Fatalf("no table: %v", m.budget.err)
+		}
+		return tv.Rows[0]
+	}
+	if r := row(); strings.Join(r, " ") != "(0, 1) 0.0 40.0" || !m.budget.table.Passed {
+		t.Fatalf("mean 30: first row %q, passed %v", r, m.budget.table.Passed)
+	}
+	if v := m.View(); !strings.Contains(v, "not used while a mean pay is set") {
+		t.Fatalf("the cap's note is missing:\n%s", v)
+	}
+	press(t, m, keyRight)
+	if r := row(); strings.Join(r, " ") != "(0, 1) 0.0 41.3" {
+		t.Fatalf("mean 31: first row %q", r)
+	}
+	// Typing 0 goes back to the cap budget.
+	press(t, m, keyEnter)
+	m.budget.ti.SetValue("0")
+	press(t, m, keyEnter)
+	if d := m.Design(); d.Budget.MeanPay != nil {
+		t.Fatalf("mean pay still set: %v", *d.Budget.MeanPay)
+	}
+	if r := row(); strings.Join(r, " ") != "(0, 1) 0.0 40.0" {
+		t.Fatalf("cap again: first row %q", r)
+	}
+	// A point design refuses a mean pay.
+	pd := &design.Design{Version: 1, Title: "milk yield", Mode: design.ModePoint, Formula: "-x^2", Interval: []float64{0, 40},
+		Budget: design.Budget{Floor: 0, Cap: 20, Step: 10}}
+	pm := testModel(t, pd, Settings{})
+	start(t, pm, 120, 40)
+	pm.setFocus(paneBudget)
+	press(t, pm, keyDown, keyDown, keyRight)
+	if pm.Design().Budget.MeanPay != nil || !strings.Contains(pm.budget.note, "floor and a cap") {
+		t.Fatalf("point design took a mean pay; note %q", pm.budget.note)
+	}
+}
