@@ -41,7 +41,7 @@ type auditJSON struct {
 const auditCaution = "scorewright checks the mathematics, not the law: payment schemes (lottery-style payments especially) can be regulated; have the contract reviewed by qualified counsel"
 
 func runAudit(e *env, args []string) error {
-	fs := newFlags("audit", "")
+	fs := newFlags("audit")
 	outcomes := fs.String("outcomes", "", "outcome count or comma-separated labels")
 	src := fs.String("payout", "", "payout formula pay(p, y) in p, p1..pn, y, hit, hitc, p[y] (reward: more is better)")
 	ordered := fs.Bool("ordered", false, "outcomes are ordered (allows csum and hitc)")
