@@ -139,8 +139,8 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	}
 	label := func(k int) string { return fmt.Sprint(k + 1) }
 	bounded := boundedness(g, pays, s.Limit, label, "payment", -1)
-	rep.Grid.Scale = scaleOf(bounded)
-	s.Tolerance *= rep.Grid.Scale
+	rep.Grid.Scale, rep.Grid.Rounding = scaleOf(pays)
+	s.Tolerance = rep.Grid.Slack()
 
 	// The stream minimises effort, so it runs on -pay.
 	m := newMenu(n, G)
@@ -156,7 +156,7 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	for i := range honest {
 		honest[i] = m.phi(g.Point(i), i)
 	}
-	prop, _ := properness(g, m, honest, bs, s.Tolerance)
+	prop, _ := properness(g, m, honest, bs, s.Tolerance, rep.Grid.Scale)
 
 	rep.Beliefs = make([]BeliefGap, G)
 	for i, b := range bs {

@@ -107,12 +107,16 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 		return nil, err
 	}
 	bounded := boundedness(g, m, s.Limit, r.Label, "effort", 1)
+	rep.Grid.Scale, rep.Grid.Rounding = scaleOf(m)
 	m.seal()
-	rep.Grid.Scale = scaleOf(bounded)
 	affTol := s.Tolerance
-	s.Tolerance *= rep.Grid.Scale
+	s.Tolerance = rep.Grid.Slack()
 
-	conc, err := concavity(ctx, r, g, s, scorers, pr)
+	// Curvature does not see an added constant, so concavity is judged
+	// against the spread alone, without the rounding floor of the sums.
+	cs := s
+	cs.Tolerance = affTol * rep.Grid.Scale
+	conc, err := concavity(ctx, r, g, cs, scorers, pr)
 	if err != nil {
 		return nil, err
 	}
@@ -120,7 +124,7 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	if err != nil {
 		return nil, err
 	}
-	prop, nonneg := properness(g, m, h, bs, s.Tolerance)
+	prop, nonneg := properness(g, m, h, bs, s.Tolerance, rep.Grid.Scale)
 	if g.Sampled {
 		if err := searchReports(ctx, g, &prop, s, func(int) func(q, p []float64) float64 {
 			sc := r.NewScorer()
@@ -170,7 +174,7 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 
 // StrictFloor is the rounding floor strictness is judged against: an
 // honest report is the unique best when every other report is worse by
-// more than StrictFloor × (1 + |honest expected effort|). It is far below
+// more than StrictFloor × (Grid.Scale + |honest expected effort|). It is far below
 // the tolerance on purpose: near a vertex the closest grid report of a
 // strictly proper rule can be worse by only about K^-3.
 const StrictFloor = 1e-13
@@ -240,18 +244,27 @@ func markPart(c *CheckResult) {
 	}
 }
 
-// scaleOf is the size of a rule's values, max(1, largest finite
-// |value| over the grid reports), by which the tolerance is multiplied:
-// rounding error grows with the values, and a payout in millions must
-// not be called improper for a gap of 1e-9.
-func scaleOf(bounded CheckResult) float64 {
-	sc := 1.0
-	for _, w := range []float64{bounded.Interior.Worst, bounded.Boundary.Worst} {
-		if w > sc && !math.IsInf(w, 0) {
-			sc = w
+// scaleOf measures a menu of values (before seal) for the tolerance: the
+// spread of the finite values (largest minus smallest), and the rounding
+// floor 2·n·ε × the largest finite |value|. The spread, not the size,
+// is what an affine change pay = A - B·L multiplies, so a rule paid in
+// millionths and the same rule paid in millions get the same verdict; the
+// floor keeps values far from 0 (1e12 + small) from being judged finer
+// than they can be computed. A menu with no spread (a constant rule) has
+// scale 1, so that its slack is the plain tolerance.
+func scaleOf(m *menu) (scale, rounding float64) {
+	lo, hi, big := math.Inf(1), math.Inf(-1), 0.0
+	for _, v := range m.rows {
+		if v != v || math.IsInf(v, 0) {
+			continue
 		}
+		lo, hi, big = math.Min(lo, v), math.Max(hi, v), math.Max(big, math.Abs(v))
 	}
-	return sc
+	scale = hi - lo
+	if !(scale > 0) || math.IsInf(scale, 0) {
+		scale = 1
+	}
+	return scale, 2 * float64(m.n) * 0x1p-52 * big
 }
 
 // gridNotes warns about grids too coarse to say much.
@@ -477,7 +490,7 @@ func sharpenConcavity(c *CheckResult, r *bregman.Rule, boundary bool, cell float
 // properness reduces the stream: for each belief the honesty gap (honest
 // expected effort minus the best) and the margin (best other report minus
 // honest), and for non-negativity the smallest divergence m1 - H(q).
-func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T float64) (prop, nonneg CheckResult) {
+func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T, scale float64) (prop, nonneg CheckResult) {
 	var gapIn, gapBd, negIn, negBd part
 	marginMin := math.Inf(1)
 	var marginQ, marginP []float64
@@ -518,7 +531,7 @@ func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T float64) (pr
 		if margin < marginMin || marginQ == nil && oarg >= 0 {
 			marginMin, marginQ, marginP = margin, q, op
 		}
-		if !(margin > StrictFloor*(1+math.Abs(honest))) {
+		if !(margin > StrictFloor*(scale+math.Abs(honest))) {
 			if strict || margin < tieMargin {
 				tieMargin, tieQ, tieP = margin, q, op
 			}

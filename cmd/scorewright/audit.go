@@ -142,7 +142,7 @@ func printAudit(e *env, src string, labels []string, rep *verify.AuditReport) {
 	fmt.Fprintf(w, "payout:  %q over %d outcomes (reward: more is better)\n", src, len(labels))
 	printReport(w, &rep.Report)
 	fmt.Fprintln(w)
-	if rep.Gap.Max > rep.Grid.Tolerance*rep.Grid.Scale {
+	if rep.Gap.Max > rep.Grid.Slack() {
 		how := ""
 		if rep.Gap.Sharpened {
 			how = fmt.Sprintf(" (sharpened beyond the grid from %.6g)", rep.Gap.GridMax)
