@@ -66,3 +66,59 @@ func TestVerdictDoesNotDependOnUnits(t *testing.T) {
 		}
 	}
 }
+
+// TestUndefinedGeneratorIsNotConcave: sqrt(p - 0.3)·0 is NaN for p < 0.3
+// (NaN·0 stays NaN), so H = p(1-p) + sqrt(p - 0.3)·0 is undefined on
+// [0, 0.3). Its derivatives come out finite there (the structural zero
+// drops the sqrt term), which once let concavity pass and the divergence
+// check pass with a NaN "worst". Neither may pass where H is undefined.
+func TestUndefinedGeneratorIsNotConcave(t *testing.T) {
+	rep, err := CheckRule(context.Background(), rule(t, "p*(1-p) + sqrt(p - 0.3)*0", 2), Settings{Resolution: 100})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rep.Verdict != Improper {
+		t.Fatalf("verdict %s, want improper", rep.Verdict)
+	}
+	for _, c := range rep.Checks {
+		switch c.Name {
+		case NameConcavity, NameNonnegativity, NameProperness:
+			if c.Passed {
+				t.Errorf("%s passed (worst %g) on a generator undefined on [0, 0.3)", c.Name, c.Worst)
+			}
+			if c.Belief == nil || !(c.Belief[0] < 0.3) {
+				t.Errorf("%s witness %v, want a belief with p1 < 0.3", c.Name, c.Belief)
+			}
+		}
+	}
+}
+
+// TestUndefinedPayoutGapCoversDefinedBeliefs: sqrt(p[y] - 0.2) is NaN when
+// the outcome's reported probability is below 0.2, so the honest expected
+// pay is undefined at every belief with a coordinate below 0.2 (0·NaN is
+// NaN). At resolution 100 the beliefs with every coordinate at least 0.2
+// are the (i, j, k) >= 20 with i + j + k = 100: C(40 + 2, 2) = 861, so
+// 5151 - 861 = 4290 are undefined (counted by hand). The largest gap must
+// be a number over the defined ones, not +Inf or NaN.
+func TestUndefinedPayoutGapCoversDefinedBeliefs(t *testing.T) {
+	a, err := Audit(context.Background(), pay(t, "sqrt(p[y] - 0.2)", 3), nil, Settings{Resolution: 100})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if a.Verdict != Improper || a.Undefined != 4290 {
+		t.Fatalf("verdict %s, undefined %d; want improper, 4290", a.Verdict, a.Undefined)
+	}
+	if math.IsNaN(a.Gap.Max) || math.IsInf(a.Gap.Max, 0) || !(a.Gap.Max > 0) {
+		t.Errorf("largest gap %g, want a positive number", a.Gap.Max)
+	}
+	for _, v := range a.Gap.Belief {
+		if v < 0.2-1e-12 {
+			t.Errorf("gap belief %v has a coordinate below 0.2, where the payout is undefined", a.Gap.Belief)
+		}
+	}
+	for _, c := range a.Checks {
+		if c.Name == NameProperness && c.Passed {
+			t.Errorf("properness passed")
+		}
+	}
+}

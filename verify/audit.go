@@ -84,6 +84,10 @@ type AuditReport struct {
 	Fits []Identification
 	// Beliefs holds the finding at every grid belief, in grid order.
 	Beliefs []BeliefGap
+	// Undefined counts the grid beliefs where the payout is NaN at the
+	// honest report (their Gap is NaN); Gap is the largest over the rest,
+	// NaN when there is no rest.
+	Undefined int
 }
 
 // auditRefine caps how many improper beliefs get their best report
@@ -163,7 +167,11 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 		q := g.Point(i)
 		bg := BeliefGap{Belief: q, BestReport: q, Honest: -honest[i]}
 		// A gap within the tolerance is rounding: the honest report stands.
-		if gap := honest[i] - b.m1; b.arg >= 0 && gap > s.Tolerance && !math.IsInf(honest[i], 1) {
+		if m.bad[i] {
+			// The payout is undefined (NaN) at the honest report: there is
+			// no gap to speak of, and properness reports the belief.
+			bg.Gap, bg.Honest = math.NaN(), math.NaN()
+		} else if gap := honest[i] - b.m1; b.arg >= 0 && gap > s.Tolerance && !math.IsInf(honest[i], 1) {
 			bg.Gap, bg.BestReport = gap, g.Point(int(b.arg))
 		} else if math.IsInf(honest[i], 1) && b.arg >= 0 && !math.IsInf(b.m1, 1) {
 			bg.Gap, bg.BestReport = math.Inf(1), g.Point(int(b.arg))
@@ -183,9 +191,16 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	// The largest gap, from the per-belief table (which now includes the
 	// refinement), then sharpened jointly over belief and report.
 	for _, bg := range rep.Beliefs {
+		if bg.Gap != bg.Gap {
+			rep.Undefined++ // no gap where the payout is undefined
+			continue
+		}
 		if bg.Gap > rep.Gap.Max || rep.Gap.Belief == nil {
 			rep.Gap = Gap{Max: bg.Gap, Belief: bg.Belief, BestReport: bg.BestReport}
 		}
+	}
+	if rep.Gap.Belief == nil {
+		rep.Gap.Max = math.NaN()
 	}
 	if prop.Worst > rep.Gap.Max && prop.Sharpened {
 		rep.Gap = Gap{Max: prop.Worst, Belief: prop.Belief, BestReport: prop.Report}
@@ -201,7 +216,7 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 		}
 	}
 	rep.Gap.Belief, rep.Gap.BestReport = clone(rep.Gap.Belief), clone(rep.Gap.BestReport)
-	if rep.Gap.Max > s.Tolerance {
+	if rep.Gap.Max > s.Tolerance && prop.Worst == prop.Worst {
 		prop.Passed, prop.Strict = false, false
 		prop.Worst, prop.Belief, prop.Report = rep.Gap.Max, rep.Gap.Belief, rep.Gap.BestReport
 		prop.Sharpened, prop.GridWorst, prop.Status = rep.Gap.Sharpened, rep.Gap.GridMax, rep.Gap.Status

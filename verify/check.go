@@ -200,6 +200,9 @@ func concavityWitness(c CheckResult) string {
 	if c.Passed {
 		return ""
 	}
+	if math.IsInf(c.Worst, 1) {
+		return fmt.Sprintf("concavity fails for want of a curvature: the Hessian of H is not finite (or H is undefined) at the interior point %s", num.Format(c.Belief))
+	}
 	return joinNotes(fmt.Sprintf("H is not concave: the Hessian projected onto the simplex has eigenvalue %.6g > 0 at %s", c.Worst, num.Format(c.Belief)), sharpenedNote(c))
 }
 
@@ -207,6 +210,8 @@ func concavityWitness(c CheckResult) string {
 // "pay", better is "less" or "more".
 func propernessNote(c CheckResult, what, better string) string {
 	switch {
+	case !c.Passed && c.Worst != c.Worst:
+		return fmt.Sprintf("at belief %s the honest report's expected %s is undefined (NaN): the rule is not defined there, so it cannot be called proper", num.Format(c.Belief), what)
 	case !c.Passed:
 		return joinNotes(fmt.Sprintf("a forecaster with belief %s expects %.6g %s %s by reporting %s than by reporting honestly", num.Format(c.Belief), c.Worst, better, what, num.Format(c.Report)), sharpenedNote(c))
 	case c.Strict:
@@ -218,6 +223,9 @@ func propernessNote(c CheckResult, what, better string) string {
 func nonnegNote(c CheckResult) string {
 	if c.Passed {
 		return fmt.Sprintf("D(q, p) >= 0 over every grid pair (smallest %.6g)", c.Worst)
+	}
+	if c.Worst != c.Worst {
+		return fmt.Sprintf("D(q, p) is undefined (NaN) at belief %s: H or the efforts are not defined there", num.Format(c.Belief))
 	}
 	return joinNotes(fmt.Sprintf("D(q, p) = %.6g < 0 at belief %s, report %s", c.Worst, num.Format(c.Belief), num.Format(c.Report)), sharpenedNote(c))
 }
@@ -419,7 +427,13 @@ func newProjector(n int) *projector {
 // when the Hessian is not finite there.
 func (pj *projector) largest(sc *bregman.Scorer, p []float64) float64 {
 	n, m := pj.n, pj.n-1
-	sc.Hessian(pj.hess, p)
+	if h := sc.Hessian(pj.hess, p); h != h {
+		// H itself is undefined here: its derivatives can still come out
+		// finite (the machine skips terms multiplied by a structural zero,
+		// as in sqrt(p - 0.3)*0), but a curvature of nothing is no
+		// evidence of concavity.
+		return math.NaN()
+	}
 	for _, v := range pj.hess {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
 			return v
@@ -506,6 +520,12 @@ func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T, scale float
 		if math.IsInf(honest, 1) && math.IsInf(b.m1, 1) {
 			gap = 0
 		}
+		if m.bad[i] {
+			// The honest report's row is undefined (set to +Inf for the
+			// stream): its expected effort is NaN, not "infinitely worse".
+			// A NaN amount fails the comparisons below (NaN <= T is false).
+			gap = math.NaN()
+		}
 		var rp []float64
 		if b.arg >= 0 {
 			rp = g.Point(int(b.arg))
@@ -548,8 +568,8 @@ func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T, scale float
 		}
 	}
 	prop = CheckResult{Name: NameProperness}
-	prop.Interior = gapIn.result(!(gapIn.Worst > T))
-	prop.Boundary = gapBd.result(!(gapBd.Worst > T))
+	prop.Interior = gapIn.result(gapIn.Worst <= T)
+	prop.Boundary = gapBd.result(gapBd.Worst <= T)
 	prop.Passed = prop.Interior.Passed && prop.Boundary.Passed
 	pickWorst(&prop, gapIn, gapBd)
 	prop.Margin, prop.MarginBelief, prop.MarginReport = marginMin, clone(marginQ), clone(marginP)
@@ -558,8 +578,8 @@ func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T, scale float
 		prop.Margin, prop.MarginBelief, prop.MarginReport = tieMargin, clone(tieQ), clone(tieP)
 	}
 	nonneg = CheckResult{Name: NameNonnegativity}
-	nonneg.Interior = flip(negIn.result(!(negIn.Worst > T)))
-	nonneg.Boundary = flip(negBd.result(!(negBd.Worst > T)))
+	nonneg.Interior = flip(negIn.result(negIn.Worst <= T))
+	nonneg.Boundary = flip(negBd.result(negBd.Worst <= T))
 	nonneg.Passed = nonneg.Interior.Passed && nonneg.Boundary.Passed
 	pickWorst(&nonneg, negIn, negBd)
 	nonneg.Worst = -nonneg.Worst
