@@ -3,6 +3,7 @@ package verify
 import (
 	"context"
 	"math"
+	"strings"
 	"testing"
 )
 
@@ -119,6 +120,62 @@ func TestUndefinedPayoutGapCoversDefinedBeliefs(t *testing.T) {
 	for _, c := range a.Checks {
 		if c.Name == NameProperness && c.Passed {
 			t.Errorf("properness passed")
+		}
+	}
+}
+
+// TestNonConcavityBetweenGridPoints: generators concave except in a region
+// narrower than a grid step, placed so that every grid point misses it.
+// The grid checks alone called these strictly proper; the random interior
+// points of the concavity check must find the region, and sharpening must
+// land in it with the curvature derived by hand.
+func TestNonConcavityBetweenGridPoints(t *testing.T) {
+	cases := []struct {
+		src      string
+		n, k     int
+		peak     float64 // largest projected eigenvalue
+		inRegion func([]float64) bool
+	}{
+		// n = 2, K = 1000: h = p(1-p) + a·exp(-(x/s)²), x = p - 0.5005
+		// (midway between grid points), a = 1e-6, s = 1e-4. With u = x²/s²,
+		// h'' = -2 + (a/s²)(4u - 2)e^(-u), largest at u = 3/2:
+		// -2 + 100·4e^(-1.5) = 87.25; along the unit tangent (1, -1)/√2 the
+		// curvature is h''/2 = 43.63, at p = 0.5005 - s√1.5 = 0.500378 (or
+		// 0.500622). At the grid points (|x| >= 5s) the bump adds < 1e-9.
+		{"p*(1-p) + 1e-6*exp(-((p - 0.5005)/1e-4)^2)", 2, 1000, 43.63,
+			func(q []float64) bool { return math.Abs(math.Abs(q[0]-0.5005)-1.2247e-4) < 2e-5 }},
+		// A thin band in the interior: H = 1 - Σp² - A·b(p1), b = u³,
+		// u = max(0, w² - (p1 - c)²), c = 0.335, w = 0.002, A = 1e12; b is
+		// zero (with its first two derivatives) off the band, which lies
+		// between the grid lines p1 = 0.33 and 0.34 (K = 100) or 1/3 and
+		// 11/30 (K = 30). -b'' = 6u² - 24u·t² (t = p1 - c) is largest at
+		// t = 0: 6w⁴, so the Hessian is -2I + 6Aw⁴ e1e1ᵀ = -2I + 96 e1e1ᵀ,
+		// and projected onto {Σv = 0} (where |proj e1|² = (n-1)/n) its
+		// largest eigenvalue is -2 + 96(n-1)/n: 62 for n = 3, 70 for n = 4.
+		{"1 - sum(p^2) - 1e12*max(0, 0.002^2 - (p1 - 0.335)^2)^3", 3, 100, 62,
+			func(q []float64) bool { return math.Abs(q[0]-0.335) < 0.002 }},
+		{"1 - sum(p^2) - 1e12*max(0, 0.002^2 - (p1 - 0.335)^2)^3", 4, 30, 70,
+			func(q []float64) bool { return math.Abs(q[0]-0.335) < 0.002 }},
+	}
+	for _, c := range cases {
+		rep, err := CheckRule(context.Background(), rule(t, c.src, c.n), Settings{Resolution: c.k})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if rep.Verdict != Improper {
+			t.Errorf("n=%d %q: verdict %s, want improper", c.n, c.src, rep.Verdict)
+			continue
+		}
+		conc := rep.Checks[0]
+		if conc.Name != NameConcavity || conc.Passed || !c.inRegion(conc.Belief) {
+			t.Errorf("n=%d: concavity passed=%v, witness %v outside the region", c.n, conc.Passed, conc.Belief)
+		}
+		// Sharpening climbs to the peak; 1 % covers where it stops.
+		if math.Abs(conc.Worst/c.peak-1) > 0.01 {
+			t.Errorf("n=%d: eigenvalue %g, want %g (derived by hand)", c.n, conc.Worst, c.peak)
+		}
+		if !strings.Contains(conc.Note, "between them") {
+			t.Errorf("n=%d: the note does not say the violation lies between the grid points: %s", c.n, conc.Note)
 		}
 	}
 }
