@@ -179,3 +179,58 @@ func TestNonConcavityBetweenGridPoints(t *testing.T) {
 		}
 	}
 }
+
+// TestKinksAndJumps: the Hessian of a piecewise formula is that of one
+// piece, so a convex kink or an upward jump passed the curvature test
+// (the pair checks still failed properness, but the concavity check said
+// "passed"). The midpoint test H((a+b)/2) >= (H(a) + H(b))/2 must fail
+// them, and leave concave kinks alone.
+func TestKinksAndJumps(t *testing.T) {
+	cases := []struct {
+		src     string
+		n       int
+		concave bool
+		// near, when set, says whether the witness lies where it should.
+		near func([]float64) bool
+	}{
+		// max(p(1-p), 0.2) has convex kinks where p(1-p) = 0.2, i.e.
+		// p = (1 ± √0.2)/2 = 0.27639 and 0.72361 (derived by hand).
+		{"max(p*(1-p), 0.2)", 2, false, func(q []float64) bool {
+			return math.Abs(q[0]-0.27639) < 0.005 || math.Abs(q[0]-0.72361) < 0.005
+		}},
+		// A convex kink of slope change 0.02 at 0.5005, between grid
+		// points. On the segment [c - ℓ/2, c + ℓ/2] the term 0.01|p - c|
+		// puts the midpoint 0.01·ℓ/2 below the chord, while p(1-p) puts it
+		// (ℓ/2)² above: a deficit 0.005ℓ - ℓ²/4 > 0 for ℓ < 0.02, so short
+		// segments across the kink see it (derived by hand).
+		{"p*(1-p) + 0.01*abs(p - 0.5005)", 2, false, func(q []float64) bool { return math.Abs(q[0]-0.5005) < 0.005 }},
+		// An upward jump of 0.1 at p = 1/2.
+		{"if(p < 0.5, p*(1-p), p*(1-p) + 0.1)", 2, false, func(q []float64) bool { return math.Abs(q[0]-0.5) < 0.005 }},
+		// |p1 - p2| is convex (a norm), kinked on p1 = p2.
+		{"abs(p1 - p2)", 3, false, nil},
+		// Concave kinks: minima of affine or concave pieces.
+		{"min(p*(1-p), 0.2)", 2, true, nil},
+		{"-abs(p1 - p2)", 3, true, nil},
+		{"min(p1, p2, p3)", 3, true, nil},
+	}
+	for _, c := range cases {
+		rep, err := CheckRule(context.Background(), rule(t, c.src, c.n), Settings{Resolution: DefaultResolution(c.n)})
+		if err != nil {
+			t.Fatal(err)
+		}
+		conc := rep.Check(NameConcavity)
+		if conc.Passed != c.concave {
+			t.Errorf("%q: concavity passed=%v, want %v (%s)", c.src, conc.Passed, c.concave, conc.Note)
+			continue
+		}
+		if c.concave && rep.Verdict != Proper {
+			t.Errorf("%q: verdict %s, want proper (concave, with flat directions)", c.src, rep.Verdict)
+		}
+		if !c.concave && rep.Verdict != Improper {
+			t.Errorf("%q: verdict %s, want improper", c.src, rep.Verdict)
+		}
+		if c.near != nil && !c.near(conc.Belief) {
+			t.Errorf("%q: witness %v not at the kink", c.src, conc.Belief)
+		}
+	}
+}
