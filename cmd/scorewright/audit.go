@@ -76,6 +76,12 @@ func runAudit(e *env, args []string) error {
 		if len(w) != n {
 			return usagef("--weights has %d values for %d outcomes", len(w), n)
 		}
+		// The same rule as a design's weights: a zero, negative or NaN
+		// weight is an input error, not a rule to audit.
+		d := design.Design{Version: design.SchemaVersion, Mode: design.ModePayout, Labels: labels, Formula: *src, Weights: w}
+		if err := d.Validate(); err != nil {
+			return usagef("--%v", err)
+		}
 	}
 	var ps map[string]float64
 	if len(params) > 0 {
