@@ -234,3 +234,41 @@ func TestKinksAndJumps(t *testing.T) {
 		}
 	}
 }
+
+// TestClampedLogGapLocated: the log score clamped at c, ln(max(p_y, c)), is
+// improper near the boundary, and the audit must find how much and where.
+// Derived by hand: at a belief whose small coordinates are all at most c,
+// the report that moves their mass onto the largest outcome pays ln c on
+// them just as honesty does and more on the rest, so the gain is
+// -Q ln Q with Q the mass left on the large outcome; it grows as Q falls,
+// until a small coordinate reaches c. Moving δ more into a coordinate at c
+// changes -Q ln Q by (ln Q + 1)δ and that coordinate's q_k ln(c/q_k) by
+// -δ: a net ln(Q)·δ < 0, so honesty catches up. The largest gap, with one
+// large outcome, is at q = (1 - (n-1)c, c, ..., c) with best report
+// (1, 0, ..., 0): -(1 - c) ln(1 - c) = 0.0099498 for n = 2 and
+// -(1 - 2c) ln(1 - 2c) = 0.0197987 for n = 3, c = 0.01.
+func TestClampedLogGapLocated(t *testing.T) {
+	const c = 0.01
+	for _, n := range []int{2, 3} {
+		a, err := Audit(context.Background(), pay(t, "ln(max(p[y], 0.01))", n), presetCandidates(t, n), Settings{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		Q := 1 - float64(n-1)*c
+		want := -Q * math.Log(Q)
+		if a.Verdict != Improper || math.Abs(a.Gap.Max-want) > 1e-9 {
+			t.Errorf("n=%d: verdict %s, gap %.9g; want improper, %.9g", n, a.Verdict, a.Gap.Max, want)
+		}
+		wantQ, wantP := make([]float64, n), make([]float64, n)
+		wantQ[0], wantP[0] = Q, 1
+		for k := 1; k < n; k++ {
+			wantQ[k] = c
+		}
+		if !near(a.Gap.Belief, wantQ, 1e-6) || !near(a.Gap.BestReport, wantP, 1e-6) {
+			t.Errorf("n=%d: gap at belief %v, best report %v; want %v, %v (or a permutation)", n, a.Gap.Belief, a.Gap.BestReport, wantQ, wantP)
+		}
+		if a.Identified != nil {
+			t.Errorf("n=%d: clamped log identified as %q", n, a.Identified.Preset)
+		}
+	}
+}
