@@ -272,3 +272,40 @@ func TestClampedLogGapLocated(t *testing.T) {
 		}
 	}
 }
+
+// TestJackpotBetweenGridPoints: a payout equal to the quadratic rule
+// except on a thin band of reports between the grid points, where it pays
+// 2 whatever happens. The grid stream never sees the band, so the audit
+// called it strictly proper and identified it as the quadratic rule.
+// Derived by hand: the quadratic rule 1 - Σ(p - hit)² has honest expected
+// pay Σq², so a forecaster reporting into the band gains 2 - Σq². At
+// n = 2 the largest gap over grid beliefs is at q = (1/2, 1/2): 1.5. At
+// n = 3 (band 0.333 < p1 < 0.337, between the grid lines 0.33 and 0.34 at
+// K = 100) it is at the grid beliefs nearest uniform, e.g. (0.33, 0.33,
+// 0.34): 2 - 0.3334 = 1.6666 (a little more, up to 2 - 1/3, if sharpening
+// moves the belief within its cell).
+func TestJackpotBetweenGridPoints(t *testing.T) {
+	cases := []struct {
+		src    string
+		n      int
+		gap    float64
+		inBand func([]float64) bool
+	}{
+		{"if(abs(p1 - 0.5005) < 0.0002, 2, 1 - sum((p - hit)^2))", 2, 1.5,
+			func(r []float64) bool { return math.Abs(r[0]-0.5005) < 0.0002 }},
+		{"if(abs(p1 - 0.335) < 0.002, 2, 1 - sum((p - hit)^2))", 3, 2 - 0.3334,
+			func(r []float64) bool { return math.Abs(r[0]-0.335) < 0.002 }},
+	}
+	for _, c := range cases {
+		a, err := Audit(context.Background(), pay(t, c.src, c.n), presetCandidates(t, c.n), Settings{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if a.Verdict != Improper || math.Abs(a.Gap.Max-c.gap) > 1e-3 || !c.inBand(a.Gap.BestReport) {
+			t.Errorf("n=%d: verdict %s, gap %g at best report %v; want improper, %g, a report in the band", c.n, a.Verdict, a.Gap.Max, a.Gap.BestReport, c.gap)
+		}
+		if a.Identified != nil {
+			t.Errorf("n=%d: an improper payout identified as %q", c.n, a.Identified.Preset)
+		}
+	}
+}

@@ -114,7 +114,7 @@ func Audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings)
 		return nil, err
 	}
 	G := int64(g.Len())
-	pr := startProgress(s.Progress, G*G+gradCost*G*int64(1+len(cands))+int64(auditRefine)*gradCost)
+	pr := startProgress(s.Progress, G*G+G*int64(offGridCount(int(G)))+gradCost*G*int64(1+len(cands))+int64(auditRefine)*gradCost)
 	rep, err := audit(ctx, p, cands, s, g, pr)
 	pr.finish(err == nil)
 	return rep, err
@@ -177,6 +177,13 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 			bg.Gap, bg.BestReport = math.Inf(1), g.Point(int(b.arg))
 		}
 		rep.Beliefs[i] = bg
+	}
+	offGain, err := offGridReports(ctx, p, g, rep.Beliefs, s, pr)
+	if err != nil {
+		return nil, err
+	}
+	if offGain > 0 {
+		rep.Notes = append(rep.Notes, fmt.Sprintf("%d beliefs gain more from reports between the grid points (found among %d random reports) than from any grid report: the payout rewards reports the grid does not contain", offGain, offGridCount(G)))
 	}
 	if err := refineBeliefs(ctx, p, g, rep.Beliefs, s, pr); err != nil {
 		return nil, err
@@ -243,6 +250,15 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	if err != nil {
 		return nil, err
 	}
+	if rep.Verdict == Improper {
+		// An affine image of a proper rule is proper: a fit on the grid
+		// points of an improper payout says only that the two agree there.
+		for i := range fits {
+			if fits[i].Note == "" {
+				fits[i].Note = "fits on the grid points, but the payout is improper, so it is not this rule everywhere (it differs between the grid points or where it is undefined)"
+			}
+		}
+	}
 	rep.Fits = fits
 	if len(fits) > 0 && fits[0].Note == "" {
 		id := fits[0]
@@ -254,6 +270,65 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 		}
 	}
 	return rep, nil
+}
+
+// offGridReports pits every grid belief against offGridCount(G) random
+// interior reports: a payout can reward a report no grid point is (a
+// jackpot on a thin band, pay 2 when p1 is within 2e-4 of 0.5005), and
+// the grid stream alone would call it strictly proper. A belief whose
+// best random report beats both honesty (by more than the slack) and its
+// best grid report takes that report. It returns how many beliefs did.
+func offGridReports(ctx context.Context, p *payout.Payout, g *simplex.Grid, bgs []BeliefGap, s Settings, pr *progress) (int, error) {
+	n, G := g.N, g.Len()
+	R := offGridCount(G)
+	reps := randomInterior(n, R, s.Seed, 0x7e90)
+	pays := make([]float64, R*n)
+	evs := make([]*payout.Evaluator, s.Workers)
+	for i := range evs {
+		evs[i] = p.NewEvaluator()
+	}
+	err := parallel(ctx, s.Workers, R, 256, func(w, lo, hi int) {
+		for j := lo; j < hi; j++ {
+			evs[w].Pays(pays[j*n:(j+1)*n], reps[j*n:(j+1)*n])
+		}
+	})
+	if err != nil {
+		return 0, err
+	}
+	gained := make([]bool, G)
+	err = parallel(ctx, s.Workers, G, 16, func(_, lo, hi int) {
+		for i := lo; i < hi; i++ {
+			bg := &bgs[i]
+			if bg.Honest != bg.Honest || math.IsInf(bg.Honest, 0) {
+				continue // undefined or infinite honest pay: nothing to compare
+			}
+			q := g.Point(i)
+			best, arg := math.Inf(-1), -1
+			for j := 0; j < R; j++ {
+				row := pays[j*n : (j+1)*n]
+				var v float64
+				for k, x := range q {
+					if x != 0 {
+						v += x * row[k]
+					}
+				}
+				if v > best && !math.IsInf(v, 1) { // NaN never compares greater
+					best, arg = v, j
+				}
+			}
+			if gap := best - bg.Honest; arg >= 0 && gap > s.Tolerance && gap > bg.Gap {
+				bg.Gap, bg.BestReport, gained[i] = gap, clone(reps[arg*n:(arg+1)*n]), true
+			}
+		}
+		pr.add(int64(hi-lo) * int64(R))
+	})
+	count := 0
+	for _, b := range gained {
+		if b {
+			count++
+		}
+	}
+	return count, err
 }
 
 // refineBeliefs improves the best report of the improper beliefs (largest

@@ -527,13 +527,11 @@ func (k kink) apply(c *CheckResult) {
 // the G² pair stream.
 func offGridCount(G int) int { return max(G, 10000) }
 
-// offGrid draws offGridCount(G) points uniformly from the interior of the
-// simplex (a flat Dirichlet, fixed by s.Seed) and computes the largest
-// projected eigenvalue at each.
-func offGrid(ctx context.Context, n, G int, s Settings, projs []*projector, scorers []*bregman.Scorer, pr *progress) (pts, lam []float64, err error) {
-	count := offGridCount(G)
-	rng := rand.New(rand.NewPCG(s.Seed, 0xc0ca))
-	pts = make([]float64, count*n)
+// randomInterior draws count points uniformly from the interior of the
+// simplex (a flat Dirichlet), flat in one slice; seed and stream fix them.
+func randomInterior(n, count int, seed, stream uint64) []float64 {
+	rng := rand.New(rand.NewPCG(seed, stream))
+	pts := make([]float64, count*n)
 	for j := 0; j < count; j++ {
 		q := pts[j*n : (j+1)*n]
 		for {
@@ -550,6 +548,15 @@ func offGrid(ctx context.Context, n, G int, s Settings, projs []*projector, scor
 			}
 		}
 	}
+	return pts
+}
+
+// offGrid draws offGridCount(G) points uniformly from the interior of the
+// simplex (a flat Dirichlet, fixed by s.Seed) and computes the largest
+// projected eigenvalue at each.
+func offGrid(ctx context.Context, n, G int, s Settings, projs []*projector, scorers []*bregman.Scorer, pr *progress) (pts, lam []float64, err error) {
+	count := offGridCount(G)
+	pts = randomInterior(n, count, s.Seed, 0xc0ca)
 	lam = make([]float64, count)
 	err = parallel(ctx, s.Workers, count, 128, func(w, lo, hi int) {
 		pj, sc := projs[w], scorers[w]
