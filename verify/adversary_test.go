@@ -309,3 +309,21 @@ func TestJackpotBetweenGridPoints(t *testing.T) {
 		}
 	}
 }
+
+// TestTinyHessianDoesNotPanic: the power generator (1 - Σp^g)/(g - 1) at
+// g = 1e-300 has Hessian entries -g·p^(g-2) ≈ -1e-300/p², on which the
+// eigensolver's own scaling panicked. In double precision p^g = 1 exactly
+// (g·ln p is far below an ulp of 1), so H = 2 and every effort is 2: the
+// rule is constant as computed, hence proper, not strictly; its curvature
+// is still negative, about -1e-300·(a few) (derived by hand).
+func TestTinyHessianDoesNotPanic(t *testing.T) {
+	r := rule(t, "g = 1e-300\n(1 - sum(p^g)) / (g - 1)", 3)
+	rep, err := CheckRule(context.Background(), r, Settings{Resolution: 20})
+	if err != nil {
+		t.Fatal(err)
+	}
+	conc := rep.Check(NameConcavity)
+	if rep.Verdict != Proper || !conc.Passed || !(conc.Worst < 0 && conc.Worst > -1e-297) {
+		t.Errorf("verdict %s, concavity passed=%v worst %g; want proper, passed, a tiny negative eigenvalue", rep.Verdict, conc.Passed, conc.Worst)
+	}
+}

@@ -636,11 +636,41 @@ func (pj *projector) largest(sc *bregman.Scorer, p []float64) float64 {
 	if m == 1 {
 		return pj.sym.At(0, 0)
 	}
-	if !pj.eig.Factorize(pj.sym, false) {
+	// Scale to entries of size 1 before the eigensolver: LAPACK's own
+	// scaling panics on matrices of entries near 1e-300 (the power
+	// generator with g = 1e-300 has them), and the eigenvalues of c·A are
+	// c times those of A.
+	var big float64
+	for a := 0; a < m; a++ {
+		for b := a; b < m; b++ {
+			big = math.Max(big, math.Abs(pj.sym.At(a, b)))
+		}
+	}
+	if big == 0 {
+		return 0
+	}
+	for a := 0; a < m; a++ {
+		for b := a; b < m; b++ {
+			pj.sym.SetSym(a, b, pj.sym.At(a, b)/big)
+		}
+	}
+	if !pj.factorize() {
 		return math.NaN()
 	}
 	pj.eig.Values(pj.vals)
-	return pj.vals[m-1]
+	return pj.vals[m-1] * big
+}
+
+// factorize runs the eigensolver, reporting a failure — including a panic
+// inside it, which a user's formula must never turn into a crash — as
+// false.
+func (pj *projector) factorize() (ok bool) {
+	defer func() {
+		if recover() != nil {
+			ok = false
+		}
+	}()
+	return pj.eig.Factorize(pj.sym, false)
 }
 
 // sharpenConcavity climbs the largest projected eigenvalue from the grid
