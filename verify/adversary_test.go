@@ -327,3 +327,27 @@ func TestTinyHessianDoesNotPanic(t *testing.T) {
 		t.Errorf("verdict %s, concavity passed=%v worst %g; want proper, passed, a tiny negative eigenvalue", rep.Verdict, conc.Passed, conc.Worst)
 	}
 }
+
+// TestIdentifyHugeUnits: the fit of pay ≈ shift - scale·L summed squares
+// of payments, which overflow for payouts in 1e300: 1e300·ln p_y (the log
+// rule, scale 1e300, shift 0) and 1e308·(1 - Σ(p - hit)²) (the quadratic
+// rule, scale and shift 1e308) went unidentified (by construction).
+func TestIdentifyHugeUnits(t *testing.T) {
+	cases := []struct {
+		src, preset  string
+		scale, shift float64
+	}{
+		{"1e300*ln(p[y])", "log", 1e300, 0},
+		{"1e308*(1 - sum((p - hit)^2))", "quadratic", 1e308, 1e308},
+	}
+	for _, c := range cases {
+		a, err := Audit(context.Background(), pay(t, c.src, 3), presetCandidates(t, 3), Settings{Resolution: 30})
+		if err != nil {
+			t.Fatal(err)
+		}
+		id := a.Identified
+		if id == nil || id.Preset != c.preset || math.Abs(id.Scale/c.scale-1) > 1e-9 || math.Abs(id.Shift-c.shift) > 1e-9*c.scale {
+			t.Errorf("%q: identified %+v, want %s with scale %g, shift %g", c.src, id, c.preset, c.scale, c.shift)
+		}
+	}
+}

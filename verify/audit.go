@@ -468,6 +468,18 @@ func identify(ctx context.Context, g *simplex.Grid, pays *menu, cands []Candidat
 			fits = append(fits, id)
 			continue
 		}
+		// Fit in units of the largest |payment|: the sums of squares of a
+		// payout counted in 1e300 would overflow to Inf and fail the fit.
+		unit := 0.0
+		for _, v := range y {
+			unit = math.Max(unit, math.Abs(v))
+		}
+		if unit == 0 {
+			unit = 1
+		}
+		for i := range y {
+			y[i] /= unit
+		}
 		shift, scale := stat.LinearRegression(x, y, nil, false)
 		var sse, sst float64
 		my := stat.Mean(y, nil)
@@ -476,6 +488,7 @@ func identify(ctx context.Context, g *simplex.Grid, pays *menu, cands []Candidat
 			sse += r * r
 			sst += (y[i] - my) * (y[i] - my)
 		}
+		shift, scale = shift*unit, scale*unit
 		id.Scale, id.Shift = scale, shift
 		switch {
 		case sst == 0:
