@@ -351,3 +351,24 @@ func TestIdentifyHugeUnits(t *testing.T) {
 		}
 	}
 }
+
+// TestVertexNonConcavitySeenByGrid: H = 1 - Σp² + 1e5·max(0, p1 - 0.995)³
+// is not concave within 0.005 of the vertex (1, 0, 0). The vertex is a grid
+// point, so the grid sees it and the check must not claim the violation
+// lies only between grid points. Derived by hand: the added term's second
+// derivative in p1 is 6e5·(p1 - 0.995), 3000 at the vertex, so the
+// Hessian there is -2I + 3000·e1e1ᵀ with projected largest eigenvalue
+// -2 + 3000·(2/3) = 1998.
+func TestVertexNonConcavitySeenByGrid(t *testing.T) {
+	rep, err := CheckRule(context.Background(), rule(t, "1 - sum(p^2) + 1e5*max(0, p1 - 0.995)^3", 3), Settings{Resolution: 100})
+	if err != nil {
+		t.Fatal(err)
+	}
+	conc := rep.Check(NameConcavity)
+	if conc.Passed || conc.Boundary.Passed || math.Abs(conc.Boundary.Worst-1998) > 1e-6 || !(conc.Belief[0] > 0.995) {
+		t.Errorf("concavity passed=%v, boundary worst %g, witness %v; want failed, 1998 at the vertex", conc.Passed, conc.Boundary.Worst, conc.Belief)
+	}
+	if strings.Contains(conc.Note, "between them") {
+		t.Errorf("note claims only off-grid points saw it: %s", conc.Note)
+	}
+}

@@ -196,7 +196,7 @@ func sharpenedNote(c CheckResult) string {
 	if !c.Sharpened {
 		return ""
 	}
-	return fmt.Sprintf("sharpened beyond the grid by Nelder–Mead (%s) from the grid's %.6g", c.Status, c.GridWorst)
+	return fmt.Sprintf("sharpened beyond the grid by Nelder–Mead (%s) from %.6g at the unsharpened witness", c.Status, c.GridWorst)
 }
 
 func concavityWitness(c CheckResult) string {
@@ -384,9 +384,11 @@ func concavity(ctx context.Context, r *bregman.Rule, g *simplex.Grid, s Settings
 	}
 	// A failure seen only between the grid points is a failure of the
 	// interior: the grid alone would have called H concave there.
-	// Count stays the number of grid points; the note gives the others.
-	offOnly := between.seen && between.Worst > T && !(in.Worst > T)
-	if offOnly {
+	// The random points are interior: a violation there fails the
+	// interior. Count stays the number of grid points; the note gives the
+	// others, and says when no grid point, interior or boundary, saw it.
+	offOnly := between.seen && between.Worst > T && !(in.Worst > T) && !(bd.Worst > T)
+	if between.seen && between.Worst > T && !(in.Worst >= between.Worst) {
 		in.Worst, in.Belief, in.seen = between.Worst, between.Belief, true
 	}
 	c := CheckResult{Name: NameConcavity}
