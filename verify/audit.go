@@ -84,6 +84,10 @@ type AuditReport struct {
 	Fits []Identification
 	// Beliefs holds the finding at every grid belief, in grid order.
 	Beliefs []BeliefGap
+	// Undefined counts the grid beliefs where the payout is NaN at the
+	// honest report (their Gap is NaN); Gap is the largest over the rest,
+	// NaN when there is no rest.
+	Undefined int
 }
 
 // auditRefine caps how many improper beliefs get their best report
@@ -110,7 +114,7 @@ func Audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings)
 		return nil, err
 	}
 	G := int64(g.Len())
-	pr := startProgress(s.Progress, G*G+gradCost*G*int64(1+len(cands))+int64(auditRefine)*gradCost)
+	pr := startProgress(s.Progress, G*G+G*int64(offGridCount(int(G)))+gradCost*G*int64(1+len(cands))+int64(auditRefine)*gradCost)
 	rep, err := audit(ctx, p, cands, s, g, pr)
 	pr.finish(err == nil)
 	return rep, err
@@ -139,8 +143,8 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	}
 	label := func(k int) string { return fmt.Sprint(k + 1) }
 	bounded := boundedness(g, pays, s.Limit, label, "payment", -1)
-	rep.Grid.Scale = scaleOf(bounded)
-	s.Tolerance *= rep.Grid.Scale
+	rep.Grid.Scale, rep.Grid.Rounding = scaleOf(pays)
+	s.Tolerance = rep.Grid.Slack()
 
 	// The stream minimises effort, so it runs on -pay.
 	m := newMenu(n, G)
@@ -156,19 +160,30 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	for i := range honest {
 		honest[i] = m.phi(g.Point(i), i)
 	}
-	prop, _ := properness(g, m, honest, bs, s.Tolerance)
+	prop, _ := properness(g, m, honest, bs, s.Tolerance, rep.Grid.Scale)
 
 	rep.Beliefs = make([]BeliefGap, G)
 	for i, b := range bs {
 		q := g.Point(i)
 		bg := BeliefGap{Belief: q, BestReport: q, Honest: -honest[i]}
 		// A gap within the tolerance is rounding: the honest report stands.
-		if gap := honest[i] - b.m1; b.arg >= 0 && gap > s.Tolerance && !math.IsInf(honest[i], 1) {
+		if m.bad[i] {
+			// The payout is undefined (NaN) at the honest report: there is
+			// no gap to speak of, and properness reports the belief.
+			bg.Gap, bg.Honest = math.NaN(), math.NaN()
+		} else if gap := honest[i] - b.m1; b.arg >= 0 && gap > s.Tolerance && !math.IsInf(honest[i], 1) {
 			bg.Gap, bg.BestReport = gap, g.Point(int(b.arg))
 		} else if math.IsInf(honest[i], 1) && b.arg >= 0 && !math.IsInf(b.m1, 1) {
 			bg.Gap, bg.BestReport = math.Inf(1), g.Point(int(b.arg))
 		}
 		rep.Beliefs[i] = bg
+	}
+	offGain, err := offGridReports(ctx, p, g, rep.Beliefs, s, pr)
+	if err != nil {
+		return nil, err
+	}
+	if offGain > 0 {
+		rep.Notes = append(rep.Notes, fmt.Sprintf("%d beliefs gain more from reports between the grid points (found among %d random reports) than from any grid report: the payout rewards reports the grid does not contain", offGain, offGridCount(G)))
 	}
 	if err := refineBeliefs(ctx, p, g, rep.Beliefs, s, pr); err != nil {
 		return nil, err
@@ -183,9 +198,16 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	// The largest gap, from the per-belief table (which now includes the
 	// refinement), then sharpened jointly over belief and report.
 	for _, bg := range rep.Beliefs {
+		if bg.Gap != bg.Gap {
+			rep.Undefined++ // no gap where the payout is undefined
+			continue
+		}
 		if bg.Gap > rep.Gap.Max || rep.Gap.Belief == nil {
 			rep.Gap = Gap{Max: bg.Gap, Belief: bg.Belief, BestReport: bg.BestReport}
 		}
+	}
+	if rep.Gap.Belief == nil {
+		rep.Gap.Max = math.NaN()
 	}
 	if prop.Worst > rep.Gap.Max && prop.Sharpened {
 		rep.Gap = Gap{Max: prop.Worst, Belief: prop.Belief, BestReport: prop.Report}
@@ -201,7 +223,7 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 		}
 	}
 	rep.Gap.Belief, rep.Gap.BestReport = clone(rep.Gap.Belief), clone(rep.Gap.BestReport)
-	if rep.Gap.Max > s.Tolerance {
+	if rep.Gap.Max > s.Tolerance && prop.Worst == prop.Worst {
 		prop.Passed, prop.Strict = false, false
 		prop.Worst, prop.Belief, prop.Report = rep.Gap.Max, rep.Gap.Belief, rep.Gap.BestReport
 		prop.Sharpened, prop.GridWorst, prop.Status = rep.Gap.Sharpened, rep.Gap.GridMax, rep.Gap.Status
@@ -228,6 +250,15 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	if err != nil {
 		return nil, err
 	}
+	if rep.Verdict == Improper {
+		// An affine image of a proper rule is proper: a fit on the grid
+		// points of an improper payout says only that the two agree there.
+		for i := range fits {
+			if fits[i].Note == "" {
+				fits[i].Note = "fits on the grid points, but the payout is improper, so it is not this rule everywhere (it differs between the grid points or where it is undefined)"
+			}
+		}
+	}
 	rep.Fits = fits
 	if len(fits) > 0 && fits[0].Note == "" {
 		id := fits[0]
@@ -239,6 +270,65 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 		}
 	}
 	return rep, nil
+}
+
+// offGridReports pits every grid belief against offGridCount(G) random
+// interior reports: a payout can reward a report no grid point is (a
+// jackpot on a thin band, pay 2 when p1 is within 2e-4 of 0.5005), and
+// the grid stream alone would call it strictly proper. A belief whose
+// best random report beats both honesty (by more than the slack) and its
+// best grid report takes that report. It returns how many beliefs did.
+func offGridReports(ctx context.Context, p *payout.Payout, g *simplex.Grid, bgs []BeliefGap, s Settings, pr *progress) (int, error) {
+	n, G := g.N, g.Len()
+	R := offGridCount(G)
+	reps := randomInterior(n, R, s.Seed, 0x7e90)
+	pays := make([]float64, R*n)
+	evs := make([]*payout.Evaluator, s.Workers)
+	for i := range evs {
+		evs[i] = p.NewEvaluator()
+	}
+	err := parallel(ctx, s.Workers, R, 256, func(w, lo, hi int) {
+		for j := lo; j < hi; j++ {
+			evs[w].Pays(pays[j*n:(j+1)*n], reps[j*n:(j+1)*n])
+		}
+	})
+	if err != nil {
+		return 0, err
+	}
+	gained := make([]bool, G)
+	err = parallel(ctx, s.Workers, G, 16, func(_, lo, hi int) {
+		for i := lo; i < hi; i++ {
+			bg := &bgs[i]
+			if bg.Honest != bg.Honest || math.IsInf(bg.Honest, 0) {
+				continue // undefined or infinite honest pay: nothing to compare
+			}
+			q := g.Point(i)
+			best, arg := math.Inf(-1), -1
+			for j := 0; j < R; j++ {
+				row := pays[j*n : (j+1)*n]
+				var v float64
+				for k, x := range q {
+					if x != 0 {
+						v += x * row[k]
+					}
+				}
+				if v > best && !math.IsInf(v, 1) { // NaN never compares greater
+					best, arg = v, j
+				}
+			}
+			if gap := best - bg.Honest; arg >= 0 && gap > s.Tolerance && gap > bg.Gap {
+				bg.Gap, bg.BestReport, gained[i] = gap, clone(reps[arg*n:(arg+1)*n]), true
+			}
+		}
+		pr.add(int64(hi-lo) * int64(R))
+	})
+	count := 0
+	for _, b := range gained {
+		if b {
+			count++
+		}
+	}
+	return count, err
 }
 
 // refineBeliefs improves the best report of the improper beliefs (largest
@@ -378,6 +468,18 @@ func identify(ctx context.Context, g *simplex.Grid, pays *menu, cands []Candidat
 			fits = append(fits, id)
 			continue
 		}
+		// Fit in units of the largest |payment|: the sums of squares of a
+		// payout counted in 1e300 would overflow to Inf and fail the fit.
+		unit := 0.0
+		for _, v := range y {
+			unit = math.Max(unit, math.Abs(v))
+		}
+		if unit == 0 {
+			unit = 1
+		}
+		for i := range y {
+			y[i] /= unit
+		}
 		shift, scale := stat.LinearRegression(x, y, nil, false)
 		var sse, sst float64
 		my := stat.Mean(y, nil)
@@ -386,6 +488,7 @@ func identify(ctx context.Context, g *simplex.Grid, pays *menu, cands []Candidat
 			sse += r * r
 			sst += (y[i] - my) * (y[i] - my)
 		}
+		shift, scale = shift*unit, scale*unit
 		id.Scale, id.Shift = scale, shift
 		switch {
 		case sst == 0:

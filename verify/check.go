@@ -47,7 +47,7 @@ func CheckRule(ctx context.Context, r *bregman.Rule, s Settings) (*Report, error
 		return nil, err
 	}
 	G := g.Len()
-	pr := startProgress(s.Progress, int64(G)*int64(G)+2*gradCost*int64(G))
+	pr := startProgress(s.Progress, int64(G)*int64(G)+2*gradCost*int64(G)+gradCost*int64(offGridCount(G)))
 	rep, err := checkRule(ctx, r, s, g, pr)
 	pr.finish(err == nil)
 	return rep, err
@@ -107,12 +107,16 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 		return nil, err
 	}
 	bounded := boundedness(g, m, s.Limit, r.Label, "effort", 1)
+	rep.Grid.Scale, rep.Grid.Rounding = scaleOf(m)
 	m.seal()
-	rep.Grid.Scale = scaleOf(bounded)
 	affTol := s.Tolerance
-	s.Tolerance *= rep.Grid.Scale
+	s.Tolerance = rep.Grid.Slack()
 
-	conc, err := concavity(ctx, r, g, s, scorers, pr)
+	// Curvature does not see an added constant, so concavity is judged
+	// against the spread alone, without the rounding floor of the sums.
+	cs := s
+	cs.Tolerance = affTol * rep.Grid.Scale
+	conc, err := concavity(ctx, r, g, cs, scorers, pr)
 	if err != nil {
 		return nil, err
 	}
@@ -120,7 +124,7 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	if err != nil {
 		return nil, err
 	}
-	prop, nonneg := properness(g, m, h, bs, s.Tolerance)
+	prop, nonneg := properness(g, m, h, bs, s.Tolerance, rep.Grid.Scale)
 	if g.Sampled {
 		if err := searchReports(ctx, g, &prop, s, func(int) func(q, p []float64) float64 {
 			sc := r.NewScorer()
@@ -153,6 +157,9 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	}
 
 	conc.Note = joinNotes(concavityWitness(conc), conc.Note)
+	if mid := midpoints(g, sc, s.Tolerance, s.Seed); mid.found {
+		mid.apply(&conc)
+	}
 	prop.Note = propernessNote(prop, "effort", "less")
 	nonneg.Note = nonnegNote(nonneg)
 	rep.Checks = []CheckResult{conc, prop, nonneg, aff, bounded}
@@ -170,7 +177,7 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 
 // StrictFloor is the rounding floor strictness is judged against: an
 // honest report is the unique best when every other report is worse by
-// more than StrictFloor × (1 + |honest expected effort|). It is far below
+// more than StrictFloor × (Grid.Scale + |honest expected effort|). It is far below
 // the tolerance on purpose: near a vertex the closest grid report of a
 // strictly proper rule can be worse by only about K^-3.
 const StrictFloor = 1e-13
@@ -189,12 +196,15 @@ func sharpenedNote(c CheckResult) string {
 	if !c.Sharpened {
 		return ""
 	}
-	return fmt.Sprintf("sharpened beyond the grid by Nelder–Mead (%s) from the grid's %.6g", c.Status, c.GridWorst)
+	return fmt.Sprintf("sharpened beyond the grid by Nelder–Mead (%s) from %.6g at the unsharpened witness", c.Status, c.GridWorst)
 }
 
 func concavityWitness(c CheckResult) string {
 	if c.Passed {
 		return ""
+	}
+	if math.IsInf(c.Worst, 1) {
+		return fmt.Sprintf("concavity fails for want of a curvature: the Hessian of H is not finite (or H is undefined) at the interior point %s", num.Format(c.Belief))
 	}
 	return joinNotes(fmt.Sprintf("H is not concave: the Hessian projected onto the simplex has eigenvalue %.6g > 0 at %s", c.Worst, num.Format(c.Belief)), sharpenedNote(c))
 }
@@ -203,6 +213,8 @@ func concavityWitness(c CheckResult) string {
 // "pay", better is "less" or "more".
 func propernessNote(c CheckResult, what, better string) string {
 	switch {
+	case !c.Passed && c.Worst != c.Worst:
+		return fmt.Sprintf("at belief %s the honest report's expected %s is undefined (NaN): the rule is not defined there, so it cannot be called proper", num.Format(c.Belief), what)
 	case !c.Passed:
 		return joinNotes(fmt.Sprintf("a forecaster with belief %s expects %.6g %s %s by reporting %s than by reporting honestly", num.Format(c.Belief), c.Worst, better, what, num.Format(c.Report)), sharpenedNote(c))
 	case c.Strict:
@@ -214,6 +226,9 @@ func propernessNote(c CheckResult, what, better string) string {
 func nonnegNote(c CheckResult) string {
 	if c.Passed {
 		return fmt.Sprintf("D(q, p) >= 0 over every grid pair (smallest %.6g)", c.Worst)
+	}
+	if c.Worst != c.Worst {
+		return fmt.Sprintf("D(q, p) is undefined (NaN) at belief %s: H or the efforts are not defined there", num.Format(c.Belief))
 	}
 	return joinNotes(fmt.Sprintf("D(q, p) = %.6g < 0 at belief %s, report %s", c.Worst, num.Format(c.Belief), num.Format(c.Report)), sharpenedNote(c))
 }
@@ -240,18 +255,27 @@ func markPart(c *CheckResult) {
 	}
 }
 
-// scaleOf is the size of a rule's values, max(1, largest finite
-// |value| over the grid reports), by which the tolerance is multiplied:
-// rounding error grows with the values, and a payout in millions must
-// not be called improper for a gap of 1e-9.
-func scaleOf(bounded CheckResult) float64 {
-	sc := 1.0
-	for _, w := range []float64{bounded.Interior.Worst, bounded.Boundary.Worst} {
-		if w > sc && !math.IsInf(w, 0) {
-			sc = w
+// scaleOf measures a menu of values (before seal) for the tolerance: the
+// spread of the finite values (largest minus smallest), and the rounding
+// floor 2·n·ε × the largest finite |value|. The spread, not the size,
+// is what an affine change pay = A - B·L multiplies, so a rule paid in
+// millionths and the same rule paid in millions get the same verdict; the
+// floor keeps values far from 0 (1e12 + small) from being judged finer
+// than they can be computed. A menu with no spread (a constant rule) has
+// scale 1, so that its slack is the plain tolerance.
+func scaleOf(m *menu) (scale, rounding float64) {
+	lo, hi, big := math.Inf(1), math.Inf(-1), 0.0
+	for _, v := range m.rows {
+		if v != v || math.IsInf(v, 0) {
+			continue
 		}
+		lo, hi, big = math.Min(lo, v), math.Max(hi, v), math.Max(big, math.Abs(v))
 	}
-	return sc
+	scale = hi - lo
+	if !(scale > 0) || math.IsInf(scale, 0) {
+		scale = 1
+	}
+	return scale, 2 * float64(m.n) * 0x1p-52 * big
 }
 
 // gridNotes warns about grids too coarse to say much.
@@ -315,11 +339,24 @@ func concavity(ctx context.Context, r *bregman.Rule, g *simplex.Grid, s Settings
 	if err != nil {
 		return CheckResult{}, err
 	}
+	off, offLam, err := offGrid(ctx, n, G, s, projs, scorers, pr)
+	if err != nil {
+		return CheckResult{}, err
+	}
 	T := s.Tolerance
-	var in, bd part
+	var in, bd, between part
 	nonFiniteIn, nonFiniteBd := 0, 0
 	var nfIn, nfBd []float64
 	strict := true
+	for j, l := range offLam {
+		if l != l || math.IsInf(l, 0) {
+			l = math.Inf(1) // undefined curvature inside the simplex fails
+		}
+		between.offer(l, off[j*n:(j+1)*n], nil)
+		if !(l < -T) {
+			strict = false
+		}
+	}
 	for j := 0; j < G; j++ {
 		l, q := lam[j], g.Point(j)
 		if math.IsNaN(l) || math.IsInf(l, 0) {
@@ -345,6 +382,15 @@ func concavity(ctx context.Context, r *bregman.Rule, g *simplex.Grid, s Settings
 			}
 		}
 	}
+	// A failure seen only between the grid points is a failure of the
+	// interior: the grid alone would have called H concave there.
+	// The random points are interior: a violation there fails the
+	// interior. Count stays the number of grid points; the note gives the
+	// others, and says when no grid point, interior or boundary, saw it.
+	offOnly := between.seen && between.Worst > T && !(in.Worst > T) && !(bd.Worst > T)
+	if between.seen && between.Worst > T && !(in.Worst >= between.Worst) {
+		in.Worst, in.Belief, in.seen = between.Worst, between.Belief, true
+	}
 	c := CheckResult{Name: NameConcavity}
 	c.Interior = in.result(!(in.Worst > T))
 	c.Boundary = bd.result(!(bd.Worst > T))
@@ -366,6 +412,11 @@ func concavity(ctx context.Context, r *bregman.Rule, g *simplex.Grid, s Settings
 	default:
 		notes = append(notes, "the grid has no interior points: raise the resolution above the number of outcomes")
 	}
+	if offOnly {
+		notes = append(notes, fmt.Sprintf("the grid points alone show no violation: it lies between them, found among %d random interior points; at resolution %d the pair checks cannot see it, so raise the resolution to examine that region", between.Count, g.K))
+	} else if between.seen {
+		notes = append(notes, fmt.Sprintf("curvature also examined at %d random interior points between the grid points", between.Count))
+	}
 	if nonFiniteIn > 0 {
 		notes = append(notes, fmt.Sprintf("the Hessian is not finite at %d interior points (e.g. %s), so concavity there is unknown", nonFiniteIn, num.Format(nfIn)))
 	}
@@ -374,6 +425,149 @@ func concavity(ctx context.Context, r *bregman.Rule, g *simplex.Grid, s Settings
 	}
 	c.Note = strings.Join(notes, "; ")
 	return c, nil
+}
+
+// kink is the worst midpoint violation of concavity: along the segment
+// from a to b, H at the midpoint falls short of the mean of H(a) and H(b)
+// by deficit. A concave H never does; a convex kink or an upward jump,
+// which no Hessian sees, does.
+type kink struct {
+	found      bool
+	deficit    float64
+	curvature  float64 // 8·deficit/|b - a|², the average curvature it implies
+	l2         float64 // |b - a|²
+	mid, a, b  []float64
+	tests      int
+	onBoundary bool
+}
+
+// midpoints tests H(m) >= (H(a) + H(b))/2 - T, m = (a + b)/2, for grid
+// points a paired with a random grid point b and with a random nearby
+// point b (a few grid steps away, for kinks between grid points).
+func midpoints(g *simplex.Grid, sc *bregman.Scorer, T float64, seed uint64) kink {
+	n, G := g.N, g.Len()
+	rng := rand.New(rand.NewPCG(seed, 0x3d1d))
+	tests := min(G, 2000)
+	a, b, m := make([]float64, n), make([]float64, n), make([]float64, n)
+	var k kink
+	for t := 0; t < tests; t++ {
+		copy(a, g.Point(rng.IntN(G)))
+		for pass := range 8 {
+			if pass%2 == 0 {
+				copy(b, g.Point(rng.IntN(G)))
+			} else if !nearby(b, a, 3/float64(g.K), rng) {
+				continue
+			}
+			var l2 float64
+			for i := range m {
+				m[i] = (a[i] + b[i]) / 2
+				l2 += (b[i] - a[i]) * (b[i] - a[i])
+			}
+			if l2 == 0 {
+				continue
+			}
+			k.tests++
+			d := (sc.Entropy(a)+sc.Entropy(b))/2 - sc.Entropy(m)
+			// The worst is the largest implied curvature, so that a kink
+			// seen on a short segment is not outranked by a long one.
+			if d > T && (!k.found || d/l2 > k.deficit/k.l2) {
+				k = kink{found: true, deficit: d, curvature: 8 * d / l2, l2: l2, mid: clone(m), a: clone(a), b: clone(b), tests: k.tests, onBoundary: onBoundary(m)}
+			}
+		}
+	}
+	return k
+}
+
+// nearby sets b to a plus a random step of at most r in each coordinate
+// along the simplex (coordinates still sum to 1); false when it leaves the
+// simplex.
+func nearby(b, a []float64, r float64, rng *rand.Rand) bool {
+	var mean float64
+	for i := range b {
+		b[i] = (2*rng.Float64() - 1) * r
+		mean += b[i]
+	}
+	mean /= float64(len(b))
+	for i := range b {
+		b[i] = a[i] + b[i] - mean
+		if b[i] < 0 || b[i] > 1 {
+			return false
+		}
+	}
+	return true
+}
+
+// apply records a midpoint violation in the concavity result: it fails
+// the check (in the region of the midpoint) when the Hessian saw nothing,
+// and is described in the note either way. The amount kept as Worst is
+// the implied average curvature, so that the check's units stay those of
+// an eigenvalue.
+func (k kink) apply(c *CheckResult) {
+	note := fmt.Sprintf("H is not concave between %s and %s: at the midpoint %s it is %.6g below the mean of its ends (an average curvature of %.6g along the segment), a kink or jump the Hessian cannot see (%d midpoint tests)",
+		num.Format(k.a), num.Format(k.b), num.Format(k.mid), k.deficit, k.curvature, k.tests)
+	if c.Passed {
+		// The Hessian's verdict ("H is ... concave") no longer stands.
+		rest := strings.Split(c.Note, "; ")
+		if len(rest) > 0 && strings.HasPrefix(rest[0], "H is ") {
+			rest[0] = fmt.Sprintf("the Hessian alone shows no violation (largest projected eigenvalue %.6g at %s)", c.Interior.Worst, num.Format(c.Interior.Belief))
+		}
+		c.Note = strings.Join(rest, "; ")
+		c.Passed, c.Strict = false, false
+		c.Worst, c.Belief = k.curvature, clone(k.mid)
+		p := &c.Interior
+		if k.onBoundary {
+			p = &c.Boundary
+		}
+		p.Passed, p.Worst, p.Belief = false, k.curvature, clone(k.mid)
+	}
+	c.Note = joinNotes(note, c.Note)
+}
+
+// offGridCount is how many random interior points the concavity check
+// examines besides the grid: a non-concave region narrower than a grid
+// step is invisible to every grid check, and curvature is cheap next to
+// the G² pair stream.
+func offGridCount(G int) int { return max(G, 10000) }
+
+// randomInterior draws count points uniformly from the interior of the
+// simplex (a flat Dirichlet), flat in one slice; seed and stream fix them.
+func randomInterior(n, count int, seed, stream uint64) []float64 {
+	rng := rand.New(rand.NewPCG(seed, stream))
+	pts := make([]float64, count*n)
+	for j := 0; j < count; j++ {
+		q := pts[j*n : (j+1)*n]
+		for {
+			var sum float64
+			for k := range q {
+				q[k] = rng.ExpFloat64()
+				sum += q[k]
+			}
+			for k := range q {
+				q[k] /= sum
+			}
+			if !onBoundary(q) {
+				break
+			}
+		}
+	}
+	return pts
+}
+
+// offGrid draws offGridCount(G) points uniformly from the interior of the
+// simplex (a flat Dirichlet, fixed by s.Seed) and computes the largest
+// projected eigenvalue at each.
+func offGrid(ctx context.Context, n, G int, s Settings, projs []*projector, scorers []*bregman.Scorer, pr *progress) (pts, lam []float64, err error) {
+	count := offGridCount(G)
+	pts = randomInterior(n, count, s.Seed, 0xc0ca)
+	lam = make([]float64, count)
+	err = parallel(ctx, s.Workers, count, 128, func(w, lo, hi int) {
+		pj, sc := projs[w], scorers[w]
+		for j := lo; j < hi; j++ {
+			lam[j] = pj.largest(sc, pts[j*n:(j+1)*n])
+		}
+		pr.add(int64(hi-lo) * gradCost)
+	})
+	return pts, lam, err
 }
 
 // projector computes the projected Hessian's largest eigenvalue without
@@ -406,7 +600,13 @@ func newProjector(n int) *projector {
 // when the Hessian is not finite there.
 func (pj *projector) largest(sc *bregman.Scorer, p []float64) float64 {
 	n, m := pj.n, pj.n-1
-	sc.Hessian(pj.hess, p)
+	if h := sc.Hessian(pj.hess, p); h != h {
+		// H itself is undefined here: its derivatives can still come out
+		// finite (the machine skips terms multiplied by a structural zero,
+		// as in sqrt(p - 0.3)*0), but a curvature of nothing is no
+		// evidence of concavity.
+		return math.NaN()
+	}
 	for _, v := range pj.hess {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
 			return v
@@ -438,11 +638,41 @@ func (pj *projector) largest(sc *bregman.Scorer, p []float64) float64 {
 	if m == 1 {
 		return pj.sym.At(0, 0)
 	}
-	if !pj.eig.Factorize(pj.sym, false) {
+	// Scale to entries of size 1 before the eigensolver: LAPACK's own
+	// scaling panics on matrices of entries near 1e-300 (the power
+	// generator with g = 1e-300 has them), and the eigenvalues of c·A are
+	// c times those of A.
+	var big float64
+	for a := 0; a < m; a++ {
+		for b := a; b < m; b++ {
+			big = math.Max(big, math.Abs(pj.sym.At(a, b)))
+		}
+	}
+	if big == 0 {
+		return 0
+	}
+	for a := 0; a < m; a++ {
+		for b := a; b < m; b++ {
+			pj.sym.SetSym(a, b, pj.sym.At(a, b)/big)
+		}
+	}
+	if !pj.factorize() {
 		return math.NaN()
 	}
 	pj.eig.Values(pj.vals)
-	return pj.vals[m-1]
+	return pj.vals[m-1] * big
+}
+
+// factorize runs the eigensolver, reporting a failure — including a panic
+// inside it, which a user's formula must never turn into a crash — as
+// false.
+func (pj *projector) factorize() (ok bool) {
+	defer func() {
+		if recover() != nil {
+			ok = false
+		}
+	}()
+	return pj.eig.Factorize(pj.sym, false)
 }
 
 // sharpenConcavity climbs the largest projected eigenvalue from the grid
@@ -477,7 +707,7 @@ func sharpenConcavity(c *CheckResult, r *bregman.Rule, boundary bool, cell float
 // properness reduces the stream: for each belief the honesty gap (honest
 // expected effort minus the best) and the margin (best other report minus
 // honest), and for non-negativity the smallest divergence m1 - H(q).
-func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T float64) (prop, nonneg CheckResult) {
+func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T, scale float64) (prop, nonneg CheckResult) {
 	var gapIn, gapBd, negIn, negBd part
 	marginMin := math.Inf(1)
 	var marginQ, marginP []float64
@@ -492,6 +722,12 @@ func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T float64) (pr
 		}
 		if math.IsInf(honest, 1) && math.IsInf(b.m1, 1) {
 			gap = 0
+		}
+		if m.bad[i] {
+			// The honest report's row is undefined (set to +Inf for the
+			// stream): its expected effort is NaN, not "infinitely worse".
+			// A NaN amount fails the comparisons below (NaN <= T is false).
+			gap = math.NaN()
 		}
 		var rp []float64
 		if b.arg >= 0 {
@@ -518,7 +754,7 @@ func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T float64) (pr
 		if margin < marginMin || marginQ == nil && oarg >= 0 {
 			marginMin, marginQ, marginP = margin, q, op
 		}
-		if !(margin > StrictFloor*(1+math.Abs(honest))) {
+		if !(margin > StrictFloor*(scale+math.Abs(honest))) {
 			if strict || margin < tieMargin {
 				tieMargin, tieQ, tieP = margin, q, op
 			}
@@ -535,8 +771,8 @@ func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T float64) (pr
 		}
 	}
 	prop = CheckResult{Name: NameProperness}
-	prop.Interior = gapIn.result(!(gapIn.Worst > T))
-	prop.Boundary = gapBd.result(!(gapBd.Worst > T))
+	prop.Interior = gapIn.result(gapIn.Worst <= T)
+	prop.Boundary = gapBd.result(gapBd.Worst <= T)
 	prop.Passed = prop.Interior.Passed && prop.Boundary.Passed
 	pickWorst(&prop, gapIn, gapBd)
 	prop.Margin, prop.MarginBelief, prop.MarginReport = marginMin, clone(marginQ), clone(marginP)
@@ -545,8 +781,8 @@ func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T float64) (pr
 		prop.Margin, prop.MarginBelief, prop.MarginReport = tieMargin, clone(tieQ), clone(tieP)
 	}
 	nonneg = CheckResult{Name: NameNonnegativity}
-	nonneg.Interior = flip(negIn.result(!(negIn.Worst > T)))
-	nonneg.Boundary = flip(negBd.result(!(negBd.Worst > T)))
+	nonneg.Interior = flip(negIn.result(negIn.Worst <= T))
+	nonneg.Boundary = flip(negBd.result(negBd.Worst <= T))
 	nonneg.Passed = nonneg.Interior.Passed && nonneg.Boundary.Passed
 	pickWorst(&nonneg, negIn, negBd)
 	nonneg.Worst = -nonneg.Worst

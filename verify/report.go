@@ -92,9 +92,17 @@ type Grid struct {
 	// Resolution K, number of grid points, and the tolerance asked for.
 	Resolution, Points int
 	Tolerance          float64
-	// Scale is max(1, largest finite |effort| or |payment| on the grid);
-	// comparisons allow Tolerance × Scale.
+	// Scale is the spread of the rule's values on the grid (largest
+	// finite effort or payment minus the smallest): a rule and its
+	// affine image pay - A = B × rule get the same verdict whatever A and
+	// B > 0 are. Comparisons allow Tolerance × Scale, but never less than
+	// Rounding.
 	Scale float64
+	// Rounding is the floor of the allowed slack: what rounding can do to
+	// a sum of n values as large as the largest finite |value| (2·n·ε
+	// times it). It matters when the values are far from 0 compared with
+	// their spread (1e12 + 1e-3·L).
+	Rounding float64
 	// Sampled is true when the points are a random sample of the lattice.
 	Sampled bool
 	// Interior and Boundary count the points with every coordinate
@@ -112,12 +120,19 @@ func (g Grid) String() string {
 		kind = "sampled grid"
 	}
 	tol := fmt.Sprintf("tolerance %g", g.Tolerance)
-	if g.Scale > 1 {
-		tol += fmt.Sprintf(" × scale %.4g (the largest |value|) = %.3g", g.Scale, g.Tolerance*g.Scale)
+	if g.Scale != 1 {
+		tol += fmt.Sprintf(" × scale %.4g (the spread of the values) = %.3g", g.Scale, g.Tolerance*g.Scale)
+	}
+	if g.Rounding > g.Tolerance*g.Scale {
+		tol += fmt.Sprintf(", raised to %.3g for rounding", g.Rounding)
 	}
 	return fmt.Sprintf("%s at resolution %d (coordinates in steps of 1/%d): %d points (%d interior, %d on the boundary), %d pairs, %s; a grid check is evidence, not a proof",
 		kind, g.Resolution, g.Resolution, g.Points, g.Interior, g.Boundary, g.Pairs, tol)
 }
+
+// Slack is the amount below which a violation counts as rounding:
+// Tolerance × Scale, or Rounding when that is larger.
+func (g Grid) Slack() float64 { return math.Max(g.Tolerance*g.Scale, g.Rounding) }
 
 // Part is a check's finding on one region of the simplex.
 type Part struct {

@@ -33,6 +33,7 @@ type auditJSON struct {
 	Outcomes   []string    `json:"outcomes"`
 	Gap        gapJSON     `json:"gap"`
 	Direction  string      `json:"direction,omitempty"`
+	Undefined  int         `json:"undefined_beliefs,omitempty"`
 	Identified *identJSON  `json:"identified,omitempty"`
 	Fits       []identJSON `json:"fits,omitempty"`
 	Caution    string      `json:"caution"`
@@ -41,7 +42,7 @@ type auditJSON struct {
 const auditCaution = "scorewright checks the mathematics, not the law: payment schemes (lottery-style payments especially) can be regulated; have the contract reviewed by qualified counsel"
 
 func runAudit(e *env, args []string) error {
-	fs := newFlags("audit", "")
+	fs := newFlags("audit")
 	outcomes := fs.String("outcomes", "", "outcome count or comma-separated labels")
 	src := fs.String("payout", "", "payout formula pay(p, y) in p, p1..pn, y, hit, hitc, p[y] (reward: more is better)")
 	ordered := fs.Bool("ordered", false, "outcomes are ordered (allows csum and hitc)")
@@ -75,6 +76,12 @@ func runAudit(e *env, args []string) error {
 		if len(w) != n {
 			return usagef("--weights has %d values for %d outcomes", len(w), n)
 		}
+		// The same rule as a design's weights: a zero, negative or NaN
+		// weight is an input error, not a rule to audit.
+		d := design.Design{Version: design.SchemaVersion, Mode: design.ModePayout, Labels: labels, Formula: *src, Weights: w}
+		if err := d.Validate(); err != nil {
+			return usagef("--%v", err)
+		}
 	}
 	var ps map[string]float64
 	if len(params) > 0 {
@@ -98,8 +105,8 @@ func runAudit(e *env, args []string) error {
 		return usagef("audit: %v", err)
 	}
 	if vf.asJSON {
-		out := auditJSON{reportJSON: toReportJSON(&rep.Report), Payout: *src, Outcomes: labels, Direction: rep.Direction, Caution: auditCaution,
-			Gap: gapJSON{Max: num.Float(rep.Gap.Max), Belief: num.Floats(rep.Gap.Belief), BestReport: num.Floats(rep.Gap.BestReport), Sharpened: rep.Gap.Sharpened}}
+		out := auditJSON{reportJSON: toReportJSON(&rep.Report), Payout: *src, Outcomes: labels, Direction: rep.Direction, Caution: auditCaution, Undefined: rep.Undefined,
+			Gap: gapJSON{Max: num.Float(rep.Gap.Max), Belief: vector(rep.Gap.Belief), BestReport: vector(rep.Gap.BestReport), Sharpened: rep.Gap.Sharpened}}
 		if id := rep.Identified; id != nil {
 			out.Identified = &identJSON{id.Preset, num.Float(id.Scale), num.Float(id.Shift), num.Float(id.Residual), ""}
 		}
@@ -142,14 +149,20 @@ func printAudit(e *env, src string, labels []string, rep *verify.AuditReport) {
 	fmt.Fprintf(w, "payout:  %q over %d outcomes (reward: more is better)\n", src, len(labels))
 	printReport(w, &rep.Report)
 	fmt.Fprintln(w)
-	if rep.Gap.Max > rep.Grid.Tolerance*rep.Grid.Scale {
+	if rep.Gap.Max > rep.Grid.Slack() {
 		how := ""
 		if rep.Gap.Sharpened {
 			how = fmt.Sprintf(" (sharpened beyond the grid from %.6g)", rep.Gap.GridMax)
 		}
 		fmt.Fprintf(w, "largest honesty gap: %.6g%s at belief %s, best report %s\n", rep.Gap.Max, how, num.Format(rep.Gap.Belief), num.Format(rep.Gap.BestReport))
-	} else {
+	} else if rep.Gap.Max == rep.Gap.Max {
 		fmt.Fprintf(w, "largest honesty gap: %.3g (no grid belief gains from misreporting)\n", rep.Gap.Max)
+	}
+	switch {
+	case rep.Undefined == len(rep.Beliefs) && rep.Undefined > 0:
+		fmt.Fprintf(w, "the payout is undefined (NaN) at the honest report for every grid belief: no honesty gap can be computed\n")
+	case rep.Undefined > 0:
+		fmt.Fprintf(w, "the payout is undefined (NaN) at the honest report for %d of %d grid beliefs: no gap can be computed there, and the gap above covers only the others\n", rep.Undefined, len(rep.Beliefs))
 	}
 	if len(labels) == 2 && rep.Direction != "" {
 		fmt.Fprintf(w, "best misreport %s: %d beliefs exaggerate (away from 1/2), %d hedge (toward 1/2), %d flip to the other side\n",
@@ -182,4 +195,13 @@ func nearestBinary(bs []verify.BeliefGap, q float64) int {
 		}
 	}
 	return best
+}
+
+// vector is a JSON array even when v is empty (the contract promises
+// arrays, and null is not one).
+func vector(v []float64) []num.Float {
+	if v == nil {
+		return []num.Float{}
+	}
+	return num.Floats(v)
 }

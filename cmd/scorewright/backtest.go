@@ -75,7 +75,7 @@ type backtestScheme struct {
 
 // backtestWith runs the command; a nil fit means the table's budget fit.
 func backtestWith(e *env, args []string, fit fitFunc) error {
-	fs := newFlags("backtest", "")
+	fs := newFlags("backtest")
 	rf := addRuleFlags(fs)
 	bf := addBudgetFlags(fs)
 	historyPath := fs.String("history", "", "forecast history CSV: forecaster, question, outcome, one probability column per outcome ('-' reads stdin)")

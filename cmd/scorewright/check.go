@@ -10,7 +10,7 @@ import (
 )
 
 func runCheck(e *env, args []string) error {
-	fs := newFlags("check", "")
+	fs := newFlags("check")
 	rf := addRuleFlags(fs)
 	vf := addVerifyFlags(fs)
 	if err := parseFlags(e, fs, ruleUsage+" "+verifyUsage, args, false); err != nil {

@@ -45,7 +45,7 @@ type distortJSON struct {
 }
 
 func runDistort(e *env, args []string) error {
-	fs := newFlags("distort", distortUsage)
+	fs := newFlags("distort")
 	rf := addRuleFlags(fs)
 	bf := addBudgetFlags(fs)
 	utility := fs.String("utility", "", "the forecaster's utility of money: crra:R (relative risk aversion R), cara:A (absolute risk aversion A) or linear")

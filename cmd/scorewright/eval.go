@@ -24,7 +24,7 @@ type evalJSON struct {
 }
 
 func runEval(e *env, args []string) error {
-	fs := newFlags("eval", "")
+	fs := newFlags("eval")
 	rf := addRuleFlags(fs)
 	report := fs.String("report", "", "the report r1,r2,... (n = 2: one number is the event's probability)")
 	belief := fs.String("belief", "", "a belief q1,q2,...; adds expected effort and divergence")

@@ -19,7 +19,7 @@ var errHelp = errors.New("help shown")
 
 // newFlags returns a flag set whose errors come back as one-line usage
 // errors instead of being printed with the whole usage text.
-func newFlags(name, _ string) *flag.FlagSet {
+func newFlags(name string) *flag.FlagSet {
 	fs := flag.NewFlagSet(name, flag.ContinueOnError)
 	fs.SetOutput(io.Discard)
 	fs.Usage = func() {}

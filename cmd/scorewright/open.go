@@ -9,7 +9,7 @@ import (
 )
 
 func runOpen(e *env, args []string) error {
-	flags := newFlags("open", "")
+	flags := newFlags("open")
 	if err := parseFlags(e, flags, "DESIGN.toml", args, true); err != nil {
 		return err
 	}

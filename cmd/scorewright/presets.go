@@ -20,7 +20,7 @@ type presetJSON struct {
 }
 
 func runPresets(e *env, args []string) error {
-	fs := newFlags("presets", "")
+	fs := newFlags("presets")
 	asJSON := fs.Bool("json", false, "print JSON")
 	if err := parseFlags(e, fs, "[--json]", args, false); err != nil {
 		return err

@@ -72,7 +72,7 @@ func (t *tableFlags) resolveFormat() (string, error) {
 }
 
 func runTable(e *env, args []string) error {
-	fs := newFlags("table", tableUsage)
+	fs := newFlags("table")
 	rf := addRuleFlags(fs)
 	bf := addBudgetFlags(fs)
 	tf := addTableFlags(fs)

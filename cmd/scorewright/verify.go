@@ -81,6 +81,7 @@ type gridJSON struct {
 	Points     int       `json:"points"`
 	Tolerance  num.Float `json:"tolerance"`
 	Scale      num.Float `json:"scale"`
+	Slack      num.Float `json:"slack"`
 	Sampled    bool      `json:"sampled"`
 	Interior   int       `json:"interior"`
 	Boundary   int       `json:"boundary"`
@@ -124,7 +125,7 @@ type reportJSON struct {
 
 func toReportJSON(r *verify.Report) reportJSON {
 	out := reportJSON{Verdict: r.Verdict, Notes: r.Notes, Grid: gridJSON{
-		Resolution: r.Grid.Resolution, Points: r.Grid.Points, Tolerance: num.Float(r.Grid.Tolerance), Scale: num.Float(r.Grid.Scale), Sampled: r.Grid.Sampled,
+		Resolution: r.Grid.Resolution, Points: r.Grid.Points, Tolerance: num.Float(r.Grid.Tolerance), Scale: num.Float(r.Grid.Scale), Slack: num.Float(r.Grid.Slack()), Sampled: r.Grid.Sampled,
 		Interior: r.Grid.Interior, Boundary: r.Grid.Boundary, Pairs: r.Grid.Pairs, Statement: r.Grid.String(),
 	}}
 	for _, c := range r.Checks {
