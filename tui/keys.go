@@ -39,7 +39,7 @@ func DefaultKeyMap() KeyMap {
 		Open:     b([]string{"ctrl+o"}, "ctrl+o", "open a design"),
 		Export:   b([]string{"ctrl+x"}, "ctrl+x", "export the table"),
 		Demo:     b([]string{"ctrl+n"}, "ctrl+n", "next demo design"),
-		Backtest: b([]string{"ctrl+b"}, "ctrl+b", "backtest: replay a forecast history (open / close)"),
+		Backtest: b([]string{"ctrl+b"}, "ctrl+b", "backtest a forecast history"),
 
 		Up:       b([]string{"up"}, "↑", "previous item"),
 		Down:     b([]string{"down"}, "↓", "next item"),
@@ -72,7 +72,7 @@ func DefaultKeyMap() KeyMap {
 		Yes:     b([]string{"y"}, "y", "yes, replace the file"),
 		No:      b([]string{"n"}, "n", "no, keep it"),
 		Field:   b([]string{"tab", "shift+tab"}, "tab", "change the export format"),
-		Lottery: b([]string{"ctrl+l"}, "ctrl+l", "export: pay money or a chance of a prize"),
+		Lottery: b([]string{"ctrl+l"}, "ctrl+l", "export money or a lottery"),
 	}
 }
 
