@@ -630,7 +630,7 @@ func TestLotteryExport(t *testing.T) {
 	}
 	// The report (0.5, 0.5) pays 30 in money when either outcome happens
 	// (40 - 20·0.5, quadratic effort 0.5): a chance of 30/40 = 0.75.
-	if !strings.Contains(text, "\n0.5,0.5,0.75,0.75\n") || !strings.Contains(text, "chance if frost") {
+	if !strings.Contains(text, "\n0.5,0.5,0.7500,0.7500\n") || !strings.Contains(text, "chance if frost") {
 		t.Errorf("no chance 0.75 for the even report:\n%s", text)
 	}
 	// A point table too: squared error on [0, 40], floor 0, cap 20.

@@ -48,6 +48,31 @@ func Chance(pay, floor, cap float64) (float64, error) {
 	return math.Min(math.Max(c, 0), 1), nil
 }
 
+// chanceDecimals is how many decimals chances are written with: the
+// fewest (at most 12) that show every chance of the table exactly, up to
+// the binary noise of the division (so 0.9974999999999999 reads 0.9975).
+// An unrounded money table keeps the shortest exact form of each value.
+func chanceDecimals(moneyDecimals int, vals [][]float64) int {
+	if moneyDecimals < 0 {
+		return -1
+	}
+	for d := 0; d < 12; d++ {
+		scale := math.Pow(10, float64(d))
+		fits := true
+		for _, row := range vals {
+			for _, v := range row {
+				if math.Abs(math.Round(v*scale)/scale-v) > 1e-12 {
+					fits = false
+				}
+			}
+		}
+		if fits {
+			return d
+		}
+	}
+	return 12
+}
+
 // slack is how far outside [floor, cap], relative to cap - floor, a
 // payment may lie from floating-point noise and still count as the bound.
 const slack = 1e-9
@@ -72,7 +97,7 @@ func Convert(t *table.Table, floor, cap float64) error {
 		}
 	}
 	prize := cap - floor
-	t.Values, t.Kind, t.ValueName, t.Decimals = vals, KindChance, "chance", -1
+	t.Values, t.Kind, t.ValueName, t.Decimals = vals, KindChance, "chance", chanceDecimals(t.Decimals, vals)
 	m := &t.Meta
 	m.Payment = fmt.Sprintf("chance of winning a prize of %s = (pay - %s)/%s, with %s; paying %s for certain plus the prize with that chance costs the buyer the same in expectation as the money table",
 		table.FormatNumber(prize), table.FormatNumber(floor), table.FormatNumber(prize), m.Payment, table.FormatNumber(floor))

@@ -12,7 +12,7 @@ import (
 // logTable is a binary log-rule money table on the menu 0.1..0.9: pay =
 // 20 + 5 ln p_k (Good 1952), in [20 + 5 ln 0.1, 20 + 5 ln 0.9].
 func logTable() (*table.Table, float64, float64) {
-	t := &table.Table{Kind: table.KindMoney, ValueName: "pay", Labels: []string{"frost", "clear"}, Decimals: 2,
+	t := &table.Table{Kind: table.KindMoney, ValueName: "pay", Labels: []string{"frost", "clear"}, Decimals: -1,
 		Meta: table.Meta{Payment: "pay(p, k) = 20 + 5 ln p_k", MinMargin: num.Float(0.4)}}
 	for i := 1; i <= 9; i++ {
 		p := float64(i) / 10
@@ -20,6 +20,28 @@ func logTable() (*table.Table, float64, float64) {
 		t.Values = append(t.Values, []float64{20 + 5*math.Log(p), 20 + 5*math.Log(1-p)})
 	}
 	return t, 20 + 5*math.Log(0.1), 20 + 5*math.Log(0.9)
+}
+
+// A money table rounded to cents with a prize of 40 has chances in steps
+// of 0.01/40 = 0.00025, so five decimals show them exactly (derived by
+// hand); the division's binary noise (0.9974999999999999) does not show.
+func TestChanceDecimals(t *testing.T) {
+	tb := &table.Table{Kind: table.KindMoney, ValueName: "pay", Labels: []string{"a", "b"}, Decimals: 2,
+		Reports: [][]float64{{0.5, 0.5}, {1, 0}}, Values: [][]float64{{30.01, 39.9}, {40, 0}}}
+	if err := Convert(tb, 0, 40); err != nil {
+		t.Fatal(err)
+	}
+	if tb.Decimals != 5 {
+		t.Errorf("decimals %d, want 5 (30.01/40 = 0.75025)", tb.Decimals)
+	}
+	tb = &table.Table{Kind: table.KindMoney, ValueName: "pay", Labels: []string{"a", "b"}, Decimals: 0,
+		Reports: [][]float64{{0.5, 0.5}}, Values: [][]float64{{99.75 * 4, 0}}}
+	if err := Convert(tb, 0, 400); err != nil {
+		t.Fatal(err)
+	}
+	if tb.Decimals != 4 {
+		t.Errorf("decimals %d, want 4 (399/400 = 0.9975)", tb.Decimals)
+	}
 }
 
 func TestConvert(t *testing.T) {
