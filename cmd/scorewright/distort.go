@@ -7,12 +7,11 @@ import (
 	"math"
 	"text/tabwriter"
 
-	"gonum.org/v1/gonum/floats"
-
 	"scorewright/generator/budget"
 	"scorewright/generator/design"
 	"scorewright/generator/num"
 	"scorewright/generator/risk"
+	"scorewright/generator/risk/riskfit"
 )
 
 const distortUsage = "RULE BUDGET --utility crra:R|cara:A|linear [--wealth W] [--belief q1,q2,...] [--json]\n\nRULE: " + outcomeRuleUsage + "\nBUDGET: " + budgetUsage
@@ -82,37 +81,31 @@ func runDistort(e *env, args []string) error {
 		return err
 	}
 	n := rule.Outcomes()
-	if !(d.Budget.Step > 0) {
-		return usagef("the report menu is missing: give --step S (e.g. 0.05; 1/K for a simplex grid when n > 2)")
-	}
-	menu, err := budget.StepMenu(n, d.Budget.Step, d.Budget.ReportFloor)
-	if err != nil {
-		return usagef("%v", err)
-	}
-	fit, err := budget.FitRule(rule, menu, d.Budget)
+	fitted, err := riskfit.New(rule, d.Budget)
 	var ue *budget.UnboundedError
-	if errors.As(err, &ue) && ue.AtZero {
+	var me *riskfit.MenuError
+	switch {
+	case errors.Is(err, riskfit.ErrNoStep):
+		return usagef("the report menu is missing: give --step S (e.g. 0.05; 1/K for a simplex grid when n > 2)")
+	case errors.As(err, &me):
+		return usagef("%v", me.Err)
+	case errors.As(err, &ue) && ue.AtZero:
 		// distort has no --clamp: a clamped rule has kinks the optimiser's
 		// gradient cannot follow, so the report floor is the one way out.
 		return usagef("the rule's effort is %v at report %s when %q happens: the rule is unbounded where a report gives an outcome probability 0; give --report-floor P (e.g. 0.01) so that every report gives each outcome at least P",
 			ue.Effort, num.Format(ue.Report), ue.Label)
-	} else if err != nil {
+	case err != nil:
 		return fitError(err)
 	}
-	solver, err := risk.NewSolver(rule, risk.Contract{A: fit.A, B: fit.B, MinPay: math.Min(fit.Floor, fit.MinPay), ReportFloor: d.Budget.ReportFloor}, u, *wealth)
+	menu, fit := fitted.Menu, fitted.Fit
+	solver, err := fitted.Solver(rule, u, *wealth)
 	if err != nil {
 		return usagef("%v", err)
 	}
-	q := d.Budget.Reference
+	q := riskfit.Belief(d.Budget, n)
 	if *belief != "" {
 		if q, err = num.ParseDistribution(*belief, n); err != nil {
 			return usagef("--belief: %v", err)
-		}
-	}
-	if q == nil {
-		q = make([]float64, n)
-		for i := range q {
-			q[i] = 1 / float64(n)
 		}
 	}
 	for _, v := range q {
@@ -126,19 +119,7 @@ func runDistort(e *env, args []string) error {
 	}
 	pick := menu.Reports[solver.BestOf(q, fit.Pays)]
 
-	var beliefs [][]float64
-	along := "event probability, step 0.01"
-	if n == 2 {
-		beliefs = risk.BinaryBeliefs(0.01, d.Budget.ReportFloor)
-	} else {
-		all, _ := risk.DirectionBeliefs(n, 10)
-		for _, b := range all {
-			if floats.Min(b) >= d.Budget.ReportFloor {
-				beliefs = append(beliefs, b)
-			}
-		}
-		along = fmt.Sprintf("segments from the uniform belief toward each of the %d outcomes, tenths of the way, beliefs below the report floor left out", n)
-	}
+	beliefs, _, along := riskfit.CurveBeliefs(n, d.Budget.ReportFloor)
 	curve, err := solver.Distortion(context.Background(), beliefs, nil)
 	if err != nil {
 		return err
