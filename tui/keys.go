@@ -7,7 +7,7 @@ import "github.com/charmbracelet/bubbles/key"
 // printable key first.
 type KeyMap struct {
 	// Global.
-	Quit, QuitHard, Help, NextPane, PrevPane, Save, Open, Export, Demo, Backtest key.Binding
+	Quit, QuitHard, Help, NextPane, PrevPane, Save, Open, Export, Demo, Backtest, Risk key.Binding
 	// Moving inside a pane and changing the selected item.
 	Up, Down, Less, More, LessFine, MoreFine, Edit, Leave, Toggle key.Binding
 	// Design pane.
@@ -40,6 +40,7 @@ func DefaultKeyMap() KeyMap {
 		Export:   b([]string{"ctrl+x"}, "ctrl+x", "export the table"),
 		Demo:     b([]string{"ctrl+n"}, "ctrl+n", "next demo design"),
 		Backtest: b([]string{"ctrl+b"}, "ctrl+b", "backtest a forecast history"),
+		Risk:     b([]string{"ctrl+r"}, "ctrl+r", "risk attitude view"),
 
 		Up:       b([]string{"up"}, "↑", "previous item"),
 		Down:     b([]string{"down"}, "↓", "next item"),
@@ -85,12 +86,13 @@ type helpGroup struct {
 // groups lists every key, for the help overlay.
 func (k KeyMap) groups() []helpGroup {
 	return []helpGroup{
-		{"Anywhere", []key.Binding{k.QuitHard, k.Quit, k.Help, k.NextPane, k.PrevPane, k.Save, k.Open, k.Export, k.Demo, k.Backtest}},
+		{"Anywhere", []key.Binding{k.QuitHard, k.Quit, k.Help, k.NextPane, k.PrevPane, k.Save, k.Open, k.Export, k.Demo, k.Backtest, k.Risk}},
 		{"Design", []key.Binding{k.Up, k.Down, k.Edit, k.Leave, k.Less, k.More, k.LessFine, k.MoreFine, k.Toggle, k.AddOutcome, k.DropOutcome}},
 		{"Picture", []key.Binding{k.Measure, k.BeliefDown, k.BeliefUp, k.Pair}},
 		{"Checks", []key.Binding{k.Rerun}},
 		{"Budget", []key.Binding{k.Up, k.Down, k.Less, k.More, k.LessFine, k.MoreFine, k.Edit, k.PageUp, k.PageDown}},
 		{"Backtest", []key.Binding{k.History, k.StopRun, k.Up, k.Down, k.PageUp, k.PageDown, k.Leave}},
+		{"Risk attitude", []key.Binding{k.Up, k.Down, k.Less, k.More, k.LessFine, k.MoreFine, k.Leave}},
 		{"Dialogs", []key.Binding{k.Field, k.Lottery, k.Confirm, k.Cancel, k.Yes, k.No}},
 	}
 }

@@ -16,6 +16,7 @@ import (
 	"github.com/charmbracelet/lipgloss"
 
 	"scorewright/generator/design"
+	"scorewright/generator/risk"
 	"scorewright/generator/safefile"
 )
 
@@ -82,6 +83,15 @@ type Model struct {
 	history    string // the forecast history the backtest replays ("" none)
 	showBT     bool   // the backtest view replaces the panes
 	bt         BacktestView
+	showRisk   bool // the risk view replaces the panes
+	risk       RiskView
+	riskIn     RiskInputs
+	riskSet    bool                  // the user changed the wealth, so it no longer follows the budget
+	riskCoefs  map[risk.Kind]float64 // each family's last coefficient
+	riskRun    uint64                // id of the latest risk run
+	riskGen    uint64                // generation the latest risk run is for
+	riskFor    RiskInputs            // inputs the latest risk run is for
+	cancelRisk context.CancelFunc
 	demoIndex  int
 	savedGen   uint64 // generation last opened or saved
 	armed      string // a key pressed once that needs a second press
@@ -127,6 +137,9 @@ func New(d *design.Design, path string, set Settings, st Styles) *Model {
 		budget:     NewBudgetPane(st, keys, set.Fitter != nil),
 		helpView:   viewport.New(40, 10),
 		bt:         NewBacktestView(st, keys),
+		risk:       NewRiskView(st, keys),
+		riskIn:     defaultRiskInputs(d),
+		riskCoefs:  map[risk.Kind]float64{},
 	}
 	m.helpView.KeyMap = viewport.KeyMap{Up: keys.Up, Down: keys.Down, PageUp: keys.PageUp, PageDown: keys.PageDown}
 	m.designPane.Focus()
@@ -159,6 +172,18 @@ func (m *Model) BacktestShown() bool { return m.showBT }
 
 // BacktestRunning reports whether a backtest runs in the background.
 func (m *Model) BacktestRunning() bool { return m.bt.Running() }
+
+// RiskShown reports whether the risk view is open.
+func (m *Model) RiskShown() bool { return m.showRisk }
+
+// Risk is the last finished risk result, or nil.
+func (m *Model) Risk() *RiskResult { return m.risk.Result() }
+
+// RiskRunning reports whether a risk run is in progress.
+func (m *Model) RiskRunning() bool { return m.risk.Running() }
+
+// RiskInputs are the risk view's current inputs.
+func (m *Model) RiskInputs() RiskInputs { return m.riskIn }
 
 // Status is the status line's message.
 func (m *Model) Status() string { return m.status }
@@ -238,6 +263,9 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		return m, m.requestPicture()
 	case btRunMsg:
 		return m, m.backtestMsg(msg)
+	case riskRunMsg:
+		m.riskMsg(msg)
+		return m, nil
 	case savedMsg:
 		gen := msg.gen
 		return m, m.fileDone(msg.err, func() {
@@ -265,6 +293,8 @@ func (m *Model) wanted(msg tea.Msg) bool {
 		return r.run == m.checkRun
 	case btRunMsg:
 		return r.run == m.btRun
+	case riskRunMsg:
+		return r.run == m.riskRun
 	}
 	return false
 }
@@ -355,6 +385,31 @@ func (m *Model) key(km tea.KeyMsg) tea.Cmd {
 			m.showBT = false
 		}
 	}
+	if m.showRisk {
+		switch {
+		case key.Matches(km, k.Leave), key.Matches(km, k.Risk):
+			m.showRisk = false
+			return m.requestPicture()
+		case key.Matches(km, k.Up):
+			m.risk.sel = (m.risk.sel + riskFieldCount - 1) % riskFieldCount
+			return nil
+		case key.Matches(km, k.Down):
+			m.risk.sel = (m.risk.sel + 1) % riskFieldCount
+			return nil
+		case key.Matches(km, k.Less), key.Matches(km, k.More), key.Matches(km, k.LessFine), key.Matches(km, k.MoreFine):
+			up := key.Matches(km, k.More) || key.Matches(km, k.MoreFine)
+			fine := key.Matches(km, k.LessFine) || key.Matches(km, k.MoreFine)
+			if riskStep(&m.riskIn, m.risk.sel, m.d, up, fine, m.riskCoefs) {
+				if m.risk.sel == riskWealth {
+					m.riskSet = true
+				}
+				return m.maybeRisk()
+			}
+			return nil
+		case key.Matches(km, k.NextPane), key.Matches(km, k.PrevPane):
+			m.showRisk = false
+		}
+	}
 	typing := m.designPane.Typing() || m.budget.Typing()
 	switch {
 	case km.Type == tea.KeyF1 || (!typing && key.Matches(km, k.Help)):
@@ -378,7 +433,10 @@ func (m *Model) key(km tea.KeyMsg) tea.Cmd {
 		m.openDialog(dialogExport)
 		return nil
 	case key.Matches(km, k.Backtest):
+		m.showRisk = false
 		return m.toggleBacktest()
+	case key.Matches(km, k.Risk):
+		return m.toggleRisk()
 	case !typing && key.Matches(km, k.Demo):
 		if !m.confirmDiscard(km, "ctrl+n again discards them") {
 			return nil
@@ -394,7 +452,7 @@ func (m *Model) key(km tea.KeyMsg) tea.Cmd {
 		}
 		return m.quit()
 	}
-	if m.showBT {
+	if m.showBT || m.showRisk {
 		return nil
 	}
 	return m.routeToPane(km)
@@ -446,6 +504,15 @@ func (m *Model) edited() tea.Cmd {
 		m.btRun++ // answers of the run for the old design are now stale
 		m.bt.edited()
 	}
+	m.stopRisk()
+	m.riskRun++ // answers of the run for the old design are now stale
+	m.risk.edited()
+	if !m.riskSet {
+		m.riskIn.Wealth = defaultRiskInputs(m.d).Wealth
+	}
+	if m.riskIn.Belief != nil && len(m.riskIn.Belief) != m.d.N() {
+		m.riskIn.Belief = nil
+	}
 	m.status = ""
 	return tea.Batch(compileCmd(m.gen, cloneDesign(m.d)), m.debounce())
 }
@@ -488,7 +555,7 @@ func (m *Model) maybeStart() tea.Cmd {
 	if m.compGen != m.gen || m.debouncedGen != m.gen {
 		return nil
 	}
-	bt := m.maybeBacktest()
+	bt := tea.Batch(m.maybeBacktest(), m.maybeRisk())
 	if m.checkGen == m.gen {
 		return bt
 	}
@@ -717,6 +784,15 @@ func (m *Model) layout() {
 	m.budget.SetSize(rw, bh-top)
 }
 
+// stopTyping ends any editing in the panes before a view replaces them.
+func (m *Model) stopTyping() {
+	m.designPane.stopEditing()
+	if m.budget.Typing() {
+		m.budget.Blur()
+		m.budget.Focus()
+	}
+}
+
 // toggleBacktest opens the backtest view (asking for a history first when
 // none is loaded) or closes it.
 func (m *Model) toggleBacktest() tea.Cmd {
@@ -724,11 +800,7 @@ func (m *Model) toggleBacktest() tea.Cmd {
 		m.showBT = false
 		return m.requestPicture()
 	}
-	m.designPane.stopEditing()
-	if m.budget.Typing() {
-		m.budget.Blur()
-		m.budget.Focus()
-	}
+	m.stopTyping()
 	if m.history == "" {
 		m.openDialog(dialogHistory)
 		return nil
@@ -797,8 +869,11 @@ func (m *Model) backtestMsg(msg btRunMsg) tea.Cmd {
 	return nil
 }
 
-// layoutBacktest sizes the backtest view: the whole body.
-func (m *Model) layoutBacktest() { m.bt.SetSize(m.width, m.height-2) }
+// layoutBacktest sizes the backtest and risk views: the whole body.
+func (m *Model) layoutBacktest() {
+	m.bt.SetSize(m.width, m.height-2)
+	m.risk.SetSize(m.width, m.height-2)
+}
 
 func (m *Model) large() bool { return m.width >= 120 && m.height >= 40 }
 
@@ -818,6 +893,8 @@ func (m *Model) View() string {
 	var body string
 	if m.showBT {
 		body = m.bt.View()
+	} else if m.showRisk {
+		body = m.risk.View(m.d, m.riskIn)
 	} else if m.large() {
 		left := lipgloss.JoinVertical(lipgloss.Left, m.designPane.View(m.d), m.budget.View(m.d))
 		right := lipgloss.JoinVertical(lipgloss.Left, m.picture.View(), m.checks.View())
@@ -855,7 +932,7 @@ func (m *Model) headerLine() string {
 	mid := m.st.Dim.Render(fmt.Sprintf(" · %s · %s · %s", where, what, m.d.Mode))
 	var tabs []string
 	for p, name := range []string{"design", "picture", "checks", "budget"} {
-		if pane(p) == m.focus && !m.showBT {
+		if pane(p) == m.focus && !m.showBT && !m.showRisk {
 			tabs = append(tabs, m.st.Selected.Render("["+name+"]"))
 		} else {
 			tabs = append(tabs, m.st.Dim.Render(" "+name+" "))
@@ -863,6 +940,9 @@ func (m *Model) headerLine() string {
 	}
 	if m.showBT {
 		tabs = []string{m.st.Selected.Render("[backtest]"), m.st.Dim.Render(" esc: back to the panes")}
+	}
+	if m.showRisk {
+		tabs = []string{m.st.Selected.Render("[risk]"), m.st.Dim.Render(" esc: back to the panes")}
 	}
 	right := strings.Join(tabs, "")
 	gap := m.width - lipgloss.Width(left) - lipgloss.Width(mid) - lipgloss.Width(right)
@@ -886,6 +966,8 @@ func (m *Model) footerLine() string {
 		switch {
 		case m.showBT:
 			pane = m.bt.KeyHelp()
+		case m.showRisk:
+			pane = m.risk.KeyHelp()
 		case m.focus == paneDesign:
 			pane = m.designPane.KeyHelp()
 		case m.focus == panePicture:
@@ -898,7 +980,7 @@ func (m *Model) footerLine() string {
 		keys = []key.Binding{as(k.Help, "?", "keys"), as(k.NextPane, "tab", "pane"), k.Quit}
 		for _, b := range pane {
 			switch {
-			case b.Help() == k.Up.Help():
+			case b.Help() == k.Up.Help() && !m.showRisk:
 				keys = append(keys, as(b, "↑/↓", "select"))
 			case b.Help() == k.Down.Help():
 			default:
@@ -928,4 +1010,62 @@ func overlay(screen, box string, w, h int) string {
 		lines[top+i] = cutLeft(row, left) + l + cutRight(row, left+lipgloss.Width(l), w)
 	}
 	return strings.Join(lines, "\n")
+}
+
+// toggleRisk opens the risk view, starting a run when its result is not
+// for the current design and inputs, or closes it.
+func (m *Model) toggleRisk() tea.Cmd {
+	if m.showRisk {
+		m.showRisk = false
+		return m.requestPicture()
+	}
+	m.stopTyping()
+	m.showBT, m.showRisk = false, true
+	return m.maybeRisk()
+}
+
+// maybeRisk starts a risk run when the view is open and its last run is
+// not for the current design (compiled and debounced) and inputs.
+func (m *Model) maybeRisk() tea.Cmd {
+	if !m.showRisk || m.compGen != m.gen || m.debouncedGen != m.gen {
+		return nil
+	}
+	if m.riskGen == m.gen && sameInputs(m.riskFor, m.riskIn) && (m.risk.Running() || m.risk.Result() != nil || m.risk.err != nil) {
+		return nil
+	}
+	m.stopRisk()
+	ctx, cancel := context.WithCancel(m.ctx)
+	m.cancelRisk = cancel
+	m.riskRun++
+	m.riskGen, m.riskFor = m.gen, m.riskIn
+	m.risk.started()
+	return riskCmd(ctx, m.riskRun, cloneDesign(m.d), m.riskIn)
+}
+
+func sameInputs(a, b RiskInputs) bool {
+	return a.Kind == b.Kind && a.Coef == b.Coef && a.Wealth == b.Wealth && (a.Belief == nil) == (b.Belief == nil) && sameVector(a.Belief, b.Belief)
+}
+
+func (m *Model) stopRisk() {
+	if m.cancelRisk != nil {
+		m.cancelRisk()
+		m.cancelRisk = nil
+	}
+}
+
+// riskMsg takes a message of the current risk run.
+func (m *Model) riskMsg(msg riskRunMsg) {
+	if msg.run != m.riskRun {
+		return
+	}
+	switch inner := msg.msg.(type) {
+	case riskProgressMsg:
+		m.risk.progressed(inner.done, inner.total)
+	case riskDoneMsg:
+		if errors.Is(inner.err, context.Canceled) {
+			return
+		}
+		m.cancelRisk = nil
+		m.risk.finished(inner.res, inner.err)
+	}
 }

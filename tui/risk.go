@@ -1,0 +1,527 @@
+package tui
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"strings"
+
+	"github.com/charmbracelet/bubbles/key"
+	"github.com/charmbracelet/bubbles/progress"
+	tea "github.com/charmbracelet/bubbletea"
+
+	"scorewright/generator/budget"
+	"scorewright/generator/design"
+	"scorewright/generator/num"
+	"scorewright/generator/risk"
+	"scorewright/generator/risk/riskfit"
+)
+
+// riskField is one adjustable input of the risk view, in ↑/↓ order.
+type riskField int
+
+const (
+	riskFamily riskField = iota
+	riskCoef
+	riskWealth
+	riskBelief
+	riskFieldCount
+)
+
+// RiskInputs are what the risk view's keys adjust: the forecaster's
+// utility of money, initial wealth and the belief shown in detail.
+type RiskInputs struct {
+	// Kind is risk.CRRA or risk.CARA; Coef its coefficient (0 linear).
+	Kind risk.Kind
+	Coef float64
+	// Wealth is the initial wealth; utility is of Wealth + pay.
+	Wealth float64
+	// Belief is the belief shown in detail (nil: the budget's reference
+	// belief, else uniform).
+	Belief []float64
+}
+
+// Utility is the inputs' utility.
+func (in RiskInputs) Utility() risk.Utility { return risk.Utility{Kind: in.Kind, Coef: in.Coef} }
+
+// RiskResult is what a finished risk run shows.
+type RiskResult struct {
+	Inputs RiskInputs
+	Labels []string
+	// Pay says how pay follows from effort and where it was fitted.
+	Pay string
+	// Chosen is the best report for the chosen belief; MenuPick the menu
+	// item a forecaster held to the rounded table picks.
+	Chosen   *risk.Result
+	MenuPick []float64
+	// Curve is the distortion over Beliefs; Toward names each belief's
+	// direction for n > 2 (the outcome index it heads for).
+	Curve  *risk.Curve
+	Toward []int
+	Along  string
+}
+
+// Messages of a risk run, each wrapped in a riskRunMsg with its run id.
+type (
+	riskProgressMsg struct{ done, total int }
+	riskDoneMsg     struct {
+		res *RiskResult
+		err error
+	}
+	riskRunMsg struct {
+		run uint64
+		msg tea.Msg
+	}
+)
+
+// riskCmd computes, for design d and the inputs, the chosen belief's best
+// report and the distortion curve, fitted as `scorewright distort` fits
+// (generator/risk/riskfit).
+func riskCmd(ctx context.Context, run uint64, d *design.Design, in RiskInputs) tea.Cmd {
+	tag := func(m tea.Msg) tea.Msg { return riskRunMsg{run: run, msg: m} }
+	return runStream(ctx, func(send func(tea.Msg, bool)) {
+		res, err := riskRun(ctx, d, in, func(done, total int) { send(tag(riskProgressMsg{done, total}), false) })
+		send(tag(riskDoneMsg{res: res, err: err}), true)
+	})
+}
+
+// riskRun is the work of riskCmd.
+func riskRun(ctx context.Context, d *design.Design, in RiskInputs, progress func(done, total int)) (*RiskResult, error) {
+	if d.Mode != design.ModeGenerator && d.Mode != design.ModeEmphasis {
+		return nil, fmt.Errorf("the risk view works on rules over outcomes (generator or emphasis designs); this is a %s design", modeName(d))
+	}
+	rule, _, _, err := designRule(d)
+	if err != nil {
+		return nil, err
+	}
+	fitted, err := riskfit.New(rule, d.Budget)
+	var ue *budget.UnboundedError
+	switch {
+	case errors.Is(err, riskfit.ErrNoStep):
+		return nil, errors.New("set a report menu step (Step) in the budget: the pay is fitted on the menu, as the table is")
+	case errors.As(err, &ue) && ue.AtZero:
+		return nil, fmt.Errorf("the rule's effort is %v at report %s when %q happens: it is unbounded where a report gives an outcome probability 0; give the design a report floor (report_floor in the design file, e.g. 0.01)", ue.Effort, num.Format(ue.Report), ue.Label)
+	case err != nil:
+		return nil, err
+	}
+	c := fitted.Contract
+	if in.Kind == risk.CRRA && in.Coef != 0 && !(in.Wealth+c.MinPay > 0) {
+		return nil, fmt.Errorf("CRRA utility needs positive final wealth: initial wealth %g plus the smallest payment %g is not positive; raise the wealth", in.Wealth, c.MinPay)
+	}
+	solver, err := fitted.Solver(rule, in.Utility(), in.Wealth)
+	if err != nil {
+		return nil, err
+	}
+	q := in.Belief
+	if q == nil {
+		q = riskfit.Belief(d.Budget, d.N())
+	}
+	chosen, err := solver.Best(q)
+	if err != nil {
+		return nil, err
+	}
+	fit := fitted.Fit
+	out := &RiskResult{Inputs: in, Labels: append([]string(nil), d.Labels...), Chosen: chosen,
+		MenuPick: fitted.Menu.Reports[solver.BestOf(q, fit.Pays)],
+		Pay:      fmt.Sprintf("pay = %.6g - %.6g × effort, fitted on the %d-report menu", fit.A, fit.B, len(fitted.Menu.Reports))}
+	beliefs, toward, along := riskfit.CurveBeliefs(d.N(), d.Budget.ReportFloor)
+	out.Toward, out.Along = toward, along
+	if out.Curve, err = solver.Distortion(ctx, beliefs, progress); err != nil {
+		return nil, err
+	}
+	return out, nil
+}
+
+// modeName names a design's mode in words.
+func modeName(d *design.Design) string {
+	if d.Mode == design.ModePayout {
+		return "payout audit"
+	}
+	if d.Mode == design.ModePoint {
+		return "point-forecast"
+	}
+	return string(d.Mode)
+}
+
+// RiskView shows what a risk-averse or risk-seeking forecaster reports
+// under the design's money payments: the inputs, the distortion curve
+// (n = 2) or a table along the directions (n > 2), the chosen belief's
+// best report and the note on lottery payments. It replaces the four
+// panes while it is open.
+type RiskView struct {
+	st      Styles
+	keys    KeyMap
+	w, h    int
+	sel     riskField
+	bar     progress.Model
+	running bool
+	done    float64
+	res     *RiskResult
+	err     error
+	stale   bool // the result is for earlier inputs or an earlier design
+}
+
+// NewRiskView returns an empty risk view.
+func NewRiskView(st Styles, keys KeyMap) RiskView {
+	bar := progress.New(progress.WithFillCharacters('█', '░'), progress.WithoutPercentage(), progress.WithSolidFill("#6FD3B5"))
+	return RiskView{st: st, keys: keys, bar: bar}
+}
+
+// SetSize sets the outer size of the view.
+func (v *RiskView) SetSize(w, h int) {
+	v.w, v.h = w, h
+	v.bar.Width = max(10, min(30, w-40))
+}
+
+// KeyHelp lists the view's keys.
+func (v RiskView) KeyHelp() []key.Binding {
+	k := v.keys
+	return []key.Binding{key.NewBinding(key.WithKeys(k.Leave.Keys()...), key.WithHelp("esc", "close")),
+		key.NewBinding(key.WithKeys(k.Up.Keys()...), key.WithHelp("↑/↓", "input")),
+		key.NewBinding(key.WithKeys(k.More.Keys()...), key.WithHelp("←/→", "step (shift: small)"))}
+}
+
+// Result is the last finished result, or nil.
+func (v RiskView) Result() *RiskResult { return v.res }
+
+// Running reports whether a risk run is in progress.
+func (v RiskView) Running() bool { return v.running }
+
+func (v *RiskView) started() { v.running, v.done, v.err, v.stale = true, 0, nil, v.res != nil }
+
+// edited marks the result as being for an earlier design.
+func (v *RiskView) edited() {
+	v.stale = v.res != nil
+	v.running = false
+}
+
+func (v *RiskView) progressed(done, total int) {
+	if total > 0 {
+		v.done = float64(done) / float64(total)
+	}
+}
+
+func (v *RiskView) finished(r *RiskResult, err error) {
+	v.running, v.err = false, err
+	if err == nil {
+		v.res, v.stale = r, false
+	}
+}
+
+// riskSteps are the steps of the inputs, from the design's pay range:
+// wealth in tenths of it, CARA's coefficient around 1/range (absolute
+// risk aversion is per unit of money), CRRA's in halves.
+type riskSteps struct{ wealth, cara, crra float64 }
+
+// payRange is the spread of the design's payments as its budget states
+// them (cap or mean pay minus floor; 1 when that is not positive).
+func payRange(b design.Budget) float64 {
+	top := b.Cap
+	if b.MeanPay != nil {
+		top = *b.MeanPay
+	}
+	if r := top - b.Floor; r > 0 && !math.IsInf(r, 0) {
+		return r
+	}
+	return 1
+}
+
+func stepsFor(b design.Budget) riskSteps {
+	r := payRange(b)
+	return riskSteps{wealth: niceStep(r / 10), cara: niceStep(1 / (2 * r)), crra: 0.5}
+}
+
+// defaultRiskInputs are the inputs the view starts with for design d:
+// CRRA 1 (log utility) and an initial wealth of one pay range, so that
+// final wealth stays positive under any payment of the budget.
+func defaultRiskInputs(d *design.Design) RiskInputs {
+	return RiskInputs{Kind: risk.CRRA, Coef: 1, Wealth: payRange(d.Budget)}
+}
+
+// riskStep changes the selected input of in by one step (fine: a tenth)
+// up or down; for the belief of n > 2 it moves through the curve's
+// beliefs. It returns whether anything changed.
+func riskStep(in *RiskInputs, f riskField, d *design.Design, up, fine bool, family map[risk.Kind]float64) bool {
+	s := stepsFor(d.Budget)
+	sign := 1.0
+	if !up {
+		sign = -1
+	}
+	tenth := 1.0
+	if fine {
+		tenth = 0.1
+	}
+	round := func(x, step float64) float64 { return math.Round(x/step*1e6) / 1e6 * step }
+	switch f {
+	case riskFamily:
+		family[in.Kind] = in.Coef
+		if in.Kind == risk.CRRA {
+			in.Kind = risk.CARA
+		} else {
+			in.Kind = risk.CRRA
+		}
+		c, ok := family[in.Kind]
+		if !ok {
+			c = 2 * s.cara // about 1/range: CRRA 1 at a wealth of one range
+		}
+		in.Coef = c
+	case riskCoef:
+		st := s.crra
+		if in.Kind == risk.CARA {
+			st = s.cara
+		}
+		in.Coef = round(in.Coef+sign*st*tenth, st*tenth)
+	case riskWealth:
+		in.Wealth = round(in.Wealth+sign*s.wealth*tenth, s.wealth*tenth)
+	case riskBelief:
+		return stepBelief(in, d, up, fine)
+	}
+	return true
+}
+
+// stepBelief moves the chosen belief: for n = 2 the event probability by
+// 0.05 (fine 0.01) inside the report floor; for n > 2 to the next or
+// previous belief of the uniform one and the curve's.
+func stepBelief(in *RiskInputs, d *design.Design, up, fine bool) bool {
+	floor := math.Max(d.Budget.ReportFloor, 0.01)
+	q := in.Belief
+	if q == nil {
+		q = riskfit.Belief(d.Budget, d.N())
+	}
+	if d.N() == 2 {
+		st := 0.05
+		if fine {
+			st = 0.01
+		}
+		if !up {
+			st = -st
+		}
+		x := math.Round((q[0]+st)*100) / 100
+		x = math.Min(1-floor, math.Max(floor, x))
+		if x == q[0] {
+			return false
+		}
+		in.Belief = []float64{x, 1 - x}
+		return true
+	}
+	beliefs, _, _ := riskfit.CurveBeliefs(d.N(), d.Budget.ReportFloor)
+	list := append([][]float64{riskfit.Belief(d.Budget, d.N())}, beliefs...)
+	at := 0
+	for i, b := range list {
+		if sameVector(b, q) {
+			at = i
+		}
+	}
+	if up {
+		at = (at + 1) % len(list)
+	} else {
+		at = (at + len(list) - 1) % len(list)
+	}
+	in.Belief = list[at]
+	return true
+}
+
+func sameVector(a, b []float64) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	for i := range a {
+		if math.Abs(a[i]-b[i]) > 1e-12 {
+			return false
+		}
+	}
+	return true
+}
+
+// statusLine says where the view's content stands.
+func (v RiskView) statusLine() string {
+	st := v.st
+	switch {
+	case v.running:
+		return v.bar.ViewAs(v.done) + fmt.Sprintf(" %3.0f%% solving for the best reports", v.done*100)
+	case v.err != nil:
+		return st.Error.Render("✗ " + strings.ReplaceAll(v.err.Error(), "\n", "; "))
+	case v.res == nil:
+		return st.Dim.Render("computing…")
+	case v.stale:
+		return st.Dim.Render("previous inputs; computing again")
+	}
+	return st.Dim.Render("current design and inputs")
+}
+
+// inputsLine shows the inputs with the selected one marked.
+func (v RiskView) inputsLine(in RiskInputs, d *design.Design) string {
+	st := v.st
+	q := in.Belief
+	if q == nil {
+		q = riskfit.Belief(d.Budget, d.N())
+	}
+	belief := reportText(q, d.Labels)
+	if d.N() == 2 {
+		belief = fmt.Sprintf("%g %s", q[0], d.Labels[0])
+	}
+	family := "CRRA"
+	if in.Kind == risk.CARA {
+		family = "CARA"
+	}
+	items := []struct{ name, val string }{{"utility", family}, {"coefficient", fmt.Sprintf("%g", in.Coef)},
+		{"wealth", fmt.Sprintf("%g", in.Wealth)}, {"belief", belief}}
+	var parts []string
+	for i, it := range items {
+		s := st.Label.Render(it.name) + " " + it.val
+		if riskField(i) == v.sel {
+			s = st.Selected.Render("› " + it.name + " " + it.val)
+		} else {
+			s = "  " + s
+		}
+		parts = append(parts, s)
+	}
+	return strings.Join(parts, "  ")
+}
+
+// describe says in words what the utility is.
+func describe(in RiskInputs) string {
+	name := fmt.Sprintf("%s %g", strings.ToUpper(string(in.Kind)), in.Coef)
+	switch {
+	case in.Coef == 0:
+		return "linear utility (risk-neutral): the truthful report is best"
+	case in.Coef > 0:
+		return "risk-averse (" + name + ")"
+	}
+	return "risk-seeking (" + name + ")"
+}
+
+// lotteryNote is the remedy, said under every result.
+const lotteryNote = "A lottery payment (ctrl+l in the export dialog: a chance (pay - floor)/(cap - floor) of one prize) removes this distortion for any expected-utility maximiser."
+
+// View draws the view for design d and the current inputs.
+func (v RiskView) View(d *design.Design, in RiskInputs) string {
+	st := v.st
+	iw, ih := max(4, v.w-2), max(1, v.h-2)
+	lines := []string{v.statusLine(), v.inputsLine(in, d)}
+	r := v.res
+	if r == nil {
+		return paneFrame(st, "Risk attitude — what the forecaster would report", true, v.w, v.h, strings.Join(lines, "\n"))
+	}
+	lines = append(lines, strings.Split(st.Dim.Width(iw).Render(describe(r.Inputs)+" · "+r.Pay), "\n")...)
+	text := v.resultText(r, iw)
+	if len(r.Labels) == 2 {
+		chartW := iw
+		side := iw >= 100
+		if side {
+			chartW = iw * 55 / 100
+		}
+		rest := ih - len(lines)
+		chartH := rest
+		if !side {
+			chartH = max(distortMinHeight, rest-len(text))
+		}
+		chart := drawDistortion(st, chartW, min(chartH, 26), r)
+		if side {
+			tw := iw - chartW - 2
+			text = v.resultText(r, tw)
+			cl := strings.Split(chart, "\n")
+			for i := 0; i < max(len(cl), len(text)); i++ {
+				a, b := "", ""
+				if i < len(cl) {
+					a = cl[i]
+				}
+				if i < len(text) {
+					b = text[i]
+				}
+				lines = append(lines, fit(a, chartW)+"  "+b)
+			}
+		} else {
+			lines = append(lines, strings.Split(chart, "\n")...)
+			lines = append(lines, text...)
+		}
+	} else {
+		lines = append(lines, v.directionTable(r, iw)...)
+		lines = append(lines, text...)
+	}
+	return paneFrame(st, "Risk attitude — what the forecaster would report", true, v.w, v.h, strings.Join(lines, "\n"))
+}
+
+// resultText is the largest distortion, the chosen belief and the note,
+// wrapped to width.
+func (v RiskView) resultText(r *RiskResult, width int) []string {
+	st := v.st
+	wrap := func(s string) []string {
+		return strings.Split(st.Dim.Width(max(10, width)).UnsetForeground().Render(s), "\n")
+	}
+	var out []string
+	lg := r.Curve.Largest
+	where := "belief " + reportText(lg.Belief, r.Labels)
+	if len(r.Labels) == 2 {
+		where = fmt.Sprintf("belief %g in %q", lg.Belief[0], r.Labels[0])
+	} else if i := indexOf(r.Curve.Points, lg); i >= 0 && i < len(r.Toward) {
+		where = fmt.Sprintf("belief %s (toward %q)", reportText(lg.Belief, r.Labels), r.Labels[r.Toward[i]])
+	}
+	out = append(out, wrap(fmt.Sprintf("Largest distortion %.3g probability points, at %s: best report %s.", lg.Size, where, reportText(lg.Report, r.Labels)))...)
+	c := r.Chosen
+	out = append(out, wrap(fmt.Sprintf("Chosen belief %s: best report %s (truthful %s), %.3g points away; menu pick %s; expected pay %.4g (truthful %.4g).",
+		reportText(c.Belief, r.Labels), reportText(c.Report, r.Labels), reportText(c.Belief, r.Labels), c.Size, reportText(r.MenuPick, r.Labels), c.ExpectedPay, c.TruthfulPay))...)
+	out = append(out, strings.Split(st.Dim.Width(max(10, width)).Render(lotteryNote), "\n")...)
+	return out
+}
+
+// reportText is a report or belief in few digits: for n = 2 the
+// probability of the first outcome alone.
+func reportText(p []float64, labels []string) string {
+	if len(labels) == 2 {
+		return fmt.Sprintf("%.3g", p[0])
+	}
+	parts := make([]string, len(p))
+	for i, v := range p {
+		parts[i] = fmt.Sprintf("%.3g", v)
+	}
+	return "(" + strings.Join(parts, ", ") + ")"
+}
+
+func indexOf(ps []risk.Result, r risk.Result) int {
+	for i, p := range ps {
+		if sameVector(p.Belief, r.Belief) {
+			return i
+		}
+	}
+	return -1
+}
+
+// directionTable is the distortion in points along each direction from
+// the uniform belief, one row per outcome, one column per tenth of the
+// way (— where the report floor leaves the belief out).
+func (v RiskView) directionTable(r *RiskResult, width int) []string {
+	st := v.st
+	head := fmt.Sprintf("%-12s", "toward")
+	for s := 1; s < riskfit.CurveSteps; s++ {
+		head += fmt.Sprintf("%6.1f", float64(s)/riskfit.CurveSteps)
+	}
+	out := strings.Split(st.Dim.Width(max(10, width)).Render("distortion in probability points on the segments from the uniform belief toward each outcome, at tenths of the way:"), "\n")
+	out = append(out, st.Label.Render(head+"  largest"))
+	n := len(r.Labels)
+	for k := 0; k < n; k++ {
+		row := fmt.Sprintf("%-12s", clipText(r.Labels[k], 11))
+		largest := 0.0
+		for s := 1; s < riskfit.CurveSteps; s++ {
+			t := float64(s) / riskfit.CurveSteps
+			cell := "     —"
+			for i, p := range r.Curve.Points {
+				if i < len(r.Toward) && r.Toward[i] == k && math.Abs(p.Belief[k]-((1-t)/float64(n)+t)) < 1e-9 {
+					cell = fmt.Sprintf("%6.3g", p.Size)
+					largest = math.Max(largest, p.Size)
+				}
+			}
+			row += cell
+		}
+		out = append(out, row+fmt.Sprintf("  %7.3g", largest))
+	}
+	return out
+}
+
+func clipText(s string, n int) string {
+	if r := []rune(s); len(r) > n {
+		return string(r[:n-1]) + "…"
+	}
+	return s
+}
