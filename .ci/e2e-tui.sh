@@ -1,7 +1,8 @@
 #!/usr/bin/env bash
 # End-to-end check of the workbench: the real binary in a detached tmux
 # session of fixed size; keys are sent, the pane is captured and checked,
-# the window is resized to 80x24 and 60x20, and the program quits.
+# the window is resized to 80x24 and 60x20, and the program quits. The
+# risk view is opened on both demos.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 
@@ -71,6 +72,18 @@ wait_for "Alder"
 key Escape
 wait_for "Picture"
 
+# Risk view: the frost curve under CRRA 1, then CRRA 2 (coefficient row,
+# two steps right); 9.52 points is what `scorewright distort` gives for
+# the same inputs. esc goes back to the panes.
+key C-r
+wait_for "truthful report"
+wait_for "chosen belief"
+key Down; key Right; key Right
+wait_for "risk-averse (CRRA 2)"
+wait_for "Largest distortion 9.52 probability points"
+key Escape
+wait_for "Picture"
+
 # The harvest demo draws a ternary picture; the edits above are unsaved,
 # so the first ctrl+n asks and the second switches.
 key C-n
@@ -88,6 +101,11 @@ ls "$work"/*.csv >/dev/null
 
 # Resize: the layout follows, then the small-terminal message.
 if t resize-window -t "$session" -x 80 -y 24 2>/dev/null; then
+  wait_for "Picture"
+  key C-r
+  wait_for "toward"
+  wait_for "Largest distortion"
+  key Escape
   wait_for "Picture"
   t resize-window -t "$session" -x 60 -y 20
   wait_for "at least 80×24"

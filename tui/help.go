@@ -27,7 +27,7 @@ func helpText(st Styles, km KeyMap, width int) string {
 	k := km
 	left := []string{
 		section("Anywhere", row(k.QuitHard), row(k.Quit), row(k.Help), row(k.NextPane), row(k.PrevPane),
-			row(k.Save), row(k.Open), row(k.Export), row(k.Demo), row(k.Backtest)),
+			row(k.Save), row(k.Open), row(k.Export), row(k.Demo), row(k.Backtest), row(k.Risk)),
 		section("Design pane", row(k.Up), row(k.Down), row(k.Edit), row(k.Leave), row(k.Less, k.More),
 			row(k.LessFine, k.MoreFine), row(k.Toggle), row(k.AddOutcome), row(k.DropOutcome)),
 	}
@@ -48,6 +48,11 @@ func helpText(st Styles, km KeyMap, width int) string {
 			"↑ ↓ pgup pgdn scroll, esc or ctrl+b close;",
 			"an edit reruns it after the debounce and",
 			"cancels the run for the old design"),
+		section("Risk view (ctrl+r)",
+			"↑ ↓ choose utility, coefficient, wealth or",
+			"belief; ← → step it (shift: a tenth);",
+			"esc or ctrl+r close; a change reruns it",
+			"and cancels the run for the old inputs"),
 		section("Dialogs", row(k.Field), row(k.Lottery), row(k.Confirm), row(k.Cancel), row(k.Yes), row(k.No)),
 	}
 	l := strings.Join(left, "\n\n")
