@@ -400,8 +400,12 @@ func (v RiskView) View(d *design.Design, in RiskInputs) string {
 	st := v.st
 	iw, ih := max(4, v.w-2), max(1, v.h-2)
 	lines := []string{v.statusLine(), v.inputsLine(in, d)}
+	if v.err != nil {
+		lines[0] = st.Error.Width(iw).Render("✗ " + strings.ReplaceAll(v.err.Error(), "\n", "; "))
+	}
 	r := v.res
-	if r == nil {
+	if r == nil || v.err != nil {
+		// An error's inputs have no result; an older one would mislead.
 		return paneFrame(st, "Risk attitude — what the forecaster would report", true, v.w, v.h, strings.Join(lines, "\n"))
 	}
 	lines = append(lines, strings.Split(st.Dim.Width(iw).Render(describe(r.Inputs)+" · "+r.Pay), "\n")...)

@@ -216,3 +216,22 @@ func goldenRisk(t *testing.T, d *design.Design, w, h int) {
 	press(t, m, keyDown, keyRight, keyRight)
 	golden.RequireEqual(t, []byte(m.View()))
 }
+
+// CRRA needs positive final wealth: stepping the wealth to -5 under a
+// floor of 0 is refused with the reason, and no older result is shown.
+func TestRiskCRRANeedsWealth(t *testing.T) {
+	m := testModel(t, nil, Settings{})
+	start(t, m, 80, 24)
+	openRisk(t, m)
+	press(t, m, keyDown, keyDown)
+	for range 9 {
+		press(t, m, keyLeft)
+	}
+	if w := m.RiskInputs().Wealth; w != -5 {
+		t.Fatalf("wealth %v, want -5 (nine steps of 5 below 40)", w)
+	}
+	v := m.View()
+	if !strings.Contains(v, "CRRA utility needs positive final wealth") || strings.Contains(v, "Largest distortion") {
+		t.Errorf("view:\n%s", v)
+	}
+}
