@@ -8,19 +8,37 @@ import (
 	"scorewright/generator/emphasis"
 	"scorewright/generator/formula"
 	gpoint "scorewright/generator/point"
+	vpoint "scorewright/verify/point"
 )
+
+// onInterval reports whether d is about a number on an interval rather
+// than outcomes: a point-forecast generator, or a point-forecast payout
+// pay(x, y) under audit (payout mode with an interval).
+func onInterval(d *design.Design) bool {
+	return d.Mode == design.ModePoint || d.Mode == design.ModePayout && len(d.Interval) == 2
+}
+
+// pointScope is the formula scope of a point-forecast payout: the report
+// x and the outcome y, as verify/point compiles it.
+func pointScope(d *design.Design) formula.Scope {
+	return formula.Scope{Vars: []string{"x", "y"}, Params: d.Params}
+}
 
 // compiled is a design turned into something that can be evaluated: a
 // Bregman rule in generator mode, one payout program per outcome in
 // payout mode.
 type compiled struct {
-	d        *design.Design // a private copy
-	rule     *bregman.Rule
-	point    *gpoint.Generator
-	payout   []*formula.Program
-	params   []formula.ParamValue
-	warnings []string
-	err      error
+	d     *design.Design // a private copy
+	rule  *bregman.Rule
+	point *gpoint.Generator
+	// pointPay is a point-forecast payout pay(x, y) under audit, and
+	// pointProg its program (for the picture).
+	pointPay  *vpoint.Payout
+	pointProg *formula.Program
+	payout    []*formula.Program
+	params    []formula.ParamValue
+	warnings  []string
+	err       error
 }
 
 // designRule builds the Bregman rule of a generator or emphasis design;
@@ -71,6 +89,22 @@ func compileDesign(d *design.Design) *compiled {
 		}
 		c.point, c.params = g, g.Program().Params()
 	case design.ModePayout:
+		if onInterval(d) {
+			if !(d.Interval[0] < d.Interval[1]) {
+				c.err = fmt.Errorf("a point-forecast payout needs an interval lo < hi (Interval row)")
+				return c
+			}
+			prog, err := formula.CompileString(d.Formula, pointScope(d))
+			if err == nil {
+				c.pointPay, err = vpoint.NewPayout(d.Formula, d.Params)
+			}
+			if err != nil {
+				c.err = err
+				return c
+			}
+			c.pointProg, c.params = prog, prog.Params()
+			return c
+		}
 		for y := 1; y <= d.N(); y++ {
 			prog, err := formula.CompileString(d.Formula, formula.Scope{
 				Outcomes: d.N(), Ordered: d.Ordered, Weights: d.Weights, Params: d.Params, Payout: true, Outcome: y,
@@ -88,12 +122,16 @@ func compileDesign(d *design.Design) *compiled {
 	return c
 }
 
+// onInterval reports whether the compiled design is about a number on an
+// interval (drawn over it, one mark for the report).
+func (c *compiled) onInterval() bool { return c.point != nil || c.pointPay != nil }
+
 // ok reports whether the design compiled.
 func (c *compiled) ok() bool { return c != nil && c.err == nil }
 
 // reward reports whether scores are payments (higher is better) rather
 // than efforts (lower is better).
-func (c *compiled) reward() bool { return c.payout != nil }
+func (c *compiled) reward() bool { return c.payout != nil || c.pointPay != nil }
 
 // sampler evaluates a compiled design at reports. It owns scratch space
 // and belongs to one goroutine.
@@ -107,8 +145,8 @@ type sampler struct {
 }
 
 func (c *compiled) newSampler() *sampler {
-	if c.point != nil {
-		return nil // point designs are drawn by renderPoint
+	if c.point != nil || c.pointPay != nil {
+		return nil // point designs are drawn by renderPoint and renderPointPayout
 	}
 	n := c.d.N()
 	s := &sampler{n: n, reward: c.reward(), a: make([]float64, n), b: make([]float64, n)}

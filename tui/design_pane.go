@@ -40,10 +40,22 @@ const (
 	editPreset
 )
 
-// modes lists the modes the workbench computes, in the order ←/→ cycle;
-// emphasis is skipped unless there are 2 outcomes.
-func modes() []design.Mode {
-	return []design.Mode{design.ModeGenerator, design.ModePayout, design.ModeEmphasis, design.ModePoint}
+// modeSlot is one entry of the mode row: a design mode, over outcomes or
+// on an interval (payout mode on an interval audits a point-forecast
+// payout pay(x, y)).
+type modeSlot struct {
+	mode     design.Mode
+	interval bool
+}
+
+// slotOf is the mode row entry design d is in.
+func slotOf(d *design.Design) modeSlot { return modeSlot{d.Mode, onInterval(d)} }
+
+// modes lists the mode row's entries in the order ←/→ cycle; emphasis is
+// skipped unless there are 2 outcomes.
+func modes() []modeSlot {
+	return []modeSlot{{design.ModeGenerator, false}, {design.ModePayout, false}, {design.ModeEmphasis, false},
+		{design.ModePoint, true}, {design.ModePayout, true}}
 }
 
 // samplePoint is the generator offered the first time a design switches
@@ -58,6 +70,11 @@ func defaultInterval() []float64 { return []float64{0, 100} }
 // payout mode: a scaled quadratic payment, to be replaced by the payout
 // under audit.
 const samplePayout = "# pay(p, y): the payment when outcome y happens\n10 - 5*sum((p - hit)^2)"
+
+// samplePointPayout is the formula offered the first time a design
+// switches to auditing a point-forecast payout: a scaled squared error on
+// the default interval [0, 100], paying 0 to 50.
+const samplePointPayout = "# pay(x, y): the payment for report x when the outcome is y\n50 - (x - y)^2 / 200"
 
 // sampleEmphasis is the weight offered the first time a design switches
 // to emphasis mode: the beta family, a = b = 1 the quadratic rule.
@@ -79,7 +96,10 @@ type DesignPane struct {
 	err      error // the compile error of the current design
 	warnings []string
 	note     string // a one-line remark on the last action
-	byMode   map[design.Mode]string
+	byMode   map[modeSlot]string
+	// interval keeps a point design's interval while the design is a
+	// payout over outcomes (which must have none).
+	interval []float64
 	// stepByMode keeps the menu step of point (true) and outcome (false)
 	// designs apart when the mode changes.
 	stepByMode map[bool]float64
@@ -99,7 +119,7 @@ func NewDesignPane(st Styles, keys KeyMap, d *design.Design) DesignPane {
 	ti := textinput.New()
 	ti.Prompt = "› "
 	ti.Cursor.SetMode(cursor.CursorStatic)
-	return DesignPane{st: st, keys: keys, ta: ta, ti: ti, byMode: map[design.Mode]string{}, stepByMode: map[bool]float64{}}
+	return DesignPane{st: st, keys: keys, ta: ta, ti: ti, byMode: map[modeSlot]string{}, stepByMode: map[bool]float64{}}
 }
 
 // SetSize sets the outer size of the pane.
@@ -160,7 +180,7 @@ func (p *DesignPane) setCompiled(c *compiled) {
 func (p *DesignPane) reset(d *design.Design) {
 	p.stopEditing()
 	p.ta.SetValue(d.Formula)
-	p.params, p.err, p.sel, p.byMode, p.stepByMode = nil, nil, 0, map[design.Mode]string{}, map[bool]float64{}
+	p.params, p.err, p.sel, p.byMode, p.stepByMode = nil, nil, 0, map[modeSlot]string{}, map[bool]float64{}
 }
 
 func (p DesignPane) presetRow() int { return int(rowParams) + len(p.params) }
@@ -220,12 +240,12 @@ func (p DesignPane) updateRows(km tea.KeyMsg, d *design.Design) (DesignPane, tea
 		case row == int(rowOutcomes):
 			p.edit = editLabels
 			p.ti.SetValue(strings.Join(d.Labels, ", "))
-			if d.Mode == design.ModePoint {
+			if onInterval(d) {
 				p.ti.SetValue(fmt.Sprintf("%g, %g", d.Interval[0], d.Interval[1]))
 			}
 			p.ti.CursorEnd()
 			return p, p.ti.Focus(), false
-		case row == int(rowOrder) && d.Mode != design.ModePoint:
+		case row == int(rowOrder) && !onInterval(d):
 			d.Ordered = !d.Ordered
 			return p, nil, true
 		case row == int(rowFormula):
@@ -245,10 +265,10 @@ func (p DesignPane) updateRows(km tea.KeyMsg, d *design.Design) (DesignPane, tea
 				}
 			}
 		}
-	case key.Matches(km, k.Toggle) && row == int(rowOrder) && d.Mode != design.ModePoint:
+	case key.Matches(km, k.Toggle) && row == int(rowOrder) && !onInterval(d):
 		d.Ordered = !d.Ordered
 		return p, nil, true
-	case (key.Matches(km, k.AddOutcome) || key.Matches(km, k.DropOutcome)) && d.Mode == design.ModePoint:
+	case (key.Matches(km, k.AddOutcome) || key.Matches(km, k.DropOutcome)) && onInterval(d):
 		p.note = "a point forecast has no outcome list; set the interval instead"
 		return p, nil, false
 	case key.Matches(km, k.AddOutcome):
@@ -274,7 +294,7 @@ func (p DesignPane) updateRows(km tea.KeyMsg, d *design.Design) (DesignPane, tea
 		case row == int(rowMode):
 			p.cycleMode(d, up)
 			return p, nil, true
-		case row == int(rowOrder) && d.Mode != design.ModePoint:
+		case row == int(rowOrder) && !onInterval(d):
 			d.Ordered = !d.Ordered
 			return p, nil, true
 		case row >= int(rowParams) && row < p.presetRow():
@@ -299,7 +319,7 @@ func (p DesignPane) updateRows(km tea.KeyMsg, d *design.Design) (DesignPane, tea
 // commitInput applies the labels or parameter value typed.
 func (p *DesignPane) commitInput(d *design.Design) bool {
 	val := p.ti.Value()
-	if p.edit == editLabels && d.Mode == design.ModePoint {
+	if p.edit == editLabels && onInterval(d) {
 		iv, err := parseInterval(val)
 		if err != nil {
 			p.note = "interval: " + err.Error()
@@ -345,7 +365,7 @@ func (p *DesignPane) cycleMode(d *design.Design, up bool) {
 	i := 0
 	ms := modes()
 	for j, m := range ms {
-		if m == d.Mode {
+		if m == slotOf(d) {
 			i = j
 		}
 	}
@@ -355,32 +375,43 @@ func (p *DesignPane) cycleMode(d *design.Design, up bool) {
 		} else {
 			i = (i + len(ms) - 1) % len(ms)
 		}
-		if ms[i] != design.ModeEmphasis || d.N() == 2 {
+		if ms[i].mode != design.ModeEmphasis || d.N() == 2 {
 			break
 		}
 	}
-	p.byMode[d.Mode] = d.Formula
-	p.stepByMode[d.Mode == design.ModePoint] = d.Budget.Step
-	d.Mode = ms[i]
-	f, ok := p.byMode[d.Mode]
+	p.byMode[slotOf(d)] = d.Formula
+	p.stepByMode[onInterval(d)] = d.Budget.Step
+	if len(d.Interval) == 2 {
+		p.interval = d.Interval
+	}
+	d.Mode = ms[i].mode
+	switch {
+	case ms[i].interval && len(d.Interval) != 2:
+		d.Interval = p.interval
+	case !ms[i].interval && d.Mode == design.ModePayout:
+		d.Interval = nil // a payout over outcomes has no interval
+	}
+	f, ok := p.byMode[ms[i]]
 	if !ok {
-		switch d.Mode {
-		case design.ModePayout:
+		switch {
+		case ms[i] == modeSlot{design.ModePayout, true}:
+			f = samplePointPayout
+		case d.Mode == design.ModePayout:
 			f = samplePayout
-		case design.ModeEmphasis:
+		case d.Mode == design.ModeEmphasis:
 			f = sampleEmphasis
-		case design.ModePoint:
+		case d.Mode == design.ModePoint:
 			f = samplePoint
 		}
 	}
 	// The menu step means a probability step over outcomes and a step in
 	// the interval's units for point forecasts; each kind keeps its own.
-	if s, ok := p.stepByMode[d.Mode == design.ModePoint]; ok {
+	if s, ok := p.stepByMode[ms[i].interval]; ok {
 		d.Budget.Step = s
-	} else if d.Mode == design.ModePoint {
+	} else if ms[i].interval {
 		d.Budget.Step = 0 // BuildTable's default: a twentieth of the interval
 	}
-	if d.Mode == design.ModePoint && len(d.Interval) != 2 {
+	if ms[i].interval && len(d.Interval) != 2 {
 		d.Interval = defaultInterval()
 	}
 	if f != "" {
@@ -409,7 +440,7 @@ func (p DesignPane) updatePicker(km tea.KeyMsg, d *design.Design) (DesignPane, t
 		p.edit = editNone
 		d.Preset = ps.Name
 		d.Params = nil
-		wasPoint := d.Mode == design.ModePoint
+		wasPoint := onInterval(d)
 		if err := presets.Apply(d); err != nil {
 			p.note = err.Error()
 			return p, nil, false
@@ -426,8 +457,8 @@ func (p DesignPane) updatePicker(km tea.KeyMsg, d *design.Design) (DesignPane, t
 		if d.Mode == design.ModePoint && len(d.Interval) != 2 {
 			d.Interval = defaultInterval()
 		}
-		if wasPoint != (d.Mode == design.ModePoint) {
-			d.Budget.Step = p.stepByMode[d.Mode == design.ModePoint]
+		if wasPoint != onInterval(d) {
+			d.Budget.Step = p.stepByMode[onInterval(d)]
 		}
 		p.ta.SetValue(d.Formula)
 		return p, nil, true
@@ -542,9 +573,9 @@ func (p DesignPane) View(d *design.Design) string {
 		return m + ls.Render(fmt.Sprintf("%-9s", label)) + " " + value
 	}
 	switch {
-	case d.Mode == design.ModePoint && p.edit == editLabels:
+	case onInterval(d) && p.edit == editLabels:
 		lines = append(lines, mark(0, "Interval", "lo, hi:"), "  "+p.ti.View())
-	case d.Mode == design.ModePoint:
+	case onInterval(d):
 		iv := "not set"
 		if len(d.Interval) == 2 {
 			iv = fmt.Sprintf("[%g, %g]  (point forecast of a mean)", d.Interval[0], d.Interval[1])
@@ -559,11 +590,11 @@ func (p DesignPane) View(d *design.Design) string {
 	if d.Ordered {
 		order = "ordered (csum allowed)"
 	}
-	if d.Mode == design.ModePoint {
+	if onInterval(d) {
 		order = st.Dim.Render("— (a number on the interval)")
 	}
 	lines = append(lines, mark(1, "Order", order))
-	lines = append(lines, mark(2, "Mode", modeLine(d.Mode)))
+	lines = append(lines, mark(2, "Mode", modeLine(slotOf(d))))
 	hint := ""
 	if p.edit == editFormula {
 		hint = st.Dim.Render("editing — esc to stop")
@@ -606,7 +637,11 @@ func (p DesignPane) View(d *design.Design) string {
 	return paneFrame(st, title, p.focused, p.w, p.h, strings.Join(lines, "\n"))
 }
 
-func modeLine(m design.Mode) string {
+func modeLine(s modeSlot) string {
+	if s == (modeSlot{design.ModePayout, true}) {
+		return "point payout audit (pay(x, y); ←/→)"
+	}
+	m := s.mode
 	switch m {
 	case design.ModeGenerator:
 		return "generator (concave H; ←/→)"

@@ -60,24 +60,15 @@ func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress f
 		if c.err != nil {
 			return nil, c.err
 		}
-		ps := vpoint.Settings{Resolution: s.Resolution, Tolerance: s.Tolerance}
-		if progress != nil {
-			ps.Progress = func(done, total int) { progress(int64(done), int64(total)) }
-		}
-		rep, err := vpoint.CheckGenerator(ctx, c.point, ps)
+		rep, err := vpoint.CheckGenerator(ctx, c.point, pointSettings(s, progress))
 		if err != nil {
 			return nil, err
 		}
-		out := &CheckReport{Verdict: rep.Verdict, Resolution: rep.Grid.Resolution, Points: int64(rep.Grid.Points), Tolerance: rep.Grid.Tolerance, Notes: rep.Notes}
-		for _, ck := range rep.Checks {
-			row := CheckRow{Name: ck.Name, Passed: ck.Passed, Worst: ck.Worst, Note: ck.What}
-			if ck.At != nil {
-				row.Report = ck.At.Report
-			}
-			out.Rows = append(out.Rows, row)
-		}
-		return out, nil
+		return fromPoint(rep), nil
 	case design.ModePayout:
+		if onInterval(d) {
+			return auditPointPayout(ctx, d, s, progress)
+		}
 		p, err := payout.New(d.Formula, payout.Options{Outcomes: d.N(), Ordered: d.Ordered, Weights: d.Weights, Params: d.Params})
 		if err != nil {
 			return nil, err
@@ -97,6 +88,73 @@ func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress f
 		return out, nil
 	}
 	return nil, fmt.Errorf("this build cannot check %s designs", d.Mode)
+}
+
+// pointSettings are the checks pane's grid and tolerance for verify/point.
+func pointSettings(s Settings, progress func(done, total int64)) vpoint.Settings {
+	ps := vpoint.Settings{Resolution: s.Resolution, Tolerance: s.Tolerance}
+	if progress != nil {
+		ps.Progress = func(done, total int) { progress(int64(done), int64(total)) }
+	}
+	return ps
+}
+
+// fromPoint is a verify/point report as the checks pane shows it.
+func fromPoint(rep *vpoint.Report) *CheckReport {
+	out := &CheckReport{Verdict: rep.Verdict, Resolution: rep.Grid.Resolution, Points: int64(rep.Grid.Points), Tolerance: rep.Grid.Tolerance, Notes: rep.Notes}
+	for _, ck := range rep.Checks {
+		row := CheckRow{Name: ck.Name, Passed: ck.Passed, Worst: ck.Worst, Note: ck.What}
+		if ck.At != nil {
+			row.Report = ck.At.Report
+		}
+		out.Rows = append(out.Rows, row)
+	}
+	return out
+}
+
+// auditPointPayout audits a point-forecast payout pay(x, y) on the
+// design's interval with verify/point.AuditPayout, as `scorewright audit
+// --interval` does: is the mean the best report, the honesty gap and
+// where, and the point preset it is a scaled copy of, if any.
+func auditPointPayout(ctx context.Context, d *design.Design, s Settings, progress func(done, total int64)) (*CheckReport, error) {
+	p, err := vpoint.NewPayout(d.Formula, d.Params)
+	if err != nil {
+		return nil, err
+	}
+	lo, hi := d.Interval[0], d.Interval[1]
+	rep, err := vpoint.AuditPayout(ctx, p, lo, hi, pointSettings(s, progress), pointAuditCandidates(lo, hi))
+	if err != nil {
+		return nil, err
+	}
+	out := fromPoint(rep)
+	if id := rep.Identified; id != nil {
+		if id.OutcomeTerm {
+			out.Notes = append(out.Notes, fmt.Sprintf("identified: pay = g(y) - %.6g × D(y, x), preset %s", id.Scale, id.Preset),
+				"  (g a term in the outcome alone: it changes no incentive)")
+		} else {
+			out.Notes = append(out.Notes, fmt.Sprintf("identified: pay = %.6g - %.6g × D(y, x), preset %s", id.Shift, id.Scale, id.Preset))
+		}
+	}
+	if g := rep.Gap; g != nil && rep.Verdict == vpoint.Improper && g.Max > 0 {
+		out.Notes = append(out.Notes, fmt.Sprintf("honesty gap %.4g: best report %.4g, not the mean %.4g,", g.Max, g.BestReport, g.Mean),
+			fmt.Sprintf("  for outcomes %s weighted %s", num.Format(g.Outcomes), num.Format(g.Weights)))
+	}
+	return out, nil
+}
+
+// pointAuditCandidates are the point-forecast presets an audited payout
+// is compared with, on the design's interval.
+func pointAuditCandidates(lo, hi float64) []vpoint.Candidate {
+	var out []vpoint.Candidate
+	for _, ps := range presets.All() {
+		if ps.Kind != presets.KindPoint {
+			continue
+		}
+		if g, err := gpoint.New(ps.Formula, lo, hi, gpoint.Options{}); err == nil {
+			out = append(out, vpoint.Candidate{Name: ps.Name, Gen: g})
+		}
+	}
+	return out
 }
 
 func fromVerify(r *verify.Report) *CheckReport {

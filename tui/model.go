@@ -220,7 +220,7 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		m.comp, m.compGen = msg.c, msg.gen
 		m.designPane.setCompiled(msg.c)
 		if msg.c.ok() {
-			m.picture.setDesign(msg.c.d.N(), msg.c.reward(), m.payFunc() != nil, msg.c.point != nil)
+			m.picture.setDesign(msg.c.d.N(), msg.c.reward(), m.payFunc() != nil, msg.c.onInterval())
 		} else {
 			m.checks.block("the formula does not compile")
 			m.picture.noDesign("nothing to draw until the formula compiles")
@@ -258,7 +258,7 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		m.fitGen = msg.gen
 		m.budget.setTable(msg.table, msg.err)
 		if m.comp.ok() {
-			m.picture.setDesign(m.comp.d.N(), m.comp.reward(), m.payFunc() != nil, m.comp.point != nil)
+			m.picture.setDesign(m.comp.d.N(), m.comp.reward(), m.payFunc() != nil, m.comp.onInterval())
 		}
 		return m, m.requestPicture()
 	case btRunMsg:
@@ -926,7 +926,7 @@ func (m *Model) headerLine() string {
 		where = filepath.Base(m.path)
 	}
 	what := fmt.Sprintf("%d outcomes", m.d.N())
-	if m.d.Mode == design.ModePoint && len(m.d.Interval) == 2 {
+	if onInterval(m.d) && len(m.d.Interval) == 2 {
 		what = fmt.Sprintf("a mean on [%g, %g]", m.d.Interval[0], m.d.Interval[1])
 	}
 	mid := m.st.Dim.Render(fmt.Sprintf(" · %s · %s · %s", where, what, m.d.Mode))

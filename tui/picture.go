@@ -80,6 +80,8 @@ func (p PicturePane) KeyHelp() []key.Binding {
 // measures lists what can be drawn for n outcomes.
 func (p PicturePane) measures() []measure {
 	switch {
+	case p.point && p.reward:
+		return []measure{mScores}
 	case p.point:
 		return []measure{mScores, mGenerator}
 	case p.n == 2 && p.reward:
@@ -236,7 +238,10 @@ func (p PicturePane) View() string {
 
 func (p PicturePane) measureName() string {
 	if p.point {
-		if p.spec.measure == mGenerator {
+		switch {
+		case p.reward:
+			return "pay by report"
+		case p.spec.measure == mGenerator:
 			return "generator phi(x)"
 		}
 		return "effort by report"
@@ -274,6 +279,9 @@ const pictureGrid = 40
 func renderPicture(ctx context.Context, st Styles, c *compiled, spec pictureSpec, pay func(float64) float64) string {
 	if c.point != nil {
 		return renderPoint(st, c, spec)
+	}
+	if c.pointPay != nil {
+		return renderPointPayout(st, c, spec)
 	}
 	n := c.d.N()
 	s := c.newSampler()
@@ -567,4 +575,35 @@ func renderPoint(st Styles, c *compiled, spec pictureSpec) string {
 	}
 	foot := fmt.Sprintf("x: report  ┊ %s: %s", fmtTick(x), at)
 	return head + "\n" + chart + "\n" + foot
+}
+
+// renderPointPayout draws a point-forecast payout under audit: pay(x, y)
+// against the report x for three outcome values. The verdict is the
+// checks pane's.
+func renderPointPayout(st Styles, c *compiled, spec pictureSpec) string {
+	lo, hi := c.d.Interval[0], c.d.Interval[1]
+	m := c.pointProg.NewMachine()
+	vars := make([]float64, c.pointProg.NumVars())
+	cols := max(10, spec.w-8)
+	ys := []float64{lo + (hi-lo)/4, lo + (hi-lo)/2, lo + 3*(hi-lo)/4}
+	ss := make([]series, len(ys))
+	for j, y := range ys {
+		ss[j] = series{name: "y = " + fmtTick(y), y: make([]float64, cols)}
+		for k := 0; k < cols; k++ {
+			vars[0], vars[1] = lo+(float64(k)+0.5)/float64(cols)*(hi-lo), y
+			ss[j].y[k] = m.Value(vars)
+		}
+	}
+	x := lo + spec.belief[0]*(hi-lo)
+	chart, clipped := drawLines(st, spec.w, max(4, spec.h-2), lo, hi, ss, x)
+	head := st.Dim.Render("y: pay(x, y)  ") + legend(st, ss)
+	if clipped {
+		head += st.Dim.Render("  (y cut)")
+	}
+	var parts []string
+	for _, y := range ys {
+		vars[0], vars[1] = x, y
+		parts = append(parts, fmtTick(m.Value(vars)))
+	}
+	return head + "\n" + chart + "\n" + fmt.Sprintf("x: report  ┊ %s: pay %s", fmtTick(x), strings.Join(parts, " / "))
 }

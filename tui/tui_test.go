@@ -416,8 +416,13 @@ func TestPointMode(t *testing.T) {
 		t.Fatalf("interval %v", iv)
 	}
 	golden.RequireEqual(t, []byte(m.View()))
-	// Back to outcomes: the probability step comes back.
+	// Next, the point payout audit keeps the interval; then back to
+	// outcomes: the probability step comes back.
 	press(t, m, keyDown, keyDown, keyRight)
+	if d := m.Design(); d.Mode != design.ModePayout || len(d.Interval) != 2 || d.Interval[0] != 10 {
+		t.Fatalf("after point: mode %s interval %v", d.Mode, d.Interval)
+	}
+	press(t, m, keyRight)
 	if d := m.Design(); d.Mode != design.ModeGenerator || d.Budget.Step != 0.05 {
 		t.Fatalf("back to generator: mode %s step %v", d.Mode, d.Budget.Step)
 	}
