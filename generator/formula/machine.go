@@ -88,6 +88,28 @@ func (m *Machine) forward(vars []float64) {
 				s += x
 			}
 			v[i] = s
+		case opVSumSq:
+			var s float64
+			for _, x := range v[in.a : in.a+in.n] {
+				s += x * x
+			}
+			v[i] = s
+		case opVSumXLnX:
+			// ln a of each lane is kept in the instruction's own aux cells.
+			xs := v[in.a : in.a+in.n]
+			ls := m.aux[in.c : in.c+in.n]
+			ls = ls[:len(xs)]
+			var s float64
+			for l, x := range xs {
+				lx := math.Log(x)
+				ls[l] = lx
+				r := x * lx
+				if r != r {
+					r = mul0(x, lx)
+				}
+				s += r
+			}
+			v[i] = s
 		case opSelect:
 			v[i] = sel(v[in.c], v[in.a], v[in.b])
 		default:
@@ -229,6 +251,20 @@ func (m *Machine) Gradient(grad, vars []float64) float64 {
 		case opVSum:
 			for l := range adj[in.a : in.a+in.n] {
 				adj[in.a+int32(l)] += g
+			}
+		case opVSumSq:
+			as := adj[in.a : in.a+in.n]
+			xs := v[in.a : in.a+in.n]
+			xs = xs[:len(as)]
+			for l, x := range xs {
+				as[l] += 2 * mul0(g, x)
+			}
+		case opVSumXLnX:
+			as := adj[in.a : in.a+in.n]
+			ls := m.aux[in.c : in.c+in.n]
+			ls = ls[:len(as)]
+			for l, lx := range ls {
+				as[l] += g * (lx + 1)
 			}
 		default:
 			m.back(in.op, in.dst, in.a, in.b, in.c, in.k, g)
@@ -468,6 +504,14 @@ func (m *Machine) hessLane(in *cell, l int32) {
 		for s := int(in.a); s < int(in.a+in.n); s++ {
 			axpyNZ(G, 1, m.grad[s*nv:(s+1)*nv])
 			axpyNZ(H, 1, m.hess[s*nv*nv:(s+1)*nv*nv])
+		}
+	case opVSumSq:
+		for s := int(in.a); s < int(in.a+in.n); s++ {
+			m.unary(i, s, 2*v[s], 2)
+		}
+	case opVSumXLnX:
+		for s := int(in.a); s < int(in.a+in.n); s++ {
+			m.unary(i, s, math.Log(v[s])+1, 1/v[s])
 		}
 	case opCumsum:
 		// Lane l is lane l-1 plus a_l.
