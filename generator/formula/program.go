@@ -4,34 +4,34 @@ package formula
 type opcode uint8
 
 const (
-	opConst  opcode = iota // k
-	opVar                  // vars[a]
-	opAdd                  // a + b
-	opSub                  // a - b
-	opMul                  // a * b, with 0 * ±Inf = 0
-	opDiv                  // a / b
-	opNeg                  // -a
-	opSq                   // a * a
-	opPowK                 // a ^ k, k constant
-	opPowB                 // k ^ a, k constant base
-	opPow                  // a ^ b
-	opExp                  // exp(a)
-	opLn                   // ln(a)
-	opSqrt                 // sqrt(a)
-	opAbs                  // |a|
-	opMin                  // min(a, b)
-	opMax                  // max(a, b)
-	opLt                   // a < b  (1 or 0)
-	opLe                   // a <= b
-	opGt                   // a > b
-	opGe                   // a >= b
-	opSelect               // c != 0 ? a : b
-	opXLnX                 // a * ln(a), with 0 ln 0 = 0: the entropy term, fused
-	opVConst               // a vector constant (compiler only)
-	opVSum                 // the sum of the lanes of vector a
-	opCumsum               // lanes k = a_1 + ... + a_k of vector a
-	opVSumSq               // the sum of the squares of the lanes of a
-	opVSumXLnX             // the sum of a ln a over the lanes of a
+	opConst    opcode = iota // k
+	opVar                    // vars[a]
+	opAdd                    // a + b
+	opSub                    // a - b
+	opMul                    // a * b, with 0 * ±Inf = 0
+	opDiv                    // a / b
+	opNeg                    // -a
+	opSq                     // a * a
+	opPowK                   // a ^ k, k constant
+	opPowB                   // k ^ a, k constant base
+	opPow                    // a ^ b
+	opExp                    // exp(a)
+	opLn                     // ln(a)
+	opSqrt                   // sqrt(a)
+	opAbs                    // |a|
+	opMin                    // min(a, b)
+	opMax                    // max(a, b)
+	opLt                     // a < b  (1 or 0)
+	opLe                     // a <= b
+	opGt                     // a > b
+	opGe                     // a >= b
+	opSelect                 // c != 0 ? a : b
+	opXLnX                   // a * ln(a), with 0 ln 0 = 0: the entropy term, fused
+	opVConst                 // a vector constant (compiler only)
+	opVSum                   // the sum of the lanes of vector a
+	opCumsum                 // lanes k = a_1 + ... + a_k of vector a
+	opVSumSq                 // the sum of the squares of the lanes of a
+	opVSumXLnX               // the sum of a ln a over the lanes of a
 )
 
 var opNames = [...]string{"const", "var", "add", "sub", "mul", "div", "neg", "sq", "powk", "powb", "pow", "exp", "ln", "sqrt", "abs", "min", "max", "lt", "le", "gt", "ge", "select", "xlnx", "vconst", "vsum", "cumsum", "vsumsq", "vsumxlnx"}
