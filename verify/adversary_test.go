@@ -372,3 +372,20 @@ func TestVertexNonConcavitySeenByGrid(t *testing.T) {
 		t.Errorf("note claims only off-grid points saw it: %s", conc.Note)
 	}
 }
+
+// TestNarrowFlatPieceIsNotStrict: H = min(p(1-p), 0.25 - 1e-7) is flat on
+// |p - 1/2| <= √1e-7 = 3.16e-4, which holds the single grid point 1/2 at
+// K = 1000. There every report in the flat piece has effort 0.25 - 1e-7
+// for both outcomes (zero gradient), so a forecaster believing 1/2 is
+// indifferent among them: proper, not strictly (derived by hand). No two
+// grid reports tie, which once made the verdict strictly-proper while the
+// concavity check itself said "not strictly".
+func TestNarrowFlatPieceIsNotStrict(t *testing.T) {
+	rep, err := CheckRule(context.Background(), rule(t, "min(p*(1-p), 0.25 - 1e-7)", 2), Settings{Resolution: 1000})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rep.Verdict != Proper || rep.Check(NameConcavity).Strict {
+		t.Errorf("verdict %s (concavity strict %v), want proper", rep.Verdict, rep.Check(NameConcavity).Strict)
+	}
+}
