@@ -361,7 +361,7 @@ func (m *Machine) back(op opcode, i, a, b, c int32, k, g float64) {
 	case opXLnX:
 		adj[a] += g * (m.aux[i] + 1)
 	case opPowK:
-		adj[a] += mul0(g, k*math.Pow(v[a], k-1))
+		adj[a] += mul0(g, mul0(k, math.Pow(v[a], k-1)))
 	case opPowB:
 		adj[a] += mul0(g, v[i]*math.Log(k))
 	case opPow:
@@ -463,7 +463,9 @@ func (m *Machine) hessLane(in *cell, l int32) {
 		m.unary(i, ia, 2*a, 2)
 	case opPowK:
 		k := in.k
-		m.unary(i, ia, k*math.Pow(a, k-1), k*(k-1)*math.Pow(a, k-2))
+		// mul0: for a huge exponent k(k-1) overflows while a^(k-2)
+		// underflows; the product's limit is 0, not NaN.
+		m.unary(i, ia, mul0(k, math.Pow(a, k-1)), mul0(k*(k-1), math.Pow(a, k-2)))
 	case opPowB:
 		lk := math.Log(in.k)
 		m.unary(i, ia, z*lk, z*lk*lk)

@@ -161,6 +161,24 @@ func TestGradientAtBoundary(t *testing.T) {
 	}
 }
 
+// A huge exponent: k(k-1) overflows to +Inf while p^(k-2) underflows to
+// 0; the second derivative's limit is 0 (derived by hand: p^k k² -> 0 for
+// p < 1), not NaN.
+func TestHugeExponentHessian(t *testing.T) {
+	prog, err := CompileString("p1^1e300", Scope{Outcomes: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	g, h := make([]float64, 2), make([]float64, 4)
+	prog.NewMachine().Hessian(h, g, []float64{0.5, 0.5})
+	for _, x := range append(g, h...) {
+		if x != 0 {
+			t.Errorf("gradient %v Hessian %v, want zeros", g, h)
+			break
+		}
+	}
+}
+
 func TestConstantFoldingAndSharing(t *testing.T) {
 	// sum(p^2) over 3 outcomes: 3 loads, 3 squares, 2 adds; the constant
 	// 1 - ... and (2 - 1) fold away. Shared subexpressions are computed once.
