@@ -372,3 +372,59 @@ func TestVertexNonConcavitySeenByGrid(t *testing.T) {
 		t.Errorf("note claims only off-grid points saw it: %s", conc.Note)
 	}
 }
+
+// TestNarrowFlatPieceIsNotStrict: H = min(p(1-p), 0.25 - 1e-7) is flat on
+// |p - 1/2| <= √1e-7 = 3.16e-4, which holds the single grid point 1/2 at
+// K = 1000. There every report in the flat piece has effort 0.25 - 1e-7
+// for both outcomes (zero gradient), so a forecaster believing 1/2 is
+// indifferent among them: proper, not strictly (derived by hand). No two
+// grid reports tie, which once made the verdict strictly-proper while the
+// concavity check itself said "not strictly".
+func TestNarrowFlatPieceIsNotStrict(t *testing.T) {
+	rep, err := CheckRule(context.Background(), rule(t, "min(p*(1-p), 0.25 - 1e-7)", 2), Settings{Resolution: 1000})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rep.Verdict != Proper || rep.Check(NameConcavity).Strict {
+		t.Errorf("verdict %s (concavity strict %v), want proper", rep.Verdict, rep.Check(NameConcavity).Strict)
+	}
+}
+
+// TestJackpotOnAFace: the band of rewarded reports can lie on a face
+// (reports ruling out outcome 3, with 0.33 < p1 < 0.34, strictly between
+// the grid lines at K = 100), which no interior report reaches. As in
+// TestJackpotBetweenGridPoints the gain is 2 - Σq², largest at the grid
+// beliefs nearest uniform: 2 - 0.3334 (derived by hand).
+func TestJackpotOnAFace(t *testing.T) {
+	src := "if(p3 <= 0, if(abs(p1 - 0.335) < 0.005, 2, 1 - sum((p - hit)^2)), 1 - sum((p - hit)^2))"
+	a, err := Audit(context.Background(), pay(t, src, 3), nil, Settings{Resolution: 100})
+	if err != nil {
+		t.Fatal(err)
+	}
+	r := a.Gap.BestReport
+	if a.Verdict != Improper || math.Abs(a.Gap.Max-(2-0.3334)) > 1e-3 || r[2] != 0 || !(math.Abs(r[0]-0.335) < 0.005) {
+		t.Errorf("verdict %s, gap %g at report %v; want improper, %g, a report on the band of the face p3 = 0", a.Verdict, a.Gap.Max, r, 2-0.3334)
+	}
+}
+
+// TestTiesOffGridAreNotGains: for the linear payout p_y a belief with two
+// equal largest coordinates is indifferent along the whole edge between
+// their vertices (expected pay q1·r1 + q2·r2 = q1 when q1 = q2), so random
+// reports on that edge only tie with the vertex, a grid point; they must
+// not be reported as gains off the grid (derived by hand).
+func TestTiesOffGridAreNotGains(t *testing.T) {
+	a, err := Audit(context.Background(), pay(t, "p[y]", 3), nil, Settings{Resolution: 100})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, note := range a.Notes {
+		if strings.Contains(note, "between the grid points") {
+			t.Errorf("linear payout: %s", note)
+		}
+	}
+	// Its largest gap, max_k q_k - Σq², is 1/6 at (2/3, 1/6, 1/6)
+	// (derived by hand; the grid's nearest is within 1e-3 of it).
+	if math.Abs(a.Gap.Max-1.0/6) > 1e-3 {
+		t.Errorf("gap %g, want 1/6", a.Gap.Max)
+	}
+}

@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"math/rand/v2"
 	"sort"
 
 	"gonum.org/v1/gonum/stat"
@@ -282,6 +283,7 @@ func offGridReports(ctx context.Context, p *payout.Payout, g *simplex.Grid, bgs 
 	n, G := g.N, g.Len()
 	R := offGridCount(G)
 	reps := randomInterior(n, R, s.Seed, 0x7e90)
+	onFaces(reps, n, s.Seed)
 	pays := make([]float64, R*n)
 	evs := make([]*payout.Evaluator, s.Workers)
 	for i := range evs {
@@ -316,7 +318,9 @@ func offGridReports(ctx context.Context, p *payout.Payout, g *simplex.Grid, bgs 
 					best, arg = v, j
 				}
 			}
-			if gap := best - bg.Honest; arg >= 0 && gap > s.Tolerance && gap > bg.Gap {
+			// Only a clear gain counts: a tie with the grid's best (the
+			// linear rule's best reports fill whole faces) is not news.
+			if gap := best - bg.Honest; arg >= 0 && gap > s.Tolerance && gap > bg.Gap+s.Tolerance {
 				bg.Gap, bg.BestReport, gained[i] = gap, clone(reps[arg*n:(arg+1)*n]), true
 			}
 		}
@@ -329,6 +333,31 @@ func offGridReports(ctx context.Context, p *payout.Payout, g *simplex.Grid, bgs 
 		}
 	}
 	return count, err
+}
+
+// onFaces moves every fourth of the random reports onto a random face of
+// the simplex (1..n-2 coordinates set to 0, the rest renormalised): a
+// payout can reward a band of reports that rule some outcome out, which
+// no interior report reaches. Vertices are grid points already.
+func onFaces(reps []float64, n int, seed uint64) {
+	if n < 3 {
+		return
+	}
+	rng := rand.New(rand.NewPCG(seed, 0xface))
+	for j := 0; j*n < len(reps); j += 4 {
+		r := reps[j*n : (j+1)*n]
+		zero := 1 + rng.IntN(n-2)
+		for _, k := range rng.Perm(n)[:zero] {
+			r[k] = 0
+		}
+		var sum float64
+		for _, v := range r {
+			sum += v
+		}
+		for k := range r {
+			r[k] /= sum
+		}
+	}
 }
 
 // refineBeliefs improves the best report of the improper beliefs (largest

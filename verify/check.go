@@ -167,8 +167,15 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	switch {
 	case !conc.Passed || !prop.Passed || !nonneg.Passed || !aff.Passed:
 		rep.Verdict = Improper
-	case prop.Strict:
+	case prop.Strict && conc.Strict:
 		rep.Verdict = StrictlyProper
+	case prop.Strict:
+		// Strict properness is strict concavity. The grid's pairs show no
+		// tie, but H is flat in some direction at an interior point, and a
+		// flat piece narrower than a grid step leaves ties no grid pair
+		// can show (min(p(1-p), 0.2499999) is flat on |p - 1/2| < 3.2e-4).
+		rep.Verdict = Proper
+		rep.Notes = append(rep.Notes, fmt.Sprintf("strict properness is not established: no two grid reports tie, but the curvature of H vanishes at the interior point %s (largest projected eigenvalue %.3g), where nearby reports may do equally well; check at a finer resolution", num.Format(conc.Interior.Belief), conc.Interior.Worst))
 	default:
 		rep.Verdict = Proper
 	}

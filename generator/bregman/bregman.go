@@ -191,7 +191,9 @@ func (s *Scorer) Binary(p float64) (h, dh, w float64) {
 	x := [2]float64{p, 1 - p}
 	h = s.ev.Hessian(s.hess, s.grad, x[:])
 	dh = s.grad[0] - s.grad[1]
-	w = -(s.hess[0] - s.hess[1] - s.hess[2] + s.hess[3])
+	// 0 - x, not -x: a linear h has weight +0, not the -0 that reads as
+	// a negative weight wherever it is printed.
+	w = 0 - (s.hess[0] - s.hess[1] - s.hess[2] + s.hess[3])
 	return h, dh, w
 }
 

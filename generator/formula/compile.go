@@ -771,6 +771,14 @@ func (c *compiler) reduce(body int32, lanes int) int32 {
 		}
 		return c.op(opMul, c.konst(float64(lanes)), body, 0)
 	}
+	// Superinstructions for the two commonest sums, sum(p^2) and
+	// sum(p*ln(p)): one dispatch instead of two, and no lane cells.
+	switch in := c.code[body]; in.op {
+	case opSq:
+		return c.push(instr{op: opVSumSq, a: in.a, w: 1})
+	case opXLnX:
+		return c.push(instr{op: opVSumXLnX, a: in.a, w: 1})
+	}
 	return c.push(instr{op: opVSum, a: body, w: 1})
 }
 

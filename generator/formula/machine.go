@@ -88,6 +88,28 @@ func (m *Machine) forward(vars []float64) {
 				s += x
 			}
 			v[i] = s
+		case opVSumSq:
+			var s float64
+			for _, x := range v[in.a : in.a+in.n] {
+				s += x * x
+			}
+			v[i] = s
+		case opVSumXLnX:
+			// ln a of each lane is kept in the instruction's own aux cells.
+			xs := v[in.a : in.a+in.n]
+			ls := m.aux[in.c : in.c+in.n]
+			ls = ls[:len(xs)]
+			var s float64
+			for l, x := range xs {
+				lx := math.Log(x)
+				ls[l] = lx
+				r := x * lx
+				if r != r {
+					r = mul0(x, lx)
+				}
+				s += r
+			}
+			v[i] = s
 		case opSelect:
 			v[i] = sel(v[in.c], v[in.a], v[in.b])
 		default:
@@ -230,6 +252,20 @@ func (m *Machine) Gradient(grad, vars []float64) float64 {
 			for l := range adj[in.a : in.a+in.n] {
 				adj[in.a+int32(l)] += g
 			}
+		case opVSumSq:
+			as := adj[in.a : in.a+in.n]
+			xs := v[in.a : in.a+in.n]
+			xs = xs[:len(as)]
+			for l, x := range xs {
+				as[l] += 2 * mul0(g, x)
+			}
+		case opVSumXLnX:
+			as := adj[in.a : in.a+in.n]
+			ls := m.aux[in.c : in.c+in.n]
+			ls = ls[:len(as)]
+			for l, lx := range ls {
+				as[l] += g * (lx + 1)
+			}
 		default:
 			m.back(in.op, in.dst, in.a, in.b, in.c, in.k, g)
 		}
@@ -325,7 +361,7 @@ func (m *Machine) back(op opcode, i, a, b, c int32, k, g float64) {
 	case opXLnX:
 		adj[a] += g * (m.aux[i] + 1)
 	case opPowK:
-		adj[a] += mul0(g, k*math.Pow(v[a], k-1))
+		adj[a] += mul0(g, mul0(k, math.Pow(v[a], k-1)))
 	case opPowB:
 		adj[a] += mul0(g, v[i]*math.Log(k))
 	case opPow:
@@ -427,7 +463,9 @@ func (m *Machine) hessLane(in *cell, l int32) {
 		m.unary(i, ia, 2*a, 2)
 	case opPowK:
 		k := in.k
-		m.unary(i, ia, k*math.Pow(a, k-1), k*(k-1)*math.Pow(a, k-2))
+		// mul0: for a huge exponent k(k-1) overflows while a^(k-2)
+		// underflows; the product's limit is 0, not NaN.
+		m.unary(i, ia, mul0(k, math.Pow(a, k-1)), mul0(k*(k-1), math.Pow(a, k-2)))
 	case opPowB:
 		lk := math.Log(in.k)
 		m.unary(i, ia, z*lk, z*lk*lk)
@@ -468,6 +506,14 @@ func (m *Machine) hessLane(in *cell, l int32) {
 		for s := int(in.a); s < int(in.a+in.n); s++ {
 			axpyNZ(G, 1, m.grad[s*nv:(s+1)*nv])
 			axpyNZ(H, 1, m.hess[s*nv*nv:(s+1)*nv*nv])
+		}
+	case opVSumSq:
+		for s := int(in.a); s < int(in.a+in.n); s++ {
+			m.unary(i, s, 2*v[s], 2)
+		}
+	case opVSumXLnX:
+		for s := int(in.a); s < int(in.a+in.n); s++ {
+			m.unary(i, s, math.Log(v[s])+1, 1/v[s])
 		}
 	case opCumsum:
 		// Lane l is lane l-1 plus a_l.

@@ -4,42 +4,44 @@ package formula
 type opcode uint8
 
 const (
-	opConst  opcode = iota // k
-	opVar                  // vars[a]
-	opAdd                  // a + b
-	opSub                  // a - b
-	opMul                  // a * b, with 0 * ±Inf = 0
-	opDiv                  // a / b
-	opNeg                  // -a
-	opSq                   // a * a
-	opPowK                 // a ^ k, k constant
-	opPowB                 // k ^ a, k constant base
-	opPow                  // a ^ b
-	opExp                  // exp(a)
-	opLn                   // ln(a)
-	opSqrt                 // sqrt(a)
-	opAbs                  // |a|
-	opMin                  // min(a, b)
-	opMax                  // max(a, b)
-	opLt                   // a < b  (1 or 0)
-	opLe                   // a <= b
-	opGt                   // a > b
-	opGe                   // a >= b
-	opSelect               // c != 0 ? a : b
-	opXLnX                 // a * ln(a), with 0 ln 0 = 0: the entropy term, fused
-	opVConst               // a vector constant (compiler only)
-	opVSum                 // the sum of the lanes of vector a
-	opCumsum               // lanes k = a_1 + ... + a_k of vector a
+	opConst    opcode = iota // k
+	opVar                    // vars[a]
+	opAdd                    // a + b
+	opSub                    // a - b
+	opMul                    // a * b, with 0 * ±Inf = 0
+	opDiv                    // a / b
+	opNeg                    // -a
+	opSq                     // a * a
+	opPowK                   // a ^ k, k constant
+	opPowB                   // k ^ a, k constant base
+	opPow                    // a ^ b
+	opExp                    // exp(a)
+	opLn                     // ln(a)
+	opSqrt                   // sqrt(a)
+	opAbs                    // |a|
+	opMin                    // min(a, b)
+	opMax                    // max(a, b)
+	opLt                     // a < b  (1 or 0)
+	opLe                     // a <= b
+	opGt                     // a > b
+	opGe                     // a >= b
+	opSelect                 // c != 0 ? a : b
+	opXLnX                   // a * ln(a), with 0 ln 0 = 0: the entropy term, fused
+	opVConst                 // a vector constant (compiler only)
+	opVSum                   // the sum of the lanes of vector a
+	opCumsum                 // lanes k = a_1 + ... + a_k of vector a
+	opVSumSq                 // the sum of the squares of the lanes of a
+	opVSumXLnX               // the sum of a ln a over the lanes of a
 )
 
-var opNames = [...]string{"const", "var", "add", "sub", "mul", "div", "neg", "sq", "powk", "powb", "pow", "exp", "ln", "sqrt", "abs", "min", "max", "lt", "le", "gt", "ge", "select", "xlnx", "vconst", "vsum", "cumsum"}
+var opNames = [...]string{"const", "var", "add", "sub", "mul", "div", "neg", "sq", "powk", "powb", "pow", "exp", "ln", "sqrt", "abs", "min", "max", "lt", "le", "gt", "ge", "select", "xlnx", "vconst", "vsum", "cumsum", "vsumsq", "vsumxlnx"}
 
 func (o opcode) String() string { return opNames[o] }
 
 // unary reports operations that read only operand a.
 func (o opcode) unary() bool {
 	switch o {
-	case opNeg, opSq, opPowK, opPowB, opExp, opLn, opSqrt, opAbs, opXLnX, opVSum, opCumsum:
+	case opNeg, opSq, opPowK, opPowB, opExp, opLn, opSqrt, opAbs, opXLnX, opVSum, opCumsum, opVSumSq, opVSumXLnX:
 		return true
 	}
 	return false
@@ -173,7 +175,7 @@ func link(code []instr, out int32, varNames []string, vconsts [][]float64) *Prog
 		w := max(1, in.w)
 		cl := cell{op: in.op, w: w, dst: next, k: in.k}
 		switch {
-		case in.op == opVSum:
+		case in.op == opVSum || in.op == opVSumSq || in.op == opVSumXLnX:
 			cl.a, cl.n = at[in.a], code[in.a].w
 		case in.op.unary():
 			cl.a, cl.sa = at[in.a], stride(in.a)
@@ -187,6 +189,13 @@ func link(code []instr, out int32, varNames []string, vconsts [][]float64) *Prog
 		}
 		at[i] = next
 		next += w
+		if in.op == opVSumXLnX {
+			// Cells of its own for ln a of every lane, kept for the
+			// backward sweep (the operand's lanes may belong to another
+			// instruction that keeps its own there).
+			cl.c = next
+			next += cl.n
+		}
 		p.code = append(p.code, cl)
 	}
 	p.out = at[out]

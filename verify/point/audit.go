@@ -187,6 +187,12 @@ func AuditPayout(ctx context.Context, p *Payout, lo, hi float64, s Settings, can
 	case !proper.Passed || !nonneg.Passed:
 		rep.Verdict = Improper
 		rep.Notes = append(rep.Notes, fmt.Sprintf("the mean is not the best report: with outcomes %s weighted %s (mean %.6g) the report %.6g earns %.6g more in expectation", num.Format(gap.Outcomes), num.Format(gap.Weights), gap.Mean, gap.BestReport, gap.Max))
+	case countNaN(pm[1:len(pm)-1]) > 0:
+		// The other checks skip NaN; a payout undefined for a report
+		// inside the interval cannot be called proper (at the ends, ∞ - ∞
+		// is how an unbounded payout shows, reported under boundedness).
+		rep.Verdict = Improper
+		rep.Notes = append(rep.Notes, fmt.Sprintf("the payout is undefined (NaN) in %d grid cells with a report inside the interval (see boundedness), so it is not proper on [%g, %g]", countNaN(pm[1:len(pm)-1]), lo, hi))
 	case strictMargin > tol*scale:
 		rep.Verdict = StrictlyProper
 	default:

@@ -186,8 +186,15 @@ func CheckGenerator(ctx context.Context, g *gpoint.Generator, s Settings) (*Repo
 	maxD2, atD2, scaleD2 := math.Inf(-1), 0.0, 0.0
 	strict := true
 	var nonFinite []string
-	for _, x := range xs {
+	// undefined counts the interior reports where phi, a derivative or D
+	// is NaN. At an end of the interval ∞ - ∞ is how an unbounded rule
+	// such as ln x at 0 shows, reported under boundedness, not failed.
+	undefined := 0
+	for i, x := range xs {
 		phi, d1, d2 := ev.Derivatives(x)
+		if (phi != phi || d1 != d1 || d2 != d2) && i > 0 && i < len(xs)-1 {
+			undefined++
+		}
 		if !finite(phi) || !finite(d1) || !finite(d2) {
 			nonFinite = append(nonFinite, fmt.Sprintf("x = %g (phi %v, phi' %v, phi'' %v)", x, phi, d1, d2))
 			continue
@@ -212,6 +219,7 @@ func CheckGenerator(ctx context.Context, g *gpoint.Generator, s Settings) (*Repo
 		return nil, err
 	}
 	nonFinite = append(nonFinite, bad...)
+	undefined += countNaN(dm[1 : len(dm)-1])
 	minD, scaleD := math.Inf(1), 0.0
 	var minAt At
 	for i, x := range xs {
@@ -285,6 +293,11 @@ func CheckGenerator(ctx context.Context, g *gpoint.Generator, s Settings) (*Repo
 	switch {
 	case !concave.Passed || !nonneg.Passed || !best.Passed || !affine.Passed:
 		rep.Verdict = Improper
+	case undefined > 0:
+		// The other checks skip NaN; a rule undefined somewhere on the
+		// interval cannot be called proper there.
+		rep.Verdict = Improper
+		rep.Notes = append(rep.Notes, fmt.Sprintf("the rule is undefined (NaN) at %d places with a report inside the interval (see boundedness), so it is not proper on [%g, %g]", undefined, g.Lo, g.Hi))
 	case strict:
 		rep.Verdict = StrictlyProper
 	default:
@@ -314,6 +327,19 @@ func fill(ctx context.Context, xs, ys []float64, name string, f func(y, x float6
 		}
 	}
 	return m, bad, nil
+}
+
+// countNaN counts the NaN entries of a matrix.
+func countNaN(m [][]float64) int {
+	c := 0
+	for _, row := range m {
+		for _, v := range row {
+			if v != v {
+				c++
+			}
+		}
+	}
+	return c
 }
 
 func joinFirst(s []string, n int) string {
