@@ -521,6 +521,8 @@ func (m *Model) edited() tea.Cmd {
 func (m *Model) replaceDesign(d *design.Design) tea.Cmd {
 	m.d = cloneDesign(d)
 	m.designPane.reset(m.d)
+	// A new design's wealth follows its budget again.
+	m.riskSet, m.riskIn.Belief = false, nil
 	m.budget.setTable(nil, nil)
 	cmd := m.edited()
 	m.savedGen = m.gen
