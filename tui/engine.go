@@ -146,13 +146,8 @@ func auditPointPayout(ctx context.Context, d *design.Design, s Settings, progres
 // is compared with, on the design's interval.
 func pointAuditCandidates(lo, hi float64) []vpoint.Candidate {
 	var out []vpoint.Candidate
-	for _, ps := range presets.All() {
-		if ps.Kind != presets.KindPoint {
-			continue
-		}
-		if g, err := gpoint.New(ps.Formula, lo, hi, gpoint.Options{}); err == nil {
-			out = append(out, vpoint.Candidate{Name: ps.Name, Gen: g})
-		}
+	for _, g := range presets.PointGenerators(lo, hi) {
+		out = append(out, vpoint.Candidate(g))
 	}
 	return out
 }
@@ -339,18 +334,8 @@ func writeExport(path string, data []byte, overwrite bool) ([]string, error) {
 // with, each built as the design would build it.
 func auditCandidates(d *design.Design) []verify.Candidate {
 	var out []verify.Candidate
-	for _, ps := range presets.All() {
-		if ps.Kind != presets.KindGenerator || ps.Ordered && !d.Ordered || ps.Weighted && d.Weights == nil {
-			continue
-		}
-		c := cloneDesign(d)
-		c.Mode, c.Preset, c.Params = design.ModeGenerator, ps.Name, nil
-		if presets.Apply(c) != nil {
-			continue
-		}
-		if r, _, _, err := designRule(c); err == nil {
-			out = append(out, verify.Candidate{Name: ps.Name, Rule: r})
-		}
+	for _, r := range presets.Rules(d.N(), d.Ordered, d.Weights) {
+		out = append(out, verify.Candidate(r))
 	}
 	return out
 }

@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"math"
 
-	"scorewright/generator/bregman"
 	"scorewright/generator/design"
 	"scorewright/generator/num"
 	"scorewright/generator/payout"
@@ -131,15 +130,8 @@ func runAudit(e *env, args []string) error {
 // for ordered outcomes.
 func candidates(n int, ordered bool, w []float64) []verify.Candidate {
 	var out []verify.Candidate
-	for _, p := range presets.All() {
-		if p.Kind != presets.KindGenerator || p.BinaryOnly && n != 2 || p.Ordered && !ordered || p.Weighted && w == nil {
-			continue
-		}
-		f, err := bregman.NewFormula(p.Formula, bregman.Options{Outcomes: n, Ordered: p.Ordered || ordered, Weights: w})
-		if err != nil {
-			continue // a preset that does not compile here is simply not a candidate
-		}
-		out = append(out, verify.Candidate{Name: p.Name, Rule: &bregman.Rule{Gen: f, Ordered: p.Ordered}})
+	for _, r := range presets.Rules(n, ordered, w) {
+		out = append(out, verify.Candidate(r))
 	}
 	return out
 }

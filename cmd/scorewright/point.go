@@ -68,13 +68,8 @@ func pointGenerator(d *design.Design) (*gpoint.Generator, error) {
 // pointCandidates are the point presets an audited payout is compared with.
 func pointCandidates(lo, hi float64) []vpoint.Candidate {
 	var out []vpoint.Candidate
-	for _, p := range presets.All() {
-		if p.Kind != presets.KindPoint {
-			continue
-		}
-		if g, err := gpoint.New(p.Formula, lo, hi, gpoint.Options{}); err == nil {
-			out = append(out, vpoint.Candidate{Name: p.Name, Gen: g})
-		}
+	for _, g := range presets.PointGenerators(lo, hi) {
+		out = append(out, vpoint.Candidate(g))
 	}
 	return out
 }

@@ -1,0 +1,58 @@
+package presets
+
+import (
+	"scorewright/generator/bregman"
+	"scorewright/generator/point"
+)
+
+// NamedRule is a preset compiled as a rule; its fields match
+// verify.Candidate, so a caller converts with verify.Candidate(r).
+type NamedRule struct {
+	Name string
+	Rule *bregman.Rule
+}
+
+// Rules compiles every generator preset that fits n outcomes (ordered or
+// not, with or without outcome weights) at its default parameters: the
+// known rules an audited payout is compared with. A preset that does not
+// compile for these outcomes is left out.
+func Rules(n int, ordered bool, weights []float64) []NamedRule {
+	var out []NamedRule
+	for _, p := range all() {
+		if p.Kind != KindGenerator || p.BinaryOnly && n != 2 || p.Ordered && !ordered || p.Weighted && weights == nil {
+			continue
+		}
+		w := weights
+		if !p.Weighted {
+			w = nil
+		}
+		f, err := bregman.NewFormula(p.Formula, bregman.Options{Outcomes: n, Ordered: p.Ordered || ordered, Weights: w})
+		if err != nil {
+			continue
+		}
+		out = append(out, NamedRule{Name: p.Name, Rule: &bregman.Rule{Gen: f, Ordered: p.Ordered || ordered}})
+	}
+	return out
+}
+
+// NamedPoint is a point-forecast preset compiled on an interval; its
+// fields match verify/point.Candidate.
+type NamedPoint struct {
+	Name string
+	Gen  *point.Generator
+}
+
+// PointGenerators compiles every point-forecast preset on [lo, hi] at its
+// default parameters; one that does not compile there is left out.
+func PointGenerators(lo, hi float64) []NamedPoint {
+	var out []NamedPoint
+	for _, p := range all() {
+		if p.Kind != KindPoint {
+			continue
+		}
+		if g, err := point.New(p.Formula, lo, hi, point.Options{}); err == nil {
+			out = append(out, NamedPoint{Name: p.Name, Gen: g})
+		}
+	}
+	return out
+}
