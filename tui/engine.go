@@ -245,7 +245,7 @@ func budgetFitter(ctx context.Context, d *design.Design) (*TableView, error) {
 	if err != nil {
 		return nil, err
 	}
-	tb := fit.Table(rc, budget.Info{Title: d.Title, Formula: d.Formula, Preset: d.Preset, Params: d.Params})
+	tb := fit.Table(rc, budget.DesignInfo(d, "", ""))
 	tv := &TableView{Passed: rc.Passed, MinMargin: rc.MinMargin, Pay: fit.Pay, Notes: fit.Notes(rc)}
 	tv.Header = append(tv.Header, "report")
 	for k := range d.Labels {
@@ -296,8 +296,7 @@ func (te tableExporter) Export(ctx context.Context, d *design.Design, req Export
 		if !rc.Passed {
 			return nil, refused(rc.MinMargin)
 		}
-		tb = fit.Table(rc, budget.Info{Title: d.Title, Formula: d.Formula, Preset: d.Preset, Params: d.Params,
-			Version: te.version, Date: date})
+		tb = fit.Table(rc, budget.DesignInfo(d, te.version, date))
 		lo, hi = math.Min(fit.Floor, fit.MinPay), math.Max(fit.Cap, fit.MaxPay)
 	}
 	if req.Lottery {

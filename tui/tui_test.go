@@ -457,6 +457,24 @@ func TestExportDialog(t *testing.T) {
 	}
 }
 
+// The workbench writes the same record as the table command: an ordered
+// design's outcomes say so, and the formula says what it is.
+func TestExportRecordOrdered(t *testing.T) {
+	dir := t.TempDir()
+	m := testModel(t, DemoHarvest(), Settings{Dir: dir, Version: "test"})
+	start(t, m, 80, 24)
+	press(t, m, tea_ctrlX(), keyTab, keyEnter) // csv → md, export
+	b, err := os.ReadFile(filepath.Join(dir, "orchard-co-operative-harvest-outlook.md"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{"below, near, above (ordered)", "the generator H(p), concave"} {
+		if !strings.Contains(string(b), want) {
+			t.Errorf("record lacks %q:\n%s", want, b)
+		}
+	}
+}
+
 // A point design exports its own table in every format, with the
 // re-check in the budget pane; a table that fails the re-check is refused
 // as a table over outcomes is.

@@ -114,11 +114,7 @@ func runTable(e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	tb := fit.Table(rc, budget.Info{
-		Title: d.Title, Formula: d.Formula, FormulaRole: formulaRole(d.Mode), Preset: d.Preset, Params: d.Params,
-		Weights: d.Weights, Ordered: d.Ordered,
-		Version: version, Date: exportDate(),
-	})
+	tb := fit.Table(rc, budget.DesignInfo(d, version, exportDate()))
 	var lot *lotteryJSON
 	if tf.lottery {
 		if lot, err = lotteryTable(tb, math.Min(fit.Floor, fit.MinPay), math.Max(fit.Cap, fit.MaxPay)); err != nil {
@@ -178,14 +174,6 @@ func exportTable(e *env, tb *table.Table, format string, tf *tableFlags, passed 
 		return errFailed
 	}
 	return nil
-}
-
-// formulaRole says in a table's record what the design's formula is.
-func formulaRole(m design.Mode) string {
-	if m == design.ModeEmphasis {
-		return "the emphasis weight w(c) of a yes/no rule, integrated twice into its generator (Schervish 1989), normalised so that a certain, correct forecast costs 0"
-	}
-	return "the generator H(p), concave; efforts by the Bregman construction L(p, k) = H(p) + dH_k - <dH, p>"
 }
 
 // tableMenu builds the report menu from --menu or the budget's step.
