@@ -11,6 +11,8 @@ import (
 	"gonum.org/v1/gonum/stat"
 
 	"scorewright/generator/bregman"
+	"scorewright/generator/emphasis"
+	"scorewright/generator/point"
 )
 
 // rule compiles a preset for n outcomes, failing the test on error.
@@ -376,6 +378,60 @@ func TestValueOfMovingAReport(t *testing.T) {
 			rhs := s.Divergence(q, r) - s.Divergence(q, p)
 			if !near(lhs, rhs, 1e-12) {
 				t.Errorf("%s: %v != %v", name, lhs, rhs)
+			}
+		}
+	}
+}
+
+// The presets that are not generators over outcomes run through the same
+// exact derivatives: point presets' phi'(x) and phi''(x), and the beta
+// emphasis rule's formal gradient and Hessian, agree with gonum's diff/fd
+// central differences.
+func TestOtherPresetDerivatives(t *testing.T) {
+	for _, p := range All() {
+		if p.Kind != KindPoint {
+			continue
+		}
+		g, err := point.New(p.Formula, 1, 10, point.Options{})
+		if err != nil {
+			t.Fatalf("%s: %v", p.Name, err)
+		}
+		ev := g.NewEvaluator()
+		phi := func(x float64) float64 { return ev.Phi(x) }
+		for _, x := range []float64{1.5, 3, 7.25, 9} {
+			_, d1, d2 := ev.Derivatives(x)
+			if want := fd.Derivative(phi, x, &fd.Settings{Formula: fd.Central}); !near(d1, want, 1e-6) {
+				t.Errorf("%s at %v: phi' = %v, finite differences %v", p.Name, x, d1, want)
+			}
+			if want := fd.Derivative(phi, x, &fd.Settings{Formula: fd.Central2nd}); !near(d2, want, 1e-4) {
+				t.Errorf("%s at %v: phi'' = %v, finite differences %v", p.Name, x, d2, want)
+			}
+		}
+	}
+	beta, _ := Lookup("beta")
+	for _, params := range []map[string]float64{{"a": 1, "b": 1}, {"a": 0.5, "b": 3}} {
+		g, err := emphasis.New(beta.Formula, emphasis.Options{Params: params})
+		if err != nil {
+			t.Fatal(err)
+		}
+		ev := g.NewEvaluator()
+		f := func(x []float64) float64 { return ev.Value(x) }
+		grad, hess := make([]float64, 2), make([]float64, 4)
+		for _, q := range []float64{0.2, 0.45, 0.8} {
+			x := []float64{q, 1 - q}
+			ev.Hessian(hess, grad, x)
+			wantG := fd.Gradient(nil, f, x, &fd.Settings{Formula: fd.Central})
+			wantH := mat.NewSymDense(2, nil)
+			fd.Hessian(wantH, f, x, nil)
+			for i := 0; i < 2; i++ {
+				if !near(grad[i], wantG[i], 1e-6) {
+					t.Errorf("beta %v at %v: d/dp%d = %v, finite differences %v", params, x, i+1, grad[i], wantG[i])
+				}
+				for j := 0; j < 2; j++ {
+					if !near(hess[i*2+j], wantH.At(i, j), 2e-3) {
+						t.Errorf("beta %v at %v: H[%d][%d] = %v, finite differences %v", params, x, i, j, hess[i*2+j], wantH.At(i, j))
+					}
+				}
 			}
 		}
 	}
