@@ -384,7 +384,7 @@ func TestValueOfMovingAReport(t *testing.T) {
 }
 
 // The presets that are not generators over outcomes run through the same
-// exact derivatives: point presets' phi'(x) and phi''(x), and the beta
+// exact derivatives: point presets' phi'(x) and phi”(x), and the beta
 // emphasis rule's formal gradient and Hessian, agree with gonum's diff/fd
 // central differences.
 func TestOtherPresetDerivatives(t *testing.T) {
