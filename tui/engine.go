@@ -247,10 +247,10 @@ func budgetFitter(ctx context.Context, d *design.Design) (*TableView, error) {
 	}
 	tb := fit.Table(rc, budget.DesignInfo(d, "", ""))
 	tv := &TableView{Passed: rc.Passed, MinMargin: rc.MinMargin, Pay: fit.Pay, Notes: fit.Notes(rc)}
-	tv.Header = append(tv.Header, "report")
-	for k := range d.Labels {
-		tv.Header = append(tv.Header, tb.ValueHeader(k))
-	}
+	// Column heads are the bare outcome labels, under a first head that
+	// says what the cells are: narrow panes keep every column.
+	tv.Header = append(tv.Header, "report \\ "+tb.ValueName+" if")
+	tv.Header = append(tv.Header, d.Labels...)
 	value := tb.Value
 	if d.Budget.Unit == 0 {
 		// Unrounded pay prints every digit; the preview shows four decimals
