@@ -6,10 +6,17 @@ import (
 )
 
 // NamedRule is a preset compiled as a rule; its fields match
-// verify.Candidate, so a caller converts with verify.Candidate(r).
+// verify.Candidate, so a caller converts with verify.Candidate(r). A
+// preset with a fitted parameter (Preset.Fit) is a family: Param, its
+// default Value, the range [Lo, Hi] and At, which compiles the member at
+// another value; At is nil for the others.
 type NamedRule struct {
-	Name string
-	Rule *bregman.Rule
+	Name   string
+	Rule   *bregman.Rule
+	Param  string
+	Value  float64
+	Lo, Hi float64
+	At     func(v float64) (*bregman.Rule, error)
 }
 
 // Rules compiles every generator preset that fits n outcomes (ordered or
@@ -26,11 +33,27 @@ func Rules(n int, ordered bool, weights []float64) []NamedRule {
 		if !p.Weighted {
 			w = nil
 		}
-		f, err := bregman.NewFormula(p.Formula, bregman.Options{Outcomes: n, Ordered: p.Ordered || ordered, Weights: w})
+		opt := bregman.Options{Outcomes: n, Ordered: p.Ordered || ordered, Weights: w}
+		f, err := bregman.NewFormula(p.Formula, opt)
 		if err != nil {
 			continue
 		}
-		out = append(out, NamedRule{Name: p.Name, Rule: &bregman.Rule{Gen: f, Ordered: p.Ordered || ordered}})
+		nr := NamedRule{Name: p.Name, Rule: &bregman.Rule{Gen: f, Ordered: opt.Ordered}}
+		for _, pv := range f.Program().Params() {
+			if fit := p.Fit; fit.Name != "" && pv.Name == fit.Name {
+				nr.Param, nr.Value, nr.Lo, nr.Hi = fit.Name, pv.Value, fit.Lo, fit.Hi
+				nr.At = func(v float64) (*bregman.Rule, error) {
+					o := opt
+					o.Params = map[string]float64{fit.Name: v}
+					m, err := bregman.NewFormula(p.Formula, o)
+					if err != nil {
+						return nil, err
+					}
+					return &bregman.Rule{Gen: m, Ordered: o.Ordered}, nil
+				}
+			}
+		}
+		out = append(out, nr)
 	}
 	return out
 }

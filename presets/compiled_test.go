@@ -1,6 +1,7 @@
 package presets
 
 import (
+	"math"
 	"slices"
 	"testing"
 )
@@ -42,5 +43,43 @@ func TestRulesFitTheOutcomes(t *testing.T) {
 	}
 	if !slices.Contains(points, "squared-error") || len(points) < 3 {
 		t.Errorf("point presets on [0, 100]: %v", points)
+	}
+}
+
+// The power and pseudospherical presets come as families with their one
+// parameter (defaults g = 3, a = 3, from their formulas); At builds other
+// members. Derived by hand: the power effort is
+// (1 + (g-1) sum p^g - g p_k^(g-1)) / (g - 1), at g = 2 the Brier effort
+// sum_i (p_i - [i = k])^2 = 1 + sum p^2 - 2 p_k (Brier 1950): 0.98, 0.78,
+// 0.38 at p = (0.2, 0.3, 0.5), where sum p^2 = 0.38.
+func TestRulesFamilies(t *testing.T) {
+	want := map[string]string{"power": "g", "pseudospherical": "a"}
+	for _, r := range Rules(3, false, nil) {
+		param, family := want[r.Name]
+		if !family {
+			if r.At != nil || r.Param != "" {
+				t.Errorf("%s: a family with parameter %q", r.Name, r.Param)
+			}
+			continue
+		}
+		if r.Param != param || r.Value != 3 || r.At == nil || !(r.Lo < r.Value && r.Value < r.Hi) {
+			t.Errorf("%s: param %q = %g in [%g, %g], At set %v", r.Name, r.Param, r.Value, r.Lo, r.Hi, r.At != nil)
+			continue
+		}
+		if r.Name != "power" {
+			continue
+		}
+		m, err := r.At(2)
+		if err != nil {
+			t.Fatal(err)
+		}
+		eff := make([]float64, 3)
+		m.NewScorer().Efforts(eff, []float64{0.2, 0.3, 0.5})
+		for k, w := range []float64{0.98, 0.78, 0.38} {
+			if math.Abs(eff[k]-w) > 1e-12 {
+				t.Errorf("power at g = 2: effort %v, want (0.98, 0.78, 0.38)", eff)
+				break
+			}
+		}
 	}
 }

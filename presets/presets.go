@@ -42,6 +42,16 @@ type Preset struct {
 	BinaryOnly bool
 	// Weighted presets read outcome weights (w inside sum).
 	Weighted bool
+	// Fit is the one numeric parameter an audit fits when it compares a
+	// payout with this rule, and the range it searches; zero for a rule
+	// compared at its defaults only.
+	Fit ParamRange
+}
+
+// ParamRange is a formula parameter and a closed range of its values.
+type ParamRange struct {
+	Name   string
+	Lo, Hi float64
 }
 
 // all returns the presets in display order. It builds a fresh slice each
@@ -59,10 +69,19 @@ func all() []Preset {
 			Source:  "Gneiting & Raftery (2007), JASA 102:359-378, Sec. 3"},
 		{Name: "pseudospherical", Title: "pseudospherical rule, reward (p_k / ||p||_a)^(a-1)", Kind: KindGenerator,
 			Formula: "a = 3\n-sum(p^a)^(1/a)",
-			Source:  "Gneiting & Raftery (2007), JASA 102:359-378, Sec. 3"},
+			Source:  "Gneiting & Raftery (2007), JASA 102:359-378, Sec. 3",
+			// Strictly proper for a > 1 (Gneiting & Raftery, Sec. 3); as
+			// a -> 1 the score tends to the constant 1 (its effort varies
+			// by only about (a - 1) ln p), so the search stays clear of it.
+			Fit: ParamRange{Name: "a", Lo: 1.05, Hi: 10}},
 		{Name: "power", Title: "power (Tsallis) rule; g -> 1 is log, g = 2 quadratic", Kind: KindGenerator,
 			Formula: "g = 3\n(1 - sum(p^g)) / (g - 1)",
-			Source:  "Gneiting & Raftery (2007), JASA 102:359-378, Sec. 3 (power score)"},
+			Source:  "Gneiting & Raftery (2007), JASA 102:359-378, Sec. 3 (power score)",
+			// Concave, so proper, for every g > 0 (sum p^g is concave for
+			// g < 1 and convex for g > 1, and the sign of g - 1 follows);
+			// g = 1 itself, the log rule's limit, is undefined as written
+			// and left out by the search.
+			Fit: ParamRange{Name: "g", Lo: 0.1, Hi: 10}},
 		{Name: "beta", Title: "beta family for yes/no events, emphasis c^(a-1) (1-c)^(b-1)", Kind: KindEmphasis,
 			Formula: "a = 1\nb = 1\nc^(a-1) * (1-c)^(b-1)", BinaryOnly: true,
 			Source: "Buja, Stuetzle & Shen (2005), Loss functions for binary class probability estimation; Schervish (1989), Ann. Statist. 17:1856-1879"},

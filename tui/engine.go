@@ -79,7 +79,7 @@ func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress f
 		}
 		out := fromVerify(&rep.Report)
 		if id := rep.Identified; id != nil {
-			out.Notes = append(out.Notes, fmt.Sprintf("identified: pay = %.6g - %.6g × effort of the %s preset", id.Shift, id.Scale, id.Preset))
+			out.Notes = append(out.Notes, fmt.Sprintf("identified: pay = %.6g - %.6g × effort of the %s preset%s", id.Shift, id.Scale, id.Preset, id.WithParam()))
 		}
 		if rep.Gap.Max > 0 {
 			out.Notes = append(out.Notes, fmt.Sprintf("largest honesty gap %.4g at belief %s: best report %s",

@@ -7,19 +7,10 @@ import (
 	"math/rand/v2"
 	"sort"
 
-	"gonum.org/v1/gonum/stat"
-
-	"scorewright/generator/bregman"
 	"scorewright/generator/num"
 	"scorewright/generator/payout"
 	"scorewright/verify/simplex"
 )
-
-// Candidate is a known rule a payout may be an affine image of.
-type Candidate struct {
-	Name string
-	Rule *bregman.Rule
-}
 
 // Gap is the largest honesty gap of an audit: the most a forecaster can
 // gain in expected pay over the honest report, at the belief where it is
@@ -44,19 +35,6 @@ type BeliefGap struct {
 	Honest float64
 }
 
-// Identification says a payout is shift + scale × a known rule's score
-// (score = -effort), i.e. pay = Shift - Scale × L.
-type Identification struct {
-	Preset       string
-	Scale, Shift float64
-	// Residual is the root-mean-square misfit relative to the spread of
-	// the payments, over Points finite (report, outcome) pairs.
-	Residual float64
-	Points   int
-	// Note explains a fit that was not accepted.
-	Note string
-}
-
 // Direction of the best misreport for yes/no events.
 const (
 	Exaggerates = "exaggerates" // away from 1/2
@@ -64,10 +42,6 @@ const (
 	Flips       = "flips"       // to the other side of 1/2
 	Mixed       = "mixed"       // different at different beliefs
 )
-
-// DefaultIdentifyTolerance is the relative residual below which a payout
-// counts as an affine image of a candidate rule.
-const DefaultIdentifyTolerance = 1e-6
 
 // AuditReport is the result of Audit. Its embedded Report has the checks
 // properness and boundedness.
@@ -115,7 +89,7 @@ func Audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings)
 		return nil, err
 	}
 	G := int64(g.Len())
-	pr := startProgress(s.Progress, G*G+G*int64(offGridCount(int(G)))+gradCost*G*int64(1+len(cands))+int64(auditRefine)*gradCost)
+	pr := startProgress(s.Progress, G*G+G*int64(offGridCount(int(G)))+gradCost*G+identifyCost(int(G), cands)+int64(auditRefine)*gradCost)
 	rep, err := audit(ctx, p, cands, s, g, pr)
 	pr.finish(err == nil)
 	return rep, err
@@ -247,7 +221,7 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 		rep.Notes = append(rep.Notes, expectedPayNote(rep))
 	}
 
-	fits, err := identify(ctx, g, pays, cands, s, pr)
+	fits, err := identify(ctx, g, pays, cands, pr)
 	if err != nil {
 		return nil, err
 	}
@@ -266,7 +240,7 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 		rep.Identified = &id
 		for _, f := range fits[1:] {
 			if f.Note == "" {
-				rep.Notes = append(rep.Notes, fmt.Sprintf("the payout also fits %q exactly (scale %.6g, shift %.6g): the two rules coincide up to scale and shift here", f.Preset, f.Scale, f.Shift))
+				rep.Notes = append(rep.Notes, fmt.Sprintf("the payout also fits %q%s exactly (scale %.6g, shift %.6g): the two rules coincide up to scale and shift here", f.Preset, f.WithParam(), f.Scale, f.Shift))
 			}
 		}
 	}
@@ -455,97 +429,4 @@ func expectedPayNote(rep *AuditReport) string {
 	}
 	return fmt.Sprintf("implied expected pay of an honest forecaster, V(q) = sum_k q_k pay(q, k): from %.6g at %s to %.6g at %s (V is convex for a proper payout; -V is its generator in effort orientation)",
 		lo+0, num.Format(at), hi+0, num.Format(atHi))
-}
-
-// identify fits pay = shift + scale × (-L) for every candidate by least
-// squares over the grid reports and outcomes where both are finite.
-func identify(ctx context.Context, g *simplex.Grid, pays *menu, cands []Candidate, s Settings, pr *progress) ([]Identification, error) {
-	n, G := g.N, g.Len()
-	tol := DefaultIdentifyTolerance
-	var fits []Identification
-	x := make([]float64, 0, G*n)
-	y := make([]float64, 0, G*n)
-	eff := make([]float64, n)
-	for _, c := range cands {
-		if err := ctx.Err(); err != nil {
-			return nil, err
-		}
-		if c.Rule == nil || c.Rule.Outcomes() != n {
-			continue
-		}
-		sc := c.Rule.NewScorer()
-		x, y = x[:0], y[:0]
-		mismatch := 0
-		for j := 0; j < G; j++ {
-			sc.Efforts(eff, g.Point(j))
-			for k := 0; k < n; k++ {
-				sx, py := -eff[k], pays.rows[j*n+k]
-				fx, fy := !math.IsInf(sx, 0) && sx == sx, !math.IsInf(py, 0) && py == py
-				switch {
-				case fx && fy:
-					x, y = append(x, sx), append(y, py)
-				case fx != fy, sx != sx, py != py, math.Signbit(sx) != math.Signbit(py):
-					mismatch++
-				}
-			}
-		}
-		pr.add(int64(G) * gradCost)
-		id := Identification{Preset: c.Name, Points: len(x)}
-		if len(x) < 3 {
-			id.Note = "too few finite points to fit"
-			id.Residual = math.Inf(1)
-			fits = append(fits, id)
-			continue
-		}
-		// Fit in units of the largest |payment|: the sums of squares of a
-		// payout counted in 1e300 would overflow to Inf and fail the fit.
-		unit := 0.0
-		for _, v := range y {
-			unit = math.Max(unit, math.Abs(v))
-		}
-		if unit == 0 {
-			unit = 1
-		}
-		for i := range y {
-			y[i] /= unit
-		}
-		shift, scale := stat.LinearRegression(x, y, nil, false)
-		var sse, sst float64
-		my := stat.Mean(y, nil)
-		for i := range x {
-			r := y[i] - shift - scale*x[i]
-			sse += r * r
-			sst += (y[i] - my) * (y[i] - my)
-		}
-		shift, scale = shift*unit, scale*unit
-		id.Scale, id.Shift = scale, shift
-		switch {
-		case sst == 0:
-			id.Residual = math.Inf(1)
-			id.Note = "the payout is constant"
-		default:
-			id.Residual = math.Sqrt(sse / sst)
-		}
-		switch {
-		case id.Note != "":
-		case mismatch > 0:
-			id.Note = fmt.Sprintf("the two are infinite in different places (%d report–outcome pairs)", mismatch)
-		case !(id.Residual < tol):
-			id.Note = fmt.Sprintf("relative residual %.3g is above %g", id.Residual, tol)
-		case !(scale > 0):
-			id.Note = fmt.Sprintf("the fitted scale %.6g is not positive, so the payout rewards the opposite", scale)
-		}
-		fits = append(fits, id)
-	}
-	// Accepted fits keep the candidates' order (several rules coincide up
-	// to scale for n = 2, and the caller lists the plainest first); the
-	// rejected follow, closest first.
-	sort.SliceStable(fits, func(a, b int) bool {
-		ea, eb := fits[a].Note == "", fits[b].Note == ""
-		if ea || eb {
-			return ea && !eb
-		}
-		return fits[a].Residual < fits[b].Residual
-	})
-	return fits, nil
 }

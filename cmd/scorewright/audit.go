@@ -19,11 +19,21 @@ type gapJSON struct {
 }
 
 type identJSON struct {
-	Preset   string    `json:"preset"`
-	Scale    num.Float `json:"scale"`
-	Shift    num.Float `json:"shift"`
-	Residual num.Float `json:"residual"`
-	Note     string    `json:"note,omitempty"`
+	Preset string    `json:"preset"`
+	Scale  num.Float `json:"scale"`
+	Shift  num.Float `json:"shift"`
+	// Params holds the fitted parameter of a preset family ({"g": 1.5}).
+	Params   map[string]num.Float `json:"params,omitempty"`
+	Residual num.Float            `json:"residual"`
+	Note     string               `json:"note,omitempty"`
+}
+
+func toIdentJSON(id verify.Identification) identJSON {
+	out := identJSON{Preset: id.Preset, Scale: num.Float(id.Scale), Shift: num.Float(id.Shift), Residual: num.Float(id.Residual), Note: id.Note}
+	if id.Param != "" {
+		out.Params = map[string]num.Float{id.Param: num.Float(id.Value)}
+	}
+	return out
 }
 
 type auditJSON struct {
@@ -107,10 +117,11 @@ func runAudit(e *env, args []string) error {
 		out := auditJSON{reportJSON: toReportJSON(&rep.Report), Payout: *src, Outcomes: labels, Direction: rep.Direction, Caution: auditCaution, Undefined: rep.Undefined,
 			Gap: gapJSON{Max: num.Float(rep.Gap.Max), Belief: vector(rep.Gap.Belief), BestReport: vector(rep.Gap.BestReport), Sharpened: rep.Gap.Sharpened}}
 		if id := rep.Identified; id != nil {
-			out.Identified = &identJSON{id.Preset, num.Float(id.Scale), num.Float(id.Shift), num.Float(id.Residual), ""}
+			j := toIdentJSON(*id)
+			out.Identified = &j
 		}
 		for _, f := range rep.Fits {
-			out.Fits = append(out.Fits, identJSON{f.Preset, num.Float(f.Scale), num.Float(f.Shift), num.Float(f.Residual), f.Note})
+			out.Fits = append(out.Fits, toIdentJSON(f))
 		}
 		if err := writeJSON(e.stdout, out); err != nil {
 			return err
@@ -170,11 +181,11 @@ func printAudit(e *env, src string, labels []string, rep *verify.AuditReport) {
 		}
 	}
 	if id := rep.Identified; id != nil {
-		fmt.Fprintf(w, "identified: pay = %.6g - %.6g × effort of preset %q, i.e. shift %.6g + scale %.6g × its score (relative residual %.2g)\n",
-			id.Shift, id.Scale, id.Preset, id.Shift, id.Scale, id.Residual)
+		fmt.Fprintf(w, "identified: pay = %.6g + %.6g × score of preset %q%s, its score being -effort (relative residual %.2g)\n",
+			id.Shift, id.Scale, id.Preset, id.WithParam(), id.Residual)
 	} else if len(rep.Fits) > 0 {
 		f := rep.Fits[0]
-		fmt.Fprintf(w, "not identified as a preset; closest %q: %s\n", f.Preset, f.Note)
+		fmt.Fprintf(w, "not identified as a preset; closest %q%s: %s\n", f.Preset, f.WithParam(), f.Note)
 	}
 	fmt.Fprintln(w, "caution:", auditCaution)
 }

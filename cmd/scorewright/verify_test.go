@@ -30,9 +30,10 @@ type verifyJSON struct {
 		BestReport []float64 `json:"best_report"`
 	} `json:"gap"`
 	Identified *struct {
-		Preset string  `json:"preset"`
-		Scale  float64 `json:"scale"`
-		Shift  float64 `json:"shift"`
+		Preset string             `json:"preset"`
+		Scale  float64            `json:"scale"`
+		Shift  float64            `json:"shift"`
+		Params map[string]float64 `json:"params"`
 	} `json:"identified"`
 }
 
@@ -106,6 +107,26 @@ func TestAuditCommand(t *testing.T) {
 	if v.Verdict != "strictly-proper" || v.Identified == nil || v.Identified.Preset != "quadratic" ||
 		math.Abs(v.Identified.Scale-5) > 1e-9 || math.Abs(v.Identified.Shift-10) > 1e-9 {
 		t.Errorf("verdict %s identified %+v", v.Verdict, v.Identified)
+	}
+	if v.Identified != nil && v.Identified.Params != nil {
+		t.Errorf("the quadratic rule has no fitted parameter: %+v", v.Identified)
+	}
+	// The power score of Gneiting & Raftery (2007, Sec. 3) at g = 1.5,
+	// S = 1.5 p_y^0.5 - 0.5 sum p^1.5, is 1 + (g - 1) × the power
+	// preset's score (its generator is divided by g - 1; derived by hand
+	// in verify's TestIdentifyFittedParameter), so 2 S = 2 + 1 × score.
+	const powerPay = "2*(1.5*p[y]^0.5 - 0.5*sum(p^1.5))"
+	code, out, _ = runCmd(t, "audit", "--outcomes", "3", "--payout", powerPay, "--resolution", "30", "--json")
+	v = verifyJSON{}
+	if err := json.Unmarshal([]byte(out), &v); err != nil || code != 0 {
+		t.Fatalf("exit %d, %v", code, err)
+	}
+	if id := v.Identified; id == nil || id.Preset != "power" || math.Abs(id.Params["g"]-1.5) > 1e-6 || math.Abs(id.Scale-1) > 1e-6 || math.Abs(id.Shift-2) > 1e-6 {
+		t.Errorf("power 1.5: identified %+v", v.Identified)
+	}
+	code, out, _ = runCmd(t, "audit", "--outcomes", "3", "--payout", powerPay, "--resolution", "30")
+	if want := `identified: pay = 2 + 1 × score of preset "power" with g = 1.5,`; code != 0 || !strings.Contains(out, want) {
+		t.Errorf("exit %d, no %q in:\n%s", code, want, out)
 	}
 	code, out, _ = runCmd(t, "audit", "--outcomes", "frost,clear", "--payout", "p[y]^2", "--resolution", "100")
 	if code != 1 || !strings.Contains(out, "exaggerates") || !strings.Contains(out, "caution:") {
