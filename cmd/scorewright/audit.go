@@ -182,7 +182,7 @@ func printAudit(e *env, src string, labels []string, rep *verify.AuditReport) {
 	}
 	if id := rep.Identified; id != nil {
 		fmt.Fprintf(w, "identified: pay = %.6g + %.6g × score of preset %q%s, its score being -effort (relative residual %.2g)\n",
-			id.Shift, id.Scale, id.Preset, id.WithParam(), id.Residual)
+			shown(id.Shift, id.Scale, id.Residual), id.Scale, id.Preset, id.WithParam(), id.Residual)
 	} else if len(rep.Fits) > 0 {
 		f := rep.Fits[0]
 		fmt.Fprintf(w, "not identified as a preset; closest %q%s: %s\n", f.Preset, f.WithParam(), f.Note)
@@ -207,4 +207,14 @@ func vector(v []float64) []num.Float {
 		return []num.Float{}
 	}
 	return num.Floats(v)
+}
+
+// shown is a fitted shift as a person should read it: a value that is zero
+// within the fit's own residual, relative to the scale, prints as 0 rather
+// than as rounding noise such as -8.6e-14. JSON keeps the fitted value.
+func shown(shift, scale, residual float64) float64 {
+	if math.Abs(shift) <= 10*math.Max(residual, 1e-12)*math.Max(1, math.Abs(scale)) {
+		return 0
+	}
+	return shift
 }

@@ -155,3 +155,16 @@ func TestVerifyUsageErrors(t *testing.T) {
 		t.Errorf("formula error %q should give line:column and the name", errs)
 	}
 }
+
+// A fitted shift that is zero within the fit's residual reads as 0: the
+// log payout ln p_y is the log rule's score itself (Good 1952), shift 0,
+// scale 1.
+func TestAuditShiftShownAsZero(t *testing.T) {
+	code, out, _ := runCmd(t, "audit", "--outcomes", "3", "--payout", "ln(p[y])")
+	if code != 0 {
+		t.Fatalf("exit %d", code)
+	}
+	if !strings.Contains(out, `identified: pay = 0 + 1 × score of preset "log"`) {
+		t.Errorf("identification line:\n%s", out)
+	}
+}
