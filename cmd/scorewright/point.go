@@ -425,23 +425,16 @@ func newPointTableSummary(f *gpoint.Table, rc *gpoint.Recheck, tb *table.Table, 
 // for a person: the failing reports, or all of them when the menu is
 // short.
 func printPointTableSummary(w io.Writer, f *gpoint.Table, rc *gpoint.Recheck, s *pointTableSummary) error {
-	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', 0)
-	fmt.Fprintf(tw, "menu\t%s\n", s.Menu.Desc)
-	fmt.Fprintf(tw, "payment\tpay = A - B·D(y, x), A = %s, B = %s\n", table.FormatNumber(f.A), table.FormatNumber(f.B))
-	printLottery(tw, s.Lottery)
-	fmt.Fprintf(tw, "budget\tpayments span [%s, %s] over the menu and the outcome columns (before rounding)\n", table.FormatNumber(f.Floor), table.FormatNumber(f.Cap))
-	fmt.Fprintf(tw, "rounding\t%s\n", s.Rounding)
-	verdict := "FAILED"
-	if rc.Passed {
-		verdict = "passed"
+	head := summaryHead{
+		menu:     s.Menu.Desc,
+		payment:  fmt.Sprintf("pay = A - B·D(y, x), A = %s, B = %s", table.FormatNumber(f.A), table.FormatNumber(f.B)),
+		budget:   fmt.Sprintf("payments span [%s, %s] over the menu and the outcome columns (before rounding)", table.FormatNumber(f.Floor), table.FormatNumber(f.Cap)),
+		rounding: s.Rounding,
+		passed:   rc.Passed, margin: rc.MinMargin,
+		verdict: s.Recheck.Verdict, notes: s.Notes, lottery: s.Lottery,
 	}
-	fmt.Fprintf(tw, "re-check\t%s, smallest margin %s\n", verdict, table.FormatNumber(rc.MinMargin))
-	if err := tw.Flush(); err != nil {
+	if err := head.print(w); err != nil {
 		return err
-	}
-	fmt.Fprintf(w, "  %s\n", s.Recheck.Verdict)
-	for _, n := range s.Notes {
-		fmt.Fprintf(w, "note: %s\n", n)
 	}
 	var rows []int
 	for i, m := range rc.Margins {
@@ -451,7 +444,7 @@ func printPointTableSummary(w io.Writer, f *gpoint.Table, rc *gpoint.Recheck, s 
 	}
 	if len(rows) > 0 {
 		fmt.Fprintln(w)
-		tw = tabwriter.NewWriter(w, 0, 4, 2, ' ', 0)
+		tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', 0)
 		fmt.Fprintf(tw, "report x\tmargin\t\tclosest rival\n")
 		for _, i := range rows[:min(len(rows), maxItemRows)] {
 			mark := marginMark(rc.Margins[i], rc.Tolerance)

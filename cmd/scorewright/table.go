@@ -405,29 +405,56 @@ func newTableSummary(f *budget.Fit, rc *budget.Recheck, tb *table.Table, format,
 
 // printTableSummary writes the fit and the re-check for a person.
 func printTableSummary(w io.Writer, f *budget.Fit, rc *budget.Recheck, s *tableSummary) error {
-	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', 0)
-	fmt.Fprintf(tw, "menu\t%s\n", f.MenuDesc())
-	fmt.Fprintf(tw, "payment\tpay = A - B·L(p, k), A = %s, B = %s\n", table.FormatNumber(f.A), table.FormatNumber(f.B))
-	printLottery(tw, s.Lottery)
-	fmt.Fprintf(tw, "budget\t%s\n", f.BudgetDesc())
-	fmt.Fprintf(tw, "rounding\t%s\n", f.RoundingDesc())
-	verdict := "FAILED"
-	if rc.Passed {
-		verdict = "passed"
+	head := summaryHead{
+		menu:     f.MenuDesc(),
+		payment:  fmt.Sprintf("pay = A - B·L(p, k), A = %s, B = %s", table.FormatNumber(f.A), table.FormatNumber(f.B)),
+		budget:   f.BudgetDesc(),
+		rounding: f.RoundingDesc(),
+		passed:   rc.Passed, margin: rc.MinMargin,
+		verdict: s.Recheck.Verdict, notes: s.Notes, lottery: s.Lottery,
 	}
-	fmt.Fprintf(tw, "re-check\t%s, smallest margin %s\n", verdict, table.FormatNumber(rc.MinMargin))
-	if err := tw.Flush(); err != nil {
+	if err := head.print(w); err != nil {
 		return err
-	}
-	fmt.Fprintf(w, "  %s\n", s.Recheck.Verdict)
-	for _, n := range s.Notes {
-		fmt.Fprintf(w, "note: %s\n", n)
 	}
 	if err := printItems(w, f, rc); err != nil {
 		return err
 	}
 	if s.Output.Written {
 		fmt.Fprintf(w, "wrote %s (%s)\n", s.Output.File, s.Output.Format)
+	}
+	return nil
+}
+
+// summaryHead is the opening of a table command's summary, the same for
+// tables over outcomes and point tables: menu, payment, lottery, budget,
+// rounding, the re-check and the notes.
+type summaryHead struct {
+	menu, payment, budget, rounding string
+	passed                          bool
+	margin                          float64
+	verdict                         string
+	notes                           []string
+	lottery                         *lotteryJSON
+}
+
+func (h summaryHead) print(w io.Writer) error {
+	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', 0)
+	fmt.Fprintf(tw, "menu\t%s\n", h.menu)
+	fmt.Fprintf(tw, "payment\t%s\n", h.payment)
+	printLottery(tw, h.lottery)
+	fmt.Fprintf(tw, "budget\t%s\n", h.budget)
+	fmt.Fprintf(tw, "rounding\t%s\n", h.rounding)
+	verdict := "FAILED"
+	if h.passed {
+		verdict = "passed"
+	}
+	fmt.Fprintf(tw, "re-check\t%s, smallest margin %s\n", verdict, table.FormatNumber(h.margin))
+	if err := tw.Flush(); err != nil {
+		return err
+	}
+	fmt.Fprintf(w, "  %s\n", h.verdict)
+	for _, n := range h.notes {
+		fmt.Fprintf(w, "note: %s\n", n)
 	}
 	return nil
 }
