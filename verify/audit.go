@@ -79,12 +79,7 @@ func Audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings)
 	if p == nil {
 		return nil, fmt.Errorf("verify: no payout to audit")
 	}
-	n := p.Outcomes()
-	if err := checkOutcomes(n); err != nil {
-		return nil, err
-	}
-	s = s.withDefaults(n)
-	g, err := grid(n, s)
+	s, g, err := prepare(p.Outcomes(), s)
 	if err != nil {
 		return nil, err
 	}

@@ -37,12 +37,7 @@ func CheckRule(ctx context.Context, r *bregman.Rule, s Settings) (*Report, error
 	if r == nil || r.Gen == nil {
 		return nil, fmt.Errorf("verify: no rule to check")
 	}
-	n := r.Outcomes()
-	if err := checkOutcomes(n); err != nil {
-		return nil, err
-	}
-	s = s.withDefaults(n)
-	g, err := grid(n, s)
+	s, g, err := prepare(r.Outcomes(), s)
 	if err != nil {
 		return nil, err
 	}
@@ -58,6 +53,18 @@ func checkOutcomes(n int) error {
 		return fmt.Errorf("verify: %d outcomes; need 2..%d", n, formula.MaxOutcomes)
 	}
 	return nil
+}
+
+// prepare is the common start of a check and an audit: refuse an outcome
+// count outside the engine's range, fill in the default settings for n,
+// and build the grid.
+func prepare(n int, s Settings) (Settings, *simplex.Grid, error) {
+	if err := checkOutcomes(n); err != nil {
+		return s, nil, err
+	}
+	s = s.withDefaults(n)
+	g, err := grid(n, s)
+	return s, g, err
 }
 
 // grid builds the full lattice, or a sample of it when the full one
