@@ -63,7 +63,7 @@ key Escape
 key C-b
 wait_for "Load a forecast history"
 key C-u
-key "$repo/generator/history/testdata/orchard-frost.csv"
+key "$repo/testdata/histories/orchard-frost.csv"
 key Enter
 wait_for "perfect reliability"
 wait_for 'observed frequency of "frost"'

@@ -59,7 +59,7 @@ func Rules(n int, ordered bool, weights []float64) []NamedRule {
 }
 
 // NamedPoint is a point-forecast preset compiled on an interval; its
-// fields match verify/point.Candidate.
+// fields match verify/pointcheck.Candidate.
 type NamedPoint struct {
 	Name string
 	Gen  *point.Generator

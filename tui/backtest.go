@@ -15,11 +15,11 @@ import (
 	"github.com/charmbracelet/bubbles/viewport"
 	tea "github.com/charmbracelet/bubbletea"
 
-	"scorewright/generator/backtest"
-	"scorewright/generator/backtest/tablepay"
-	"scorewright/generator/budget"
+	"scorewright/contract/backtest"
+	"scorewright/contract/backtest/history"
+	"scorewright/contract/backtest/tablepay"
+	"scorewright/contract/budget"
 	"scorewright/generator/design"
-	"scorewright/generator/history"
 	"scorewright/tui/reliability"
 )
 
@@ -63,7 +63,7 @@ type (
 )
 
 // backtestCmd replays the history at path under design d, paid as its
-// fitted table pays (generator/backtest/tablepay, as `scorewright
+// fitted table pays (contract/backtest/tablepay, as `scorewright
 // backtest` pays), sending a start, progress and the result.
 func backtestCmd(ctx context.Context, run, gen uint64, d *design.Design, path string) tea.Cmd {
 	tag := func(m tea.Msg) tea.Msg { return btRunMsg{run: run, gen: gen, msg: m} }

@@ -14,7 +14,7 @@ import (
 
 func samplePath(t testing.TB, name string) string {
 	t.Helper()
-	p, err := filepath.Abs(filepath.Join("..", "generator", "history", "testdata", name))
+	p, err := filepath.Abs(filepath.Join("..", "testdata", "histories", name))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -41,7 +41,7 @@ func loadHistory(t testing.TB, m *Model, path string) {
 // --step 0.05 --unit 0.1 --history .../orchard-frost.csv` prints (run by
 // hand): the workbench must pay a history as the command does. 176 good
 // rows and the 4 bad lines are the ones the sample plants
-// (generator/history/sample_test.go).
+// (contract/backtest/history/sample_test.go).
 func TestBacktestFrost(t *testing.T) {
 	for _, size := range [][2]int{{80, 24}, {120, 40}} {
 		t.Run(fmt.Sprintf("%dx%d", size[0], size[1]), func(t *testing.T) {

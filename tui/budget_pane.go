@@ -315,7 +315,7 @@ func (p BudgetPane) View(d *design.Design) string {
 	}
 	switch {
 	case !p.available:
-		lines = append(lines, st.Dim.Render("The payment table (package generator/budget)"), st.Dim.Render("is not part of this build yet."))
+		lines = append(lines, st.Dim.Render("The payment table (package contract/budget)"), st.Dim.Render("is not part of this build yet."))
 	case p.err != nil:
 		lines = append(lines, strings.Split(st.Error.Width(iw).Render("✗ "+p.err.Error()), "\n")...)
 	case p.table != nil:

@@ -7,7 +7,7 @@ import (
 	"github.com/charmbracelet/bubbles/key"
 	"github.com/charmbracelet/bubbles/progress"
 
-	"scorewright/generator/num"
+	"scorewright/internal/num"
 )
 
 // ChecksPane shows the checks of the current design and their progress.

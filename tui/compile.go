@@ -7,8 +7,8 @@ import (
 	"scorewright/generator/design"
 	"scorewright/generator/emphasis"
 	"scorewright/generator/formula"
-	gpoint "scorewright/generator/point"
-	vpoint "scorewright/verify/point"
+	"scorewright/generator/point"
+	"scorewright/verify/pointcheck"
 )
 
 // onInterval reports whether d is about a number on an interval rather
@@ -19,7 +19,7 @@ func onInterval(d *design.Design) bool {
 }
 
 // pointScope is the formula scope of a point-forecast payout: the report
-// x and the outcome y, as verify/point compiles it.
+// x and the outcome y, as verify/pointcheck compiles it.
 func pointScope(d *design.Design) formula.Scope {
 	return formula.Scope{Vars: []string{"x", "y"}, Params: d.Params}
 }
@@ -30,10 +30,10 @@ func pointScope(d *design.Design) formula.Scope {
 type compiled struct {
 	d     *design.Design // a private copy
 	rule  *bregman.Rule
-	point *gpoint.Generator
+	point *point.Generator
 	// pointPay is a point-forecast payout pay(x, y) under audit, and
 	// pointProg its program (for the picture).
-	pointPay  *vpoint.Payout
+	pointPay  *pointcheck.Payout
 	pointProg *formula.Program
 	payout    []*formula.Program
 	params    []formula.ParamValue
@@ -82,7 +82,7 @@ func compileDesign(d *design.Design) *compiled {
 			c.err = fmt.Errorf("a point-forecast design needs an interval lo < hi (Interval row)")
 			return c
 		}
-		g, err := gpoint.New(d.Formula, d.Interval[0], d.Interval[1], gpoint.Options{Params: d.Params})
+		g, err := point.New(d.Formula, d.Interval[0], d.Interval[1], point.Options{Params: d.Params})
 		if err != nil {
 			c.err = err
 			return c
@@ -96,7 +96,7 @@ func compileDesign(d *design.Design) *compiled {
 			}
 			prog, err := formula.CompileString(d.Formula, pointScope(d))
 			if err == nil {
-				c.pointPay, err = vpoint.NewPayout(d.Formula, d.Params)
+				c.pointPay, err = pointcheck.NewPayout(d.Formula, d.Params)
 			}
 			if err != nil {
 				c.err = err

@@ -12,7 +12,7 @@ import (
 // DemoFrost is the design the workbench opens with: an orchard
 // co-operative pays a contracted forecaster, night by night, for the
 // probability of a frost night (against a clear one). Its labels are those
-// of the sample history generator/history/testdata/orchard-frost.csv.
+// of the sample history testdata/histories/orchard-frost.csv.
 func DemoFrost() *design.Design {
 	return &design.Design{
 		Version: design.SchemaVersion,

@@ -10,7 +10,7 @@ import (
 	tea "github.com/charmbracelet/bubbletea"
 	"github.com/charmbracelet/lipgloss"
 
-	"scorewright/generator/lottery"
+	"scorewright/contract/lottery"
 )
 
 // dialogKind says what a file dialog is for.
@@ -46,7 +46,7 @@ type fileDialog struct {
 	msg       string
 	busy      bool
 	// lottery says the export pays a chance of winning a prize instead of
-	// money (generator/lottery); only export dialogs offer it.
+	// money (contract/lottery); only export dialogs offer it.
 	lottery bool
 }
 

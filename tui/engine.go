@@ -11,22 +11,22 @@ import (
 	"strconv"
 	"time"
 
-	"scorewright/generator/budget"
+	"scorewright/contract/budget"
+	"scorewright/contract/lottery"
+	"scorewright/contract/table"
 	"scorewright/generator/design"
-	"scorewright/generator/lottery"
-	"scorewright/generator/num"
 	"scorewright/generator/payout"
-	gpoint "scorewright/generator/point"
-	"scorewright/generator/safefile"
-	"scorewright/generator/table"
+	"scorewright/generator/point"
+	"scorewright/internal/num"
+	"scorewright/internal/safefile"
 	"scorewright/presets"
 	"scorewright/verify"
-	vpoint "scorewright/verify/point"
+	"scorewright/verify/pointcheck"
 )
 
 // The engine parts the workbench plugs in by default: the checks of
-// package verify, the budget fit of generator/budget and the exports of
-// generator/table. Tests replace them through Settings.
+// package verify, the budget fit of contract/budget and the exports of
+// contract/table. Tests replace them through Settings.
 
 func defaultChecker() Checker                 { return verifyChecker }
 func defaultFitter() Fitter                   { return budgetFitter }
@@ -60,7 +60,7 @@ func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress f
 		if c.err != nil {
 			return nil, c.err
 		}
-		rep, err := vpoint.CheckGenerator(ctx, c.point, pointSettings(s, progress))
+		rep, err := pointcheck.CheckGenerator(ctx, c.point, pointSettings(s, progress))
 		if err != nil {
 			return nil, err
 		}
@@ -90,17 +90,17 @@ func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress f
 	return nil, fmt.Errorf("this build cannot check %s designs", d.Mode)
 }
 
-// pointSettings are the checks pane's grid and tolerance for verify/point.
-func pointSettings(s Settings, progress func(done, total int64)) vpoint.Settings {
-	ps := vpoint.Settings{Resolution: s.Resolution, Tolerance: s.Tolerance}
+// pointSettings are the checks pane's grid and tolerance for verify/pointcheck.
+func pointSettings(s Settings, progress func(done, total int64)) pointcheck.Settings {
+	ps := pointcheck.Settings{Resolution: s.Resolution, Tolerance: s.Tolerance}
 	if progress != nil {
 		ps.Progress = func(done, total int) { progress(int64(done), int64(total)) }
 	}
 	return ps
 }
 
-// fromPoint is a verify/point report as the checks pane shows it.
-func fromPoint(rep *vpoint.Report) *CheckReport {
+// fromPoint is a verify/pointcheck report as the checks pane shows it.
+func fromPoint(rep *pointcheck.Report) *CheckReport {
 	out := &CheckReport{Verdict: rep.Verdict, Resolution: rep.Grid.Resolution, Points: int64(rep.Grid.Points), Tolerance: rep.Grid.Tolerance, Notes: rep.Notes}
 	for _, ck := range rep.Checks {
 		row := CheckRow{Name: ck.Name, Passed: ck.Passed, Worst: ck.Worst, Note: ck.What}
@@ -113,16 +113,16 @@ func fromPoint(rep *vpoint.Report) *CheckReport {
 }
 
 // auditPointPayout audits a point-forecast payout pay(x, y) on the
-// design's interval with verify/point.AuditPayout, as `scorewright audit
+// design's interval with verify/pointcheck.AuditPayout, as `scorewright audit
 // --interval` does: is the mean the best report, the honesty gap and
 // where, and the point preset it is a scaled copy of, if any.
 func auditPointPayout(ctx context.Context, d *design.Design, s Settings, progress func(done, total int64)) (*CheckReport, error) {
-	p, err := vpoint.NewPayout(d.Formula, d.Params)
+	p, err := pointcheck.NewPayout(d.Formula, d.Params)
 	if err != nil {
 		return nil, err
 	}
 	lo, hi := d.Interval[0], d.Interval[1]
-	rep, err := vpoint.AuditPayout(ctx, p, lo, hi, pointSettings(s, progress), pointAuditCandidates(lo, hi))
+	rep, err := pointcheck.AuditPayout(ctx, p, lo, hi, pointSettings(s, progress), pointAuditCandidates(lo, hi))
 	if err != nil {
 		return nil, err
 	}
@@ -135,7 +135,7 @@ func auditPointPayout(ctx context.Context, d *design.Design, s Settings, progres
 			out.Notes = append(out.Notes, fmt.Sprintf("identified: pay = %.6g - %.6g × D(y, x), preset %s", id.Shift, id.Scale, id.Preset))
 		}
 	}
-	if g := rep.Gap; g != nil && rep.Verdict == vpoint.Improper && g.Max > 0 {
+	if g := rep.Gap; g != nil && rep.Verdict == pointcheck.Improper && g.Max > 0 {
 		out.Notes = append(out.Notes, fmt.Sprintf("honesty gap %.4g: best report %.4g, not the mean %.4g,", g.Max, g.BestReport, g.Mean),
 			fmt.Sprintf("  for outcomes %s weighted %s", num.Format(g.Outcomes), num.Format(g.Weights)))
 	}
@@ -144,10 +144,10 @@ func auditPointPayout(ctx context.Context, d *design.Design, s Settings, progres
 
 // pointAuditCandidates are the point-forecast presets an audited payout
 // is compared with, on the design's interval.
-func pointAuditCandidates(lo, hi float64) []vpoint.Candidate {
-	var out []vpoint.Candidate
+func pointAuditCandidates(lo, hi float64) []pointcheck.Candidate {
+	var out []pointcheck.Candidate
 	for _, g := range presets.PointGenerators(lo, hi) {
-		out = append(out, vpoint.Candidate(g))
+		out = append(out, pointcheck.Candidate(g))
 	}
 	return out
 }
@@ -194,7 +194,7 @@ func fitDesign(ctx context.Context, d *design.Design) (*budget.Fit, *budget.Rech
 
 // pointTable builds the payment table of a point-forecast design and
 // re-checks it (generator/point, exact on the rounded table).
-func pointTable(ctx context.Context, d *design.Design) (*gpoint.Table, *gpoint.Recheck, error) {
+func pointTable(ctx context.Context, d *design.Design) (*point.Table, *point.Recheck, error) {
 	c := compileDesign(d)
 	if c.err != nil {
 		return nil, nil, c.err
@@ -206,8 +206,8 @@ func pointTable(ctx context.Context, d *design.Design) (*gpoint.Table, *gpoint.R
 	if !(b.Cap > b.Floor) {
 		return nil, nil, errors.New("set a cap above the floor to see the payment table")
 	}
-	t, err := c.point.BuildTable(ctx, gpoint.TableSpec{Floor: b.Floor, Cap: b.Cap, Step: b.Step, Unit: b.Unit, Rounding: b.Rounding})
-	if errors.Is(err, gpoint.ErrUnbounded) {
+	t, err := c.point.BuildTable(ctx, point.TableSpec{Floor: b.Floor, Cap: b.Cap, Step: b.Step, Unit: b.Unit, Rounding: b.Rounding})
+	if errors.Is(err, point.ErrUnbounded) {
 		return nil, nil, fmt.Errorf("%v; narrow the interval so the effort stays finite", err)
 	}
 	if err != nil {
@@ -268,10 +268,10 @@ func budgetFitter(ctx context.Context, d *design.Design) (*TableView, error) {
 	return tv, nil
 }
 
-// tableExporter writes the fitted table with generator/table.
+// tableExporter writes the fitted table with contract/table.
 type tableExporter struct{ version string }
 
-// Formats are every format of generator/table, for point tables too.
+// Formats are every format of contract/table, for point tables too.
 func (tableExporter) Formats(d *design.Design) []string { return table.Formats() }
 
 func (te tableExporter) Export(ctx context.Context, d *design.Design, req ExportRequest) ([]string, error) {
@@ -286,7 +286,7 @@ func (te tableExporter) Export(ctx context.Context, d *design.Design, req Export
 		if !rc.Passed {
 			return nil, refused(rc.MinMargin)
 		}
-		tb = t.Export(rc, gpoint.Info{Title: d.Title, Preset: d.Preset, Params: d.Params, Version: te.version, Date: date})
+		tb = t.Export(rc, point.Info{Title: d.Title, Preset: d.Preset, Params: d.Params, Version: te.version, Date: date})
 		lo, hi = math.Min(t.Floor, t.MinPay), math.Max(t.Cap, t.MaxPay)
 	} else {
 		fit, rc, err := fitDesign(ctx, d)

@@ -73,7 +73,7 @@ type ExportRequest struct {
 	// Overwrite allows replacing an existing file.
 	Overwrite bool
 	// Lottery pays a chance of winning one prize instead of money
-	// (generator/lottery, as `scorewright table --lottery`).
+	// (contract/lottery, as `scorewright table --lottery`).
 	Lottery bool
 }
 

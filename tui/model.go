@@ -15,9 +15,9 @@ import (
 	tea "github.com/charmbracelet/bubbletea"
 	"github.com/charmbracelet/lipgloss"
 
+	"scorewright/contract/risk"
 	"scorewright/generator/design"
-	"scorewright/generator/risk"
-	"scorewright/generator/safefile"
+	"scorewright/internal/safefile"
 )
 
 // MinWidth and MinHeight are the smallest terminal the workbench draws in.

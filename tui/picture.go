@@ -9,7 +9,7 @@ import (
 	"github.com/charmbracelet/bubbles/key"
 	tea "github.com/charmbracelet/bubbletea"
 
-	"scorewright/generator/num"
+	"scorewright/internal/num"
 )
 
 // measure is what the picture draws.

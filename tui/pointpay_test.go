@@ -11,7 +11,7 @@ import (
 )
 
 // Point payout audit: the mode after point forecasts audits pay(x, y) on
-// the interval with verify/point.AuditPayout, as `scorewright audit
+// the interval with verify/pointcheck.AuditPayout, as `scorewright audit
 // --interval` does.
 func TestPointPayoutAudit(t *testing.T) {
 	m := testModel(t, nil, Settings{})

@@ -11,11 +11,11 @@ import (
 	"github.com/charmbracelet/bubbles/progress"
 	tea "github.com/charmbracelet/bubbletea"
 
-	"scorewright/generator/budget"
+	"scorewright/contract/budget"
+	"scorewright/contract/risk"
+	"scorewright/contract/risk/riskfit"
 	"scorewright/generator/design"
-	"scorewright/generator/num"
-	"scorewright/generator/risk"
-	"scorewright/generator/risk/riskfit"
+	"scorewright/internal/num"
 )
 
 // riskField is one adjustable input of the risk view, in ↑/↓ order.
@@ -77,7 +77,7 @@ type (
 
 // riskCmd computes, for design d and the inputs, the chosen belief's best
 // report and the distortion curve, fitted as `scorewright distort` fits
-// (generator/risk/riskfit).
+// (contract/risk/riskfit).
 func riskCmd(ctx context.Context, run uint64, d *design.Design, in RiskInputs) tea.Cmd {
 	tag := func(m tea.Msg) tea.Msg { return riskRunMsg{run: run, msg: m} }
 	return runStream(ctx, func(send func(tea.Msg, bool)) {

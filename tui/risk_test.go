@@ -13,7 +13,7 @@ import (
 
 	"scorewright/generator/design"
 
-	"scorewright/generator/risk"
+	"scorewright/contract/risk"
 )
 
 var keyCtrlR = tea.KeyMsg{Type: tea.KeyCtrlR}

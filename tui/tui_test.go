@@ -12,10 +12,10 @@ import (
 	"github.com/charmbracelet/x/ansi"
 	"github.com/charmbracelet/x/exp/golden"
 
+	"scorewright/contract/lottery"
+	"scorewright/contract/table"
 	"scorewright/generator/design"
-	"scorewright/generator/lottery"
-	"scorewright/generator/safefile"
-	"scorewright/generator/table"
+	"scorewright/internal/safefile"
 	"scorewright/presets"
 )
 
@@ -629,7 +629,7 @@ func TestGoldenLinearAudit80x24(t *testing.T) {
 // The export dialog's lottery option writes chances of one prize, as
 // `scorewright table --lottery` does, and says the gambling caution in
 // the dialog and in the file. Frost demo: floor 0, cap 40, so a cell's
-// chance is pay/40 (generator/lottery) and the prize is 40.
+// chance is pay/40 (contract/lottery) and the prize is 40.
 func TestLotteryExport(t *testing.T) {
 	dir := t.TempDir()
 	m := testModel(t, nil, Settings{Dir: dir, Version: "test"})

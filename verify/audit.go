@@ -7,9 +7,9 @@ import (
 	"math/rand/v2"
 	"sort"
 
-	"scorewright/generator/num"
 	"scorewright/generator/payout"
-	"scorewright/verify/simplex"
+	"scorewright/internal/num"
+	"scorewright/internal/simplex"
 )
 
 // Gap is the largest honesty gap of an audit: the most a forecaster can

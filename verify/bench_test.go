@@ -7,7 +7,7 @@ import (
 	"testing"
 
 	"scorewright/generator/bregman"
-	"scorewright/verify/simplex"
+	"scorewright/internal/simplex"
 )
 
 // benchMenu builds the grid and the effort menu of the quadratic rule.

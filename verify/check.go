@@ -11,8 +11,8 @@ import (
 
 	"scorewright/generator/bregman"
 	"scorewright/generator/formula"
-	"scorewright/generator/num"
-	"scorewright/verify/simplex"
+	"scorewright/internal/num"
+	"scorewright/internal/simplex"
 )
 
 // Check names, as the command line and JSON show them.

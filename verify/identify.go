@@ -9,7 +9,7 @@ import (
 	"gonum.org/v1/gonum/stat"
 
 	"scorewright/generator/bregman"
-	"scorewright/verify/simplex"
+	"scorewright/internal/simplex"
 )
 
 // Candidate is a known rule a payout may be an affine image of. A rule

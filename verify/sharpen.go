@@ -5,7 +5,7 @@ import (
 
 	"gonum.org/v1/gonum/optimize"
 
-	"scorewright/verify/simplex"
+	"scorewright/internal/simplex"
 )
 
 // sharpenEvals caps the function evaluations of one local optimisation:

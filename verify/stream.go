@@ -8,7 +8,7 @@ import (
 	"sync/atomic"
 	"time"
 
-	"scorewright/verify/simplex"
+	"scorewright/internal/simplex"
 )
 
 // menu holds the effort (lower is better) of every report of a grid, one

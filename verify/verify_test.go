@@ -12,8 +12,8 @@ import (
 
 	"scorewright/generator/bregman"
 	"scorewright/generator/payout"
+	"scorewright/internal/simplex"
 	"scorewright/presets"
-	"scorewright/verify/simplex"
 )
 
 func rule(t *testing.T, src string, n int) *bregman.Rule {

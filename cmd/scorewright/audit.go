@@ -5,8 +5,8 @@ import (
 	"math"
 
 	"scorewright/generator/design"
-	"scorewright/generator/num"
 	"scorewright/generator/payout"
+	"scorewright/internal/num"
 	"scorewright/presets"
 	"scorewright/verify"
 )

@@ -15,13 +15,13 @@ import (
 	"strings"
 	"time"
 
-	"scorewright/generator/backtest"
-	"scorewright/generator/backtest/figure"
+	"scorewright/contract/backtest"
+	"scorewright/contract/backtest/figure"
+	"scorewright/contract/backtest/history"
 	"scorewright/generator/bregman"
 	"scorewright/generator/design"
-	"scorewright/generator/history"
-	"scorewright/generator/num"
-	"scorewright/generator/safefile"
+	"scorewright/internal/num"
+	"scorewright/internal/safefile"
 	"scorewright/tui/reliability"
 )
 

@@ -4,13 +4,13 @@ import (
 	"context"
 	"flag"
 
-	"scorewright/generator/backtest/tablepay"
+	"scorewright/contract/backtest/tablepay"
 	"scorewright/generator/bregman"
 	"scorewright/generator/design"
 )
 
 // budgetFit returns the fitFunc the command uses: the payment table's own
-// fit (generator/budget, through generator/backtest/tablepay, which the
+// fit (contract/budget, through contract/backtest/tablepay, which the
 // workbench shares) on the menu the table command would build from the
 // same flags, so that a forecast on the menu is paid exactly its table
 // entry and one off the menu by the same formula, A - B·L then rounded.

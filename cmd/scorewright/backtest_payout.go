@@ -9,10 +9,10 @@ import (
 	"path/filepath"
 	"strconv"
 
-	"scorewright/generator/backtest"
-	"scorewright/generator/history"
-	"scorewright/generator/safefile"
-	"scorewright/generator/table"
+	"scorewright/contract/backtest"
+	"scorewright/contract/backtest/history"
+	"scorewright/contract/table"
+	"scorewright/internal/safefile"
 )
 
 // payOutFile streams the pay of every forecast to a temporary file beside

@@ -6,9 +6,9 @@ import (
 	"strings"
 	"text/tabwriter"
 
-	"scorewright/generator/backtest"
-	"scorewright/generator/history"
-	"scorewright/generator/num"
+	"scorewright/contract/backtest"
+	"scorewright/contract/backtest/history"
+	"scorewright/internal/num"
 )
 
 // questionTally adds up what each question cost the buyer under each rule.

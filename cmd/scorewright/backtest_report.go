@@ -8,10 +8,10 @@ import (
 	"text/tabwriter"
 	"unicode/utf8"
 
-	"scorewright/generator/backtest"
-	"scorewright/generator/history"
-	"scorewright/generator/num"
-	"scorewright/generator/table"
+	"scorewright/contract/backtest"
+	"scorewright/contract/backtest/history"
+	"scorewright/contract/table"
+	"scorewright/internal/num"
 )
 
 // maxSkippedShown caps the skipped rows the text report lists; --json

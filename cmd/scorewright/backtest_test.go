@@ -14,14 +14,14 @@ import (
 	"strings"
 	"testing"
 
-	"scorewright/generator/backtest"
+	"scorewright/contract/backtest"
 	"scorewright/generator/bregman"
 	"scorewright/generator/design"
 )
 
 const (
-	frostHistory   = "../../generator/history/testdata/orchard-frost.csv"
-	harvestHistory = "../../generator/history/testdata/harvest-outlook.csv"
+	frostHistory   = "../../testdata/histories/orchard-frost.csv"
+	harvestHistory = "../../testdata/histories/harvest-outlook.csv"
 )
 
 // explicitFit pays A - B·effort with A = cap and B = 5, unrounded, on a
@@ -84,7 +84,7 @@ func TestBacktestSampleJSON(t *testing.T) {
 	if err := json.Unmarshal([]byte(out), &got); err != nil {
 		t.Fatalf("%v\n%s", err, out)
 	}
-	// The planted bad rows of the sample (see generator/history/sample_test.go).
+	// The planted bad rows of the sample (see contract/backtest/history/sample_test.go).
 	var lines []int
 	for _, s := range got.Skipped {
 		lines = append(lines, s.Line)

@@ -4,13 +4,13 @@ import (
 	"fmt"
 	"io"
 
+	"scorewright/contract/lottery"
+	"scorewright/contract/table"
 	"scorewright/generator/bregman"
 	"scorewright/generator/design"
 	"scorewright/generator/emphasis"
 	"scorewright/generator/formula"
-	"scorewright/generator/lottery"
-	"scorewright/generator/num"
-	"scorewright/generator/table"
+	"scorewright/internal/num"
 )
 
 // emphasisRule integrates an emphasis-mode design's weight into a binary

@@ -212,7 +212,7 @@ func TestDistort(t *testing.T) {
 		t.Errorf("linear utility: %+v", got)
 	}
 	// CARA with the log rule: the report's odds are the belief's odds to
-	// the power 1/(1 + aB) (derived by hand in generator/risk's tests).
+	// the power 1/(1 + aB) (derived by hand in contract/risk's tests).
 	code, out, errs = runCmd(t, append(base, "--utility", "cara:0.3")...)
 	if code != 0 || json.Unmarshal([]byte(out), &got) != nil {
 		t.Fatalf("exit %d: %s %s", code, errs, out)

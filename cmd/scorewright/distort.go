@@ -7,11 +7,11 @@ import (
 	"math"
 	"text/tabwriter"
 
-	"scorewright/generator/budget"
+	"scorewright/contract/budget"
+	"scorewright/contract/risk"
+	"scorewright/contract/risk/riskfit"
 	"scorewright/generator/design"
-	"scorewright/generator/num"
-	"scorewright/generator/risk"
-	"scorewright/generator/risk/riskfit"
+	"scorewright/internal/num"
 )
 
 const distortUsage = "RULE BUDGET --utility crra:R|cara:A|linear [--wealth W] [--belief q1,q2,...] [--json]\n\nRULE: " + outcomeRuleUsage + "\nBUDGET: " + budgetUsage
@@ -127,9 +127,9 @@ func runDistort(e *env, args []string) error {
 	out := distortJSON{Utility: u.String(), Wealth: *wealth, A: num.Float(fit.A), B: num.Float(fit.B),
 		Belief: num.Floats(best.Belief), Report: num.Floats(best.Report), Size: num.Float(best.Size), MenuReport: num.Floats(pick),
 		ExpectedPay: num.Float(best.ExpectedPay), TruthfulPay: num.Float(best.TruthfulPay), Status: best.Status,
-		Largest: point(curve.Largest), Along: along}
+		Largest: distortPointOf(curve.Largest), Along: along}
 	for _, p := range curve.Points {
-		out.Curve = append(out.Curve, point(p))
+		out.Curve = append(out.Curve, distortPointOf(p))
 	}
 	if u.Kind == risk.CARA {
 		out.Notes = append(out.Notes, "with CARA utility initial wealth does not change the report")
@@ -163,6 +163,6 @@ func runDistort(e *env, args []string) error {
 	return nil
 }
 
-func point(r risk.Result) distortPoint {
+func distortPointOf(r risk.Result) distortPoint {
 	return distortPoint{num.Floats(r.Belief), num.Floats(r.Report), num.Float(r.Size)}
 }

@@ -6,7 +6,7 @@ import (
 	"text/tabwriter"
 
 	"scorewright/generator/design"
-	"scorewright/generator/num"
+	"scorewright/internal/num"
 )
 
 type evalJSON struct {

@@ -10,7 +10,7 @@ import (
 	"strings"
 
 	"scorewright/generator/design"
-	"scorewright/generator/num"
+	"scorewright/internal/num"
 	"scorewright/presets"
 )
 

@@ -15,13 +15,13 @@ import (
 	"strings"
 	"text/tabwriter"
 
+	"scorewright/contract/table"
 	"scorewright/generator/design"
 	"scorewright/generator/formula"
-	"scorewright/generator/num"
-	gpoint "scorewright/generator/point"
-	"scorewright/generator/table"
+	"scorewright/generator/point"
+	"scorewright/internal/num"
 	"scorewright/presets"
-	vpoint "scorewright/verify/point"
+	"scorewright/verify/pointcheck"
 )
 
 // applyPointPreset fills a point design from a point-forecast preset; an
@@ -52,11 +52,11 @@ func pointPresetNames() []string {
 }
 
 // pointGenerator compiles a point-mode design.
-func pointGenerator(d *design.Design) (*gpoint.Generator, error) {
+func pointGenerator(d *design.Design) (*point.Generator, error) {
 	if d.Mode != design.ModePoint || len(d.Interval) != 2 {
 		return nil, usagef("this needs a point-forecast design (--interval LO,HI)")
 	}
-	g, err := gpoint.New(d.Formula, d.Interval[0], d.Interval[1], gpoint.Options{Params: d.Params})
+	g, err := point.New(d.Formula, d.Interval[0], d.Interval[1], point.Options{Params: d.Params})
 	if _, ok := err.(*formula.Error); ok {
 		return nil, formulaError("point-forecast generator", err)
 	} else if err != nil {
@@ -66,10 +66,10 @@ func pointGenerator(d *design.Design) (*gpoint.Generator, error) {
 }
 
 // pointCandidates are the point presets an audited payout is compared with.
-func pointCandidates(lo, hi float64) []vpoint.Candidate {
-	var out []vpoint.Candidate
+func pointCandidates(lo, hi float64) []pointcheck.Candidate {
+	var out []pointcheck.Candidate
 	for _, g := range presets.PointGenerators(lo, hi) {
-		out = append(out, vpoint.Candidate(g))
+		out = append(out, pointcheck.Candidate(g))
 	}
 	return out
 }
@@ -149,7 +149,7 @@ func runEvalPoint(e *env, d *design.Design, report, belief string, asJSON bool) 
 			}
 			out.Effort = append(out.Effort, num.Float(ev.Divergence(y, x)))
 		}
-		m := gpoint.Mean(ys, ws)
+		m := point.Mean(ys, ws)
 		ex, mf, am := num.Float(ev.Expected(x, ys, ws)), num.Float(m), num.Float(ev.Expected(m, ys, ws))
 		out.Outcomes, out.Weights, out.Expected, out.Mean, out.AtMean = num.Floats(ys), num.Floats(ws), &ex, &mf, &am
 	}
@@ -197,7 +197,7 @@ func runCheckPoint(e *env, d *design.Design, vf *verifyFlags) error {
 	}
 	ctx, stop := interruptible()
 	defer stop()
-	rep, err := vpoint.CheckGenerator(ctx, g, s)
+	rep, err := pointcheck.CheckGenerator(ctx, g, s)
 	if err != nil {
 		return usagef("check: %v", err)
 	}
@@ -205,12 +205,12 @@ func runCheckPoint(e *env, d *design.Design, vf *verifyFlags) error {
 }
 
 // pointSettings maps check's and audit's flags to the point checks.
-func pointSettings(e *env, vf *verifyFlags) (vpoint.Settings, error) {
+func pointSettings(e *env, vf *verifyFlags) (pointcheck.Settings, error) {
 	vs, err := vf.settings(e)
 	if err != nil {
-		return vpoint.Settings{}, err
+		return pointcheck.Settings{}, err
 	}
-	s := vpoint.Settings{Resolution: vs.Resolution, Tolerance: vs.Tolerance}
+	s := pointcheck.Settings{Resolution: vs.Resolution, Tolerance: vs.Tolerance}
 	if vs.Progress != nil {
 		s.Progress = func(done, total int) { vs.Progress(int64(done), int64(total)) }
 	}
@@ -236,7 +236,7 @@ func runAuditPoint(e *env, payout, interval string, params map[string]float64, v
 	if len(params) == 0 {
 		params = nil
 	}
-	p, err := vpoint.NewPayout(payout, params)
+	p, err := pointcheck.NewPayout(payout, params)
 	if _, ok := err.(*formula.Error); ok {
 		return formulaError("payout", err)
 	} else if err != nil {
@@ -248,7 +248,7 @@ func runAuditPoint(e *env, payout, interval string, params map[string]float64, v
 	}
 	ctx, stop := interruptible()
 	defer stop()
-	rep, err := vpoint.AuditPayout(ctx, p, iv[0], iv[1], s, pointCandidates(iv[0], iv[1]))
+	rep, err := pointcheck.AuditPayout(ctx, p, iv[0], iv[1], s, pointCandidates(iv[0], iv[1]))
 	if err != nil {
 		return usagef("audit: %v", err)
 	}
@@ -256,20 +256,20 @@ func runAuditPoint(e *env, payout, interval string, params map[string]float64, v
 }
 
 type pointCheckJSON struct {
-	Verdict    string             `json:"verdict"`
-	Grid       vpoint.Grid        `json:"grid"`
-	Checks     []pointCheckOut    `json:"checks"`
-	Gap        *pointGapOut       `json:"gap,omitempty"`
-	Identified *vpoint.Identified `json:"identified,omitempty"`
-	Notes      []string           `json:"notes,omitempty"`
+	Verdict    string                 `json:"verdict"`
+	Grid       pointcheck.Grid        `json:"grid"`
+	Checks     []pointCheckOut        `json:"checks"`
+	Gap        *pointGapOut           `json:"gap,omitempty"`
+	Identified *pointcheck.Identified `json:"identified,omitempty"`
+	Notes      []string               `json:"notes,omitempty"`
 }
 
 type pointCheckOut struct {
-	Name   string     `json:"name"`
-	Passed bool       `json:"passed"`
-	Worst  num.Float  `json:"worst"`
-	At     *vpoint.At `json:"at,omitempty"`
-	What   string     `json:"what"`
+	Name   string         `json:"name"`
+	Passed bool           `json:"passed"`
+	Worst  num.Float      `json:"worst"`
+	At     *pointcheck.At `json:"at,omitempty"`
+	What   string         `json:"what"`
 }
 
 type pointGapOut struct {
@@ -280,7 +280,7 @@ type pointGapOut struct {
 	BestReport num.Float `json:"best_report"`
 }
 
-func printPointReport(e *env, rep *vpoint.Report, asJSON bool) error {
+func printPointReport(e *env, rep *pointcheck.Report, asJSON bool) error {
 	if asJSON {
 		out := pointCheckJSON{Verdict: rep.Verdict, Grid: rep.Grid, Identified: rep.Identified, Notes: rep.Notes}
 		for _, c := range rep.Checks {
@@ -351,8 +351,8 @@ func runTablePoint(e *env, d *design.Design, format string, tf *tableFlags) erro
 		return usagef("--menu and --clamp are for rules over outcomes; a point-forecast menu is --step S in the units of the interval")
 	}
 	ctx := context.Background()
-	fit, err := g.BuildTable(ctx, gpoint.TableSpec{Floor: b.Floor, Cap: b.Cap, Step: b.Step, Unit: b.Unit, Rounding: b.Rounding})
-	if errors.Is(err, gpoint.ErrUnbounded) {
+	fit, err := g.BuildTable(ctx, point.TableSpec{Floor: b.Floor, Cap: b.Cap, Step: b.Step, Unit: b.Unit, Rounding: b.Rounding})
+	if errors.Is(err, point.ErrUnbounded) {
 		return usagef("%v; narrow the interval so the effort stays finite", err)
 	} else if err != nil {
 		return usagef("%v", err)
@@ -361,7 +361,7 @@ func runTablePoint(e *env, d *design.Design, format string, tf *tableFlags) erro
 	if err != nil {
 		return usagef("%v", err)
 	}
-	tb := fit.Export(rc, gpoint.Info{Title: d.Title, Preset: d.Preset, Params: d.Params, Version: version, Date: exportDate()})
+	tb := fit.Export(rc, point.Info{Title: d.Title, Preset: d.Preset, Params: d.Params, Version: version, Date: exportDate()})
 	sum := newPointTableSummary(fit, rc, tb, format, tf.out)
 	if tf.lottery {
 		if sum.Lottery, err = lotteryTable(tb, math.Min(fit.Floor, fit.MinPay), math.Max(fit.Cap, fit.MaxPay)); err != nil {
@@ -390,7 +390,7 @@ type pointRecheckJSON struct {
 	Grid recheckGridJSON `json:"grid"`
 }
 
-func newPointTableSummary(f *gpoint.Table, rc *gpoint.Recheck, tb *table.Table, format, out string) *pointTableSummary {
+func newPointTableSummary(f *point.Table, rc *point.Recheck, tb *table.Table, format, out string) *pointTableSummary {
 	rep := func(i int) []num.Float {
 		if i < 0 {
 			return nil
@@ -424,7 +424,7 @@ func newPointTableSummary(f *gpoint.Table, rc *gpoint.Recheck, tb *table.Table, 
 // printPointTableSummary writes the fit and the re-check of a point table
 // for a person: the failing reports, or all of them when the menu is
 // short.
-func printPointTableSummary(w io.Writer, f *gpoint.Table, rc *gpoint.Recheck, s *pointTableSummary) error {
+func printPointTableSummary(w io.Writer, f *point.Table, rc *point.Recheck, s *pointTableSummary) error {
 	head := summaryHead{
 		menu:     s.Menu.Desc,
 		payment:  fmt.Sprintf("pay = A - B·D(y, x), A = %s, B = %s", table.FormatNumber(f.A), table.FormatNumber(f.B)),

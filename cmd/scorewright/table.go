@@ -15,11 +15,11 @@ import (
 	"text/tabwriter"
 	"time"
 
-	"scorewright/generator/budget"
+	"scorewright/contract/budget"
+	"scorewright/contract/table"
 	"scorewright/generator/design"
-	"scorewright/generator/num"
-	"scorewright/generator/safefile"
-	"scorewright/generator/table"
+	"scorewright/internal/num"
+	"scorewright/internal/safefile"
 )
 
 const tableUsage = "RULE BUDGET [--menu FILE] [--clamp P] [--format csv|md|json|tex|svg|png|pdf] [--out FILE] [--force] [--lottery] [--json]\n\nRULE: " + ruleUsage + "\nBUDGET: " + budgetUsage

@@ -23,7 +23,7 @@ func tableRun(t *testing.T, args ...string) (string, string, int) {
 var brierArgs = []string{"--outcomes", "frost,clear", "--preset", "quadratic", "--floor", "0", "--cap", "100", "--step", "0.1", "--unit", "1"}
 
 // coarseArgs round the Brier table so coarsely that menu items tie (see
-// generator/budget's TestCoarseRoundingTiesCaught for the hand
+// contract/budget's TestCoarseRoundingTiesCaught for the hand
 // derivation).
 var coarseArgs = []string{"--outcomes", "frost,clear", "--preset", "quadratic", "--floor", "0", "--cap", "100", "--step", "0.2", "--unit", "25"}
 
@@ -45,7 +45,7 @@ func dirNames(t *testing.T, dir string) []string {
 }
 
 // The Brier table of the issue: pay(0.7) = 91 if frost, 51 if clear
-// (derived by hand in generator/budget's TestQuadraticBrierTable).
+// (derived by hand in contract/budget's TestQuadraticBrierTable).
 func TestTableToStdout(t *testing.T) {
 	t.Setenv("SOURCE_DATE_EPOCH", "1767225600") // 2026-01-01T00:00:00Z
 	out, errs, code := tableRun(t, brierArgs...)
@@ -155,7 +155,7 @@ func TestTableJSONSummary(t *testing.T) {
 	if err := json.Unmarshal([]byte(out), &sum); err != nil || code != exitOK {
 		t.Fatalf("exit %d, %v\n%s", code, err, out)
 	}
-	// A = 100, B = 50 (derived by hand, see generator/budget).
+	// A = 100, B = 50 (derived by hand, see contract/budget).
 	if sum.A != 100 || sum.B != 50 || sum.MaxPay != 100 || !sum.Recheck.Passed || !(sum.Recheck.MinMargin > 0) || len(sum.Cells) != 11 {
 		t.Errorf("summary %+v", sum)
 	}

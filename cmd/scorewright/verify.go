@@ -9,7 +9,7 @@ import (
 	"os/signal"
 	"strings"
 
-	"scorewright/generator/num"
+	"scorewright/internal/num"
 	"scorewright/verify"
 )
 

@@ -12,7 +12,7 @@ import (
 	"github.com/BurntSushi/toml"
 
 	"scorewright/generator/formula"
-	"scorewright/generator/safefile"
+	"scorewright/internal/safefile"
 )
 
 // Load reads and validates a design file.

@@ -9,9 +9,9 @@ import (
 	"math"
 	"strconv"
 
-	"scorewright/generator/budget"
-	"scorewright/generator/num"
-	"scorewright/generator/table"
+	"scorewright/contract/budget"
+	"scorewright/contract/table"
+	"scorewright/internal/num"
 )
 
 // TableSpec says how a point-forecast rule is turned into a payment table:

@@ -16,7 +16,7 @@ import (
 	"github.com/charmbracelet/lipgloss"
 	"github.com/charmbracelet/x/ansi"
 
-	"scorewright/generator/backtest"
+	"scorewright/contract/backtest"
 )
 
 // Markers are the runes that tell forecasters apart, in order; after the

@@ -12,7 +12,7 @@ import (
 	"github.com/charmbracelet/x/ansi"
 	"github.com/muesli/termenv"
 
-	"scorewright/generator/backtest"
+	"scorewright/contract/backtest"
 )
 
 var update = flag.Bool("update", false, "rewrite the golden files")

@@ -1,0 +1,192 @@
+package backtest
+
+import (
+	"context"
+	"errors"
+	"io"
+
+	"scorewright/contract/backtest/history"
+)
+
+// DefaultMaxSkipped is how many skipped rows a Result keeps when
+// Options.MaxSkipped is zero; all are counted.
+const DefaultMaxSkipped = 1000
+
+// progressEvery is how many rows pass between progress calls and
+// cancellation checks: often enough for a live line, rare enough to cost
+// nothing.
+const progressEvery = 1 << 16
+
+// Progress is how far a backtest has read.
+type Progress struct {
+	// Rows read so far (valid or not), and how many were skipped.
+	Rows, Skipped int
+	// Offset is the number of bytes of input consumed (read ahead of the
+	// rows counted by at most a few batches).
+	Offset int64
+}
+
+// Options tune Run. The zero value means the defaults.
+type Options struct {
+	Tally TallyOptions
+	// Strict stops at the first bad row, returning its *history.RowError.
+	Strict bool
+	// MaxSkipped bounds the skipped rows kept in the Result; 0 means
+	// DefaultMaxSkipped, negative keeps none.
+	MaxSkipped int
+	// Progress, if set, is called every 65536 rows and once at the end.
+	Progress func(Progress)
+	// OnRow, if set, sees every valid row with what it earns under each
+	// scheme; both are reused after it returns. An error it returns stops
+	// the run.
+	OnRow func(row *history.Row, paid []Paid) error
+}
+
+// batchRows is how many rows travel together from the reading goroutine
+// to the scoring one: enough to make the hand-over cheap, few enough to
+// stay in cache.
+const batchRows = 512
+
+// batch is a run of rows read ahead. Bad rows stay in place (with ok
+// false) so that skips are recorded in file order.
+type batch struct {
+	rows   []history.Row
+	ok     []bool
+	why    []string
+	p      []float64 // n per row, backing rows[i].P
+	offset int64
+	err    error // a reading error that ends the input (not io.EOF)
+}
+
+// Run replays the history h under schemes. Bad rows are skipped and
+// recorded (or, with Strict, end the run with their error); cancelling
+// ctx stops the run with ctx's error.
+//
+// Reading and scoring overlap: one goroutine parses and validates rows in
+// batches while the calling one pays them, so on two or more cores the
+// backtest runs at about the speed of reading the CSV.
+func Run(ctx context.Context, h *history.Reader, schemes []Scheme, opt Options) (*Result, error) {
+	t, err := NewTally(schemes, opt.Tally)
+	if err != nil {
+		return nil, err
+	}
+	keep := opt.MaxSkipped
+	if keep == 0 {
+		keep = DefaultMaxSkipped
+	}
+	n := len(h.Labels())
+	const inFlight = 4
+	free := make(chan *batch, inFlight)
+	full := make(chan *batch, inFlight)
+	for range inFlight {
+		b := &batch{rows: make([]history.Row, batchRows), ok: make([]bool, batchRows), why: make([]string, batchRows), p: make([]float64, batchRows*n)}
+		for i := range b.rows {
+			b.rows[i].P = b.p[i*n : (i+1)*n]
+		}
+		free <- b
+	}
+	done := make(chan struct{})
+	defer close(done)
+	go readBatches(h, n, free, full, done)
+
+	var skipped []Skipped
+	var rows, nSkipped int
+	var offset int64
+	report := func() {
+		if opt.Progress != nil {
+			opt.Progress(Progress{Rows: rows, Skipped: nSkipped, Offset: offset})
+		}
+	}
+	for b := range full {
+		if b.err != nil {
+			return nil, b.err
+		}
+		offset = b.offset
+		for i := range b.rows {
+			rows++
+			if rows%progressEvery == 0 {
+				if err := ctx.Err(); err != nil {
+					return nil, err
+				}
+				report()
+			}
+			row := &b.rows[i]
+			if !b.ok[i] {
+				if opt.Strict {
+					return nil, &history.RowError{Line: row.Line, Why: b.why[i]}
+				}
+				nSkipped++
+				if len(skipped) < keep {
+					skipped = append(skipped, Skipped{Line: row.Line, Why: b.why[i]})
+				}
+				continue
+			}
+			paid := t.Add(row.Forecaster, row.Line, row.Outcome, row.P)
+			if opt.OnRow != nil {
+				if err := opt.OnRow(row, paid); err != nil {
+					return nil, err
+				}
+			}
+		}
+		free <- b
+	}
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
+	report()
+	r := t.Result()
+	r.SkippedCount, r.Skipped = nSkipped, skipped
+	return r, nil
+}
+
+// readBatches fills free batches from h and sends them on full, closing
+// full at the end of the input; it stops early when done closes.
+func readBatches(h *history.Reader, n int, free <-chan *batch, full chan<- *batch, done <-chan struct{}) {
+	defer close(full)
+	for {
+		var b *batch
+		select {
+		case b = <-free:
+		case <-done:
+			return
+		}
+		b.rows, b.ok, b.why = b.rows[:cap(b.rows)], b.ok[:cap(b.ok)], b.why[:cap(b.why)]
+		i := 0
+		var end error
+		var re *history.RowError
+		for ; i < len(b.rows); i++ {
+			row, err := h.Next()
+			if err == io.EOF {
+				end = err
+				break
+			}
+			dst := &b.rows[i]
+			switch {
+			case err == nil:
+				p := dst.P
+				*dst = *row
+				dst.P = p
+				copy(p, row.P)
+				b.ok[i], b.why[i] = true, ""
+			case errors.As(err, &re):
+				*dst = history.Row{Line: re.Line, P: dst.P}
+				b.ok[i], b.why[i] = false, re.Why
+			default:
+				b.err, end = err, err
+			}
+			if end != nil {
+				break
+			}
+		}
+		b.rows, b.ok, b.why = b.rows[:i], b.ok[:i], b.why[:i]
+		b.offset = h.InputOffset()
+		select {
+		case full <- b:
+		case <-done:
+			return
+		}
+		if end != nil {
+			return
+		}
+	}
+}

@@ -1,0 +1,102 @@
+package tablepay
+
+import (
+	"context"
+	"strings"
+	"testing"
+
+	"scorewright/contract/budget"
+	"scorewright/generator/design"
+	"scorewright/presets"
+)
+
+func quadratic(t *testing.T, b design.Budget) *design.Design {
+	t.Helper()
+	d := &design.Design{Labels: []string{"frost", "clear"}, Mode: design.ModeGenerator, Preset: "quadratic", Budget: b}
+	if err := presets.Apply(d); err != nil {
+		t.Fatal(err)
+	}
+	return d
+}
+
+// On-menu forecasts earn exactly their table entry: the scheme's payer is
+// the fit itself, so this checks the wiring, not the fit.
+func TestSchemePaysTheTable(t *testing.T) {
+	d := quadratic(t, design.Budget{Floor: 0, Cap: 10, Step: 0.1, Unit: 0.01})
+	r, err := d.Rule()
+	if err != nil {
+		t.Fatal(err)
+	}
+	menu, err := budget.StepMenu(2, 0.1, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	f, err := New(context.Background(), "A", r, menu, d.Budget, true)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if f.Scheme.Name != "A" || f.Warning != "" || !f.Recheck.Passed {
+		t.Fatalf("scheme %q warning %q passed %v", f.Scheme.Name, f.Warning, f.Recheck.Passed)
+	}
+	for i, p := range menu.Reports {
+		if !f.Scheme.OnMenu(p) {
+			t.Fatalf("menu item %v not on the menu", p)
+		}
+		for k := range p {
+			if got, want := f.Scheme.Pay.Pay(f.Fit.Efforts[i][k]), f.Fit.Pays[i][k]; got != want {
+				t.Fatalf("report %v outcome %d: paid %v, table says %v", p, k, got, want)
+			}
+		}
+	}
+	if f.Scheme.OnMenu([]float64{0.33, 0.67}) {
+		t.Fatal("0.33 is not on a menu of tenths")
+	}
+	// The menu test tolerates renormalisation error (1e-12), not a real
+	// difference (1e-6).
+	if !f.Scheme.OnMenu([]float64{0.3 + 1e-12, 0.7 - 1e-12}) || f.Scheme.OnMenu([]float64{0.3 + 1e-6, 0.7 - 1e-6}) {
+		t.Fatal("menu tolerance wrong")
+	}
+	if f.Scheme.Record != nil || f.Scheme.Adjust != nil {
+		t.Fatal("no report floor and no clamp: nothing to record or adjust")
+	}
+}
+
+func TestReportFloorIsRecorded(t *testing.T) {
+	d := quadratic(t, design.Budget{Floor: 0, Cap: 10, Step: 0.1, Unit: 0.5, ReportFloor: 0.05})
+	r, _ := d.Rule()
+	menu, err := budget.StepMenu(2, 0.1, 0.05)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, record := range []bool{true, false} {
+		f, err := New(context.Background(), "A", r, menu, d.Budget, record)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if (f.Scheme.Record != nil) != record || (len(f.Notes) == 1) != record {
+			t.Fatalf("record %v: Record set %v, notes %q", record, f.Scheme.Record != nil, f.Notes)
+		}
+		if record {
+			got := f.Scheme.Record(make([]float64, 2), []float64{0, 1})
+			if got[0] != 0.05 || got[1] != 0.95 || !strings.Contains(f.Notes[0], "0.05") {
+				t.Fatalf("recorded %v, note %q", got, f.Notes[0])
+			}
+		}
+	}
+}
+
+// Coarse rounding breaks the menu's incentives (the re-check fails with
+// margin -0.1 for quadratic, cap 10, tenths, unit 0.5); the fitted scheme
+// still pays, and says the table command would refuse the table.
+func TestFailingRecheckWarns(t *testing.T) {
+	d := quadratic(t, design.Budget{Floor: 0, Cap: 10, Step: 0.1, Unit: 0.5})
+	r, _ := d.Rule()
+	menu, _ := budget.StepMenu(2, 0.1, 0)
+	f, err := New(context.Background(), "A", r, menu, d.Budget, true)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if f.Recheck.Passed || !strings.Contains(f.Warning, "fails its re-check") {
+		t.Fatalf("passed %v, warning %q", f.Recheck.Passed, f.Warning)
+	}
+}

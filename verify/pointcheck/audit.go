@@ -1,0 +1,289 @@
+package pointcheck
+
+import (
+	"context"
+	"fmt"
+	"math"
+
+	"scorewright/generator/formula"
+	"scorewright/generator/point"
+	"scorewright/internal/num"
+)
+
+// Candidate is a known generator an audited payout may turn out to be a
+// scaled copy of.
+type Candidate struct {
+	Name string
+	Gen  *point.Generator
+}
+
+// Identified says that a payout equals Shift - Scale * D(y, x) for a known
+// generator, to within the tolerance on the grid; with OutcomeTerm, it is
+// g(y) - Scale * D(y, x) with a term g in the outcome alone (which changes
+// no incentive) and Shift is 0.
+type Identified struct {
+	Preset      string  `json:"preset"`
+	Scale       float64 `json:"scale"`
+	Shift       float64 `json:"shift"`
+	OutcomeTerm bool    `json:"outcome_term,omitempty"`
+}
+
+// Payout is a compiled payout formula pay(x, y) for point forecasts.
+type Payout struct {
+	// Source is the formula as given.
+	Source string
+	prog   *formula.Program
+}
+
+// NewPayout compiles src, a formula in the report x and the outcome y.
+// Formula errors are *formula.Error values.
+func NewPayout(src string, params map[string]float64) (*Payout, error) {
+	prog, err := formula.CompileString(src, formula.Scope{Vars: []string{"x", "y"}, Params: params})
+	if err != nil {
+		return nil, err
+	}
+	return &Payout{Source: src, prog: prog}, nil
+}
+
+// payer evaluates a payout without allocating.
+type payer struct {
+	m *formula.Machine
+	v [2]float64
+}
+
+func (p *Payout) newPayer() *payer { return &payer{m: p.prog.NewMachine()} }
+
+func (p *payer) pay(x, y float64) float64 {
+	p.v[0], p.v[1] = x, y
+	return p.m.Value(p.v[:])
+}
+
+func (p *payer) expected(x float64, ys, ws []float64) float64 {
+	var s float64
+	for j, y := range ys {
+		if ws[j] != 0 {
+			s += ws[j] * p.pay(x, y)
+		}
+	}
+	return s
+}
+
+// AuditPayout checks whether the mean is the best report under the payout
+// on [lo, hi], and measures the honesty gap
+// max_x E pay(x, Y) - E pay(mean, Y) over the grid's distributions.
+// Candidates, when given, are tried for an exact identification.
+func AuditPayout(ctx context.Context, p *Payout, lo, hi float64, s Settings, candidates []Candidate) (*Report, error) {
+	if !(lo < hi) || math.IsInf(lo, 0) || math.IsInf(hi, 0) {
+		return nil, fmt.Errorf("point: interval [%g, %g] must be finite with lo < hi", lo, hi)
+	}
+	k, tol := s.resolution(), s.tolerance()
+	ys, xs := grids(lo, hi, k)
+	pr := p.newPayer()
+	rep := &Report{Grid: Grid{Resolution: k, Points: len(xs), Tolerance: tol, Lo: lo, Hi: hi}}
+	pm, nonFinite, err := fill(ctx, xs, ys, "pay", func(y, x float64) float64 { return pr.pay(x, y) })
+	if err != nil {
+		return nil, err
+	}
+	minP, maxP := math.Inf(1), math.Inf(-1)
+	for _, row := range pm {
+		for _, v := range row {
+			if finite(v) {
+				minP, maxP = math.Min(minP, v), math.Max(maxP, v)
+			}
+		}
+	}
+	scale := maxP - minP
+	if !(scale > 0) {
+		scale = math.Max(math.Abs(maxP), 1)
+	}
+
+	// Knowing the outcome for certain, the exact report pays at least as
+	// much as any other: pay(y, y) - pay(x, y) >= 0. Outcome j sits at
+	// report index 4j.
+	worstNN, nnAt := math.Inf(1), At{}
+	for j := range ys {
+		for i := range xs {
+			if d := pm[4*j][j] - pm[i][j]; d < worstNN {
+				worstNN, nnAt = d, At{Outcomes: []float64{ys[j]}, Report: []float64{xs[i]}}
+			}
+		}
+	}
+	nonneg := Check{Name: "nonnegativity", What: "smallest pay(y, y) - pay(x, y): what the exact report gains over report x when the outcome y is certain", Worst: worstNN, At: &nnAt, Passed: worstNN >= -tol*scale}
+
+	// The report-dependent part pay(x, y) - pay(x0, y) must be affine in y.
+	i0 := len(xs) / 2
+	worstAff, affAt := 0.0, At{}
+	for i := range xs {
+		for j := 0; j+2 < len(ys); j++ {
+			f := func(j int) float64 { return pm[i][j] - pm[i0][j] }
+			dev := math.Abs(f(j) - 2*f(j+1) + f(j+2))
+			if !finite(dev) {
+				continue // counted under boundedness
+			}
+			if dev > worstAff {
+				worstAff, affAt = dev, At{Outcomes: []float64{ys[j], ys[j+2]}, Report: []float64{xs[i]}}
+			}
+		}
+	}
+	affine := Check{Name: "affinity", What: fmt.Sprintf("largest second difference in y of pay(x, y) - pay(%g, y); zero when the report-dependent part is affine in the outcome, which eliciting the mean needs", xs[i0]), Worst: worstAff, At: &affAt, Passed: worstAff <= tol*scale}
+
+	ds := distributions(k)
+	step := xs[1] - xs[0]
+	gap := Gap{Max: math.Inf(-1)}
+	worstD := -1
+	strictMargin := math.Inf(1)
+	for n, d := range ds {
+		if err := s.tick(ctx, n, len(ds)); err != nil {
+			return nil, err
+		}
+		vals, mean := d.values(ys)
+		atMean := pr.expected(mean, vals, d.w)
+		if math.IsNaN(atMean) {
+			continue // counted under boundedness
+		}
+		best, bestX, away := math.Inf(-1), 0.0, math.Inf(-1)
+		for i, x := range xs {
+			var e float64
+			for j, yi := range d.idx {
+				e += d.w[j] * pm[i][yi]
+			}
+			if math.IsNaN(e) {
+				continue // a report the payout does not define; counted under boundedness
+			}
+			if e > best {
+				best, bestX = e, x
+			}
+			if math.Abs(x-mean) >= 2*step {
+				away = math.Max(away, e)
+			}
+		}
+		g := best - atMean
+		if g > gap.Max || math.IsNaN(g) {
+			gap = Gap{Max: g, Outcomes: vals, Weights: d.w, Mean: mean, BestReport: bestX}
+			worstD = n
+		}
+		strictMargin = math.Min(strictMargin, atMean-away)
+	}
+	if s.Progress != nil {
+		s.Progress(len(ds), len(ds))
+	}
+	if worstD >= 0 && gap.Max > 0 {
+		// Refine the best report between its grid neighbours.
+		d := ds[worstD]
+		vals, _ := d.values(ys)
+		x, v := goldenMax(func(x float64) float64 { return pr.expected(x, vals, d.w) }, math.Max(lo, gap.BestReport-step), math.Min(hi, gap.BestReport+step))
+		if v > gap.Max+pr.expected(gap.Mean, vals, d.w) {
+			gap.BestReport, gap.Max = x, v-pr.expected(gap.Mean, vals, d.w)
+		}
+	}
+	proper := Check{Name: "properness", What: fmt.Sprintf("largest honesty gap max_x E pay(x, Y) - E pay(mean, Y) over %d two- and three-point distributions", len(ds)), Worst: gap.Max, At: &At{Outcomes: gap.Outcomes, Weights: gap.Weights, Report: []float64{gap.BestReport}}, Passed: gap.Max <= tol*scale}
+	rep.Gap = &gap
+	bounded := Check{Name: "boundedness", What: "number of grid cells where the pay is not finite", Worst: float64(len(nonFinite)), Passed: len(nonFinite) == 0}
+	if len(nonFinite) > 0 {
+		rep.Notes = append(rep.Notes, "not finite at "+joinFirst(nonFinite, 5))
+	}
+	rep.Checks = []Check{nonneg, affine, proper, bounded}
+	switch {
+	case !proper.Passed || !nonneg.Passed:
+		rep.Verdict = Improper
+		rep.Notes = append(rep.Notes, fmt.Sprintf("the mean is not the best report: with outcomes %s weighted %s (mean %.6g) the report %.6g earns %.6g more in expectation", num.Format(gap.Outcomes), num.Format(gap.Weights), gap.Mean, gap.BestReport, gap.Max))
+	case countNaN(pm[1:len(pm)-1]) > 0:
+		// The other checks skip NaN; a payout undefined for a report
+		// inside the interval cannot be called proper (at the ends, ∞ - ∞
+		// is how an unbounded payout shows, reported under boundedness).
+		rep.Verdict = Improper
+		rep.Notes = append(rep.Notes, fmt.Sprintf("the payout is undefined (NaN) in %d grid cells with a report inside the interval (see boundedness), so it is not proper on [%g, %g]", countNaN(pm[1:len(pm)-1]), lo, hi))
+	case strictMargin > tol*scale:
+		rep.Verdict = StrictlyProper
+	default:
+		rep.Verdict = Proper
+		rep.Notes = append(rep.Notes, "some report at least two grid steps from the mean earns as much as the mean: a best report, not always the only one")
+	}
+	if id := identify(pm, xs, ys, scale, tol, candidates); id != nil {
+		rep.Identified = id
+	}
+	rep.Notes = append(rep.Notes, fmt.Sprintf("grid check on %d outcomes and %d reports in [%g, %g], tolerance %g relative to the pay spread %.4g: evidence, not proof", len(ys), len(xs), lo, hi, tol, scale))
+	return rep, nil
+}
+
+// goldenMax maximises f on [a, b] by golden-section search (f unimodal
+// there is assumed; it is a refinement of a grid maximum).
+func goldenMax(f func(float64) float64, a, b float64) (float64, float64) {
+	const r = 0.6180339887498949
+	c, d := b-r*(b-a), a+r*(b-a)
+	fc, fd := f(c), f(d)
+	for i := 0; i < 60 && b-a > 1e-12*(1+math.Abs(a)); i++ {
+		if fc >= fd {
+			b, d, fd = d, c, fc
+			c = b - r*(b-a)
+			fc = f(c)
+		} else {
+			a, c, fc = c, d, fd
+			d = a + r*(b-a)
+			fd = f(d)
+		}
+	}
+	x := (a + b) / 2
+	return x, f(x)
+}
+
+// identify fits pay[i][j] ≈ g_j - Scale·D(y_j, x_i) for each candidate by
+// least squares on the grid, with g a free term per outcome (which does
+// not change any incentive), and returns the first candidate that fits
+// every cell to within tol·scale with Scale > 0. When g is constant the
+// payout is Shift - Scale·D.
+func identify(pm [][]float64, xs, ys []float64, scale, tol float64, cands []Candidate) *Identified {
+	limit := math.Max(tol, 1e-9) * scale
+	for _, c := range cands {
+		if c.Gen.Lo > xs[0] || c.Gen.Hi < xs[len(xs)-1] {
+			continue
+		}
+		ev := c.Gen.NewEvaluator()
+		dm, bad, _ := fill(context.Background(), xs, ys, "D", ev.Divergence)
+		if len(bad) > 0 {
+			continue
+		}
+		// Centre each outcome column, then fit the common slope.
+		var sdp, sdd float64
+		mp, md := make([]float64, len(ys)), make([]float64, len(ys))
+		for j := range ys {
+			for i := range xs {
+				if !finite(pm[i][j]) {
+					return nil
+				}
+				mp[j] += pm[i][j] / float64(len(xs))
+				md[j] += dm[i][j] / float64(len(xs))
+			}
+			for i := range xs {
+				sdp += (pm[i][j] - mp[j]) * (dm[i][j] - md[j])
+				sdd += (dm[i][j] - md[j]) * (dm[i][j] - md[j])
+			}
+		}
+		if !(sdd > 0) {
+			continue
+		}
+		s := -sdp / sdd
+		if !(s > 0) {
+			continue
+		}
+		worst, gmin, gmax := 0.0, math.Inf(1), math.Inf(-1)
+		for j := range ys {
+			g := mp[j] + s*md[j]
+			gmin, gmax = math.Min(gmin, g), math.Max(gmax, g)
+			for i := range xs {
+				worst = math.Max(worst, math.Abs(pm[i][j]-(g-s*dm[i][j])))
+			}
+		}
+		if worst > limit {
+			continue
+		}
+		id := &Identified{Preset: c.Name, Scale: s}
+		if gmax-gmin <= limit {
+			id.Shift = (gmin + gmax) / 2
+		} else {
+			id.OutcomeTerm = true
+		}
+		return id
+	}
+	return nil
+}

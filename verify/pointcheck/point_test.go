@@ -1,0 +1,174 @@
+package pointcheck
+
+import (
+	"context"
+	"math"
+	"testing"
+
+	"scorewright/generator/point"
+	"scorewright/presets"
+)
+
+func gen(t *testing.T, src string, lo, hi float64) *point.Generator {
+	t.Helper()
+	g, err := point.New(src, lo, hi, point.Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return g
+}
+
+func check(r *Report, name string) Check {
+	for _, c := range r.Checks {
+		if c.Name == name {
+			return c
+		}
+	}
+	return Check{Name: "missing " + name}
+}
+
+func TestCheckGenerator(t *testing.T) {
+	cases := []struct {
+		src     string
+		lo, hi  float64
+		verdict string
+		failing []string
+	}{
+		{"-x^2", 0, 500, StrictlyProper, nil},
+		{"ln(x)", 0.5, 20, StrictlyProper, nil},
+		{"a = 1\n-2*exp(a*x) / a^2", -2, 2, StrictlyProper, nil},
+		// phi'' = -12 x^2 vanishes at x = 0, a grid point: proper, not strict.
+		{"-x^4", -1, 1, Proper, nil},
+		// Convex: every report but the mean does better.
+		{"x^2", 0, 10, Improper, []string{"concavity", "nonnegativity", "properness"}},
+		// Concave up to 5, convex after.
+		{"if(x < 5, -x^2, x^2 - 20*x + 50)", 0, 10, Improper, []string{"concavity", "nonnegativity", "properness"}},
+		// ln x at 0 is -Inf: the effort is not finite at the end.
+		{"ln(x)", 0, 10, StrictlyProper, []string{"boundedness"}},
+	}
+	for _, tc := range cases {
+		r, err := CheckGenerator(context.Background(), gen(t, tc.src, tc.lo, tc.hi), Settings{Resolution: 20})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if r.Verdict != tc.verdict {
+			t.Errorf("%q on [%g, %g]: verdict %s, want %s (%+v)", tc.src, tc.lo, tc.hi, r.Verdict, tc.verdict, r.Checks)
+		}
+		failing := map[string]bool{}
+		for _, c := range r.Checks {
+			if !c.Passed {
+				failing[c.Name] = true
+			}
+		}
+		for _, name := range tc.failing {
+			if !failing[name] {
+				t.Errorf("%q: check %s passed, want it to fail", tc.src, name)
+			}
+			delete(failing, name)
+		}
+		for name := range failing {
+			t.Errorf("%q: check %s failed unexpectedly: %+v", tc.src, name, check(r, name))
+		}
+	}
+}
+
+func TestAuditPayout(t *testing.T) {
+	sq, _ := point.New("-x^2", 0, 10, point.Options{})
+	cands := []Candidate{{"squared-error", sq}}
+	// A scaled squared-error payout is strictly proper and recognised.
+	p, err := NewPayout("10 - 0.5*(x - y)^2", nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	r, err := AuditPayout(context.Background(), p, 0, 10, Settings{Resolution: 20}, cands)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r.Verdict != StrictlyProper || r.Failed() || r.Gap.Max > 1e-9 {
+		t.Errorf("scaled squared error: %s gap %v %+v", r.Verdict, r.Gap.Max, r.Checks)
+	}
+	if r.Identified == nil || r.Identified.Preset != "squared-error" || math.Abs(r.Identified.Scale-0.5) > 1e-9 || math.Abs(r.Identified.Shift-10) > 1e-9 {
+		t.Errorf("identified %+v", r.Identified)
+	}
+
+	// Absolute error elicits the median, not the mean. With outcomes 0 and
+	// 10 weighted 0.75 and 0.25 the mean 2.5 pays 10 - 3.75 in expectation
+	// and the median 0 pays 10 - 2.5 (derived by hand): a gap of at least
+	// 1.25.
+	p, _ = NewPayout("10 - abs(x - y)", nil)
+	r, _ = AuditPayout(context.Background(), p, 0, 10, Settings{Resolution: 20}, cands)
+	if r.Verdict != Improper || r.Gap.Max < 1.25-1e-9 || r.Identified != nil {
+		t.Errorf("absolute error: %s gap %+v identified %+v", r.Verdict, r.Gap, r.Identified)
+	}
+	if check(r, "affinity").Passed {
+		t.Error("absolute error passed the affinity check")
+	}
+	// Reward for closeness that is constant: every report ties (proper, not strict).
+	p, _ = NewPayout("3 + 0*x + y", nil)
+	r, _ = AuditPayout(context.Background(), p, 0, 10, Settings{Resolution: 10}, nil)
+	if r.Verdict != Proper {
+		t.Errorf("constant payout: %s", r.Verdict)
+	}
+	// A QLIKE-type reward -(y/x) - ln x equals -(y/x - ln(y/x) - 1) - ln y - 1
+	// (derived by hand): the qlike effort plus a term in y alone.
+	ql, _ := point.New("ln(x)", 0.5, 10, point.Options{})
+	p, _ = NewPayout("-(y/x) - ln(x)", nil)
+	r, _ = AuditPayout(context.Background(), p, 0.5, 10, Settings{Resolution: 10}, []Candidate{{"squared-error", sq}, {"qlike", ql}})
+	if r.Verdict != StrictlyProper || r.Identified == nil || r.Identified.Preset != "qlike" || !r.Identified.OutcomeTerm || math.Abs(r.Identified.Scale-1) > 1e-9 {
+		t.Errorf("qlike-type payout: %s %+v", r.Verdict, r.Identified)
+	}
+	// Undefined at x = 0: boundedness fails, the gap stays a number.
+	r, _ = AuditPayout(context.Background(), p, 0, 10, Settings{Resolution: 10}, nil)
+	if check(r, "boundedness").Passed || math.IsNaN(r.Gap.Max) {
+		t.Errorf("undefined at 0: %+v gap %v", check(r, "boundedness"), r.Gap.Max)
+	}
+	if _, err := NewPayout("x + q", nil); err == nil {
+		t.Error("unknown name accepted")
+	}
+}
+
+func TestCancel(t *testing.T) {
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	if _, err := CheckGenerator(ctx, gen(t, "-x^2", 0, 1), Settings{}); err == nil {
+		t.Error("cancelled check ran")
+	}
+}
+
+func BenchmarkCheckGenerator(b *testing.B) {
+	g, _ := point.New("-x^2", 0, 500, point.Options{})
+	for _, k := range []int{20, 40} {
+		b.Run("K="+itoa(k), func(b *testing.B) {
+			for i := 0; i < b.N; i++ {
+				if _, err := CheckGenerator(context.Background(), g, Settings{Resolution: k}); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+	}
+}
+
+func itoa(k int) string { return string(rune('0'+k/10)) + string(rune('0'+k%10)) }
+
+// Every point preset is a concave generator on a positive interval, so
+// the mean is the best report (Savage 1971; Gneiting 2011).
+func TestPointPresets(t *testing.T) {
+	n := 0
+	for _, p := range presets.All() {
+		if p.Kind != presets.KindPoint {
+			continue
+		}
+		n++
+		g, err := point.New(p.Formula, 0.5, 50, point.Options{})
+		if err != nil {
+			t.Fatalf("%s: %v", p.Name, err)
+		}
+		r, err := CheckGenerator(context.Background(), g, Settings{Resolution: 10})
+		if err != nil || r.Verdict != StrictlyProper || r.Failed() {
+			t.Errorf("%s: %v %s %+v", p.Name, err, r.Verdict, r.Checks)
+		}
+	}
+	if n < 3 {
+		t.Errorf("%d point presets; want squared error and at least two more", n)
+	}
+}
