@@ -26,7 +26,21 @@ const (
 	ModePoint Mode = "point"
 	// ModeEmphasis: the formula is a weight w(c) >= 0 on (0, 1) for n = 2.
 	ModeEmphasis Mode = "emphasis"
+	// ModePointPayout: the formula is somebody's payout pay(x, y) for a
+	// point forecast x of an outcome y on Interval, under audit.
+	ModePointPayout Mode = "point-payout"
 )
+
+// Modes lists every mode, in the order the workbench cycles through them.
+var Modes = []Mode{ModeGenerator, ModePayout, ModeEmphasis, ModePoint, ModePointPayout}
+
+// OnInterval reports whether the mode is about a number on an interval
+// (a point forecast) rather than a distribution over outcomes.
+func (m Mode) OnInterval() bool { return m == ModePoint || m == ModePointPayout }
+
+// Payout reports whether the formula of the mode is a payout under audit
+// (more is better) rather than a rule's generator.
+func (m Mode) Payout() bool { return m == ModePayout || m == ModePointPayout }
 
 // Budget is how a rule is turned into money. Zero values mean "not set".
 type Budget struct {
