@@ -80,7 +80,7 @@ func formulaError(which string, err error, always bool) error {
 // under audit over outcomes or on an interval. Errors name the formula
 // (a *FormulaError) or the field at fault; Open never panics.
 func Open(d *design.Design) (*Rule, error) {
-	r := &Rule{d: Clone(d)}
+	r := &Rule{d: d.Clone()}
 	d = r.d
 	var err error
 	switch d.Mode {
@@ -182,38 +182,8 @@ func PointPayoutScope(params map[string]float64) formula.Scope {
 	return formula.Scope{Vars: []string{"x", "y"}, Params: params}
 }
 
-// Clone is a deep copy of a design, so that a Rule never shares slices or
-// maps with a design its caller goes on editing.
-func Clone(d *design.Design) *design.Design {
-	c := *d
-	c.Labels = append([]string(nil), d.Labels...)
-	c.Weights = append([]float64(nil), d.Weights...)
-	c.Interval = append([]float64(nil), d.Interval...)
-	c.Budget.Reference = append([]float64(nil), d.Budget.Reference...)
-	if d.Weights == nil {
-		c.Weights = nil
-	}
-	if d.Interval == nil {
-		c.Interval = nil
-	}
-	if d.Budget.Reference == nil {
-		c.Budget.Reference = nil
-	}
-	if d.Budget.MeanPay != nil {
-		v := *d.Budget.MeanPay
-		c.Budget.MeanPay = &v
-	}
-	if d.Params != nil {
-		c.Params = make(map[string]float64, len(d.Params))
-		for k, v := range d.Params {
-			c.Params[k] = v
-		}
-	}
-	return &c
-}
-
 // Design is a copy of the design the rule was opened from.
-func (r *Rule) Design() *design.Design { return Clone(r.d) }
+func (r *Rule) Design() *design.Design { return r.d.Clone() }
 
 // Mode is the design's mode.
 func (r *Rule) Mode() design.Mode { return r.d.Mode }

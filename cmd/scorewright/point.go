@@ -254,17 +254,20 @@ func printPointReport(e *env, rep *pointcheck.Report, asJSON bool) error {
 // writePointTable exports the table of a point design (the menu of
 // reports against outcome columns) and prints its summary, like any other
 // table.
-func writePointTable(e *env, t *scorewright.Table, tb *table.Table, format string, tf *tableFlags) error {
+func writePointTable(e *env, d *design.Design, t *scorewright.Table, tb *table.Table, format string, tf *tableFlags) error {
 	fit, rc := t.Point, t.PointRecheck
+	ax, err := annexInput(d, tb, nil, 0, 0, 0)
+	if err != nil {
+		return err
+	}
 	sum := newPointTableSummary(fit, rc, tb, format, tf.out)
 	if tf.lottery {
-		var err error
 		if sum.Lottery, err = lotteryTable(tb, t); err != nil {
 			return err
 		}
 		sum.Caution = tb.Meta.Cautions
 	}
-	return exportTable(e, tb, format, tf, rc.Passed, &sum.Output, sum, func() error {
+	return exportTable(e, ax, format, tf, rc.Passed, &sum.Output, sum, func() error {
 		return printPointTableSummary(e.stdout, fit, rc, sum)
 	})
 }

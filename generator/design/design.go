@@ -7,6 +7,8 @@ package design
 import (
 	"errors"
 	"fmt"
+	"maps"
+	"slices"
 	"strconv"
 	"strings"
 	"unicode"
@@ -91,10 +93,29 @@ type Design struct {
 	Interval []float64 `toml:"interval,omitempty"`
 	// Budget is the contract's money side.
 	Budget Budget `toml:"budget"`
+	// Contract is who pays whom, in which currency, over which season.
+	Contract Contract `toml:"contract,omitempty"`
 }
 
 // SchemaVersion is the design file version this build writes.
 const SchemaVersion = 1
+
+// Clone is a deep copy of d: no slice, map or pointer is shared, so a
+// copy handed to a background job never changes under it.
+func (d *Design) Clone() *Design {
+	c := *d
+	c.Labels = slices.Clone(d.Labels)
+	c.Weights = slices.Clone(d.Weights)
+	c.Interval = slices.Clone(d.Interval)
+	c.Params = maps.Clone(d.Params)
+	c.Budget.Reference = slices.Clone(d.Budget.Reference)
+	c.Contract.BaseRate = slices.Clone(d.Contract.BaseRate)
+	if d.Budget.MeanPay != nil {
+		v := *d.Budget.MeanPay
+		c.Budget.MeanPay = &v
+	}
+	return &c
+}
 
 // N is the number of outcomes.
 func (d *Design) N() int { return len(d.Labels) }
