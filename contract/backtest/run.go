@@ -53,7 +53,7 @@ type batch struct {
 	rows   []history.Row
 	ok     []bool
 	why    []string
-	end    []int // last line of each bad record
+	end    []int     // last line of each bad record
 	p      []float64 // n per row, backing rows[i].P
 	offset int64
 	err    error // a reading error that ends the input (not io.EOF)

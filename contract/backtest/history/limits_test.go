@@ -13,7 +13,7 @@ import (
 func TestUnclosedQuoteIsReportedWithItsSpan(t *testing.T) {
 	var b strings.Builder
 	b.WriteString("forecaster,question,outcome,frost,clear\n")
-	b.WriteString("Alder,n0,frost,0.5,0.5\n")    // line 2
+	b.WriteString("Alder,n0,frost,0.5,0.5\n")      // line 2
 	b.WriteString("\"Smith, J,q1,frost,0.3,0.7\n") // line 3: the quote opens
 	for i := range 100 {
 		fmt.Fprintf(&b, "Birch,n%d,clear,0.2,0.8\n", i) // lines 4..103
