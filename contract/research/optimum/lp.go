@@ -293,12 +293,21 @@ func result(m *mesh, post *research.Posterior, y, obj []float64, floor, cap floa
 			if g[k] < floor-tol || g[k] > cap+tol {
 				return nil, fmt.Errorf("optimum: the solution pays %g for outcome %d on cell %d, outside [%g, %g]", g[k], k+1, c, floor, cap)
 			}
-			g[k] = math.Min(cap, math.Max(floor, g[k]))
+			g[k] = math.Min(cap, math.Max(floor, tidy(g[k], R)))
 		}
 		r.addPiece(g, tol)
 	}
 	r.Gain = post.Expect(r.Pay) - r.Pay(post.Prior)
 	return r, nil
+}
+
+// tidy rounds a payment to 9 significant digits of the budget's range R:
+// the relaxation leaves noise near 1e-9·R in the last digits, and a
+// formula reads better without it. Any payments in the budget make a
+// valid rule, so this changes the gain by about 1e-9·R at most.
+func tidy(v, R float64) float64 {
+	q := math.Pow(10, math.Floor(math.Log10(R))-8)
+	return math.Round(v/q) * q
 }
 
 // Pay is G(q) = max over pieces of Σ_k g_k q_k: what a truthful forecaster
@@ -361,8 +370,11 @@ func (r *Result) maxExpr() string {
 func affine(g []float64) string {
 	var b strings.Builder
 	for k, v := range g {
+		if v == 0 {
+			continue // 0·p_k adds nothing
+		}
 		switch {
-		case k == 0:
+		case b.Len() == 0:
 			b.WriteString(num(v))
 		case v < 0:
 			b.WriteString(" - " + num(-v))
@@ -370,6 +382,9 @@ func affine(g []float64) string {
 			b.WriteString(" + " + num(v))
 		}
 		fmt.Fprintf(&b, "*p%d", k+1)
+	}
+	if b.Len() == 0 {
+		return "0"
 	}
 	return b.String()
 }
