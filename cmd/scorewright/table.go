@@ -90,11 +90,6 @@ func runTable(e *env, args []string) error {
 	if err := bf.apply(fs, d); err != nil {
 		return err
 	}
-	if fs.Lookup("reference").Value.String() != "" && d.Budget.MeanPay == nil {
-		// Without a mean-pay target the fit never looks at it, and a
-		// silently ignored base rate is a wrong table nobody notices.
-		return usagef("--reference is the belief a --mean-pay target is set at; give --mean-pay M with it, or leave it out")
-	}
 	if d.Mode == design.ModePoint {
 		return runTablePoint(e, d, format, tf)
 	}
