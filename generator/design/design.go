@@ -77,6 +77,8 @@ type Design struct {
 	Interval []float64 `toml:"interval,omitempty"`
 	// Budget is the contract's money side.
 	Budget Budget `toml:"budget"`
+	// Contract is who pays whom, in which currency, over which season.
+	Contract Contract `toml:"contract,omitempty"`
 }
 
 // SchemaVersion is the design file version this build writes.

@@ -133,6 +133,9 @@ func (d *Design) Validate() error {
 			return errors.New("interval: point designs need interval = [lo, hi] with lo < hi")
 		}
 	}
+	if err := d.Contract.Validate(d.N()); err != nil {
+		return err
+	}
 	return d.ValidateBudget()
 }
 
