@@ -362,6 +362,10 @@ func runTablePoint(e *env, d *design.Design, format string, tf *tableFlags) erro
 		return usagef("%v", err)
 	}
 	tb := fit.Export(rc, point.Info{Title: d.Title, Preset: d.Preset, Params: d.Params, Version: version, Date: exportDate()})
+	ax, err := annexInput(d, tb, nil, 0, 0, 0)
+	if err != nil {
+		return err
+	}
 	sum := newPointTableSummary(fit, rc, tb, format, tf.out)
 	if tf.lottery {
 		if sum.Lottery, err = lotteryTable(tb, math.Min(fit.Floor, fit.MinPay), math.Max(fit.Cap, fit.MaxPay)); err != nil {
@@ -369,7 +373,7 @@ func runTablePoint(e *env, d *design.Design, format string, tf *tableFlags) erro
 		}
 		sum.Caution = tb.Meta.Cautions
 	}
-	return exportTable(e, tb, format, tf, rc.Passed, &sum.Output, sum, func() error {
+	return exportTable(e, ax, format, tf, rc.Passed, &sum.Output, sum, func() error {
 		return printPointTableSummary(e.stdout, fit, rc, sum)
 	})
 }

@@ -5,9 +5,12 @@
 package design
 
 import (
+	"errors"
 	"fmt"
 	"strconv"
 	"strings"
+	"unicode"
+	"unicode/utf8"
 
 	"scorewright/generator/bregman"
 	"scorewright/generator/formula"
@@ -74,6 +77,8 @@ type Design struct {
 	Interval []float64 `toml:"interval,omitempty"`
 	// Budget is the contract's money side.
 	Budget Budget `toml:"budget"`
+	// Contract is who pays whom, in which currency, over which season.
+	Contract Contract `toml:"contract,omitempty"`
 }
 
 // SchemaVersion is the design file version this build writes.
@@ -105,8 +110,8 @@ func ParseOutcomes(s string) ([]string, error) {
 	seen := map[string]bool{}
 	for i, p := range parts {
 		p = strings.TrimSpace(p)
-		if p == "" {
-			return nil, fmt.Errorf("outcome label %d is empty", i+1)
+		if err := CheckLabel(p); err != nil {
+			return nil, fmt.Errorf("outcome label %d %w", i+1, err)
 		}
 		if seen[p] {
 			return nil, fmt.Errorf("outcome label %q appears twice", p)
@@ -118,6 +123,43 @@ func ParseOutcomes(s string) ([]string, error) {
 		return nil, fmt.Errorf("%d outcome labels given; need 2..%d", len(parts), formula.MaxOutcomes)
 	}
 	return parts, nil
+}
+
+// MaxLabel is the longest outcome label, in bytes; a label heads a table
+// column.
+const MaxLabel = 200
+
+// ReservedLabels are the names of the fixed columns of history and pay-out
+// files; an outcome named like one would collide with it.
+var reservedLabels = []string{"forecaster", "question", "outcome", "line"}
+
+// CheckLabel says what is wrong with an outcome label, or returns nil. A
+// label goes into CSV headers, comma-separated flags such as --reference
+// and --outcomes of a second rule, annex tables and terminal lines, so it
+// must be one line of printable text without commas, and must not be
+// named like a fixed column. The error reads after "label N".
+func CheckLabel(l string) error {
+	switch {
+	case strings.TrimSpace(l) == "":
+		return errors.New("is empty")
+	case len(l) > MaxLabel:
+		return fmt.Errorf("is %d bytes long; a label may have at most %d", len(l), MaxLabel)
+	case strings.Contains(l, ","):
+		return fmt.Errorf("%q has a comma, which separates labels in flags and files", l)
+	case !utf8.ValidString(l):
+		return fmt.Errorf("%q is not valid UTF-8 text", l)
+	}
+	for _, r := range l {
+		if unicode.IsControl(r) {
+			return fmt.Errorf("%q has a control character (%U); labels are one line of printable text", l, r)
+		}
+	}
+	for _, c := range reservedLabels {
+		if strings.EqualFold(strings.TrimSpace(l), c) {
+			return fmt.Errorf("%q is the name of a fixed column of history and pay-out files; choose another", l)
+		}
+	}
+	return nil
 }
 
 // Rule compiles a generator-mode design into a rule.
