@@ -207,7 +207,7 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 	if err != nil {
 		var re *history.RowError
 		if errors.As(err, &re) {
-			return usagef("%s line %d: %s (--strict stops at the first bad row)", *historyPath, re.Line, re.Why)
+			return usagef("%s %s: %s (--strict stops at the first bad row)", *historyPath, re.Where(), re.Why)
 		}
 		if errors.Is(err, context.Canceled) {
 			return usagef("interrupted; nothing was written")
@@ -447,11 +447,14 @@ type backtestReport struct {
 	Notes       []string            `json:"notes,omitempty"`
 	Caution     []string            `json:"caution"`
 	decimals    []int
+	unit        string // "line" or "row", how the history numbers records
 }
 
 type skippedReport struct {
-	Line int    `json:"line"`
-	Why  string `json:"why"`
+	Line int `json:"line"`
+	// EndLine is the record's last line when it ran across lines.
+	EndLine int    `json:"end_line,omitempty"`
+	Why     string `json:"why"`
 }
 
 type ruleReport struct {

@@ -24,9 +24,13 @@ const fewPerBin = 5
 
 func newBacktestReport(path string, h *history.Reader, schemes []*backtestScheme, res *backtest.Result) *backtestReport {
 	r := &backtestReport{History: path, Outcomes: h.Labels(), Tolerance: h.Tolerance(), Rows: res.Rows,
-		SkipCount: res.SkippedCount, Skipped: []skippedReport{}, Caution: table.Caution()}
+		SkipCount: res.SkippedCount, Skipped: []skippedReport{}, Caution: table.Caution(), unit: h.Unit()}
 	for _, s := range res.Skipped {
-		r.Skipped = append(r.Skipped, skippedReport(s))
+		sr := skippedReport{Line: s.Line, Why: s.Why}
+		if s.EndLine > s.Line {
+			sr.EndLine = s.EndLine
+		}
+		r.Skipped = append(r.Skipped, sr)
 	}
 	for i, s := range schemes {
 		m := res.All[i]
@@ -212,7 +216,7 @@ func (r *backtestReport) writeText(w io.Writer) error {
 				fmt.Fprintf(w, "  ... and %d more (--json lists the first %d)\n", r.SkipCount-maxSkippedShown, len(r.Skipped))
 				break
 			}
-			fmt.Fprintf(w, "  line %d: %s\n", s.Line, s.Why)
+			fmt.Fprintf(w, "  %s: %s\n", (&history.RowError{Line: s.Line, EndLine: s.EndLine, Unit: r.unit}).Where(), s.Why)
 		}
 	}
 	fmt.Fprintln(w)

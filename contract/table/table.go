@@ -157,10 +157,16 @@ func (m *Meta) Fields() []Field {
 }
 
 // formulaLine writes a formula of several lines (parameter lines, then
-// the expression) on one line, lines separated by "; ", comments kept.
+// the expression) on one line, lines separated by "; ". Comments are
+// dropped: a formula opening with "# power family" would otherwise make
+// the whole one-line form a comment. The formula language has no strings,
+// so '#' always starts a comment; the full text travels in the design.
 func formulaLine(src string) string {
 	var lines []string
 	for _, l := range strings.Split(src, "\n") {
+		if i := strings.IndexByte(l, '#'); i >= 0 {
+			l = l[:i]
+		}
 		if l = strings.TrimSpace(l); l != "" {
 			lines = append(lines, l)
 		}
