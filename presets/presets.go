@@ -75,12 +75,17 @@ func all() []Preset {
 			// by only about (a - 1) ln p), so the search stays clear of it.
 			Fit: ParamRange{Name: "a", Lo: 1.05, Hi: 10}},
 		{Name: "power", Title: "power (Tsallis) rule; g -> 1 is log, g = 2 quadratic", Kind: KindGenerator,
-			Formula: "g = 3\n(1 - sum(p^g)) / (g - 1)",
+			// (1 - sum(p^g)) / (g - 1), written as
+			// -sum(p*(p^(g-1) - 1)) / (g - 1) — equal on the simplex, where
+			// sum(p) = 1 — with expm1, so that near the log limit g = 1
+			// nothing cancels: the plain form subtracts two numbers that
+			// agree to |g - 1| and loses that many digits. g = 1 itself is
+			// the limit, the log rule, chosen at compile time (g is a
+			// constant, so the if folds away).
+			Formula: "g = 3\nif(abs(g - 1) > 0, -sum(p*expm1((g - 1)*ln(p))) / (g - 1), -sum(p*ln(p)))",
 			Source:  "Gneiting & Raftery (2007), JASA 102:359-378, Sec. 3 (power score)",
 			// Concave, so proper, for every g > 0 (sum p^g is concave for
-			// g < 1 and convex for g > 1, and the sign of g - 1 follows);
-			// g = 1 itself, the log rule's limit, is undefined as written
-			// and left out by the search.
+			// g < 1 and convex for g > 1, and the sign of g - 1 follows).
 			Fit: ParamRange{Name: "g", Lo: 0.1, Hi: 10}},
 		{Name: "beta", Title: "beta family for yes/no events, emphasis c^(a-1) (1-c)^(b-1)", Kind: KindEmphasis,
 			Formula: "a = 1\nb = 1\nc^(a-1) * (1-c)^(b-1)", BinaryOnly: true,

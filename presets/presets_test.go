@@ -250,6 +250,48 @@ func TestClosedForms(t *testing.T) {
 	}
 }
 
+// The power rule near its log limit keeps full precision. With d = g - 1
+// and p^d = exp(d ln p), derived by hand from the Taylor series:
+//
+//	H = -sum p expm1(d ln p)/d = -sum p ln p - (d/2) sum p ln²p + O(d²)
+//	L(p, k) = [1 + d sum p^g - g p_k^d]/d = -ln p_k + d (S1 - ln p_k - ln²p_k/2) + O(d²)
+//
+// with S1 = sum p ln p. At d = 1e-10 the O(d²) terms are below 1e-19, so
+// the series is the reference to double precision; the plain form
+// (1 - sum p^g)/(g - 1) gets about six digits there. g = 1 is the log rule
+// (Good 1952) exactly.
+func TestPowerNearLogLimit(t *testing.T) {
+	p := []float64{0.2, 0.3, 0.5}
+	var s1, s2 float64
+	for _, x := range p {
+		l := math.Log(x)
+		s1 += x * l
+		s2 += x * l * l
+	}
+	for _, d := range []float64{1e-10, -1e-10, 1e-13} {
+		s := rule(t, "power", 3, map[string]float64{"g": 1 + d}, nil).NewScorer()
+		eff := make([]float64, 3)
+		h := s.Efforts(eff, p)
+		if want := -s1 - d/2*s2; math.Abs(h-want) > 4e-16*math.Abs(want) {
+			t.Errorf("g = 1%+g: H = %.17g, series %.17g (relative error %.2g)", d, h, want, math.Abs(h-want)/want)
+		}
+		for k, x := range p {
+			l := math.Log(x)
+			if want := -l + d*(s1-l-l*l/2); math.Abs(eff[k]-want) > 4e-15*math.Abs(want) {
+				t.Errorf("g = 1%+g: L(p, %d) = %.17g, series %.17g", d, k+1, eff[k], want)
+			}
+		}
+	}
+	s := rule(t, "power", 3, map[string]float64{"g": 1}, nil).NewScorer()
+	eff := make([]float64, 3)
+	s.Efforts(eff, p)
+	for k, x := range p {
+		if math.Abs(eff[k]+math.Log(x)) > 1e-15 {
+			t.Errorf("g = 1: L(p, %d) = %v, want -ln %v", k+1, eff[k], x)
+		}
+	}
+}
+
 // Ranked probability rule against Epstein's (1969) normalised values,
 // RPS = L / (n - 1).
 func TestRankedProbability(t *testing.T) {

@@ -33,7 +33,7 @@ type Scope struct {
 // table cannot be changed at run time.
 func arity(name string) (lo, hi int, ok bool) {
 	switch name {
-	case "ln", "log", "log2", "log10", "exp", "sqrt", "abs", "sum", "csum":
+	case "ln", "log", "log2", "log10", "exp", "expm1", "log1p", "sqrt", "abs", "sum", "csum":
 		return 1, 1, true
 	case "min", "max":
 		return 1, -1, true
@@ -45,7 +45,7 @@ func arity(name string) (lo, hi int, ok bool) {
 
 // Functions returns the names of the built-in functions, sorted.
 func Functions() []string {
-	return []string{"abs", "csum", "exp", "if", "ln", "log", "log10", "log2", "max", "min", "sqrt", "sum"}
+	return []string{"abs", "csum", "exp", "expm1", "if", "ln", "log", "log10", "log1p", "log2", "max", "min", "sqrt", "sum"}
 }
 
 // MaxOutcomes is the largest outcome count the engine supports.
@@ -446,6 +446,10 @@ func apply(o opcode, a, b, k float64) float64 {
 		return math.Exp(a)
 	case opLn:
 		return math.Log(a)
+	case opExpm1:
+		return math.Expm1(a)
+	case opLog1p:
+		return math.Log1p(a)
 	case opSqrt:
 		return math.Sqrt(a)
 	case opAbs:
@@ -736,6 +740,10 @@ func (c *compiler) call(n *Call, x ctx) int32 {
 		return c.op(opMul, c.op(opLn, a, 0, 0), c.konst(1/math.Ln10), 0)
 	case "exp":
 		return c.op(opExp, a, 0, 0)
+	case "expm1":
+		return c.op(opExpm1, a, 0, 0)
+	case "log1p":
+		return c.op(opLog1p, a, 0, 0)
 	case "sqrt":
 		return c.op(opSqrt, a, 0, 0)
 	case "abs":

@@ -370,6 +370,11 @@ func (m *Machine) back(op opcode, i, a, b, c int32, k, g float64) {
 		adj[b] += mul0(g, mul0(v[i], math.Log(x)))
 	case opExp:
 		adj[a] += mul0(g, v[i])
+	case opExpm1:
+		// d/da (e^a - 1) = e^a = value + 1.
+		adj[a] += mul0(g, v[i]+1)
+	case opLog1p:
+		adj[a] += g / (1 + v[a])
 	case opSqrt:
 		adj[a] += g * 0.5 / v[i]
 	case opAbs:
@@ -475,6 +480,11 @@ func (m *Machine) hessLane(in *cell, l int32) {
 			math.Pow(a, b-1)*(1+mul0(b, la)))
 	case opExp:
 		m.unary(i, ia, z, z)
+	case opExpm1:
+		m.unary(i, ia, z+1, z+1)
+	case opLog1p:
+		u := 1 + a
+		m.unary(i, ia, 1/u, -1/(u*u))
 	case opLn:
 		m.unary(i, ia, 1/a, -1/(a*a))
 	case opXLnX:

@@ -3,6 +3,7 @@ package formula
 import (
 	"math"
 	"math/rand/v2"
+	"strings"
 	"testing"
 
 	"gonum.org/v1/gonum/diff/fd"
@@ -31,6 +32,7 @@ func TestDerivativesAgainstFiniteDifferences(t *testing.T) {
 		{"sum(((p+2)*ln(p+2))*ln((p+2)*ln(p+2)))", Scope{Outcomes: 3}},
 		{"sum(p*ln(p)) + sum(p^2) - sum((p*ln(p))^2)", Scope{Outcomes: 4}},
 		{"-x^2 + sqrt(x)", Scope{Vars: []string{"x"}}},
+		{"expm1(p1*p2) + log1p(p3 - p1) + sum(expm1(-p)*log1p(p))", Scope{Outcomes: 3}},
 		{"sum((p - hit)^2) + p[y]*i0", Scope{Outcomes: 3, Payout: true, Outcome: 2, Params: map[string]float64{"i0": 0.5}}},
 	}
 	rng := rand.New(rand.NewPCG(1, 2))
@@ -217,5 +219,40 @@ func TestPayoutScope(t *testing.T) {
 	prog, _ = CompileString("p[y] + p[3]", Scope{Outcomes: 3, Payout: true, Outcome: 2})
 	if got := prog.NewMachine().Value([]float64{0.5, 0.3, 0.2}); !close(got, 0.5, 1e-15) {
 		t.Errorf("p[y] + p[3] = %v, want 0.5", got)
+	}
+}
+
+// expm1 and log1p keep the digits that exp(x) - 1 and ln(1 + x) lose for
+// small x: the values below are the Taylor series, derived by hand
+// (e^x - 1 = x + x²/2 + x³/6 + ..., ln(1 + x) = x - x²/2 + x³/3 - ...),
+// exact to double precision at x = 1e-10, where the plain forms keep only
+// about six digits.
+func TestExpm1Log1pPrecision(t *testing.T) {
+	x := 1e-10
+	cases := []struct {
+		src        string
+		want, d, h float64
+	}{
+		{"expm1(x)", x + x*x/2 + x*x*x/6, 1 + x + x*x/2, 1 + x},
+		{"log1p(x)", x - x*x/2 + x*x*x/3, 1 / (1 + x), -1 / ((1 + x) * (1 + x))},
+	}
+	for _, c := range cases {
+		prog, err := CompileString(c.src, Scope{Vars: []string{"x"}})
+		if err != nil {
+			t.Fatal(err)
+		}
+		grad, hess := make([]float64, 1), make([]float64, 1)
+		v := prog.NewMachine().Hessian(hess, grad, []float64{x})
+		if math.Abs(v-c.want) > 1e-16*math.Abs(c.want) {
+			t.Errorf("%s at %g = %.17g, want %.17g", c.src, x, v, c.want)
+		}
+		if math.Abs(grad[0]-c.d) > 1e-15 || math.Abs(hess[0]-c.h) > 1e-15 {
+			t.Errorf("%s at %g: derivatives %.17g, %.17g, want %.17g, %.17g", c.src, x, grad[0], hess[0], c.d, c.h)
+		}
+	}
+	// The unknown-function message lists the two.
+	_, err := CompileString("expm2(x)", Scope{Vars: []string{"x"}})
+	if err == nil || !strings.Contains(err.Error(), "expm1") || !strings.Contains(err.Error(), "log1p") {
+		t.Errorf("unknown function message %v does not list expm1 and log1p", err)
 	}
 }

@@ -99,7 +99,7 @@ func TestCompileErrors(t *testing.T) {
 		{"sum(q)", gen3, `1:5: unknown name "q"; known here: p, i, w, p1..p3, n, pi, e`},
 		{"p * 2", gen3, "1:1: p alone is the event's probability only when there are 2 outcomes; use p1..p3, or p inside sum(...)"},
 		{"p4", gen3, "1:1: p4 names outcome 4, but there are only 3 outcomes"},
-		{"foo(p1)", gen3, "1:1: unknown function \"foo\"; known: abs, csum, exp, if, ln, log, log10, log2, max, min, sqrt, sum"},
+		{"foo(p1)", gen3, "1:1: unknown function \"foo\"; known: abs, csum, exp, expm1, if, ln, log, log10, log1p, log2, max, min, sqrt, sum"},
 		{"ln(p1, p2)", gen3, "1:1: ln takes 1 argument, found 2"},
 		{"if(p1 < 1, 2)", gen3, "1:1: if takes 3 arguments, found 2"},
 		{"ln + 1", gen3, "1:1: ln is a function; write ln(...)"},

@@ -32,16 +32,18 @@ const (
 	opCumsum                 // lanes k = a_1 + ... + a_k of vector a
 	opVSumSq                 // the sum of the squares of the lanes of a
 	opVSumXLnX               // the sum of a ln a over the lanes of a
+	opExpm1                  // exp(a) - 1, accurate for small a
+	opLog1p                  // ln(1 + a), accurate for small a
 )
 
-var opNames = [...]string{"const", "var", "add", "sub", "mul", "div", "neg", "sq", "powk", "powb", "pow", "exp", "ln", "sqrt", "abs", "min", "max", "lt", "le", "gt", "ge", "select", "xlnx", "vconst", "vsum", "cumsum", "vsumsq", "vsumxlnx"}
+var opNames = [...]string{"const", "var", "add", "sub", "mul", "div", "neg", "sq", "powk", "powb", "pow", "exp", "ln", "sqrt", "abs", "min", "max", "lt", "le", "gt", "ge", "select", "xlnx", "vconst", "vsum", "cumsum", "vsumsq", "vsumxlnx", "expm1", "log1p"}
 
 func (o opcode) String() string { return opNames[o] }
 
 // unary reports operations that read only operand a.
 func (o opcode) unary() bool {
 	switch o {
-	case opNeg, opSq, opPowK, opPowB, opExp, opLn, opSqrt, opAbs, opXLnX, opVSum, opCumsum, opVSumSq, opVSumXLnX:
+	case opNeg, opSq, opPowK, opPowB, opExp, opLn, opSqrt, opAbs, opXLnX, opVSum, opCumsum, opVSumSq, opVSumXLnX, opExpm1, opLog1p:
 		return true
 	}
 	return false

@@ -193,6 +193,10 @@ func (e *refEnv) call(c *Call) (float64, bool) {
 		return one(func(x float64) float64 { return math.Log(x) / math.Ln10 })
 	case "exp":
 		return one(math.Exp)
+	case "expm1":
+		return one(math.Expm1)
+	case "log1p":
+		return one(math.Log1p)
 	case "sqrt":
 		return one(math.Sqrt)
 	case "abs":
@@ -275,7 +279,7 @@ func randomFormula(rng *rand.Rand, depth int, inSum, inCsum bool, scope Scope) s
 	case 4:
 		return "(" + sub() + ")^" + []string{"2", "0.5", "3", "p1"}[rng.IntN(4)]
 	case 5:
-		return []string{"ln", "exp", "sqrt", "abs", "log2"}[rng.IntN(5)] + "(" + sub() + ")"
+		return []string{"ln", "exp", "sqrt", "abs", "log2", "expm1", "log1p"}[rng.IntN(7)] + "(" + sub() + ")"
 	case 6:
 		return "-" + sub()
 	case 7:
