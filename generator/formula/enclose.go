@@ -13,9 +13,10 @@ import (
 type Enclosure struct {
 	// Value encloses the program's value on the whole box.
 	Value interval.Interval
-	// Grad (order >= 1) encloses the gradient, one interval a variable.
+	// Grad (order >= 1) encloses the gradient, one interval a variable
+	// (a direction, for a simplex encloser).
 	Grad []interval.Interval
-	// Hess (order 2) encloses the Hessian, row-major NumVars × NumVars.
+	// Hess (order 2) encloses the Hessian, row-major, square.
 	Hess []interval.Interval
 	// Undefined: some operation may leave its domain on the box (ln or
 	// sqrt of a negative, 0/0, a negative base to a fractional power);
@@ -36,9 +37,13 @@ type Enclosure struct {
 type Encloser struct {
 	prog *Program
 	nv   int
-	val  []interval.Interval
-	grad []interval.Interval
-	hess []interval.Interval
+	// nd is the number of directions derivatives are taken in: nv, or
+	// n-1 on the simplex (NewSimplexEncloser).
+	nd      int
+	simplex bool
+	val     []interval.Interval
+	grad    []interval.Interval
+	hess    []interval.Interval
 	// owner is the instruction that writes each cell (-1 for variables
 	// and constants).
 	owner []int32
@@ -56,7 +61,7 @@ type Encloser struct {
 // NewEncloser returns an Encloser for p.
 func (p *Program) NewEncloser() *Encloser {
 	nv := len(p.varNames)
-	e := &Encloser{prog: p, nv: nv, val: make([]interval.Interval, p.cells), owner: make([]int32, p.cells)}
+	e := &Encloser{prog: p, nv: nv, nd: nv, val: make([]interval.Interval, p.cells), owner: make([]int32, p.cells)}
 	for i := range e.owner {
 		e.owner[i] = -1
 	}
@@ -72,6 +77,22 @@ func (p *Program) NewEncloser() *Encloser {
 	return e
 }
 
+// NewSimplexEncloser returns an Encloser whose derivatives are taken
+// along the simplex: in p1..p(n-1), with pn = 1 - p1 - ... - p(n-1), so
+// Grad has n-1 entries and Hess is (n-1)×(n-1) — the gradient and
+// Hessian of H restricted to the simplex in the basis e_a - e_n. Taking
+// them by the chain rule, rather than projecting the full Hessian
+// afterwards, keeps the enclosures narrower. The program must read
+// exactly the outcome variables p1..pn (n >= 2).
+func (p *Program) NewSimplexEncloser() *Encloser {
+	e := p.NewEncloser()
+	if e.nv < 2 {
+		panic("formula: a simplex encloser needs at least two outcome variables")
+	}
+	e.nd, e.simplex = e.nv-1, true
+	return e
+}
+
 // Program returns the program the encloser runs.
 func (e *Encloser) Program() *Program { return e.prog }
 
@@ -79,11 +100,17 @@ func (e *Encloser) alloc() {
 	if e.grad != nil {
 		return
 	}
-	nv, ns := e.nv, len(e.val)
-	e.grad = make([]interval.Interval, ns*nv)
-	e.hess = make([]interval.Interval, ns*nv*nv)
-	for k := 0; k < nv; k++ {
-		e.grad[k*nv+k] = interval.Point(1)
+	nd, ns := e.nd, len(e.val)
+	e.grad = make([]interval.Interval, ns*nd)
+	e.hess = make([]interval.Interval, ns*nd*nd)
+	for k := 0; k < nd; k++ {
+		e.grad[k*nd+k] = interval.Point(1)
+	}
+	if e.simplex {
+		last := e.nv - 1
+		for k := 0; k < nd; k++ {
+			e.grad[last*nd+k] = interval.Point(-1)
+		}
 	}
 }
 
@@ -111,13 +138,13 @@ func (e *Encloser) Enclose(dst *Enclosure, box []interval.Interval, order int) {
 	// Variables' and constants' cells carry their fixed derivatives
 	// (unit vectors, zeros), so the output cell is read the same way
 	// whatever wrote it.
-	nv := e.nv
+	nd := e.nd
 	dst.Grad, dst.Hess = dst.Grad[:0], dst.Hess[:0]
 	if order >= 1 {
-		dst.Grad = append(dst.Grad, e.grad[out*nv:(out+1)*nv]...)
+		dst.Grad = append(dst.Grad, e.grad[out*nd:(out+1)*nd]...)
 	}
 	if order >= 2 {
-		dst.Hess = append(dst.Hess, e.hess[out*nv*nv:(out+1)*nv*nv]...)
+		dst.Hess = append(dst.Hess, e.hess[out*nd*nd:(out+1)*nd*nd]...)
 	}
 }
 

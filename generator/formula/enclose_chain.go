@@ -8,12 +8,12 @@ import iv "scorewright/internal/interval"
 // structural zero stays [0, 0] and never meets an unbounded factor.
 
 func (e *Encloser) cellGrad(c int32) []iv.Interval {
-	nv := int32(e.nv)
-	return e.grad[c*nv : (c+1)*nv]
+	nd := int32(e.nd)
+	return e.grad[c*nd : (c+1)*nd]
 }
 
 func (e *Encloser) cellHess(c int32) []iv.Interval {
-	nn := int32(e.nv * e.nv)
+	nn := int32(e.nd * e.nd)
 	return e.hess[c*nn : (c+1)*nn]
 }
 

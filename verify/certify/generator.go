@@ -26,7 +26,9 @@ func Rule(ctx context.Context, r *bregman.Rule, s Settings) (*Result, error) {
 type genRun struct {
 	n       int
 	enc     *formula.Encloser
+	senc    *formula.Encloser
 	en      formula.Enclosure
+	full    formula.Enclosure
 	pt      formula.Enclosure
 	pbox    []iv.Interval
 	res     *Result
@@ -47,7 +49,7 @@ func Generator(ctx context.Context, prog *formula.Program, n int, s Settings) (*
 	ctx, cancel := s.deadline(ctx)
 	defer cancel()
 	start := time.Now()
-	g := &genRun{n: n, enc: prog.NewEncloser(), pbox: make([]iv.Interval, n), minW: s.minWidth(),
+	g := &genRun{n: n, enc: prog.NewEncloser(), senc: prog.NewSimplexEncloser(), pbox: make([]iv.Interval, n), minW: s.minWidth(),
 		res: &Result{Kind: Certified, Outcomes: n}}
 	tk := &ticker{fn: s.Progress, start: start}
 	whole := box{make([]float64, n-1), make([]float64, n-1)}
@@ -156,10 +158,17 @@ func (g *genRun) pBox(b box) []iv.Interval {
 	return g.pbox
 }
 
-// decide proves what it can on box b.
+// decide proves what it can on box b. It first takes the Hessian along
+// the simplex by the chain rule (basis e_a - e_n, narrow enclosures);
+// where that does not decide — next to a face where H's curvature is
+// infinite, as the entropy's is, or tends to 0 — it falls back on the
+// full Hessian,
+// bounded by Gershgorin directly (negative definite on all directions is
+// more than enough) and projected on the basis e_a - e_j that eliminates
+// the coordinate farthest from 0.
 func (g *genRun) decide(b box) decision {
 	pb := g.pBox(b)
-	g.enc.Enclose(&g.en, pb, 2)
+	g.senc.Enclose(&g.en, pb, 2)
 	en := &g.en
 	if en.Undefined {
 		return unknown
@@ -170,19 +179,22 @@ func (g *genRun) decide(b box) decision {
 		}
 		return unknown
 	}
-	n := g.n
-	full := gershgorin(en.Hess, n)
-	// Eliminate the coordinate with the largest lower bound: it stays
-	// away from 0 on the box, so its terms stay bounded.
-	j := 0
-	for k := range pb {
-		if pb[k].Lo > pb[j].Lo {
-			j = k
+	d := g.n - 1
+	m, j := en.Hess, d
+	hi, v := curvatureSign(m, d)
+	if hi > 0 && touchesFace(pb) {
+		g.enc.Enclose(&g.full, pb, 2)
+		full := gershgorin(g.full.Hess, g.n)
+		j = 0
+		for k := range pb {
+			if pb[k].Lo > pb[j].Lo {
+				j = k
+			}
 		}
+		m = project(g.full.Hess, g.n, j)
+		hi, v = curvatureSign(m, d)
+		hi = math.Min(hi, full)
 	}
-	m := project(en.Hess, n, j)
-	hi, v := curvatureSign(m, n-1)
-	hi = math.Min(hi, full)
 	switch {
 	case hi < 0:
 		return strictlyConcave
@@ -194,4 +206,14 @@ func (g *genRun) decide(b box) decision {
 		return improper
 	}
 	return unknown
+}
+
+// touchesFace reports whether some probability reaches 0 on the box.
+func touchesFace(pb []iv.Interval) bool {
+	for _, v := range pb {
+		if v.Lo <= 0 {
+			return true
+		}
+	}
+	return false
 }
