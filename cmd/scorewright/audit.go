@@ -9,6 +9,7 @@ import (
 	"scorewright/internal/num"
 	"scorewright/presets"
 	"scorewright/verify"
+	"scorewright/verify/certify"
 )
 
 type gapJSON struct {
@@ -59,11 +60,15 @@ func runAudit(e *env, args []string) error {
 	params := paramFlag{}
 	fs.Var(params, "param", "override a formula parameter, name=value (repeatable)")
 	vf := addVerifyFlags(fs)
+	cf := addCertifyFlags(fs)
 	interval := addPointAuditFlag(fs)
-	if err := parseFlags(e, fs, "(--outcomes N|label1,label2,... | --interval LO,HI) --payout EXPR [--ordered] [--weights w1,...] [--param name=value] "+verifyUsage, args, false); err != nil {
+	if err := parseFlags(e, fs, "(--outcomes N|label1,label2,... | --interval LO,HI) --payout EXPR [--ordered] [--weights w1,...] [--param name=value] "+verifyUsage+" "+certifyUsage, args, false); err != nil {
 		return err
 	}
 	if *interval != "" {
+		if cf.on {
+			return usagef("--certify covers payouts over outcomes; point payouts on an interval are audited on the grid only")
+		}
 		return runAuditPoint(e, *src, *interval, params, vf)
 	}
 	if *outcomes == "" {
@@ -113,6 +118,13 @@ func runAudit(e *env, args []string) error {
 		}
 		return usagef("audit: %v", err)
 	}
+	var cert *certificateJSON
+	var proof *certify.Result
+	if cf.on {
+		if cert, proof, err = payoutCertificate(ctx, e, pay, cf); err != nil {
+			return err
+		}
+	}
 	if vf.asJSON {
 		out := auditJSON{reportJSON: toReportJSON(&rep.Report), Payout: *src, Outcomes: labels, Direction: rep.Direction, Caution: auditCaution, Undefined: rep.Undefined,
 			Gap: gapJSON{Max: num.Float(rep.Gap.Max), Belief: vector(rep.Gap.Belief), BestReport: vector(rep.Gap.BestReport), Sharpened: rep.Gap.Sharpened}}
@@ -123,13 +135,17 @@ func runAudit(e *env, args []string) error {
 		for _, f := range rep.Fits {
 			out.Fits = append(out.Fits, toIdentJSON(f))
 		}
+		out.Certificate = cert
 		if err := writeJSON(e.stdout, out); err != nil {
 			return err
 		}
 	} else {
 		printAudit(e, *src, labels, rep)
+		if cert != nil {
+			printCertificate(e.stdout, cert)
+		}
 	}
-	if rep.Verdict == verify.Improper || rep.Failed() {
+	if rep.Verdict == verify.Improper || rep.Failed() || proof != nil && proof.Verdict == verify.Improper {
 		return errFailed
 	}
 	return nil

@@ -7,13 +7,15 @@ import (
 
 	"scorewright/generator/design"
 	"scorewright/verify"
+	"scorewright/verify/certify"
 )
 
 func runCheck(e *env, args []string) error {
 	fs := newFlags("check")
 	rf := addRuleFlags(fs)
 	vf := addVerifyFlags(fs)
-	if err := parseFlags(e, fs, ruleUsage+" "+verifyUsage, args, false); err != nil {
+	cf := addCertifyFlags(fs)
+	if err := parseFlags(e, fs, ruleUsage+" "+verifyUsage+" "+certifyUsage, args, false); err != nil {
 		return err
 	}
 	d, err := rf.design()
@@ -21,6 +23,9 @@ func runCheck(e *env, args []string) error {
 		return err
 	}
 	if d.Mode == design.ModePoint {
+		if cf.on {
+			return usagef("--certify covers rules over outcomes; point forecasts on an interval are checked on the grid only")
+		}
 		return runCheckPoint(e, d, vf)
 	}
 	rule, err := categoricalRule(d)
@@ -40,15 +45,27 @@ func runCheck(e *env, args []string) error {
 		}
 		return usagef("check: %v", err)
 	}
+	var cert *certificateJSON
+	var proof *certify.Result
+	if cf.on {
+		if cert, proof, err = ruleCertificate(ctx, e, rule, cf); err != nil {
+			return err
+		}
+	}
 	if vf.asJSON {
-		if err := writeJSON(e.stdout, toReportJSON(rep)); err != nil {
+		out := toReportJSON(rep)
+		out.Certificate = cert
+		if err := writeJSON(e.stdout, out); err != nil {
 			return err
 		}
 	} else {
 		fmt.Fprintf(e.stdout, "rule:    %s\n", describeRule(d))
 		printReport(e.stdout, rep)
+		if cert != nil {
+			printCertificate(e.stdout, cert)
+		}
 	}
-	if rep.Verdict == verify.Improper || rep.Failed() {
+	if rep.Verdict == verify.Improper || rep.Failed() || proof != nil && proof.Verdict == verify.Improper {
 		return errFailed
 	}
 	return nil

@@ -11,6 +11,7 @@ import (
 
 	"scorewright/internal/num"
 	"scorewright/verify"
+	"scorewright/verify/certify"
 )
 
 // verifyFlags are the grid options check and audit share.
@@ -118,13 +119,17 @@ type checkJSON struct {
 
 type reportJSON struct {
 	Verdict verify.Verdict `json:"verdict"`
-	Grid    gridJSON       `json:"grid"`
-	Checks  []checkJSON    `json:"checks"`
-	Notes   []string       `json:"notes,omitempty"`
+	// Kind is always "grid evidence": the grid samples, it never proves;
+	// a proof is the certificate's, under "certificate".
+	Kind        certify.Kind     `json:"kind"`
+	Certificate *certificateJSON `json:"certificate,omitempty"`
+	Grid        gridJSON         `json:"grid"`
+	Checks      []checkJSON      `json:"checks"`
+	Notes       []string         `json:"notes,omitempty"`
 }
 
 func toReportJSON(r *verify.Report) reportJSON {
-	out := reportJSON{Verdict: r.Verdict, Notes: r.Notes, Grid: gridJSON{
+	out := reportJSON{Verdict: r.Verdict, Kind: certify.GridEvidence, Notes: r.Notes, Grid: gridJSON{
 		Resolution: r.Grid.Resolution, Points: r.Grid.Points, Tolerance: num.Float(r.Grid.Tolerance), Scale: num.Float(r.Grid.Scale), Slack: num.Float(r.Grid.Slack()), Sampled: r.Grid.Sampled,
 		Interior: r.Grid.Interior, Boundary: r.Grid.Boundary, Pairs: r.Grid.Pairs, Statement: r.Grid.String(),
 	}}
@@ -155,7 +160,7 @@ func toPartJSON(p verify.Part) partJSON {
 // printReport writes the human form of a verification: verdict, grid
 // statement, one block per check, notes.
 func printReport(w io.Writer, r *verify.Report) {
-	fmt.Fprintf(w, "verdict: %s\n", r.Verdict)
+	fmt.Fprintf(w, "verdict: %s (%s)\n", r.Verdict, certify.GridEvidence)
 	fmt.Fprintf(w, "grid:    %s\n\n", r.Grid)
 	for _, c := range r.Checks {
 		status := "passed"

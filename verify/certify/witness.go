@@ -179,7 +179,7 @@ func boxString(b box) string {
 		if i > 0 {
 			s += " × "
 		}
-		s += fmt.Sprintf("p%d ∈ [%.6g, %.6g]", i+1, b.lo[i], b.hi[i])
+		s += fmt.Sprintf("p%d ∈ [%.10g, %.10g]", i+1, b.lo[i], b.hi[i])
 	}
 	return s
 }
