@@ -11,7 +11,7 @@ sw="$work/scorewright"
 export SOURCE_DATE_EPOCH=1767225600
 rule=(--outcomes frost,clear --preset quadratic --floor 0 --cap 100 --step 0.1 --unit 1)
 
-for f in csv md json tex svg png pdf; do
+for f in csv md json tex svg png pdf xlsx html; do
   "$sw" table "${rule[@]}" --out "$work/annex.$f" >/dev/null
   test -s "$work/annex.$f"
 done

@@ -3,32 +3,12 @@ package main
 import (
 	"fmt"
 	"io"
+	"scorewright"
 
 	"scorewright/contract/lottery"
 	"scorewright/contract/table"
-	"scorewright/generator/bregman"
-	"scorewright/generator/design"
-	"scorewright/generator/emphasis"
-	"scorewright/generator/formula"
 	"scorewright/internal/num"
 )
-
-// emphasisRule integrates an emphasis-mode design's weight into a binary
-// rule. A weight that is negative or not finite somewhere on the check
-// grid is refused, naming where; an unbounded rule is built, and its
-// warnings are available through ruleWarnings.
-func emphasisRule(d *design.Design) (*bregman.Rule, error) {
-	g, err := emphasis.New(d.Formula, emphasis.Options{Params: d.Params})
-	if _, ok := err.(*formula.Error); ok {
-		return nil, formulaError("emphasis", err)
-	} else if err != nil {
-		return nil, usagef("%v", err)
-	}
-	if err := g.Diagnostics().Problem(); err != nil {
-		return nil, usagef("%v", err)
-	}
-	return &bregman.Rule{Gen: g, Labels: d.Labels}, nil
-}
 
 // lotteryJSON is the lottery part of a table summary.
 type lotteryJSON struct {
@@ -37,9 +17,10 @@ type lotteryJSON struct {
 	Cap   num.Float `json:"cap"`
 }
 
-// lotteryTable turns a money table into chances of winning a prize of
-// hi - lo; lo and hi must hold every payment in the table.
-func lotteryTable(tb *table.Table, lo, hi float64) (*lotteryJSON, error) {
+// lotteryTable turns the money table tb of t into chances of winning a
+// prize of hi - lo, lo and hi the bounds of every payment in t.
+func lotteryTable(tb *table.Table, t *scorewright.Table) (*lotteryJSON, error) {
+	lo, hi := t.Bounds()
 	if err := lottery.Convert(tb, lo, hi); err != nil {
 		return nil, usagef("--lottery: %v", err)
 	}
@@ -52,13 +33,4 @@ func printLottery(w io.Writer, l *lotteryJSON) {
 		fmt.Fprintf(w, "lottery\teach cell is the chance (pay - %s)/%s of winning a prize of %s, besides %s paid for certain; margins below are in money\n",
 			table.FormatNumber(float64(l.Floor)), table.FormatNumber(float64(l.Prize)), table.FormatNumber(float64(l.Prize)), table.FormatNumber(float64(l.Floor)))
 	}
-}
-
-// ruleWarnings are remarks about a rule a user should see beside its
-// numbers, such as an emphasis weight that makes the rule unbounded.
-func ruleWarnings(r *bregman.Rule) []string {
-	if g, ok := r.Gen.(*emphasis.Generator); ok {
-		return g.Diagnostics().Warnings()
-	}
-	return nil
 }

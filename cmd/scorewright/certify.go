@@ -2,13 +2,13 @@ package main
 
 import (
 	"context"
+	"errors"
 	"flag"
 	"fmt"
 	"io"
 	"time"
 
-	"scorewright/generator/bregman"
-	"scorewright/generator/payout"
+	"scorewright"
 	"scorewright/internal/num"
 	"scorewright/verify"
 	"scorewright/verify/certify"
@@ -93,37 +93,43 @@ func toCertificateJSON(r *certify.Result, payoutMode bool) *certificateJSON {
 	return out
 }
 
-// ruleCertificate runs the certificate of a generator rule; a rule the
-// certificate cannot read (an emphasis weight integrated twice) gives a
-// certificate that says so, not an error.
-func ruleCertificate(ctx context.Context, e *env, rule *bregman.Rule, c *certifyFlags) (*certificateJSON, *certify.Result, error) {
+// certificate runs the certificate when c asks for one: nil when not;
+// a design no certificate method applies to (an emphasis weight) gives a
+// certificate that says so, not an error. improper is set when the
+// certificate proved the rule improper, which makes the exit status 1.
+func certificate(ctx context.Context, e *env, r *scorewright.Rule, c *certifyFlags) (cert *certificateJSON, improper bool, err error) {
+	if c == nil || !c.on {
+		return nil, false, nil
+	}
 	s, err := c.settings(e)
 	if err != nil {
-		return nil, nil, err
+		return nil, false, err
 	}
-	res, err := certify.Rule(ctx, rule, s)
-	if err != nil {
+	res, err := r.Certify(ctx, s)
+	switch {
+	case errors.Is(err, scorewright.ErrNoCertificate):
 		return &certificateJSON{Kind: certify.Certified, Verdict: certify.Undecided, Unavailable: err.Error(),
-			Statement: "no certificate: " + err.Error()}, nil, nil
+			Statement: "no certificate: " + err.Error()}, false, nil
+	case err != nil:
+		return nil, false, usagef("certify: %v", err)
 	}
-	return toCertificateJSON(res, false), res, nil
+	return toCertificateJSON(res, r.IsPayout()), res.Verdict == verify.Improper, nil
 }
 
-// payoutCertificate runs the certificate of a payout formula.
-func payoutCertificate(ctx context.Context, e *env, pay *payout.Payout, c *certifyFlags) (*certificateJSON, *certify.Result, error) {
-	s, err := c.settings(e)
-	if err != nil {
-		return nil, nil, err
+// refuseCertifyOnInterval is the usage error for --certify on a point
+// forecast, which the certificate does not cover.
+func refuseCertifyOnInterval(r *scorewright.Rule, c *certifyFlags) error {
+	if c != nil && c.on && r.OnInterval() {
+		return usagef("--certify covers rules and payouts over outcomes; point forecasts on an interval are checked on the grid only")
 	}
-	res, err := certify.Payout(ctx, pay, s)
-	if err != nil {
-		return nil, nil, usagef("certify: %v", err)
-	}
-	return toCertificateJSON(res, true), res, nil
+	return nil
 }
 
 // printCertificate writes the certificate's lines under the grid report.
 func printCertificate(w io.Writer, c *certificateJSON) {
+	if c == nil {
+		return
+	}
 	fmt.Fprintf(w, "\ncertificate (%s): %s\n", c.Kind, c.Verdict)
 	fmt.Fprintf(w, "               %s\n", c.Statement)
 }

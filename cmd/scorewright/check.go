@@ -1,35 +1,37 @@
 package main
 
 import (
+	"errors"
 	"fmt"
 	"sort"
 	"strings"
 
+	"scorewright"
 	"scorewright/generator/design"
-	"scorewright/verify"
-	"scorewright/verify/certify"
 )
 
 func runCheck(e *env, args []string) error {
 	fs := newFlags("check")
 	rf := addRuleFlags(fs)
 	vf := addVerifyFlags(fs)
-	cf := addCertifyFlags(fs)
-	if err := parseFlags(e, fs, ruleUsage+" "+verifyUsage+" "+certifyUsage, args, false); err != nil {
+	if err := parseFlags(e, fs, ruleUsage+" "+verifyUsage, args, false); err != nil {
 		return err
 	}
 	d, err := rf.design()
 	if err != nil {
 		return err
 	}
-	if d.Mode == design.ModePoint {
-		if cf.on {
-			return usagef("--certify covers rules over outcomes; point forecasts on an interval are checked on the grid only")
-		}
-		return runCheckPoint(e, d, vf)
-	}
-	rule, err := categoricalRule(d)
+	return checkDesign(e, d, vf)
+}
+
+// checkDesign checks a design and prints the report; errFailed after
+// printing when the rule is improper or a check failed.
+func checkDesign(e *env, d *design.Design, vf *verifyFlags) error {
+	r, err := openRule(d)
 	if err != nil {
+		return err
+	}
+	if err := refuseCertifyOnInterval(r, vf.cert); err != nil {
 		return err
 	}
 	s, err := vf.settings(e)
@@ -38,19 +40,22 @@ func runCheck(e *env, args []string) error {
 	}
 	ctx, stop := interruptible()
 	defer stop()
-	rep, err := verify.CheckRule(ctx, rule, s)
-	if err != nil {
-		if ctx.Err() != nil {
-			return usagef("check interrupted")
-		}
+	found, err := r.Check(ctx, s)
+	var needs *scorewright.NeedsOutcomesError
+	switch {
+	case errors.As(err, &needs):
+		return usagef("%v", err)
+	case err != nil && ctx.Err() != nil:
+		return usagef("check interrupted")
+	case err != nil:
 		return usagef("check: %v", err)
+	case found.Point != nil:
+		return printPointReport(e, found.Point, vf.asJSON)
 	}
-	var cert *certificateJSON
-	var proof *certify.Result
-	if cf.on {
-		if cert, proof, err = ruleCertificate(ctx, e, rule, cf); err != nil {
-			return err
-		}
+	rep := found.Rule
+	cert, proved, err := certificate(ctx, e, r, vf.cert)
+	if err != nil {
+		return err
 	}
 	if vf.asJSON {
 		out := toReportJSON(rep)
@@ -59,26 +64,20 @@ func runCheck(e *env, args []string) error {
 			return err
 		}
 	} else {
-		fmt.Fprintf(e.stdout, "rule:    %s\n", describeRule(d))
+		fmt.Fprintf(e.stdout, "rule:    %s\n", describeRule(r.Kind(), d))
 		printReport(e.stdout, rep)
-		if cert != nil {
-			printCertificate(e.stdout, cert)
-		}
+		printCertificate(e.stdout, cert)
 	}
-	if rep.Verdict == verify.Improper || rep.Failed() || proof != nil && proof.Verdict == verify.Improper {
+	if found.Failed() || proved {
 		return errFailed
 	}
 	return nil
 }
 
-// describeRule is the one-line statement of what was checked: mode,
-// formula (its lines joined), overridden parameters, outcomes.
-func describeRule(d *design.Design) string {
+// describeRule is the one-line statement of what was checked: the kind of
+// formula, the formula (its lines joined), overridden parameters, outcomes.
+func describeRule(mode string, d *design.Design) string {
 	var b strings.Builder
-	mode := string(d.Mode)
-	if mode == "" {
-		mode = string(design.ModeGenerator)
-	}
 	if d.Preset != "" {
 		mode += " (preset " + d.Preset + ")"
 	}

@@ -232,8 +232,12 @@ func (b *budgetFlags) apply(fs *flag.FlagSet, d *design.Design) error {
 		bd.Cap = b.cap
 		if !set["mean-pay"] {
 			// --cap on the command line overrides a design file's
-			// mean_pay rather than being silently outranked by it.
+			// mean_pay rather than being silently outranked by it, and
+			// its reference belief goes with it.
 			bd.MeanPay = nil
+			if !set["reference"] {
+				bd.Reference = nil
+			}
 		}
 	}
 	if set["mean-pay"] {
@@ -249,6 +253,11 @@ func (b *budgetFlags) apply(fs *flag.FlagSet, d *design.Design) error {
 			return usagef("--reference: %v", err)
 		}
 		bd.Reference = q
+		if bd.MeanPay == nil {
+			// Without a mean-pay target the fit never looks at it, and a
+			// silently ignored base rate is a wrong table nobody notices.
+			return usagef("--reference is the belief a --mean-pay target is set at; give --mean-pay M with it, or leave it out")
+		}
 	}
 	if set["step"] {
 		bd.Step = b.step

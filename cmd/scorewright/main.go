@@ -10,6 +10,10 @@ import (
 	"os"
 	"sort"
 	"strings"
+
+	"github.com/mattn/go-isatty"
+
+	"scorewright/internal/textsafe"
 )
 
 // version is the tool version written into exports; set with -ldflags at
@@ -37,13 +41,30 @@ func commands() map[string]command {
 		"audit":    {"audit a payout formula for honesty", runAudit},
 		"table":    {"fit a rule to a budget and export the payment table", runTable},
 		"distort":  {"the report a risk-averse forecaster gives", runDistort},
+		"research": {"what research is worth under each rule, and the best bounded rule for it", runResearch},
 		"backtest": {"what a rule would have paid on a forecast history", runBacktest},
 		"open":     {"open a saved design in the workbench", runOpen},
 	}
 }
 
 func main() {
-	os.Exit(run(os.Args[1:], &env{stdin: os.Stdin, stdout: os.Stdout, stderr: os.Stderr}))
+	e := &env{stdin: os.Stdin, stdout: os.Stdout, stderr: os.Stderr}
+	if len(os.Args) > 1 && os.Args[1] != "open" {
+		// Text from files (titles, names in a history) reaches the
+		// terminal; no escape sequence in it may move the cursor or
+		// recolour a line. The workbench draws with escapes of its own.
+		e.stdout, e.stderr = terminalSafe(os.Stdout), terminalSafe(os.Stderr)
+	}
+	os.Exit(run(os.Args[1:], e))
+}
+
+// terminalSafe filters f through textsafe when f is a terminal; files and
+// pipes get the bytes unchanged.
+func terminalSafe(f *os.File) io.Writer {
+	if isatty.IsTerminal(f.Fd()) {
+		return textsafe.NewWriter(f)
+	}
+	return f
 }
 
 // Exit statuses, as the command-line contract fixes them.
@@ -101,7 +122,7 @@ func exitCode(e *env, name string, err error) int {
 		return exitFailed
 	}
 	// Every other error is one line naming the problem.
-	msg := strings.ReplaceAll(err.Error(), "\n", "; ")
+	msg := textsafe.Strip(strings.ReplaceAll(err.Error(), "\n", "; "), false)
 	fmt.Fprintf(e.stderr, "%s: %s\n", prefix, msg)
 	return exitUsage
 }

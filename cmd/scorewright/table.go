@@ -10,11 +10,13 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"scorewright"
 	"strconv"
 	"strings"
 	"text/tabwriter"
 	"time"
 
+	"scorewright/contract/annex"
 	"scorewright/contract/budget"
 	"scorewright/contract/table"
 	"scorewright/generator/design"
@@ -22,7 +24,7 @@ import (
 	"scorewright/internal/safefile"
 )
 
-const tableUsage = "RULE BUDGET [--menu FILE] [--clamp P] [--format csv|md|json|tex|svg|png|pdf] [--out FILE] [--force] [--lottery] [--json]\n\nRULE: " + ruleUsage + "\nBUDGET: " + budgetUsage
+const tableUsage = "RULE BUDGET [--menu FILE] [--clamp P] [--format csv|md|json|tex|svg|png|pdf|xlsx|html] [--out FILE] [--force] [--lottery] [--json] [TERMS]\n\nRULE: " + ruleUsage + "\nBUDGET: " + budgetUsage + "\nTERMS (for the pdf, xlsx and html annexes): " + contractUsage
 
 // tableFlags are the options of the table command beyond RULE and BUDGET.
 type tableFlags struct {
@@ -34,7 +36,7 @@ type tableFlags struct {
 
 func addTableFlags(fs *flag.FlagSet) *tableFlags {
 	t := &tableFlags{}
-	fs.StringVar(&t.format, "format", "", "csv, md, json, tex, svg, png or pdf (default: from --out's extension, else md)")
+	fs.StringVar(&t.format, "format", "", "csv, md, json, tex, svg or png (the table), pdf, xlsx or html (the annex to sign) (default: from --out's extension, else md)")
 	fs.StringVar(&t.out, "out", "", "write the table to FILE, atomically (figures need it)")
 	fs.BoolVar(&t.force, "force", false, "replace an existing --out file, and export a table that failed the re-check (it then carries a warning)")
 	fs.BoolVar(&t.json, "json", false, "print the fit and re-check summary as JSON (the table itself goes to --out)")
@@ -54,21 +56,33 @@ func (t *tableFlags) resolveFormat() (string, error) {
 		case "markdown":
 			f = "md"
 		case "txt", "":
-			return "", usagef("cannot tell the format from %q; give --format %s", t.out, strings.Join(table.Formats(), "|"))
+			return "", usagef("cannot tell the format from %q; give --format %s", t.out, strings.Join(exportFormats(), "|"))
 		}
 	}
 	if f == "" {
 		f = "md"
 	}
-	for _, known := range table.Formats() {
+	for _, known := range exportFormats() {
 		if f == known {
-			if table.IsFigure(f) && t.out == "" {
-				return "", usagef("a %s figure needs --out FILE", f)
+			if (table.IsFigure(f) || annex.IsFormat(f)) && t.out == "" {
+				return "", usagef("a %s file needs --out FILE", f)
 			}
 			return f, nil
 		}
 	}
-	return "", usagef("--format %q is not one of %s", f, strings.Join(table.Formats(), ", "))
+	return "", usagef("--format %q is not one of %s", f, strings.Join(exportFormats(), ", "))
+}
+
+// exportFormats are the table's own formats (the PDF figure aside: pdf is
+// the annex) and the annexes.
+func exportFormats() []string {
+	var f []string
+	for _, t := range table.Formats() {
+		if t != "pdf" {
+			f = append(f, t)
+		}
+	}
+	return append(f, annex.Formats()...)
 }
 
 func runTable(e *env, args []string) error {
@@ -76,6 +90,7 @@ func runTable(e *env, args []string) error {
 	rf := addRuleFlags(fs)
 	bf := addBudgetFlags(fs)
 	tf := addTableFlags(fs)
+	cf := addContractFlags(fs)
 	if err := parseFlags(e, fs, tableUsage, args, false); err != nil {
 		return err
 	}
@@ -90,40 +105,49 @@ func runTable(e *env, args []string) error {
 	if err := bf.apply(fs, d); err != nil {
 		return err
 	}
-	if fs.Lookup("reference").Value.String() != "" && d.Budget.MeanPay == nil {
-		// Without a mean-pay target the fit never looks at it, and a
-		// silently ignored base rate is a wrong table nobody notices.
-		return usagef("--reference is the belief a --mean-pay target is set at; give --mean-pay M with it, or leave it out")
+	if err := cf.apply(fs, d); err != nil {
+		return err
 	}
-	if d.Mode == design.ModePoint {
-		return runTablePoint(e, d, format, tf)
-	}
-	rule, err := categoricalRule(d)
+	return tableOf(e, fs, d, format, tf)
+}
+
+// tableOf fits, re-checks and exports the table of a design; fs holds the
+// flags the report menu is read from.
+func tableOf(e *env, fs *flag.FlagSet, d *design.Design, format string, tf *tableFlags) error {
+	r, err := openRule(d)
 	if err != nil {
 		return err
 	}
-	menu, err := tableMenu(fs, tf, d)
-	if err != nil {
-		return err
+	if r.OnInterval() && (tf.menu != "" || tf.clamp != 0) {
+		return usagef("--menu and --clamp are for rules over outcomes; a point-forecast menu is --step S in the units of the interval")
 	}
-	fit, err := budget.FitRule(rule, menu, d.Budget)
-	if err != nil {
+	t, err := r.Table(context.Background(), func(int) (*budget.Menu, error) { return tableMenu(fs, tf, d) })
+	switch {
+	case errors.Is(err, scorewright.ErrMeanPayOnInterval):
+		return usagef("point-forecast tables are fitted to --floor and --cap; --mean-pay is for rules over outcomes")
+	case errors.Is(err, scorewright.ErrNoCap):
+		return usagef("give --floor F --cap C with C > F")
+	case err != nil:
 		return fitError(err)
 	}
-	rc, err := fit.Recheck(context.Background(), budget.RecheckSettings{})
+	tb := r.Export(t, version, exportDate())
+	if t.Point != nil {
+		return writePointTable(e, d, t, tb, format, tf)
+	}
+	fit, rc := t.Fit, t.Recheck
+	ax, err := annexInput(d, tb, r.Outcomes(), fit.A, fit.B, fit.Clamp)
 	if err != nil {
 		return err
 	}
-	tb := fit.Table(rc, budget.DesignInfo(d, version, exportDate()))
 	var lot *lotteryJSON
 	if tf.lottery {
-		if lot, err = lotteryTable(tb, math.Min(fit.Floor, fit.MinPay), math.Max(fit.Cap, fit.MaxPay)); err != nil {
+		if lot, err = lotteryTable(tb, t); err != nil {
 			return err
 		}
 	}
 	sum := newTableSummary(fit, rc, tb, format, tf.out)
 	sum.Lottery, sum.Caution = lot, tb.Meta.Cautions
-	return exportTable(e, tb, format, tf, rc.Passed, &sum.Output, sum, func() error {
+	return exportTable(e, ax, format, tf, rc.Passed, &sum.Output, sum, func() error {
 		return printTableSummary(e.stdout, fit, rc, sum)
 	})
 }
@@ -134,11 +158,11 @@ func runTable(e *env, args []string) error {
 // 1. With --out, or when refused, the summary goes to stdout: summary as
 // JSON with --json, else through printSummary. out records what was
 // written.
-func exportTable(e *env, tb *table.Table, format string, tf *tableFlags, passed bool, out *tableOutput, summary any, printSummary func() error) error {
+func exportTable(e *env, ax *annex.Input, format string, tf *tableFlags, passed bool, out *tableOutput, summary any, printSummary func() error) error {
 	refused := !passed && !tf.force
 	var buf bytes.Buffer
 	if !refused {
-		if err := tb.Write(&buf, format); err != nil {
+		if err := writeExport(&buf, ax, format); err != nil {
 			return err
 		}
 		if tf.out != "" {
@@ -174,6 +198,18 @@ func exportTable(e *env, tb *table.Table, format string, tf *tableFlags, passed 
 		return errFailed
 	}
 	return nil
+}
+
+// writeExport writes the table in one of its formats, or the annex.
+func writeExport(w io.Writer, ax *annex.Input, format string) error {
+	if !annex.IsFormat(format) {
+		return ax.Table.Write(w, format)
+	}
+	doc, err := annex.New(*ax)
+	if err != nil {
+		return err
+	}
+	return doc.Write(w, format)
 }
 
 // tableMenu builds the report menu from --menu or the budget's step.

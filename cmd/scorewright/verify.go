@@ -22,9 +22,11 @@ type verifyFlags struct {
 	workers    int
 	samples    int
 	asJSON     bool
+	// cert asks for a certificate besides the grid (nil: not offered).
+	cert *certifyFlags
 }
 
-const verifyUsage = "[--resolution K] [--tolerance T] [--limit L] [--workers W] [--samples S] [--json]"
+const verifyUsage = "[--resolution K] [--tolerance T] [--limit L] [--workers W] [--samples S] [--json] " + certifyUsage
 
 func addVerifyFlags(fs *flag.FlagSet) *verifyFlags {
 	v := &verifyFlags{}
@@ -34,6 +36,7 @@ func addVerifyFlags(fs *flag.FlagSet) *verifyFlags {
 	fs.IntVar(&v.workers, "workers", 0, "goroutines to use (0: all cores)")
 	fs.IntVar(&v.samples, "samples", 0, "random lattice points when the full grid is too large (0: default)")
 	fs.BoolVar(&v.asJSON, "json", false, "print JSON")
+	v.cert = addCertifyFlags(fs)
 	return v
 }
 

@@ -1,16 +1,17 @@
 package budget
 
 import (
+	"bufio"
 	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
 	"math"
-	"os"
 	"strconv"
 	"strings"
 
 	"scorewright/generator/formula"
+	"scorewright/internal/inputfile"
 	"scorewright/internal/num"
 )
 
@@ -185,12 +186,16 @@ func SimplexGrid(K, n int) [][]float64 {
 	return out
 }
 
+// MaxMenuBytes bounds a menu file: MaxMenu reports of twelve numbers with
+// many digits each fit several times over.
+const MaxMenuBytes = 8 << 20
+
 // FileMenu reads a menu from a CSV file: one report per line, n
 // probabilities separated by commas (for n = 2 a single number is the
 // event's probability). Blank lines and lines starting with '#' are
 // skipped. Errors name the file and line.
 func FileMenu(path string, n int) (*Menu, error) {
-	f, err := os.Open(path)
+	f, err := inputfile.Open(path)
 	if err != nil {
 		return nil, err
 	}
@@ -201,7 +206,12 @@ func FileMenu(path string, n int) (*Menu, error) {
 // ReadMenu reads a menu in FileMenu's format from r; name is used in
 // error messages.
 func ReadMenu(r io.Reader, name string, n int) (*Menu, error) {
-	cr := csv.NewReader(r)
+	br := bufio.NewReader(inputfile.Limit(r, name, MaxMenuBytes))
+	// A byte-order mark from a spreadsheet is skipped, as in histories.
+	if b, err := br.Peek(3); err == nil && string(b) == "\ufeff" {
+		br.Discard(3)
+	}
+	cr := csv.NewReader(br)
 	cr.Comment = '#'
 	cr.FieldsPerRecord = -1
 	cr.TrimLeadingSpace = true
@@ -214,8 +224,11 @@ func ReadMenu(r io.Reader, name string, n int) (*Menu, error) {
 		}
 		if err != nil {
 			var pe *csv.ParseError
-			if errors.As(err, &pe) {
+			if errors.As(err, &pe) && !errors.Is(err, inputfile.ErrTooLarge) {
 				return nil, fmt.Errorf("%s:%d: %v", name, pe.Line, pe.Err)
+			}
+			if errors.Is(err, inputfile.ErrTooLarge) {
+				return nil, err
 			}
 			return nil, fmt.Errorf("%s: %v", name, err)
 		}

@@ -157,10 +157,16 @@ func (m *Meta) Fields() []Field {
 }
 
 // formulaLine writes a formula of several lines (parameter lines, then
-// the expression) on one line, lines separated by "; ", comments kept.
+// the expression) on one line, lines separated by "; ". Comments are
+// dropped: a formula opening with "# power family" would otherwise make
+// the whole one-line form a comment. The formula language has no strings,
+// so '#' always starts a comment; the full text travels in the design.
 func formulaLine(src string) string {
 	var lines []string
 	for _, l := range strings.Split(src, "\n") {
+		if i := strings.IndexByte(l, '#'); i >= 0 {
+			l = l[:i]
+		}
 		if l = strings.TrimSpace(l); l != "" {
 			lines = append(lines, l)
 		}
@@ -211,8 +217,14 @@ func (t *Table) Value(v float64) string {
 }
 
 // Probability formats a report entry: the shortest form that reads back
-// as the same float64.
-func Probability(v float64) string { return strconv.FormatFloat(v+0, 'g', -1, 64) }
+// as the same float64, positional from 1e-4 up to 1e15 (so a point
+// forecast 1000000.1 is not written 1.0000001e+06).
+func Probability(v float64) string {
+	if a := math.Abs(v); a >= 1e-4 && a < 1e15 {
+		return strconv.FormatFloat(v+0, 'f', -1, 64)
+	}
+	return strconv.FormatFloat(v+0, 'g', -1, 64)
+}
 
 // ReportHeader is the heading of report column k: the probability of
 // outcome k, or the point forecast.

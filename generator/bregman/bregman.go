@@ -54,6 +54,7 @@ type Formula struct {
 	Source string
 	prog   *formula.Program
 	n      int
+	opt    Options
 }
 
 // NewFormula compiles src as a generator over opt.Outcomes outcomes.
@@ -65,7 +66,28 @@ func NewFormula(src string, opt Options) (*Formula, error) {
 	if err != nil {
 		return nil, err
 	}
-	return &Formula{Source: src, prog: prog, n: opt.Outcomes}, nil
+	return &Formula{Source: src, prog: prog, n: opt.Outcomes, opt: opt}, nil
+}
+
+// WithoutConstantTerms returns the generator less the number literals of
+// its outermost sum (formula.SplitConstant), and their sum c. It is the
+// same scoring rule, every effort smaller by c; the budget fit uses it so
+// that "1e12 + 1 - sum(p^2)" pays the cents "1 - sum(p^2)" pays, where the
+// literal would otherwise round away the last digits of every effort.
+func (f *Formula) WithoutConstantTerms() (*Formula, float64, error) {
+	file, err := formula.Parse(f.Source)
+	if err != nil {
+		return nil, 0, err
+	}
+	var c float64
+	file.Expr, c = formula.SplitConstant(file.Expr)
+	prog, err := formula.Compile(file, formula.Scope{
+		Outcomes: f.opt.Outcomes, Ordered: f.opt.Ordered, Weights: f.opt.Weights, Params: f.opt.Params,
+	})
+	if err != nil {
+		return nil, 0, err
+	}
+	return &Formula{Source: f.Source, prog: prog, n: f.n, opt: f.opt}, c, nil
 }
 
 // Outcomes is the number of outcomes.
@@ -105,6 +127,9 @@ type Scorer struct {
 	grad []float64
 	eff  []float64
 	hess []float64
+	// Scratch for the limit at boundary reports, made on first use.
+	limit []limitState
+	pt    []float64
 }
 
 // NewScorer returns a Scorer for r.
@@ -127,11 +152,17 @@ func (s *Scorer) Entropy(q []float64) float64 {
 
 // Efforts writes L(p, k) for every outcome k into dst and returns H(p).
 // An outcome the report rules out (p_k = 0) may cost +Inf; that is a value,
-// not an error.
+// not an error. At a report on the boundary (some p_j = 0) the efforts
+// are the limit from the interior (boundary.go), where the gradient of H
+// may be infinite or no supergradient.
 func (s *Scorer) Efforts(dst, p []float64) float64 {
 	s.check("report", p)
 	s.check("effort", dst)
 	h := s.ev.Gradient(s.grad, p)
+	if onBoundary(p) {
+		s.boundaryEfforts(dst, p, h)
+		return h
+	}
 	gp := Dot(s.grad, p)
 	for k := range dst {
 		dst[k] = h + s.grad[k] - gp

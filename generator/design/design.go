@@ -5,9 +5,14 @@
 package design
 
 import (
+	"errors"
 	"fmt"
+	"maps"
+	"slices"
 	"strconv"
 	"strings"
+	"unicode"
+	"unicode/utf8"
 
 	"scorewright/generator/bregman"
 	"scorewright/generator/formula"
@@ -26,7 +31,21 @@ const (
 	ModePoint Mode = "point"
 	// ModeEmphasis: the formula is a weight w(c) >= 0 on (0, 1) for n = 2.
 	ModeEmphasis Mode = "emphasis"
+	// ModePointPayout: the formula is somebody's payout pay(x, y) for a
+	// point forecast x of an outcome y on Interval, under audit.
+	ModePointPayout Mode = "point-payout"
 )
+
+// Modes lists every mode, in the order the workbench cycles through them.
+var Modes = []Mode{ModeGenerator, ModePayout, ModeEmphasis, ModePoint, ModePointPayout}
+
+// OnInterval reports whether the mode is about a number on an interval
+// (a point forecast) rather than a distribution over outcomes.
+func (m Mode) OnInterval() bool { return m == ModePoint || m == ModePointPayout }
+
+// Payout reports whether the formula of the mode is a payout under audit
+// (more is better) rather than a rule's generator.
+func (m Mode) Payout() bool { return m == ModePayout || m == ModePointPayout }
 
 // Budget is how a rule is turned into money. Zero values mean "not set".
 type Budget struct {
@@ -74,10 +93,29 @@ type Design struct {
 	Interval []float64 `toml:"interval,omitempty"`
 	// Budget is the contract's money side.
 	Budget Budget `toml:"budget"`
+	// Contract is who pays whom, in which currency, over which season.
+	Contract Contract `toml:"contract,omitempty"`
 }
 
 // SchemaVersion is the design file version this build writes.
 const SchemaVersion = 1
+
+// Clone is a deep copy of d: no slice, map or pointer is shared, so a
+// copy handed to a background job never changes under it.
+func (d *Design) Clone() *Design {
+	c := *d
+	c.Labels = slices.Clone(d.Labels)
+	c.Weights = slices.Clone(d.Weights)
+	c.Interval = slices.Clone(d.Interval)
+	c.Params = maps.Clone(d.Params)
+	c.Budget.Reference = slices.Clone(d.Budget.Reference)
+	c.Contract.BaseRate = slices.Clone(d.Contract.BaseRate)
+	if d.Budget.MeanPay != nil {
+		v := *d.Budget.MeanPay
+		c.Budget.MeanPay = &v
+	}
+	return &c
+}
 
 // N is the number of outcomes.
 func (d *Design) N() int { return len(d.Labels) }
@@ -105,8 +143,8 @@ func ParseOutcomes(s string) ([]string, error) {
 	seen := map[string]bool{}
 	for i, p := range parts {
 		p = strings.TrimSpace(p)
-		if p == "" {
-			return nil, fmt.Errorf("outcome label %d is empty", i+1)
+		if err := CheckLabel(p); err != nil {
+			return nil, fmt.Errorf("outcome label %d %w", i+1, err)
 		}
 		if seen[p] {
 			return nil, fmt.Errorf("outcome label %q appears twice", p)
@@ -118,6 +156,43 @@ func ParseOutcomes(s string) ([]string, error) {
 		return nil, fmt.Errorf("%d outcome labels given; need 2..%d", len(parts), formula.MaxOutcomes)
 	}
 	return parts, nil
+}
+
+// MaxLabel is the longest outcome label, in bytes; a label heads a table
+// column.
+const MaxLabel = 200
+
+// ReservedLabels are the names of the fixed columns of history and pay-out
+// files; an outcome named like one would collide with it.
+var reservedLabels = []string{"forecaster", "question", "outcome", "line"}
+
+// CheckLabel says what is wrong with an outcome label, or returns nil. A
+// label goes into CSV headers, comma-separated flags such as --reference
+// and --outcomes of a second rule, annex tables and terminal lines, so it
+// must be one line of printable text without commas, and must not be
+// named like a fixed column. The error reads after "label N".
+func CheckLabel(l string) error {
+	switch {
+	case strings.TrimSpace(l) == "":
+		return errors.New("is empty")
+	case len(l) > MaxLabel:
+		return fmt.Errorf("is %d bytes long; a label may have at most %d", len(l), MaxLabel)
+	case strings.Contains(l, ","):
+		return fmt.Errorf("%q has a comma, which separates labels in flags and files", l)
+	case !utf8.ValidString(l):
+		return fmt.Errorf("%q is not valid UTF-8 text", l)
+	}
+	for _, r := range l {
+		if unicode.IsControl(r) {
+			return fmt.Errorf("%q has a control character (%U); labels are one line of printable text", l, r)
+		}
+	}
+	for _, c := range reservedLabels {
+		if strings.EqualFold(strings.TrimSpace(l), c) {
+			return fmt.Errorf("%q is the name of a fixed column of history and pay-out files; choose another", l)
+		}
+	}
+	return nil
 }
 
 // Rule compiles a generator-mode design into a rule.

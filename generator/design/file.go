@@ -4,26 +4,46 @@ import (
 	"bytes"
 	"errors"
 	"fmt"
+	"io"
 	"math"
-	"os"
 	"regexp"
+	"slices"
+	"strconv"
 	"strings"
 
 	"github.com/BurntSushi/toml"
 
 	"scorewright/generator/formula"
+	"scorewright/internal/inputfile"
 	"scorewright/internal/safefile"
+	"scorewright/internal/textsafe"
 )
 
-// Load reads and validates a design file.
+// MaxFileBytes bounds a design file. A design is a few hundred bytes; the
+// bound leaves room for the longest formula the language takes and more.
+const MaxFileBytes = 4 << 20
+
+// Load reads and validates a design file. Only a regular file of at most
+// MaxFileBytes is read: a device or pipe is refused at once.
 func Load(path string) (*Design, error) {
-	b, err := os.ReadFile(path)
+	f, err := inputfile.Open(path)
+	if err != nil {
+		return nil, err
+	}
+	defer f.Close()
+	return Read(f, path)
+}
+
+// Read reads and validates design TOML from r, at most MaxFileBytes of it;
+// name is used in error messages.
+func Read(r io.Reader, name string) (*Design, error) {
+	b, err := inputfile.ReadAll(r, name, MaxFileBytes)
 	if err != nil {
 		return nil, err
 	}
 	d, err := Decode(b)
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w", path, err)
+		return nil, fmt.Errorf("%s: %w", name, err)
 	}
 	return d, nil
 }
@@ -31,6 +51,8 @@ func Load(path string) (*Design, error) {
 // Decode parses and validates design TOML.
 func Decode(b []byte) (*Design, error) {
 	var d Design
+	// A byte-order mark from a Windows editor is not part of the TOML.
+	b = bytes.TrimPrefix(b, []byte("\ufeff"))
 	md, err := toml.Decode(string(b), &d)
 	if err != nil {
 		var pe toml.ParseError
@@ -46,6 +68,11 @@ func Decode(b []byte) (*Design, error) {
 		}
 		return nil, fmt.Errorf("unknown key %s (a typo, or a file from a newer scorewright?)", strings.Join(keys, ", "))
 	}
+	d.upgrade()
+	// The title goes into annex headings and terminal lines: one line, no
+	// escape sequences, so it can neither push a warning out of view nor
+	// draw a line of its own.
+	d.Title = textsafe.OneLine(d.Title)
 	if err := d.Validate(); err != nil {
 		return nil, err
 	}
@@ -57,24 +84,28 @@ func (d *Design) Validate() error {
 	switch {
 	case d.Version == 0:
 		return errors.New("version: missing (this build writes version 1)")
+	case d.Version < 0:
+		return fmt.Errorf("version: %d is not a version; this build writes version %d", d.Version, SchemaVersion)
 	case d.Version > SchemaVersion:
 		return fmt.Errorf("version: %d is newer than this build understands (%d)", d.Version, SchemaVersion)
 	}
-	switch d.Mode {
-	case ModeGenerator, ModePayout, ModePoint, ModeEmphasis:
-	case "":
-		return errors.New(`mode: missing; one of "generator", "payout", "point", "emphasis"`)
-	default:
-		return fmt.Errorf(`mode: %q is not one of "generator", "payout", "point", "emphasis"`, d.Mode)
+	if !slices.Contains(Modes, d.Mode) {
+		if d.Mode == "" {
+			return fmt.Errorf("mode: missing; one of %s", modeList())
+		}
+		return fmt.Errorf("mode: %q is not one of %s", d.Mode, modeList())
 	}
-	if d.Mode != ModePoint {
+	if d.Mode == ModePayout && d.Interval != nil {
+		return fmt.Errorf(`mode: a payout with an interval is a point-forecast payout; say mode = %q`, ModePointPayout)
+	}
+	if !d.Mode.OnInterval() {
 		if n := d.N(); n < 2 || n > formula.MaxOutcomes {
 			return fmt.Errorf("outcomes: %d labels; need 2..%d", n, formula.MaxOutcomes)
 		}
 		seen := map[string]bool{}
 		for i, l := range d.Labels {
-			if strings.TrimSpace(l) == "" {
-				return fmt.Errorf("outcomes: label %d is empty", i+1)
+			if err := CheckLabel(l); err != nil {
+				return fmt.Errorf("outcomes: label %d %w", i+1, err)
 			}
 			if seen[l] {
 				return fmt.Errorf("outcomes: label %q appears twice", l)
@@ -88,6 +119,10 @@ func (d *Design) Validate() error {
 	if strings.TrimSpace(d.Formula) == "" && d.Preset == "" {
 		return errors.New("formula: empty, and no preset named")
 	}
+	if len(d.Formula) > formula.MaxSource {
+		return fmt.Errorf("formula: %d bytes; a formula may be at most %d bytes (64 KiB)", len(d.Formula), formula.MaxSource)
+	}
+
 	if d.Weights != nil {
 		if len(d.Weights) != d.N() {
 			return fmt.Errorf("weights: %d given for %d outcomes", len(d.Weights), d.N())
@@ -98,19 +133,40 @@ func (d *Design) Validate() error {
 			}
 		}
 	}
-	if d.Mode == ModePoint {
+	if d.Mode.OnInterval() {
 		if len(d.Interval) != 2 || !(d.Interval[0] < d.Interval[1]) {
 			return errors.New("interval: point designs need interval = [lo, hi] with lo < hi")
 		}
 	}
+	if err := d.Contract.Validate(d.N()); err != nil {
+		return err
+	}
 	return d.ValidateBudget()
 }
 
-// ValidateBudget checks the budget as this design reads it: in point mode
-// the menu step is in the units of the interval (at most its width), in
-// every other mode a probability step.
+// modeList is every mode quoted, for messages.
+func modeList() string {
+	q := make([]string, len(Modes))
+	for i, m := range Modes {
+		q[i] = strconv.Quote(string(m))
+	}
+	return strings.Join(q, ", ")
+}
+
+// upgrade rewrites what older files said in the words of this build: a
+// payout with an interval was a point-forecast payout before that mode
+// had its own name.
+func (d *Design) upgrade() {
+	if d.Mode == ModePayout && len(d.Interval) == 2 {
+		d.Mode = ModePointPayout
+	}
+}
+
+// ValidateBudget checks the budget as this design reads it: in the modes
+// on an interval the menu step is in the units of the interval (at most
+// its width), in every other mode a probability step.
 func (d *Design) ValidateBudget() error {
-	if d.Mode != ModePoint {
+	if !d.Mode.OnInterval() {
 		return d.Budget.Validate()
 	}
 	b := d.Budget
@@ -154,6 +210,11 @@ func (b *Budget) Validate() error {
 	case "", "nearest", "down", "up":
 	default:
 		return fmt.Errorf(`budget.rounding: %q is not one of "nearest", "down", "up"`, b.Rounding)
+	}
+	if b.Reference != nil && b.MeanPay == nil {
+		// Without a mean-pay target the fit never looks at it, and a
+		// silently ignored base rate is a wrong table nobody notices.
+		return errors.New("budget.reference: the belief a mean_pay target is set at; set budget.mean_pay with it, or leave it out")
 	}
 	if b.MeanPay == nil && b.Cap != 0 && !(b.Cap > b.Floor) {
 		return fmt.Errorf("budget: cap %g must be above floor %g", b.Cap, b.Floor)

@@ -3,6 +3,7 @@ package formula
 import (
 	"fmt"
 	"strings"
+	"unicode"
 )
 
 // Pos is a position in a formula's source: 1-based line and column
@@ -59,7 +60,15 @@ func (e *Error) Caret() string {
 func sourceLine(src string, line int) string {
 	lines := strings.Split(src, "\n")
 	if line >= 1 && line <= len(lines) {
-		return strings.TrimRight(lines[line-1], "\r")
+		// The line is printed under an error message: a control character
+		// in it (an escape sequence, say) is shown as "?", one column
+		// wide, so the caret still lines up and the terminal is not driven.
+		return strings.Map(func(r rune) rune {
+			if r != '\t' && unicode.IsControl(r) {
+				return '?'
+			}
+			return r
+		}, strings.TrimRight(lines[line-1], "\r"))
 	}
 	return ""
 }

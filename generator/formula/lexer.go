@@ -60,7 +60,11 @@ func lex(src string) ([]token, *Error) {
 			continue
 		case r == '#':
 			for i < len(src) && src[i] != '\n' {
-				_, s := utf8.DecodeRuneInString(src[i:])
+				c, s := utf8.DecodeRuneInString(src[i:])
+				if c != '\t' && c != '\r' && unicode.IsControl(c) {
+					// A comment is echoed in annexes and on terminals.
+					return nil, newError(src, Pos{line, col}, "control character %U in a comment", c)
+				}
 				i += s
 				col++
 			}

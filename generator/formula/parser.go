@@ -9,6 +9,11 @@ import (
 // one expression, which may span several lines. Blank lines and # comments
 // are allowed anywhere. The first problem found is returned as an *Error.
 func Parse(src string) (file *File, err error) {
+	if len(src) > MaxSource {
+		// Checked before lexing: a formula of megabytes would otherwise
+		// cost hundreds of bytes of tokens and tree per byte of text.
+		return nil, &Error{Pos: Pos{1, 1}, Msg: fmt.Sprintf("formula is %d bytes long; a formula may be at most %d bytes (64 KiB)", len(src), MaxSource)}
+	}
 	toks, lerr := lex(src)
 	if lerr != nil {
 		return nil, lerr
@@ -36,7 +41,22 @@ type parser struct {
 	depth int
 }
 
+// maxDepth bounds every recursion of the parser: parentheses, subscripts,
+// call arguments, signs and each "^" of a chain all count a level.
 const maxDepth = 200
+
+// MaxSource is the longest formula text the language accepts, in bytes.
+// It is far beyond any scoring rule a person writes, and it bounds the
+// memory and time of parsing and compiling.
+const MaxSource = 64 << 10
+
+// deeper counts one level of recursion at t and fails past maxDepth.
+func (p *parser) deeper(t token) {
+	p.depth++
+	if p.depth > maxDepth {
+		p.fail(t, "formula is nested too deeply (more than %d levels)", maxDepth)
+	}
+}
 
 func (p *parser) peek() token { return p.toks[p.i] }
 
@@ -157,10 +177,7 @@ func (p *parser) parseLineExpr() Node {
 
 // expr = additive [ ("<" | "<=" | ">" | ">=") additive ]
 func (p *parser) parseExpr() Node {
-	p.depth++
-	if p.depth > maxDepth {
-		p.fail(p.peekExpr(), "formula is nested too deeply (more than %d levels)", maxDepth)
-	}
+	p.deeper(p.peekExpr())
 	defer func() { p.depth-- }()
 	x := p.parseAdditive()
 	if t := p.peekExpr(); p.isOp(t, "<", "<=", ">", ">=") {
@@ -205,10 +222,7 @@ func (p *parser) parseUnary() Node {
 	t := p.peekExpr()
 	if p.isOp(t, "-", "+") {
 		p.next()
-		p.depth++
-		if p.depth > maxDepth {
-			p.fail(t, "formula is nested too deeply (more than %d levels)", maxDepth)
-		}
+		p.deeper(t)
 		defer func() { p.depth-- }()
 		return &Unary{At: t.pos, Op: t.text, X: p.parseUnary()}
 	}
@@ -221,6 +235,10 @@ func (p *parser) parsePower() Node {
 	x := p.parsePostfix()
 	if t := p.peekExpr(); p.isOp(t, "^") {
 		p.next()
+		// The exponent recurses through parseUnary with no sign, so a
+		// chain p^p^...^2 must count here or it exhausts the stack.
+		p.deeper(t)
+		defer func() { p.depth-- }()
 		return &Binary{At: t.pos, Op: "^", X: x, Y: p.parseUnary()}
 	}
 	return x

@@ -1,0 +1,90 @@
+package main
+
+import (
+	"flag"
+	"fmt"
+
+	"scorewright/contract/annex"
+	"scorewright/contract/cost"
+	"scorewright/contract/payform"
+	"scorewright/contract/table"
+	"scorewright/generator/bregman"
+	"scorewright/generator/design"
+	"scorewright/internal/num"
+)
+
+const contractUsage = "[--title T] [--buyer NAME] [--forecaster NAME] [--currency C] [--start DATE] [--end DATE] [--signed DATE] [--forecasts N] [--base-rate q1,...]"
+
+// contractFlags are the annex's terms; each overrides the design's.
+type contractFlags struct {
+	title, buyer, forecaster, currency, start, end, signed, baseRate string
+	forecasts                                                        int
+}
+
+func addContractFlags(fs *flag.FlagSet) *contractFlags {
+	c := &contractFlags{}
+	fs.StringVar(&c.title, "title", "", "the annex's title")
+	fs.StringVar(&c.buyer, "buyer", "", "the party that pays")
+	fs.StringVar(&c.forecaster, "forecaster", "", "the party that forecasts and is paid")
+	fs.StringVar(&c.currency, "currency", "", "currency label for every amount (e.g. EUR)")
+	fs.StringVar(&c.start, "start", "", "first forecast date, YYYY-MM-DD")
+	fs.StringVar(&c.end, "end", "", "last forecast date, YYYY-MM-DD")
+	fs.StringVar(&c.signed, "signed", "", "date of signature, YYYY-MM-DD")
+	fs.IntVar(&c.forecasts, "forecasts", 0, "forecasts per season, for what the contract costs")
+	fs.StringVar(&c.baseRate, "base-rate", "", "the buyer's base rate q1,...: how often each outcome happens (default: --reference, else uniform)")
+	return c
+}
+
+// apply writes the given contract flags over the design's contract.
+func (c *contractFlags) apply(fs *flag.FlagSet, d *design.Design) error {
+	set := map[string]bool{}
+	fs.Visit(func(f *flag.Flag) { set[f.Name] = true })
+	ct := &d.Contract
+	for _, f := range []struct {
+		name     string
+		src, dst *string
+	}{{"buyer", &c.buyer, &ct.Buyer}, {"forecaster", &c.forecaster, &ct.Forecaster}, {"currency", &c.currency, &ct.Currency},
+		{"start", &c.start, &ct.Start}, {"end", &c.end, &ct.End}, {"signed", &c.signed, &ct.Signed}, {"title", &c.title, &d.Title}} {
+		if set[f.name] {
+			*f.dst = *f.src
+		}
+	}
+	if set["forecasts"] {
+		ct.Forecasts = c.forecasts
+	}
+	if set["base-rate"] {
+		if d.Mode.OnInterval() {
+			return usagef("--base-rate is for rules over outcomes")
+		}
+		q, err := num.ParseDistribution(c.baseRate, d.N())
+		if err != nil {
+			return usagef("--base-rate: %v", err)
+		}
+		ct.BaseRate = q
+	}
+	if err := ct.Validate(d.N()); err != nil {
+		return usagef("%v", err)
+	}
+	return nil
+}
+
+// annexInput gathers what an annex needs from a money table over
+// outcomes: the closed formula (none with a clamp, which bends the
+// rule) and the season's cost. It must be called before a lottery
+// conversion, since the cost is in money.
+func annexInput(d *design.Design, tb *table.Table, rule *bregman.Rule, a, b, clamp float64) (*annex.Input, error) {
+	in := &annex.Input{Design: d, Table: tb, Version: version}
+	if rule != nil && clamp == 0 {
+		if f, ok := payform.Find(rule, a, b); ok {
+			in.Formula = f
+		}
+	}
+	if tb.ReportName == "" {
+		c, err := cost.Of(tb, cost.SeasonOf(d))
+		if err != nil {
+			return nil, fmt.Errorf("cost: %w", err)
+		}
+		in.Cost = c
+	}
+	return in, nil
+}

@@ -1,0 +1,243 @@
+// Package annex writes a payment table as the annex two parties sign: a
+// PDF document, an XLSX workbook and an HTML page that all say the same
+// thing — title, parties, currency and dates (blank lines to fill in
+// where the design leaves them unset), the payment clause in plain words,
+// what happens to a report that is not on the menu, the pay per outcome
+// as a closed formula where the rule has one, the table itself, what the
+// contract costs, the verification record, the cautions, and the design
+// itself with its SHA-256 fingerprint so that anyone can run it again.
+//
+// The package does no mathematics: contract/budget fits the table,
+// contract/payform finds the closed formula, contract/cost prices the
+// season. Document gathers their results into sentences once, and each
+// writer only lays them out.
+package annex
+
+import (
+	"crypto/sha256"
+	"encoding/hex"
+	"errors"
+	"fmt"
+	"io"
+	"strings"
+
+	"scorewright/contract/cost"
+	"scorewright/contract/payform"
+	"scorewright/contract/table"
+	"scorewright/generator/design"
+	"scorewright/internal/numfmt"
+)
+
+// Formats lists the annex formats.
+func Formats() []string { return []string{"pdf", "xlsx", "html"} }
+
+// IsFormat reports whether format is an annex format.
+func IsFormat(format string) bool {
+	for _, f := range Formats() {
+		if f == format {
+			return true
+		}
+	}
+	return false
+}
+
+// Input is what an annex is made from.
+type Input struct {
+	// Design is the design the table was made from; its canonical
+	// encoding is printed, attached and fingerprinted.
+	Design *design.Design
+	// Table is the finished table (money, or chances after a lottery
+	// conversion) with its record.
+	Table *table.Table
+	// Formula is the closed form of the money pay, nil when the rule has
+	// none (or a clamp bends it).
+	Formula *payform.Formula
+	// Cost is what the season costs, nil when it cannot be said (a point
+	// table).
+	Cost *cost.Cost
+	// Version is the build that made the annex.
+	Version string
+}
+
+// Term is one line of the terms block; an empty Value is a blank to fill in.
+type Term struct{ Key, Value string }
+
+// Document is an annex as sentences, laid out by each writer.
+type Document struct {
+	Title    string
+	Terms    []Term
+	Warnings []string
+	// Clause is the payment clause; OffMenu what happens to a report that
+	// is not a row; Draw how a lottery is settled ("" for money).
+	Clause, OffMenu, Draw string
+	// FormulaLines state the pay per outcome; FormulaNote says how the
+	// table's amounts relate to them.
+	FormulaLines []string
+	FormulaNote  string
+	Table        *table.Table
+	// Currency labels amounts ("" when the table holds chances).
+	Currency string
+	Cost     *cost.Cost
+	// Record is the verification record, in the order every format
+	// writes it.
+	Record   []table.Field
+	Cautions []string
+	// DesignText is the canonical design file; Fingerprint its SHA-256
+	// in hex.
+	DesignText  string
+	Fingerprint string
+	// Producer names the program that made the annex.
+	Producer string
+	Date     string
+
+	reportDecimals int
+}
+
+// blank is how a field left unset reads in the text formats.
+const blank = ""
+
+// New gathers the annex of in.
+func New(in Input) (*Document, error) {
+	if in.Design == nil || in.Table == nil {
+		return nil, errors.New("annex: a design and a table are needed")
+	}
+	if err := in.Table.Check(); err != nil {
+		return nil, err
+	}
+	canon, err := Canonical(in.Design)
+	if err != nil {
+		return nil, err
+	}
+	sum := sha256.Sum256(canon)
+	t, c := in.Table, in.Design.Contract
+	doc := &Document{
+		Title: in.Design.Title, Table: t, Cost: in.Cost,
+		Warnings: t.Meta.Warnings, Cautions: t.Meta.Cautions,
+		DesignText: string(canon), Fingerprint: hex.EncodeToString(sum[:]),
+		Producer: "scorewright " + in.Version, Date: t.Meta.Date,
+	}
+	doc.reportDecimals = ReportDecimals(t)
+	if doc.Title == "" {
+		doc.Title = "Payment annex"
+	}
+	if t.Kind == table.KindMoney {
+		doc.Currency = c.Currency
+	}
+	doc.Terms = terms(c, t)
+	doc.Clause, doc.Draw = clause(t, c.Currency)
+	doc.OffMenu = c.OffMenu
+	if doc.OffMenu == "" {
+		doc.OffMenu = offMenu
+	}
+	doc.FormulaLines, doc.FormulaNote = formulaText(in.Formula, t)
+	for _, f := range t.Meta.Fields() {
+		switch f.Key {
+		case "WARNING", "title", "caution":
+			continue
+		}
+		doc.Record = append(doc.Record, f)
+	}
+	return doc, nil
+}
+
+// Canonical is the design as a file, version set: the bytes the
+// fingerprint is taken over.
+func Canonical(d *design.Design) ([]byte, error) {
+	c := *d
+	if c.Version == 0 {
+		c.Version = design.SchemaVersion
+	}
+	return c.Encode()
+}
+
+func terms(c design.Contract, t *table.Table) []Term {
+	forecasts := blank
+	if c.Forecasts > 0 {
+		forecasts = fmt.Sprint(c.Forecasts)
+	}
+	currency := c.Currency
+	if t.Kind != table.KindMoney && currency == "" {
+		currency = "(the prize is stated by the parties)"
+	}
+	return []Term{
+		{"Buyer (pays)", c.Buyer},
+		{"Forecaster (is paid)", c.Forecaster},
+		{"Currency", currency},
+		{"First forecast", c.Start},
+		{"Last forecast", c.End},
+		{"Forecasts per season", forecasts},
+		{"Outcomes", strings.Join(quoted(t.Labels), ", ")},
+		{"Signed on", c.Signed},
+	}
+}
+
+func quoted(l []string) []string {
+	out := make([]string, len(l))
+	for i, s := range l {
+		out[i] = "“" + s + "”"
+	}
+	return out
+}
+
+// offMenu is the default clause for a report that is not a row.
+const offMenu = "A report that is not one of the rows of the table, exactly as printed, is not a valid forecast: it earns no payment, and the forecaster may replace it with a row until the forecast is due. The table is the whole menu; no amount is paid by any formula for a report that is not in it."
+
+// clause is the payment clause in plain words, and for a lottery the
+// draw that settles each forecast.
+func clause(t *table.Table, currency string) (string, string) {
+	row := "one row of the table (a probability for each outcome)"
+	if t.ReportName != "" {
+		row = "one row of the table (a value of " + t.ReportName + ")"
+	}
+	if t.Kind == table.KindMoney {
+		cur := ""
+		if currency != "" {
+			cur = " in " + currency
+		}
+		return "For each forecast, the forecaster reports " + row + " before the outcome is known. When the outcome is known, the buyer pays the forecaster the amount" + cur + " in that row's column for the outcome that happened.", ""
+	}
+	c := "For each forecast, the forecaster reports " + row + " before the outcome is known. When the outcome is known, the forecaster receives the chance in that row's column for the outcome that happened of winning the prize stated in the record, settled by the draw below."
+	return c, drawText(t)
+}
+
+// drawText states the draw of a lottery table whose chances are whole
+// multiples of 1/den (den = 10^decimals): a whole number from 1 to den.
+func drawText(t *table.Table) string {
+	if t.Decimals < 1 || t.Decimals > 6 {
+		return "After the outcome is known, draw a uniform random number U in [0, 1) in a way both parties can verify and record; the forecaster wins the prize if U is below the chance in the row."
+	}
+	den := 1
+	for range t.Decimals {
+		den *= 10
+	}
+	return fmt.Sprintf("After the outcome is known, draw a whole number from 1 to %d, each equally likely, in a way both parties can verify and record (for example a published random source agreed in advance). The forecaster wins the prize if the number drawn is at most %d times the chance in the row: a chance of %s wins on the numbers 1 to %d.",
+		den, den, numfmt.Fixed(0.5, t.Decimals), den/2)
+}
+
+// formulaText states the pay per outcome: the closed formula, or why
+// there is none.
+func formulaText(f *payform.Formula, t *table.Table) ([]string, string) {
+	rounding := t.Meta.Rounding
+	if f == nil {
+		return nil, "This rule has no short closed formula here; each amount is A − B·L(p, k) with the effort L of the generator in the record (and the clamp, if any), " + rounding + ". The design below computes it again."
+	}
+	lines := append([]string(nil), f.Lines...)
+	note := "(" + f.Family + " rule) " + f.Where + ". The table's amounts are these values " + rounding + "; where a rounded amount and the formula differ, the table governs."
+	if t.Kind != table.KindMoney {
+		note += " The chances are (pay − " + table.FormatNumber(float64(t.Meta.Floor)) + ") divided by the prize."
+	}
+	return lines, note
+}
+
+// Write writes the annex in format (one of Formats).
+func (d *Document) Write(w io.Writer, format string) error {
+	switch format {
+	case "pdf":
+		return d.WritePDF(w)
+	case "xlsx":
+		return d.WriteXLSX(w)
+	case "html":
+		return d.WriteHTML(w)
+	}
+	return fmt.Errorf("annex: unknown format %q; one of %s", format, strings.Join(Formats(), ", "))
+}

@@ -1,0 +1,277 @@
+package annex
+
+import (
+	"bytes"
+	"context"
+	"crypto/sha256"
+	"encoding/hex"
+	"fmt"
+	"math"
+	"strings"
+	"testing"
+
+	"github.com/xuri/excelize/v2"
+	"golang.org/x/net/html"
+
+	"scorewright/contract/budget"
+	"scorewright/contract/cost"
+	"scorewright/contract/payform"
+	"scorewright/generator/design"
+)
+
+// waterDesign is an invented contract: a water utility paying a
+// contractor for daily "demand exceeds capacity" forecasts by the
+// quadratic rule, 75 to 150 per forecast.
+func waterDesign() *design.Design {
+	return &design.Design{
+		Version: design.SchemaVersion, Title: "Daily capacity forecasts — Kestrel Vale Water",
+		Labels: []string{"demand exceeds capacity", "capacity holds"}, Mode: design.ModeGenerator,
+		Preset: "quadratic", Formula: "# quadratic rule\n1 - sum(p^2)",
+		Budget: design.Budget{Floor: 75, Cap: 150, Step: 0.02, Unit: 0.01, Rounding: "nearest"},
+		Contract: design.Contract{Buyer: "Kestrel Vale Water Board", Currency: "EUR", Start: "2027-01-01",
+			Forecasts: 365, BaseRate: []float64{0.1, 0.9}},
+	}
+}
+
+func waterDoc(t *testing.T) *Document {
+	t.Helper()
+	d := waterDesign()
+	rule, err := d.Rule()
+	if err != nil {
+		t.Fatal(err)
+	}
+	menu, err := budget.StepMenu(2, d.Budget.Step, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	fit, err := budget.FitRule(rule, menu, d.Budget)
+	if err != nil {
+		t.Fatal(err)
+	}
+	rc, err := fit.Recheck(context.Background(), budget.RecheckSettings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	tb := fit.Table(rc, budget.DesignInfo(d, "test", "2027-01-01"))
+	f, ok := payform.Find(rule, fit.A, fit.B)
+	if !ok {
+		t.Fatal("no closed form for the quadratic rule")
+	}
+	c, err := cost.Of(tb, cost.SeasonOf(d))
+	if err != nil {
+		t.Fatal(err)
+	}
+	doc, err := New(Input{Design: d, Table: tb, Formula: f, Cost: c, Version: "test"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return doc
+}
+
+// quadraticPay is the pay of the water table, derived by hand:
+// 150 − 75·(1 − p)² rounded to cents.
+func quadraticPay(p float64) float64 { return math.Round((150-75*(1-p)*(1-p))*100) / 100 }
+
+func TestDocumentStatesTheContract(t *testing.T) {
+	doc := waterDoc(t)
+	if doc.FormulaLines[0] != `pay if "demand exceeds capacity" = 150 − 75·(1 − p)²` {
+		t.Errorf("formula line %q", doc.FormulaLines[0])
+	}
+	sum := sha256.Sum256([]byte(doc.DesignText))
+	if hex.EncodeToString(sum[:]) != doc.Fingerprint {
+		t.Error("the fingerprint is not the SHA-256 of the printed design")
+	}
+	back, err := design.Decode([]byte(doc.DesignText))
+	if err != nil || back.Contract.Buyer != "Kestrel Vale Water Board" || back.Formula != waterDesign().Formula {
+		t.Fatalf("the printed design does not read back: %v %+v", err, back)
+	}
+	blanks := 0
+	for _, term := range doc.Terms {
+		if term.Value == "" {
+			blanks++
+		}
+	}
+	// Forecaster, last forecast and the signing date are unset.
+	if blanks != 3 {
+		t.Errorf("%d blank terms, want 3: %+v", blanks, doc.Terms)
+	}
+	for _, f := range doc.Record {
+		if f.Key == "formula" && f.Value != "1 - sum(p^2)" {
+			t.Errorf("a formula opening with a comment reads %q in the record", f.Value)
+		}
+	}
+}
+
+func TestXLSXReadsBack(t *testing.T) {
+	doc := waterDoc(t)
+	var buf bytes.Buffer
+	if err := doc.WriteXLSX(&buf); err != nil {
+		t.Fatal(err)
+	}
+	f, err := excelize.OpenReader(&buf)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	rows, err := f.GetRows(TableSheet, excelize.Options{RawCellValue: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rows) != 52 || !strings.Contains(rows[0][3], "EUR") {
+		t.Fatalf("%d rows, head %q", len(rows), rows[0])
+	}
+	for i, r := range rows[1:] {
+		p := float64(i) / 50
+		for k, want := range []float64{quadraticPay(p), quadraticPay(1 - p)} {
+			got, err := f.GetCellValue(TableSheet, cellName(t, 4+k, i+2), excelize.Options{RawCellValue: true})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if v := parse(t, got); math.Abs(v-want) > 1e-9 {
+				t.Fatalf("row %d outcome %d: %v, want %v (row %q)", i+1, k, v, want, r)
+			}
+		}
+	}
+	// Shown with two decimals, as numbers.
+	if shown, _ := f.GetCellValue(TableSheet, "D2"); shown != "75.00" {
+		t.Errorf("D2 shows %q, want 75.00", shown)
+	}
+	if typ, _ := f.GetCellType(TableSheet, "D2"); typ != excelize.CellTypeNumber && typ != excelize.CellTypeUnset {
+		t.Errorf("D2 has type %v, not a number", typ)
+	}
+	panes, err := f.GetPanes(TableSheet)
+	if err != nil || !panes.Freeze || panes.YSplit != 1 {
+		t.Errorf("head not frozen: %+v %v", panes, err)
+	}
+	rec, err := f.GetRows(RecordSheet)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var text strings.Builder
+	for _, r := range rec {
+		text.WriteString(strings.Join(r, " ") + "\n")
+	}
+	for _, want := range []string{doc.Fingerprint, "qualified counsel", "52286.25 EUR", "(to be filled in)"} {
+		if !strings.Contains(text.String(), want) {
+			t.Errorf("record sheet lacks %q", want)
+		}
+	}
+	props, err := f.GetDocProps()
+	if err != nil || !strings.HasPrefix(props.Creator, "scorewright") {
+		t.Errorf("creator %q %v", props.Creator, err)
+	}
+}
+
+func cellName(t *testing.T, col, row int) string {
+	t.Helper()
+	c, err := excelize.CoordinatesToCellName(col, row)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return c
+}
+
+func parse(t *testing.T, s string) float64 {
+	t.Helper()
+	var v float64
+	if _, err := fmt.Sscan(s, &v); err != nil {
+		t.Fatalf("%q is not a number", s)
+	}
+	return v
+}
+
+func TestHTMLParses(t *testing.T) {
+	doc := waterDoc(t)
+	var buf bytes.Buffer
+	if err := doc.WriteHTML(&buf); err != nil {
+		t.Fatal(err)
+	}
+	root, err := html.Parse(bytes.NewReader(buf.Bytes()))
+	if err != nil {
+		t.Fatal(err)
+	}
+	tbl := byID(root, "payment-table")
+	if tbl == nil {
+		t.Fatal("no payment table")
+	}
+	var body [][]string
+	walk(tbl, func(n *html.Node) {
+		if n.Type == html.ElementNode && n.Data == "tr" && n.Parent.Data == "tbody" {
+			var row []string
+			for c := n.FirstChild; c != nil; c = c.NextSibling {
+				if c.Type == html.ElementNode {
+					row = append(row, text(c))
+				}
+			}
+			body = append(body, row)
+		}
+	})
+	if len(body) != 51 {
+		t.Fatalf("%d rows", len(body))
+	}
+	// Row 6 is the report 0.1: 89.25 if demand exceeds capacity, 149.25
+	// otherwise (150 − 75·0.81 and 150 − 75·0.01, by hand).
+	if got := strings.Join(body[5], " "); got != "6 0.10 0.90 89.25 149.25" {
+		t.Errorf("row 6 reads %q", got)
+	}
+	if fp := byID(root, "fingerprint"); fp == nil || text(fp) != doc.Fingerprint {
+		t.Error("fingerprint missing")
+	}
+	if !bytes.Contains(buf.Bytes(), []byte(`<meta name="generator" content="scorewright test">`)) {
+		t.Error("no generator meta")
+	}
+	if !bytes.Contains(buf.Bytes(), []byte("150 − 75·(1 − p)²")) {
+		t.Error("formula not in UTF-8")
+	}
+}
+
+func TestPDFEmbedsFontAndDesign(t *testing.T) {
+	doc := waterDoc(t)
+	var buf bytes.Buffer
+	if err := doc.WritePDF(&buf); err != nil {
+		t.Fatal(err)
+	}
+	b := buf.Bytes()
+	if !bytes.HasPrefix(b, []byte("%PDF")) {
+		t.Fatal("not a PDF")
+	}
+	// The attachment's name is written in UTF-16 (big-endian).
+	var name []byte
+	for _, c := range []byte("design.toml") {
+		name = append(name, 0, c)
+	}
+	for _, want := range []string{"/FontFile2", string(name), "/EmbeddedFile"} {
+		if !bytes.Contains(b, []byte(want)) {
+			t.Errorf("PDF lacks %s", want)
+		}
+	}
+}
+
+func byID(n *html.Node, id string) *html.Node {
+	var found *html.Node
+	walk(n, func(m *html.Node) {
+		for _, a := range m.Attr {
+			if a.Key == "id" && a.Val == id && found == nil {
+				found = m
+			}
+		}
+	})
+	return found
+}
+
+func walk(n *html.Node, f func(*html.Node)) {
+	f(n)
+	for c := n.FirstChild; c != nil; c = c.NextSibling {
+		walk(c, f)
+	}
+}
+
+func text(n *html.Node) string {
+	var b strings.Builder
+	walk(n, func(m *html.Node) {
+		if m.Type == html.TextNode {
+			b.WriteString(m.Data)
+		}
+	})
+	return strings.TrimSpace(b.String())
+}
