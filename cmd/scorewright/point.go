@@ -15,6 +15,7 @@ import (
 	"strings"
 	"text/tabwriter"
 
+	"scorewright/contract/lottery"
 	"scorewright/contract/table"
 	"scorewright/generator/design"
 	"scorewright/generator/formula"
@@ -368,12 +369,16 @@ func runTablePoint(e *env, d *design.Design, format string, tf *tableFlags) erro
 	}
 	sum := newPointTableSummary(fit, rc, tb, format, tf.out)
 	if tf.lottery {
-		if sum.Lottery, err = lotteryTable(tb, math.Min(fit.Floor, fit.MinPay), math.Max(fit.Cap, fit.MaxPay)); err != nil {
+		lo, hi := lottery.PointBounds(fit)
+		if sum.Lottery, err = lotteryTable(tb, lo, hi, func() error {
+			_, err := lottery.ForPoint(ctx, fit, tb, tf.draws)
+			return err
+		}); err != nil {
 			return err
 		}
 		sum.Caution = tb.Meta.Cautions
 	}
-	return exportTable(e, ax, format, tf, rc.Passed, &sum.Output, sum, func() error {
+	return exportTable(e, ax, format, tf, rc.Passed && tb.Meta.Passed, &sum.Output, sum, func() error {
 		return printPointTableSummary(e.stdout, fit, rc, sum)
 	})
 }
