@@ -15,7 +15,7 @@ import (
 // than outcomes: a point-forecast generator, or a point-forecast payout
 // pay(x, y) under audit (payout mode with an interval).
 func onInterval(d *design.Design) bool {
-	return d.Mode == design.ModePoint || d.Mode == design.ModePayout && len(d.Interval) == 2
+	return d.Mode.OnInterval()
 }
 
 // pointScope is the formula scope of a point-forecast payout: the report
@@ -88,8 +88,8 @@ func compileDesign(d *design.Design) *compiled {
 			return c
 		}
 		c.point, c.params = g, g.Program().Params()
-	case design.ModePayout:
-		if onInterval(d) {
+	case design.ModePointPayout:
+		{
 			if !(d.Interval[0] < d.Interval[1]) {
 				c.err = fmt.Errorf("a point-forecast payout needs an interval lo < hi (Interval row)")
 				return c
@@ -105,6 +105,7 @@ func compileDesign(d *design.Design) *compiled {
 			c.pointProg, c.params = prog, prog.Params()
 			return c
 		}
+	case design.ModePayout:
 		for y := 1; y <= d.N(); y++ {
 			prog, err := formula.CompileString(d.Formula, formula.Scope{
 				Outcomes: d.N(), Ordered: d.Ordered, Weights: d.Weights, Params: d.Params, Payout: true, Outcome: y,

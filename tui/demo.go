@@ -46,30 +46,7 @@ func demos() []func() *design.Design { return []func() *design.Design{DemoFrost,
 
 // cloneDesign returns a deep copy of d, so that background jobs never
 // share memory with the design being edited.
-func cloneDesign(d *design.Design) *design.Design {
-	c := *d
-	c.Labels = append([]string(nil), d.Labels...)
-	if d.Params != nil {
-		c.Params = make(map[string]float64, len(d.Params))
-		for k, v := range d.Params {
-			c.Params[k] = v
-		}
-	}
-	if d.Weights != nil {
-		c.Weights = append([]float64(nil), d.Weights...)
-	}
-	if d.Interval != nil {
-		c.Interval = append([]float64(nil), d.Interval...)
-	}
-	if d.Budget.MeanPay != nil {
-		m := *d.Budget.MeanPay
-		c.Budget.MeanPay = &m
-	}
-	if d.Budget.Reference != nil {
-		c.Budget.Reference = append([]float64(nil), d.Budget.Reference...)
-	}
-	return &c
-}
+func cloneDesign(d *design.Design) *design.Design { return d.Clone() }
 
 // prepareDesign fills in what a design file may leave out: the formula of
 // a named preset.

@@ -40,23 +40,9 @@ const (
 	editPreset
 )
 
-// modeSlot is one entry of the mode row: a design mode, over outcomes or
-// on an interval (payout mode on an interval audits a point-forecast
-// payout pay(x, y)).
-type modeSlot struct {
-	mode     design.Mode
-	interval bool
-}
-
-// slotOf is the mode row entry design d is in.
-func slotOf(d *design.Design) modeSlot { return modeSlot{d.Mode, onInterval(d)} }
-
 // modes lists the mode row's entries in the order ←/→ cycle; emphasis is
 // skipped unless there are 2 outcomes.
-func modes() []modeSlot {
-	return []modeSlot{{design.ModeGenerator, false}, {design.ModePayout, false}, {design.ModeEmphasis, false},
-		{design.ModePoint, true}, {design.ModePayout, true}}
-}
+func modes() []design.Mode { return design.Modes }
 
 // samplePoint is the generator offered the first time a design switches
 // to point mode: phi = -x^2, squared error.
@@ -96,7 +82,7 @@ type DesignPane struct {
 	err      error // the compile error of the current design
 	warnings []string
 	note     string // a one-line remark on the last action
-	byMode   map[modeSlot]string
+	byMode   map[design.Mode]string
 	// interval keeps a point design's interval while the design is a
 	// payout over outcomes (which must have none).
 	interval []float64
@@ -119,7 +105,7 @@ func NewDesignPane(st Styles, keys KeyMap, d *design.Design) DesignPane {
 	ti := textinput.New()
 	ti.Prompt = "› "
 	ti.Cursor.SetMode(cursor.CursorStatic)
-	return DesignPane{st: st, keys: keys, ta: ta, ti: ti, byMode: map[modeSlot]string{}, stepByMode: map[bool]float64{}}
+	return DesignPane{st: st, keys: keys, ta: ta, ti: ti, byMode: map[design.Mode]string{}, stepByMode: map[bool]float64{}}
 }
 
 // SetSize sets the outer size of the pane.
@@ -180,7 +166,7 @@ func (p *DesignPane) setCompiled(c *compiled) {
 func (p *DesignPane) reset(d *design.Design) {
 	p.stopEditing()
 	p.ta.SetValue(d.Formula)
-	p.params, p.err, p.sel, p.byMode, p.stepByMode = nil, nil, 0, map[modeSlot]string{}, map[bool]float64{}
+	p.params, p.err, p.sel, p.byMode, p.stepByMode = nil, nil, 0, map[design.Mode]string{}, map[bool]float64{}
 }
 
 func (p DesignPane) presetRow() int { return int(rowParams) + len(p.params) }
@@ -365,7 +351,7 @@ func (p *DesignPane) cycleMode(d *design.Design, up bool) {
 	i := 0
 	ms := modes()
 	for j, m := range ms {
-		if m == slotOf(d) {
+		if m == d.Mode {
 			i = j
 		}
 	}
@@ -375,26 +361,26 @@ func (p *DesignPane) cycleMode(d *design.Design, up bool) {
 		} else {
 			i = (i + len(ms) - 1) % len(ms)
 		}
-		if ms[i].mode != design.ModeEmphasis || d.N() == 2 {
+		if ms[i] != design.ModeEmphasis || d.N() == 2 {
 			break
 		}
 	}
-	p.byMode[slotOf(d)] = d.Formula
+	p.byMode[d.Mode] = d.Formula
 	p.stepByMode[onInterval(d)] = d.Budget.Step
 	if len(d.Interval) == 2 {
 		p.interval = d.Interval
 	}
-	d.Mode = ms[i].mode
+	d.Mode = ms[i]
 	switch {
-	case ms[i].interval && len(d.Interval) != 2:
+	case d.Mode.OnInterval() && len(d.Interval) != 2:
 		d.Interval = p.interval
-	case !ms[i].interval && d.Mode == design.ModePayout:
+	case d.Mode == design.ModePayout:
 		d.Interval = nil // a payout over outcomes has no interval
 	}
 	f, ok := p.byMode[ms[i]]
 	if !ok {
 		switch {
-		case ms[i] == modeSlot{design.ModePayout, true}:
+		case d.Mode == design.ModePointPayout:
 			f = samplePointPayout
 		case d.Mode == design.ModePayout:
 			f = samplePayout
@@ -406,12 +392,12 @@ func (p *DesignPane) cycleMode(d *design.Design, up bool) {
 	}
 	// The menu step means a probability step over outcomes and a step in
 	// the interval's units for point forecasts; each kind keeps its own.
-	if s, ok := p.stepByMode[ms[i].interval]; ok {
+	if s, ok := p.stepByMode[d.Mode.OnInterval()]; ok {
 		d.Budget.Step = s
-	} else if ms[i].interval {
+	} else if d.Mode.OnInterval() {
 		d.Budget.Step = 0 // BuildTable's default: a twentieth of the interval
 	}
-	if ms[i].interval && len(d.Interval) != 2 {
+	if d.Mode.OnInterval() && len(d.Interval) != 2 {
 		d.Interval = defaultInterval()
 	}
 	if f != "" {
@@ -594,7 +580,7 @@ func (p DesignPane) View(d *design.Design) string {
 		order = st.Dim.Render("— (a number on the interval)")
 	}
 	lines = append(lines, mark(1, "Order", order))
-	lines = append(lines, mark(2, "Mode", modeLine(slotOf(d))))
+	lines = append(lines, mark(2, "Mode", modeLine(d.Mode)))
 	hint := ""
 	if p.edit == editFormula {
 		hint = st.Dim.Render("editing — esc to stop")
@@ -637,12 +623,10 @@ func (p DesignPane) View(d *design.Design) string {
 	return paneFrame(st, title, p.focused, p.w, p.h, strings.Join(lines, "\n"))
 }
 
-func modeLine(s modeSlot) string {
-	if s == (modeSlot{design.ModePayout, true}) {
-		return "point payout audit (pay(x, y); ←/→)"
-	}
-	m := s.mode
+func modeLine(m design.Mode) string {
 	switch m {
+	case design.ModePointPayout:
+		return "point payout audit (pay(x, y); ←/→)"
 	case design.ModeGenerator:
 		return "generator (concave H; ←/→)"
 	case design.ModePayout:

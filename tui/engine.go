@@ -65,10 +65,9 @@ func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress f
 			return nil, err
 		}
 		return fromPoint(rep), nil
+	case design.ModePointPayout:
+		return auditPointPayout(ctx, d, s, progress)
 	case design.ModePayout:
-		if onInterval(d) {
-			return auditPointPayout(ctx, d, s, progress)
-		}
 		p, err := payout.New(d.Formula, payout.Options{Outcomes: d.N(), Ordered: d.Ordered, Weights: d.Weights, Params: d.Params})
 		if err != nil {
 			return nil, err

@@ -19,7 +19,7 @@ func TestPointPayoutAudit(t *testing.T) {
 	// generator -> payout -> emphasis -> point -> point payout.
 	press(t, m, keyDown, keyDown, keyRight, keyRight, keyRight, keyRight)
 	d := m.Design()
-	if d.Mode != design.ModePayout || len(d.Interval) != 2 || d.Formula != samplePointPayout {
+	if d.Mode != design.ModePointPayout || len(d.Interval) != 2 || d.Formula != samplePointPayout {
 		t.Fatalf("mode %s interval %v formula %q", d.Mode, d.Interval, d.Formula)
 	}
 	// 50 - (x - y)^2/200 is 50 - 0.005·D for squared error, D = (y - x)^2
@@ -64,7 +64,7 @@ func TestPointPayoutAudit(t *testing.T) {
 		t.Fatal(err)
 	}
 	back, err := design.Load(path)
-	if err != nil || !onInterval(back) || back.Mode != design.ModePayout || back.Formula != "50 - abs(x - y)" {
+	if err != nil || !onInterval(back) || back.Mode != design.ModePointPayout || back.Formula != "50 - abs(x - y)" {
 		t.Fatalf("reopened: %+v %v", back, err)
 	}
 	// The risk view refuses.

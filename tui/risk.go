@@ -135,7 +135,7 @@ func riskRun(ctx context.Context, d *design.Design, in RiskInputs, progress func
 
 // modeName names a design's mode in words.
 func modeName(d *design.Design) string {
-	if d.Mode == design.ModePayout {
+	if d.Mode.Payout() {
 		return "payout audit"
 	}
 	if d.Mode == design.ModePoint {

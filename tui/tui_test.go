@@ -419,7 +419,7 @@ func TestPointMode(t *testing.T) {
 	// Next, the point payout audit keeps the interval; then back to
 	// outcomes: the probability step comes back.
 	press(t, m, keyDown, keyDown, keyRight)
-	if d := m.Design(); d.Mode != design.ModePayout || len(d.Interval) != 2 || d.Interval[0] != 10 {
+	if d := m.Design(); d.Mode != design.ModePointPayout || len(d.Interval) != 2 || d.Interval[0] != 10 {
 		t.Fatalf("after point: mode %s interval %v", d.Mode, d.Interval)
 	}
 	press(t, m, keyRight)

@@ -50,7 +50,7 @@ func (c *contractFlags) apply(fs *flag.FlagSet, d *design.Design) error {
 		ct.Forecasts = c.forecasts
 	}
 	if set["base-rate"] {
-		if d.Mode == design.ModePoint {
+		if d.Mode.OnInterval() {
 			return usagef("--base-rate is for rules over outcomes")
 		}
 		q, err := num.ParseDistribution(c.baseRate, d.N())

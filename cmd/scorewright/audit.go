@@ -5,9 +5,7 @@ import (
 	"math"
 
 	"scorewright/generator/design"
-	"scorewright/generator/payout"
 	"scorewright/internal/num"
-	"scorewright/presets"
 	"scorewright/verify"
 )
 
@@ -63,42 +61,29 @@ func runAudit(e *env, args []string) error {
 	if err := parseFlags(e, fs, "(--outcomes N|label1,label2,... | --interval LO,HI) --payout EXPR [--ordered] [--weights w1,...] [--param name=value] "+verifyUsage, args, false); err != nil {
 		return err
 	}
-	if *interval != "" {
-		return runAuditPoint(e, *src, *interval, params, vf)
-	}
-	if *outcomes == "" {
-		return usagef("--outcomes is required (a count such as 2, or labels such as frost,clear)")
-	}
-	labels, err := design.ParseOutcomes(*outcomes)
-	if err != nil {
-		return usagef("--outcomes: %v", err)
-	}
-	if *src == "" {
-		return usagef("--payout is required, e.g. --payout '10 - 5*sum((p - hit)^2)'")
-	}
-	n := len(labels)
-	var w []float64
-	if *weights != "" {
-		if w, err = num.ParseVector(*weights); err != nil {
-			return usagef("--weights: %v", err)
-		}
-		if len(w) != n {
-			return usagef("--weights has %d values for %d outcomes", len(w), n)
-		}
-		// The same rule as a design's weights: a zero, negative or NaN
-		// weight is an input error, not a rule to audit.
-		d := design.Design{Version: design.SchemaVersion, Mode: design.ModePayout, Labels: labels, Formula: *src, Weights: w}
-		if err := d.Validate(); err != nil {
-			return usagef("--%v", err)
-		}
-	}
 	var ps map[string]float64
 	if len(params) > 0 {
 		ps = params
 	}
-	pay, err := payout.New(*src, payout.Options{Outcomes: n, Ordered: *ordered, Weights: w, Params: ps})
+	var d *design.Design
+	var err error
+	if *interval != "" {
+		d, err = pointPayoutDesign(*src, *interval, ps)
+	} else {
+		d, err = payoutDesign(*outcomes, *src, *weights, *ordered, ps)
+	}
 	if err != nil {
-		return formulaError("payout", err)
+		return err
+	}
+	return auditDesign(e, d, vf)
+}
+
+// auditDesign audits the payout of a design and prints the report;
+// errFailed after printing when the payout is improper or a check failed.
+func auditDesign(e *env, d *design.Design, vf *verifyFlags) error {
+	r, err := openRule(d)
+	if err != nil {
+		return err
 	}
 	s, err := vf.settings(e)
 	if err != nil {
@@ -106,43 +91,69 @@ func runAudit(e *env, args []string) error {
 	}
 	ctx, stop := interruptible()
 	defer stop()
-	rep, err := verify.Audit(ctx, pay, candidates(n, *ordered, w), s)
-	if err != nil {
-		if ctx.Err() != nil {
-			return usagef("audit interrupted")
-		}
+	found, err := r.Audit(ctx, s)
+	switch {
+	case err != nil && ctx.Err() != nil:
+		return usagef("audit interrupted")
+	case err != nil:
 		return usagef("audit: %v", err)
+	case found.Point != nil:
+		return printPointReport(e, found.Point, vf.asJSON)
 	}
+	rep := found.Audit
 	if vf.asJSON {
-		out := auditJSON{reportJSON: toReportJSON(&rep.Report), Payout: *src, Outcomes: labels, Direction: rep.Direction, Caution: auditCaution, Undefined: rep.Undefined,
-			Gap: gapJSON{Max: num.Float(rep.Gap.Max), Belief: vector(rep.Gap.Belief), BestReport: vector(rep.Gap.BestReport), Sharpened: rep.Gap.Sharpened}}
-		if id := rep.Identified; id != nil {
-			j := toIdentJSON(*id)
-			out.Identified = &j
-		}
-		for _, f := range rep.Fits {
-			out.Fits = append(out.Fits, toIdentJSON(f))
-		}
-		if err := writeJSON(e.stdout, out); err != nil {
+		if err := writeJSON(e.stdout, newAuditJSON(d.Formula, d.Labels, rep)); err != nil {
 			return err
 		}
 	} else {
-		printAudit(e, *src, labels, rep)
+		printAudit(e, d.Formula, d.Labels, rep)
 	}
-	if rep.Verdict == verify.Improper || rep.Failed() {
+	if found.Failed() {
 		return errFailed
 	}
 	return nil
 }
 
-// candidates compiles the generator presets that fit n outcomes, for
-// identifying a payout as an affine image of a known rule. Presets that
-// need weights are tried only when weights are given; ordered presets only
-// for ordered outcomes.
-func candidates(n int, ordered bool, w []float64) []verify.Candidate {
-	var out []verify.Candidate
-	for _, r := range presets.Rules(n, ordered, w) {
-		out = append(out, verify.Candidate(r))
+// payoutDesign is the design audit builds from --outcomes, --payout,
+// --weights and --ordered.
+func payoutDesign(outcomes, src, weights string, ordered bool, params map[string]float64) (*design.Design, error) {
+	if outcomes == "" {
+		return nil, usagef("--outcomes is required (a count such as 2, or labels such as frost,clear)")
+	}
+	labels, err := design.ParseOutcomes(outcomes)
+	if err != nil {
+		return nil, usagef("--outcomes: %v", err)
+	}
+	if src == "" {
+		return nil, usagef("--payout is required, e.g. --payout '10 - 5*sum((p - hit)^2)'")
+	}
+	d := &design.Design{Version: design.SchemaVersion, Mode: design.ModePayout, Labels: labels, Formula: src, Ordered: ordered, Params: params}
+	if weights != "" {
+		if d.Weights, err = num.ParseVector(weights); err != nil {
+			return nil, usagef("--weights: %v", err)
+		}
+		if len(d.Weights) != len(labels) {
+			return nil, usagef("--weights has %d values for %d outcomes", len(d.Weights), len(labels))
+		}
+		// The same rule as a design's weights: a zero, negative or NaN
+		// weight is an input error, not a rule to audit.
+		if err := d.Validate(); err != nil {
+			return nil, usagef("--%v", err)
+		}
+	}
+	return d, nil
+}
+
+// newAuditJSON is what audit --json prints for a payout over outcomes.
+func newAuditJSON(src string, labels []string, rep *verify.AuditReport) auditJSON {
+	out := auditJSON{reportJSON: toReportJSON(&rep.Report), Payout: src, Outcomes: labels, Direction: rep.Direction, Caution: auditCaution, Undefined: rep.Undefined,
+		Gap: gapJSON{Max: num.Float(rep.Gap.Max), Belief: vector(rep.Gap.Belief), BestReport: vector(rep.Gap.BestReport), Sharpened: rep.Gap.Sharpened}}
+	if id := rep.Identified; id != nil {
+		j := toIdentJSON(*id)
+		out.Identified = &j
+	}
+	for _, f := range rep.Fits {
+		out.Fits = append(out.Fits, toIdentJSON(f))
 	}
 	return out
 }

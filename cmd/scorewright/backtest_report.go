@@ -24,14 +24,18 @@ const fewPerBin = 5
 
 func newBacktestReport(path string, h *history.Reader, schemes []*backtestScheme, res *backtest.Result) *backtestReport {
 	r := &backtestReport{History: path, Outcomes: h.Labels(), Tolerance: h.Tolerance(), Rows: res.Rows,
-		SkipCount: res.SkippedCount, Skipped: []skippedReport{}, Caution: table.Caution()}
+		SkipCount: res.SkippedCount, Skipped: []skippedReport{}, Caution: table.Caution(), unit: h.Unit()}
 	for _, s := range res.Skipped {
-		r.Skipped = append(r.Skipped, skippedReport(s))
+		sr := skippedReport{Line: s.Line, Why: s.Why}
+		if s.EndLine > s.Line {
+			sr.EndLine = s.EndLine
+		}
+		r.Skipped = append(r.Skipped, sr)
 	}
 	for i, s := range schemes {
 		m := res.All[i]
 		r.decimals = append(r.decimals, s.money.decimals)
-		rr := ruleReport{ID: s.id, Name: s.name, Formula: ruleFormula(s.d), Pay: s.money.formula,
+		rr := ruleReport{ID: s.id, Name: s.name, Formula: s.statement, Pay: s.money.formula,
 			Menu: s.money.menu, Budget: s.money.budget, Count: m.Count, Total: num.Float(m.Total), Mean: num.Float(m.Mean),
 			Min: num.Float(m.Min), Max: num.Float(m.Max), OffMenu: m.OffMenu, BelowLow: m.BelowLow, AboveHigh: m.AboveHigh,
 			NonFinite: m.NonFinite, MostTotal: num.Float(float64(m.Count) * s.money.high)}
@@ -212,7 +216,7 @@ func (r *backtestReport) writeText(w io.Writer) error {
 				fmt.Fprintf(w, "  ... and %d more (--json lists the first %d)\n", r.SkipCount-maxSkippedShown, len(r.Skipped))
 				break
 			}
-			fmt.Fprintf(w, "  line %d: %s\n", s.Line, s.Why)
+			fmt.Fprintf(w, "  %s: %s\n", (&history.RowError{Line: s.Line, EndLine: s.EndLine, Unit: r.unit}).Where(), s.Why)
 		}
 	}
 	fmt.Fprintln(w)

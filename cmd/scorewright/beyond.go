@@ -1,34 +1,17 @@
 package main
 
 import (
+	"context"
 	"fmt"
 	"io"
 	"math"
 
+	"scorewright"
+	"scorewright/contract/lottery"
+
 	"scorewright/contract/table"
-	"scorewright/generator/bregman"
-	"scorewright/generator/design"
-	"scorewright/generator/emphasis"
-	"scorewright/generator/formula"
 	"scorewright/internal/num"
 )
-
-// emphasisRule integrates an emphasis-mode design's weight into a binary
-// rule. A weight that is negative or not finite somewhere on the check
-// grid is refused, naming where; an unbounded rule is built, and its
-// warnings are available through ruleWarnings.
-func emphasisRule(d *design.Design) (*bregman.Rule, error) {
-	g, err := emphasis.New(d.Formula, emphasis.Options{Params: d.Params})
-	if _, ok := err.(*formula.Error); ok {
-		return nil, formulaError("emphasis", err)
-	} else if err != nil {
-		return nil, usagef("%v", err)
-	}
-	if err := g.Diagnostics().Problem(); err != nil {
-		return nil, usagef("%v", err)
-	}
-	return &bregman.Rule{Gen: g, Labels: d.Labels}, nil
-}
 
 // lotteryJSON is the lottery part of a table summary.
 type lotteryJSON struct {
@@ -45,11 +28,18 @@ type lotteryJSON struct {
 	MinMargin num.Float `json:"min_margin"`
 }
 
-// lotteryTable turns a money table into drawable chances of winning a
-// prize of hi - lo, whole multiples of 1/draws, and re-checks them with
-// recheck; lo and hi must hold every payment in the table.
-func lotteryTable(tb *table.Table, lo, hi float64, convert func() error) (*lotteryJSON, error) {
-	if err := convert(); err != nil {
+// lotteryTable turns the money table tb of t into drawable chances of
+// winning a prize of hi - lo (lo and hi the bounds of every payment in
+// t), whole multiples of 1/draws, and re-checks them.
+func lotteryTable(tb *table.Table, t *scorewright.Table, draws int) (*lotteryJSON, error) {
+	lo, hi := t.Bounds()
+	var err error
+	if t.Point != nil {
+		_, err = lottery.ForPoint(context.Background(), t.Point, tb, draws)
+	} else {
+		_, err = lottery.ForFit(context.Background(), t.Fit, tb, draws)
+	}
+	if err != nil {
 		return nil, usagef("--lottery: %v", err)
 	}
 	return &lotteryJSON{Prize: num.Float(hi - lo), Floor: num.Float(lo), Cap: num.Float(hi), Draws: tb.Decimals,
@@ -68,13 +58,4 @@ func printLottery(w io.Writer, l *lotteryJSON) {
 		}
 		fmt.Fprintf(w, "lottery re-check\t%s on the rounded chances, smallest margin %s (the re-check line below is of the money table)\n", verdict, table.FormatNumber(float64(l.MinMargin)))
 	}
-}
-
-// ruleWarnings are remarks about a rule a user should see beside its
-// numbers, such as an emphasis weight that makes the rule unbounded.
-func ruleWarnings(r *bregman.Rule) []string {
-	if g, ok := r.Gen.(*emphasis.Generator); ok {
-		return g.Diagnostics().Warnings()
-	}
-	return nil
 }

@@ -97,7 +97,7 @@ func pointEnv() (*env, *bytes.Buffer) {
 func TestCheckAndAuditPoint(t *testing.T) {
 	d := &design.Design{Version: 1, Mode: design.ModePoint, Formula: "-x^2", Interval: []float64{0, 500}}
 	e, out := pointEnv()
-	if err := runCheckPoint(e, d, &verifyFlags{resolution: 20, tolerance: 1e-9, asJSON: true}); err != nil {
+	if err := checkDesign(e, d, &verifyFlags{resolution: 20, tolerance: 1e-9, asJSON: true}); err != nil {
 		t.Fatalf("%v\n%s", err, out)
 	}
 	var rep struct {
@@ -122,14 +122,14 @@ func TestCheckAndAuditPoint(t *testing.T) {
 	}
 	d.Formula = "x^2"
 	e, out = pointEnv()
-	if err := runCheckPoint(e, d, &verifyFlags{resolution: 10, tolerance: 1e-9}); err != errFailed || !strings.Contains(out.String(), "verdict: improper") {
+	if err := checkDesign(e, d, &verifyFlags{resolution: 10, tolerance: 1e-9}); err != errFailed || !strings.Contains(out.String(), "verdict: improper") {
 		t.Errorf("convex generator: %v\n%s", err, out)
 	}
 
 	// A dairy pays 40 - 0.01 (x - y)^2 for a milk-yield forecast: recognised
 	// as squared error with scale 0.01.
 	e, out = pointEnv()
-	if err := runAuditPoint(e, "40 - 0.01*(x - y)^2", "0,60", nil, &verifyFlags{resolution: 20, tolerance: 1e-9, asJSON: true}); err != nil {
+	if err := auditDesign(e, pointPayout("40 - 0.01*(x - y)^2"), &verifyFlags{resolution: 20, tolerance: 1e-9, asJSON: true}); err != nil {
 		t.Fatalf("%v\n%s", err, out)
 	}
 	rep.Identified = nil
@@ -137,10 +137,10 @@ func TestCheckAndAuditPoint(t *testing.T) {
 		t.Errorf("audit: %v %+v", err, rep)
 	}
 	e, out = pointEnv()
-	if err := runAuditPoint(e, "40 - abs(x - y)", "0,60", nil, &verifyFlags{resolution: 20, tolerance: 1e-9, asJSON: true}); err != errFailed {
+	if err := auditDesign(e, pointPayout("40 - abs(x - y)"), &verifyFlags{resolution: 20, tolerance: 1e-9, asJSON: true}); err != errFailed {
 		t.Errorf("absolute error: %v\n%s", err, out)
 	}
-	if err := runAuditPoint(e, "40 - abs(x - q)", "0,60", nil, &verifyFlags{resolution: 20, tolerance: 1e-9, asJSON: true}); err == nil || !strings.Contains(err.Error(), "payout formula") {
+	if err := auditDesign(e, pointPayout("40 - abs(x - q)"), &verifyFlags{resolution: 20, tolerance: 1e-9, asJSON: true}); err == nil || !strings.Contains(err.Error(), "payout formula") {
 		t.Errorf("bad payout formula: %v", err)
 	}
 }
@@ -148,7 +148,7 @@ func TestCheckAndAuditPoint(t *testing.T) {
 func TestTablePoint(t *testing.T) {
 	d := &design.Design{Version: 1, Mode: design.ModePoint, Formula: "-x^2", Interval: []float64{0, 10}, Budget: design.Budget{Floor: 0, Cap: 100, Step: 1}}
 	e, out := pointEnv()
-	if err := runTablePoint(e, d, "csv", &tableFlags{}); err != nil {
+	if err := tableOf(e, newFlags("table"), d, "csv", &tableFlags{}); err != nil {
 		t.Fatal(err)
 	}
 	// pay = 100 - (y - x)^2 (derived by hand: the worst cell has D = 100).
@@ -156,13 +156,13 @@ func TestTablePoint(t *testing.T) {
 		t.Errorf("table:\n%s", out)
 	}
 	path := t.TempDir() + "/dairy.csv"
-	if err := runTablePoint(e, d, "json", &tableFlags{out: path}); err != nil {
+	if err := tableOf(e, newFlags("table"), d, "json", &tableFlags{out: path}); err != nil {
 		t.Fatal(err)
 	}
-	if err := runTablePoint(e, d, "json", &tableFlags{out: path}); err == nil || !strings.Contains(err.Error(), "--force") {
+	if err := tableOf(e, newFlags("table"), d, "json", &tableFlags{out: path}); err == nil || !strings.Contains(err.Error(), "--force") {
 		t.Errorf("overwrote without --force: %v", err)
 	}
-	if err := runTablePoint(e, d, "json", &tableFlags{out: path, force: true}); err != nil {
+	if err := tableOf(e, newFlags("table"), d, "json", &tableFlags{out: path, force: true}); err != nil {
 		t.Errorf("--force: %v", err)
 	}
 }
@@ -271,4 +271,9 @@ func TestDistortUnboundedOffersOnlyItsFlags(t *testing.T) {
 	if code != 2 || !strings.Contains(errs, "--report-floor") || strings.Contains(errs, "clamp") || strings.Count(errs, "\n") != 1 {
 		t.Errorf("exit %d, stderr %q", code, errs)
 	}
+}
+
+// pointPayout is the design `audit --interval 0,60 --payout src` audits.
+func pointPayout(src string) *design.Design {
+	return &design.Design{Version: 1, Mode: design.ModePointPayout, Interval: []float64{0, 60}, Formula: src}
 }

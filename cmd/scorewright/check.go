@@ -1,12 +1,13 @@
 package main
 
 import (
+	"errors"
 	"fmt"
 	"sort"
 	"strings"
 
+	"scorewright"
 	"scorewright/generator/design"
-	"scorewright/verify"
 )
 
 func runCheck(e *env, args []string) error {
@@ -20,10 +21,13 @@ func runCheck(e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	if d.Mode == design.ModePoint {
-		return runCheckPoint(e, d, vf)
-	}
-	rule, err := categoricalRule(d)
+	return checkDesign(e, d, vf)
+}
+
+// checkDesign checks a design and prints the report; errFailed after
+// printing when the rule is improper or a check failed.
+func checkDesign(e *env, d *design.Design, vf *verifyFlags) error {
+	r, err := openRule(d)
 	if err != nil {
 		return err
 	}
@@ -33,35 +37,37 @@ func runCheck(e *env, args []string) error {
 	}
 	ctx, stop := interruptible()
 	defer stop()
-	rep, err := verify.CheckRule(ctx, rule, s)
-	if err != nil {
-		if ctx.Err() != nil {
-			return usagef("check interrupted")
-		}
+	found, err := r.Check(ctx, s)
+	var needs *scorewright.NeedsOutcomesError
+	switch {
+	case errors.As(err, &needs):
+		return usagef("%v", err)
+	case err != nil && ctx.Err() != nil:
+		return usagef("check interrupted")
+	case err != nil:
 		return usagef("check: %v", err)
+	case found.Point != nil:
+		return printPointReport(e, found.Point, vf.asJSON)
 	}
+	rep := found.Rule
 	if vf.asJSON {
 		if err := writeJSON(e.stdout, toReportJSON(rep)); err != nil {
 			return err
 		}
 	} else {
-		fmt.Fprintf(e.stdout, "rule:    %s\n", describeRule(d))
+		fmt.Fprintf(e.stdout, "rule:    %s\n", describeRule(r.Kind(), d))
 		printReport(e.stdout, rep)
 	}
-	if rep.Verdict == verify.Improper || rep.Failed() {
+	if found.Failed() {
 		return errFailed
 	}
 	return nil
 }
 
-// describeRule is the one-line statement of what was checked: mode,
-// formula (its lines joined), overridden parameters, outcomes.
-func describeRule(d *design.Design) string {
+// describeRule is the one-line statement of what was checked: the kind of
+// formula, the formula (its lines joined), overridden parameters, outcomes.
+func describeRule(mode string, d *design.Design) string {
 	var b strings.Builder
-	mode := string(d.Mode)
-	if mode == "" {
-		mode = string(design.ModeGenerator)
-	}
 	if d.Preset != "" {
 		mode += " (preset " + d.Preset + ")"
 	}

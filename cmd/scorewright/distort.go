@@ -10,7 +10,6 @@ import (
 	"scorewright/contract/budget"
 	"scorewright/contract/risk"
 	"scorewright/contract/risk/riskfit"
-	"scorewright/generator/design"
 	"scorewright/internal/num"
 )
 
@@ -70,15 +69,19 @@ func runDistort(e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	if d.Mode == design.ModePoint {
+	r, err := openRule(d)
+	if err != nil {
+		return err
+	}
+	if r.OnInterval() {
 		return usagef("distort works on rules over outcomes; it does not take point-forecast designs")
 	}
 	if err := bf.apply(fs, d); err != nil {
 		return err
 	}
-	rule, err := categoricalRule(d)
+	rule, err := r.OverOutcomes()
 	if err != nil {
-		return err
+		return usagef("%v", err)
 	}
 	n := rule.Outcomes()
 	fitted, err := riskfit.New(rule, d.Budget)

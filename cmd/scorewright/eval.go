@@ -5,7 +5,6 @@ import (
 	"math"
 	"text/tabwriter"
 
-	"scorewright/generator/design"
 	"scorewright/internal/num"
 )
 
@@ -37,12 +36,16 @@ func runEval(e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	if d.Mode == design.ModePoint {
-		return runEvalPoint(e, d, *report, *belief, *asJSON)
-	}
-	rule, err := categoricalRule(d)
+	r, err := openRule(d)
 	if err != nil {
 		return err
+	}
+	if g := r.Point(); g != nil {
+		return runEvalPoint(e, g, *report, *belief, *asJSON)
+	}
+	rule, err := r.OverOutcomes()
+	if err != nil {
+		return usagef("%v", err)
 	}
 	n := rule.Outcomes()
 	if *report == "" {
@@ -72,7 +75,7 @@ func runEval(e *env, args []string) error {
 		d1, w1 := num.Float(dh), num.Float(w)
 		out.Derivative, out.Emphasis = &d1, &w1
 	}
-	out.Notes = append(nonFiniteNotes(d.Labels, p, h, eff), ruleWarnings(rule)...)
+	out.Notes = append(nonFiniteNotes(d.Labels, p, h, eff), r.Warnings()...)
 	if *asJSON {
 		return writeJSON(e.stdout, out)
 	}

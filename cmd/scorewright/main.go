@@ -41,6 +41,7 @@ func commands() map[string]command {
 		"audit":    {"audit a payout formula for honesty", runAudit},
 		"table":    {"fit a rule to a budget and export the payment table", runTable},
 		"distort":  {"the report a risk-averse forecaster gives", runDistort},
+		"research": {"what research is worth under each rule, and the best bounded rule for it", runResearch},
 		"backtest": {"what a rule would have paid on a forecast history", runBacktest},
 		"open":     {"open a saved design in the workbench", runOpen},
 	}

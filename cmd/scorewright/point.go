@@ -5,20 +5,17 @@ package main
 // mode (--interval LO,HI).
 
 import (
-	"context"
-	"errors"
 	"flag"
 	"fmt"
 	"io"
 	"math"
+	"scorewright"
 	"strconv"
 	"strings"
 	"text/tabwriter"
 
-	"scorewright/contract/lottery"
 	"scorewright/contract/table"
 	"scorewright/generator/design"
-	"scorewright/generator/formula"
 	"scorewright/generator/point"
 	"scorewright/internal/num"
 	"scorewright/presets"
@@ -50,29 +47,6 @@ func pointPresetNames() []string {
 		}
 	}
 	return names
-}
-
-// pointGenerator compiles a point-mode design.
-func pointGenerator(d *design.Design) (*point.Generator, error) {
-	if d.Mode != design.ModePoint || len(d.Interval) != 2 {
-		return nil, usagef("this needs a point-forecast design (--interval LO,HI)")
-	}
-	g, err := point.New(d.Formula, d.Interval[0], d.Interval[1], point.Options{Params: d.Params})
-	if _, ok := err.(*formula.Error); ok {
-		return nil, formulaError("point-forecast generator", err)
-	} else if err != nil {
-		return nil, usagef("%v", err)
-	}
-	return g, nil
-}
-
-// pointCandidates are the point presets an audited payout is compared with.
-func pointCandidates(lo, hi float64) []pointcheck.Candidate {
-	var out []pointcheck.Candidate
-	for _, g := range presets.PointGenerators(lo, hi) {
-		out = append(out, pointcheck.Candidate(g))
-	}
-	return out
 }
 
 // parseOutcomeDistribution reads "y1,y2,..." (equally likely) or
@@ -121,11 +95,7 @@ type pointEvalJSON struct {
 // runEvalPoint is eval for a point design: phi and its derivatives at the
 // report x, and with --belief y1,y2,... (or y:w pairs) the effort
 // D(y, x) of each outcome, the expected effort and that of the mean.
-func runEvalPoint(e *env, d *design.Design, report, belief string, asJSON bool) error {
-	g, err := pointGenerator(d)
-	if err != nil {
-		return err
-	}
+func runEvalPoint(e *env, g *point.Generator, report, belief string, asJSON bool) error {
 	if report == "" {
 		return usagef("--report X is required (the point forecast)")
 	}
@@ -138,7 +108,7 @@ func runEvalPoint(e *env, d *design.Design, report, belief string, asJSON bool) 
 	}
 	ev := g.NewEvaluator()
 	phi, d1, d2 := ev.Derivatives(x)
-	out := pointEvalJSON{Interval: d.Interval, Report: num.Floats([]float64{x}), Entropy: num.Float(phi), Derivative: num.Float(d1), SecondDerivative: num.Float(d2)}
+	out := pointEvalJSON{Interval: []float64{g.Lo, g.Hi}, Report: num.Floats([]float64{x}), Entropy: num.Float(phi), Derivative: num.Float(d1), SecondDerivative: num.Float(d2)}
 	if belief != "" {
 		ys, ws, err := parseOutcomeDistribution(belief)
 		if err != nil {
@@ -185,75 +155,23 @@ func runEvalPoint(e *env, d *design.Design, report, belief string, asJSON bool) 
 	return nil
 }
 
-// runCheckPoint is check for a point design (--interval LO,HI). It
-// returns errFailed after printing when a check fails.
-func runCheckPoint(e *env, d *design.Design, vf *verifyFlags) error {
-	g, err := pointGenerator(d)
-	if err != nil {
-		return err
-	}
-	s, err := pointSettings(e, vf)
-	if err != nil {
-		return err
-	}
-	ctx, stop := interruptible()
-	defer stop()
-	rep, err := pointcheck.CheckGenerator(ctx, g, s)
-	if err != nil {
-		return usagef("check: %v", err)
-	}
-	return printPointReport(e, rep, vf.asJSON)
-}
-
-// pointSettings maps check's and audit's flags to the point checks.
-func pointSettings(e *env, vf *verifyFlags) (pointcheck.Settings, error) {
-	vs, err := vf.settings(e)
-	if err != nil {
-		return pointcheck.Settings{}, err
-	}
-	s := pointcheck.Settings{Resolution: vs.Resolution, Tolerance: vs.Tolerance}
-	if vs.Progress != nil {
-		s.Progress = func(done, total int) { vs.Progress(int64(done), int64(total)) }
-	}
-	return s, nil
-}
-
-// addPointAuditFlag registers audit's --interval; the audit command calls
-// runAuditPoint when it is set.
+// addPointAuditFlag registers audit's --interval, which makes the audited
+// payout a point-forecast payout pay(x, y).
 func addPointAuditFlag(fs *flag.FlagSet) *string {
 	return fs.String("interval", "", "audit a point-forecast payout pay(x, y) on [LO, HI] (x the report, y the outcome) instead of --outcomes")
 }
 
-// runAuditPoint is audit for a point-forecast payout pay(x, y) on the
-// interval "LO,HI".
-func runAuditPoint(e *env, payout, interval string, params map[string]float64, vf *verifyFlags) error {
+// pointPayoutDesign is the design audit builds from --interval "LO,HI"
+// and --payout.
+func pointPayoutDesign(payout, interval string, params map[string]float64) (*design.Design, error) {
 	iv, err := num.ParseVector(interval)
 	if err != nil || len(iv) != 2 || !(iv[0] < iv[1]) || math.IsInf(iv[0], 0) || math.IsInf(iv[1], 0) {
-		return usagef("--interval wants LO,HI with LO < HI, got %q", interval)
+		return nil, usagef("--interval wants LO,HI with LO < HI, got %q", interval)
 	}
 	if payout == "" {
-		return usagef("--payout EXPR in x (the report) and y (the outcome) is required")
+		return nil, usagef("--payout EXPR in x (the report) and y (the outcome) is required")
 	}
-	if len(params) == 0 {
-		params = nil
-	}
-	p, err := pointcheck.NewPayout(payout, params)
-	if _, ok := err.(*formula.Error); ok {
-		return formulaError("payout", err)
-	} else if err != nil {
-		return usagef("%v", err)
-	}
-	s, err := pointSettings(e, vf)
-	if err != nil {
-		return err
-	}
-	ctx, stop := interruptible()
-	defer stop()
-	rep, err := pointcheck.AuditPayout(ctx, p, iv[0], iv[1], s, pointCandidates(iv[0], iv[1]))
-	if err != nil {
-		return usagef("audit: %v", err)
-	}
-	return printPointReport(e, rep, vf.asJSON)
+	return &design.Design{Version: design.SchemaVersion, Mode: design.ModePointPayout, Interval: iv, Formula: payout, Params: params}, nil
 }
 
 type pointCheckJSON struct {
@@ -333,47 +251,18 @@ func printPointReport(e *env, rep *pointcheck.Report, asJSON bool) error {
 	return nil
 }
 
-// runTablePoint is table for a point design: the menu of reports (budget
-// step, default a twentieth of the interval) against outcome columns,
-// fitted to the budget's floor and cap, rounded, re-checked and exported
-// like any other table.
-func runTablePoint(e *env, d *design.Design, format string, tf *tableFlags) error {
-	g, err := pointGenerator(d)
-	if err != nil {
-		return err
-	}
-	b := d.Budget
-	switch {
-	case b.MeanPay != nil:
-		return usagef("point-forecast tables are fitted to --floor and --cap; --mean-pay is for rules over outcomes")
-	case !(b.Cap > b.Floor):
-		return usagef("give --floor F --cap C with C > F")
-	case tf.menu != "" || tf.clamp != 0:
-		return usagef("--menu and --clamp are for rules over outcomes; a point-forecast menu is --step S in the units of the interval")
-	}
-	ctx := context.Background()
-	fit, err := g.BuildTable(ctx, point.TableSpec{Floor: b.Floor, Cap: b.Cap, Step: b.Step, Unit: b.Unit, Rounding: b.Rounding})
-	if errors.Is(err, point.ErrUnbounded) {
-		return usagef("%v; narrow the interval so the effort stays finite", err)
-	} else if err != nil {
-		return usagef("%v", err)
-	}
-	rc, err := fit.Recheck(ctx)
-	if err != nil {
-		return usagef("%v", err)
-	}
-	tb := fit.Export(rc, point.Info{Title: d.Title, Preset: d.Preset, Params: d.Params, Version: version, Date: exportDate()})
+// writePointTable exports the table of a point design (the menu of
+// reports against outcome columns) and prints its summary, like any other
+// table.
+func writePointTable(e *env, d *design.Design, t *scorewright.Table, tb *table.Table, format string, tf *tableFlags) error {
+	fit, rc := t.Point, t.PointRecheck
 	ax, err := annexInput(d, tb, nil, 0, 0, 0)
 	if err != nil {
 		return err
 	}
 	sum := newPointTableSummary(fit, rc, tb, format, tf.out)
 	if tf.lottery {
-		lo, hi := lottery.PointBounds(fit)
-		if sum.Lottery, err = lotteryTable(tb, lo, hi, func() error {
-			_, err := lottery.ForPoint(ctx, fit, tb, tf.draws)
-			return err
-		}); err != nil {
+		if sum.Lottery, err = lotteryTable(tb, t, tf.draws); err != nil {
 			return err
 		}
 		sum.Caution = tb.Meta.Cautions

@@ -10,6 +10,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"scorewright"
 	"strconv"
 	"strings"
 	"text/tabwriter"
@@ -101,37 +102,40 @@ func runTable(e *env, args []string) error {
 	if err := cf.apply(fs, d); err != nil {
 		return err
 	}
-	if d.Mode == design.ModePoint {
-		return runTablePoint(e, d, format, tf)
-	}
-	rule, err := categoricalRule(d)
+	return tableOf(e, fs, d, format, tf)
+}
+
+// tableOf fits, re-checks and exports the table of a design; fs holds the
+// flags the report menu is read from.
+func tableOf(e *env, fs *flag.FlagSet, d *design.Design, format string, tf *tableFlags) error {
+	r, err := openRule(d)
 	if err != nil {
 		return err
 	}
-	menu, err := tableMenu(fs, tf, d)
-	if err != nil {
-		return err
+	if r.OnInterval() && (tf.menu != "" || tf.clamp != 0) {
+		return usagef("--menu and --clamp are for rules over outcomes; a point-forecast menu is --step S in the units of the interval")
 	}
-	fit, err := budget.FitRule(rule, menu, d.Budget)
-	if err != nil {
+	t, err := r.Table(context.Background(), func(int) (*budget.Menu, error) { return tableMenu(fs, tf, d) })
+	switch {
+	case errors.Is(err, scorewright.ErrMeanPayOnInterval):
+		return usagef("point-forecast tables are fitted to --floor and --cap; --mean-pay is for rules over outcomes")
+	case errors.Is(err, scorewright.ErrNoCap):
+		return usagef("give --floor F --cap C with C > F")
+	case err != nil:
 		return fitError(err)
 	}
-	rc, err := fit.Recheck(context.Background(), budget.RecheckSettings{})
-	if err != nil {
-		return err
+	tb := r.Export(t, version, exportDate())
+	if t.Point != nil {
+		return writePointTable(e, d, t, tb, format, tf)
 	}
-	tb := fit.Table(rc, budget.DesignInfo(d, version, exportDate()))
-	ax, err := annexInput(d, tb, rule, fit.A, fit.B, fit.Clamp)
+	fit, rc := t.Fit, t.Recheck
+	ax, err := annexInput(d, tb, r.Outcomes(), fit.A, fit.B, fit.Clamp)
 	if err != nil {
 		return err
 	}
 	var lot *lotteryJSON
 	if tf.lottery {
-		lo, hi := lottery.Bounds(fit)
-		if lot, err = lotteryTable(tb, lo, hi, func() error {
-			_, err := lottery.ForFit(context.Background(), fit, tb, tf.draws)
-			return err
-		}); err != nil {
+		if lot, err = lotteryTable(tb, t, tf.draws); err != nil {
 			return err
 		}
 	}

@@ -53,6 +53,7 @@ type batch struct {
 	rows   []history.Row
 	ok     []bool
 	why    []string
+	end    []int     // last line of each bad record
 	p      []float64 // n per row, backing rows[i].P
 	offset int64
 	err    error // a reading error that ends the input (not io.EOF)
@@ -79,7 +80,7 @@ func Run(ctx context.Context, h *history.Reader, schemes []Scheme, opt Options) 
 	free := make(chan *batch, inFlight)
 	full := make(chan *batch, inFlight)
 	for range inFlight {
-		b := &batch{rows: make([]history.Row, batchRows), ok: make([]bool, batchRows), why: make([]string, batchRows), p: make([]float64, batchRows*n)}
+		b := &batch{rows: make([]history.Row, batchRows), ok: make([]bool, batchRows), why: make([]string, batchRows), end: make([]int, batchRows), p: make([]float64, batchRows*n)}
 		for i := range b.rows {
 			b.rows[i].P = b.p[i*n : (i+1)*n]
 		}
@@ -113,11 +114,11 @@ func Run(ctx context.Context, h *history.Reader, schemes []Scheme, opt Options) 
 			row := &b.rows[i]
 			if !b.ok[i] {
 				if opt.Strict {
-					return nil, &history.RowError{Line: row.Line, Why: b.why[i]}
+					return nil, &history.RowError{Line: row.Line, EndLine: b.end[i], Why: b.why[i], Unit: h.Unit()}
 				}
 				nSkipped++
 				if len(skipped) < keep {
-					skipped = append(skipped, Skipped{Line: row.Line, Why: b.why[i]})
+					skipped = append(skipped, Skipped{Line: row.Line, EndLine: b.end[i], Why: b.why[i]})
 				}
 				continue
 			}
@@ -150,7 +151,7 @@ func readBatches(h *history.Reader, n int, free <-chan *batch, full chan<- *batc
 		case <-done:
 			return
 		}
-		b.rows, b.ok, b.why = b.rows[:cap(b.rows)], b.ok[:cap(b.ok)], b.why[:cap(b.why)]
+		b.rows, b.ok, b.why, b.end = b.rows[:cap(b.rows)], b.ok[:cap(b.ok)], b.why[:cap(b.why)], b.end[:cap(b.end)]
 		i := 0
 		var end error
 		var re *history.RowError
@@ -170,7 +171,7 @@ func readBatches(h *history.Reader, n int, free <-chan *batch, full chan<- *batc
 				b.ok[i], b.why[i] = true, ""
 			case errors.As(err, &re):
 				*dst = history.Row{Line: re.Line, P: dst.P}
-				b.ok[i], b.why[i] = false, re.Why
+				b.ok[i], b.why[i], b.end[i] = false, re.Why, re.EndLine
 			default:
 				b.err, end = err, err
 			}

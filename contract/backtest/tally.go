@@ -115,10 +115,12 @@ type Result struct {
 	Skipped            []Skipped
 }
 
-// Skipped is a row left out, with the reason.
+// Skipped is a record left out, with the reason: Line is where it starts
+// and EndLine where it ends (past Line when a quoted field ran across
+// lines).
 type Skipped struct {
-	Line int
-	Why  string
+	Line, EndLine int
+	Why           string
 }
 
 // sum is a compensated (Neumaier) running sum; Inf and NaN pass through.

@@ -140,7 +140,9 @@ func convertDrawable(t *table.Table, lo, hi float64, draws int) error {
 }
 
 // Bounds are the floor and cap a lottery made from f uses.
-func Bounds(f *budget.Fit) (lo, hi float64) { return math.Min(f.Floor, f.MinPay), math.Max(f.Cap, f.MaxPay) }
+func Bounds(f *budget.Fit) (lo, hi float64) {
+	return math.Min(f.Floor, f.MinPay), math.Max(f.Cap, f.MaxPay)
+}
 
 // PointBounds are the floor and cap a lottery made from a point table uses.
 func PointBounds(f *point.Table) (lo, hi float64) {

@@ -105,6 +105,9 @@ type Scorer struct {
 	grad []float64
 	eff  []float64
 	hess []float64
+	// Scratch for the limit at boundary reports, made on first use.
+	limit []limitState
+	pt    []float64
 }
 
 // NewScorer returns a Scorer for r.
@@ -127,11 +130,17 @@ func (s *Scorer) Entropy(q []float64) float64 {
 
 // Efforts writes L(p, k) for every outcome k into dst and returns H(p).
 // An outcome the report rules out (p_k = 0) may cost +Inf; that is a value,
-// not an error.
+// not an error. At a report on the boundary (some p_j = 0) the efforts
+// are the limit from the interior (boundary.go), where the gradient of H
+// may be infinite or no supergradient.
 func (s *Scorer) Efforts(dst, p []float64) float64 {
 	s.check("report", p)
 	s.check("effort", dst)
 	h := s.ev.Gradient(s.grad, p)
+	if onBoundary(p) {
+		s.boundaryEfforts(dst, p, h)
+		return h
+	}
 	gp := Dot(s.grad, p)
 	for k := range dst {
 		dst[k] = h + s.grad[k] - gp

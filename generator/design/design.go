@@ -7,6 +7,8 @@ package design
 import (
 	"errors"
 	"fmt"
+	"maps"
+	"slices"
 	"strconv"
 	"strings"
 	"unicode"
@@ -29,7 +31,21 @@ const (
 	ModePoint Mode = "point"
 	// ModeEmphasis: the formula is a weight w(c) >= 0 on (0, 1) for n = 2.
 	ModeEmphasis Mode = "emphasis"
+	// ModePointPayout: the formula is somebody's payout pay(x, y) for a
+	// point forecast x of an outcome y on Interval, under audit.
+	ModePointPayout Mode = "point-payout"
 )
+
+// Modes lists every mode, in the order the workbench cycles through them.
+var Modes = []Mode{ModeGenerator, ModePayout, ModeEmphasis, ModePoint, ModePointPayout}
+
+// OnInterval reports whether the mode is about a number on an interval
+// (a point forecast) rather than a distribution over outcomes.
+func (m Mode) OnInterval() bool { return m == ModePoint || m == ModePointPayout }
+
+// Payout reports whether the formula of the mode is a payout under audit
+// (more is better) rather than a rule's generator.
+func (m Mode) Payout() bool { return m == ModePayout || m == ModePointPayout }
 
 // Budget is how a rule is turned into money. Zero values mean "not set".
 type Budget struct {
@@ -83,6 +99,23 @@ type Design struct {
 
 // SchemaVersion is the design file version this build writes.
 const SchemaVersion = 1
+
+// Clone is a deep copy of d: no slice, map or pointer is shared, so a
+// copy handed to a background job never changes under it.
+func (d *Design) Clone() *Design {
+	c := *d
+	c.Labels = slices.Clone(d.Labels)
+	c.Weights = slices.Clone(d.Weights)
+	c.Interval = slices.Clone(d.Interval)
+	c.Params = maps.Clone(d.Params)
+	c.Budget.Reference = slices.Clone(d.Budget.Reference)
+	c.Contract.BaseRate = slices.Clone(d.Contract.BaseRate)
+	if d.Budget.MeanPay != nil {
+		v := *d.Budget.MeanPay
+		c.Budget.MeanPay = &v
+	}
+	return &c
+}
 
 // N is the number of outcomes.
 func (d *Design) N() int { return len(d.Labels) }

@@ -7,6 +7,8 @@ import (
 	"io"
 	"math"
 	"regexp"
+	"slices"
+	"strconv"
 	"strings"
 
 	"github.com/BurntSushi/toml"
@@ -66,6 +68,7 @@ func Decode(b []byte) (*Design, error) {
 		}
 		return nil, fmt.Errorf("unknown key %s (a typo, or a file from a newer scorewright?)", strings.Join(keys, ", "))
 	}
+	d.upgrade()
 	// The title goes into annex headings and terminal lines: one line, no
 	// escape sequences, so it can neither push a warning out of view nor
 	// draw a line of its own.
@@ -86,14 +89,16 @@ func (d *Design) Validate() error {
 	case d.Version > SchemaVersion:
 		return fmt.Errorf("version: %d is newer than this build understands (%d)", d.Version, SchemaVersion)
 	}
-	switch d.Mode {
-	case ModeGenerator, ModePayout, ModePoint, ModeEmphasis:
-	case "":
-		return errors.New(`mode: missing; one of "generator", "payout", "point", "emphasis"`)
-	default:
-		return fmt.Errorf(`mode: %q is not one of "generator", "payout", "point", "emphasis"`, d.Mode)
+	if !slices.Contains(Modes, d.Mode) {
+		if d.Mode == "" {
+			return fmt.Errorf("mode: missing; one of %s", modeList())
+		}
+		return fmt.Errorf("mode: %q is not one of %s", d.Mode, modeList())
 	}
-	if d.Mode != ModePoint {
+	if d.Mode == ModePayout && d.Interval != nil {
+		return fmt.Errorf(`mode: a payout with an interval is a point-forecast payout; say mode = %q`, ModePointPayout)
+	}
+	if !d.Mode.OnInterval() {
 		if n := d.N(); n < 2 || n > formula.MaxOutcomes {
 			return fmt.Errorf("outcomes: %d labels; need 2..%d", n, formula.MaxOutcomes)
 		}
@@ -128,7 +133,7 @@ func (d *Design) Validate() error {
 			}
 		}
 	}
-	if d.Mode == ModePoint {
+	if d.Mode.OnInterval() {
 		if len(d.Interval) != 2 || !(d.Interval[0] < d.Interval[1]) {
 			return errors.New("interval: point designs need interval = [lo, hi] with lo < hi")
 		}
@@ -139,11 +144,29 @@ func (d *Design) Validate() error {
 	return d.ValidateBudget()
 }
 
-// ValidateBudget checks the budget as this design reads it: in point mode
-// the menu step is in the units of the interval (at most its width), in
-// every other mode a probability step.
+// modeList is every mode quoted, for messages.
+func modeList() string {
+	q := make([]string, len(Modes))
+	for i, m := range Modes {
+		q[i] = strconv.Quote(string(m))
+	}
+	return strings.Join(q, ", ")
+}
+
+// upgrade rewrites what older files said in the words of this build: a
+// payout with an interval was a point-forecast payout before that mode
+// had its own name.
+func (d *Design) upgrade() {
+	if d.Mode == ModePayout && len(d.Interval) == 2 {
+		d.Mode = ModePointPayout
+	}
+}
+
+// ValidateBudget checks the budget as this design reads it: in the modes
+// on an interval the menu step is in the units of the interval (at most
+// its width), in every other mode a probability step.
 func (d *Design) ValidateBudget() error {
-	if d.Mode != ModePoint {
+	if !d.Mode.OnInterval() {
 		return d.Budget.Validate()
 	}
 	b := d.Budget

@@ -1,11 +1,17 @@
-// Package history reads a forecast history: a CSV file with one forecast
-// per row, naming the forecaster, the question, the outcome that happened
-// and the probability the forecaster gave each outcome.
+// Package history reads a forecast history: one forecast per record,
+// naming the forecaster, the question, the outcome that happened and the
+// probability the forecaster gave each outcome, with an optional date.
+// Histories come as CSV, as JSON lines (one object per line, keyed like
+// the CSV header) or as a sheet of an XLSX workbook; the three give the
+// same rows and name bad records by the same line (row) numbers.
 //
 // The reader streams. It keeps one record in memory, reuses it for the
-// next row and allocates nothing per row beyond what encoding/csv itself
-// does (one string per record), so a file of any length is read in
-// constant memory. Rows that are not a valid forecast are reported with
-// their line number and a reason, and the caller decides whether to skip
-// them or stop.
+// next row and allocates nothing per row beyond what the decoder itself
+// does, so a file of any length is read in constant memory. Every read is
+// bounded: a field over MaxFieldBytes or a record over MaxRecordBytes is
+// an error that ends the reading (it is not data), and a quoted field that
+// runs across lines is named with the span of lines it covers, so that a
+// missing closing quote can never swallow rows without a word. Rows that
+// are not a valid forecast are reported with their line and a reason, and
+// the caller decides whether to skip them or stop.
 package history

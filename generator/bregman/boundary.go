@@ -1,0 +1,187 @@
+package bregman
+
+import "math"
+
+// Efforts at a report on the boundary of the simplex.
+//
+// At a report p with some p_j = 0 the gradient of H may be infinite, or
+// finite but no supergradient (the formal partials of sqrt(p1*p2) at
+// (0, 0, 1) are all 0, although H rises to 1/2 at (1/2, 1/2, 0)). The
+// effort there is defined as the limit from the interior along the segment
+// from the centre c of the simplex: L(p, k) = lim_{h -> 0} L(p + h(c - p), k).
+// For a concave H the gradients along that segment are supergradients, so
+// the limit rule is proper at p too; where a component of the limit is
+// infinite (the log rule at a report ruling the outcome out) it is +Inf.
+//
+// The limit is extrapolated from the efforts at h = 2^-6, 2^-8, ..., 2^-40
+// by Aitken's delta-squared process, which is exact for a power law
+// h^alpha of any exponent and the usual rates (h, sqrt(h), h ln h) of
+// generator formulas; differences that do not shrink (ratio >= 0.99) mark
+// a divergence, as -ln h does. When the formal value — the directional
+// form H + sum_j g_j (δ_jk - p_j) with 0·Inf = 0, which is exact wherever
+// it is defined — agrees with the limit to within the extrapolation's
+// error, it is kept, so that the Brier rule's 2 at a vertex stays 2.
+
+const (
+	limitFirst = 6  // first step h = 2^-limitFirst
+	limitSteps = 18 // steps of a factor 4: the last h is 2^-40
+	// limitDiverge is the ratio of successive differences above which
+	// the sequence counts as diverging: a convergent power law h^alpha
+	// has ratio 4^-alpha, below this for every alpha > 0.007.
+	limitDiverge = 0.99
+)
+
+// limitState follows one outcome's effort along the segment.
+type limitState struct {
+	v, d, a  float64 // last value, last difference, last Aitken estimate
+	steps    int
+	grow     int // consecutive steps whose difference did not shrink
+	agree    int // consecutive Aitken estimates that agreed
+	done     bool
+	value    float64
+	diverged bool
+}
+
+// offer takes the effort v at the next step, with m the size of the terms
+// that cancel in it (the rounding scale), and reports whether the limit
+// is decided.
+func (st *limitState) offer(v, m float64) {
+	if st.done {
+		return
+	}
+	st.steps++
+	if v != v {
+		st.done, st.value = true, math.NaN()
+		return
+	}
+	noise := 64 * 0x1p-52 * m
+	if st.steps == 1 {
+		st.v, st.a = v, v
+		return
+	}
+	d := v - st.v
+	if math.IsInf(v, 0) || math.IsInf(d, 0) {
+		st.done, st.value = true, v
+		return
+	}
+	prevGrow, prevAgree := st.grow, st.agree
+	a := v
+	if st.steps >= 3 && math.Abs(d) > noise {
+		if den := d - st.d; den != 0 {
+			a = v - d*d/den
+		}
+	}
+	// Two rates of opposite sign can cross, so that one difference
+	// matches the last: divergence needs three in a row, agreement of the
+	// estimates two.
+	st.grow, st.agree = 0, 0
+	if st.steps >= 3 && d*st.d > 0 && math.Abs(d) >= limitDiverge*math.Abs(st.d) {
+		st.grow = prevGrow + 1
+	}
+	if st.steps >= 4 && math.Abs(a-st.a) <= 1e3*0x1p-52*(m+math.Abs(a)) {
+		st.agree = prevAgree + 1
+	}
+	switch {
+	case math.Abs(d) <= noise:
+		st.done, st.value = true, v
+	case st.grow >= 3:
+		st.done, st.diverged, st.value = true, true, math.Copysign(math.Inf(1), d)
+	case st.agree >= 2:
+		st.done, st.value = true, a
+	}
+	st.v, st.d, st.a = v, d, a
+}
+
+// result is the decided limit, or the last estimate when the steps ran
+// out.
+func (st *limitState) result() float64 {
+	if st.done {
+		return st.value
+	}
+	if st.a == st.a && !math.IsInf(st.a, 0) {
+		return st.a
+	}
+	return st.v
+}
+
+// onBoundary reports whether some coordinate of p is 0.
+func onBoundary(p []float64) bool {
+	for _, x := range p {
+		if x == 0 {
+			return true
+		}
+	}
+	return false
+}
+
+// directional writes H + sum_j g_j (δ_jk - p_j) for every k, with
+// 0 · ±Inf = 0: the formal effort in the form that is exact at a vertex
+// (every factor δ_jk - p_j is 0 there, so L(e_k, k) = H(e_k)).
+func directional(dst, grad, p []float64, h float64) {
+	for k := range dst {
+		s := h
+		for j, g := range grad {
+			t := -p[j]
+			if j == k {
+				t = 1 - p[j]
+			}
+			if t != 0 || g != g {
+				s += g * t
+			}
+		}
+		dst[k] = s
+	}
+}
+
+// boundaryEfforts writes the efforts at a boundary report p into dst as
+// the limit from the interior (see the comment at the top of the file);
+// h is H(p) and s.grad its formal gradient.
+func (s *Scorer) boundaryEfforts(dst, p []float64, h float64) {
+	n := s.n
+	directional(dst, s.grad, p, h)
+	if s.limit == nil {
+		s.limit = make([]limitState, n)
+		s.pt = make([]float64, n)
+	}
+	st := s.limit
+	clear(st)
+	c := 1 / float64(n)
+	for step := 0; step < limitSteps; step++ {
+		t := math.Ldexp(1, -limitFirst-2*step)
+		for j, x := range p {
+			s.pt[j] = x + t*(c-x)
+		}
+		ht := s.ev.Gradient(s.grad, s.pt)
+		var gp, mag float64
+		for j, g := range s.grad {
+			gp += g * s.pt[j]
+			mag += math.Abs(g * s.pt[j])
+		}
+		all := true
+		for k := range st {
+			st[k].offer(ht+s.grad[k]-gp, math.Abs(ht)+math.Abs(s.grad[k])+mag)
+			all = all && st[k].done
+		}
+		if all {
+			break
+		}
+	}
+	for k := range dst {
+		lim := st[k].result()
+		formal := dst[k]
+		switch {
+		case lim != lim:
+			// The segment leaves the formula's domain: keep the formal
+			// value (NaN stays NaN).
+		case formal == lim:
+		case math.IsInf(formal, 0) && !st[k].done:
+			// Steps ran out without a decision: a slow divergence looks
+			// like a slow convergence, and the formal infinity stands.
+		case math.IsInf(lim, 0) || math.IsInf(formal, 0) || formal != formal:
+			dst[k] = lim
+		case math.Abs(formal-lim) > 1e-9*(1+math.Abs(lim)):
+			dst[k] = lim
+		}
+		dst[k] += 0 // -0 (from -1·0) reads as a negative effort; make it 0
+	}
+}

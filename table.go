@@ -1,0 +1,143 @@
+package scorewright
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+
+	"scorewright/contract/budget"
+	"scorewright/contract/table"
+	"scorewright/generator/point"
+)
+
+// Errors of Table that callers word in their own terms (flags on the
+// command line, fields in the workbench).
+var (
+	// ErrNoMenu: a rule over outcomes has no report menu (no step, no menu).
+	ErrNoMenu = errors.New("the report menu is missing")
+	// ErrMeanPayOnInterval: point-forecast tables are fitted to a floor and
+	// a cap, not a mean pay.
+	ErrMeanPayOnInterval = errors.New("point-forecast tables are fitted to a floor and a cap, not a mean pay")
+	// ErrNoCap: a point-forecast table needs a cap above the floor.
+	ErrNoCap = errors.New("a point-forecast table needs a cap above the floor")
+)
+
+// Table is a rule fitted to its budget on a report menu, rounded and
+// re-checked: over outcomes (contract/budget) or for point forecasts on
+// an interval (generator/point). One of the two pairs is set.
+type Table struct {
+	Fit     *budget.Fit
+	Recheck *budget.Recheck
+
+	Point        *point.Table
+	PointRecheck *point.Recheck
+}
+
+// MenuFunc builds the report menu of a rule over n outcomes (from a file,
+// say); its errors are returned as they are.
+type MenuFunc func(n int) (*budget.Menu, error)
+
+// Table fits the rule to the design's budget on a report menu and
+// re-checks the rounded table. For a rule over outcomes the menu is
+// menu's, or the budget's step menu when menu is nil; a point-forecast
+// menu is always the budget's step in the units of the interval. A
+// payout under audit has no table (a *NeedsOutcomesError).
+func (r *Rule) Table(ctx context.Context, menu MenuFunc) (*Table, error) {
+	if r.point != nil {
+		return r.pointTable(ctx)
+	}
+	rule, err := r.OverOutcomes()
+	if err != nil {
+		return nil, err
+	}
+	b := r.d.Budget
+	var m *budget.Menu
+	switch {
+	case menu != nil:
+		if m, err = menu(r.d.N()); err != nil {
+			return nil, err
+		}
+	default:
+		if !(b.Step > 0) {
+			return nil, ErrNoMenu
+		}
+		if m, err = budget.StepMenu(r.d.N(), b.Step, b.ReportFloor); err != nil {
+			return nil, err
+		}
+	}
+	fit, err := budget.FitRule(rule, m, b)
+	if err != nil {
+		return nil, err
+	}
+	rc, err := fit.Recheck(ctx, budget.RecheckSettings{})
+	if err != nil {
+		return nil, err
+	}
+	return &Table{Fit: fit, Recheck: rc}, nil
+}
+
+func (r *Rule) pointTable(ctx context.Context) (*Table, error) {
+	b := r.d.Budget
+	switch {
+	case b.MeanPay != nil:
+		return nil, ErrMeanPayOnInterval
+	case !(b.Cap > b.Floor):
+		return nil, ErrNoCap
+	}
+	t, err := r.point.BuildTable(ctx, point.TableSpec{Floor: b.Floor, Cap: b.Cap, Step: b.Step, Unit: b.Unit, Rounding: b.Rounding})
+	if errors.Is(err, point.ErrUnbounded) {
+		return nil, fmt.Errorf("%w; narrow the interval so the effort stays finite", err)
+	}
+	if err != nil {
+		return nil, err
+	}
+	rc, err := t.Recheck(ctx)
+	if err != nil {
+		return nil, err
+	}
+	return &Table{Point: t, PointRecheck: rc}, nil
+}
+
+// Passed reports whether the rounded table passed its re-check.
+func (t *Table) Passed() bool {
+	if t.Point != nil {
+		return t.PointRecheck.Passed
+	}
+	return t.Recheck.Passed
+}
+
+// MinMargin is the re-check's smallest margin.
+func (t *Table) MinMargin() float64 {
+	if t.Point != nil {
+		return t.PointRecheck.MinMargin
+	}
+	return t.Recheck.MinMargin
+}
+
+// Bounds holds every payment in the table: the budget's floor and cap,
+// widened to what rounding produced. A lottery is drawn between them.
+func (t *Table) Bounds() (lo, hi float64) {
+	if t.Point != nil {
+		return math.Min(t.Point.Floor, t.Point.MinPay), math.Max(t.Point.Cap, t.Point.MaxPay)
+	}
+	return math.Min(t.Fit.Floor, t.Fit.MinPay), math.Max(t.Fit.Cap, t.Fit.MaxPay)
+}
+
+// Export is the table with its record, as every format writes it;
+// version and date are the build's and the day's.
+func (r *Rule) Export(t *Table, version, date string) *table.Table {
+	d := r.d
+	if t.Point != nil {
+		return t.Point.Export(t.PointRecheck, point.Info{Title: d.Title, Preset: d.Preset, Params: d.Params, Version: version, Date: date})
+	}
+	return t.Fit.Table(t.Recheck, r.Info(version, date))
+}
+
+// Info is the record of where the design's rule came from, for a table
+// over outcomes.
+func (r *Rule) Info(version, date string) budget.Info {
+	d := r.d
+	return budget.Info{Title: d.Title, Formula: d.Formula, FormulaRole: r.FormulaRole(), Preset: d.Preset, Params: d.Params,
+		Weights: d.Weights, Ordered: d.Ordered, Version: version, Date: date}
+}

@@ -1,0 +1,50 @@
+package verify
+
+import (
+	"context"
+	"math"
+	"testing"
+
+	"scorewright/generator/bregman"
+)
+
+// Rules whose gradient is infinite, or no supergradient, on the boundary
+// get the verdict of their mathematics once the boundary efforts are the
+// limits from the interior.
+//
+//   - The log rule written with p alone (n = 2) is strictly proper (Good
+//     1952); its formal effort at (1, 0) was Inf - Inf = NaN.
+//   - sqrt(p1*p2) over three outcomes is concave (a geometric mean) and
+//     linear along every ray p1/p2 = const (homogeneous of degree 1), so
+//     it is proper but not strictly (Gneiting & Raftery 2007, Sec. 2:
+//     strictness fails exactly where H is affine on a segment). The
+//     witness must be a real tie: two reports on one ray, which the test
+//     confirms by recomputing both expected efforts from the closed form
+//     L(p, ·) = (sqrt(p2/p1)/2, sqrt(p1/p2)/2, 0), derived by hand.
+func TestBoundaryLimitVerdicts(t *testing.T) {
+	rep, err := CheckRule(context.Background(), rule(t, "-p*ln(p) - (1-p)*ln(1-p)", 2), Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rep.Verdict != StrictlyProper {
+		t.Errorf("log rule in p alone: verdict %s, want %s\n%+v", rep.Verdict, StrictlyProper, rep.Checks)
+	}
+	rep, err = CheckRule(context.Background(), rule(t, "sqrt(p1*p2)", 3), Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rep.Verdict != Proper {
+		t.Fatalf("sqrt(p1*p2): verdict %s, want %s", rep.Verdict, Proper)
+	}
+	prop := rep.Check(NameProperness)
+	q, p := prop.MarginBelief, prop.MarginReport
+	if q == nil || p == nil || near(q, p, 1e-9) {
+		t.Fatalf("sqrt(p1*p2): no tie witness of two different reports (belief %v, report %v)", q, p)
+	}
+	closed := func(r []float64) []float64 {
+		return []float64{math.Sqrt(r[1]/r[0]) / 2, math.Sqrt(r[0]/r[1]) / 2, 0}
+	}
+	if a, b := bregman.Dot(q, closed(q)), bregman.Dot(q, closed(p)); math.Abs(a-b) > 1e-12 {
+		t.Errorf("witness belief %v, report %v: expected efforts %v and %v differ; not a tie", q, p, a, b)
+	}
+}
