@@ -11,6 +11,7 @@ import (
 	"strconv"
 	"time"
 
+	"scorewright/contract/annex"
 	"scorewright/contract/lottery"
 	"scorewright/contract/table"
 	"scorewright/generator/design"
@@ -168,11 +169,12 @@ func pointTableView(t *point.Table, rc *point.Recheck) *TableView {
 	return tv
 }
 
-// tableExporter writes the fitted table with contract/table.
+// tableExporter writes the fitted table with contract/table, or the
+// annex with contract/annex, as `scorewright table` does.
 type tableExporter struct{ version string }
 
-// Formats are every format of contract/table, for point tables too.
-func (tableExporter) Formats(d *design.Design) []string { return table.Formats() }
+// Formats are the table's formats and the annexes, for point tables too.
+func (tableExporter) Formats(d *design.Design) []string { return annex.ExportFormats() }
 
 func (te tableExporter) Export(ctx context.Context, d *design.Design, req ExportRequest) ([]string, error) {
 	date := time.Now().UTC().Format("2006-01-02")
@@ -184,15 +186,24 @@ func (te tableExporter) Export(ctx context.Context, d *design.Design, req Export
 		return nil, refused(t.MinMargin())
 	}
 	tb := r.Export(t, te.version, date)
-	lo, hi := t.Bounds() // every payment lies in [lo, hi]
+	a, b, clamp := t.PayLine()
+	ax, err := annex.InputFor(d, tb, r.Outcomes(), a, b, clamp, te.version)
+	if err != nil {
+		return nil, err
+	}
 	if req.Lottery {
-		// The same bounds as `scorewright table --lottery`.
-		if err := lottery.Convert(tb, lo, hi); err != nil {
+		// The same lottery as `scorewright table --lottery`: whole
+		// thousandths, re-checked.
+		ok, err := t.Lottery(ctx, tb, lottery.DefaultDraws)
+		if err != nil {
 			return nil, fmt.Errorf("lottery: %w", err)
+		}
+		if !ok {
+			return nil, fmt.Errorf("the chances, rounded to whole thousandths so they can be drawn, failed the re-check, so nothing was written; widen the menu step")
 		}
 	}
 	var buf bytes.Buffer
-	if err := tb.Write(&buf, req.Format); err != nil {
+	if err = annex.WriteAny(&buf, ax, req.Format); err != nil {
 		return nil, err
 	}
 	return writeExport(req.Path, buf.Bytes(), req.Overwrite)
