@@ -42,7 +42,7 @@ func addTableFlags(fs *flag.FlagSet) *tableFlags {
 	fs.BoolVar(&t.json, "json", false, "print the fit and re-check summary as JSON (the table itself goes to --out)")
 	fs.BoolVar(&t.lottery, "lottery", false, "pay a chance of winning a fixed prize, (pay - floor)/(cap - floor), instead of money")
 	fs.StringVar(&t.menu, "menu", "", "read the report menu from a CSV file: one report per line, n probabilities (n = 2: one number), '#' comments")
-	fs.Float64Var(&t.clamp, "clamp", 0, "pay every report as if each probability were at least P (rescaled to sum 1); for rules infinite at 0")
+	floatVar(fs, &t.clamp, "clamp", 0, "pay every report as if each probability were at least P (rescaled to sum 1); for rules infinite at 0")
 	return t
 }
 
