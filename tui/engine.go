@@ -12,6 +12,7 @@ import (
 
 	"scorewright/contract/annex"
 	"scorewright/contract/budget"
+	"scorewright/contract/cost"
 	"scorewright/contract/lottery"
 	"scorewright/contract/table"
 	"scorewright/generator/design"
@@ -246,6 +247,10 @@ func budgetFitter(ctx context.Context, d *design.Design) (*TableView, error) {
 	}
 	tb := fit.Table(rc, budget.DesignInfo(d, "", ""))
 	tv := &TableView{Passed: rc.Passed, MinMargin: rc.MinMargin, Pay: fit.Pay, Notes: fit.Notes(rc)}
+	if c, err := cost.Of(tb, cost.SeasonOf(d)); err == nil {
+		// What the contract costs comes first: it is what the buyer asks.
+		tv.Notes = append([]string{c.Sentence(num.Format(c.Season.BaseRate))}, tv.Notes...)
+	}
 	// Column heads are the bare outcome labels, under a first head that
 	// says what the cells are: narrow panes keep every column.
 	tv.Header = append(tv.Header, "report \\ "+tb.ValueName+" if")
@@ -288,6 +293,7 @@ func (te tableExporter) Export(ctx context.Context, d *design.Design, req Export
 			return nil, refused(rc.MinMargin)
 		}
 		tb := t.Export(rc, point.Info{Title: d.Title, Preset: d.Preset, Params: d.Params, Version: te.version, Date: date})
+		tb.Meta.Currency = d.Contract.Currency
 		if ax, err = annex.InputFor(d, tb, nil, 0, 0, 0, te.version); err != nil {
 			return nil, err
 		}
