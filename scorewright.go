@@ -12,6 +12,9 @@ package scorewright
 import (
 	"errors"
 	"fmt"
+	"slices"
+	"strconv"
+	"strings"
 
 	"scorewright/generator/bregman"
 	"scorewright/generator/design"
@@ -249,4 +252,45 @@ func (r *Rule) Kind() string {
 		return string(design.ModeGenerator)
 	}
 	return string(r.d.Mode)
+}
+
+// Statement says what the design's formula is in one line, with its
+// parameters (the formula's defaults, overridden by the design) after it,
+// e.g. "emphasis w(c) = c^(a-1) * (1-c)^(b-1) with a = 2, b = 1". The
+// parameter lines are the ones the formula parser reads as such.
+func (r *Rule) Statement() string {
+	kind := "generator H = "
+	switch r.d.Mode {
+	case design.ModeEmphasis:
+		kind = "emphasis w(c) = "
+	case design.ModePoint:
+		kind = "point-forecast phi(x) = "
+	case design.ModePayout, design.ModePointPayout:
+		kind = "payout = "
+	}
+	paramLine := map[int]bool{}
+	if f, err := formula.Parse(r.d.Formula); err == nil {
+		for _, p := range f.Params {
+			paramLine[p.At.Line] = true
+		}
+	}
+	var expr []string
+	for i, line := range strings.Split(r.d.Formula, "\n") {
+		line = strings.TrimSpace(line)
+		if line == "" || strings.HasPrefix(line, "#") || paramLine[i+1] {
+			continue
+		}
+		expr = append(expr, line)
+	}
+	s := kind + strings.Join(expr, " ")
+	if len(r.params) == 0 {
+		return s
+	}
+	params := slices.Clone(r.params)
+	slices.SortFunc(params, func(a, b formula.ParamValue) int { return strings.Compare(a.Name, b.Name) })
+	ps := make([]string, len(params))
+	for i, p := range params {
+		ps[i] = p.Name + " = " + strconv.FormatFloat(p.Value, 'g', -1, 64)
+	}
+	return s + " with " + strings.Join(ps, ", ")
 }

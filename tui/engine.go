@@ -5,12 +5,12 @@ import (
 	"context"
 	"errors"
 	"fmt"
-	"math"
 	"path/filepath"
 	"runtime"
 	"strconv"
 	"time"
 
+	"scorewright/contract/annex"
 	"scorewright/contract/budget"
 	"scorewright/contract/lottery"
 	"scorewright/contract/table"
@@ -267,16 +267,18 @@ func budgetFitter(ctx context.Context, d *design.Design) (*TableView, error) {
 	return tv, nil
 }
 
-// tableExporter writes the fitted table with contract/table.
+// tableExporter writes the fitted table with contract/table, or the
+// annex with contract/annex, as `scorewright table` does.
 type tableExporter struct{ version string }
 
-// Formats are every format of contract/table, for point tables too.
-func (tableExporter) Formats(d *design.Design) []string { return table.Formats() }
+// Formats are the table's formats and the annexes, for point tables too.
+func (tableExporter) Formats(d *design.Design) []string { return annex.ExportFormats() }
 
 func (te tableExporter) Export(ctx context.Context, d *design.Design, req ExportRequest) ([]string, error) {
 	date := time.Now().UTC().Format("2006-01-02")
-	var tb *table.Table
-	var lo, hi float64 // every payment lies in [lo, hi]
+	var ax *annex.Input
+	var drawable func() (bool, error)
+	var err error
 	if d.Mode == design.ModePoint {
 		t, rc, err := pointTable(ctx, d)
 		if err != nil {
@@ -285,8 +287,14 @@ func (te tableExporter) Export(ctx context.Context, d *design.Design, req Export
 		if !rc.Passed {
 			return nil, refused(rc.MinMargin)
 		}
-		tb = t.Export(rc, point.Info{Title: d.Title, Preset: d.Preset, Params: d.Params, Version: te.version, Date: date})
-		lo, hi = math.Min(t.Floor, t.MinPay), math.Max(t.Cap, t.MaxPay)
+		tb := t.Export(rc, point.Info{Title: d.Title, Preset: d.Preset, Params: d.Params, Version: te.version, Date: date})
+		if ax, err = annex.InputFor(d, tb, nil, 0, 0, 0, te.version); err != nil {
+			return nil, err
+		}
+		drawable = func() (bool, error) {
+			lrc, err := lottery.ForPoint(ctx, t, tb, lottery.DefaultDraws)
+			return err == nil && lrc.Passed, err
+		}
 	} else {
 		fit, rc, err := fitDesign(ctx, d)
 		if err != nil {
@@ -295,17 +303,28 @@ func (te tableExporter) Export(ctx context.Context, d *design.Design, req Export
 		if !rc.Passed {
 			return nil, refused(rc.MinMargin)
 		}
-		tb = fit.Table(rc, budget.DesignInfo(d, te.version, date))
-		lo, hi = math.Min(fit.Floor, fit.MinPay), math.Max(fit.Cap, fit.MaxPay)
+		tb := fit.Table(rc, budget.DesignInfo(d, te.version, date))
+		if ax, err = annex.InputFor(d, tb, fit.Rule(), fit.A, fit.B, fit.Clamp, te.version); err != nil {
+			return nil, err
+		}
+		drawable = func() (bool, error) {
+			lrc, err := lottery.ForFit(ctx, fit, tb, lottery.DefaultDraws)
+			return err == nil && lrc.Passed, err
+		}
 	}
 	if req.Lottery {
-		// The same bounds as `scorewright table --lottery`.
-		if err := lottery.Convert(tb, lo, hi); err != nil {
+		// The same lottery as `scorewright table --lottery`: whole
+		// thousandths, re-checked.
+		ok, err := drawable()
+		if err != nil {
 			return nil, fmt.Errorf("lottery: %w", err)
+		}
+		if !ok {
+			return nil, fmt.Errorf("the chances, rounded to whole thousandths so they can be drawn, failed the re-check, so nothing was written; widen the menu step")
 		}
 	}
 	var buf bytes.Buffer
-	if err := tb.Write(&buf, req.Format); err != nil {
+	if err = annex.WriteAny(&buf, ax, req.Format); err != nil {
 		return nil, err
 	}
 	return writeExport(req.Path, buf.Bytes(), req.Overwrite)

@@ -7,7 +7,7 @@ import "github.com/charmbracelet/bubbles/key"
 // printable key first.
 type KeyMap struct {
 	// Global.
-	Quit, QuitHard, Help, NextPane, PrevPane, Save, Open, Export, Demo, Backtest, Risk key.Binding
+	Quit, QuitHard, Help, NextPane, PrevPane, Save, Open, Export, Demo, Backtest, Risk, Research key.Binding
 	// Moving inside a pane and changing the selected item.
 	Up, Down, Less, More, LessFine, MoreFine, Edit, Leave, Toggle key.Binding
 	// Design pane.
@@ -41,6 +41,10 @@ func DefaultKeyMap() KeyMap {
 		Demo:     b([]string{"ctrl+n"}, "ctrl+n", "next demo design"),
 		Backtest: b([]string{"ctrl+b"}, "ctrl+b", "backtest a forecast history"),
 		Risk:     b([]string{"ctrl+r"}, "ctrl+r", "risk attitude view"),
+		// ctrl+y: no terminal multiplexer's default (tmux ctrl+b, screen
+		// ctrl+a, zellij's ctrl+g/p/t/n/h/s/o/q) and no key of bubbles'
+		// text inputs, so it works while typing too.
+		Research: b([]string{"ctrl+y"}, "ctrl+y", "research view: what research is worth"),
 
 		Up:       b([]string{"up"}, "↑", "previous item"),
 		Down:     b([]string{"down"}, "↓", "next item"),
@@ -86,13 +90,14 @@ type helpGroup struct {
 // groups lists every key, for the help overlay.
 func (k KeyMap) groups() []helpGroup {
 	return []helpGroup{
-		{"Anywhere", []key.Binding{k.QuitHard, k.Quit, k.Help, k.NextPane, k.PrevPane, k.Save, k.Open, k.Export, k.Demo, k.Backtest, k.Risk}},
+		{"Anywhere", []key.Binding{k.QuitHard, k.Quit, k.Help, k.NextPane, k.PrevPane, k.Save, k.Open, k.Export, k.Demo, k.Backtest, k.Risk, k.Research}},
 		{"Design", []key.Binding{k.Up, k.Down, k.Edit, k.Leave, k.Less, k.More, k.LessFine, k.MoreFine, k.Toggle, k.AddOutcome, k.DropOutcome}},
 		{"Picture", []key.Binding{k.Measure, k.BeliefDown, k.BeliefUp, k.Pair}},
 		{"Checks", []key.Binding{k.Rerun}},
 		{"Budget", []key.Binding{k.Up, k.Down, k.Less, k.More, k.LessFine, k.MoreFine, k.Edit, k.PageUp, k.PageDown}},
 		{"Backtest", []key.Binding{k.History, k.StopRun, k.Up, k.Down, k.PageUp, k.PageDown, k.Leave}},
 		{"Risk attitude", []key.Binding{k.Up, k.Down, k.Less, k.More, k.LessFine, k.MoreFine, k.Leave}},
+		{"Research", []key.Binding{k.Up, k.Down, k.Less, k.More, k.LessFine, k.MoreFine, k.Leave}},
 		{"Dialogs", []key.Binding{k.Field, k.Lottery, k.Confirm, k.Cancel, k.Yes, k.No}},
 	}
 }

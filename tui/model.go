@@ -92,6 +92,7 @@ type Model struct {
 	riskGen    uint64                // generation the latest risk run is for
 	riskFor    RiskInputs            // inputs the latest risk run is for
 	cancelRisk context.CancelFunc
+	research   *ResearchRoom // the research view (tui/research.go) replaces the panes when shown
 	demoIndex  int
 	savedGen   uint64 // generation last opened or saved
 	armed      string // a key pressed once that needs a second press
@@ -140,6 +141,7 @@ func New(d *design.Design, path string, set Settings, st Styles) *Model {
 		risk:       NewRiskView(st, keys),
 		riskIn:     defaultRiskInputs(d),
 		riskCoefs:  map[risk.Kind]float64{},
+		research:   NewResearchRoom(st, keys, d),
 	}
 	m.helpView.KeyMap = viewport.KeyMap{Up: keys.Up, Down: keys.Down, PageUp: keys.PageUp, PageDown: keys.PageDown}
 	m.designPane.Focus()
@@ -266,6 +268,9 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 	case riskRunMsg:
 		m.riskMsg(msg)
 		return m, nil
+	case researchRunMsg:
+		m.research.Msg(msg)
+		return m, nil
 	case savedMsg:
 		gen := msg.gen
 		return m, m.fileDone(msg.err, func() {
@@ -295,6 +300,8 @@ func (m *Model) wanted(msg tea.Msg) bool {
 		return r.run == m.btRun
 	case riskRunMsg:
 		return r.run == m.riskRun
+	case researchRunMsg:
+		return r.run == m.research.run
 	}
 	return false
 }
@@ -385,6 +392,15 @@ func (m *Model) key(km tea.KeyMsg) tea.Cmd {
 			m.showBT = false
 		}
 	}
+	if m.research.Shown() {
+		handled, cmd := m.research.Key(m.ctx, km, m.d, m.gen, m.researchReady())
+		if handled {
+			if !m.research.Shown() {
+				return tea.Batch(cmd, m.requestPicture())
+			}
+			return cmd
+		}
+	}
 	if m.showRisk {
 		switch {
 		case key.Matches(km, k.Leave), key.Matches(km, k.Risk):
@@ -434,9 +450,15 @@ func (m *Model) key(km tea.KeyMsg) tea.Cmd {
 		return nil
 	case key.Matches(km, k.Backtest):
 		m.showRisk = false
+		m.research.Close()
 		return m.toggleBacktest()
 	case key.Matches(km, k.Risk):
+		m.research.Close()
 		return m.toggleRisk()
+	case key.Matches(km, k.Research):
+		m.stopTyping()
+		m.showBT, m.showRisk = false, false
+		return m.research.Toggle(m.ctx, m.d, m.gen, m.researchReady())
 	case !typing && key.Matches(km, k.Demo):
 		if !m.confirmDiscard(km, "ctrl+n again discards them") {
 			return nil
@@ -452,7 +474,7 @@ func (m *Model) key(km tea.KeyMsg) tea.Cmd {
 		}
 		return m.quit()
 	}
-	if m.showBT || m.showRisk {
+	if m.showBT || m.showRisk || m.research.Shown() {
 		return nil
 	}
 	return m.routeToPane(km)
@@ -507,6 +529,7 @@ func (m *Model) edited() tea.Cmd {
 	m.stopRisk()
 	m.riskRun++ // answers of the run for the old design are now stale
 	m.risk.edited()
+	m.research.Edited(m.d)
 	if !m.riskSet {
 		m.riskIn.Wealth = defaultRiskInputs(m.d).Wealth
 	}
@@ -557,7 +580,7 @@ func (m *Model) maybeStart() tea.Cmd {
 	if m.compGen != m.gen || m.debouncedGen != m.gen {
 		return nil
 	}
-	bt := tea.Batch(m.maybeBacktest(), m.maybeRisk())
+	bt := tea.Batch(m.maybeBacktest(), m.maybeRisk(), m.research.Maybe(m.ctx, m.d, m.gen, m.researchReady()))
 	if m.checkGen == m.gen {
 		return bt
 	}
@@ -875,7 +898,12 @@ func (m *Model) backtestMsg(msg btRunMsg) tea.Cmd {
 func (m *Model) layoutBacktest() {
 	m.bt.SetSize(m.width, m.height-2)
 	m.risk.SetSize(m.width, m.height-2)
+	m.research.SetSize(m.width, m.height-2)
 }
+
+// researchReady says the design is compiled and its edits have settled,
+// so a research study may start.
+func (m *Model) researchReady() bool { return m.compGen == m.gen && m.debouncedGen == m.gen }
 
 func (m *Model) large() bool { return m.width >= 120 && m.height >= 40 }
 
@@ -893,7 +921,9 @@ func (m *Model) View() string {
 	}
 	header := m.headerLine()
 	var body string
-	if m.showBT {
+	if m.research.Shown() {
+		body = m.research.View(m.d)
+	} else if m.showBT {
 		body = m.bt.View()
 	} else if m.showRisk {
 		body = m.risk.View(m.d, m.riskIn)
@@ -934,7 +964,7 @@ func (m *Model) headerLine() string {
 	mid := m.st.Dim.Render(fmt.Sprintf(" · %s · %s · %s", where, what, m.d.Mode))
 	var tabs []string
 	for p, name := range []string{"design", "picture", "checks", "budget"} {
-		if pane(p) == m.focus && !m.showBT && !m.showRisk {
+		if pane(p) == m.focus && !m.showBT && !m.showRisk && !m.research.Shown() {
 			tabs = append(tabs, m.st.Selected.Render("["+name+"]"))
 		} else {
 			tabs = append(tabs, m.st.Dim.Render(" "+name+" "))
@@ -945,6 +975,9 @@ func (m *Model) headerLine() string {
 	}
 	if m.showRisk {
 		tabs = []string{m.st.Selected.Render("[risk]"), m.st.Dim.Render(" esc: back to the panes")}
+	}
+	if m.research.Shown() {
+		tabs = []string{m.st.Selected.Render("[research]"), m.st.Dim.Render(" esc: back to the panes")}
 	}
 	right := strings.Join(tabs, "")
 	gap := m.width - lipgloss.Width(left) - lipgloss.Width(mid) - lipgloss.Width(right)
@@ -966,6 +999,8 @@ func (m *Model) footerLine() string {
 	} else {
 		var pane []key.Binding
 		switch {
+		case m.research.Shown():
+			pane = m.research.KeyHelp()
 		case m.showBT:
 			pane = m.bt.KeyHelp()
 		case m.showRisk:
@@ -982,7 +1017,7 @@ func (m *Model) footerLine() string {
 		keys = []key.Binding{as(k.Help, "?", "keys"), as(k.NextPane, "tab", "pane"), k.Quit}
 		for _, b := range pane {
 			switch {
-			case b.Help() == k.Up.Help() && !m.showRisk:
+			case b.Help() == k.Up.Help() && !m.showRisk && !m.research.Shown():
 				keys = append(keys, as(b, "↑/↓", "select"))
 			case b.Help() == k.Down.Help():
 			default:

@@ -51,10 +51,12 @@ type RiskResult struct {
 	Labels []string
 	// Pay says how pay follows from effort and where it was fitted.
 	Pay string
-	// Chosen is the best report for the chosen belief; MenuPick the menu
-	// item a forecaster held to the rounded table picks.
-	Chosen   *risk.Result
-	MenuPick []float64
+	// Chosen is the best report for the chosen belief (nil when the search
+	// could not settle it: ChosenErr says why); MenuPick the menu item a
+	// forecaster held to the rounded table picks (nil without a menu).
+	Chosen    *risk.Result
+	ChosenErr error
+	MenuPick  []float64
 	// Curve is the distortion over Beliefs; Toward names each belief's
 	// direction for n > 2 (the outcome index it heads for).
 	Curve  *risk.Curve
@@ -98,15 +100,13 @@ func riskRun(ctx context.Context, d *design.Design, in RiskInputs, progress func
 	fitted, err := riskfit.New(rule, d.Budget)
 	var ue *budget.UnboundedError
 	switch {
-	case errors.Is(err, riskfit.ErrNoStep):
-		return nil, errors.New("set a report menu step (Step) in the budget: the pay is fitted on the menu, as the table is")
 	case errors.As(err, &ue) && ue.AtZero:
 		return nil, fmt.Errorf("the rule's effort is %v at report %s when %q happens: it is unbounded where a report gives an outcome probability 0; give the design a report floor (report_floor in the design file, e.g. 0.01)", ue.Effort, num.Format(ue.Report), ue.Label)
 	case err != nil:
 		return nil, err
 	}
 	c := fitted.Contract
-	if in.Kind == risk.CRRA && in.Coef != 0 && !(in.Wealth+c.MinPay > 0) {
+	if in.Kind == risk.CRRA && in.Coef >= 1 && !(in.Wealth+c.MinPay > 0) {
 		return nil, fmt.Errorf("CRRA utility needs positive final wealth: initial wealth %g plus the smallest payment %g is not positive; raise the wealth", in.Wealth, c.MinPay)
 	}
 	solver, err := fitted.Solver(rule, in.Utility(), in.Wealth)
@@ -117,18 +117,28 @@ func riskRun(ctx context.Context, d *design.Design, in RiskInputs, progress func
 	if q == nil {
 		q = riskfit.Belief(d.Budget, d.N())
 	}
-	chosen, err := solver.Best(q)
-	if err != nil {
-		return nil, err
-	}
+	// A belief the search cannot settle is shown on its own line; it
+	// never takes the rest of the view with it.
+	chosen, chosenErr := solver.Best(q)
 	fit := fitted.Fit
-	out := &RiskResult{Inputs: in, Labels: append([]string(nil), d.Labels...), Chosen: chosen,
-		MenuPick: fitted.Menu.Reports[solver.BestOf(q, fit.Pays)],
-		Pay:      fmt.Sprintf("pay = %.6g - %.6g × effort, fitted on the %d-report menu", fit.A, fit.B, len(fitted.Menu.Reports))}
+	out := &RiskResult{Inputs: in, Labels: append([]string(nil), d.Labels...), Chosen: chosen, ChosenErr: chosenErr,
+		MenuPick: fitted.MenuPick(solver, q)}
+	if fitted.Menu != nil {
+		out.Pay = fmt.Sprintf("pay = %.6g - %.6g × effort, fitted on the %d-report menu", fit.A, fit.B, len(fitted.Menu.Reports))
+	} else {
+		out.Pay = fmt.Sprintf("pay = %.6g - %.6g × effort for every report (no menu step: the exact formula pays)", fit.A, fit.B)
+	}
 	beliefs, toward, along := riskfit.CurveBeliefs(d.N(), d.Budget.ReportFloor)
-	out.Toward, out.Along = toward, along
+	out.Along = along
 	if out.Curve, err = solver.Distortion(ctx, beliefs, progress); err != nil {
 		return nil, err
+	}
+	// Toward follows the solved points only.
+	for i, j := 0, 0; i < len(beliefs) && j < len(out.Curve.Points) && toward != nil; i++ {
+		if sameVector(beliefs[i], out.Curve.Points[j].Belief) {
+			out.Toward = append(out.Toward, toward[i])
+			j++
+		}
 	}
 	return out, nil
 }
@@ -462,10 +472,22 @@ func (v RiskView) resultText(r *RiskResult, width int) []string {
 	} else if i := indexOf(r.Curve.Points, lg); i >= 0 && i < len(r.Toward) {
 		where = fmt.Sprintf("belief %s (toward %q)", reportText(lg.Belief, r.Labels), r.Labels[r.Toward[i]])
 	}
-	out = append(out, wrap(fmt.Sprintf("Largest distortion %.3g probability points, at %s: best report %s.", lg.Size, where, reportText(lg.Report, r.Labels)))...)
-	c := r.Chosen
-	out = append(out, wrap(fmt.Sprintf("Chosen belief %s: best report %s (truthful %s), %.3g points away; menu pick %s; expected pay %.4g (truthful %.4g).",
-		reportText(c.Belief, r.Labels), reportText(c.Report, r.Labels), reportText(c.Belief, r.Labels), c.Size, reportText(r.MenuPick, r.Labels), c.ExpectedPay, c.TruthfulPay))...)
+	if len(r.Curve.Points) > 0 {
+		out = append(out, wrap(fmt.Sprintf("Largest distortion %.3g probability points, at %s: best report %s.", lg.Size, where, reportText(lg.Report, r.Labels)))...)
+	}
+	if c := r.Chosen; c != nil {
+		pick := "no menu"
+		if r.MenuPick != nil {
+			pick = "menu pick " + reportText(r.MenuPick, r.Labels)
+		}
+		out = append(out, wrap(fmt.Sprintf("Chosen belief %s: best report %s (truthful %s), %.3g points away; %s; expected pay %.4g (truthful %.4g).",
+			reportText(c.Belief, r.Labels), reportText(c.Report, r.Labels), reportText(c.Belief, r.Labels), c.Size, pick, c.ExpectedPay, c.TruthfulPay))...)
+	} else if r.ChosenErr != nil {
+		out = append(out, wrap("Chosen belief: unsolved: "+r.ChosenErr.Error())...)
+	}
+	for _, f := range r.Curve.Failed {
+		out = append(out, wrap(fmt.Sprintf("Belief %s: unsolved: %v", reportText(f.Belief, r.Labels), f.Err))...)
+	}
 	out = append(out, strings.Split(st.Dim.Width(max(10, width)).Render(lotteryNote), "\n")...)
 	return out
 }

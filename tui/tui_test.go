@@ -12,8 +12,8 @@ import (
 	"github.com/charmbracelet/x/ansi"
 	"github.com/charmbracelet/x/exp/golden"
 
+	"scorewright/contract/annex"
 	"scorewright/contract/lottery"
-	"scorewright/contract/table"
 	"scorewright/generator/design"
 	"scorewright/internal/safefile"
 	"scorewright/presets"
@@ -483,7 +483,7 @@ func TestPointExport(t *testing.T) {
 	d := &design.Design{Version: 1, Title: "milk yield", Mode: design.ModePoint, Formula: "-x^2", Interval: []float64{0, 40},
 		Budget: design.Budget{Floor: 0, Cap: 20, Step: 10}}
 	ex := defaultExporter("test")
-	if got := ex.Formats(d); strings.Join(got, ",") != strings.Join(table.Formats(), ",") {
+	if got := ex.Formats(d); strings.Join(got, ",") != strings.Join(annex.ExportFormats(), ",") {
 		t.Fatalf("formats %v", got)
 	}
 	for _, f := range ex.Formats(d) {
@@ -652,8 +652,9 @@ func TestLotteryExport(t *testing.T) {
 		t.Errorf("the file lacks the lottery or the general caution:\n%s", text)
 	}
 	// The report (0.5, 0.5) pays 30 in money when either outcome happens
-	// (40 - 20·0.5, quadratic effort 0.5): a chance of 30/40 = 0.75.
-	if !strings.Contains(text, "\n0.5,0.5,0.7500,0.7500\n") || !strings.Contains(text, "chance if frost") {
+	// (40 - 20·0.5, quadratic effort 0.5): a chance of 30/40 = 0.75, written
+	// in whole thousandths.
+	if !strings.Contains(text, "\n0.5,0.5,0.750,0.750\n") || !strings.Contains(text, "chance if frost") {
 		t.Errorf("no chance 0.75 for the even report:\n%s", text)
 	}
 	// A point table too: squared error on [0, 40], floor 0, cap 20.

@@ -2,11 +2,8 @@ package main
 
 import (
 	"flag"
-	"fmt"
 
 	"scorewright/contract/annex"
-	"scorewright/contract/cost"
-	"scorewright/contract/payform"
 	"scorewright/contract/table"
 	"scorewright/generator/bregman"
 	"scorewright/generator/design"
@@ -53,7 +50,7 @@ func (c *contractFlags) apply(fs *flag.FlagSet, d *design.Design) error {
 		ct.Forecasts = c.forecasts
 	}
 	if set["base-rate"] {
-		if d.Mode == design.ModePoint {
+		if d.Mode.OnInterval() {
 			return usagef("--base-rate is for rules over outcomes")
 		}
 		q, err := num.ParseDistribution(c.baseRate, d.N())
@@ -68,23 +65,7 @@ func (c *contractFlags) apply(fs *flag.FlagSet, d *design.Design) error {
 	return nil
 }
 
-// annexInput gathers what an annex needs from a money table over
-// outcomes: the closed formula (none with a clamp, which bends the
-// rule) and the season's cost. It must be called before a lottery
-// conversion, since the cost is in money.
+// annexInput gathers what an annex needs; see annex.InputFor.
 func annexInput(d *design.Design, tb *table.Table, rule *bregman.Rule, a, b, clamp float64) (*annex.Input, error) {
-	in := &annex.Input{Design: d, Table: tb, Version: version}
-	if rule != nil && clamp == 0 {
-		if f, ok := payform.Find(rule, a, b); ok {
-			in.Formula = f
-		}
-	}
-	if tb.ReportName == "" {
-		c, err := cost.Of(tb, cost.SeasonOf(d))
-		if err != nil {
-			return nil, fmt.Errorf("cost: %w", err)
-		}
-		in.Cost = c
-	}
-	return in, nil
+	return annex.InputFor(d, tb, rule, a, b, clamp, version)
 }

@@ -9,8 +9,7 @@ import (
 	"math"
 	"os"
 	"os/signal"
-	"regexp"
-	"sort"
+	"scorewright"
 	"strconv"
 	"strings"
 	"time"
@@ -67,11 +66,13 @@ func runBacktest(e *env, args []string) error { return backtestWith(e, args, nil
 
 // backtestScheme is one rule of a backtest with its money and origin.
 type backtestScheme struct {
-	id    string // "A", "B"
-	name  string // preset name or "generator"
-	d     *design.Design
-	rule  *bregman.Rule
-	money *money
+	id   string // "A", "B"
+	name string // preset name or "generator"
+	d    *design.Design
+	// statement is the rule's formula in one line, with its parameters.
+	statement string
+	rule      *bregman.Rule
+	money     *money
 }
 
 // backtestWith runs the command; a nil fit means the table's budget fit.
@@ -143,10 +144,14 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 	}
 	n := d1.N()
 	for _, s := range schemes {
-		if s.rule, err = categoricalRule(s.d); err != nil {
+		r, err := openRule(s.d)
+		if err != nil {
 			return err
 		}
-		s.name = ruleName(s.d)
+		if s.rule, err = r.OverOutcomes(); err != nil {
+			return usagef("%v", err)
+		}
+		s.name, s.statement = ruleName(s.d, r), r.Statement()
 		if s.money, err = fit(s.rule, s.d); err != nil {
 			return fmt.Errorf("rule %s (%s): %w", s.id, s.name, err)
 		}
@@ -314,60 +319,14 @@ func versusDesign(d1 *design.Design, preset, gen, file string, params paramFlag)
 }
 
 // ruleName is how a report names a rule: its preset, title or kind.
-func ruleName(d *design.Design) string {
+func ruleName(d *design.Design, r *scorewright.Rule) string {
 	switch {
 	case d.Preset != "":
 		return d.Preset
 	case d.Title != "":
 		return d.Title
-	case d.Mode == design.ModeEmphasis:
-		return "emphasis"
 	}
-	return "generator"
-}
-
-// paramLine matches a formula's parameter line, "name = number".
-var paramLine = regexp.MustCompile(`^\s*([A-Za-z_][A-Za-z_0-9]*)\s*=\s*([-+0-9.eE]+)\s*$`)
-
-// ruleFormula says what the formula of a design is, with its parameters
-// (defaults from the formula, overridden by the design) after it, e.g.
-// "emphasis w(c) = c^(a-1) * (1-c)^(b-1) with a = 2, b = 1".
-func ruleFormula(d *design.Design) string {
-	kind := "generator H = "
-	if d.Mode == design.ModeEmphasis {
-		kind = "emphasis w(c) = "
-	}
-	params := map[string]string{}
-	var names, expr []string
-	for _, line := range strings.Split(d.Formula, "\n") {
-		line = strings.TrimSpace(line)
-		if line == "" || strings.HasPrefix(line, "#") {
-			continue
-		}
-		if m := paramLine.FindStringSubmatch(line); m != nil {
-			if _, seen := params[m[1]]; !seen {
-				names = append(names, m[1])
-			}
-			params[m[1]] = m[2]
-			continue
-		}
-		expr = append(expr, line)
-	}
-	for k, v := range d.Params {
-		if _, seen := params[k]; !seen {
-			names = append(names, k)
-		}
-		params[k] = strconv.FormatFloat(v, 'g', -1, 64)
-	}
-	f := kind + strings.Join(expr, " ")
-	if len(names) > 0 {
-		sort.Strings(names)
-		for i, k := range names {
-			names[i] = k + " = " + params[k]
-		}
-		f += " with " + strings.Join(names, ", ")
-	}
-	return f
+	return r.Kind()
 }
 
 // openHistory opens the history file ("-" is stdin) and returns its size

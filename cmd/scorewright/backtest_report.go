@@ -36,7 +36,7 @@ func newBacktestReport(path string, h *history.Reader, schemes []*backtestScheme
 	for i, s := range schemes {
 		m := res.All[i]
 		r.decimals = append(r.decimals, s.money.decimals)
-		rr := ruleReport{ID: s.id, Name: s.name, Formula: ruleFormula(s.d), Pay: s.money.formula,
+		rr := ruleReport{ID: s.id, Name: s.name, Formula: s.statement, Pay: s.money.formula,
 			Menu: s.money.menu, Budget: s.money.budget, Count: m.Count, Total: num.Float(m.Total), Mean: num.Float(m.Mean),
 			Min: num.Float(m.Min), Max: num.Float(m.Max), OffMenu: m.OffMenu, BelowLow: m.BelowLow, AboveHigh: m.AboveHigh,
 			NonFinite: m.NonFinite, MostTotal: num.Float(float64(m.Count) * s.money.high)}

@@ -425,21 +425,3 @@ func headerOnly(t *testing.T) string {
 	}
 	return path
 }
-
-func TestRuleFormula(t *testing.T) {
-	cases := []struct {
-		d    design.Design
-		want string
-	}{
-		{design.Design{Mode: design.ModeGenerator, Formula: "1 - sum(p^2)"}, "generator H = 1 - sum(p^2)"},
-		{design.Design{Mode: design.ModeGenerator, Formula: "# power\ng = 1.5\n(1 - sum(p^g)) / (g - 1)", Params: map[string]float64{"g": 3}},
-			"generator H = (1 - sum(p^g)) / (g - 1) with g = 3"},
-		{design.Design{Mode: design.ModeEmphasis, Formula: "a = 1\nb = 1\nc^(a-1) * (1-c)^(b-1)", Params: map[string]float64{"a": 2}},
-			"emphasis w(c) = c^(a-1) * (1-c)^(b-1) with a = 2, b = 1"},
-	}
-	for _, c := range cases {
-		if got := ruleFormula(&c.d); got != c.want {
-			t.Errorf("ruleFormula(%q) = %q, want %q", c.d.Formula, got, c.want)
-		}
-	}
-}

@@ -236,18 +236,19 @@ func TestTableLottery(t *testing.T) {
 	// Quadratic rule on the menu 0, 0.25, ..., 1 paid in [10, 50]:
 	// pay = 50 - 20 L with L = 2 (1 - p_k)^2 (Brier 1950, binary form
 	// doubled), so report 0.25 pays 50 - 40·0.5625 = 27.5 if frost
-	// happens, a chance (27.5 - 10)/40 = 0.4375 (derived by hand).
+	// happens, a chance (27.5 - 10)/40 = 0.4375, drawn in whole
+	// thousandths as 0.438 (halves away from zero; derived by hand).
 	code, out, errs := runCmd(t, "table", "--outcomes", "frost,clear", "--preset", "quadratic", "--floor", "10", "--cap", "50", "--step", "0.25", "--lottery", "--format", "csv")
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
-	for _, want := range []string{"chance if frost", "0.25,0.75,0.4375,0.9375", "Hossain & Okui 2013", "gambling"} {
+	for _, want := range []string{"chance if frost", "0.25,0.75,0.438,0.938", "whole number from 1 to 1000", "Hossain & Okui 2013", "gambling"} {
 		if !strings.Contains(out, want) {
 			t.Errorf("lottery table lacks %q:\n%s", want, out)
 		}
 	}
 	code, out, errs = runCmd(t, "table", "--interval", "0,60", "--preset", "squared-error", "--floor", "0", "--cap", "40", "--step", "20", "--lottery", "--format", "csv")
-	if code != 0 || !strings.Contains(out, "\n0,1,0.99,0.96,") || !strings.Contains(out, "gambling") {
+	if code != 0 || !strings.Contains(out, "\n0,1.000,0.990,0.960,") || !strings.Contains(out, "gambling") {
 		t.Errorf("point lottery table: exit %d %s\n%s", code, errs, out)
 	}
 }

@@ -10,11 +10,10 @@ import (
 	"scorewright/contract/budget"
 	"scorewright/contract/risk"
 	"scorewright/contract/risk/riskfit"
-	"scorewright/generator/design"
 	"scorewright/internal/num"
 )
 
-const distortUsage = "RULE BUDGET --utility crra:R|cara:A|linear [--wealth W] [--belief q1,q2,...] [--json]\n\nRULE: " + outcomeRuleUsage + "\nBUDGET: " + budgetUsage
+const distortUsage = "RULE BUDGET (without --step every report is paid by the exact formula) --utility crra:R|cara:A|linear [--wealth W] [--belief q1,q2,...] [--json]\n\nRULE: " + outcomeRuleUsage + "\nBUDGET: " + budgetUsage
 
 type distortPoint struct {
 	Belief []num.Float `json:"belief"`
@@ -24,19 +23,24 @@ type distortPoint struct {
 }
 
 type distortJSON struct {
-	Utility     string         `json:"utility"`
-	Wealth      float64        `json:"wealth"`
-	A           num.Float      `json:"A"`
-	B           num.Float      `json:"B"`
-	Belief      []num.Float    `json:"belief"`
-	Report      []num.Float    `json:"report"`
-	Size        num.Float      `json:"points"`
-	MenuReport  []num.Float    `json:"menu_report"`
-	ExpectedPay num.Float      `json:"expected_pay"`
-	TruthfulPay num.Float      `json:"truthful_pay"`
-	Status      string         `json:"status"`
-	Curve       []distortPoint `json:"curve"`
-	Largest     distortPoint   `json:"largest"`
+	Utility     string      `json:"utility"`
+	Wealth      float64     `json:"wealth"`
+	A           num.Float   `json:"A"`
+	B           num.Float   `json:"B"`
+	Belief      []num.Float `json:"belief"`
+	Report      []num.Float `json:"report"`
+	Size        num.Float   `json:"points"`
+	MenuReport  []num.Float `json:"menu_report"`
+	ExpectedPay num.Float   `json:"expected_pay"`
+	TruthfulPay num.Float   `json:"truthful_pay"`
+	Status      string      `json:"status"`
+	// Pay says how pay follows from effort, and whether a menu holds it.
+	Pay   string         `json:"pay"`
+	Curve []distortPoint `json:"curve"`
+	// Failed lists the beliefs whose best report was not found (each also
+	// on its own line in the text report); the command then exits 1.
+	Failed  []distortFailure `json:"failed,omitempty"`
+	Largest distortPoint     `json:"largest"`
 	// Along names the curve's beliefs: "event probability" (n = 2) or
 	// segments from the uniform belief toward each outcome.
 	Along string   `json:"along"`
@@ -70,34 +74,35 @@ func runDistort(e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	if d.Mode == design.ModePoint {
+	r, err := openRule(d)
+	if err != nil {
+		return err
+	}
+	if r.OnInterval() {
 		return usagef("distort works on rules over outcomes; it does not take point-forecast designs")
 	}
 	if err := bf.apply(fs, d); err != nil {
 		return err
 	}
-	rule, err := categoricalRule(d)
+	rule, err := r.OverOutcomes()
 	if err != nil {
-		return err
+		return usagef("%v", err)
 	}
 	n := rule.Outcomes()
 	fitted, err := riskfit.New(rule, d.Budget)
 	var ue *budget.UnboundedError
 	var me *riskfit.MenuError
 	switch {
-	case errors.Is(err, riskfit.ErrNoStep):
-		return usagef("the report menu is missing: give --step S (e.g. 0.05; 1/K for a simplex grid when n > 2)")
 	case errors.As(err, &me):
 		return usagef("%v", me.Err)
 	case errors.As(err, &ue) && ue.AtZero:
-		// distort has no --clamp: a clamped rule has kinks the optimiser's
-		// gradient cannot follow, so the report floor is the one way out.
+		// distort has no --clamp: a clamped rule has kinks, and its best
+		// report sits on them; the report floor is the one way out.
 		return usagef("the rule's effort is %v at report %s when %q happens: the rule is unbounded where a report gives an outcome probability 0; give --report-floor P (e.g. 0.01) so that every report gives each outcome at least P",
 			ue.Effort, num.Format(ue.Report), ue.Label)
 	case err != nil:
 		return fitError(err)
 	}
-	menu, fit := fitted.Menu, fitted.Fit
 	solver, err := fitted.Solver(rule, u, *wealth)
 	if err != nil {
 		return usagef("%v", err)
@@ -113,49 +118,87 @@ func runDistort(e *env, args []string) error {
 			return usagef("--belief %s gives an outcome less than the report floor %g", num.Format(q), d.Budget.ReportFloor)
 		}
 	}
-	best, err := solver.Best(q)
-	if err != nil {
-		return err
-	}
-	pick := menu.Reports[solver.BestOf(q, fit.Pays)]
+	best, bestErr := solver.Best(q)
+	pick := fitted.MenuPick(solver, q)
 
 	beliefs, _, along := riskfit.CurveBeliefs(n, d.Budget.ReportFloor)
 	curve, err := solver.Distortion(context.Background(), beliefs, nil)
 	if err != nil {
 		return err
 	}
-	out := distortJSON{Utility: u.String(), Wealth: *wealth, A: num.Float(fit.A), B: num.Float(fit.B),
-		Belief: num.Floats(best.Belief), Report: num.Floats(best.Report), Size: num.Float(best.Size), MenuReport: num.Floats(pick),
-		ExpectedPay: num.Float(best.ExpectedPay), TruthfulPay: num.Float(best.TruthfulPay), Status: best.Status,
+	out := distortResult(u, *wealth, fitted, q, best, bestErr, pick, curve, along)
+	if *asJSON {
+		if err := writeJSON(e.stdout, out); err != nil {
+			return err
+		}
+	} else if err := printDistort(e, u, *wealth, fitted.PayDesc(), q, best, pick, curve, along, out); err != nil {
+		return err
+	}
+	if len(out.Failed) > 0 {
+		return errFailed
+	}
+	return nil
+}
+
+// distortResult gathers what distort reports, for JSON and text alike.
+func distortResult(u risk.Utility, wealth float64, fitted *riskfit.Fitted, q []float64, best *risk.Result, bestErr error, pick []float64, curve *risk.Curve, along string) distortJSON {
+	out := distortJSON{Utility: u.String(), Wealth: wealth, A: num.Float(fitted.Fit.A), B: num.Float(fitted.Fit.B),
+		Belief: num.Floats(q), MenuReport: num.Floats(pick), Pay: fitted.PayDesc(),
 		Largest: distortPointOf(curve.Largest), Along: along}
+	if bestErr == nil {
+		out.Report, out.Size, out.Status = num.Floats(best.Report), num.Float(best.Size), best.Status
+		out.ExpectedPay, out.TruthfulPay = num.Float(best.ExpectedPay), num.Float(best.TruthfulPay)
+	} else {
+		out.Failed = append(out.Failed, distortFailure{Belief: num.Floats(q), Why: bestErr.Error()})
+	}
 	for _, p := range curve.Points {
 		out.Curve = append(out.Curve, distortPointOf(p))
+	}
+	for _, f := range curve.Failed {
+		out.Failed = append(out.Failed, distortFailure{Belief: num.Floats(f.Belief), Why: f.Err.Error()})
 	}
 	if u.Kind == risk.CARA {
 		out.Notes = append(out.Notes, "with CARA utility initial wealth does not change the report")
 	}
+	if fitted.Menu == nil {
+		out.Notes = append(out.Notes, "no menu (no --step): every report is paid by the exact formula A - B·effort, unrounded, so there is no menu pick")
+	} else {
+		out.Notes = append(out.Notes, "the best report is over all reports at the exact pay A - B·effort; a forecaster held to the menu picks the menu item whose rounded payments in the table give the largest expected utility (the menu pick)")
+	}
 	out.Notes = append(out.Notes,
-		"the best report is over all reports at the exact pay A - B·effort; a forecaster held to the menu picks the menu item whose rounded payments in the table give the largest expected utility (the menu pick)",
 		"paying a fixed prize with probability (pay - floor)/(cap - floor) instead of money (table --lottery) makes the truthful report best for any expected-utility maximiser",
 	)
-	if *asJSON {
-		return writeJSON(e.stdout, out)
+	return out
+}
+
+// printDistort writes the text report of distort.
+func printDistort(e *env, u risk.Utility, wealth float64, pay string, q []float64, best *risk.Result, pick []float64, curve *risk.Curve, along string, out distortJSON) error {
+	fmt.Fprintf(e.stdout, "utility: %s of initial wealth %g plus pay\n", u, wealth)
+	fmt.Fprintln(e.stdout, pay)
+	if best != nil {
+		menu := ""
+		if pick != nil {
+			menu = "; menu pick " + num.Format(pick)
+		}
+		fmt.Fprintf(e.stdout, "belief %s: best report %s, %.3g probability points away%s\n", num.Format(best.Belief), num.Format(best.Report), best.Size, menu)
+		fmt.Fprintf(e.stdout, "expected pay %.6g against %.6g for the truthful report: what the forecaster gives up in expected pay for the risk they prefer\n", best.ExpectedPay, best.TruthfulPay)
 	}
-	fmt.Fprintf(e.stdout, "utility: %s of initial wealth %g plus pay\n", u, *wealth)
-	fmt.Fprintf(e.stdout, "pay = %.6g - %.6g * effort (fitted to the budget on the menu: %s)\n", fit.A, fit.B, fit.MenuDesc())
-	fmt.Fprintf(e.stdout, "belief %s: best report %s, %.3g probability points away; menu pick %s\n", num.Format(best.Belief), num.Format(best.Report), best.Size, num.Format(pick))
-	fmt.Fprintf(e.stdout, "expected pay %.6g against %.6g for the truthful report: what the forecaster gives up in expected pay for the risk they prefer\n", best.ExpectedPay, best.TruthfulPay)
-	fmt.Fprintf(e.stdout, "distortion curve over %d beliefs (%s): largest %.3g points, belief %s -> report %s\n", len(curve.Points), along, curve.Largest.Size, num.Format(curve.Largest.Belief), num.Format(curve.Largest.Report))
-	tw := tabwriter.NewWriter(e.stdout, 0, 4, 2, ' ', 0)
-	fmt.Fprintln(tw, "  belief\treport\tpoints")
-	every := max(1, len(curve.Points)/12)
-	for i, p := range curve.Points {
-		if i%every == 0 || i == len(curve.Points)-1 {
-			fmt.Fprintf(tw, "  %s\t%s\t%.3g\n", num.Format(p.Belief), num.Format(p.Report), p.Size)
+	if len(curve.Points) > 0 {
+		fmt.Fprintf(e.stdout, "distortion curve over %d beliefs (%s): largest %.3g points, belief %s -> report %s\n", len(curve.Points), along, curve.Largest.Size, num.Format(curve.Largest.Belief), num.Format(curve.Largest.Report))
+		tw := tabwriter.NewWriter(e.stdout, 0, 4, 2, ' ', 0)
+		fmt.Fprintln(tw, "  belief\treport\tpoints")
+		every := max(1, len(curve.Points)/12)
+		for i, p := range curve.Points {
+			if i%every == 0 || i == len(curve.Points)-1 {
+				fmt.Fprintf(tw, "  %s\t%s\t%.3g\n", num.Format(p.Belief), num.Format(p.Report), p.Size)
+			}
+		}
+		if err := tw.Flush(); err != nil {
+			return err
 		}
 	}
-	if err := tw.Flush(); err != nil {
-		return err
+	for _, f := range out.Failed {
+		fmt.Fprintf(e.stdout, "unsolved: belief %s: %s\n", num.Format(floatsOf(f.Belief)), f.Why)
 	}
 	for _, n := range out.Notes {
 		fmt.Fprintln(e.stdout, "note:", n)
@@ -163,6 +206,19 @@ func runDistort(e *env, args []string) error {
 	return nil
 }
 
+type distortFailure struct {
+	Belief []num.Float `json:"belief"`
+	Why    string      `json:"why"`
+}
+
 func distortPointOf(r risk.Result) distortPoint {
 	return distortPoint{num.Floats(r.Belief), num.Floats(r.Report), num.Float(r.Size)}
+}
+
+func floatsOf(v []num.Float) []float64 {
+	out := make([]float64, len(v))
+	for i, x := range v {
+		out[i] = float64(x)
+	}
+	return out
 }

@@ -229,7 +229,7 @@ func TestLotteryChanceByHand(t *testing.T) {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
 	rows := csvRows(out)
-	if len(rows) != 6 || rows[0] != "report frost,report clear,chance if frost,chance if clear" || rows[4] != "0.75,0.25,0.95,0.45" {
+	if len(rows) != 6 || rows[0] != "report frost,report clear,chance if frost,chance if clear" || rows[4] != "0.75,0.25,0.950,0.450" {
 		t.Errorf("rows %q", rows)
 	}
 }

@@ -262,12 +262,12 @@ func writePointTable(e *env, d *design.Design, t *scorewright.Table, tb *table.T
 	}
 	sum := newPointTableSummary(fit, rc, tb, format, tf.out)
 	if tf.lottery {
-		if sum.Lottery, err = lotteryTable(tb, t); err != nil {
+		if sum.Lottery, err = lotteryTable(tb, t, tf.draws); err != nil {
 			return err
 		}
 		sum.Caution = tb.Meta.Cautions
 	}
-	return exportTable(e, ax, format, tf, rc.Passed, &sum.Output, sum, func() error {
+	return exportTable(e, ax, format, tf, rc.Passed && tb.Meta.Passed, &sum.Output, sum, func() error {
 		return printPointTableSummary(e.stdout, fit, rc, sum)
 	})
 }

@@ -127,12 +127,13 @@ func researchDesign(rf *ruleFlags) (*design.Design, *bregman.Rule, string, error
 	if err != nil {
 		return nil, nil, "", err
 	}
-	if d.Mode == design.ModePoint || d.Mode == design.ModePayout {
-		return nil, nil, "", usagef("research works on rules over outcomes; the design is in %s mode", d.Mode)
-	}
-	rule, err := categoricalRule(d)
+	r, err := openRule(d)
 	if err != nil {
 		return nil, nil, "", err
+	}
+	rule, err := r.OverOutcomes()
+	if err != nil {
+		return nil, nil, "", usagef("research works on rules over outcomes; the design is in %s mode", r.Mode())
 	}
 	name := "design"
 	if d.Preset != "" {

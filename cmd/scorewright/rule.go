@@ -2,7 +2,6 @@ package main
 
 import (
 	"scorewright"
-	"scorewright/generator/bregman"
 	"scorewright/generator/design"
 )
 
@@ -14,18 +13,4 @@ func openRule(d *design.Design) (*scorewright.Rule, error) {
 		return nil, usagef("%v", err)
 	}
 	return r, nil
-}
-
-// categoricalRule opens a design and returns its rule over outcomes: a
-// generator formula, or (n = 2) an emphasis weight integrated twice.
-func categoricalRule(d *design.Design) (*bregman.Rule, error) {
-	r, err := openRule(d)
-	if err != nil {
-		return nil, err
-	}
-	rule, err := r.OverOutcomes()
-	if err != nil {
-		return nil, usagef("%v", err)
-	}
-	return rule, nil
 }

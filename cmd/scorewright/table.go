@@ -18,6 +18,7 @@ import (
 
 	"scorewright/contract/annex"
 	"scorewright/contract/budget"
+	"scorewright/contract/lottery"
 	"scorewright/contract/table"
 	"scorewright/generator/design"
 	"scorewright/internal/num"
@@ -32,6 +33,7 @@ type tableFlags struct {
 	clamp             float64
 	force, json       bool
 	lottery           bool
+	draws             int
 }
 
 func addTableFlags(fs *flag.FlagSet) *tableFlags {
@@ -41,6 +43,7 @@ func addTableFlags(fs *flag.FlagSet) *tableFlags {
 	fs.BoolVar(&t.force, "force", false, "replace an existing --out file, and export a table that failed the re-check (it then carries a warning)")
 	fs.BoolVar(&t.json, "json", false, "print the fit and re-check summary as JSON (the table itself goes to --out)")
 	fs.BoolVar(&t.lottery, "lottery", false, "pay a chance of winning a fixed prize, (pay - floor)/(cap - floor), instead of money")
+	fs.IntVar(&t.draws, "draws", lottery.DefaultDraws, "--lottery: chances in whole 1/N, settled by drawing a whole number from 1 to N (N a power of ten)")
 	fs.StringVar(&t.menu, "menu", "", "read the report menu from a CSV file: one report per line, n probabilities (n = 2: one number), '#' comments")
 	fs.Float64Var(&t.clamp, "clamp", 0, "pay every report as if each probability were at least P (rescaled to sum 1); for rules infinite at 0")
 	return t
@@ -73,17 +76,8 @@ func (t *tableFlags) resolveFormat() (string, error) {
 	return "", usagef("--format %q is not one of %s", f, strings.Join(exportFormats(), ", "))
 }
 
-// exportFormats are the table's own formats (the PDF figure aside: pdf is
-// the annex) and the annexes.
-func exportFormats() []string {
-	var f []string
-	for _, t := range table.Formats() {
-		if t != "pdf" {
-			f = append(f, t)
-		}
-	}
-	return append(f, annex.Formats()...)
-}
+// exportFormats are what table writes; see annex.ExportFormats.
+func exportFormats() []string { return annex.ExportFormats() }
 
 func runTable(e *env, args []string) error {
 	fs := newFlags("table")
@@ -141,13 +135,13 @@ func tableOf(e *env, fs *flag.FlagSet, d *design.Design, format string, tf *tabl
 	}
 	var lot *lotteryJSON
 	if tf.lottery {
-		if lot, err = lotteryTable(tb, t); err != nil {
+		if lot, err = lotteryTable(tb, t, tf.draws); err != nil {
 			return err
 		}
 	}
 	sum := newTableSummary(fit, rc, tb, format, tf.out)
 	sum.Lottery, sum.Caution = lot, tb.Meta.Cautions
-	return exportTable(e, ax, format, tf, rc.Passed, &sum.Output, sum, func() error {
+	return exportTable(e, ax, format, tf, rc.Passed && tb.Meta.Passed, &sum.Output, sum, func() error {
 		return printTableSummary(e.stdout, fit, rc, sum)
 	})
 }
@@ -202,14 +196,7 @@ func exportTable(e *env, ax *annex.Input, format string, tf *tableFlags, passed 
 
 // writeExport writes the table in one of its formats, or the annex.
 func writeExport(w io.Writer, ax *annex.Input, format string) error {
-	if !annex.IsFormat(format) {
-		return ax.Table.Write(w, format)
-	}
-	doc, err := annex.New(*ax)
-	if err != nil {
-		return err
-	}
-	return doc.Write(w, format)
+	return annex.WriteAny(w, ax, format)
 }
 
 // tableMenu builds the report menu from --menu or the budget's step.

@@ -19,13 +19,14 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"strings"
 
 	"scorewright/contract/cost"
+	"scorewright/contract/lottery"
 	"scorewright/contract/payform"
 	"scorewright/contract/table"
 	"scorewright/generator/design"
-	"scorewright/internal/numfmt"
 )
 
 // Formats lists the annex formats.
@@ -200,18 +201,14 @@ func clause(t *table.Table, currency string) (string, string) {
 	return c, drawText(t)
 }
 
-// drawText states the draw of a lottery table whose chances are whole
-// multiples of 1/den (den = 10^decimals): a whole number from 1 to den.
+// drawText states the draw of a lottery table: a whole number when its
+// chances are whole multiples of a power of ten (as lottery.Drawable
+// makes them), else a uniform number.
 func drawText(t *table.Table) string {
-	if t.Decimals < 1 || t.Decimals > 6 {
-		return "After the outcome is known, draw a uniform random number U in [0, 1) in a way both parties can verify and record; the forecaster wins the prize if U is below the chance in the row."
+	if t.Decimals >= 1 && t.Decimals <= 6 {
+		return lottery.DrawText(int(math.Pow10(t.Decimals)))
 	}
-	den := 1
-	for range t.Decimals {
-		den *= 10
-	}
-	return fmt.Sprintf("After the outcome is known, draw a whole number from 1 to %d, each equally likely, in a way both parties can verify and record (for example a published random source agreed in advance). The forecaster wins the prize if the number drawn is at most %d times the chance in the row: a chance of %s wins on the numbers 1 to %d.",
-		den, den, numfmt.Fixed(0.5, t.Decimals), den/2)
+	return lottery.Draw
 }
 
 // formulaText states the pay per outcome: the closed formula, or why

@@ -32,8 +32,8 @@ type Fit struct {
 	// Menu is the menu the fit was made on; Labels name the outcomes.
 	Menu   *Menu
 	Labels []string
-	// Efforts[i][k] is L(report i, k), at the clamped report when the
-	// menu has a clamp.
+	// Efforts[i][k] is L(report i, k) less Shift, at the clamped report
+	// when the menu has a clamp.
 	Efforts [][]float64
 	// Pays[i][k] is Pay(Efforts[i][k]): the table.
 	Pays [][]float64
@@ -47,8 +47,16 @@ type Fit struct {
 	// was stated).
 	ReferencePay float64
 
-	rule  *bregman.Rule
-	round Rounder
+	// Shift is the sum of the number literals of the generator's outermost
+	// sum (bregman.Formula.WithoutConstantTerms). Every effort is computed
+	// without it, so that "1e12 + 1 - sum(p^2)" pays what "1 - sum(p^2)"
+	// pays; A is stated with it, for the rule as given.
+	Shift float64
+
+	// rule is the rule computed with (constant terms taken out), given
+	// the rule as the caller gave it.
+	rule, given *bregman.Rule
+	round       Rounder
 	// Payment is computed as base + B·(anchor - L), or Cap - B·(L - low)
 	// in the half of the effort range nearer the smallest menu effort low:
 	// the same line as A - B·L, anchored at both ends so that the floor
@@ -118,7 +126,19 @@ func FitRule(r *bregman.Rule, m *Menu, b design.Budget) (*Fit, error) {
 	if err != nil {
 		return nil, err
 	}
-	f := &Fit{Unit: b.Unit, Rounding: rd.mode, Clamp: m.Clamp, Menu: m, rule: r, round: rd}
+	given, shift := r, 0.0
+	if g, ok := r.Gen.(*bregman.Formula); ok {
+		// The same rule with its constant terms taken out before any
+		// effort is computed, so that a constant cannot change a cent.
+		g2, c, err := g.WithoutConstantTerms()
+		if err != nil {
+			return nil, err
+		}
+		shift = c
+		r2 := *r
+		r2.Gen, r = g2, &r2
+	}
+	f := &Fit{given: given, Shift: shift, Unit: b.Unit, Rounding: rd.mode, Clamp: m.Clamp, Menu: m, rule: r, round: rd}
 	f.Labels = make([]string, n)
 	for k := range f.Labels {
 		f.Labels[k] = r.Label(k)
@@ -177,7 +197,8 @@ func FitRule(r *bregman.Rule, m *Menu, b design.Budget) (*Fit, error) {
 	default:
 		return nil, errors.New("budget: give a cap above the floor, or a target mean payment with a floor")
 	}
-	f.A = f.base + f.B*f.anchor
+	// A is stated for the efforts of the rule as given.
+	f.A = f.base + f.B*(f.anchor+f.Shift)
 	f.Floor = b.Floor
 	f.Cap = f.base + f.B*(lmax-lmin)
 	if b.MeanPay == nil {
@@ -193,7 +214,7 @@ func FitRule(r *bregman.Rule, m *Menu, b design.Budget) (*Fit, error) {
 	for i, eff := range f.Efforts {
 		row := make([]float64, n)
 		for k, l := range eff {
-			row[k] = f.Pay(l)
+			row[k] = f.round.Round(f.exact(l))
 			f.MinPay, f.MaxPay = math.Min(f.MinPay, row[k]), math.Max(f.MaxPay, row[k])
 		}
 		f.Pays[i] = row
@@ -202,7 +223,8 @@ func FitRule(r *bregman.Rule, m *Menu, b design.Budget) (*Fit, error) {
 	return f, nil
 }
 
-// exact is the unrounded payment for an effort.
+// exact is the unrounded payment for an effort of the rule less its
+// constant terms (f.rule).
 func (f *Fit) exact(effort float64) float64 {
 	if effort-f.low < f.anchor-effort && f.Cap > f.base {
 		return f.Cap - f.B*(effort-f.low)
@@ -211,10 +233,11 @@ func (f *Fit) exact(effort float64) float64 {
 }
 
 // Pay returns A - B·effort rounded to the unit as the table pays it.
-func (f *Fit) Pay(effort float64) float64 { return f.round.Round(f.exact(effort)) }
+// The effort is the rule's as given (Rule), constant terms included.
+func (f *Fit) Pay(effort float64) float64 { return f.round.Round(f.exact(effort - f.Shift)) }
 
 // Exact returns A - B·effort without rounding.
-func (f *Fit) Exact(effort float64) float64 { return f.exact(effort) }
+func (f *Fit) Exact(effort float64) float64 { return f.exact(effort - f.Shift) }
 
 // Decimals is the number of decimals that writes every payment exactly,
 // or -1 when payments are not rounded.
@@ -224,7 +247,7 @@ func (f *Fit) Decimals() int { return f.round.Decimals() }
 func (f *Fit) RoundingDesc() string { return f.round.Describe() }
 
 // Rule is the rule the fit was made for.
-func (f *Fit) Rule() *bregman.Rule { return f.rule }
+func (f *Fit) Rule() *bregman.Rule { return f.given }
 
 // Payer pays arbitrary reports (not only menu items) exactly as the table
 // formula does: clamp, effort, A - B·L, rounding. A Payer is used by one
@@ -248,7 +271,7 @@ func (f *Fit) NewPayer() *Payer {
 func (p *Payer) Pay(dst, report []float64) []float64 {
 	p.s.Efforts(p.ef, ClampReport(p.cp, report, p.f.Clamp))
 	for k, l := range p.ef {
-		dst[k] = p.f.Pay(l)
+		dst[k] = p.f.round.Round(p.f.exact(l))
 	}
 	return dst
 }

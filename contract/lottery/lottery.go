@@ -73,6 +73,9 @@ func chanceDecimals(moneyDecimals int, vals [][]float64) int {
 	return 12
 }
 
+// moneyNote opens the note that says the record speaks of money.
+const moneyNote = "the re-check and the notes above speak of the money table"
+
 // slack is how far outside [floor, cap], relative to cap - floor, a
 // payment may lie from floating-point noise and still count as the bound.
 const slack = 1e-9
@@ -103,7 +106,7 @@ func Convert(t *table.Table, floor, cap float64) error {
 		table.FormatNumber(prize), table.FormatNumber(floor), table.FormatNumber(prize), m.Payment, table.FormatNumber(floor))
 	m.MinMargin = num.Float(float64(m.MinMargin) / prize)
 	m.Notes = append(m.Notes,
-		fmt.Sprintf("the re-check and the notes above speak of the money table; in chances every margin is the money margin divided by the prize %s", table.FormatNumber(prize)),
+		fmt.Sprintf("%s; in chances every margin is the money margin divided by the prize %s", moneyNote, table.FormatNumber(prize)),
 		Why, Draw)
 	m.Cautions = append(m.Cautions, Caution)
 	return nil

@@ -6,8 +6,6 @@ import (
 	"fmt"
 	"math"
 
-	"gonum.org/v1/gonum/optimize"
-
 	"scorewright/generator/bregman"
 )
 
@@ -15,7 +13,7 @@ import (
 type Contract struct {
 	A, B float64
 	// MinPay is the smallest payment the contract can make (its floor); a
-	// CRRA forecaster needs Wealth + MinPay > 0.
+	// CRRA forecaster needs Wealth + MinPay > 0 (>= 0 below R = 1).
 	MinPay float64
 	// ReportFloor is the smallest probability a report may give an
 	// outcome (0: none).
@@ -31,10 +29,11 @@ type Solver struct {
 	wealth float64
 	n      int
 	sc     *bregman.Scorer
+	// tie is the difference in certainty equivalent below which two
+	// reports count as equally good: rounding of the money amounts.
+	tie float64
 	// scratch
-	p, eff, hess, hp, g, sig []float64
-	q                        []float64
-	ref                      float64
+	q, eff, x, pi, hess, g, trial, dir []float64
 }
 
 // NewSolver prepares a solver for a rule paid under contract c to a
@@ -46,230 +45,183 @@ func NewSolver(rule *bregman.Rule, c Contract, u Utility, wealth float64) (*Solv
 		return nil, fmt.Errorf("risk: contract pay = %g - %g L needs a finite A and B > 0", c.A, c.B)
 	case c.ReportFloor < 0 || c.ReportFloor*float64(n) >= 1:
 		return nil, fmt.Errorf("risk: report floor %g leaves no reports for %d outcomes", c.ReportFloor, n)
-	case u.Kind == CRRA && u.Coef != 0 && !(wealth+c.MinPay > 0):
-		return nil, fmt.Errorf("risk: CRRA utility needs positive final wealth; initial wealth %g plus the smallest payment %g is not positive (give --wealth)", wealth, c.MinPay)
+	case math.IsNaN(wealth) || math.IsInf(wealth, 0):
+		return nil, fmt.Errorf("risk: initial wealth %g is not a finite number", wealth)
+	case u.Kind == CRRA && u.Coef >= 1 && !(wealth+c.MinPay > 0):
+		return nil, fmt.Errorf("risk: CRRA utility with coefficient %g needs positive final wealth; initial wealth %g plus the smallest payment %g is not positive (give --wealth)", u.Coef, wealth, c.MinPay)
+	case u.Kind == CRRA && u.Coef != 0 && !(wealth+c.MinPay >= 0):
+		return nil, fmt.Errorf("risk: CRRA utility is not defined at negative wealth; initial wealth %g plus the smallest payment %g is negative (give --wealth)", wealth, c.MinPay)
 	}
+	scale := math.Abs(wealth) + math.Abs(c.A) + math.Abs(c.MinPay)
+	mk := func() []float64 { return make([]float64, n) }
 	return &Solver{rule: rule, c: c, u: u, wealth: wealth, n: n, sc: rule.NewScorer(),
-		p: make([]float64, n), eff: make([]float64, n), hess: make([]float64, n*n), hp: make([]float64, n),
-		g: make([]float64, n), sig: make([]float64, n), q: make([]float64, n)}, nil
+		tie: 64*0x1p-52*scale + 1e-300,
+		q:   mk(), eff: mk(), x: mk(), pi: mk(), hess: make([]float64, n*n), g: mk(), trial: mk(), dir: mk()}, nil
 }
 
-// Result is the best report for one belief. When the best report is a
-// corner of the simplex (a risk-seeking forecaster under a bounded rule)
-// the softmax coordinates run off to infinity and the report comes within
-// about 1e-6 of the corner before the gradient test stops the search.
+// Result is the best report for one belief.
 type Result struct {
 	Belief, Report []float64
 	// Size is the distortion max_k |report_k - belief_k| in probability
 	// points (percent).
 	Size float64
-	// Status is the optimiser's termination status.
+	// Status says in words how the report was confirmed (the first-order
+	// condition and its residual, or why it could not be checked).
 	Status string
 	// ExpectedPay is the expected payment of the report under the belief;
 	// TruthfulPay that of the truthful report. Their difference is what
-	// the forecaster gives up in expected money for less risk.
+	// the forecaster gives up in expected money for the risk they prefer.
 	ExpectedPay, TruthfulPay float64
 }
 
-// report maps softmax coordinates z (length n-1, z_n = 0) to a report
-// above the floor: p = f + (1 - n f) softmax(z).
-func (s *Solver) report(z []float64) {
-	m := 0.0
-	for _, v := range z {
-		m = math.Max(m, v)
+// ErrNotConverged says that the search ended where the first-order
+// condition does not hold.
+var ErrNotConverged = errors.New("risk: the search did not reach a best report")
+
+// value is the certainty equivalent of report p for the solver's belief:
+// final wealth W + A - B L(p, k) for each outcome k.
+func (s *Solver) value(p []float64) float64 {
+	s.sc.Efforts(s.eff, p)
+	for k, l := range s.eff {
+		s.x[k] = s.wealth + s.c.A - s.c.B*l
 	}
-	var t float64
-	for i := 0; i < s.n; i++ {
-		zi := 0.0
-		if i < s.n-1 {
-			zi = z[i]
-		}
-		s.sig[i] = math.Exp(zi - m)
-		t += s.sig[i]
-	}
-	f := s.c.ReportFloor
-	for i := range s.sig {
-		s.sig[i] /= t
-		s.p[i] = f + (1-float64(s.n)*f)*s.sig[i]
-	}
+	return s.u.certainty(s.x, s.q)
 }
 
-// objective is minus expected (normalised) utility, in units of effort:
-// -sum_k q_k v(W + A - B L_k) / (B v'(ref)).
-func (s *Solver) objective(z []float64) float64 {
-	s.report(z)
-	s.sc.Efforts(s.eff, s.p)
-	var eu float64
-	for k, qk := range s.q {
-		if qk == 0 {
-			continue
-		}
-		v, _ := s.u.normalised(s.wealth+s.c.A-s.c.B*s.eff[k], s.ref)
-		eu += qk * v
+// slope writes into s.g a positive multiple of the gradient of expected
+// utility in the report, G = -H”(pi - p) with pi the belief tilted by
+// marginal utility (see weights), and returns the largest |H”| entry; it
+// returns false where the curvature is not finite.
+func (s *Solver) slope(p []float64) (float64, bool) {
+	s.sc.Efforts(s.eff, p)
+	for k, l := range s.eff {
+		s.x[k] = s.wealth + s.c.A - s.c.B*l
 	}
-	if math.IsNaN(eu) {
-		return math.Inf(1)
-	}
-	return -eu / (s.c.B * s.slopeRef())
-}
-
-func (s *Solver) slopeRef() float64 {
-	_, d := s.u.normalised(s.ref, s.ref)
-	return d
-}
-
-// gradient writes d objective / dz.
-func (s *Solver) gradient(grad, z []float64) {
-	s.report(z)
-	s.sc.Efforts(s.eff, s.p)
-	s.sc.Hessian(s.hess, s.p)
-	n := s.n
+	s.u.weights(s.pi, s.x, s.q)
+	s.sc.Hessian(s.hess, p)
+	n, big := s.n, 0.0
 	for j := 0; j < n; j++ {
 		var v float64
 		for i := 0; i < n; i++ {
-			v += s.hess[j*n+i] * s.p[i]
+			h := s.hess[j*n+i]
+			if math.IsNaN(h) || math.IsInf(h, 0) || math.IsNaN(s.pi[i]) {
+				return 0, false
+			}
+			big = math.Max(big, math.Abs(h))
+			v += h * (s.pi[i] - p[i])
 		}
-		s.hp[j] = v
+		s.g[j] = -v
 	}
-	// G_j = sum_k q_k (v'(x_k)/v'(ref)) dL_k/dp_j, dL_k/dp_j = H_kj - (Hp)_j.
-	d0 := s.slopeRef()
-	for j := 0; j < n; j++ {
-		s.g[j] = 0
-	}
-	for k, qk := range s.q {
-		if qk == 0 {
-			continue
-		}
-		_, d := s.u.normalised(s.wealth+s.c.A-s.c.B*s.eff[k], s.ref)
-		wk := qk * d / d0
-		for j := 0; j < n; j++ {
-			s.g[j] += wk * (s.hess[k*n+j] - s.hp[j])
-		}
-	}
-	// Chain through p = f + (1 - n f) softmax(z).
-	scale := 1 - float64(n)*s.c.ReportFloor
-	var mean float64
-	for i := 0; i < n; i++ {
-		mean += s.g[i] * s.sig[i]
-	}
-	for m := 0; m < n-1; m++ {
-		grad[m] = scale * s.sig[m] * (s.g[m] - mean)
-	}
+	return big, true
 }
 
-// stallGradient is the largest gradient (in effort units per softmax
-// coordinate) at which a stalled optimiser's result is accepted: the line
-// search has hit floating-point resolution of the objective, and a gradient
-// this small is negligible next to efforts of order 1.
-const stallGradient = 1e-8
-
-// ErrNotConverged wraps an optimiser that stopped without converging.
-var ErrNotConverged = errors.New("risk: the optimiser did not converge")
-
-// setBelief stores q and sets the reference wealth to the truthful
-// forecaster's expected final wealth; it returns the truthful report
-// (raised to the report floor) and its expected pay.
+// setBelief stores q and returns the truthful report (raised to the report
+// floor, the difference taken from the largest entry) and its expected pay.
 func (s *Solver) setBelief(q []float64) ([]float64, float64) {
 	copy(s.q, q)
-	truth := make([]float64, s.n)
-	for i, v := range q {
-		truth[i] = math.Max(v, s.c.ReportFloor)
-	}
+	truth := append([]float64(nil), q...)
 	normalise(truth)
-	pay := s.c.A - s.c.B*s.sc.Expected(q, truth)
-	s.ref = s.wealth + pay
-	return truth, pay
+	big := 0
+	for i, v := range truth {
+		if v > truth[big] {
+			big = i
+		}
+	}
+	for i, v := range truth {
+		if i != big && v < s.c.ReportFloor {
+			truth[big] -= s.c.ReportFloor - v
+			truth[i] = s.c.ReportFloor
+		}
+	}
+	return truth, s.c.A - s.c.B*s.sc.Expected(q, truth)
 }
 
 // Best returns the report that maximises the forecaster's expected utility
-// for belief q (a probability vector over the rule's outcomes).
+// for belief q (a probability vector over the rule's outcomes), over every
+// report that gives each outcome at least the report floor.
 func (s *Solver) Best(q []float64) (*Result, error) {
 	if len(q) != s.n {
 		panic(fmt.Sprintf("risk: belief has %d entries for %d outcomes", len(q), s.n))
 	}
 	truth, truthPay := s.setBelief(q)
-	if s.u.Kind == CRRA && s.u.Coef != 0 && !(s.ref > 0) {
-		return nil, fmt.Errorf("risk: expected final wealth %g is not positive; CRRA needs positive wealth", s.ref)
+	p, v := s.search(truth)
+	if math.IsInf(v, -1) || math.IsNaN(v) {
+		return nil, fmt.Errorf("%w: no report has a defined utility for belief %v", ErrNotConverged, q)
 	}
-	f := s.c.ReportFloor
-	z0 := make([]float64, s.n-1)
-	last := math.Max((truth[s.n-1]-f)/(1-float64(s.n)*f), 1e-12)
-	for i := range z0 {
-		z0[i] = math.Log(math.Max((truth[i]-f)/(1-float64(s.n)*f), 1e-12) / last)
+	status, err := s.confirm(p)
+	if err != nil {
+		return nil, err
 	}
-	prob := optimize.Problem{Func: s.objective, Grad: s.gradient}
-	set := &optimize.Settings{GradientThreshold: 1e-11, MajorIterations: 2000,
-		Converger: &optimize.FunctionConverge{Absolute: 1e-15, Relative: 1e-15, Iterations: 50}}
-	res, err := optimize.Minimize(prob, z0, set, &optimize.BFGS{})
-	if res == nil {
-		return nil, fmt.Errorf("%w: %v", ErrNotConverged, err)
-	}
-	status := res.Status.String()
-	switch res.Status {
-	case optimize.GradientThreshold, optimize.FunctionConvergence, optimize.Success, optimize.MethodConverge, optimize.StepConvergence:
-	default:
-		// A line search that stalls at the limit of floating-point
-		// resolution has converged if the gradient there is negligible.
-		gr := make([]float64, len(res.X))
-		s.gradient(gr, res.X)
-		gmax := 0.0
-		for _, v := range gr {
-			gmax = math.Max(gmax, math.Abs(v))
-		}
-		if !(gmax <= stallGradient) {
-			return nil, fmt.Errorf("%w: status %v, gradient %.3g (%v)", ErrNotConverged, res.Status, gmax, err)
-		}
-		status = fmt.Sprintf("%v, accepted: gradient %.2g <= %g", res.Status, gmax, stallGradient)
-	}
-	s.report(res.X)
-	out := &Result{Belief: append([]float64(nil), q...), Report: append([]float64(nil), s.p...), Status: status, TruthfulPay: truthPay}
-	out.ExpectedPay = s.c.A - s.c.B*s.sc.Expected(q, out.Report)
+	out := &Result{Belief: append([]float64(nil), q...), Report: p, Status: status, TruthfulPay: truthPay}
+	out.ExpectedPay = s.c.A - s.c.B*s.sc.Expected(q, p)
 	for i := range q {
-		out.Size = math.Max(out.Size, 100*math.Abs(out.Report[i]-q[i]))
+		out.Size = math.Max(out.Size, 100*math.Abs(p[i]-q[i]))
 	}
 	return out, nil
 }
 
-// Utility returns the forecaster's expected utility of report p under
-// belief q, normalised as in Best (comparable between reports for the same
-// belief only).
-func (s *Solver) Utility(q, p []float64) float64 {
+// foc is the largest first-order residual, relative to the curvature,
+// accepted as a best report: a millionth of a probability point's worth.
+const foc = 1e-8
+
+// confirm checks the first-order (Karush–Kuhn–Tucker) condition at p: the
+// gradient is equal on the outcomes above the floor and no larger on the
+// outcomes at it.
+func (s *Solver) confirm(p []float64) (string, error) {
+	big, ok := s.slope(p)
+	if !ok {
+		return "best value of a grid and bracketed line searches; the rule's curvature is not finite at the report, so the first-order condition was not checked", nil
+	}
+	if big == 0 {
+		return "first-order condition met (the rule is flat there)", nil
+	}
+	lo, hi, top := math.Inf(1), math.Inf(-1), math.Inf(-1)
+	for j, x := range p {
+		if x > s.c.ReportFloor+1e-12 {
+			lo, hi = math.Min(lo, s.g[j]), math.Max(hi, s.g[j])
+		} else {
+			top = math.Max(top, s.g[j])
+		}
+	}
+	res := hi - lo
+	if top > lo {
+		res = math.Max(res, top-lo)
+	}
+	res /= big
+	if !(res <= foc) {
+		return "", fmt.Errorf("%w: the first-order condition is off by %.2g (relative to the curvature) at report %v", ErrNotConverged, res, p)
+	}
+	return fmt.Sprintf("first-order condition met (residual %.1g relative to the curvature)", res), nil
+}
+
+// Certainty returns the certainty equivalent of report p for belief q: the
+// sure final wealth the forecaster values as much as W + A - B L(p, k).
+func (s *Solver) Certainty(q, p []float64) float64 {
 	if len(q) != s.n || len(p) != s.n {
 		panic(fmt.Sprintf("risk: belief and report need %d entries", s.n))
 	}
-	s.setBelief(q)
-	s.sc.Efforts(s.eff, p)
-	for k := range s.eff {
-		s.eff[k] = s.c.A - s.c.B*s.eff[k]
-	}
-	return s.utilityOf(q, s.eff)
-}
-
-func (s *Solver) utilityOf(q, pays []float64) float64 {
-	var eu float64
-	for k, qk := range q {
-		if qk != 0 {
-			v, _ := s.u.normalised(s.wealth+pays[k], s.ref)
-			eu += qk * v
-		}
-	}
-	return eu
+	copy(s.q, q)
+	return s.value(p)
 }
 
 // BestOf returns the index of the row of pays (pays[i][k]: what menu item
 // i pays when outcome k happens, e.g. a rounded table) with the largest
 // expected utility for belief q: what a forecaster held to the menu picks.
+// It ranks rows by the same certainty equivalent as Best, so the two agree
+// in direction for every utility.
 func (s *Solver) BestOf(q []float64, pays [][]float64) int {
 	if len(q) != s.n {
 		panic(fmt.Sprintf("risk: belief has %d entries for %d outcomes", len(q), s.n))
 	}
-	s.setBelief(q)
 	best, at := math.Inf(-1), -1
 	for i, row := range pays {
 		if len(row) != s.n {
 			panic(fmt.Sprintf("risk: pay row %d has %d entries for %d outcomes", i, len(row), s.n))
 		}
-		if u := s.utilityOf(q, row); u > best {
+		for k, v := range row {
+			s.x[k] = s.wealth + v
+		}
+		if u := s.u.certainty(s.x, q); u > best {
 			best, at = u, i
 		}
 	}
@@ -289,25 +241,38 @@ func normalise(p []float64) {
 // Curve is the distortion over a set of beliefs.
 type Curve struct {
 	Points []Result
-	// Largest is the point of largest distortion.
+	// Largest is the point of largest distortion (the first of those
+	// within 1e-9 points of it).
 	Largest Result
+	// Failed are the beliefs the search could not settle, each with the
+	// reason; they are left out of Points.
+	Failed []Failure
+}
+
+// Failure is a belief whose best report was not found.
+type Failure struct {
+	Belief []float64
+	Err    error
 }
 
 // Distortion solves Best for every belief, honouring ctx and calling
-// progress (when not nil) after each.
+// progress (when not nil) after each. A belief that fails goes to
+// Curve.Failed and the curve goes on; only a cancelled ctx is an error.
 func (s *Solver) Distortion(ctx context.Context, beliefs [][]float64, progress func(done, total int)) (*Curve, error) {
 	c := &Curve{Largest: Result{Size: -1}}
 	for i, q := range beliefs {
 		if err := ctx.Err(); err != nil {
 			return nil, err
 		}
-		r, err := s.Best(q)
-		if err != nil {
-			return nil, fmt.Errorf("belief %v: %w", q, err)
-		}
-		c.Points = append(c.Points, *r)
-		if r.Size > c.Largest.Size {
-			c.Largest = *r
+		if r, err := s.Best(q); err != nil {
+			c.Failed = append(c.Failed, Failure{Belief: append([]float64(nil), q...), Err: err})
+		} else {
+			c.Points = append(c.Points, *r)
+			// Ties (a symmetric rule at q and 1 - q) keep the first, so
+			// rounding noise does not pick the side.
+			if r.Size > c.Largest.Size+1e-9 {
+				c.Largest = *r
+			}
 		}
 		if progress != nil {
 			progress(i+1, len(beliefs))

@@ -6,11 +6,15 @@
 // forecaster who maximises expected utility of initial wealth plus pay
 // instead shades the report — towards the centre when risk-averse, away
 // from it when risk-seeking. With pay = A - B L(p, k) and utility u, the
-// forecaster maximises sum_k q_k u(W + A - B L(p, k)) over reports p. The
-// maximisation runs in softmax coordinates (so every report stays in the
-// simplex, above the contract's report floor) with BFGS from gonum's
-// optimize and exact gradients from the generator's Hessian:
-// dL(p, k)/dp_j = H_kj - (H p)_j.
+// forecaster maximises sum_k q_k u(W + A - B L(p, k)) over reports p that
+// give each outcome at least the contract's report floor. The search
+// compares reports by their certainty equivalent (money, computed without
+// overflow for any coefficient), moves probability between two outcomes at
+// a time with a bracketing line search (grid, golden section, then
+// bisection on the first-order condition from the generator's exact
+// Hessian, dL(p, k)/dp_j = H_kj - (H p)_j), and confirms the answer by the
+// first-order (Karush–Kuhn–Tucker) condition. It cannot stall on a flat
+// gradient: every step keeps the best value seen.
 package risk
 
 import (
@@ -28,7 +32,8 @@ const (
 	// Linear: u(x) = x, risk-neutral.
 	Linear Kind = "linear"
 	// CRRA: constant relative risk aversion R, u(x) = x^(1-R)/(1-R), ln x
-	// at R = 1; needs positive wealth x.
+	// at R = 1; below R = 1 defined at zero wealth (u(0) = 0), from R = 1
+	// on it needs positive wealth. R < 0 is risk-seeking.
 	CRRA Kind = "crra"
 	// CARA: constant absolute risk aversion a, u(x) = -exp(-a x)/a; wealth
 	// does not change the report.
@@ -75,27 +80,4 @@ func (u Utility) String() string {
 		return fmt.Sprintf("CRRA, relative risk aversion %g", u.Coef)
 	}
 	return fmt.Sprintf("CARA, absolute risk aversion %g", u.Coef)
-}
-
-// normalised is u rescaled around the reference wealth ref so that values
-// are of order 1 there; each rescaling is a positive affine map
-// of u, so it has the same maximiser. It returns v(x) and the slope dv/dx.
-func (u Utility) normalised(x, ref float64) (v, d float64) {
-	switch {
-	case u.Kind == Linear || u.Coef == 0:
-		return x - ref, 1
-	case u.Kind == CARA:
-		a := u.Coef
-		e := math.Exp(-a * (x - ref))
-		return (1 - e) / a, e
-	}
-	// CRRA in units of ref: w = x/ref.
-	if !(x > 0) {
-		return math.Inf(-1), math.Inf(1)
-	}
-	w, r := x/ref, u.Coef
-	if r == 1 {
-		return math.Log(w), 1 / (w * ref)
-	}
-	return (math.Pow(w, 1-r) - 1) / (1 - r), math.Pow(w, -r) / ref
 }

@@ -217,8 +217,14 @@ func (t *Table) Value(v float64) string {
 }
 
 // Probability formats a report entry: the shortest form that reads back
-// as the same float64.
-func Probability(v float64) string { return strconv.FormatFloat(v+0, 'g', -1, 64) }
+// as the same float64, positional from 1e-4 up to 1e15 (so a point
+// forecast 1000000.1 is not written 1.0000001e+06).
+func Probability(v float64) string {
+	if a := math.Abs(v); a >= 1e-4 && a < 1e15 {
+		return strconv.FormatFloat(v+0, 'f', -1, 64)
+	}
+	return strconv.FormatFloat(v+0, 'g', -1, 64)
+}
 
 // ReportHeader is the heading of report column k: the probability of
 // outcome k, or the point forecast.

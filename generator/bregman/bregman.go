@@ -54,6 +54,7 @@ type Formula struct {
 	Source string
 	prog   *formula.Program
 	n      int
+	opt    Options
 }
 
 // NewFormula compiles src as a generator over opt.Outcomes outcomes.
@@ -65,7 +66,28 @@ func NewFormula(src string, opt Options) (*Formula, error) {
 	if err != nil {
 		return nil, err
 	}
-	return &Formula{Source: src, prog: prog, n: opt.Outcomes}, nil
+	return &Formula{Source: src, prog: prog, n: opt.Outcomes, opt: opt}, nil
+}
+
+// WithoutConstantTerms returns the generator less the number literals of
+// its outermost sum (formula.SplitConstant), and their sum c. It is the
+// same scoring rule, every effort smaller by c; the budget fit uses it so
+// that "1e12 + 1 - sum(p^2)" pays the cents "1 - sum(p^2)" pays, where the
+// literal would otherwise round away the last digits of every effort.
+func (f *Formula) WithoutConstantTerms() (*Formula, float64, error) {
+	file, err := formula.Parse(f.Source)
+	if err != nil {
+		return nil, 0, err
+	}
+	var c float64
+	file.Expr, c = formula.SplitConstant(file.Expr)
+	prog, err := formula.Compile(file, formula.Scope{
+		Outcomes: f.opt.Outcomes, Ordered: f.opt.Ordered, Weights: f.opt.Weights, Params: f.opt.Params,
+	})
+	if err != nil {
+		return nil, 0, err
+	}
+	return &Formula{Source: f.Source, prog: prog, n: f.n, opt: f.opt}, c, nil
 }
 
 // Outcomes is the number of outcomes.

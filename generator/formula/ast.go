@@ -77,3 +77,54 @@ type File struct {
 	Params []Param
 	Expr   Node
 }
+
+// SplitConstant returns n without the number literals among the terms of
+// its outermost sum, and their signed sum c: for "1e12 + 1 - sum(p^2)"
+// the tree of "-sum(p^2)" and 1000000000001, and the tree 0 when every
+// term is a literal. n = rest + c, and rest has n's derivatives. Scoring rules built
+// from a generator use it so that a large constant, which the budget fit
+// takes away again, cannot cost the digits that pay depends on.
+func SplitConstant(n Node) (rest Node, c float64) {
+	var terms []Node
+	var signs []bool // true for a term subtracted
+	var walk func(n Node, neg bool)
+	walk = func(n Node, neg bool) {
+		switch t := n.(type) {
+		case *Binary:
+			if t.Op == "+" || t.Op == "-" {
+				walk(t.X, neg)
+				walk(t.Y, neg != (t.Op == "-"))
+				return
+			}
+		case *Unary:
+			walk(t.X, neg != (t.Op == "-"))
+			return
+		case *Num:
+			if neg {
+				c -= t.Value
+			} else {
+				c += t.Value
+			}
+			return
+		}
+		terms, signs = append(terms, n), append(signs, neg)
+	}
+	walk(n, false)
+	if len(terms) == 0 {
+		return &Num{At: n.Pos()}, c
+	}
+	var out Node
+	for i, t := range terms {
+		switch {
+		case i == 0 && signs[i]:
+			out = &Unary{At: t.Pos(), Op: "-", X: t}
+		case i == 0:
+			out = t
+		case signs[i]:
+			out = &Binary{At: t.Pos(), Op: "-", X: out, Y: t}
+		default:
+			out = &Binary{At: t.Pos(), Op: "+", X: out, Y: t}
+		}
+	}
+	return out, c
+}

@@ -77,3 +77,26 @@ func TestControlCharactersNeverEchoed(t *testing.T) {
 		}
 	}
 }
+
+func TestSplitConstant(t *testing.T) {
+	cases := []struct {
+		src, rest string
+		c         float64
+	}{
+		{"1e12 + 1 - sum(p^2)", "(-sum((p ^ 2)))", 1e12 + 1},
+		{"-(3 - p1) + 2*p2 - 7", "(p1 + (2 * p2))", -10},
+		{"1 - sum(p^2)", "(-sum((p ^ 2)))", 1},
+		{"5", "0", 5},
+		{"ln(2) + 1 - sum(p*ln(p))", "(ln(2) - sum((p * ln(p))))", 1},
+	}
+	for _, k := range cases {
+		f, err := Parse(k.src)
+		if err != nil {
+			t.Fatal(err)
+		}
+		rest, c := SplitConstant(f.Expr)
+		if got := String(rest); got != k.rest || c != k.c {
+			t.Errorf("%s: %s and %g, want %s and %g", k.src, got, c, k.rest, k.c)
+		}
+	}
+}

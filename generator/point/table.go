@@ -246,7 +246,8 @@ func (rc *Recheck) Verdict(f *Table) string {
 	M := len(f.Reports)
 	where := ""
 	if rc.MinItem >= 0 && rc.MinRival >= 0 {
-		where = fmt.Sprintf(" (smallest margin %s at report %s against %s)", table.FormatNumber(rc.MinMargin), short(f.Reports[rc.MinItem]), short(f.Reports[rc.MinRival]))
+		xs := distinct(f.Reports)
+		where = fmt.Sprintf(" (smallest margin %s at report %s against %s)", table.FormatNumber(rc.MinMargin), xs[rc.MinItem], xs[rc.MinRival])
 	}
 	scope := "every forecaster whose mean is that report (every point mass and two-column mixture with that mean, pay interpolated between columns; exact), after scaling and rounding"
 	if rc.Passed {
@@ -270,9 +271,11 @@ type Info struct {
 // none, rc nil) puts a warning first.
 func (f *Table) Export(rc *Recheck, info Info) *table.Table {
 	g := f.gen
+	ys, xs := distinct(f.Outcomes), distinct(f.Reports)
+	lo, hi := ys[0], ys[len(ys)-1]
 	labels := make([]string, len(f.Outcomes))
-	for j, y := range f.Outcomes {
-		labels[j] = "y = " + short(y)
+	for j, y := range ys {
+		labels[j] = "y = " + y
 	}
 	reports := make([][]float64, len(f.Reports))
 	vals := make([][]float64, len(f.Pay))
@@ -282,10 +285,10 @@ func (f *Table) Export(rc *Recheck, info Info) *table.Table {
 	}
 	meta := table.Meta{
 		Title: info.Title, Formula: g.Source, Preset: info.Preset, Params: info.Params,
-		FormulaRole: fmt.Sprintf("the generator phi(x) of a point forecast of the mean of a quantity in [%s, %s] (concave)", short(g.Lo), short(g.Hi)),
+		FormulaRole: fmt.Sprintf("the generator phi(x) of a point forecast of the mean of a quantity in [%s, %s] (concave)", lo, hi),
 		Outcomes:    labels,
-		Menu:        fmt.Sprintf("point forecasts x from %s to %s in steps of %s (%d reports); outcome columns y from %s to %s (%d)", short(g.Lo), short(f.Reports[len(f.Reports)-1]), short(f.Step), len(f.Reports), short(g.Lo), short(g.Hi), len(f.Outcomes)),
-		Payment:     fmt.Sprintf("pay(x, y) = A - B·D(y, x), D(y, x) = phi(x) + phi'(x)(y - x) - phi(y) with phi the formula on [%s, %s], rounded as stated; for an outcome between two columns, pay by linear interpolation between them", short(g.Lo), short(g.Hi)),
+		Menu:        fmt.Sprintf("point forecasts x from %s to %s in steps of %s (%d reports); outcome columns y from %s to %s (%d)", xs[0], xs[len(xs)-1], short(f.Step), len(f.Reports), lo, hi, len(f.Outcomes)),
+		Payment:     fmt.Sprintf("pay(x, y) = A - B·D(y, x), D(y, x) = phi(x) + phi'(x)(y - x) - phi(y) with phi the formula on [%s, %s], rounded as stated; for an outcome between two columns, pay by linear interpolation between them", lo, hi),
 		A:           num.Float(f.A), B: num.Float(f.B),
 		Budget:   fmt.Sprintf("payments span [%s, %s] over the menu and the outcome columns (before rounding): a perfect forecast pays the cap, the worst cell the floor", table.FormatNumber(f.Floor), table.FormatNumber(f.Cap)),
 		Rounding: f.round.Describe(), Unit: num.Float(f.round.Unit()), RoundingMode: f.round.Mode(),

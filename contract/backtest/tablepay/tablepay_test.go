@@ -38,12 +38,16 @@ func TestSchemePaysTheTable(t *testing.T) {
 	if f.Scheme.Name != "A" || f.Warning != "" || !f.Recheck.Passed {
 		t.Fatalf("scheme %q warning %q passed %v", f.Scheme.Name, f.Warning, f.Recheck.Passed)
 	}
+	// The backtest scores forecasts with the rule as given, constant
+	// terms included, as here.
+	sc, eff := r.NewScorer(), make([]float64, 2)
 	for i, p := range menu.Reports {
 		if !f.Scheme.OnMenu(p) {
 			t.Fatalf("menu item %v not on the menu", p)
 		}
+		sc.Efforts(eff, p)
 		for k := range p {
-			if got, want := f.Scheme.Pay.Pay(f.Fit.Efforts[i][k]), f.Fit.Pays[i][k]; got != want {
+			if got, want := f.Scheme.Pay.Pay(eff[k]), f.Fit.Pays[i][k]; got != want {
 				t.Fatalf("report %v outcome %d: paid %v, table says %v", p, k, got, want)
 			}
 		}

@@ -1,13 +1,14 @@
 // Package riskfit prepares a risk computation for a design the way
 // `scorewright distort` does: the rule is fitted to the design's budget on
-// its step menu (contract/budget), the fitted pay A - B·L becomes the
-// solver's contract, and the distortion curve runs over the same beliefs.
+// its step menu (contract/budget), or, when the budget has no step, over a
+// fine grid of reports paid by the exact formula; the fitted pay A - B·L
+// becomes the solver's contract, and the distortion curve runs over the
+// same beliefs.
 // The command and the workbench share it, so that both show the same
 // numbers for the same inputs.
 package riskfit
 
 import (
-	"errors"
 	"fmt"
 	"math"
 
@@ -19,10 +20,6 @@ import (
 	"scorewright/generator/design"
 )
 
-// ErrNoStep says the budget has no report menu step, so there is nothing
-// to fit the rule to.
-var ErrNoStep = errors.New("riskfit: the budget has no report menu step")
-
 // MenuError is a step menu the budget's step and report floor cannot make.
 type MenuError struct{ Err error }
 
@@ -33,22 +30,36 @@ func (e *MenuError) Unwrap() error { return e.Err }
 
 // Fitted is a rule fitted to a budget, ready for risk.NewSolver.
 type Fitted struct {
+	// Menu is the report menu; nil when the budget has no step, and then
+	// every report is paid by the exact formula A - B·L, unrounded.
 	Menu *budget.Menu
-	Fit  *budget.Fit
+	// Fit is the fit; without a menu it was made over the reports of a
+	// fine grid (Fit.Menu), which only find the range of the efforts.
+	Fit *budget.Fit
 	// Contract is the fitted pay as the solver takes it; MinPay is the
 	// smallest payment the table can make (below the floor only when
 	// rounding put one there).
 	Contract risk.Contract
 }
 
-// New fits rule to b on its step menu. Errors: ErrNoStep, a *MenuError,
-// or the fit's error as budget.FitRule returned it (a *budget.UnboundedError
-// for a rule infinite where a report gives an outcome 0).
+// New fits rule to b on its step menu, or without a step over the
+// finest simplex grid of at most budget.MaxMenu reports, with no rounding
+// (the exact formula pays). Errors: a *MenuError, or the fit's error as
+// budget.FitRule returned it (a *budget.UnboundedError for a rule infinite
+// where a report gives an outcome 0).
 func New(rule *bregman.Rule, b design.Budget) (*Fitted, error) {
-	if !(b.Step > 0) {
-		return nil, ErrNoStep
+	n := rule.Outcomes()
+	exact := !(b.Step > 0)
+	step := b.Step
+	if exact {
+		K := 1000
+		for K > 1 && gridCount(K, n) > budget.MaxMenu {
+			K--
+		}
+		step = 1 / float64(K)
+		b.Unit = 0
 	}
-	menu, err := budget.StepMenu(rule.Outcomes(), b.Step, b.ReportFloor)
+	menu, err := budget.StepMenu(n, step, b.ReportFloor)
 	if err != nil {
 		return nil, &MenuError{err}
 	}
@@ -56,8 +67,41 @@ func New(rule *bregman.Rule, b design.Budget) (*Fitted, error) {
 	if err != nil {
 		return nil, err
 	}
-	return &Fitted{Menu: menu, Fit: fit,
-		Contract: risk.Contract{A: fit.A, B: fit.B, MinPay: math.Min(fit.Floor, fit.MinPay), ReportFloor: b.ReportFloor}}, nil
+	out := &Fitted{Menu: menu, Fit: fit,
+		Contract: risk.Contract{A: fit.A, B: fit.B, MinPay: math.Min(fit.Floor, fit.MinPay), ReportFloor: b.ReportFloor}}
+	if exact {
+		out.Menu = nil
+	}
+	return out, nil
+}
+
+// gridCount is the number of reports C(K+n-1, n-1) of a simplex grid of
+// step 1/K.
+func gridCount(K, n int) float64 {
+	c := 1.0
+	for i := 1; i < n; i++ {
+		c = c * float64(K+i) / float64(i)
+	}
+	return c
+}
+
+// PayDesc says in words how pay follows from effort and what it was
+// fitted on.
+func (f *Fitted) PayDesc() string {
+	pay := fmt.Sprintf("pay = %.6g - %.6g × effort", f.Fit.A, f.Fit.B)
+	if f.Menu == nil {
+		return pay + " for every report (no menu: reports are paid by the exact formula, unrounded; fitted to the budget over " + f.Fit.MenuDesc() + ")"
+	}
+	return pay + " (fitted to the budget on the menu: " + f.Fit.MenuDesc() + ")"
+}
+
+// MenuPick is the menu item a forecaster held to the rounded table picks
+// for belief q, nil without a menu.
+func (f *Fitted) MenuPick(s *risk.Solver, q []float64) []float64 {
+	if f.Menu == nil {
+		return nil
+	}
+	return f.Menu.Reports[s.BestOf(q, f.Fit.Pays)]
 }
 
 // Solver returns a solver for a forecaster with utility u and initial

@@ -3,6 +3,7 @@ package riskfit
 import (
 	"errors"
 	"math"
+	"strings"
 	"testing"
 
 	"scorewright/contract/budget"
@@ -54,7 +55,6 @@ func TestNewErrors(t *testing.T) {
 		b    design.Budget
 		is   func(error) bool
 	}{
-		{"no step", design.Budget{Cap: 10}, func(err error) bool { return errors.Is(err, ErrNoStep) }},
 		{"step 0.3 is not 1/K", design.Budget{Cap: 10, Step: 0.3, ReportFloor: 0.01}, func(err error) bool { return errors.As(err, &me) }},
 		{"log without a report floor", design.Budget{Cap: 10, Step: 0.05}, func(err error) bool { return errors.As(err, &ue) && ue.AtZero }},
 	} {
@@ -83,5 +83,30 @@ func TestCurveBeliefs(t *testing.T) {
 	}
 	if q := Belief(design.Budget{}, 4); q[3] != 0.25 {
 		t.Errorf("uniform belief %v", q)
+	}
+}
+
+// Without a step there is no menu: the quadratic rule on [0, 40] is fitted
+// to the exact range of its efforts, [0, 2] (reached at the vertices, which
+// the fitting grid holds), so B = 20 and A = 40 as on a menu, nothing is
+// rounded, and there is no menu pick.
+func TestNewWithoutStep(t *testing.T) {
+	r := rule(t, "1 - sum(p^2)", 3)
+	f, err := New(r, design.Budget{Floor: 0, Cap: 40, Unit: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if c := f.Contract; math.Abs(c.A-40) > 1e-12 || math.Abs(c.B-20) > 1e-12 || f.Menu != nil || f.Fit.Unit != 0 {
+		t.Errorf("contract %+v, menu %v, unit %v; want A 40, B 20, no menu, no rounding", c, f.Menu, f.Fit.Unit)
+	}
+	s, err := f.Solver(r, risk.Utility{Kind: risk.CARA, Coef: 0.1}, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if pick := f.MenuPick(s, []float64{0.2, 0.3, 0.5}); pick != nil {
+		t.Errorf("menu pick %v without a menu", pick)
+	}
+	if d := f.PayDesc(); !strings.Contains(d, "no menu") || !strings.Contains(d, "exact formula") {
+		t.Errorf("pay description %q does not say that the exact formula pays", d)
 	}
 }

@@ -1,0 +1,437 @@
+package tui
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"strings"
+
+	"github.com/charmbracelet/bubbles/key"
+	tea "github.com/charmbracelet/bubbletea"
+
+	"scorewright/contract/research"
+	"scorewright/contract/research/study"
+	"scorewright/generator/design"
+)
+
+// researchField is one adjustable input of the research view, in ↑/↓
+// order.
+type researchField int
+
+const (
+	researchModel researchField = iota
+	researchStrength
+	researchBase
+	researchSeason
+	researchCost
+	researchFieldCount
+)
+
+// ResearchInputs are what the research view's keys adjust.
+type ResearchInputs struct {
+	// Signal chooses a signal of stated accuracy instead of a Dirichlet
+	// posterior; Kappa and Accuracy are their strengths.
+	Signal   bool
+	Kappa    float64
+	Accuracy float64
+	// Base is the base rate's event probability for n = 2 (0: the
+	// design's reference belief, else uniform); n > 2 always use those.
+	Base float64
+	// Forecasts per season; Cost per observation (n = 2; 0: off).
+	Forecasts int
+	Cost      float64
+}
+
+var (
+	researchKappas    = []float64{0.5, 1, 2, 3, 5, 7, 10, 15, 20, 30, 50, 75, 100, 150, 200}
+	researchForecasts = []int{1, 10, 20, 50, 100, 200, 500, 1000, 5000}
+	// researchCosts are the observation prices as shares of the budget's
+	// range cap - floor.
+	researchCosts = []float64{0, 0.0005, 0.001, 0.002, 0.005, 0.01, 0.02, 0.05}
+)
+
+func defaultResearchInputs(d *design.Design) ResearchInputs {
+	return ResearchInputs{Kappa: 10, Accuracy: 0.75, Forecasts: 100}
+}
+
+// baseRate is the base rate the inputs give for design d.
+func (in ResearchInputs) baseRate(d *design.Design) []float64 {
+	n := d.N()
+	if n == 2 && in.Base > 0 {
+		return []float64{in.Base, 1 - in.Base}
+	}
+	if r := d.Budget.Reference; len(r) == n {
+		return append([]float64(nil), r...)
+	}
+	q := make([]float64, n)
+	for k := range q {
+		q[k] = 1 / float64(n)
+	}
+	return q
+}
+
+// Messages of a research run, each wrapped with its run id.
+type (
+	researchProgressMsg struct {
+		stage       string
+		done, total int
+	}
+	researchDoneMsg struct {
+		rep *study.Report
+		err error
+	}
+	researchRunMsg struct {
+		run uint64
+		msg tea.Msg
+	}
+)
+
+// researchCmd runs the study of design d with the inputs in the
+// background, as `scorewright research` runs it (contract/research/study).
+func researchCmd(ctx context.Context, run uint64, d *design.Design, in ResearchInputs) tea.Cmd {
+	tag := func(m tea.Msg) tea.Msg { return researchRunMsg{run: run, msg: m} }
+	return runStream(ctx, func(send func(tea.Msg, bool)) {
+		rep, err := researchRun(ctx, d, in, func(stage string, done, total int) {
+			send(tag(researchProgressMsg{stage, done, total}), false)
+		})
+		send(tag(researchDoneMsg{rep: rep, err: err}), true)
+	})
+}
+
+// researchRun is the work of researchCmd.
+func researchRun(ctx context.Context, d *design.Design, in ResearchInputs, progress func(string, int, int)) (*study.Report, error) {
+	if d.Mode != design.ModeGenerator && d.Mode != design.ModeEmphasis && d.Mode != "" {
+		return nil, fmt.Errorf("the research view works on rules over outcomes (generator or emphasis designs); this is a %s design", modeName(d))
+	}
+	rule, _, _, err := designRule(d)
+	if err != nil {
+		return nil, err
+	}
+	q0 := in.baseRate(d)
+	var model *research.Posterior
+	if in.Signal {
+		c, err := research.Accuracy(d.N(), in.Accuracy)
+		if err != nil {
+			return nil, err
+		}
+		model, err = research.Signal(q0, c)
+		if err != nil {
+			return nil, err
+		}
+	} else if model, err = research.Dirichlet(q0, in.Kappa, research.Quadrature{}); err != nil {
+		return nil, err
+	}
+	name := "this design"
+	if d.Preset != "" {
+		name = d.Preset + " (design)"
+	}
+	b := d.Budget
+	spec := study.Spec{Model: model, Rule: rule, RuleName: name, Forecasts: in.Forecasts, Optimum: true, Progress: progress}
+	if d.N() == 2 && in.Cost > 0 {
+		spec.Steps, spec.Cost = true, in.Cost*(b.Cap-b.Floor)
+	}
+	rep, err := study.Run(ctx, d.Labels, b, spec)
+	var re *study.RuleError
+	switch {
+	case errors.Is(err, study.ErrMeanPay):
+		return nil, errors.New("rules are compared at one floor and cap: give the budget a cap instead of a mean pay")
+	case errors.Is(err, study.ErrNoStep):
+		return nil, errors.New("set a report menu step (Step) in the budget: the rules are fitted on the menu, as the table is")
+	case errors.As(err, &re):
+		return nil, fmt.Errorf("the design's rule does not fit the budget: %v", re.Err)
+	}
+	return rep, err
+}
+
+// ResearchRoom is the research view: what research is worth under the
+// design's rule and the known rules at the design's floor and cap, and
+// the best bounded rule for it. It owns its inputs, its runs (a run id,
+// the design generation it is for, a cancel function) and its drawing;
+// the root model opens it, forwards keys and run messages, and tells it
+// when the design changed.
+type ResearchRoom struct {
+	st   Styles
+	keys KeyMap
+	w, h int
+
+	shown bool
+	in    ResearchInputs
+	sel   researchField
+
+	run     uint64
+	forGen  uint64
+	forIn   ResearchInputs
+	started bool
+	cancel  context.CancelFunc
+
+	running     bool
+	stage       string
+	done, total int
+	res         *study.Report
+	err         error
+	stale       bool
+}
+
+// NewResearchRoom returns a closed research view.
+func NewResearchRoom(st Styles, keys KeyMap, d *design.Design) *ResearchRoom {
+	return &ResearchRoom{st: st, keys: keys, in: defaultResearchInputs(d)}
+}
+
+// Shown reports whether the view is open.
+func (r *ResearchRoom) Shown() bool { return r.shown }
+
+// Close closes the view (a running study goes on; its answer is kept).
+func (r *ResearchRoom) Close() { r.shown = false }
+
+// Result is the last finished study, or nil.
+func (r *ResearchRoom) Result() *study.Report { return r.res }
+
+// Running reports whether a study is in progress.
+func (r *ResearchRoom) Running() bool { return r.running }
+
+// Inputs are the view's current inputs.
+func (r *ResearchRoom) Inputs() ResearchInputs { return r.in }
+
+// SetSize gives the view its cells.
+func (r *ResearchRoom) SetSize(w, h int) { r.w, r.h = w, h }
+
+// KeyHelp lists the view's keys for the help line.
+func (r *ResearchRoom) KeyHelp() []key.Binding {
+	k := r.keys
+	return []key.Binding{k.Up, k.Down, k.Less, k.More, k.LessFine, k.MoreFine, k.Leave}
+}
+
+// Toggle opens or closes the view; opening starts a study when the last
+// one is not for this design and these inputs (ready: the design is
+// compiled and debounced).
+func (r *ResearchRoom) Toggle(ctx context.Context, d *design.Design, gen uint64, ready bool) tea.Cmd {
+	if r.shown {
+		r.shown = false
+		return nil
+	}
+	r.shown = true
+	return r.Maybe(ctx, d, gen, ready)
+}
+
+// Edited tells the view the design changed: the running study is
+// cancelled and its answers will be dropped, the shown one marked as for
+// the previous design; the base rate goes back to the design's when the
+// outcome count changed.
+func (r *ResearchRoom) Edited(d *design.Design) {
+	r.stop()
+	r.run++
+	r.running = false
+	r.stale = r.res != nil
+	if r.res != nil && len(r.res.Labels) != d.N() {
+		r.in.Base = 0
+	}
+}
+
+func (r *ResearchRoom) stop() {
+	if r.cancel != nil {
+		r.cancel()
+		r.cancel = nil
+	}
+}
+
+// Maybe starts a study when the view is open, the design is ready and
+// the last study is not for this generation and these inputs.
+func (r *ResearchRoom) Maybe(ctx context.Context, d *design.Design, gen uint64, ready bool) tea.Cmd {
+	if !r.shown || !ready {
+		return nil
+	}
+	if r.started && r.forGen == gen && r.forIn == r.in {
+		return nil
+	}
+	r.stop()
+	c, cancel := context.WithCancel(ctx)
+	r.cancel = cancel
+	r.run++
+	r.started, r.forGen, r.forIn = true, gen, r.in
+	r.running, r.stage, r.done, r.total, r.err = true, "starting", 0, 0, nil
+	r.stale = r.res != nil
+	return researchCmd(c, r.run, cloneDesign(d), r.in)
+}
+
+// Msg takes a message of a study; those of an older run are dropped.
+func (r *ResearchRoom) Msg(msg researchRunMsg) {
+	if msg.run != r.run {
+		return
+	}
+	switch inner := msg.msg.(type) {
+	case researchProgressMsg:
+		r.stage, r.done, r.total = inner.stage, inner.done, inner.total
+	case researchDoneMsg:
+		if errors.Is(inner.err, context.Canceled) {
+			return
+		}
+		r.cancel, r.running = nil, false
+		if inner.err != nil {
+			r.err = inner.err
+			return
+		}
+		r.res, r.err, r.stale = inner.rep, nil, false
+	}
+}
+
+// Key handles a key while the view is open. handled false means the root
+// should treat it (global keys).
+func (r *ResearchRoom) Key(ctx context.Context, km tea.KeyMsg, d *design.Design, gen uint64, ready bool) (handled bool, cmd tea.Cmd) {
+	k := r.keys
+	switch {
+	case key.Matches(km, k.Leave), key.Matches(km, k.Research):
+		r.shown = false
+		return true, nil
+	case key.Matches(km, k.Up):
+		r.sel = (r.sel + researchFieldCount - 1) % researchFieldCount
+		return true, nil
+	case key.Matches(km, k.Down):
+		r.sel = (r.sel + 1) % researchFieldCount
+		return true, nil
+	case key.Matches(km, k.Less), key.Matches(km, k.More), key.Matches(km, k.LessFine), key.Matches(km, k.MoreFine):
+		up := key.Matches(km, k.More) || key.Matches(km, k.MoreFine)
+		fine := key.Matches(km, k.LessFine) || key.Matches(km, k.MoreFine)
+		if researchStep(&r.in, r.sel, d, up, fine) {
+			return true, r.Maybe(ctx, d, gen, ready)
+		}
+		return true, nil
+	case key.Matches(km, k.NextPane), key.Matches(km, k.PrevPane):
+		r.shown = false
+		return false, nil
+	}
+	return false, nil
+}
+
+// researchStep moves one input a step; false when it is at its end or has
+// nothing to step for this design.
+func researchStep(in *ResearchInputs, f researchField, d *design.Design, up, fine bool) bool {
+	n := d.N()
+	old := *in
+	switch f {
+	case researchModel:
+		in.Signal = !in.Signal
+	case researchStrength:
+		if in.Signal {
+			step := 0.05
+			if fine {
+				step = 0.01
+			}
+			lo := math.Round((1/float64(n)+0.01)*100) / 100
+			in.Accuracy = math.Min(1, math.Max(lo, math.Round((in.Accuracy+sign(up)*step)*100)/100))
+		} else {
+			in.Kappa = stepList(researchKappas, in.Kappa, up)
+		}
+	case researchBase:
+		if n != 2 {
+			return false
+		}
+		b := in.Base
+		if b == 0 {
+			b = in.baseRate(d)[0]
+		}
+		step := 0.05
+		if fine {
+			step = 0.01
+		}
+		in.Base = math.Min(0.99, math.Max(0.01, math.Round((b+sign(up)*step)*100)/100))
+	case researchSeason:
+		i := indexInt(researchForecasts, in.Forecasts)
+		in.Forecasts = researchForecasts[clampIndex(i+int(sign(up)), len(researchForecasts))]
+	case researchCost:
+		if n != 2 {
+			return false
+		}
+		in.Cost = stepList(researchCosts, in.Cost, up)
+	}
+	return *in != old
+}
+
+func sign(up bool) float64 {
+	if up {
+		return 1
+	}
+	return -1
+}
+
+// stepList moves v to the next or previous value of a sorted list.
+func stepList(list []float64, v float64, up bool) float64 {
+	if up {
+		for _, x := range list {
+			if x > v+1e-12 {
+				return x
+			}
+		}
+		return list[len(list)-1]
+	}
+	for i := len(list) - 1; i >= 0; i-- {
+		if list[i] < v-1e-12 {
+			return list[i]
+		}
+	}
+	return list[0]
+}
+
+func indexInt(list []int, v int) int {
+	for i, x := range list {
+		if x >= v {
+			return i
+		}
+	}
+	return len(list) - 1
+}
+
+func clampIndex(i, n int) int { return min(max(i, 0), n-1) }
+
+// inputsLine shows the inputs, the selected one marked.
+func (r *ResearchRoom) inputsLine(d *design.Design) []string {
+	in := r.in
+	model, strength := "Dirichlet", fmt.Sprintf("kappa %g", in.Kappa)
+	if in.Signal {
+		model, strength = "signal", fmt.Sprintf("accuracy %g", in.Accuracy)
+	}
+	base := "base rate " + formatBelief(in.baseRate(d))
+	if d.N() != 2 {
+		base += " (the design's)"
+	}
+	cost := "observations: off"
+	if d.N() == 2 && in.Cost > 0 {
+		cost = fmt.Sprintf("observation %.4g", in.Cost*(d.Budget.Cap-d.Budget.Floor))
+	} else if d.N() != 2 {
+		cost = "observations: n = 2 only"
+	}
+	items := []string{"model " + model, strength, base, fmt.Sprintf("%d a season", in.Forecasts), cost}
+	for i, s := range items {
+		if researchField(i) == r.sel {
+			items[i] = r.st.Selected.Render("▸" + s)
+		} else {
+			items[i] = " " + s
+		}
+	}
+	return wrapItems(items, max(10, r.w-2))
+}
+
+// wrapItems joins items with two spaces into lines no wider than w.
+func wrapItems(items []string, w int) []string {
+	var lines []string
+	cur := ""
+	for _, it := range items {
+		if cur != "" && visibleWidth(cur)+2+visibleWidth(it) > w {
+			lines = append(lines, cur)
+			cur = ""
+		}
+		if cur != "" {
+			cur += "  "
+		}
+		cur += it
+	}
+	return append(lines, cur)
+}
+
+func formatBelief(q []float64) string {
+	parts := make([]string, len(q))
+	for i, v := range q {
+		parts[i] = fmt.Sprintf("%.3g", v)
+	}
+	return "(" + strings.Join(parts, ", ") + ")"
+}
