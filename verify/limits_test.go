@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"scorewright/generator/bregman"
+	"scorewright/generator/emphasis"
 )
 
 // Rules whose gradient is infinite, or no supergradient, on the boundary
@@ -46,5 +47,27 @@ func TestBoundaryLimitVerdicts(t *testing.T) {
 	}
 	if a, b := bregman.Dot(q, closed(q)), bregman.Dot(q, closed(p)); math.Abs(a-b) > 1e-12 {
 		t.Errorf("witness belief %v, report %v: expected efforts %v and %v differ; not a tie", q, p, a, b)
+	}
+}
+
+// Every weight w >= 0 gives a proper rule (Schervish 1989). The step
+// weight [c >= 0.3] is 0 below 0.3, so H is affine on [0, 0.3]: proper,
+// not strictly, and every tie lies there (derived by hand: both efforts
+// are constant for reports below 0.3).
+func TestStepWeightIsProper(t *testing.T) {
+	g, err := emphasis.New("if(c < 0.3, 0, 1)", emphasis.Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	rep, err := CheckRule(context.Background(), &bregman.Rule{Gen: g}, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rep.Verdict != Proper {
+		t.Fatalf("verdict %s, want %s", rep.Verdict, Proper)
+	}
+	prop := rep.Check(NameProperness)
+	if q, p := prop.MarginBelief, prop.MarginReport; q == nil || p == nil || q[0] > 0.3 || p[0] > 0.3 || q[0] == p[0] {
+		t.Errorf("tie witness belief %v, report %v: want two different reports at or below 0.3", q, p)
 	}
 }

@@ -85,6 +85,9 @@ func auditDesign(e *env, d *design.Design, vf *verifyFlags) error {
 	if err != nil {
 		return err
 	}
+	if err := refuseCertifyOnInterval(r, vf.cert); err != nil {
+		return err
+	}
 	s, err := vf.settings(e)
 	if err != nil {
 		return err
@@ -101,14 +104,21 @@ func auditDesign(e *env, d *design.Design, vf *verifyFlags) error {
 		return printPointReport(e, found.Point, vf.asJSON)
 	}
 	rep := found.Audit
+	cert, proved, err := certificate(ctx, e, r, vf.cert)
+	if err != nil {
+		return err
+	}
 	if vf.asJSON {
-		if err := writeJSON(e.stdout, newAuditJSON(d.Formula, d.Labels, rep)); err != nil {
+		out := newAuditJSON(d.Formula, d.Labels, rep)
+		out.Certificate = cert
+		if err := writeJSON(e.stdout, out); err != nil {
 			return err
 		}
 	} else {
 		printAudit(e, d.Formula, d.Labels, rep)
+		printCertificate(e.stdout, cert)
 	}
-	if found.Failed() {
+	if found.Failed() || proved {
 		return errFailed
 	}
 	return nil

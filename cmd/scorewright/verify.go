@@ -11,6 +11,7 @@ import (
 
 	"scorewright/internal/num"
 	"scorewright/verify"
+	"scorewright/verify/certify"
 )
 
 // verifyFlags are the grid options check and audit share.
@@ -21,9 +22,11 @@ type verifyFlags struct {
 	workers    int
 	samples    int
 	asJSON     bool
+	// cert asks for a certificate besides the grid (nil: not offered).
+	cert *certifyFlags
 }
 
-const verifyUsage = "[--resolution K] [--tolerance T] [--limit L] [--workers W] [--samples S] [--json]"
+const verifyUsage = "[--resolution K] [--tolerance T] [--limit L] [--workers W] [--samples S] [--json] " + certifyUsage
 
 func addVerifyFlags(fs *flag.FlagSet) *verifyFlags {
 	v := &verifyFlags{}
@@ -33,6 +36,7 @@ func addVerifyFlags(fs *flag.FlagSet) *verifyFlags {
 	fs.IntVar(&v.workers, "workers", 0, "goroutines to use (0: all cores)")
 	fs.IntVar(&v.samples, "samples", 0, "random lattice points when the full grid is too large (0: default)")
 	fs.BoolVar(&v.asJSON, "json", false, "print JSON")
+	v.cert = addCertifyFlags(fs)
 	return v
 }
 
@@ -118,13 +122,17 @@ type checkJSON struct {
 
 type reportJSON struct {
 	Verdict verify.Verdict `json:"verdict"`
-	Grid    gridJSON       `json:"grid"`
-	Checks  []checkJSON    `json:"checks"`
-	Notes   []string       `json:"notes,omitempty"`
+	// Kind is always "grid evidence": the grid samples, it never proves;
+	// a proof is the certificate's, under "certificate".
+	Kind        certify.Kind     `json:"kind"`
+	Certificate *certificateJSON `json:"certificate,omitempty"`
+	Grid        gridJSON         `json:"grid"`
+	Checks      []checkJSON      `json:"checks"`
+	Notes       []string         `json:"notes,omitempty"`
 }
 
 func toReportJSON(r *verify.Report) reportJSON {
-	out := reportJSON{Verdict: r.Verdict, Notes: r.Notes, Grid: gridJSON{
+	out := reportJSON{Verdict: r.Verdict, Kind: certify.GridEvidence, Notes: r.Notes, Grid: gridJSON{
 		Resolution: r.Grid.Resolution, Points: r.Grid.Points, Tolerance: num.Float(r.Grid.Tolerance), Scale: num.Float(r.Grid.Scale), Slack: num.Float(r.Grid.Slack()), Sampled: r.Grid.Sampled,
 		Interior: r.Grid.Interior, Boundary: r.Grid.Boundary, Pairs: r.Grid.Pairs, Statement: r.Grid.String(),
 	}}
@@ -155,7 +163,7 @@ func toPartJSON(p verify.Part) partJSON {
 // printReport writes the human form of a verification: verdict, grid
 // statement, one block per check, notes.
 func printReport(w io.Writer, r *verify.Report) {
-	fmt.Fprintf(w, "verdict: %s\n", r.Verdict)
+	fmt.Fprintf(w, "verdict: %s (%s)\n", r.Verdict, certify.GridEvidence)
 	fmt.Fprintf(w, "grid:    %s\n\n", r.Grid)
 	for _, c := range r.Checks {
 		status := "passed"

@@ -44,15 +44,17 @@ type Scheme struct {
 	Adjust func(dst, p []float64) []float64
 	// Record, if set, writes into dst the report the contract records for
 	// forecast p — a report floor raises entries below it, as the menu's
-	// items are raised — and returns dst. The menu test and the pay use the
-	// recorded report; Effort stays that of the forecast as written.
+	// items are raised — and returns dst. The menu test, the pay, the
+	// effort and the decomposition use the recorded report.
 	Record func(dst, p []float64) []float64
 }
 
 // Paid is what one forecast earns under one scheme.
 type Paid struct {
-	// Effort is L(p, y) of the forecast as written; the decomposition
-	// splits its mean.
+	// Effort is L(p, y) at the report the contract pays for the forecast
+	// (recorded and adjusted; the forecast as written when the scheme
+	// changes nothing), so Pay = A - B·Effort; the decomposition splits its
+	// mean.
 	Effort float64
 	// Pay is the payment, at the report Scheme.Adjust makes of p.
 	Pay    float64
@@ -358,7 +360,7 @@ func (t *Tally) scoreAll(s int, p []float64, dst []Paid) {
 		}
 		t.scorers[s].Efforts(t.eff, paid)
 		for y, l := range t.eff {
-			dst[y].Pay = sc.Pay.Pay(l)
+			dst[y].Effort, dst[y].Pay = l, sc.Pay.Pay(l)
 		}
 	}
 }

@@ -42,8 +42,14 @@ func (v *Valuer) pays(dst, report []float64) []float64 {
 
 // Truthful is G(q) = A - B·Phi(q, q): what a forecaster with belief q
 // expects for reporting it, paid by the formula (unrounded; after the
-// menu's clamp when it has one).
+// menu's clamp when it has one). Without a clamp Phi(q, q) is H(q), taken
+// from the generator itself: no effort is needed, so a belief on the
+// boundary costs no limit of efforts at a report that rules an outcome
+// out (and pay is affine in effort, so A - B·H(q) is the mean payment).
 func (v *Valuer) Truthful(q []float64) float64 {
+	if v.fit.Clamp == 0 {
+		return v.fit.Exact(v.s.Entropy(q))
+	}
 	return bregman.Dot(q, v.pays(v.pq, q))
 }
 

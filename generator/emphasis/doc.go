@@ -15,7 +15,11 @@
 // The weight is a formula in c (scorewright's formula language). The two
 // integrals are computed once, at construction, as cumulative sums over
 // panels (geometric towards both ends, uniform in the middle), each panel
-// by Gauss–Legendre quadrature from gonum's integrate/quad; a query adds
+// by Gauss–Legendre quadrature from gonum's integrate/quad, with a knot
+// added at every point where the weight formula switches piece (an if
+// condition, the argument of abs, the arguments of min or max changing
+// sign: formula.Machine.Switches, found by a scan of 1/4096 and
+// bisection), so that no panel straddles a jump or a kink; a query adds
 // the partial panel from p to the nearest knot. Beyond the last knot at
 // each end the integrand is extrapolated as a power law K s^β in the
 // distance s to the end, fitted from two exactly representable points;

@@ -65,6 +65,7 @@ func New(src string, opt Options) (*Generator, error) {
 	g := &Generator{Source: src, prog: prog, glx: make([]float64, glNodes), glw: make([]float64, glNodes)}
 	quad.Legendre{}.FixedLocations(g.glx, g.glw, -1, 1)
 	g.knots = knots()
+	g.knots = mergeKnots(g.knots, breaks(prog, g.knots))
 	ev := &Evaluator{g: g, m: prog.NewMachine()}
 	g.yesLo = fitEnd(func(s float64) float64 { return ev.fYes(s) }, loCut)
 	g.noLo = fitEnd(func(s float64) float64 { return ev.fNo(s) }, loCut)

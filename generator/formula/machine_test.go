@@ -256,3 +256,28 @@ func TestExpm1Log1pPrecision(t *testing.T) {
 		t.Errorf("unknown function message %v does not list expm1 and log1p", err)
 	}
 }
+
+// The switching quantities of a piecewise formula change sign exactly at
+// its break points, read off by hand: c = 0.3 (the comparison), 0.5 (abs)
+// and 0.7 (min(c, 0.7)).
+func TestSwitches(t *testing.T) {
+	prog, err := CompileString("if(c < 0.3, 0, 1) + abs(c - 0.5) + min(c, 0.7)", Scope{Vars: []string{"c"}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if prog.Switches() != 3 {
+		t.Fatalf("%d switching quantities, want 3", prog.Switches())
+	}
+	m := prog.NewMachine()
+	sw := make([]float64, 3)
+	for _, c := range []float64{0.1, 0.4, 0.6, 0.9} {
+		m.Switches(sw, []float64{c})
+		want := map[float64]bool{c - 0.3: true, c - 0.5: true, c - 0.7: true}
+		for _, s := range sw {
+			if !want[s] {
+				t.Errorf("at c = %g switching quantities %v, want c - 0.3, c - 0.5, c - 0.7 in some order", c, sw)
+				break
+			}
+		}
+	}
+}
