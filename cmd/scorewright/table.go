@@ -129,7 +129,8 @@ func tableOf(e *env, fs *flag.FlagSet, d *design.Design, format string, tf *tabl
 		return writePointTable(e, d, t, tb, format, tf)
 	}
 	fit, rc := t.Fit, t.Recheck
-	ax, err := annexInput(d, tb, r.Outcomes(), fit.A, fit.B, fit.Clamp)
+	a, b, clamp := t.PayLine()
+	ax, err := annexInput(d, tb, r.Outcomes(), a, b, clamp)
 	if err != nil {
 		return err
 	}
