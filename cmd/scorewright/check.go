@@ -46,7 +46,10 @@ func checkDesign(e *env, d *design.Design, vf *verifyFlags) error {
 	if err != nil {
 		return err
 	}
-	s, err := vf.settings(e)
+	if err := refuseCertifyOnInterval(r, vf.cert); err != nil {
+		return err
+	}
+	s, err := vf.settings(e, d.N())
 	if err != nil {
 		return err
 	}
@@ -68,15 +71,22 @@ func checkDesign(e *env, d *design.Design, vf *verifyFlags) error {
 		return printPointReport(e, found.Point, vf.asJSON)
 	}
 	rep := found.Rule
+	cert, proved, err := certificate(ctx, e, r, vf.cert)
+	if err != nil {
+		return err
+	}
 	if vf.asJSON {
-		if err := writeJSON(e.stdout, toReportJSON(rep)); err != nil {
+		out := toReportJSON(rep)
+		out.Certificate = cert
+		if err := writeJSON(e.stdout, out); err != nil {
 			return err
 		}
 	} else {
 		fmt.Fprintf(e.stdout, "rule:    %s\n", describeRule(r.Kind(), d))
 		printReport(e.stdout, rep)
+		printCertificate(e.stdout, cert)
 	}
-	if found.Failed() {
+	if found.Failed() || proved {
 		return errFailed
 	}
 	return nil

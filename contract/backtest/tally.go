@@ -44,15 +44,17 @@ type Scheme struct {
 	Adjust func(dst, p []float64) []float64
 	// Record, if set, writes into dst the report the contract records for
 	// forecast p — a report floor raises entries below it, as the menu's
-	// items are raised — and returns dst. The menu test and the pay use the
-	// recorded report; Effort stays that of the forecast as written.
+	// items are raised — and returns dst. The menu test, the pay, the
+	// effort and the decomposition use the recorded report.
 	Record func(dst, p []float64) []float64
 }
 
 // Paid is what one forecast earns under one scheme.
 type Paid struct {
-	// Effort is L(p, y) of the forecast as written; the decomposition
-	// splits its mean.
+	// Effort is L(p, y) at the report the contract pays for the forecast
+	// (recorded and adjusted; the forecast as written when the scheme
+	// changes nothing), so Pay = A - B·Effort; the decomposition splits its
+	// mean.
 	Effort float64
 	// Pay is the payment, at the report Scheme.Adjust makes of p.
 	Pay    float64
@@ -364,7 +366,7 @@ func (t *Tally) scoreAll(s int, p []float64, dst []Paid) {
 		}
 		t.scorers[s].Efforts(t.eff, paid)
 		for y, l := range t.eff {
-			dst[y].Pay = sc.Pay.Pay(l)
+			dst[y].Effort, dst[y].Pay = l, sc.Pay.Pay(l)
 		}
 	}
 }
@@ -404,7 +406,7 @@ func (t *Tally) Result() *Result {
 			m := ft.money[i].money()
 			f.Count = m.Count
 			f.Money = append(f.Money, m)
-			d := Decompose(t.scorers[i], f.Bins)
+			d := Decompose(t.scorers[i], t.paidBins(i, f.Bins))
 			d.MeanEffort = m.MeanEffort
 			d.WithinBin = m.MeanEffort - d.Identity()
 			f.Decomposition = append(f.Decomposition, d)
@@ -416,6 +418,41 @@ func (t *Tally) Result() *Result {
 		rankBy(r.Forecasters, i)
 	}
 	return r
+}
+
+// paidBins are bins as scheme s pays them: each bin's forecast replaced
+// by the report the contract pays for it (Record, then Adjust), bins that
+// become equal merged, so that the decomposition splits the mean of the
+// efforts that were paid — a forecast of 0 raised to a report floor is
+// finite there, as its payment is. Without Record and Adjust the bins are
+// returned as they are.
+func (t *Tally) paidBins(s int, bins []Bin) []Bin {
+	sc := &t.schemes[s]
+	if sc.Record == nil && sc.Adjust == nil {
+		return bins
+	}
+	keys := newKeyTable(t.n)
+	var out []Bin
+	for _, b := range bins {
+		p := b.Forecast
+		if sc.Record != nil {
+			p = sc.Record(t.rec, p)
+		}
+		if sc.Adjust != nil {
+			p = sc.Adjust(t.adj, p)
+		}
+		i, made := keys.find(p, true)
+		if made {
+			out = append(out, Bin{Forecast: append([]float64(nil), p...), Observed: make([]float64, t.n)})
+		}
+		o := &out[i]
+		total := o.Count + b.Count
+		for k := range o.Observed {
+			o.Observed[k] = (o.Observed[k]*float64(o.Count) + b.Observed[k]*float64(b.Count)) / float64(total)
+		}
+		o.Count = total
+	}
+	return out
 }
 
 // rankBy ranks forecasters by mean pay under scheme i, best first; ties

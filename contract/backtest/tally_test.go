@@ -183,10 +183,11 @@ func TestCompensatedSum(t *testing.T) {
 	}
 }
 
-// A clamp pays the report as if each probability were at least c; the
-// effort of the forecast as written stays what it is. Log rule, forecast
-// (1, 0), outcome 2, clamp 0.01: the paid report is (1/1.01, 0.01/1.01),
-// effort -ln(0.01/1.01) = ln 101 (derived by hand), the written effort +Inf.
+// A clamp pays the report as if each probability were at least c, and the
+// effort is that of the paid report. Log rule, forecast (1, 0), outcome 2,
+// clamp 0.01: the paid report is (1/1.01, 0.01/1.01), effort
+// -ln(0.01/1.01) = ln 101 (derived by hand; the written forecast's would
+// be +Inf).
 func TestAdjust(t *testing.T) {
 	lg := rule(t, "-sum(p*ln(p))", 2, false)
 	clamp := func(dst, p []float64) []float64 {
@@ -202,15 +203,15 @@ func TestAdjust(t *testing.T) {
 	}
 	tl, _ := NewTally([]Scheme{{Name: "log", Rule: lg, Pay: Affine{A: 10, B: 1}, Adjust: clamp, Low: 0, High: 10}}, TallyOptions{})
 	paid := tl.Add("Birch", 2, 1, []float64{1, 0})
-	if !math.IsInf(paid[0].Effort, 1) || math.Abs(paid[0].Pay-(10-math.Log(101))) > 1e-12 {
-		t.Errorf("paid %+v, want effort +Inf and pay 10 - ln 101 = %g", paid[0], 10-math.Log(101))
+	if math.Abs(paid[0].Effort-math.Log(101)) > 1e-12 || math.Abs(paid[0].Pay-(10-math.Log(101))) > 1e-12 {
+		t.Errorf("paid %+v, want effort ln 101 and pay 10 - ln 101 = %g", paid[0], 10-math.Log(101))
 	}
 }
 
 // A report floor records the forecast as the menu would: log rule,
 // forecast (1, 0), outcome 2, floor 0.01: the recorded report is
 // (0.99, 0.01), on the menu, paid at effort -ln 0.01 = ln 100 (derived by
-// hand); the written effort stays +Inf.
+// hand), and that is its effort.
 func TestRecord(t *testing.T) {
 	lg := rule(t, "-sum(p*ln(p))", 2, false)
 	floor := func(dst, p []float64) []float64 {
@@ -226,8 +227,42 @@ func TestRecord(t *testing.T) {
 	onMenu := func(p []float64) bool { return math.Abs(p[0]-0.99) < 1e-12 }
 	tl, _ := NewTally([]Scheme{{Name: "log", Rule: lg, Pay: Affine{A: 10, B: 1}, Record: floor, OnMenu: onMenu, Low: 0, High: 10}}, TallyOptions{})
 	paid := tl.Add("Birch", 2, 1, []float64{1, 0})
-	if !math.IsInf(paid[0].Effort, 1) || math.Abs(paid[0].Pay-(10-math.Log(100))) > 1e-12 || !paid[0].OnMenu {
-		t.Errorf("paid %+v, want effort +Inf, pay 10 - ln 100 = %g, on the menu", paid[0], 10-math.Log(100))
+	if math.Abs(paid[0].Effort-math.Log(100)) > 1e-12 || math.Abs(paid[0].Pay-(10-math.Log(100))) > 1e-12 || !paid[0].OnMenu {
+		t.Errorf("paid %+v, want effort ln 100, pay 10 - ln 100 = %g, on the menu", paid[0], 10-math.Log(100))
+	}
+}
+
+// The decomposition splits the efforts that were paid. Log rule, floor
+// 0.01: forecasts (1, 0) twice, outcomes 1 and 2, and (0.5, 0.5) twice,
+// outcomes 1 and 2. The paid forecasts are (0.99, 0.01) and (0.5, 0.5),
+// each bin with observed frequency 1/2, so (derived by hand, natural logs)
+// uncertainty H(1/2, 1/2) = ln 2, resolution 0, reliability
+// 1/2 D((.5,.5), (.99,.01)) = 1/2 (-ln 2 - (ln 0.99 + ln 0.01)/2), all
+// finite; the mean effort (-ln 0.99 - ln 0.01 + 2 ln 2)/4 is what the
+// identity adds up to.
+func TestDecompositionOfPaidForecasts(t *testing.T) {
+	lg := rule(t, "-sum(p*ln(p))", 2, false)
+	floor := func(dst, p []float64) []float64 {
+		copy(dst, p)
+		for i := range dst {
+			if dst[i] < 0.01 {
+				dst[1-i] -= 0.01 - dst[i]
+				dst[i] = 0.01
+			}
+		}
+		return dst
+	}
+	tl, _ := NewTally([]Scheme{{Name: "log", Rule: lg, Pay: Affine{A: 10, B: 1}, Record: floor, Low: 0, High: 10}}, TallyOptions{})
+	tl.Add("Birch", 2, 0, []float64{1, 0})
+	tl.Add("Birch", 3, 1, []float64{1, 0})
+	tl.Add("Birch", 4, 0, []float64{0.5, 0.5})
+	tl.Add("Birch", 5, 1, []float64{0.5, 0.5})
+	d := tl.Result().Forecasters[0].Decomposition[0]
+	rel := 0.5 * (-math.Log(2) - (math.Log(0.99)+math.Log(0.01))/2)
+	mean := (-math.Log(0.99) - math.Log(0.01) + 2*math.Log(2)) / 4
+	if math.Abs(d.Uncertainty-math.Log(2)) > 1e-12 || math.Abs(d.Resolution) > 1e-12 || math.Abs(d.Reliability-rel) > 1e-12 ||
+		math.Abs(d.MeanEffort-mean) > 1e-12 || math.Abs(d.WithinBin) > 1e-12 {
+		t.Errorf("decomposition %+v; want uncertainty ln 2, resolution 0, reliability %g, mean effort %g, within-bin 0", d, rel, mean)
 	}
 }
 

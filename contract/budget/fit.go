@@ -22,6 +22,10 @@ type Fit struct {
 	Rounding string
 	// Clamp is the menu's clamp (0: none); see ClampReport.
 	Clamp float64
+	// ReportFloor is the budget's report floor (0: none): a truthful
+	// forecaster whose belief gives an outcome less reports the belief
+	// raised to it (FloorReport), and is paid for that.
+	ReportFloor float64
 	// Floor is the smallest exact payment over the menu. Cap is the
 	// largest: the budget's cap, or what a mean-pay fit produced.
 	Floor, Cap float64
@@ -41,10 +45,12 @@ type Fit struct {
 	// rounded table. MaxPay is the buyer's worst case for one forecast.
 	MinPay, MaxPay float64
 	// Truthful is the expected exact payment of a truthful forecaster,
-	// A - B·H(q), over beliefs q.
+	// A - B·H(q) (at the report raised to the report floor and clamped,
+	// which is what such a forecaster is paid for), over beliefs q.
 	Truthful TruthfulRange
-	// ReferencePay is A - B·H(reference) (uniform reference unless one
-	// was stated).
+	// ReferencePay is the expected exact payment of a truthful forecaster
+	// at the reference (uniform unless one was stated), paid for the
+	// reference raised to the report floor and clamped.
 	ReferencePay float64
 
 	// Shift is the sum of the number literals of the generator's outermost
@@ -174,7 +180,11 @@ func FitRule(r *bregman.Rule, m *Menu, b design.Budget) (*Fit, error) {
 	} else if err := num.CheckDistribution(ref, num.SimplexTolerance); err != nil {
 		return nil, fmt.Errorf("budget: reference belief: %v", err)
 	}
-	href := s.Expected(ref, ClampReport(cp, ref, m.Clamp))
+	// What a truthful forecaster at the reference is paid for: the report
+	// raised to the report floor (the menu holds no lower entry), then
+	// clamped.
+	f.ReportFloor = b.ReportFloor
+	href := s.Expected(ref, f.paidReport(cp, ref))
 
 	f.base, f.anchor, f.low = b.Floor, lmax, lmin
 	switch {
@@ -221,6 +231,16 @@ func FitRule(r *bregman.Rule, m *Menu, b design.Budget) (*Fit, error) {
 	}
 	f.Truthful = f.truthfulRange(s)
 	return f, nil
+}
+
+// paidReport writes into dst the report a truthful forecaster with belief
+// q is paid for: q raised to the report floor, then clamped.
+func (f *Fit) paidReport(dst, q []float64) []float64 {
+	if f.ReportFloor > 0 {
+		FloorReport(dst, q, f.ReportFloor)
+		q = dst
+	}
+	return ClampReport(dst, q, f.Clamp)
 }
 
 // exact is the unrounded payment for an effort of the rule less its
@@ -303,7 +323,9 @@ func beliefResolution(n, kmax int, limit float64) int {
 	return K
 }
 
-// truthfulRange searches A - B·H(q) over a grid of beliefs. H is concave,
+// truthfulRange searches the expected pay of a truthful forecaster,
+// A - B·H(q) (at the report the contract pays for q: raised to the report
+// floor, clamped), over a grid of beliefs. H is concave,
 // so the largest truthful pay is at a vertex and the grid finds it; the
 // smallest is where H peaks, which the grid finds to within its spacing.
 func (f *Fit) truthfulRange(s *bregman.Scorer) TruthfulRange {
@@ -322,7 +344,7 @@ func (f *Fit) truthfulRange(s *bregman.Scorer) TruthfulRange {
 	beliefs = append(beliefs, uniform)
 	beliefs = append(beliefs, f.Menu.Reports...)
 	for _, q := range beliefs {
-		v := f.exact(s.Expected(q, ClampReport(cp, q, f.Clamp)))
+		v := f.exact(s.Expected(q, f.paidReport(cp, q)))
 		if math.IsNaN(v) || math.IsInf(v, 0) {
 			skipped++
 			continue
