@@ -4,7 +4,6 @@ import (
 	"context"
 	"fmt"
 	"math"
-
 )
 
 // Settings are the grid and tolerance of a check; the zero value means the
