@@ -54,7 +54,9 @@ func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress f
 		if err != nil {
 			return nil, err
 		}
-		return fromVerify(rep), nil
+		out := fromVerify(rep)
+		out.Certificate = certifyRule(ctx, r, s, progress)
+		return out, nil
 	case design.ModePoint:
 		c := compileDesign(d)
 		if c.err != nil {
@@ -77,6 +79,7 @@ func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress f
 			return nil, err
 		}
 		out := fromVerify(&rep.Report)
+		out.Certificate = certifyPayout(ctx, p, s, progress)
 		if id := rep.Identified; id != nil {
 			out.Notes = append(out.Notes, fmt.Sprintf("identified: pay = %.6g - %.6g × effort of the %s preset%s", id.Shift, id.Scale, id.Preset, id.WithParam()))
 		}
