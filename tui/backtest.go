@@ -91,7 +91,7 @@ func backtestCmd(ctx context.Context, run, gen uint64, d *design.Design, path st
 
 // replay fits d to its budget and runs the history through it.
 func replay(ctx context.Context, d *design.Design, h *history.Reader, path string, size int64, progress func(float64)) (*BacktestResult, error) {
-	r, _, _, err := designRule(d)
+	r, err := designRule(d)
 	if err != nil {
 		return nil, fmt.Errorf("a backtest replays a rule over outcomes: %w", err)
 	}

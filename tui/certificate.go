@@ -5,8 +5,7 @@ import (
 	"fmt"
 	"time"
 
-	"scorewright/generator/bregman"
-	"scorewright/generator/payout"
+	"scorewright"
 	"scorewright/verify/certify"
 )
 
@@ -30,27 +29,16 @@ func (s Settings) certifyDeadline() time.Duration {
 	return s.CertifyDeadline
 }
 
-// certifyRule runs the certificate of a generator formula after its grid
-// check, reporting progress as the share of the simplex proved; nil when
-// the rule is not a formula (an emphasis weight) or certificates are
-// off (a negative deadline). A cancelled context ends it at once.
-func certifyRule(ctx context.Context, r *bregman.Rule, s Settings, progress func(done, total int64)) *CertificateView {
+// certifyDesign runs the certificate of a design after its grid check,
+// reporting progress as the share of the simplex proved; nil when no
+// certificate method applies (an emphasis weight, point forecasts) or
+// certificates are off (a negative deadline). A cancelled context ends it
+// at once.
+func certifyDesign(ctx context.Context, r *scorewright.Rule, s Settings, progress func(done, total int64)) *CertificateView {
 	if s.certifyDeadline() < 0 {
 		return nil
 	}
-	res, err := certify.Rule(ctx, r, certifySettings(s, progress))
-	if err != nil {
-		return nil
-	}
-	return certificateView(res)
-}
-
-// certifyPayout is certifyRule for a payout under audit.
-func certifyPayout(ctx context.Context, p *payout.Payout, s Settings, progress func(done, total int64)) *CertificateView {
-	if s.certifyDeadline() < 0 {
-		return nil
-	}
-	res, err := certify.Payout(ctx, p, certifySettings(s, progress))
+	res, err := r.Certify(ctx, certifySettings(s, progress))
 	if err != nil {
 		return nil
 	}

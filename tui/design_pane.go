@@ -374,21 +374,12 @@ func (p *DesignPane) cycleMode(d *design.Design, up bool) {
 	switch {
 	case d.Mode.OnInterval() && len(d.Interval) != 2:
 		d.Interval = p.interval
-	case d.Mode == design.ModePayout:
+	case !d.Mode.OnInterval() && d.Mode.Payout():
 		d.Interval = nil // a payout over outcomes has no interval
 	}
 	f, ok := p.byMode[ms[i]]
 	if !ok {
-		switch {
-		case d.Mode == design.ModePointPayout:
-			f = samplePointPayout
-		case d.Mode == design.ModePayout:
-			f = samplePayout
-		case d.Mode == design.ModeEmphasis:
-			f = sampleEmphasis
-		case d.Mode == design.ModePoint:
-			f = samplePoint
-		}
+		f = modeRows[d.Mode].sample
 	}
 	// The menu step means a probability step over outcomes and a step in
 	// the interval's units for point forecasts; each kind keeps its own.
@@ -440,7 +431,7 @@ func (p DesignPane) updatePicker(km tea.KeyMsg, d *design.Design) (DesignPane, t
 		} else {
 			p.note = "preset " + ps.Name
 		}
-		if d.Mode == design.ModePoint && len(d.Interval) != 2 {
+		if d.Mode.OnInterval() && len(d.Interval) != 2 {
 			d.Interval = defaultInterval()
 		}
 		if wasPoint != onInterval(d) {
@@ -623,18 +614,23 @@ func (p DesignPane) View(d *design.Design) string {
 	return paneFrame(st, title, p.focused, p.w, p.h, strings.Join(lines, "\n"))
 }
 
+// modeText is what the mode row says about a mode, and the formula a
+// design first switched to it is given (none for generator mode, which
+// keeps the formula it has).
+type modeText struct{ row, sample string }
+
+// modeRows holds the mode row's words for every mode.
+var modeRows = map[design.Mode]modeText{
+	design.ModeGenerator:   {row: "generator (concave H; ←/→)"},
+	design.ModePayout:      {row: "payout audit (pay(p, y); ←/→)", sample: samplePayout},
+	design.ModeEmphasis:    {row: "emphasis weight w(c) (←/→)", sample: sampleEmphasis},
+	design.ModePoint:       {row: "point forecast phi(x) (←/→)", sample: samplePoint},
+	design.ModePointPayout: {row: "point payout audit (pay(x, y); ←/→)", sample: samplePointPayout},
+}
+
 func modeLine(m design.Mode) string {
-	switch m {
-	case design.ModePointPayout:
-		return "point payout audit (pay(x, y); ←/→)"
-	case design.ModeGenerator:
-		return "generator (concave H; ←/→)"
-	case design.ModePayout:
-		return "payout audit (pay(p, y); ←/→)"
-	case design.ModeEmphasis:
-		return "emphasis weight w(c) (←/→)"
-	case design.ModePoint:
-		return "point forecast phi(x) (←/→)"
+	if t, ok := modeRows[m]; ok {
+		return t.row
 	}
 	return string(m) + " (not computed by this build)"
 }

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"scorewright"
 	"strings"
 
 	"github.com/charmbracelet/bubbles/key"
@@ -101,11 +102,11 @@ func researchCmd(ctx context.Context, run uint64, d *design.Design, in ResearchI
 
 // researchRun is the work of researchCmd.
 func researchRun(ctx context.Context, d *design.Design, in ResearchInputs, progress func(string, int, int)) (*study.Report, error) {
-	if d.Mode != design.ModeGenerator && d.Mode != design.ModeEmphasis && d.Mode != "" {
+	rule, err := designRule(d)
+	var needs *scorewright.NeedsOutcomesError
+	if errors.As(err, &needs) {
 		return nil, fmt.Errorf("the research view works on rules over outcomes (generator or emphasis designs); this is a %s design", modeName(d))
-	}
-	rule, _, _, err := designRule(d)
-	if err != nil {
+	} else if err != nil {
 		return nil, err
 	}
 	q0 := in.baseRate(d)

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"scorewright"
 	"strings"
 
 	"github.com/charmbracelet/bubbles/key"
@@ -90,11 +91,11 @@ func riskCmd(ctx context.Context, run uint64, d *design.Design, in RiskInputs) t
 
 // riskRun is the work of riskCmd.
 func riskRun(ctx context.Context, d *design.Design, in RiskInputs, progress func(done, total int)) (*RiskResult, error) {
-	if d.Mode != design.ModeGenerator && d.Mode != design.ModeEmphasis {
+	rule, err := designRule(d)
+	var needs *scorewright.NeedsOutcomesError
+	if errors.As(err, &needs) {
 		return nil, fmt.Errorf("the risk view works on rules over outcomes (generator or emphasis designs); this is a %s design", modeName(d))
-	}
-	rule, _, _, err := designRule(d)
-	if err != nil {
+	} else if err != nil {
 		return nil, err
 	}
 	fitted, err := riskfit.New(rule, d.Budget)
@@ -148,7 +149,7 @@ func modeName(d *design.Design) string {
 	if d.Mode.Payout() {
 		return "payout audit"
 	}
-	if d.Mode == design.ModePoint {
+	if d.Mode.OnInterval() {
 		return "point-forecast"
 	}
 	return string(d.Mode)

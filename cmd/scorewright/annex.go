@@ -27,7 +27,7 @@ func addContractFlags(fs *flag.FlagSet) *contractFlags {
 	fs.StringVar(&c.start, "start", "", "first forecast date, YYYY-MM-DD")
 	fs.StringVar(&c.end, "end", "", "last forecast date, YYYY-MM-DD")
 	fs.StringVar(&c.signed, "signed", "", "date of signature, YYYY-MM-DD")
-	fs.IntVar(&c.forecasts, "forecasts", 0, "forecasts per season, for what the contract costs")
+	intVar(fs, &c.forecasts, "forecasts", 0, "forecasts per season, for what the contract costs")
 	fs.StringVar(&c.baseRate, "base-rate", "", "the buyer's base rate q1,...: how often each outcome happens (default: --reference, else uniform)")
 	return c
 }

@@ -3,6 +3,7 @@ package main
 import (
 	"fmt"
 	"math"
+	"scorewright"
 
 	"scorewright/generator/design"
 	"scorewright/internal/num"
@@ -88,7 +89,7 @@ func auditDesign(e *env, d *design.Design, vf *verifyFlags) error {
 	if err := refuseCertifyOnInterval(r, vf.cert); err != nil {
 		return err
 	}
-	s, err := vf.settings(e)
+	s, err := vf.settings(e, d.N())
 	if err != nil {
 		return err
 	}
@@ -115,7 +116,7 @@ func auditDesign(e *env, d *design.Design, vf *verifyFlags) error {
 			return err
 		}
 	} else {
-		printAudit(e, d.Formula, d.Labels, rep)
+		printAudit(e, d.Formula, d.Labels, found)
 		printCertificate(e.stdout, cert)
 	}
 	if found.Failed() || proved {
@@ -168,19 +169,13 @@ func newAuditJSON(src string, labels []string, rep *verify.AuditReport) auditJSO
 	return out
 }
 
-func printAudit(e *env, src string, labels []string, rep *verify.AuditReport) {
-	w := e.stdout
+func printAudit(e *env, src string, labels []string, found *scorewright.Findings) {
+	w, rep := e.stdout, found.Audit
 	fmt.Fprintf(w, "payout:  %q over %d outcomes (reward: more is better)\n", src, len(labels))
 	printReport(w, &rep.Report)
 	fmt.Fprintln(w)
-	if rep.Gap.Max > rep.Grid.Slack() {
-		how := ""
-		if rep.Gap.Sharpened {
-			how = fmt.Sprintf(" (sharpened beyond the grid from %.6g)", rep.Gap.GridMax)
-		}
-		fmt.Fprintf(w, "largest honesty gap: %.6g%s at belief %s, best report %s\n", rep.Gap.Max, how, num.Format(rep.Gap.Belief), num.Format(rep.Gap.BestReport))
-	} else if rep.Gap.Max == rep.Gap.Max {
-		fmt.Fprintf(w, "largest honesty gap: %.3g (no grid belief gains from misreporting)\n", rep.Gap.Max)
+	if line := found.GapLine(); line != "" {
+		fmt.Fprintln(w, line)
 	}
 	switch {
 	case rep.Undefined == len(rep.Beliefs) && rep.Undefined > 0:
@@ -201,9 +196,8 @@ func printAudit(e *env, src string, labels []string, rep *verify.AuditReport) {
 			}
 		}
 	}
-	if id := rep.Identified; id != nil {
-		fmt.Fprintf(w, "identified: pay = %.6g + %.6g × score of preset %q%s, its score being -effort (relative residual %.2g)\n",
-			shown(id.Shift, id.Scale, id.Residual), id.Scale, id.Preset, id.WithParam(), id.Residual)
+	if line := found.IdentifiedLine(); line != "" {
+		fmt.Fprintln(w, line)
 	} else if len(rep.Fits) > 0 {
 		f := rep.Fits[0]
 		fmt.Fprintf(w, "not identified as a preset; closest %q%s: %s\n", f.Preset, f.WithParam(), f.Note)
@@ -228,14 +222,4 @@ func vector(v []float64) []num.Float {
 		return []num.Float{}
 	}
 	return num.Floats(v)
-}
-
-// shown is a fitted shift as a person should read it: a value that is zero
-// within the fit's own residual, relative to the scale, prints as 0 rather
-// than as rounding noise such as -8.6e-14. JSON keeps the fitted value.
-func shown(shift, scale, residual float64) float64 {
-	if math.Abs(shift) <= 10*math.Max(residual, 1e-12)*math.Max(1, math.Abs(scale)) {
-		return 0
-	}
-	return shift
 }

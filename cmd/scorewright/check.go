@@ -34,7 +34,7 @@ func checkDesign(e *env, d *design.Design, vf *verifyFlags) error {
 	if err := refuseCertifyOnInterval(r, vf.cert); err != nil {
 		return err
 	}
-	s, err := vf.settings(e)
+	s, err := vf.settings(e, d.N())
 	if err != nil {
 		return err
 	}

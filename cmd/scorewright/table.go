@@ -45,7 +45,7 @@ func addTableFlags(fs *flag.FlagSet) *tableFlags {
 	fs.BoolVar(&t.lottery, "lottery", false, "pay a chance of winning a fixed prize, (pay - floor)/(cap - floor), instead of money")
 	fs.IntVar(&t.draws, "draws", lottery.DefaultDraws, "--lottery: chances in whole 1/N, settled by drawing a whole number from 1 to N (N a power of ten)")
 	fs.StringVar(&t.menu, "menu", "", "read the report menu from a CSV file: one report per line, n probabilities (n = 2: one number), '#' comments")
-	fs.Float64Var(&t.clamp, "clamp", 0, "pay every report as if each probability were at least P (rescaled to sum 1); for rules infinite at 0")
+	floatVar(fs, &t.clamp, "clamp", 0, "pay every report as if each probability were at least P (rescaled to sum 1); for rules infinite at 0")
 	return t
 }
 
@@ -129,7 +129,8 @@ func tableOf(e *env, fs *flag.FlagSet, d *design.Design, format string, tf *tabl
 		return writePointTable(e, d, t, tb, format, tf)
 	}
 	fit, rc := t.Fit, t.Recheck
-	ax, err := annexInput(d, tb, r.Outcomes(), fit.A, fit.B, fit.Clamp)
+	a, b, clamp := t.PayLine()
+	ax, err := annexInput(d, tb, r.Outcomes(), a, b, clamp)
 	if err != nil {
 		return err
 	}
