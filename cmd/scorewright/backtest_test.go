@@ -244,6 +244,14 @@ func TestBacktestHarvestStdin(t *testing.T) {
 				Uncertainty, Resolution, Reliability float64
 				WithinBin                            float64 `json:"within_bin"`
 			}
+			Binning string
+			CORP    []struct {
+				Event string
+				Mean  float64 `json:"mean_score"`
+				MCB   float64 `json:"miscalibration"`
+				DSC   float64 `json:"discrimination"`
+				UNC   float64 `json:"uncertainty"`
+			} `json:"corp"`
 		}
 	}
 	if err := json.Unmarshal(out.Bytes(), &got); err != nil {
@@ -254,9 +262,21 @@ func TestBacktestHarvestStdin(t *testing.T) {
 	}
 	for _, f := range got.Forecasters {
 		for _, d := range f.Decomposition {
-			// Bins are the distinct forecasts here, so the identity is exact.
-			if math.Abs(d.Uncertainty-d.Resolution+d.Reliability-d.MeanEffort) > 1e-12 || math.Abs(d.WithinBin) > 1e-12 {
+			// Bins are cells of width 0.1: the remainder closes the identity.
+			if math.Abs(d.Uncertainty-d.Resolution+d.Reliability+d.WithinBin-d.MeanEffort) > 1e-12 {
 				t.Errorf("%s: %+v does not add up", f.Name, d)
+			}
+		}
+		if !strings.Contains(f.Binning, "width 0.1") {
+			t.Errorf("%s: binning %q, want cells of width 0.1 stated", f.Name, f.Binning)
+		}
+		// One CORP split per outcome against the rest, each exact.
+		if len(f.CORP) != 3 || f.CORP[1].Event != "near against the rest" {
+			t.Fatalf("%s: CORP %+v, want one per outcome", f.Name, f.CORP)
+		}
+		for _, c := range f.CORP {
+			if math.Abs(c.MCB-c.DSC+c.UNC-c.Mean) > 1e-12 || c.MCB < 0 || c.DSC < 0 {
+				t.Errorf("%s: CORP %+v does not add up", f.Name, c)
 			}
 		}
 	}
