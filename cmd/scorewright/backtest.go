@@ -238,7 +238,7 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 		report.Notes = append(report.Notes, notes...)
 	}
 	if *figPath != "" {
-		if err := writeReliabilityFigure(*figPath, figFormat, *force, d1.Labels[0], res); err != nil {
+		if err := writeReliabilityFigure(*figPath, figFormat, *force, d1.Labels[0], res, report.Warnings); err != nil {
 			return err
 		}
 		report.Notes = append(report.Notes, "reliability picture written to "+*figPath)
@@ -247,7 +247,10 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 		report.Notes = append(report.Notes, "pay of every forecast written to "+*payOut)
 	}
 	if *asJSON {
-		return writeJSON(e.stdout, report)
+		if err := writeJSON(e.stdout, report); err != nil {
+			return err
+		}
+		return failedIfWarned(report)
 	}
 	if err := report.writeText(e.stdout); err != nil {
 		return err
@@ -255,6 +258,16 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 	if *chart {
 		fmt.Fprintln(e.stdout)
 		fmt.Fprintln(e.stdout, reliability.New(d1.Labels[0], reliabilityCurves(res, 0)).View(72, 22))
+	}
+	return failedIfWarned(report)
+}
+
+// failedIfWarned is errFailed when a rule's table fails its re-check:
+// the backtest is reported in full, and the exit status says, as table's
+// does, that the table is not fit to sign.
+func failedIfWarned(r *backtestReport) error {
+	if len(r.Warnings) > 0 {
+		return errFailed
 	}
 	return nil
 }
@@ -376,12 +389,12 @@ func reliabilityCurves(res *backtest.Result, k int) []backtest.Curve {
 	return backtest.ReliabilityCurves(res, k)
 }
 
-func writeReliabilityFigure(path, format string, force bool, event string, res *backtest.Result) error {
+func writeReliabilityFigure(path, format string, force bool, event string, res *backtest.Result, warnings []string) error {
 	p, err := figure.Reliability(reliabilityCurves(res, 0), event, fmt.Sprintf("Reliability of forecasts of %q (bins of width 1/%d)", event, pictureCells))
 	if err != nil {
 		return err
 	}
-	data, err := figure.Encode(p, format)
+	data, err := figure.Encode(p, format, warnings...)
 	if err != nil {
 		return err
 	}
@@ -393,6 +406,9 @@ func writeReliabilityFigure(path, format string, force bool, event string, res *
 
 // backtestReport is what the command prints (and its JSON).
 type backtestReport struct {
+	// Warnings say that a rule's table fails its re-check; the command
+	// then exits 1, as table does.
+	Warnings    []string            `json:"warnings,omitempty"`
 	History     string              `json:"history"`
 	Outcomes    []string            `json:"outcomes"`
 	Tolerance   float64             `json:"tolerance"`

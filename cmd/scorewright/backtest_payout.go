@@ -40,7 +40,13 @@ func createPayOut(path string, force bool, labels []string, schemes []*backtestS
 	}
 	o := &payOutFile{path: path, tmp: f.Name(), force: force, f: f, buf: bufio.NewWriterSize(f, 1<<16), labels: labels}
 	o.w = csv.NewWriter(o.buf)
-	// Comment lines, as CSV readers with a comment character skip them.
+	// Comment lines, as CSV readers with a comment character skip them;
+	// a failed re-check first, as in a table's export.
+	for _, s := range schemes {
+		if s.money.warning != "" {
+			fmt.Fprintf(o.buf, "# WARNING: rule %s: %s\n", s.id, s.money.warning)
+		}
+	}
 	for _, c := range table.Caution() {
 		fmt.Fprintf(o.buf, "# caution: %s\n", c)
 	}

@@ -8,17 +8,20 @@ package figure
 import (
 	"bytes"
 	"fmt"
+	"image/color"
 	"math"
 	"path/filepath"
 	"strings"
 
 	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/font"
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/plotutil"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 
 	"scorewright/contract/backtest"
+	"scorewright/contract/table"
 )
 
 // formats are the file extensions Encode writes.
@@ -109,14 +112,48 @@ func (tenths) Ticks(_, _ float64) []plot.Tick {
 	return t
 }
 
-// Encode renders p as a 12 cm square image in format (svg, png or pdf).
-func Encode(p *plot.Plot, format string) ([]byte, error) {
-	w, err := p.WriterTo(12*vg.Centimeter, 12*vg.Centimeter, format)
+// Encode renders p as a 12 cm square image in format (svg, png or pdf),
+// with any warnings (in red) and the caution every export carries
+// (table.Caution) set under it: a picture of a backtest can end up in a
+// contract file as any table can.
+func Encode(p *plot.Plot, format string, warnings ...string) ([]byte, error) {
+	const side = 12 * vg.Centimeter
+	sty := draw.TextStyle{Font: font.From(font.Font{Typeface: "Liberation", Variant: "Mono"}, 6), Handler: plot.DefaultTextHandler, YAlign: draw.YTop}
+	width := int((side - vg.Centimeter) / sty.Width("M"))
+	var lines []string
+	var colours []color.Color
+	add := func(text string, c color.Color) {
+		for _, l := range table.Wrap(text, width) {
+			lines, colours = append(lines, l), append(colours, c)
+		}
+	}
+	for _, w := range warnings {
+		add("WARNING: "+w, color.RGBA{R: 0xb0, A: 0xff})
+	}
+	for _, c := range table.Caution() {
+		add("caution: "+c, color.Black)
+	}
+	lineH := sty.Height("Ag") * 1.25
+	textH := lineH*vg.Length(len(lines)) + vg.Centimeter/2
+	cw, err := draw.NewFormattedCanvas(side, side+textH, format)
 	if err != nil {
 		return nil, err
 	}
+	dc := draw.New(cw)
+	dc.SetColor(color.White)
+	dc.Fill(dc.Rectangle.Path())
+	area := dc
+	area.Min.Y += textH
+	p.Draw(area)
+	y := dc.Min.Y + textH - vg.Centimeter/4
+	for i, l := range lines {
+		s := sty
+		s.Color = colours[i]
+		dc.FillText(s, vg.Point{X: dc.Min.X + vg.Centimeter/2, Y: y}, l)
+		y -= lineH
+	}
 	var buf bytes.Buffer
-	if _, err := w.WriteTo(&buf); err != nil {
+	if _, err := cw.WriteTo(&buf); err != nil {
 		return nil, err
 	}
 	return buf.Bytes(), nil

@@ -35,7 +35,7 @@ func TestReliabilitySVG(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	for _, want := range []string{"<svg", `forecast probability of &#34;frost&#34;`, "perfect reliability", "Alder", "0.4"} {
+	for _, want := range []string{"<svg", `forecast probability of &#34;frost&#34;`, "perfect reliability", "Alder", "0.4", "caution: scorewright checks mathematics, not law.", "qualified counsel"} {
 		if !bytes.Contains(data, []byte(want)) {
 			t.Errorf("svg lacks %q", want)
 		}
