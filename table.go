@@ -130,7 +130,9 @@ func (t *Table) Bounds() (lo, hi float64) {
 func (r *Rule) Export(t *Table, version, date string) *table.Table {
 	d := r.d
 	if t.Point != nil {
-		return t.Point.Export(t.PointRecheck, point.Info{Title: d.Title, Preset: d.Preset, Params: d.Params, Version: version, Date: date})
+		tb := t.Point.Export(t.PointRecheck, point.Info{Title: d.Title, Preset: d.Preset, Params: d.Params, Version: version, Date: date})
+		tb.Meta.Currency = d.Contract.Currency
+		return tb
 	}
 	return t.Fit.Table(t.Recheck, r.Info(version, date))
 }
@@ -140,7 +142,7 @@ func (r *Rule) Export(t *Table, version, date string) *table.Table {
 func (r *Rule) Info(version, date string) budget.Info {
 	d := r.d
 	return budget.Info{Title: d.Title, Formula: d.Formula, FormulaRole: r.FormulaRole(), Preset: d.Preset, Params: d.Params,
-		Weights: d.Weights, Ordered: d.Ordered, Version: version, Date: date}
+		Weights: d.Weights, Ordered: d.Ordered, Version: version, Date: date, Currency: d.Contract.Currency}
 }
 
 // Lottery turns tb, the export of t, into drawable chances of winning a

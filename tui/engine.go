@@ -12,6 +12,7 @@ import (
 	"time"
 
 	"scorewright/contract/annex"
+	"scorewright/contract/cost"
 	"scorewright/contract/lottery"
 	"scorewright/contract/table"
 	"scorewright/generator/design"
@@ -130,6 +131,10 @@ func budgetFitter(ctx context.Context, d *design.Design) (*TableView, error) {
 	fit, rc := t.Fit, t.Recheck
 	tb := fit.Table(rc, r.Info("", ""))
 	tv := &TableView{Passed: rc.Passed, MinMargin: rc.MinMargin, Pay: fit.Pay, Notes: fit.Notes(rc)}
+	if c, err := cost.Of(tb, cost.SeasonOf(d)); err == nil {
+		// What the contract costs comes first: it is what the buyer asks.
+		tv.Notes = append([]string{c.Sentence(num.Format(c.Season.BaseRate))}, tv.Notes...)
+	}
 	// Column heads are the bare outcome labels, under a first head that
 	// says what the cells are: narrow panes keep every column.
 	tv.Header = append(tv.Header, "report \\ "+tb.ValueName+" if")

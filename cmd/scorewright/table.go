@@ -142,6 +142,7 @@ func tableOf(e *env, fs *flag.FlagSet, d *design.Design, format string, tf *tabl
 	}
 	sum := newTableSummary(fit, rc, tb, format, tf.out)
 	sum.Lottery, sum.Caution = lot, tb.Meta.Cautions
+	sum.Cost = newCostJSON(ax.Cost)
 	return exportTable(e, ax, format, tf, rc.Passed && tb.Meta.Passed, &sum.Output, sum, func() error {
 		return printTableSummary(e.stdout, fit, rc, sum)
 	})
@@ -265,6 +266,7 @@ type tableSummary struct {
 	Recheck      recheckJSON   `json:"recheck"`
 	ClampGap     *clampGapJSON `json:"clamp_gap,omitempty"`
 	Cells        []cellJSON    `json:"cells"`
+	Cost         *costJSON     `json:"cost,omitempty"`
 	exportJSON
 }
 
@@ -438,6 +440,9 @@ func printTableSummary(w io.Writer, f *budget.Fit, rc *budget.Recheck, s *tableS
 		verdict: s.Recheck.Verdict, notes: s.Notes, lottery: s.Lottery,
 	}
 	if err := head.print(w); err != nil {
+		return err
+	}
+	if err := printCost(w, s.Cost); err != nil {
 		return err
 	}
 	if err := printItems(w, f, rc); err != nil {
