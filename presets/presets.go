@@ -100,7 +100,13 @@ func all() []Preset {
 			Formula: "-x^2",
 			Source:  "Savage (1971), JASA 66:783-801; Gneiting (2011), Making and evaluating point forecasts, JASA 106:746-762"},
 		{Name: "patton", Title: "point forecast of a mean, homogeneous Bregman family for a positive quantity (needs lo >= 0); b = 0 is half squared error; b = -1, -2 are limits (qlike is b = -2)", Kind: KindPoint,
-			Formula: "b = 1\n-x^(b+2) / ((b+1)*(b+2))",
+			// -x^(b+2)/((b+1)(b+2)) up to an affine term, which never
+			// changes a Bregman rule: -x·(x^(b+1) - 1) or -(x^(b+2) - 1)
+			// over (b+1)(b+2), with expm1 so that nothing cancels near the
+			// limits, and the limits themselves at b = -1 (-x ln x, effort
+			// y ln(y/x) - y + x) and b = -2 (ln x, QLIKE) rather than 0/0
+			// (Patton 2011, eq. 5). b is a constant, so the ifs fold away.
+			Formula: "b = 1\nif(abs(b + 1) > 0, if(abs(b + 2) > 0, if(b > -1.5, -x*expm1((b + 1)*ln(x)), -expm1((b + 2)*ln(x))) / ((b + 1)*(b + 2)), ln(x)), -x*ln(x))",
 			Source:  "Patton (2011), Volatility forecast comparison using imperfect volatility proxies, J. Econometrics 160:246-256"},
 		{Name: "qlike", Title: "point forecast of a positive mean, effort y/x - ln(y/x) - 1 (needs lo > 0)", Kind: KindPoint,
 			Formula: "ln(x)",

@@ -8,7 +8,22 @@ import (
 
 	"scorewright"
 	"scorewright/generator/design"
+	"scorewright/generator/point"
+	"scorewright/presets"
 )
+
+// presetNeeds is what a design's preset says it needs of the interval
+// ("; preset qlike: ... (needs lo > 0)"), or "" for a formula.
+func presetNeeds(d *design.Design) string {
+	if d.Preset == "" {
+		return ""
+	}
+	p, err := presets.Lookup(d.Preset)
+	if err != nil {
+		return ""
+	}
+	return fmt.Sprintf("; preset %s is a %s", p.Name, p.Title)
+}
 
 func runCheck(e *env, args []string) error {
 	fs := newFlags("check")
@@ -42,9 +57,12 @@ func checkDesign(e *env, d *design.Design, vf *verifyFlags) error {
 	defer stop()
 	found, err := r.Check(ctx, s)
 	var needs *scorewright.NeedsOutcomesError
+	var domain *point.DomainError
 	switch {
 	case errors.As(err, &needs):
 		return usagef("%v", err)
+	case errors.As(err, &domain):
+		return usagef("%v%s", err, presetNeeds(d))
 	case err != nil && ctx.Err() != nil:
 		return usagef("check interrupted")
 	case err != nil:

@@ -72,6 +72,9 @@ func TestUsageErrors(t *testing.T) {
 		{[]string{"eval", "--outcomes", "3", "--preset", "power", "--param", "h=2", "--report", "0.2,0.3,0.5"}, `unknown parameter "h"; the formula sets: g`},
 		{[]string{"eval", "--bogus"}, "unknown option --bogus"},
 		{[]string{"eval", "--outcomes", "3", "--preset", "weighted-quadratic", "--report", "0.2,0.3,0.5"}, "needs --weights"},
+		// QLIKE is infinite at y = 0 (Patton 2011): refused, with the reason.
+		{[]string{"check", "--interval", "0,10", "--preset", "qlike"}, "not finite at the outcome y = 0 of [0, 10]"},
+		{[]string{"check", "--interval", "0,10", "--preset", "patton", "--param", "b=-2"}, "not finite at the outcome y = 0"},
 	}
 	for _, c := range cases {
 		code, _, stderr := runCmd(t, c.args...)

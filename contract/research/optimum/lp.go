@@ -55,6 +55,10 @@ type Result struct {
 	// Points and Values are the mesh nodes and G there (for drawing).
 	Points [][]float64
 	Values []float64
+	// Centroids holds one report inside each cell: a menu that contains
+	// them sees every piece's payments, so a budget fit on it keeps the
+	// rule's payments within the budget at every report.
+	Centroids [][]float64
 	// Model describes the research model the rule was optimised for.
 	Model string
 }
@@ -343,6 +347,13 @@ func result(m *mesh, post *research.Posterior, y, obj []float64, floor, cap floa
 	// defect.
 	tol := 1e3 * perturb * R
 	for c, cell := range m.cells {
+		ctr := make([]float64, m.n)
+		for _, v := range cell {
+			for k := range ctr {
+				ctr[k] += m.points[v][k] / float64(len(cell))
+			}
+		}
+		r.Centroids = append(r.Centroids, ctr)
 		g := make([]float64, m.n)
 		for k := range g {
 			mu, err := m.barycentric(c, unit(m.n, k))
@@ -356,6 +367,13 @@ func result(m *mesh, post *research.Posterior, y, obj []float64, floor, cap floa
 				return nil, fmt.Errorf("optimum: the solution pays %g for outcome %d on cell %d, outside [%g, %g]", g[k], k+1, c, floor, cap)
 			}
 			g[k] = math.Min(cap, math.Max(floor, tidy(g[k], R)))
+			// A payment the relaxation left a hair from the floor or the
+			// cap is at it: the exact optimum pays the bounds there.
+			if g[k]-floor < tol {
+				g[k] = floor
+			} else if cap-g[k] < tol {
+				g[k] = cap
+			}
 		}
 		r.addPiece(g, tol)
 	}
