@@ -114,7 +114,7 @@ func (p ChecksPane) View() string {
 			head = st.Dim.Render("previous design's verdict: " + verdict)
 		}
 		lines = append(lines, head)
-		lines = append(lines, st.Dim.Render(fmt.Sprintf("grid step 1/%d, %d points, tolerance %g", r.Resolution, r.Points, r.Tolerance)))
+		lines = append(lines, st.Dim.Render(gridLine(r)))
 		// Each check's note only when there is room for all of them.
 		notes := p.h-2 >= len(lines)+2*len(r.Rows)+len(r.Notes)+1
 		for _, c := range r.Rows {
@@ -152,4 +152,14 @@ func allPassed(r *CheckReport) bool {
 		}
 	}
 	return true
+}
+
+// gridLine states the grid a verdict stands on: full or sampled, its
+// step, points and tolerance.
+func gridLine(r *CheckReport) string {
+	kind := "full grid"
+	if r.Sampled {
+		kind = "sampled grid"
+	}
+	return fmt.Sprintf("%s, step 1/%d, %d points, tol %g", kind, r.Resolution, r.Points, r.Tolerance)
 }

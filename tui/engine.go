@@ -92,10 +92,7 @@ func fromPoint(rep *pointcheck.Report) *CheckReport {
 
 func fromVerify(r *verify.Report) *CheckReport {
 	out := &CheckReport{Verdict: string(r.Verdict), Resolution: r.Grid.Resolution, Points: int64(r.Grid.Points),
-		Tolerance: r.Grid.Tolerance, Notes: r.Notes}
-	if r.Grid.Sampled {
-		out.Notes = append(out.Notes, "the grid points are a random sample of the lattice")
-	}
+		Sampled: r.Grid.Sampled, Tolerance: r.Grid.Tolerance, Notes: r.Notes}
 	for _, c := range r.Checks {
 		out.Rows = append(out.Rows, CheckRow{Name: c.Name, Passed: c.Passed, Worst: c.Worst, Belief: c.Belief, Report: c.Report, Note: c.Note})
 	}

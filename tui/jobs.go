@@ -18,9 +18,12 @@ type CheckReport struct {
 	Verdict    string
 	Resolution int
 	Points     int64
-	Tolerance  float64
-	Rows       []CheckRow
-	Notes      []string
+	// Sampled is true when the points are a random sample of the lattice,
+	// not the full grid; the pane says which.
+	Sampled   bool
+	Tolerance float64
+	Rows      []CheckRow
+	Notes     []string
 	// Certificate is what the interval certificate proved; nil when none
 	// was run.
 	Certificate *CertificateView

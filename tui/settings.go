@@ -16,7 +16,8 @@ type Settings struct {
 	// (0: the checker's defaults).
 	Resolution int
 	Tolerance  float64
-	// Workers is how many goroutines a check may use (0: all cores).
+	// Workers is how many goroutines a check may use (0: all cores but
+	// one, at least one, so that typing stays smooth while a check runs).
 	Workers int
 	// CertifyDeadline bounds the interval certificate run after the grid
 	// checks (0: 3 s; negative: no certificate).

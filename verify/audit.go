@@ -95,7 +95,7 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	rep := &AuditReport{Report: Report{Grid: gridInfo(g, s)}}
 	rep.Notes = gridNotes(rep.Grid, n)
 	if g.Sampled {
-		rep.Notes = append(rep.Notes, fmt.Sprintf("the full grid at resolution %d is larger than %d points, so %d random lattice points and the vertices were used", s.Resolution, s.MaxPoints, g.Len()-n))
+		rep.Notes = append(rep.Notes, sampledNote(s, n, g.Len()))
 	}
 	pays := newMenu(n, G)
 	evs := make([]*payout.Evaluator, s.Workers)

@@ -74,7 +74,8 @@ func grid(n int, s Settings) (*simplex.Grid, error) {
 }
 
 func gridInfo(g *simplex.Grid, s Settings) Grid {
-	out := Grid{Resolution: g.K, Points: g.Len(), Tolerance: s.Tolerance, Scale: 1, Sampled: g.Sampled, Pairs: int64(g.Len()) * int64(g.Len())}
+	out := Grid{Resolution: g.K, Points: g.Len(), Tolerance: s.Tolerance, Scale: 1, Sampled: g.Sampled, Pairs: int64(g.Len()) * int64(g.Len()),
+		Lattice: simplex.Count(g.N, g.K), MaxPoints: s.MaxPoints}
 	for _, b := range g.Boundary {
 		if b {
 			out.Boundary++
@@ -90,7 +91,7 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	rep := &Report{Grid: gridInfo(g, s)}
 	rep.Notes = gridNotes(rep.Grid, n)
 	if g.Sampled {
-		rep.Notes = append(rep.Notes, fmt.Sprintf("the full grid at resolution %d is larger than %d points, so %d random lattice points and the vertices were used, with local optimisation over reports", s.Resolution, s.MaxPoints, g.Len()-n))
+		rep.Notes = append(rep.Notes, sampledNote(s, n, g.Len())+", with local optimisation over reports")
 	}
 
 	// Efforts of every grid report, and H at every grid point.

@@ -32,7 +32,7 @@
 // How a check runs:
 //
 //  1. Grid. Every lattice point of resolution K (`simplex.Full`, C(K+n-1, n-1) points) while that
-//     is at most `Settings.MaxPoints` (25,000); above it `simplex.Sample`: the vertices plus
+//     is at most `Settings.MaxPoints` (default `MaxFullPoints`: what half the available memory holds); above it, and said so in the grid statement and a note, `simplex.Sample`: the vertices plus
 //     `Samples` distinct lattice points from a flat Dirichlet, a quarter of them on random faces.
 //     Defaults per n: `DefaultResolution` (1000, 100, 30, 16, 12 for n = 2..6, then a sampled 10n).
 //  2. Menu. L(p, k) and H(p) for every grid report, once: G×n floats (`menu`). The beliefs are the

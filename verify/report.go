@@ -23,8 +23,9 @@ type Settings struct {
 	// Limit, when positive, is the largest effort (or, in an audit, the
 	// largest payment in absolute value) the boundedness check accepts.
 	Limit float64
-	// MaxPoints is the largest full grid; above it the grid is sampled.
-	// 0 means DefaultMaxPoints.
+	// MaxPoints is the largest full grid, in points; above it the grid is
+	// sampled and the report says so and why. 0 means MaxFullPoints(n):
+	// as many points as this machine can hold.
 	MaxPoints int
 	// Samples is the number of random lattice points of a sampled grid;
 	// 0 means DefaultSamples.
@@ -34,12 +35,15 @@ type Settings struct {
 	// Labels name the outcomes in findings ("frost: [0, 1]"); nil means
 	// 1..n. Only an audit reads them: a generator's rule names its own.
 	Labels []string
+
+	// maxPointsAsked records that MaxPoints came from the caller, not from
+	// the machine's memory, so that a sampled grid can say why.
+	maxPointsAsked bool
 }
 
 // Defaults.
 const (
 	DefaultTolerance = 1e-9
-	DefaultMaxPoints = 25000
 	DefaultSamples   = 3000
 )
 
@@ -71,7 +75,9 @@ func (s Settings) withDefaults(n int) Settings {
 		s.Tolerance = DefaultTolerance
 	}
 	if s.MaxPoints <= 0 {
-		s.MaxPoints = DefaultMaxPoints
+		s.MaxPoints = MaxFullPoints(n)
+	} else {
+		s.maxPointsAsked = true
 	}
 	if s.Samples <= 0 {
 		s.Samples = DefaultSamples
@@ -108,6 +114,11 @@ type Grid struct {
 	Rounding float64
 	// Sampled is true when the points are a random sample of the lattice.
 	Sampled bool
+	// Lattice is the number of points of the full lattice at this
+	// resolution (-1 when beyond 2^53), and MaxPoints the largest full
+	// grid the check allowed: Sampled exactly when Lattice exceeds it.
+	Lattice   int64
+	MaxPoints int
 	// Interior and Boundary count the points with every coordinate
 	// positive and with some coordinate 0.
 	Interior, Boundary int
@@ -120,7 +131,7 @@ type Grid struct {
 func (g Grid) String() string {
 	kind := "full grid"
 	if g.Sampled {
-		kind = "sampled grid"
+		kind = fmt.Sprintf("sampled grid (the full lattice is %s points, above the limit of %d)", latticeSize(g.Lattice), g.MaxPoints)
 	}
 	tol := fmt.Sprintf("tolerance %g", g.Tolerance)
 	if g.Scale != 1 {
@@ -131,6 +142,14 @@ func (g Grid) String() string {
 	}
 	return fmt.Sprintf("%s at resolution %d (coordinates in steps of 1/%d): %d points (%d interior, %d on the boundary), %d pairs, %s; a grid check is evidence, not a proof",
 		kind, g.Resolution, g.Resolution, g.Points, g.Interior, g.Boundary, g.Pairs, tol)
+}
+
+// latticeSize is a lattice's point count in words.
+func latticeSize(c int64) string {
+	if c < 0 {
+		return "more than 2^53"
+	}
+	return fmt.Sprint(c)
 }
 
 // Slack is the amount below which a violation counts as rounding:

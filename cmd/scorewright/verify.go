@@ -22,12 +22,13 @@ type verifyFlags struct {
 	limit      float64
 	workers    int
 	samples    int
+	maxPoints  int
 	asJSON     bool
 	// cert asks for a certificate besides the grid (nil: not offered).
 	cert *certifyFlags
 }
 
-const verifyUsage = "[--resolution K] [--tolerance T] [--limit L] [--workers W] [--samples S] [--json] " + certifyUsage
+const verifyUsage = "[--resolution K] [--tolerance T] [--limit L] [--workers W] [--samples S] [--max-points M] [--json] " + certifyUsage
 
 func addVerifyFlags(fs *flag.FlagSet) *verifyFlags {
 	v := &verifyFlags{}
@@ -35,7 +36,8 @@ func addVerifyFlags(fs *flag.FlagSet) *verifyFlags {
 	floatVar(fs, &v.tolerance, "tolerance", verify.DefaultTolerance, "slack allowed for rounding in every comparison, times the size of the rule's values")
 	floatVar(fs, &v.limit, "limit", 0, "largest effort (payment) in absolute value the boundedness check accepts (0: no limit)")
 	intVar(fs, &v.workers, "workers", 0, "goroutines to use (0: all cores)")
-	intVar(fs, &v.samples, "samples", 0, "random lattice points when the full grid is too large (0: default)")
+	intVar(fs, &v.samples, "samples", 0, "random lattice points when the full grid is above --max-points (0: default)")
+	intVar(fs, &v.maxPoints, "max-points", 0, "largest full grid in points; above it the check samples and says so (0: as many as memory holds)")
 	fs.BoolVar(&v.asJSON, "json", false, "print JSON")
 	v.cert = addCertifyFlags(fs)
 	return v
@@ -51,10 +53,10 @@ func (v *verifyFlags) settings(e *env, n int) (verify.Settings, error) {
 		return verify.Settings{}, usagef("--tolerance must be positive, got %g", v.tolerance)
 	case v.limit < 0:
 		return verify.Settings{}, usagef("--limit must be positive, got %g", v.limit)
-	case v.workers < 0 || v.samples < 0:
-		return verify.Settings{}, usagef("--workers and --samples must not be negative")
+	case v.workers < 0 || v.samples < 0 || v.maxPoints < 0:
+		return verify.Settings{}, usagef("--workers, --samples and --max-points must not be negative")
 	}
-	s := verify.Settings{Resolution: v.resolution, Tolerance: v.tolerance, Limit: v.limit, Workers: v.workers, Samples: v.samples}
+	s := verify.Settings{Resolution: v.resolution, Tolerance: v.tolerance, Limit: v.limit, Workers: v.workers, Samples: v.samples, MaxPoints: v.maxPoints}
 	if err := verify.CheckCapacity(s, max(n, 1)); err != nil {
 		return verify.Settings{}, usagef("--%v", err)
 	}

@@ -48,6 +48,11 @@ func Count(n, k int) int64 {
 	return int64(math.Round(c))
 }
 
+// MaxFull is the most points Full enumerates: 2^26 points keep the
+// coordinates of 12 outcomes under 8 GiB, already more than a pair check
+// can stream in a working day.
+const MaxFull = 1 << 26
+
 // Full returns every lattice point of resolution k over n outcomes, in
 // lexicographic order of their integer coordinates.
 func Full(n, k int) (*Grid, error) {
@@ -58,7 +63,7 @@ func Full(n, k int) (*Grid, error) {
 		return nil, fmt.Errorf("simplex: resolution must be at least 1, got %d", k)
 	}
 	c := Count(n, k)
-	if c < 0 || c > 1<<26 {
+	if c < 0 || c > MaxFull {
 		return nil, fmt.Errorf("simplex: %d outcomes at resolution %d is too many points to enumerate", n, k)
 	}
 	g := &Grid{N: n, K: k, Coords: make([]float64, 0, int(c)*n), Boundary: make([]bool, 0, int(c))}
