@@ -7,7 +7,7 @@ import "github.com/charmbracelet/bubbles/key"
 // printable key first.
 type KeyMap struct {
 	// Global.
-	Quit, QuitHard, Help, NextPane, PrevPane, Save, Open, Export, Demo, Backtest, Risk, Research key.Binding
+	Quit, QuitHard, Help, NextPane, PrevPane, Save, Open, Export, Demo, Backtest, Risk, Research, Terms key.Binding
 	// Moving inside a pane and changing the selected item.
 	Up, Down, Less, More, LessFine, MoreFine, Edit, Leave, Toggle key.Binding
 	// Design pane.
@@ -45,6 +45,9 @@ func DefaultKeyMap() KeyMap {
 		// ctrl+a, zellij's ctrl+g/p/t/n/h/s/o/q) and no key of bubbles'
 		// text inputs, so it works while typing too.
 		Research: b([]string{"ctrl+y"}, "ctrl+y", "research view: what research is worth"),
+		// F2: a function key no multiplexer or text input takes, so the
+		// terms open while typing too.
+		Terms: b([]string{"f2"}, "F2", "terms of the annex: title, parties, currency, dates"),
 
 		Up:       b([]string{"up"}, "↑", "previous item"),
 		Down:     b([]string{"down"}, "↓", "next item"),
@@ -90,7 +93,7 @@ type helpGroup struct {
 // groups lists every key, for the help overlay.
 func (k KeyMap) groups() []helpGroup {
 	return []helpGroup{
-		{"Anywhere", []key.Binding{k.QuitHard, k.Quit, k.Help, k.NextPane, k.PrevPane, k.Save, k.Open, k.Export, k.Demo, k.Backtest, k.Risk, k.Research}},
+		{"Anywhere", []key.Binding{k.QuitHard, k.Quit, k.Help, k.NextPane, k.PrevPane, k.Save, k.Open, k.Export, k.Demo, k.Backtest, k.Risk, k.Research, k.Terms}},
 		{"Design", []key.Binding{k.Up, k.Down, k.Edit, k.Leave, k.Less, k.More, k.LessFine, k.MoreFine, k.Toggle, k.AddOutcome, k.DropOutcome}},
 		{"Picture", []key.Binding{k.Measure, k.BeliefDown, k.BeliefUp, k.Pair}},
 		{"Checks", []key.Binding{k.Rerun}},
@@ -98,6 +101,7 @@ func (k KeyMap) groups() []helpGroup {
 		{"Backtest", []key.Binding{k.History, k.StopRun, k.Up, k.Down, k.PageUp, k.PageDown, k.Leave}},
 		{"Risk attitude", []key.Binding{k.Up, k.Down, k.Less, k.More, k.LessFine, k.MoreFine, k.Leave}},
 		{"Research", []key.Binding{k.Up, k.Down, k.Less, k.More, k.LessFine, k.MoreFine, k.Leave}},
+		{"Terms", []key.Binding{k.Up, k.Down, k.Edit, k.Leave}},
 		{"Dialogs", []key.Binding{k.Field, k.Lottery, k.Confirm, k.Cancel, k.Yes, k.No}},
 	}
 }
