@@ -371,8 +371,9 @@ func (m *Machine) back(op opcode, i, a, b, c int32, k, g float64) {
 	case opExp:
 		adj[a] += mul0(g, v[i])
 	case opExpm1:
-		// d/da (e^a - 1) = e^a = value + 1.
-		adj[a] += mul0(g, v[i]+1)
+		// d/da (e^a - 1) = e^a, recomputed: value + 1 would cancel to
+		// nothing where e^a is tiny (expm1 of a large negative a).
+		adj[a] += mul0(g, math.Exp(v[a]))
 	case opLog1p:
 		adj[a] += g / (1 + v[a])
 	case opSqrt:
@@ -481,7 +482,8 @@ func (m *Machine) hessLane(in *cell, l int32) {
 	case opExp:
 		m.unary(i, ia, z, z)
 	case opExpm1:
-		m.unary(i, ia, z+1, z+1)
+		ea := math.Exp(a)
+		m.unary(i, ia, ea, ea)
 	case opLog1p:
 		u := 1 + a
 		m.unary(i, ia, 1/u, -1/(u*u))
