@@ -54,9 +54,12 @@ func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress f
 	var out *CheckReport
 	switch {
 	case found.Rule != nil:
-		return fromVerify(found.Rule), nil
+		out = fromVerify(found.Rule)
+		out.Certificate = certifyDesign(ctx, r, s, progress)
+		return out, nil
 	case found.Audit != nil:
 		out = fromVerify(&found.Audit.Report)
+		out.Certificate = certifyDesign(ctx, r, s, progress)
 	default:
 		out = fromPoint(found.Point)
 	}

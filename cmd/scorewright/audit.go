@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"scorewright"
+	"strings"
 
 	"scorewright/generator/design"
 	"scorewright/internal/num"
@@ -95,6 +96,7 @@ func auditDesign(e *env, d *design.Design, vf *verifyFlags) error {
 	}
 	ctx, stop := interruptible()
 	defer stop()
+	s.Labels = d.Labels
 	found, err := r.Audit(ctx, s)
 	switch {
 	case err != nil && ctx.Err() != nil:
@@ -171,7 +173,7 @@ func newAuditJSON(src string, labels []string, rep *verify.AuditReport) auditJSO
 
 func printAudit(e *env, src string, labels []string, found *scorewright.Findings) {
 	w, rep := e.stdout, found.Audit
-	fmt.Fprintf(w, "payout:  %q over %d outcomes (reward: more is better)\n", src, len(labels))
+	fmt.Fprintf(w, "payout:  %q over %d outcomes (%s) (reward: more is better)\n", src, len(labels), strings.Join(labels, ", "))
 	printReport(w, &rep.Report)
 	fmt.Fprintln(w)
 	if line := found.GapLine(); line != "" {
