@@ -22,6 +22,14 @@ type tiePair struct {
 	margin float64
 }
 
+// properness reduces the stream: for each belief the honesty gap (honest
+// expected effort minus the best) and the margin (best other report minus
+// honest), and for non-negativity the smallest divergence m1 - H(q).
+//
+// Numeric kernel: one pass over the grid (or the lanes) kept whole so
+// the arithmetic reads in one place; it stays longer than 80 lines on purpose.
+// The candidate ties it returns are confirmed or dismissed by the check
+// (strictness.go).
 func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T, scale float64) (prop, nonneg CheckResult, ties []tiePair) {
 	var gapIn, gapBd, negIn, negBd part
 	marginMin := math.Inf(1)
