@@ -164,3 +164,21 @@ func Apply(d *design.Design) error {
 	}
 	return nil
 }
+
+// Settle makes a design's preset name agree with its formula: when the
+// design names a preset but gives a formula of its own that is not the
+// preset's, the formula is what is computed, so the name is dropped (a
+// record saying "preset: log" over a quadratic formula would misstate the
+// rule). It returns a note saying so, or "".
+func Settle(d *design.Design) string {
+	if d.Preset == "" || strings.TrimSpace(d.Formula) == "" {
+		return ""
+	}
+	p, err := Lookup(d.Preset)
+	if err == nil && strings.TrimSpace(p.Formula) == strings.TrimSpace(d.Formula) {
+		return ""
+	}
+	name := d.Preset
+	d.Preset = ""
+	return fmt.Sprintf("the design names preset %q but gives a formula of its own; the formula is used and recorded, the preset name is not", name)
+}

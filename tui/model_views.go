@@ -61,6 +61,7 @@ func (m *Model) backtestMsg(msg btRunMsg) tea.Cmd {
 	switch inner := msg.msg.(type) {
 	case btStartedMsg:
 		m.history = inner.path
+		m.research.SetHistory(inner.path)
 		m.bt.started(inner.path)
 		if fromDialog {
 			m.dialog = nil

@@ -263,7 +263,7 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 		report.Notes = append(report.Notes, notes...)
 	}
 	if *figPath != "" {
-		if err := writeReliabilityFigure(*figPath, figFormat, *force, d1.Labels[0], report.curves); err != nil {
+		if err := writeReliabilityFigure(*figPath, figFormat, *force, d1.Labels[0], report.curves, report.Warnings); err != nil {
 			return err
 		}
 		report.Notes = append(report.Notes, "reliability picture written to "+*figPath)
@@ -272,7 +272,10 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 		report.Notes = append(report.Notes, "pay of every forecast written to "+*payOut)
 	}
 	if *asJSON {
-		return writeJSON(e.stdout, report)
+		if err := writeJSON(e.stdout, report); err != nil {
+			return err
+		}
+		return failedIfWarned(report)
 	}
 	if err := report.writeText(e.stdout); err != nil {
 		return err
@@ -280,6 +283,16 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 	if *chart {
 		fmt.Fprintln(e.stdout)
 		fmt.Fprintln(e.stdout, reliability.New(d1.Labels[0], report.curves).View(72, 22))
+	}
+	return failedIfWarned(report)
+}
+
+// failedIfWarned is errFailed when a rule's table fails its re-check:
+// the backtest is reported in full, and the exit status says, as table's
+// does, that the table is not fit to sign.
+func failedIfWarned(r *backtestReport) error {
+	if len(r.Warnings) > 0 {
+		return errFailed
 	}
 	return nil
 }
@@ -391,8 +404,13 @@ func refuseExisting(path string, force bool) error {
 	return nil
 }
 
-func writeReliabilityFigure(path, format string, force bool, event string, curves []backtest.Curve) error {
-	p, err := figure.Reliability(curves, event, fmt.Sprintf("Reliability of forecasts of %q: PAV curves, %.0f%% consistency bands", event, 100*corp.DefaultLevel), table.Caution())
+func writeReliabilityFigure(path, format string, force bool, event string, curves []backtest.Curve, warnings []string) error {
+	// A failed re-check is said first, then the caution every export has.
+	var notes []string
+	for _, w := range warnings {
+		notes = append(notes, "WARNING: "+w)
+	}
+	p, err := figure.Reliability(curves, event, fmt.Sprintf("Reliability of forecasts of %q: PAV curves, %.0f%% consistency bands", event, 100*corp.DefaultLevel), append(notes, table.Caution()...))
 	if err != nil {
 		return err
 	}

@@ -7,6 +7,9 @@ import (
 
 // backtestReport is what the command prints (and its JSON).
 type backtestReport struct {
+	// Warnings say that a rule's table fails its re-check; the command
+	// then exits 1, as table does.
+	Warnings    []string            `json:"warnings,omitempty"`
 	History     string              `json:"history"`
 	Outcomes    []string            `json:"outcomes"`
 	Tolerance   float64             `json:"tolerance"`

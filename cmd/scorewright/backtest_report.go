@@ -49,7 +49,7 @@ func newBacktestReport(path string, h *history.Reader, schemes []*backtestScheme
 			r.Notes = append(r.Notes, fmt.Sprintf("rule %s: %s", s.id, n))
 		}
 		if s.money.warning != "" {
-			r.Notes = append(r.Notes, fmt.Sprintf("rule %s: %s", s.id, s.money.warning))
+			r.Warnings = append(r.Warnings, fmt.Sprintf("rule %s: %s", s.id, s.money.warning))
 		}
 		if m.OffMenu > 0 {
 			r.Notes = append(r.Notes, fmt.Sprintf("rule %s: %d of %d forecasts are off the report menu; the table has no row for them, so they are paid by the formula (A - B·L, then rounded as the table is)",
@@ -113,6 +113,14 @@ func (r *backtestReport) cash(rule int, v num.Float) string {
 }
 
 func (r *backtestReport) writeText(w io.Writer) error {
+	// Warnings come first, as in a table's export, where no reader can
+	// miss them.
+	for _, warn := range r.Warnings {
+		fmt.Fprintf(w, "WARNING: %s\n", warn)
+	}
+	if len(r.Warnings) > 0 {
+		fmt.Fprintln(w)
+	}
 	fmt.Fprintf(w, "history %s: %d forecasts scored, %d rows skipped (a row's probabilities must lie in [0, 1] and sum to 1 within %g)\n\n",
 		r.History, r.Rows, r.SkipCount, r.Tolerance)
 	for _, rule := range r.Rules {

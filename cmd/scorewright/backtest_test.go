@@ -347,11 +347,20 @@ func TestBacktestPaysAsTheTable(t *testing.T) {
 	}
 	payOut := filepath.Join(t.TempDir(), "pay.csv")
 	code, out, stderr := runCmd(t, append(append([]string{"backtest"}, budgetArgs...), "--history", frostHistory, "--pay-out", payOut)...)
-	if code != 0 {
+	// As table does, a table that fails its re-check is reported with a
+	// warning first in every output and exit status 1.
+	if code != 1 {
 		t.Fatalf("backtest: exit %d, %s", code, stderr)
 	}
-	if !strings.Contains(out, "fails its re-check") {
-		t.Errorf("output does not pass on that the table fails its re-check:\n%s", out)
+	if !strings.HasPrefix(out, "WARNING: rule A: ") || !strings.Contains(strings.SplitN(out, "\n", 2)[0], "fails its re-check") {
+		t.Errorf("output does not begin with the failed re-check:\n%s", out)
+	}
+	if data, _ := os.ReadFile(payOut); !bytes.Contains(bytes.ToLower(data), []byte("# warning: rule a: ")) {
+		t.Errorf("pay-out file does not carry the warning:\n%.600s", data)
+	}
+	code, js, _ := runCmd(t, append(append([]string{"backtest"}, budgetArgs...), "--history", frostHistory, "--json")...)
+	if code != 1 || !strings.Contains(js, `"warnings": [`) {
+		t.Errorf("--json: exit %d, no warnings field:\n%.400s", code, js)
 	}
 	hist := map[string][]string{} // line -> history record
 	hf, _ := os.ReadFile(frostHistory)

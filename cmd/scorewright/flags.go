@@ -9,6 +9,7 @@ import (
 	"strings"
 
 	"scorewright/generator/design"
+	"scorewright/generator/formula"
 	"scorewright/internal/num"
 	"scorewright/presets"
 )
@@ -115,6 +116,9 @@ func (r *ruleFlags) design() (*design.Design, error) {
 		if err != nil {
 			return nil, usagef("%v", err)
 		}
+		// A preset name over a formula of the design's own is dropped:
+		// the record must name the rule that is computed.
+		presets.Settle(d)
 	} else {
 		d = &design.Design{Version: design.SchemaVersion, Mode: design.ModeGenerator, Ordered: r.ordered}
 		sources := 0
@@ -194,7 +198,28 @@ func (r *ruleFlags) design() (*design.Design, error) {
 	if err := d.Validate(); err != nil {
 		return nil, usagef("%v", err)
 	}
+	if err := weightsUsed(d); err != nil {
+		return nil, err
+	}
 	return d, nil
+}
+
+// weightsUsed refuses outcome weights that the formula never reads: the
+// table would ignore them and the record would still list them.
+func weightsUsed(d *design.Design) error {
+	if d.Weights == nil {
+		return nil
+	}
+	f, err := formula.Parse(d.Formula)
+	if err != nil || f.Uses("w") {
+		// A formula that does not parse is reported where it is compiled.
+		return nil
+	}
+	what := "the formula"
+	if d.Preset != "" {
+		what = fmt.Sprintf("preset %q", d.Preset)
+	}
+	return usagef("--weights: %s does not use the outcome weights w, so they would change nothing; leave them out, or use a weighted preset or a formula with w inside sum", what)
 }
 
 // budgetFlags are the options that fit a rule to money.

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"os"
 	"strings"
 	"testing"
 )
@@ -100,5 +101,33 @@ func TestCheckCapsSamplesAndWorkers(t *testing.T) {
 		if code != 2 || !strings.Contains(errs, c.want) {
 			t.Errorf("%s %s: exit %d, %q", c.flag, c.value, code, errs)
 		}
+	}
+}
+
+// The record states only what applies.
+func TestRecordStatesOnlyWhatApplies(t *testing.T) {
+	code, _, errs := runCmd(t, "table", "--outcomes", "2", "--preset", "quadratic", "--weights", "1,5", "--floor", "0", "--cap", "10", "--step", "0.1")
+	if code != 2 || !strings.Contains(errs, `--weights: preset "quadratic" does not use the outcome weights w`) {
+		t.Errorf("unweighted preset with weights: exit %d, %q", code, errs)
+	}
+	dir := t.TempDir()
+	path := dir + "/mismatch.toml"
+	writeFile(t, path, "version = 1\nmode = \"generator\"\noutcomes = [\"frost\", \"clear\"]\npreset = \"log\"\nformula = \"1 - sum(p^2)\"\n[budget]\nfloor = 0\ncap = 10\nstep = 0.1\n")
+	code, out, errs := runCmd(t, "table", "--design", path, "--format", "md")
+	if code != 0 || strings.Contains(out, "log") || !strings.Contains(out, "1 - sum(p^2)") {
+		t.Errorf("preset log over a quadratic formula: exit %d, %s\n%s", code, errs, out)
+	}
+	ref := dir + "/reference.toml"
+	writeFile(t, ref, "version = 1\nmode = \"generator\"\noutcomes = [\"frost\", \"clear\"]\npreset = \"quadratic\"\n[budget]\nfloor = 0\ncap = 10\nstep = 0.1\nreference = [0.2, 0.8]\n")
+	code, _, errs = runCmd(t, "table", "--design", ref)
+	if code != 2 || !strings.Contains(errs, "budget.reference") || !strings.Contains(errs, "mean_pay") {
+		t.Errorf("design reference without mean_pay: exit %d, %q", code, errs)
+	}
+}
+
+func writeFile(t *testing.T, path, text string) {
+	t.Helper()
+	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
 	}
 }
