@@ -48,12 +48,15 @@ type fileDialog struct {
 	// lottery says the export pays a chance of winning a prize instead of
 	// money (contract/lottery); only export dialogs offer it.
 	lottery bool
+	// seq numbers the dialog, for telling its answers from late ones.
+	seq uint64
 }
 
 func newFileDialog(st Styles, keys KeyMap, kind dialogKind, path string, formats []string) fileDialog {
 	ti := textinput.New()
 	ti.Prompt = "path › "
 	ti.Cursor.SetMode(cursor.CursorStatic)
+	calmEditing(&ti.KeyMap.DeleteAfterCursor, &ti.KeyMap.DeleteBeforeCursor)
 	ti.Width = 44
 	ti.SetValue(path)
 	ti.CursorEnd()
@@ -138,6 +141,18 @@ func (d fileDialog) Update(km tea.KeyMsg) (fileDialog, tea.Cmd, dialogAction) {
 	return d, cmd, actNone
 }
 
+// formatFromPath makes the format the one the path's extension names, when
+// it names one of the dialog's formats: what is written into annex.pdf is
+// a PDF, whatever the format field showed.
+func (d *fileDialog) formatFromPath() {
+	ext := strings.ToLower(strings.TrimPrefix(filepath.Ext(d.Path()), "."))
+	for i, f := range d.formats {
+		if f == ext {
+			d.format = i
+		}
+	}
+}
+
 // swapExt replaces extension old of path with new.
 func swapExt(path, old, new string) string {
 	if strings.EqualFold(filepath.Ext(path), "."+old) {
@@ -171,7 +186,7 @@ func (d fileDialog) View(width int) string {
 		} else {
 			money = st.Selected.Render("[money]")
 		}
-		lines = append(lines, "pay    "+money+lot, st.Dim.Render("       ctrl+l: money, or a chance of winning one prize"))
+		lines = append(lines, "pay    "+money+lot, st.Dim.Render("       "+d.keys.Lottery.Help().Key+": money, or a chance of winning one prize"))
 		if d.lottery {
 			lines = append(lines, st.Error.Render("Caution: "+lottery.Caution))
 		}
