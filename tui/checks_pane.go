@@ -123,10 +123,23 @@ func (p ChecksPane) View() string {
 				mark = st.Fail.Render("✗")
 			}
 			line := fmt.Sprintf("%s %-13s worst %.3g", mark, c.Name, c.Worst)
-			if c.Belief != nil {
+			switch {
+			case c.Belief != nil && c.Report != nil:
+				// A report is named only when it reads differently from the
+				// belief: a failure's witness with the digits that show it,
+				// a passed check's location only when six digits do.
+				b, r := num.Format(c.Belief), num.Format(c.Report)
+				ok := b != r
+				if !ok && !c.Passed {
+					b, r, ok = num.FormatApart(c.Belief, c.Report)
+				}
+				line += " at q=" + b
+				if ok {
+					line += " p=" + r
+				}
+			case c.Belief != nil:
 				line += " at q=" + num.Format(c.Belief)
-			}
-			if c.Report != nil {
+			case c.Report != nil:
 				line += " p=" + num.Format(c.Report)
 			}
 			lines = append(lines, line)

@@ -8,6 +8,7 @@ import (
 	"path/filepath"
 	"runtime"
 	"strconv"
+	"strings"
 	"time"
 
 	"scorewright/contract/annex"
@@ -81,8 +82,11 @@ func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress f
 			out.Notes = append(out.Notes, fmt.Sprintf("identified: pay = %.6g - %.6g × effort of the %s preset%s", id.Shift, id.Scale, id.Preset, id.WithParam()))
 		}
 		if rep.Gap.Max > 0 {
-			out.Notes = append(out.Notes, fmt.Sprintf("largest honesty gap %.4g at belief %s: best report %s",
-				rep.Gap.Max, num.Format(rep.Gap.Belief), num.Format(rep.Gap.BestReport)))
+			if b, r, ok := num.FormatApart(rep.Gap.Belief, rep.Gap.BestReport); ok {
+				out.Notes = append(out.Notes, fmt.Sprintf("largest honesty gap %.4g at belief %s: best report %s", rep.Gap.Max, b, r))
+			} else {
+				out.Notes = append(out.Notes, fmt.Sprintf("largest honesty gap %.4g at belief %s, at a report that cannot be told apart from it (no misreport named)", rep.Gap.Max, b))
+			}
 		}
 		return out, nil
 	}
@@ -135,7 +139,11 @@ func auditPointPayout(ctx context.Context, d *design.Design, s Settings, progres
 		}
 	}
 	if g := rep.Gap; g != nil && rep.Verdict == pointcheck.Improper && g.Max > 0 {
-		out.Notes = append(out.Notes, fmt.Sprintf("honesty gap %.4g: best report %.4g, not the mean %.4g,", g.Max, g.BestReport, g.Mean),
+		head := fmt.Sprintf("honesty gap %.4g at a report that cannot be told apart from the mean %.6g (no misreport named),", g.Max, g.Mean)
+		if x, m, ok := num.FormatApart([]float64{g.BestReport}, []float64{g.Mean}); ok {
+			head = fmt.Sprintf("honesty gap %.4g: best report %s, not the mean %s,", g.Max, strings.Trim(x, "()"), strings.Trim(m, "()"))
+		}
+		out.Notes = append(out.Notes, head,
 			fmt.Sprintf("  for outcomes %s weighted %s", num.Format(g.Outcomes), num.Format(g.Weights)))
 	}
 	return out, nil

@@ -14,6 +14,9 @@ type gapJSON struct {
 	Belief     []num.Float `json:"belief"`
 	BestReport []num.Float `json:"best_report"`
 	Sharpened  bool        `json:"sharpened,omitempty"`
+	// Precision says how far sharpening settled the gap (9 significant
+	// digits, or why not).
+	Precision string `json:"precision,omitempty"`
 }
 
 type identJSON struct {
@@ -147,7 +150,7 @@ func payoutDesign(outcomes, src, weights string, ordered bool, params map[string
 // newAuditJSON is what audit --json prints for a payout over outcomes.
 func newAuditJSON(src string, labels []string, rep *verify.AuditReport) auditJSON {
 	out := auditJSON{reportJSON: toReportJSON(&rep.Report), Payout: src, Outcomes: labels, Direction: rep.Direction, Caution: auditCaution, Undefined: rep.Undefined,
-		Gap: gapJSON{Max: num.Float(rep.Gap.Max), Belief: vector(rep.Gap.Belief), BestReport: vector(rep.Gap.BestReport), Sharpened: rep.Gap.Sharpened}}
+		Gap: gapJSON{Max: num.Float(rep.Gap.Max), Belief: vector(rep.Gap.Belief), BestReport: vector(rep.Gap.BestReport), Sharpened: rep.Gap.Sharpened, Precision: rep.Gap.Precision}}
 	if id := rep.Identified; id != nil {
 		j := toIdentJSON(*id)
 		out.Identified = &j
@@ -168,7 +171,14 @@ func printAudit(e *env, src string, labels []string, rep *verify.AuditReport) {
 		if rep.Gap.Sharpened {
 			how = fmt.Sprintf(" (sharpened beyond the grid from %.6g)", rep.Gap.GridMax)
 		}
-		fmt.Fprintf(w, "largest honesty gap: %.6g%s at belief %s, best report %s\n", rep.Gap.Max, how, num.Format(rep.Gap.Belief), num.Format(rep.Gap.BestReport))
+		if b, r, ok := num.FormatApart(rep.Gap.Belief, rep.Gap.BestReport); ok {
+			fmt.Fprintf(w, "largest honesty gap: %.9g%s at belief %s, best report %s\n", rep.Gap.Max, how, b, r)
+		} else {
+			fmt.Fprintf(w, "largest honesty gap: %.9g%s at belief %s, at a report that cannot be told apart from it (no misreport is named)\n", rep.Gap.Max, how, b)
+		}
+		if rep.Gap.Precision != "" {
+			fmt.Fprintf(w, "                     %s\n", rep.Gap.Precision)
+		}
 	} else if rep.Gap.Max == rep.Gap.Max {
 		fmt.Fprintf(w, "largest honesty gap: %.3g (no grid belief gains from misreporting)\n", rep.Gap.Max)
 	}

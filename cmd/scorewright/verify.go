@@ -170,11 +170,24 @@ func printReport(w io.Writer, r *verify.Report) {
 			}
 		}
 		at := ""
-		if c.Belief != nil {
-			at += " at belief " + num.Format(c.Belief)
-		}
-		if c.Report != nil {
-			at += " report " + num.Format(c.Report)
+		switch {
+		case c.Belief != nil && c.Report != nil:
+			// A report is named only when it reads differently from the
+			// belief: a failure's witness with the digits that show it, a
+			// passed check's location only when six digits do.
+			b, r := num.Format(c.Belief), num.Format(c.Report)
+			ok := b != r
+			if !ok && !c.Passed {
+				b, r, ok = num.FormatApart(c.Belief, c.Report)
+			}
+			at = " at belief " + b
+			if ok {
+				at += " report " + r
+			}
+		case c.Belief != nil:
+			at = " at belief " + num.Format(c.Belief)
+		case c.Report != nil:
+			at = " report " + num.Format(c.Report)
 		}
 		fmt.Fprintf(w, "%-14s %s; worst %.6g%s\n", c.Name, status, c.Worst, at)
 		fmt.Fprintf(w, "               interior: %s; boundary: %s\n", partLine(c.Interior), partLine(c.Boundary))

@@ -167,3 +167,26 @@ func Format(v []float64) string {
 	}
 	return "(" + strings.Join(parts, ", ") + ")"
 }
+
+// FormatApart formats two vectors (a belief and a report, say) with the
+// fewest significant digits, at least six, that tell them apart, so that a
+// witness never reads as the same point twice. ok is false when they are
+// equal (then no digits can tell them apart and the caller must not
+// present them as two points).
+func FormatApart(a, b []float64) (sa, sb string, ok bool) {
+	for digits := 6; digits <= 17; digits++ {
+		sa, sb = formatDigits(a, digits), formatDigits(b, digits)
+		if sa != sb {
+			return sa, sb, true
+		}
+	}
+	return sa, sb, false
+}
+
+func formatDigits(v []float64, digits int) string {
+	parts := make([]string, len(v))
+	for i, x := range v {
+		parts[i] = strconv.FormatFloat(x, 'g', digits, 64)
+	}
+	return "(" + strings.Join(parts, ", ") + ")"
+}
