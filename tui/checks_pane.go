@@ -125,14 +125,7 @@ func (p ChecksPane) View() string {
 			line := fmt.Sprintf("%s %-13s worst %.3g", mark, c.Name, c.Worst)
 			switch {
 			case c.Belief != nil && c.Report != nil:
-				// A report is named only when it reads differently from the
-				// belief: a failure's witness with the digits that show it,
-				// a passed check's location only when six digits do.
-				b, r := num.Format(c.Belief), num.Format(c.Report)
-				ok := b != r
-				if !ok && !c.Passed {
-					b, r, ok = num.FormatApart(c.Belief, c.Report)
-				}
+				b, r, ok := num.Witness(c.Belief, c.Report, !c.Passed)
 				line += " at q=" + b
 				if ok {
 					line += " p=" + r

@@ -172,14 +172,7 @@ func printReport(w io.Writer, r *verify.Report) {
 		at := ""
 		switch {
 		case c.Belief != nil && c.Report != nil:
-			// A report is named only when it reads differently from the
-			// belief: a failure's witness with the digits that show it, a
-			// passed check's location only when six digits do.
-			b, r := num.Format(c.Belief), num.Format(c.Report)
-			ok := b != r
-			if !ok && !c.Passed {
-				b, r, ok = num.FormatApart(c.Belief, c.Report)
-			}
+			b, r, ok := num.Witness(c.Belief, c.Report, !c.Passed)
 			at = " at belief " + b
 			if ok {
 				at += " report " + r

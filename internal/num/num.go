@@ -190,3 +190,17 @@ func formatDigits(v []float64, digits int) string {
 	}
 	return "(" + strings.Join(parts, ", ") + ")"
 }
+
+// Witness formats where a check found its worst value, a belief and a
+// report, for display; named says whether the report is shown. It is shown
+// only when it reads differently from the belief: for a failed check with
+// the digits that tell the two apart (FormatApart), for a passed check only
+// when six digits do. A report equal to the belief is no witness.
+func Witness(belief, report []float64, failed bool) (b, r string, named bool) {
+	b, r = Format(belief), Format(report)
+	named = b != r
+	if !named && failed {
+		b, r, named = FormatApart(belief, report)
+	}
+	return b, r, named
+}
