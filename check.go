@@ -5,8 +5,10 @@ import (
 	"errors"
 	"fmt"
 
+	"scorewright/generator/bregman"
 	"scorewright/presets"
 	"scorewright/verify"
+	"scorewright/verify/certify"
 	"scorewright/verify/pointcheck"
 )
 
@@ -112,24 +114,24 @@ func PointSettings(s verify.Settings) pointcheck.Settings {
 	return ps
 }
 
-// Certificate is the seam for an exact proof of properness, as opposed
-// to the grid evidence of Check. The certify work fills it in.
-type Certificate struct {
-	// Kind says what was proved and how.
-	Kind string
-	// Notes are the steps of the proof a reader can follow.
-	Notes []string
-}
-
-// ErrNoCertificate says no certificate method applies to the rule (yet).
+// ErrNoCertificate says no certificate method applies to the rule; its
+// verdict stays grid evidence.
 var ErrNoCertificate = errors.New("no certificate method applies to this rule; its verdict is grid evidence")
 
-// Certify tries to prove the rule proper exactly. No method is wired in
-// yet: it returns ErrNoCertificate for every design, and callers fall
-// back to Check's grid evidence.
-func (r *Rule) Certify(ctx context.Context) (*Certificate, error) {
-	if err := ctx.Err(); err != nil {
-		return nil, err
+// Certify proves the design's verdict over the whole simplex by interval
+// arithmetic (verify/certify): a generator formula's concavity (proper,
+// strictly proper or improper), or a payout's honesty to within
+// s.Epsilon. Within the deadline it may only prove a share of the
+// simplex; the result says so. An emphasis weight (integrated twice, not
+// a formula in p) and point forecasts give ErrNoCertificate.
+func (r *Rule) Certify(ctx context.Context, s certify.Settings) (*certify.Result, error) {
+	switch {
+	case r.payout != nil:
+		return certify.Payout(ctx, r.payout, s)
+	case r.outcomes != nil:
+		if _, ok := r.outcomes.Gen.(*bregman.Formula); ok {
+			return certify.Rule(ctx, r.outcomes, s)
+		}
 	}
 	return nil, fmt.Errorf("%s design: %w", r.Kind(), ErrNoCertificate)
 }

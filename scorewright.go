@@ -1,12 +1,3 @@
-// Package scorewright turns a design into the engine's objects. Open is
-// the one place the design's mode is switched on: the command line and
-// the workbench open a design here and ask the Rule it returns for
-// engine work (Check, Audit, Table, Backtest, Distort, Certify), so that
-// adding a mode touches this package and generator/design only.
-//
-// The packages below it each hold one job: generator/ turns what the
-// user writes into a rule, verify/ checks and audits it, contract/ turns
-// it into money, presets/ names known rules. See DEVELOPERS.md for the map.
 package scorewright
 
 import (

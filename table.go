@@ -7,6 +7,7 @@ import (
 	"math"
 
 	"scorewright/contract/budget"
+	"scorewright/contract/lottery"
 	"scorewright/contract/table"
 	"scorewright/generator/point"
 )
@@ -129,7 +130,9 @@ func (t *Table) Bounds() (lo, hi float64) {
 func (r *Rule) Export(t *Table, version, date string) *table.Table {
 	d := r.d
 	if t.Point != nil {
-		return t.Point.Export(t.PointRecheck, point.Info{Title: d.Title, Preset: d.Preset, Params: d.Params, Version: version, Date: date})
+		tb := t.Point.Export(t.PointRecheck, point.Info{Title: d.Title, Preset: d.Preset, Params: d.Params, Version: version, Date: date})
+		tb.Meta.Currency = d.Contract.Currency
+		return tb
 	}
 	return t.Fit.Table(t.Recheck, r.Info(version, date))
 }
@@ -139,5 +142,33 @@ func (r *Rule) Export(t *Table, version, date string) *table.Table {
 func (r *Rule) Info(version, date string) budget.Info {
 	d := r.d
 	return budget.Info{Title: d.Title, Formula: d.Formula, FormulaRole: r.FormulaRole(), Preset: d.Preset, Params: d.Params,
-		Weights: d.Weights, Ordered: d.Ordered, Version: version, Date: date}
+		Weights: d.Weights, Ordered: d.Ordered, Version: version, Date: date, Currency: d.Contract.Currency}
+}
+
+// Lottery turns tb, the export of t, into drawable chances of winning a
+// prize of hi - lo (Bounds), whole multiples of 1/draws, and re-checks
+// them; tb's record then holds that re-check. passed is its verdict.
+func (t *Table) Lottery(ctx context.Context, tb *table.Table, draws int) (passed bool, err error) {
+	if t.Point != nil {
+		rc, err := lottery.ForPoint(ctx, t.Point, tb, draws)
+		if err != nil {
+			return false, err
+		}
+		return rc.Passed, nil
+	}
+	rc, err := lottery.ForFit(ctx, t.Fit, tb, draws)
+	if err != nil {
+		return false, err
+	}
+	return rc.Passed, nil
+}
+
+// PayLine is the fitted pay A - B·effort and the report clamp of a table
+// over outcomes, for stating the pay as a closed formula; zeros for a
+// point-forecast table, which states its own.
+func (t *Table) PayLine() (a, b, clamp float64) {
+	if t.Fit == nil {
+		return 0, 0, 0
+	}
+	return t.Fit.A, t.Fit.B, t.Fit.Clamp
 }

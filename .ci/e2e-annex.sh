@@ -19,6 +19,12 @@ for f in pdf xlsx html; do
   test -s "$work/water.$f"
 done
 
+# The README's example, as written there.
+(cd "$work" && "$sw" table --design "$OLDPWD/testdata/designs/water.toml" --out readme.pdf) >"$work/out"
+grep -q '^cost  at the base rate (0.1, 0.9) (the buyer.s base rate), per forecast and per season:$' "$work/out"
+grep -q '^        a forecaster who only reports the base rate: 143.25 EUR per forecast, 52286.25 EUR per season$' "$work/out"
+grep -q '^wrote readme.pdf (pdf)$' "$work/out"
+
 pdftotext "$work/water.pdf" "$work/water.txt"
 txt="$work/water.txt"
 # The Unicode font prints B·L and the closed formula as written.

@@ -66,14 +66,17 @@ type NamedPoint struct {
 }
 
 // PointGenerators compiles every point-forecast preset on [lo, hi] at its
-// default parameters; one that does not compile there is left out.
+// default parameters; one that does not compile there, or is not finite
+// at every outcome of it, is left out.
 func PointGenerators(lo, hi float64) []NamedPoint {
 	var out []NamedPoint
 	for _, p := range all() {
 		if p.Kind != KindPoint {
 			continue
 		}
-		if g, err := point.New(p.Formula, lo, hi, point.Options{}); err == nil {
+		// One whose domain excludes part of the interval (qlike on an
+		// interval reaching 0) is no candidate there.
+		if g, err := point.New(p.Formula, lo, hi, point.Options{}); err == nil && g.Domain() == nil {
 			out = append(out, NamedPoint{Name: p.Name, Gen: g})
 		}
 	}

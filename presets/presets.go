@@ -100,7 +100,13 @@ func all() []Preset {
 			Formula: "-x^2",
 			Source:  "Savage (1971), JASA 66:783-801; Gneiting (2011), Making and evaluating point forecasts, JASA 106:746-762"},
 		{Name: "patton", Title: "point forecast of a mean, homogeneous Bregman family for a positive quantity (needs lo >= 0); b = 0 is half squared error; b = -1, -2 are limits (qlike is b = -2)", Kind: KindPoint,
-			Formula: "b = 1\n-x^(b+2) / ((b+1)*(b+2))",
+			// -x^(b+2)/((b+1)(b+2)) up to an affine term, which never
+			// changes a Bregman rule: -x·(x^(b+1) - 1) or -(x^(b+2) - 1)
+			// over (b+1)(b+2), with expm1 so that nothing cancels near the
+			// limits, and the limits themselves at b = -1 (-x ln x, effort
+			// y ln(y/x) - y + x) and b = -2 (ln x, QLIKE) rather than 0/0
+			// (Patton 2011, eq. 5). b is a constant, so the ifs fold away.
+			Formula: "b = 1\nif(abs(b + 1) > 0, if(abs(b + 2) > 0, if(b > -1.5, -x*expm1((b + 1)*ln(x)), -expm1((b + 2)*ln(x))) / ((b + 1)*(b + 2)), ln(x)), -x*ln(x))",
 			Source:  "Patton (2011), Volatility forecast comparison using imperfect volatility proxies, J. Econometrics 160:246-256"},
 		{Name: "qlike", Title: "point forecast of a positive mean, effort y/x - ln(y/x) - 1 (needs lo > 0)", Kind: KindPoint,
 			Formula: "ln(x)",
@@ -157,4 +163,22 @@ func Apply(d *design.Design) error {
 		d.Mode = design.ModeGenerator
 	}
 	return nil
+}
+
+// Settle makes a design's preset name agree with its formula: when the
+// design names a preset but gives a formula of its own that is not the
+// preset's, the formula is what is computed, so the name is dropped (a
+// record saying "preset: log" over a quadratic formula would misstate the
+// rule). It returns a note saying so, or "".
+func Settle(d *design.Design) string {
+	if d.Preset == "" || strings.TrimSpace(d.Formula) == "" {
+		return ""
+	}
+	p, err := Lookup(d.Preset)
+	if err == nil && strings.TrimSpace(p.Formula) == strings.TrimSpace(d.Formula) {
+		return ""
+	}
+	name := d.Preset
+	d.Preset = ""
+	return fmt.Sprintf("the design names preset %q but gives a formula of its own; the formula is used and recorded, the preset name is not", name)
 }

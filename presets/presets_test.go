@@ -478,3 +478,48 @@ func TestOtherPresetDerivatives(t *testing.T) {
 		}
 	}
 }
+
+// Patton's (2011, J. Econometrics 160:246-256, eq. 5) homogeneous family
+// of Bregman losses for a positive quantity, against his closed forms:
+//
+//	b ∉ {-1, -2}: L = (y^(b+2) - x^(b+2))/((b+1)(b+2)) - x^(b+1)(y - x)/(b+1)
+//	b = -1:       L = x - y + y ln(y/x)
+//	b = -2:       L = y/x - ln(y/x) - 1   (QLIKE)
+//
+// The limits are the preset's own, not 0/0; near them (b = -1 ± 1e-9,
+// -2 ± 1e-9) the loss differs from the limit by O(1e-9) (its derivative in
+// b is bounded on the interval), which the plain form, cancelling terms of
+// size 1e9, could not show.
+func TestPattonFamily(t *testing.T) {
+	p, _ := Lookup("patton")
+	general := func(b float64) func(y, x float64) float64 {
+		return func(y, x float64) float64 {
+			return (math.Pow(y, b+2)-math.Pow(x, b+2))/((b+1)*(b+2)) - math.Pow(x, b+1)*(y-x)/(b+1)
+		}
+	}
+	limM1 := func(y, x float64) float64 { return x - y + y*math.Log(y/x) }
+	limM2 := func(y, x float64) float64 { return y/x - math.Log(y/x) - 1 }
+	cases := []struct {
+		b    float64
+		want func(y, x float64) float64
+		tol  float64
+	}{
+		{1, general(1), 1e-12}, {0, general(0), 1e-12}, {0.5, general(0.5), 1e-12}, {-1.3, general(-1.3), 1e-11}, {-3, general(-3), 1e-11},
+		{-1, limM1, 1e-13}, {-2, limM2, 1e-13},
+		{-1 + 1e-9, limM1, 1e-8}, {-1 - 1e-9, limM1, 1e-8}, {-2 + 1e-9, limM2, 1e-8}, {-2 - 1e-9, limM2, 1e-8},
+	}
+	for _, c := range cases {
+		g, err := point.New(p.Formula, 0.5, 4, point.Options{Params: map[string]float64{"b": c.b}})
+		if err != nil {
+			t.Fatal(err)
+		}
+		ev := g.NewEvaluator()
+		for _, y := range []float64{0.5, 1, 2.5, 4} {
+			for _, x := range []float64{0.5, 0.9, 2, 3.7} {
+				if got, want := ev.Divergence(y, x), c.want(y, x); math.Abs(got-want) > c.tol*(1+math.Abs(want)) {
+					t.Errorf("b = %g: L(y = %g, x = %g) = %.15g, Patton %.15g", c.b, y, x, got, want)
+				}
+			}
+		}
+	}
+}

@@ -33,13 +33,16 @@ const fewPerBin = 5
 // BacktestResult is what a finished backtest shows: the run, the rule's
 // pay formula and budget, and the notes the command would print.
 type BacktestResult struct {
-	Path    string
-	Labels  []string
-	Result  *backtest.Result
-	Pay     string // how pay follows from effort
-	Menu    string
-	Budget  string
-	Notes   []string
+	Path   string
+	Labels []string
+	Result *backtest.Result
+	Pay    string // how pay follows from effort
+	Menu   string
+	Budget string
+	Notes  []string
+	// Curves are the PAV reliability curves with consistency bands (two
+	// outcomes), made once in the background with the run.
+	Curves  []backtest.Curve
 	decimal int // currency decimals; -1 unrounded
 }
 
@@ -91,7 +94,7 @@ func backtestCmd(ctx context.Context, run, gen uint64, d *design.Design, path st
 
 // replay fits d to its budget and runs the history through it.
 func replay(ctx context.Context, d *design.Design, h *history.Reader, path string, size int64, progress func(float64)) (*BacktestResult, error) {
-	r, _, _, err := designRule(d)
+	r, err := designRule(d)
 	if err != nil {
 		return nil, fmt.Errorf("a backtest replays a rule over outcomes: %w", err)
 	}
@@ -124,6 +127,9 @@ func replay(ctx context.Context, d *design.Design, h *history.Reader, path strin
 	fit := fitted.Fit
 	out := &BacktestResult{Path: path, Labels: append([]string(nil), d.Labels...), Result: res, Pay: tablepay.PayFormula(fit),
 		Menu: fit.MenuDesc(), Budget: fit.BudgetDesc(), Notes: fitted.Notes, decimal: fit.Decimals()}
+	if len(d.Labels) == 2 {
+		out.Curves = backtest.ReliabilityCurves(res, 0)
+	}
 	if fitted.Warning != "" {
 		out.Notes = append(out.Notes, fitted.Warning)
 	}
@@ -277,7 +283,8 @@ func (v BacktestView) resultText(width int) string {
 	all := res.All[0]
 	fmt.Fprintf(tw, "all\t%d\t%s\t%.4g\t\t%.4g\t\t\t\t\n", res.Rows, r.cash(all.Total), all.Mean, all.MeanEffort)
 	tw.Flush()
-	b.WriteString(wrap.Render("total and mean pay per forecast; rank by mean pay, 1 best; effort is the mean effort = uncertainty - resolution + reliability") + "\n")
+	b.WriteString(wrap.Render("total and mean pay per forecast; rank by mean pay, 1 best; effort is the mean effort = uncertainty - resolution + reliability; "+res.Forecasters[0].Binning.String()) + "\n")
+	b.WriteString("\n" + corpTable(r))
 	if res.SkippedCount > 0 {
 		b.WriteString(fmt.Sprintf("\n%d rows skipped:\n", res.SkippedCount))
 		for i, s := range res.Skipped {
@@ -335,10 +342,31 @@ func (v BacktestView) View() string {
 	lines := []string{v.statusLine()}
 	if v.hasPicture() {
 		pw, ph := v.pictureSize()
-		ch := reliability.New(v.res.Labels[0], backtest.ReliabilityCurves(v.res.Result, 0))
+		ch := reliability.New(v.res.Labels[0], v.res.Curves)
 		ch.Styles = reliability.Styles{Axis: st.Dim, Label: st.Label, Diagonal: st.Dim, Series: st.Series[:]}
 		lines = append(lines, strings.Split(ch.View(pw, ph), "\n")...)
 	}
 	lines = append(lines, v.vp.View())
 	return paneFrame(st, "Backtest — what this rule would have paid", true, v.w, v.h, strings.Join(lines, "\n"))
+}
+
+// corpTable lists each forecaster's CORP decomposition: for two outcomes
+// the rule's own effort on the first outcome, for more each outcome
+// against the rest under the squared error.
+func corpTable(r *BacktestResult) string {
+	var b strings.Builder
+	if len(r.Labels) == 2 {
+		fmt.Fprintf(&b, "CORP (PAV recalibration, event %q): effort = MCB - DSC + UNC\n", r.Labels[0])
+	} else {
+		b.WriteString("CORP per outcome against the rest, squared error: score = MCB - DSC + UNC\n")
+	}
+	tw := tabwriter.NewWriter(&b, 0, 4, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprint(tw, "forecaster\tevent\tscore\tMCB\tDSC\tUNC\t\n")
+	for _, f := range r.Result.Forecasters {
+		for k, d := range f.CORP[0] {
+			fmt.Fprintf(tw, "%s\t%s\t%.4g\t%.4g\t%.4g\t%.4g\t\n", f.Name, r.Labels[k], d.Score, d.Miscalibration, d.Discrimination, d.Uncertainty)
+		}
+	}
+	tw.Flush()
+	return b.String()
 }

@@ -160,7 +160,7 @@ func (p BudgetPane) Update(msg tea.Msg, d *design.Design) (BudgetPane, tea.Cmd, 
 		up := key.Matches(km, k.More) || key.Matches(km, k.MoreFine)
 		cur := f.get(&d.Budget)
 		var v float64
-		if f.label == "Step" && d.Mode == design.ModePoint && len(d.Interval) == 2 {
+		if f.label == "Step" && d.Mode.OnInterval() && len(d.Interval) == 2 {
 			// A point menu step is in the interval's units: hundredths of it.
 			s := (d.Interval[1] - d.Interval[0]) / 100
 			if !up {
@@ -199,7 +199,7 @@ func (p BudgetPane) Update(msg tea.Msg, d *design.Design) (BudgetPane, tea.Cmd, 
 
 // apply sets a field if the budget stays valid, saying why not otherwise.
 func (p *BudgetPane) apply(d *design.Design, f budgetField, v float64) bool {
-	if f.label == "Mean" && v > 0 && d.Mode == design.ModePoint {
+	if f.label == "Mean" && v > 0 && d.Mode.OnInterval() {
 		p.note = "point-forecast tables are fitted to a floor and a cap; a mean pay is for rules over outcomes"
 		return false
 	}
@@ -295,7 +295,7 @@ func (p BudgetPane) View(d *design.Design) string {
 		val := strconv.FormatFloat(f.get(&d.Budget), 'g', 6, 64)
 		help := f.help
 		switch {
-		case f.label == "Mean" && d.Mode == design.ModePoint:
+		case f.label == "Mean" && d.Mode.OnInterval():
 			val, help = "—", "point tables: floor and cap"
 		case f.label == "Mean" && d.Budget.MeanPay == nil:
 			val = "none"

@@ -109,7 +109,7 @@ func (p ChecksPane) View() string {
 		if strings.Contains(verdict, "improper") || !allPassed(r) {
 			vs = st.Fail
 		}
-		head := "Verdict " + vs.Render(verdict)
+		head := "Verdict " + vs.Render(verdict) + st.Dim.Render(" (grid evidence)")
 		if p.stale {
 			head = st.Dim.Render("previous design's verdict: " + verdict)
 		}
@@ -144,6 +144,7 @@ func (p ChecksPane) View() string {
 			lines = append(lines, st.Dim.Render(n))
 		}
 		lines = append(lines, st.Dim.Render("A grid check is evidence, not proof."))
+		lines = append(lines, certificateLines(st, r.Certificate)...)
 	} else if !p.running && p.err == nil && p.blocked == "" && !p.waiting {
 		lines = append(lines, st.Dim.Render("no checks run yet"))
 	}

@@ -1,11 +1,9 @@
 package tui
 
 import (
-	"fmt"
-
+	"scorewright"
 	"scorewright/generator/bregman"
 	"scorewright/generator/design"
-	"scorewright/generator/emphasis"
 	"scorewright/generator/formula"
 	"scorewright/generator/point"
 	"scorewright/verify/pointcheck"
@@ -18,17 +16,13 @@ func onInterval(d *design.Design) bool {
 	return d.Mode.OnInterval()
 }
 
-// pointScope is the formula scope of a point-forecast payout: the report
-// x and the outcome y, as verify/pointcheck compiles it.
-func pointScope(d *design.Design) formula.Scope {
-	return formula.Scope{Vars: []string{"x", "y"}, Params: d.Params}
-}
-
 // compiled is a design turned into something that can be evaluated: a
 // Bregman rule in generator mode, one payout program per outcome in
-// payout mode.
+// payout mode. It is built from scorewright.Open, the one place a
+// design's mode is switched on.
 type compiled struct {
 	d     *design.Design // a private copy
+	open  *scorewright.Rule
 	rule  *bregman.Rule
 	point *point.Generator
 	// pointPay is a point-forecast payout pay(x, y) under audit, and
@@ -41,85 +35,31 @@ type compiled struct {
 	err       error
 }
 
-// designRule builds the Bregman rule of a generator or emphasis design;
-// warnings are remarks to show beside it (an emphasis weight that makes
-// the rule unbounded, say).
-func designRule(d *design.Design) (r *bregman.Rule, params []formula.ParamValue, warnings []string, err error) {
-	switch d.Mode {
-	case design.ModeGenerator, "":
-		r, err = d.Rule()
-		if err != nil {
-			return nil, nil, nil, err
-		}
-		if f, ok := r.Gen.(*bregman.Formula); ok {
-			params = f.Program().Params()
-		}
-		return r, params, nil, nil
-	case design.ModeEmphasis:
-		if d.N() != 2 {
-			return nil, nil, nil, fmt.Errorf("an emphasis weight designs rules for 2 outcomes; the design has %d", d.N())
-		}
-		g, err := emphasis.New(d.Formula, emphasis.Options{Params: d.Params})
-		if err != nil {
-			return nil, nil, nil, err
-		}
-		if err := g.Diagnostics().Problem(); err != nil {
-			return nil, nil, nil, err
-		}
-		return &bregman.Rule{Gen: g, Labels: d.Labels}, g.Program().Params(), g.Diagnostics().Warnings(), nil
+// designRule builds the Bregman rule of a generator or emphasis design.
+func designRule(d *design.Design) (*bregman.Rule, error) {
+	r, err := scorewright.Open(d)
+	if err != nil {
+		return nil, err
 	}
-	return nil, nil, nil, fmt.Errorf("a %s design has no rule over outcomes", d.Mode)
+	return r.OverOutcomes()
 }
 
 // compileDesign compiles a copy of d. It never panics; trouble is in err.
 func compileDesign(d *design.Design) *compiled {
 	c := &compiled{d: d}
-	switch d.Mode {
-	case design.ModeGenerator, design.ModeEmphasis, "":
-		c.rule, c.params, c.warnings, c.err = designRule(d)
-	case design.ModePoint:
-		if len(d.Interval) != 2 || !(d.Interval[0] < d.Interval[1]) {
-			c.err = fmt.Errorf("a point-forecast design needs an interval lo < hi (Interval row)")
-			return c
-		}
-		g, err := point.New(d.Formula, d.Interval[0], d.Interval[1], point.Options{Params: d.Params})
-		if err != nil {
-			c.err = err
-			return c
-		}
-		c.point, c.params = g, g.Program().Params()
-	case design.ModePointPayout:
-		{
-			if !(d.Interval[0] < d.Interval[1]) {
-				c.err = fmt.Errorf("a point-forecast payout needs an interval lo < hi (Interval row)")
-				return c
-			}
-			prog, err := formula.CompileString(d.Formula, pointScope(d))
-			if err == nil {
-				c.pointPay, err = pointcheck.NewPayout(d.Formula, d.Params)
-			}
-			if err != nil {
-				c.err = err
-				return c
-			}
-			c.pointProg, c.params = prog, prog.Params()
-			return c
-		}
-	case design.ModePayout:
-		for y := 1; y <= d.N(); y++ {
-			prog, err := formula.CompileString(d.Formula, formula.Scope{
-				Outcomes: d.N(), Ordered: d.Ordered, Weights: d.Weights, Params: d.Params, Payout: true, Outcome: y,
-			})
-			if err != nil {
-				c.err = err
-				return c
-			}
-			c.payout = append(c.payout, prog)
-		}
-		c.params = c.payout[0].Params()
-	default:
-		c.err = fmt.Errorf("mode %q is not one the workbench knows", d.Mode)
+	r, err := scorewright.Open(d)
+	if err != nil {
+		c.err = err
+		return c
 	}
+	c.open, c.rule, c.point = r, r.Outcomes(), r.Point()
+	c.pointPay, c.pointProg = r.PointPayout()
+	if p := r.Payout(); p != nil {
+		for y := 1; y <= p.Outcomes(); y++ {
+			c.payout = append(c.payout, p.Program(y))
+		}
+	}
+	c.params, c.warnings = r.Params(), r.Warnings()
 	return c
 }
 

@@ -51,6 +51,9 @@ func cloneDesign(d *design.Design) *design.Design { return d.Clone() }
 // prepareDesign fills in what a design file may leave out: the formula of
 // a named preset.
 func prepareDesign(d *design.Design) error {
+	// A preset name over a formula of the design's own is dropped, as on
+	// the command line: exports must name the rule computed.
+	presets.Settle(d)
 	if strings.TrimSpace(d.Formula) == "" && d.Preset != "" {
 		return presets.Apply(d)
 	}

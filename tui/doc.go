@@ -14,4 +14,136 @@
 //
 // Settings, styles and the key map are passed to the panes explicitly;
 // the package keeps no mutable state of its own.
+//
+// # Internals: how the workbench is built
+//
+// `scorewright` opens `tui.New(design, path, tui.Settings{...}, tui.NewStyles(renderer))` on the
+// frost-night demo (`tui.DemoFrost`; `ctrl+n` cycles to `tui.DemoHarvest`, the ordered three-way
+// harvest outlook); `scorewright open FILE` loads and validates a design first
+// (`design.Load`, then `tui.PrepareDesign` fills a preset's formula).
+//
+// Shape (style.md 8–10): the root `Model` owns the design, the layout and the global keys; the
+// panes (`DesignPane`, `PicturePane`, `ChecksPane`, `BudgetPane`) own their frames and expose
+// `SetSize`, `Focus`/`Blur`, `KeyHelp`; their `Update` returns their own type (and whether the
+// design changed). Settings, styles and key map are passed in; nothing global. `Update` only
+// routes: compiling (`compileCmd`), drawing (`renderPicture`), checking (`checkCmd`, a stream
+// of progress messages), fitting (`fitCmd`) and file work run in commands. Every answer carries
+// the design's generation number; check answers also carry a run id, and the run's context is
+// cancelled the moment the design changes. Checks and fit start after a debounce
+// (`Settings.Debounce`, 400 ms). Engine parts plug in through `Settings.Checker`, `Fitter` and
+// `Exporter` (defaults: `verify.CheckRule` / `verify.Audit`, `budget.FitRule` + `Recheck`,
+// `contract/table` writers; `Exporter.Export(ctx, d, ExportRequest{Format, Path, Overwrite})`); tests substitute their own.
+//
+// Modes (←/→ on the Mode row): generator (H over p1..pn), payout audit (`verify.Audit`, the
+// payout compared with the generator presets to name it), emphasis (n = 2, a weight w(c) through
+// `generator/emphasis`; its warnings show under the formula) and point forecast of a mean (an
+// interval row replaces the outcomes; `generator/point` and `verify/pointcheck`; the table is the point
+// table: the budget pane shows its re-check verdict and margin (`point.Table.Recheck`, exact on the
+// rounded table, the verdict's wording in the notes), and it exports through contract/table in
+// every format; a table that fails the re-check is refused, with nothing written, exactly as for
+// tables over outcomes and as `scorewright table` without `--force`) and, after it on the mode row,
+// point payout audit: a payout pay(x, y) in the report x and the outcome y on the interval, audited
+// with `verify/pointcheck.AuditPayout` and the point presets as candidates, as `scorewright audit
+// --interval` does (`auditPointPayout` in `tui/engine.go`; the checks pane shows its checks, the
+// identification as Shift − Scale·D of a preset, and the honesty gap with the distribution, mean
+// and best report where it is largest; the picture draws pay(x, y) against x for three outcomes).
+// It is stored as payout mode with an interval (`onInterval(d)`; the outcome labels stay in the
+// file, unused), so a saved audit opens again as one; a payout over outcomes has no interval
+// (the design pane keeps it aside). Each mode remembers its last formula, and the menu step is
+// kept apart for point and outcome designs. `q` and `ctrl+n` act on the second press when the
+// design has unsaved changes; opening a file says so too.
+//
+// Backtest (`tui/backtest.go`): `ctrl+b` asks for a forecast-history CSV (columns forecaster,
+// question, outcome, then the design's outcome labels; the frost demo's labels are those of
+// `testdata/histories/orchard-frost.csv`) and opens the backtest view, which replaces the
+// four panes until `esc` or `ctrl+b`. `backtestCmd` opens the file and reads its header (a header
+// that does not fit, or a missing file, stays in the dialog with the reason), then fits the design
+// to its budget on its step menu with `contract/backtest/tablepay` — the fit `scorewright
+// backtest` uses, shared — and streams the rows through `backtest.Run` with progress by bytes
+// read. The view shows the reliability picture for n = 2 (`tui/reliability`, bins of tenths,
+// `backtest.ReliabilityCurves`), count, total and mean pay, rank, and the decomposition per
+// forecaster, the skipped-row count with the first three reasons, and the command's notes (off-menu
+// forecasts, a failing re-check, thin bins); for n ≠ 2 it says there is no picture and shows the
+// rest. Runs carry a run id and the generation; an edit cancels the running backtest, marks the
+// result "previous design", and the loaded history is replayed again after the debounce. `x` stops
+// a run (its late answers are dropped) and nothing reruns until the next edit.
+//
+// Risk attitude (`tui/risk.go`, `tui/riskchart.go`): `ctrl+r` opens the risk view, which replaces
+// the panes as the backtest view does (the two are never open together). Its inputs (`RiskInputs`,
+// ↑/↓ choose, ←/→ step, shift a tenth): utility family CRRA or CARA, its coefficient (CRRA in
+// halves; CARA in steps of 1/(2·range) rounded to 1, 2 or 5, range = cap (or mean pay) − floor,
+// because absolute risk aversion is per unit of money; 0 is the linear utility), initial wealth
+// (default one range, so CRRA's final wealth stays positive; steps of a tenth of the range; it
+// follows the budget until the user steps it) and the belief shown in detail (n = 2 the event
+// probability by 0.05; n > 2 the uniform belief and the curve's beliefs in turn). `riskCmd` fits
+// the design with `contract/risk/riskfit` — the fit, contract, default belief and curve beliefs
+// of `scorewright distort`, moved there from the command — then solves `Best` for the belief, the
+// menu pick (`BestOf` on the rounded table) and `Distortion` over the curve with progress. Runs
+// carry a run id; a changed input or an edit cancels the running one and its late answers are
+// dropped; the edit reruns after the debounce. n = 2 draws best report against belief beside the
+// dotted diagonal (ntcharts, ticks every 0.2, axis names, legend, the chosen belief ◆); n > 2 a
+// table of the distortion at each tenth of the way toward each outcome. Under both: the largest
+// distortion and where, the chosen belief's best report against the truthful one, expected pay,
+// and the lottery note (ctrl+l in the export dialog). Payout and point designs are refused with
+// the reason; an unbounded rule asks for a report floor in the design file.
+//
+// Budget pane fields: Floor, Cap, Mean, Step, Unit. Mean is a mean-pay budget (`Budget.MeanPay`:
+// the expected pay of a truthful forecaster at the reference belief, uniform unless the design
+// file names one; it replaces the cap, whose row then says it is not used): → from "none" starts at
+// three quarters of the way from floor to cap, ← below the floor or typing 0 clears it. Point
+// designs refuse it (their tables are fitted to a floor and a cap).
+//
+// Layout: below 120×40 the design pane fills the left half, the picture sits top right over
+// whichever of checks and budget was focused last; from 120×40 all four panes show. Below 80×24
+// the screen says how big it must be. Pictures: n = 2 effort (or fitted pay) per outcome,
+// generator, emphasis weight −H″, honesty gap (ntcharts line chart, one marker rune per series
+// so it reads without colour); n = 3 a ternary shading (our own drawing — no library draws a
+// simplex) of the honesty gap by belief or the loss by report for a chosen belief; n > 3 slices
+// along a pair of outcomes. The picture's gap is searched on a 1/40 report grid: it is a drawing,
+// the verdict is the checks pane's.
+//
+// Key map (ours; printable keys are text while an input has focus):
+//
+//	| key | where | does |
+//	|---|---|---|
+//	| ctrl+c | anywhere | quit |
+//	| q | not typing | quit |
+//	| ? / F1 | anywhere (F1 also while typing) | help overlay listing every key |
+//	| tab / shift+tab | anywhere | next / previous pane (leaves the formula) |
+//	| ctrl+s / ctrl+o / ctrl+x | anywhere | save design (TOML) / open design / export the table |
+//	| ctrl+n | not typing (there it is the editor's next line) | next demo design |
+//	| ctrl+b | anywhere | backtest view: ask for a history the first time, then open / close the view |
+//	| l / x | backtest view | load another history / stop the running backtest |
+//	| ctrl+r | anywhere | risk attitude view: open / close |
+//	| ↑ ↓, ← → (shift: small), esc | risk view | choose an input (utility, coefficient, wealth, belief), step it; back to the panes |
+//	| ↑ ↓ pgup pgdn, esc | backtest view | scroll the results; back to the panes |
+//	| ↑ ↓ | design, budget | select an item |
+//	| enter | design, budget | edit the item: formula, labels, a value; open the preset picker |
+//	| esc | editing | stop editing / close |
+//	| ← → (shift: small) | design, budget | step a parameter (0.1 / 0.01) or budget field; cycle the mode |
+//	| space | design | toggle ordered outcomes |
+//	| + / - | design | add / remove an outcome |
+//	| m | picture | next measure |
+//	| [ ] | picture | move the chosen belief (n = 2 and point: the mark; n = 3 belief; n > 3 slice base) |
+//	| p | picture | n = 3: outcome the belief moves toward; n > 3: next pair |
+//	| r | checks | run the checks again now |
+//	| pgup / pgdn | budget | scroll the payment table |
+//	| tab, enter, esc, y / n | dialogs | change format, confirm, cancel, replace a file or not |
+//	| ctrl+l | export dialog | pay money or a chance of winning one prize (`contract/lottery`, as `table --lottery`; the gambling caution shows in the dialog and goes into the file) |
+//
+// Tests: `go test ./tui` — golden views in `tui/testdata` at 80×24 and 120×40 (colour profile
+// pinned to ASCII; regenerate with `go test ./tui -update`), key-routing tests, random key
+// sequences that must keep every frame whole, a stale-run test, a test that Update keeps
+// answering while a check is held open, and a teatest session with the real engine (edit, error,
+// fix, checks pass, budget, CSV export, save, quit). `tui/backtest_test.go`: the frost sample
+// paid as the command pays it (totals checked against `scorewright backtest`), the harvest sample
+// without a picture, a header that does not fit, an edit rerunning and a stale answer dropped, `x`
+// stopping a run, golden backtest views, and a teatest flow (load the frost history, wait for the
+// picture, quit). `tui/risk_test.go`: the frost demo under CRRA 2 against `scorewright distort`
+// with the same inputs (largest 9.52 points at belief 0.14), coefficient 0 showing none, shading
+// toward 1/2 at every belief, a CARA best report against the first-order condition derived by
+// hand, the harvest table, an edit and a replaced run, golden risk views, and a teatest flow
+// (open, CRRA 2, wait for the curve, coefficient 0, quit). `.ci/e2e-tui.sh` drives the real binary in tmux, including loading the frost
+// history and waiting for the reliability picture. `go test ./tui -run '^$' -bench 'Update|View'` measures Update while a check runs, Update
+// for a typed key, and drawing the screen.
 package tui

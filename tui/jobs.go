@@ -21,6 +21,9 @@ type CheckReport struct {
 	Tolerance  float64
 	Rows       []CheckRow
 	Notes      []string
+	// Certificate is what the interval certificate proved; nil when none
+	// was run.
+	Certificate *CertificateView
 }
 
 // CheckRow is one check: pass or fail and its worst witness.

@@ -30,7 +30,7 @@ func TestPointPayoutAudit(t *testing.T) {
 		t.Fatalf("report %+v:\n%s", r, m.View())
 	}
 	v := m.View()
-	for _, want := range []string{"point payout audit", "[0, 100]", "identified: pay = 50 - 0.005 × D(y, x), preset squared-error", "pay(x, y)"} {
+	for _, want := range []string{"point payout audit", "[0, 100]", "identified: 50 - 0.005 * (effort of preset squared-error)", "pay(x, y)"} {
 		if !strings.Contains(v, want) {
 			t.Errorf("view lacks %q:\n%s", want, v)
 		}

@@ -5,7 +5,11 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"os"
+	"path/filepath"
 	"strings"
+
+	"scorewright"
 
 	"github.com/charmbracelet/bubbles/key"
 	tea "github.com/charmbracelet/bubbletea"
@@ -30,9 +34,12 @@ const (
 
 // ResearchInputs are what the research view's keys adjust.
 type ResearchInputs struct {
-	// Signal chooses a signal of stated accuracy instead of a Dirichlet
-	// posterior; Kappa and Accuracy are their strengths.
-	Signal   bool
+	// Kind is the research model: "" (a Dirichlet posterior), "signal"
+	// (one signal of stated accuracy) or "history" (the spread of the
+	// forecasts in History, the history the backtest view loaded); Kappa
+	// and Accuracy are the first two's strengths.
+	Kind     string
+	History  string
 	Kappa    float64
 	Accuracy float64
 	// Base is the base rate's event probability for n = 2 (0: the
@@ -101,16 +108,21 @@ func researchCmd(ctx context.Context, run uint64, d *design.Design, in ResearchI
 
 // researchRun is the work of researchCmd.
 func researchRun(ctx context.Context, d *design.Design, in ResearchInputs, progress func(string, int, int)) (*study.Report, error) {
-	if d.Mode != design.ModeGenerator && d.Mode != design.ModeEmphasis && d.Mode != "" {
+	rule, err := designRule(d)
+	var needs *scorewright.NeedsOutcomesError
+	if errors.As(err, &needs) {
 		return nil, fmt.Errorf("the research view works on rules over outcomes (generator or emphasis designs); this is a %s design", modeName(d))
-	}
-	rule, _, _, err := designRule(d)
-	if err != nil {
+	} else if err != nil {
 		return nil, err
 	}
 	q0 := in.baseRate(d)
 	var model *research.Posterior
-	if in.Signal {
+	switch in.Kind {
+	case "history":
+		if model, err = historyModel(in.History, d.Labels); err != nil {
+			return nil, err
+		}
+	case "signal":
 		c, err := research.Accuracy(d.N(), in.Accuracy)
 		if err != nil {
 			return nil, err
@@ -119,8 +131,10 @@ func researchRun(ctx context.Context, d *design.Design, in ResearchInputs, progr
 		if err != nil {
 			return nil, err
 		}
-	} else if model, err = research.Dirichlet(q0, in.Kappa, research.Quadrature{}); err != nil {
-		return nil, err
+	default:
+		if model, err = research.Dirichlet(q0, in.Kappa, research.Quadrature{}); err != nil {
+			return nil, err
+		}
 	}
 	name := "this design"
 	if d.Preset != "" {
@@ -212,6 +226,21 @@ func (r *ResearchRoom) Toggle(ctx context.Context, d *design.Design, gen uint64,
 	}
 	r.shown = true
 	return r.Maybe(ctx, d, gen, ready)
+}
+
+// SetHistory gives the view the forecast history the backtest view
+// loaded, which the model input then offers as a third research model.
+func (r *ResearchRoom) SetHistory(path string) { r.in.History = path }
+
+// historyModel reads the spread of a history's forecasts for labels.
+func historyModel(path string, labels []string) (*research.Posterior, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, err
+	}
+	defer f.Close()
+	p, _, err := research.History(f, labels)
+	return p, err
 }
 
 // Edited tells the view the design changed: the running study is
@@ -310,9 +339,22 @@ func researchStep(in *ResearchInputs, f researchField, d *design.Design, up, fin
 	old := *in
 	switch f {
 	case researchModel:
-		in.Signal = !in.Signal
+		kinds := []string{"", "signal"}
+		if in.History != "" {
+			kinds = append(kinds, "history")
+		}
+		i := 0
+		for j, k := range kinds {
+			if k == in.Kind {
+				i = j
+			}
+		}
+		in.Kind = kinds[(i+len(kinds)+int(sign(up)))%len(kinds)]
 	case researchStrength:
-		if in.Signal {
+		if in.Kind == "history" {
+			return false
+		}
+		if in.Kind == "signal" {
 			step := 0.05
 			if fine {
 				step = 0.01
@@ -323,7 +365,7 @@ func researchStep(in *ResearchInputs, f researchField, d *design.Design, up, fin
 			in.Kappa = stepList(researchKappas, in.Kappa, up)
 		}
 	case researchBase:
-		if n != 2 {
+		if n != 2 || in.Kind == "history" {
 			return false
 		}
 		b := in.Base
@@ -387,12 +429,19 @@ func clampIndex(i, n int) int { return min(max(i, 0), n-1) }
 func (r *ResearchRoom) inputsLine(d *design.Design) []string {
 	in := r.in
 	model, strength := "Dirichlet", fmt.Sprintf("kappa %g", in.Kappa)
-	if in.Signal {
-		model, strength = "signal", fmt.Sprintf("accuracy %g", in.Accuracy)
-	}
 	base := "base rate " + formatBelief(in.baseRate(d))
 	if d.N() != 2 {
 		base += " (the design's)"
+	}
+	switch in.Kind {
+	case "signal":
+		model, strength = "signal", fmt.Sprintf("accuracy %g", in.Accuracy)
+	case "history":
+		model, strength = "history", filepath.Base(in.History)
+		base = "base rate: the mean forecast"
+		if r := r.res; r != nil && len(r.Prior) == d.N() {
+			base += " " + formatBelief(r.Prior)
+		}
 	}
 	cost := "observations: off"
 	if d.N() == 2 && in.Cost > 0 {

@@ -1,7 +1,10 @@
 package tui
 
 import (
+	"io"
 	"math"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 	"time"
@@ -11,6 +14,7 @@ import (
 	"github.com/charmbracelet/x/exp/golden"
 	"github.com/charmbracelet/x/exp/teatest"
 
+	"scorewright/contract/backtest/history"
 	"scorewright/contract/research/study"
 	"scorewright/generator/design"
 )
@@ -181,4 +185,55 @@ func goldenResearch(t *testing.T, d *design.Design, w, h int) {
 	start(t, m, w, h)
 	openResearch(t, m)
 	golden.RequireEqual(t, []byte(m.View()))
+}
+
+// With the frost history loaded (as the backtest view loads it) the model
+// input offers the spread of its forecasts. Under the quadratic rule paid
+// 40 - 20·L the gain is 20·2·Var(forecast) (derived by hand: D = 2(q - q̄)²
+// and the base rate is the mean forecast), the variance computed here
+// straight from the file's valid rows.
+func TestResearchHistoryModel(t *testing.T) {
+	path := filepath.Join("..", "testdata", "histories", "orchard-frost.csv")
+	f, err := os.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	h, err := history.NewReader(f, []string{"frost", "clear"}, history.Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var xs []float64
+	for {
+		r, err := h.Next()
+		if err == io.EOF {
+			break
+		}
+		if err == nil {
+			xs = append(xs, r.P[0])
+		}
+	}
+	mean := 0.0
+	for _, x := range xs {
+		mean += x / float64(len(xs))
+	}
+	v := 0.0
+	for _, x := range xs {
+		v += (x - mean) * (x - mean) / float64(len(xs))
+	}
+	m := testModel(t, nil, Settings{})
+	start(t, m, 80, 24)
+	m.research.SetHistory(path)
+	openResearch(t, m)
+	press(t, m, keyLeft) // Dirichlet -> history (backwards through the list)
+	if in := m.research.Inputs(); in.Kind != "history" {
+		t.Fatalf("model %q, want history", in.Kind)
+	}
+	rep := m.research.Result()
+	if g := row(t, rep, "power (design)").Gain.PerForecast; math.Abs(g-40*v) > 1e-9 {
+		t.Errorf("history gain %v, want 40·Var = %v (%d forecasts)", g, 40*v, len(xs))
+	}
+	if v := m.View(); !strings.Contains(v, "model history") || !strings.Contains(v, "orchard-frost.csv") {
+		t.Errorf("view:\n%s", m.View())
+	}
 }

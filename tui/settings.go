@@ -18,6 +18,9 @@ type Settings struct {
 	Tolerance  float64
 	// Workers is how many goroutines a check may use (0: all cores).
 	Workers int
+	// CertifyDeadline bounds the interval certificate run after the grid
+	// checks (0: 3 s; negative: no certificate).
+	CertifyDeadline time.Duration
 	// Checker runs the checks; nil means the build's default, which may be
 	// none (the checks pane then says so).
 	Checker Checker

@@ -114,7 +114,12 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	if err != nil {
 		return nil, err
 	}
-	label := func(k int) string { return fmt.Sprint(k + 1) }
+	label := func(k int) string {
+		if len(s.Labels) == n {
+			return s.Labels[k]
+		}
+		return fmt.Sprint(k + 1)
+	}
 	bounded := boundedness(g, pays, s.Limit, label, "payment", -1)
 	rep.Grid.Scale, rep.Grid.Rounding = scaleOf(pays)
 	s.Tolerance = rep.Grid.Slack()

@@ -16,4 +16,110 @@
 //
 // verify does not know the preset library; Audit takes the candidate rules
 // to identify a payout against as a parameter.
+//
+// # Internals: how a check and an audit run
+//
+// Packages: `verify` (CheckRule, Audit, the report types), `internal/simplex` (lattice grids,
+// samples, the squares map used by the optimiser) and `generator/payout` (payout formulas).
+// `verify/pointcheck` belongs to the point-forecast part. `verify` never imports `presets`: Audit takes
+// its candidate rules as `[]verify.Candidate` (Name, Rule, and for a family Param, Value, Lo, Hi,
+// At); the command and the workbench build them with `presets.Rules`, whose `NamedRule` has the
+// same fields, so `verify.Candidate(r)` converts.
+//
+//	rep, err := verify.CheckRule(ctx, rule, verify.Settings{Resolution: 200, Progress: fn})
+//	a, err := verify.Audit(ctx, pay, cands, verify.Settings{})   // pay from payout.New(src, opts)
+//
+// How a check runs:
+//
+//  1. Grid. Every lattice point of resolution K (`simplex.Full`, C(K+n-1, n-1) points) while that
+//     is at most `Settings.MaxPoints` (25,000); above it `simplex.Sample`: the vertices plus
+//     `Samples` distinct lattice points from a flat Dirichlet, a quarter of them on random faces.
+//     Defaults per n: `DefaultResolution` (1000, 100, 30, 16, 12 for n = 2..6, then a sampled 10n).
+//  2. Menu. L(p, k) and H(p) for every grid report, once: G×n floats (`menu`). The beliefs are the
+//     same points. Rows with NaN (or both +Inf and −Inf) are set to +Inf for the stream and
+//     reported by boundedness.
+//  3. Stream. Every belief row against every report row (`stream`, `scan2..4`, generic `scan`):
+//     n multiply-adds and one compare per pair, four reports per step, best and second best kept.
+//     No G² memory, nothing allocated, one belief row per work item, so cancellation is seen
+//     within G pairs. Beliefs with zero coordinates use `menu.safe` (±Inf replaced by ±1e300, exact
+//     in order because 0 × 1e300 = 0; winners' values recomputed with 0·Inf = 0), or
+//     `scanSupport` when a finite effort is too large for that.
+//  4. Reductions. T is `Grid.Slack()`: `Tolerance` × `Grid.Scale`, the scale being the spread
+//     of the finite efforts or payments on the grid (largest − smallest; 1 when they are all
+//     equal), but at least `Grid.Rounding` = 2·n·ε × the largest finite |value|. So the rule in
+//     millionths and in millions, or with 1e12 added, gets the same verdict (a spread-free
+//     max(1, |value|) scale once called `1e-12*p[y]` proper). Concavity uses Tolerance × Scale
+//     alone (curvature does not see an added constant). properness: gap = Phi(q, q) − min_p
+//     Phi(q, p) from L, must be ≤ T; strict when
+//     every other report is worse by more than `StrictFloor`·(Scale + |Phi(q,q)|) (a rounding floor,
+//     1e-13, deliberately far below T: near a vertex the closest grid report of a strictly proper
+//     rule can be worse by only ~K⁻³). nonnegativity: min_p Phi(q, p) − H(q) ≥ −T. concavity:
+//     largest eigenvalue of Uᵀ∇²H U (U a Helmert basis of {v : Σv = 0}, gonum `mat.EigenSym`) ≤ T
+//     at every grid point and at max(G, 10000) random interior points (flat Dirichlet, `Seed`):
+//     a non-concave band narrower than a grid step is invisible to every grid check, and when
+//     only the random points see it the note says so and asks for a finer resolution; and a
+//     midpoint test H((a+b)/2) ≥ (H(a)+H(b))/2 − T on 16,000 segments (half between random grid
+//     points, half a few grid steps long) for the convex kinks and upward jumps of `if`, `max`
+//     and `abs` that no Hessian sees (its Worst is the implied curvature 8·deficit/|b−a|²),
+//     strict when < −T at every interior point; a non-finite Hessian on the boundary (log) is
+//     counted and left to the pair checks, in the interior it fails. affinity: midpoint tests of
+//     Phi in q on sampled triples (relative deviation, against `Tolerance` itself). boundedness:
+//     per outcome finite range; +Inf effort at a report that gives the outcome probability 0 is
+//     reported ("unbounded on the boundary"), not failed; NaN, infinity in the interior, −Inf
+//     effort (an infinite payment) and `Limit` fail.
+//  5. Witnesses. Failing concavity, properness and nonnegativity checks (and an audit's gap)
+//     are sharpened from the grid witness by Nelder–Mead (gonum `optimize`) in the squares
+//     parametrisation p = θ²/|θ|² (reaches faces exactly), confined to the witness's grid cell (half a step each way; unconfined on sampled grids) so
+//     that an amount unbounded near a face does not drag the witness onto it;
+//     a run counts only when `result.Status` is a convergence or budget status, and a sharpened
+//     witness replaces the grid one only if it is worse. On sampled grids Nelder–Mead also
+//     searches reports for 200 spread beliefs. Affinity and boundedness keep their grid
+//     witnesses.
+//  6. Verdict: improper when concavity, properness, nonnegativity or affinity fails; else
+//     strictly-proper when properness is strict and concavity strict (curvature below −T at every
+//     interior grid and random point: a flat piece narrower than a grid step leaves ties no grid
+//     pair shows); else proper, with a note when only the curvature withholds strictness. Each check carries `Interior` and
+//     `Boundary` parts (by the belief; by the report for boundedness).
+//
+// Audit runs the same stream on −pay, then pits every grid belief against max(G, 10000) random
+// reports, a quarter of them on faces (a payout can hide a jackpot on a band of reports between
+// the grid points; only a gain beyond the grid's best by more than T counts, not a tie),
+// refines the best report of the 300 worst beliefs by
+// Nelder–Mead, searches 200 spread beliefs off the grid, sharpens the largest gap jointly over
+// (belief, report), classifies n = 2 misreports (exaggerates / hedges / flips / mixed), keeps
+// V(q) = Σ q_k pay(q, k) per belief (`Beliefs[i].Honest`, the implied expected pay), and fits
+// pay ≈ shift − scale·L for every candidate by least squares (gonum `stat.LinearRegression`)
+// over finite (report, outcome) pairs; accepted when the relative residual is below 1e-6, the
+// scale is positive and the infinities coincide; never for an improper payout (an affine image
+// of a proper rule is proper, so such a fit only says the two agree on the grid). Accepted fits keep the candidates' order (the
+// quadratic and power-3 rules coincide up to scale for n = 2).
+//
+// Fitted parameters (`verify/identify.go`). A candidate with `At` is a one-parameter family: the
+// power rule's g over [0.1, 10] and the pseudospherical a over [1.05, 10] (`Preset.Fit`; g = 1, the
+// log limit, is undefined as written and simply scores +Inf). Per family, on at most 400 grid
+// reports (every k-th), `fitParam` minimises first the count of report–outcome pairs whose
+// infinities differ, then the relative residual (at most 1 with a fitted shift), over the
+// parameter: 33 values spread geometrically over the range plus the default, then Nelder–Mead in
+// that coordinate from the best (the existing `minimise`, gonum `optimize`, ≤ 100 evaluations;
+// derivative-free because the engine has no derivative in a parameter and takes no finite
+// differences). The refined value is kept only for a convergence or budget status, else the
+// scan's best, and `Identification.Status` says which. The chosen member is then fitted on every
+// grid report and judged by the same rule as a fixed one (residual < 1e-6, positive scale,
+// matching infinities); `Identification.Param`/`Value` carry it, `WithParam()` phrases it, the
+// JSON has `identified.params: {"g": 1.5}`. It finds g and a to about 1e-14 for n = 2..6 (g from
+// 0.5 to 8, a from 1.2 to 8) and adds about 50–90 ms to a default audit (two families, 2 cores).
+// Note the power preset's normalisation: its score is (S − 1)/(g − 1) with S Gneiting & Raftery's
+// power score, so 5 + 2S is identified with scale 2(g − 1) and shift 7. A log payout also fits
+// power with g ≈ 1 (the limit), which the "also fits" note says.
+//
+// Progress: one goroutine calls `Settings.Progress` about ten times a second (never
+// concurrently) and once with done = total at the end. The command prints it on stderr only
+// when stderr is a terminal; Ctrl-C cancels through the context.
+//
+// Tests (`verify/verify_test.go`): the hand-derived values are in comments beside each case
+// (linear payout gap 1/8 at (3/4, 1/4) and 1/6 for n = 3; h = p² − 4(p − ½)⁴ not concave on
+// (0.2959, 0.7041); the flat piece of min(p1 p2, 0.16) on [0.2, 0.8]; 7 − 3L identified;
+// power-3 flat on the boundary). Kernel tests compare the unrolled loops and the substituted
+// rows with the obvious loops, and check zero allocation. `.ci/e2e-verify.sh` runs both
+// commands as a user would and checks exit statuses and the JSON fields of the contract.
 package verify

@@ -31,6 +31,9 @@ type Settings struct {
 	Samples int
 	// Seed fixes the random sample and the affinity test pairs.
 	Seed uint64
+	// Labels name the outcomes in findings ("frost: [0, 1]"); nil means
+	// 1..n. Only an audit reads them: a generator's rule names its own.
+	Labels []string
 }
 
 // Defaults.

@@ -3,6 +3,8 @@ package main
 import (
 	"fmt"
 	"math"
+	"scorewright"
+	"strings"
 
 	"scorewright/generator/design"
 	"scorewright/internal/num"
@@ -14,9 +16,6 @@ type gapJSON struct {
 	Belief     []num.Float `json:"belief"`
 	BestReport []num.Float `json:"best_report"`
 	Sharpened  bool        `json:"sharpened,omitempty"`
-	// Precision says how far sharpening settled the gap (9 significant
-	// digits, or why not).
-	Precision string `json:"precision,omitempty"`
 }
 
 type identJSON struct {
@@ -88,12 +87,16 @@ func auditDesign(e *env, d *design.Design, vf *verifyFlags) error {
 	if err != nil {
 		return err
 	}
-	s, err := vf.settings(e)
+	if err := refuseCertifyOnInterval(r, vf.cert); err != nil {
+		return err
+	}
+	s, err := vf.settings(e, d.N())
 	if err != nil {
 		return err
 	}
 	ctx, stop := interruptible()
 	defer stop()
+	s.Labels = d.Labels
 	found, err := r.Audit(ctx, s)
 	switch {
 	case err != nil && ctx.Err() != nil:
@@ -104,14 +107,21 @@ func auditDesign(e *env, d *design.Design, vf *verifyFlags) error {
 		return printPointReport(e, found.Point, vf.asJSON)
 	}
 	rep := found.Audit
+	cert, proved, err := certificate(ctx, e, r, vf.cert)
+	if err != nil {
+		return err
+	}
 	if vf.asJSON {
-		if err := writeJSON(e.stdout, newAuditJSON(d.Formula, d.Labels, rep)); err != nil {
+		out := newAuditJSON(d.Formula, d.Labels, rep)
+		out.Certificate = cert
+		if err := writeJSON(e.stdout, out); err != nil {
 			return err
 		}
 	} else {
-		printAudit(e, d.Formula, d.Labels, rep)
+		printAudit(e, d.Formula, d.Labels, found)
+		printCertificate(e.stdout, cert)
 	}
-	if found.Failed() {
+	if found.Failed() || proved {
 		return errFailed
 	}
 	return nil
@@ -150,7 +160,7 @@ func payoutDesign(outcomes, src, weights string, ordered bool, params map[string
 // newAuditJSON is what audit --json prints for a payout over outcomes.
 func newAuditJSON(src string, labels []string, rep *verify.AuditReport) auditJSON {
 	out := auditJSON{reportJSON: toReportJSON(&rep.Report), Payout: src, Outcomes: labels, Direction: rep.Direction, Caution: auditCaution, Undefined: rep.Undefined,
-		Gap: gapJSON{Max: num.Float(rep.Gap.Max), Belief: vector(rep.Gap.Belief), BestReport: vector(rep.Gap.BestReport), Sharpened: rep.Gap.Sharpened, Precision: rep.Gap.Precision}}
+		Gap: gapJSON{Max: num.Float(rep.Gap.Max), Belief: vector(rep.Gap.Belief), BestReport: vector(rep.Gap.BestReport), Sharpened: rep.Gap.Sharpened}}
 	if id := rep.Identified; id != nil {
 		j := toIdentJSON(*id)
 		out.Identified = &j
@@ -161,26 +171,13 @@ func newAuditJSON(src string, labels []string, rep *verify.AuditReport) auditJSO
 	return out
 }
 
-func printAudit(e *env, src string, labels []string, rep *verify.AuditReport) {
-	w := e.stdout
-	fmt.Fprintf(w, "payout:  %q over %d outcomes (reward: more is better)\n", src, len(labels))
+func printAudit(e *env, src string, labels []string, found *scorewright.Findings) {
+	w, rep := e.stdout, found.Audit
+	fmt.Fprintf(w, "payout:  %q over %d outcomes (%s) (reward: more is better)\n", src, len(labels), strings.Join(labels, ", "))
 	printReport(w, &rep.Report)
 	fmt.Fprintln(w)
-	if rep.Gap.Max > rep.Grid.Slack() {
-		how := ""
-		if rep.Gap.Sharpened {
-			how = fmt.Sprintf(" (sharpened beyond the grid from %.6g)", rep.Gap.GridMax)
-		}
-		if b, r, ok := num.FormatApart(rep.Gap.Belief, rep.Gap.BestReport); ok {
-			fmt.Fprintf(w, "largest honesty gap: %.9g%s at belief %s, best report %s\n", rep.Gap.Max, how, b, r)
-		} else {
-			fmt.Fprintf(w, "largest honesty gap: %.9g%s at belief %s, at a report that cannot be told apart from it (no misreport is named)\n", rep.Gap.Max, how, b)
-		}
-		if rep.Gap.Precision != "" {
-			fmt.Fprintf(w, "                     %s\n", rep.Gap.Precision)
-		}
-	} else if rep.Gap.Max == rep.Gap.Max {
-		fmt.Fprintf(w, "largest honesty gap: %.3g (no grid belief gains from misreporting)\n", rep.Gap.Max)
+	if line := found.GapLine(); line != "" {
+		fmt.Fprintln(w, line)
 	}
 	switch {
 	case rep.Undefined == len(rep.Beliefs) && rep.Undefined > 0:
@@ -201,9 +198,8 @@ func printAudit(e *env, src string, labels []string, rep *verify.AuditReport) {
 			}
 		}
 	}
-	if id := rep.Identified; id != nil {
-		fmt.Fprintf(w, "identified: pay = %.6g + %.6g × score of preset %q%s, its score being -effort (relative residual %.2g)\n",
-			shown(id.Shift, id.Scale, id.Residual), id.Scale, id.Preset, id.WithParam(), id.Residual)
+	if line := found.IdentifiedLine(); line != "" {
+		fmt.Fprintln(w, line)
 	} else if len(rep.Fits) > 0 {
 		f := rep.Fits[0]
 		fmt.Fprintf(w, "not identified as a preset; closest %q%s: %s\n", f.Preset, f.WithParam(), f.Note)
@@ -228,14 +224,4 @@ func vector(v []float64) []num.Float {
 		return []num.Float{}
 	}
 	return num.Floats(v)
-}
-
-// shown is a fitted shift as a person should read it: a value that is zero
-// within the fit's own residual, relative to the scale, prints as 0 rather
-// than as rounding noise such as -8.6e-14. JSON keeps the fitted value.
-func shown(shift, scale, residual float64) float64 {
-	if math.Abs(shift) <= 10*math.Max(residual, 1e-12)*math.Max(1, math.Abs(scale)) {
-		return 0
-	}
-	return shift
 }

@@ -15,18 +15,19 @@ import (
 	"time"
 
 	"scorewright/contract/backtest"
+	"scorewright/contract/backtest/corp"
 	"scorewright/contract/backtest/figure"
 	"scorewright/contract/backtest/history"
+	"scorewright/contract/table"
 	"scorewright/generator/bregman"
 	"scorewright/generator/design"
-	"scorewright/internal/num"
 	"scorewright/internal/safefile"
 	"scorewright/tui/reliability"
 )
 
 const backtestUsage = ruleUsage + " " + budgetUsage + " [--menu FILE] [--clamp P] --history FILE.csv [--strict] [--tolerance T]" +
 	" [--versus-preset NAME | --versus-generator EXPR | --versus-design FILE] [--versus-param name=value]" +
-	" [--pay-out FILE.csv] [--by-question] [--figure FILE.svg|png|pdf] [--chart] [--force] [--progress] [--json]"
+	" [--sheet NAME] [--bin-width W] [--pay-out FILE.csv] [--forecasters-out FILE.csv] [--by-question] [--figure FILE.svg|png|pdf] [--chart] [--force] [--progress] [--json]"
 
 // money is how one rule turns effort into pay, as its fitted table does.
 type money struct {
@@ -79,16 +80,19 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 	fs := newFlags("backtest")
 	rf := addRuleFlags(fs)
 	bf := addBudgetFlags(fs)
-	historyPath := fs.String("history", "", "forecast history CSV: forecaster, question, outcome, one probability column per outcome ('-' reads stdin)")
+	historyPath := fs.String("history", "", "forecast history: .csv, .jsonl (JSON lines) or .xlsx; columns forecaster, question, outcome, optional date, one probability per outcome ('-' reads CSV from stdin)")
+	sheet := fs.String("sheet", "", "XLSX history: the sheet to read (default: the first)")
+	binWidth := fs.Float64("bin-width", 1.0/backtest.DefaultGrid, "width of the bins of the rule's own decomposition, 1/K for a whole K")
+	forecastersOut := fs.String("forecasters-out", "", "write every forecaster's line (totals, ranks, decomposition) to this CSV file; the report lists only the top and bottom ones when there are many")
 	strict := fs.Bool("strict", false, "stop at the first bad row (exit 2) instead of skipping it")
-	tol := fs.Float64("tolerance", history.DefaultTolerance, "how far from 1 a row's probabilities may sum")
+	tol := floatFlag(fs, "tolerance", history.DefaultTolerance, "how far from 1 a row's probabilities may sum")
 	vsPreset := fs.String("versus-preset", "", "second rule to compare with: a preset name")
 	vsGen := fs.String("versus-generator", "", "second rule to compare with: a generator formula")
 	vsDesign := fs.String("versus-design", "", "second rule to compare with: a design file (with its own budget, if it has one; else the first rule's)")
 	vsParams := paramFlag{}
 	fs.Var(vsParams, "versus-param", "parameter of the second rule's formula, name=value (repeatable)")
 	menuFile := fs.String("menu", "", "read the report menu from a CSV file, as the table command does (instead of --step)")
-	clamp := fs.Float64("clamp", 0, "pay every report as if each probability were at least P, as the table command does")
+	clamp := floatFlag(fs, "clamp", 0, "pay every report as if each probability were at least P, as the table command does")
 	payOut := fs.String("pay-out", "", "write every forecast's pay under each rule to this CSV file")
 	byQuestion := fs.Bool("by-question", false, "also total the pay per question (memory grows with the number of questions)")
 	figPath := fs.String("figure", "", "n = 2: write the reliability picture to FILE.svg, .png or .pdf")
@@ -107,6 +111,10 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 	}
 	if !(*tol > 0) || *tol >= 1 {
 		return usagef("--tolerance %g: want a number in (0, 1)", *tol)
+	}
+	grid, err := binGrid(*binWidth)
+	if err != nil {
+		return err
 	}
 	d1, err := rf.design()
 	if err != nil {
@@ -162,13 +170,22 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 			return err
 		}
 	}
+	if *forecastersOut != "" {
+		if err := refuseExisting(*forecastersOut, *force); err != nil {
+			return err
+		}
+	}
 
 	in, size, closeIn, err := openHistory(e, *historyPath)
 	if err != nil {
 		return err
 	}
 	defer closeIn()
-	h, err := history.NewReader(in, d1.Labels, history.Options{Tolerance: *tol})
+	format := history.FormatOf(*historyPath)
+	if *sheet != "" && format != history.XLSX {
+		return usagef("--sheet is for an .xlsx history")
+	}
+	h, err := history.Open(in, format, d1.Labels, history.Options{Tolerance: *tol, Sheet: *sheet})
 	if err != nil {
 		return usagef("%s: %v", *historyPath, err)
 	}
@@ -177,7 +194,7 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 	for i, s := range schemes {
 		bs[i] = backtest.Scheme{Name: s.id, Rule: s.rule, Pay: s.money.pay, OnMenu: s.money.onMenu, Low: s.money.low, High: s.money.high, Adjust: s.money.adjust, Record: s.money.record}
 	}
-	opt := backtest.Options{Strict: *strict}
+	opt := backtest.Options{Strict: *strict, Tally: backtest.TallyOptions{Grid: grid}}
 	if *progress || isTerminal(e.stderr) {
 		opt.Progress = newProgressLine(e.stderr, size)
 	}
@@ -232,13 +249,21 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 		}
 	}
 	report := newBacktestReport(*historyPath, h, schemes, res)
+	if *forecastersOut != "" {
+		if err := writeForecasters(*forecastersOut, *force, schemes, res); err != nil {
+			return err
+		}
+		report.Notes = append(report.Notes, "every forecaster's line written to "+*forecastersOut)
+	} else if !res.Shown() {
+		report.Notes = append(report.Notes, fmt.Sprintf("%d forecasters: listed are the %d best and %d worst by mean pay under rule A; --forecasters-out FILE.csv writes every one", res.ForecasterCount, backtest.DefaultShow, backtest.DefaultShow))
+	}
 	if questions != nil {
 		var notes []string
 		report.Questions, notes = questions.report()
 		report.Notes = append(report.Notes, notes...)
 	}
 	if *figPath != "" {
-		if err := writeReliabilityFigure(*figPath, figFormat, *force, d1.Labels[0], res); err != nil {
+		if err := writeReliabilityFigure(*figPath, figFormat, *force, d1.Labels[0], report.curves, report.Warnings); err != nil {
 			return err
 		}
 		report.Notes = append(report.Notes, "reliability picture written to "+*figPath)
@@ -247,14 +272,27 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 		report.Notes = append(report.Notes, "pay of every forecast written to "+*payOut)
 	}
 	if *asJSON {
-		return writeJSON(e.stdout, report)
+		if err := writeJSON(e.stdout, report); err != nil {
+			return err
+		}
+		return failedIfWarned(report)
 	}
 	if err := report.writeText(e.stdout); err != nil {
 		return err
 	}
 	if *chart {
 		fmt.Fprintln(e.stdout)
-		fmt.Fprintln(e.stdout, reliability.New(d1.Labels[0], reliabilityCurves(res, 0)).View(72, 22))
+		fmt.Fprintln(e.stdout, reliability.New(d1.Labels[0], report.curves).View(72, 22))
+	}
+	return failedIfWarned(report)
+}
+
+// failedIfWarned is errFailed when a rule's table fails its re-check:
+// the backtest is reported in full, and the exit status says, as table's
+// does, that the table is not fit to sign.
+func failedIfWarned(r *backtestReport) error {
+	if len(r.Warnings) > 0 {
+		return errFailed
 	}
 	return nil
 }
@@ -366,18 +404,13 @@ func refuseExisting(path string, force bool) error {
 	return nil
 }
 
-// pictureCells is how many bins per unit of probability the reliability
-// picture groups forecasts into.
-const pictureCells = backtest.PictureCells
-
-// reliabilityCurves are the forecasters' curves for outcome k, in bins of
-// width 1/pictureCells.
-func reliabilityCurves(res *backtest.Result, k int) []backtest.Curve {
-	return backtest.ReliabilityCurves(res, k)
-}
-
-func writeReliabilityFigure(path, format string, force bool, event string, res *backtest.Result) error {
-	p, err := figure.Reliability(reliabilityCurves(res, 0), event, fmt.Sprintf("Reliability of forecasts of %q (bins of width 1/%d)", event, pictureCells))
+func writeReliabilityFigure(path, format string, force bool, event string, curves []backtest.Curve, warnings []string) error {
+	// A failed re-check is said first, then the caution every export has.
+	var notes []string
+	for _, w := range warnings {
+		notes = append(notes, "WARNING: "+w)
+	}
+	p, err := figure.Reliability(curves, event, fmt.Sprintf("Reliability of forecasts of %q: PAV curves, %.0f%% consistency bands", event, 100*corp.DefaultLevel), append(notes, table.Caution()...))
 	if err != nil {
 		return err
 	}
@@ -391,92 +424,15 @@ func writeReliabilityFigure(path, format string, force bool, event string, res *
 	return nil
 }
 
-// backtestReport is what the command prints (and its JSON).
-type backtestReport struct {
-	History     string              `json:"history"`
-	Outcomes    []string            `json:"outcomes"`
-	Tolerance   float64             `json:"tolerance"`
-	Rows        int                 `json:"rows"`
-	Rules       []ruleReport        `json:"rules"`
-	Forecasters []forecasterReport  `json:"forecasters"`
-	SkipCount   int                 `json:"skipped_count"`
-	Skipped     []skippedReport     `json:"skipped"`
-	Reliability []reliabilityReport `json:"reliability,omitempty"`
-	Questions   []questionReport    `json:"questions,omitempty"`
-	Notes       []string            `json:"notes,omitempty"`
-	Caution     []string            `json:"caution"`
-	decimals    []int
-	unit        string // "line" or "row", how the history numbers records
-}
-
-type skippedReport struct {
-	Line int `json:"line"`
-	// EndLine is the record's last line when it ran across lines.
-	EndLine int    `json:"end_line,omitempty"`
-	Why     string `json:"why"`
-}
-
-type ruleReport struct {
-	ID        string    `json:"id"`
-	Name      string    `json:"name"`
-	Formula   string    `json:"formula"`
-	Pay       string    `json:"pay"`
-	Menu      string    `json:"menu"`
-	Budget    string    `json:"budget"`
-	Count     int       `json:"count"`
-	Total     num.Float `json:"total"`
-	Mean      num.Float `json:"mean"`
-	Min       num.Float `json:"min"`
-	Max       num.Float `json:"max"`
-	OffMenu   int       `json:"off_menu"`
-	BelowLow  int       `json:"below_floor"`
-	AboveHigh int       `json:"above_cap"`
-	NonFinite int       `json:"non_finite"`
-	// MostTotal is what the forecasts could have cost at most: count × the
-	// table's largest payment.
-	MostTotal num.Float `json:"most_total"`
-	// TargetMean and TargetTotal are the mean-pay budget's aim per
-	// forecast, and times the count, when the budget has one.
-	TargetMean  *num.Float `json:"target_mean,omitempty"`
-	TargetTotal *num.Float `json:"target_total,omitempty"`
-}
-
-type forecasterReport struct {
-	Name  string `json:"name"`
-	Count int    `json:"count"`
-	// Total, Mean and Rank are under the first rule; Totals, Means and
-	// Ranks list every rule.
-	Total         num.Float             `json:"total"`
-	Mean          num.Float             `json:"mean"`
-	Rank          int                   `json:"rank"`
-	Totals        []num.Float           `json:"totals"`
-	Means         []num.Float           `json:"means"`
-	Ranks         []int                 `json:"ranks"`
-	RankChange    *int                  `json:"rank_change,omitempty"`
-	OffMenu       []int                 `json:"off_menu"`
-	Decomposition []decompositionReport `json:"decomposition"`
-	Binning       string                `json:"binning"`
-}
-
-type decompositionReport struct {
-	Rule        string    `json:"rule"`
-	MeanEffort  num.Float `json:"mean_effort"`
-	Uncertainty num.Float `json:"uncertainty"`
-	Resolution  num.Float `json:"resolution"`
-	Reliability num.Float `json:"reliability"`
-	WithinBin   num.Float `json:"within_bin"`
-}
-
-type reliabilityReport struct {
-	Forecaster string `json:"forecaster"`
-	Outcome    string `json:"outcome"`
-	// BinWidth is the width of the forecast bins the points group.
-	BinWidth num.Float   `json:"bin_width"`
-	Points   []pointJSON `json:"points"`
-}
-
-type pointJSON struct {
-	Forecast num.Float `json:"forecast"`
-	Observed num.Float `json:"observed"`
-	Count    int       `json:"count"`
+// binGrid turns --bin-width into cells per probability: the width must be
+// 1/K for a whole K from 1 to 1000, so that the cells tile [0, 1].
+func binGrid(width float64) (int, error) {
+	if !(width > 0 && width <= 1) {
+		return 0, usagef("--bin-width %g: want a width in (0, 1], such as 0.1", width)
+	}
+	k := math.Round(1 / width)
+	if k > 1000 || math.Abs(k*width-1) > 1e-9 {
+		return 0, usagef("--bin-width %g: want 1/K for a whole K up to 1000 (0.1, 0.05, 0.2, ...)", width)
+	}
+	return int(k), nil
 }

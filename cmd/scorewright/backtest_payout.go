@@ -27,27 +27,45 @@ type payOutFile struct {
 	rec       []string
 	labels    []string
 	decimals  []int // per scheme; -1 writes the shortest exact form
+	flag      string
 	done      bool
 }
 
 func createPayOut(path string, force bool, labels []string, schemes []*backtestScheme) (*payOutFile, error) {
+	head := []string{"line", "forecaster", "question", "outcome"}
+	var decimals []int
+	for _, s := range schemes {
+		head = append(head, "pay "+s.id, "effort "+s.id, "on menu "+s.id)
+		decimals = append(decimals, s.money.decimals)
+	}
+	o, err := createCSVOut(path, force, head, "--pay-out")
+	if err != nil {
+		return nil, err
+	}
+	o.labels, o.decimals = labels, decimals
+	for _, s := range schemes {
+		if s.money.warning != "" {
+			fmt.Fprintf(o.buf, "# warning: rule %s: %s\n", s.id, s.money.warning)
+		}
+	}
+	return o, nil
+}
+
+// createCSVOut starts a CSV file streamed to a temporary file beside
+// path: the caution as comment lines (CSV readers with a comment
+// character skip them), then the header. flag names the option in errors.
+func createCSVOut(path string, force bool, head []string, flag string) (*payOutFile, error) {
 	if err := refuseExisting(path, force); err != nil {
 		return nil, err
 	}
 	f, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp*")
 	if err != nil {
-		return nil, usagef("--pay-out: %v", err)
+		return nil, usagef("%s: %v", flag, err)
 	}
-	o := &payOutFile{path: path, tmp: f.Name(), force: force, f: f, buf: bufio.NewWriterSize(f, 1<<16), labels: labels}
+	o := &payOutFile{path: path, tmp: f.Name(), force: force, f: f, buf: bufio.NewWriterSize(f, 1<<16), flag: flag}
 	o.w = csv.NewWriter(o.buf)
-	// Comment lines, as CSV readers with a comment character skip them.
 	for _, c := range table.Caution() {
 		fmt.Fprintf(o.buf, "# caution: %s\n", c)
-	}
-	head := []string{"line", "forecaster", "question", "outcome"}
-	for _, s := range schemes {
-		head = append(head, "pay "+s.id, "effort "+s.id, "on menu "+s.id)
-		o.decimals = append(o.decimals, s.money.decimals)
 	}
 	o.rec = make([]string, len(head))
 	if err := o.w.Write(head); err != nil {
@@ -102,7 +120,7 @@ func (o *payOutFile) commit() error {
 	if err != nil {
 		os.Remove(o.tmp)
 		o.done = true
-		return usagef("--pay-out: %v", err)
+		return usagef("%s: %v", o.flag, err)
 	}
 	o.done = true
 	return nil

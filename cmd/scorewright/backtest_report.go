@@ -24,7 +24,8 @@ const fewPerBin = 5
 
 func newBacktestReport(path string, h *history.Reader, schemes []*backtestScheme, res *backtest.Result) *backtestReport {
 	r := &backtestReport{History: path, Outcomes: h.Labels(), Tolerance: h.Tolerance(), Rows: res.Rows,
-		SkipCount: res.SkippedCount, Skipped: []skippedReport{}, Caution: table.Caution(), unit: h.Unit()}
+		SkipCount: res.SkippedCount, Skipped: []skippedReport{}, Caution: table.Caution(), unit: h.Unit(),
+		ForecasterCount: res.ForecasterCount, Grouping: res.Grouping}
 	for _, s := range res.Skipped {
 		sr := skippedReport{Line: s.Line, Why: s.Why}
 		if s.EndLine > s.Line {
@@ -48,7 +49,7 @@ func newBacktestReport(path string, h *history.Reader, schemes []*backtestScheme
 			r.Notes = append(r.Notes, fmt.Sprintf("rule %s: %s", s.id, n))
 		}
 		if s.money.warning != "" {
-			r.Notes = append(r.Notes, fmt.Sprintf("rule %s: %s", s.id, s.money.warning))
+			r.Warnings = append(r.Warnings, fmt.Sprintf("rule %s: %s", s.id, s.money.warning))
 		}
 		if m.OffMenu > 0 {
 			r.Notes = append(r.Notes, fmt.Sprintf("rule %s: %d of %d forecasts are off the report menu; the table has no row for them, so they are paid by the formula (A - B·L, then rounded as the table is)",
@@ -72,6 +73,7 @@ func newBacktestReport(path string, h *history.Reader, schemes []*backtestScheme
 				Uncertainty: num.Float(d.Uncertainty), Resolution: num.Float(d.Resolution), Reliability: num.Float(d.Reliability),
 				WithinBin: num.Float(d.WithinBin)})
 		}
+		fr.CORP = corpReports(&f, r.Outcomes, schemes)
 		if len(f.Rank) > 1 {
 			c := f.Rank[0] - f.Rank[1]
 			fr.RankChange = &c
@@ -85,14 +87,15 @@ func newBacktestReport(path string, h *history.Reader, schemes []*backtestScheme
 		r.Notes = append(r.Notes, fmt.Sprintf("fewer than %d forecasts per bin on average for %s: resolution and reliability are then measured on few outcomes each and read high (the split stays exact, the terms are noisy)",
 			fewPerBin, strings.Join(thin, ", ")))
 	}
-	if len(r.Outcomes) == 2 {
-		for _, c := range reliabilityCurves(res, 0) {
-			rr := reliabilityReport{Forecaster: c.Name, Outcome: r.Outcomes[0], BinWidth: 1.0 / pictureCells, Points: []pointJSON{}}
-			for _, p := range c.Points {
-				rr.Points = append(rr.Points, pointJSON{num.Float(p.Forecast), num.Float(p.Observed), p.Count})
-			}
-			r.Reliability = append(r.Reliability, rr)
-		}
+	r.addCurves(res)
+	r.addMonths(res)
+	if res.Spans.Count > 0 {
+		first := res.Spans.First[0]
+		r.Notes = append(r.Notes, fmt.Sprintf("%s a quoted question over several lines (the first, lines %d–%d); they were read as one record each",
+			plural(res.Spans.Count, "record has", "records have"), first[0], first[1]))
+	}
+	if res.Grouping != "" && !strings.HasPrefix(res.Grouping, "every") {
+		r.Notes = append(r.Notes, "decompositions: "+res.Grouping)
 	}
 	return r
 }
@@ -110,6 +113,14 @@ func (r *backtestReport) cash(rule int, v num.Float) string {
 }
 
 func (r *backtestReport) writeText(w io.Writer) error {
+	// Warnings come first, as in a table's export, where no reader can
+	// miss them.
+	for _, warn := range r.Warnings {
+		fmt.Fprintf(w, "WARNING: %s\n", warn)
+	}
+	if len(r.Warnings) > 0 {
+		fmt.Fprintln(w)
+	}
 	fmt.Fprintf(w, "history %s: %d forecasts scored, %d rows skipped (a row's probabilities must lie in [0, 1] and sum to 1 within %g)\n\n",
 		r.History, r.Rows, r.SkipCount, r.Tolerance)
 	for _, rule := range r.Rules {
@@ -204,6 +215,9 @@ func (r *backtestReport) writeText(w io.Writer) error {
 	for _, b := range order {
 		fmt.Fprintf(w, "(%s: %s)\n", strings.Join(binnings[b], ", "), b)
 	}
+
+	r.writeCORP(w, left)
+	r.writeMonths(w)
 
 	if err := r.writeQuestions(w); err != nil {
 		return err

@@ -244,6 +244,14 @@ func TestBacktestHarvestStdin(t *testing.T) {
 				Uncertainty, Resolution, Reliability float64
 				WithinBin                            float64 `json:"within_bin"`
 			}
+			Binning string
+			CORP    []struct {
+				Event string
+				Mean  float64 `json:"mean_score"`
+				MCB   float64 `json:"miscalibration"`
+				DSC   float64 `json:"discrimination"`
+				UNC   float64 `json:"uncertainty"`
+			} `json:"corp"`
 		}
 	}
 	if err := json.Unmarshal(out.Bytes(), &got); err != nil {
@@ -254,9 +262,21 @@ func TestBacktestHarvestStdin(t *testing.T) {
 	}
 	for _, f := range got.Forecasters {
 		for _, d := range f.Decomposition {
-			// Bins are the distinct forecasts here, so the identity is exact.
-			if math.Abs(d.Uncertainty-d.Resolution+d.Reliability-d.MeanEffort) > 1e-12 || math.Abs(d.WithinBin) > 1e-12 {
+			// Bins are cells of width 0.1: the remainder closes the identity.
+			if math.Abs(d.Uncertainty-d.Resolution+d.Reliability+d.WithinBin-d.MeanEffort) > 1e-12 {
 				t.Errorf("%s: %+v does not add up", f.Name, d)
+			}
+		}
+		if !strings.Contains(f.Binning, "width 0.1") {
+			t.Errorf("%s: binning %q, want cells of width 0.1 stated", f.Name, f.Binning)
+		}
+		// One CORP split per outcome against the rest, each exact.
+		if len(f.CORP) != 3 || f.CORP[1].Event != "near against the rest" {
+			t.Fatalf("%s: CORP %+v, want one per outcome", f.Name, f.CORP)
+		}
+		for _, c := range f.CORP {
+			if math.Abs(c.MCB-c.DSC+c.UNC-c.Mean) > 1e-12 || c.MCB < 0 || c.DSC < 0 {
+				t.Errorf("%s: CORP %+v does not add up", f.Name, c)
 			}
 		}
 	}
@@ -327,11 +347,20 @@ func TestBacktestPaysAsTheTable(t *testing.T) {
 	}
 	payOut := filepath.Join(t.TempDir(), "pay.csv")
 	code, out, stderr := runCmd(t, append(append([]string{"backtest"}, budgetArgs...), "--history", frostHistory, "--pay-out", payOut)...)
-	if code != 0 {
+	// As table does, a table that fails its re-check is reported with a
+	// warning first in every output and exit status 1.
+	if code != 1 {
 		t.Fatalf("backtest: exit %d, %s", code, stderr)
 	}
-	if !strings.Contains(out, "fails its re-check") {
-		t.Errorf("output does not pass on that the table fails its re-check:\n%s", out)
+	if !strings.HasPrefix(out, "WARNING: rule A: ") || !strings.Contains(strings.SplitN(out, "\n", 2)[0], "fails its re-check") {
+		t.Errorf("output does not begin with the failed re-check:\n%s", out)
+	}
+	if data, _ := os.ReadFile(payOut); !bytes.Contains(bytes.ToLower(data), []byte("# warning: rule a: ")) {
+		t.Errorf("pay-out file does not carry the warning:\n%.600s", data)
+	}
+	code, js, _ := runCmd(t, append(append([]string{"backtest"}, budgetArgs...), "--history", frostHistory, "--json")...)
+	if code != 1 || !strings.Contains(js, `"warnings": [`) {
+		t.Errorf("--json: exit %d, no warnings field:\n%.400s", code, js)
 	}
 	hist := map[string][]string{} // line -> history record
 	hf, _ := os.ReadFile(frostHistory)

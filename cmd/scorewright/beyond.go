@@ -7,7 +7,6 @@ import (
 	"math"
 
 	"scorewright"
-	"scorewright/contract/lottery"
 
 	"scorewright/contract/table"
 	"scorewright/internal/num"
@@ -33,13 +32,7 @@ type lotteryJSON struct {
 // t), whole multiples of 1/draws, and re-checks them.
 func lotteryTable(tb *table.Table, t *scorewright.Table, draws int) (*lotteryJSON, error) {
 	lo, hi := t.Bounds()
-	var err error
-	if t.Point != nil {
-		_, err = lottery.ForPoint(context.Background(), t.Point, tb, draws)
-	} else {
-		_, err = lottery.ForFit(context.Background(), t.Fit, tb, draws)
-	}
-	if err != nil {
+	if _, err := t.Lottery(context.Background(), tb, draws); err != nil {
 		return nil, usagef("--lottery: %v", err)
 	}
 	return &lotteryJSON{Prize: num.Float(hi - lo), Floor: num.Float(lo), Cap: num.Float(hi), Draws: tb.Decimals,

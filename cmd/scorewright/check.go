@@ -8,7 +8,22 @@ import (
 
 	"scorewright"
 	"scorewright/generator/design"
+	"scorewright/generator/point"
+	"scorewright/presets"
 )
+
+// presetNeeds is what a design's preset says it needs of the interval
+// ("; preset qlike: ... (needs lo > 0)"), or "" for a formula.
+func presetNeeds(d *design.Design) string {
+	if d.Preset == "" {
+		return ""
+	}
+	p, err := presets.Lookup(d.Preset)
+	if err != nil {
+		return ""
+	}
+	return fmt.Sprintf("; preset %s is a %s", p.Name, p.Title)
+}
 
 func runCheck(e *env, args []string) error {
 	fs := newFlags("check")
@@ -31,7 +46,10 @@ func checkDesign(e *env, d *design.Design, vf *verifyFlags) error {
 	if err != nil {
 		return err
 	}
-	s, err := vf.settings(e)
+	if err := refuseCertifyOnInterval(r, vf.cert); err != nil {
+		return err
+	}
+	s, err := vf.settings(e, d.N())
 	if err != nil {
 		return err
 	}
@@ -39,9 +57,12 @@ func checkDesign(e *env, d *design.Design, vf *verifyFlags) error {
 	defer stop()
 	found, err := r.Check(ctx, s)
 	var needs *scorewright.NeedsOutcomesError
+	var domain *point.DomainError
 	switch {
 	case errors.As(err, &needs):
 		return usagef("%v", err)
+	case errors.As(err, &domain):
+		return usagef("%v%s", err, presetNeeds(d))
 	case err != nil && ctx.Err() != nil:
 		return usagef("check interrupted")
 	case err != nil:
@@ -50,15 +71,22 @@ func checkDesign(e *env, d *design.Design, vf *verifyFlags) error {
 		return printPointReport(e, found.Point, vf.asJSON)
 	}
 	rep := found.Rule
+	cert, proved, err := certificate(ctx, e, r, vf.cert)
+	if err != nil {
+		return err
+	}
 	if vf.asJSON {
-		if err := writeJSON(e.stdout, toReportJSON(rep)); err != nil {
+		out := toReportJSON(rep)
+		out.Certificate = cert
+		if err := writeJSON(e.stdout, out); err != nil {
 			return err
 		}
 	} else {
 		fmt.Fprintf(e.stdout, "rule:    %s\n", describeRule(r.Kind(), d))
 		printReport(e.stdout, rep)
+		printCertificate(e.stdout, cert)
 	}
-	if found.Failed() {
+	if found.Failed() || proved {
 		return errFailed
 	}
 	return nil

@@ -54,7 +54,7 @@ func runDistort(e *env, args []string) error {
 	utility := fs.String("utility", "", "the forecaster's utility of money: crra:R (relative risk aversion R), cara:A (absolute risk aversion A) or linear")
 	// distort takes rules over outcomes only; say so where --interval is listed.
 	fs.Lookup("interval").Usage = "not taken by distort (it works on rules over outcomes)"
-	wealth := fs.Float64("wealth", 0, "initial wealth W (default 0); utility is of W + pay, so CRRA needs W plus the smallest payment above 0")
+	wealth := floatFlag(fs, "wealth", 0, "initial wealth W (default 0); utility is of W + pay, so CRRA needs W plus the smallest payment above 0")
 	belief := fs.String("belief", "", "the forecaster's belief q1,q2,... (default: the budget's reference belief, else uniform)")
 	asJSON := fs.Bool("json", false, "print the best report, the menu pick and the distortion curve as JSON")
 	if err := parseFlags(e, fs, distortUsage, args, false); err != nil {

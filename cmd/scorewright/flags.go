@@ -6,10 +6,10 @@ import (
 	"flag"
 	"fmt"
 	"io"
-	"strconv"
 	"strings"
 
 	"scorewright/generator/design"
+	"scorewright/generator/formula"
 	"scorewright/internal/num"
 	"scorewright/presets"
 )
@@ -42,7 +42,7 @@ func parseFlags(e *env, fs *flag.FlagSet, usage string, args []string, positiona
 			})
 			return errHelp
 		}
-		return usagef("%v", err)
+		return usagef("%s", flagMessage(err))
 	}
 	if !positional && fs.NArg() > 0 {
 		return usagef("unexpected argument %q (options start with --)", fs.Arg(0))
@@ -61,9 +61,9 @@ func (p paramFlag) Set(s string) error {
 	if !ok || name == "" {
 		return fmt.Errorf("--param wants name=value, got %q", s)
 	}
-	v, err := strconv.ParseFloat(strings.TrimSpace(val), 64)
+	v, err := num.ParseNumber(val)
 	if err != nil {
-		return fmt.Errorf("--param %s: %q is not a number", name, val)
+		return fmt.Errorf("%s: %v", name, err)
 	}
 	p[name] = v
 	return nil
@@ -116,6 +116,9 @@ func (r *ruleFlags) design() (*design.Design, error) {
 		if err != nil {
 			return nil, usagef("%v", err)
 		}
+		// A preset name over a formula of the design's own is dropped:
+		// the record must name the rule that is computed.
+		presets.Settle(d)
 	} else {
 		d = &design.Design{Version: design.SchemaVersion, Mode: design.ModeGenerator, Ordered: r.ordered}
 		sources := 0
@@ -195,7 +198,28 @@ func (r *ruleFlags) design() (*design.Design, error) {
 	if err := d.Validate(); err != nil {
 		return nil, usagef("%v", err)
 	}
+	if err := weightsUsed(d); err != nil {
+		return nil, err
+	}
 	return d, nil
+}
+
+// weightsUsed refuses outcome weights that the formula never reads: the
+// table would ignore them and the record would still list them.
+func weightsUsed(d *design.Design) error {
+	if d.Weights == nil {
+		return nil
+	}
+	f, err := formula.Parse(d.Formula)
+	if err != nil || f.Uses("w") {
+		// A formula that does not parse is reported where it is compiled.
+		return nil
+	}
+	what := "the formula"
+	if d.Preset != "" {
+		what = fmt.Sprintf("preset %q", d.Preset)
+	}
+	return usagef("--weights: %s does not use the outcome weights w, so they would change nothing; leave them out, or use a weighted preset or a formula with w inside sum", what)
 }
 
 // budgetFlags are the options that fit a rule to money.
@@ -209,14 +233,14 @@ const budgetUsage = "--floor F (--cap C | --mean-pay M [--reference q1,...]) [--
 
 func addBudgetFlags(fs *flag.FlagSet) *budgetFlags {
 	b := &budgetFlags{}
-	fs.Float64Var(&b.floor, "floor", 0, "smallest payment (default 0)")
-	fs.Float64Var(&b.cap, "cap", 0, "largest payment")
-	fs.Float64Var(&b.meanPay, "mean-pay", 0, "target expected payment of a truthful forecaster at the reference belief (instead of --cap)")
+	floatVar(fs, &b.floor, "floor", 0, "smallest payment (default 0)")
+	floatVar(fs, &b.cap, "cap", 0, "largest payment")
+	floatVar(fs, &b.meanPay, "mean-pay", 0, "target expected payment of a truthful forecaster at the reference belief (instead of --cap)")
 	fs.StringVar(&b.reference, "reference", "", "reference belief for --mean-pay (default uniform)")
-	fs.Float64Var(&b.step, "step", 0, "report menu step: n = 2 a probability step (e.g. 0.05); n > 2 1/K for a simplex grid; with --interval a step in the interval's units")
-	fs.Float64Var(&b.unit, "unit", 0, "currency rounding unit (0: no rounding)")
+	floatVar(fs, &b.step, "step", 0, "report menu step: n = 2 a probability step (e.g. 0.05); n > 2 1/K for a simplex grid; with --interval a step in the interval's units")
+	floatVar(fs, &b.unit, "unit", 0, "currency rounding unit (0: no rounding)")
 	fs.StringVar(&b.rounding, "rounding", "nearest", "rounding mode: nearest (the default; halves away from zero), down or up")
-	fs.Float64Var(&b.reportFloor, "report-floor", 0, "smallest probability a report may give an outcome (e.g. 0.01)")
+	floatVar(fs, &b.reportFloor, "report-floor", 0, "smallest probability a report may give an outcome (e.g. 0.01)")
 	return b
 }
 

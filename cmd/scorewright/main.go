@@ -52,8 +52,10 @@ func main() {
 	if len(os.Args) > 1 && os.Args[1] != "open" {
 		// Text from files (titles, names in a history) reaches the
 		// terminal; no escape sequence in it may move the cursor or
-		// recolour a line. The workbench draws with escapes of its own.
-		e.stdout, e.stderr = terminalSafe(os.Stdout), terminalSafe(os.Stderr)
+		// recolour a line. The workbench draws with escapes of its own;
+		// stderr carries the progress line, which rewrites itself with
+		// "\r", and error messages, which exitCode cleans.
+		e.stdout = terminalSafe(os.Stdout)
 	}
 	os.Exit(run(os.Args[1:], e))
 }

@@ -70,8 +70,11 @@ func TestUsageErrors(t *testing.T) {
 		{[]string{"eval", "--outcomes", "1", "--preset", "log", "--report", "1"}, "outcome count 1 is outside 2..12"},
 		{[]string{"eval", "--outcomes", "3", "--preset", "log", "--generator", "1", "--report", "1,0,0"}, "exactly one of"},
 		{[]string{"eval", "--outcomes", "3", "--preset", "power", "--param", "h=2", "--report", "0.2,0.3,0.5"}, `unknown parameter "h"; the formula sets: g`},
-		{[]string{"eval", "--bogus"}, "flag provided but not defined: -bogus"},
+		{[]string{"eval", "--bogus"}, "unknown option --bogus"},
 		{[]string{"eval", "--outcomes", "3", "--preset", "weighted-quadratic", "--report", "0.2,0.3,0.5"}, "needs --weights"},
+		// QLIKE is infinite at y = 0 (Patton 2011): refused, with the reason.
+		{[]string{"check", "--interval", "0,10", "--preset", "qlike"}, "not finite at the outcome y = 0 of [0, 10]"},
+		{[]string{"check", "--interval", "0,10", "--preset", "patton", "--param", "b=-2"}, "not finite at the outcome y = 0"},
 	}
 	for _, c := range cases {
 		code, _, stderr := runCmd(t, c.args...)

@@ -237,10 +237,8 @@ func printPointReport(e *env, rep *pointcheck.Report, asJSON bool) error {
 		if err := tw.Flush(); err != nil {
 			return err
 		}
-		if id := rep.Identified; id != nil && id.OutcomeTerm {
-			fmt.Fprintf(e.stdout, "identified: g(y) - %.6g * (effort of preset %s), with a term g in the outcome alone that changes no incentive\n", id.Scale, id.Preset)
-		} else if id != nil {
-			fmt.Fprintf(e.stdout, "identified: %.6g - %.6g * (effort of preset %s)\n", id.Shift, id.Scale, id.Preset)
+		if line := (&scorewright.Findings{Point: rep}).IdentifiedLine(); line != "" {
+			fmt.Fprintln(e.stdout, line)
 		}
 		for _, n := range rep.Notes {
 			fmt.Fprintln(e.stdout, "note:", n)

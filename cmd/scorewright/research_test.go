@@ -139,3 +139,21 @@ func TestResearchErrors(t *testing.T) {
 		}
 	}
 }
+
+// A base rate beyond the menu's last item (0.999 on a 1 %-floored menu):
+// the best rule's piece beyond 0.99 is still fitted inside the budget
+// (B = 1), and its gain is the V-shaped value (MAD/2)·50/0.999, derived by
+// hand as in TestResearchCommand.
+func TestResearchBaseRateBeyondMenu(t *testing.T) {
+	j := researchJSONRun(t, "--outcomes", "2", "--base-rate", "0.999,0.001", "--kappa", "3", "--floor", "-20", "--cap", "30",
+		"--step", "0.05", "--report-floor", "0.01", "--compare", "none")
+	best := ruleNamed(t, j, "best for research")
+	a, b := 3*0.999, 3*0.001
+	la, _ := math.Lgamma(a)
+	lb, _ := math.Lgamma(b)
+	lab, _ := math.Lgamma(a + b)
+	mad := math.Exp(math.Ln2 + a*math.Log(a) + b*math.Log(b) - (la + lb - lab) - (a+b+1)*math.Log(a+b))
+	if want := mad / 2 * 50 / 0.999; math.Abs(float64(best.B)-1) > 1e-9 || math.Abs(float64(best.Gain)-want) > 1e-6 {
+		t.Errorf("best: B %g, gain %g; want B 1, gain %g", best.B, best.Gain, want)
+	}
+}

@@ -10,7 +10,9 @@ import (
 	"strings"
 
 	"scorewright/internal/num"
+	"scorewright/internal/textsafe"
 	"scorewright/verify"
+	"scorewright/verify/certify"
 )
 
 // verifyFlags are the grid options check and audit share.
@@ -21,22 +23,27 @@ type verifyFlags struct {
 	workers    int
 	samples    int
 	asJSON     bool
+	// cert asks for a certificate besides the grid (nil: not offered).
+	cert *certifyFlags
 }
 
-const verifyUsage = "[--resolution K] [--tolerance T] [--limit L] [--workers W] [--samples S] [--json]"
+const verifyUsage = "[--resolution K] [--tolerance T] [--limit L] [--workers W] [--samples S] [--json] " + certifyUsage
 
 func addVerifyFlags(fs *flag.FlagSet) *verifyFlags {
 	v := &verifyFlags{}
-	fs.IntVar(&v.resolution, "resolution", 0, "grid resolution K: coordinates in steps of 1/K (default depends on the number of outcomes)")
-	fs.Float64Var(&v.tolerance, "tolerance", verify.DefaultTolerance, "slack allowed for rounding in every comparison, times the size of the rule's values")
-	fs.Float64Var(&v.limit, "limit", 0, "largest effort (payment) in absolute value the boundedness check accepts (0: no limit)")
-	fs.IntVar(&v.workers, "workers", 0, "goroutines to use (0: all cores)")
-	fs.IntVar(&v.samples, "samples", 0, "random lattice points when the full grid is too large (0: default)")
+	intVar(fs, &v.resolution, "resolution", 0, "grid resolution K: coordinates in steps of 1/K (default depends on the number of outcomes)")
+	floatVar(fs, &v.tolerance, "tolerance", verify.DefaultTolerance, "slack allowed for rounding in every comparison, times the size of the rule's values")
+	floatVar(fs, &v.limit, "limit", 0, "largest effort (payment) in absolute value the boundedness check accepts (0: no limit)")
+	intVar(fs, &v.workers, "workers", 0, "goroutines to use (0: all cores)")
+	intVar(fs, &v.samples, "samples", 0, "random lattice points when the full grid is too large (0: default)")
 	fs.BoolVar(&v.asJSON, "json", false, "print JSON")
+	v.cert = addCertifyFlags(fs)
 	return v
 }
 
-func (v *verifyFlags) settings(e *env) (verify.Settings, error) {
+// settings are the grid settings the flags ask for, for a rule over n
+// outcomes (0 for point forecasts), refused beyond what the machine holds.
+func (v *verifyFlags) settings(e *env, n int) (verify.Settings, error) {
 	switch {
 	case v.resolution < 0:
 		return verify.Settings{}, usagef("--resolution must be positive, got %d", v.resolution)
@@ -48,6 +55,9 @@ func (v *verifyFlags) settings(e *env) (verify.Settings, error) {
 		return verify.Settings{}, usagef("--workers and --samples must not be negative")
 	}
 	s := verify.Settings{Resolution: v.resolution, Tolerance: v.tolerance, Limit: v.limit, Workers: v.workers, Samples: v.samples}
+	if err := verify.CheckCapacity(s, max(n, 1)); err != nil {
+		return verify.Settings{}, usagef("--%v", err)
+	}
 	if isTerminal(e.stderr) {
 		s.Progress = func(done, total int64) {
 			fmt.Fprintf(e.stderr, "\r%3.0f%% ", 100*float64(done)/float64(max(total, 1)))
@@ -62,6 +72,9 @@ func (v *verifyFlags) settings(e *env) (verify.Settings, error) {
 // isTerminal reports whether w is a character device, so that progress
 // goes to a person watching and never into a pipe or a log.
 func isTerminal(w io.Writer) bool {
+	if t, ok := w.(*textsafe.Writer); ok {
+		w = t.Unwrap()
+	}
 	f, ok := w.(*os.File)
 	if !ok {
 		return false
@@ -118,13 +131,17 @@ type checkJSON struct {
 
 type reportJSON struct {
 	Verdict verify.Verdict `json:"verdict"`
-	Grid    gridJSON       `json:"grid"`
-	Checks  []checkJSON    `json:"checks"`
-	Notes   []string       `json:"notes,omitempty"`
+	// Kind is always "grid evidence": the grid samples, it never proves;
+	// a proof is the certificate's, under "certificate".
+	Kind        certify.Kind     `json:"kind"`
+	Certificate *certificateJSON `json:"certificate,omitempty"`
+	Grid        gridJSON         `json:"grid"`
+	Checks      []checkJSON      `json:"checks"`
+	Notes       []string         `json:"notes,omitempty"`
 }
 
 func toReportJSON(r *verify.Report) reportJSON {
-	out := reportJSON{Verdict: r.Verdict, Notes: r.Notes, Grid: gridJSON{
+	out := reportJSON{Verdict: r.Verdict, Kind: certify.GridEvidence, Notes: r.Notes, Grid: gridJSON{
 		Resolution: r.Grid.Resolution, Points: r.Grid.Points, Tolerance: num.Float(r.Grid.Tolerance), Scale: num.Float(r.Grid.Scale), Slack: num.Float(r.Grid.Slack()), Sampled: r.Grid.Sampled,
 		Interior: r.Grid.Interior, Boundary: r.Grid.Boundary, Pairs: r.Grid.Pairs, Statement: r.Grid.String(),
 	}}
@@ -155,7 +172,7 @@ func toPartJSON(p verify.Part) partJSON {
 // printReport writes the human form of a verification: verdict, grid
 // statement, one block per check, notes.
 func printReport(w io.Writer, r *verify.Report) {
-	fmt.Fprintf(w, "verdict: %s\n", r.Verdict)
+	fmt.Fprintf(w, "verdict: %s (%s)\n", r.Verdict, certify.GridEvidence)
 	fmt.Fprintf(w, "grid:    %s\n\n", r.Grid)
 	for _, c := range r.Checks {
 		status := "passed"

@@ -9,12 +9,14 @@ import (
 	"scorewright/contract/table"
 	"scorewright/generator/bregman"
 	"scorewright/generator/design"
+	"scorewright/internal/num"
 )
 
 // InputFor gathers what an annex needs besides a money table made from
 // d: the closed formula of the pay A − B·L of rule (none with a clamp,
 // which bends the rule, or for a point table, rule nil) and the season's
-// cost. Call it before a lottery conversion: the cost is in money.
+// cost, which it also states in the table's record. Call it before a
+// lottery conversion: the cost is in money.
 func InputFor(d *design.Design, tb *table.Table, rule *bregman.Rule, a, b, clamp float64, version string) (*Input, error) {
 	in := &Input{Design: d, Table: tb, Version: version}
 	if rule != nil && clamp == 0 {
@@ -28,6 +30,7 @@ func InputFor(d *design.Design, tb *table.Table, rule *bregman.Rule, a, b, clamp
 			return nil, fmt.Errorf("cost: %w", err)
 		}
 		in.Cost = c
+		tb.Meta.Notes = append(tb.Meta.Notes, c.Sentence(num.Format(c.Season.BaseRate)))
 	}
 	return in, nil
 }

@@ -2,80 +2,60 @@ package backtest
 
 import (
 	"math"
-	"sort"
+
+	"scorewright/contract/backtest/corp"
 )
 
-// ReliabilityPoint is one bin of a reliability curve.
+// ReliabilityPoint is one point of a reliability curve.
 type ReliabilityPoint struct {
-	// Forecast is the bin's mean forecast probability of the outcome.
-	Forecast float64
-	// Observed is how often the outcome happened after those forecasts.
-	Observed float64
-	// Count is the number of forecasts in the bin.
+	// Forecast is a forecast probability of the event and Observed its
+	// PAV-recalibrated value: the event's frequency after forecasts like it.
+	Forecast, Observed float64
+	// Lo and Hi bound the consistency band at Forecast (NaN: none drawn).
+	Lo, Hi float64
+	// Count is the number of forecasts that gave Forecast.
 	Count int
 }
 
-// Curve is one forecaster's reliability curve for one outcome: observed
-// frequency against forecast probability, bin by bin. A reliable
-// forecaster's points lie on the diagonal.
+// Curve is one forecaster's reliability curve for one event: the PAV
+// recalibration of the forecasts against the forecasts. A reliable
+// forecaster's curve lies on the diagonal, within its band.
 type Curve struct {
 	Name   string
 	Points []ReliabilityPoint
 }
 
-// ReliabilityCurve returns the curve of bins for outcome k (0-based),
-// sorted by forecast probability.
-func ReliabilityCurve(name string, bins []Bin, k int) Curve {
-	c := Curve{Name: name}
-	for _, b := range bins {
-		if b.Count == 0 {
-			continue
-		}
-		c.Points = append(c.Points, ReliabilityPoint{Forecast: b.Forecast[k], Observed: b.Observed[k], Count: b.Count})
+// PAVCurve returns the reliability curve of groups (sorted, as
+// Forecaster.Events holds them), with consistency bands when bands is set.
+func PAVCurve(name string, groups []corp.Group, bands bool) Curve {
+	var pts []corp.CurvePoint
+	if bands {
+		pts = corp.ConsistencyBands(groups, corp.BandOptions{})
+	} else {
+		pts = corp.Curve(groups)
 	}
-	sort.SliceStable(c.Points, func(i, j int) bool { return c.Points[i].Forecast < c.Points[j].Forecast })
+	c := Curve{Name: name, Points: make([]ReliabilityPoint, len(pts))}
+	for i, p := range pts {
+		c.Points[i] = ReliabilityPoint{Forecast: p.X, Observed: p.Calibrated, Lo: p.Lo, Hi: p.Hi, Count: p.Count}
+	}
 	return c
 }
 
-// Regroup merges bins into cells 1/k wide in every probability, by their
-// mean forecasts: coarser bins for a picture that should show a trend
-// rather than every distinct forecast. Counts and frequencies are kept
-// exactly; the result is sorted like Forecaster.Bins.
-func Regroup(bins []Bin, k int) []Bin {
-	if k <= 0 {
-		panic("backtest: Regroup needs k > 0")
-	}
-	if len(bins) == 0 {
-		return nil
-	}
-	n := len(bins[0].Forecast)
-	set := newBinSet(n, math.MaxInt, k)
-	set.grid = k
-	sumP, hits := make([]float64, n), make([]float64, n)
-	for _, b := range bins {
-		if b.Count == 0 {
-			continue
-		}
-		c := float64(b.Count)
-		for j := range n {
-			sumP[j], hits[j] = c*b.Forecast[j], c*b.Observed[j]
-		}
-		set.merge(b.Count, sumP, hits)
-	}
-	return set.bins()
-}
-
-// PictureCells is how many bins per unit of probability a reliability
-// picture groups forecasts into: the usual tenths.
-const PictureCells = 10
-
-// ReliabilityCurves are every forecaster's curves for outcome k, with the
-// bins regrouped into cells of width 1/PictureCells, as the command's
-// figure and the workbench draw them.
+// ReliabilityCurves are the detailed forecasters' PAV curves for event k
+// (k = 0 for two outcomes), with consistency bands (corp's defaults: 500
+// redraws, 90 %, a fixed seed), as the command's figure and the workbench
+// draw them.
 func ReliabilityCurves(res *Result, k int) []Curve {
 	curves := make([]Curve, len(res.Forecasters))
 	for i, f := range res.Forecasters {
-		curves[i] = ReliabilityCurve(f.Name, Regroup(f.Bins, PictureCells), k)
+		if k < len(f.Events) {
+			curves[i] = PAVCurve(f.Name, f.Events[k], true)
+		} else {
+			curves[i] = Curve{Name: f.Name}
+		}
 	}
 	return curves
 }
+
+// Banded reports whether a point has a band.
+func (p ReliabilityPoint) Banded() bool { return !math.IsNaN(p.Lo) }

@@ -3,7 +3,7 @@ package backtest
 import (
 	"fmt"
 	"math"
-	"sort"
+	"strconv"
 
 	"scorewright/generator/bregman"
 )
@@ -157,139 +157,17 @@ func (t *keyTable) rehash(size int) {
 	}
 }
 
-// binSet groups one forecaster's forecasts into bins in bounded memory:
-// by distinct forecast while there are at most max of them, then on a
-// grid of cells 1/grid wide in the first n-1 probabilities, halving grid
-// whenever the cells outgrow max (at grid 1 there are at most 2^(n-1)).
-type binSet struct {
-	n, max int
-	// grid is 0 while bins are distinct forecasts.
-	grid, startGrid int
-	table           keyTable
-	count           []int
-	sumP, hits      []float64 // n per bin
-	key             []float64 // scratch
-}
-
-func newBinSet(n, max, grid int) *binSet {
-	return &binSet{n: n, max: max, startGrid: grid, table: newKeyTable(n), key: make([]float64, n)}
-}
-
-// cell writes the key of forecast p into b.key: p itself, or its grid
-// cell. The last probability follows from the others, so cells are cut in
-// the first n-1 only (for two outcomes: in the event's probability).
-func (b *binSet) cell(p []float64) []float64 {
-	k := b.key
-	if b.grid == 0 {
-		for i, x := range p {
-			k[i] = x + 0 // -0 and +0 are one forecast
-		}
-		return k
-	}
-	g := float64(b.grid)
-	for i, x := range p[:b.n-1] {
-		k[i] = math.Round(x * g)
-	}
-	k[b.n-1] = 0
-	return k
-}
-
-// find returns the bin of key, making it if needed; made reports a new bin.
-func (b *binSet) find(key []float64) (i int, made bool) {
-	i, made = b.table.find(key, true)
-	if made {
-		b.count = append(b.count, 0)
-		for range b.n {
-			b.sumP = append(b.sumP, 0)
-			b.hits = append(b.hits, 0)
-		}
-	}
-	return i, made
-}
-
-func (b *binSet) add(p []float64, y int) {
-	i, made := b.find(b.cell(p))
-	b.count[i]++
-	row := b.sumP[i*b.n : (i+1)*b.n]
-	for k, x := range p {
-		row[k] += x
-	}
-	b.hits[i*b.n+y]++
-	if made && len(b.count) > b.max {
-		b.coarsen()
-	}
-}
-
-// merge adds a whole group of c forecasts, with summed forecast sumP and
-// outcome counts hits, to the bin of its mean forecast.
-func (b *binSet) merge(c int, sumP, hits []float64) {
-	mean := make([]float64, b.n)
-	for k := range mean {
-		mean[k] = sumP[k] / float64(c)
-	}
-	j, _ := b.find(b.cell(mean))
-	b.count[j] += c
-	for k := range mean {
-		b.sumP[j*b.n+k] += sumP[k]
-		b.hits[j*b.n+k] += hits[k]
-	}
-}
-
-// coarsen moves to a coarser grid and regroups the bins by their mean
-// forecasts until they fit. Every forecast stays in exactly one bin, so
-// the decomposition (with its within-bin remainder) stays exact.
-func (b *binSet) coarsen() {
-	for len(b.count) > b.max && b.grid != 1 {
-		if b.grid == 0 {
-			b.grid = b.startGrid
-		} else {
-			b.grid = max(1, b.grid/2)
-		}
-		count, sumP, hits := b.count, b.sumP, b.hits
-		b.table = newKeyTable(b.n)
-		b.count, b.sumP, b.hits = nil, nil, nil
-		for i, c := range count {
-			b.merge(c, sumP[i*b.n:(i+1)*b.n], hits[i*b.n:(i+1)*b.n])
-		}
-	}
-}
-
-// bins returns the bins sorted by mean forecast, for stable output.
-func (b *binSet) bins() []Bin {
-	out := make([]Bin, len(b.count))
-	for i, c := range b.count {
-		f := make([]float64, b.n)
-		o := make([]float64, b.n)
-		for k := range f {
-			f[k] = b.sumP[i*b.n+k] / float64(c)
-			o[k] = b.hits[i*b.n+k] / float64(c)
-		}
-		out[i] = Bin{Count: c, Forecast: f, Observed: o}
-	}
-	sort.Slice(out, func(i, j int) bool {
-		a, c := out[i].Forecast, out[j].Forecast
-		for k := range a {
-			if a[k] != c[k] {
-				return a[k] < c[k]
-			}
-		}
-		return false
-	})
-	return out
-}
-
 // Binning says how bins were formed.
 type Binning struct {
-	// Grid is 0 when the bins are the distinct forecasts (the
-	// decomposition is then exact), else the number of cells per unit of
-	// probability each forecast was rounded to.
+	// Grid is 0 when the bins are the distinct forecasts, else the number
+	// of cells of equal width per probability.
 	Grid int
 }
 
 // String describes the binning in words, for reports.
 func (b Binning) String() string {
 	if b.Grid == 0 {
-		return "bins are the distinct forecasts (the decomposition is exact)"
+		return "bins are the distinct forecasts (no within-bin remainder)"
 	}
-	return fmt.Sprintf("bins are cells of width 1/%d in each probability (a within-bin remainder is shown)", b.Grid)
+	return fmt.Sprintf("bins are cells of width %s in each probability (%d cells per probability; a within-bin remainder is shown)", strconv.FormatFloat(1/float64(b.Grid), 'g', 4, 64), b.Grid)
 }

@@ -28,7 +28,7 @@ var murphySample = []struct {
 
 func murphyTally(t *testing.T, r *bregman.Rule) *Result {
 	t.Helper()
-	tl, err := NewTally([]Scheme{{Name: "q", Rule: r, Pay: Affine{A: 0, B: 1}}}, TallyOptions{})
+	tl, err := NewTally([]Scheme{{Name: "q", Rule: r, Pay: Affine{A: 0, B: 1}}}, TallyOptions{Distinct: true})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -153,7 +153,7 @@ func TestIdentityExact(t *testing.T) {
 			}
 			menu[i] = p
 		}
-		tl, err := NewTally([]Scheme{{Name: c.name, Rule: r, Pay: Affine{B: 1}}}, TallyOptions{})
+		tl, err := NewTally([]Scheme{{Name: c.name, Rule: r, Pay: Affine{B: 1}}}, TallyOptions{Distinct: true})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -178,12 +178,12 @@ func TestIdentityExact(t *testing.T) {
 	}
 }
 
-// When the distinct forecasts outgrow the bound the bins coarsen to a
-// grid; every forecast stays in exactly one bin, so counts and outcome
-// frequencies still add up, and the remainder is what closes the identity.
-func TestCoarsening(t *testing.T) {
+// Bins of width 0.1 on continuous forecasts: every forecast stays in
+// exactly one of at most ten bins, counts and outcome frequencies add up,
+// and the remainder is what closes the identity.
+func TestWidthBins(t *testing.T) {
 	r := rule(t, "1 - sum(p^2)", 2, false)
-	tl, err := NewTally([]Scheme{{Name: "q", Rule: r, Pay: Affine{B: 1}}}, TallyOptions{MaxBins: 16, Grid: 10})
+	tl, err := NewTally([]Scheme{{Name: "q", Rule: r, Pay: Affine{B: 1}}}, TallyOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -199,8 +199,8 @@ func TestCoarsening(t *testing.T) {
 		tl.Add("A", i+1, y, []float64{f, 1 - f})
 	}
 	fc := tl.Result().Forecasters[0]
-	if fc.Binning.Grid == 0 || fc.Binning.Grid > 10 || len(fc.Bins) > 16 {
-		t.Fatalf("binning %+v with %d bins, want a grid of at most 10 cells and at most 16 bins", fc.Binning, len(fc.Bins))
+	if fc.Binning.Grid != DefaultGrid || len(fc.Bins) > DefaultGrid {
+		t.Fatalf("binning %+v with %d bins, want cells of width 1/%d", fc.Binning, len(fc.Bins), DefaultGrid)
 	}
 	var count int
 	var hits float64
@@ -215,29 +215,135 @@ func TestCoarsening(t *testing.T) {
 	if math.Abs(d.Identity()+d.WithinBin-d.MeanEffort) > 1e-12 {
 		t.Errorf("terms %+v do not add up", d)
 	}
-	// A calibrated forecaster on 10 cells: reliability is small but the
-	// remainder is not zero, since bins now mix different forecasts.
 	if d.WithinBin == 0 {
 		t.Errorf("within-bin remainder is exactly 0 on a grid; expected the bins to mix forecasts")
 	}
+	// CORP sees every forecast: its score is the mean effort itself.
+	c := fc.CORP[0][0]
+	if c.Count != N || math.Abs(c.Score-d.MeanEffort) > 1e-12 || math.Abs(c.Identity()-c.Score) > 1e-12 {
+		t.Errorf("CORP %+v, mean effort %.17g", c, d.MeanEffort)
+	}
 }
 
-// Regrouping for a picture keeps every forecast and every hit, and the
-// curve reads observed frequency against mean forecast. By hand for
-// murphySample on cells of width 1 (forecasts rounded to 0 or 1): 0.2
-// rounds to 0, 0.6 and 0.9 to 1, so the second point has 15 forecasts, mean forecast (5·0.6 + 10·0.9)/15
-// = 0.8 and frequency (4 + 8)/15 = 0.8.
-func TestRegroup(t *testing.T) {
+// CORP of murphySample under the quadratic rule, derived by hand: the
+// event frequencies 0.2, 0.8, 0.8 already rise with the forecasts, so
+// PAV leaves them and CORP agrees with Murphy's terms (above), doubled
+// by the two-component form: MCB = 2·0.015, DSC = 2·0.0675, UNC =
+// 2·0.2275; the curve is 0.2, 0.8, 0.8.
+func TestCORPByHand(t *testing.T) {
 	res := murphyTally(t, rule(t, "1 - sum(p^2)", 2, false))
-	c := ReliabilityCurve("Alder", Regroup(res.Forecasters[0].Bins, 1), 0)
-	want := []ReliabilityPoint{{0.2, 0.2, 5}, {0.8, 0.8, 15}}
-	if len(c.Points) != len(want) {
-		t.Fatalf("points %+v, want %+v", c.Points, want)
+	f := res.Forecasters[0]
+	c := f.CORP[0][0]
+	for _, x := range []struct {
+		name      string
+		got, want float64
+	}{{"MCB", c.Miscalibration, 0.03}, {"DSC", c.Discrimination, 0.135}, {"UNC", c.Uncertainty, 0.455}, {"score", c.Score, 0.35}} {
+		if math.Abs(x.got-x.want) > 1e-12 {
+			t.Errorf("%s = %.17g, want %g", x.name, x.got, x.want)
+		}
 	}
+	curve := PAVCurve("Alder", f.Events[0], false)
+	want := []ReliabilityPoint{{Forecast: 0.2, Observed: 0.2, Count: 5}, {Forecast: 0.6, Observed: 0.8, Count: 5}, {Forecast: 0.9, Observed: 0.8, Count: 10}}
 	for i, w := range want {
-		p := c.Points[i]
+		p := curve.Points[i]
 		if p.Count != w.Count || math.Abs(p.Forecast-w.Forecast) > 1e-12 || math.Abs(p.Observed-w.Observed) > 1e-12 {
 			t.Errorf("point %d = %+v, want %+v", i, p, w)
+		}
+	}
+}
+
+// More distinct forecasts than the bound: they are grouped on a grid,
+// the Result says so, and no forecast or event is lost.
+func TestGroupingPastTheBound(t *testing.T) {
+	r := rule(t, "1 - sum(p^2)", 3, false)
+	tl, err := NewTally([]Scheme{{Name: "q", Rule: r, Pay: Affine{B: 1}}}, TallyOptions{MaxDistinct: 64})
+	if err != nil {
+		t.Fatal(err)
+	}
+	rng := rand.New(rand.NewPCG(3, 4))
+	const N = 5000
+	hits := make([]int, 3)
+	for i := range N {
+		a, b := rng.Float64(), rng.Float64()
+		p := []float64{a / (1 + b + a), b / (1 + b + a), 1 / (1 + b + a)}
+		y := rng.IntN(3)
+		hits[y]++
+		tl.Add([]string{"A", "B"}[i%2], i+1, y, p)
+	}
+	res := tl.Result()
+	if res.Grouping == "every distinct forecast kept exactly" {
+		t.Fatalf("grouping %q after %d distinct forecasts with a bound of 64", res.Grouping, N)
+	}
+	for k := range 3 {
+		var c, h int
+		for _, f := range res.Forecasters {
+			for _, g := range f.Events[k] {
+				c += g.Count
+				h += g.Hits
+			}
+		}
+		if c != N || h != hits[k] {
+			t.Errorf("event %d: %d forecasts, %d hits; want %d, %d", k, c, h, N, hits[k])
+		}
+	}
+}
+
+// On continuous forecasts (every forecast distinct, as model output is)
+// CORP's score is the mean effort computed straight from L(p, y), the
+// identity holds to 1e-12 and MCB, DSC >= 0, for two-outcome rules; for
+// three outcomes each event's score is the mean squared error of its
+// probability, computed directly.
+func TestCORPOnContinuousForecasts(t *testing.T) {
+	for _, c := range []struct{ name, src string }{
+		{"quadratic", "1 - sum(p^2)"}, {"log", "-sum(p*ln(p))"}, {"spherical", "-sqrt(sum(p^2))"}, {"power g=3", "(1 - sum(p^3)) / 2"},
+	} {
+		r := rule(t, c.src, 2, false)
+		tl, _ := NewTally([]Scheme{{Name: c.name, Rule: r, Pay: Affine{B: 1}}}, TallyOptions{})
+		s := r.NewScorer()
+		eff := make([]float64, 2)
+		rng := rand.New(rand.NewPCG(5, 8))
+		var mean float64
+		const N = 3000
+		for i := range N {
+			x := 0.01 + 0.98*rng.Float64()
+			y := 1
+			if rng.Float64() < 0.2+0.6*x {
+				y = 0
+			}
+			p := []float64{x, 1 - x}
+			tl.Add("A", i+1, y, p)
+			s.Efforts(eff, p)
+			mean += eff[y] / N
+		}
+		d := tl.Result().Forecasters[0].CORP[0][0]
+		if math.Abs(d.Score-mean) > 1e-12 || math.Abs(d.Identity()-d.Score) > 1e-12 {
+			t.Errorf("%s: score %.17g, MCB − DSC + UNC %.17g, direct mean %.17g", c.name, d.Score, d.Identity(), mean)
+		}
+		if d.Miscalibration < 0 || d.Discrimination < 0 {
+			t.Errorf("%s: MCB %g, DSC %g", c.name, d.Miscalibration, d.Discrimination)
+		}
+	}
+	r := rule(t, "-sum(p*ln(p))", 3, false)
+	tl, _ := NewTally([]Scheme{{Name: "log", Rule: r, Pay: Affine{B: 1}}}, TallyOptions{})
+	rng := rand.New(rand.NewPCG(9, 9))
+	se := make([]float64, 3)
+	const N = 2000
+	for i := range N {
+		a, b := rng.Float64(), rng.Float64()
+		p := []float64{a / (1 + a + b), b / (1 + a + b), 1 / (1 + a + b)}
+		y := rng.IntN(3)
+		tl.Add("A", i+1, y, p)
+		for k := range 3 {
+			o := 0.0
+			if k == y {
+				o = 1
+			}
+			se[k] += (p[k] - o) * (p[k] - o) / N
+		}
+	}
+	for k, d := range tl.Result().Forecasters[0].CORP[0] {
+		if math.Abs(d.Score-se[k]) > 1e-12 || math.Abs(d.Identity()-d.Score) > 1e-12 || d.Miscalibration < 0 || d.Discrimination < 0 {
+			t.Errorf("event %d: %+v, direct squared error %.17g", k, d, se[k])
 		}
 	}
 }

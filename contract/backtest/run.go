@@ -122,7 +122,7 @@ func Run(ctx context.Context, h *history.Reader, schemes []Scheme, opt Options) 
 				}
 				continue
 			}
-			paid := t.Add(row.Forecaster, row.Line, row.Outcome, row.P)
+			paid := t.AddDated(row.Forecaster, row.Line, row.Outcome, row.P, row.Month)
 			if opt.OnRow != nil {
 				if err := opt.OnRow(row, paid); err != nil {
 					return nil, err
@@ -136,7 +136,7 @@ func Run(ctx context.Context, h *history.Reader, schemes []Scheme, opt Options) 
 	}
 	report()
 	r := t.Result()
-	r.SkippedCount, r.Skipped = nSkipped, skipped
+	r.SkippedCount, r.Skipped, r.Spans = nSkipped, skipped, h.Spans()
 	return r, nil
 }
 

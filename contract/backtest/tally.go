@@ -3,9 +3,9 @@ package backtest
 import (
 	"fmt"
 	"math"
-	"sort"
 	"strings"
 
+	"scorewright/contract/backtest/history"
 	"scorewright/generator/bregman"
 )
 
@@ -85,46 +85,6 @@ type Money struct {
 	NonFinite, FirstNonFinite int
 }
 
-// Forecaster is one forecaster's backtest.
-type Forecaster struct {
-	Name string
-	// Count is the number of valid forecasts.
-	Count int
-	// Money holds one entry per scheme, in the order the schemes were given.
-	Money []Money
-	// Rank is the forecaster's rank under each scheme by mean pay per
-	// forecast (1 = best; ties share the better rank).
-	Rank []int
-	// Decomposition of the mean effort, per scheme.
-	Decomposition []Decomposition
-	// Bins are the forecast groups the decomposition used, sorted by
-	// forecast; Binning says how they were formed.
-	Bins    []Bin
-	Binning Binning
-}
-
-// Result is a whole backtest.
-type Result struct {
-	// Schemes are the scheme names, in order.
-	Schemes []string
-	// Forecasters, sorted by name.
-	Forecasters []Forecaster
-	// All is every valid forecast together, per scheme.
-	All []Money
-	// Rows is the number of valid forecasts; SkippedCount the number of
-	// rows skipped, of which the first Skipped are kept.
-	Rows, SkippedCount int
-	Skipped            []Skipped
-}
-
-// Skipped is a record left out, with the reason: Line is where it starts
-// and EndLine where it ends (past Line when a quoted field ran across
-// lines).
-type Skipped struct {
-	Line, EndLine int
-	Why           string
-}
-
 // sum is a compensated (Neumaier) running sum; Inf and NaN pass through.
 type sum struct{ s, c float64 }
 
@@ -199,50 +159,93 @@ func (m *moneyTally) money() Money {
 	return out
 }
 
-type forecasterTally struct {
-	name  string
-	money []moneyTally
-	bins  *binSet
+// smallTally is one forecaster's money under one scheme: a fixed 56
+// bytes, so that two million forecasters fit in memory. The smallest and
+// largest payments are kept only for all forecasts together.
+type smallTally struct {
+	pay, effort          sum
+	count, off, low      int32
+	high, nonFinite, fst int32
+}
+
+func (m *smallTally) add(p Paid, line int, s *Scheme) {
+	m.count++
+	m.pay.add(p.Pay)
+	m.effort.add(p.Effort)
+	if !p.OnMenu {
+		m.off++
+	}
+	bad := math.IsNaN(p.Pay) || math.IsInf(p.Pay, 0)
+	if bad {
+		m.nonFinite++
+		if m.fst == 0 {
+			m.fst = int32(min(line, math.MaxInt32))
+		}
+	}
+	if p.Pay < s.Low {
+		m.low++
+	} else if p.Pay > s.High {
+		m.high++
+	}
+}
+
+func (m *smallTally) money() Money {
+	out := Money{Count: int(m.count), Total: m.pay.value(), OffMenu: int(m.off), BelowLow: int(m.low), AboveHigh: int(m.high),
+		NonFinite: int(m.nonFinite), FirstNonFinite: int(m.fst), Min: math.NaN(), Max: math.NaN()}
+	if m.count > 0 {
+		out.Mean = out.Total / float64(m.count)
+		out.MeanEffort = m.effort.value() / float64(m.count)
+	} else {
+		out.Mean, out.MeanEffort = math.NaN(), math.NaN()
+	}
+	return out
 }
 
 // Tally accumulates a backtest one forecast at a time, in memory that
-// grows with the number of forecasters (and their distinct forecasts, up
-// to a bound), never with the number of rows. It is used by one goroutine.
+// grows with the number of forecasters (a fixed summary each) and with
+// their distinct forecasts (up to a bound), never with the number of
+// rows. It is used by one goroutine.
 type Tally struct {
 	schemes []Scheme
 	scorers []*bregman.Scorer
 	n       int
-	maxBins int
-	grid    int
+	opt     TallyOptions
 	eff     []float64
 	paid    []Paid
-	index   map[string]int
-	fc      []*forecasterTally
+	index   map[string]int32
+	names   []string
+	money   []smallTally // schemes per forecaster
 	last    int
 	all     []moneyTally
-	cache   forecastCache
+	months  map[history.Month][]moneyTally
+	store   *outcomeStore
+	cache   []Paid    // schemes × n per cached forecast, by forecast id
 	one     []Paid    // scratch: one scheme, every outcome
 	adj     []float64 // scratch: adjusted report
 	rec     []float64 // scratch: recorded report
 }
 
-// Default binning bounds for the decomposition.
-const (
-	// DefaultMaxBins is how many distinct forecasts (or grid cells) a
-	// forecaster's bins may hold before they are coarsened; it also bounds
-	// the cells of the coarsest grid for 12 outcomes (2^12).
-	DefaultMaxBins = 4096
-)
-
-// TallyOptions tune the decomposition's binning. The zero value means
-// the defaults.
+// TallyOptions tune the decomposition. The zero value means the defaults.
 type TallyOptions struct {
-	// MaxBins bounds the bins per forecaster; 0 means DefaultMaxBins.
-	MaxBins int
-	// Grid is the first grid once distinct forecasts are too many; 0 means
-	// 20 for two outcomes and 10 for more.
-	Grid int
+	// Grid sets the bins of the rule's own decomposition: cells of width
+	// 1/Grid in each probability; 0 means DefaultGrid. Distinct bins by
+	// distinct forecast instead (exact, but on continuous forecasts every
+	// bin holds one case, which says nothing).
+	Grid     int
+	Distinct bool
+	// MaxDistinct bounds the distinct forecasts kept exactly; 0 means
+	// DefaultMaxDistinct.
+	MaxDistinct int
+	// Show is how many forecasters at each end of the ranking the Result
+	// details when there are more than 4·Show; 0 means DefaultShow.
+	Show int
 }
+
+// DefaultGrid gives bins a tenth wide in each probability.
+const DefaultGrid = 10
+
+// DefaultShow is how many top and bottom forecasters a Result details.
+const DefaultShow = 10
 
 // NewTally starts a backtest of schemes, which must share the number of
 // outcomes.
@@ -251,16 +254,13 @@ func NewTally(schemes []Scheme, opt TallyOptions) (*Tally, error) {
 		return nil, fmt.Errorf("backtest: no schemes")
 	}
 	n := schemes[0].Rule.Outcomes()
-	t := &Tally{schemes: schemes, n: n, maxBins: opt.MaxBins, grid: opt.Grid, index: map[string]int{}, last: -1}
-	if t.maxBins <= 0 {
-		t.maxBins = DefaultMaxBins
+	if opt.Grid <= 0 {
+		opt.Grid = DefaultGrid
 	}
-	if t.grid <= 0 {
-		t.grid = 10
-		if n == 2 {
-			t.grid = 20
-		}
+	if opt.Show <= 0 {
+		opt.Show = DefaultShow
 	}
+	t := &Tally{schemes: schemes, n: n, opt: opt, index: map[string]int32{}, last: -1, months: map[history.Month][]moneyTally{}}
 	for i := range schemes {
 		s := &schemes[i]
 		if s.Rule.Outcomes() != n {
@@ -271,6 +271,7 @@ func NewTally(schemes []Scheme, opt TallyOptions) (*Tally, error) {
 		}
 		t.scorers = append(t.scorers, s.Rule.NewScorer())
 	}
+	t.store = newOutcomeStore(n, opt.MaxDistinct)
 	t.eff = make([]float64, n)
 	t.adj = make([]float64, n)
 	t.rec = make([]float64, n)
@@ -280,71 +281,64 @@ func NewTally(schemes []Scheme, opt TallyOptions) (*Tally, error) {
 	return t, nil
 }
 
+// cacheEntries bounds the forecasts whose payments are remembered: more
+// than any report menu a contract would print, small enough to stay in
+// memory (about 2.5 MB for three outcomes and two rules). A history
+// written on a report menu repeats a few hundred forecasts millions of
+// times; with the cache each generator is evaluated once per distinct
+// forecast instead of once per row. Payers and menus must therefore be
+// pure functions, as a payment table is.
+const cacheEntries = 1 << 14
+
 // Add scores one forecast p (summing to 1) by forecaster with outcome y
 // (0-based) on the given line, and returns what it earns under each
 // scheme. The returned slice is reused by the next call.
 func (t *Tally) Add(forecaster string, line, y int, p []float64) []Paid {
+	return t.AddDated(forecaster, line, y, p, 0)
+}
+
+// AddDated is Add for a forecast of a known month (0: none), so that the
+// Result totals pay by month.
+func (t *Tally) AddDated(forecaster string, line, y int, p []float64, month history.Month) []Paid {
 	if len(p) != t.n || y < 0 || y >= t.n {
 		panic(fmt.Sprintf("backtest: forecast of %d entries, outcome %d, for %d outcomes", len(p), y, t.n))
 	}
 	f := t.forecaster(forecaster)
-	c := t.cache.get(t, p)
+	id, made := t.store.forecastID(p)
+	cached := t.store.quantum == 0 && id < cacheEntries
+	width := len(t.schemes) * t.n
+	if cached && made {
+		for s := range t.schemes {
+			t.cache = append(t.cache, make([]Paid, t.n)...)
+			t.scoreAll(s, p, t.cache[len(t.cache)-t.n:])
+		}
+	}
+	var mt []moneyTally
+	if month != 0 {
+		if mt = t.months[month]; mt == nil {
+			mt = make([]moneyTally, len(t.schemes))
+			t.months[month] = mt
+		}
+	}
+	fm := t.money[f*len(t.schemes) : (f+1)*len(t.schemes)]
 	for i := range t.schemes {
 		s := &t.schemes[i]
 		var pd Paid
-		if c != nil {
-			pd = c[i*t.n+y]
+		if cached {
+			pd = t.cache[id*width+i*t.n+y]
 		} else {
 			t.scoreAll(i, p, t.one)
 			pd = t.one[y]
 		}
 		t.paid[i] = pd
-		f.money[i].add(pd, line, s)
+		fm[i].add(pd, line, s)
 		t.all[i].add(pd, line, s)
-	}
-	f.bins.add(p, y)
-	return t.paid
-}
-
-// cacheEntries bounds the forecast cache: more than any report menu a
-// contract would print, small enough to stay in memory (about 2.5 MB for
-// three outcomes and two rules).
-const cacheEntries = 1 << 14
-
-// forecastCache remembers what each distinct forecast earns for every
-// outcome under every scheme. A history written on a report menu repeats a
-// few hundred forecasts millions of times; with the cache each generator
-// is evaluated once per distinct forecast instead of once per row. Payers
-// and menus must therefore be pure functions, as a payment table is.
-// Once full, new forecasts are scored directly and not remembered.
-type forecastCache struct {
-	table keyTable
-	paid  []Paid // schemes × n per entry
-	key   []float64
-}
-
-// get returns the cached payments of p (scheme i, outcome y at i*n+y),
-// computing them on first sight; nil when the cache is full.
-func (c *forecastCache) get(t *Tally, p []float64) []Paid {
-	if c.key == nil {
-		c.table = newKeyTable(t.n)
-		c.key = make([]float64, t.n)
-	}
-	for k, x := range p {
-		c.key[k] = x + 0
-	}
-	width := len(t.schemes) * t.n
-	i, made := c.table.find(c.key, c.table.len() < cacheEntries)
-	if i < 0 {
-		return nil
-	}
-	if made {
-		for s := range t.schemes {
-			c.paid = append(c.paid, make([]Paid, t.n)...)
-			t.scoreAll(s, p, c.paid[len(c.paid)-t.n:])
+		if mt != nil {
+			mt[i].add(pd, line, s)
 		}
 	}
-	return c.paid[i*width : (i+1)*width]
+	t.store.add(f, id, y)
+	return t.paid
 }
 
 // scoreAll writes what forecast p earns under scheme s for every outcome.
@@ -371,115 +365,21 @@ func (t *Tally) scoreAll(s int, p []float64, dst []Paid) {
 	}
 }
 
-// forecaster finds (or makes) the tally of a forecaster; consecutive rows
-// by the same forecaster, the usual layout, skip the map.
-func (t *Tally) forecaster(name string) *forecasterTally {
-	if t.last >= 0 && t.fc[t.last].name == name {
-		return t.fc[t.last]
+// forecaster finds (or makes) a forecaster's index; consecutive rows by
+// the same forecaster, the usual layout, skip the map.
+func (t *Tally) forecaster(name string) int {
+	if t.last >= 0 && t.names[t.last] == name {
+		return t.last
 	}
 	i, ok := t.index[name]
 	if !ok {
 		name = strings.Clone(name) // the caller's string may point into a reused buffer
-		i = len(t.fc)
+		i = int32(len(t.names))
 		t.index[name] = i
-		t.fc = append(t.fc, &forecasterTally{name: name, money: make([]moneyTally, len(t.schemes)), bins: newBinSet(t.n, t.maxBins, t.grid)})
+		t.names = append(t.names, name)
+		t.money = append(t.money, make([]smallTally, len(t.schemes))...)
+		t.store.addForecaster()
 	}
-	t.last = i
-	return t.fc[i]
-}
-
-// Result summarises the forecasts added so far.
-func (t *Tally) Result() *Result {
-	r := &Result{}
-	for _, s := range t.schemes {
-		r.Schemes = append(r.Schemes, s.Name)
-	}
-	for i := range t.all {
-		r.All = append(r.All, t.all[i].money())
-	}
-	if len(r.All) > 0 {
-		r.Rows = r.All[0].Count
-	}
-	for _, ft := range t.fc {
-		f := Forecaster{Name: ft.name, Bins: ft.bins.bins(), Binning: Binning{Grid: ft.bins.grid}}
-		for i := range t.schemes {
-			m := ft.money[i].money()
-			f.Count = m.Count
-			f.Money = append(f.Money, m)
-			d := Decompose(t.scorers[i], t.paidBins(i, f.Bins))
-			d.MeanEffort = m.MeanEffort
-			d.WithinBin = m.MeanEffort - d.Identity()
-			f.Decomposition = append(f.Decomposition, d)
-		}
-		r.Forecasters = append(r.Forecasters, f)
-	}
-	sort.Slice(r.Forecasters, func(i, j int) bool { return r.Forecasters[i].Name < r.Forecasters[j].Name })
-	for i := range t.schemes {
-		rankBy(r.Forecasters, i)
-	}
-	return r
-}
-
-// paidBins are bins as scheme s pays them: each bin's forecast replaced
-// by the report the contract pays for it (Record, then Adjust), bins that
-// become equal merged, so that the decomposition splits the mean of the
-// efforts that were paid — a forecast of 0 raised to a report floor is
-// finite there, as its payment is. Without Record and Adjust the bins are
-// returned as they are.
-func (t *Tally) paidBins(s int, bins []Bin) []Bin {
-	sc := &t.schemes[s]
-	if sc.Record == nil && sc.Adjust == nil {
-		return bins
-	}
-	keys := newKeyTable(t.n)
-	var out []Bin
-	for _, b := range bins {
-		p := b.Forecast
-		if sc.Record != nil {
-			p = sc.Record(t.rec, p)
-		}
-		if sc.Adjust != nil {
-			p = sc.Adjust(t.adj, p)
-		}
-		i, made := keys.find(p, true)
-		if made {
-			out = append(out, Bin{Forecast: append([]float64(nil), p...), Observed: make([]float64, t.n)})
-		}
-		o := &out[i]
-		total := o.Count + b.Count
-		for k := range o.Observed {
-			o.Observed[k] = (o.Observed[k]*float64(o.Count) + b.Observed[k]*float64(b.Count)) / float64(total)
-		}
-		o.Count = total
-	}
-	return out
-}
-
-// rankBy ranks forecasters by mean pay under scheme i, best first; ties
-// share the better rank and NaN ranks last.
-func rankBy(fs []Forecaster, i int) {
-	order := make([]int, len(fs))
-	for j := range order {
-		order[j] = j
-	}
-	better := func(a, b float64) bool {
-		if math.IsNaN(b) {
-			return !math.IsNaN(a)
-		}
-		return a > b
-	}
-	sort.SliceStable(order, func(a, b int) bool { return better(fs[order[a]].Money[i].Mean, fs[order[b]].Money[i].Mean) })
-	for pos, j := range order {
-		rank := pos + 1
-		if pos > 0 {
-			prev := order[pos-1]
-			if !better(fs[prev].Money[i].Mean, fs[j].Money[i].Mean) {
-				rank = fs[prev].Rank[i]
-			}
-		}
-		if fs[j].Rank == nil {
-			fs[j].Rank = make([]int, len(fs[j].Money))
-		}
-		fs[j].Rank[i] = rank
-	}
+	t.last = int(i)
+	return t.last
 }

@@ -278,7 +278,7 @@ func TestCacheOverflow(t *testing.T) {
 			t.Fatalf("forecast %d: effort %g, want %g", i, paid[0].Effort, want)
 		}
 	}
-	if n := tl.cache.table.len(); n != cacheEntries {
+	if n := len(tl.cache) / tl.n; n != cacheEntries {
 		t.Errorf("cache holds %d forecasts, want the bound %d", n, cacheEntries)
 	}
 }

@@ -24,6 +24,8 @@ type Info struct {
 	Weights []float64
 	Ordered bool
 	Version string
+	// Currency labels the table's amounts ("" for none).
+	Currency string
 	// Date is written as given, so tests can fix it.
 	Date string
 }
@@ -34,7 +36,7 @@ type Info struct {
 // and Date are the caller's.
 func DesignInfo(d *design.Design, version, date string) Info {
 	return Info{Title: d.Title, Formula: d.Formula, FormulaRole: FormulaRole(d.Mode), Preset: d.Preset, Params: d.Params,
-		Weights: d.Weights, Ordered: d.Ordered, Version: version, Date: date}
+		Weights: d.Weights, Ordered: d.Ordered, Version: version, Date: date, Currency: d.Contract.Currency}
 }
 
 // FormulaRole says, for the record, what a design's formula is.
@@ -186,7 +188,7 @@ func (f *Fit) Table(rc *Recheck, info Info) *table.Table {
 		Unit: num.Float(f.Unit), RoundingMode: f.Rounding, Floor: num.Float(f.Floor), Cap: num.Float(f.Cap),
 		Passed: rc.Passed, Verdict: rc.Verdict(f), MinMargin: num.Float(rc.MinMargin),
 		Notes:   notes,
-		Version: info.Version, Date: info.Date,
+		Version: info.Version, Date: info.Date, Currency: info.Currency,
 		Cautions: table.Caution(),
 	}
 	switch {

@@ -7,6 +7,7 @@ import (
 	"math"
 	"sort"
 	"strings"
+	"unicode/utf8"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/font"
@@ -145,7 +146,7 @@ func (t *Table) figureText(width int) ([]string, []color.Color) {
 		if f.Key == "WARNING" {
 			c = warn
 		}
-		for i, l := range wrap(f.Key+": "+oneLine(f.Value), width-4) {
+		for i, l := range Wrap(f.Key+": "+oneLine(f.Value), width-4) {
 			if i > 0 {
 				l = "    " + l
 			}
@@ -156,19 +157,38 @@ func (t *Table) figureText(width int) ([]string, []color.Color) {
 	return lines, colours
 }
 
-// wrap breaks s into lines of at most width characters at spaces.
-func wrap(s string, width int) []string {
+// Wrap breaks s into lines of at most width characters at spaces; a word
+// longer than a line (a long formula written without spaces) is cut into
+// pieces of width characters, so no line runs off a figure.
+func Wrap(s string, width int) []string {
+	width = max(width, 8)
 	var lines []string
 	var cur strings.Builder
+	var words []string
 	for _, word := range strings.Fields(s) {
-		if cur.Len() > 0 && cur.Len()+1+len(word) > width {
+		for r := []rune(word); ; {
+			if len(r) <= width {
+				words = append(words, string(r))
+				break
+			}
+			words = append(words, string(r[:width]))
+			r = r[width:]
+		}
+	}
+	n := 0 // characters in cur
+	for _, word := range words {
+		wn := utf8.RuneCountInString(word)
+		if n > 0 && n+1+wn > width {
 			lines = append(lines, cur.String())
 			cur.Reset()
+			n = 0
 		}
-		if cur.Len() > 0 {
+		if n > 0 {
 			cur.WriteByte(' ')
+			n++
 		}
 		cur.WriteString(word)
+		n += wn
 	}
 	if cur.Len() > 0 {
 		lines = append(lines, cur.String())

@@ -1,6 +1,10 @@
 package table
 
-import "testing"
+import (
+	"strings"
+	"testing"
+	"unicode/utf8"
+)
 
 // TestValueAxis: the figure's value axis names the kind once.
 func TestValueAxis(t *testing.T) {
@@ -36,5 +40,19 @@ func TestLegendOutsideTheData(t *testing.T) {
 	}
 	if h := legendHeight(legend); !(h > 0) || legendHeight(nil) != 0 {
 		t.Errorf("legend strip %v, empty %v", h, legendHeight(nil))
+	}
+}
+
+// A formula without spaces is cut to the width; no line is longer than it.
+func TestWrapCutsLongWords(t *testing.T) {
+	long := "formula: " + strings.Repeat("p1*ln(p1)+", 30) + "0 and ünïcödé words"
+	lines := Wrap(long, 40)
+	for _, l := range lines {
+		if n := utf8.RuneCountInString(l); n > 40 {
+			t.Errorf("line of %d characters: %q", n, l)
+		}
+	}
+	if got := strings.ReplaceAll(strings.Join(lines, ""), " ", ""); got != strings.ReplaceAll(long, " ", "") {
+		t.Errorf("wrapping lost text: %q", got)
 	}
 }

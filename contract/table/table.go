@@ -70,6 +70,8 @@ type Meta struct {
 	Weights  []num.Float `json:"weights,omitempty"`
 	Ordered  bool        `json:"ordered,omitempty"`
 	Outcomes []string    `json:"outcomes"`
+	// Currency labels the money amounts of the table ("" for none).
+	Currency string `json:"currency,omitempty"`
 	// Menu describes the reports the contract allows.
 	Menu string `json:"menu"`
 	// Payment states the payment formula in words.
@@ -133,6 +135,7 @@ func (m *Meta) Fields() []Field {
 		outcomes += " (ordered)"
 	}
 	add("outcomes", outcomes)
+	add("currency", m.Currency)
 	add("menu", m.Menu)
 	add("payment", m.Payment)
 	add("A", FormatNumber(float64(m.A)))
@@ -245,7 +248,14 @@ func (t *Table) ReportColumns() int {
 }
 
 // ValueHeader is the column heading for the value when outcome k happens.
-func (t *Table) ValueHeader(k int) string { return t.ValueName + " if " + t.Labels[k] }
+// A money table with a currency says it: "pay if frost (EUR)".
+func (t *Table) ValueHeader(k int) string {
+	h := t.ValueName + " if " + t.Labels[k]
+	if t.Kind == KindMoney && t.Meta.Currency != "" {
+		h += " (" + t.Meta.Currency + ")"
+	}
+	return h
+}
 
 // Check reports a table whose shape does not add up; writers call it so
 // that a malformed table is an error, not a garbled file.

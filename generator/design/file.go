@@ -133,8 +133,13 @@ func (d *Design) Validate() error {
 			}
 		}
 	}
+	for name, v := range d.Params {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return fmt.Errorf("params.%s: %g is not a finite number", name, v)
+		}
+	}
 	if d.Mode.OnInterval() {
-		if len(d.Interval) != 2 || !(d.Interval[0] < d.Interval[1]) {
+		if len(d.Interval) != 2 || !(d.Interval[0] < d.Interval[1]) || math.IsInf(d.Interval[0], 0) || math.IsInf(d.Interval[1], 0) {
 			return errors.New("interval: point designs need interval = [lo, hi] with lo < hi")
 		}
 	}

@@ -55,6 +55,7 @@ func TestHostileDesignsRefused(t *testing.T) {
 	cases := []struct{ src, want string }{
 		{strings.Replace(goodDesign, "version = 1", "version = -3", 1), "version: -3 is not a version"},
 		{goodDesign + "[budget]\ncap = 10\nreference = [0.2, 0.8]\n", "budget.reference: the belief a mean_pay target is set at"},
+		{goodDesign + "[params]\ng = nan\n", "params.g: NaN is not a finite number"},
 		{strings.Replace(goodDesign, `"frost"`, `"frost, hard"`, 1), `label 1 "frost, hard" has a comma`},
 		{strings.Replace(goodDesign, `"frost"`, `"Outcome"`, 1), `label 1 "Outcome" is the name of a fixed column`},
 		{strings.Replace(goodDesign, `"frost"`, `"frost\nRESULT: passed"`, 1), "has a control character (U+000A)"},

@@ -128,3 +128,29 @@ func SplitConstant(n Node) (rest Node, c float64) {
 	}
 	return out, c
 }
+
+// Uses reports whether the expression of f names name anywhere, as a bare
+// name or subscripted (w or w[2]); parameter values are not looked at.
+func (f *File) Uses(name string) bool {
+	var walk func(n Node) bool
+	walk = func(n Node) bool {
+		switch t := n.(type) {
+		case *Ident:
+			return t.Name == name
+		case *Index:
+			return t.Name == name || walk(t.Index)
+		case *Unary:
+			return walk(t.X)
+		case *Binary:
+			return walk(t.X) || walk(t.Y)
+		case *Call:
+			for _, a := range t.Args {
+				if walk(a) {
+					return true
+				}
+			}
+		}
+		return false
+	}
+	return f.Expr != nil && walk(f.Expr)
+}

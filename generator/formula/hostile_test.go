@@ -100,3 +100,17 @@ func TestSplitConstant(t *testing.T) {
 		}
 	}
 }
+
+func TestUses(t *testing.T) {
+	for src, want := range map[string]bool{
+		"1 - sum(w*p^2)": true, "1 - sum(p^2)": false, "p[1]*w[2]": true, "a = 2\n1 - sum(p^a)": false,
+	} {
+		f, err := Parse(src)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got := f.Uses("w"); got != want {
+			t.Errorf("%q uses w: %v, want %v", src, got, want)
+		}
+	}
+}

@@ -153,6 +153,18 @@ func (e *Evaluator) curvature(y, x float64, g gaussNodes) float64 {
 	return (y - x) * (y - x) * sum
 }
 
+// DivergenceTerms returns D(y, x) and the size of the terms that cancel in
+// it, |phi(x)| + |phi'(x)(y - x)| + |phi(y)|: the scale of its rounding
+// error. An affine part of phi (1e8·x) leaves D alone but makes those
+// terms, and so the rounding, large.
+func (e *Evaluator) DivergenceTerms(y, x float64) (d, size float64) {
+	e.v[0] = x
+	phi := e.m.Gradient(e.grad[:], e.v[:])
+	slope := mul0(e.grad[0], y-x)
+	py := e.Phi(y)
+	return phi + slope - py, math.Abs(phi) + math.Abs(slope) + math.Abs(py)
+}
+
 // Expected returns sum_j w_j D(y_j, x), the expected effort of report x
 // for a forecaster who gives outcome y_j probability w_j. It panics if the
 // lengths differ.
@@ -188,4 +200,53 @@ func mul0(a, b float64) float64 {
 		return 0
 	}
 	return a * b
+}
+
+// DomainError says that the generator is not finite at an outcome inside
+// the interval: there every report's effort D(y, x) = ... - phi(y) is
+// infinite or undefined, so the rule cannot be used on the interval at
+// all (qlike, ln x, on an interval reaching 0).
+type DomainError struct {
+	Lo, Hi float64
+	// Y is the first outcome found where phi is not finite, Phi its value.
+	Y, Phi float64
+}
+
+func (e *DomainError) Error() string {
+	what := "infinite"
+	if e.Phi != e.Phi {
+		what = "undefined"
+	}
+	return fmt.Sprintf("the generator is not finite at the outcome y = %g of [%g, %g] (phi = %v): every report's effort is %s when y = %g happens, so the rule cannot be used on this interval; choose an interval inside the generator's domain",
+		e.Y, e.Lo, e.Hi, e.Phi, what, e.Y)
+}
+
+// domainPoints is how many evenly spaced outcomes inside the interval
+// Domain examines besides its ends.
+const domainPoints = 1024
+
+// Domain returns a *DomainError when phi is not finite at an end of the
+// interval or at one of domainPoints outcomes between them, else nil. An
+// infinite derivative is allowed: it makes the effort of that one report
+// infinite (as ln p does at p = 0 for the log rule), not every report's.
+func (g *Generator) Domain() error {
+	e := g.NewEvaluator()
+	try := func(y float64) error {
+		if v := e.Phi(y); v != v || math.IsInf(v, 0) {
+			return &DomainError{Lo: g.Lo, Hi: g.Hi, Y: y, Phi: v}
+		}
+		return nil
+	}
+	if err := try(g.Lo); err != nil {
+		return err
+	}
+	if err := try(g.Hi); err != nil {
+		return err
+	}
+	for i := 1; i < domainPoints; i++ {
+		if err := try(g.Lo + (g.Hi-g.Lo)*float64(i)/domainPoints); err != nil {
+			return err
+		}
+	}
+	return nil
 }

@@ -7,6 +7,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"math"
+	"regexp"
 	"strconv"
 	"strings"
 )
@@ -74,12 +75,33 @@ func Floats(v []float64) []Float {
 // 0.333,0.333,0.334, far too little to hide a mistake.
 const SimplexTolerance = 1e-6
 
-// ParseVector reads a comma-separated list of numbers.
+// decimal is the one form of number a user types: digits with an
+// optional sign, decimal point and exponent. Go's own syntax would also
+// take 0x10, 1_000, NaN and Inf, which in a contract are typos.
+var decimal = regexp.MustCompile(`^[+-]?([0-9]+\.?[0-9]*|\.[0-9]+)([eE][+-]?[0-9]+)?$`)
+
+// ParseNumber reads a finite decimal number such as 10, -0.5 or 1e-3,
+// after trimming white space. Hexadecimal, digit separators, NaN and
+// infinities are refused, as are numbers too large for a float64.
+func ParseNumber(s string) (float64, error) {
+	s = strings.TrimSpace(s)
+	if !decimal.MatchString(s) {
+		return 0, fmt.Errorf("%q is not a number (write it like 10, 0.5 or 1e-3)", s)
+	}
+	x, err := strconv.ParseFloat(s, 64)
+	if err != nil || math.IsInf(x, 0) {
+		return 0, fmt.Errorf("%q is out of range", s)
+	}
+	return x, nil
+}
+
+// ParseVector reads a comma-separated list of numbers in ParseNumber's
+// form.
 func ParseVector(s string) ([]float64, error) {
 	parts := strings.Split(s, ",")
 	v := make([]float64, len(parts))
 	for i, p := range parts {
-		x, err := strconv.ParseFloat(strings.TrimSpace(p), 64)
+		x, err := ParseNumber(p)
 		if err != nil {
 			return nil, fmt.Errorf("entry %d (%q) is not a number", i+1, strings.TrimSpace(p))
 		}

@@ -90,3 +90,15 @@ func special(v float64) (string, bool) {
 	}
 	return "", false
 }
+
+// Clean rounds v to twelve significant digits, for numbers written to
+// machine-readable output that a person will also read: the binary noise
+// of a sum (143.25000000000003) goes, every digit a computation on
+// amounts in cents can mean stays.
+func Clean(v float64) float64 {
+	if _, bad := special(v); bad || v == 0 {
+		return v
+	}
+	r, _ := strconv.ParseFloat(strconv.FormatFloat(v, 'g', 12, 64), 64)
+	return r
+}

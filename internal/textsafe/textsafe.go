@@ -62,6 +62,9 @@ type Writer struct {
 // filter for a terminal.
 func NewWriter(w io.Writer) *Writer { return &Writer{w: w, KeepLines: true} }
 
+// Unwrap returns the writer t writes to.
+func (t *Writer) Unwrap() io.Writer { return t.w }
+
 const (
 	plain = iota
 	esc   // after ESC

@@ -37,14 +37,29 @@ func TestCheckGenerator(t *testing.T) {
 		{"-x^2", 0, 500, StrictlyProper, nil},
 		{"ln(x)", 0.5, 20, StrictlyProper, nil},
 		{"a = 1\n-2*exp(a*x) / a^2", -2, 2, StrictlyProper, nil},
-		// phi'' = -12 x^2 vanishes at x = 0, a grid point: proper, not strict.
-		{"-x^4", -1, 1, Proper, nil},
+		// phi'' = -12 x^2 vanishes at x = 0 only: phi is strictly concave,
+		// so the rule is strictly proper (Gneiting & Raftery 2007, Sec. 2).
+		{"-x^4", -1, 1, StrictlyProper, nil},
+		{"-x^4", 0, 1, StrictlyProper, nil},
+		// Patton's b = 1 member, -x^3/6: phi'' = -x, 0 at x = 0 only.
+		{"-x^3/6", 0, 10, StrictlyProper, nil},
+		// An affine term never changes a Bregman rule (D is unchanged),
+		// though it makes the cancelling terms 1e8 times larger.
+		{"-x^2 + 1e8*x", 0, 1, StrictlyProper, nil},
+		// Affine phi: D = 0 for every pair, every report ties: proper.
+		{"x", 0, 1, Proper, nil},
+		{"3*x+2", 0, 1, Proper, nil},
+		// Flat on [0, 1/2], strictly concave after: ties among reports
+		// below 1/2 (derived by hand).
+		{"if(x < 0.5, 0, -(x - 0.5)^2)", 0, 1, Proper, nil},
 		// Convex: every report but the mean does better.
 		{"x^2", 0, 10, Improper, []string{"concavity", "nonnegativity", "properness"}},
 		// Concave up to 5, convex after.
 		{"if(x < 5, -x^2, x^2 - 20*x + 50)", 0, 10, Improper, []string{"concavity", "nonnegativity", "properness"}},
-		// ln x at 0 is -Inf: the effort is not finite at the end.
-		{"ln(x)", 0, 10, StrictlyProper, []string{"boundedness"}},
+		// -x ln x (Patton's b = -1) has phi'(0) = +Inf: the report 0 has
+		// infinite effort (a note, not a failure, as for the log rule), every outcome is
+		// finite.
+		{"-x*ln(x)", 0, 10, StrictlyProper, nil},
 	}
 	for _, tc := range cases {
 		r, err := CheckGenerator(context.Background(), gen(t, tc.src, tc.lo, tc.hi), Settings{Resolution: 20})

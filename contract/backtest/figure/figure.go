@@ -1,13 +1,15 @@
 // Package figure draws a reliability picture for yes/no forecasts with
-// gonum/plot: each forecaster's observed frequency of the event against
-// the probability they gave it, bin by bin, beside the diagonal of
-// perfect reliability. It is a separate package so that the engine does
-// not carry a plotting library.
+// gonum/plot: each forecaster's PAV-recalibrated frequency of the event
+// against the probability they gave it, with the consistency band that
+// calibrated forecasts would fill (dashed), beside the diagonal of
+// perfect reliability, and the caution every export carries. It is a
+// separate package so that the engine does not carry a plotting library.
 package figure
 
 import (
 	"bytes"
 	"fmt"
+	"image/color"
 	"math"
 	"path/filepath"
 	"strings"
@@ -37,11 +39,16 @@ func Format(path string) (string, error) {
 }
 
 // Reliability plots curves of the event called outcome. Point area grows
-// with the number of forecasts in the bin.
-func Reliability(curves []backtest.Curve, outcome, title string) (*plot.Plot, error) {
+// with the number of forecasts at the point; a curve's band, where drawn,
+// is two dashed lines in its colour. caution is printed under the x axis.
+func Reliability(curves []backtest.Curve, outcome, title string, caution []string) (*plot.Plot, error) {
 	p := plot.New()
 	p.Title.Text = title
 	p.X.Label.Text = fmt.Sprintf("forecast probability of %q", outcome)
+	if len(caution) > 0 {
+		p.X.Label.Text += "\n" + strings.Join(caution, " ")
+		p.X.Label.TextStyle.Font.Size = vg.Points(7)
+	}
 	p.Y.Label.Text = fmt.Sprintf("observed frequency of %q", outcome)
 	p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = 0, 1, 0, 1
 	p.X.Tick.Marker, p.Y.Tick.Marker = tenths{}, tenths{}
@@ -84,6 +91,9 @@ func Reliability(curves []backtest.Curve, outcome, title string) (*plot.Plot, er
 		}
 		p.Add(line, pts)
 		p.Legend.Add(c.Name, line, pts)
+		if err := addBand(p, c, col); err != nil {
+			return nil, err
+		}
 	}
 	// Top left is where a reliability picture is emptiest: forecasts there
 	// would be low probabilities of events that nearly always happened.
@@ -120,4 +130,29 @@ func Encode(p *plot.Plot, format string) ([]byte, error) {
 		return nil, err
 	}
 	return buf.Bytes(), nil
+}
+
+// addBand draws the lower and upper edges of a curve's consistency band.
+func addBand(p *plot.Plot, c backtest.Curve, col color.Color) error {
+	var lo, hi plotter.XYs
+	for _, pt := range c.Points {
+		if pt.Banded() {
+			lo = append(lo, plotter.XY{X: pt.Forecast, Y: pt.Lo})
+			hi = append(hi, plotter.XY{X: pt.Forecast, Y: pt.Hi})
+		}
+	}
+	if len(lo) < 2 {
+		return nil
+	}
+	for _, edge := range []plotter.XYs{lo, hi} {
+		l, err := plotter.NewLine(edge)
+		if err != nil {
+			return fmt.Errorf("band of %s: %w", c.Name, err)
+		}
+		l.Color = col
+		l.Width = vg.Points(0.6)
+		l.Dashes = []vg.Length{vg.Points(2), vg.Points(2)}
+		p.Add(l)
+	}
+	return nil
 }

@@ -24,10 +24,10 @@ func TestFormat(t *testing.T) {
 // and the picture names the event, the diagonal and each forecaster.
 func TestReliabilitySVG(t *testing.T) {
 	curves := []backtest.Curve{
-		{Name: "Alder", Points: []backtest.ReliabilityPoint{{Forecast: 0.1, Observed: 0.12, Count: 30}, {Forecast: 0.8, Observed: 0.7, Count: 5}}},
+		{Name: "Alder", Points: []backtest.ReliabilityPoint{{Forecast: 0.1, Observed: 0.12, Lo: 0.05, Hi: 0.2, Count: 30}, {Forecast: 0.8, Observed: 0.7, Lo: 0.6, Hi: 0.95, Count: 5}}},
 		{Name: "Birch"},
 	}
-	p, err := Reliability(curves, "frost", "Reliability")
+	p, err := Reliability(curves, "frost", "Reliability", []string{"checks mathematics, not law."})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -35,7 +35,7 @@ func TestReliabilitySVG(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	for _, want := range []string{"<svg", `forecast probability of &#34;frost&#34;`, "perfect reliability", "Alder", "0.4"} {
+	for _, want := range []string{"<svg", `forecast probability of &#34;frost&#34;`, "perfect reliability", "Alder", "0.4", "checks mathematics, not law."} {
 		if !bytes.Contains(data, []byte(want)) {
 			t.Errorf("svg lacks %q", want)
 		}

@@ -98,3 +98,43 @@ func PayFormula(fit *budget.Fit) string {
 	}
 	return f + ", rounded " + fit.RoundingDesc()
 }
+
+// FitStep is the grid a rule is fitted on when there is no report menu:
+// A and B come from the efforts on it (every report in steps of FitStep),
+// then every forecast is paid by the formula at the forecast itself.
+func FitStep(n int) float64 {
+	switch {
+	case n <= 4:
+		return 0.05
+	case n <= 6:
+		return 0.1
+	}
+	return 0.25
+}
+
+// Formula fits rule r to budget b without a report menu: A and B are
+// fitted on the grid of FitStep, and every forecast is paid A - B·effort
+// at the forecast as written (rounded to the budget's unit, if any), never
+// moved to a menu item; clamp, if positive, pays as if each probability
+// were at least clamp, as the table command does. Payments beyond the budget (a forecast between
+// grid points can reach past the grid's extremes) are counted by the
+// backtest, not hidden. There is no table, so nothing is re-checked.
+func Formula(name string, r *bregman.Rule, b design.Budget, clamp float64) (*Fitted, error) {
+	n := r.Outcomes()
+	step := FitStep(n)
+	m, err := budget.StepMenu(n, step, b.ReportFloor)
+	if err != nil {
+		return nil, err
+	}
+	m.Clamp = clamp
+	fit, err := budget.FitRule(r, m, b)
+	if err != nil {
+		return nil, err
+	}
+	out := &Fitted{Fit: fit, Scheme: backtest.Scheme{Name: name, Rule: r, Pay: fit, Low: b.Floor, High: fit.Cap}}
+	if c := fit.Clamp; c > 0 {
+		out.Scheme.Adjust = func(dst, p []float64) []float64 { return budget.ClampReport(dst, p, c) }
+	}
+	out.Notes = append(out.Notes, fmt.Sprintf("no report menu was given: every forecast is paid by the exact formula at the forecast as written (A and B fitted to the budget on reports in steps of %s)", table.FormatNumber(step)))
+	return out, nil
+}

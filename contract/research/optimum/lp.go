@@ -28,11 +28,12 @@ func DefaultGrid(n int) int {
 	return 8
 }
 
-// MaxGrid is the largest K accepted for n outcomes: beyond it the dense
-// simplex method takes minutes (see BENCHMARKS.md).
+// MaxGrid is the largest K accepted for n outcomes: for n = 3 the dense
+// simplex method takes tens of seconds beyond it (see BENCHMARKS.md); for
+// n = 2 the slope form keeps four rows at any grid.
 func MaxGrid(n int) int {
 	if n == 2 {
-		return 400
+		return 2000
 	}
 	return 16
 }
@@ -54,6 +55,10 @@ type Result struct {
 	// Points and Values are the mesh nodes and G there (for drawing).
 	Points [][]float64
 	Values []float64
+	// Centroids holds one report inside each cell: a menu that contains
+	// them sees every piece's payments, so a budget fit on it keeps the
+	// rule's payments within the budget at every report.
+	Centroids [][]float64
 	// Model describes the research model the rule was optimised for.
 	Model string
 }
@@ -114,7 +119,13 @@ func Solve(ctx context.Context, post *research.Posterior, floor, cap float64, s 
 	}
 	done := make(chan answer, 1)
 	go func() {
-		y, err := solveLP(obj, rows, rhs, relax)
+		var y []float64
+		var err error
+		if n == 2 {
+			y, err = solveBinary(m, obj, rows, rhs, relax)
+		} else {
+			y, err = solveLP(obj, rows, rhs, relax)
+		}
 		done <- answer{y, err}
 	}()
 	var a answer
@@ -126,7 +137,11 @@ func Solve(ctx context.Context, post *research.Posterior, floor, cap float64, s 
 	if a.err != nil {
 		return nil, a.err
 	}
-	return result(m, post, a.y, obj, floor, cap, K, len(rows))
+	used := len(rows)
+	if n == 2 {
+		used -= len(m.points) - 2 // the convexity rows are the slope form's δ >= 0
+	}
+	return result(m, post, a.y, obj, floor, cap, K, used)
 }
 
 // objective is, per node v, E[hat_v(q)] - hat_v(q0): the gain is
@@ -248,6 +263,57 @@ func solveLP(obj []float64, rows [][]float64, rhs, relax []float64) ([]float64, 
 	return x[:nv], nil
 }
 
+// solveBinary solves the n = 2 program in slope form: G at the nodes is
+// y = T·x with x = (y_0, s+, s-, δ_1, ..., δ_{J-1}) >= 0, the value at 0,
+// the first cell's slope s+ - s- and the slope's increase δ_i at each
+// interior node, so G is convex by construction (δ >= 0) and only the
+// cap and floor rows remain: four rows instead of one per node, which
+// the dense simplex method solves in milliseconds at any grid.
+func solveBinary(m *mesh, obj []float64, rows [][]float64, rhs, relax []float64) ([]float64, error) {
+	J := len(m.points) - 1
+	nv := J + 2
+	T := make([][]float64, J+1)
+	for i := range T {
+		xi := m.points[i][0]
+		t := make([]float64, nv)
+		t[0], t[1], t[2] = 1, xi, -xi
+		for l := 1; l < J; l++ {
+			t[2+l] = math.Max(0, xi-m.points[l][0])
+		}
+		T[i] = t
+	}
+	mul := func(r []float64) []float64 {
+		out := make([]float64, nv)
+		for i, c := range r {
+			if c == 0 {
+				continue
+			}
+			for j, t := range T[i] {
+				out[j] += c * t
+			}
+		}
+		return out
+	}
+	// The convexity rows come first (one per interior node); the rest
+	// are the cap and floor rows.
+	skip := J - 1
+	var brows [][]float64
+	for _, r := range rows[skip:] {
+		brows = append(brows, mul(r))
+	}
+	x, err := solveLP(mul(obj), brows, rhs[skip:], relax[skip:])
+	if err != nil {
+		return nil, err
+	}
+	y := make([]float64, J+1)
+	for i, t := range T {
+		for j, v := range t {
+			y[i] += v * x[j]
+		}
+	}
+	return y, nil
+}
+
 // perturb sets the relaxation of the rows, in units of cap - floor: a
 // convexity row by perturb/K² (so that slopes, which the row bounds in
 // steps of 1/K, drift by at most perturb over the K cells of a line), a
@@ -281,6 +347,13 @@ func result(m *mesh, post *research.Posterior, y, obj []float64, floor, cap floa
 	// defect.
 	tol := 1e3 * perturb * R
 	for c, cell := range m.cells {
+		ctr := make([]float64, m.n)
+		for _, v := range cell {
+			for k := range ctr {
+				ctr[k] += m.points[v][k] / float64(len(cell))
+			}
+		}
+		r.Centroids = append(r.Centroids, ctr)
 		g := make([]float64, m.n)
 		for k := range g {
 			mu, err := m.barycentric(c, unit(m.n, k))
@@ -294,6 +367,13 @@ func result(m *mesh, post *research.Posterior, y, obj []float64, floor, cap floa
 				return nil, fmt.Errorf("optimum: the solution pays %g for outcome %d on cell %d, outside [%g, %g]", g[k], k+1, c, floor, cap)
 			}
 			g[k] = math.Min(cap, math.Max(floor, tidy(g[k], R)))
+			// A payment the relaxation left a hair from the floor or the
+			// cap is at it: the exact optimum pays the bounds there.
+			if g[k]-floor < tol {
+				g[k] = floor
+			} else if cap-g[k] < tol {
+				g[k] = cap
+			}
 		}
 		r.addPiece(g, tol)
 	}

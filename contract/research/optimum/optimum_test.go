@@ -198,3 +198,38 @@ func TestSolveErrors(t *testing.T) {
 		t.Errorf("cancelled: %v", err)
 	}
 }
+
+// The n = 2 program in slope form (four rows) and in the general form
+// (one convexity row per interior node, as for n = 3) are two
+// formulations of one linear program: their values agree.
+func TestBinaryFormsAgree(t *testing.T) {
+	for _, c := range []struct{ q0, kappa float64 }{{0.3, 20}, {0.62, 1.5}, {0.05, 40}} {
+		p, err := research.Dirichlet([]float64{c.q0, 1 - c.q0}, c.kappa, research.Quadrature{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		const K = 30
+		m := binaryMesh(K, c.q0)
+		obj, err := objective(m, p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		rows, rhs, relax := constraints(m, K)
+		yg, err := solveLP(obj, rows, rhs, relax)
+		if err != nil {
+			t.Fatal(err)
+		}
+		ys, err := solveBinary(m, obj, rows, rhs, relax)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var vg, vs float64
+		for i := range obj {
+			vg += obj[i] * yg[i]
+			vs += obj[i] * ys[i]
+		}
+		if math.Abs(vg-vs) > 1e-7 {
+			t.Errorf("%+v: general form %.12g, slope form %.12g", c, vg, vs)
+		}
+	}
+}

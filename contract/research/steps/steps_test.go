@@ -2,6 +2,7 @@ package steps
 
 import (
 	"context"
+	"fmt"
 	"math"
 	"testing"
 
@@ -117,5 +118,19 @@ func TestExtremes(t *testing.T) {
 	}
 	if _, err := Solve(context.Background(), quadratic, 1, 3, Settings{Cost: -1}); err == nil {
 		t.Error("negative cost accepted")
+	}
+}
+
+// BenchmarkSolve times the dynamic program at the default cap of 1000
+// observations and at 5000, under the quadratic rule.
+func BenchmarkSolve(b *testing.B) {
+	for _, T := range []int{1000, 5000} {
+		b.Run(fmt.Sprintf("steps=%d", T), func(b *testing.B) {
+			for b.Loop() {
+				if _, err := Solve(context.Background(), quadratic, 3, 7, Settings{Cost: 0.01, MaxSteps: T}); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
 	}
 }

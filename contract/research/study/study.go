@@ -186,7 +186,7 @@ func Run(ctx context.Context, labels []string, b design.Budget, s Spec) (*Report
 	}
 	if s.Optimum && (n == 2 || n == 3) {
 		stage("solving the linear program for the best bounded rule", len(named))
-		if err := addOptimum(ctx, rep, labels, menu, b, s); err != nil {
+		if err := addOptimum(ctx, rep, labels, b, s); err != nil {
 			return nil, err
 		}
 	}
@@ -272,7 +272,7 @@ func stepsPrior(s Spec) (a, b float64) {
 	return k * q, k * (1 - q)
 }
 
-func addOptimum(ctx context.Context, rep *Report, labels []string, menu *budget.Menu, b design.Budget, s Spec) error {
+func addOptimum(ctx context.Context, rep *Report, labels []string, b design.Budget, s Spec) error {
 	r, err := optimum.Solve(ctx, s.Model, b.Floor, b.Cap, optimum.Settings{Grid: s.Grid})
 	if errors.Is(err, optimum.ErrNoInformation) {
 		rep.Notes = append(rep.Notes, "no best rule for research: "+strings.TrimPrefix(err.Error(), "optimum: "))
@@ -282,13 +282,27 @@ func addOptimum(ctx context.Context, rep *Report, labels []string, menu *budget.
 		return err
 	}
 	o := &Optimum{Result: r, Mix: s.Mix}
+	// The best rule is bounded at every report and needs no report floor;
+	// it is fitted on the step menu with the vertices plus a report inside
+	// every cell of its grid, so that the fit sees every piece's payments
+	// and keeps all of them in the budget (a menu that missed the piece
+	// beyond its last item would stretch B until that piece paid past the
+	// cap).
+	ob := b
+	ob.ReportFloor = 0
+	full, err := budget.StepMenu(len(labels), b.Step, 0)
+	if err != nil {
+		return err
+	}
+	omenu := &budget.Menu{Reports: append(append([][]float64(nil), full.Reports...), r.Centroids...),
+		Desc: full.Desc + ", and a report inside each cell of the grid"}
 	mk := func(src, title string) (*design.Design, Row, error) {
-		d := &design.Design{Version: design.SchemaVersion, Title: title, Labels: labels, Mode: design.ModeGenerator, Formula: src, Budget: b}
+		d := &design.Design{Version: design.SchemaVersion, Title: title, Labels: labels, Mode: design.ModeGenerator, Formula: src, Budget: ob}
 		rule, err := d.Rule()
 		if err != nil {
 			return nil, Row{}, fmt.Errorf("study: the optimum's formula does not compile: %v", err)
 		}
-		fit, err := budget.FitRule(rule, menu, b)
+		fit, err := budget.FitRule(rule, omenu, ob)
 		if err != nil {
 			return nil, Row{}, err
 		}
@@ -319,6 +333,9 @@ func notes(rep *Report, s Spec, b design.Budget) []string {
 	}
 	if o := rep.Optimum; o != nil {
 		out = append(out, fmt.Sprintf("the best rule is grid evidence: best over G piecewise linear on a grid of step 1/%d (%d nodes, %d cells) with the base rate as a node, found by gonum's simplex method; payments over every report within [%g, %g]", o.Result.Grid, o.Result.Nodes, o.Result.Cells, b.Floor, b.Cap))
+		if b.ReportFloor > 0 {
+			out = append(out, fmt.Sprintf("the best rule pays within [%g, %g] at every report, so its design is written without the report floor %g", b.Floor, b.Cap, b.ReportFloor))
+		}
 		out = append(out, fmt.Sprintf("the best rule is proper but not strictly: reports on one side of its bends tie; mixing in %g %% of the quadratic rule makes it strictly proper and costs %.4g per forecast of research gain; a payment table of the best rule itself fails the menu re-check for those ties, so a contract should use the mix", 100*o.Mix, o.MixCost))
 	}
 	if len(rep.Labels) == 2 && s.Steps {

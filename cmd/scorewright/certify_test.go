@@ -1,0 +1,68 @@
+package main
+
+import (
+	"encoding/json"
+	"strings"
+	"testing"
+)
+
+type certifiedJSON struct {
+	Verdict     string `json:"verdict"`
+	Kind        string `json:"kind"`
+	Certificate *struct {
+		Kind    string  `json:"kind"`
+		Verdict string  `json:"verdict"`
+		Share   float64 `json:"share"`
+		Witness *struct {
+			Belief []float64 `json:"belief"`
+			Report []float64 `json:"report"`
+			Gain   float64   `json:"gain"`
+		} `json:"witness"`
+	} `json:"certificate"`
+}
+
+// The quadratic rule is strictly proper (Brier 1950): the certificate
+// proves it, and the grid's verdict stays labelled as grid evidence.
+func TestCheckCertify(t *testing.T) {
+	code, out, errs := runCmd(t, "check", "--outcomes", "3", "--preset", "quadratic", "--resolution", "20", "--certify", "--deadline", "10s", "--json")
+	if code != 0 {
+		t.Fatalf("exit %d, stderr %q", code, errs)
+	}
+	var v certifiedJSON
+	if err := json.Unmarshal([]byte(out), &v); err != nil {
+		t.Fatal(err)
+	}
+	if v.Kind != "grid evidence" || v.Certificate == nil || v.Certificate.Kind != "certified" || v.Certificate.Verdict != "strictly-proper" || v.Certificate.Share != 1 {
+		t.Errorf("got %s", out[:min(len(out), 400)])
+	}
+}
+
+// A bump of width 1e-6 the grid cannot see makes the rule improper (its
+// curvature 2·1e-10/1e-12 = 200 beats the quadratic's -2, derived by
+// hand): the grid says strictly proper, the certificate improper, exit 1.
+func TestCheckCertifyCatchesNarrowBump(t *testing.T) {
+	code, out, _ := runCmd(t, "check", "--outcomes", "2", "--generator", "1 - sum(p^2) + 1e-10*exp(-(p1 - 0.3141)^2/1e-12)", "--certify", "--deadline", "10s")
+	if code != 1 || !strings.Contains(out, "verdict: strictly-proper (grid evidence)") || !strings.Contains(out, "certificate (certified): improper") {
+		t.Errorf("exit %d\n%s", code, out)
+	}
+}
+
+// A jackpot of 5 on reports within 1e-7 of p1 = 0.3141: the audit's grid
+// misses it, the certificate finds a belief gaining more than 4.
+func TestAuditCertifyCatchesJackpot(t *testing.T) {
+	code, out, _ := runCmd(t, "audit", "--outcomes", "2", "--payout", "1 - sum((p - hit)^2) + if(abs(p1 - 0.3141) < 1e-7, 5, 0)", "--certify", "--json")
+	var v certifiedJSON
+	if err := json.Unmarshal([]byte(out), &v); err != nil {
+		t.Fatal(err)
+	}
+	if code != 1 || v.Certificate == nil || v.Certificate.Verdict != "improper" || v.Certificate.Witness == nil || v.Certificate.Witness.Gain < 4 {
+		t.Errorf("exit %d: %s", code, out[:min(len(out), 600)])
+	}
+}
+
+func TestCertifyRefusesPointMode(t *testing.T) {
+	code, _, errs := runCmd(t, "check", "--interval", "0,1", "--generator", "-x^2", "--certify")
+	if code != 2 || !strings.Contains(errs, "--certify") {
+		t.Errorf("exit %d: %s", code, errs)
+	}
+}

@@ -1,0 +1,337 @@
+package backtest
+
+import (
+	"math"
+	"sort"
+
+	"scorewright/contract/backtest/corp"
+	"scorewright/contract/backtest/history"
+	"scorewright/generator/bregman"
+)
+
+// Forecaster is one forecaster's backtest.
+type Forecaster struct {
+	Name string
+	// Count is the number of valid forecasts.
+	Count int
+	// Money holds one entry per scheme, in the order the schemes were given
+	// (Min and Max are NaN: they are kept for all forecasts together).
+	Money []Money
+	// Rank is the forecaster's rank under each scheme by mean pay per
+	// forecast (1 = best; ties share the better rank).
+	Rank []int
+	// Decomposition of the mean effort into uncertainty, resolution and
+	// reliability over Bins, per scheme.
+	Decomposition []Decomposition
+	// Bins are the forecast groups the binned decomposition used, sorted
+	// by forecast; Binning says how they were formed.
+	Bins    []Bin
+	Binning Binning
+	// CORP is the decomposition by isotonic recalibration, per scheme and
+	// event: for two outcomes one event (the first outcome) under each
+	// scheme's own rule; for more, each outcome against the rest under
+	// the squared error of the event (the same for every scheme).
+	CORP [][]corp.Decomposition
+	// Events are the forecasts of each event grouped by probability, as
+	// CORP and the reliability picture use them (one event for two
+	// outcomes, n for more).
+	Events [][]corp.Group
+}
+
+// Result is a whole backtest.
+type Result struct {
+	// Schemes are the scheme names, in order.
+	Schemes []string
+	// Outcomes is the number of outcomes.
+	Outcomes int
+	// Forecasters are detailed, sorted by name: every one when there are
+	// at most 4·Show, else the Show best and Show worst under the first
+	// scheme. ForecasterCount counts all; EachForecaster visits all.
+	Forecasters     []Forecaster
+	ForecasterCount int
+	// All is every valid forecast together, per scheme.
+	All []Money
+	// Months is the pay by month of the forecasts' dates, in order, when
+	// the history has a date column.
+	Months []MonthMoney
+	// Rows is the number of valid forecasts; SkippedCount the number of
+	// rows skipped, of which the first Skipped are kept.
+	Rows, SkippedCount int
+	Skipped            []Skipped
+	// Grouping says whether the decomposition saw every forecast exactly
+	// or grouped on a grid (too many distinct forecasts).
+	Grouping string
+	// Spans counts valid records whose question ran across lines.
+	Spans history.Spans
+	t     *Tally
+	ranks [][]int32 // per scheme, per forecaster
+}
+
+// MonthMoney is the pay of one month's forecasts.
+type MonthMoney struct {
+	Month history.Month
+	Money []Money // per scheme
+}
+
+// Skipped is a record left out, with the reason: Line is where it starts
+// and EndLine where it ends (past Line when a quoted field ran across
+// lines).
+type Skipped struct {
+	Line, EndLine int
+	Why           string
+}
+
+// Shown reports whether the Result details every forecaster.
+func (r *Result) Shown() bool { return len(r.Forecasters) == r.ForecasterCount }
+
+// EachForecaster calls fn with every forecaster in name order, detailed
+// as in Forecasters but without Bins and Events, which it does not keep;
+// fn must not retain f. It stops at the first error fn returns.
+func (r *Result) EachForecaster(fn func(f *Forecaster) error) error {
+	t := r.t
+	for _, i := range t.byName() {
+		f := t.forecasterResult(int(i), r.ranks, false)
+		if err := fn(&f); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// byName returns forecaster indices sorted by name.
+func (t *Tally) byName() []int32 {
+	order := make([]int32, len(t.names))
+	for i := range order {
+		order[i] = int32(i)
+	}
+	sort.Slice(order, func(a, b int) bool { return t.names[order[a]] < t.names[order[b]] })
+	return order
+}
+
+// Result summarises the forecasts added so far.
+func (t *Tally) Result() *Result {
+	r := &Result{Outcomes: t.n, ForecasterCount: len(t.names), Grouping: t.store.Grouping(), t: t}
+	for _, s := range t.schemes {
+		r.Schemes = append(r.Schemes, s.Name)
+	}
+	for i := range t.all {
+		r.All = append(r.All, t.all[i].money())
+	}
+	if len(r.All) > 0 {
+		r.Rows = r.All[0].Count
+	}
+	for m, mt := range t.months {
+		mm := MonthMoney{Month: m}
+		for i := range mt {
+			mm.Money = append(mm.Money, mt[i].money())
+		}
+		r.Months = append(r.Months, mm)
+	}
+	sort.Slice(r.Months, func(i, j int) bool { return r.Months[i].Month < r.Months[j].Month })
+	r.ranks = make([][]int32, len(t.schemes))
+	for s := range t.schemes {
+		r.ranks[s] = t.rank(s)
+	}
+	for _, i := range t.shown(r.ranks) {
+		r.Forecasters = append(r.Forecasters, t.forecasterResult(int(i), r.ranks, true))
+	}
+	return r
+}
+
+// shown picks the forecasters a Result details, in name order: all of
+// them, or the Show best and Show worst under the first scheme.
+func (t *Tally) shown(ranks [][]int32) []int32 {
+	all := t.byName()
+	if len(all) <= 4*t.opt.Show || len(ranks) == 0 {
+		return all
+	}
+	order := make([]int32, len(all))
+	for i := range order {
+		order[i] = int32(i)
+	}
+	rk := ranks[0]
+	sort.SliceStable(order, func(a, b int) bool { return rk[order[a]] < rk[order[b]] })
+	pick := map[int32]bool{}
+	for _, i := range order[:t.opt.Show] {
+		pick[i] = true
+	}
+	for _, i := range order[len(order)-t.opt.Show:] {
+		pick[i] = true
+	}
+	var out []int32
+	for _, i := range all {
+		if pick[i] {
+			out = append(out, i)
+		}
+	}
+	return out
+}
+
+// rank ranks forecasters by mean pay under scheme s, best first; ties
+// share the better rank and NaN ranks last.
+func (t *Tally) rank(s int) []int32 {
+	k := len(t.schemes)
+	mean := make([]float64, len(t.names))
+	for i := range mean {
+		m := &t.money[i*k+s]
+		mean[i] = m.pay.value() / float64(m.count)
+	}
+	order := make([]int32, len(mean))
+	for i := range order {
+		order[i] = int32(i)
+	}
+	better := func(a, b float64) bool {
+		if math.IsNaN(b) {
+			return !math.IsNaN(a)
+		}
+		return a > b
+	}
+	sort.SliceStable(order, func(a, b int) bool { return better(mean[order[a]], mean[order[b]]) })
+	ranks := make([]int32, len(mean))
+	for pos, j := range order {
+		rank := int32(pos + 1)
+		if pos > 0 {
+			if prev := order[pos-1]; !better(mean[prev], mean[j]) {
+				rank = ranks[prev]
+			}
+		}
+		ranks[j] = rank
+	}
+	return ranks
+}
+
+// forecasterResult details forecaster i; keep says whether to keep the
+// bins and event groups in the result.
+func (t *Tally) forecasterResult(i int, ranks [][]int32, keep bool) Forecaster {
+	k := len(t.schemes)
+	f := Forecaster{Name: t.names[i], Binning: Binning{Grid: t.opt.Grid}}
+	if t.opt.Distinct {
+		f.Binning.Grid = 0
+	}
+	bins := t.bins(i, f.Binning.Grid)
+	events := t.events(i)
+	for s := range t.schemes {
+		m := t.money[i*k+s].money()
+		f.Count = m.Count
+		f.Money = append(f.Money, m)
+		f.Rank = append(f.Rank, int(ranks[s][i]))
+		d := Decompose(t.scorers[s], bins)
+		d.MeanEffort = m.MeanEffort
+		d.WithinBin = m.MeanEffort - d.Identity()
+		f.Decomposition = append(f.Decomposition, d)
+		f.CORP = append(f.CORP, t.corpOf(s, events))
+	}
+	if keep {
+		f.Bins, f.Events = bins, events
+	}
+	return f
+}
+
+// events groups forecaster i's forecasts of each event by probability:
+// the first outcome for two outcomes, every outcome for more.
+func (t *Tally) events(i int) [][]corp.Group {
+	ne := t.n
+	if t.n == 2 {
+		ne = 1
+	}
+	raw := make([][]corp.Group, ne)
+	t.store.entries(i, func(p []float64, hits []uint32) {
+		var c int
+		for _, h := range hits {
+			c += int(h)
+		}
+		for k := range ne {
+			raw[k] = append(raw[k], corp.Group{X: math.Min(1, math.Max(0, p[k])), Count: c, Hits: int(hits[k])})
+		}
+	})
+	for k := range raw {
+		// Sorted merges equal probabilities; every group is valid by
+		// construction, so it cannot fail.
+		raw[k], _ = corp.Sorted(raw[k])
+	}
+	return raw
+}
+
+// corpOf is the CORP decomposition of every event under scheme s: its own
+// rule for two outcomes, the squared error of each event for more.
+func (t *Tally) corpOf(s int, events [][]corp.Group) []corp.Decomposition {
+	out := make([]corp.Decomposition, len(events))
+	for k, g := range events {
+		loss := corp.SquaredError
+		if t.n == 2 {
+			loss = binaryLoss(t.scorers[s])
+		}
+		out[k] = corp.Decompose(g, loss)
+	}
+	return out
+}
+
+// binaryLoss is a two-outcome rule's effort as a loss of the first
+// outcome's probability x: L((x, 1−x), first) if it happens, else
+// L((x, 1−x), second).
+func binaryLoss(sc *bregman.Scorer) corp.Loss {
+	p, e := make([]float64, 2), make([]float64, 2)
+	return func(x float64) (float64, float64) {
+		p[0], p[1] = x, 1-x
+		sc.Efforts(e, p)
+		return e[0], e[1]
+	}
+}
+
+// bins groups forecaster i's forecasts into cells of width 1/grid in the
+// first n−1 probabilities (grid 0: by distinct forecast), sorted by mean
+// forecast.
+func (t *Tally) bins(i, grid int) []Bin {
+	n := t.n
+	table := newKeyTable(n)
+	key := make([]float64, n)
+	var count []int
+	var sumP, hitsK []float64
+	t.store.entries(i, func(p []float64, hits []uint32) {
+		copy(key, p)
+		if grid > 0 {
+			for k, x := range p[:n-1] {
+				key[k] = math.Min(float64(grid-1), math.Floor(x*float64(grid)))
+			}
+			key[n-1] = 0
+		}
+		j, made := table.find(key, true)
+		if made {
+			count = append(count, 0)
+			sumP = append(sumP, make([]float64, n)...)
+			hitsK = append(hitsK, make([]float64, n)...)
+		}
+		var c int
+		for k, h := range hits {
+			c += int(h)
+			hitsK[j*n+k] += float64(h)
+		}
+		count[j] += c
+		for k, x := range p {
+			sumP[j*n+k] += float64(c) * x
+		}
+	})
+	out := make([]Bin, len(count))
+	for j, c := range count {
+		f, o := make([]float64, n), make([]float64, n)
+		for k := range f {
+			f[k] = sumP[j*n+k] / float64(c)
+			o[k] = hitsK[j*n+k] / float64(c)
+		}
+		out[j] = Bin{Count: c, Forecast: f, Observed: o}
+	}
+	sortBins(out)
+	return out
+}
+
+func sortBins(out []Bin) {
+	sort.Slice(out, func(i, j int) bool {
+		a, c := out[i].Forecast, out[j].Forecast
+		for k := range a {
+			if a[k] != c[k] {
+				return a[k] < c[k]
+			}
+		}
+		return false
+	})
+}

@@ -1,0 +1,185 @@
+package backtest
+
+import (
+	"fmt"
+	"math"
+)
+
+// DefaultMaxDistinct bounds the distinct forecasts the decomposition keeps
+// exactly (a report menu has a few hundred; model output one per row).
+// Past it forecasts are grouped to a grid of probabilities, and the grid
+// is stated.
+const DefaultMaxDistinct = 1 << 20
+
+// outcomeStore keeps, in memory that grows with the distinct (forecaster,
+// forecast) pairs and not with the rows, how often each outcome followed
+// each forecast of each forecaster: all the CORP decomposition, the binned
+// decomposition and the reliability picture need. Forecasts are interned
+// once for all forecasters; each pair is one entry of n counts, chained
+// per forecaster, so a forecaster costs one int32 until it forecasts.
+type outcomeStore struct {
+	n           int
+	maxDistinct int
+	// quantum is 0 while forecasts are kept exactly, else the grid step
+	// every probability was rounded to.
+	quantum   float64
+	forecasts keyTable // distinct forecasts (rounded when quantum > 0)
+	pairs     pairTable
+	hits      []uint32 // n per entry
+	next      []int32  // next entry of the same forecaster; -1 ends
+	forecast  []int32  // forecast of each entry
+	owner     []int32  // forecaster of each entry
+	head      []int32  // first entry of each forecaster; -1: none yet
+	key       []float64
+	last      int // entry found by the last call to entry
+}
+
+func newOutcomeStore(n, maxDistinct int) *outcomeStore {
+	if maxDistinct <= 0 {
+		maxDistinct = DefaultMaxDistinct
+	}
+	return &outcomeStore{n: n, maxDistinct: maxDistinct, forecasts: newKeyTable(n), pairs: newPairTable(), key: make([]float64, n)}
+}
+
+// forecastID interns p, returning its index and whether it is new. When
+// the distinct forecasts outgrow the bound they are grouped first.
+func (s *outcomeStore) forecastID(p []float64) (int, bool) {
+	for {
+		k := s.key
+		for i, x := range p {
+			k[i] = x + 0 // -0 and +0 are one forecast
+			if s.quantum > 0 {
+				k[i] = math.Round(x/s.quantum) * s.quantum
+			}
+		}
+		if s.forecasts.len() < s.maxDistinct {
+			return s.forecasts.find(k, true)
+		}
+		if i, _ := s.forecasts.find(k, false); i >= 0 {
+			return i, false
+		}
+		s.coarsen()
+	}
+}
+
+// addForecaster makes room for the next forecaster.
+func (s *outcomeStore) addForecaster() { s.head = append(s.head, -1) }
+
+// add counts outcome y after forecast id by forecaster f.
+func (s *outcomeStore) add(f, id, y int) {
+	s.entry(f, id)
+	s.hits[s.last*s.n+y]++
+}
+
+// entry finds or makes the entry of forecaster f and forecast id, leaving
+// its index in s.last.
+func (s *outcomeStore) entry(f, id int) {
+	e, made := s.pairs.find(uint64(f)<<32|uint64(id), true, len(s.next))
+	if made {
+		s.hits = append(s.hits, make([]uint32, s.n)...)
+		s.next = append(s.next, s.head[f])
+		s.forecast = append(s.forecast, int32(id))
+		s.owner = append(s.owner, int32(f))
+		s.head[f] = int32(e)
+	}
+	s.last = e
+}
+
+// entries calls fn with the forecast and outcome counts of each of
+// forecaster f's entries.
+func (s *outcomeStore) entries(f int, fn func(p []float64, hits []uint32)) {
+	for e := s.head[f]; e >= 0; e = s.next[e] {
+		fn(s.vector(int(s.forecast[e])), s.hits[int(e)*s.n:(int(e)+1)*s.n])
+	}
+}
+
+// firstQuantum is the first grid once forecasts are too many: finer than
+// any probability a person writes, coarse enough to merge model output.
+const firstQuantum = 1.0 / (1 << 20)
+
+// coarsen rounds every forecast to a grid 16 times coarser than before
+// (the first: 2^-20) and merges the entries that meet.
+func (s *outcomeStore) coarsen() {
+	if s.quantum == 0 {
+		s.quantum = firstQuantum
+	} else {
+		s.quantum *= 16
+	}
+	old := s.forecasts
+	s.forecasts = newKeyTable(s.n)
+	remap := make([]int32, old.len())
+	for i := range remap {
+		for k, x := range old.keys[i*s.n : (i+1)*s.n] {
+			s.key[k] = math.Round(x/s.quantum) * s.quantum
+		}
+		j, _ := s.forecasts.find(s.key, true)
+		remap[i] = int32(j)
+	}
+	hits, owner, forecast := s.hits, s.owner, s.forecast
+	s.pairs = newPairTable()
+	s.hits, s.next, s.forecast, s.owner = nil, nil, nil, nil
+	for f := range s.head {
+		s.head[f] = -1
+	}
+	for e, f := range owner {
+		s.entry(int(f), int(remap[forecast[e]]))
+		for k := range s.n {
+			s.hits[s.last*s.n+k] += hits[e*s.n+k]
+		}
+	}
+}
+
+// vector returns forecast id.
+func (s *outcomeStore) vector(id int) []float64 { return s.forecasts.keys[id*s.n : (id+1)*s.n] }
+
+// Grouping says how the decomposition saw forecasts: exactly, or rounded
+// to a grid because there were too many distinct ones.
+func (s *outcomeStore) Grouping() string {
+	if s.quantum == 0 {
+		return "every distinct forecast kept exactly"
+	}
+	return fmt.Sprintf("forecasts rounded to multiples of %g (more than %d distinct forecasts)", s.quantum, s.maxDistinct)
+}
+
+// pairTable maps a 64-bit key to an entry index by open addressing.
+type pairTable struct {
+	slots []int32 // entry + 1; 0 is empty
+	keys  []uint64
+}
+
+func newPairTable() pairTable { return pairTable{slots: make([]int32, 16)} }
+
+// find returns the entry of key, adding it as entry next when add is set;
+// made reports a new entry, and the index is -1 when absent and not added.
+func (t *pairTable) find(key uint64, add bool, next int) (int, bool) {
+	mask := uint64(len(t.slots) - 1)
+	for s := fmix(key) & mask; ; s = (s + 1) & mask {
+		j := int(t.slots[s]) - 1
+		if j < 0 {
+			if !add {
+				return -1, false
+			}
+			t.slots[s] = int32(next + 1)
+			t.keys = append(t.keys, key)
+			if 2*len(t.keys) > len(t.slots) {
+				t.rehash(2 * len(t.slots))
+			}
+			return next, true
+		}
+		if t.keys[j] == key {
+			return j, false
+		}
+	}
+}
+
+func (t *pairTable) rehash(size int) {
+	t.slots = make([]int32, size)
+	mask := uint64(size - 1)
+	for j, k := range t.keys {
+		s := fmix(k) & mask
+		for t.slots[s] != 0 {
+			s = (s + 1) & mask
+		}
+		t.slots[s] = int32(j + 1)
+	}
+}

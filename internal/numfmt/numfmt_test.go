@@ -1,0 +1,43 @@
+package numfmt
+
+import (
+	"math"
+	"testing"
+)
+
+// The cases are the noise a person saw in exports (1.3447999999999998,
+// 3.15e-17) and sums of amounts in cents; expected strings derived by hand.
+func TestReadable(t *testing.T) {
+	for _, c := range []struct {
+		v    float64
+		want string
+	}{
+		{1.3447999999999998, "1.3448"}, {0.1 + 0.2, "0.3"}, {143.25000000000003, "143.25"},
+		{150, "150"}, {-0.0, "0"}, {1e-7, "1e-07"}, {2.5e15, "2.5e+15"}, {math.NaN(), "NaN"}, {math.Inf(-1), "-Inf"},
+	} {
+		if got := Readable(c.v); got != c.want {
+			t.Errorf("Readable(%v) = %q, want %q", c.v, got, c.want)
+		}
+	}
+}
+
+func TestFixedSmallDecimals(t *testing.T) {
+	if got := Fixed(-0.0001, 2); got != "0.00" {
+		t.Errorf("Fixed(-0.0001, 2) = %q", got)
+	}
+	if got := Small(3.15e-17, 150, 1e-12); got != "0" {
+		t.Errorf("Small noise = %q", got)
+	}
+	if got := Small(0.03, 150, 1e-12); got != "0.03" {
+		t.Errorf("Small margin = %q", got)
+	}
+	if d := Decimals([]float64{0, 0.1, 0.12, 1}, 9); d != 2 {
+		t.Errorf("Decimals = %d, want 2", d)
+	}
+	if d := Decimals([]float64{1.0 / 3}, 9); d != 9 {
+		t.Errorf("Decimals(1/3) = %d, want the cap 9", d)
+	}
+	if v := Clean(143.25000000000003); v != 143.25 {
+		t.Errorf("Clean = %v", v)
+	}
+}

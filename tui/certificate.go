@@ -1,0 +1,76 @@
+package tui
+
+import (
+	"context"
+	"fmt"
+	"time"
+
+	"scorewright"
+	"scorewright/verify/certify"
+)
+
+// CertificateView is the certificate line of the checks pane: what the
+// interval certificate (verify/certify) proved about the design.
+type CertificateView struct {
+	// Kind is "certified"; Verdict the certificate's (strictly-proper,
+	// proper, improper or undecided); Statement says what was proved, or
+	// what share of the simplex when time ran out.
+	Kind, Verdict, Statement string
+}
+
+// defaultCertifyDeadline keeps the pane responsive: the grid's verdict
+// waits for the certificate at most this long.
+const defaultCertifyDeadline = 3 * time.Second
+
+func (s Settings) certifyDeadline() time.Duration {
+	if s.CertifyDeadline == 0 {
+		return defaultCertifyDeadline
+	}
+	return s.CertifyDeadline
+}
+
+// certifyDesign runs the certificate of a design after its grid check,
+// reporting progress as the share of the simplex proved; nil when no
+// certificate method applies (an emphasis weight, point forecasts) or
+// certificates are off (a negative deadline). A cancelled context ends it
+// at once.
+func certifyDesign(ctx context.Context, r *scorewright.Rule, s Settings, progress func(done, total int64)) *CertificateView {
+	if s.certifyDeadline() < 0 {
+		return nil
+	}
+	res, err := r.Certify(ctx, certifySettings(s, progress))
+	if err != nil {
+		return nil
+	}
+	return certificateView(res)
+}
+
+func certifySettings(s Settings, progress func(done, total int64)) certify.Settings {
+	cs := certify.Settings{Deadline: s.certifyDeadline()}
+	if progress != nil {
+		cs.Progress = func(p certify.Progress) { progress(int64(1e6*p.Share), 1e6) }
+	}
+	return cs
+}
+
+func certificateView(res *certify.Result) *CertificateView {
+	return &CertificateView{Kind: string(res.Kind), Verdict: string(res.Verdict), Statement: res.Statement()}
+}
+
+// certificateLines are the pane's lines for c.
+func certificateLines(st Styles, c *CertificateView) []string {
+	if c == nil {
+		return nil
+	}
+	vs := st.Pass
+	switch c.Verdict {
+	case "improper":
+		vs = st.Fail
+	case string(certify.Undecided):
+		vs = st.Dim
+	}
+	return []string{
+		fmt.Sprintf("Certificate %s (%s)", vs.Render(c.Verdict), c.Kind),
+		st.Dim.Render("  " + c.Statement),
+	}
+}

@@ -1,0 +1,152 @@
+package tui
+
+import (
+	"errors"
+	"fmt"
+	"strconv"
+	"strings"
+
+	"scorewright/generator/design"
+	"scorewright/generator/formula"
+	"scorewright/presets"
+)
+
+// View draws the pane for design d.
+func (p DesignPane) View(d *design.Design) string {
+	st := p.st
+	iw := max(4, p.w-2)
+	var lines []string
+	mark := func(row int, label, value string) string {
+		m := "  "
+		ls := st.Label
+		if p.focused && p.sel == row && p.edit == editNone {
+			m, ls = st.Selected.Render("› "), st.Selected
+		}
+		return m + ls.Render(fmt.Sprintf("%-9s", label)) + " " + value
+	}
+	switch {
+	case onInterval(d) && p.edit == editLabels:
+		lines = append(lines, mark(0, "Interval", "lo, hi:"), "  "+p.ti.View())
+	case onInterval(d):
+		iv := "not set"
+		if len(d.Interval) == 2 {
+			iv = fmt.Sprintf("[%g, %g]  (point forecast of a mean)", d.Interval[0], d.Interval[1])
+		}
+		lines = append(lines, mark(0, "Interval", iv))
+	case p.edit == editLabels:
+		lines = append(lines, mark(0, "Outcomes", "labels, comma-separated:"), "  "+p.ti.View())
+	default:
+		lines = append(lines, mark(0, "Outcomes", fmt.Sprintf("%s  (%d)", strings.Join(d.Labels, ", "), d.N())))
+	}
+	order := "unordered"
+	if d.Ordered {
+		order = "ordered (csum allowed)"
+	}
+	if onInterval(d) {
+		order = st.Dim.Render("— (a number on the interval)")
+	}
+	lines = append(lines, mark(1, "Order", order))
+	lines = append(lines, mark(2, "Mode", modeLine(d.Mode)))
+	hint := ""
+	if p.edit == editFormula {
+		hint = st.Dim.Render("editing — esc to stop")
+	} else if p.focused && p.sel == int(rowFormula) {
+		hint = st.Dim.Render("enter to edit")
+	}
+	lines = append(lines, mark(3, "Formula", hint))
+	if p.edit == editPreset {
+		// The picker takes the formula's place while it is open.
+		lines = append(lines, "  "+p.st.Label.Render("Choose a preset"))
+		lines = append(lines, p.pickerLines(d)...)
+	} else {
+		lines = append(lines, strings.Split(p.ta.View(), "\n")...)
+		lines = append(lines, p.errorLines(iw)...)
+	}
+	if len(p.params) > 0 {
+		lines = append(lines, "  "+st.Label.Render("Parameters")+st.Dim.Render("  ←/→ step 0.1, shift 0.01"))
+		for i, pv := range p.params {
+			row := int(rowParams) + i
+			val := strconv.FormatFloat(pv.Value, 'g', 6, 64)
+			if p.edit == editParam && p.sel == row {
+				lines = append(lines, mark(row, "  "+pv.Name, p.ti.View()))
+				continue
+			}
+			lines = append(lines, mark(row, "  "+pv.Name, "= "+val))
+		}
+	}
+	preset := d.Preset
+	if preset == "" {
+		preset = st.Dim.Render("none (own formula)")
+	}
+	lines = append(lines, mark(p.presetRow(), "Preset", preset))
+	if p.note != "" {
+		lines = append(lines, st.Dim.Render("  "+p.note))
+	}
+	title := "Design"
+	if d.Title != "" {
+		title += " · " + d.Title
+	}
+	return paneFrame(st, title, p.focused, p.w, p.h, strings.Join(lines, "\n"))
+}
+
+// modeText is what the mode row says about a mode, and the formula a
+// design first switched to it is given (none for generator mode, which
+// keeps the formula it has).
+type modeText struct{ row, sample string }
+
+// modeRows holds the mode row's words for every mode.
+var modeRows = map[design.Mode]modeText{
+	design.ModeGenerator:   {row: "generator (concave H; ←/→)"},
+	design.ModePayout:      {row: "payout audit (pay(p, y); ←/→)", sample: samplePayout},
+	design.ModeEmphasis:    {row: "emphasis weight w(c) (←/→)", sample: sampleEmphasis},
+	design.ModePoint:       {row: "point forecast phi(x) (←/→)", sample: samplePoint},
+	design.ModePointPayout: {row: "point payout audit (pay(x, y); ←/→)", sample: samplePointPayout},
+}
+
+func modeLine(m design.Mode) string {
+	if t, ok := modeRows[m]; ok {
+		return t.row
+	}
+	return string(m) + " (not computed by this build)"
+}
+
+// errorLines shows the compile error under the formula, with a caret at
+// its column.
+func (p DesignPane) errorLines(iw int) []string {
+	if p.err == nil {
+		if p.compiles {
+			out := []string{p.st.Pass.Render("  ✓ compiles")}
+			for _, w := range p.warnings {
+				out = append(out, strings.Split(p.st.Dim.Width(max(10, iw-2)).PaddingLeft(2).Render("! "+w), "\n")...)
+			}
+			return out
+		}
+		return []string{""}
+	}
+	var fe *formula.Error
+	if errors.As(p.err, &fe) {
+		out := strings.Split(p.st.Error.Width(max(10, iw-2)).PaddingLeft(2).Render("✗ "+fe.Error()), "\n")
+		for _, l := range strings.Split(fe.Caret(), "\n") {
+			out = append(out, p.st.Error.Render("    "+l))
+		}
+		return out
+	}
+	return strings.Split(p.st.Error.Width(max(10, iw-2)).PaddingLeft(2).Render("✗ "+p.err.Error()), "\n")
+}
+
+func (p DesignPane) pickerLines(d *design.Design) []string {
+	var out []string
+	for i, ps := range presets.All() {
+		m := "    "
+		name := fmt.Sprintf("%-18s", ps.Name)
+		if i == p.pick {
+			m, name = p.st.Selected.Render("  ▸ "), p.st.Selected.Render(name)
+		}
+		desc := ps.Title
+		if why := presetUnavailable(ps, d); why != "" {
+			desc = p.st.Dim.Render("(" + why + ")")
+		}
+		out = append(out, m+name+" "+desc)
+	}
+	return append(out, p.st.Dim.Render("    ↑/↓ choose, enter apply, esc close"))
+}

@@ -1,0 +1,151 @@
+package tui
+
+import (
+	"errors"
+	"path/filepath"
+	"regexp"
+	"strings"
+
+	tea "github.com/charmbracelet/bubbletea"
+
+	"scorewright/generator/design"
+	"scorewright/internal/safefile"
+)
+
+// fileDone finishes a file dialog: an existing file makes it ask before
+// replacing, other errors stay in the dialog, success closes it.
+func (m *Model) fileDone(err error, ok func(), then ...func() tea.Cmd) tea.Cmd {
+	if m.dialog == nil {
+		return nil
+	}
+	switch {
+	case errors.Is(err, safefile.ErrExists):
+		m.dialog.askOverwrite()
+		return nil
+	case err != nil:
+		m.dialog.failed("✗ " + strings.ReplaceAll(err.Error(), "\n", "; "))
+		return nil
+	}
+	m.dialog = nil
+	ok()
+	var cmds []tea.Cmd
+	for _, f := range then {
+		cmds = append(cmds, f())
+	}
+	return tea.Batch(cmds...)
+}
+
+// Unsaved reports whether the design changed since it was opened or saved.
+func (m *Model) Unsaved() bool { return m.gen != m.savedGen }
+
+// confirmDiscard lets a key that would lose unsaved changes act only when
+// pressed twice in a row; the first press says so on the status line.
+func (m *Model) confirmDiscard(km tea.KeyMsg, again string) bool {
+	if !m.Unsaved() || m.armed == km.String() {
+		m.armed = ""
+		return true
+	}
+	m.armed = km.String()
+	m.status = "the design has unsaved changes (ctrl+s saves); " + again
+	return false
+}
+
+func (m *Model) openHelp() {
+	m.help = true
+	m.helpView.Width = max(20, m.width-6)
+	m.helpView.Height = max(3, m.height-5)
+	m.helpView.SetContent(helpText(m.st, m.keys, m.helpView.Width))
+	m.helpView.GotoTop()
+}
+
+var slugChars = regexp.MustCompile(`[^a-z0-9]+`)
+
+// defaultName is a file name made from the design's title.
+func (m *Model) defaultName(ext string) string {
+	if m.path != "" && ext == "toml" {
+		return m.path
+	}
+	base := strings.Trim(slugChars.ReplaceAllString(strings.ToLower(m.d.Title), "-"), "-")
+	if base == "" {
+		base = "design"
+	}
+	if m.path != "" {
+		base = strings.TrimSuffix(filepath.Base(m.path), filepath.Ext(m.path))
+	}
+	return filepath.Join(m.set.Dir, base+"."+ext)
+}
+
+func (m *Model) openDialog(kind dialogKind) {
+	m.designPane.stopEditing()
+	switch kind {
+	case dialogSave:
+		d := newFileDialog(m.st, m.keys, kind, m.defaultName("toml"), []string{"toml"})
+		m.dialog = &d
+	case dialogOpen:
+		dir := m.set.Dir
+		if dir != "" && !strings.HasSuffix(dir, string(filepath.Separator)) {
+			dir += string(filepath.Separator)
+		}
+		d := newFileDialog(m.st, m.keys, kind, dir, nil)
+		if m.Unsaved() {
+			d.msg = "the current design has unsaved changes; opening replaces it"
+		}
+		m.dialog = &d
+	case dialogHistory:
+		dir := m.set.Dir
+		if m.history != "" {
+			dir = m.history
+		} else if dir != "" && !strings.HasSuffix(dir, string(filepath.Separator)) {
+			dir += string(filepath.Separator)
+		}
+		d := newFileDialog(m.st, m.keys, kind, dir, nil)
+		d.msg = "columns: forecaster, question, outcome, then " + strings.Join(m.d.Labels, ", ")
+		m.dialog = &d
+	case dialogExport:
+		if m.set.Exporter == nil {
+			m.status = "export needs the table package, which is not part of this build yet"
+			return
+		}
+		fs := m.set.Exporter.Formats(m.d)
+		d := newFileDialog(m.st, m.keys, kind, m.defaultName(fs[0]), fs)
+		m.dialog = &d
+	}
+}
+
+// submitDialog returns the command doing what the dialog asked.
+func (m *Model) submitDialog() tea.Cmd {
+	dl := m.dialog
+	path, overwrite, format, lot := dl.Path(), dl.overwrite, dl.Format(), dl.lottery
+	if !filepath.IsAbs(path) && m.set.Dir != "" && !strings.HasPrefix(path, m.set.Dir) {
+		path = filepath.Join(m.set.Dir, path)
+	}
+	d, gen := cloneDesign(m.d), m.gen
+	switch dl.kind {
+	case dialogSave:
+		return func() tea.Msg {
+			abs, _ := filepath.Abs(path)
+			return savedMsg{path: abs, gen: gen, err: d.Save(path, overwrite)}
+		}
+	case dialogHistory:
+		return m.startBacktest(path)
+	case dialogOpen:
+		return func() tea.Msg {
+			nd, err := design.Load(path)
+			if err == nil {
+				err = prepareDesign(nd)
+			}
+			return openedMsg{path: path, d: nd, err: err}
+		}
+	default:
+		ex, ctx := m.set.Exporter, m.ctx
+		return func() tea.Msg {
+			files, err := ex.Export(ctx, d, ExportRequest{Format: format, Path: path, Overwrite: overwrite, Lottery: lot})
+			return exportedMsg{files: files, err: err}
+		}
+	}
+}
+
+// PrepareDesign readies a loaded design for the workbench: a preset named
+// without a formula gets its formula. It is what `scorewright open` runs
+// after design.Load.
+func PrepareDesign(d *design.Design) error { return prepareDesign(d) }

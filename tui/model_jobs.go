@@ -1,0 +1,111 @@
+package tui
+
+import (
+	"context"
+	"time"
+
+	tea "github.com/charmbracelet/bubbletea"
+)
+
+func (m *Model) debounce() tea.Cmd {
+	gen := m.gen
+	return tea.Tick(m.set.debounce(), func(time.Time) tea.Msg { return debounceMsg{gen: gen} })
+}
+
+// wanted reports whether the stream carrying msg is still current.
+func (m *Model) wanted(msg tea.Msg) bool {
+	switch r := msg.(type) {
+	case checkRunMsg:
+		return r.run == m.checkRun
+	case btRunMsg:
+		return r.run == m.btRun
+	case riskRunMsg:
+		return r.run == m.riskRun
+	case researchRunMsg:
+		return r.run == m.research.run
+	}
+	return false
+}
+
+func (m *Model) stopCheck() {
+	if m.cancelChk != nil {
+		m.cancelChk()
+		m.cancelChk = nil
+	}
+}
+
+// maybeStart starts the checks and the budget fit once the current
+// generation is compiled and its debounce has passed.
+func (m *Model) maybeStart() tea.Cmd {
+	if m.compGen != m.gen || m.debouncedGen != m.gen {
+		return nil
+	}
+	bt := tea.Batch(m.maybeBacktest(), m.maybeRisk(), m.research.Maybe(m.ctx, m.d, m.gen, m.researchReady()))
+	if m.checkGen == m.gen {
+		return bt
+	}
+	if !m.comp.ok() {
+		m.checks.block("the formula does not compile")
+		return nil
+	}
+	m.checkGen = m.gen
+	var cmds []tea.Cmd
+	if m.set.Checker != nil {
+		m.stopCheck()
+		ctx, cancel := context.WithCancel(m.ctx)
+		m.cancelChk = cancel
+		m.checkRun++
+		m.checks.started()
+		cmds = append(cmds, tagRun(m.checkRun, checkCmd(ctx, m.gen, cloneDesign(m.d), m.set, m.set.Checker)))
+	}
+	if m.set.Fitter != nil && m.fitGen != m.gen {
+		if m.cancelFit != nil {
+			m.cancelFit()
+		}
+		ctx, cancel := context.WithCancel(m.ctx)
+		m.cancelFit = cancel
+		cmds = append(cmds, fitCmd(ctx, m.gen, cloneDesign(m.d), m.set.Fitter))
+	}
+	return tea.Batch(append(cmds, bt)...)
+}
+
+// checkRunMsg stamps a check message with the run that sent it, so that
+// answers from a run that was replaced (same design, run again) are
+// dropped too.
+type checkRunMsg struct {
+	run uint64
+	msg tea.Msg
+}
+
+// tagRun wraps every message of a check stream in a checkRunMsg.
+func tagRun(run uint64, cmd tea.Cmd) tea.Cmd {
+	return func() tea.Msg { return retag(run, cmd()) }
+}
+
+func retag(run uint64, msg tea.Msg) tea.Msg {
+	s, ok := msg.(streamMsg)
+	if !ok {
+		return checkRunMsg{run: run, msg: msg}
+	}
+	next := s.next
+	return streamMsg{msg: checkRunMsg{run: run, msg: s.msg}, next: func() tea.Msg { return retag(run, next()) }}
+}
+
+func (m *Model) payFunc() func(float64) float64 {
+	if m.budget.table != nil && !m.budget.stale {
+		return m.budget.table.Pay
+	}
+	return nil
+}
+
+func (m *Model) requestPicture() tea.Cmd {
+	if !m.comp.ok() || m.compGen != m.gen || m.width == 0 {
+		return nil
+	}
+	if m.cancelPic != nil {
+		m.cancelPic()
+	}
+	ctx, cancel := context.WithCancel(m.ctx)
+	m.cancelPic = cancel
+	return m.picture.request(ctx, m.gen, m.comp, m.payFunc())
+}

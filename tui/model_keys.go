@@ -1,0 +1,189 @@
+package tui
+
+import (
+	"github.com/charmbracelet/bubbles/key"
+	tea "github.com/charmbracelet/bubbletea"
+)
+
+// key routes a key: ctrl+c first, then open overlays, then a focused text
+// input (which sees every printable key), then global shortcuts, then the
+// focused pane.
+func (m *Model) key(km tea.KeyMsg) tea.Cmd {
+	k := m.keys
+	if key.Matches(km, k.QuitHard) {
+		return m.quit()
+	}
+	if km.String() != m.armed {
+		m.armed = ""
+	}
+	if m.tooSmall() {
+		if key.Matches(km, k.Quit) {
+			return m.quit()
+		}
+		return nil
+	}
+	if m.help {
+		switch {
+		case key.Matches(km, k.Help), key.Matches(km, k.Leave), key.Matches(km, k.Quit):
+			m.help = false
+		default:
+			var cmd tea.Cmd
+			m.helpView, cmd = m.helpView.Update(km)
+			return cmd
+		}
+		return nil
+	}
+	if m.dialog != nil {
+		d, cmd, act := m.dialog.Update(km)
+		m.dialog = &d
+		switch act {
+		case actCancel:
+			m.dialog = nil
+			m.status = "cancelled"
+		case actSubmit:
+			return tea.Batch(cmd, m.submitDialog())
+		}
+		return cmd
+	}
+	if m.showBT {
+		switch {
+		case key.Matches(km, k.Leave), key.Matches(km, k.Backtest):
+			m.showBT = false
+			return m.requestPicture()
+		case key.Matches(km, k.History):
+			m.openDialog(dialogHistory)
+			return nil
+		case key.Matches(km, k.StopRun):
+			if m.bt.Running() || m.cancelBt != nil {
+				m.stopBacktest()
+				m.btRun++ // its late answers are dropped
+				m.bt.stop()
+				m.status = "backtest stopped"
+			}
+			return nil
+		case key.Matches(km, k.Up), key.Matches(km, k.Down), key.Matches(km, k.PageUp), key.Matches(km, k.PageDown):
+			m.bt = m.bt.Update(km)
+			return nil
+		case key.Matches(km, k.NextPane), key.Matches(km, k.PrevPane):
+			m.showBT = false
+		}
+	}
+	if m.research.Shown() {
+		handled, cmd := m.research.Key(m.ctx, km, m.d, m.gen, m.researchReady())
+		if handled {
+			if !m.research.Shown() {
+				return tea.Batch(cmd, m.requestPicture())
+			}
+			return cmd
+		}
+	}
+	if m.showRisk {
+		switch {
+		case key.Matches(km, k.Leave), key.Matches(km, k.Risk):
+			m.showRisk = false
+			return m.requestPicture()
+		case key.Matches(km, k.Up):
+			m.risk.sel = (m.risk.sel + riskFieldCount - 1) % riskFieldCount
+			return nil
+		case key.Matches(km, k.Down):
+			m.risk.sel = (m.risk.sel + 1) % riskFieldCount
+			return nil
+		case key.Matches(km, k.Less), key.Matches(km, k.More), key.Matches(km, k.LessFine), key.Matches(km, k.MoreFine):
+			up := key.Matches(km, k.More) || key.Matches(km, k.MoreFine)
+			fine := key.Matches(km, k.LessFine) || key.Matches(km, k.MoreFine)
+			if riskStep(&m.riskIn, m.risk.sel, m.d, up, fine, m.riskCoefs) {
+				if m.risk.sel == riskWealth {
+					m.riskSet = true
+				}
+				return m.maybeRisk()
+			}
+			return nil
+		case key.Matches(km, k.NextPane), key.Matches(km, k.PrevPane):
+			m.showRisk = false
+		}
+	}
+	typing := m.designPane.Typing() || m.budget.Typing()
+	switch {
+	case km.Type == tea.KeyF1 || (!typing && key.Matches(km, k.Help)):
+		m.openHelp()
+		return nil
+	case key.Matches(km, k.NextPane), key.Matches(km, k.PrevPane):
+		step := 1
+		if key.Matches(km, k.PrevPane) {
+			step = int(paneCount) - 1
+		}
+		m.setFocus((m.focus + pane(step)) % paneCount)
+		m.layout()
+		return m.requestPicture()
+	case key.Matches(km, k.Save):
+		m.openDialog(dialogSave)
+		return nil
+	case key.Matches(km, k.Open):
+		m.openDialog(dialogOpen)
+		return nil
+	case key.Matches(km, k.Export):
+		m.openDialog(dialogExport)
+		return nil
+	case key.Matches(km, k.Backtest):
+		m.showRisk = false
+		m.research.Close()
+		return m.toggleBacktest()
+	case key.Matches(km, k.Risk):
+		m.research.Close()
+		return m.toggleRisk()
+	case key.Matches(km, k.Research):
+		m.stopTyping()
+		m.showBT, m.showRisk = false, false
+		return m.research.Toggle(m.ctx, m.d, m.gen, m.researchReady())
+	case !typing && key.Matches(km, k.Demo):
+		if !m.confirmDiscard(km, "ctrl+n again discards them") {
+			return nil
+		}
+		m.demoIndex = (m.demoIndex + 1) % len(demos())
+		m.path = ""
+		cmd := m.replaceDesign(demos()[m.demoIndex]())
+		m.status = "demo design: " + m.d.Title
+		return cmd
+	case !typing && !m.designPane.Picking() && key.Matches(km, k.Quit):
+		if !m.confirmDiscard(km, "q again quits without saving") {
+			return nil
+		}
+		return m.quit()
+	}
+	if m.showBT || m.showRisk || m.research.Shown() {
+		return nil
+	}
+	return m.routeToPane(km)
+}
+
+func (m *Model) routeToPane(km tea.KeyMsg) tea.Cmd {
+	switch m.focus {
+	case paneDesign:
+		p, cmd, changed := m.designPane.Update(km, m.d)
+		m.designPane = p
+		if changed {
+			return tea.Batch(cmd, m.edited())
+		}
+		return cmd
+	case panePicture:
+		p, changed := m.picture.Update(km)
+		m.picture = p
+		if changed {
+			return m.requestPicture()
+		}
+	case paneChecks:
+		if key.Matches(km, m.keys.Rerun) {
+			m.debouncedGen = m.gen
+			m.checkGen = 0
+			return m.maybeStart()
+		}
+	case paneBudget:
+		p, cmd, changed := m.budget.Update(km, m.d)
+		m.budget = p
+		if changed {
+			return tea.Batch(cmd, m.edited())
+		}
+		return cmd
+	}
+	return nil
+}

@@ -1,0 +1,188 @@
+package tui
+
+import (
+	"fmt"
+	"path/filepath"
+	"strings"
+
+	"github.com/charmbracelet/bubbles/help"
+	"github.com/charmbracelet/bubbles/key"
+	"github.com/charmbracelet/lipgloss"
+)
+
+func (m *Model) tooSmall() bool { return m.width < MinWidth || m.height < MinHeight }
+
+// layout gives every pane its size. Below 120×40 the right column stacks
+// the picture over whichever of checks and budget was focused last; from
+// 120×40 all four panes show.
+func (m *Model) layout() {
+	if m.tooSmall() {
+		return
+	}
+	m.layoutBacktest()
+	bh := m.height - 2
+	if m.large() {
+		lw := m.width * 45 / 100
+		rw := m.width - lw
+		top := bh * 60 / 100
+		m.designPane.SetSize(lw, top)
+		m.budget.SetSize(lw, bh-top)
+		m.picture.SetSize(rw, top)
+		m.checks.SetSize(rw, bh-top)
+		return
+	}
+	lw := m.width / 2
+	rw := m.width - lw
+	top := bh * 55 / 100
+	if m.focus == paneChecks || m.focus == paneBudget {
+		top = bh * 40 / 100 // the focused lower pane gets the room
+	}
+	m.designPane.SetSize(lw, bh)
+	m.picture.SetSize(rw, top)
+	m.checks.SetSize(rw, bh-top)
+	m.budget.SetSize(rw, bh-top)
+}
+
+func (m *Model) large() bool { return m.width >= 120 && m.height >= 40 }
+
+// View draws the screen.
+func (m *Model) View() string {
+	if m.quitting {
+		return ""
+	}
+	if m.width == 0 {
+		return "starting…"
+	}
+	if m.tooSmall() {
+		msg := fmt.Sprintf("The workbench needs a terminal of at least %d×%d;\nthis one is %d×%d. Enlarge it, or press q to quit.", MinWidth, MinHeight, m.width, m.height)
+		return lipgloss.Place(m.width, m.height, lipgloss.Center, lipgloss.Center, msg)
+	}
+	header := m.headerLine()
+	var body string
+	if m.research.Shown() {
+		body = m.research.View(m.d)
+	} else if m.showBT {
+		body = m.bt.View()
+	} else if m.showRisk {
+		body = m.risk.View(m.d, m.riskIn)
+	} else if m.large() {
+		left := lipgloss.JoinVertical(lipgloss.Left, m.designPane.View(m.d), m.budget.View(m.d))
+		right := lipgloss.JoinVertical(lipgloss.Left, m.picture.View(), m.checks.View())
+		body = lipgloss.JoinHorizontal(lipgloss.Top, left, right)
+	} else {
+		lower := m.checks.View()
+		if m.lower == paneBudget {
+			lower = m.budget.View(m.d)
+		}
+		right := lipgloss.JoinVertical(lipgloss.Left, m.picture.View(), lower)
+		body = lipgloss.JoinHorizontal(lipgloss.Top, m.designPane.View(m.d), right)
+	}
+	screen := header + "\n" + body + "\n" + m.footerLine()
+	switch {
+	case m.help:
+		box := m.st.Dialog.Render(m.st.Header.Render("Keys — esc or ? to close, ↑/↓ pgup/pgdn to scroll") + "\n" + m.helpView.View())
+		screen = lipgloss.Place(m.width, m.height, lipgloss.Center, lipgloss.Center, box)
+	case m.dialog != nil:
+		box := m.dialog.View(m.width)
+		screen = overlay(screen, box, m.width, m.height)
+	}
+	return block(screen, m.width, m.height)
+}
+
+func (m *Model) headerLine() string {
+	left := m.st.Header.Render("scorewright")
+	where := "demo"
+	if m.path != "" {
+		where = filepath.Base(m.path)
+	}
+	what := fmt.Sprintf("%d outcomes", m.d.N())
+	if onInterval(m.d) && len(m.d.Interval) == 2 {
+		what = fmt.Sprintf("a mean on [%g, %g]", m.d.Interval[0], m.d.Interval[1])
+	}
+	mid := m.st.Dim.Render(fmt.Sprintf(" · %s · %s · %s", where, what, m.d.Mode))
+	var tabs []string
+	for p, name := range []string{"design", "picture", "checks", "budget"} {
+		if pane(p) == m.focus && !m.showBT && !m.showRisk && !m.research.Shown() {
+			tabs = append(tabs, m.st.Selected.Render("["+name+"]"))
+		} else {
+			tabs = append(tabs, m.st.Dim.Render(" "+name+" "))
+		}
+	}
+	if m.showBT {
+		tabs = []string{m.st.Selected.Render("[backtest]"), m.st.Dim.Render(" esc: back to the panes")}
+	}
+	if m.showRisk {
+		tabs = []string{m.st.Selected.Render("[risk]"), m.st.Dim.Render(" esc: back to the panes")}
+	}
+	if m.research.Shown() {
+		tabs = []string{m.st.Selected.Render("[research]"), m.st.Dim.Render(" esc: back to the panes")}
+	}
+	right := strings.Join(tabs, "")
+	gap := m.width - lipgloss.Width(left) - lipgloss.Width(mid) - lipgloss.Width(right)
+	return left + mid + strings.Repeat(" ", max(1, gap)) + right
+}
+
+// footerLine is the status message, or the keys of the focused pane.
+func (m *Model) footerLine() string {
+	if m.status != "" {
+		return m.st.Dim.Render(m.status)
+	}
+	k := m.keys
+	as := func(b key.Binding, keyText, desc string) key.Binding {
+		return key.NewBinding(key.WithKeys(b.Keys()...), key.WithHelp(keyText, desc))
+	}
+	var keys []key.Binding
+	if m.designPane.Typing() || m.budget.Typing() {
+		keys = []key.Binding{as(k.Leave, "esc", "stop typing"), as(k.NextPane, "tab", "pane"), as(k.Help, "F1", "keys"), as(k.Save, "ctrl+s", "save"), k.QuitHard}
+	} else {
+		var pane []key.Binding
+		switch {
+		case m.research.Shown():
+			pane = m.research.KeyHelp()
+		case m.showBT:
+			pane = m.bt.KeyHelp()
+		case m.showRisk:
+			pane = m.risk.KeyHelp()
+		case m.focus == paneDesign:
+			pane = m.designPane.KeyHelp()
+		case m.focus == panePicture:
+			pane = m.picture.KeyHelp()
+		case m.focus == paneChecks:
+			pane = m.checks.KeyHelp()
+		case m.focus == paneBudget:
+			pane = m.budget.KeyHelp()
+		}
+		keys = []key.Binding{as(k.Help, "?", "keys"), as(k.NextPane, "tab", "pane"), k.Quit}
+		for _, b := range pane {
+			switch {
+			case b.Help() == k.Up.Help() && !m.showRisk && !m.research.Shown():
+				keys = append(keys, as(b, "↑/↓", "select"))
+			case b.Help() == k.Down.Help():
+			default:
+				keys = append(keys, b)
+			}
+		}
+		keys = append(keys, as(k.Save, "ctrl+s", "save"), as(k.Export, "ctrl+x", "export"))
+	}
+	h := help.New()
+	h.Width = m.width
+	h.Styles.ShortKey, h.Styles.ShortDesc, h.Styles.ShortSeparator, h.Styles.Ellipsis = m.st.Key, m.st.Dim, m.st.Dim, m.st.Dim
+	return h.ShortHelpView(keys)
+}
+
+// overlay centres box over screen.
+func overlay(screen, box string, w, h int) string {
+	lines := strings.Split(block(screen, w, h), "\n")
+	bl := strings.Split(box, "\n")
+	bw := lipgloss.Width(box)
+	top := max(0, (h-len(bl))/2)
+	left := max(0, (w-bw)/2)
+	for i, l := range bl {
+		if top+i >= len(lines) {
+			break
+		}
+		row := lines[top+i]
+		lines[top+i] = cutLeft(row, left) + l + cutRight(row, left+lipgloss.Width(l), w)
+	}
+	return strings.Join(lines, "\n")
+}

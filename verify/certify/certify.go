@@ -1,0 +1,253 @@
+// Package certify proves verdicts over the whole simplex, where the grid
+// checks of package verify only sample it. It evaluates the compiled
+// formula in interval arithmetic with outward rounding (Moore 1966;
+// Hansen & Walster 2004) on boxes of the simplex, parametrised by the
+// first n-1 probabilities, and splits a box that does not decide:
+//
+//   - a generator H is proved concave on a box when an upper bound on the
+//     largest eigenvalue of its interval Hessian, projected on the
+//     simplex, is at most 0 (Gershgorin bounds, as in the alpha-BB method
+//     of Adjiman et al. 1998, also after an eigenvector preconditioning);
+//     concave everywhere proves the rule proper (Savage 1971; Gneiting &
+//     Raftery 2007, Theorem 1), a strictly negative bound strictly concave
+//     there, and a direction of strictly positive curvature over a box
+//     proves it improper, with a belief and report whose gain is checked
+//     by interval evaluation;
+//   - a payout is proved honest to within Epsilon when, over pairs of a
+//     belief box and a report box, an upper bound of E_q[pay(r)] -
+//     E_q[pay(q)] is at most Epsilon, and proved dishonest by a pair whose
+//     lower bound exceeds it.
+//
+// Every result says its kind (certified), what share of the simplex (by
+// volume) it proved, and what it could not.
+package certify
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"time"
+
+	"scorewright/verify"
+)
+
+// Kind names how a verdict was reached.
+type Kind string
+
+// Verdict kinds.
+const (
+	// Certified: proved over the whole simplex by interval arithmetic.
+	Certified Kind = "certified"
+	// GridEvidence: checked on grid points and samples, as package verify
+	// does; it never proves.
+	GridEvidence Kind = "grid evidence"
+)
+
+// Undecided is the verdict when the certificate could not finish.
+const Undecided verify.Verdict = "undecided"
+
+// DefaultDeadline bounds a run when neither Settings nor the context do.
+const DefaultDeadline = 30 * time.Second
+
+// Settings tune a certificate run. The zero value means the defaults.
+type Settings struct {
+	// Deadline bounds the run (DefaultDeadline when 0); the context's own
+	// deadline, if sooner, wins.
+	Deadline time.Duration
+	// MinWidth is the narrowest box side split further (default 1e-7): a
+	// box still undecided there is left undecided.
+	MinWidth float64
+	// MaxBoxes bounds the boxes waiting at once (default 4,000,000).
+	MaxBoxes int
+	// Epsilon is the gain a payout may allow (payout mode); 0 means
+	// DefaultEpsilon times the spread of the payments.
+	Epsilon float64
+	// Progress, when set, is called about ten times a second and once at
+	// the end, from the calling goroutine.
+	Progress func(Progress)
+}
+
+// DefaultEpsilon is the payout tolerance relative to the spread of the
+// payments when no budget sets one (a hundredth of the rounding unit).
+const DefaultEpsilon = 1e-6
+
+// Progress reports a run under way.
+type Progress struct {
+	// Share is the part of the simplex (by volume) decided so far, 0..1.
+	Share float64
+	// Boxes is the number of boxes examined.
+	Boxes int
+	// Elapsed is the time since the start.
+	Elapsed time.Duration
+	// Done is set on the last call.
+	Done bool
+}
+
+// Witness is a belief and a report that prove a rule dishonest, each
+// checked by interval evaluation.
+type Witness struct {
+	// Belief and Report: a forecaster believing Belief does better, by at
+	// least Gain, reporting Report than reporting honestly.
+	Belief, Report []float64
+	// Gain is a lower bound on the advantage (in effort for a generator,
+	// in money for a payout); 0 when the interval check could not
+	// separate it from rounding, though the box proof stands.
+	Gain float64
+	// Reason says what was proved on the box the witness comes from.
+	Reason string
+}
+
+// Result is what a certificate run proved.
+type Result struct {
+	// Kind is Certified: the verdict below is proved, or Undecided.
+	Kind Kind
+	// Verdict: strictly-proper, proper, improper, or undecided.
+	Verdict verify.Verdict
+	// Share is the part of the simplex (by volume) proved: concave for a
+	// generator, honest to within Epsilon for a payout.
+	Share float64
+	// StrictShare is the part proved strictly concave (generators).
+	StrictShare float64
+	// Epsilon is the payout tolerance used.
+	Epsilon float64
+	// Boxes is the number of boxes examined; Open those left undecided.
+	Boxes, Open int
+	// Witness proves an improper verdict.
+	Witness *Witness
+	// Stopped says why an undecided run ended (deadline, smallest box,
+	// box limit); empty when it finished.
+	Stopped string
+	// Elapsed is the run's time.
+	Elapsed time.Duration
+	// Outcomes is n.
+	Outcomes int
+}
+
+// Statement is the one-paragraph account of what was proved.
+func (r *Result) Statement() string {
+	pct := func(x float64) string { return fmt.Sprintf("%.6g%%", 100*x) }
+	switch {
+	case r.Witness != nil:
+		return fmt.Sprintf("certified improper: %s", r.Witness.Reason)
+	case r.Verdict == verify.StrictlyProper:
+		return fmt.Sprintf("certified strictly proper over the whole simplex (%d boxes, %s)", r.Boxes, r.Elapsed.Round(time.Millisecond))
+	case r.Verdict == verify.Proper && r.Epsilon > 0:
+		return fmt.Sprintf("certified: no report gains more than %.3g anywhere (%d boxes, %s)", r.Epsilon, r.Boxes, r.Elapsed.Round(time.Millisecond))
+	case r.Verdict == verify.Proper:
+		return fmt.Sprintf("certified proper over the whole simplex; strictly concave proved on %s of it, the rest (next to the faces, where the curvature tends to 0) only concave (%d boxes, %s)",
+			pct(r.StrictShare), r.Boxes, r.Elapsed.Round(time.Millisecond))
+	}
+	what := "concave"
+	if r.Epsilon > 0 {
+		what = fmt.Sprintf("honest to within %.3g", r.Epsilon)
+	}
+	return fmt.Sprintf("not certified: %s proved %s, %d boxes left undecided (%s; %d boxes, %s)",
+		pct(r.Share), what, r.Open, r.Stopped, r.Boxes, r.Elapsed.Round(time.Millisecond))
+}
+
+// box is an axis-parallel box in the first n-1 probabilities.
+type box struct{ lo, hi []float64 }
+
+func (b box) width() (float64, int) {
+	w, at := -1.0, 0
+	for i := range b.lo {
+		if d := b.hi[i] - b.lo[i]; d > w {
+			w, at = d, i
+		}
+	}
+	return w, at
+}
+
+// split halves b across its widest side.
+func (b box) split() (box, box) {
+	_, i := b.width()
+	m := b.lo[i] + (b.hi[i]-b.lo[i])/2
+	l := box{append([]float64(nil), b.lo...), append([]float64(nil), b.hi...)}
+	r := box{append([]float64(nil), b.lo...), append([]float64(nil), b.hi...)}
+	l.hi[i], r.lo[i] = m, m
+	return l, r
+}
+
+// tighten shrinks b to the smallest box holding b ∩ simplex's
+// projection (x >= 0, sum x <= 1) and reports whether that is non-empty.
+func (b box) tighten() bool {
+	var slo float64
+	for _, v := range b.lo {
+		slo += v
+	}
+	if slo > 1 {
+		return false
+	}
+	for i := range b.hi {
+		b.hi[i] = math.Min(b.hi[i], 1-(slo-b.lo[i]))
+		if b.hi[i] < b.lo[i] {
+			return false
+		}
+	}
+	return true
+}
+
+// simplexShare is the volume of b ∩ {x >= 0, sum x <= 1} over the
+// simplex's volume 1/d!, by inclusion–exclusion over the box's corners:
+// vol = sum over subsets S of (-1)^|S| (1 - sum_S hi - sum_notS lo)_+^d / d!.
+func (b box) simplexShare() float64 {
+	d := len(b.lo)
+	var v float64
+	for mask := 0; mask < 1<<d; mask++ {
+		s, sign := 1.0, 1.0
+		for i := 0; i < d; i++ {
+			if mask&(1<<i) != 0 {
+				s -= b.hi[i]
+				sign = -sign
+			} else {
+				s -= b.lo[i]
+			}
+		}
+		if s > 0 {
+			v += sign * math.Pow(s, float64(d))
+		}
+	}
+	return math.Max(0, v)
+}
+
+// deadline returns the run's context with its deadline.
+func (s Settings) deadline(ctx context.Context) (context.Context, context.CancelFunc) {
+	d := s.Deadline
+	if d <= 0 {
+		d = DefaultDeadline
+	}
+	return context.WithTimeout(ctx, d)
+}
+
+func (s Settings) minWidth() float64 {
+	if s.MinWidth > 0 {
+		return s.MinWidth
+	}
+	return 1e-7
+}
+
+func (s Settings) maxBoxes() int {
+	if s.MaxBoxes > 0 {
+		return s.MaxBoxes
+	}
+	return 4_000_000
+}
+
+// ticker calls Progress about ten times a second.
+type ticker struct {
+	fn    func(Progress)
+	start time.Time
+	last  time.Time
+}
+
+func (t *ticker) tick(share float64, boxes int, done bool) {
+	if t.fn == nil {
+		return
+	}
+	now := time.Now()
+	if !done && now.Sub(t.last) < 100*time.Millisecond {
+		return
+	}
+	t.last = now
+	t.fn(Progress{Share: math.Min(1, share), Boxes: boxes, Elapsed: now.Sub(t.start), Done: done})
+}

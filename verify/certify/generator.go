@@ -1,0 +1,219 @@
+package certify
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"time"
+
+	"scorewright/generator/bregman"
+	"scorewright/generator/formula"
+	iv "scorewright/internal/interval"
+	"scorewright/verify"
+)
+
+// Rule certifies a generator rule: r.Gen must be a formula
+// (*bregman.Formula), since the certificate reads the compiled program.
+func Rule(ctx context.Context, r *bregman.Rule, s Settings) (*Result, error) {
+	f, ok := r.Gen.(*bregman.Formula)
+	if !ok {
+		return nil, fmt.Errorf("certify: the generator is not a formula (%T); only formulas can be certified", r.Gen)
+	}
+	return Generator(ctx, f.Program(), f.Outcomes(), s)
+}
+
+// genRun is the state of one generator certificate.
+type genRun struct {
+	n       int
+	enc     *formula.Encloser
+	senc    *formula.Encloser
+	en      formula.Enclosure
+	full    formula.Enclosure
+	pt      formula.Enclosure
+	pbox    []iv.Interval
+	res     *Result
+	minW    float64
+	witness *Witness
+}
+
+// Generator proves concavity of the program prog, a generator over n
+// outcomes (variables p1..pn), box by box on the simplex. Boxes are
+// examined breadth first, so the share proved grows evenly; a box whose
+// Hessian does not decide is split, and a box proved concave but not
+// strictly is split again after every undecided box is done, to prove
+// strictness on as much as the time allows.
+func Generator(ctx context.Context, prog *formula.Program, n int, s Settings) (*Result, error) {
+	if n < 2 || prog.NumVars() != n {
+		return nil, fmt.Errorf("certify: the program reads %d variables, not the %d outcomes", prog.NumVars(), n)
+	}
+	ctx, cancel := s.deadline(ctx)
+	defer cancel()
+	start := time.Now()
+	g := &genRun{n: n, enc: prog.NewEncloser(), senc: prog.NewSimplexEncloser(), pbox: make([]iv.Interval, n), minW: s.minWidth(),
+		res: &Result{Kind: Certified, Outcomes: n}}
+	tk := &ticker{fn: s.Progress, start: start}
+	whole := box{make([]float64, n-1), make([]float64, n-1)}
+	for i := range whole.hi {
+		whole.hi[i] = 1
+	}
+	open := []box{whole}
+	var notStrict []box
+	res := g.res
+	for len(open) > 0 || len(notStrict) > 0 {
+		if ctx.Err() != nil {
+			res.Stopped = "deadline reached"
+			break
+		}
+		if len(open)+len(notStrict) > s.maxBoxes() {
+			res.Stopped = "box limit reached"
+			break
+		}
+		strictPass := len(open) == 0
+		var b box
+		if strictPass {
+			b, notStrict = notStrict[0], notStrict[1:]
+		} else {
+			b, open = open[0], open[1:]
+		}
+		res.Boxes++
+		tk.tick(res.Share, res.Boxes, false)
+		if !b.tighten() {
+			continue
+		}
+		switch g.decide(b) {
+		case strictlyConcave:
+			share := b.simplexShare()
+			res.StrictShare += share
+			if !strictPass {
+				res.Share += share
+			}
+		case concave:
+			if !strictPass {
+				res.Share += b.simplexShare()
+			}
+			if w, _ := b.width(); w > 1.0/1024 {
+				l, r := b.split()
+				notStrict = append(notStrict, l, r)
+			}
+		case improper:
+			res.Witness = g.witness
+			res.Verdict = verify.Improper
+			res.Open = len(open)
+			res.Elapsed = time.Since(start)
+			tk.tick(res.Share, res.Boxes, true)
+			return res, nil
+		default:
+			if strictPass {
+				// A sub-box of a concave box: concave, only not proved
+				// strict.
+				continue
+			}
+			if w, _ := b.width(); w < g.minW {
+				res.Open++
+				res.Stopped = "smallest box reached"
+				continue
+			}
+			l, r := b.split()
+			open = append(open, l, r)
+		}
+	}
+	res.Open += len(open)
+	res.Elapsed = time.Since(start)
+	switch {
+	case res.Open > 0:
+		res.Verdict = Undecided
+		if res.Stopped == "" {
+			res.Stopped = "smallest box reached"
+		}
+	case len(notStrict) == 0 && res.StrictShare >= 1-1e-9:
+		res.Verdict, res.StrictShare, res.Share, res.Stopped = verify.StrictlyProper, 1, 1, ""
+	default:
+		// Concavity is proved everywhere; strictness only where the
+		// strict pass reached.
+		res.Verdict, res.Share, res.Stopped = verify.Proper, 1, ""
+	}
+	tk.tick(res.Share, res.Boxes, true)
+	return res, nil
+}
+
+type decision int
+
+const (
+	unknown decision = iota
+	concave
+	strictlyConcave
+	improper
+)
+
+// pBox fills g.pbox with the probabilities over b: p_k = x_k for k < n
+// and p_n = 1 - sum x, clipped to [0, 1].
+func (g *genRun) pBox(b box) []iv.Interval {
+	sum := iv.Point(0)
+	for k := range b.lo {
+		g.pbox[k] = iv.Interval{Lo: b.lo[k], Hi: b.hi[k]}
+		sum = iv.Add(sum, g.pbox[k])
+	}
+	last := iv.Sub(iv.Point(1), sum)
+	g.pbox[g.n-1] = iv.Interval{Lo: math.Max(0, last.Lo), Hi: math.Min(1, math.Max(0, last.Hi))}
+	return g.pbox
+}
+
+// decide proves what it can on box b. It first takes the Hessian along
+// the simplex by the chain rule (basis e_a - e_n, narrow enclosures);
+// where that does not decide — next to a face where H's curvature is
+// infinite, as the entropy's is, or tends to 0 — it falls back on the
+// full Hessian,
+// bounded by Gershgorin directly (negative definite on all directions is
+// more than enough) and projected on the basis e_a - e_j that eliminates
+// the coordinate farthest from 0.
+func (g *genRun) decide(b box) decision {
+	pb := g.pBox(b)
+	g.senc.Enclose(&g.en, pb, 2)
+	en := &g.en
+	if en.Undefined {
+		return unknown
+	}
+	if en.Kinked {
+		if g.chordWitness(b) {
+			return improper
+		}
+		return unknown
+	}
+	d := g.n - 1
+	m, j := en.Hess, d
+	hi, v := curvatureSign(m, d)
+	if hi > 0 && touchesFace(pb) {
+		g.enc.Enclose(&g.full, pb, 2)
+		full := gershgorin(g.full.Hess, g.n)
+		j = 0
+		for k := range pb {
+			if pb[k].Lo > pb[j].Lo {
+				j = k
+			}
+		}
+		m = project(g.full.Hess, g.n, j)
+		hi, v = curvatureSign(m, d)
+		hi = math.Min(hi, full)
+	}
+	switch {
+	case hi < 0:
+		return strictlyConcave
+	case hi <= 0:
+		return concave
+	}
+	if v != nil && quadForm(m, v).Lo > 0 && b.simplexShare() > 0 {
+		g.curvatureWitness(b, j, v)
+		return improper
+	}
+	return unknown
+}
+
+// touchesFace reports whether some probability reaches 0 on the box.
+func touchesFace(pb []iv.Interval) bool {
+	for _, v := range pb {
+		if v.Lo <= 0 {
+			return true
+		}
+	}
+	return false
+}

@@ -1,0 +1,141 @@
+package certify
+
+import (
+	"context"
+	"testing"
+	"time"
+
+	"scorewright/generator/bregman"
+	"scorewright/generator/payout"
+	"scorewright/verify"
+)
+
+// Generators that are concave except on a patch far narrower than any
+// grid step: 1 - sum(p^2) has curvature -2 along every direction, the
+// bump a·exp(-|p - c|²/s) adds up to 2a/s (derived by hand), here
+// 1e-10/1e-12 = 100, so H is convex across the bump's flanks and the rule
+// improper; its width, 1e-6, is a thousandth of the finest default grid
+// step.
+var bumps = []struct {
+	n   int
+	src string
+}{
+	{2, "1 - sum(p^2) + 1e-10*exp(-(p1 - 0.3141)^2/1e-12)"},
+	{3, "1 - sum(p^2) + 1e-10*exp(-((p1 - 0.3141)^2 + (p2 - 0.2718)^2)/1e-12)"},
+	{4, "1 - sum(p^2) + 1e-10*exp(-((p1 - 0.3141)^2 + (p2 - 0.2718)^2 + (p3 - 0.1414)^2)/1e-12)"},
+}
+
+func TestNarrowBumpProvedImproper(t *testing.T) {
+	for _, c := range bumps {
+		res := certifyFormula(t, c.src, c.n, Settings{Deadline: 20 * time.Second})
+		if res.Verdict != verify.Improper || res.Witness == nil {
+			t.Fatalf("n=%d: %s", c.n, res.Statement())
+		}
+		t.Logf("n=%d: %s", c.n, res.Statement())
+	}
+}
+
+// TestGridMissesNarrowBump shows why the certificate matters: the grid
+// check at its default resolution does not see the bump (and never says
+// certified).
+func TestGridMissesNarrowBump(t *testing.T) {
+	c := bumps[1]
+	f, err := bregman.NewFormula(c.src, bregman.Options{Outcomes: c.n})
+	if err != nil {
+		t.Fatal(err)
+	}
+	rep, err := verify.CheckRule(context.Background(), &bregman.Rule{Gen: f}, verify.Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rep.Verdict == verify.Improper {
+		t.Skipf("the grid found the bump this time: %v", rep.Verdict)
+	}
+	t.Logf("grid verdict %s (grid evidence), certificate improper", rep.Verdict)
+}
+
+// A convex kink: max(p1 - 0.5, 0) adds slope 1 past 0.5, so H lies
+// below its chords across p1 = 0.5 (derived by hand) and no Hessian sees
+// it; the chord test proves it.
+func TestConvexKinkProvedImproper(t *testing.T) {
+	res := certifyFormula(t, "1 - sum(p^2) + 0.3*max(p1 - 0.5123, 0)", 3, Settings{Deadline: 10 * time.Second})
+	if res.Verdict != verify.Improper || res.Witness == nil {
+		t.Fatalf("%s", res.Statement())
+	}
+	t.Log(res.Statement())
+}
+
+// H = sum(p^2) is convex, the textbook improper generator.
+func TestConvexGeneratorImproper(t *testing.T) {
+	for n := 2; n <= 4; n++ {
+		res := certifyFormula(t, "sum(p^2)", n, Settings{})
+		if res.Verdict != verify.Improper || res.Witness == nil || !(res.Witness.Gain > 0) {
+			t.Fatalf("n=%d: %s", n, res.Statement())
+		}
+	}
+}
+
+func certifyPayout(t *testing.T, src string, n int, s Settings) *Result {
+	t.Helper()
+	pay, err := payout.New(src, payout.Options{Outcomes: n})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s.Deadline == 0 {
+		s.Deadline = 20 * time.Second
+	}
+	res, err := Payout(context.Background(), pay, s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return res
+}
+
+// The linear payout p[y] rewards reporting the likeliest outcome for
+// sure: for belief (3/4, 1/4) the gain is 3/4 - (9/16 + 1/16) = 1/8
+// (derived by hand), far above any tolerance.
+func TestLinearPayoutImproper(t *testing.T) {
+	res := certifyPayout(t, "p[y]", 2, Settings{})
+	if res.Verdict != verify.Improper || res.Witness == nil {
+		t.Fatalf("%s", res.Statement())
+	}
+	t.Log(res.Statement())
+}
+
+// A jackpot of 5 for reports within 1e-7 of p1 = 0.3141 on top of the
+// quadratic rule: reporting there gains up to 5 minus a quadratic
+// penalty, for every belief near it.
+func TestJackpotProvedImproper(t *testing.T) {
+	for _, c := range []struct {
+		n   int
+		src string
+	}{
+		{2, "1 - sum((p - hit)^2) + if(abs(p1 - 0.3141) < 1e-7, 5, 0)"},
+		{3, "1 - sum((p - hit)^2) + if(abs(p1 - 0.3141) + abs(p2 - 0.2718) < 1e-7, 5, 0)"},
+	} {
+		res := certifyPayout(t, c.src, c.n, Settings{})
+		if res.Verdict != verify.Improper || res.Witness == nil {
+			t.Fatalf("n=%d: %s", c.n, res.Statement())
+		}
+		t.Logf("n=%d: %s", c.n, res.Statement())
+	}
+}
+
+// The quadratic payout is strictly proper (Brier 1950), so no report
+// gains more than the tolerance anywhere.
+func TestQuadraticPayoutCertified(t *testing.T) {
+	for n := 2; n <= 3; n++ {
+		s := Settings{Deadline: 30 * time.Second}
+		if n == 3 {
+			s.Deadline = 2 * time.Second // only: never improper
+		}
+		res := certifyPayout(t, "10 - 5*sum((p - hit)^2)", n, s)
+		t.Logf("n=%d: %s share %g", n, res.Statement(), res.Share)
+		if n == 2 && res.Verdict != verify.Proper {
+			t.Errorf("n=%d: %s", n, res.Statement())
+		}
+		if res.Verdict == verify.Improper {
+			t.Errorf("n=%d: %s", n, res.Statement())
+		}
+	}
+}

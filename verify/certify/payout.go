@@ -1,0 +1,274 @@
+package certify
+
+import (
+	"container/heap"
+	"context"
+	"fmt"
+	"math"
+	"time"
+
+	"scorewright/generator/formula"
+	"scorewright/generator/payout"
+	iv "scorewright/internal/interval"
+	"scorewright/internal/num"
+	"scorewright/verify"
+)
+
+// PayoutEpsilon is the default payout tolerance relative to the spread
+// of the payments, when no budget gives a rounding unit: a hundredth of a
+// percent of the spread.
+const PayoutEpsilon = 1e-4
+
+// pair is a belief box and a report box with the upper bound found for
+// the gain of reporting from r for beliefs in q.
+type pair struct {
+	q, r box
+	u    float64
+}
+
+type pairHeap []pair
+
+func (h pairHeap) Len() int           { return len(h) }
+func (h pairHeap) Less(i, j int) bool { return h[i].u > h[j].u }
+func (h pairHeap) Swap(i, j int)      { h[i], h[j] = h[j], h[i] }
+func (h *pairHeap) Push(x any)        { *h = append(*h, x.(pair)) }
+func (h *pairHeap) Pop() any {
+	old := *h
+	p := old[len(old)-1]
+	*h = old[:len(old)-1]
+	return p
+}
+
+type payRun struct {
+	n          int
+	encs       []*formula.Encloser
+	en         formula.Enclosure
+	qb, rb, hb []iv.Interval
+	sum        []iv.Interval
+	eps        float64
+}
+
+// Payout proves that no report gains more than Settings.Epsilon over the
+// honest one for any belief: it bounds, over pairs of a belief box Q and
+// a report box R, the gain E_q[pay(r)] - E_q[pay(q)] from above, first
+// directly and then by the mean-value form sum_y q_y ∇pay_y·(r - q) on
+// the hull of the two boxes (which shrinks with the square of the box
+// size near the diagonal), and splits the pair with the largest bound
+// first — the report box when it widens the bound more than the belief
+// box, as a jackpot on a few reports does, else the belief box. The share it reports is of (belief, report) pairs by
+// volume.
+func Payout(ctx context.Context, pay *payout.Payout, s Settings) (*Result, error) {
+	n := pay.Outcomes()
+	ctx, cancel := s.deadline(ctx)
+	defer cancel()
+	start := time.Now()
+	p := &payRun{n: n, qb: make([]iv.Interval, n), rb: make([]iv.Interval, n), hb: make([]iv.Interval, n), sum: make([]iv.Interval, n)}
+	for y := 1; y <= n; y++ {
+		p.encs = append(p.encs, pay.Program(y).NewEncloser())
+	}
+	p.eps = s.Epsilon
+	if p.eps <= 0 {
+		p.eps = PayoutEpsilon * paySpread(pay)
+	}
+	res := &Result{Kind: Certified, Outcomes: n, Epsilon: p.eps}
+	tk := &ticker{fn: s.Progress, start: start}
+	whole := box{make([]float64, n-1), make([]float64, n-1)}
+	for i := range whole.hi {
+		whole.hi[i] = 1
+	}
+	h := &pairHeap{{q: whole, r: whole, u: math.Inf(1)}}
+	minW := math.Max(s.minWidth(), 1e-9)
+	for h.Len() > 0 {
+		if ctx.Err() != nil {
+			res.Stopped = "deadline reached"
+			break
+		}
+		if h.Len() > s.maxBoxes() {
+			res.Stopped = "box limit reached"
+			break
+		}
+		pr := heap.Pop(h).(pair)
+		res.Boxes++
+		tk.tick(res.Share, res.Boxes, false)
+		u := p.bound(pr.q, pr.r, false, false)
+		if u <= p.eps {
+			res.Share += pr.q.simplexShare() * pr.r.simplexShare()
+			continue
+		}
+		if w := p.witness(pr.q, pr.r); w != nil {
+			res.Witness, res.Verdict = w, verify.Improper
+			res.Open = h.Len()
+			res.Elapsed = time.Since(start)
+			tk.tick(res.Share, res.Boxes, true)
+			return res, nil
+		}
+		wq, _ := pr.q.width()
+		wr, _ := pr.r.width()
+		if wq < minW && wr < minW {
+			res.Open++
+			continue
+		}
+		// Split the box that widens the bound more: the report box when
+		// the bound with the belief box shrunk to its centre exceeds the
+		// one with the report box shrunk (a jackpot on a few reports),
+		// else the belief box.
+		splitR := wr >= minW && (wq < minW || p.bound(pr.q, pr.r, true, false) > p.bound(pr.q, pr.r, false, true))
+		var kids [2]pair
+		if splitR {
+			a, b := pr.r.split()
+			kids = [2]pair{{q: pr.q, r: a}, {q: pr.q, r: b}}
+		} else {
+			a, b := pr.q.split()
+			kids = [2]pair{{q: a, r: pr.r}, {q: b, r: pr.r}}
+		}
+		for _, k := range kids {
+			if !k.q.tighten() || !k.r.tighten() {
+				continue
+			}
+			if k.u = p.bound(k.q, k.r, false, false); k.u <= p.eps {
+				res.Share += k.q.simplexShare() * k.r.simplexShare()
+				continue
+			}
+			heap.Push(h, k)
+		}
+	}
+	res.Open += h.Len()
+	res.Elapsed = time.Since(start)
+	if res.Open > 0 {
+		res.Verdict = Undecided
+		if res.Stopped == "" {
+			res.Stopped = "smallest box reached"
+		}
+	} else {
+		res.Verdict, res.Share = verify.Proper, 1
+	}
+	tk.tick(res.Share, res.Boxes, true)
+	return res, nil
+}
+
+// fill writes the probabilities over b into dst (p_n = 1 - sum x).
+func fill(dst []iv.Interval, b box, point bool) {
+	sum := iv.Point(0)
+	x := b.lo
+	if point {
+		x = inside(b)
+	}
+	for k := range b.lo {
+		dst[k] = iv.Interval{Lo: x[k], Hi: b.hi[k]}
+		if point {
+			dst[k] = iv.Point(x[k])
+		}
+		sum = iv.Add(sum, dst[k])
+	}
+	last := iv.Sub(iv.Point(1), sum)
+	dst[len(dst)-1] = iv.Interval{Lo: math.Max(0, last.Lo), Hi: math.Min(1, math.Max(0, last.Hi))}
+}
+
+// bound is an upper bound of E_q[pay(r)] - E_q[pay(q)] over q in Q, r in
+// R (q at Q's centre alone when qCentre, r at R's when rCentre).
+func (p *payRun) bound(q, r box, qCentre, rCentre bool) float64 {
+	fill(p.qb, q, qCentre)
+	fill(p.rb, r, rCentre)
+	direct, mv := iv.Point(0), iv.Point(0)
+	smooth := true
+	for k := range p.hb {
+		p.hb[k] = iv.Hull(p.qb[k], p.rb[k])
+		p.sum[k] = iv.Point(0)
+	}
+	for y, e := range p.encs {
+		e.Enclose(&p.en, p.rb, 0)
+		pr, bad := p.en.Value, p.en.Undefined
+		e.Enclose(&p.en, p.qb, 0)
+		pq := p.en.Value
+		if bad || p.en.Undefined {
+			return math.Inf(1)
+		}
+		direct = iv.Add(direct, iv.Mul(p.qb[y], iv.Sub(pr, pq)))
+		if !smooth {
+			continue
+		}
+		e.Enclose(&p.en, p.hb, 1)
+		if p.en.Kinked || p.en.Undefined {
+			smooth = false
+			continue
+		}
+		// Sum q_y ∇pay_y over outcomes first: for an honest payout it
+		// vanishes along the simplex, so the bound is second order.
+		for k, g := range p.en.Grad {
+			p.sum[k] = iv.Add(p.sum[k], iv.Mul(p.qb[y], g))
+		}
+	}
+	if smooth {
+		for k, s := range p.sum {
+			mv = iv.Add(mv, iv.Mul(s, iv.Sub(p.rb[k], p.qb[k])))
+		}
+	}
+	u := direct.Hi
+	if smooth {
+		u = math.Min(u, mv.Hi)
+	}
+	if math.IsNaN(u) {
+		return math.Inf(1)
+	}
+	return u
+}
+
+// witness checks the pair's centres: a gain above Epsilon there, proved
+// by interval evaluation, proves the payout dishonest.
+func (p *payRun) witness(q, r box) *Witness {
+	fill(p.qb, q, true)
+	fill(p.rb, r, true)
+	gain := iv.Point(0)
+	for y, e := range p.encs {
+		e.Enclose(&p.en, p.rb, 0)
+		pr := p.en.Value
+		e.Enclose(&p.en, p.qb, 0)
+		gain = iv.Add(gain, iv.Mul(p.qb[y], iv.Sub(pr, p.en.Value)))
+	}
+	if !(gain.Lo > p.eps) || !gain.Bounded() {
+		return nil
+	}
+	belief, report := make([]float64, p.n), make([]float64, p.n)
+	for k := range belief {
+		belief[k], report[k] = p.qb[k].Lo, p.rb[k].Lo
+	}
+	return &Witness{Belief: belief, Report: report, Gain: gain.Lo,
+		Reason: fmt.Sprintf("belief %s expects at least %.6g more by reporting %s than by reporting honestly (interval-checked; the tolerance is %.3g)", num.Format(belief), gain.Lo, num.Format(report), p.eps)}
+}
+
+// paySpread is the spread of the finite payments on a coarse lattice
+// (steps of 1/8), the scale of the default tolerance; 1 when they are
+// all equal.
+func paySpread(pay *payout.Payout) float64 {
+	n := pay.Outcomes()
+	ev := pay.NewEvaluator()
+	lo, hi := math.Inf(1), math.Inf(-1)
+	pays := make([]float64, n)
+	pt := make([]int, n)
+	var walk func(k, left int)
+	walk = func(k, left int) {
+		if k == n-1 {
+			pt[k] = left
+			x := make([]float64, n)
+			for i, v := range pt {
+				x[i] = float64(v) / 8
+			}
+			ev.Pays(pays, x)
+			for _, v := range pays {
+				if !math.IsInf(v, 0) && !math.IsNaN(v) {
+					lo, hi = math.Min(lo, v), math.Max(hi, v)
+				}
+			}
+			return
+		}
+		for v := 0; v <= left; v++ {
+			pt[k] = v
+			walk(k+1, left-v)
+		}
+	}
+	walk(0, 8)
+	if !(hi > lo) {
+		return 1
+	}
+	return hi - lo
+}

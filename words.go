@@ -1,0 +1,73 @@
+package scorewright
+
+import (
+	"fmt"
+	"math"
+
+	"scorewright/internal/num"
+)
+
+// The sentences below are the command line's wording of what an audit
+// found; the workbench shows the same sentences, so the two never say a
+// finding two ways.
+
+// IdentifiedLine names the preset an audited payout was identified as
+// an affine image of, or "" when it was not identified.
+func (f *Findings) IdentifiedLine() string {
+	switch {
+	case f.Audit != nil && f.Audit.Identified != nil:
+		id := f.Audit.Identified
+		return fmt.Sprintf("identified: pay = %.6g + %.6g × score of preset %q%s, its score being -effort (relative residual %.2g)",
+			shown(id.Shift, id.Scale, id.Residual), id.Scale, id.Preset, id.WithParam(), id.Residual)
+	case f.Point != nil && f.Point.Identified != nil && f.Point.Identified.OutcomeTerm:
+		id := f.Point.Identified
+		return fmt.Sprintf("identified: g(y) - %.6g * (effort of preset %s), with a term g in the outcome alone that changes no incentive", id.Scale, id.Preset)
+	case f.Point != nil && f.Point.Identified != nil:
+		id := f.Point.Identified
+		return fmt.Sprintf("identified: %.6g - %.6g * (effort of preset %s)", id.Shift, id.Scale, id.Preset)
+	}
+	return ""
+}
+
+// GapLine states the largest honesty gap of an audit over outcomes and
+// where it is, or that no grid belief gains from misreporting; "" for
+// other findings and for a gap that could not be computed (NaN).
+func (f *Findings) GapLine() string {
+	if f.Audit == nil {
+		return ""
+	}
+	rep := f.Audit
+	g := rep.Gap
+	switch {
+	case g.Max > rep.Grid.Slack():
+		how := ""
+		if g.Sharpened {
+			how = fmt.Sprintf(" (sharpened beyond the grid from %.6g)", g.GridMax)
+		}
+		// Belief and report with the digits that tell them apart; a
+		// report equal to the belief is no witness and is not named.
+		line := fmt.Sprintf("largest honesty gap: %.9g%s", g.Max, how)
+		if b, r, ok := num.FormatApart(g.Belief, g.BestReport); ok {
+			line += fmt.Sprintf(" at belief %s, best report %s", b, r)
+		} else {
+			line += fmt.Sprintf(" at belief %s, at a report that cannot be told apart from it (no misreport is named)", b)
+		}
+		if g.Precision != "" {
+			line += "; " + g.Precision
+		}
+		return line
+	case g.Max == g.Max:
+		return fmt.Sprintf("largest honesty gap: %.3g (no grid belief gains from misreporting)", g.Max)
+	}
+	return ""
+}
+
+// shown is a fitted shift as a person should read it: a value that is zero
+// within the fit's own residual, relative to the scale, prints as 0 rather
+// than as rounding noise such as -8.6e-14. JSON keeps the fitted value.
+func shown(shift, scale, residual float64) float64 {
+	if math.Abs(shift) <= 10*math.Max(residual, 1e-12)*math.Max(1, math.Abs(scale)) {
+		return 0
+	}
+	return shift
+}
