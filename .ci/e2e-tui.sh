@@ -60,9 +60,9 @@ key Escape
 
 # Backtest: load the frost history; the view shows the reliability
 # picture and the totals; esc goes back to the panes.
-key C-b
+key C-d
 wait_for "Load a forecast history"
-key C-u
+key M-Home
 key "$repo/testdata/histories/orchard-frost.csv"
 key Enter
 wait_for "perfect reliability"
@@ -93,7 +93,7 @@ wait_for "harvest outlook"
 wait_for "gap by belief"
 
 # Export a CSV of the table.
-key C-x
+key C-e
 wait_for "Export the payment table"
 key Enter
 wait_for "exported:"

@@ -81,7 +81,7 @@ func backtestCmd(ctx context.Context, run, gen uint64, d *design.Design, path st
 		if st, err := f.Stat(); err == nil && st.Mode().IsRegular() {
 			size = st.Size()
 		}
-		h, err := history.NewReader(bufio.NewReaderSize(f, 1<<16), d.Labels, history.Options{})
+		h, err := history.Open(bufio.NewReaderSize(f, 1<<16), history.FormatOf(path), d.Labels, history.Options{})
 		if err != nil {
 			send(tag(btDoneMsg{err: fmt.Errorf("%s: %w", filepath.Base(path), err), file: true}), true)
 			return
@@ -292,7 +292,7 @@ func (v BacktestView) resultText(width int) string {
 				b.WriteString(st.Dim.Render(fmt.Sprintf("  … and %d more (scorewright backtest lists them)", res.SkippedCount-shownSkipped)) + "\n")
 				break
 			}
-			b.WriteString(fmt.Sprintf("  line %d: %s\n", s.Line, s.Why))
+			b.WriteString(fmt.Sprintf("  %s: %s\n", (&history.RowError{Line: s.Line, EndLine: s.EndLine}).Where(), s.Why))
 		}
 	} else {
 		b.WriteString("\nno rows skipped\n")

@@ -21,7 +21,7 @@ func samplePath(t testing.TB, name string) string {
 	return p
 }
 
-var keyCtrlB = tea.KeyMsg{Type: tea.KeyCtrlB}
+var keyCtrlB = tea.KeyMsg{Type: tea.KeyCtrlD}
 
 // loadHistory opens the history dialog, replaces its path with path and
 // confirms.
@@ -29,7 +29,7 @@ func loadHistory(t testing.TB, m *Model, path string) {
 	t.Helper()
 	press(t, m, keyCtrlB)
 	if m.dialog == nil || m.dialog.kind != dialogHistory {
-		t.Fatal("ctrl+b with no history did not open the history dialog")
+		t.Fatal("ctrl+d with no history did not open the history dialog")
 	}
 	m.dialog.path.SetValue(path)
 	press(t, m, keyEnter)
@@ -86,14 +86,14 @@ func TestBacktestFrost(t *testing.T) {
 			if v := m.View(); !seen {
 				t.Errorf("scrolled view lacks the first skipped row:\n%s", v)
 			}
-			// esc closes the view, ctrl+b opens it again without asking.
+			// esc closes the view, ctrl+d opens it again without asking.
 			press(t, m, keyEsc)
 			if m.BacktestShown() || !strings.Contains(m.View(), "Picture") {
 				t.Fatal("esc did not close the backtest view")
 			}
 			press(t, m, keyCtrlB)
 			if !m.BacktestShown() || m.dialog != nil {
-				t.Fatal("ctrl+b did not reopen the view")
+				t.Fatal("ctrl+d did not reopen the view")
 			}
 		})
 	}

@@ -78,6 +78,7 @@ func NewBudgetPane(st Styles, keys KeyMap, available bool) BudgetPane {
 	ti := textinput.New()
 	ti.Prompt = "› "
 	ti.Cursor.SetMode(cursor.CursorStatic)
+	calmEditing(&ti.KeyMap.DeleteAfterCursor, &ti.KeyMap.DeleteBeforeCursor)
 	vp := viewport.New(10, 3)
 	vp.KeyMap = viewport.KeyMap{PageDown: keys.PageDown, PageUp: keys.PageUp}
 	return BudgetPane{st: st, keys: keys, available: available, ti: ti, vp: vp}

@@ -98,12 +98,14 @@ func NewDesignPane(st Styles, keys KeyMap, d *design.Design) DesignPane {
 	ta.Prompt = "┃ "
 	ta.CharLimit = 4000
 	ta.Cursor.SetMode(cursor.CursorStatic)
+	calmEditing(&ta.KeyMap.DeleteAfterCursor, &ta.KeyMap.DeleteBeforeCursor)
 	ta.FocusedStyle.CursorLine = st.Header.UnsetBold()
 	ta.BlurredStyle.Text = st.Dim
 	ta.SetValue(d.Formula)
 	ti := textinput.New()
 	ti.Prompt = "› "
 	ti.Cursor.SetMode(cursor.CursorStatic)
+	calmEditing(&ti.KeyMap.DeleteAfterCursor, &ti.KeyMap.DeleteBeforeCursor)
 	return DesignPane{st: st, keys: keys, ta: ta, ti: ti, byMode: map[design.Mode]string{}, stepByMode: map[bool]float64{}}
 }
 

@@ -54,6 +54,7 @@ func newFileDialog(st Styles, keys KeyMap, kind dialogKind, path string, formats
 	ti := textinput.New()
 	ti.Prompt = "path › "
 	ti.Cursor.SetMode(cursor.CursorStatic)
+	calmEditing(&ti.KeyMap.DeleteAfterCursor, &ti.KeyMap.DeleteBeforeCursor)
 	ti.Width = 44
 	ti.SetValue(path)
 	ti.CursorEnd()
@@ -171,7 +172,7 @@ func (d fileDialog) View(width int) string {
 		} else {
 			money = st.Selected.Render("[money]")
 		}
-		lines = append(lines, "pay    "+money+lot, st.Dim.Render("       ctrl+l: money, or a chance of winning one prize"))
+		lines = append(lines, "pay    "+money+lot, st.Dim.Render("       "+d.keys.Lottery.Help().Key+": money, or a chance of winning one prize"))
 		if d.lottery {
 			lines = append(lines, st.Error.Render("Caution: "+lottery.Caution))
 		}

@@ -53,10 +53,10 @@
 // kept apart for point and outcome designs. `q` and `ctrl+n` act on the second press when the
 // design has unsaved changes; opening a file says so too.
 //
-// Backtest (`tui/backtest.go`): `ctrl+b` asks for a forecast-history CSV (columns forecaster,
+// Backtest (`tui/backtest.go`): the backtest key (ctrl+d) asks for a forecast-history CSV (columns forecaster,
 // question, outcome, then the design's outcome labels; the frost demo's labels are those of
 // `testdata/histories/orchard-frost.csv`) and opens the backtest view, which replaces the
-// four panes until `esc` or `ctrl+b`. `backtestCmd` opens the file and reads its header (a header
+// four panes until esc or the backtest key. `backtestCmd` opens the file and reads its header (a header
 // that does not fit, or a missing file, stays in the dialog with the reason), then fits the design
 // to its budget on its step menu with `contract/backtest/tablepay` — the fit `scorewright
 // backtest` uses, shared — and streams the rows through `backtest.Run` with progress by bytes
@@ -84,7 +84,7 @@
 // dotted diagonal (ntcharts, ticks every 0.2, axis names, legend, the chosen belief ◆); n > 2 a
 // table of the distortion at each tenth of the way toward each outcome. Under both: the largest
 // distortion and where, the chosen belief's best report against the truthful one, expected pay,
-// and the lottery note (ctrl+l in the export dialog). Payout and point designs are refused with
+// and the lottery note (the lottery key of the export dialog). Payout and point designs are refused with
 // the reason; an unbounded rule asks for a report floor in the design file.
 //
 // Budget pane fields: Floor, Cap, Mean, Step, Unit. Mean is a mean-pay budget (`Budget.MeanPay`:
@@ -102,34 +102,9 @@
 // along a pair of outcomes. The picture's gap is searched on a 1/40 report grid: it is a drawing,
 // the verdict is the checks pane's.
 //
-// Key map (ours; printable keys are text while an input has focus):
-//
-//	| key | where | does |
-//	|---|---|---|
-//	| ctrl+c | anywhere | quit |
-//	| q | not typing | quit |
-//	| ? / F1 | anywhere (F1 also while typing) | help overlay listing every key |
-//	| tab / shift+tab | anywhere | next / previous pane (leaves the formula) |
-//	| ctrl+s / ctrl+o / ctrl+x | anywhere | save design (TOML) / open design / export the table |
-//	| ctrl+n | not typing (there it is the editor's next line) | next demo design |
-//	| ctrl+b | anywhere | backtest view: ask for a history the first time, then open / close the view |
-//	| l / x | backtest view | load another history / stop the running backtest |
-//	| ctrl+r | anywhere | risk attitude view: open / close |
-//	| ↑ ↓, ← → (shift: small), esc | risk view | choose an input (utility, coefficient, wealth, belief), step it; back to the panes |
-//	| ↑ ↓ pgup pgdn, esc | backtest view | scroll the results; back to the panes |
-//	| ↑ ↓ | design, budget | select an item |
-//	| enter | design, budget | edit the item: formula, labels, a value; open the preset picker |
-//	| esc | editing | stop editing / close |
-//	| ← → (shift: small) | design, budget | step a parameter (0.1 / 0.01) or budget field; cycle the mode |
-//	| space | design | toggle ordered outcomes |
-//	| + / - | design | add / remove an outcome |
-//	| m | picture | next measure |
-//	| [ ] | picture | move the chosen belief (n = 2 and point: the mark; n = 3 belief; n > 3 slice base) |
-//	| p | picture | n = 3: outcome the belief moves toward; n > 3: next pair |
-//	| r | checks | run the checks again now |
-//	| pgup / pgdn | budget | scroll the payment table |
-//	| tab, enter, esc, y / n | dialogs | change format, confirm, cancel, replace a file or not |
-//	| ctrl+l | export dialog | pay money or a chance of winning one prize (`contract/lottery`, as `table --lottery`; the gambling caution shows in the dialog and goes into the file) |
+// Key map: DefaultKeyMap in keys.go is the one list of keys (printable keys are text while an
+// input has focus); the help overlay and the footer are generated from it, so they cannot
+// drift. Run the workbench and press ? to read it.
 //
 // Tests: `go test ./tui` — golden views in `tui/testdata` at 80×24 and 120×40 (colour profile
 // pinned to ASCII; regenerate with `go test ./tui -update`), key-routing tests, random key

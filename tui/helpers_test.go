@@ -140,11 +140,11 @@ func (f *fakeChecker) check(ctx context.Context, d *design.Design, s Settings, p
 		Rows: []CheckRow{{Name: "plumbing", Passed: true, Worst: 0}}}, nil
 }
 
-func tea_ctrlO() tea.KeyMsg { return tea.KeyMsg{Type: tea.KeyCtrlO} }
+func tea_ctrlO() tea.KeyMsg { return tea.KeyMsg{Type: tea.KeyCtrlF} }
 
 func sizeMsg(w, h int) tea.WindowSizeMsg { return tea.WindowSizeMsg{Width: w, Height: h} }
 
-func tea_ctrlX() tea.KeyMsg { return tea.KeyMsg{Type: tea.KeyCtrlX} }
+func tea_ctrlX() tea.KeyMsg { return tea.KeyMsg{Type: tea.KeyCtrlE} }
 
 // outputWatch waits on a teatest program's output. The renderer only
 // redraws lines that changed, so a wait looks at all output since the

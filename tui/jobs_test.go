@@ -182,7 +182,7 @@ func TestSessionFlow(t *testing.T) {
 	wait("41")
 	wait("menu re-check passed")
 	act()
-	tm.Send(tea.KeyMsg{Type: tea.KeyCtrlX})
+	tm.Send(tea.KeyMsg{Type: tea.KeyCtrlE})
 	wait("Export the payment table")
 	act()
 	tm.Send(keyEnter)

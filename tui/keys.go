@@ -1,6 +1,11 @@
 package tui
 
-import "github.com/charmbracelet/bubbles/key"
+import (
+	"strings"
+
+	"github.com/charmbracelet/bubbles/key"
+	"github.com/charmbracelet/bubbles/textarea"
+)
 
 // KeyMap is the workbench's own key map. Keys that print a character are
 // only shortcuts while no text input has focus; a focused input sees every
@@ -24,7 +29,15 @@ type KeyMap struct {
 	Confirm, Cancel, Yes, No, Field, Lottery key.Binding
 }
 
-// DefaultKeyMap returns the workbench's key map.
+// DefaultKeyMap returns the workbench's key map. The global commands are
+// ctrl chords that work while typing too, chosen by initial (s save, f
+// file to open, e export, n next demo, d data: a forecast history, r
+// risk, y yield of research) and kept clear of keys with other meanings
+// elsewhere: ctrl+b and ctrl+a (terminal multiplexers' prefixes), ctrl+l
+// (redraw), and ctrl+o, ctrl+x, ctrl+k, ctrl+u (a widely known small
+// editor's write, exit and cut keys; the text fields here do not cut with
+// ctrl+k or ctrl+u either). Arrows, tab, esc, ? and q keep their usual
+// meanings. Help and the footer are generated from this map.
 func DefaultKeyMap() KeyMap {
 	b := func(keys []string, k, help string) key.Binding {
 		return key.NewBinding(key.WithKeys(keys...), key.WithHelp(k, help))
@@ -36,14 +49,11 @@ func DefaultKeyMap() KeyMap {
 		NextPane: b([]string{"tab"}, "tab", "next pane"),
 		PrevPane: b([]string{"shift+tab"}, "shift+tab", "previous pane"),
 		Save:     b([]string{"ctrl+s"}, "ctrl+s", "save the design"),
-		Open:     b([]string{"ctrl+o"}, "ctrl+o", "open a design"),
-		Export:   b([]string{"ctrl+x"}, "ctrl+x", "export the table"),
+		Open:     b([]string{"ctrl+f"}, "ctrl+f", "open a design file"),
+		Export:   b([]string{"ctrl+e"}, "ctrl+e", "export the table"),
 		Demo:     b([]string{"ctrl+n"}, "ctrl+n", "next demo design"),
-		Backtest: b([]string{"ctrl+b"}, "ctrl+b", "backtest a forecast history"),
+		Backtest: b([]string{"ctrl+d"}, "ctrl+d", "backtest a forecast history (data)"),
 		Risk:     b([]string{"ctrl+r"}, "ctrl+r", "risk attitude view"),
-		// ctrl+y: no terminal multiplexer's default (tmux ctrl+b, screen
-		// ctrl+a, zellij's ctrl+g/p/t/n/h/s/o/q) and no key of bubbles'
-		// text inputs, so it works while typing too.
 		Research: b([]string{"ctrl+y"}, "ctrl+y", "research view: what research is worth"),
 
 		Up:       b([]string{"up"}, "↑", "previous item"),
@@ -77,27 +87,73 @@ func DefaultKeyMap() KeyMap {
 		Yes:     b([]string{"y"}, "y", "yes, replace the file"),
 		No:      b([]string{"n"}, "n", "no, keep it"),
 		Field:   b([]string{"tab", "shift+tab"}, "tab", "change the export format"),
-		Lottery: b([]string{"ctrl+l"}, "ctrl+l", "export money or a lottery"),
+		Lottery: b([]string{"ctrl+t"}, "ctrl+t", "export money or a lottery ticket"),
 	}
 }
 
-// helpGroup is one titled block of the help overlay.
+// helpGroup is one titled block of the help overlay: its keys, then
+// notes (which name keys only through the map, so they cannot drift).
 type helpGroup struct {
 	title string
 	keys  []key.Binding
+	notes []string
+}
+
+// keyList joins the help labels of bindings, for notes.
+func keyList(bs ...key.Binding) string {
+	var ks []string
+	for _, b := range bs {
+		ks = append(ks, b.Help().Key)
+	}
+	return strings.Join(ks, " ")
+}
+
+// fieldKeys is the text fields' own editing keys as the workbench sets
+// them (calmEditing), for the help overlay.
+func fieldKeys() textarea.KeyMap {
+	km := textarea.DefaultKeyMap
+	calmEditing(&km.DeleteAfterCursor, &km.DeleteBeforeCursor)
+	return km
 }
 
 // groups lists every key, for the help overlay.
 func (k KeyMap) groups() []helpGroup {
+	f := fieldKeys()
+	join := func(b key.Binding) string { return strings.Join(b.Keys(), "/") }
 	return []helpGroup{
-		{"Anywhere", []key.Binding{k.QuitHard, k.Quit, k.Help, k.NextPane, k.PrevPane, k.Save, k.Open, k.Export, k.Demo, k.Backtest, k.Risk, k.Research}},
-		{"Design", []key.Binding{k.Up, k.Down, k.Edit, k.Leave, k.Less, k.More, k.LessFine, k.MoreFine, k.Toggle, k.AddOutcome, k.DropOutcome}},
-		{"Picture", []key.Binding{k.Measure, k.BeliefDown, k.BeliefUp, k.Pair}},
-		{"Checks", []key.Binding{k.Rerun}},
-		{"Budget", []key.Binding{k.Up, k.Down, k.Less, k.More, k.LessFine, k.MoreFine, k.Edit, k.PageUp, k.PageDown}},
-		{"Backtest", []key.Binding{k.History, k.StopRun, k.Up, k.Down, k.PageUp, k.PageDown, k.Leave}},
-		{"Risk attitude", []key.Binding{k.Up, k.Down, k.Less, k.More, k.LessFine, k.MoreFine, k.Leave}},
-		{"Research", []key.Binding{k.Up, k.Down, k.Less, k.More, k.LessFine, k.MoreFine, k.Leave}},
-		{"Dialogs", []key.Binding{k.Field, k.Lottery, k.Confirm, k.Cancel, k.Yes, k.No}},
+		{title: "Anywhere", keys: []key.Binding{k.QuitHard, k.Quit, k.Help, k.NextPane, k.PrevPane, k.Save, k.Open, k.Export, k.Demo, k.Backtest, k.Risk, k.Research}},
+		{title: "Design pane", keys: []key.Binding{k.Up, k.Down, k.Edit, k.Leave, k.Less, k.More, k.LessFine, k.MoreFine, k.Toggle, k.AddOutcome, k.DropOutcome}},
+		{title: "While typing (formula, labels, values)", notes: []string{
+			"printable keys are text, never shortcuts;",
+			k.Leave.Help().Key + " stops, " + k.NextPane.Help().Key + " moves on; still working:",
+			keyList(k.QuitHard, k.Save, k.Open, k.Export, k.Backtest, k.Risk, k.Research) + " F1",
+			"editor: arrows, home/end, enter new line,",
+			join(f.WordBackward) + " / " + join(f.WordForward) + " word,",
+			join(f.DeleteAfterCursor) + " / " + join(f.DeleteBeforeCursor) + " cut to line end / start,",
+			join(f.DeleteWordBackward) + " delete word, " + join(f.Paste) + " paste"}},
+		{title: "Unsaved changes", notes: []string{keyList(k.Quit, k.Demo) + " act on the second press"}},
+		{title: "Picture pane", keys: []key.Binding{k.Measure, k.BeliefDown, k.BeliefUp, k.Pair}},
+		{title: "Checks pane", keys: []key.Binding{k.Rerun}},
+		{title: "Budget pane (arrows and enter as above)", keys: []key.Binding{k.PageUp, k.PageDown}},
+		{title: "Backtest view (" + k.Backtest.Help().Key + ")", keys: []key.Binding{k.History, k.StopRun}, notes: []string{
+			keyList(k.Up, k.Down, k.PageUp, k.PageDown) + " scroll, " + keyList(k.Leave, k.Backtest) + " close;",
+			"an edit reruns it and cancels the old run"}},
+		{title: "Risk view (" + k.Risk.Help().Key + ")", notes: []string{
+			keyList(k.Up, k.Down) + " choose utility, coefficient, wealth or",
+			"belief; " + keyList(k.Less, k.More) + " step it (shift: a tenth);",
+			keyList(k.Leave, k.Risk) + " close; a change reruns it"}},
+		{title: "Research view (" + k.Research.Help().Key + ")", notes: []string{
+			keyList(k.Up, k.Down) + " choose, " + keyList(k.Less, k.More) + " step, " + keyList(k.Leave, k.Research) + " close"}},
+		{title: "Dialogs", keys: []key.Binding{k.Field, k.Lottery, k.Confirm, k.Cancel, k.Yes, k.No}},
 	}
+}
+
+// calmEditing moves a text field's cut-to-line-end and cut-to-line-start
+// keys off ctrl+k and ctrl+u (another program's signature, meaning other
+// things there) onto alt+end and alt+home.
+func calmEditing(after, before *key.Binding) {
+	after.SetKeys("alt+end")
+	after.SetHelp("alt+end", "cut to the end of the line")
+	before.SetKeys("alt+home")
+	before.SetHelp("alt+home", "cut to the start of the line")
 }

@@ -46,7 +46,7 @@ func (m *Model) confirmDiscard(km tea.KeyMsg, again string) bool {
 		return true
 	}
 	m.armed = km.String()
-	m.status = "the design has unsaved changes (ctrl+s saves); " + again
+	m.status = "the design has unsaved changes (" + m.keys.Save.Help().Key + " saves); " + again
 	return false
 }
 

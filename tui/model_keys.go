@@ -136,7 +136,7 @@ func (m *Model) key(km tea.KeyMsg) tea.Cmd {
 		m.showBT, m.showRisk = false, false
 		return m.research.Toggle(m.ctx, m.d, m.gen, m.researchReady())
 	case !typing && key.Matches(km, k.Demo):
-		if !m.confirmDiscard(km, "ctrl+n again discards them") {
+		if !m.confirmDiscard(km, m.keys.Demo.Help().Key+" again discards them") {
 			return nil
 		}
 		m.demoIndex = (m.demoIndex + 1) % len(demos())
@@ -145,7 +145,7 @@ func (m *Model) key(km tea.KeyMsg) tea.Cmd {
 		m.status = "demo design: " + m.d.Title
 		return cmd
 	case !typing && !m.designPane.Picking() && key.Matches(km, k.Quit):
-		if !m.confirmDiscard(km, "q again quits without saving") {
+		if !m.confirmDiscard(km, m.keys.Quit.Help().Key+" again quits without saving") {
 			return nil
 		}
 		return m.quit()

@@ -133,7 +133,10 @@ func (m *Model) footerLine() string {
 	}
 	var keys []key.Binding
 	if m.designPane.Typing() || m.budget.Typing() {
-		keys = []key.Binding{as(k.Leave, "esc", "stop typing"), as(k.NextPane, "tab", "pane"), as(k.Help, "F1", "keys"), as(k.Save, "ctrl+s", "save"), k.QuitHard}
+		// While typing only keys that are not text reach the workbench;
+		// of the help keys that is the function key.
+		f1 := strings.ToUpper(k.Help.Keys()[len(k.Help.Keys())-1])
+		keys = []key.Binding{as(k.Leave, k.Leave.Help().Key, "stop typing"), as(k.NextPane, k.NextPane.Help().Key, "pane"), as(k.Help, f1, "keys"), as(k.Save, k.Save.Help().Key, "save"), k.QuitHard}
 	} else {
 		var pane []key.Binding
 		switch {
@@ -152,17 +155,17 @@ func (m *Model) footerLine() string {
 		case m.focus == paneBudget:
 			pane = m.budget.KeyHelp()
 		}
-		keys = []key.Binding{as(k.Help, "?", "keys"), as(k.NextPane, "tab", "pane"), k.Quit}
+		keys = []key.Binding{as(k.Help, k.Help.Keys()[0], "keys"), as(k.NextPane, k.NextPane.Help().Key, "pane"), k.Quit}
 		for _, b := range pane {
 			switch {
 			case b.Help() == k.Up.Help() && !m.showRisk && !m.research.Shown():
-				keys = append(keys, as(b, "↑/↓", "select"))
+				keys = append(keys, as(b, k.Up.Help().Key+"/"+k.Down.Help().Key, "select"))
 			case b.Help() == k.Down.Help():
 			default:
 				keys = append(keys, b)
 			}
 		}
-		keys = append(keys, as(k.Save, "ctrl+s", "save"), as(k.Export, "ctrl+x", "export"))
+		keys = append(keys, as(k.Save, k.Save.Help().Key, "save"), as(k.Export, k.Export.Help().Key, "export"))
 	}
 	h := help.New()
 	h.Width = m.width

@@ -118,7 +118,7 @@ func TestRiskHarvest(t *testing.T) {
 		t.Errorf("uniform belief: report %v not symmetric", c)
 	}
 	v := m.View()
-	for _, want := range []string{"toward", "below", "near", "above", "largest", "ctrl+l"} {
+	for _, want := range []string{"toward", "below", "near", "above", "largest", "ctrl+t"} {
 		if !strings.Contains(v, want) {
 			t.Errorf("view lacks %q:\n%s", want, v)
 		}

@@ -68,8 +68,11 @@ func describe(in RiskInputs) string {
 	return "risk-seeking (" + name + ")"
 }
 
-// lotteryNote is the remedy, said under every result.
-const lotteryNote = "A lottery payment (ctrl+l in the export dialog: a chance (pay - floor)/(cap - floor) of one prize) removes this distortion for any expected-utility maximiser."
+// lotteryNote is the remedy, said under every result, naming the export
+// dialog's lottery key.
+func lotteryNote(k KeyMap) string {
+	return "A lottery payment (" + k.Lottery.Help().Key + " in the export dialog: a chance (pay - floor)/(cap - floor) of one prize) removes this distortion for any expected-utility maximiser."
+}
 
 // View draws the view for design d and the current inputs.
 func (v RiskView) View(d *design.Design, in RiskInputs) string {
@@ -154,7 +157,7 @@ func (v RiskView) resultText(r *RiskResult, width int) []string {
 	for _, f := range r.Curve.Failed {
 		out = append(out, wrap(fmt.Sprintf("Belief %s: unsolved: %v", reportText(f.Belief, r.Labels), f.Err))...)
 	}
-	out = append(out, strings.Split(st.Dim.Width(max(10, width)).Render(lotteryNote), "\n")...)
+	out = append(out, strings.Split(st.Dim.Width(max(10, width)).Render(lotteryNote(v.keys)), "\n")...)
 	return out
 }
 

@@ -634,9 +634,9 @@ func TestLotteryExport(t *testing.T) {
 	dir := t.TempDir()
 	m := testModel(t, nil, Settings{Dir: dir, Version: "test"})
 	start(t, m, 80, 24)
-	press(t, m, tea_ctrlX(), tea.KeyMsg{Type: tea.KeyCtrlL})
+	press(t, m, tea_ctrlX(), tea.KeyMsg{Type: tea.KeyCtrlT})
 	if m.dialog == nil || !m.dialog.lottery {
-		t.Fatal("ctrl+l did not choose the lottery")
+		t.Fatal("ctrl+t did not choose the lottery")
 	}
 	if v := m.View(); !strings.Contains(v, "[lottery]") || !strings.Contains(v, "gambling") {
 		t.Fatalf("the dialog does not show the lottery and its caution:\n%s", v)
@@ -667,10 +667,10 @@ func TestLotteryExport(t *testing.T) {
 	if b, _ := os.ReadFile(pp); !strings.Contains(string(b), lottery.Caution) || !strings.Contains(string(b), "chance") {
 		t.Errorf("point lottery export:\n%s", b)
 	}
-	// Money again: ctrl+l toggles back.
-	press(t, m, tea_ctrlX(), tea.KeyMsg{Type: tea.KeyCtrlL}, tea.KeyMsg{Type: tea.KeyCtrlL})
+	// Money again: ctrl+t toggles back.
+	press(t, m, tea_ctrlX(), tea.KeyMsg{Type: tea.KeyCtrlT}, tea.KeyMsg{Type: tea.KeyCtrlT})
 	if m.dialog.lottery {
-		t.Fatal("second ctrl+l did not go back to money")
+		t.Fatal("second ctrl+t did not go back to money")
 	}
 }
 

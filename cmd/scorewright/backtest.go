@@ -239,7 +239,8 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 	if res.Rows == 0 {
 		msg := fmt.Sprintf("%s has no valid forecasts", *historyPath)
 		if res.SkippedCount > 0 {
-			msg += fmt.Sprintf(" (%d rows skipped; the first, line %d: %s)", res.SkippedCount, res.Skipped[0].Line, res.Skipped[0].Why)
+			first := res.Skipped[0]
+			msg += fmt.Sprintf(" (%s skipped; the first, %s: %s)", plural(res.SkippedCount, "row"), (&history.RowError{Line: first.Line, EndLine: first.EndLine, Unit: h.Unit()}).Where(), first.Why)
 		}
 		return usagef("%s", msg)
 	}

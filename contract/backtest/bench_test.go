@@ -23,16 +23,23 @@ import (
 // the repository) and reused; its size is set with -rows, e.g.
 //
 //	go test ./contract/backtest -run '^$' -bench 'Read|Backtest' -benchtime 1x -rows 10000000
-var benchRows = flag.Int("rows", 200_000, "rows in the generated benchmark history")
+var (
+	benchRows        = flag.Int("rows", 200_000, "rows in the generated benchmark history")
+	benchForecasters = flag.Int("forecasters", 40, "forecasters in the generated benchmark history")
+)
 
 var benchLabels = []string{"below", "near", "above"}
 
-// benchHistory returns the path of a history with rows forecasts by 40
-// forecasters, writing it first if needed. Forecasts are on the 5 % menu
+// benchHistory returns the path of a history with rows forecasts by
+// -forecasters forecasters (taking turns), writing it first if needed. Forecasts are on the 5 % menu
 // except one in 16, written with three decimals.
 func benchHistory(tb testing.TB, rows int) string {
 	tb.Helper()
+	fc := *benchForecasters
 	path := filepath.Join(os.TempDir(), fmt.Sprintf("scorewright-backtest-%d.csv", rows))
+	if fc != 40 {
+		path = filepath.Join(os.TempDir(), fmt.Sprintf("scorewright-backtest-%d-%d.csv", rows, fc))
+	}
 	if st, err := os.Stat(path); err == nil && st.Size() > 0 {
 		return path
 	}
@@ -70,9 +77,9 @@ func benchHistory(tb testing.TB, rows int) string {
 		}
 		buf = buf[:0]
 		buf = append(buf, "forecaster "...)
-		buf = strconv.AppendInt(buf, int64(i%40), 10)
+		buf = strconv.AppendInt(buf, int64(i%fc), 10)
 		buf = append(buf, ",question "...)
-		buf = strconv.AppendInt(buf, int64(i/40), 10)
+		buf = strconv.AppendInt(buf, int64(i/fc), 10)
 		buf = append(buf, ',')
 		buf = append(buf, y...)
 		for _, x := range p {
@@ -148,6 +155,43 @@ func BenchmarkPlainRead(b *testing.B) {
 	b.ReportMetric(float64(*benchRows)*float64(b.N)/b.Elapsed().Seconds(), "rows/s")
 }
 
+// BenchmarkPlainParse is the reference the backtest is measured against:
+// encoding/csv reading every record plus strconv.ParseFloat of its three
+// probabilities, nothing else.
+func BenchmarkPlainParse(b *testing.B) {
+	path := benchHistory(b, *benchRows)
+	st, _ := os.Stat(path)
+	b.SetBytes(st.Size())
+	b.ResetTimer()
+	var sink float64
+	for b.Loop() {
+		in, f := openBench(b, path)
+		r := csv.NewReader(in)
+		r.ReuseRecord = true
+		if _, err := r.Read(); err != nil {
+			b.Fatal(err)
+		}
+		for {
+			rec, err := r.Read()
+			if err == io.EOF {
+				break
+			}
+			if err != nil {
+				b.Fatal(err)
+			}
+			for _, s := range rec[3:] {
+				x, _ := strconv.ParseFloat(s, 64)
+				sink += x
+			}
+		}
+		f.Close()
+	}
+	if sink == 0 {
+		b.Fatal("nothing parsed")
+	}
+	b.ReportMetric(float64(*benchRows)*float64(b.N)/b.Elapsed().Seconds(), "rows/s")
+}
+
 // BenchmarkHistoryRead reads and validates every row (history.Reader:
 // numbers parsed, ranges and sums checked) and scores nothing: the part of
 // the backtest that is reading.
@@ -201,8 +245,8 @@ func BenchmarkBacktest(b *testing.B) {
 		if err != nil {
 			b.Fatal(err)
 		}
-		if res.Rows+res.SkippedCount != *benchRows || len(res.Forecasters) != 40 {
-			b.Fatalf("%d rows, %d skipped, %d forecasters", res.Rows, res.SkippedCount, len(res.Forecasters))
+		if res.Rows+res.SkippedCount != *benchRows || res.ForecasterCount != min(*benchForecasters, *benchRows) {
+			b.Fatalf("%d rows, %d skipped, %d forecasters", res.Rows, res.SkippedCount, res.ForecasterCount)
 		}
 	}
 	b.ReportMetric(float64(*benchRows)*float64(b.N)/b.Elapsed().Seconds(), "rows/s")

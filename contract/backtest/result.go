@@ -208,9 +208,14 @@ func (t *Tally) forecasterResult(i int, ranks [][]int32, keep bool) Forecaster {
 	if t.opt.Distinct {
 		f.Binning.Grid = 0
 	}
-	bins := t.bins(i, f.Binning.Grid)
-	events := t.events(i)
+	var bins []Bin
+	var events [][]corp.Group
 	for s := range t.schemes {
+		// The decompositions split the efforts that were paid: each
+		// forecast as the scheme records and adjusts it.
+		paid := t.paidReport(s)
+		bins = t.bins(i, f.Binning.Grid, paid)
+		events = t.events(i, paid)
 		m := t.money[i*k+s].money()
 		f.Count = m.Count
 		f.Money = append(f.Money, m)
@@ -222,20 +227,50 @@ func (t *Tally) forecasterResult(i int, ranks [][]int32, keep bool) Forecaster {
 		f.CORP = append(f.CORP, t.corpOf(s, events))
 	}
 	if keep {
-		f.Bins, f.Events = bins, events
+		// Bins and events are kept as the first scheme pays them.
+		f.Bins, f.Events = t.bins(i, f.Binning.Grid, t.paidReport(0)), t.events(i, t.paidReport(0))
 	}
 	return f
 }
 
-// events groups forecaster i's forecasts of each event by probability:
+// paidReport returns the report scheme s pays for a forecast (Record, then
+// Adjust), or nil when the scheme pays forecasts as written.
+func (t *Tally) paidReport(s int) func(p []float64) []float64 {
+	sc := &t.schemes[s]
+	if sc.Record == nil && sc.Adjust == nil {
+		return nil
+	}
+	return func(p []float64) []float64 {
+		if sc.Record != nil {
+			p = sc.Record(t.rec, p)
+		}
+		if sc.Adjust != nil {
+			p = sc.Adjust(t.adj, p)
+		}
+		return p
+	}
+}
+
+// entries visits forecaster i's forecasts as paid (as written when paid
+// is nil).
+func (t *Tally) entries(i int, paid func(p []float64) []float64, fn func(p []float64, hits []uint32)) {
+	t.store.entries(i, func(p []float64, hits []uint32) {
+		if paid != nil {
+			p = paid(p)
+		}
+		fn(p, hits)
+	})
+}
+
+// events groups forecaster i's forecasts (as paid) of each event by probability:
 // the first outcome for two outcomes, every outcome for more.
-func (t *Tally) events(i int) [][]corp.Group {
+func (t *Tally) events(i int, paid func([]float64) []float64) [][]corp.Group {
 	ne := t.n
 	if t.n == 2 {
 		ne = 1
 	}
 	raw := make([][]corp.Group, ne)
-	t.store.entries(i, func(p []float64, hits []uint32) {
+	t.entries(i, paid, func(p []float64, hits []uint32) {
 		var c int
 		for _, h := range hits {
 			c += int(h)
@@ -278,16 +313,16 @@ func binaryLoss(sc *bregman.Scorer) corp.Loss {
 	}
 }
 
-// bins groups forecaster i's forecasts into cells of width 1/grid in the
+// bins groups forecaster i's forecasts (as paid) into cells of width 1/grid in the
 // first n−1 probabilities (grid 0: by distinct forecast), sorted by mean
 // forecast.
-func (t *Tally) bins(i, grid int) []Bin {
+func (t *Tally) bins(i, grid int, paid func([]float64) []float64) []Bin {
 	n := t.n
 	table := newKeyTable(n)
 	key := make([]float64, n)
 	var count []int
 	var sumP, hitsK []float64
-	t.store.entries(i, func(p []float64, hits []uint32) {
+	t.entries(i, paid, func(p []float64, hits []uint32) {
 		copy(key, p)
 		if grid > 0 {
 			for k, x := range p[:n-1] {

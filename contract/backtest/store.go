@@ -15,8 +15,9 @@ const DefaultMaxDistinct = 1 << 20
 // forecast) pairs and not with the rows, how often each outcome followed
 // each forecast of each forecaster: all the CORP decomposition, the binned
 // decomposition and the reliability picture need. Forecasts are interned
-// once for all forecasters; each pair is one entry of n counts, chained
-// per forecaster, so a forecaster costs one int32 until it forecasts.
+// once for all forecasters; each pair is one entry of n counts keyed by
+// forecaster<<32 | forecast, chained per forecaster, so a forecaster costs
+// one int32 until it forecasts.
 type outcomeStore struct {
 	n           int
 	maxDistinct int
@@ -27,8 +28,6 @@ type outcomeStore struct {
 	pairs     pairTable
 	hits      []uint32 // n per entry
 	next      []int32  // next entry of the same forecaster; -1 ends
-	forecast  []int32  // forecast of each entry
-	owner     []int32  // forecaster of each entry
 	head      []int32  // first entry of each forecaster; -1: none yet
 	key       []float64
 	last      int // entry found by the last call to entry
@@ -78,8 +77,6 @@ func (s *outcomeStore) entry(f, id int) {
 	if made {
 		s.hits = append(s.hits, make([]uint32, s.n)...)
 		s.next = append(s.next, s.head[f])
-		s.forecast = append(s.forecast, int32(id))
-		s.owner = append(s.owner, int32(f))
 		s.head[f] = int32(e)
 	}
 	s.last = e
@@ -89,7 +86,7 @@ func (s *outcomeStore) entry(f, id int) {
 // forecaster f's entries.
 func (s *outcomeStore) entries(f int, fn func(p []float64, hits []uint32)) {
 	for e := s.head[f]; e >= 0; e = s.next[e] {
-		fn(s.vector(int(s.forecast[e])), s.hits[int(e)*s.n:(int(e)+1)*s.n])
+		fn(s.vector(int(uint32(s.pairs.keys[e]))), s.hits[int(e)*s.n:(int(e)+1)*s.n])
 	}
 }
 
@@ -115,14 +112,14 @@ func (s *outcomeStore) coarsen() {
 		j, _ := s.forecasts.find(s.key, true)
 		remap[i] = int32(j)
 	}
-	hits, owner, forecast := s.hits, s.owner, s.forecast
+	hits, keys := s.hits, s.pairs.keys
 	s.pairs = newPairTable()
-	s.hits, s.next, s.forecast, s.owner = nil, nil, nil, nil
+	s.hits, s.next = nil, nil
 	for f := range s.head {
 		s.head[f] = -1
 	}
-	for e, f := range owner {
-		s.entry(int(f), int(remap[forecast[e]]))
+	for e, key := range keys {
+		s.entry(int(key>>32), int(remap[uint32(key)]))
 		for k := range s.n {
 			s.hits[s.last*s.n+k] += hits[e*s.n+k]
 		}

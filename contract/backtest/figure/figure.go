@@ -46,7 +46,7 @@ func Reliability(curves []backtest.Curve, outcome, title string, caution []strin
 	p.Title.Text = title
 	p.X.Label.Text = fmt.Sprintf("forecast probability of %q", outcome)
 	if len(caution) > 0 {
-		p.X.Label.Text += "\n" + strings.Join(caution, " ")
+		p.X.Label.Text += "\n" + wrap(strings.Join(caution, " "), 70)
 		p.X.Label.TextStyle.Font.Size = vg.Points(7)
 	}
 	p.Y.Label.Text = fmt.Sprintf("observed frequency of %q", outcome)
@@ -86,7 +86,12 @@ func Reliability(curves []backtest.Curve, outcome, title string, caution []strin
 		points := c.Points
 		pts.GlyphStyleFunc = func(j int) draw.GlyphStyle {
 			g := pts.GlyphStyle
-			g.Radius = vg.Points(2 + 5*math.Sqrt(float64(points[j].Count)/float64(most)))
+			// Continuous forecasts (one case each) draw small marks; a menu's
+			// repeated reports grow with their count.
+			g.Radius = vg.Points(1.5)
+			if most > 1 {
+				g.Radius = vg.Points(2 + 5*math.Sqrt(float64(points[j].Count)/float64(most)))
+			}
 			return g
 		}
 		p.Add(line, pts)
@@ -155,4 +160,25 @@ func addBand(p *plot.Plot, c backtest.Curve, col color.Color) error {
 		p.Add(l)
 	}
 	return nil
+}
+
+// wrap breaks text at spaces into lines of at most width bytes (a longer
+// word stays whole), so that a label never outgrows the picture.
+func wrap(text string, width int) string {
+	var lines []string
+	line := ""
+	for _, w := range strings.Fields(text) {
+		if line != "" && len(line)+1+len(w) > width {
+			lines = append(lines, line)
+			line = ""
+		}
+		if line != "" {
+			line += " "
+		}
+		line += w
+	}
+	if line != "" {
+		lines = append(lines, line)
+	}
+	return strings.Join(lines, "\n")
 }

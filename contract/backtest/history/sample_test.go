@@ -9,8 +9,10 @@ import (
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
+	"time"
 )
 
 // The sample histories in testdata are demo data from an invented
@@ -31,7 +33,59 @@ var update = flag.Bool("update", false, "rewrite the sample histories in testdat
 const (
 	frostSample   = "orchard-frost.csv"
 	harvestSample = "harvest-outlook.csv"
+	ferrySample   = "ferry-departures.csv"
+	ferryLines    = "ferry-departures.jsonl"
 )
+
+// ferryRows: demo data from another invented scenario. A ferry
+// co-operative compares two delay models, Tern (calibrated) and Gannet
+// (overconfident), each giving every morning from 5 January 2026 the
+// probability that the first crossing leaves late, at full precision as
+// model output comes. The chance of a late start rises with a latent
+// weather index.
+func ferryRows() [][]string {
+	rng := rand.New(rand.NewPCG(2026, 15))
+	start := time.Date(2026, 1, 5, 0, 0, 0, 0, time.UTC)
+	var rows [][]string
+	for day := range 150 {
+		date := start.AddDate(0, 0, day).Format("2006-01-02")
+		z := -1.2 + 2.2*rng.NormFloat64()*0.8
+		chance := logistic(z)
+		outcome := "on time"
+		if rng.Float64() < chance {
+			outcome = "late"
+		}
+		tern := logistic(z + 0.35*rng.NormFloat64())
+		gannet := logistic(2.4*z + 0.35*rng.NormFloat64())
+		for _, f := range []struct {
+			name string
+			p    float64
+		}{{"Tern", tern}, {"Gannet", gannet}} {
+			p := math.Round(f.p*1e6) / 1e6
+			rows = append(rows, []string{f.name, "crossing " + date, outcome, date, strconv.FormatFloat(p, 'f', -1, 64), strconv.FormatFloat(math.Round((1-p)*1e6)/1e6, 'f', -1, 64)})
+		}
+	}
+	return rows
+}
+
+var ferryHeader = []string{"forecaster", "question", "outcome", "date", "late", "on time"}
+
+func ferryCSV() string {
+	var b strings.Builder
+	b.WriteString(strings.Join(ferryHeader, ",") + "\n")
+	for _, r := range ferryRows() {
+		b.WriteString(strings.Join(r, ",") + "\n")
+	}
+	return b.String()
+}
+
+func ferryJSON() string {
+	var b strings.Builder
+	for _, r := range ferryRows() {
+		fmt.Fprintf(&b, "{\"forecaster\":%q,\"question\":%q,\"outcome\":%q,\"date\":%q,\"late\":%s,\"on time\":%s}\n", r[0], r[1], r[2], r[3], r[4], r[5])
+	}
+	return b.String()
+}
 
 // twentieths rounds x in [0, 1] to the 5 % report menu.
 func twentieths(x float64) float64 {
@@ -152,6 +206,8 @@ func TestSampleHistories(t *testing.T) {
 	}{
 		{frostSample, frostHistory(), []string{"frost", "clear"}, 180, []int{24, 61, 101, 147}},
 		{harvestSample, harvestHistory(), []string{"below", "near", "above"}, 72, []int{19, 54}},
+		{ferrySample, ferryCSV(), []string{"late", "on time"}, 300, nil},
+		{ferryLines, ferryJSON(), []string{"late", "on time"}, 300, nil},
 	} {
 		path := filepath.Join("..", "..", "..", "testdata", "histories", c.file)
 		if *update {
@@ -168,7 +224,8 @@ func TestSampleHistories(t *testing.T) {
 		}
 		// The broken rows are exactly the ones planted, and every other
 		// row reads.
-		h, err := NewReader(strings.NewReader(c.text), c.labels, Options{})
+		format := FormatOf(c.file)
+		h, err := Open(strings.NewReader(c.text), format, c.labels, Options{})
 		if err != nil {
 			t.Fatal(err)
 		}
