@@ -96,7 +96,11 @@ func NewDesignPane(st Styles, keys KeyMap, d *design.Design) DesignPane {
 	ta := textarea.New()
 	ta.ShowLineNumbers = false
 	ta.Prompt = "┃ "
-	ta.CharLimit = 4000
+	// No limit of the editor's own: it would cut a longer formula, opened
+	// or pasted, without a word. The language's limit is enforced in
+	// Update, with a message.
+	ta.CharLimit = 0
+	ta.MaxHeight = 0
 	ta.Cursor.SetMode(cursor.CursorStatic)
 	calmEditing(&ta.KeyMap.DeleteAfterCursor, &ta.KeyMap.DeleteBeforeCursor)
 	ta.FocusedStyle.CursorLine = st.Header.UnsetBold()
@@ -189,6 +193,11 @@ func (p DesignPane) Update(msg tea.Msg, d *design.Design) (DesignPane, tea.Cmd, 
 		before := p.ta.Value()
 		p.ta, cmd = p.ta.Update(km)
 		if p.ta.Value() == before {
+			return p, cmd, false
+		}
+		if n := len(p.ta.Value()); n > formula.MaxSource {
+			p.ta.SetValue(before)
+			p.note = fmt.Sprintf("refused: the formula would be %d bytes; a formula may be at most %d (64 KiB)", n, formula.MaxSource)
 			return p, cmd, false
 		}
 		d.Formula = p.ta.Value()

@@ -48,6 +48,8 @@ type fileDialog struct {
 	// lottery says the export pays a chance of winning a prize instead of
 	// money (contract/lottery); only export dialogs offer it.
 	lottery bool
+	// seq numbers the dialog, for telling its answers from late ones.
+	seq uint64
 }
 
 func newFileDialog(st Styles, keys KeyMap, kind dialogKind, path string, formats []string) fileDialog {
@@ -137,6 +139,18 @@ func (d fileDialog) Update(km tea.KeyMsg) (fileDialog, tea.Cmd, dialogAction) {
 	var cmd tea.Cmd
 	d.path, cmd = d.path.Update(km)
 	return d, cmd, actNone
+}
+
+// formatFromPath makes the format the one the path's extension names, when
+// it names one of the dialog's formats: what is written into annex.pdf is
+// a PDF, whatever the format field showed.
+func (d *fileDialog) formatFromPath() {
+	ext := strings.ToLower(strings.TrimPrefix(filepath.Ext(d.Path()), "."))
+	for i, f := range d.formats {
+		if f == ext {
+			d.format = i
+		}
+	}
 }
 
 // swapExt replaces extension old of path with new.

@@ -31,18 +31,26 @@ const (
 
 // Messages of the file operations.
 type (
+	// Every result carries the dialog it answers (seq) and the design
+	// generation it was asked at, so that a late answer never lands on a
+	// later dialog or over a design that changed meanwhile.
 	savedMsg struct {
 		path string
 		gen  uint64 // the generation that was saved
+		seq  uint64
 		err  error
 	}
 	openedMsg struct {
 		path string
 		d    *design.Design
+		gen  uint64
+		seq  uint64
 		err  error
 	}
 	exportedMsg struct {
 		files []string
+		gen   uint64
+		seq   uint64
 		err   error
 	}
 )
@@ -57,6 +65,7 @@ type Model struct {
 	d             *design.Design
 	path          string // where the design was loaded from or saved to
 	gen           uint64 // generation of the design; bumped on every edit
+	dialogSeq     uint64 // serial number of the last dialog opened
 	comp          *compiled
 	compGen       uint64
 	debouncedGen  uint64
@@ -260,18 +269,21 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		return m, nil
 	case savedMsg:
 		gen := msg.gen
-		return m, m.fileDone(msg.err, func() {
+		return m, m.fileDone(msg.seq, msg.err, func() {
 			m.path = msg.path
 			m.savedGen = gen
 			m.status = "saved the design to " + msg.path
 		})
 	case openedMsg:
-		return m, m.fileDone(msg.err, func() {
+		if msg.err == nil && msg.gen != m.gen {
+			msg.err = errors.New("the design changed while the file was read; open it again")
+		}
+		return m, m.fileDone(msg.seq, msg.err, func() {
 			m.status = "opened " + msg.path
 			m.path = msg.path
 		}, func() tea.Cmd { return m.replaceDesign(msg.d) })
 	case exportedMsg:
-		return m, m.fileDone(msg.err, func() {
+		return m, m.fileDone(msg.seq, msg.err, func() {
 			m.status = "exported: " + strings.Join(msg.files, ", ")
 		})
 	}

@@ -14,8 +14,9 @@ import (
 
 // fileDone finishes a file dialog: an existing file makes it ask before
 // replacing, other errors stay in the dialog, success closes it.
-func (m *Model) fileDone(err error, ok func(), then ...func() tea.Cmd) tea.Cmd {
-	if m.dialog == nil {
+func (m *Model) fileDone(seq uint64, err error, ok func(), then ...func() tea.Cmd) tea.Cmd {
+	if m.dialog == nil || m.dialog.seq != seq {
+		// The dialog was cancelled (esc) or replaced: the answer is late.
 		return nil
 	}
 	switch {
@@ -110,12 +111,17 @@ func (m *Model) openDialog(kind dialogKind) {
 		d := newFileDialog(m.st, m.keys, kind, m.defaultName(fs[0]), fs)
 		m.dialog = &d
 	}
+	if m.dialog != nil {
+		m.dialogSeq++
+		m.dialog.seq = m.dialogSeq
+	}
 }
 
 // submitDialog returns the command doing what the dialog asked.
 func (m *Model) submitDialog() tea.Cmd {
 	dl := m.dialog
-	path, overwrite, format, lot := dl.Path(), dl.overwrite, dl.Format(), dl.lottery
+	dl.formatFromPath()
+	path, overwrite, format, lot, seq := dl.Path(), dl.overwrite, dl.Format(), dl.lottery, dl.seq
 	if !filepath.IsAbs(path) && m.set.Dir != "" && !strings.HasPrefix(path, m.set.Dir) {
 		path = filepath.Join(m.set.Dir, path)
 	}
@@ -124,7 +130,7 @@ func (m *Model) submitDialog() tea.Cmd {
 	case dialogSave:
 		return func() tea.Msg {
 			abs, _ := filepath.Abs(path)
-			return savedMsg{path: abs, gen: gen, err: d.Save(path, overwrite)}
+			return savedMsg{path: abs, gen: gen, seq: seq, err: d.Save(path, overwrite)}
 		}
 	case dialogHistory:
 		return m.startBacktest(path)
@@ -134,13 +140,13 @@ func (m *Model) submitDialog() tea.Cmd {
 			if err == nil {
 				err = prepareDesign(nd)
 			}
-			return openedMsg{path: path, d: nd, err: err}
+			return openedMsg{path: path, d: nd, gen: gen, seq: seq, err: err}
 		}
 	default:
 		ex, ctx := m.set.Exporter, m.ctx
 		return func() tea.Msg {
 			files, err := ex.Export(ctx, d, ExportRequest{Format: format, Path: path, Overwrite: overwrite, Lottery: lot})
-			return exportedMsg{files: files, err: err}
+			return exportedMsg{files: files, gen: gen, seq: seq, err: err}
 		}
 	}
 }

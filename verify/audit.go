@@ -138,7 +138,7 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	for i := range honest {
 		honest[i] = m.phi(g.Point(i), i)
 	}
-	prop, _ := properness(g, m, honest, bs, s.Tolerance, rep.Grid.Scale)
+	prop, _, _ := properness(g, m, honest, bs, s.Tolerance, rep.Grid.Scale)
 
 	rep.Beliefs = make([]BeliefGap, G)
 	for i, b := range bs {

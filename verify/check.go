@@ -128,7 +128,7 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	if err != nil {
 		return nil, err
 	}
-	prop, nonneg := properness(g, m, h, bs, s.Tolerance, rep.Grid.Scale)
+	prop, nonneg, ties := properness(g, m, h, bs, s.Tolerance, rep.Grid.Scale)
 	if g.Sampled {
 		if err := searchReports(ctx, g, &prop, s, func(int) func(q, p []float64) float64 {
 			sc := r.NewScorer()
@@ -165,21 +165,28 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 		mid.apply(&conc)
 	}
 	prop.Note = propernessNote(prop, "effort", "less")
+	var strictNote string
+	if conc.Passed && prop.Passed && nonneg.Passed && aff.Passed {
+		cell := cellOf(g)
+		if cell == 0 {
+			cell = 0.5 / float64(g.K)
+		}
+		_, strictNote = decideStrictness(sc, &prop, conc, ties, cell)
+	}
 	nonneg.Note = nonnegNote(nonneg)
 	rep.Checks = []CheckResult{conc, prop, nonneg, aff, bounded}
 	rep.Notes = append(rep.Notes, boundaryNotes(conc, bounded, s.Tolerance)...)
 	switch {
 	case !conc.Passed || !prop.Passed || !nonneg.Passed || !aff.Passed:
 		rep.Verdict = Improper
-	case prop.Strict && conc.Strict:
-		rep.Verdict = StrictlyProper
 	case prop.Strict:
-		// Strict properness is strict concavity. The grid's pairs show no
-		// tie, but H is flat in some direction at an interior point, and a
-		// flat piece narrower than a grid step leaves ties no grid pair
-		// can show (min(p(1-p), 0.2499999) is flat on |p - 1/2| < 3.2e-4).
-		rep.Verdict = Proper
-		rep.Notes = append(rep.Notes, fmt.Sprintf("strict properness is not established: no two grid reports tie, but the curvature of H vanishes at the interior point %s (largest projected eigenvalue %.3g), where nearby reports may do equally well; check at a finer resolution", num.Format(conc.Interior.Belief), conc.Interior.Worst))
+		// Strictly proper unless two different reports tie (a confirmed
+		// witness above); a curvature that vanishes at isolated points
+		// (-x^4-like) leaves H strictly concave.
+		rep.Verdict = StrictlyProper
+		if strictNote != "" {
+			rep.Notes = append(rep.Notes, strictNote)
+		}
 	default:
 		rep.Verdict = Proper
 	}
