@@ -234,11 +234,22 @@ func propernessNote(c CheckResult, what, better string) string {
 	case !c.Passed && c.Worst != c.Worst:
 		return fmt.Sprintf("at belief %s the honest report's expected %s is undefined (NaN): the rule is not defined there, so it cannot be called proper", num.Format(c.Belief), what)
 	case !c.Passed:
-		return joinNotes(fmt.Sprintf("a forecaster with belief %s expects %.6g %s %s by reporting %s than by reporting honestly", num.Format(c.Belief), c.Worst, better, what, num.Format(c.Report)), sharpenedNote(c))
+		return joinNotes(gainNote(c.Belief, c.Report, c.Worst, better, what), sharpenedNote(c))
 	case c.Strict:
 		return fmt.Sprintf("at every grid belief the honest report is the unique best grid report, and the closest other report falls short by %.6g, at belief %s (strictness judged against the rounding floor %g, relative)", c.Margin, num.Format(c.MarginBelief), StrictFloor)
 	}
 	return fmt.Sprintf("the honest report is a best report at every grid belief, but not the only one: at belief %s the report %s does as well (difference %.3g)", num.Format(c.MarginBelief), num.Format(c.MarginReport), c.Margin)
+}
+
+// gainNote says what a forecaster gains by a misreport, naming belief and
+// report with as many digits as tell them apart; a report equal to the
+// belief is no witness, and then none is named.
+func gainNote(belief, report []float64, gain float64, better, what string) string {
+	b, r, ok := num.FormatApart(belief, report)
+	if !ok {
+		return fmt.Sprintf("at belief %s the honest report's expected %s falls short by %.6g of what the search found, at a report that cannot be told apart from the belief: no misreport is named (the rule is discontinuous at the honest report)", b, what, gain)
+	}
+	return fmt.Sprintf("a forecaster with belief %s expects %.6g %s %s by reporting %s than by reporting honestly", b, gain, better, what, r)
 }
 
 func nonnegNote(c CheckResult) string {
