@@ -15,7 +15,7 @@ import (
 func TestRandomKeysKeepTheScreenWhole(t *testing.T) {
 	keys := []tea.KeyMsg{keyUp, keyDown, keyLeft, keyRight, keyEnter, keyEsc, keyTab, keyBack, keyEnd,
 		{Type: tea.KeyShiftTab}, {Type: tea.KeyShiftLeft}, {Type: tea.KeyShiftRight}, {Type: tea.KeyPgDown}, {Type: tea.KeyPgUp},
-		{Type: tea.KeySpace, Runes: []rune{' '}}, {Type: tea.KeyF1}, keyCtrlN, keyCtrlS, tea_ctrlO(), tea_ctrlX(), keyCtrlR, keyCtrlR,
+		{Type: tea.KeySpace, Runes: []rune{' '}}, {Type: tea.KeyF1}, keyCtrlN, keyCtrlS, tea_ctrlO(), tea_ctrlX(), keyCtrlR, keyCtrlR, keyCtrlY, keyCtrlY,
 		runes("+"), runes("-"), runes("m"), runes("p"), runes("["), runes("]"), runes("r"), runes("?"), runes("y"), runes("n"),
 		runes("x"), runes("1"), runes("("), runes("^"), runes(","), runes("."), runes("q")}
 	for seed := uint64(1); seed <= 4; seed++ {

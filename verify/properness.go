@@ -11,6 +11,12 @@ import (
 	"scorewright/internal/simplex"
 )
 
+// properness reduces the stream: for each belief the honesty gap (honest
+// expected effort minus the best) and the margin (best other report minus
+// honest), and for non-negativity the smallest divergence m1 - H(q).
+//
+// Numeric kernel: one pass over the grid (or the lanes) kept whole so
+// the arithmetic reads in one place; it stays longer than 80 lines on purpose.
 func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T, scale float64) (prop, nonneg CheckResult) {
 	var gapIn, gapBd, negIn, negBd part
 	marginMin := math.Inf(1)

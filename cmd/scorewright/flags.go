@@ -191,7 +191,7 @@ func (r *ruleFlags) design() (*design.Design, error) {
 		}
 	}
 	if d.Weights == nil && d.Preset != "" {
-		if p, err := presets.Lookup(d.Preset); err == nil && p.Weighted && d.Mode == design.ModeGenerator {
+		if p, err := presets.Lookup(d.Preset); err == nil && p.Weighted && p.Kind == presets.KindGenerator {
 			return nil, usagef("preset %q needs --weights w1,...,w%d", d.Preset, d.N())
 		}
 	}

@@ -38,6 +38,9 @@ func (m *Machine) Hessian(hess, grad, vars []float64) float64 {
 }
 
 // hessLane computes the gradient and Hessian of lane l of an instruction.
+//
+// Numeric kernel: one pass over the grid (or the lanes) kept whole so
+// the arithmetic reads in one place; it stays longer than 80 lines on purpose.
 func (m *Machine) hessLane(in *cell, l int32) {
 	v, nv := m.val, m.nv
 	i := int(in.dst + l)
