@@ -190,10 +190,7 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 		return usagef("%s: %v", *historyPath, err)
 	}
 
-	bs := make([]backtest.Scheme, len(schemes))
-	for i, s := range schemes {
-		bs[i] = backtest.Scheme{Name: s.id, Rule: s.rule, Pay: s.money.pay, OnMenu: s.money.onMenu, Low: s.money.low, High: s.money.high, Adjust: s.money.adjust, Record: s.money.record}
-	}
+	bs := engineSchemes(schemes)
 	opt := backtest.Options{Strict: *strict, Tally: backtest.TallyOptions{Grid: grid}}
 	if *progress || isTerminal(e.stderr) {
 		opt.Progress = newProgressLine(e.stderr, size)
@@ -209,16 +206,7 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 	var questions *questionTally
 	if *byQuestion {
 		questions = newQuestionTally(d1.Labels)
-		if out != nil {
-			opt.OnRow = func(row *history.Row, paid []backtest.Paid) error {
-				if err := out.write(row, paid); err != nil {
-					return err
-				}
-				return questions.add(row, paid)
-			}
-		} else {
-			opt.OnRow = questions.add
-		}
+		opt.OnRow = bothRows(opt.OnRow, questions.add)
 	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
@@ -226,53 +214,101 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 	if opt.Progress != nil {
 		fmt.Fprintln(e.stderr)
 	}
+	if err := runError(*historyPath, h, res, err); err != nil {
+		return err
+	}
+	return finishBacktest(e, h, schemes, res, backtestOutputs{history: *historyPath, payOut: *payOut, out: out, forecastersOut: *forecastersOut,
+		figPath: *figPath, figFormat: figFormat, force: *force, questions: questions, asJSON: *asJSON, chart: *chart, event: d1.Labels[0]})
+}
+
+// engineSchemes are the schemes as the engine pays them.
+func engineSchemes(schemes []*backtestScheme) []backtest.Scheme {
+	bs := make([]backtest.Scheme, len(schemes))
+	for i, s := range schemes {
+		bs[i] = backtest.Scheme{Name: s.id, Rule: s.rule, Pay: s.money.pay, OnMenu: s.money.onMenu, Low: s.money.low, High: s.money.high, Adjust: s.money.adjust, Record: s.money.record}
+	}
+	return bs
+}
+
+// bothRows calls first (when set), then second, for every row.
+func bothRows(first, second func(*history.Row, []backtest.Paid) error) func(*history.Row, []backtest.Paid) error {
+	if first == nil {
+		return second
+	}
+	return func(row *history.Row, paid []backtest.Paid) error {
+		if err := first(row, paid); err != nil {
+			return err
+		}
+		return second(row, paid)
+	}
+}
+
+// runError turns what backtest.Run returned into the command's error: a
+// bad row under --strict, an interruption, a reading error, or a history
+// with no valid forecast at all; nil when there is a result to report.
+func runError(path string, h *history.Reader, res *backtest.Result, err error) error {
 	if err != nil {
 		var re *history.RowError
 		if errors.As(err, &re) {
-			return usagef("%s %s: %s (--strict stops at the first bad row)", *historyPath, re.Where(), re.Why)
+			return usagef("%s %s: %s (--strict stops at the first bad row)", path, re.Where(), re.Why)
 		}
 		if errors.Is(err, context.Canceled) {
 			return usagef("interrupted; nothing was written")
 		}
-		return usagef("%s: %v", *historyPath, err)
+		return usagef("%s: %v", path, err)
 	}
 	if res.Rows == 0 {
-		msg := fmt.Sprintf("%s has no valid forecasts", *historyPath)
+		msg := fmt.Sprintf("%s has no valid forecasts", path)
 		if res.SkippedCount > 0 {
 			first := res.Skipped[0]
 			msg += fmt.Sprintf(" (%s skipped; the first, %s: %s)", plural(res.SkippedCount, "row"), (&history.RowError{Line: first.Line, EndLine: first.EndLine, Unit: h.Unit()}).Where(), first.Why)
 		}
 		return usagef("%s", msg)
 	}
-	if out != nil {
-		if err := out.commit(); err != nil {
+	return nil
+}
+
+// backtestOutputs are the files and forms a finished backtest is written
+// to.
+type backtestOutputs struct {
+	history, payOut, forecastersOut, figPath, figFormat, event string
+	out                                                        *payOutFile
+	questions                                                  *questionTally
+	force, asJSON, chart                                       bool
+}
+
+// finishBacktest writes a finished backtest: the pay-out file, the
+// forecasters file, the figure, then the report as text or JSON.
+func finishBacktest(e *env, h *history.Reader, schemes []*backtestScheme, res *backtest.Result, o backtestOutputs) error {
+	if o.out != nil {
+		if err := o.out.commit(); err != nil {
 			return err
 		}
 	}
-	report := newBacktestReport(*historyPath, h, schemes, res)
-	if *forecastersOut != "" {
-		if err := writeForecasters(*forecastersOut, *force, schemes, res); err != nil {
+	report := newBacktestReport(o.history, h, schemes, res)
+	if o.forecastersOut != "" {
+		if err := writeForecasters(o.forecastersOut, o.force, schemes, res); err != nil {
 			return err
 		}
-		report.Notes = append(report.Notes, "every forecaster's line written to "+*forecastersOut)
+		report.Notes = append(report.Notes, "every forecaster's line written to "+o.forecastersOut)
 	} else if !res.Shown() {
 		report.Notes = append(report.Notes, fmt.Sprintf("%d forecasters: listed are the %d best and %d worst by mean pay under rule A; --forecasters-out FILE.csv writes every one", res.ForecasterCount, backtest.DefaultShow, backtest.DefaultShow))
 	}
-	if questions != nil {
+	if o.questions != nil {
 		var notes []string
-		report.Questions, notes = questions.report()
+		report.Questions, notes = o.questions.report()
 		report.Notes = append(report.Notes, notes...)
 	}
-	if *figPath != "" {
-		if err := writeReliabilityFigure(*figPath, figFormat, *force, d1.Labels[0], report.curves, report.Warnings); err != nil {
+	if o.figPath != "" {
+		if err := writeReliabilityFigure(o.figPath, o.figFormat, o.force, o.event, report.curves, report.Warnings); err != nil {
 			return err
 		}
-		report.Notes = append(report.Notes, "reliability picture written to "+*figPath)
+		report.Notes = append(report.Notes, "reliability picture written to "+o.figPath)
 	}
-	if out != nil {
-		report.Notes = append(report.Notes, "pay of every forecast written to "+*payOut)
+	if o.out != nil {
+		report.Notes = append(report.Notes, "pay of every forecast written to "+o.payOut)
 	}
-	if *asJSON {
+	if o.asJSON {
 		if err := writeJSON(e.stdout, report); err != nil {
 			return err
 		}
@@ -281,9 +317,9 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 	if err := report.writeText(e.stdout); err != nil {
 		return err
 	}
-	if *chart {
+	if o.chart {
 		fmt.Fprintln(e.stdout)
-		fmt.Fprintln(e.stdout, reliability.New(d1.Labels[0], report.curves).View(72, 22))
+		fmt.Fprintln(e.stdout, reliability.New(o.event, report.curves).View(72, 22))
 	}
 	return failedIfWarned(report)
 }

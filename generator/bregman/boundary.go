@@ -13,8 +13,12 @@ import "math"
 // the limit rule is proper at p too; where a component of the limit is
 // infinite (the log rule at a report ruling the outcome out) it is +Inf.
 //
-// The limit is extrapolated from the efforts at h = 2^-6, 2^-8, ..., 2^-40
-// by Aitken's delta-squared process, which is exact for a power law
+// The limit is extrapolated from the efforts at h = s·2^-6, s·2^-8, ...,
+// s·2^-40, where s is the smallest positive coordinate of p (at most 1):
+// the segment must stay closer to p than p is to the faces it does not
+// lie on, or an effort that converges (-ln p_1 at a small p_1 > 0) looks
+// like one that diverges (-ln h) while h is still larger than p_1. The
+// steps use Aitken's delta-squared process, which is exact for a power law
 // h^alpha of any exponent and the usual rates (h, sqrt(h), h ln h) of
 // generator formulas; differences that do not shrink (ratio >= 0.99) mark
 // a divergence, as -ln h does. When the formal value — the directional
@@ -29,6 +33,9 @@ const (
 	// the sequence counts as diverging: a convergent power law h^alpha
 	// has ratio 4^-alpha, below this for every alpha > 0.007.
 	limitDiverge = 0.99
+	// limitTiny bounds the segment's scale from below: 1e-280 times
+	// 2^-40 is still a normal number.
+	limitTiny = 1e-280
 )
 
 // limitState follows one outcome's effort along the segment.
@@ -114,6 +121,19 @@ func onBoundary(p []float64) bool {
 	return false
 }
 
+// segmentScale is the smallest positive coordinate of p, at most 1 and
+// at least limitTiny, so that the last step's coordinates stay normal
+// floating-point numbers.
+func segmentScale(p []float64) float64 {
+	s := 1.0
+	for _, x := range p {
+		if x > 0 && x < s {
+			s = x
+		}
+	}
+	return math.Max(s, limitTiny)
+}
+
 // directional writes H + sum_j g_j (δ_jk - p_j) for every k, with
 // 0 · ±Inf = 0: the formal effort in the form that is exact at a vertex
 // (every factor δ_jk - p_j is 0 there, so L(e_k, k) = H(e_k)).
@@ -146,8 +166,9 @@ func (s *Scorer) boundaryEfforts(dst, p []float64, h float64) {
 	st := s.limit
 	clear(st)
 	c := 1 / float64(n)
+	scale := segmentScale(p)
 	for step := 0; step < limitSteps; step++ {
-		t := math.Ldexp(1, -limitFirst-2*step)
+		t := scale * math.Ldexp(1, -limitFirst-2*step)
 		for j, x := range p {
 			s.pt[j] = x + t*(c-x)
 		}

@@ -143,3 +143,26 @@ func TestLimitState(t *testing.T) {
 		}
 	}
 }
+
+// A report on a face whose other coordinates are small but positive: the
+// log rule's effort for an outcome with p_k > 0 is -ln p_k (Good 1952),
+// finite, and only the outcome the report rules out costs +Inf. A segment
+// whose steps start larger than p_k once mistook -ln(p_k + h/3) for the
+// divergence -ln h.
+func TestBoundarySmallCoordinateBesideZero(t *testing.T) {
+	s := scorer(t, "-sum(p*ln(p))", 3, nil)
+	eff := make([]float64, 3)
+	for _, small := range []float64{0.3, 1e-3, 4.7e-7, 1e-12, 1e-100} {
+		p := []float64{small, 1 - small, 0}
+		s.Efforts(eff, p)
+		for k := 0; k < 2; k++ {
+			want := -math.Log(p[k])
+			if math.Abs(eff[k]-want) > 1e-9*(1+want) {
+				t.Errorf("report %v: L(p, %d) = %v, want -ln p = %v", p, k+1, eff[k], want)
+			}
+		}
+		if !math.IsInf(eff[2], 1) {
+			t.Errorf("report %v: L(p, 3) = %v, want +Inf", p, eff[2])
+		}
+	}
+}
