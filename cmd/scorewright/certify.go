@@ -9,6 +9,7 @@ import (
 	"time"
 
 	"scorewright"
+	"scorewright/contract/table"
 	"scorewright/internal/num"
 	"scorewright/verify"
 	"scorewright/verify/certify"
@@ -132,4 +133,29 @@ func printCertificate(w io.Writer, c *certificateJSON) {
 	}
 	fmt.Fprintf(w, "\ncertificate (%s): %s\n", c.Kind, c.Verdict)
 	fmt.Fprintf(w, "               %s\n", c.Statement)
+}
+
+// certifyRecord runs the certificate for a table when asked and writes
+// what it proved into the table's record: the verdict kind becomes
+// "certified" only when the rule was proved proper over the whole
+// simplex; otherwise it stays "grid evidence" with the certificate's
+// statement beside it.
+func certifyRecord(e *env, r *scorewright.Rule, m *table.Meta, c *certifyFlags) error {
+	if c == nil || !c.on {
+		return nil
+	}
+	if err := refuseCertifyOnInterval(r, c); err != nil {
+		return err
+	}
+	ctx, stop := interruptible()
+	defer stop()
+	cert, _, err := certificate(ctx, e, r, c)
+	if err != nil {
+		return err
+	}
+	m.Certificate = cert.Statement
+	if cert.Verdict == verify.Proper || cert.Verdict == verify.StrictlyProper {
+		m.VerdictKind = table.Certified
+	}
+	return nil
 }

@@ -66,3 +66,16 @@ func TestCertifyRefusesPointMode(t *testing.T) {
 		t.Errorf("exit %d: %s", code, errs)
 	}
 }
+
+// table --certify records the verdict kind: certified for the quadratic
+// rule (Brier 1950, strictly proper), grid evidence without the flag.
+func TestTableRecordsVerdictKind(t *testing.T) {
+	code, out, errs := runCmd(t, "table", "--outcomes", "3", "--preset", "quadratic", "--floor", "0", "--cap", "100", "--step", "0.25", "--format", "csv", "--certify")
+	if code != 0 || !strings.Contains(out, "# verdict kind: certified\n") || !strings.Contains(out, "# certificate: certified strictly proper") {
+		t.Errorf("exit %d %s\n%s", code, errs, out)
+	}
+	code, out, _ = runCmd(t, "table", "--outcomes", "3", "--preset", "quadratic", "--floor", "0", "--cap", "100", "--step", "0.25", "--format", "csv")
+	if code != 0 || !strings.Contains(out, "# verdict kind: grid evidence\n") {
+		t.Errorf("exit %d\n%s", code, out)
+	}
+}

@@ -24,7 +24,7 @@ import (
 	"scorewright/internal/safefile"
 )
 
-const tableUsage = "RULE BUDGET [--menu FILE] [--clamp P] [--format csv|md|json|tex|svg|png|pdf|xlsx|html] [--out FILE] [--force] [--lottery] [--json] [TERMS]\n\nRULE: " + ruleUsage + "\nBUDGET: " + budgetUsage + "\nTERMS (for the pdf, xlsx and html annexes): " + contractUsage
+const tableUsage = "RULE BUDGET [--menu FILE] [--clamp P] [--format csv|md|json|tex|svg|png|pdf|xlsx|html] [--out FILE] [--force] [--lottery] [--json] [--certify [--deadline D]] [TERMS]\n\nRULE: " + ruleUsage + "\nBUDGET: " + budgetUsage + "\nTERMS (for the pdf, xlsx and html annexes): " + contractUsage
 
 // tableFlags are the options of the table command beyond RULE and BUDGET.
 type tableFlags struct {
@@ -33,6 +33,9 @@ type tableFlags struct {
 	force, json       bool
 	lottery           bool
 	draws             int
+	// cert runs the interval certificate so that the table records
+	// "certified" rather than "grid evidence" as its verdict kind.
+	cert *certifyFlags
 }
 
 func addTableFlags(fs *flag.FlagSet) *tableFlags {
@@ -45,6 +48,7 @@ func addTableFlags(fs *flag.FlagSet) *tableFlags {
 	fs.IntVar(&t.draws, "draws", lottery.DefaultDraws, "--lottery: chances in whole 1/N, settled by drawing a whole number from 1 to N (N a power of ten)")
 	fs.StringVar(&t.menu, "menu", "", "read the report menu from a CSV file: one report per line, n probabilities (n = 2: one number), '#' comments")
 	floatVar(fs, &t.clamp, "clamp", 0, "pay every report as if each probability were at least P (rescaled to sum 1); for rules infinite at 0")
+	t.cert = addCertifyFlags(fs)
 	return t
 }
 
@@ -124,6 +128,9 @@ func tableOf(e *env, fs *flag.FlagSet, d *design.Design, format string, tf *tabl
 		return fitError(err)
 	}
 	tb := r.Export(t, version, exportDate())
+	if err := certifyRecord(e, r, &tb.Meta, tf.cert); err != nil {
+		return err
+	}
 	if t.Point != nil {
 		return writePointTable(e, d, t, tb, format, tf)
 	}

@@ -28,6 +28,12 @@ type Info struct {
 	Currency string
 	// Date is written as given, so tests can fix it.
 	Date string
+	// Certificate is the statement of an interval certificate run on the
+	// rule (verify/certify), and Certified whether it proved the rule
+	// proper; empty when none was run: the table then records that its
+	// verdict is grid evidence.
+	Certificate string
+	Certified   bool
 }
 
 // DesignInfo is the record of where a design's rule came from — title,
@@ -187,9 +193,13 @@ func (f *Fit) Table(rc *Recheck, info Info) *table.Table {
 		Budget: f.BudgetDesc(), Rounding: f.RoundingDesc(),
 		Unit: num.Float(f.Unit), RoundingMode: f.Rounding, Floor: num.Float(f.Floor), Cap: num.Float(f.Cap),
 		Passed: rc.Passed, Verdict: rc.Verdict(f), MinMargin: num.Float(rc.MinMargin),
+		VerdictKind: table.GridEvidence, Certificate: info.Certificate,
 		Notes:   notes,
 		Version: info.Version, Date: info.Date, Currency: info.Currency,
 		Cautions: table.Caution(),
+	}
+	if info.Certified {
+		meta.VerdictKind = table.Certified
 	}
 	switch {
 	case !checked:

@@ -90,6 +90,12 @@ type Meta struct {
 	Passed bool `json:"recheck_passed"`
 	// Verdict explains the re-check in one sentence.
 	Verdict string `json:"recheck_verdict"`
+	// VerdictKind records what the rule's verdict rests on: GridEvidence
+	// (the menu re-check and the grid checks sample beliefs) or Certified
+	// (an interval certificate proved the rule proper over the whole
+	// simplex; Certificate then says what it proved).
+	VerdictKind string `json:"verdict_kind"`
+	Certificate string `json:"certificate,omitempty"`
 	// MinMargin is the smallest incentive margin, in the table's values.
 	MinMargin num.Float `json:"min_margin"`
 	// Warnings are shown prominently; a table exported despite a failed
@@ -102,6 +108,12 @@ type Meta struct {
 	// Cautions close every export; transforms may add lines.
 	Cautions []string `json:"caution"`
 }
+
+// Verdict kinds a table records (Meta.VerdictKind).
+const (
+	GridEvidence = "grid evidence"
+	Certified    = "certified"
+)
 
 // Field is one line of the metadata block.
 type Field struct{ Key, Value string }
@@ -148,6 +160,8 @@ func (m *Meta) Fields() []Field {
 	}
 	add("re-check", verdict+": "+m.Verdict)
 	add("smallest margin", FormatNumber(float64(m.MinMargin)))
+	add("verdict kind", m.VerdictKind)
+	add("certificate", m.Certificate)
 	for _, n := range m.Notes {
 		add("note", n)
 	}

@@ -132,6 +132,12 @@ func (e *Encloser) lane(in *cell, l int32) {
 		}
 		e.val[i] = iv.Add(e.val[i-1], a)
 		e.chain(i, i-1, ia, one, one, zero, zero, zero)
+	default:
+		// An operation without an interval rule proves nothing: the
+		// box is reported undefined rather than enclosed wrongly.
+		e.undef = true
+		e.val[i] = iv.Entire()
+		e.clearCell(i)
 	}
 }
 

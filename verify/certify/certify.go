@@ -123,25 +123,27 @@ type Result struct {
 	Outcomes int
 }
 
-// Statement is the one-paragraph account of what was proved.
+// Statement is the one-paragraph account of what was proved. A finished
+// certificate's statement does not depend on the clock, so a table that
+// records it is reproducible.
 func (r *Result) Statement() string {
 	pct := func(x float64) string { return fmt.Sprintf("%.6g%%", 100*x) }
 	switch {
 	case r.Witness != nil:
 		return fmt.Sprintf("certified improper: %s", r.Witness.Reason)
 	case r.Verdict == verify.StrictlyProper:
-		return fmt.Sprintf("certified strictly proper over the whole simplex (%d boxes, %s)", r.Boxes, r.Elapsed.Round(time.Millisecond))
+		return fmt.Sprintf("certified strictly proper over the whole simplex (%d boxes)", r.Boxes)
 	case r.Verdict == verify.Proper && r.Epsilon > 0:
-		return fmt.Sprintf("certified: no report gains more than %.3g anywhere (%d boxes, %s)", r.Epsilon, r.Boxes, r.Elapsed.Round(time.Millisecond))
+		return fmt.Sprintf("certified: no report gains more than %.3g anywhere (%d box pairs)", r.Epsilon, r.Boxes)
 	case r.Verdict == verify.Proper:
-		return fmt.Sprintf("certified proper over the whole simplex; strictly concave proved on %s of it, the rest (next to the faces, where the curvature tends to 0) only concave (%d boxes, %s)",
-			pct(r.StrictShare), r.Boxes, r.Elapsed.Round(time.Millisecond))
+		return fmt.Sprintf("certified proper over the whole simplex; strictly concave proved on %s of it, the rest (next to the faces, where the curvature tends to 0) only concave (%d boxes)",
+			pct(r.StrictShare), r.Boxes)
 	}
 	what := "concave"
 	if r.Epsilon > 0 {
 		what = fmt.Sprintf("honest to within %.3g", r.Epsilon)
 	}
-	return fmt.Sprintf("not certified: %s proved %s, %d boxes left undecided (%s; %d boxes, %s)",
+	return fmt.Sprintf("not certified: %s of the simplex proved %s, %d boxes left undecided (%s after %d boxes, %s)",
 		pct(r.Share), what, r.Open, r.Stopped, r.Boxes, r.Elapsed.Round(time.Millisecond))
 }
 

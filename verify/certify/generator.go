@@ -119,21 +119,27 @@ func Generator(ctx context.Context, prog *formula.Program, n int, s Settings) (*
 	}
 	res.Open += len(open)
 	res.Elapsed = time.Since(start)
+	conclude(res, len(notStrict))
+	tk.tick(res.Share, res.Boxes, true)
+	return res, nil
+}
+
+// conclude sets the verdict of a finished or stopped generator run:
+// undecided while boxes are open; strictly proper when every box was
+// proved strictly concave; else proper, concavity being proved
+// everywhere and strictness where the strict pass reached.
+func conclude(res *Result, notStrict int) {
 	switch {
 	case res.Open > 0:
 		res.Verdict = Undecided
 		if res.Stopped == "" {
 			res.Stopped = "smallest box reached"
 		}
-	case len(notStrict) == 0 && res.StrictShare >= 1-1e-9:
+	case notStrict == 0 && res.StrictShare >= 1-1e-9:
 		res.Verdict, res.StrictShare, res.Share, res.Stopped = verify.StrictlyProper, 1, 1, ""
 	default:
-		// Concavity is proved everywhere; strictness only where the
-		// strict pass reached.
 		res.Verdict, res.Share, res.Stopped = verify.Proper, 1, ""
 	}
-	tk.tick(res.Share, res.Boxes, true)
-	return res, nil
 }
 
 type decision int

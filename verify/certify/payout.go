@@ -102,34 +102,8 @@ func Payout(ctx context.Context, pay *payout.Payout, s Settings) (*Result, error
 			tk.tick(res.Share, res.Boxes, true)
 			return res, nil
 		}
-		wq, _ := pr.q.width()
-		wr, _ := pr.r.width()
-		if wq < minW && wr < minW {
+		if !p.split(h, pr, minW, res) {
 			res.Open++
-			continue
-		}
-		// Split the box that widens the bound more: the report box when
-		// the bound with the belief box shrunk to its centre exceeds the
-		// one with the report box shrunk (a jackpot on a few reports),
-		// else the belief box.
-		splitR := wr >= minW && (wq < minW || p.bound(pr.q, pr.r, true, false) > p.bound(pr.q, pr.r, false, true))
-		var kids [2]pair
-		if splitR {
-			a, b := pr.r.split()
-			kids = [2]pair{{q: pr.q, r: a}, {q: pr.q, r: b}}
-		} else {
-			a, b := pr.q.split()
-			kids = [2]pair{{q: a, r: pr.r}, {q: b, r: pr.r}}
-		}
-		for _, k := range kids {
-			if !k.q.tighten() || !k.r.tighten() {
-				continue
-			}
-			if k.u = p.bound(k.q, k.r, false, false); k.u <= p.eps {
-				res.Share += k.q.simplexShare() * k.r.simplexShare()
-				continue
-			}
-			heap.Push(h, k)
 		}
 	}
 	res.Open += h.Len()
@@ -144,6 +118,39 @@ func Payout(ctx context.Context, pay *payout.Payout, s Settings) (*Result, error
 	}
 	tk.tick(res.Share, res.Boxes, true)
 	return res, nil
+}
+
+// split replaces pr by its two halves — of the report box when it widens
+// the bound more than the belief box (as a jackpot on a few reports
+// does), else of the belief box — certifying at once a half whose bound
+// is within Epsilon. It reports false when both boxes are already at
+// the smallest width.
+func (p *payRun) split(h *pairHeap, pr pair, minW float64, res *Result) bool {
+	wq, _ := pr.q.width()
+	wr, _ := pr.r.width()
+	if wq < minW && wr < minW {
+		return false
+	}
+	splitR := wr >= minW && (wq < minW || p.bound(pr.q, pr.r, true, false) > p.bound(pr.q, pr.r, false, true))
+	var kids [2]pair
+	if splitR {
+		a, b := pr.r.split()
+		kids = [2]pair{{q: pr.q, r: a}, {q: pr.q, r: b}}
+	} else {
+		a, b := pr.q.split()
+		kids = [2]pair{{q: a, r: pr.r}, {q: b, r: pr.r}}
+	}
+	for _, k := range kids {
+		if !k.q.tighten() || !k.r.tighten() {
+			continue
+		}
+		if k.u = p.bound(k.q, k.r, false, false); k.u <= p.eps {
+			res.Share += k.q.simplexShare() * k.r.simplexShare()
+			continue
+		}
+		heap.Push(h, k)
+	}
+	return true
 }
 
 // fill writes the probabilities over b into dst (p_n = 1 - sum x).
