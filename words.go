@@ -44,7 +44,18 @@ func (f *Findings) GapLine() string {
 		if g.Sharpened {
 			how = fmt.Sprintf(" (sharpened beyond the grid from %.6g)", g.GridMax)
 		}
-		return fmt.Sprintf("largest honesty gap: %.6g%s at belief %s, best report %s", g.Max, how, num.Format(g.Belief), num.Format(g.BestReport))
+		// Belief and report with the digits that tell them apart; a
+		// report equal to the belief is no witness and is not named.
+		line := fmt.Sprintf("largest honesty gap: %.9g%s", g.Max, how)
+		if b, r, ok := num.FormatApart(g.Belief, g.BestReport); ok {
+			line += fmt.Sprintf(" at belief %s, best report %s", b, r)
+		} else {
+			line += fmt.Sprintf(" at belief %s, at a report that cannot be told apart from it (no misreport is named)", b)
+		}
+		if g.Precision != "" {
+			line += "; " + g.Precision
+		}
+		return line
 	case g.Max == g.Max:
 		return fmt.Sprintf("largest honesty gap: %.3g (no grid belief gains from misreporting)", g.Max)
 	}

@@ -123,10 +123,16 @@ func (p ChecksPane) View() string {
 				mark = st.Fail.Render("✗")
 			}
 			line := fmt.Sprintf("%s %-13s worst %.3g", mark, c.Name, c.Worst)
-			if c.Belief != nil {
+			switch {
+			case c.Belief != nil && c.Report != nil:
+				b, r, ok := num.Witness(c.Belief, c.Report, !c.Passed)
+				line += " at q=" + b
+				if ok {
+					line += " p=" + r
+				}
+			case c.Belief != nil:
 				line += " at q=" + num.Format(c.Belief)
-			}
-			if c.Report != nil {
+			case c.Report != nil:
 				line += " p=" + num.Format(c.Report)
 			}
 			lines = append(lines, line)

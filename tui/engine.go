@@ -9,6 +9,7 @@ import (
 	"runtime"
 	"scorewright"
 	"strconv"
+	"strings"
 	"time"
 
 	"scorewright/contract/annex"
@@ -71,7 +72,11 @@ func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress f
 	}
 	if p := found.Point; p != nil && p.Gap != nil && p.Verdict == pointcheck.Improper && p.Gap.Max > 0 {
 		g := p.Gap
-		out.Notes = append(out.Notes, fmt.Sprintf("honesty gap %.4g: best report %.4g, not the mean %.4g,", g.Max, g.BestReport, g.Mean),
+		head := fmt.Sprintf("honesty gap %.4g at a report that cannot be told apart from the mean %.6g (no misreport named),", g.Max, g.Mean)
+		if x, m, ok := num.FormatApart([]float64{g.BestReport}, []float64{g.Mean}); ok {
+			head = fmt.Sprintf("honesty gap %.4g: best report %s, not the mean %s,", g.Max, strings.Trim(x, "()"), strings.Trim(m, "()"))
+		}
+		out.Notes = append(out.Notes, head,
 			fmt.Sprintf("  for outcomes %s weighted %s", num.Format(g.Outcomes), num.Format(g.Weights)))
 	}
 	return out, nil

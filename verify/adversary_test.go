@@ -313,9 +313,12 @@ func TestJackpotBetweenGridPoints(t *testing.T) {
 // TestTinyHessianDoesNotPanic: the power generator (1 - Σp^g)/(g - 1) at
 // g = 1e-300 has Hessian entries -g·p^(g-2) ≈ -1e-300/p², on which the
 // eigensolver's own scaling panicked. In double precision p^g = 1 exactly
-// (g·ln p is far below an ulp of 1), so H = 2 and every effort is 2: the
-// rule is constant as computed, hence proper, not strictly; its curvature
-// is still negative, about -1e-300·(a few) (derived by hand).
+// (g·ln p is far below an ulp of 1), so H = 2 and every effort is 2 as
+// computed; but its curvature, which the exact Hessian keeps, is
+// negative, about -1e-300·(a few) (derived by hand): H is strictly
+// concave, so the rule is strictly proper (Gneiting & Raftery 2007, Sec.
+// 2), and the equal computed efforts are rounding, not a tie, which the
+// properness note says.
 func TestTinyHessianDoesNotPanic(t *testing.T) {
 	r := rule(t, "g = 1e-300\n(1 - sum(p^g)) / (g - 1)", 3)
 	rep, err := CheckRule(context.Background(), r, Settings{Resolution: 20})
@@ -323,8 +326,11 @@ func TestTinyHessianDoesNotPanic(t *testing.T) {
 		t.Fatal(err)
 	}
 	conc := rep.Check(NameConcavity)
-	if rep.Verdict != Proper || !conc.Passed || !(conc.Worst < 0 && conc.Worst > -1e-297) {
-		t.Errorf("verdict %s, concavity passed=%v worst %g; want proper, passed, a tiny negative eigenvalue", rep.Verdict, conc.Passed, conc.Worst)
+	if rep.Verdict != StrictlyProper || !conc.Passed || !(conc.Worst < 0 && conc.Worst > -1e-297) {
+		t.Errorf("verdict %s, concavity passed=%v worst %g; want strictly proper, passed, a tiny negative eigenvalue", rep.Verdict, conc.Passed, conc.Worst)
+	}
+	if note := rep.Check(NameProperness).Note; !strings.Contains(note, "rounding, not a tie") {
+		t.Errorf("properness note %q does not say the equal efforts are rounding", note)
 	}
 }
 

@@ -23,6 +23,9 @@ type Gap struct {
 	Sharpened bool
 	GridMax   float64
 	Status    string
+	// Precision says in words how far sharpening settled the gap: to 9
+	// significant digits (two successive restarts agreeing), or why not.
+	Precision string
 }
 
 // BeliefGap is the audit's finding at one grid belief.
@@ -135,7 +138,7 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	for i := range honest {
 		honest[i] = m.phi(g.Point(i), i)
 	}
-	prop, _ := properness(g, m, honest, bs, s.Tolerance, rep.Grid.Scale)
+	prop, _, _ := properness(g, m, honest, bs, s.Tolerance, rep.Grid.Scale)
 
 	rep.Beliefs = make([]BeliefGap, G)
 	for i, b := range bs {
@@ -189,13 +192,7 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	}
 	if rep.Gap.Max > s.Tolerance && !math.IsInf(rep.Gap.Max, 0) {
 		ev := p.NewEvaluator()
-		ps := newPairSearch(n)
-		ps.onBoundary, ps.cell = true, cellOf(g)
-		q, r, v, status, ok := ps.run(func(q, r []float64) float64 { return -(ev.Expected(q, r) - ev.Expected(q, q)) }, rep.Gap.Belief, rep.Gap.BestReport)
-		rep.Gap.Status = status
-		if ok && improves(-v, rep.Gap.Max, true) {
-			rep.Gap.GridMax, rep.Gap.Max, rep.Gap.Belief, rep.Gap.BestReport, rep.Gap.Sharpened = rep.Gap.Max, -v, q, r, true
-		}
+		sharpenGap(&rep.Gap, n, cellOf(g), func(q, r []float64) float64 { return ev.Expected(q, r) - ev.Expected(q, q) })
 	}
 	rep.Gap.Belief, rep.Gap.BestReport = clone(rep.Gap.Belief), clone(rep.Gap.BestReport)
 	if rep.Gap.Max > s.Tolerance && prop.Worst == prop.Worst {

@@ -128,7 +128,7 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	if err != nil {
 		return nil, err
 	}
-	prop, nonneg := properness(g, m, h, bs, s.Tolerance, rep.Grid.Scale)
+	prop, nonneg, ties := properness(g, m, h, bs, s.Tolerance, rep.Grid.Scale)
 	if g.Sampled {
 		if err := searchReports(ctx, g, &prop, s, func(int) func(q, p []float64) float64 {
 			sc := r.NewScorer()
@@ -165,21 +165,28 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 		mid.apply(&conc)
 	}
 	prop.Note = propernessNote(prop, "effort", "less")
+	var strictNote string
+	if conc.Passed && prop.Passed && nonneg.Passed && aff.Passed {
+		cell := cellOf(g)
+		if cell == 0 {
+			cell = 0.5 / float64(g.K)
+		}
+		_, strictNote = decideStrictness(sc, &prop, conc, ties, cell)
+	}
 	nonneg.Note = nonnegNote(nonneg)
 	rep.Checks = []CheckResult{conc, prop, nonneg, aff, bounded}
 	rep.Notes = append(rep.Notes, boundaryNotes(conc, bounded, s.Tolerance)...)
 	switch {
 	case !conc.Passed || !prop.Passed || !nonneg.Passed || !aff.Passed:
 		rep.Verdict = Improper
-	case prop.Strict && conc.Strict:
-		rep.Verdict = StrictlyProper
 	case prop.Strict:
-		// Strict properness is strict concavity. The grid's pairs show no
-		// tie, but H is flat in some direction at an interior point, and a
-		// flat piece narrower than a grid step leaves ties no grid pair
-		// can show (min(p(1-p), 0.2499999) is flat on |p - 1/2| < 3.2e-4).
-		rep.Verdict = Proper
-		rep.Notes = append(rep.Notes, fmt.Sprintf("strict properness is not established: no two grid reports tie, but the curvature of H vanishes at the interior point %s (largest projected eigenvalue %.3g), where nearby reports may do equally well; check at a finer resolution", num.Format(conc.Interior.Belief), conc.Interior.Worst))
+		// Strictly proper unless two different reports tie (a confirmed
+		// witness above); a curvature that vanishes at isolated points
+		// (-x^4-like) leaves H strictly concave.
+		rep.Verdict = StrictlyProper
+		if strictNote != "" {
+			rep.Notes = append(rep.Notes, strictNote)
+		}
 	default:
 		rep.Verdict = Proper
 	}
@@ -227,11 +234,22 @@ func propernessNote(c CheckResult, what, better string) string {
 	case !c.Passed && c.Worst != c.Worst:
 		return fmt.Sprintf("at belief %s the honest report's expected %s is undefined (NaN): the rule is not defined there, so it cannot be called proper", num.Format(c.Belief), what)
 	case !c.Passed:
-		return joinNotes(fmt.Sprintf("a forecaster with belief %s expects %.6g %s %s by reporting %s than by reporting honestly", num.Format(c.Belief), c.Worst, better, what, num.Format(c.Report)), sharpenedNote(c))
+		return joinNotes(gainNote(c.Belief, c.Report, c.Worst, better, what), sharpenedNote(c))
 	case c.Strict:
 		return fmt.Sprintf("at every grid belief the honest report is the unique best grid report, and the closest other report falls short by %.6g, at belief %s (strictness judged against the rounding floor %g, relative)", c.Margin, num.Format(c.MarginBelief), StrictFloor)
 	}
 	return fmt.Sprintf("the honest report is a best report at every grid belief, but not the only one: at belief %s the report %s does as well (difference %.3g)", num.Format(c.MarginBelief), num.Format(c.MarginReport), c.Margin)
+}
+
+// gainNote says what a forecaster gains by a misreport, naming belief and
+// report with as many digits as tell them apart; a report equal to the
+// belief is no witness, and then none is named.
+func gainNote(belief, report []float64, gain float64, better, what string) string {
+	b, r, ok := num.FormatApart(belief, report)
+	if !ok {
+		return fmt.Sprintf("at belief %s the honest report's expected %s falls short by %.6g of what the search found, at a report that cannot be told apart from the belief: no misreport is named (the rule is discontinuous at the honest report)", b, what, gain)
+	}
+	return fmt.Sprintf("a forecaster with belief %s expects %.6g %s %s by reporting %s than by reporting honestly", b, gain, better, what, r)
 }
 
 func nonnegNote(c CheckResult) string {

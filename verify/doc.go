@@ -76,9 +76,15 @@
 //     searches reports for 200 spread beliefs. Affinity and boundedness keep their grid
 //     witnesses.
 //  6. Verdict: improper when concavity, properness, nonnegativity or affinity fails; else
-//     strictly-proper when properness is strict and concavity strict (curvature below −T at every
-//     interior grid and random point: a flat piece narrower than a grid step leaves ties no grid
-//     pair shows); else proper, with a note when only the curvature withholds strictness. Each check carries `Interior` and
+//     proper-but-not-strict only with a witness, two different reports that tie (Gneiting &
+//     Raftery 2007, Sec. 2), else strictly-proper (strictness.go). A grid pair within the
+//     rounding floor is a candidate only; it is confirmed when the exact second derivative of
+//     H along the segment between the two vanishes, up to the rounding of its own terms, at 9
+//     points (H affine there), so the power rule's 1e-16 differences near a vertex are
+//     rounding, not ties. Where the curvature vanishes at an interior point and no pair tied,
+//     short segments through it along the flattest directions are tried (a flat piece
+//     narrower than a grid step); an isolated zero (-(p - 1/2)^4) leaves the rule strictly
+//     proper, with a note. Each check carries `Interior` and
 //     `Boundary` parts (by the belief; by the report for boundedness).
 //
 // Audit runs the same stream on −pay, then pits every grid belief against max(G, 10000) random

@@ -11,13 +11,26 @@ import (
 	"scorewright/internal/simplex"
 )
 
+// maxTies is how many tie candidates properness keeps for confirmation:
+// the first ones met and the closest.
+const maxTies = 16
+
+// tiePair is a grid belief and another grid report whose expected effort
+// is within the rounding floor of the honest one's: a tie candidate.
+type tiePair struct {
+	q, p   []float64
+	margin float64
+}
+
 // properness reduces the stream: for each belief the honesty gap (honest
 // expected effort minus the best) and the margin (best other report minus
 // honest), and for non-negativity the smallest divergence m1 - H(q).
 //
 // Numeric kernel: one pass over the grid (or the lanes) kept whole so
 // the arithmetic reads in one place; it stays longer than 80 lines on purpose.
-func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T, scale float64) (prop, nonneg CheckResult) {
+// The candidate ties it returns are confirmed or dismissed by the check
+// (strictness.go).
+func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T, scale float64) (prop, nonneg CheckResult, ties []tiePair) {
 	var gapIn, gapBd, negIn, negBd part
 	marginMin := math.Inf(1)
 	var marginQ, marginP []float64
@@ -68,6 +81,9 @@ func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T, scale float
 			if strict || margin < tieMargin {
 				tieMargin, tieQ, tieP = margin, q, op
 			}
+			if op != nil && len(ties) < maxTies-1 {
+				ties = append(ties, tiePair{q, op, margin})
+			}
 			strict = false
 		}
 		d := b.m1 - h[i]
@@ -96,7 +112,10 @@ func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T, scale float
 	nonneg.Passed = nonneg.Interior.Passed && nonneg.Boundary.Passed
 	pickWorst(&nonneg, negIn, negBd)
 	nonneg.Worst = -nonneg.Worst
-	return prop, nonneg
+	if tieP != nil {
+		ties = append(ties, tiePair{tieQ, tieP, tieMargin})
+	}
+	return prop, nonneg, ties
 }
 
 // pickWorst sets the witness of c from the interior part unless the

@@ -1,6 +1,7 @@
 package verify
 
 import (
+	"fmt"
 	"math"
 
 	"gonum.org/v1/gonum/optimize"
@@ -78,6 +79,9 @@ type pairSearch struct {
 	// cell), so that sharpening refines the grid's witness instead of
 	// running off to wherever the amount is unbounded.
 	cell float64
+	// centreQ and centreP, when set, are the centre of the cell instead
+	// of the start (restarts keep the first cell).
+	centreQ, centreP []float64
 }
 
 // searchEvals caps a search over reports alone, run for many beliefs.
@@ -99,6 +103,10 @@ func (s *pairSearch) run(f func(q, p []float64) float64, q0, p0 []float64) (q, p
 		simplex.ToSquares(x0[:n], q0)
 		simplex.ToSquares(x0[n:], p0)
 	}
+	cq, cp := q0, p0
+	if s.centreQ != nil {
+		cq, cp = s.centreQ, s.centreP
+	}
 	obj := func(x []float64) float64 {
 		if s.fixBelief {
 			copy(s.q, q0)
@@ -106,11 +114,11 @@ func (s *pairSearch) run(f func(q, p []float64) float64, q0, p0 []float64) (q, p
 		} else {
 			simplex.FromSquares(s.q, x[:n])
 			simplex.FromSquares(s.p, x[n:])
-			if !s.onBoundary && onBoundary(s.q) || !inCell(s.q, q0, s.cell) {
+			if !s.onBoundary && onBoundary(s.q) || !inCell(s.q, cq, s.cell) {
 				return math.Inf(1)
 			}
 		}
-		if !inCell(s.p, p0, s.cell) {
+		if !inCell(s.p, cp, s.cell) {
 			return math.Inf(1)
 		}
 		return f(s.q, s.p)
@@ -148,4 +156,89 @@ func onBoundary(q []float64) bool {
 		}
 	}
 	return false
+}
+
+// Sharpening of an audit's gap.
+const (
+	// settleDigits is the relative change between two successive
+	// restarts below which the gap counts as settled: 9 significant
+	// digits, with a margin of ten.
+	settleDigits = 1e-10
+	// maxRestarts bounds the restarts.
+	maxRestarts = 40
+)
+
+// sharpenGap maximises gain(q, r) (the expected pay of report r over the
+// honest report's, for belief q) jointly over belief and report from the
+// gap's witness, first within the witness's grid cell (half-width cell; 0:
+// no bound), so that an amount unbounded near a face does not drag the
+// witness there. Nelder–Mead stops short of the maximum when the best
+// report sits on a face and the belief inside, so it is restarted from its
+// best point, with a fresh simplex, until two successive runs agree to
+// settleDigits relative (then the gap has 9 significant digits) or the
+// restarts run out. A maximum on the cell's edge lies beyond it (the
+// grid's witness of p[y] over 3 outcomes, (0.67, 0.17, 0.16), has the
+// maximiser (2/3, 1/6, 1/6) outside its cell), so the cell is doubled
+// until the maximum is inside it or it covers the simplex. gap.Precision
+// says how it ended.
+func sharpenGap(gap *Gap, n int, cell float64, gain func(q, r []float64) float64) {
+	ps := newPairSearch(n)
+	ps.onBoundary, ps.cell = true, cell
+	ps.centreQ, ps.centreP = clone(gap.Belief), clone(gap.BestReport)
+	best, q, r := gap.Max, gap.Belief, gap.BestReport
+	moved, settled, failed, runs := false, false, false, 0
+	for !failed {
+		settled = false
+		for runs < maxRestarts {
+			runs++
+			q2, r2, v, status, ok := ps.run(func(q, r []float64) float64 { return -gain(q, r) }, q, r)
+			gap.Status = status
+			if !ok || math.IsInf(v, 0) {
+				failed = true
+				break
+			}
+			change := -v - best
+			if improves(-v, best, true) {
+				best, q, r, moved = -v, q2, r2, true
+			}
+			if !(change > settleDigits*math.Abs(best)) {
+				settled = true
+				break
+			}
+		}
+		if runs >= maxRestarts || ps.cell <= 0 || ps.cell >= 1 || !(onEdge(q, ps.centreQ, ps.cell) || onEdge(r, ps.centreP, ps.cell)) {
+			break
+		}
+		ps.cell *= 2
+	}
+	if moved {
+		gap.GridMax, gap.Max, gap.Belief, gap.BestReport, gap.Sharpened = gap.Max, best, q, r, true
+	}
+	switch {
+	case settled:
+		gap.Precision = fmt.Sprintf("sharpened until a local search changed it by less than %.0g relative (%s): 9 significant digits", settleDigits, searches(runs))
+	case failed:
+		gap.Precision = fmt.Sprintf("the local search stopped after %s (the optimiser failed or the amount is not finite nearby): fewer than 9 significant digits are settled", searches(runs))
+	default:
+		gap.Precision = fmt.Sprintf("sharpening stopped after %s still improving the gap: fewer than 9 significant digits are settled", searches(runs))
+	}
+}
+
+// onEdge reports whether x touches the edge of the box of half-width cell
+// around centre in some coordinate.
+func onEdge(x, centre []float64, cell float64) bool {
+	for k, v := range x {
+		if math.Abs(v-centre[k]) > cell*(1-1e-6) {
+			return true
+		}
+	}
+	return false
+}
+
+// searches is a count of local searches in words.
+func searches(n int) string {
+	if n == 1 {
+		return "1 local search"
+	}
+	return fmt.Sprintf("%d local searches", n)
 }

@@ -197,6 +197,7 @@ type pointGapOut struct {
 	Weights    []float64 `json:"weights"`
 	Mean       num.Float `json:"mean"`
 	BestReport num.Float `json:"best_report"`
+	Precision  string    `json:"precision,omitempty"`
 }
 
 func printPointReport(e *env, rep *pointcheck.Report, asJSON bool) error {
@@ -206,7 +207,7 @@ func printPointReport(e *env, rep *pointcheck.Report, asJSON bool) error {
 			out.Checks = append(out.Checks, pointCheckOut{c.Name, c.Passed, num.Float(c.Worst), c.At, c.What})
 		}
 		if g := rep.Gap; g != nil {
-			out.Gap = &pointGapOut{num.Float(g.Max), g.Outcomes, g.Weights, num.Float(g.Mean), num.Float(g.BestReport)}
+			out.Gap = &pointGapOut{num.Float(g.Max), g.Outcomes, g.Weights, num.Float(g.Mean), num.Float(g.BestReport), g.Precision}
 		}
 		if err := writeJSON(e.stdout, out); err != nil {
 			return err

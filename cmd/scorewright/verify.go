@@ -187,11 +187,17 @@ func printReport(w io.Writer, r *verify.Report) {
 			}
 		}
 		at := ""
-		if c.Belief != nil {
-			at += " at belief " + num.Format(c.Belief)
-		}
-		if c.Report != nil {
-			at += " report " + num.Format(c.Report)
+		switch {
+		case c.Belief != nil && c.Report != nil:
+			b, r, ok := num.Witness(c.Belief, c.Report, !c.Passed)
+			at = " at belief " + b
+			if ok {
+				at += " report " + r
+			}
+		case c.Belief != nil:
+			at = " at belief " + num.Format(c.Belief)
+		case c.Report != nil:
+			at = " report " + num.Format(c.Report)
 		}
 		fmt.Fprintf(w, "%-14s %s; worst %.6g%s\n", c.Name, status, c.Worst, at)
 		fmt.Fprintf(w, "               interior: %s; boundary: %s\n", partLine(c.Interior), partLine(c.Boundary))

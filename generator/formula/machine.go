@@ -371,8 +371,9 @@ func (m *Machine) back(op opcode, i, a, b, c int32, k, g float64) {
 	case opExp:
 		adj[a] += mul0(g, v[i])
 	case opExpm1:
-		// d/da (e^a - 1) = e^a = value + 1.
-		adj[a] += mul0(g, v[i]+1)
+		// d/da (e^a - 1) = e^a, recomputed: value + 1 would cancel to
+		// nothing where e^a is tiny (expm1 of a large negative a).
+		adj[a] += mul0(g, math.Exp(v[a]))
 	case opLog1p:
 		adj[a] += g / (1 + v[a])
 	case opSqrt:

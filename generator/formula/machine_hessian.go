@@ -78,7 +78,8 @@ func (m *Machine) hessLane(in *cell, l int32) {
 	case opExp:
 		m.unary(i, ia, z, z)
 	case opExpm1:
-		m.unary(i, ia, z+1, z+1)
+		ea := math.Exp(a)
+		m.unary(i, ia, ea, ea)
 	case opLog1p:
 		u := 1 + a
 		m.unary(i, ia, 1/u, -1/(u*u))

@@ -250,6 +250,14 @@ func TestExpm1Log1pPrecision(t *testing.T) {
 			t.Errorf("%s at %g: derivatives %.17g, %.17g, want %.17g, %.17g", c.src, x, grad[0], hess[0], c.d, c.h)
 		}
 	}
+	// The derivatives of expm1 are e^x itself, not expm1(x) + 1, which
+	// cancels to nothing where e^x is tiny: at x = -40, e^x = 4.2e-18.
+	prog, _ := CompileString("expm1(x)", Scope{Vars: []string{"x"}})
+	grad, hess := make([]float64, 1), make([]float64, 1)
+	prog.NewMachine().Hessian(hess, grad, []float64{-40})
+	if want := math.Exp(-40); math.Abs(grad[0]-want) > 1e-15*want || math.Abs(hess[0]-want) > 1e-15*want {
+		t.Errorf("expm1 at -40: derivatives %g, %g, want %g", grad[0], hess[0], want)
+	}
 	// The unknown-function message lists the two.
 	_, err := CompileString("expm2(x)", Scope{Vars: []string{"x"}})
 	if err == nil || !strings.Contains(err.Error(), "expm1") || !strings.Contains(err.Error(), "log1p") {

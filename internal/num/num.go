@@ -189,3 +189,40 @@ func Format(v []float64) string {
 	}
 	return "(" + strings.Join(parts, ", ") + ")"
 }
+
+// FormatApart formats two vectors (a belief and a report, say) with the
+// fewest significant digits, at least six, that tell them apart, so that a
+// witness never reads as the same point twice. ok is false when they are
+// equal (then no digits can tell them apart and the caller must not
+// present them as two points).
+func FormatApart(a, b []float64) (sa, sb string, ok bool) {
+	for digits := 6; digits <= 17; digits++ {
+		sa, sb = formatDigits(a, digits), formatDigits(b, digits)
+		if sa != sb {
+			return sa, sb, true
+		}
+	}
+	return sa, sb, false
+}
+
+func formatDigits(v []float64, digits int) string {
+	parts := make([]string, len(v))
+	for i, x := range v {
+		parts[i] = strconv.FormatFloat(x, 'g', digits, 64)
+	}
+	return "(" + strings.Join(parts, ", ") + ")"
+}
+
+// Witness formats where a check found its worst value, a belief and a
+// report, for display; named says whether the report is shown. It is shown
+// only when it reads differently from the belief: for a failed check with
+// the digits that tell the two apart (FormatApart), for a passed check only
+// when six digits do. A report equal to the belief is no witness.
+func Witness(belief, report []float64, failed bool) (b, r string, named bool) {
+	b, r = Format(belief), Format(report)
+	named = b != r
+	if !named && failed {
+		b, r, named = FormatApart(belief, report)
+	}
+	return b, r, named
+}

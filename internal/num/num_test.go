@@ -28,3 +28,18 @@ func TestParseDistributionKeepsDecimals(t *testing.T) {
 		}
 	}
 }
+
+// A witness's belief and report are printed with the digits that tell
+// them apart, and two equal vectors are reported as such.
+func TestFormatApart(t *testing.T) {
+	a, b, ok := FormatApart([]float64{0.5, 0.5}, []float64{0.5 - 1e-7, 0.5 + 1e-7})
+	if !ok || a != "(0.5, 0.5)" || b != "(0.4999999, 0.5000001)" {
+		t.Errorf("apart: %q %q %v", a, b, ok)
+	}
+	if a, b, ok := FormatApart([]float64{0.25, 0.75}, []float64{1, 0}); !ok || a != "(0.25, 0.75)" || b != "(1, 0)" {
+		t.Errorf("six digits suffice: %q %q %v", a, b, ok)
+	}
+	if _, _, ok := FormatApart([]float64{0.3, 0.7}, []float64{0.3, 0.7}); ok {
+		t.Error("equal vectors told apart")
+	}
+}

@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"strings"
 
 	"scorewright/generator/formula"
 	"scorewright/generator/point"
@@ -176,7 +177,17 @@ func AuditPayout(ctx context.Context, p *Payout, lo, hi float64, s Settings, can
 			gap.BestReport, gap.Max = x, v-pr.expected(gap.Mean, vals, d.w)
 		}
 	}
-	proper := Check{Name: "properness", What: fmt.Sprintf("largest honesty gap max_x E pay(x, Y) - E pay(mean, Y) over %d two- and three-point distributions", len(ds)), Worst: gap.Max, At: &At{Outcomes: gap.Outcomes, Weights: gap.Weights, Report: []float64{gap.BestReport}}, Passed: gap.Max <= tol*scale}
+	two, precision, err := worstTwoPoint(ctx, pr, pm, xs, ys)
+	if err != nil {
+		return nil, err
+	}
+	if two.Max > gap.Max {
+		gap = two
+	}
+	if gap.Max > tol*scale && precision != "" {
+		gap.Precision = precision
+	}
+	proper := Check{Name: "properness", What: fmt.Sprintf("largest honesty gap max_x E pay(x, Y) - E pay(mean, Y) over %d two- and three-point distributions and a search over every two-point distribution (support and weight), where the gap of a point report is largest", len(ds)), Worst: gap.Max, At: &At{Outcomes: gap.Outcomes, Weights: gap.Weights, Report: []float64{gap.BestReport}}, Passed: gap.Max <= tol*scale}
 	rep.Gap = &gap
 	bounded := Check{Name: "boundedness", What: "number of grid cells where the pay is not finite", Worst: float64(len(nonFinite)), Passed: len(nonFinite) == 0}
 	if len(nonFinite) > 0 {
@@ -186,7 +197,14 @@ func AuditPayout(ctx context.Context, p *Payout, lo, hi float64, s Settings, can
 	switch {
 	case !proper.Passed || !nonneg.Passed:
 		rep.Verdict = Improper
-		rep.Notes = append(rep.Notes, fmt.Sprintf("the mean is not the best report: with outcomes %s weighted %s (mean %.6g) the report %.6g earns %.6g more in expectation", num.Format(gap.Outcomes), num.Format(gap.Weights), gap.Mean, gap.BestReport, gap.Max))
+		if m, x, ok := num.FormatApart([]float64{gap.Mean}, []float64{gap.BestReport}); ok {
+			rep.Notes = append(rep.Notes, fmt.Sprintf("the mean is not the best report: with outcomes %s weighted %s (mean %s) the report %s earns %.9g more in expectation", num.Format(gap.Outcomes), num.Format(gap.Weights), strings.Trim(m, "()"), strings.Trim(x, "()"), gap.Max))
+		} else {
+			rep.Notes = append(rep.Notes, fmt.Sprintf("the mean is not the best report: with outcomes %s weighted %s (mean %s) the mean's expected pay falls short by %.9g of what the search found at a report that cannot be told apart from the mean: no misreport is named (the payout is discontinuous at the honest report)", num.Format(gap.Outcomes), num.Format(gap.Weights), strings.Trim(m, "()"), gap.Max))
+		}
+		if gap.Precision != "" {
+			rep.Notes = append(rep.Notes, gap.Precision)
+		}
 	case countNaN(pm[1:len(pm)-1]) > 0:
 		// The other checks skip NaN; a payout undefined for a report
 		// inside the interval cannot be called proper (at the ends, ∞ - ∞

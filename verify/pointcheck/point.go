@@ -89,6 +89,8 @@ type Gap struct {
 	Weights    []float64 `json:"weights"`
 	Mean       float64   `json:"mean"`
 	BestReport float64   `json:"best_report"`
+	// Precision says how far the search settled the gap (audits).
+	Precision string `json:"precision,omitempty"`
 }
 
 // Report is the result of CheckGenerator or AuditPayout.
