@@ -12,7 +12,7 @@ import (
 // printable key first.
 type KeyMap struct {
 	// Global.
-	Quit, QuitHard, Help, NextPane, PrevPane, Save, Open, Export, Demo, Backtest, Risk, Research key.Binding
+	Quit, QuitHard, Help, NextPane, PrevPane, Save, Open, Export, Demo, Backtest, Risk, Research, Terms key.Binding
 	// Moving inside a pane and changing the selected item.
 	Up, Down, Less, More, LessFine, MoreFine, Edit, Leave, Toggle key.Binding
 	// Design pane.
@@ -55,6 +55,9 @@ func DefaultKeyMap() KeyMap {
 		Backtest: b([]string{"ctrl+d"}, "ctrl+d", "backtest a forecast history (data)"),
 		Risk:     b([]string{"ctrl+r"}, "ctrl+r", "risk attitude view"),
 		Research: b([]string{"ctrl+y"}, "ctrl+y", "research view: what research is worth"),
+		// F2: a function key no multiplexer or text input takes, so the
+		// terms open while typing too.
+		Terms: b([]string{"f2"}, "F2", "terms of the annex: title, parties, currency, dates"),
 
 		Up:       b([]string{"up"}, "↑", "previous item"),
 		Down:     b([]string{"down"}, "↓", "next item"),
@@ -121,12 +124,12 @@ func (k KeyMap) groups() []helpGroup {
 	f := fieldKeys()
 	join := func(b key.Binding) string { return strings.Join(b.Keys(), "/") }
 	return []helpGroup{
-		{title: "Anywhere", keys: []key.Binding{k.QuitHard, k.Quit, k.Help, k.NextPane, k.PrevPane, k.Save, k.Open, k.Export, k.Demo, k.Backtest, k.Risk, k.Research}},
+		{title: "Anywhere", keys: []key.Binding{k.QuitHard, k.Quit, k.Help, k.NextPane, k.PrevPane, k.Save, k.Open, k.Export, k.Demo, k.Backtest, k.Risk, k.Research, k.Terms}},
 		{title: "Design pane", keys: []key.Binding{k.Up, k.Down, k.Edit, k.Leave, k.Less, k.More, k.LessFine, k.MoreFine, k.Toggle, k.AddOutcome, k.DropOutcome}},
 		{title: "While typing (formula, labels, values)", notes: []string{
 			"printable keys are text, never shortcuts;",
 			k.Leave.Help().Key + " stops, " + k.NextPane.Help().Key + " moves on; still working:",
-			keyList(k.QuitHard, k.Save, k.Open, k.Export, k.Backtest, k.Risk, k.Research) + " F1",
+			keyList(k.QuitHard, k.Save, k.Open, k.Export, k.Backtest, k.Risk, k.Research, k.Terms) + " F1",
 			"editor: arrows, home/end, enter new line,",
 			join(f.WordBackward) + " / " + join(f.WordForward) + " word,",
 			join(f.DeleteAfterCursor) + " / " + join(f.DeleteBeforeCursor) + " cut to line end / start,",
@@ -134,6 +137,7 @@ func (k KeyMap) groups() []helpGroup {
 		{title: "Unsaved changes", notes: []string{keyList(k.Quit, k.Demo) + " act on the second press"}},
 		{title: "Picture pane", keys: []key.Binding{k.Measure, k.BeliefDown, k.BeliefUp, k.Pair}},
 		{title: "Checks pane", keys: []key.Binding{k.Rerun}},
+		{title: "Terms of the annex (" + k.Terms.Help().Key + ")", keys: []key.Binding{k.Up, k.Down, k.Edit, k.Leave}},
 		{title: "Budget pane (arrows and enter as above)", keys: []key.Binding{k.PageUp, k.PageDown}},
 		{title: "Backtest view (" + k.Backtest.Help().Key + ")", keys: []key.Binding{k.History, k.StopRun}, notes: []string{
 			keyList(k.Up, k.Down, k.PageUp, k.PageDown) + " scroll, " + keyList(k.Leave, k.Backtest) + " close;",

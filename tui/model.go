@@ -94,6 +94,7 @@ type Model struct {
 	riskFor    RiskInputs            // inputs the latest risk run is for
 	cancelRisk context.CancelFunc
 	research   *ResearchRoom // the research view (tui/research.go) replaces the panes when shown
+	terms      *TermsRoom    // the annex's terms (tui/terms.go) replace the panes when shown
 	demoIndex  int
 	savedGen   uint64 // generation last opened or saved
 	armed      string // a key pressed once that needs a second press
@@ -143,6 +144,7 @@ func New(d *design.Design, path string, set Settings, st Styles) *Model {
 		riskIn:     defaultRiskInputs(d),
 		riskCoefs:  map[risk.Kind]float64{},
 		research:   NewResearchRoom(st, keys, d),
+		terms:      NewTermsRoom(st, keys),
 	}
 	m.helpView.KeyMap = viewport.KeyMap{Up: keys.Up, Down: keys.Down, PageUp: keys.PageUp, PageDown: keys.PageDown}
 	m.designPane.Focus()

@@ -68,6 +68,21 @@ func (m *Model) key(km tea.KeyMsg) tea.Cmd {
 			m.showBT = false
 		}
 	}
+	if m.terms.Shown() {
+		if key.Matches(km, k.Terms) {
+			m.terms.Close()
+			return m.requestPicture()
+		}
+		handled, changed, cmd := m.terms.Key(km, m.d)
+		switch {
+		case changed:
+			return tea.Batch(cmd, m.edited())
+		case handled && !m.terms.Shown():
+			return tea.Batch(cmd, m.requestPicture())
+		case handled:
+			return cmd
+		}
+	}
 	if m.research.Shown() {
 		handled, cmd := m.research.Key(m.ctx, km, m.d, m.gen, m.researchReady())
 		if handled {
@@ -127,12 +142,21 @@ func (m *Model) key(km tea.KeyMsg) tea.Cmd {
 	case key.Matches(km, k.Backtest):
 		m.showRisk = false
 		m.research.Close()
+		m.terms.Close()
 		return m.toggleBacktest()
 	case key.Matches(km, k.Risk):
 		m.research.Close()
+		m.terms.Close()
 		return m.toggleRisk()
+	case key.Matches(km, k.Terms):
+		m.stopTyping()
+		m.showBT, m.showRisk = false, false
+		m.research.Close()
+		m.terms.Toggle()
+		return nil
 	case key.Matches(km, k.Research):
 		m.stopTyping()
+		m.terms.Close()
 		m.showBT, m.showRisk = false, false
 		return m.research.Toggle(m.ctx, m.d, m.gen, m.researchReady())
 	case !typing && key.Matches(km, k.Demo):

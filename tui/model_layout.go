@@ -59,7 +59,9 @@ func (m *Model) View() string {
 	}
 	header := m.headerLine()
 	var body string
-	if m.research.Shown() {
+	if m.terms.Shown() {
+		body = m.terms.View(m.d)
+	} else if m.research.Shown() {
 		body = m.research.View(m.d)
 	} else if m.showBT {
 		body = m.bt.View()
@@ -102,7 +104,7 @@ func (m *Model) headerLine() string {
 	mid := m.st.Dim.Render(fmt.Sprintf(" · %s · %s · %s", where, what, m.d.Mode))
 	var tabs []string
 	for p, name := range []string{"design", "picture", "checks", "budget"} {
-		if pane(p) == m.focus && !m.showBT && !m.showRisk && !m.research.Shown() {
+		if pane(p) == m.focus && !m.showBT && !m.showRisk && !m.research.Shown() && !m.terms.Shown() {
 			tabs = append(tabs, m.st.Selected.Render("["+name+"]"))
 		} else {
 			tabs = append(tabs, m.st.Dim.Render(" "+name+" "))
@@ -116,6 +118,9 @@ func (m *Model) headerLine() string {
 	}
 	if m.research.Shown() {
 		tabs = []string{m.st.Selected.Render("[research]"), m.st.Dim.Render(" esc: back to the panes")}
+	}
+	if m.terms.Shown() {
+		tabs = []string{m.st.Selected.Render("[terms]"), m.st.Dim.Render(" esc: back to the panes")}
 	}
 	right := strings.Join(tabs, "")
 	gap := m.width - lipgloss.Width(left) - lipgloss.Width(mid) - lipgloss.Width(right)
@@ -140,6 +145,8 @@ func (m *Model) footerLine() string {
 	} else {
 		var pane []key.Binding
 		switch {
+		case m.terms.Shown():
+			pane = m.terms.KeyHelp()
 		case m.research.Shown():
 			pane = m.research.KeyHelp()
 		case m.showBT:

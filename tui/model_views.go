@@ -90,6 +90,7 @@ func (m *Model) layoutBacktest() {
 	m.bt.SetSize(m.width, m.height-2)
 	m.risk.SetSize(m.width, m.height-2)
 	m.research.SetSize(m.width, m.height-2)
+	m.terms.SetSize(m.width, m.height-2)
 }
 
 // researchReady says the design is compiled and its edits have settled,
