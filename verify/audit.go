@@ -138,7 +138,7 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	for i := range honest {
 		honest[i] = m.phi(g.Point(i), i)
 	}
-	prop, _, _ := properness(g, m, honest, bs, s.Tolerance, rep.Grid.Scale)
+	prop, _, ties := properness(g, m, honest, bs, s.Tolerance, rep.Grid.Scale)
 
 	rep.Beliefs = make([]BeliefGap, G)
 	for i, b := range bs {
@@ -201,7 +201,12 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 		prop.Sharpened, prop.GridWorst, prop.Status = rep.Gap.Sharpened, rep.Gap.GridMax, rep.Gap.Status
 		markPart(&prop)
 	}
+	roundingOnly := !prop.Strict && prop.Passed
+	confirmPayoutTie(p, &prop, ties)
 	prop.Note = propernessNote(prop, "pay", "more")
+	if roundingOnly && prop.Strict {
+		prop.Note = fmt.Sprintf("at every grid belief the honest report is the unique best grid report: the closest other report, %s at belief %s, agrees to within rounding (difference %.3g), but the payout is strictly curved along the segment between them (exact second derivative), so that is rounding, not a tie", num.Format(prop.MarginReport), num.Format(prop.MarginBelief), prop.Margin)
+	}
 	rep.Checks = []CheckResult{prop, bounded}
 	switch {
 	case !prop.Passed:

@@ -42,9 +42,9 @@ func minimise(f func(x []float64) float64, x0 []float64, evals int) (x []float64
 	if res == nil {
 		return bestX, bestF, "optimiser gave no result: " + errString(err), false
 	}
-	status = res.Status.String()
+	status = statusWords(res.Status)
 	if err != nil {
-		status += ": " + err.Error()
+		status += " (" + err.Error() + ")"
 	}
 	// Trust the status, not just the error: a run that stopped for a
 	// failure is not a witness, only a run that converged or used its
@@ -241,4 +241,19 @@ func searches(n int) string {
 		return "1 local search"
 	}
 	return fmt.Sprintf("%d local searches", n)
+}
+
+// statusWords says in plain words how the search ended, for notes a
+// person reads; the optimiser's own names (FunctionConvergence) mean
+// nothing to them.
+func statusWords(s optimize.Status) string {
+	switch s {
+	case optimize.Success, optimize.FunctionConvergence, optimize.StepConvergence, optimize.GradientThreshold:
+		return "converged"
+	case optimize.FunctionThreshold:
+		return "reached its target value"
+	case optimize.FunctionEvaluationLimit, optimize.IterationLimit, optimize.RuntimeLimit:
+		return "stopped at its work limit"
+	}
+	return "stopped without converging"
 }

@@ -7,6 +7,8 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"scorewright/generator/bregman"
+	"scorewright/generator/formula"
+	"scorewright/generator/payout"
 	"scorewright/internal/num"
 )
 
@@ -175,4 +177,73 @@ func decideStrictness(sc *bregman.Scorer, prop *CheckResult, conc CheckResult, t
 		return false, ""
 	}
 	return true, fmt.Sprintf("the curvature of H vanishes at %s (largest projected eigenvalue %.3g), but H is curved along every short segment there: an isolated zero, so no two reports tie", num.Format(conc.Interior.Belief), conc.Interior.Worst)
+}
+
+// flatPayout is flatSegment for a payout under audit: the expected pay
+// f(r) = sum_k q_k pay(r, k) of the belief q at one end, whose second
+// derivative along the segment [q, p] (exact, from each outcome's
+// compiled formula) must vanish up to the rounding of its terms at
+// flatSamples points. With f(q) = f(p) to rounding, f is then constant on
+// the segment: a tie.
+func flatPayout(progs []*formula.Program, q, p []float64) bool {
+	n := len(q)
+	hess, grad, z := make([]float64, n*n), make([]float64, n), make([]float64, n)
+	machines := make([]*formula.Machine, len(progs))
+	for k, pr := range progs {
+		if pr.NumVars() != n {
+			return false
+		}
+		machines[k] = pr.NewMachine()
+	}
+	for t := 1; t < flatSamples-1; t++ {
+		f := float64(t) / (flatSamples - 1)
+		for i := range z {
+			z[i] = q[i] + f*(p[i]-q[i])
+		}
+		var sum, size float64
+		for k, m := range machines {
+			if q[k] == 0 {
+				continue
+			}
+			m.Hessian(hess, grad, z)
+			for i := 0; i < n; i++ {
+				for j := 0; j < n; j++ {
+					vi, vj := p[i]-q[i], p[j]-q[j]
+					if vi == 0 || vj == 0 {
+						continue
+					}
+					term := q[k] * vi * hess[i*n+j] * vj
+					if math.IsNaN(term) || math.IsInf(term, 0) {
+						return false
+					}
+					sum += term
+					size += math.Abs(term)
+				}
+			}
+		}
+		if math.Abs(sum) > 64*0x1p-52*size {
+			return false
+		}
+	}
+	return true
+}
+
+// confirmPayoutTie settles an audit's strictness as decideStrictness does
+// a check's: a candidate tie counts only when the payout is flat along
+// the segment; otherwise the near-equal pays are rounding.
+func confirmPayoutTie(pay *payout.Payout, prop *CheckResult, ties []tiePair) {
+	if prop.Strict || !prop.Passed {
+		return
+	}
+	progs := make([]*formula.Program, pay.Outcomes())
+	for k := range progs {
+		progs[k] = pay.Program(k + 1)
+	}
+	for _, t := range ties {
+		if flatPayout(progs, t.q, t.p) {
+			prop.Margin, prop.MarginBelief, prop.MarginReport = t.margin, clone(t.q), clone(t.p)
+			return
+		}
+	}
+	prop.Strict = true
 }

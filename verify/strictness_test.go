@@ -60,3 +60,18 @@ func TestStrictnessNeedsAWitness(t *testing.T) {
 		t.Errorf("witness is one report, not two: %v", prop.MarginBelief)
 	}
 }
+
+// The same mistake in an audit: the power score with g = 8, S = g p_y^7 -
+// (g-1) sum p^8 (Gneiting & Raftery 2007, Sec. 3), strictly proper for
+// g > 1, was called proper on the strength of grid pairs near a vertex
+// whose expected pays differ by 1e-16: rounding, not a tie. The flat
+// payout of TestFlatPieceIsProperNotStrict keeps its confirmed tie.
+func TestAuditStrictnessNeedsAWitness(t *testing.T) {
+	a, err := Audit(context.Background(), pay(t, "8*p[y]^7 - 7*sum(p^8)", 3), nil, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if a.Verdict != StrictlyProper {
+		t.Errorf("power-8 score: verdict %s, want %s (%s)", a.Verdict, StrictlyProper, a.Check(NameProperness).Note)
+	}
+}

@@ -432,6 +432,9 @@ func byteSize(n int64) string {
 // refuseExisting fails early, before hours of reading, when an output
 // file exists and --force was not given.
 func refuseExisting(path string, force bool) error {
+	if err := safefile.CheckTarget(path); err != nil {
+		return usagef("%v", err)
+	}
 	if force {
 		return nil
 	}

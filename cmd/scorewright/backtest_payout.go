@@ -60,7 +60,7 @@ func createCSVOut(path string, force bool, head []string, flag string) (*payOutF
 	}
 	f, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp*")
 	if err != nil {
-		return nil, usagef("%s: %v", flag, err)
+		return nil, usagef("%s: %v", flag, safefile.Named(path, err))
 	}
 	o := &payOutFile{path: path, tmp: f.Name(), force: force, f: f, buf: bufio.NewWriterSize(f, 1<<16), flag: flag}
 	o.w = csv.NewWriter(o.buf)
@@ -120,7 +120,7 @@ func (o *payOutFile) commit() error {
 	if err != nil {
 		os.Remove(o.tmp)
 		o.done = true
-		return usagef("%s: %v", o.flag, err)
+		return usagef("%s: %v", o.flag, safefile.Named(o.path, err))
 	}
 	o.done = true
 	return nil

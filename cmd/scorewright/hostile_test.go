@@ -131,3 +131,34 @@ func writeFile(t *testing.T, path, text string) {
 		t.Fatal(err)
 	}
 }
+
+// Output errors name the path the user gave, never a temporary file, and
+// no special file is replaced even with --force.
+func TestOutputErrorsNameTheUsersPath(t *testing.T) {
+	dir := t.TempDir()
+	table := []string{"table", "--outcomes", "2", "--preset", "quadratic", "--floor", "0", "--cap", "10", "--step", "0.1", "--force", "--out"}
+	adir := dir + "/adir.md"
+	if err := os.Mkdir(adir, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	link := dir + "/link.md"
+	if err := os.Symlink(dir+"/elsewhere.md", link); err != nil {
+		t.Fatal(err)
+	}
+	for _, path := range []string{adir, link, dir + "/no-such-dir/annex.md"} {
+		code, _, errs := runCmd(t, append(append([]string{}, table...), path)...)
+		if code != 2 || !strings.Contains(errs, path) || strings.Contains(errs, ".tmp") {
+			t.Errorf("--out %s: exit %d, %q", path, code, errs)
+		}
+	}
+	if _, err := os.Lstat(dir + "/elsewhere.md"); err == nil {
+		t.Error("the link's target was written")
+	}
+	bt := append(append([]string{"backtest"}, frostRule...), "--floor", "0", "--cap", "10", "--step", "0.1", "--history", frostHistory, "--force", "--pay-out")
+	for _, path := range []string{link, dir + "/no-such-dir/pay.csv"} {
+		code, _, errs := runCmd(t, append(append([]string{}, bt...), path)...)
+		if code != 2 || !strings.Contains(errs, path) || strings.Contains(errs, ".tmp") {
+			t.Errorf("--pay-out %s: exit %d, %q", path, code, errs)
+		}
+	}
+}

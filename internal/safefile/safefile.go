@@ -41,12 +41,21 @@ func Write(path string, data []byte, overwrite bool) error {
 
 // write is Write with a hook run after the data is written and before it
 // is renamed into place, for the test of an interrupted write.
+// CheckTarget fails with an error wrapping ErrNotRegular when path exists
+// and is not a regular file, the one kind of file Write replaces.
+func CheckTarget(path string) error {
+	if st, err := os.Lstat(path); err == nil && !st.Mode().IsRegular() {
+		return fmt.Errorf("%s: %w (%s); scorewright writes only regular files, so give another path", path, ErrNotRegular, kind(st.Mode()))
+	}
+	return nil
+}
+
 func write(path string, data []byte, overwrite bool, midway func()) error {
 	perm := fs.FileMode(0o644)
+	if err := CheckTarget(path); err != nil {
+		return err
+	}
 	if st, err := os.Lstat(path); err == nil {
-		if !st.Mode().IsRegular() {
-			return fmt.Errorf("%s: %w (%s); scorewright writes only regular files, so give another path", path, ErrNotRegular, kind(st.Mode()))
-		}
 		if !overwrite {
 			return fmt.Errorf("%s: %w (use --force to replace it)", path, ErrExists)
 		}
@@ -54,7 +63,7 @@ func write(path string, data []byte, overwrite bool, midway func()) error {
 	}
 	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp*")
 	if err != nil {
-		return named(path, err)
+		return Named(path, err)
 	}
 	w := &pending{name: tmp.Name()}
 	stop := w.removeOnSignal()
@@ -62,20 +71,20 @@ func write(path string, data []byte, overwrite bool, midway func()) error {
 	if _, err := tmp.Write(data); err != nil {
 		tmp.Close()
 		w.remove()
-		return named(path, err)
+		return Named(path, err)
 	}
 	if err := tmp.Sync(); err != nil {
 		tmp.Close()
 		w.remove()
-		return named(path, err)
+		return Named(path, err)
 	}
 	if err := tmp.Close(); err != nil {
 		w.remove()
-		return named(path, err)
+		return Named(path, err)
 	}
 	if err := os.Chmod(w.name, perm); err != nil {
 		w.remove()
-		return named(path, err)
+		return Named(path, err)
 	}
 	if midway != nil {
 		midway()
@@ -145,7 +154,7 @@ func (w *pending) place(path string, overwrite bool) error {
 		if os.IsExist(err) {
 			return fmt.Errorf("%s: %w (use --force to replace it)", path, ErrExists)
 		}
-		return named(path, err)
+		return Named(path, err)
 	}
 	if st, err := os.Lstat(path); err == nil && !st.Mode().IsRegular() {
 		// It changed into something special since the first look.
@@ -154,14 +163,15 @@ func (w *pending) place(path string, overwrite bool) error {
 	}
 	if err := os.Rename(w.name, path); err != nil {
 		os.Remove(w.name)
-		return named(path, err)
+		return Named(path, err)
 	}
 	return nil
 }
 
-// named gives err in terms of the file asked for: the operating system's
-// reason without the temporary file's name.
-func named(path string, err error) error {
+// Named gives err in terms of the file asked for, path: the operating
+// system's reason without the temporary file's name. Writers that stream
+// to a temporary file of their own use it for their messages.
+func Named(path string, err error) error {
 	if err == nil {
 		return nil
 	}
