@@ -114,6 +114,9 @@ func (p ChecksPane) View() string {
 			head = st.Dim.Render("previous design's verdict: " + verdict)
 		}
 		lines = append(lines, head)
+		// The certificate right under the grid verdict, so that a small
+		// terminal shows both kinds of verdict before any detail.
+		lines = append(lines, certificateLines(st, r.Certificate)...)
 		lines = append(lines, st.Dim.Render(gridLine(r)))
 		// Each check's note only when there is room for all of them.
 		notes := p.h-2 >= len(lines)+2*len(r.Rows)+len(r.Notes)+1
@@ -144,7 +147,6 @@ func (p ChecksPane) View() string {
 			lines = append(lines, st.Dim.Render(n))
 		}
 		lines = append(lines, st.Dim.Render("A grid check is evidence, not proof."))
-		lines = append(lines, certificateLines(st, r.Certificate)...)
 	} else if !p.running && p.err == nil && p.blocked == "" && !p.waiting {
 		lines = append(lines, st.Dim.Render("no checks run yet"))
 	}
