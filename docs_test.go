@@ -26,7 +26,7 @@ func TestReadmeGoVersionMatchesGoMod(t *testing.T) {
 	if !strings.Contains(string(readme), want) {
 		t.Errorf("README does not say %q", want)
 	}
-	if _, err := os.Stat("docs/annex-page-1.png"); err != nil {
+	if _, err := os.Stat("testdata/annex/page-1.png"); err != nil {
 		t.Errorf("the README's picture of the annex is missing: %v", err)
 	}
 }
