@@ -174,7 +174,7 @@ func (t *Tally) rank(s int) []int32 {
 	mean := make([]float64, len(t.names))
 	for i := range mean {
 		m := &t.money[i*k+s]
-		mean[i] = m.pay.value() / float64(m.count)
+		mean[i] = m.pay.Value() / float64(m.count)
 	}
 	order := make([]int32, len(mean))
 	for i := range order {

@@ -3,6 +3,7 @@ package backtest
 import (
 	"fmt"
 	"math"
+	"scorewright/internal/num"
 	"strings"
 
 	"scorewright/contract/backtest/history"
@@ -85,32 +86,8 @@ type Money struct {
 	NonFinite, FirstNonFinite int
 }
 
-// sum is a compensated (Neumaier) running sum; Inf and NaN pass through.
-type sum struct{ s, c float64 }
-
-func (a *sum) add(x float64) {
-	t := a.s + x
-	if math.IsInf(t, 0) || math.IsNaN(t) {
-		a.s = t
-		return
-	}
-	if math.Abs(a.s) >= math.Abs(x) {
-		a.c += (a.s - t) + x
-	} else {
-		a.c += (x - t) + a.s
-	}
-	a.s = t
-}
-
-func (a sum) value() float64 {
-	if math.IsInf(a.s, 0) || math.IsNaN(a.s) {
-		return a.s
-	}
-	return a.s + a.c
-}
-
 type moneyTally struct {
-	pay, effort                                   sum
+	pay, effort                                   num.Sum
 	min, max                                      float64
 	count, off, low, high, nonFinite, firstNonFin int
 }
@@ -123,8 +100,8 @@ func (m *moneyTally) add(p Paid, line int, s *Scheme) {
 		m.max = p.Pay
 	}
 	m.count++
-	m.pay.add(p.Pay)
-	m.effort.add(p.Effort)
+	m.pay.Add(p.Pay)
+	m.effort.Add(p.Effort)
 	if !p.OnMenu {
 		m.off++
 	}
@@ -148,11 +125,11 @@ func (m *moneyTally) add(p Paid, line int, s *Scheme) {
 }
 
 func (m *moneyTally) money() Money {
-	out := Money{Count: m.count, Total: m.pay.value(), OffMenu: m.off, BelowLow: m.low, AboveHigh: m.high,
+	out := Money{Count: m.count, Total: m.pay.Value(), OffMenu: m.off, BelowLow: m.low, AboveHigh: m.high,
 		NonFinite: m.nonFinite, FirstNonFinite: m.firstNonFin, Min: m.min, Max: m.max}
 	if m.count > 0 {
 		out.Mean = out.Total / float64(m.count)
-		out.MeanEffort = m.effort.value() / float64(m.count)
+		out.MeanEffort = m.effort.Value() / float64(m.count)
 	} else {
 		out.Mean, out.MeanEffort, out.Min, out.Max = math.NaN(), math.NaN(), math.NaN(), math.NaN()
 	}
@@ -163,15 +140,15 @@ func (m *moneyTally) money() Money {
 // bytes, so that two million forecasters fit in memory. The smallest and
 // largest payments are kept only for all forecasts together.
 type smallTally struct {
-	pay, effort          sum
+	pay, effort          num.Sum
 	count, off, low      int32
 	high, nonFinite, fst int32
 }
 
 func (m *smallTally) add(p Paid, line int, s *Scheme) {
 	m.count++
-	m.pay.add(p.Pay)
-	m.effort.add(p.Effort)
+	m.pay.Add(p.Pay)
+	m.effort.Add(p.Effort)
 	if !p.OnMenu {
 		m.off++
 	}
@@ -190,11 +167,11 @@ func (m *smallTally) add(p Paid, line int, s *Scheme) {
 }
 
 func (m *smallTally) money() Money {
-	out := Money{Count: int(m.count), Total: m.pay.value(), OffMenu: int(m.off), BelowLow: int(m.low), AboveHigh: int(m.high),
+	out := Money{Count: int(m.count), Total: m.pay.Value(), OffMenu: int(m.off), BelowLow: int(m.low), AboveHigh: int(m.high),
 		NonFinite: int(m.nonFinite), FirstNonFinite: int(m.fst), Min: math.NaN(), Max: math.NaN()}
 	if m.count > 0 {
 		out.Mean = out.Total / float64(m.count)
-		out.MeanEffort = m.effort.value() / float64(m.count)
+		out.MeanEffort = m.effort.Value() / float64(m.count)
 	} else {
 		out.Mean, out.MeanEffort = math.NaN(), math.NaN()
 	}

@@ -169,20 +169,6 @@ func TestRunSkipsAndStrict(t *testing.T) {
 	}
 }
 
-// Money sums are compensated: ten million payments of 0.1 add to exactly
-// what 0.1·1e7 rounds to, where a plain float sum drifts.
-func TestCompensatedSum(t *testing.T) {
-	var s sum
-	var plain float64
-	for range 10_000_000 {
-		s.add(0.1)
-		plain += 0.1
-	}
-	if got := s.value(); got != 1e6 {
-		t.Errorf("compensated sum %.17g, want 1e6 (plain sum gives %.17g)", got, plain)
-	}
-}
-
 // A clamp pays the report as if each probability were at least c, and the
 // effort is that of the paid report. Log rule, forecast (1, 0), outcome 2,
 // clamp 0.01: the paid report is (1/1.01, 0.01/1.01), effort

@@ -23,6 +23,7 @@ package corp
 import (
 	"fmt"
 	"math"
+	"scorewright/internal/num"
 	"sort"
 )
 
@@ -146,12 +147,12 @@ func (d Decomposition) Identity() float64 {
 func Decompose(groups []Group, loss Loss) Decomposition {
 	calibrated := PAV(groups)
 	var total, hits int
-	var score, cal sum
+	var score, cal num.Sum
 	for i, g := range groups {
 		total += g.Count
 		hits += g.Hits
-		score.add(weighted(g, loss, g.X))
-		cal.add(weighted(g, loss, calibrated[i]))
+		score.Add(weighted(g, loss, g.X))
+		cal.Add(weighted(g, loss, calibrated[i]))
 	}
 	if total == 0 {
 		nan := math.NaN()
@@ -159,9 +160,9 @@ func Decompose(groups []Group, loss Loss) Decomposition {
 	}
 	n := float64(total)
 	r := float64(hits) / n
-	var unc sum
-	unc.add(weighted(Group{X: r, Count: total, Hits: hits}, loss, r))
-	s, c, u := score.value()/n, cal.value()/n, unc.value()/n
+	var unc num.Sum
+	unc.Add(weighted(Group{X: r, Count: total, Hits: hits}, loss, r))
+	s, c, u := score.Value()/n, cal.Value()/n, unc.Value()/n
 	return Decomposition{Count: total, BaseRate: r, Score: s, Miscalibration: s - c, Discrimination: u - c, Uncertainty: u}
 }
 
@@ -178,28 +179,4 @@ func weighted(g Group, loss Loss, x float64) float64 {
 		s += float64(miss) * ifNot
 	}
 	return s
-}
-
-// sum is a compensated (Neumaier) running sum; Inf and NaN pass through.
-type sum struct{ s, c float64 }
-
-func (a *sum) add(x float64) {
-	t := a.s + x
-	if math.IsInf(t, 0) || math.IsNaN(t) {
-		a.s = t
-		return
-	}
-	if math.Abs(a.s) >= math.Abs(x) {
-		a.c += (a.s - t) + x
-	} else {
-		a.c += (x - t) + a.s
-	}
-	a.s = t
-}
-
-func (a sum) value() float64 {
-	if math.IsInf(a.s, 0) || math.IsNaN(a.s) {
-		return a.s
-	}
-	return a.s + a.c
 }

@@ -1,0 +1,31 @@
+package num
+
+import "math"
+
+// Sum is a compensated (Neumaier) running sum: totals over millions of
+// payments keep the digits a plain running sum loses. Inf and NaN pass
+// through as data. The zero value is an empty sum.
+type Sum struct{ s, c float64 }
+
+// Add adds x to the sum.
+func (a *Sum) Add(x float64) {
+	t := a.s + x
+	if math.IsInf(t, 0) || math.IsNaN(t) {
+		a.s = t
+		return
+	}
+	if math.Abs(a.s) >= math.Abs(x) {
+		a.c += (a.s - t) + x
+	} else {
+		a.c += (x - t) + a.s
+	}
+	a.s = t
+}
+
+// Value is the sum so far.
+func (a Sum) Value() float64 {
+	if math.IsInf(a.s, 0) || math.IsNaN(a.s) {
+		return a.s
+	}
+	return a.s + a.c
+}
