@@ -428,16 +428,12 @@ func clampIndex(i, n int) int { return min(max(i, 0), n-1) }
 // inputsLine shows the inputs, the selected one marked.
 func (r *ResearchRoom) inputsLine(d *design.Design) []string {
 	in := r.in
-	model, strength := "Dirichlet", fmt.Sprintf("kappa %g", in.Kappa)
+	model, strength := in.modelWords()
 	base := "base rate " + formatBelief(in.baseRate(d))
 	if d.N() != 2 {
 		base += " (the design's)"
 	}
-	switch in.Kind {
-	case "signal":
-		model, strength = "signal", fmt.Sprintf("accuracy %g", in.Accuracy)
-	case "history":
-		model, strength = "history", filepath.Base(in.History)
+	if in.Kind == "history" {
 		base = "base rate: the mean forecast"
 		if r := r.res; r != nil && len(r.Prior) == d.N() {
 			base += " " + formatBelief(r.Prior)
@@ -458,6 +454,18 @@ func (r *ResearchRoom) inputsLine(d *design.Design) []string {
 		}
 	}
 	return wrapItems(items, max(10, r.w-2))
+}
+
+// modelWords name the research model and its strength, as the inputs
+// line and the status line show them.
+func (in ResearchInputs) modelWords() (model, strength string) {
+	switch in.Kind {
+	case "signal":
+		return "signal", fmt.Sprintf("accuracy %g", in.Accuracy)
+	case "history":
+		return "history", filepath.Base(in.History)
+	}
+	return "Dirichlet", fmt.Sprintf("kappa %g", in.Kappa)
 }
 
 // wrapItems joins items with two spaces into lines no wider than w.

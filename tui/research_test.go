@@ -165,8 +165,7 @@ func TestResearchFlow(t *testing.T) {
 	o.wait("study done")
 	o.act()
 	tm.Send(keyRight)
-	o.wait("accuracy 0.75")
-	o.wait("study done")
+	o.wait("study done: signal, accuracy 0.75")
 	tm.Send(runes("q"))
 	fm := tm.FinalModel(t, teatest.WithFinalTimeout(10*time.Second)).(*Model)
 	if r := fm.research.Result(); r == nil || !strings.HasPrefix(r.Model, "one signal") {

@@ -33,7 +33,10 @@ func (r *ResearchRoom) statusLine() string {
 	case r.stale:
 		return st.Dim.Render("previous design — the study reruns when the edit settles")
 	case r.res != nil:
-		return st.Pass.Render("✓ study done") + st.Dim.Render(" · ↑/↓ choose, ←/→ step, esc back")
+		// Naming the model studied tells which inputs the table is for,
+		// and changes the line whenever a new study lands.
+		model, strength := r.forIn.modelWords()
+		return st.Pass.Render("✓ study done: "+model+", "+strength) + st.Dim.Render(" · ↑/↓ choose, ←/→ step, esc back")
 	}
 	return st.Dim.Render("waiting for the design to compile")
 }
