@@ -247,6 +247,7 @@ func (f *backtestFlags) run(e *env, h *history.Reader, size int64, schemes []*ba
 	if err := runError(*f.history, h, res, err); err != nil {
 		return err
 	}
+	defer res.Close()
 	return finishBacktest(e, h, schemes, res, backtestOutputs{history: *f.history, payOut: *f.payOut, out: out, forecastersOut: *f.forecastersOut,
 		figPath: *f.figPath, figFormat: figFormat, force: *f.force, questions: questions, asJSON: *f.asJSON, chart: *f.chart, event: labels[0]})
 }
