@@ -13,11 +13,11 @@ import (
 	"time"
 
 	"scorewright/contract/annex"
+	"scorewright/contract/budget"
 	"scorewright/contract/cost"
 	"scorewright/contract/lottery"
 	"scorewright/contract/table"
 	"scorewright/generator/design"
-	"scorewright/generator/point"
 	"scorewright/internal/num"
 	"scorewright/internal/safefile"
 	"scorewright/verify"
@@ -163,7 +163,7 @@ func budgetFitter(ctx context.Context, d *design.Design) (*TableView, error) {
 
 // pointTableView is the preview of a point-forecast table: reports down,
 // outcome values across.
-func pointTableView(t *point.Table, rc *point.Recheck) *TableView {
+func pointTableView(t *budget.PointTable, rc *budget.PointRecheck) *TableView {
 	tv := &TableView{Passed: rc.Passed, MinMargin: rc.MinMargin, Notes: append([]string{"re-check: " + rc.Verdict(t)}, t.Notes...)}
 	tv.Header = []string{"report \\ outcome"}
 	for _, y := range t.Outcomes {
