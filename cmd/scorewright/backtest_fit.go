@@ -23,7 +23,10 @@ func budgetFit(fs *flag.FlagSet, menuFile string, clamp float64) fitFunc {
 		var f *tablepay.Fitted
 		var err error
 		menuDesc := ""
-		if menuFile == "" && !stepSet && d.Budget.Step == 0 {
+		if clamp == 0 {
+			clamp = d.Budget.Clamp
+		}
+		if menuFile == "" && !stepSet && d.Budget.Step == 0 && d.Budget.Menu == "" {
 			if f, err = tablepay.Formula("", r, d.Budget, clamp); err != nil {
 				return nil, fitError(err)
 			}
@@ -33,7 +36,7 @@ func budgetFit(fs *flag.FlagSet, menuFile string, clamp float64) fitFunc {
 			if err != nil {
 				return nil, err
 			}
-			if f, err = tablepay.New(context.Background(), "", r, menu, d.Budget, menuFile == ""); err != nil {
+			if f, err = tablepay.New(context.Background(), "", r, menu, d.Budget, menuFile == "" && (stepSet || d.Budget.Menu == "")); err != nil {
 				return nil, fitError(err)
 			}
 			menuDesc = f.Fit.MenuDesc()
