@@ -50,8 +50,16 @@
 // It is stored as payout mode with an interval (`onInterval(d)`; the outcome labels stay in the
 // file, unused), so a saved audit opens again as one; a payout over outcomes has no interval
 // (the design pane keeps it aside). Each mode remembers its last formula, and the menu step is
-// kept apart for point and outcome designs. `q` and `ctrl+n` act on the second press when the
-// design has unsaved changes; opening a file says so too.
+// kept apart for point and outcome designs.
+//
+// Unsaved changes (`tui/leave.go`, `tui/recover.go`, `tui/recovery`): every key that leaves or
+// replaces the design — q, ctrl+c, the next demo, opening a file, a preset over a formula written by
+// hand — asks first when there are unsaved edits: s saves and then goes on, d goes on without
+// saving, esc keeps editing (ctrl+c twice leaves at once). While edits are unsaved they are written,
+// once they settle, atomically to a recovery file in the user's state directory
+// (`Settings.RecoveryDir`); saving or dropping them removes it, and the next start offers what a run
+// that ended without saving left: r restores the edits (still unsaved), d drops them, esc keeps
+// them as a design file to open later.
 //
 // Backtest (`tui/backtest.go`): the backtest key (ctrl+d) asks for a forecast-history CSV (columns forecaster,
 // question, outcome, then the design's outcome labels; the frost demo's labels are those of

@@ -39,18 +39,6 @@ func (m *Model) fileDone(seq uint64, err error, ok func(), then ...func() tea.Cm
 // Unsaved reports whether the design changed since it was opened or saved.
 func (m *Model) Unsaved() bool { return m.gen != m.savedGen }
 
-// confirmDiscard lets a key that would lose unsaved changes act only when
-// pressed twice in a row; the first press says so on the status line.
-func (m *Model) confirmDiscard(km tea.KeyMsg, again string) bool {
-	if !m.Unsaved() || m.armed == km.String() {
-		m.armed = ""
-		return true
-	}
-	m.armed = km.String()
-	m.status = "the design has unsaved changes (" + m.keys.Save.Help().Key + " saves); " + again
-	return false
-}
-
 func (m *Model) openHelp() {
 	m.help = true
 	m.helpView.Width = max(20, m.width-6)
@@ -88,9 +76,6 @@ func (m *Model) openDialog(kind dialogKind) {
 			dir += string(filepath.Separator)
 		}
 		d := newFileDialog(m.st, m.keys, kind, dir, nil)
-		if m.Unsaved() {
-			d.msg = "the current design has unsaved changes; opening replaces it"
-		}
 		m.dialog = &d
 	case dialogHistory:
 		dir := m.set.Dir

@@ -159,6 +159,8 @@ func (t *TermsRoom) Key(km tea.KeyMsg, d *design.Design) (handled, changed bool,
 		t.ti.SetValue(fields[t.sel].get(d))
 		t.ti.CursorEnd()
 		return true, false, t.ti.Focus()
+	case key.Matches(km, k.Quit), key.Matches(km, k.Help):
+		return false, false, nil // as everywhere else: q quits (asking first), ? shows the keys
 	case km.Type == tea.KeyRunes || km.Type == tea.KeySpace || km.Type == tea.KeyLeft || km.Type == tea.KeyRight:
 		// A pane's keys must not edit the design behind the view.
 		return true, false, nil

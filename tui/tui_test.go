@@ -108,12 +108,12 @@ func TestTypingNeverTriggersShortcuts(t *testing.T) {
 		t.Fatal("+ added an outcome while typing")
 	}
 	press(t, m, keyEsc, runes("q"))
-	if m.quitting || !strings.Contains(m.Status(), "unsaved changes") {
+	if m.quitting || m.leaving == nil {
 		t.Fatalf("q quit at once with unsaved changes (status %q)", m.Status())
 	}
-	press(t, m, runes("q"))
+	press(t, m, runes("d"))
 	if !m.quitting {
-		t.Fatal("a second q does not quit once typing stopped")
+		t.Fatal("q, then d, does not quit once typing stopped")
 	}
 }
 
@@ -561,27 +561,24 @@ func TestPayoutAudit(t *testing.T) {
 	}
 }
 
-// Keys that would lose unsaved work act on the second press; ctrl+n is
-// the editor's own key while typing, never the demo switch.
-func TestUnsavedChangesNeedASecondPress(t *testing.T) {
+// Keys that would lose unsaved work ask first (tui/leave_test.go has
+// every path); ctrl+n is the editor's own key while typing, never the demo
+// switch, and the global keys that are not text still work while typing.
+func TestUnsavedChangesAsk(t *testing.T) {
 	m := testModel(t, nil, Settings{})
 	start(t, m, 80, 24)
-	press(t, m, keyCtrlN)
-	if m.Design().Title != DemoHarvest().Title {
-		t.Fatal("ctrl+n with nothing to lose did not switch demos")
-	}
 	press(t, m, runes("+")) // an edit
 	press(t, m, keyCtrlN)
-	if m.Design().N() != 4 {
-		t.Fatal("ctrl+n discarded an edit on the first press")
+	if m.Design().N() != 3 || m.leaving == nil {
+		t.Fatal("ctrl+n discarded an edit without asking")
 	}
-	press(t, m, keyCtrlN)
-	if m.Design().Title != DemoFrost().Title {
-		t.Fatal("second ctrl+n did not switch")
+	press(t, m, runes("d"))
+	if m.Design().Title != DemoHarvest().Title {
+		t.Fatal("d did not switch")
 	}
 	press(t, m, keyDown, keyDown, keyDown, keyEnter, keyCtrlN)
-	if m.Design().Title != DemoFrost().Title || !m.designPane.Typing() {
-		t.Fatal("ctrl+n while typing switched the design")
+	if m.Design().Title != DemoHarvest().Title || !m.designPane.Typing() || m.leaving != nil {
+		t.Fatal("ctrl+n while typing switched the design or asked")
 	}
 	press(t, m, tea.KeyMsg{Type: tea.KeyF1})
 	if !m.help {
