@@ -226,7 +226,8 @@ func TestBudgetFitProgressAndCancel(t *testing.T) {
 	waitFor(t, func() bool { return bf.cancelled.Load() >= 1 && bf.started.Load() >= 2 })
 	close(bf.release)
 	o.wait("menu re-check passed")
-	tm.Send(tea.KeyMsg{Type: tea.KeyCtrlC})
+	tm.Send(tea.KeyMsg{Type: tea.KeyCtrlC}) // asks: the floor is unsaved
+	tm.Send(tea.KeyMsg{Type: tea.KeyCtrlC}) // out; the recovery file keeps it
 	fm := tm.FinalModel(t, teatest.WithFinalTimeout(10*time.Second)).(*Model)
 	if fm.Design().Budget.Floor != 1 {
 		t.Errorf("floor %v", fm.Design().Budget.Floor)
