@@ -117,6 +117,9 @@ func replay(ctx context.Context, d *design.Design, h *history.Reader, path strin
 	if err != nil {
 		return nil, err
 	}
+	// The view shows only the detailed forecasters, which the Result
+	// holds; the temporary file of a large history can go now.
+	res.Close()
 	if res.Rows == 0 {
 		msg := fmt.Sprintf("%s has no valid forecasts", filepath.Base(path))
 		if res.SkippedCount > 0 {

@@ -52,6 +52,12 @@
 // (the design pane keeps it aside). Each mode remembers its last formula, and the menu step is
 // kept apart for point and outcome designs.
 //
+// File dialogs (`tui/dialog.go`, `tui/complete.go`): tab completes the path (in the background, as
+// far as every match agrees; the names still open show under it; the open dialog offers designs and
+// folders, the history dialog histories), ↑/↓ change the export format and a typed extension chooses
+// it at once; the export dialog starts with the format and pay chosen last. A failure is one line in
+// the dialog naming the file ("no file …; check the name").
+//
 // Unsaved changes (`tui/leave.go`, `tui/recover.go`, `tui/recovery`): every key that leaves or
 // replaces the design — q, ctrl+c, the next demo, opening a file, a preset over a formula written by
 // hand — asks first when there are unsaved edits: s saves and then goes on, d goes on without

@@ -112,10 +112,14 @@ type Model struct {
 	checks     ChecksPane
 	budget     BudgetPane
 	dialog     *fileDialog
-	help       bool
-	helpView   viewport.Model
-	status     string
-	quitting   bool
+	// exportFormat and exportLottery are what the last export asked for,
+	// so the next export dialog starts there.
+	exportFormat  string
+	exportLottery bool
+	help          bool
+	helpView      viewport.Model
+	status        string
+	quitting      bool
 
 	// updates counts Update calls, for tests that watch responsiveness.
 	updates int64
@@ -303,6 +307,11 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 			m.status = "opened " + msg.path
 			m.path = msg.path
 		}, func() tea.Cmd { return m.replaceDesign(msg.d) })
+	case completedMsg:
+		if m.dialog != nil {
+			m.dialog.completed(msg)
+		}
+		return m, nil
 	case recoveryFoundMsg:
 		m.foundRecovery(msg)
 		return m, nil

@@ -434,7 +434,7 @@ func TestExportDialog(t *testing.T) {
 	dir := t.TempDir()
 	m := testModel(t, nil, Settings{Dir: dir, Version: "test"})
 	start(t, m, 80, 24)
-	press(t, m, tea_ctrlX(), keyTab) // csv → md
+	press(t, m, tea_ctrlX(), keyDown) // csv → md
 	if m.dialog == nil || m.dialog.Format() != "md" || !strings.HasSuffix(m.dialog.Path(), ".md") {
 		t.Fatalf("format change: %+v", m.dialog.Path())
 	}
@@ -447,7 +447,7 @@ func TestExportDialog(t *testing.T) {
 	if !strings.Contains(m.Status(), path) {
 		t.Fatalf("status %q does not say where", m.Status())
 	}
-	press(t, m, tea_ctrlX(), keyTab, keyEnter)
+	press(t, m, tea_ctrlX(), keyEnter) // the dialog keeps md, the format chosen last
 	if m.dialog == nil || !m.dialog.confirm {
 		t.Fatal("no question before replacing an export")
 	}
@@ -463,7 +463,7 @@ func TestExportRecordOrdered(t *testing.T) {
 	dir := t.TempDir()
 	m := testModel(t, DemoHarvest(), Settings{Dir: dir, Version: "test"})
 	start(t, m, 80, 24)
-	press(t, m, tea_ctrlX(), keyTab, keyEnter) // csv → md, export
+	press(t, m, tea_ctrlX(), keyDown, keyEnter) // csv → md, export
 	b, err := os.ReadFile(filepath.Join(dir, "orchard-co-operative-harvest-outlook.md"))
 	if err != nil {
 		t.Fatal(err)
@@ -664,10 +664,15 @@ func TestLotteryExport(t *testing.T) {
 	if b, _ := os.ReadFile(pp); !strings.Contains(string(b), lottery.Caution) || !strings.Contains(string(b), "chance") {
 		t.Errorf("point lottery export:\n%s", b)
 	}
-	// Money again: ctrl+t toggles back.
-	press(t, m, tea_ctrlX(), tea.KeyMsg{Type: tea.KeyCtrlT}, tea.KeyMsg{Type: tea.KeyCtrlT})
+	// The next export dialog keeps the lottery chosen last; ctrl+t goes
+	// back to money.
+	press(t, m, tea_ctrlX())
+	if !m.dialog.lottery {
+		t.Fatal("the export dialog forgot the lottery")
+	}
+	press(t, m, tea.KeyMsg{Type: tea.KeyCtrlT})
 	if m.dialog.lottery {
-		t.Fatal("second ctrl+t did not go back to money")
+		t.Fatal("ctrl+t did not go back to money")
 	}
 }
 

@@ -217,6 +217,7 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 	if err := runError(*historyPath, h, res, err); err != nil {
 		return err
 	}
+	defer res.Close()
 	return finishBacktest(e, h, schemes, res, backtestOutputs{history: *historyPath, payOut: *payOut, out: out, forecastersOut: *forecastersOut,
 		figPath: *figPath, figFormat: figFormat, force: *force, questions: questions, asJSON: *asJSON, chart: *chart, event: d1.Labels[0]})
 }
