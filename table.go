@@ -52,7 +52,7 @@ func (r *Rule) Table(ctx context.Context, menu MenuFunc) (*Table, error) {
 // the total) to progress when it is not nil. Without menu the budget's
 // menu file is read when it names one, else its step's grid is built;
 // the budget's clamp applies to a menu that has none of its own.
-func (r *Rule) TableWith(ctx context.Context, menu MenuFunc, progress func(done, total int)) (*Table, error) {
+func (r *Rule) TableWith(ctx context.Context, menu MenuFunc, progress func(done, total int64)) (*Table, error) {
 	if r.point != nil {
 		return r.pointTable(ctx)
 	}

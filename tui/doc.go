@@ -72,7 +72,7 @@
 // `testdata/histories/orchard-frost.csv`) and opens the backtest view, which replaces the
 // four panes until esc or the backtest key. `backtestCmd` opens the file and reads its header (a header
 // that does not fit, or a missing file, stays in the dialog with the reason), then fits the design
-// to its budget on its step menu with `contract/backtest/tablepay` — the fit `scorewright
+// to its budget on its step menu with `budget.TableTerms` and `backtest.TermsScheme` — the terms `scorewright
 // backtest` uses, shared — and streams the rows through `backtest.Run` with progress by bytes
 // read. The view shows the reliability picture for n = 2 (`tui/reliability`, bins of tenths,
 // `backtest.ReliabilityCurves`), count, total and mean pay, rank, and the decomposition per
@@ -90,8 +90,8 @@
 // (default one range, so CRRA's final wealth stays positive; steps of a tenth of the range; it
 // follows the budget until the user steps it) and the belief shown in detail (n = 2 the event
 // probability by 0.05; n > 2 the uniform belief and the curve's beliefs in turn). `riskCmd` fits
-// the design with `contract/risk/riskfit` — the fit, contract, default belief and curve beliefs
-// of `scorewright distort`, moved there from the command — then solves `Best` for the belief, the
+// the design with `budget.StepTerms` and `contract/risk` (`TermsContract`, `DefaultBelief`,
+// `CurveBeliefs`) — the fit, contract, default belief and curve beliefs of `scorewright distort` — then solves `Best` for the belief, the
 // menu pick (`BestOf` on the rounded table) and `Distortion` over the curve with progress. Runs
 // carry a run id; a changed input or an edit cancels the running one and its late answers are
 // dropped; the edit reruns after the debounce. n = 2 draws best report against belief beside the

@@ -71,7 +71,7 @@ func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress f
 	if line := found.GapLine(); line != "" && found.Audit.Gap.Max > 0 {
 		out.Notes = append(out.Notes, line)
 	}
-	if p := found.Point; p != nil && p.Gap != nil && p.Verdict == pointcheck.Improper && p.Gap.Max > 0 {
+	if p := found.Point; p != nil && p.Gap != nil && p.Verdict == verify.Improper && p.Gap.Max > 0 {
 		g := p.Gap
 		head := fmt.Sprintf("honesty gap %.4g at a report that cannot be told apart from the mean %.6g (no misreport named),", g.Max, g.Mean)
 		if x, m, ok := num.FormatApart([]float64{g.BestReport}, []float64{g.Mean}); ok {
@@ -85,7 +85,7 @@ func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress f
 
 // fromPoint is a verify/pointcheck report as the checks pane shows it.
 func fromPoint(rep *pointcheck.Report) *CheckReport {
-	out := &CheckReport{Verdict: rep.Verdict, Resolution: rep.Grid.Resolution, Points: int64(rep.Grid.Points), Tolerance: rep.Grid.Tolerance, Notes: rep.Notes}
+	out := &CheckReport{Verdict: string(rep.Verdict), Resolution: rep.Grid.Resolution, Points: int64(rep.Grid.Points), Tolerance: rep.Grid.Tolerance, Notes: rep.Notes}
 	for _, ck := range rep.Checks {
 		row := CheckRow{Name: ck.Name, Passed: ck.Passed, Worst: ck.Worst, Note: ck.What}
 		if ck.At != nil {
@@ -113,11 +113,7 @@ func fitTable(ctx context.Context, d *design.Design, progress func(done, total i
 	if err != nil {
 		return nil, nil, err
 	}
-	var report func(done, total int)
-	if progress != nil {
-		report = func(done, total int) { progress(int64(done), int64(total)) }
-	}
-	t, err := r.TableWith(ctx, nil, report)
+	t, err := r.TableWith(ctx, nil, progress)
 	var ue *budget.UnboundedError
 	switch {
 	case errors.Is(err, scorewright.ErrNoMenu):
