@@ -99,13 +99,19 @@
 // table of the distortion at each tenth of the way toward each outcome. Under both: the largest
 // distortion and where, the chosen belief's best report against the truthful one, expected pay,
 // and the lottery note (the lottery key of the export dialog). Payout and point designs are refused with
-// the reason; an unbounded rule asks for a report floor in the design file.
+// the reason; an unbounded rule asks for a report floor (the budget pane's R.floor).
 //
-// Budget pane fields: Floor, Cap, Mean, Step, Unit. Mean is a mean-pay budget (`Budget.MeanPay`:
-// the expected pay of a truthful forecaster at the reference belief, uniform unless the design
-// file names one; it replaces the cap, whose row then says it is not used): → from "none" starts at
-// three quarters of the way from floor to cap, ← below the floor or typing 0 clears it. Point
-// designs refuse it (their tables are fitted to a floor and a cap).
+// Budget pane fields (`tui/budget_fields.go`, one list): Floor, Cap, Mean, Ref. (the mean pay's
+// reference belief), Step, Menu (a CSV file of reports that replaces the step's grid), R.floor (the
+// report floor), Clamp, Unit, Rounding, Weights, Currency and Forecasts (the last two are terms of
+// the annex too). The pane shows a window of the fields around the selected one; ←/→ step a field
+// (a list, a mode cycle, ±1 or ±10), enter types a value, and a value that would make the design
+// invalid is refused with the design file's message. Mean is a mean-pay budget (`Budget.MeanPay`:
+// the expected pay of a truthful forecaster at the reference belief, uniform unless Ref. names one;
+// it replaces the cap, whose row then says it is not used): → from "none" starts at three quarters
+// of the way from floor to cap, ← below the floor or typing 0 clears it. Point designs refuse the
+// fields of rules over outcomes. Every edit cancels the running fit; the next one shows its
+// progress (the re-check's beliefs) in the pane.
 //
 // Layout: below 120×40 the design pane fills the left half, the picture sits top right over
 // whichever of checks and budget was focused last; from 120×40 all four panes show. Below 80×24

@@ -107,17 +107,22 @@ func fromVerify(r *verify.Report) *CheckReport {
 // fitTable fits a design to its budget on its menu and re-checks the
 // rounded table (scorewright.Rule.Table), in the workbench's words for
 // what is missing.
-func fitTable(ctx context.Context, d *design.Design) (*scorewright.Rule, *scorewright.Table, error) {
+func fitTable(ctx context.Context, d *design.Design, progress func(done, total int64)) (*scorewright.Rule, *scorewright.Table, error) {
 	r, err := scorewright.Open(d)
 	if err != nil {
 		return nil, nil, err
 	}
-	t, err := r.Table(ctx, nil)
+	t, err := r.TableWith(ctx, nil, progress)
+	var ue *budget.UnboundedError
 	switch {
 	case errors.Is(err, scorewright.ErrNoMenu):
-		return nil, nil, errors.New("set a report menu step (Step) to see the payment table")
+		return nil, nil, errors.New("set a report menu step (Step) or a menu file (Menu) to see the payment table")
 	case errors.Is(err, scorewright.ErrNoCap):
 		return nil, nil, errors.New("set a cap above the floor to see the payment table")
+	case errors.As(err, &ue) && ue.AtZero:
+		return nil, nil, fmt.Errorf("the rule's effort is %v at report %s when %q happens: it is unbounded where a report gives an outcome probability 0. "+
+			"Two ways out, in this pane: R.floor (e.g. 0.01: every report gives each outcome at least that) or Clamp (e.g. 0.01: reports are paid as if each probability were at least that; it bends honesty near the boundary and the re-check says by how much)",
+			ue.Effort, num.Format(ue.Report), ue.Label)
 	case err != nil:
 		return nil, nil, err
 	}
@@ -125,8 +130,8 @@ func fitTable(ctx context.Context, d *design.Design) (*scorewright.Rule, *scorew
 }
 
 // budgetFitter is the default Fitter.
-func budgetFitter(ctx context.Context, d *design.Design) (*TableView, error) {
-	r, t, err := fitTable(ctx, d)
+func budgetFitter(ctx context.Context, d *design.Design, progress func(done, total int64)) (*TableView, error) {
+	r, t, err := fitTable(ctx, d, progress)
 	if err != nil {
 		return nil, err
 	}
@@ -188,7 +193,7 @@ func (tableExporter) Formats(d *design.Design) []string { return annex.ExportFor
 
 func (te tableExporter) Export(ctx context.Context, d *design.Design, req ExportRequest) ([]string, error) {
 	date := time.Now().UTC().Format("2006-01-02")
-	r, t, err := fitTable(ctx, d)
+	r, t, err := fitTable(ctx, d, nil)
 	if err != nil {
 		return nil, err
 	}

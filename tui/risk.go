@@ -100,7 +100,7 @@ func riskRun(ctx context.Context, d *design.Design, in RiskInputs, progress func
 	var ue *budget.UnboundedError
 	switch {
 	case errors.As(err, &ue) && ue.AtZero:
-		return nil, fmt.Errorf("the rule's effort is %v at report %s when %q happens: it is unbounded where a report gives an outcome probability 0; give the design a report floor (report_floor in the design file, e.g. 0.01)", ue.Effort, num.Format(ue.Report), ue.Label)
+		return nil, fmt.Errorf("the rule's effort is %v at report %s when %q happens: it is unbounded where a report gives an outcome probability 0; give the design a report floor (R.floor in the budget pane, e.g. 0.01)", ue.Effort, num.Format(ue.Report), ue.Label)
 	case err != nil:
 		return nil, err
 	}

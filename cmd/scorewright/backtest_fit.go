@@ -19,7 +19,10 @@ import (
 func backtestTerms(fs *flag.FlagSet, menuFile string, clamp float64, r *bregman.Rule, d *design.Design) (*budget.Terms, error) {
 	stepSet := false
 	fs.Visit(func(f *flag.Flag) { stepSet = stepSet || f.Name == "step" })
-	if menuFile == "" && !stepSet && d.Budget.Step == 0 {
+	if clamp == 0 {
+		clamp = d.Budget.Clamp // the design's clamp, unless the flag gives one
+	}
+	if menuFile == "" && !stepSet && d.Budget.Step == 0 && d.Budget.Menu == "" {
 		t, err := budget.FormulaTerms(r, d.Budget, clamp)
 		if err != nil {
 			return nil, fitError(err)
@@ -30,7 +33,10 @@ func backtestTerms(fs *flag.FlagSet, menuFile string, clamp float64, r *bregman.
 	if err != nil {
 		return nil, err
 	}
-	t, err := budget.TableTerms(context.Background(), r, menu, d.Budget, menuFile == "")
+	// Forecasts are recorded at the report floor only on a menu built from
+	// the step, not on one read from a file (the flag's or the design's).
+	fromStep := menuFile == "" && (stepSet || d.Budget.Menu == "")
+	t, err := budget.TableTerms(context.Background(), r, menu, d.Budget, fromStep)
 	if err != nil {
 		return nil, fitError(err)
 	}
