@@ -271,8 +271,13 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 			m.checks.finished(inner.report, inner.err)
 		}
 		return m, nil
+	case fitProgressMsg:
+		if msg.gen == m.gen {
+			m.budget.progressed(msg.done, msg.total)
+		}
+		return m, nil
 	case fitMsg:
-		if msg.gen != m.gen {
+		if msg.gen != m.gen || errors.Is(msg.err, context.Canceled) {
 			return m, nil
 		}
 		m.fitGen = msg.gen
@@ -337,6 +342,7 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 func (m *Model) edited() tea.Cmd {
 	m.gen++
 	m.stopCheck()
+	m.stopFit()
 	m.checkRun++ // answers of the run for the old design are now stale
 	m.checks.edited()
 	m.budget.edited()

@@ -30,10 +30,10 @@ func (m *Model) layout() {
 	}
 	lw := m.width / 2
 	rw := m.width - lw
-	top := bh * 55 / 100
-	if m.focus == paneChecks || m.focus == paneBudget {
-		top = bh * 40 / 100 // the focused lower pane gets the room
-	}
+	// Half each, whichever pane has the focus: the picture keeps a
+	// readable height at 80×24, and the layout does not jump on tab (the
+	// lower panes scroll).
+	top := bh / 2
 	m.designPane.SetSize(lw, bh)
 	m.picture.SetSize(rw, top)
 	m.checks.SetSize(rw, bh-top)

@@ -527,7 +527,7 @@ func TestPointExport(t *testing.T) {
 	}
 	good := testModel(t, d, Settings{})
 	start(t, good, 120, 40)
-	if v := good.View(); !strings.Contains(v, "menu re-check passed, smallest margin") {
+	if v := good.View(); !strings.Contains(v, "menu re-check passed, margin") {
 		t.Fatalf("budget pane does not show the passed re-check:\n%s", v)
 	}
 }
@@ -702,7 +702,7 @@ func TestMeanPayBudget(t *testing.T) {
 	if r := row(); strings.Join(r, " ") != "(0, 1) 0.0 40.0" || !m.budget.table.Passed {
 		t.Fatalf("mean 30: first row %q, passed %v", r, m.budget.table.Passed)
 	}
-	if v := m.View(); !strings.Contains(v, "not used while a mean pay is set") {
+	if v := m.View(); !strings.Contains(v, "unused while a mean pay is set") {
 		t.Fatalf("the cap's note is missing:\n%s", v)
 	}
 	press(t, m, keyRight)
@@ -726,7 +726,7 @@ func TestMeanPayBudget(t *testing.T) {
 	start(t, pm, 120, 40)
 	pm.setFocus(paneBudget)
 	press(t, pm, keyDown, keyDown, keyRight)
-	if pm.Design().Budget.MeanPay != nil || !strings.Contains(pm.budget.note, "floor and a cap") {
+	if pm.Design().Budget.MeanPay != nil || !strings.Contains(pm.budget.note, "not for point-forecast tables") {
 		t.Fatalf("point design took a mean pay; note %q", pm.budget.note)
 	}
 }

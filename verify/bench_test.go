@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"scorewright/generator/bregman"
+	"scorewright/internal/pool"
 	"scorewright/internal/simplex"
 )
 
@@ -44,7 +45,7 @@ func BenchmarkStream(b *testing.B) {
 	for _, sz := range streamSizes {
 		g, m := benchMenu(b, sz.n, sz.k)
 		pairs := float64(g.Len()) * float64(g.Len())
-		pr := startProgress(nil, 0)
+		pr := pool.NewMeter(nil, 0)
 		for _, kind := range []string{"full", "pruned"} {
 			b.Run(fmt.Sprintf("n=%d/K=%d/%s", sz.n, sz.k, kind), func(b *testing.B) {
 				if kind == "full" && pairs > 1e10 {
