@@ -84,7 +84,7 @@
 // `BinaryBeliefs(step, floor)` and `DirectionBeliefs(n, steps)` (centre towards each vertex) make
 // the belief sets; `BestOf(q, menu)` is the menu item a forecaster held to the menu picks. The
 // command fits the budget with `budget.FitRule` on the `--step` menu; without `--step` there is
-// no menu and the exact formula pays (`riskfit` fits over the finest simplex grid of at most
+// no menu and the exact formula pays (`budget.StepTerms` fits over the finest simplex grid of at most
 // `budget.MaxMenu` reports, unrounded).
 //
 // **Lottery payments (`contract/lottery`, `table --lottery`).** `lottery.Convert(t, floor, cap)`

@@ -45,6 +45,14 @@ type MenuFunc func(n int) (*budget.Menu, error)
 // menu is always the budget's step in the units of the interval. A
 // payout under audit has no table (a *NeedsOutcomesError).
 func (r *Rule) Table(ctx context.Context, menu MenuFunc) (*Table, error) {
+	return r.TableWith(ctx, menu, nil)
+}
+
+// TableWith is Table reporting the re-check's progress (beliefs done of
+// the total) to progress when it is not nil. Without menu the budget's
+// menu file is read when it names one, else its step's grid is built;
+// the budget's clamp applies to a menu that has none of its own.
+func (r *Rule) TableWith(ctx context.Context, menu MenuFunc, progress func(done, total int64)) (*Table, error) {
 	if r.point != nil {
 		return r.pointTable(ctx)
 	}
@@ -59,6 +67,10 @@ func (r *Rule) Table(ctx context.Context, menu MenuFunc) (*Table, error) {
 		if m, err = menu(r.d.N()); err != nil {
 			return nil, err
 		}
+	case b.Menu != "":
+		if m, err = budget.FileMenu(b.Menu, r.d.N()); err != nil {
+			return nil, err
+		}
 	default:
 		if !(b.Step > 0) {
 			return nil, ErrNoMenu
@@ -67,11 +79,14 @@ func (r *Rule) Table(ctx context.Context, menu MenuFunc) (*Table, error) {
 			return nil, err
 		}
 	}
+	if m.Clamp == 0 {
+		m.Clamp = b.Clamp
+	}
 	fit, err := budget.FitRule(rule, m, b)
 	if err != nil {
 		return nil, err
 	}
-	rc, err := fit.Recheck(ctx, budget.RecheckSettings{})
+	rc, err := fit.Recheck(ctx, budget.RecheckSettings{Progress: progress})
 	if err != nil {
 		return nil, err
 	}

@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"scorewright/generator/bregman"
+	"scorewright/internal/pool"
 	"scorewright/internal/simplex"
 )
 
@@ -32,23 +33,53 @@ func benchMenu(b *testing.B, n, k int) (*simplex.Grid, *menu) {
 
 var benchSizes = []struct{ n, k int }{{3, 200}, {4, 40}}
 
-// BenchmarkStream is the full pair check: every grid belief against every
-// grid report, best and second best tracked, on all cores.
+// streamSizes adds the sizes of the performance targets to benchSizes.
+var streamSizes = append([]struct{ n, k int }{{2, 20000}, {3, 400}}, benchSizes...)
+
+// BenchmarkStream is the pair stream, best and second best tracked for
+// every grid belief, on all cores: "full" visits every pair, "pruned" is
+// what the checks run (identical results, TestPrunedStreamIsFullStream).
+// ns/pair is per pair of the full grid, G², for both, so the two compare
+// directly; visited is the share of pairs the pruned stream evaluated.
 func BenchmarkStream(b *testing.B) {
-	for _, sz := range benchSizes {
-		b.Run(fmt.Sprintf("n=%d/K=%d", sz.n, sz.k), func(b *testing.B) {
-			g, m := benchMenu(b, sz.n, sz.k)
-			pairs := float64(g.Len()) * float64(g.Len())
-			pr := startProgress(nil, 0)
-			b.ResetTimer()
-			for range b.N {
-				if _, err := stream(context.Background(), g, m, 0, pr); err != nil {
-					b.Fatal(err)
+	for _, sz := range streamSizes {
+		g, m := benchMenu(b, sz.n, sz.k)
+		pairs := float64(g.Len()) * float64(g.Len())
+		pr := pool.NewMeter(nil, 0)
+		for _, kind := range []string{"full", "pruned"} {
+			b.Run(fmt.Sprintf("n=%d/K=%d/%s", sz.n, sz.k, kind), func(b *testing.B) {
+				if kind == "full" && pairs > 1e10 {
+					b.Skip("full stream too long for a benchmark")
 				}
-			}
-			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/pairs, "ns/pair")
-		})
+				run := stream
+				if kind == "full" {
+					run = streamFull
+				}
+				b.ResetTimer()
+				for range b.N {
+					if _, err := run(context.Background(), g, m, 0, pr); err != nil {
+						b.Fatal(err)
+					}
+				}
+				b.StopTimer()
+				b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/pairs, "ns/pair")
+				if kind == "pruned" {
+					b.ReportMetric(visitedShare(g, m), "visited")
+				}
+			})
+		}
 	}
+}
+
+// visitedShare is the share of the G² pairs the pruned stream evaluates.
+func visitedShare(g *simplex.Grid, m *menu) float64 {
+	t := newReportTree(g, m)
+	var v float64
+	for i := 0; i < g.Len(); i++ {
+		_, c := t.walk(g.Point(i), m.infinite && g.Boundary[i])
+		v += float64(c)
+	}
+	return v / float64(g.Len()) / float64(g.Len())
 }
 
 // fusedLoop is the plain reference: the same multiply-adds and a running

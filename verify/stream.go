@@ -3,11 +3,8 @@ package verify
 import (
 	"context"
 	"math"
-	"runtime"
-	"sync"
-	"sync/atomic"
-	"time"
 
+	"scorewright/internal/pool"
 	"scorewright/internal/simplex"
 )
 
@@ -112,111 +109,44 @@ type best struct {
 	arg, arg2 int32
 }
 
-// progress counts work done across the phases of a long call and reports
-// it from one goroutine, so the caller's callback is never called
-// concurrently.
-type progress struct {
-	done  atomic.Int64
-	total int64
-	fn    func(done, total int64)
-	stop  chan struct{}
-	wg    sync.WaitGroup
-}
-
-func startProgress(fn func(done, total int64), total int64) *progress {
-	p := &progress{total: total, fn: fn, stop: make(chan struct{})}
-	if fn == nil {
-		return p
-	}
-	p.wg.Add(1)
-	go func() {
-		defer p.wg.Done()
-		t := time.NewTicker(100 * time.Millisecond)
-		defer t.Stop()
-		for {
-			select {
-			case <-p.stop:
-				return
-			case <-t.C:
-				p.fn(min(p.done.Load(), p.total), p.total)
-			}
-		}
-	}()
-	return p
-}
-
-func (p *progress) add(n int64) { p.done.Add(n) }
-
-// finish stops the reporter; a call that completed reports done = total.
-func (p *progress) finish(completed bool) {
-	close(p.stop)
-	p.wg.Wait()
-	if p.fn != nil && completed {
-		p.fn(p.total, p.total)
-	}
-}
-
-func workers(w int) int {
-	if w <= 0 {
-		w = runtime.GOMAXPROCS(0)
-	}
-	return w
-}
-
-// parallel runs body(i) for i in [0, count) on w goroutines, handing out
-// indices in chunks, and stops early (returning ctx.Err()) when ctx is
-// cancelled. It is the one place the checks fan out over cores.
-func parallel(ctx context.Context, w, count, chunk int, body func(worker, lo, hi int)) error {
-	w = workers(w)
-	if chunk < 1 {
-		chunk = 1
-	}
-	var next atomic.Int64
-	var wg sync.WaitGroup
-	done := ctx.Done()
-	var stopped atomic.Bool
-	for id := 0; id < w; id++ {
-		wg.Add(1)
-		go func(id int) {
-			defer wg.Done()
-			for {
-				select {
-				case <-done:
-					stopped.Store(true)
-					return
-				default:
-				}
-				lo := int(next.Add(int64(chunk))) - chunk
-				if lo >= count {
-					return
-				}
-				body(id, lo, min(lo+chunk, count))
-			}
-		}(id)
-	}
-	wg.Wait()
-	if stopped.Load() || ctx.Err() != nil {
-		return ctx.Err()
-	}
-	return nil
-}
-
 // stream finds, for every belief of g, the best and second-best report of
-// the menu by expected effort: G² pairs, each a handful of multiply-adds
-// on the precomputed rows. Beliefs are handed out one row at a time, so
-// cancellation is seen after at most G pairs.
-func stream(ctx context.Context, g *simplex.Grid, m *menu, w int, pr *progress) ([]best, error) {
+// the menu by expected effort. It walks the report tree (prune.go), which
+// skips boxes of reports that cannot enter the best two, and returns
+// exactly what streamFull returns. Beliefs are handed out one at a time,
+// so cancellation is seen after at most G pairs; progress counts the G
+// pairs each belief settles, visited or pruned.
+func stream(ctx context.Context, g *simplex.Grid, m *menu, w int, pr *pool.Meter) ([]best, error) {
+	t := newReportTree(g, m)
+	return streamWith(ctx, g, m, w, pr, func(q []float64, safe bool) best { return t.scan(q, safe) })
+}
+
+// streamFull is the full pair stream: every grid belief against every grid
+// report, G² pairs. It is the reference the pruned stream is tested and
+// measured against.
+func streamFull(ctx context.Context, g *simplex.Grid, m *menu, w int, pr *pool.Meter) ([]best, error) {
+	return streamWith(ctx, g, m, w, pr, func(q []float64, safe bool) best {
+		if safe {
+			return scan(q, m.safe, m.n)
+		}
+		return scan(q, m.rows, m.n)
+	})
+}
+
+// streamWith runs find (the best two over the menu's rows, or over its
+// substituted rows when safe) for every belief, choosing the rows by the
+// belief's support: see menu.safe.
+func streamWith(ctx context.Context, g *simplex.Grid, m *menu, w int, pr *pool.Meter, find func(q []float64, safe bool) best) ([]best, error) {
 	G := g.Len()
 	out := make([]best, G)
-	err := parallel(ctx, w, G, 1, func(_, lo, hi int) {
+	err := pool.Run(ctx, w, G, 1, func(_, lo, hi int) {
 		for i := lo; i < hi; i++ {
 			q := g.Point(i)
 			var b best
 			switch {
 			case !m.infinite || !g.Boundary[i]:
-				b = scan(q, m.rows, m.n)
+				b = find(q, false)
 			case m.safe != nil:
-				b = scan(q, m.safe, m.n)
+				b = find(q, true)
 				if b.arg >= 0 {
 					b.m1 = m.phi(q, int(b.arg))
 				}
@@ -227,7 +157,7 @@ func stream(ctx context.Context, g *simplex.Grid, m *menu, w int, pr *progress) 
 				b = scanSupport(q, m.rows, m.n)
 			}
 			out[i] = b
-			pr.add(int64(G))
+			pr.Add(int64(G))
 		}
 	})
 	return out, err
@@ -246,11 +176,7 @@ func scan(q, rows []float64, n int) best {
 	}
 	m1, m2, arg, arg2 := math.Inf(1), math.Inf(1), -1, -1
 	for j, off := 0, 0; off+n <= len(rows); j, off = j+1, off+n {
-		r := rows[off : off+n : off+n]
-		var phi float64
-		for k, x := range q {
-			phi += x * r[k]
-		}
+		phi := dotN(q, rows[off:off+n:off+n])
 		m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j)
 	}
 	return best{m1, m2, int32(arg), int32(arg2)}
@@ -261,10 +187,10 @@ func scan2(q0, q1 float64, rows []float64) best {
 	j, rest := 0, rows
 	for ; len(rest) >= 8; j, rest = j+4, rest[8:] {
 		r := rest[:8:8]
-		pa := q0*r[0] + q1*r[1]
-		pb := q0*r[2] + q1*r[3]
-		pc := q0*r[4] + q1*r[5]
-		pd := q0*r[6] + q1*r[7]
+		pa := dot2(q0, q1, r[0:2])
+		pb := dot2(q0, q1, r[2:4])
+		pc := dot2(q0, q1, r[4:6])
+		pd := dot2(q0, q1, r[6:8])
 		if pa < m2 || pb < m2 || pc < m2 || pd < m2 {
 			for t, phi := range [4]float64{pa, pb, pc, pd} {
 				m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j+t)
@@ -273,7 +199,7 @@ func scan2(q0, q1 float64, rows []float64) best {
 	}
 	for ; len(rest) >= 2; j, rest = j+1, rest[2:] {
 		r := rest[:2:2]
-		phi := q0*r[0] + q1*r[1]
+		phi := dot2(q0, q1, r)
 		m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j)
 	}
 	return best{m1, m2, int32(arg), int32(arg2)}
@@ -286,10 +212,10 @@ func scan3(q0, q1, q2 float64, rows []float64) best {
 	j, rest := 0, rows
 	for ; len(rest) >= 12; j, rest = j+4, rest[12:] {
 		r := rest[:12:12]
-		pa := q0*r[0] + q1*r[1] + q2*r[2]
-		pb := q0*r[3] + q1*r[4] + q2*r[5]
-		pc := q0*r[6] + q1*r[7] + q2*r[8]
-		pd := q0*r[9] + q1*r[10] + q2*r[11]
+		pa := dot3(q0, q1, q2, r[0:3])
+		pb := dot3(q0, q1, q2, r[3:6])
+		pc := dot3(q0, q1, q2, r[6:9])
+		pd := dot3(q0, q1, q2, r[9:12])
 		if pa < m2 || pb < m2 || pc < m2 || pd < m2 {
 			for t, phi := range [4]float64{pa, pb, pc, pd} {
 				m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j+t)
@@ -298,7 +224,7 @@ func scan3(q0, q1, q2 float64, rows []float64) best {
 	}
 	for ; len(rest) >= 3; j, rest = j+1, rest[3:] {
 		r := rest[:3:3]
-		phi := q0*r[0] + q1*r[1] + q2*r[2]
+		phi := dot3(q0, q1, q2, r)
 		m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j)
 	}
 	return best{m1, m2, int32(arg), int32(arg2)}
@@ -309,10 +235,10 @@ func scan4(q0, q1, q2, q3 float64, rows []float64) best {
 	j, rest := 0, rows
 	for ; len(rest) >= 16; j, rest = j+4, rest[16:] {
 		r := rest[:16:16]
-		pa := q0*r[0] + q1*r[1] + q2*r[2] + q3*r[3]
-		pb := q0*r[4] + q1*r[5] + q2*r[6] + q3*r[7]
-		pc := q0*r[8] + q1*r[9] + q2*r[10] + q3*r[11]
-		pd := q0*r[12] + q1*r[13] + q2*r[14] + q3*r[15]
+		pa := dot4(q0, q1, q2, q3, r[0:4])
+		pb := dot4(q0, q1, q2, q3, r[4:8])
+		pc := dot4(q0, q1, q2, q3, r[8:12])
+		pd := dot4(q0, q1, q2, q3, r[12:16])
 		if pa < m2 || pb < m2 || pc < m2 || pd < m2 {
 			for t, phi := range [4]float64{pa, pb, pc, pd} {
 				m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j+t)
@@ -321,7 +247,7 @@ func scan4(q0, q1, q2, q3 float64, rows []float64) best {
 	}
 	for ; len(rest) >= 4; j, rest = j+1, rest[4:] {
 		r := rest[:4:4]
-		phi := q0*r[0] + q1*r[1] + q2*r[2] + q3*r[3]
+		phi := dot4(q0, q1, q2, q3, r)
 		m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j)
 	}
 	return best{m1, m2, int32(arg), int32(arg2)}
@@ -361,4 +287,30 @@ func scanSupport(q, rows []float64, n int) best {
 		m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j)
 	}
 	return best{m1, m2, int32(arg), int32(arg2)}
+}
+
+// dot2, dot3, dot4 and dotN are phi(q, report) = sum_k q_k r_k, summed from
+// k = 0 up with every product and sum rounded once: the explicit float64
+// conversions forbid fused multiply-adds, so the full stream, the pruned
+// one and the bounds of prune.go compute the same values on every
+// platform (see prune.go for why that makes the pruning exact).
+func dot2(q0, q1 float64, r []float64) float64 {
+	return float64(float64(q0*r[0]) + float64(q1*r[1]))
+}
+
+func dot3(q0, q1, q2 float64, r []float64) float64 {
+	return float64(float64(float64(q0*r[0])+float64(q1*r[1])) + float64(q2*r[2]))
+}
+
+func dot4(q0, q1, q2, q3 float64, r []float64) float64 {
+	return float64(float64(float64(float64(q0*r[0])+float64(q1*r[1]))+float64(q2*r[2])) + float64(q3*r[3]))
+}
+
+func dotN(q, r []float64) float64 {
+	r = r[:len(q)]
+	s := float64(q[0] * r[0])
+	for k := 1; k < len(q); k++ {
+		s = float64(s + float64(q[k]*r[k]))
+	}
+	return s
 }

@@ -19,6 +19,7 @@ import (
 	"scorewright/generator/point"
 	"scorewright/internal/num"
 	"scorewright/presets"
+	"scorewright/verify"
 	"scorewright/verify/pointcheck"
 )
 
@@ -175,7 +176,7 @@ func pointPayoutDesign(payout, interval string, params map[string]float64) (*des
 }
 
 type pointCheckJSON struct {
-	Verdict    string                 `json:"verdict"`
+	Verdict    verify.Verdict         `json:"verdict"`
 	Grid       pointcheck.Grid        `json:"grid"`
 	Checks     []pointCheckOut        `json:"checks"`
 	Gap        *pointGapOut           `json:"gap,omitempty"`

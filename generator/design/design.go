@@ -67,6 +67,15 @@ type Budget struct {
 	// ReportFloor is the smallest probability the menu allows (e.g. 0.01),
 	// the way out for rules that are infinite at p_k = 0.
 	ReportFloor float64 `toml:"report_floor,omitempty"`
+	// Clamp, when positive, pays every report as if it gave each outcome
+	// at least Clamp (rescaled to sum to 1): the other way out for rules
+	// that are infinite at p_k = 0. It bends honesty near the boundary,
+	// and the menu re-check says by how much.
+	Clamp float64 `toml:"clamp,omitempty"`
+	// Menu, when set, is a CSV file of the reports the contract allows,
+	// one per line, instead of Step's grid (the two are not set
+	// together). A relative path is read from the working directory.
+	Menu string `toml:"menu,omitempty"`
 }
 
 // Design is everything that defines a scoring rule and its contract.

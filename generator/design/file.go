@@ -10,6 +10,7 @@ import (
 	"slices"
 	"strconv"
 	"strings"
+	"unicode/utf8"
 
 	"github.com/BurntSushi/toml"
 
@@ -172,7 +173,16 @@ func (d *Design) upgrade() {
 // its width), in every other mode a probability step.
 func (d *Design) ValidateBudget() error {
 	if !d.Mode.OnInterval() {
-		return d.Budget.Validate()
+		if err := d.Budget.Validate(); err != nil {
+			return err
+		}
+		if n := d.N(); n >= 2 && d.Budget.Clamp*float64(n) >= 1 {
+			return fmt.Errorf("budget.clamp: %g; with %d outcomes it must be below 1/%d", d.Budget.Clamp, n, n)
+		}
+		return nil
+	}
+	if d.Budget.Clamp != 0 || d.Budget.Menu != "" {
+		return errors.New("budget.clamp and budget.menu are for rules over outcomes; a point-forecast menu is budget.step in the units of the interval")
 	}
 	b := d.Budget
 	step := b.Step
@@ -197,7 +207,7 @@ func (b *Budget) Validate() error {
 	for _, f := range []struct {
 		n string
 		v float64
-	}{{"floor", b.Floor}, {"cap", b.Cap}, {"step", b.Step}, {"unit", b.Unit}, {"report_floor", b.ReportFloor}} {
+	}{{"floor", b.Floor}, {"cap", b.Cap}, {"step", b.Step}, {"unit", b.Unit}, {"report_floor", b.ReportFloor}, {"clamp", b.Clamp}} {
 		if err := fin(f.n, f.v); err != nil {
 			return err
 		}
@@ -211,6 +221,15 @@ func (b *Budget) Validate() error {
 	if b.ReportFloor < 0 || b.ReportFloor >= 0.5 {
 		return fmt.Errorf("budget.report_floor: %g; must be in [0, 0.5)", b.ReportFloor)
 	}
+	if b.Clamp < 0 || b.Clamp >= 0.5 {
+		return fmt.Errorf("budget.clamp: %g; must be in [0, 0.5) (0: none)", b.Clamp)
+	}
+	if err := checkMenuPath(b.Menu); err != nil {
+		return err
+	}
+	if b.Menu != "" && b.Step != 0 {
+		return fmt.Errorf("budget: menu %q and step %g are both set; the menu file replaces the step's grid, so give one", b.Menu, b.Step)
+	}
 	switch b.Rounding {
 	case "", "nearest", "down", "up":
 	default:
@@ -223,6 +242,20 @@ func (b *Budget) Validate() error {
 	}
 	if b.MeanPay == nil && b.Cap != 0 && !(b.Cap > b.Floor) {
 		return fmt.Errorf("budget: cap %g must be above floor %g", b.Cap, b.Floor)
+	}
+	return nil
+}
+
+// MaxMenuPath bounds the menu file's name.
+const MaxMenuPath = 4096
+
+// checkMenuPath says what is wrong with a menu file name, or returns nil.
+func checkMenuPath(p string) error {
+	switch {
+	case len(p) > MaxMenuPath:
+		return fmt.Errorf("budget.menu: a path of %d bytes; at most %d", len(p), MaxMenuPath)
+	case !utf8.ValidString(p) || strings.ContainsAny(p, "\n\r\x00"):
+		return errors.New("budget.menu: the path must be one line of text")
 	}
 	return nil
 }

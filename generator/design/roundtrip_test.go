@@ -50,6 +50,12 @@ func randomDesign(rng *rand.Rand, m Mode) *Design {
 		}
 		d.Budget.ReportFloor = 0.01
 	}
+	if !m.OnInterval() && !m.Payout() && rng.IntN(3) == 0 {
+		d.Budget.Clamp = 0.01
+		if rng.IntN(2) == 0 {
+			d.Budget.Menu, d.Budget.Step = "menus/frost menu.csv", 0
+		}
+	}
 	if rng.IntN(2) == 0 {
 		d.Contract = Contract{Buyer: "A water works", Forecaster: "A forecasting bureau", Currency: "EUR",
 			Start: "2031-04-01", End: "2031-09-30", Forecasts: rng.IntN(400)}

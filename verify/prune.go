@@ -1,0 +1,302 @@
+package verify
+
+import (
+	"math"
+
+	"scorewright/internal/simplex"
+)
+
+// Pruning the pair stream.
+//
+// For a belief q the stream wants the two reports j with the smallest
+// expected effort phi(q, j) = sum_k q_k r_jk. The reports are put in a
+// binary tree of boxes (split at the median of the widest coordinate), and
+// every node keeps lo_k, the smallest r_jk over its reports. For q >= 0,
+//
+//	bound(node) = sum_k q_k lo_k  <=  phi(q, j)  for every report j in it,
+//
+// and this holds for the computed values too, not only the exact ones: the
+// bound is evaluated in the same order as phi, every product and sum
+// rounded once (the explicit float64 conversions forbid fused
+// multiply-adds), and rounding to nearest is monotone, so q_k lo_k <= q_k
+// r_jk and each partial sum stays below the other after rounding. A node
+// whose bound is above the second best found so far (strictly) holds no
+// report that could enter the best two, and is skipped whole.
+//
+// The reports are visited in the order of the tree, not of the grid, so
+// the best two are kept by (value, grid index) — the smaller index wins a
+// tie — which is exactly what the full stream's fold keeps when it meets
+// the reports in grid order: the result (best, second best, both values,
+// both reports) is identical, ties included. A NaN value never enters
+// either, as in the full stream; a NaN bound never prunes.
+//
+// For a strictly proper rule phi(q, p) - phi(q, q) grows like |p - q|²
+// while a box's bound falls short of its best report by about its size, so
+// only boxes near the honest report (and small ones) are opened: the work
+// per belief grows like the square root of the grid, not like the grid.
+
+// leafSize is the most reports a leaf of the tree holds: small enough for
+// tight boxes, large enough that the leaf loop, not the walk, dominates.
+const leafSize = 16
+
+// reportTree is the box hierarchy over a menu's reports.
+type reportTree struct {
+	n int
+	// idx is the grid index of each report in tree order; rows and safe
+	// are the menu's rows (and substituted rows) in that order.
+	idx        []int32
+	rows, safe []float64
+	// node i covers tree positions [start[i], end[i]); its children are
+	// 2i+1 and 2i+2, and it is a leaf when 2i+1 >= len(start).
+	start, end []int32
+	// lo and loSafe hold n per node: the smallest row entry per outcome.
+	lo, loSafe []float64
+}
+
+// newReportTree builds the tree for the menu m over the grid g.
+func newReportTree(g *simplex.Grid, m *menu) *reportTree {
+	n, G := m.n, len(m.bad)
+	leaves := 1
+	for leaves*leafSize < G {
+		leaves *= 2
+	}
+	nodes := 2*leaves - 1
+	t := &reportTree{n: n, idx: make([]int32, G), start: make([]int32, nodes), end: make([]int32, nodes)}
+	for i := range t.idx {
+		t.idx[i] = int32(i)
+	}
+	t.split(g, 0, 0, G)
+	t.rows = permute(m.rows, t.idx, n)
+	t.lo = t.bounds(t.rows)
+	if m.safe != nil {
+		t.safe = permute(m.safe, t.idx, n)
+		t.loSafe = t.bounds(t.safe)
+	}
+	return t
+}
+
+// split orders tree positions [lo, hi) for node i: the median of the
+// coordinate with the widest spread divides them between the children.
+func (t *reportTree) split(g *simplex.Grid, i, lo, hi int) {
+	t.start[i], t.end[i] = int32(lo), int32(hi)
+	c := 2*i + 1
+	if c >= len(t.start) {
+		return
+	}
+	ids := t.idx[lo:hi]
+	axis, wide := 0, -1.0
+	for k := 0; k < g.N; k++ {
+		a, b := math.Inf(1), math.Inf(-1)
+		for _, j := range ids {
+			v := g.Coords[int(j)*g.N+k]
+			a, b = math.Min(a, v), math.Max(b, v)
+		}
+		if b-a > wide {
+			axis, wide = k, b-a
+		}
+	}
+	mid := (hi - lo) / 2
+	selectNth(ids, mid, func(j int32) float64 { return g.Coords[int(j)*g.N+axis] })
+	t.split(g, c, lo, lo+mid)
+	t.split(g, c+1, lo+mid, hi)
+}
+
+// selectNth reorders ids so that ids[k] has rank k by key, smaller keys
+// before it and larger after (quickselect, middle pivot; the lattice's
+// many equal keys are split evenly by the three-way partition).
+func selectNth(ids []int32, k int, key func(int32) float64) {
+	lo, hi := 0, len(ids)
+	for hi-lo > 1 {
+		p := key(ids[lo+(hi-lo)/2])
+		// Three-way partition of [lo, hi) around p.
+		lt, i, gt := lo, lo, hi
+		for i < gt {
+			v := key(ids[i])
+			switch {
+			case v < p:
+				ids[lt], ids[i] = ids[i], ids[lt]
+				lt++
+				i++
+			case v > p:
+				gt--
+				ids[gt], ids[i] = ids[i], ids[gt]
+			default:
+				i++
+			}
+		}
+		switch {
+		case k < lt:
+			hi = lt
+		case k >= gt:
+			lo = gt
+		default:
+			return
+		}
+	}
+}
+
+func permute(rows []float64, idx []int32, n int) []float64 {
+	out := make([]float64, len(rows))
+	for t, j := range idx {
+		copy(out[t*n:(t+1)*n], rows[int(j)*n:(int(j)+1)*n])
+	}
+	return out
+}
+
+// bounds computes every node's per-outcome minimum, leaves from their
+// rows, inner nodes from their children.
+func (t *reportTree) bounds(rows []float64) []float64 {
+	n, nodes := t.n, len(t.start)
+	lo := make([]float64, nodes*n)
+	for i := nodes - 1; i >= 0; i-- {
+		b := lo[i*n : (i+1)*n]
+		if c := 2*i + 1; c < nodes {
+			l, r := lo[c*n:(c+1)*n], lo[(c+1)*n:(c+2)*n]
+			for k := range b {
+				b[k] = min(l[k], r[k]) // min keeps a NaN, which then never prunes
+			}
+			continue
+		}
+		for k := range b {
+			b[k] = math.Inf(1)
+		}
+		for p := int(t.start[i]); p < int(t.end[i]); p++ {
+			for k, v := range rows[p*n : (p+1)*n] {
+				b[k] = min(b[k], v)
+			}
+		}
+	}
+	return lo
+}
+
+// scan is the pruned counterpart of the full stream's scan over rows (the
+// tree's rows, or its substituted rows when safe): the same best two.
+func (t *reportTree) scan(q []float64, safe bool) best {
+	b, _ := t.walk(q, safe)
+	return b
+}
+
+// walk is scan, also counting the reports it evaluated (for benchmarks).
+func (t *reportTree) walk(q []float64, safe bool) (best, int) {
+	rows, lo := t.rows, t.lo
+	if safe {
+		rows, lo = t.safe, t.loSafe
+	}
+	n := t.n
+	st := pruneState{m1: math.Inf(1), m2: math.Inf(1), a1: -1, a2: -1}
+	// Depth-first, the child with the lower bound first: it holds the
+	// honest report's neighbourhood, which sets a tight second best early.
+	var stack [64]struct {
+		node  int32
+		bound float64
+	}
+	stack[0].node, stack[0].bound = 0, bound(q, lo[:n])
+	visited := 0
+	for sp := 1; sp > 0; {
+		sp--
+		e := stack[sp]
+		if e.bound > st.m2 {
+			continue
+		}
+		i := int(e.node)
+		c := 2*i + 1
+		if c >= len(t.start) {
+			st.leaf(q, rows, t.idx, int(t.start[i]), int(t.end[i]), n)
+			visited += int(t.end[i] - t.start[i])
+			continue
+		}
+		bl, br := bound(q, lo[c*n:(c+1)*n]), bound(q, lo[(c+1)*n:(c+2)*n])
+		near, far := int32(c), int32(c+1)
+		if br < bl {
+			near, far, bl, br = far, near, br, bl
+		}
+		if !(br > st.m2) {
+			stack[sp].node, stack[sp].bound = far, br
+			sp++
+		}
+		if !(bl > st.m2) {
+			stack[sp].node, stack[sp].bound = near, bl
+			sp++
+		}
+	}
+	return best{st.m1, st.m2, st.a1, st.a2}, visited
+}
+
+// bound is sum_k q_k lo_k, rounded exactly as the kernels round phi.
+func bound(q, lo []float64) float64 {
+	s := float64(q[0] * lo[0])
+	for k := 1; k < len(q); k++ {
+		s = float64(s + float64(q[k]*lo[k]))
+	}
+	return s
+}
+
+// pruneState is the best two so far, by (value, grid index).
+type pruneState struct {
+	m1, m2 float64
+	a1, a2 int32
+}
+
+// offer folds phi at grid report j in by (value, index): the order the
+// full stream's fold keeps when it meets reports in grid order.
+func (s *pruneState) offer(phi float64, j int32) {
+	if phi < s.m2 || phi == s.m2 && j < s.a2 {
+		if phi < s.m1 || phi == s.m1 && j < s.a1 {
+			s.m1, s.m2, s.a1, s.a2 = phi, s.m1, j, s.a1
+			return
+		}
+		s.m2, s.a2 = phi, j
+	}
+}
+
+// leaf evaluates tree positions [lo, hi): the same arithmetic as the full
+// stream's kernels (dot), so the values agree bit for bit.
+func (s *pruneState) leaf(q, rows []float64, idx []int32, lo, hi, n int) {
+	switch n {
+	case 2:
+		q0, q1 := q[0], q[1]
+		for p := lo; p < hi; p++ {
+			r := rows[p*2 : p*2+2 : p*2+2]
+			if phi := dot2(q0, q1, r); phi <= s.m2 {
+				s.offer(phi, idx[p])
+			}
+		}
+	case 3:
+		q0, q1, q2 := q[0], q[1], q[2]
+		p := lo
+		// Four reports per step, one test in the common case that none of
+		// them reaches the second best.
+		for ; p+4 <= hi; p += 4 {
+			r := rows[p*3 : p*3+12 : p*3+12]
+			pa, pb := dot3(q0, q1, q2, r[0:3]), dot3(q0, q1, q2, r[3:6])
+			pc, pd := dot3(q0, q1, q2, r[6:9]), dot3(q0, q1, q2, r[9:12])
+			if pa <= s.m2 || pb <= s.m2 || pc <= s.m2 || pd <= s.m2 {
+				for u, phi := range [4]float64{pa, pb, pc, pd} {
+					if phi <= s.m2 {
+						s.offer(phi, idx[p+u])
+					}
+				}
+			}
+		}
+		for ; p < hi; p++ {
+			r := rows[p*3 : p*3+3 : p*3+3]
+			if phi := dot3(q0, q1, q2, r); phi <= s.m2 {
+				s.offer(phi, idx[p])
+			}
+		}
+	case 4:
+		q0, q1, q2, q3 := q[0], q[1], q[2], q[3]
+		for p := lo; p < hi; p++ {
+			r := rows[p*4 : p*4+4 : p*4+4]
+			if phi := dot4(q0, q1, q2, q3, r); phi <= s.m2 {
+				s.offer(phi, idx[p])
+			}
+		}
+	default:
+		for p := lo; p < hi; p++ {
+			if phi := dotN(q, rows[p*n:(p+1)*n]); phi <= s.m2 {
+				s.offer(phi, idx[p])
+			}
+		}
+	}
+}
