@@ -39,7 +39,9 @@ key() { t send-keys -t "$session" "$@"; sleep 0.2; }
 
 repo=$(pwd)
 cd "$work"
-t new-session -d -s "$session" -x 120 -y 40 "TERM=xterm-256color ./scorewright; echo EXITED-\$?; sleep 30"
+# Recovery files go to a state directory of the run's own.
+export XDG_STATE_HOME="$work/state"
+t new-session -d -s "$session" -x 120 -y 40 "TERM=xterm-256color XDG_STATE_HOME=$work/state ./scorewright; echo EXITED-\$?; sleep 30"
 wait_for "Orchard co-operative"
 wait_for "Verdict strictly-proper"
 wait_for "menu re-check passed"
@@ -85,10 +87,10 @@ key Escape
 wait_for "Picture"
 
 # The harvest demo draws a ternary picture; the edits above are unsaved,
-# so the first ctrl+n asks and the second switches.
+# so ctrl+n asks first and d switches without saving.
 key C-n
-wait_for "ctrl+n again discards them"
-key C-n
+wait_for "would drop unsaved changes"
+key d
 wait_for "harvest outlook"
 wait_for "gap by belief"
 
@@ -115,11 +117,32 @@ else
   echo "e2e-tui: WARNING: this tmux cannot resize a window (needs tmux >= 2.9); resize checks skipped"
 fi
 
-# Unsaved changes (one more outcome): the first q asks, the second quits.
+# Unsaved changes (one more outcome) are kept in a recovery file; q asks.
 key +
 wait_for "4 outcomes"
+for _ in $(seq 1 50); do
+  ls "$work"/state/scorewright/recovery/*.recover.toml >/dev/null 2>&1 && break
+  sleep 0.1
+done
+ls "$work"/state/scorewright/recovery/*.recover.toml >/dev/null
 key q
-wait_for "unsaved changes"
-key q
+wait_for "would drop unsaved changes"
+
+# ctrl+c twice leaves at once; the next start offers the edits and r
+# restores them.
+key C-c
 wait_for "EXITED-0"
+t kill-session -t "$session"
+t new-session -d -s "$session" -x 100 -y 30 "TERM=xterm-256color XDG_STATE_HOME=$work/state ./scorewright; echo EXITED-\$?; sleep 30"
+wait_for "Unsaved edits were kept"
+key r
+wait_for "4 outcomes"
+wait_for "restored the unsaved edits"
+key q
+wait_for "would drop unsaved changes"
+key d
+wait_for "EXITED-0"
+if ls "$work"/state/scorewright/recovery/*.recover.toml >/dev/null 2>&1; then
+  echo "e2e-tui: the dropped edits' recovery file stayed"; exit 1
+fi
 echo "e2e-tui: passed"

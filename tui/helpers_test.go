@@ -34,6 +34,9 @@ func testModel(t testing.TB, d *design.Design, set Settings) *Model {
 	if set.Dir == "" {
 		set.Dir = t.TempDir()
 	}
+	if set.RecoveryDir == "" {
+		set.RecoveryDir = t.TempDir()
+	}
 	m := New(d, "", set, testStyles(t))
 	t.Cleanup(m.Close)
 	return m
@@ -102,6 +105,7 @@ var (
 	keyEnd   = tea.KeyMsg{Type: tea.KeyEnd}
 	keyCtrlS = tea.KeyMsg{Type: tea.KeyCtrlS}
 	keyCtrlN = tea.KeyMsg{Type: tea.KeyCtrlN}
+	keyCtrlC = tea.KeyMsg{Type: tea.KeyCtrlC}
 )
 
 // fakeChecker stands in for the checks package in tests of the

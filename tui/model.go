@@ -10,6 +10,7 @@ import (
 
 	"scorewright/contract/risk"
 	"scorewright/generator/design"
+	"scorewright/tui/recovery"
 )
 
 // MinWidth and MinHeight are the smallest terminal the workbench draws in.
@@ -96,8 +97,14 @@ type Model struct {
 	research   *ResearchRoom // the research view (tui/research.go) replaces the panes when shown
 	terms      *TermsRoom    // the annex's terms (tui/terms.go) replace the panes when shown
 	demoIndex  int
-	savedGen   uint64 // generation last opened or saved
-	armed      string // a key pressed once that needs a second press
+	savedGen   uint64       // generation last opened or saved
+	leaving    *leavePrompt // the unsaved-changes prompt, when open
+	afterSave  *leavePrompt // an action waiting for the save dialog to succeed
+	rec        *recovery.Store
+	recReady   bool           // the look for a previous run's edits has answered
+	recOffer   *recoveryOffer // edits a previous run left, offered at start
+	recKey     string         // the design path the last recovery write was for
+	recWrote   bool           // a recovery file of this run may exist
 	focus      pane
 	lower      pane // which of checks/budget the small layout shows
 	designPane DesignPane
@@ -105,10 +112,14 @@ type Model struct {
 	checks     ChecksPane
 	budget     BudgetPane
 	dialog     *fileDialog
-	help       bool
-	helpView   viewport.Model
-	status     string
-	quitting   bool
+	// exportFormat and exportLottery are what the last export asked for,
+	// so the next export dialog starts there.
+	exportFormat  string
+	exportLottery bool
+	help          bool
+	helpView      viewport.Model
+	status        string
+	quitting      bool
 
 	// updates counts Update calls, for tests that watch responsiveness.
 	updates int64
@@ -146,6 +157,9 @@ func New(d *design.Design, path string, set Settings, st Styles) *Model {
 		research:   NewResearchRoom(st, keys, d),
 		terms:      NewTermsRoom(st, keys),
 	}
+	if set.RecoveryDir != "" {
+		m.rec = recovery.New(set.RecoveryDir)
+	}
 	m.helpView.KeyMap = viewport.KeyMap{Up: keys.Up, Down: keys.Down, PageUp: keys.PageUp, PageDown: keys.PageDown}
 	m.designPane.Focus()
 	m.checks.edited()
@@ -154,7 +168,7 @@ func New(d *design.Design, path string, set Settings, st Styles) *Model {
 
 // Init starts compiling the design.
 func (m *Model) Init() tea.Cmd {
-	return tea.Batch(compileCmd(m.gen, cloneDesign(m.d)), m.debounce())
+	return tea.Batch(compileCmd(m.gen, cloneDesign(m.d)), m.debounce(), m.findRecovery())
 }
 
 // Design returns a copy of the design being edited.
@@ -231,7 +245,7 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 			return m, nil
 		}
 		m.debouncedGen = msg.gen
-		return m, m.maybeStart()
+		return m, tea.Batch(m.maybeStart(), m.writeRecovery())
 	case pictureMsg:
 		if msg.gen == m.gen {
 			m.picture.show(msg)
@@ -251,8 +265,13 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 			m.checks.finished(inner.report, inner.err)
 		}
 		return m, nil
+	case fitProgressMsg:
+		if msg.gen == m.gen {
+			m.budget.progressed(msg.done, msg.total)
+		}
+		return m, nil
 	case fitMsg:
-		if msg.gen != m.gen {
+		if msg.gen != m.gen || errors.Is(msg.err, context.Canceled) {
 			return m, nil
 		}
 		m.fitGen = msg.gen
@@ -274,16 +293,35 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		return m, m.fileDone(msg.seq, msg.err, func() {
 			m.path = msg.path
 			m.savedGen = gen
+			if !m.Unsaved() {
+				m.dropRecovery()
+			}
 			m.status = "saved the design to " + msg.path
-		})
+		}, m.savedThen)
 	case openedMsg:
 		if msg.err == nil && msg.gen != m.gen {
 			msg.err = errors.New("the design changed while the file was read; open it again")
 		}
 		return m, m.fileDone(msg.seq, msg.err, func() {
+			m.dropRecovery() // the user agreed to drop the old design's edits
 			m.status = "opened " + msg.path
 			m.path = msg.path
 		}, func() tea.Cmd { return m.replaceDesign(msg.d) })
+	case completedMsg:
+		if m.dialog != nil {
+			m.dialog.completed(msg)
+		}
+		return m, nil
+	case recoveryFoundMsg:
+		m.foundRecovery(msg)
+		return m, nil
+	case recoveryDoneMsg:
+		if msg.err != nil {
+			m.status = msg.err.Error()
+		} else if msg.note != "" {
+			m.status = msg.note
+		}
+		return m, nil
 	case exportedMsg:
 		return m, m.fileDone(msg.seq, msg.err, func() {
 			m.status = "exported: " + strings.Join(msg.files, ", ")
@@ -298,6 +336,7 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 func (m *Model) edited() tea.Cmd {
 	m.gen++
 	m.stopCheck()
+	m.stopFit()
 	m.checkRun++ // answers of the run for the old design are now stale
 	m.checks.edited()
 	m.budget.edited()

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"path/filepath"
 	"regexp"
+	"slices"
 	"strings"
 
 	tea "github.com/charmbracelet/bubbletea"
@@ -24,7 +25,7 @@ func (m *Model) fileDone(seq uint64, err error, ok func(), then ...func() tea.Cm
 		m.dialog.askOverwrite()
 		return nil
 	case err != nil:
-		m.dialog.failed("✗ " + strings.ReplaceAll(err.Error(), "\n", "; "))
+		m.dialog.failed(fileError(err))
 		return nil
 	}
 	m.dialog = nil
@@ -38,18 +39,6 @@ func (m *Model) fileDone(seq uint64, err error, ok func(), then ...func() tea.Cm
 
 // Unsaved reports whether the design changed since it was opened or saved.
 func (m *Model) Unsaved() bool { return m.gen != m.savedGen }
-
-// confirmDiscard lets a key that would lose unsaved changes act only when
-// pressed twice in a row; the first press says so on the status line.
-func (m *Model) confirmDiscard(km tea.KeyMsg, again string) bool {
-	if !m.Unsaved() || m.armed == km.String() {
-		m.armed = ""
-		return true
-	}
-	m.armed = km.String()
-	m.status = "the design has unsaved changes (" + m.keys.Save.Help().Key + " saves); " + again
-	return false
-}
 
 func (m *Model) openHelp() {
 	m.help = true
@@ -88,9 +77,6 @@ func (m *Model) openDialog(kind dialogKind) {
 			dir += string(filepath.Separator)
 		}
 		d := newFileDialog(m.st, m.keys, kind, dir, nil)
-		if m.Unsaved() {
-			d.msg = "the current design has unsaved changes; opening replaces it"
-		}
 		m.dialog = &d
 	case dialogHistory:
 		dir := m.set.Dir
@@ -108,12 +94,16 @@ func (m *Model) openDialog(kind dialogKind) {
 			return
 		}
 		fs := m.set.Exporter.Formats(m.d)
-		d := newFileDialog(m.st, m.keys, kind, m.defaultName(fs[0]), fs)
+		// The format (and the pay) chosen last stay chosen.
+		i := max(0, slices.Index(fs, m.exportFormat))
+		d := newFileDialog(m.st, m.keys, kind, m.defaultName(fs[i]), fs)
+		d.format, d.lottery = i, m.exportLottery
 		m.dialog = &d
 	}
 	if m.dialog != nil {
 		m.dialogSeq++
 		m.dialog.seq = m.dialogSeq
+		m.dialog.base = m.set.Dir
 	}
 }
 
@@ -121,7 +111,10 @@ func (m *Model) openDialog(kind dialogKind) {
 func (m *Model) submitDialog() tea.Cmd {
 	dl := m.dialog
 	dl.formatFromPath()
-	path, overwrite, format, lot, seq := dl.Path(), dl.overwrite, dl.Format(), dl.lottery, dl.seq
+	path, overwrite, format, lot, seq := expandHome(dl.Path()), dl.overwrite, dl.Format(), dl.lottery, dl.seq
+	if dl.kind == dialogExport {
+		m.exportFormat, m.exportLottery = format, lot
+	}
 	if !filepath.IsAbs(path) && m.set.Dir != "" && !strings.HasPrefix(path, m.set.Dir) {
 		path = filepath.Join(m.set.Dir, path)
 	}

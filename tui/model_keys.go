@@ -10,17 +10,15 @@ import (
 // focused pane.
 func (m *Model) key(km tea.KeyMsg) tea.Cmd {
 	k := m.keys
-	if key.Matches(km, k.QuitHard) {
-		return m.quit()
-	}
-	if km.String() != m.armed {
-		m.armed = ""
-	}
-	if m.tooSmall() {
-		if key.Matches(km, k.Quit) {
-			return m.quit()
-		}
-		return nil
+	switch {
+	case m.tooSmall():
+		return m.smallKey(km)
+	case m.recOffer != nil:
+		return m.recoveryKey(km)
+	case m.leaving != nil:
+		return m.leaveKey(km)
+	case key.Matches(km, k.QuitHard):
+		return m.leave(leaveQuit, km)
 	}
 	if m.help {
 		switch {
@@ -40,6 +38,10 @@ func (m *Model) key(km tea.KeyMsg) tea.Cmd {
 		case actCancel:
 			m.dialog = nil
 			m.status = "cancelled"
+			if m.afterSave != nil {
+				m.afterSave = nil
+				m.status = "not saved; the design is still open"
+			}
 		case actSubmit:
 			return tea.Batch(cmd, m.submitDialog())
 		}
@@ -134,8 +136,7 @@ func (m *Model) key(km tea.KeyMsg) tea.Cmd {
 		m.openDialog(dialogSave)
 		return nil
 	case key.Matches(km, k.Open):
-		m.openDialog(dialogOpen)
-		return nil
+		return m.leave(leaveOpen, km)
 	case key.Matches(km, k.Export):
 		m.openDialog(dialogExport)
 		return nil
@@ -160,19 +161,9 @@ func (m *Model) key(km tea.KeyMsg) tea.Cmd {
 		m.showBT, m.showRisk = false, false
 		return m.research.Toggle(m.ctx, m.d, m.gen, m.researchReady())
 	case !typing && key.Matches(km, k.Demo):
-		if !m.confirmDiscard(km, m.keys.Demo.Help().Key+" again discards them") {
-			return nil
-		}
-		m.demoIndex = (m.demoIndex + 1) % len(demos())
-		m.path = ""
-		cmd := m.replaceDesign(demos()[m.demoIndex]())
-		m.status = "demo design: " + m.d.Title
-		return cmd
+		return m.leave(leaveDemo, km)
 	case !typing && !m.designPane.Picking() && key.Matches(km, k.Quit):
-		if !m.confirmDiscard(km, m.keys.Quit.Help().Key+" again quits without saving") {
-			return nil
-		}
-		return m.quit()
+		return m.leave(leaveQuit, km)
 	}
 	if m.showBT || m.showRisk || m.research.Shown() {
 		return nil
@@ -183,12 +174,10 @@ func (m *Model) key(km tea.KeyMsg) tea.Cmd {
 func (m *Model) routeToPane(km tea.KeyMsg) tea.Cmd {
 	switch m.focus {
 	case paneDesign:
-		p, cmd, changed := m.designPane.Update(km, m.d)
-		m.designPane = p
-		if changed {
-			return tea.Batch(cmd, m.edited())
+		if m.designPane.Picking() && key.Matches(km, m.keys.Edit) && handWritten(m.d) && m.Unsaved() {
+			return m.leave(leavePreset, km)
 		}
-		return cmd
+		return m.designKey(km)
 	case panePicture:
 		p, changed := m.picture.Update(km)
 		m.picture = p
@@ -208,6 +197,33 @@ func (m *Model) routeToPane(km tea.KeyMsg) tea.Cmd {
 			return tea.Batch(cmd, m.edited())
 		}
 		return cmd
+	}
+	return nil
+}
+
+// designKey hands a key to the design pane.
+func (m *Model) designKey(km tea.KeyMsg) tea.Cmd {
+	p, cmd, changed := m.designPane.Update(km, m.d)
+	m.designPane = p
+	if changed {
+		return tea.Batch(cmd, m.edited())
+	}
+	return cmd
+}
+
+// smallKey is the one key a screen too small to draw on takes: quit (which
+// asks first when edits are unsaved). A question that waits cannot be
+// read, so it is not answered from here, except by ctrl+c, which leaves
+// the edits in the recovery file.
+func (m *Model) smallKey(km tea.KeyMsg) tea.Cmd {
+	k := m.keys
+	switch {
+	case m.leaving != nil || m.recOffer != nil:
+		if key.Matches(km, k.QuitHard) {
+			return m.quit()
+		}
+	case key.Matches(km, k.Quit), key.Matches(km, k.QuitHard):
+		return m.leave(leaveQuit, km)
 	}
 	return nil
 }

@@ -33,10 +33,10 @@ func (m *Model) layout() {
 	}
 	lw := m.width / 2
 	rw := m.width - lw
-	top := bh * 55 / 100
-	if m.focus == paneChecks || m.focus == paneBudget {
-		top = bh * 40 / 100 // the focused lower pane gets the room
-	}
+	// Half each, whichever pane has the focus: the picture keeps a
+	// readable height at 80×24, and the layout does not jump on tab (the
+	// lower panes scroll).
+	top := bh / 2
 	m.designPane.SetSize(lw, bh)
 	m.picture.SetSize(rw, top)
 	m.checks.SetSize(rw, bh-top)
@@ -55,6 +55,9 @@ func (m *Model) View() string {
 	}
 	if m.tooSmall() {
 		msg := fmt.Sprintf("The workbench needs a terminal of at least %d×%d;\nthis one is %d×%d. Enlarge it, or press q to quit.", MinWidth, MinHeight, m.width, m.height)
+		if m.leaving != nil || m.recOffer != nil {
+			msg += "\nA question about unsaved edits waits; enlarge the terminal to answer it."
+		}
 		return lipgloss.Place(m.width, m.height, lipgloss.Center, lipgloss.Center, msg)
 	}
 	header := m.headerLine()
@@ -84,6 +87,10 @@ func (m *Model) View() string {
 	case m.help:
 		box := m.st.Dialog.Render(m.st.Header.Render("Keys — esc or ? to close, ↑/↓ pgup/pgdn to scroll") + "\n" + m.helpView.View())
 		screen = lipgloss.Place(m.width, m.height, lipgloss.Center, lipgloss.Center, box)
+	case m.recOffer != nil:
+		screen = overlay(screen, m.recoveryView(), m.width, m.height)
+	case m.leaving != nil:
+		screen = overlay(screen, m.leaveView(), m.width, m.height)
 	case m.dialog != nil:
 		box := m.dialog.View(m.width)
 		screen = overlay(screen, box, m.width, m.height)

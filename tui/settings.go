@@ -31,6 +31,10 @@ type Settings struct {
 	Exporter Exporter
 	// Version is the tool version written into exports.
 	Version string
+	// RecoveryDir is where unsaved edits are kept while they last
+	// (tui/recovery; "" keeps none). The command gives the user's state
+	// directory.
+	RecoveryDir string
 	// Dir is the directory relative paths in dialogs start from ("" is the
 	// working directory).
 	Dir string

@@ -51,3 +51,24 @@ func TestTermsEditTitleAndParties(t *testing.T) {
 		t.Error("the annex lacks the buyer typed in the workbench")
 	}
 }
+
+// In the terms view q quits as it does elsewhere (asking first when edits
+// are unsaved), while typed into a field it is text.
+func TestTermsViewLetsQQuit(t *testing.T) {
+	m := testModel(t, nil, Settings{})
+	start(t, m, 80, 24)
+	f2 := tea.KeyMsg{Type: tea.KeyF2}
+	press(t, m, f2, keyEnter, runes("q"))
+	if m.quitting || m.leaving != nil || !strings.Contains(m.terms.ti.Value(), "q") {
+		t.Fatal("q typed into a term did not stay text")
+	}
+	press(t, m, keyEnter) // the title now ends in q: an unsaved edit
+	press(t, m, runes("q"))
+	if m.leaving == nil {
+		t.Fatal("q in the terms view did not ask before quitting")
+	}
+	press(t, m, runes("d"))
+	if !m.quitting {
+		t.Fatal("q in the terms view does not quit")
+	}
+}

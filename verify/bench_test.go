@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"scorewright/generator/bregman"
+	"scorewright/internal/pool"
 	"scorewright/internal/simplex"
 )
 
@@ -44,7 +45,7 @@ func BenchmarkStream(b *testing.B) {
 	for _, sz := range streamSizes {
 		g, m := benchMenu(b, sz.n, sz.k)
 		pairs := float64(g.Len()) * float64(g.Len())
-		pr := startProgress(nil, 0)
+		pr := pool.NewMeter(nil, 0)
 		for _, kind := range []string{"full", "pruned"} {
 			b.Run(fmt.Sprintf("n=%d/K=%d/%s", sz.n, sz.k, kind), func(b *testing.B) {
 				if kind == "full" && pairs > 1e10 {
@@ -75,7 +76,7 @@ func BenchmarkStream(b *testing.B) {
 // visitedShare is the share of the G² pairs the pruned stream evaluates.
 func visitedShare(g *simplex.Grid, m *menu) float64 {
 	var count int64
-	if _, err := streamPruned(context.Background(), g, m, 1, startProgress(nil, 0), &count); err != nil {
+	if _, err := streamPruned(context.Background(), g, m, 1, pool.NewMeter(nil, 0), &count); err != nil {
 		panic(err)
 	}
 	return float64(count) / float64(g.Len()) / float64(g.Len())

@@ -9,6 +9,7 @@ import (
 	"scorewright/generator/bregman"
 	"scorewright/generator/formula"
 	"scorewright/internal/num"
+	"scorewright/internal/pool"
 	"scorewright/internal/simplex"
 )
 
@@ -39,9 +40,9 @@ func CheckRule(ctx context.Context, r *bregman.Rule, s Settings) (*Report, error
 		return nil, err
 	}
 	G := g.Len()
-	pr := startProgress(s.Progress, int64(G)*int64(G)+2*gradCost*int64(G)+gradCost*int64(offGridCount(G)))
+	pr := pool.NewMeter(s.Progress, int64(G)*int64(G)+2*gradCost*int64(G)+gradCost*int64(offGridCount(G)))
 	rep, err := checkRule(ctx, r, s, g, pr)
-	pr.finish(err == nil)
+	pr.Finish(err == nil)
 	return rep, err
 }
 
@@ -86,7 +87,7 @@ func gridInfo(g *simplex.Grid, s Settings) Grid {
 	return out
 }
 
-func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid, pr *progress) (*Report, error) {
+func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid, pr *pool.Meter) (*Report, error) {
 	n, G := r.Outcomes(), g.Len()
 	rep := &Report{Grid: gridInfo(g, s)}
 	rep.Notes = gridNotes(rep.Grid, n)
@@ -101,12 +102,12 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	for i := range scorers {
 		scorers[i] = r.NewScorer()
 	}
-	err := parallel(ctx, s.Workers, G, 256, func(w, lo, hi int) {
+	err := pool.Run(ctx, s.Workers, G, 256, func(w, lo, hi int) {
 		sc := scorers[w]
 		for j := lo; j < hi; j++ {
 			h[j] = sc.Efforts(m.rows[j*n:(j+1)*n], g.Point(j))
 		}
-		pr.add(int64(hi-lo) * gradCost)
+		pr.Add(int64(hi-lo) * gradCost)
 	})
 	if err != nil {
 		return nil, err

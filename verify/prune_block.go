@@ -6,6 +6,7 @@ import (
 	"math"
 	"slices"
 
+	"scorewright/internal/pool"
 	"scorewright/internal/simplex"
 )
 
@@ -51,23 +52,23 @@ type heldBelief struct {
 }
 
 // streamPruned is the pruned stream: the same result as streamFull.
-func streamPruned(ctx context.Context, g *simplex.Grid, m *menu, w int, pr *progress, count *int64) ([]best, error) {
+func streamPruned(ctx context.Context, g *simplex.Grid, m *menu, w int, pr *pool.Meter, count *int64) ([]best, error) {
 	t := newReportTree(g, m)
 	G := g.Len()
 	out := make([]best, G)
-	w = workers(w)
+	w = pool.Workers(w)
 	work := make([]*blockWork, w)
 	for i := range work {
 		work[i] = &blockWork{a: make([]float64, m.n), b: make([]float64, m.n)}
 	}
 	leaves := (len(t.start) + 1) / 2
 	first := len(t.start) - leaves
-	err := parallel(ctx, w, leaves, 1, func(id, lo, hi int) {
+	err := pool.Run(ctx, w, leaves, 1, func(id, lo, hi int) {
 		bw := work[id]
 		for l := lo; l < hi; l++ {
 			node := first + l
 			bw.block(t, g, m, node, out)
-			pr.add(int64(t.end[node]-t.start[node]) * int64(G))
+			pr.Add(int64(t.end[node]-t.start[node]) * int64(G))
 		}
 	})
 	if count != nil {

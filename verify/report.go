@@ -3,6 +3,8 @@ package verify
 import (
 	"fmt"
 	"math"
+
+	"scorewright/internal/pool"
 )
 
 // Settings tune a check. The zero value means the defaults.
@@ -19,7 +21,7 @@ type Settings struct {
 	Workers int
 	// Progress, when set, is called from a single goroutine about ten
 	// times a second with the work done so far, and once at the end.
-	Progress func(done, total int64)
+	Progress pool.Progress
 	// Limit, when positive, is the largest effort (or, in an audit, the
 	// largest payment in absolute value) the boundedness check accepts.
 	Limit float64
@@ -82,7 +84,7 @@ func (s Settings) withDefaults(n int) Settings {
 	if s.Samples <= 0 {
 		s.Samples = DefaultSamples
 	}
-	s.Workers = workers(s.Workers)
+	s.Workers = pool.Workers(s.Workers)
 	return s
 }
 

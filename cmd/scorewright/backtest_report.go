@@ -35,21 +35,21 @@ func newBacktestReport(path string, h *history.Reader, schemes []*backtestScheme
 	}
 	for i, s := range schemes {
 		m := res.All[i]
-		r.decimals = append(r.decimals, s.money.decimals)
-		rr := ruleReport{ID: s.id, Name: s.name, Formula: s.statement, Pay: s.money.formula,
-			Menu: s.money.menu, Budget: s.money.budget, Count: m.Count, Total: num.Float(m.Total), Mean: num.Float(m.Mean),
+		r.decimals = append(r.decimals, s.terms.Fit.Decimals())
+		rr := ruleReport{ID: s.id, Name: s.name, Formula: s.statement, Pay: s.terms.PayFormula(),
+			Menu: s.terms.MenuDesc(), Budget: s.terms.Fit.BudgetDesc(), Count: m.Count, Total: num.Float(m.Total), Mean: num.Float(m.Mean),
 			Min: num.Float(m.Min), Max: num.Float(m.Max), OffMenu: m.OffMenu, BelowLow: m.BelowLow, AboveHigh: m.AboveHigh,
-			NonFinite: m.NonFinite, MostTotal: num.Float(float64(m.Count) * s.money.high)}
+			NonFinite: m.NonFinite, MostTotal: num.Float(float64(m.Count) * s.scheme.High)}
 		if mp := s.d.Budget.MeanPay; mp != nil {
 			mean, total := num.Float(*mp), num.Float(*mp*float64(m.Count))
 			rr.TargetMean, rr.TargetTotal = &mean, &total
 		}
 		r.Rules = append(r.Rules, rr)
-		for _, n := range s.money.notes {
+		for _, n := range s.terms.Notes {
 			r.Notes = append(r.Notes, fmt.Sprintf("rule %s: %s", s.id, n))
 		}
-		if s.money.warning != "" {
-			r.Warnings = append(r.Warnings, fmt.Sprintf("rule %s: %s", s.id, s.money.warning))
+		if s.terms.Warning != "" {
+			r.Warnings = append(r.Warnings, fmt.Sprintf("rule %s: %s", s.id, s.terms.Warning))
 		}
 		if m.OffMenu > 0 {
 			r.Notes = append(r.Notes, fmt.Sprintf("rule %s: %d of %d forecasts are off the report menu; the table has no row for them, so they are paid by the formula (A - B·L, then rounded as the table is)",

@@ -9,7 +9,6 @@ import (
 
 	"scorewright/contract/budget"
 	"scorewright/contract/risk"
-	"scorewright/contract/risk/riskfit"
 	"scorewright/internal/num"
 )
 
@@ -89,9 +88,9 @@ func runDistort(e *env, args []string) error {
 		return usagef("%v", err)
 	}
 	n := rule.Outcomes()
-	fitted, err := riskfit.New(rule, d.Budget)
+	fitted, err := budget.StepTerms(rule, d.Budget)
 	var ue *budget.UnboundedError
-	var me *riskfit.MenuError
+	var me *budget.MenuError
 	switch {
 	case errors.As(err, &me):
 		return usagef("%v", me.Err)
@@ -103,11 +102,11 @@ func runDistort(e *env, args []string) error {
 	case err != nil:
 		return fitError(err)
 	}
-	solver, err := fitted.Solver(rule, u, *wealth)
+	solver, err := risk.NewSolver(rule, risk.TermsContract(fitted), u, *wealth)
 	if err != nil {
 		return usagef("%v", err)
 	}
-	q := riskfit.Belief(d.Budget, n)
+	q := risk.DefaultBelief(d.Budget, n)
 	if *belief != "" {
 		if q, err = num.ParseDistribution(*belief, n); err != nil {
 			return usagef("--belief: %v", err)
@@ -119,9 +118,9 @@ func runDistort(e *env, args []string) error {
 		}
 	}
 	best, bestErr := solver.Best(q)
-	pick := fitted.MenuPick(solver, q)
+	pick := risk.MenuPick(fitted, solver, q)
 
-	beliefs, _, along := riskfit.CurveBeliefs(n, d.Budget.ReportFloor)
+	beliefs, _, along := risk.CurveBeliefs(n, d.Budget.ReportFloor)
 	curve, err := solver.Distortion(context.Background(), beliefs, nil)
 	if err != nil {
 		return err
@@ -131,7 +130,7 @@ func runDistort(e *env, args []string) error {
 		if err := writeJSON(e.stdout, out); err != nil {
 			return err
 		}
-	} else if err := printDistort(e, u, *wealth, fitted.PayDesc(), q, best, pick, curve, along, out); err != nil {
+	} else if err := printDistort(e, u, *wealth, risk.PayDesc(fitted), q, best, pick, curve, along, out); err != nil {
 		return err
 	}
 	if len(out.Failed) > 0 {
@@ -141,9 +140,9 @@ func runDistort(e *env, args []string) error {
 }
 
 // distortResult gathers what distort reports, for JSON and text alike.
-func distortResult(u risk.Utility, wealth float64, fitted *riskfit.Fitted, q []float64, best *risk.Result, bestErr error, pick []float64, curve *risk.Curve, along string) distortJSON {
+func distortResult(u risk.Utility, wealth float64, fitted *budget.Terms, q []float64, best *risk.Result, bestErr error, pick []float64, curve *risk.Curve, along string) distortJSON {
 	out := distortJSON{Utility: u.String(), Wealth: wealth, A: num.Float(fitted.Fit.A), B: num.Float(fitted.Fit.B),
-		Belief: num.Floats(q), MenuReport: num.Floats(pick), Pay: fitted.PayDesc(),
+		Belief: num.Floats(q), MenuReport: num.Floats(pick), Pay: risk.PayDesc(fitted),
 		Largest: distortPointOf(curve.Largest), Along: along}
 	if bestErr == nil {
 		out.Report, out.Size, out.Status = num.Floats(best.Report), num.Float(best.Size), best.Status
@@ -160,7 +159,7 @@ func distortResult(u risk.Utility, wealth float64, fitted *riskfit.Fitted, q []f
 	if u.Kind == risk.CARA {
 		out.Notes = append(out.Notes, "with CARA utility initial wealth does not change the report")
 	}
-	if fitted.Menu == nil {
+	if fitted.ByFormula {
 		out.Notes = append(out.Notes, "no menu (no --step): every report is paid by the exact formula A - B·effort, unrounded, so there is no menu pick")
 	} else {
 		out.Notes = append(out.Notes, "the best report is over all reports at the exact pay A - B·effort; a forecaster held to the menu picks the menu item whose rounded payments in the table give the largest expected utility (the menu pick)")

@@ -285,6 +285,7 @@ func (b *budgetFlags) apply(fs *flag.FlagSet, d *design.Design) error {
 	}
 	if set["step"] {
 		bd.Step = b.step
+		bd.Menu = "" // the flag's step grid replaces the design's menu file
 	}
 	if set["unit"] {
 		bd.Unit = b.unit

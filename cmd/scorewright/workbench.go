@@ -10,6 +10,7 @@ import (
 
 	"scorewright/generator/design"
 	"scorewright/tui"
+	"scorewright/tui/recovery"
 )
 
 // runWorkbench opens the workbench on d (nil: the built-in demo design);
@@ -24,7 +25,13 @@ func runWorkbench(e *env, d *design.Design, path ...string) error {
 	if len(path) > 0 {
 		p = path[0]
 	}
-	m := tui.New(d, p, tui.Settings{Version: version}, tui.NewStyles(lipgloss.DefaultRenderer()))
+	set := tui.Settings{Version: version}
+	// Unsaved edits are kept in the user's state directory; without one
+	// the workbench still runs, only without a recovery file.
+	if dir, err := recovery.DefaultDir(); err == nil {
+		set.RecoveryDir = dir
+	}
+	m := tui.New(d, p, set, tui.NewStyles(lipgloss.DefaultRenderer()))
 	defer m.Close()
 	prog := tea.NewProgram(m, tea.WithAltScreen(), tea.WithInput(in), tea.WithOutput(out))
 	_, err := prog.Run()

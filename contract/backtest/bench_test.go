@@ -223,8 +223,15 @@ func BenchmarkHistoryRead(b *testing.B) {
 }
 
 // BenchmarkBacktest reads, validates and pays the same file under two
-// rules (quadratic and log, n = 3), with the decomposition's bins.
-func BenchmarkBacktest(b *testing.B) {
+// rules (quadratic and log, n = 3), with the decompositions of the
+// forecasters the Result details.
+func BenchmarkBacktest(b *testing.B) { benchBacktest(b, false) }
+
+// BenchmarkBacktestEvery is BenchmarkBacktest and then every forecaster's
+// line, as --forecasters-out writes them.
+func BenchmarkBacktestEvery(b *testing.B) { benchBacktest(b, true) }
+
+func benchBacktest(b *testing.B, every bool) {
 	path := benchHistory(b, *benchRows)
 	st, _ := os.Stat(path)
 	schemes := []Scheme{
@@ -248,6 +255,20 @@ func BenchmarkBacktest(b *testing.B) {
 		if res.Rows+res.SkippedCount != *benchRows || res.ForecasterCount != min(*benchForecasters, *benchRows) {
 			b.Fatalf("%d rows, %d skipped, %d forecasters", res.Rows, res.SkippedCount, res.ForecasterCount)
 		}
+		if every {
+			seen := 0
+			err = res.EachForecaster(func(f *Forecaster) error {
+				seen++
+				if seen%progressEvery == 0 {
+					peak.sample(Progress{})
+				}
+				return nil
+			})
+			if err != nil || seen != res.ForecasterCount {
+				b.Fatalf("%d forecasters visited of %d: %v", seen, res.ForecasterCount, err)
+			}
+		}
+		res.Close()
 	}
 	b.ReportMetric(float64(*benchRows)*float64(b.N)/b.Elapsed().Seconds(), "rows/s")
 	b.ReportMetric(float64(peak.max)/(1<<20), "peak-heap-MiB")

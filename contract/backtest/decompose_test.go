@@ -42,7 +42,7 @@ func murphyTally(t *testing.T, r *bregman.Rule) *Result {
 			tl.Add("Alder", i+1, y, p)
 		}
 	}
-	return tl.Result()
+	return result(t, tl)
 }
 
 // The quadratic rule's terms are Murphy's (1973, "A new vector partition
@@ -168,7 +168,7 @@ func TestIdentityExact(t *testing.T) {
 			s.Efforts(eff, p)
 			mean += eff[y] / N
 		}
-		d := tl.Result().Forecasters[0].Decomposition[0]
+		d := result(t, tl).Forecasters[0].Decomposition[0]
 		if got := d.Identity(); math.Abs(got-mean) > 1e-12 {
 			t.Errorf("%s: UNC - RES + REL = %.15g, mean effort %.15g", c.name, got, mean)
 		}
@@ -198,7 +198,7 @@ func TestWidthBins(t *testing.T) {
 		}
 		tl.Add("A", i+1, y, []float64{f, 1 - f})
 	}
-	fc := tl.Result().Forecasters[0]
+	fc := result(t, tl).Forecasters[0]
 	if fc.Binning.Grid != DefaultGrid || len(fc.Bins) > DefaultGrid {
 		t.Fatalf("binning %+v with %d bins, want cells of width 1/%d", fc.Binning, len(fc.Bins), DefaultGrid)
 	}
@@ -270,7 +270,7 @@ func TestGroupingPastTheBound(t *testing.T) {
 		hits[y]++
 		tl.Add([]string{"A", "B"}[i%2], i+1, y, p)
 	}
-	res := tl.Result()
+	res := result(t, tl)
 	if res.Grouping == "every distinct forecast kept exactly" {
 		t.Fatalf("grouping %q after %d distinct forecasts with a bound of 64", res.Grouping, N)
 	}
@@ -315,7 +315,7 @@ func TestCORPOnContinuousForecasts(t *testing.T) {
 			s.Efforts(eff, p)
 			mean += eff[y] / N
 		}
-		d := tl.Result().Forecasters[0].CORP[0][0]
+		d := result(t, tl).Forecasters[0].CORP[0][0]
 		if math.Abs(d.Score-mean) > 1e-12 || math.Abs(d.Identity()-d.Score) > 1e-12 {
 			t.Errorf("%s: score %.17g, MCB − DSC + UNC %.17g, direct mean %.17g", c.name, d.Score, d.Identity(), mean)
 		}
@@ -341,9 +341,19 @@ func TestCORPOnContinuousForecasts(t *testing.T) {
 			se[k] += (p[k] - o) * (p[k] - o) / N
 		}
 	}
-	for k, d := range tl.Result().Forecasters[0].CORP[0] {
+	for k, d := range result(t, tl).Forecasters[0].CORP[0] {
 		if math.Abs(d.Score-se[k]) > 1e-12 || math.Abs(d.Identity()-d.Score) > 1e-12 || d.Miscalibration < 0 || d.Discrimination < 0 {
 			t.Errorf("event %d: %+v, direct squared error %.17g", k, d, se[k])
 		}
 	}
+}
+
+// result is tl.Result(), failing the test on an error.
+func result(t testing.TB, tl *Tally) *Result {
+	t.Helper()
+	r, err := tl.Result()
+	if err != nil {
+		t.Fatal(err)
+	}
+	return r
 }

@@ -38,7 +38,7 @@ func TestManyForecastersStaySmall(t *testing.T) {
 	if per > 400 {
 		t.Errorf("%.0f bytes of live heap per forecaster, want at most 400", per)
 	}
-	res := tl.Result()
+	res := result(t, tl)
 	if res.ForecasterCount != F || len(res.Forecasters) != 2*DefaultShow {
 		t.Errorf("%d forecasters, %d detailed; want %d and %d", res.ForecasterCount, len(res.Forecasters), F, 2*DefaultShow)
 	}

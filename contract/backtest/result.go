@@ -84,33 +84,60 @@ type Skipped struct {
 // Shown reports whether the Result details every forecaster.
 func (r *Result) Shown() bool { return len(r.Forecasters) == r.ForecasterCount }
 
+// Close removes the temporary file the backtest may have kept its
+// forecasts in; EachForecaster needs it until then.
+func (r *Result) Close() error { return r.t.Close() }
+
 // EachForecaster calls fn with every forecaster in name order, detailed
 // as in Forecasters but without Bins and Events, which it does not keep;
 // fn must not retain f. It stops at the first error fn returns.
+//
+// The decompositions are computed in one pass over the forecasts, in the
+// order forecasters first appeared, and kept (in memory, or in a
+// temporary file when there are many) until they are visited by name.
 func (r *Result) EachForecaster(fn func(f *Forecaster) error) error {
 	t := r.t
-	for _, i := range t.byName() {
-		f := t.forecasterResult(int(i), r.ranks, false)
-		if err := fn(&f); err != nil {
+	order := t.names.sorted()
+	pos := make([]int32, len(order))
+	for p, f := range order {
+		pos[f] = int32(p)
+	}
+	width := len(t.schemes) * (3 + 6*t.events())
+	fin, err := newFinals(len(order), width, t.opt.finalsLimit, t.opt.SpillDir)
+	if err != nil {
+		return err
+	}
+	defer fin.close()
+	vals := make([]float64, width)
+	err = t.store.scan(func(f int, ids []int32, hits []uint32) error {
+		fr := t.forecasterResult(f, ids, hits, r.ranks, false)
+		encodeFinal(vals, &fr)
+		return fin.put(int(pos[f]), vals)
+	})
+	if err != nil {
+		return err
+	}
+	pos = nil
+	for p, f := range order {
+		if err := fin.get(p, vals); err != nil {
+			return err
+		}
+		fr := t.forecasterMoney(int(f), r.ranks)
+		decodeFinal(&fr, vals, t.events())
+		if err := fn(&fr); err != nil {
 			return err
 		}
 	}
 	return nil
 }
 
-// byName returns forecaster indices sorted by name.
-func (t *Tally) byName() []int32 {
-	order := make([]int32, len(t.names))
-	for i := range order {
-		order[i] = int32(i)
+// Result summarises the forecasts added so far. The error is a failure to
+// keep or read back the forecasts (see Err).
+func (t *Tally) Result() (*Result, error) {
+	if err := t.Err(); err != nil {
+		return nil, err
 	}
-	sort.Slice(order, func(a, b int) bool { return t.names[order[a]] < t.names[order[b]] })
-	return order
-}
-
-// Result summarises the forecasts added so far.
-func (t *Tally) Result() *Result {
-	r := &Result{Outcomes: t.n, ForecasterCount: len(t.names), Grouping: t.store.Grouping(), t: t}
+	r := &Result{Outcomes: t.n, ForecasterCount: t.names.len(), Grouping: t.store.Grouping(), t: t}
 	for _, s := range t.schemes {
 		r.Schemes = append(r.Schemes, s.Name)
 	}
@@ -132,30 +159,40 @@ func (t *Tally) Result() *Result {
 	for s := range t.schemes {
 		r.ranks[s] = t.rank(s)
 	}
-	for _, i := range t.shown(r.ranks) {
-		r.Forecasters = append(r.Forecasters, t.forecasterResult(int(i), r.ranks, true))
+	shown := t.shown(r.ranks)
+	at := make(map[int32]int, len(shown))
+	for k, i := range shown {
+		at[i] = k
 	}
-	return r
+	r.Forecasters = make([]Forecaster, len(shown))
+	err := t.store.scan(func(f int, ids []int32, hits []uint32) error {
+		if k, ok := at[int32(f)]; ok {
+			r.Forecasters[k] = t.forecasterResult(f, ids, hits, r.ranks, true)
+		}
+		return nil
+	})
+	if err != nil {
+		return nil, err
+	}
+	return r, nil
 }
 
 // shown picks the forecasters a Result details, in name order: all of
 // them, or the Show best and Show worst under the first scheme.
 func (t *Tally) shown(ranks [][]int32) []int32 {
-	all := t.byName()
+	all := t.names.sorted()
 	if len(all) <= 4*t.opt.Show || len(ranks) == 0 {
 		return all
 	}
-	order := make([]int32, len(all))
-	for i := range order {
-		order[i] = int32(i)
-	}
 	rk := ranks[0]
-	sort.SliceStable(order, func(a, b int) bool { return rk[order[a]] < rk[order[b]] })
-	pick := map[int32]bool{}
-	for _, i := range order[:t.opt.Show] {
-		pick[i] = true
+	worst := newBounded(t.opt.Show, func(a, b int32) bool { return rk[a] > rk[b] || rk[a] == rk[b] && a > b })
+	best := newBounded(t.opt.Show, func(a, b int32) bool { return rk[a] < rk[b] || rk[a] == rk[b] && a < b })
+	for i := range int32(len(rk)) {
+		best.offer(i)
+		worst.offer(i)
 	}
-	for _, i := range order[len(order)-t.opt.Show:] {
+	pick := map[int32]bool{}
+	for _, i := range append(best.items, worst.items...) {
 		pick[i] = true
 	}
 	var out []int32
@@ -170,11 +207,9 @@ func (t *Tally) shown(ranks [][]int32) []int32 {
 // rank ranks forecasters by mean pay under scheme s, best first; ties
 // share the better rank and NaN ranks last.
 func (t *Tally) rank(s int) []int32 {
-	k := len(t.schemes)
-	mean := make([]float64, len(t.names))
+	mean := make([]float64, t.names.len())
 	for i := range mean {
-		m := &t.money[i*k+s]
-		mean[i] = m.pay.Value() / float64(m.count)
+		mean[i] = t.money.mean(i, s)
 	}
 	order := make([]int32, len(mean))
 	for i := range order {
@@ -200,37 +235,48 @@ func (t *Tally) rank(s int) []int32 {
 	return ranks
 }
 
-// forecasterResult details forecaster i; keep says whether to keep the
-// bins and event groups in the result.
-func (t *Tally) forecasterResult(i int, ranks [][]int32, keep bool) Forecaster {
-	k := len(t.schemes)
-	f := Forecaster{Name: t.names[i], Binning: Binning{Grid: t.opt.Grid}}
+// forecasterMoney is forecaster i's name, money and ranks, without the
+// decompositions.
+func (t *Tally) forecasterMoney(i int, ranks [][]int32) Forecaster {
+	f := Forecaster{Name: t.names.name(i), Count: int(t.money.count[i]), Binning: Binning{Grid: t.opt.Grid}}
 	if t.opt.Distinct {
 		f.Binning.Grid = 0
 	}
-	var bins []Bin
-	var events [][]corp.Group
+	for s := range t.schemes {
+		f.Money = append(f.Money, t.money.money(i, s))
+		f.Rank = append(f.Rank, int(ranks[s][i]))
+	}
+	return f
+}
+
+// forecasterResult details forecaster i from its forecast ids and their
+// outcome counts; keep says whether to keep the bins and event groups in
+// the result.
+func (t *Tally) forecasterResult(i int, ids []int32, hits []uint32, ranks [][]int32, keep bool) Forecaster {
+	f := t.forecasterMoney(i, ranks)
+	own := ownEntries{ids: ids, hits: hits}
 	for s := range t.schemes {
 		// The decompositions split the efforts that were paid: each
 		// forecast as the scheme records and adjusts it.
 		paid := t.paidReport(s)
-		bins = t.bins(i, f.Binning.Grid, paid)
-		events = t.events(i, paid)
-		m := t.money[i*k+s].money()
-		f.Count = m.Count
-		f.Money = append(f.Money, m)
-		f.Rank = append(f.Rank, int(ranks[s][i]))
-		d := Decompose(t.scorers[s], bins)
-		d.MeanEffort = m.MeanEffort
-		d.WithinBin = m.MeanEffort - d.Identity()
+		d := Decompose(t.scorers[s], t.bins(own, f.Binning.Grid, paid))
+		d.MeanEffort = f.Money[s].MeanEffort
+		d.WithinBin = d.MeanEffort - d.Identity()
 		f.Decomposition = append(f.Decomposition, d)
-		f.CORP = append(f.CORP, t.corpOf(s, events))
+		f.CORP = append(f.CORP, t.corpOf(s, t.eventGroups(own, paid)))
 	}
 	if keep {
 		// Bins and events are kept as the first scheme pays them.
-		f.Bins, f.Events = t.bins(i, f.Binning.Grid, t.paidReport(0)), t.events(i, t.paidReport(0))
+		f.Bins, f.Events = t.bins(own, f.Binning.Grid, t.paidReport(0)), t.eventGroups(own, t.paidReport(0))
 	}
 	return f
+}
+
+// ownEntries are one forecaster's distinct forecast ids with n outcome
+// counts each.
+type ownEntries struct {
+	ids  []int32
+	hits []uint32
 }
 
 // paidReport returns the report scheme s pays for a forecast (Record, then
@@ -251,26 +297,33 @@ func (t *Tally) paidReport(s int) func(p []float64) []float64 {
 	}
 }
 
-// entries visits forecaster i's forecasts as paid (as written when paid
+// entries visits a forecaster's forecasts as paid (as written when paid
 // is nil).
-func (t *Tally) entries(i int, paid func(p []float64) []float64, fn func(p []float64, hits []uint32)) {
-	t.store.entries(i, func(p []float64, hits []uint32) {
+func (t *Tally) entries(own ownEntries, paid func(p []float64) []float64, fn func(p []float64, hits []uint32)) {
+	for e, id := range own.ids {
+		p := t.store.vector(int(id))
 		if paid != nil {
 			p = paid(p)
 		}
-		fn(p, hits)
-	})
+		fn(p, own.hits[e*t.n:(e+1)*t.n])
+	}
 }
 
-// events groups forecaster i's forecasts (as paid) of each event by probability:
-// the first outcome for two outcomes, every outcome for more.
-func (t *Tally) events(i int, paid func([]float64) []float64) [][]corp.Group {
-	ne := t.n
+// events is how many events the CORP decomposition splits: one for two
+// outcomes, every outcome for more.
+func (t *Tally) events() int {
 	if t.n == 2 {
-		ne = 1
+		return 1
 	}
+	return t.n
+}
+
+// eventGroups groups a forecaster's forecasts (as paid) of each event by probability:
+// the first outcome for two outcomes, every outcome for more.
+func (t *Tally) eventGroups(own ownEntries, paid func([]float64) []float64) [][]corp.Group {
+	ne := t.events()
 	raw := make([][]corp.Group, ne)
-	t.entries(i, paid, func(p []float64, hits []uint32) {
+	t.entries(own, paid, func(p []float64, hits []uint32) {
 		var c int
 		for _, h := range hits {
 			c += int(h)
@@ -313,16 +366,16 @@ func binaryLoss(sc *bregman.Scorer) corp.Loss {
 	}
 }
 
-// bins groups forecaster i's forecasts (as paid) into cells of width 1/grid in the
+// bins groups a forecaster's forecasts (as paid) into cells of width 1/grid in the
 // first n−1 probabilities (grid 0: by distinct forecast), sorted by mean
 // forecast.
-func (t *Tally) bins(i, grid int, paid func([]float64) []float64) []Bin {
+func (t *Tally) bins(own ownEntries, grid int, paid func([]float64) []float64) []Bin {
 	n := t.n
 	table := newKeyTable(n)
 	key := make([]float64, n)
 	var count []int
 	var sumP, hitsK []float64
-	t.entries(i, paid, func(p []float64, hits []uint32) {
+	t.entries(own, paid, func(p []float64, hits []uint32) {
 		copy(key, p)
 		if grid > 0 {
 			for k, x := range p[:n-1] {

@@ -1,6 +1,7 @@
 package backtest
 
 import (
+	"cmp"
 	"context"
 	"errors"
 	"io"
@@ -71,6 +72,12 @@ func Run(ctx context.Context, h *history.Reader, schemes []Scheme, opt Options) 
 	if err != nil {
 		return nil, err
 	}
+	kept := false // the temporary file goes with the Result, or now
+	defer func() {
+		if !kept {
+			t.Close()
+		}
+	}()
 	keep := opt.MaxSkipped
 	if keep == 0 {
 		keep = DefaultMaxSkipped
@@ -106,7 +113,7 @@ func Run(ctx context.Context, h *history.Reader, schemes []Scheme, opt Options) 
 		for i := range b.rows {
 			rows++
 			if rows%progressEvery == 0 {
-				if err := ctx.Err(); err != nil {
+				if err := cmp.Or(ctx.Err(), t.Err()); err != nil {
 					return nil, err
 				}
 				report()
@@ -135,7 +142,11 @@ func Run(ctx context.Context, h *history.Reader, schemes []Scheme, opt Options) 
 		return nil, err
 	}
 	report()
-	r := t.Result()
+	r, err := t.Result()
+	if err != nil {
+		return nil, err
+	}
+	kept = true
 	r.SkippedCount, r.Skipped, r.Spans = nSkipped, skipped, h.Spans()
 	return r, nil
 }

@@ -3,6 +3,7 @@ package backtest
 import (
 	"fmt"
 	"math"
+	"slices"
 )
 
 // DefaultMaxDistinct bounds the distinct forecasts the decomposition keeps
@@ -11,33 +12,51 @@ import (
 // is stated.
 const DefaultMaxDistinct = 1 << 20
 
-// outcomeStore keeps, in memory that grows with the distinct (forecaster,
-// forecast) pairs and not with the rows, how often each outcome followed
-// each forecast of each forecaster: all the CORP decomposition, the binned
-// decomposition and the reliability picture need. Forecasts are interned
-// once for all forecasters; each pair is one entry of n counts keyed by
-// forecaster<<32 | forecast, chained per forecaster, so a forecaster costs
-// one int32 until it forecasts.
+// DefaultMaxPairs is how many (forecaster, forecast) entries a backtest
+// keeps in memory before it moves them to a temporary file: about 8 MB
+// for three outcomes. A history written on a report menu by a few dozen
+// forecasters never reaches it; two million forecasters with five
+// forecasts each reach it forty times.
+const DefaultMaxPairs = 1 << 18
+
+// outcomeStore keeps how often each outcome followed each forecast of each
+// forecaster: all the CORP decomposition, the binned decomposition and the
+// reliability picture need. Forecasts are interned once for all
+// forecasters; each (forecaster, forecast) pair is one entry of n counts
+// keyed by forecaster<<32 | forecast. At most maxPairs entries stay in
+// memory: when the table is full its entries are written, sorted by key,
+// as one run of a temporary file (spill.go) and the table starts afresh,
+// so memory does not grow with the pairs. scan merges the runs and the
+// table back in forecaster order.
 type outcomeStore struct {
 	n           int
 	maxDistinct int
+	maxPairs    int
 	// quantum is 0 while forecasts are kept exactly, else the grid step
 	// every probability was rounded to.
 	quantum   float64
 	forecasts keyTable // distinct forecasts (rounded when quantum > 0)
 	pairs     pairTable
 	hits      []uint32 // n per entry
-	next      []int32  // next entry of the same forecaster; -1 ends
-	head      []int32  // first entry of each forecaster; -1: none yet
 	key       []float64
 	last      int // entry found by the last call to entry
+	spill     *spillFile
+	// remaps[g] takes the forecast ids of generation g (before its
+	// coarsening) to generation g+1; runs spilled earlier are read
+	// through them.
+	remaps [][]int32
+	err    error // the first failure to spill; the store is then unusable
 }
 
-func newOutcomeStore(n, maxDistinct int) *outcomeStore {
+func newOutcomeStore(n, maxDistinct, maxPairs int, dir string) *outcomeStore {
 	if maxDistinct <= 0 {
 		maxDistinct = DefaultMaxDistinct
 	}
-	return &outcomeStore{n: n, maxDistinct: maxDistinct, forecasts: newKeyTable(n), pairs: newPairTable(), key: make([]float64, n)}
+	if maxPairs <= 0 {
+		maxPairs = DefaultMaxPairs
+	}
+	return &outcomeStore{n: n, maxDistinct: maxDistinct, maxPairs: maxPairs, forecasts: newKeyTable(n),
+		pairs: newPairTable(), key: make([]float64, n), spill: &spillFile{dir: dir, n: n}}
 }
 
 // forecastID interns p, returning its index and whether it is new. When
@@ -61,33 +80,35 @@ func (s *outcomeStore) forecastID(p []float64) (int, bool) {
 	}
 }
 
-// addForecaster makes room for the next forecaster.
-func (s *outcomeStore) addForecaster() { s.head = append(s.head, -1) }
-
 // add counts outcome y after forecast id by forecaster f.
 func (s *outcomeStore) add(f, id, y int) {
+	if s.err != nil {
+		return
+	}
 	s.entry(f, id)
 	s.hits[s.last*s.n+y]++
 }
 
 // entry finds or makes the entry of forecaster f and forecast id, leaving
-// its index in s.last.
+// its index in s.last; a full table is spilled first.
 func (s *outcomeStore) entry(f, id int) {
-	e, made := s.pairs.find(uint64(f)<<32|uint64(id), true, len(s.next))
+	key := uint64(f)<<32 | uint64(id)
+	if len(s.pairs.keys) >= s.maxPairs {
+		if e, _ := s.pairs.find(key, false, 0); e >= 0 {
+			s.last = e
+			return
+		}
+		if s.err = s.spill.write(s.pairs.keys, s.hits, len(s.remaps)); s.err != nil {
+			return
+		}
+		s.pairs.reset()
+		s.hits = s.hits[:0]
+	}
+	e, made := s.pairs.find(key, true, len(s.pairs.keys))
 	if made {
 		s.hits = append(s.hits, make([]uint32, s.n)...)
-		s.next = append(s.next, s.head[f])
-		s.head[f] = int32(e)
 	}
 	s.last = e
-}
-
-// entries calls fn with the forecast and outcome counts of each of
-// forecaster f's entries.
-func (s *outcomeStore) entries(f int, fn func(p []float64, hits []uint32)) {
-	for e := s.head[f]; e >= 0; e = s.next[e] {
-		fn(s.vector(int(uint32(s.pairs.keys[e]))), s.hits[int(e)*s.n:(int(e)+1)*s.n])
-	}
 }
 
 // firstQuantum is the first grid once forecasts are too many: finer than
@@ -95,7 +116,8 @@ func (s *outcomeStore) entries(f int, fn func(p []float64, hits []uint32)) {
 const firstQuantum = 1.0 / (1 << 20)
 
 // coarsen rounds every forecast to a grid 16 times coarser than before
-// (the first: 2^-20) and merges the entries that meet.
+// (the first: 2^-20) and merges the entries that meet. Spilled runs keep
+// their ids; the remap is kept for reading them.
 func (s *outcomeStore) coarsen() {
 	if s.quantum == 0 {
 		s.quantum = firstQuantum
@@ -112,12 +134,10 @@ func (s *outcomeStore) coarsen() {
 		j, _ := s.forecasts.find(s.key, true)
 		remap[i] = int32(j)
 	}
-	hits, keys := s.hits, s.pairs.keys
-	s.pairs = newPairTable()
-	s.hits, s.next = nil, nil
-	for f := range s.head {
-		s.head[f] = -1
-	}
+	s.remaps = append(s.remaps, remap)
+	hits, keys := s.hits, slices.Clone(s.pairs.keys)
+	s.pairs.reset()
+	s.hits = nil
 	for e, key := range keys {
 		s.entry(int(key>>32), int(remap[uint32(key)]))
 		for k := range s.n {
@@ -128,6 +148,9 @@ func (s *outcomeStore) coarsen() {
 
 // vector returns forecast id.
 func (s *outcomeStore) vector(id int) []float64 { return s.forecasts.keys[id*s.n : (id+1)*s.n] }
+
+// close releases the temporary file, if any.
+func (s *outcomeStore) close() error { return s.spill.close() }
 
 // Grouping says how the decomposition saw forecasts: exactly, or rounded
 // to a grid because there were too many distinct ones.
@@ -145,6 +168,12 @@ type pairTable struct {
 }
 
 func newPairTable() pairTable { return pairTable{slots: make([]int32, 16)} }
+
+// reset empties the table, keeping its memory for the next run.
+func (t *pairTable) reset() {
+	clear(t.slots)
+	t.keys = t.keys[:0]
+}
 
 // find returns the entry of key, adding it as entry next when add is set;
 // made reports a new entry, and the index is -1 when absent and not added.

@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"math"
 	"scorewright/internal/num"
-	"strings"
 
 	"scorewright/contract/backtest/history"
 	"scorewright/generator/bregman"
@@ -136,42 +135,76 @@ func (m *moneyTally) money() Money {
 	return out
 }
 
-// smallTally is one forecaster's money under one scheme: a fixed 56
-// bytes, so that two million forecasters fit in memory. The smallest and
+// forecasterMoney is every forecaster's money under every scheme in a
+// few flat arrays: the count once per forecaster, a compensated sum of pay
+// and of effort and the off-menu count per forecaster and scheme (36
+// bytes), and the counts that are usually zero (payments out of bounds or
+// not finite) only for the forecasters that have them. The smallest and
 // largest payments are kept only for all forecasts together.
-type smallTally struct {
-	pay, effort          num.Sum
-	count, off, low      int32
-	high, nonFinite, fst int32
+type forecasterMoney struct {
+	schemes int
+	count   []int32
+	sums    []num.Sum // pay, effort; per forecaster and scheme
+	off     []int32   // per forecaster and scheme
+	rare    map[int32]rareMoney
 }
 
-func (m *smallTally) add(p Paid, line int, s *Scheme) {
-	m.count++
-	m.pay.Add(p.Pay)
-	m.effort.Add(p.Effort)
+// rareMoney is what a forecaster's payments under one scheme did wrong.
+type rareMoney struct{ low, high, nonFinite, first int32 }
+
+// grow makes room for one more forecaster.
+func (m *forecasterMoney) grow() {
+	m.count = append(m.count, 0)
+	m.sums = append(m.sums, make([]num.Sum, 2*m.schemes)...)
+	m.off = append(m.off, make([]int32, m.schemes)...)
+}
+
+// add counts forecaster f's payment p under scheme s (of schemes ss).
+func (m *forecasterMoney) add(f, i int, p Paid, line int, s *Scheme) {
+	j := f*m.schemes + i
+	if i == 0 {
+		m.count[f]++
+	}
+	m.sums[2*j].Add(p.Pay)
+	m.sums[2*j+1].Add(p.Effort)
 	if !p.OnMenu {
-		m.off++
+		m.off[j]++
 	}
 	bad := math.IsNaN(p.Pay) || math.IsInf(p.Pay, 0)
+	if !bad && p.Pay >= s.Low && p.Pay <= s.High {
+		return
+	}
+	r := m.rare[int32(j)]
+	defer func() { m.rare[int32(j)] = r }()
 	if bad {
-		m.nonFinite++
-		if m.fst == 0 {
-			m.fst = int32(min(line, math.MaxInt32))
+		r.nonFinite++
+		if r.first == 0 {
+			r.first = int32(min(line, math.MaxInt32))
 		}
 	}
 	if p.Pay < s.Low {
-		m.low++
+		r.low++
 	} else if p.Pay > s.High {
-		m.high++
+		r.high++
 	}
 }
 
-func (m *smallTally) money() Money {
-	out := Money{Count: int(m.count), Total: m.pay.Value(), OffMenu: int(m.off), BelowLow: int(m.low), AboveHigh: int(m.high),
-		NonFinite: int(m.nonFinite), FirstNonFinite: int(m.fst), Min: math.NaN(), Max: math.NaN()}
-	if m.count > 0 {
-		out.Mean = out.Total / float64(m.count)
-		out.MeanEffort = m.effort.Value() / float64(m.count)
+// mean is forecaster f's mean pay under scheme i.
+func (m *forecasterMoney) mean(f, i int) float64 {
+	return m.sums[2*(f*m.schemes+i)].Value() / float64(m.count[f])
+}
+
+// money is forecaster f's Money under scheme i.
+func (m *forecasterMoney) money(f, i int) Money {
+	j := f*m.schemes + i
+	c := int(m.count[f])
+	out := Money{Count: c, Total: m.sums[2*j].Value(), OffMenu: int(m.off[j]), Min: math.NaN(), Max: math.NaN()}
+	if r, ok := m.rare[int32(j)]; ok {
+		out.BelowLow, out.AboveHigh, out.NonFinite, out.FirstNonFinite = int(r.low), int(r.high), int(r.nonFinite), int(r.first)
+	}
+	if c > 0 {
+		out.Mean = out.Total / float64(c)
+		out.MeanEffort = m.sums[2*j+1].Value() / float64(c)
 	} else {
 		out.Mean, out.MeanEffort = math.NaN(), math.NaN()
 	}
@@ -189,9 +222,8 @@ type Tally struct {
 	opt     TallyOptions
 	eff     []float64
 	paid    []Paid
-	index   map[string]int32
-	names   []string
-	money   []smallTally // schemes per forecaster
+	names   nameIndex
+	money   forecasterMoney
 	last    int
 	all     []moneyTally
 	months  map[history.Month][]moneyTally
@@ -216,6 +248,14 @@ type TallyOptions struct {
 	// Show is how many forecasters at each end of the ranking the Result
 	// details when there are more than 4·Show; 0 means DefaultShow.
 	Show int
+	// MaxPairs bounds the (forecaster, forecast) entries kept in memory;
+	// past it they go to a temporary file in SpillDir (empty: the
+	// system's). 0 means DefaultMaxPairs.
+	MaxPairs int
+	SpillDir string
+	// finalsLimit is the most bytes of decomposition figures EachForecaster
+	// keeps in memory (0: finalsInMemory); tests lower it.
+	finalsLimit int
 }
 
 // DefaultGrid gives bins a tenth wide in each probability.
@@ -237,7 +277,8 @@ func NewTally(schemes []Scheme, opt TallyOptions) (*Tally, error) {
 	if opt.Show <= 0 {
 		opt.Show = DefaultShow
 	}
-	t := &Tally{schemes: schemes, n: n, opt: opt, index: map[string]int32{}, last: -1, months: map[history.Month][]moneyTally{}}
+	t := &Tally{schemes: schemes, n: n, opt: opt, names: newNameIndex(), last: -1, months: map[history.Month][]moneyTally{},
+		money: forecasterMoney{schemes: len(schemes), rare: map[int32]rareMoney{}}}
 	for i := range schemes {
 		s := &schemes[i]
 		if s.Rule.Outcomes() != n {
@@ -248,7 +289,7 @@ func NewTally(schemes []Scheme, opt TallyOptions) (*Tally, error) {
 		}
 		t.scorers = append(t.scorers, s.Rule.NewScorer())
 	}
-	t.store = newOutcomeStore(n, opt.MaxDistinct)
+	t.store = newOutcomeStore(n, opt.MaxDistinct, opt.MaxPairs, opt.SpillDir)
 	t.eff = make([]float64, n)
 	t.adj = make([]float64, n)
 	t.rec = make([]float64, n)
@@ -297,7 +338,6 @@ func (t *Tally) AddDated(forecaster string, line, y int, p []float64, month hist
 			t.months[month] = mt
 		}
 	}
-	fm := t.money[f*len(t.schemes) : (f+1)*len(t.schemes)]
 	for i := range t.schemes {
 		s := &t.schemes[i]
 		var pd Paid
@@ -308,7 +348,7 @@ func (t *Tally) AddDated(forecaster string, line, y int, p []float64, month hist
 			pd = t.one[y]
 		}
 		t.paid[i] = pd
-		fm[i].add(pd, line, s)
+		t.money.add(f, i, pd, line, s)
 		t.all[i].add(pd, line, s)
 		if mt != nil {
 			mt[i].add(pd, line, s)
@@ -343,20 +383,24 @@ func (t *Tally) scoreAll(s int, p []float64, dst []Paid) {
 }
 
 // forecaster finds (or makes) a forecaster's index; consecutive rows by
-// the same forecaster, the usual layout, skip the map.
+// the same forecaster, the usual layout, skip the lookup.
 func (t *Tally) forecaster(name string) int {
-	if t.last >= 0 && t.names[t.last] == name {
+	if t.last >= 0 && string(t.names.bytes(t.last)) == name {
 		return t.last
 	}
-	i, ok := t.index[name]
-	if !ok {
-		name = strings.Clone(name) // the caller's string may point into a reused buffer
-		i = int32(len(t.names))
-		t.index[name] = i
-		t.names = append(t.names, name)
-		t.money = append(t.money, make([]smallTally, len(t.schemes))...)
-		t.store.addForecaster()
+	i, made := t.names.find(name)
+	if made {
+		t.money.grow()
 	}
-	t.last = int(i)
-	return t.last
+	t.last = i
+	return i
 }
+
+// Err reports a failure to keep the forecasts (the temporary file they
+// overflow into could not be written); the tally then counts money but
+// no longer the decompositions.
+func (t *Tally) Err() error { return t.store.err }
+
+// Close removes the temporary file the tally may have made. The Result
+// needs it until then.
+func (t *Tally) Close() error { return t.store.close() }

@@ -51,7 +51,7 @@ func TestPayExplicit(t *testing.T) {
 			t.Errorf("p=%g y=%d: paid %+v, want effort %g pay %g on menu %v", c.p, c.y, paid[0], c.effort, want, c.on)
 		}
 	}
-	m := tl.Result().Forecasters[0].Money[0]
+	m := result(t, tl).Forecasters[0].Money[0]
 	if m.Count != 4 || math.Abs(m.Total-total) > 1e-12 || m.OffMenu != 1 || m.BelowLow+m.AboveHigh != 0 {
 		t.Errorf("money %+v, want 4 forecasts, total %g, 1 off the menu, none out of bounds", m, total)
 	}
@@ -64,7 +64,7 @@ func TestNonFinitePay(t *testing.T) {
 	tl, _ := NewTally([]Scheme{{Name: "log", Rule: lg, Pay: Affine{A: 5, B: 1}, Low: 0, High: math.Inf(1)}}, TallyOptions{})
 	tl.Add("Birch", 2, 0, []float64{0.5, 0.5})
 	tl.Add("Birch", 3, 1, []float64{1, 0})
-	m := tl.Result().All[0]
+	m := result(t, tl).All[0]
 	if m.NonFinite != 1 || m.FirstNonFinite != 3 || !math.IsInf(m.Total, -1) || m.BelowLow != 1 {
 		t.Errorf("money %+v, want one non-finite payment on line 3, total -Inf, one below the floor", m)
 	}
@@ -90,7 +90,7 @@ func TestRanks(t *testing.T) {
 			tl.Add(who.name, i+2, 0, []float64{who.f, 1 - who.f})
 		}
 	}
-	res := tl.Result()
+	res := result(t, tl)
 	want := map[string][2]int{"Alder": {1, 2}, "Birch": {3, 1}, "Cedar": {1, 2}}
 	for _, f := range res.Forecasters {
 		if w := want[f.Name]; f.Rank[0] != w[0] || f.Rank[1] != w[1] {
@@ -243,7 +243,7 @@ func TestDecompositionOfPaidForecasts(t *testing.T) {
 	tl.Add("Birch", 3, 1, []float64{1, 0})
 	tl.Add("Birch", 4, 0, []float64{0.5, 0.5})
 	tl.Add("Birch", 5, 1, []float64{0.5, 0.5})
-	d := tl.Result().Forecasters[0].Decomposition[0]
+	d := result(t, tl).Forecasters[0].Decomposition[0]
 	rel := 0.5 * (-math.Log(2) - (math.Log(0.99)+math.Log(0.01))/2)
 	mean := (-math.Log(0.99) - math.Log(0.01) + 2*math.Log(2)) / 4
 	if math.Abs(d.Uncertainty-math.Log(2)) > 1e-12 || math.Abs(d.Resolution) > 1e-12 || math.Abs(d.Reliability-rel) > 1e-12 ||

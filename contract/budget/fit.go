@@ -8,6 +8,7 @@ import (
 	"scorewright/generator/bregman"
 	"scorewright/generator/design"
 	"scorewright/internal/num"
+	"scorewright/internal/simplex"
 )
 
 // Fit is a rule fitted to a budget on a menu: pay = A - B·L(p, k) with
@@ -313,16 +314,6 @@ func (f *Fit) BestItem(q []float64) int {
 	return best
 }
 
-// beliefResolution is the largest K <= kmax whose simplex grid over n
-// outcomes has at most limit points.
-func beliefResolution(n, kmax int, limit float64) int {
-	K := kmax
-	for K > 1 && gridCount(K, n) > limit {
-		K--
-	}
-	return K
-}
-
 // truthfulRange searches the expected pay of a truthful forecaster,
 // A - B·H(q) (at the report the contract pays for q: raised to the report
 // floor, clamped), over a grid of beliefs. H is concave,
@@ -330,13 +321,13 @@ func beliefResolution(n, kmax int, limit float64) int {
 // smallest is where H peaks, which the grid finds to within its spacing.
 func (f *Fit) truthfulRange(s *bregman.Scorer) TruthfulRange {
 	n := len(f.Labels)
-	K := beliefResolution(n, 1000, 20000)
+	K := simplex.Resolution(n, 1000, 20000)
 	tr := TruthfulRange{Min: math.Inf(1), Max: math.Inf(-1)}
 	cp := make([]float64, n)
 	skipped := 0
 	// The grid, plus the uniform belief (where symmetric generators peak)
 	// and the menu items.
-	beliefs := SimplexGrid(K, n)
+	beliefs := simplex.Vectors(n, K)
 	uniform := make([]float64, n)
 	for k := range uniform {
 		uniform[k] = 1 / float64(n)
@@ -356,7 +347,7 @@ func (f *Fit) truthfulRange(s *bregman.Scorer) TruthfulRange {
 			tr.Max, tr.MaxBelief = v, q
 		}
 	}
-	tr.Grid = fmt.Sprintf("beliefs on a simplex grid of step 1/%d (%.0f points), the uniform belief and the menu items", K, gridCount(K, n))
+	tr.Grid = fmt.Sprintf("beliefs on a simplex grid of step 1/%d (%.0f points), the uniform belief and the menu items", K, gridSize(n, K))
 	if skipped > 0 {
 		tr.Grid += fmt.Sprintf("; %d beliefs where the rule is not finite left out", skipped)
 	}

@@ -7,9 +7,9 @@ import (
 	"io"
 	"math"
 	"regexp"
-	"slices"
 	"strconv"
 	"strings"
+	"unicode/utf8"
 
 	"github.com/BurntSushi/toml"
 
@@ -89,16 +89,17 @@ func (d *Design) Validate() error {
 	case d.Version > SchemaVersion:
 		return fmt.Errorf("version: %d is newer than this build understands (%d)", d.Version, SchemaVersion)
 	}
-	if !slices.Contains(Modes, d.Mode) {
+	mt, known := traits(d.Mode)
+	if !known {
 		if d.Mode == "" {
 			return fmt.Errorf("mode: missing; one of %s", modeList())
 		}
 		return fmt.Errorf("mode: %q is not one of %s", d.Mode, modeList())
 	}
-	if d.Mode == ModePayout && d.Interval != nil {
-		return fmt.Errorf(`mode: a payout with an interval is a point-forecast payout; say mode = %q`, ModePointPayout)
+	if mt.withInterval != "" && d.Interval != nil {
+		return fmt.Errorf(`mode: a payout with an interval is a point-forecast payout; say mode = %q`, mt.withInterval)
 	}
-	if !d.Mode.OnInterval() {
+	if !mt.onInterval {
 		if n := d.N(); n < 2 || n > formula.MaxOutcomes {
 			return fmt.Errorf("outcomes: %d labels; need 2..%d", n, formula.MaxOutcomes)
 		}
@@ -113,8 +114,8 @@ func (d *Design) Validate() error {
 			seen[l] = true
 		}
 	}
-	if d.Mode == ModeEmphasis && d.N() != 2 {
-		return fmt.Errorf("mode: emphasis designs are for 2 outcomes, the design has %d", d.N())
+	if mt.outcomes > 0 && d.N() != mt.outcomes {
+		return fmt.Errorf("mode: %s designs are for %d outcomes, the design has %d", d.Mode, mt.outcomes, d.N())
 	}
 	if strings.TrimSpace(d.Formula) == "" && d.Preset == "" {
 		return errors.New("formula: empty, and no preset named")
@@ -138,7 +139,7 @@ func (d *Design) Validate() error {
 			return fmt.Errorf("params.%s: %g is not a finite number", name, v)
 		}
 	}
-	if d.Mode.OnInterval() {
+	if mt.onInterval {
 		if len(d.Interval) != 2 || !(d.Interval[0] < d.Interval[1]) || math.IsInf(d.Interval[0], 0) || math.IsInf(d.Interval[1], 0) {
 			return errors.New("interval: point designs need interval = [lo, hi] with lo < hi")
 		}
@@ -162,8 +163,8 @@ func modeList() string {
 // payout with an interval was a point-forecast payout before that mode
 // had its own name.
 func (d *Design) upgrade() {
-	if d.Mode == ModePayout && len(d.Interval) == 2 {
-		d.Mode = ModePointPayout
+	if t, _ := traits(d.Mode); t.withInterval != "" && len(d.Interval) == 2 {
+		d.Mode = t.withInterval
 	}
 }
 
@@ -172,7 +173,16 @@ func (d *Design) upgrade() {
 // its width), in every other mode a probability step.
 func (d *Design) ValidateBudget() error {
 	if !d.Mode.OnInterval() {
-		return d.Budget.Validate()
+		if err := d.Budget.Validate(); err != nil {
+			return err
+		}
+		if n := d.N(); n >= 2 && d.Budget.Clamp*float64(n) >= 1 {
+			return fmt.Errorf("budget.clamp: %g; with %d outcomes it must be below 1/%d", d.Budget.Clamp, n, n)
+		}
+		return nil
+	}
+	if d.Budget.Clamp != 0 || d.Budget.Menu != "" {
+		return errors.New("budget.clamp and budget.menu are for rules over outcomes; a point-forecast menu is budget.step in the units of the interval")
 	}
 	b := d.Budget
 	step := b.Step
@@ -197,7 +207,7 @@ func (b *Budget) Validate() error {
 	for _, f := range []struct {
 		n string
 		v float64
-	}{{"floor", b.Floor}, {"cap", b.Cap}, {"step", b.Step}, {"unit", b.Unit}, {"report_floor", b.ReportFloor}} {
+	}{{"floor", b.Floor}, {"cap", b.Cap}, {"step", b.Step}, {"unit", b.Unit}, {"report_floor", b.ReportFloor}, {"clamp", b.Clamp}} {
 		if err := fin(f.n, f.v); err != nil {
 			return err
 		}
@@ -211,6 +221,15 @@ func (b *Budget) Validate() error {
 	if b.ReportFloor < 0 || b.ReportFloor >= 0.5 {
 		return fmt.Errorf("budget.report_floor: %g; must be in [0, 0.5)", b.ReportFloor)
 	}
+	if b.Clamp < 0 || b.Clamp >= 0.5 {
+		return fmt.Errorf("budget.clamp: %g; must be in [0, 0.5) (0: none)", b.Clamp)
+	}
+	if err := checkMenuPath(b.Menu); err != nil {
+		return err
+	}
+	if b.Menu != "" && b.Step != 0 {
+		return fmt.Errorf("budget: menu %q and step %g are both set; the menu file replaces the step's grid, so give one", b.Menu, b.Step)
+	}
 	switch b.Rounding {
 	case "", "nearest", "down", "up":
 	default:
@@ -223,6 +242,20 @@ func (b *Budget) Validate() error {
 	}
 	if b.MeanPay == nil && b.Cap != 0 && !(b.Cap > b.Floor) {
 		return fmt.Errorf("budget: cap %g must be above floor %g", b.Cap, b.Floor)
+	}
+	return nil
+}
+
+// MaxMenuPath bounds the menu file's name.
+const MaxMenuPath = 4096
+
+// checkMenuPath says what is wrong with a menu file name, or returns nil.
+func checkMenuPath(p string) error {
+	switch {
+	case len(p) > MaxMenuPath:
+		return fmt.Errorf("budget.menu: a path of %d bytes; at most %d", len(p), MaxMenuPath)
+	case !utf8.ValidString(p) || strings.ContainsAny(p, "\n\r\x00"):
+		return errors.New("budget.menu: the path must be one line of text")
 	}
 	return nil
 }
