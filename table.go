@@ -10,7 +10,6 @@ import (
 	"scorewright/contract/lottery"
 	"scorewright/contract/table"
 	"scorewright/generator/bregman"
-	"scorewright/generator/point"
 )
 
 // Errors of Table that callers word in their own terms (flags on the
@@ -32,8 +31,8 @@ type Table struct {
 	Fit     *budget.Fit
 	Recheck *budget.Recheck
 
-	Point        *point.Table
-	PointRecheck *point.Recheck
+	Point        *budget.PointTable
+	PointRecheck *budget.PointRecheck
 }
 
 // MenuFunc builds the report menu of a rule over n outcomes (from a file,
@@ -124,8 +123,8 @@ func (r *Rule) pointTable(ctx context.Context) (*Table, error) {
 	case !(b.Cap > b.Floor):
 		return nil, ErrNoCap
 	}
-	t, err := r.point.BuildTable(ctx, point.TableSpec{Floor: b.Floor, Cap: b.Cap, Step: b.Step, Unit: b.Unit, Rounding: b.Rounding})
-	if errors.Is(err, point.ErrUnbounded) {
+	t, err := budget.FitPoint(ctx, r.point, budget.PointSpec{Floor: b.Floor, Cap: b.Cap, Step: b.Step, Unit: b.Unit, Rounding: b.Rounding})
+	if errors.Is(err, budget.ErrPointUnbounded) {
 		return nil, fmt.Errorf("%w; narrow the interval so the effort stays finite", err)
 	}
 	if err != nil {
@@ -168,7 +167,7 @@ func (t *Table) Bounds() (lo, hi float64) {
 func (r *Rule) Export(t *Table, version, date string) *table.Table {
 	d := r.d
 	if t.Point != nil {
-		tb := t.Point.Export(t.PointRecheck, point.Info{Title: d.Title, Preset: d.Preset, Params: d.Params, Version: version, Date: date})
+		tb := t.Point.Export(t.PointRecheck, budget.PointInfo{Title: d.Title, Preset: d.Preset, Params: d.Params, Version: version, Date: date})
 		tb.Meta.Currency = d.Contract.Currency
 		return tb
 	}

@@ -396,7 +396,7 @@ func (p *DesignPane) cycleMode(d *design.Design, up bool) {
 	if s, ok := p.stepByMode[d.Mode.OnInterval()]; ok {
 		d.Budget.Step = s
 	} else if d.Mode.OnInterval() {
-		d.Budget.Step = 0 // BuildTable's default: a twentieth of the interval
+		d.Budget.Step = 0 // budget.FitPoint's default: a twentieth of the interval
 	}
 	if d.Mode.OnInterval() && len(d.Interval) != 2 {
 		d.Interval = defaultInterval()

@@ -38,7 +38,7 @@
 // payout compared with the generator presets to name it), emphasis (n = 2, a weight w(c) through
 // `generator/emphasis`; its warnings show under the formula) and point forecast of a mean (an
 // interval row replaces the outcomes; `generator/point` and `verify/pointcheck`; the table is the point
-// table: the budget pane shows its re-check verdict and margin (`point.Table.Recheck`, exact on the
+// table: the budget pane shows its re-check verdict and margin (`budget.PointTable.Recheck`, exact on the
 // rounded table, the verdict's wording in the notes), and it exports through contract/table in
 // every format; a table that fails the re-check is refused, with nothing written, exactly as for
 // tables over outcomes and as `scorewright table` without `--force`) and, after it on the mode row,

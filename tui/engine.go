@@ -18,7 +18,6 @@ import (
 	"scorewright/contract/lottery"
 	"scorewright/contract/table"
 	"scorewright/generator/design"
-	"scorewright/generator/point"
 	"scorewright/internal/num"
 	"scorewright/internal/safefile"
 	"scorewright/verify"
@@ -199,7 +198,7 @@ const (
 
 // pointTableView is the preview of a point-forecast table: reports down,
 // outcome values across.
-func pointTableView(t *point.Table, rc *point.Recheck) *TableView {
+func pointTableView(t *budget.PointTable, rc *budget.PointRecheck) *TableView {
 	tv := &TableView{Passed: rc.Passed, MinMargin: rc.MinMargin, Notes: append([]string{"re-check: " + rc.Verdict(t)}, t.Notes...)}
 	tv.Header = []string{"report \\ outcome"}
 	for _, y := range t.Outcomes {

@@ -7,7 +7,6 @@ import (
 	"io"
 	"math"
 	"regexp"
-	"slices"
 	"strconv"
 	"strings"
 	"unicode/utf8"
@@ -90,16 +89,17 @@ func (d *Design) Validate() error {
 	case d.Version > SchemaVersion:
 		return fmt.Errorf("version: %d is newer than this build understands (%d)", d.Version, SchemaVersion)
 	}
-	if !slices.Contains(Modes, d.Mode) {
+	mt, known := traits(d.Mode)
+	if !known {
 		if d.Mode == "" {
 			return fmt.Errorf("mode: missing; one of %s", modeList())
 		}
 		return fmt.Errorf("mode: %q is not one of %s", d.Mode, modeList())
 	}
-	if d.Mode == ModePayout && d.Interval != nil {
-		return fmt.Errorf(`mode: a payout with an interval is a point-forecast payout; say mode = %q`, ModePointPayout)
+	if mt.withInterval != "" && d.Interval != nil {
+		return fmt.Errorf(`mode: a payout with an interval is a point-forecast payout; say mode = %q`, mt.withInterval)
 	}
-	if !d.Mode.OnInterval() {
+	if !mt.onInterval {
 		if n := d.N(); n < 2 || n > formula.MaxOutcomes {
 			return fmt.Errorf("outcomes: %d labels; need 2..%d", n, formula.MaxOutcomes)
 		}
@@ -114,8 +114,8 @@ func (d *Design) Validate() error {
 			seen[l] = true
 		}
 	}
-	if d.Mode == ModeEmphasis && d.N() != 2 {
-		return fmt.Errorf("mode: emphasis designs are for 2 outcomes, the design has %d", d.N())
+	if mt.outcomes > 0 && d.N() != mt.outcomes {
+		return fmt.Errorf("mode: %s designs are for %d outcomes, the design has %d", d.Mode, mt.outcomes, d.N())
 	}
 	if strings.TrimSpace(d.Formula) == "" && d.Preset == "" {
 		return errors.New("formula: empty, and no preset named")
@@ -139,7 +139,7 @@ func (d *Design) Validate() error {
 			return fmt.Errorf("params.%s: %g is not a finite number", name, v)
 		}
 	}
-	if d.Mode.OnInterval() {
+	if mt.onInterval {
 		if len(d.Interval) != 2 || !(d.Interval[0] < d.Interval[1]) || math.IsInf(d.Interval[0], 0) || math.IsInf(d.Interval[1], 0) {
 			return errors.New("interval: point designs need interval = [lo, hi] with lo < hi")
 		}
@@ -163,8 +163,8 @@ func modeList() string {
 // payout with an interval was a point-forecast payout before that mode
 // had its own name.
 func (d *Design) upgrade() {
-	if d.Mode == ModePayout && len(d.Interval) == 2 {
-		d.Mode = ModePointPayout
+	if t, _ := traits(d.Mode); t.withInterval != "" && len(d.Interval) == 2 {
+		d.Mode = t.withInterval
 	}
 }
 

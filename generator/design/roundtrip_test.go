@@ -102,3 +102,30 @@ func TestOlderPointPayoutOpens(t *testing.T) {
 		t.Errorf("mode %q, want %q", d.Mode, ModePointPayout)
 	}
 }
+
+// Every mode the workbench cycles through is described, and the
+// descriptions say what the modes are (derived from their definitions).
+func TestEveryModeDescribed(t *testing.T) {
+	want := map[Mode][2]bool{ // on an interval, a payout
+		ModeGenerator: {false, false}, ModePayout: {false, true}, ModeEmphasis: {false, false},
+		ModePoint: {true, false}, ModePointPayout: {true, true},
+	}
+	if len(Modes) != len(want) {
+		t.Fatalf("Modes has %d entries, the test knows %d", len(Modes), len(want))
+	}
+	for _, m := range Modes {
+		if _, ok := traits(m); !ok {
+			t.Fatalf("mode %q has no traits", m)
+		}
+		if got := [2]bool{m.OnInterval(), m.Payout()}; got != want[m] {
+			t.Errorf("mode %q: on interval, payout = %v, want %v", m, got, want[m])
+		}
+	}
+	if _, ok := traits("lottery"); ok {
+		t.Fatal("an unknown mode has traits")
+	}
+	d := &Design{Version: SchemaVersion, Mode: ModeEmphasis, Labels: []string{"a", "b", "c"}, Formula: "1"}
+	if err := d.Validate(); err == nil || err.Error() != "mode: emphasis designs are for 2 outcomes, the design has 3" {
+		t.Fatalf("emphasis with 3 outcomes: %v", err)
+	}
+}
