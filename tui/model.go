@@ -207,8 +207,14 @@ func (m *Model) RiskInputs() RiskInputs { return m.riskIn }
 // Status is the status line's message.
 func (m *Model) Status() string { return m.status }
 
-// Close cancels every background job; call it after the program ends.
-func (m *Model) Close() { m.cancelAll() }
+// Close cancels every background job and stops recovery writes; call it
+// after the program ends.
+func (m *Model) Close() {
+	m.cancelAll()
+	if m.rec != nil {
+		m.rec.Close()
+	}
+}
 
 // Update routes a message. It does no work itself: everything slow runs in
 // the commands it returns.
