@@ -281,6 +281,9 @@ func (m *Model) jobMsg(msg tea.Msg) tea.Cmd {
 			m.checks.finished(inner.report, inner.err)
 		}
 		return nil
+	case proposeProgressMsg, proposeDoneMsg:
+		m.proposeMsg(msg)
+		return nil
 	case fitProgressMsg:
 		if msg.gen == m.gen {
 			m.budget.progressed(msg.done, msg.total)

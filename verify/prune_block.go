@@ -166,20 +166,32 @@ func blockBound(a, b, lo []float64) float64 {
 }
 
 // single settles a belief with zero coordinates against a menu with
-// infinite efforts, as the full stream does (see menu.safe): the tree
-// walk over the substituted rows, or the support scan.
+// infinite efforts (see settle).
 func (bw *blockWork) single(t *reportTree, m *menu, q []float64) best {
+	b, c := t.settle(q, m, true)
+	bw.visited += c
+	return b
+}
+
+// settle finds the best two for one belief as the full stream does,
+// choosing the rows by the belief's support (see menu.safe): the walk
+// over the rows, over the substituted rows (the winners' values then
+// recomputed with 0·Inf = 0), or the support scan. It also returns the
+// pairs evaluated.
+func (t *reportTree) settle(q []float64, m *menu, boundary bool) (best, int64) {
+	if !m.infinite || !boundary {
+		b, c := t.walk(q, false)
+		return b, int64(c)
+	}
 	if m.safe == nil {
-		bw.visited += int64(len(m.bad))
-		return scanSupport(q, m.rows, m.n)
+		return scanSupport(q, m.rows, m.n), int64(len(m.bad))
 	}
 	b, c := t.walk(q, true)
-	bw.visited += int64(c)
 	if b.arg >= 0 {
 		b.m1 = m.phi(q, int(b.arg))
 	}
 	if b.arg2 >= 0 {
 		b.m2 = m.phi(q, int(b.arg2))
 	}
-	return b
+	return b, int64(c)
 }
