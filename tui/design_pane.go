@@ -95,7 +95,7 @@ type DesignPane struct {
 func NewDesignPane(st Styles, keys KeyMap, d *design.Design) DesignPane {
 	ta := textarea.New()
 	ta.ShowLineNumbers = false
-	ta.Prompt = "┃ "
+	ta.Prompt = " ▏"
 	// No limit of the editor's own: it would cut a longer formula, opened
 	// or pasted, without a word. The language's limit is enforced in
 	// Update, with a message.

@@ -111,7 +111,20 @@
 // it replaces the cap, whose row then says it is not used): → from "none" starts at three quarters
 // of the way from floor to cap, ← below the floor or typing 0 clears it. Point designs refuse the
 // fields of rules over outcomes. Every edit cancels the running fit; the next one shows its
-// progress (the re-check's beliefs) in the pane.
+// progress (the re-check's beliefs) in the pane. The table shows each row's re-check margin and
+// marks the rows whose report ties with another (TIE) or is beaten (BEATEN) for its own belief, in a
+// first column so a narrow pane keeps it. The propose key (f, `tui/propose.go`) runs
+// `Rule.Propose` in the background (progress, cancelled by any edit): the coarsest currency unit
+// the re-check passes with, and for a failing table the smallest cap; the digit keys take one.
+//
+// Look (`tui/header.go`, `tui/chrome.go`, `NewStyles`): the header names the design (and its file,
+// or "not saved yet", and whether it is edited), the view shown, and the verdict with its kind —
+// "certified" when the interval certificate decided it, "grid evidence" otherwise — or that a check
+// runs. Panes are brackets, not boxes: a rule down the left and along the bottom, heavy for the
+// focused pane and light and dashed for the others, the title on the first line. Dialogs have a
+// half-block edge. The palette is ochre (focus, keys), slate (frames, secondary text), sage and brick
+// (pass, fail); nothing depends on colour alone. The footer is our own key line: each key and what it
+// does with wide gaps, "? all keys" first, cut with … where it does not fit.
 //
 // Layout: below 120×40 the design pane fills the left half, the picture sits top right over
 // whichever of checks and budget was focused last; from 120×40 all four panes show. Below 80×24

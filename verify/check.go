@@ -126,12 +126,18 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	if err != nil {
 		return nil, err
 	}
-	bs, err := stream(ctx, g, m, s.Workers, pr)
+	proved := s.Proof.proves()
+	var bs []best
+	if proved {
+		bs, rep.Grid.Pairs, err = provedStream(ctx, g, m, s.Workers, pr)
+	} else {
+		bs, err = stream(ctx, g, m, s.Workers, pr)
+	}
 	if err != nil {
 		return nil, err
 	}
 	prop, nonneg, ties := properness(g, m, h, bs, s.Tolerance, rep.Grid.Scale)
-	if g.Sampled {
+	if g.Sampled && !proved {
 		if err := searchReports(ctx, g, &prop, s, func(int) func(q, p []float64) float64 {
 			sc := r.NewScorer()
 			eff := make([]float64, n)
@@ -192,7 +198,25 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	default:
 		rep.Verdict = Proper
 	}
+	if proved {
+		restOnProof(rep, s.Proof, rep.Grid.Boundary)
+	}
 	return rep, nil
+}
+
+// restOnProof gives a check that streamed only what a proof leaves the
+// proof's verdict and kind, unless the grid contradicts it: then the
+// grid's improper verdict stands, as grid evidence, and a note says so.
+func restOnProof(rep *Report, p *Proof, boundaryReports int) {
+	if rep.Verdict == Improper {
+		rep.Notes = append(rep.Notes, "the grid contradicts the proof handed in ("+p.Statement+"): the grid's verdict stands")
+		return
+	}
+	rep.Verdict, rep.Proof = p.Verdict, p
+	if c := rep.Check(NameProperness); c != nil {
+		c.Strict = p.Verdict == StrictlyProper
+		c.Note = provedNote(*c, p, boundaryReports)
+	}
 }
 
 // StrictFloor is the rounding floor strictness is judged against: an
@@ -216,7 +240,10 @@ func sharpenedNote(c CheckResult) string {
 	if !c.Sharpened {
 		return ""
 	}
-	return fmt.Sprintf("sharpened beyond the grid by Nelder–Mead (%s) from %.6g at the unsharpened witness", c.Status, c.GridWorst)
+	if fmt.Sprintf("%.6g", c.Worst) == fmt.Sprintf("%.6g", c.GridWorst) {
+		return fmt.Sprintf("a local search between the grid points, from the grid's worst case, found nothing worse (the search %s)", c.Status)
+	}
+	return fmt.Sprintf("worse between the grid points: a local search from the grid's worst case, %.6g, found %.6g (the search %s)", c.GridWorst, c.Worst, c.Status)
 }
 
 func concavityWitness(c CheckResult) string {

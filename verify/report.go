@@ -38,6 +38,17 @@ type Settings struct {
 	// 1..n. Only an audit reads them: a generator's rule names its own.
 	Labels []string
 
+	// Proof, when set, is a proof (a certificate) that the rule is proper
+	// or strictly proper over the whole simplex. CheckRule then leaves
+	// out the pairs the proof settles, interior beliefs against interior
+	// reports, and streams only what it still serves: every boundary
+	// belief against every report, and every interior belief against the
+	// boundary reports (whose efforts are limits the proof of H's
+	// concavity does not see computed). An audit ignores it. A proof of
+	// impropriety is no Proof: the full stream then finds the worst
+	// misreport.
+	Proof *Proof
+
 	// maxPointsAsked records that MaxPoints came from the caller, not from
 	// the machine's memory, so that a sampled grid can say why.
 	maxPointsAsked bool
@@ -88,6 +99,19 @@ func (s Settings) withDefaults(n int) Settings {
 	return s
 }
 
+// Proof is what a certificate proved, handed to a check.
+type Proof struct {
+	// Verdict is Proper or StrictlyProper.
+	Verdict Verdict
+	// Statement says what proved it, in a sentence (the certificate's).
+	Statement string
+}
+
+// proves reports whether p is a proof the check can rest on.
+func (p *Proof) proves() bool {
+	return p != nil && (p.Verdict == Proper || p.Verdict == StrictlyProper)
+}
+
 // Verdict is the summary of a check.
 type Verdict string
 
@@ -124,7 +148,8 @@ type Grid struct {
 	// Interior and Boundary count the points with every coordinate
 	// positive and with some coordinate 0.
 	Interior, Boundary int
-	// Pairs is the number of belief–report pairs streamed.
+	// Pairs is the number of belief–report pairs the check settled: G²,
+	// or fewer when a proof settled the rest (Report.Proof).
 	Pairs int64
 }
 
@@ -215,8 +240,12 @@ type CheckResult struct {
 // Report is the result of CheckRule.
 type Report struct {
 	Verdict Verdict
-	Grid    Grid
-	Checks  []CheckResult
+	// Proof is set when the verdict rests on Settings.Proof (its kind is
+	// then "certified"; the grid checked what the proof does not cover),
+	// nil when the verdict is grid evidence.
+	Proof  *Proof
+	Grid   Grid
+	Checks []CheckResult
 	// Notes are findings worth a sentence that are not failures, such as
 	// infinite effort on the boundary.
 	Notes []string

@@ -110,14 +110,14 @@ type best struct {
 }
 
 // stream finds, for every belief of g, the best and second-best report of
-// the menu by expected effort. It walks the report tree (prune.go), which
-// skips boxes of reports that cannot enter the best two, and returns
-// exactly what streamFull returns. Beliefs are handed out one at a time,
-// so cancellation is seen after at most G pairs; progress counts the G
-// pairs each belief settles, visited or pruned.
+// the menu by expected effort. It walks the report tree (prune.go,
+// prune_block.go), which skips boxes of reports that cannot enter the best
+// two, and returns exactly what streamFull returns. Beliefs are handed out
+// a leaf (at most leafSize beliefs) at a time, so cancellation is seen
+// after at most leafSize·G pairs; progress counts the G pairs each belief
+// settles, visited or pruned.
 func stream(ctx context.Context, g *simplex.Grid, m *menu, w int, pr *pool.Meter) ([]best, error) {
-	t := newReportTree(g, m)
-	return streamWith(ctx, g, m, w, pr, func(q []float64, safe bool) best { return t.scan(q, safe) })
+	return streamPruned(ctx, g, m, w, pr, nil)
 }
 
 // streamFull is the full pair stream: every grid belief against every grid
@@ -134,7 +134,7 @@ func streamFull(ctx context.Context, g *simplex.Grid, m *menu, w int, pr *pool.M
 
 // streamWith runs find (the best two over the menu's rows, or over its
 // substituted rows when safe) for every belief, choosing the rows by the
-// belief's support: see menu.safe.
+// belief's support: see menu.safe (blockWork.single does the same).
 func streamWith(ctx context.Context, g *simplex.Grid, m *menu, w int, pr *pool.Meter, find func(q []float64, safe bool) best) ([]best, error) {
 	G := g.Len()
 	out := make([]best, G)

@@ -3,12 +3,15 @@ package main
 import (
 	"context"
 	"errors"
+	"flag"
 	"fmt"
 	"math"
 	"text/tabwriter"
 
 	"scorewright/contract/budget"
 	"scorewright/contract/risk"
+	"scorewright/generator/bregman"
+	"scorewright/generator/design"
 	"scorewright/internal/num"
 )
 
@@ -69,53 +72,18 @@ func runDistort(e *env, args []string) error {
 	if math.IsNaN(*wealth) || math.IsInf(*wealth, 0) {
 		return usagef("--wealth %g is not a finite number", *wealth)
 	}
-	d, err := rf.design()
+	d, rule, fitted, err := distortTerms(fs, rf, bf)
 	if err != nil {
 		return err
-	}
-	r, err := openRule(d)
-	if err != nil {
-		return err
-	}
-	if r.OnInterval() {
-		return usagef("distort works on rules over outcomes; it does not take point-forecast designs")
-	}
-	if err := bf.apply(fs, d); err != nil {
-		return err
-	}
-	rule, err := r.OverOutcomes()
-	if err != nil {
-		return usagef("%v", err)
 	}
 	n := rule.Outcomes()
-	fitted, err := budget.StepTerms(rule, d.Budget)
-	var ue *budget.UnboundedError
-	var me *budget.MenuError
-	switch {
-	case errors.As(err, &me):
-		return usagef("%v", me.Err)
-	case errors.As(err, &ue) && ue.AtZero:
-		// distort has no --clamp: a clamped rule has kinks, and its best
-		// report sits on them; the report floor is the one way out.
-		return usagef("the rule's effort is %v at report %s when %q happens: the rule is unbounded where a report gives an outcome probability 0; give --report-floor P (e.g. 0.01) so that every report gives each outcome at least P",
-			ue.Effort, num.Format(ue.Report), ue.Label)
-	case err != nil:
-		return fitError(err)
-	}
 	solver, err := risk.NewSolver(rule, risk.TermsContract(fitted), u, *wealth)
 	if err != nil {
 		return usagef("%v", err)
 	}
-	q := risk.DefaultBelief(d.Budget, n)
-	if *belief != "" {
-		if q, err = num.ParseDistribution(*belief, n); err != nil {
-			return usagef("--belief: %v", err)
-		}
-	}
-	for _, v := range q {
-		if v < d.Budget.ReportFloor {
-			return usagef("--belief %s gives an outcome less than the report floor %g", num.Format(q), d.Budget.ReportFloor)
-		}
+	q, err := distortBelief(*belief, d, n)
+	if err != nil {
+		return err
 	}
 	best, bestErr := solver.Best(q)
 	pick := risk.MenuPick(fitted, solver, q)
@@ -137,6 +105,63 @@ func runDistort(e *env, args []string) error {
 		return errFailed
 	}
 	return nil
+}
+
+// distortTerms opens the design of the flags, a rule over outcomes, and
+// fits it to its budget as a risk computation does (budget.StepTerms),
+// wording the errors in the command's flags.
+func distortTerms(fs *flag.FlagSet, rf *ruleFlags, bf *budgetFlags) (*design.Design, *bregman.Rule, *budget.Terms, error) {
+	d, err := rf.design()
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	r, err := openRule(d)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	if r.OnInterval() {
+		return nil, nil, nil, usagef("distort works on rules over outcomes; it does not take point-forecast designs")
+	}
+	if err := bf.apply(fs, d); err != nil {
+		return nil, nil, nil, err
+	}
+	rule, err := r.OverOutcomes()
+	if err != nil {
+		return nil, nil, nil, usagef("%v", err)
+	}
+	fitted, err := budget.StepTerms(rule, d.Budget)
+	var ue *budget.UnboundedError
+	var me *budget.MenuError
+	switch {
+	case errors.As(err, &me):
+		return nil, nil, nil, usagef("%v", me.Err)
+	case errors.As(err, &ue) && ue.AtZero:
+		// distort has no --clamp: a clamped rule has kinks, and its best
+		// report sits on them; the report floor is the one way out.
+		return nil, nil, nil, usagef("the rule's effort is %v at report %s when %q happens: the rule is unbounded where a report gives an outcome probability 0; give --report-floor P (e.g. 0.01) so that every report gives each outcome at least P",
+			ue.Effort, num.Format(ue.Report), ue.Label)
+	case err != nil:
+		return nil, nil, nil, fitError(err)
+	}
+	return d, rule, fitted, nil
+}
+
+// distortBelief is --belief read over n outcomes, or the budget's default
+// belief; it may give no outcome less than the report floor.
+func distortBelief(belief string, d *design.Design, n int) ([]float64, error) {
+	q := risk.DefaultBelief(d.Budget, n)
+	if belief != "" {
+		var err error
+		if q, err = num.ParseDistribution(belief, n); err != nil {
+			return nil, usagef("--belief: %v", err)
+		}
+	}
+	for _, v := range q {
+		if v < d.Budget.ReportFloor {
+			return nil, usagef("--belief %s gives an outcome less than the report floor %g", num.Format(q), d.Budget.ReportFloor)
+		}
+	}
+	return q, nil
 }
 
 // distortResult gathers what distort reports, for JSON and text alike.

@@ -107,83 +107,17 @@ func addRuleFlags(fs *flag.FlagSet) *ruleFlags {
 // everything; flags given beside it override its parameters.
 func (r *ruleFlags) design() (*design.Design, error) {
 	var d *design.Design
+	var err error
 	if r.file != "" {
-		if r.generator != "" || r.preset != "" || r.emphasis != "" || r.outcomes != "" {
-			return nil, usagef("--design gives the whole rule; do not combine it with --outcomes, --generator, --preset or --emphasis")
-		}
-		var err error
-		d, err = design.Load(r.file)
-		if err != nil {
-			return nil, usagef("%v", err)
-		}
-		// A preset name over a formula of the design's own is dropped:
-		// the record must name the rule that is computed.
-		presets.Settle(d)
+		d, err = r.fileDesign()
 	} else {
-		d = &design.Design{Version: design.SchemaVersion, Mode: design.ModeGenerator, Ordered: r.ordered}
-		sources := 0
-		for _, s := range []string{r.generator, r.preset, r.emphasis} {
-			if s != "" {
-				sources++
-			}
-		}
-		if sources != 1 {
-			return nil, usagef("give exactly one of --generator, --preset or --emphasis")
-		}
-		if r.interval != "" {
-			if r.emphasis != "" {
-				return nil, usagef("--interval needs --generator EXPR in x or --preset NAME of a point-forecast preset")
-			}
-			iv, err := num.ParseVector(r.interval)
-			if err != nil || len(iv) != 2 || !(iv[0] < iv[1]) {
-				return nil, usagef("--interval wants LO,HI with LO < HI, got %q", r.interval)
-			}
-			d.Mode, d.Interval, d.Formula = design.ModePoint, iv, r.generator
-			if err := applyPointPreset(d, r.preset); err != nil {
-				return nil, err
-			}
-		} else {
-			if r.outcomes == "" {
-				return nil, usagef("--outcomes is required (a count such as 3, or labels such as frost,clear)")
-			}
-			labels, err := design.ParseOutcomes(r.outcomes)
-			if err != nil {
-				return nil, usagef("--outcomes: %v", err)
-			}
-			d.Labels = labels
-			switch {
-			case r.preset != "":
-				d.Preset = r.preset
-				if err := presets.Apply(d); err != nil {
-					return nil, usagef("--preset: %v", err)
-				}
-			case r.emphasis != "":
-				if len(labels) != 2 {
-					return nil, usagef("--emphasis designs rules for 2 outcomes, not %d", len(labels))
-				}
-				d.Mode, d.Formula = design.ModeEmphasis, r.emphasis
-			default:
-				d.Formula = r.generator
-			}
-		}
+		d, err = r.flagDesign()
 	}
-	if r.ordered {
-		d.Ordered = true
+	if err != nil {
+		return nil, err
 	}
-	if len(r.params) > 0 {
-		if d.Params == nil {
-			d.Params = map[string]float64{}
-		}
-		for k, v := range r.params {
-			d.Params[k] = v
-		}
-	}
-	if r.weights != "" {
-		w, err := num.ParseVector(r.weights)
-		if err != nil {
-			return nil, usagef("--weights: %v", err)
-		}
-		d.Weights = w
+	if err := r.override(d); err != nil {
+		return nil, err
 	}
 	if d.Preset != "" && d.Formula == "" {
 		if err := presets.Apply(d); err != nil {
@@ -202,6 +136,96 @@ func (r *ruleFlags) design() (*design.Design, error) {
 		return nil, err
 	}
 	return d, nil
+}
+
+// fileDesign reads --design, which gives the whole rule.
+func (r *ruleFlags) fileDesign() (*design.Design, error) {
+	if r.generator != "" || r.preset != "" || r.emphasis != "" || r.outcomes != "" {
+		return nil, usagef("--design gives the whole rule; do not combine it with --outcomes, --generator, --preset or --emphasis")
+	}
+	d, err := design.Load(r.file)
+	if err != nil {
+		return nil, usagef("%v", err)
+	}
+	// A preset name over a formula of the design's own is dropped: the
+	// record must name the rule that is computed.
+	presets.Settle(d)
+	return d, nil
+}
+
+// flagDesign builds the design from exactly one of --generator, --preset
+// and --emphasis, on --interval or over --outcomes.
+func (r *ruleFlags) flagDesign() (*design.Design, error) {
+	d := &design.Design{Version: design.SchemaVersion, Mode: design.ModeGenerator, Ordered: r.ordered}
+	sources := 0
+	for _, s := range []string{r.generator, r.preset, r.emphasis} {
+		if s != "" {
+			sources++
+		}
+	}
+	if sources != 1 {
+		return nil, usagef("give exactly one of --generator, --preset or --emphasis")
+	}
+	if r.interval != "" {
+		if r.emphasis != "" {
+			return nil, usagef("--interval needs --generator EXPR in x or --preset NAME of a point-forecast preset")
+		}
+		iv, err := num.ParseVector(r.interval)
+		if err != nil || len(iv) != 2 || !(iv[0] < iv[1]) {
+			return nil, usagef("--interval wants LO,HI with LO < HI, got %q", r.interval)
+		}
+		d.Mode, d.Interval, d.Formula = design.ModePoint, iv, r.generator
+		if err := applyPointPreset(d, r.preset); err != nil {
+			return nil, err
+		}
+		return d, nil
+	}
+	if r.outcomes == "" {
+		return nil, usagef("--outcomes is required (a count such as 3, or labels such as frost,clear)")
+	}
+	labels, err := design.ParseOutcomes(r.outcomes)
+	if err != nil {
+		return nil, usagef("--outcomes: %v", err)
+	}
+	d.Labels = labels
+	switch {
+	case r.preset != "":
+		d.Preset = r.preset
+		if err := presets.Apply(d); err != nil {
+			return nil, usagef("--preset: %v", err)
+		}
+	case r.emphasis != "":
+		if len(labels) != 2 {
+			return nil, usagef("--emphasis designs rules for 2 outcomes, not %d", len(labels))
+		}
+		d.Mode, d.Formula = design.ModeEmphasis, r.emphasis
+	default:
+		d.Formula = r.generator
+	}
+	return d, nil
+}
+
+// override applies --ordered, --param and --weights over the design.
+func (r *ruleFlags) override(d *design.Design) error {
+	if r.ordered {
+		d.Ordered = true
+	}
+	if len(r.params) > 0 {
+		if d.Params == nil {
+			d.Params = map[string]float64{}
+		}
+		for k, v := range r.params {
+			d.Params[k] = v
+		}
+	}
+	if r.weights != "" {
+		w, err := num.ParseVector(r.weights)
+		if err != nil {
+			return usagef("--weights: %v", err)
+		}
+		d.Weights = w
+	}
+	return nil
 }
 
 // weightsUsed refuses outcome weights that the formula never reads: the

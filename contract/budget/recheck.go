@@ -104,13 +104,10 @@ type ClampGap struct {
 	Grid    string
 }
 
-// Recheck checks the rounded table of f: each item against every other
-// for the belief that is that item, then which item each belief on a
-// finer grid picks. It is a grid check: evidence, not proof.
-func (f *Fit) Recheck(ctx context.Context, set RecheckSettings) (*Recheck, error) {
-	m := f.Menu.Reports
-	M, n := len(m), len(f.Labels)
-	pays := make([]float64, 0, M*n)
+// flatPays is the table row after row, and the tie tolerance: tol when
+// positive, else 1e-9 × the largest payment (at least 1e-9).
+func (f *Fit) flatPays(tol float64) (pays []float64, tolerance float64) {
+	pays = make([]float64, 0, len(f.Pays)*len(f.Labels))
 	scale := 1.0
 	for _, row := range f.Pays {
 		pays = append(pays, row...)
@@ -118,20 +115,20 @@ func (f *Fit) Recheck(ctx context.Context, set RecheckSettings) (*Recheck, error
 			scale = math.Max(scale, math.Abs(v))
 		}
 	}
-	tol := set.Tolerance
 	if tol <= 0 {
 		tol = 1e-9 * scale
 	}
-	K := set.Resolution
-	if K <= 0 {
-		if n == 2 {
-			// About ten beliefs per item, at least 1/1000, within the
-			// same work bound as below.
-			K = max(1000, min(10*(M-1), int(5e7/float64(2*M))))
-		} else {
-			K = simplex.Resolution(n, 200, math.Max(100, math.Min(50000, 5e7/float64(M*n))))
-		}
-	}
+	return pays, tol
+}
+
+// Recheck checks the rounded table of f: each item against every other
+// for the belief that is that item, then which item each belief on a
+// finer grid picks. It is a grid check: evidence, not proof.
+func (f *Fit) Recheck(ctx context.Context, set RecheckSettings) (*Recheck, error) {
+	m := f.Menu.Reports
+	M, n := len(m), len(f.Labels)
+	pays, tol := f.flatPays(set.Tolerance)
+	K := beliefGrid(set.Resolution, n, M)
 	grid := simplex.Vectors(n, K)
 	rc := &Recheck{
 		Margins: make([]float64, M), Rivals: make([]int, M), Cells: make([]Cell, M),
@@ -161,9 +158,45 @@ func (f *Fit) Recheck(ctx context.Context, set RecheckSettings) (*Recheck, error
 	if err != nil {
 		return nil, err
 	}
+	rc.sortMargins()
+	rc.beliefCells(grid, best, bestPay)
+	if n == 2 {
+		binaryCells(rc, pays, tol)
+	}
+	for i, c := range rc.Cells {
+		if c.Beliefs == 0 && !(c.Exact && c.Lo < c.Hi) {
+			rc.NeverChosen = append(rc.NeverChosen, i)
+		}
+	}
+	rc.Passed = len(rc.Ties) == 0 && len(rc.Beaten) == 0
+	if f.Clamp > 0 {
+		if rc.ClampGap, err = f.clampGap(ctx, grid); err != nil {
+			return nil, err
+		}
+	}
+	return rc, nil
+}
+
+// beliefGrid is the resolution K of the re-check's belief grid for n
+// outcomes and M menu items: the one asked for, or for two outcomes about
+// ten beliefs per item and at least 1/1000, for more the finest grid up
+// to 1/200 that keeps beliefs × items × n within the same work bound.
+func beliefGrid(asked, n, M int) int {
+	switch {
+	case asked > 0:
+		return asked
+	case n == 2:
+		return max(1000, min(10*(M-1), int(5e7/float64(2*M))))
+	}
+	return simplex.Resolution(n, 200, math.Max(100, math.Min(50000, 5e7/float64(M*n))))
+}
+
+// sortMargins reads the margins: the smallest and its rival, and the
+// items tied (within the tolerance, set to exactly 0) or beaten.
+func (rc *Recheck) sortMargins() {
 	rc.MinMargin, rc.MinMarginItem, rc.MinMarginRival = rc.Margins[0], 0, rc.Rivals[0]
 	for i, mg := range rc.Margins {
-		if math.Abs(mg) <= tol {
+		if math.Abs(mg) <= rc.Tolerance {
 			// A tie reads as a tie, not as float noise.
 			mg, rc.Margins[i] = 0, 0
 		}
@@ -177,6 +210,12 @@ func (f *Fit) Recheck(ctx context.Context, set RecheckSettings) (*Recheck, error
 			rc.Beaten = append(rc.Beaten, i)
 		}
 	}
+}
+
+// beliefCells gathers, from the best item of every grid belief (-1 for a
+// tie) and its expected pay, each item's cell of beliefs (on the first
+// outcome's probability), the tied beliefs and the range of menu pay.
+func (rc *Recheck) beliefCells(grid [][]float64, best []int, bestPay []float64) {
 	for i := range rc.Cells {
 		rc.Cells[i] = Cell{Lo: math.NaN(), Hi: math.NaN()}
 	}
@@ -204,21 +243,6 @@ func (f *Fit) Recheck(ctx context.Context, set RecheckSettings) (*Recheck, error
 		}
 		c.Beliefs++
 	}
-	if n == 2 {
-		binaryCells(rc, pays, tol)
-	}
-	for i, c := range rc.Cells {
-		if c.Beliefs == 0 && !(c.Exact && c.Lo < c.Hi) {
-			rc.NeverChosen = append(rc.NeverChosen, i)
-		}
-	}
-	rc.Passed = len(rc.Ties) == 0 && len(rc.Beaten) == 0
-	if f.Clamp > 0 {
-		if rc.ClampGap, err = f.clampGap(ctx, grid); err != nil {
-			return nil, err
-		}
-	}
-	return rc, nil
 }
 
 // binaryCells replaces the grid bounds of two-outcome cells with exact
