@@ -271,6 +271,9 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 			m.checks.finished(inner.report, inner.err)
 		}
 		return m, nil
+	case proposeProgressMsg, proposeDoneMsg:
+		m.proposeMsg(msg)
+		return m, nil
 	case fitProgressMsg:
 		if msg.gen == m.gen {
 			m.budget.progressed(msg.done, msg.total)

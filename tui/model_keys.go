@@ -191,12 +191,7 @@ func (m *Model) routeToPane(km tea.KeyMsg) tea.Cmd {
 			return m.maybeStart()
 		}
 	case paneBudget:
-		p, cmd, changed := m.budget.Update(km, m.d)
-		m.budget = p
-		if changed {
-			return tea.Batch(cmd, m.edited())
-		}
-		return cmd
+		return m.budgetKey(km)
 	}
 	return nil
 }
@@ -205,10 +200,7 @@ func (m *Model) routeToPane(km tea.KeyMsg) tea.Cmd {
 func (m *Model) designKey(km tea.KeyMsg) tea.Cmd {
 	p, cmd, changed := m.designPane.Update(km, m.d)
 	m.designPane = p
-	if changed {
-		return tea.Batch(cmd, m.edited())
-	}
-	return cmd
+	return m.paneDone(cmd, changed)
 }
 
 // smallKey is the one key a screen too small to draw on takes: quit (which
