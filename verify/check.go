@@ -246,7 +246,10 @@ func sharpenedNote(c CheckResult) string {
 	if !c.Sharpened {
 		return ""
 	}
-	return fmt.Sprintf("sharpened beyond the grid by Nelder–Mead (%s) from %.6g at the unsharpened witness", c.Status, c.GridWorst)
+	if fmt.Sprintf("%.6g", c.Worst) == fmt.Sprintf("%.6g", c.GridWorst) {
+		return fmt.Sprintf("a local search between the grid points, from the grid's worst case, found nothing worse (the search %s)", c.Status)
+	}
+	return fmt.Sprintf("worse between the grid points: a local search from the grid's worst case, %.6g, found %.6g (the search %s)", c.GridWorst, c.Worst, c.Status)
 }
 
 func concavityWitness(c CheckResult) string {

@@ -78,6 +78,14 @@
 // on [0, 100] passes with step 0.1 and unit 1 (smallest margin 1) but fails with step 0.05
 // (the exact margin between 0 and 0.05 is 50·2·0.05² = 0.25, less than a unit).
 //
+// **Proposals** (`Propose`, the workbench's budget pane key). When rounding breaks the table (or to
+// make it simpler), budgets one field away from the given one: the coarsest unit of a ladder of round
+// amounts (100 … 0.001, at most half the range) that passes with the cap kept, and for a failing budget
+// the smallest cap (or mean pay) above it, in twentieths of the range up to five times it, at the given
+// unit — a larger one only costs the buyer more. A candidate passes when every item beats every other
+// for its own belief (the menu part of the re-check, which decides Passed). Tested against an exact
+// integer brute force of the Brier table (propose_test.go).
+//
 // **Tables.** `table.Table` holds Kind (`money`), ValueName (`pay`, heading "pay if frost"), ReportName
 // (set for point forecasts: one number per report, Labels then name the outcome columns),
 // Decimals (-1: shortest exact form), Labels, Reports, Values and `Meta` (formula, preset,

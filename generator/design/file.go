@@ -6,12 +6,13 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"regexp"
+	"reflect"
 	"strconv"
 	"strings"
 	"unicode/utf8"
 
 	"github.com/BurntSushi/toml"
+	gotoml "github.com/pelletier/go-toml/v2"
 
 	"scorewright/generator/formula"
 	"scorewright/internal/inputfile"
@@ -59,7 +60,7 @@ func Decode(b []byte) (*Design, error) {
 		if errors.As(err, &pe) {
 			return nil, fmt.Errorf("line %d: %s", pe.Position.Line, pe.Message)
 		}
-		return nil, typeError(err)
+		return nil, typeError(b, err)
 	}
 	if und := md.Undecoded(); len(und) > 0 {
 		keys := make([]string, len(und))
@@ -283,25 +284,150 @@ func (d *Design) Save(path string, overwrite bool) error {
 	return safefile.Write(path, b, overwrite)
 }
 
-// tomlTypeErr is the TOML decoder's message for a value of the wrong type.
-var tomlTypeErr = regexp.MustCompile(`^toml: line (\d+) \(last key "([^"]+)"\): incompatible types: TOML value has type (\w+); destination has type (\w+)$`)
+// FieldError is a value of the wrong type in a design file, with where it
+// is: "line 3: outcomes: expected a list, found text".
+type FieldError struct {
+	// Line and Column locate the value, from 1.
+	Line, Column int
+	// Key is the value's dotted key, e.g. "budget.cap".
+	Key string
+	// Want and Found say in words what the key takes and what the file
+	// gives ("a list", "text", "a number", ...).
+	Want, Found string
+}
 
-// typeError rewrites the decoder's type-mismatch message in the file's
-// own words ("line 3: outcomes: expected a list, found text"); other
-// errors pass unchanged.
-func typeError(err error) error {
-	m := tomlTypeErr.FindStringSubmatch(err.Error())
-	if m == nil {
+func (e *FieldError) Error() string {
+	return fmt.Sprintf("line %d: %s: expected %s, found %s", e.Line, e.Key, e.Want, e.Found)
+}
+
+// typeError turns err, a value BurntSushi/toml could not store in the
+// design, into a *FieldError. That decoder reports such a value only in
+// the text of a plain error; go-toml/v2 reports it as a *DecodeError with
+// the key and the position, so src is decoded again with it, once, on this
+// error path only. What the key takes is read from the Design type and
+// what the file gives from the document itself. When the second decoder
+// does not name the same kind of fault, err is returned unchanged.
+func typeError(src []byte, err error) error {
+	var de *gotoml.DecodeError
+	if !errors.As(gotoml.Unmarshal(src, new(Design)), &de) || len(de.Key()) == 0 {
 		return err
 	}
-	words := map[string]string{"slice": "a list", "array": "a list", "float": "a number", "float64": "a number",
-		"int": "a whole number", "int64": "a whole number", "integer": "a whole number", "string": "text", "bool": "true or false",
-		"map": "a table", "struct": "a table", "ptr": "a number"}
-	say := func(t string) string {
-		if w, ok := words[t]; ok {
-			return w
-		}
-		return t
+	var doc map[string]any
+	if gotoml.Unmarshal(src, &doc) != nil {
+		return err
 	}
-	return fmt.Errorf("line %s: %s: expected %s, found %s", m[1], m[2], say(m[4]), say(m[3]))
+	want, found, ok := mismatch(reflect.TypeFor[Design](), lookup(doc, de.Key()), de.Key())
+	if !ok {
+		return err
+	}
+	line, col := de.Position()
+	return &FieldError{Line: line, Column: col, Key: strings.Join(de.Key(), "."), Want: want, Found: found}
+}
+
+// lookup is the value at key in a generically decoded document, nil when
+// there is none.
+func lookup(doc map[string]any, key []string) any {
+	var v any = doc
+	for _, k := range key {
+		m, ok := v.(map[string]any)
+		if !ok {
+			return nil
+		}
+		v = m[k]
+	}
+	return v
+}
+
+// mismatch follows key through t by the fields' toml names and says what
+// the field there takes and what v is, descending into the first element
+// of a list that does not fit; ok is false when nothing there is amiss.
+func mismatch(t reflect.Type, v any, key []string) (want, found string, ok bool) {
+	for _, k := range key {
+		t = deref(t)
+		switch t.Kind() {
+		case reflect.Struct:
+			f, has := fieldByTOMLName(t, k)
+			if !has {
+				return "", "", false
+			}
+			t = f.Type
+		case reflect.Map:
+			t = t.Elem()
+		default:
+			return "", "", false
+		}
+	}
+	t = deref(t)
+	if l, isList := v.([]any); isList && (t.Kind() == reflect.Slice || t.Kind() == reflect.Array) {
+		for _, e := range l {
+			if w, f, bad := mismatch(t.Elem(), e, nil); bad {
+				return w, f, true
+			}
+		}
+		return "", "", false
+	}
+	want, found = kindWords(t.Kind()), valueWords(v)
+	if _, whole := v.(int64); whole && want == "a number" {
+		return "", "", false // a float field takes a whole number
+	}
+	return want, found, v != nil && want != found
+}
+
+func deref(t reflect.Type) reflect.Type {
+	for t.Kind() == reflect.Pointer {
+		t = t.Elem()
+	}
+	return t
+}
+
+// fieldByTOMLName is the field of struct t whose toml tag names it k.
+func fieldByTOMLName(t reflect.Type, k string) (reflect.StructField, bool) {
+	for i := range t.NumField() {
+		f := t.Field(i)
+		if name, _, _ := strings.Cut(f.Tag.Get("toml"), ","); name == k {
+			return f, true
+		}
+	}
+	return reflect.StructField{}, false
+}
+
+// kindWords names what a field of kind k takes, in the file's words.
+func kindWords(k reflect.Kind) string {
+	switch k {
+	case reflect.Slice, reflect.Array:
+		return "a list"
+	case reflect.Float32, reflect.Float64:
+		return "a number"
+	case reflect.Int, reflect.Int8, reflect.Int16, reflect.Int32, reflect.Int64:
+		return "a whole number"
+	case reflect.String:
+		return "text"
+	case reflect.Bool:
+		return "true or false"
+	case reflect.Map, reflect.Struct:
+		return "a table"
+	}
+	return k.String()
+}
+
+// valueWords names the kind of a generically decoded TOML value. A whole
+// number is also a number: a float field takes it.
+func valueWords(v any) string {
+	switch v.(type) {
+	case []any:
+		return "a list"
+	case float64:
+		return "a number"
+	case int64:
+		return "a whole number"
+	case string:
+		return "text"
+	case bool:
+		return "true or false"
+	case map[string]any:
+		return "a table"
+	case nil:
+		return "nothing"
+	}
+	return "a date or time"
 }
