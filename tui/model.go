@@ -47,6 +47,7 @@ type (
 		gen  uint64
 		seq  uint64
 		err  error
+		note string // what opening changed in the file's design
 	}
 	exportedMsg struct {
 		files []string
@@ -67,12 +68,14 @@ type Model struct {
 	path          string // where the design was loaded from or saved to
 	gen           uint64 // generation of the design; bumped on every edit
 	dialogSeq     uint64 // serial number of the last dialog opened
-	comp          *compiled
-	compGen       uint64
-	debouncedGen  uint64
-	checkRun      uint64 // id of the latest check run
-	checkGen      uint64 // generation the latest check run is for
-	fitGen        uint64
+	// stopDialog cancels the read an open dialog started; nil when none.
+	stopDialog   context.CancelFunc
+	comp         *compiled
+	compGen      uint64
+	debouncedGen uint64
+	checkRun     uint64 // id of the latest check run
+	checkGen     uint64 // generation the latest check run is for
+	fitGen       uint64
 
 	ctx        context.Context
 	cancelAll  context.CancelFunc
@@ -296,6 +299,9 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		return m, m.fileDone(msg.seq, msg.err, func() {
 			m.dropRecovery() // the user agreed to drop the old design's edits
 			m.status = "opened " + msg.path
+			if msg.note != "" {
+				m.status += "; note: " + msg.note
+			}
 			m.path = msg.path
 		}, func() tea.Cmd { return m.replaceDesign(msg.d) })
 	case recoveryFoundMsg:

@@ -116,7 +116,7 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 	if err != nil {
 		return err
 	}
-	d1, err := rf.design()
+	d1, err := rf.design(e.stderr)
 	if err != nil {
 		return err
 	}
@@ -136,7 +136,7 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 	case vs == 0 && len(vsParams) > 0:
 		return usagef("--versus-param needs --versus-preset, --versus-generator or --versus-design")
 	case vs == 1:
-		d2, err := versusDesign(d1, *vsPreset, *vsGen, *vsDesign, vsParams)
+		d2, err := versusDesign(e.stderr, d1, *vsPreset, *vsGen, *vsDesign, vsParams)
 		if err != nil {
 			return err
 		}
@@ -193,7 +193,7 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 	bs := engineSchemes(schemes)
 	opt := backtest.Options{Strict: *strict, Tally: backtest.TallyOptions{Grid: grid}}
 	if *progress || isTerminal(e.stderr) {
-		opt.Progress = newProgressLine(e.stderr, size)
+		opt.Progress = newProgressLine(e.progressOut(), size)
 	}
 	var out *payOutFile
 	if *payOut != "" {
@@ -339,7 +339,7 @@ func failedIfWarned(r *backtestReport) error {
 // design file keeps its own budget when it states one (a cap or a mean
 // pay); otherwise, and for a preset or generator, the second rule is fitted
 // to the first rule's budget, so that the two are compared on equal money.
-func versusDesign(d1 *design.Design, preset, gen, file string, params paramFlag) (*design.Design, error) {
+func versusDesign(notes io.Writer, d1 *design.Design, preset, gen, file string, params paramFlag) (*design.Design, error) {
 	vr := &ruleFlags{preset: preset, generator: gen, file: file, params: params, ordered: d1.Ordered}
 	if file == "" {
 		vr.outcomes = strings.Join(d1.Labels, ",")
@@ -351,7 +351,7 @@ func versusDesign(d1 *design.Design, preset, gen, file string, params paramFlag)
 			vr.weights = strings.Join(w, ",")
 		}
 	}
-	d2, err := vr.design()
+	d2, err := vr.design(notes)
 	if err != nil {
 		var ue *usageError
 		if errors.As(err, &ue) {

@@ -70,7 +70,7 @@ func runDistort(e *env, args []string) error {
 	if math.IsNaN(*wealth) || math.IsInf(*wealth, 0) {
 		return usagef("--wealth %g is not a finite number", *wealth)
 	}
-	d, err := rf.design()
+	d, err := rf.design(e.stderr)
 	if err != nil {
 		return err
 	}

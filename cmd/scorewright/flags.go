@@ -103,22 +103,35 @@ func addRuleFlags(fs *flag.FlagSet) *ruleFlags {
 	return r
 }
 
+// fromFile loads the design file the flags name.
+func (r *ruleFlags) fromFile(notes io.Writer) (*design.Design, error) {
+	if r.generator != "" || r.preset != "" || r.emphasis != "" || r.outcomes != "" {
+		return nil, usagef("--design gives the whole rule; do not combine it with --outcomes, --generator, --preset or --emphasis")
+	}
+	d, err := design.Load(r.file)
+	if err != nil {
+		return nil, usagef("%v", err)
+	}
+	// A preset name over a formula of the design's own is dropped: the
+	// record must name the rule that is computed. The user is told, as
+	// the name is in their file.
+	if note := presets.Settle(d); note != "" {
+		fmt.Fprintf(notes, "scorewright: note: %s: %s\n", r.file, note)
+	}
+	return d, nil
+}
+
 // design builds the design the flags describe. A design file supplies
-// everything; flags given beside it override its parameters.
-func (r *ruleFlags) design() (*design.Design, error) {
+// everything; flags given beside it override its parameters. Notes on
+// what was changed in the file's design (a preset name dropped) go to
+// notes.
+func (r *ruleFlags) design(notes io.Writer) (*design.Design, error) {
 	var d *design.Design
 	if r.file != "" {
-		if r.generator != "" || r.preset != "" || r.emphasis != "" || r.outcomes != "" {
-			return nil, usagef("--design gives the whole rule; do not combine it with --outcomes, --generator, --preset or --emphasis")
-		}
 		var err error
-		d, err = design.Load(r.file)
-		if err != nil {
-			return nil, usagef("%v", err)
+		if d, err = r.fromFile(notes); err != nil {
+			return nil, err
 		}
-		// A preset name over a formula of the design's own is dropped:
-		// the record must name the rule that is computed.
-		presets.Settle(d)
 	} else {
 		d = &design.Design{Version: design.SchemaVersion, Mode: design.ModeGenerator, Ordered: r.ordered}
 		sources := 0
