@@ -129,8 +129,8 @@ type moneyTable struct {
 	max     int
 	dcount  []int32       // forecasters below max
 	dms     []schemeMoney // schemes per forecaster below max
-	slots   []int32 // entry + 1; 0 is empty
-	fs      []int32 // forecaster of each entry
+	slots   []int32       // entry + 1; 0 is empty
+	fs      []int32       // forecaster of each entry
 	count   []int32
 	ms      []schemeMoney // schemes per entry
 	runs    []spillRun
