@@ -54,7 +54,7 @@ func (r *Rule) Check(ctx context.Context, s verify.Settings) (*Findings, error) 
 		}
 		return &Findings{Rule: rep}, nil
 	case r.point != nil:
-		rep, err := pointcheck.CheckGenerator(ctx, r.point, PointSettings(s))
+		rep, err := pointcheck.CheckGenerator(ctx, r.point, s)
 		if err != nil {
 			return nil, err
 		}
@@ -86,7 +86,7 @@ func (r *Rule) Audit(ctx context.Context, s verify.Settings) (*Findings, error) 
 		for _, g := range presets.PointGenerators(lo, hi) {
 			cands = append(cands, pointcheck.Candidate(g))
 		}
-		rep, err := pointcheck.AuditPayout(ctx, r.pointPay, lo, hi, PointSettings(s), cands)
+		rep, err := pointcheck.AuditPayout(ctx, r.pointPay, lo, hi, s, cands)
 		if err != nil {
 			return nil, err
 		}
@@ -102,16 +102,6 @@ func (r *Rule) Examine(ctx context.Context, s verify.Settings) (*Findings, error
 		return r.Audit(ctx, s)
 	}
 	return r.Check(ctx, s)
-}
-
-// PointSettings are verify's settings as verify/pointcheck takes them:
-// the same resolution, tolerance and progress.
-func PointSettings(s verify.Settings) pointcheck.Settings {
-	ps := pointcheck.Settings{Resolution: s.Resolution, Tolerance: s.Tolerance}
-	if s.Progress != nil {
-		ps.Progress = func(done, total int) { s.Progress(int64(done), int64(total)) }
-	}
-	return ps
 }
 
 // ErrNoCertificate says no certificate method applies to the rule; its

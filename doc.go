@@ -54,11 +54,11 @@
 // pay(mean) (grid, then golden-section refinement), pay(y, y) >= pay(x, y), affinity of the
 // report-dependent part, and identification as Shift - Scale·D of a point preset (least squares on
 // the grid). Presets of kind point: `squared-error`, `patton` (b), `qlike`, `exponential` (a).
-// `g.BuildTable(ctx, TableSpec)` fits pay = Cap - B·D to [Floor, Cap] over reports lo, lo+step,
+// `budget.FitPoint(ctx, g, PointSpec)` (contract/budget) fits pay = Cap - B·D to [Floor, Cap] over reports lo, lo+step,
 // ... × 11 outcome columns and rounds with `budget.Rounder` (the same rounding as every table);
 // `t.Recheck(ctx)` checks each menu report against every rival for every forecaster whose mean
 // is that report — exact, because with pay interpolated between columns the worst such belief
-// is a point mass or a two-column mixture (a linear program's vertex); `t.Export(rc, Info)` is a
+// is a point mass or a two-column mixture (a linear program's vertex); `t.Export(rc, PointInfo)` is a
 // `table.Table` with `ReportName` set (one number per report, `Labels` the outcome columns), so
 // point tables have every format, the metadata block, the warning of a forced table and the
 // lottery conversion (`lottery.Convert`) of tables over outcomes; `t.WriteCSV`, `t.WriteMarkdown` and
@@ -84,7 +84,7 @@
 // `BinaryBeliefs(step, floor)` and `DirectionBeliefs(n, steps)` (centre towards each vertex) make
 // the belief sets; `BestOf(q, menu)` is the menu item a forecaster held to the menu picks. The
 // command fits the budget with `budget.FitRule` on the `--step` menu; without `--step` there is
-// no menu and the exact formula pays (`riskfit` fits over the finest simplex grid of at most
+// no menu and the exact formula pays (`budget.StepTerms` fits over the finest simplex grid of at most
 // `budget.MaxMenu` reports, unrounded).
 //
 // **Lottery payments (`contract/lottery`, `table --lottery`).** `lottery.Convert(t, floor, cap)`

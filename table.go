@@ -9,7 +9,6 @@ import (
 	"scorewright/contract/budget"
 	"scorewright/contract/lottery"
 	"scorewright/contract/table"
-	"scorewright/generator/point"
 )
 
 // Errors of Table that callers word in their own terms (flags on the
@@ -31,8 +30,8 @@ type Table struct {
 	Fit     *budget.Fit
 	Recheck *budget.Recheck
 
-	Point        *point.Table
-	PointRecheck *point.Recheck
+	Point        *budget.PointTable
+	PointRecheck *budget.PointRecheck
 }
 
 // MenuFunc builds the report menu of a rule over n outcomes (from a file,
@@ -45,6 +44,14 @@ type MenuFunc func(n int) (*budget.Menu, error)
 // menu is always the budget's step in the units of the interval. A
 // payout under audit has no table (a *NeedsOutcomesError).
 func (r *Rule) Table(ctx context.Context, menu MenuFunc) (*Table, error) {
+	return r.TableWith(ctx, menu, nil)
+}
+
+// TableWith is Table reporting the re-check's progress (beliefs done of
+// the total) to progress when it is not nil. Without menu the budget's
+// menu file is read when it names one, else its step's grid is built;
+// the budget's clamp applies to a menu that has none of its own.
+func (r *Rule) TableWith(ctx context.Context, menu MenuFunc, progress func(done, total int64)) (*Table, error) {
 	if r.point != nil {
 		return r.pointTable(ctx)
 	}
@@ -59,6 +66,10 @@ func (r *Rule) Table(ctx context.Context, menu MenuFunc) (*Table, error) {
 		if m, err = menu(r.d.N()); err != nil {
 			return nil, err
 		}
+	case b.Menu != "":
+		if m, err = budget.FileMenu(b.Menu, r.d.N()); err != nil {
+			return nil, err
+		}
 	default:
 		if !(b.Step > 0) {
 			return nil, ErrNoMenu
@@ -67,11 +78,14 @@ func (r *Rule) Table(ctx context.Context, menu MenuFunc) (*Table, error) {
 			return nil, err
 		}
 	}
+	if m.Clamp == 0 {
+		m.Clamp = b.Clamp
+	}
 	fit, err := budget.FitRule(rule, m, b)
 	if err != nil {
 		return nil, err
 	}
-	rc, err := fit.Recheck(ctx, budget.RecheckSettings{})
+	rc, err := fit.Recheck(ctx, budget.RecheckSettings{Progress: progress})
 	if err != nil {
 		return nil, err
 	}
@@ -86,8 +100,8 @@ func (r *Rule) pointTable(ctx context.Context) (*Table, error) {
 	case !(b.Cap > b.Floor):
 		return nil, ErrNoCap
 	}
-	t, err := r.point.BuildTable(ctx, point.TableSpec{Floor: b.Floor, Cap: b.Cap, Step: b.Step, Unit: b.Unit, Rounding: b.Rounding})
-	if errors.Is(err, point.ErrUnbounded) {
+	t, err := budget.FitPoint(ctx, r.point, budget.PointSpec{Floor: b.Floor, Cap: b.Cap, Step: b.Step, Unit: b.Unit, Rounding: b.Rounding})
+	if errors.Is(err, budget.ErrPointUnbounded) {
 		return nil, fmt.Errorf("%w; narrow the interval so the effort stays finite", err)
 	}
 	if err != nil {
@@ -130,7 +144,7 @@ func (t *Table) Bounds() (lo, hi float64) {
 func (r *Rule) Export(t *Table, version, date string) *table.Table {
 	d := r.d
 	if t.Point != nil {
-		tb := t.Point.Export(t.PointRecheck, point.Info{Title: d.Title, Preset: d.Preset, Params: d.Params, Version: version, Date: date})
+		tb := t.Point.Export(t.PointRecheck, budget.PointInfo{Title: d.Title, Preset: d.Preset, Params: d.Params, Version: version, Date: date})
 		tb.Meta.Currency = d.Contract.Currency
 		return tb
 	}

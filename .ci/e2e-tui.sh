@@ -119,7 +119,7 @@ fi
 
 # Unsaved changes (one more outcome) are kept in a recovery file; q asks.
 key +
-wait_for "4 outcomes"
+wait_for "outcome 4  (4)"
 for _ in $(seq 1 50); do
   ls "$work"/state/scorewright/recovery/*.recover.toml >/dev/null 2>&1 && break
   sleep 0.1
@@ -136,7 +136,7 @@ t kill-session -t "$session"
 t new-session -d -s "$session" -x 100 -y 30 "TERM=xterm-256color XDG_STATE_HOME=$work/state ./scorewright; echo EXITED-\$?; sleep 30"
 wait_for "Unsaved edits were kept"
 key r
-wait_for "4 outcomes"
+wait_for "outcome 4  (4)"
 wait_for "restored the unsaved edits"
 key q
 wait_for "would drop unsaved changes"

@@ -17,7 +17,6 @@ import (
 
 	"scorewright/contract/backtest"
 	"scorewright/contract/backtest/history"
-	"scorewright/contract/backtest/tablepay"
 	"scorewright/contract/budget"
 	"scorewright/generator/design"
 	"scorewright/tui/reliability"
@@ -66,7 +65,7 @@ type (
 )
 
 // backtestCmd replays the history at path under design d, paid as its
-// fitted table pays (contract/backtest/tablepay, as `scorewright
+// fitted table pays (budget.TableTerms, as `scorewright
 // backtest` pays), sending a start, progress and the result.
 func backtestCmd(ctx context.Context, run, gen uint64, d *design.Design, path string) tea.Cmd {
 	tag := func(m tea.Msg) tea.Msg { return btRunMsg{run: run, gen: gen, msg: m} }
@@ -105,7 +104,7 @@ func replay(ctx context.Context, d *design.Design, h *history.Reader, path strin
 	if err != nil {
 		return nil, err
 	}
-	fitted, err := tablepay.New(ctx, "A", r, menu, d.Budget, true)
+	fitted, err := budget.TableTerms(ctx, r, menu, d.Budget, true)
 	if err != nil {
 		return nil, err
 	}
@@ -113,7 +112,7 @@ func replay(ctx context.Context, d *design.Design, h *history.Reader, path strin
 	if size > 0 {
 		opt.Progress = func(p backtest.Progress) { progress(min(1, float64(p.Offset)/float64(size))) }
 	}
-	res, err := backtest.Run(ctx, h, []backtest.Scheme{fitted.Scheme}, opt)
+	res, err := backtest.Run(ctx, h, []backtest.Scheme{backtest.TermsScheme("A", fitted)}, opt)
 	if err != nil {
 		return nil, err
 	}
@@ -128,7 +127,7 @@ func replay(ctx context.Context, d *design.Design, h *history.Reader, path strin
 		return nil, errors.New(msg)
 	}
 	fit := fitted.Fit
-	out := &BacktestResult{Path: path, Labels: append([]string(nil), d.Labels...), Result: res, Pay: tablepay.PayFormula(fit),
+	out := &BacktestResult{Path: path, Labels: append([]string(nil), d.Labels...), Result: res, Pay: fitted.PayFormula(),
 		Menu: fit.MenuDesc(), Budget: fit.BudgetDesc(), Notes: fitted.Notes, decimal: fit.Decimals()}
 	if len(d.Labels) == 2 {
 		out.Curves = backtest.ReliabilityCurves(res, 0)

@@ -142,7 +142,7 @@ func TestBacktestHeaderMismatch(t *testing.T) {
 	press(t, m, keyEsc)
 	m.dialog = nil
 	loadHistory(t, m, filepath.Join(t.TempDir(), "missing.csv"))
-	if m.dialog == nil || !strings.Contains(m.dialog.msg, "no such file") {
+	if m.dialog == nil || !strings.Contains(m.dialog.msg, "no file") || !strings.Contains(m.dialog.msg, "missing.csv") {
 		t.Fatalf("missing file: dialog %+v", m.dialog)
 	}
 }

@@ -2,57 +2,17 @@ package tui
 
 import (
 	"fmt"
-	"math"
-	"strconv"
 	"strings"
 
 	"github.com/charmbracelet/bubbles/cursor"
 	"github.com/charmbracelet/bubbles/key"
+	"github.com/charmbracelet/bubbles/progress"
 	"github.com/charmbracelet/bubbles/textinput"
 	"github.com/charmbracelet/bubbles/viewport"
 	tea "github.com/charmbracelet/bubbletea"
 
 	"scorewright/generator/design"
 )
-
-// budgetField is one editable line of the budget pane.
-type budgetField struct {
-	label, help string
-	get         func(b *design.Budget) float64
-	set         func(b *design.Budget, v float64)
-	// steps, when set, are the values ←/→ cycle through; otherwise ←/→
-	// add ±step (±step/10 with shift).
-	steps []float64
-	step  float64
-}
-
-// budgetFields lists the editable fields, fresh on each call.
-func budgetFields() []budgetField {
-	return []budgetField{
-		{label: "Floor", help: "smallest payment", step: 1,
-			get: func(b *design.Budget) float64 { return b.Floor }, set: func(b *design.Budget, v float64) { b.Floor = v }},
-		{label: "Cap", help: "largest payment", step: 1,
-			get: func(b *design.Budget) float64 { return b.Cap }, set: func(b *design.Budget, v float64) { b.Cap = v }},
-		{label: "Mean", help: "mean pay instead of the cap", step: 1,
-			get: func(b *design.Budget) float64 {
-				if b.MeanPay == nil {
-					return 0
-				}
-				return *b.MeanPay
-			},
-			set: func(b *design.Budget, v float64) {
-				if v <= 0 {
-					b.MeanPay = nil
-					return
-				}
-				b.MeanPay = &v
-			}},
-		{label: "Step", help: "report menu step", steps: []float64{0.01, 0.02, 0.025, 0.05, 0.1, 0.125, 0.2, 0.25, 0.5},
-			get: func(b *design.Budget) float64 { return b.Step }, set: func(b *design.Budget, v float64) { b.Step = v }},
-		{label: "Unit", help: "rounding unit (0: none)", steps: []float64{0, 0.01, 0.05, 0.1, 0.25, 0.5, 1, 5},
-			get: func(b *design.Budget) float64 { return b.Unit }, set: func(b *design.Budget, v float64) { b.Unit = v }},
-	}
-}
 
 // BudgetPane edits the budget and shows the payment table preview and the
 // menu re-check.
@@ -70,6 +30,10 @@ type BudgetPane struct {
 	err       error
 	stale     bool
 	note      string
+	// running is a fit in the background, done of total beliefs re-checked.
+	running     bool
+	done, total int64
+	bar         progress.Model
 }
 
 // NewBudgetPane returns a budget pane; available says whether the build
@@ -81,14 +45,15 @@ func NewBudgetPane(st Styles, keys KeyMap, available bool) BudgetPane {
 	calmEditing(&ti.KeyMap.DeleteAfterCursor, &ti.KeyMap.DeleteBeforeCursor)
 	vp := viewport.New(10, 3)
 	vp.KeyMap = viewport.KeyMap{PageDown: keys.PageDown, PageUp: keys.PageUp}
-	return BudgetPane{st: st, keys: keys, available: available, ti: ti, vp: vp}
+	return BudgetPane{st: st, keys: keys, available: available, ti: ti, vp: vp, bar: newBar()}
 }
 
 // SetSize sets the outer size of the pane.
 func (p *BudgetPane) SetSize(w, h int) {
 	p.w, p.h = w, h
 	p.vp.Width = max(4, w-2)
-	p.vp.Height = max(1, h-2-len(budgetFields())-1)
+	p.vp.Height = max(1, h-2-p.fieldRows()-1)
+	p.bar.Width = max(10, w-20)
 	p.vp.SetContent(p.tableText())
 	p.ti.Width = max(6, w-20)
 }
@@ -113,11 +78,15 @@ func (p BudgetPane) KeyHelp() []key.Binding {
 
 // setTable shows a fit result.
 func (p *BudgetPane) setTable(t *TableView, err error) {
-	p.table, p.err, p.stale = t, err, false
+	p.table, p.err, p.stale, p.running = t, err, false, false
 	p.vp.SetContent(p.tableText())
 }
 
-func (p *BudgetPane) edited() { p.stale = p.table != nil }
+func (p *BudgetPane) edited() { p.stale, p.running = p.table != nil, false }
+
+// fitting marks a fit as begun; progressed moves its bar.
+func (p *BudgetPane) fitting()                     { p.running, p.done, p.total = true, 0, 0 }
+func (p *BudgetPane) progressed(done, total int64) { p.done, p.total = done, total }
 
 // Update handles a key, editing d's budget in place.
 func (p BudgetPane) Update(msg tea.Msg, d *design.Design) (BudgetPane, tea.Cmd, bool) {
@@ -126,22 +95,23 @@ func (p BudgetPane) Update(msg tea.Msg, d *design.Design) (BudgetPane, tea.Cmd, 
 		return p, nil, false
 	}
 	k := p.keys
-	f := budgetFields()[p.sel]
+	fields := budgetFields()
+	f := fields[p.sel]
 	if p.typing {
 		switch {
 		case key.Matches(km, k.Leave):
 			p.typing = false
 			p.ti.Blur()
+			p.note = "not changed"
 			return p, nil, false
 		case key.Matches(km, k.Edit):
-			v, err := strconv.ParseFloat(strings.TrimSpace(p.ti.Value()), 64)
-			if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
-				p.note = fmt.Sprintf("%q is not a finite number", p.ti.Value())
-				return p, nil, false
+			typed := p.ti.Value()
+			changed := p.apply(d, f, func(t *design.Design) error { return f.parse(t, typed) })
+			if p.note == "" || changed {
+				p.typing = false
+				p.ti.Blur()
 			}
-			p.typing = false
-			p.ti.Blur()
-			return p, nil, p.apply(d, f, v)
+			return p, nil, changed
 		}
 		var cmd tea.Cmd
 		p.ti, cmd = p.ti.Update(km)
@@ -151,45 +121,28 @@ func (p BudgetPane) Update(msg tea.Msg, d *design.Design) (BudgetPane, tea.Cmd, 
 	case key.Matches(km, k.Up):
 		p.sel = max(0, p.sel-1)
 	case key.Matches(km, k.Down):
-		p.sel = min(len(budgetFields())-1, p.sel+1)
+		p.sel = min(len(fields)-1, p.sel+1)
 	case key.Matches(km, k.Edit):
-		p.typing = true
-		p.ti.SetValue(strconv.FormatFloat(f.get(&d.Budget), 'g', -1, 64))
+		if why := p.offNote(f, d); why != "" {
+			p.note = why
+			return p, nil, false
+		}
+		p.typing, p.note = true, ""
+		edit := f.edit
+		if edit == nil {
+			edit = f.show
+		}
+		p.ti.SetValue(edit(d))
 		p.ti.CursorEnd()
 		return p, p.ti.Focus(), false
 	case key.Matches(km, k.Less), key.Matches(km, k.More), key.Matches(km, k.LessFine), key.Matches(km, k.MoreFine):
-		up := key.Matches(km, k.More) || key.Matches(km, k.MoreFine)
-		cur := f.get(&d.Budget)
-		var v float64
-		if f.label == "Step" && d.Mode.OnInterval() && len(d.Interval) == 2 {
-			// A point menu step is in the interval's units: hundredths of it.
-			s := (d.Interval[1] - d.Interval[0]) / 100
-			if !up {
-				s = -s
-			}
-			v = math.Max(0, math.Round((cur+s)/(d.Interval[1]-d.Interval[0])*100)*(d.Interval[1]-d.Interval[0])/100)
-		} else if f.label == "Mean" && d.Budget.MeanPay == nil {
-			if !up {
-				return p, nil, false
-			}
-			// From none: three quarters of the way from floor to cap, what
-			// the quadratic rule pays a uniform belief on a cap budget.
-			v = math.Round(d.Budget.Floor + 0.75*(d.Budget.Cap-d.Budget.Floor))
-		} else if f.label == "Mean" && !up && f.get(&d.Budget)-f.step <= d.Budget.Floor {
-			v = 0 // stepping below the floor clears the mean pay
-		} else if f.steps != nil {
-			v = nextStep(f.steps, cur, up)
-		} else {
-			s := f.step
-			if key.Matches(km, k.LessFine) || key.Matches(km, k.MoreFine) {
-				s /= 10
-			}
-			if !up {
-				s = -s
-			}
-			v = math.Round((cur+s)*1e9) / 1e9
+		if f.step == nil {
+			p.note = f.label + ": " + errNoStep.Error()
+			return p, nil, false
 		}
-		return p, nil, p.apply(d, f, v)
+		up := key.Matches(km, k.More) || key.Matches(km, k.MoreFine)
+		fine := key.Matches(km, k.LessFine) || key.Matches(km, k.MoreFine)
+		return p, nil, p.apply(d, f, func(t *design.Design) error { return f.step(t, up, fine) })
 	case key.Matches(km, k.PageUp), key.Matches(km, k.PageDown):
 		var cmd tea.Cmd
 		p.vp, cmd = p.vp.Update(km)
@@ -198,19 +151,34 @@ func (p BudgetPane) Update(msg tea.Msg, d *design.Design) (BudgetPane, tea.Cmd, 
 	return p, nil, false
 }
 
-// apply sets a field if the budget stays valid, saying why not otherwise.
-func (p *BudgetPane) apply(d *design.Design, f budgetField, v float64) bool {
-	if f.label == "Mean" && v > 0 && d.Mode.OnInterval() {
-		p.note = "point-forecast tables are fitted to a floor and a cap; a mean pay is for rules over outcomes"
+// offNote says why field f cannot be edited for d, or "".
+func (p BudgetPane) offNote(f budgetField, d *design.Design) string {
+	if f.off == nil {
+		return ""
+	}
+	if why := f.off(d); why != "" {
+		return f.label + ": " + why
+	}
+	return ""
+}
+
+// apply changes a field through change on a copy of d and keeps the copy
+// if it stays valid, saying why not otherwise.
+func (p *BudgetPane) apply(d *design.Design, f budgetField, change func(t *design.Design) error) bool {
+	if why := p.offNote(f, d); why != "" {
+		p.note = why
 		return false
 	}
-	trial := *d
-	f.set(&trial.Budget, v)
-	if err := trial.ValidateBudget(); err != nil {
+	trial := d.Clone()
+	if err := change(trial); err != nil {
 		p.note = err.Error()
 		return false
 	}
-	d.Budget = trial.Budget
+	if err := validField(d, trial); err != nil {
+		p.note = err.Error()
+		return false
+	}
+	*d = *trial
 	p.note = ""
 	return true
 }
@@ -284,60 +252,104 @@ func (p BudgetPane) tableText() string {
 	return b.String()
 }
 
+// fieldRows is how many field lines the pane shows: the rest of its
+// height goes to the verdict and the table.
+func (p BudgetPane) fieldRows() int {
+	return min(len(budgetFields()), max(3, (p.h-4)/2))
+}
+
+// fieldWindow is the first field shown, so that the selected one is.
+func (p BudgetPane) fieldWindow() int {
+	n, rows := len(budgetFields()), p.fieldRows()
+	return min(max(0, p.sel-rows/2), n-rows)
+}
+
+// fieldLine is one field's line: label, value (or the input) and help.
+func (p BudgetPane) fieldLine(i int, f budgetField, d *design.Design) string {
+	st := p.st
+	m, ls := "  ", st.Label
+	if p.focused && i == p.sel && !p.typing {
+		m, ls = st.Selected.Render("› "), st.Selected
+	}
+	val, help := f.show(d), f.help
+	if why := p.offNote(f, d); why != "" {
+		val, help = "—", why[len(f.label)+2:]
+	}
+	if f.label == "Cap" && d.Budget.MeanPay != nil {
+		help = "unused while a mean pay is set"
+	}
+	if p.typing && i == p.sel {
+		return m + ls.Render(fmt.Sprintf("%-9s", f.label)) + " " + p.ti.View()
+	}
+	if len([]rune(val)) > 16 {
+		val = string([]rune(val)[:15]) + "…"
+	}
+	return m + ls.Render(fmt.Sprintf("%-9s", f.label)) + " " + fmt.Sprintf("%-8s", val) + " " + st.Dim.Render(help)
+}
+
 // View draws the pane for design d.
 func (p BudgetPane) View(d *design.Design) string {
 	st := p.st
 	var lines []string
-	for i, f := range budgetFields() {
-		m, ls := "  ", st.Label
-		if p.focused && i == p.sel && !p.typing {
-			m, ls = st.Selected.Render("› "), st.Selected
-		}
-		val := strconv.FormatFloat(f.get(&d.Budget), 'g', 6, 64)
-		help := f.help
-		switch {
-		case f.label == "Mean" && d.Mode.OnInterval():
-			val, help = "—", "point tables: floor and cap"
-		case f.label == "Mean" && d.Budget.MeanPay == nil:
-			val = "none"
-		case f.label == "Mean":
-			help = "truthful mean pay (0: none)"
-		case f.label == "Cap" && d.Budget.MeanPay != nil:
-			help = "not used while a mean pay is set"
-		}
-		if p.typing && i == p.sel {
-			val = p.ti.View()
-		}
-		lines = append(lines, m+ls.Render(fmt.Sprintf("%-6s", f.label))+" "+fmt.Sprintf("%-8s", val)+" "+st.Dim.Render(help))
+	fields := budgetFields()
+	first := p.fieldWindow()
+	for i := first; i < first+p.fieldRows(); i++ {
+		lines = append(lines, p.fieldLine(i, fields[i], d))
 	}
 	iw := max(10, p.w-2)
+	if p.typing && fields[p.sel].hint != "" && p.note == "" {
+		lines = append(lines, strings.Split(st.Dim.Width(iw).Render(fields[p.sel].hint), "\n")...)
+	}
 	if p.note != "" {
 		lines = append(lines, strings.Split(st.Error.Width(iw).Render(p.note), "\n")...)
 	}
 	switch {
 	case !p.available:
 		lines = append(lines, st.Dim.Render("The payment table (package contract/budget)"), st.Dim.Render("is not part of this build yet."))
-	case p.err != nil:
+	case p.err != nil && !p.running:
 		lines = append(lines, strings.Split(st.Error.Width(iw).Render("✗ "+p.err.Error()), "\n")...)
-	case p.table != nil:
-		t := p.table
-		v := st.Pass.Render("menu re-check passed")
-		if !t.Passed {
-			v = st.Fail.Render("menu re-check FAILED")
+	case p.table != nil || p.running:
+		if p.running {
+			lines = append(lines, p.progressLine())
+		} else {
+			lines = append(lines, p.verdictLine())
 		}
-		v += fmt.Sprintf(", smallest margin %.4g", t.MinMargin)
-		if t.NoRecheck != "" {
-			v = st.Dim.Render(t.NoRecheck)
-		}
-		if p.stale {
-			v += st.Dim.Render(" (previous design)")
-		}
-		lines = append(lines, v+st.Dim.Render("  pgup/pgdn: table and notes"))
 		vp := p.vp
 		vp.Height = max(1, p.h-2-len(lines))
 		lines = append(lines, vp.View())
 	default:
 		lines = append(lines, st.Dim.Render("fitting…"))
 	}
-	return paneFrame(st, "Budget and table", p.focused, p.w, p.h, strings.Join(lines, "\n"))
+	title := fmt.Sprintf("Budget and table · field %d of %d", p.sel+1, len(fields))
+	return paneFrame(st, title, p.focused, p.w, p.h, strings.Join(lines, "\n"))
+}
+
+// progressLine is the fit's progress: the re-check's beliefs done.
+func (p BudgetPane) progressLine() string {
+	pct := 0.0
+	if p.total > 0 {
+		pct = float64(p.done) / float64(p.total)
+	}
+	line := p.bar.ViewAs(pct) + fmt.Sprintf(" %3.0f%% fitting", pct*100)
+	if p.table != nil {
+		line += p.st.Dim.Render(" (table below: previous design)")
+	}
+	return line
+}
+
+// verdictLine is the menu re-check's verdict and smallest margin.
+func (p BudgetPane) verdictLine() string {
+	st, t := p.st, p.table
+	v := st.Pass.Render("menu re-check passed")
+	if !t.Passed {
+		v = st.Fail.Render("menu re-check FAILED")
+	}
+	v += fmt.Sprintf(", margin %.4g", t.MinMargin)
+	if t.NoRecheck != "" {
+		v = st.Dim.Render(t.NoRecheck)
+	}
+	if p.stale {
+		v += st.Dim.Render(" (previous design)")
+	}
+	return v
 }

@@ -30,8 +30,12 @@ type ChecksPane struct {
 // NewChecksPane returns a checks pane; available says whether the build
 // has a checker.
 func NewChecksPane(st Styles, keys KeyMap, available bool) ChecksPane {
-	bar := progress.New(progress.WithFillCharacters('█', '░'), progress.WithoutPercentage(), progress.WithSolidFill("#6FD3B5"))
-	return ChecksPane{st: st, keys: keys, available: available, bar: bar}
+	return ChecksPane{st: st, keys: keys, available: available, bar: newBar()}
+}
+
+// newBar is the progress bar of background work in a pane.
+func newBar() progress.Model {
+	return progress.New(progress.WithFillCharacters('█', '░'), progress.WithoutPercentage(), progress.WithSolidFill("#6FD3B5"))
 }
 
 // SetSize sets the outer size of the pane.

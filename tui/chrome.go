@@ -6,29 +6,39 @@ import (
 	"github.com/charmbracelet/x/ansi"
 )
 
-// paneFrame draws a framed pane of outer size w×h with its title in the
-// top edge, cutting or padding the body to fit.
+// paneFrame draws a pane of outer size w×h as a bracket: a rule down its
+// left side and along its bottom, the title on the first line with the
+// pane's name in bold, and one blank column between the rule and the
+// body. The neighbour's rule keeps panes apart on the right. The focused pane's bracket is heavy, the others'
+// light and dashed, so focus reads without colour too. The body gets
+// (w-2)×(h-2), as inside any frame of one cell.
 func paneFrame(st Styles, title string, focused bool, w, h int, body string) string {
 	if w < 4 || h < 3 {
 		return ""
 	}
-	bs, ts := st.Border, st.Title
+	fs, ts := st.Border, st.Title
+	top, side, corner, rule := "┌", "╎", "└", "╌"
 	if focused {
-		bs, ts = st.BorderFocus, st.TitleFocus
+		fs, ts = st.BorderFocus, st.TitleFocus
+		top, side, corner, rule = "┏", "┃", "┗", "━"
 	}
 	iw, ih := w-2, h-2
-	t := ansi.Truncate(" "+title+" ", max(0, iw-2), "…")
+	name, rest, cut := strings.Cut(title, " · ")
+	head := ts.Render(name)
+	if cut {
+		head += " · " + rest
+	}
 	var b strings.Builder
-	b.WriteString(bs.Render("╭─") + ts.Render(t) + bs.Render(strings.Repeat("─", max(0, iw-1-ansi.StringWidth(t)))+"╮") + "\n")
+	b.WriteString(fs.Render(top) + " " + fit(head, iw) + "\n")
 	lines := strings.Split(body, "\n")
 	for i := 0; i < ih; i++ {
 		l := ""
 		if i < len(lines) {
 			l = lines[i]
 		}
-		b.WriteString(bs.Render("│") + fit(l, iw) + bs.Render("│") + "\n")
+		b.WriteString(fs.Render(side) + " " + fit(l, iw) + "\n")
 	}
-	b.WriteString(bs.Render("╰" + strings.Repeat("─", iw) + "╯"))
+	b.WriteString(fs.Render(corner + strings.Repeat(rule, iw+1)))
 	return b.String()
 }
 

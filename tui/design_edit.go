@@ -42,7 +42,7 @@ func (p DesignPane) updatePicker(km tea.KeyMsg, d *design.Design) (DesignPane, t
 			for i := range d.Weights {
 				d.Weights[i] = 1
 			}
-			p.note = "weights set to 1 for every outcome (edit them in the design file)"
+			p.note = "weights set to 1 for every outcome (edit them in the budget pane: Weights)"
 		} else {
 			p.note = "preset " + ps.Name
 		}

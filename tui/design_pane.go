@@ -95,7 +95,7 @@ type DesignPane struct {
 func NewDesignPane(st Styles, keys KeyMap, d *design.Design) DesignPane {
 	ta := textarea.New()
 	ta.ShowLineNumbers = false
-	ta.Prompt = "┃ "
+	ta.Prompt = " ▏"
 	// No limit of the editor's own: it would cut a longer formula, opened
 	// or pasted, without a word. The language's limit is enforced in
 	// Update, with a message.
@@ -396,7 +396,7 @@ func (p *DesignPane) cycleMode(d *design.Design, up bool) {
 	if s, ok := p.stepByMode[d.Mode.OnInterval()]; ok {
 		d.Budget.Step = s
 	} else if d.Mode.OnInterval() {
-		d.Budget.Step = 0 // BuildTable's default: a twentieth of the interval
+		d.Budget.Step = 0 // budget.FitPoint's default: a twentieth of the interval
 	}
 	if d.Mode.OnInterval() && len(d.Interval) != 2 {
 		d.Interval = defaultInterval()

@@ -1,6 +1,7 @@
 package tui
 
 import (
+	"fmt"
 	"path/filepath"
 	"strings"
 
@@ -50,6 +51,13 @@ type fileDialog struct {
 	lottery bool
 	// seq numbers the dialog, for telling its answers from late ones.
 	seq uint64
+	// base is the folder relative paths start from; exts the extensions
+	// tab completes to (folders always).
+	base string
+	exts []string
+	// cands are the names the last tab left open, shown under the path.
+	cands []string
+	more  int
 }
 
 func newFileDialog(st Styles, keys KeyMap, kind dialogKind, path string, formats []string) fileDialog {
@@ -61,20 +69,28 @@ func newFileDialog(st Styles, keys KeyMap, kind dialogKind, path string, formats
 	ti.SetValue(path)
 	ti.CursorEnd()
 	ti.Focus()
-	return fileDialog{st: st, keys: keys, kind: kind, formats: formats, path: ti}
+	exts := formats
+	switch kind {
+	case dialogSave, dialogOpen:
+		exts = []string{"toml"}
+	case dialogHistory:
+		exts = []string{"csv", "jsonl", "ndjson", "xlsx"}
+	}
+	return fileDialog{st: st, keys: keys, kind: kind, formats: formats, path: ti, exts: exts}
 }
 
-func (d fileDialog) title() string {
-	switch d.kind {
-	case dialogSave:
-		return "Save the design"
-	case dialogOpen:
-		return "Open a design"
-	case dialogHistory:
-		return "Load a forecast history (CSV) for this design"
-	}
-	return "Export the payment table"
+// dialogWords are each kind's title and what enter does, by dialogKind.
+var dialogWords = [...]struct{ title, verb string }{
+	dialogSave:    {"Save the design", "saves"},
+	dialogOpen:    {"Open a design", "opens"},
+	dialogExport:  {"Export the payment table", "exports"},
+	dialogHistory: {"Load a forecast history (CSV) for this design", "loads"},
 }
+
+func (d fileDialog) title() string { return dialogWords[d.kind].title }
+
+// verb is what enter does in the dialog.
+func (d fileDialog) verb() string { return dialogWords[d.kind].verb }
 
 // Path is the path typed.
 func (d fileDialog) Path() string { return strings.TrimSpace(d.path.Value()) }
@@ -131,9 +147,11 @@ func (d fileDialog) Update(km tea.KeyMsg) (fileDialog, tea.Cmd, dialogAction) {
 	case d.kind == dialogExport && key.Matches(km, d.keys.Lottery):
 		d.lottery = !d.lottery
 		return d, nil, actNone
-	case len(d.formats) > 1 && (km.Type == tea.KeyTab || km.Type == tea.KeyShiftTab):
+	case key.Matches(km, d.keys.Complete):
+		return d, completeCmd(d.seq, d.path.Value(), d.base, d.exts), actNone
+	case len(d.formats) > 1 && key.Matches(km, d.keys.Field):
 		step := 1
-		if km.Type == tea.KeyShiftTab {
+		if key.Matches(km, d.keys.Up) {
 			step = len(d.formats) - 1
 		}
 		old := d.formats[d.format]
@@ -144,7 +162,21 @@ func (d fileDialog) Update(km tea.KeyMsg) (fileDialog, tea.Cmd, dialogAction) {
 	}
 	var cmd tea.Cmd
 	d.path, cmd = d.path.Update(km)
+	d.cands, d.more = nil, 0
+	d.formatFromPath() // a typed extension chooses the format at once
 	return d, cmd, actNone
+}
+
+// completed takes the answer to tab, unless the path changed meanwhile.
+func (d *fileDialog) completed(msg completedMsg) {
+	if msg.seq != d.seq || msg.from != d.path.Value() || d.busy || d.confirm {
+		return
+	}
+	d.path.SetValue(msg.c.value)
+	d.path.CursorEnd()
+	d.cands, d.more = msg.c.cands, msg.c.more
+	d.msg = msg.c.note
+	d.formatFromPath()
 }
 
 // formatFromPath makes the format the one the path's extension names, when
@@ -182,7 +214,7 @@ func (d fileDialog) View(width int) string {
 		}
 		lines = append(lines, "format "+strings.Join(fs, ""))
 		if len(d.formats) > 1 {
-			lines = append(lines, st.Dim.Render("       tab / shift+tab: change the format"))
+			lines = append(lines, st.Dim.Render("       "+d.keys.Field.Help().Key+": change the format, or type its extension"))
 		}
 	}
 	if d.kind == dialogExport {
@@ -197,7 +229,15 @@ func (d fileDialog) View(width int) string {
 			lines = append(lines, st.Error.Render("Caution: "+lottery.Caution))
 		}
 	}
-	lines = append(lines, d.path.View(), "")
+	lines = append(lines, d.path.View())
+	if len(d.cands) > 0 {
+		c := strings.Join(d.cands, "  ")
+		if d.more > 0 {
+			c += fmt.Sprintf("  (and %d more)", d.more)
+		}
+		lines = append(lines, st.Dim.Render(c))
+	}
+	lines = append(lines, "")
 	if d.msg != "" {
 		ms := st.Dim
 		if d.confirm || strings.HasPrefix(d.msg, "✗") {
@@ -205,7 +245,7 @@ func (d fileDialog) View(width int) string {
 		}
 		lines = append(lines, ms.Render(d.msg))
 	}
-	lines = append(lines, st.Dim.Render("enter confirm · esc cancel"))
+	lines = append(lines, st.Dim.Render(d.keys.Complete.Help().Key+" completes the path, "+d.keys.Confirm.Help().Key+" "+d.verb()+", "+d.keys.Cancel.Help().Key+" cancels"))
 	if d.kind == dialogExport {
 		lines = append(lines, st.Dim.Render("Exports say: the tool checks mathematics, not law."))
 	}

@@ -38,7 +38,7 @@
 // payout compared with the generator presets to name it), emphasis (n = 2, a weight w(c) through
 // `generator/emphasis`; its warnings show under the formula) and point forecast of a mean (an
 // interval row replaces the outcomes; `generator/point` and `verify/pointcheck`; the table is the point
-// table: the budget pane shows its re-check verdict and margin (`point.Table.Recheck`, exact on the
+// table: the budget pane shows its re-check verdict and margin (`budget.PointTable.Recheck`, exact on the
 // rounded table, the verdict's wording in the notes), and it exports through contract/table in
 // every format; a table that fails the re-check is refused, with nothing written, exactly as for
 // tables over outcomes and as `scorewright table` without `--force`) and, after it on the mode row,
@@ -51,6 +51,12 @@
 // file, unused), so a saved audit opens again as one; a payout over outcomes has no interval
 // (the design pane keeps it aside). Each mode remembers its last formula, and the menu step is
 // kept apart for point and outcome designs.
+//
+// File dialogs (`tui/dialog.go`, `tui/complete.go`): tab completes the path (in the background, as
+// far as every match agrees; the names still open show under it; the open dialog offers designs and
+// folders, the history dialog histories), ↑/↓ change the export format and a typed extension chooses
+// it at once; the export dialog starts with the format and pay chosen last. A failure is one line in
+// the dialog naming the file ("no file …; check the name").
 //
 // Unsaved changes (`tui/leave.go`, `tui/recover.go`, `tui/recovery`): every key that leaves or
 // replaces the design — q, ctrl+c, the next demo, opening a file, a preset over a formula written by
@@ -66,7 +72,7 @@
 // `testdata/histories/orchard-frost.csv`) and opens the backtest view, which replaces the
 // four panes until esc or the backtest key. `backtestCmd` opens the file and reads its header (a header
 // that does not fit, or a missing file, stays in the dialog with the reason), then fits the design
-// to its budget on its step menu with `contract/backtest/tablepay` — the fit `scorewright
+// to its budget on its step menu with `budget.TableTerms` and `backtest.TermsScheme` — the terms `scorewright
 // backtest` uses, shared — and streams the rows through `backtest.Run` with progress by bytes
 // read. The view shows the reliability picture for n = 2 (`tui/reliability`, bins of tenths,
 // `backtest.ReliabilityCurves`), count, total and mean pay, rank, and the decomposition per
@@ -84,8 +90,8 @@
 // (default one range, so CRRA's final wealth stays positive; steps of a tenth of the range; it
 // follows the budget until the user steps it) and the belief shown in detail (n = 2 the event
 // probability by 0.05; n > 2 the uniform belief and the curve's beliefs in turn). `riskCmd` fits
-// the design with `contract/risk/riskfit` — the fit, contract, default belief and curve beliefs
-// of `scorewright distort`, moved there from the command — then solves `Best` for the belief, the
+// the design with `budget.StepTerms` and `contract/risk` (`TermsContract`, `DefaultBelief`,
+// `CurveBeliefs`) — the fit, contract, default belief and curve beliefs of `scorewright distort` — then solves `Best` for the belief, the
 // menu pick (`BestOf` on the rounded table) and `Distortion` over the curve with progress. Runs
 // carry a run id; a changed input or an edit cancels the running one and its late answers are
 // dropped; the edit reruns after the debounce. n = 2 draws best report against belief beside the
@@ -93,13 +99,28 @@
 // table of the distortion at each tenth of the way toward each outcome. Under both: the largest
 // distortion and where, the chosen belief's best report against the truthful one, expected pay,
 // and the lottery note (the lottery key of the export dialog). Payout and point designs are refused with
-// the reason; an unbounded rule asks for a report floor in the design file.
+// the reason; an unbounded rule asks for a report floor (the budget pane's R.floor).
 //
-// Budget pane fields: Floor, Cap, Mean, Step, Unit. Mean is a mean-pay budget (`Budget.MeanPay`:
-// the expected pay of a truthful forecaster at the reference belief, uniform unless the design
-// file names one; it replaces the cap, whose row then says it is not used): → from "none" starts at
-// three quarters of the way from floor to cap, ← below the floor or typing 0 clears it. Point
-// designs refuse it (their tables are fitted to a floor and a cap).
+// Budget pane fields (`tui/budget_fields.go`, one list): Floor, Cap, Mean, Ref. (the mean pay's
+// reference belief), Step, Menu (a CSV file of reports that replaces the step's grid), R.floor (the
+// report floor), Clamp, Unit, Rounding, Weights, Currency and Forecasts (the last two are terms of
+// the annex too). The pane shows a window of the fields around the selected one; ←/→ step a field
+// (a list, a mode cycle, ±1 or ±10), enter types a value, and a value that would make the design
+// invalid is refused with the design file's message. Mean is a mean-pay budget (`Budget.MeanPay`:
+// the expected pay of a truthful forecaster at the reference belief, uniform unless Ref. names one;
+// it replaces the cap, whose row then says it is not used): → from "none" starts at three quarters
+// of the way from floor to cap, ← below the floor or typing 0 clears it. Point designs refuse the
+// fields of rules over outcomes. Every edit cancels the running fit; the next one shows its
+// progress (the re-check's beliefs) in the pane.
+//
+// Look (`tui/header.go`, `tui/chrome.go`, `NewStyles`): the header names the design (and its file,
+// or "not saved yet", and whether it is edited), the view shown, and the verdict with its kind —
+// "certified" when the interval certificate decided it, "grid evidence" otherwise — or that a check
+// runs. Panes are brackets, not boxes: a rule down the left and along the bottom, heavy for the
+// focused pane and light and dashed for the others, the title on the first line. Dialogs have a
+// half-block edge. The palette is ochre (focus, keys), slate (frames, secondary text), sage and brick
+// (pass, fail); nothing depends on colour alone. The footer is our own key line: each key and what it
+// does with wide gaps, "? all keys" first, cut with … where it does not fit.
 //
 // Layout: below 120×40 the design pane fills the left half, the picture sits top right over
 // whichever of checks and budget was focused last; from 120×40 all four panes show. Below 80×24

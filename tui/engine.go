@@ -13,11 +13,11 @@ import (
 	"time"
 
 	"scorewright/contract/annex"
+	"scorewright/contract/budget"
 	"scorewright/contract/cost"
 	"scorewright/contract/lottery"
 	"scorewright/contract/table"
 	"scorewright/generator/design"
-	"scorewright/generator/point"
 	"scorewright/internal/num"
 	"scorewright/internal/safefile"
 	"scorewright/verify"
@@ -70,7 +70,7 @@ func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress f
 	if line := found.GapLine(); line != "" && found.Audit.Gap.Max > 0 {
 		out.Notes = append(out.Notes, line)
 	}
-	if p := found.Point; p != nil && p.Gap != nil && p.Verdict == pointcheck.Improper && p.Gap.Max > 0 {
+	if p := found.Point; p != nil && p.Gap != nil && p.Verdict == verify.Improper && p.Gap.Max > 0 {
 		g := p.Gap
 		head := fmt.Sprintf("honesty gap %.4g at a report that cannot be told apart from the mean %.6g (no misreport named),", g.Max, g.Mean)
 		if x, m, ok := num.FormatApart([]float64{g.BestReport}, []float64{g.Mean}); ok {
@@ -84,7 +84,7 @@ func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress f
 
 // fromPoint is a verify/pointcheck report as the checks pane shows it.
 func fromPoint(rep *pointcheck.Report) *CheckReport {
-	out := &CheckReport{Verdict: rep.Verdict, Resolution: rep.Grid.Resolution, Points: int64(rep.Grid.Points), Tolerance: rep.Grid.Tolerance, Notes: rep.Notes}
+	out := &CheckReport{Verdict: string(rep.Verdict), Resolution: rep.Grid.Resolution, Points: int64(rep.Grid.Points), Tolerance: rep.Grid.Tolerance, Notes: rep.Notes}
 	for _, ck := range rep.Checks {
 		row := CheckRow{Name: ck.Name, Passed: ck.Passed, Worst: ck.Worst, Note: ck.What}
 		if ck.At != nil {
@@ -107,17 +107,22 @@ func fromVerify(r *verify.Report) *CheckReport {
 // fitTable fits a design to its budget on its menu and re-checks the
 // rounded table (scorewright.Rule.Table), in the workbench's words for
 // what is missing.
-func fitTable(ctx context.Context, d *design.Design) (*scorewright.Rule, *scorewright.Table, error) {
+func fitTable(ctx context.Context, d *design.Design, progress func(done, total int64)) (*scorewright.Rule, *scorewright.Table, error) {
 	r, err := scorewright.Open(d)
 	if err != nil {
 		return nil, nil, err
 	}
-	t, err := r.Table(ctx, nil)
+	t, err := r.TableWith(ctx, nil, progress)
+	var ue *budget.UnboundedError
 	switch {
 	case errors.Is(err, scorewright.ErrNoMenu):
-		return nil, nil, errors.New("set a report menu step (Step) to see the payment table")
+		return nil, nil, errors.New("set a report menu step (Step) or a menu file (Menu) to see the payment table")
 	case errors.Is(err, scorewright.ErrNoCap):
 		return nil, nil, errors.New("set a cap above the floor to see the payment table")
+	case errors.As(err, &ue) && ue.AtZero:
+		return nil, nil, fmt.Errorf("the rule's effort is %v at report %s when %q happens: it is unbounded where a report gives an outcome probability 0. "+
+			"Two ways out, in this pane: R.floor (e.g. 0.01: every report gives each outcome at least that) or Clamp (e.g. 0.01: reports are paid as if each probability were at least that; it bends honesty near the boundary and the re-check says by how much)",
+			ue.Effort, num.Format(ue.Report), ue.Label)
 	case err != nil:
 		return nil, nil, err
 	}
@@ -125,8 +130,8 @@ func fitTable(ctx context.Context, d *design.Design) (*scorewright.Rule, *scorew
 }
 
 // budgetFitter is the default Fitter.
-func budgetFitter(ctx context.Context, d *design.Design) (*TableView, error) {
-	r, t, err := fitTable(ctx, d)
+func budgetFitter(ctx context.Context, d *design.Design, progress func(done, total int64)) (*TableView, error) {
+	r, t, err := fitTable(ctx, d, progress)
 	if err != nil {
 		return nil, err
 	}
@@ -163,7 +168,7 @@ func budgetFitter(ctx context.Context, d *design.Design) (*TableView, error) {
 
 // pointTableView is the preview of a point-forecast table: reports down,
 // outcome values across.
-func pointTableView(t *point.Table, rc *point.Recheck) *TableView {
+func pointTableView(t *budget.PointTable, rc *budget.PointRecheck) *TableView {
 	tv := &TableView{Passed: rc.Passed, MinMargin: rc.MinMargin, Notes: append([]string{"re-check: " + rc.Verdict(t)}, t.Notes...)}
 	tv.Header = []string{"report \\ outcome"}
 	for _, y := range t.Outcomes {
@@ -188,7 +193,7 @@ func (tableExporter) Formats(d *design.Design) []string { return annex.ExportFor
 
 func (te tableExporter) Export(ctx context.Context, d *design.Design, req ExportRequest) ([]string, error) {
 	date := time.Now().UTC().Format("2006-01-02")
-	r, t, err := fitTable(ctx, d)
+	r, t, err := fitTable(ctx, d, nil)
 	if err != nil {
 		return nil, err
 	}

@@ -40,8 +40,10 @@ type CheckRow struct {
 }
 
 // Fitter fits a design to its budget: the payment table preview and the
-// re-check of the report menu.
-type Fitter func(ctx context.Context, d *design.Design) (*TableView, error)
+// re-check of the report menu. It must return soon after ctx is cancelled
+// and may call progress (beliefs re-checked of the total) from any
+// goroutine.
+type Fitter func(ctx context.Context, d *design.Design, progress func(done, total int64)) (*TableView, error)
 
 // TableView is the budget pane's content.
 type TableView struct {
@@ -105,6 +107,10 @@ type (
 		table *TableView
 		err   error
 	}
+	fitProgressMsg struct {
+		gen         uint64
+		done, total int64
+	}
 )
 
 // streamMsg is one message of a background job that sends several; next
@@ -165,15 +171,17 @@ func checkCmd(ctx context.Context, gen uint64, d *design.Design, s Settings, che
 	})
 }
 
-// fitCmd fits d to its budget.
+// fitCmd fits d to its budget, reporting the re-check's progress.
 func fitCmd(ctx context.Context, gen uint64, d *design.Design, fitter Fitter) tea.Cmd {
-	return func() tea.Msg {
-		t, err := fitter(ctx, d)
+	return runStream(ctx, func(send func(tea.Msg, bool)) {
+		t, err := fitter(ctx, d, func(done, total int64) {
+			send(fitProgressMsg{gen: gen, done: done, total: total}, false)
+		})
 		if t != nil {
 			layoutTable(t)
 		}
-		return fitMsg{gen: gen, table: t, err: err}
-	}
+		send(fitMsg{gen: gen, table: t, err: err}, true)
+	})
 }
 
 // compileCmd compiles d (a private copy) for generation gen.

@@ -26,7 +26,7 @@ type KeyMap struct {
 	// Backtest view.
 	History, StopRun key.Binding
 	// Dialogs.
-	Confirm, Cancel, Yes, No, Field, Lottery key.Binding
+	Confirm, Cancel, Yes, No, Field, Complete, Lottery key.Binding
 	// The unsaved-changes prompt and the offer of recovered edits.
 	SaveFirst, Discard, Restore key.Binding
 }
@@ -87,12 +87,13 @@ func DefaultKeyMap() KeyMap {
 		History: b([]string{"l"}, "l", "load a forecast history (CSV)"),
 		StopRun: b([]string{"x"}, "x", "stop the backtest"),
 
-		Confirm: b([]string{"enter"}, "enter", "confirm"),
-		Cancel:  b([]string{"esc"}, "esc", "cancel"),
-		Yes:     b([]string{"y"}, "y", "yes, replace the file"),
-		No:      b([]string{"n"}, "n", "no, keep it"),
-		Field:   b([]string{"tab", "shift+tab"}, "tab", "change the export format"),
-		Lottery: b([]string{"ctrl+t"}, "ctrl+t", "export money or a lottery ticket"),
+		Confirm:  b([]string{"enter"}, "enter", "confirm"),
+		Cancel:   b([]string{"esc"}, "esc", "cancel"),
+		Yes:      b([]string{"y"}, "y", "yes, replace the file"),
+		No:       b([]string{"n"}, "n", "no, keep it"),
+		Field:    b([]string{"up", "down"}, "↑/↓", "change the export format"),
+		Complete: b([]string{"tab"}, "tab", "complete the path (names that match show below)"),
+		Lottery:  b([]string{"ctrl+t"}, "ctrl+t", "export money or a lottery ticket"),
 
 		SaveFirst: b([]string{"s"}, "s", "save first, then go on"),
 		Discard:   b([]string{"d"}, "d", "go on without saving (drop the edits)"),
@@ -157,7 +158,7 @@ func (k KeyMap) groups() []helpGroup {
 			keyList(k.Leave, k.Risk) + " close; a change reruns it"}},
 		{title: "Research view (" + k.Research.Help().Key + ")", notes: []string{
 			keyList(k.Up, k.Down) + " choose, " + keyList(k.Less, k.More) + " step, " + keyList(k.Leave, k.Research) + " close"}},
-		{title: "Dialogs", keys: []key.Binding{k.Field, k.Lottery, k.Confirm, k.Cancel, k.Yes, k.No}},
+		{title: "Dialogs", keys: []key.Binding{k.Complete, k.Field, k.Lottery, k.Confirm, k.Cancel, k.Yes, k.No}},
 	}
 }
 

@@ -115,10 +115,14 @@ type Model struct {
 	checks     ChecksPane
 	budget     BudgetPane
 	dialog     *fileDialog
-	help       bool
-	helpView   viewport.Model
-	status     string
-	quitting   bool
+	// exportFormat and exportLottery are what the last export asked for,
+	// so the next export dialog starts there.
+	exportFormat  string
+	exportLottery bool
+	help          bool
+	helpView      viewport.Model
+	status        string
+	quitting      bool
 
 	// updates counts Update calls, for tests that watch responsiveness.
 	updates int64
@@ -206,8 +210,14 @@ func (m *Model) RiskInputs() RiskInputs { return m.riskIn }
 // Status is the status line's message.
 func (m *Model) Status() string { return m.status }
 
-// Close cancels every background job; call it after the program ends.
-func (m *Model) Close() { m.cancelAll() }
+// Close cancels every background job and stops recovery writes; call it
+// after the program ends.
+func (m *Model) Close() {
+	m.cancelAll()
+	if m.rec != nil {
+		m.rec.Close()
+	}
+}
 
 // Update routes a message. It does no work itself: everything slow runs in
 // the commands it returns.
@@ -264,8 +274,13 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 			m.checks.finished(inner.report, inner.err)
 		}
 		return m, nil
+	case fitProgressMsg:
+		if msg.gen == m.gen {
+			m.budget.progressed(msg.done, msg.total)
+		}
+		return m, nil
 	case fitMsg:
-		if msg.gen != m.gen {
+		if msg.gen != m.gen || errors.Is(msg.err, context.Canceled) {
 			return m, nil
 		}
 		m.fitGen = msg.gen
@@ -304,6 +319,11 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 			}
 			m.path = msg.path
 		}, func() tea.Cmd { return m.replaceDesign(msg.d) })
+	case completedMsg:
+		if m.dialog != nil {
+			m.dialog.completed(msg)
+		}
+		return m, nil
 	case recoveryFoundMsg:
 		m.foundRecovery(msg)
 		return m, nil
@@ -328,6 +348,7 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 func (m *Model) edited() tea.Cmd {
 	m.gen++
 	m.stopCheck()
+	m.stopFit()
 	m.checkRun++ // answers of the run for the old design are now stale
 	m.checks.edited()
 	m.budget.edited()

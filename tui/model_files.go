@@ -5,6 +5,7 @@ import (
 	"errors"
 	"path/filepath"
 	"regexp"
+	"slices"
 	"strings"
 
 	tea "github.com/charmbracelet/bubbletea"
@@ -26,7 +27,7 @@ func (m *Model) fileDone(seq uint64, err error, ok func(), then ...func() tea.Cm
 		m.dialog.askOverwrite()
 		return nil
 	case err != nil:
-		m.dialog.failed("✗ " + strings.ReplaceAll(err.Error(), "\n", "; "))
+		m.dialog.failed(fileError(err))
 		return nil
 	}
 	m.dialog = nil
@@ -105,12 +106,16 @@ func (m *Model) openDialog(kind dialogKind) {
 			return
 		}
 		fs := m.set.Exporter.Formats(m.d)
-		d := newFileDialog(m.st, m.keys, kind, m.defaultName(fs[0]), fs)
+		// The format (and the pay) chosen last stay chosen.
+		i := max(0, slices.Index(fs, m.exportFormat))
+		d := newFileDialog(m.st, m.keys, kind, m.defaultName(fs[i]), fs)
+		d.format, d.lottery = i, m.exportLottery
 		m.dialog = &d
 	}
 	if m.dialog != nil {
 		m.dialogSeq++
 		m.dialog.seq = m.dialogSeq
+		m.dialog.base = m.set.Dir
 	}
 }
 
@@ -118,7 +123,10 @@ func (m *Model) openDialog(kind dialogKind) {
 func (m *Model) submitDialog() tea.Cmd {
 	dl := m.dialog
 	dl.formatFromPath()
-	path, overwrite, format, lot, seq := dl.Path(), dl.overwrite, dl.Format(), dl.lottery, dl.seq
+	path, overwrite, format, lot, seq := expandHome(dl.Path()), dl.overwrite, dl.Format(), dl.lottery, dl.seq
+	if dl.kind == dialogExport {
+		m.exportFormat, m.exportLottery = format, lot
+	}
 	if !filepath.IsAbs(path) && m.set.Dir != "" && !strings.HasPrefix(path, m.set.Dir) {
 		path = filepath.Join(m.set.Dir, path)
 	}

@@ -23,8 +23,18 @@ func (m *Model) wanted(msg tea.Msg) bool {
 		return r.run == m.riskRun
 	case researchRunMsg:
 		return r.run == m.research.run
+	case fitProgressMsg:
+		return r.gen == m.gen
 	}
 	return false
+}
+
+// stopFit cancels a running fit: its design is no longer the one shown.
+func (m *Model) stopFit() {
+	if m.cancelFit != nil {
+		m.cancelFit()
+		m.cancelFit = nil
+	}
 }
 
 func (m *Model) stopCheck() {
@@ -59,11 +69,10 @@ func (m *Model) maybeStart() tea.Cmd {
 		cmds = append(cmds, tagRun(m.checkRun, checkCmd(ctx, m.gen, cloneDesign(m.d), m.set, m.set.Checker)))
 	}
 	if m.set.Fitter != nil && m.fitGen != m.gen {
-		if m.cancelFit != nil {
-			m.cancelFit()
-		}
+		m.stopFit()
 		ctx, cancel := context.WithCancel(m.ctx)
 		m.cancelFit = cancel
+		m.budget.fitting()
 		cmds = append(cmds, fitCmd(ctx, m.gen, cloneDesign(m.d), m.set.Fitter))
 	}
 	return tea.Batch(append(cmds, bt)...)

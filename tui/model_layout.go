@@ -2,11 +2,8 @@ package tui
 
 import (
 	"fmt"
-	"path/filepath"
 	"strings"
 
-	"github.com/charmbracelet/bubbles/help"
-	"github.com/charmbracelet/bubbles/key"
 	"github.com/charmbracelet/lipgloss"
 )
 
@@ -33,10 +30,10 @@ func (m *Model) layout() {
 	}
 	lw := m.width / 2
 	rw := m.width - lw
-	top := bh * 55 / 100
-	if m.focus == paneChecks || m.focus == paneBudget {
-		top = bh * 40 / 100 // the focused lower pane gets the room
-	}
+	// Half each, whichever pane has the focus: the picture keeps a
+	// readable height at 80×24, and the layout does not jump on tab (the
+	// lower panes scroll).
+	top := bh / 2
 	m.designPane.SetSize(lw, bh)
 	m.picture.SetSize(rw, top)
 	m.checks.SetSize(rw, bh-top)
@@ -96,95 +93,6 @@ func (m *Model) View() string {
 		screen = overlay(screen, box, m.width, m.height)
 	}
 	return block(screen, m.width, m.height)
-}
-
-func (m *Model) headerLine() string {
-	left := m.st.Header.Render("scorewright")
-	where := "demo"
-	if m.path != "" {
-		where = filepath.Base(m.path)
-	}
-	what := fmt.Sprintf("%d outcomes", m.d.N())
-	if onInterval(m.d) && len(m.d.Interval) == 2 {
-		what = fmt.Sprintf("a mean on [%g, %g]", m.d.Interval[0], m.d.Interval[1])
-	}
-	mid := m.st.Dim.Render(fmt.Sprintf(" · %s · %s · %s", where, what, m.d.Mode))
-	var tabs []string
-	for p, name := range []string{"design", "picture", "checks", "budget"} {
-		if pane(p) == m.focus && !m.showBT && !m.showRisk && !m.research.Shown() && !m.terms.Shown() {
-			tabs = append(tabs, m.st.Selected.Render("["+name+"]"))
-		} else {
-			tabs = append(tabs, m.st.Dim.Render(" "+name+" "))
-		}
-	}
-	if m.showBT {
-		tabs = []string{m.st.Selected.Render("[backtest]"), m.st.Dim.Render(" esc: back to the panes")}
-	}
-	if m.showRisk {
-		tabs = []string{m.st.Selected.Render("[risk]"), m.st.Dim.Render(" esc: back to the panes")}
-	}
-	if m.research.Shown() {
-		tabs = []string{m.st.Selected.Render("[research]"), m.st.Dim.Render(" esc: back to the panes")}
-	}
-	if m.terms.Shown() {
-		tabs = []string{m.st.Selected.Render("[terms]"), m.st.Dim.Render(" esc: back to the panes")}
-	}
-	right := strings.Join(tabs, "")
-	gap := m.width - lipgloss.Width(left) - lipgloss.Width(mid) - lipgloss.Width(right)
-	return left + mid + strings.Repeat(" ", max(1, gap)) + right
-}
-
-// footerLine is the status message, or the keys of the focused pane.
-func (m *Model) footerLine() string {
-	if m.status != "" {
-		return m.st.Dim.Render(m.status)
-	}
-	k := m.keys
-	as := func(b key.Binding, keyText, desc string) key.Binding {
-		return key.NewBinding(key.WithKeys(b.Keys()...), key.WithHelp(keyText, desc))
-	}
-	var keys []key.Binding
-	if m.designPane.Typing() || m.budget.Typing() {
-		// While typing only keys that are not text reach the workbench;
-		// of the help keys that is the function key.
-		f1 := strings.ToUpper(k.Help.Keys()[len(k.Help.Keys())-1])
-		keys = []key.Binding{as(k.Leave, k.Leave.Help().Key, "stop typing"), as(k.NextPane, k.NextPane.Help().Key, "pane"), as(k.Help, f1, "keys"), as(k.Save, k.Save.Help().Key, "save"), k.QuitHard}
-	} else {
-		var pane []key.Binding
-		switch {
-		case m.terms.Shown():
-			pane = m.terms.KeyHelp()
-		case m.research.Shown():
-			pane = m.research.KeyHelp()
-		case m.showBT:
-			pane = m.bt.KeyHelp()
-		case m.showRisk:
-			pane = m.risk.KeyHelp()
-		case m.focus == paneDesign:
-			pane = m.designPane.KeyHelp()
-		case m.focus == panePicture:
-			pane = m.picture.KeyHelp()
-		case m.focus == paneChecks:
-			pane = m.checks.KeyHelp()
-		case m.focus == paneBudget:
-			pane = m.budget.KeyHelp()
-		}
-		keys = []key.Binding{as(k.Help, k.Help.Keys()[0], "keys"), as(k.NextPane, k.NextPane.Help().Key, "pane"), k.Quit}
-		for _, b := range pane {
-			switch {
-			case b.Help() == k.Up.Help() && !m.showRisk && !m.research.Shown():
-				keys = append(keys, as(b, k.Up.Help().Key+"/"+k.Down.Help().Key, "select"))
-			case b.Help() == k.Down.Help():
-			default:
-				keys = append(keys, b)
-			}
-		}
-		keys = append(keys, as(k.Save, k.Save.Help().Key, "save"), as(k.Export, k.Export.Help().Key, "export"))
-	}
-	h := help.New()
-	h.Width = m.width
-	h.Styles.ShortKey, h.Styles.ShortDesc, h.Styles.ShortSeparator, h.Styles.Ellipsis = m.st.Key, m.st.Dim, m.st.Dim, m.st.Dim
-	return h.ShortHelpView(keys)
 }
 
 // overlay centres box over screen.

@@ -3,7 +3,6 @@ package tui
 import (
 	"context"
 	"errors"
-	"strings"
 
 	tea "github.com/charmbracelet/bubbletea"
 )
@@ -77,7 +76,7 @@ func (m *Model) backtestMsg(msg btRunMsg) tea.Cmd {
 		m.cancelBt = nil
 		if inner.file && fromDialog {
 			m.bt.running = false
-			m.dialog.failed("✗ " + strings.ReplaceAll(inner.err.Error(), "\n", "; "))
+			m.dialog.failed(fileError(inner.err))
 			return nil
 		}
 		m.bt.finished(inner.res, inner.err)

@@ -69,7 +69,7 @@ func TestResearchFrost(t *testing.T) {
 		t.Errorf("optimum %+v, want gain %v", rep.Optimum, want)
 	}
 	v := m.View()
-	for _, s := range []string{"Research —", "best for research", "[research]", "power (design)"} {
+	for _, s := range []string{"Research —", "best for research", "research (esc: back)", "power (design)"} {
 		if !strings.Contains(v, s) {
 			t.Errorf("view lacks %q:\n%s", s, v)
 		}

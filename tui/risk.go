@@ -13,7 +13,6 @@ import (
 
 	"scorewright/contract/budget"
 	"scorewright/contract/risk"
-	"scorewright/contract/risk/riskfit"
 	"scorewright/generator/design"
 	"scorewright/internal/num"
 )
@@ -79,7 +78,7 @@ type (
 
 // riskCmd computes, for design d and the inputs, the chosen belief's best
 // report and the distortion curve, fitted as `scorewright distort` fits
-// (contract/risk/riskfit).
+// (contract/budget.StepTerms, contract/risk).
 func riskCmd(ctx context.Context, run uint64, d *design.Design, in RiskInputs) tea.Cmd {
 	tag := func(m tea.Msg) tea.Msg { return riskRunMsg{run: run, msg: m} }
 	return runStream(ctx, func(send func(tea.Msg, bool)) {
@@ -97,38 +96,38 @@ func riskRun(ctx context.Context, d *design.Design, in RiskInputs, progress func
 	} else if err != nil {
 		return nil, err
 	}
-	fitted, err := riskfit.New(rule, d.Budget)
+	fitted, err := budget.StepTerms(rule, d.Budget)
 	var ue *budget.UnboundedError
 	switch {
 	case errors.As(err, &ue) && ue.AtZero:
-		return nil, fmt.Errorf("the rule's effort is %v at report %s when %q happens: it is unbounded where a report gives an outcome probability 0; give the design a report floor (report_floor in the design file, e.g. 0.01)", ue.Effort, num.Format(ue.Report), ue.Label)
+		return nil, fmt.Errorf("the rule's effort is %v at report %s when %q happens: it is unbounded where a report gives an outcome probability 0; give the design a report floor (R.floor in the budget pane, e.g. 0.01)", ue.Effort, num.Format(ue.Report), ue.Label)
 	case err != nil:
 		return nil, err
 	}
-	c := fitted.Contract
+	c := risk.TermsContract(fitted)
 	if in.Kind == risk.CRRA && in.Coef >= 1 && !(in.Wealth+c.MinPay > 0) {
 		return nil, fmt.Errorf("CRRA utility needs positive final wealth: initial wealth %g plus the smallest payment %g is not positive; raise the wealth", in.Wealth, c.MinPay)
 	}
-	solver, err := fitted.Solver(rule, in.Utility(), in.Wealth)
+	solver, err := risk.NewSolver(rule, c, in.Utility(), in.Wealth)
 	if err != nil {
 		return nil, err
 	}
 	q := in.Belief
 	if q == nil {
-		q = riskfit.Belief(d.Budget, d.N())
+		q = risk.DefaultBelief(d.Budget, d.N())
 	}
 	// A belief the search cannot settle is shown on its own line; it
 	// never takes the rest of the view with it.
 	chosen, chosenErr := solver.Best(q)
 	fit := fitted.Fit
 	out := &RiskResult{Inputs: in, Labels: append([]string(nil), d.Labels...), Chosen: chosen, ChosenErr: chosenErr,
-		MenuPick: fitted.MenuPick(solver, q)}
-	if fitted.Menu != nil {
-		out.Pay = fmt.Sprintf("pay = %.6g - %.6g × effort, fitted on the %d-report menu", fit.A, fit.B, len(fitted.Menu.Reports))
+		MenuPick: risk.MenuPick(fitted, solver, q)}
+	if menu := fitted.Menu(); menu != nil {
+		out.Pay = fmt.Sprintf("pay = %.6g - %.6g × effort, fitted on the %d-report menu", fit.A, fit.B, len(menu.Reports))
 	} else {
 		out.Pay = fmt.Sprintf("pay = %.6g - %.6g × effort for every report (no menu step: the exact formula pays)", fit.A, fit.B)
 	}
-	beliefs, toward, along := riskfit.CurveBeliefs(d.N(), d.Budget.ReportFloor)
+	beliefs, toward, along := risk.CurveBeliefs(d.N(), d.Budget.ReportFloor)
 	out.Along = along
 	if out.Curve, err = solver.Distortion(ctx, beliefs, progress); err != nil {
 		return nil, err
@@ -297,7 +296,7 @@ func stepBelief(in *RiskInputs, d *design.Design, up, fine bool) bool {
 	floor := math.Max(d.Budget.ReportFloor, 0.01)
 	q := in.Belief
 	if q == nil {
-		q = riskfit.Belief(d.Budget, d.N())
+		q = risk.DefaultBelief(d.Budget, d.N())
 	}
 	if d.N() == 2 {
 		st := 0.05
@@ -315,8 +314,8 @@ func stepBelief(in *RiskInputs, d *design.Design, up, fine bool) bool {
 		in.Belief = []float64{x, 1 - x}
 		return true
 	}
-	beliefs, _, _ := riskfit.CurveBeliefs(d.N(), d.Budget.ReportFloor)
-	list := append([][]float64{riskfit.Belief(d.Budget, d.N())}, beliefs...)
+	beliefs, _, _ := risk.CurveBeliefs(d.N(), d.Budget.ReportFloor)
+	list := append([][]float64{risk.DefaultBelief(d.Budget, d.N())}, beliefs...)
 	at := 0
 	for i, b := range list {
 		if sameVector(b, q) {

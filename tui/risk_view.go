@@ -6,7 +6,6 @@ import (
 	"strings"
 
 	"scorewright/contract/risk"
-	"scorewright/contract/risk/riskfit"
 	"scorewright/generator/design"
 )
 
@@ -31,7 +30,7 @@ func (v RiskView) inputsLine(in RiskInputs, d *design.Design) string {
 	st := v.st
 	q := in.Belief
 	if q == nil {
-		q = riskfit.Belief(d.Budget, d.N())
+		q = risk.DefaultBelief(d.Budget, d.N())
 	}
 	belief := reportText(q, d.Labels)
 	if d.N() == 2 {
@@ -189,8 +188,8 @@ func indexOf(ps []risk.Result, r risk.Result) int {
 func (v RiskView) directionTable(r *RiskResult, width int) []string {
 	st := v.st
 	head := fmt.Sprintf("%-12s", "toward")
-	for s := 1; s < riskfit.CurveSteps; s++ {
-		head += fmt.Sprintf("%6.1f", float64(s)/riskfit.CurveSteps)
+	for s := 1; s < risk.CurveSteps; s++ {
+		head += fmt.Sprintf("%6.1f", float64(s)/risk.CurveSteps)
 	}
 	out := strings.Split(st.Dim.Width(max(10, width)).Render("distortion in probability points on the segments from the uniform belief toward each outcome, at tenths of the way:"), "\n")
 	out = append(out, st.Label.Render(head+"  largest"))
@@ -198,8 +197,8 @@ func (v RiskView) directionTable(r *RiskResult, width int) []string {
 	for k := 0; k < n; k++ {
 		row := fmt.Sprintf("%-12s", clipText(r.Labels[k], 11))
 		largest := 0.0
-		for s := 1; s < riskfit.CurveSteps; s++ {
-			t := float64(s) / riskfit.CurveSteps
+		for s := 1; s < risk.CurveSteps; s++ {
+			t := float64(s) / risk.CurveSteps
 			cell := "     —"
 			for i, p := range r.Curve.Points {
 				if i < len(r.Toward) && r.Toward[i] == k && math.Abs(p.Belief[k]-((1-t)/float64(n)+t)) < 1e-9 {

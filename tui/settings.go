@@ -69,27 +69,43 @@ func NewStyles(r *lipgloss.Renderer) Styles {
 	if r == nil {
 		r = lipgloss.DefaultRenderer()
 	}
-	accent := lipgloss.AdaptiveColor{Light: "#1B6F5C", Dark: "#6FD3B5"}
-	soft := lipgloss.AdaptiveColor{Light: "#8A8F98", Dark: "#5C6370"}
+	// The workbench's palette: ochre for what has focus or asks for action,
+	// slate for frames and secondary text, sage and brick for pass and fail.
+	// Each has a darker shade for light terminals. Nothing depends on colour
+	// alone: focus is also a heavy bracket, pass and fail also ✓ and ✗.
+	ochre := lipgloss.AdaptiveColor{Light: "#8A5A00", Dark: "#E0B050"}
+	slate := lipgloss.AdaptiveColor{Light: "#5F6B7A", Dark: "#7D8799"}
+	sage := lipgloss.AdaptiveColor{Light: "#3F6B2A", Dark: "#A8C686"}
+	brick := lipgloss.AdaptiveColor{Light: "#A3361C", Dark: "#F08A6C"}
+	steel := lipgloss.AdaptiveColor{Light: "#2F5F8F", Dark: "#7FA7D9"}
+	plum := lipgloss.AdaptiveColor{Light: "#6E3F86", Dark: "#C9A0DC"}
+
+	// dialogEdge frames dialogs with half blocks: a solid edge of our own,
+	// unlike the line-drawn pane brackets behind it.
+	dialogEdge := lipgloss.Border{
+		Top: "▀", Bottom: "▄", Left: "▌", Right: "▐",
+		TopLeft: "▛", TopRight: "▜", BottomLeft: "▙", BottomRight: "▟",
+	}
+
 	return Styles{
-		Border:      r.NewStyle().Foreground(soft),
-		BorderFocus: r.NewStyle().Foreground(accent),
-		Title:       r.NewStyle().Foreground(soft),
-		TitleFocus:  r.NewStyle().Foreground(accent).Bold(true),
+		Border:      r.NewStyle().Foreground(slate),
+		BorderFocus: r.NewStyle().Foreground(ochre),
+		Title:       r.NewStyle().Foreground(slate).Bold(true),
+		TitleFocus:  r.NewStyle().Foreground(ochre).Bold(true),
 		Header:      r.NewStyle().Bold(true),
-		Label:       r.NewStyle().Foreground(soft),
-		Selected:    r.NewStyle().Foreground(accent).Bold(true),
-		Dim:         r.NewStyle().Foreground(soft),
-		Error:       r.NewStyle().Foreground(lipgloss.AdaptiveColor{Light: "#B3261E", Dark: "#F2928A"}),
-		Pass:        r.NewStyle().Foreground(lipgloss.AdaptiveColor{Light: "#2E7D32", Dark: "#9BDB8C"}),
-		Fail:        r.NewStyle().Foreground(lipgloss.AdaptiveColor{Light: "#B3261E", Dark: "#F2928A"}).Bold(true),
-		Key:         r.NewStyle().Foreground(accent),
-		Dialog:      r.NewStyle().Border(lipgloss.DoubleBorder()).BorderForeground(accent).Padding(0, 1),
+		Label:       r.NewStyle().Foreground(slate),
+		Selected:    r.NewStyle().Foreground(ochre).Bold(true),
+		Dim:         r.NewStyle().Foreground(slate),
+		Error:       r.NewStyle().Foreground(brick),
+		Pass:        r.NewStyle().Foreground(sage),
+		Fail:        r.NewStyle().Foreground(brick).Bold(true),
+		Key:         r.NewStyle().Foreground(ochre).Bold(true),
+		Dialog:      r.NewStyle().Border(dialogEdge).BorderForeground(ochre).Padding(0, 1),
 		Series: [4]lipgloss.Style{
-			r.NewStyle().Foreground(lipgloss.AdaptiveColor{Light: "#1565C0", Dark: "#82B1FF"}),
-			r.NewStyle().Foreground(lipgloss.AdaptiveColor{Light: "#C62828", Dark: "#FF8A80"}),
-			r.NewStyle().Foreground(lipgloss.AdaptiveColor{Light: "#6A1B9A", Dark: "#E1A6F0"}),
-			r.NewStyle().Foreground(lipgloss.AdaptiveColor{Light: "#EF6C00", Dark: "#FFCC80"}),
+			r.NewStyle().Foreground(steel),
+			r.NewStyle().Foreground(brick),
+			r.NewStyle().Foreground(plum),
+			r.NewStyle().Foreground(sage),
 		},
 	}
 }

@@ -11,7 +11,6 @@ import (
 	tea "github.com/charmbracelet/bubbletea"
 
 	"scorewright/generator/design"
-	"scorewright/internal/num"
 )
 
 // termsField is one line of the terms view: a text of the design that the
@@ -61,23 +60,11 @@ func termsFields() []termsField {
 				return nil
 			}},
 		{label: "Base rate", help: "how often each outcome happens, q1,q2,... (blank: the reference belief, else uniform)",
-			get: func(d *design.Design) string {
-				if d.Contract.BaseRate == nil {
-					return ""
-				}
-				return strings.Trim(num.Format(d.Contract.BaseRate), "()")
-			},
+			get: func(d *design.Design) string { return vecText(d.Contract.BaseRate, "") },
 			set: func(d *design.Design, v string) error {
-				if v == "" {
-					d.Contract.BaseRate = nil
-					return nil
-				}
-				q, err := num.ParseDistribution(v, d.N())
-				if err != nil {
-					return fmt.Errorf("base rate: %v", err)
-				}
+				q, err := distOrBlank(v, d.N(), "base rate")
 				d.Contract.BaseRate = q
-				return nil
+				return err
 			}},
 	}
 }

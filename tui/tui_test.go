@@ -434,7 +434,7 @@ func TestExportDialog(t *testing.T) {
 	dir := t.TempDir()
 	m := testModel(t, nil, Settings{Dir: dir, Version: "test"})
 	start(t, m, 80, 24)
-	press(t, m, tea_ctrlX(), keyTab) // csv → md
+	press(t, m, tea_ctrlX(), keyDown) // csv → md
 	if m.dialog == nil || m.dialog.Format() != "md" || !strings.HasSuffix(m.dialog.Path(), ".md") {
 		t.Fatalf("format change: %+v", m.dialog.Path())
 	}
@@ -447,7 +447,7 @@ func TestExportDialog(t *testing.T) {
 	if !strings.Contains(m.Status(), path) {
 		t.Fatalf("status %q does not say where", m.Status())
 	}
-	press(t, m, tea_ctrlX(), keyTab, keyEnter)
+	press(t, m, tea_ctrlX(), keyEnter) // the dialog keeps md, the format chosen last
 	if m.dialog == nil || !m.dialog.confirm {
 		t.Fatal("no question before replacing an export")
 	}
@@ -463,7 +463,7 @@ func TestExportRecordOrdered(t *testing.T) {
 	dir := t.TempDir()
 	m := testModel(t, DemoHarvest(), Settings{Dir: dir, Version: "test"})
 	start(t, m, 80, 24)
-	press(t, m, tea_ctrlX(), keyTab, keyEnter) // csv → md, export
+	press(t, m, tea_ctrlX(), keyDown, keyEnter) // csv → md, export
 	b, err := os.ReadFile(filepath.Join(dir, "orchard-co-operative-harvest-outlook.md"))
 	if err != nil {
 		t.Fatal(err)
@@ -527,7 +527,7 @@ func TestPointExport(t *testing.T) {
 	}
 	good := testModel(t, d, Settings{})
 	start(t, good, 120, 40)
-	if v := good.View(); !strings.Contains(v, "menu re-check passed, smallest margin") {
+	if v := good.View(); !strings.Contains(v, "menu re-check passed, margin") {
 		t.Fatalf("budget pane does not show the passed re-check:\n%s", v)
 	}
 }
@@ -664,10 +664,15 @@ func TestLotteryExport(t *testing.T) {
 	if b, _ := os.ReadFile(pp); !strings.Contains(string(b), lottery.Caution) || !strings.Contains(string(b), "chance") {
 		t.Errorf("point lottery export:\n%s", b)
 	}
-	// Money again: ctrl+t toggles back.
-	press(t, m, tea_ctrlX(), tea.KeyMsg{Type: tea.KeyCtrlT}, tea.KeyMsg{Type: tea.KeyCtrlT})
+	// The next export dialog keeps the lottery chosen last; ctrl+t goes
+	// back to money.
+	press(t, m, tea_ctrlX())
+	if !m.dialog.lottery {
+		t.Fatal("the export dialog forgot the lottery")
+	}
+	press(t, m, tea.KeyMsg{Type: tea.KeyCtrlT})
 	if m.dialog.lottery {
-		t.Fatal("second ctrl+t did not go back to money")
+		t.Fatal("ctrl+t did not go back to money")
 	}
 }
 
@@ -697,7 +702,7 @@ func TestMeanPayBudget(t *testing.T) {
 	if r := row(); strings.Join(r, " ") != "(0, 1) 0.0 40.0" || !m.budget.table.Passed {
 		t.Fatalf("mean 30: first row %q, passed %v", r, m.budget.table.Passed)
 	}
-	if v := m.View(); !strings.Contains(v, "not used while a mean pay is set") {
+	if v := m.View(); !strings.Contains(v, "unused while a mean pay is set") {
 		t.Fatalf("the cap's note is missing:\n%s", v)
 	}
 	press(t, m, keyRight)
@@ -721,7 +726,7 @@ func TestMeanPayBudget(t *testing.T) {
 	start(t, pm, 120, 40)
 	pm.setFocus(paneBudget)
 	press(t, pm, keyDown, keyDown, keyRight)
-	if pm.Design().Budget.MeanPay != nil || !strings.Contains(pm.budget.note, "floor and a cap") {
+	if pm.Design().Budget.MeanPay != nil || !strings.Contains(pm.budget.note, "not for point-forecast tables") {
 		t.Fatalf("point design took a mean pay; note %q", pm.budget.note)
 	}
 }

@@ -9,6 +9,7 @@ import (
 
 	"scorewright/generator/payout"
 	"scorewright/internal/num"
+	"scorewright/internal/pool"
 	"scorewright/internal/simplex"
 )
 
@@ -87,13 +88,13 @@ func Audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings)
 		return nil, err
 	}
 	G := int64(g.Len())
-	pr := startProgress(s.Progress, G*G+G*int64(offGridCount(int(G)))+gradCost*G+identifyCost(int(G), cands)+int64(auditRefine)*gradCost)
+	pr := pool.NewMeter(s.Progress, G*G+G*int64(offGridCount(int(G)))+gradCost*G+identifyCost(int(G), cands)+int64(auditRefine)*gradCost)
 	rep, err := audit(ctx, p, cands, s, g, pr)
-	pr.finish(err == nil)
+	pr.Finish(err == nil)
 	return rep, err
 }
 
-func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings, g *simplex.Grid, pr *progress) (*AuditReport, error) {
+func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings, g *simplex.Grid, pr *pool.Meter) (*AuditReport, error) {
 	n, G := p.Outcomes(), g.Len()
 	rep := &AuditReport{Report: Report{Grid: gridInfo(g, s)}}
 	rep.Notes = gridNotes(rep.Grid, n)
@@ -105,11 +106,11 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	for i := range evs {
 		evs[i] = p.NewEvaluator()
 	}
-	err := parallel(ctx, s.Workers, G, 256, func(w, lo, hi int) {
+	err := pool.Run(ctx, s.Workers, G, 256, func(w, lo, hi int) {
 		for j := lo; j < hi; j++ {
 			evs[w].Pays(pays.rows[j*n:(j+1)*n], g.Point(j))
 		}
-		pr.add(int64(hi-lo) * gradCost)
+		pr.Add(int64(hi-lo) * gradCost)
 	})
 	if err != nil {
 		return nil, err
@@ -255,7 +256,7 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 // the grid stream alone would call it strictly proper. A belief whose
 // best random report beats both honesty (by more than the slack) and its
 // best grid report takes that report. It returns how many beliefs did.
-func offGridReports(ctx context.Context, p *payout.Payout, g *simplex.Grid, bgs []BeliefGap, s Settings, pr *progress) (int, error) {
+func offGridReports(ctx context.Context, p *payout.Payout, g *simplex.Grid, bgs []BeliefGap, s Settings, pr *pool.Meter) (int, error) {
 	n, G := g.N, g.Len()
 	R := offGridCount(G)
 	reps := randomInterior(n, R, s.Seed, 0x7e90)
@@ -265,7 +266,7 @@ func offGridReports(ctx context.Context, p *payout.Payout, g *simplex.Grid, bgs 
 	for i := range evs {
 		evs[i] = p.NewEvaluator()
 	}
-	err := parallel(ctx, s.Workers, R, 256, func(w, lo, hi int) {
+	err := pool.Run(ctx, s.Workers, R, 256, func(w, lo, hi int) {
 		for j := lo; j < hi; j++ {
 			evs[w].Pays(pays[j*n:(j+1)*n], reps[j*n:(j+1)*n])
 		}
@@ -274,7 +275,7 @@ func offGridReports(ctx context.Context, p *payout.Payout, g *simplex.Grid, bgs 
 		return 0, err
 	}
 	gained := make([]bool, G)
-	err = parallel(ctx, s.Workers, G, 16, func(_, lo, hi int) {
+	err = pool.Run(ctx, s.Workers, G, 16, func(_, lo, hi int) {
 		for i := lo; i < hi; i++ {
 			bg := &bgs[i]
 			if bg.Honest != bg.Honest || math.IsInf(bg.Honest, 0) {
@@ -300,7 +301,7 @@ func offGridReports(ctx context.Context, p *payout.Payout, g *simplex.Grid, bgs 
 				bg.Gap, bg.BestReport, gained[i] = gap, clone(reps[arg*n:(arg+1)*n]), true
 			}
 		}
-		pr.add(int64(hi-lo) * int64(R))
+		pr.Add(int64(hi-lo) * int64(R))
 	})
 	count := 0
 	for _, b := range gained {
@@ -338,7 +339,7 @@ func onFaces(reps []float64, n int, seed uint64) {
 
 // refineBeliefs improves the best report of the improper beliefs (largest
 // gaps first, up to auditRefine) by Nelder–Mead over reports.
-func refineBeliefs(ctx context.Context, p *payout.Payout, g *simplex.Grid, bgs []BeliefGap, s Settings, pr *progress) error {
+func refineBeliefs(ctx context.Context, p *payout.Payout, g *simplex.Grid, bgs []BeliefGap, s Settings, pr *pool.Meter) error {
 	var idx []int
 	for i, bg := range bgs {
 		if bg.Gap > s.Tolerance && !math.IsInf(bg.Gap, 0) {
@@ -353,7 +354,7 @@ func refineBeliefs(ctx context.Context, p *payout.Payout, g *simplex.Grid, bgs [
 	for i := range evs {
 		evs[i] = p.NewEvaluator()
 	}
-	return parallel(ctx, s.Workers, len(idx), 4, func(w, lo, hi int) {
+	return pool.Run(ctx, s.Workers, len(idx), 4, func(w, lo, hi int) {
 		ev := evs[w]
 		ps := newPairSearch(g.N)
 		ps.fixBelief, ps.evals, ps.cell = true, searchEvals, cellOf(g)
@@ -364,7 +365,7 @@ func refineBeliefs(ctx context.Context, p *payout.Payout, g *simplex.Grid, bgs [
 				bg.Gap, bg.BestReport = gap, r
 			}
 		}
-		pr.add(int64(hi-lo) * gradCost)
+		pr.Add(int64(hi-lo) * gradCost)
 	})
 }
 

@@ -9,6 +9,7 @@ import (
 	"scorewright/generator/bregman"
 	"scorewright/generator/formula"
 	"scorewright/internal/num"
+	"scorewright/internal/pool"
 	"scorewright/internal/simplex"
 )
 
@@ -39,9 +40,9 @@ func CheckRule(ctx context.Context, r *bregman.Rule, s Settings) (*Report, error
 		return nil, err
 	}
 	G := g.Len()
-	pr := startProgress(s.Progress, int64(G)*int64(G)+2*gradCost*int64(G)+gradCost*int64(offGridCount(G)))
+	pr := pool.NewMeter(s.Progress, int64(G)*int64(G)+2*gradCost*int64(G)+gradCost*int64(offGridCount(G)))
 	rep, err := checkRule(ctx, r, s, g, pr)
-	pr.finish(err == nil)
+	pr.Finish(err == nil)
 	return rep, err
 }
 
@@ -86,7 +87,7 @@ func gridInfo(g *simplex.Grid, s Settings) Grid {
 	return out
 }
 
-func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid, pr *progress) (*Report, error) {
+func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid, pr *pool.Meter) (*Report, error) {
 	n, G := r.Outcomes(), g.Len()
 	rep := &Report{Grid: gridInfo(g, s)}
 	rep.Notes = gridNotes(rep.Grid, n)
@@ -101,12 +102,12 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	for i := range scorers {
 		scorers[i] = r.NewScorer()
 	}
-	err := parallel(ctx, s.Workers, G, 256, func(w, lo, hi int) {
+	err := pool.Run(ctx, s.Workers, G, 256, func(w, lo, hi int) {
 		sc := scorers[w]
 		for j := lo; j < hi; j++ {
 			h[j] = sc.Efforts(m.rows[j*n:(j+1)*n], g.Point(j))
 		}
-		pr.add(int64(hi-lo) * gradCost)
+		pr.Add(int64(hi-lo) * gradCost)
 	})
 	if err != nil {
 		return nil, err
@@ -125,12 +126,18 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	if err != nil {
 		return nil, err
 	}
-	bs, err := stream(ctx, g, m, s.Workers, pr)
+	proved := s.Proof.proves()
+	var bs []best
+	if proved {
+		bs, rep.Grid.Pairs, err = provedStream(ctx, g, m, s.Workers, pr)
+	} else {
+		bs, err = stream(ctx, g, m, s.Workers, pr)
+	}
 	if err != nil {
 		return nil, err
 	}
 	prop, nonneg, ties := properness(g, m, h, bs, s.Tolerance, rep.Grid.Scale)
-	if g.Sampled {
+	if g.Sampled && !proved {
 		if err := searchReports(ctx, g, &prop, s, func(int) func(q, p []float64) float64 {
 			sc := r.NewScorer()
 			eff := make([]float64, n)
@@ -191,7 +198,25 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	default:
 		rep.Verdict = Proper
 	}
+	if proved {
+		restOnProof(rep, s.Proof, rep.Grid.Boundary)
+	}
 	return rep, nil
+}
+
+// restOnProof gives a check that streamed only what a proof leaves the
+// proof's verdict and kind, unless the grid contradicts it: then the
+// grid's improper verdict stands, as grid evidence, and a note says so.
+func restOnProof(rep *Report, p *Proof, boundaryReports int) {
+	if rep.Verdict == Improper {
+		rep.Notes = append(rep.Notes, "the grid contradicts the proof handed in ("+p.Statement+"): the grid's verdict stands")
+		return
+	}
+	rep.Verdict, rep.Proof = p.Verdict, p
+	if c := rep.Check(NameProperness); c != nil {
+		c.Strict = p.Verdict == StrictlyProper
+		c.Note = provedNote(*c, p, boundaryReports)
+	}
 }
 
 // StrictFloor is the rounding floor strictness is judged against: an

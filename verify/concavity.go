@@ -11,6 +11,7 @@ import (
 
 	"scorewright/generator/bregman"
 	"scorewright/internal/num"
+	"scorewright/internal/pool"
 	"scorewright/internal/simplex"
 )
 
@@ -20,19 +21,19 @@ import (
 //
 // Numeric kernel: one pass over the grid (or the lanes) kept whole so
 // the arithmetic reads in one place; it stays longer than 80 lines on purpose.
-func concavity(ctx context.Context, r *bregman.Rule, g *simplex.Grid, s Settings, scorers []*bregman.Scorer, pr *progress) (CheckResult, error) {
+func concavity(ctx context.Context, r *bregman.Rule, g *simplex.Grid, s Settings, scorers []*bregman.Scorer, pr *pool.Meter) (CheckResult, error) {
 	n, G := r.Outcomes(), g.Len()
 	lam := make([]float64, G)
 	projs := make([]*projector, s.Workers)
 	for i := range projs {
 		projs[i] = newProjector(n)
 	}
-	err := parallel(ctx, s.Workers, G, 128, func(w, lo, hi int) {
+	err := pool.Run(ctx, s.Workers, G, 128, func(w, lo, hi int) {
 		pj, sc := projs[w], scorers[w]
 		for j := lo; j < hi; j++ {
 			lam[j] = pj.largest(sc, g.Point(j))
 		}
-		pr.add(int64(hi-lo) * gradCost)
+		pr.Add(int64(hi-lo) * gradCost)
 	})
 	if err != nil {
 		return CheckResult{}, err
@@ -254,16 +255,16 @@ func randomInterior(n, count int, seed, stream uint64) []float64 {
 // offGrid draws offGridCount(G) points uniformly from the interior of the
 // simplex (a flat Dirichlet, fixed by s.Seed) and computes the largest
 // projected eigenvalue at each.
-func offGrid(ctx context.Context, n, G int, s Settings, projs []*projector, scorers []*bregman.Scorer, pr *progress) (pts, lam []float64, err error) {
+func offGrid(ctx context.Context, n, G int, s Settings, projs []*projector, scorers []*bregman.Scorer, pr *pool.Meter) (pts, lam []float64, err error) {
 	count := offGridCount(G)
 	pts = randomInterior(n, count, s.Seed, 0xc0ca)
 	lam = make([]float64, count)
-	err = parallel(ctx, s.Workers, count, 128, func(w, lo, hi int) {
+	err = pool.Run(ctx, s.Workers, count, 128, func(w, lo, hi int) {
 		pj, sc := projs[w], scorers[w]
 		for j := lo; j < hi; j++ {
 			lam[j] = pj.largest(sc, pts[j*n:(j+1)*n])
 		}
-		pr.add(int64(hi-lo) * gradCost)
+		pr.Add(int64(hi-lo) * gradCost)
 	})
 	return pts, lam, err
 }

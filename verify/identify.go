@@ -9,6 +9,7 @@ import (
 	"gonum.org/v1/gonum/stat"
 
 	"scorewright/generator/bregman"
+	"scorewright/internal/pool"
 	"scorewright/internal/simplex"
 )
 
@@ -190,7 +191,7 @@ func (f *fitter) fit(r *bregman.Rule, step int) lsq {
 // differences. The refined value is kept only when the optimiser's status
 // is a convergence or budget status; otherwise the scan's best stands and
 // the status says so.
-func (f *fitter) fitParam(ctx context.Context, c Candidate, pr *progress) (v float64, status string, err error) {
+func (f *fitter) fitParam(ctx context.Context, c Candidate, pr *pool.Meter) (v float64, status string, err error) {
 	step := searchStep(f.g.Len())
 	pts := int64((f.g.Len() + step - 1) / step)
 	geometric := c.Lo > 0
@@ -204,7 +205,7 @@ func (f *fitter) fitParam(ctx context.Context, c Candidate, pr *progress) (v flo
 		if !(u >= 0 && u <= 1) || ctx.Err() != nil {
 			return math.Inf(1)
 		}
-		pr.add(pts * gradCost)
+		pr.Add(pts * gradCost)
 		r, err := c.At(value(u))
 		if err != nil || r == nil || r.Outcomes() != f.g.N {
 			return math.Inf(1)
@@ -243,7 +244,7 @@ func (f *fitter) fitParam(ctx context.Context, c Candidate, pr *progress) (v flo
 // identify fits pay = shift + scale × (-L) for every candidate (and its
 // parameter, for a family) by least squares over the grid reports and
 // outcomes where both are finite.
-func identify(ctx context.Context, g *simplex.Grid, pays *menu, cands []Candidate, pr *progress) ([]Identification, error) {
+func identify(ctx context.Context, g *simplex.Grid, pays *menu, cands []Candidate, pr *pool.Meter) ([]Identification, error) {
 	n, G := g.N, g.Len()
 	f := newFitter(g, pays)
 	var fits []Identification
@@ -271,7 +272,7 @@ func identify(ctx context.Context, g *simplex.Grid, pays *menu, cands []Candidat
 			}
 		}
 		l := f.fit(r, 1)
-		pr.add(int64(G) * gradCost)
+		pr.Add(int64(G) * gradCost)
 		fits = append(fits, judge(id, l))
 	}
 	// Accepted fits keep the candidates' order (several rules coincide up

@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"scorewright/internal/num"
+	"scorewright/internal/pool"
 	"scorewright/internal/simplex"
 )
 
@@ -150,7 +151,7 @@ func searchReports(ctx context.Context, g *simplex.Grid, prop *CheckResult, s Se
 	for i := range fns {
 		fns[i] = phiFor(i)
 	}
-	err := parallel(ctx, s.Workers, count, 1, func(w, lo, hi int) {
+	err := pool.Run(ctx, s.Workers, count, 1, func(w, lo, hi int) {
 		f := fns[w]
 		ps := newPairSearch(n)
 		ps.fixBelief, ps.evals = true, searchEvals

@@ -37,7 +37,7 @@ import (
 
 // leafSize is the most reports a leaf of the tree holds: small enough for
 // tight boxes, large enough that the leaf loop, not the walk, dominates.
-const leafSize = 16
+const leafSize = 64
 
 // reportTree is the box hierarchy over a menu's reports.
 type reportTree struct {
@@ -169,14 +169,11 @@ func (t *reportTree) bounds(rows []float64) []float64 {
 	return lo
 }
 
-// scan is the pruned counterpart of the full stream's scan over rows (the
-// tree's rows, or its substituted rows when safe): the same best two.
-func (t *reportTree) scan(q []float64, safe bool) best {
-	b, _ := t.walk(q, safe)
-	return b
-}
-
-// walk is scan, also counting the reports it evaluated (for benchmarks).
+// walk is the pruned counterpart of the full stream's scan over rows (the
+// tree's rows, or its substituted rows when safe): the same best two, and
+// how many reports it evaluated. The stream walks once per block of
+// beliefs (prune_block.go); one belief at a time is left for the beliefs
+// the blocks do not take.
 func (t *reportTree) walk(q []float64, safe bool) (best, int) {
 	rows, lo := t.rows, t.lo
 	if safe {
@@ -190,7 +187,7 @@ func (t *reportTree) walk(q []float64, safe bool) (best, int) {
 		node  int32
 		bound float64
 	}
-	stack[0].node, stack[0].bound = 0, bound(q, lo[:n])
+	stack[0].node, stack[0].bound = 0, dotN(q, lo[:n])
 	visited := 0
 	for sp := 1; sp > 0; {
 		sp--
@@ -205,7 +202,7 @@ func (t *reportTree) walk(q []float64, safe bool) (best, int) {
 			visited += int(t.end[i] - t.start[i])
 			continue
 		}
-		bl, br := bound(q, lo[c*n:(c+1)*n]), bound(q, lo[(c+1)*n:(c+2)*n])
+		bl, br := dotN(q, lo[c*n:(c+1)*n]), dotN(q, lo[(c+1)*n:(c+2)*n])
 		near, far := int32(c), int32(c+1)
 		if br < bl {
 			near, far, bl, br = far, near, br, bl
@@ -220,15 +217,6 @@ func (t *reportTree) walk(q []float64, safe bool) (best, int) {
 		}
 	}
 	return best{st.m1, st.m2, st.a1, st.a2}, visited
-}
-
-// bound is sum_k q_k lo_k, rounded exactly as the kernels round phi.
-func bound(q, lo []float64) float64 {
-	s := float64(q[0] * lo[0])
-	for k := 1; k < len(q); k++ {
-		s = float64(s + float64(q[k]*lo[k]))
-	}
-	return s
 }
 
 // pruneState is the best two so far, by (value, grid index).

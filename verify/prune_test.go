@@ -7,6 +7,7 @@ import (
 	"math/rand/v2"
 	"testing"
 
+	"scorewright/internal/pool"
 	"scorewright/internal/simplex"
 )
 
@@ -133,7 +134,7 @@ func TestPrunedStreamRandomMenus(t *testing.T) {
 
 func comparePruned(t *testing.T, name string, g *simplex.Grid, m *menu) {
 	t.Helper()
-	pr := startProgress(nil, 0)
+	pr := pool.NewMeter(nil, 0)
 	got, err := stream(context.Background(), g, m, 2, pr)
 	if err != nil {
 		t.Fatal(err)

@@ -3,6 +3,8 @@ package verify
 import (
 	"fmt"
 	"math"
+
+	"scorewright/internal/pool"
 )
 
 // Settings tune a check. The zero value means the defaults.
@@ -19,7 +21,7 @@ type Settings struct {
 	Workers int
 	// Progress, when set, is called from a single goroutine about ten
 	// times a second with the work done so far, and once at the end.
-	Progress func(done, total int64)
+	Progress pool.Progress
 	// Limit, when positive, is the largest effort (or, in an audit, the
 	// largest payment in absolute value) the boundedness check accepts.
 	Limit float64
@@ -35,6 +37,17 @@ type Settings struct {
 	// Labels name the outcomes in findings ("frost: [0, 1]"); nil means
 	// 1..n. Only an audit reads them: a generator's rule names its own.
 	Labels []string
+
+	// Proof, when set, is a proof (a certificate) that the rule is proper
+	// or strictly proper over the whole simplex. CheckRule then leaves
+	// out the pairs the proof settles, interior beliefs against interior
+	// reports, and streams only what it still serves: every boundary
+	// belief against every report, and every interior belief against the
+	// boundary reports (whose efforts are limits the proof of H's
+	// concavity does not see computed). An audit ignores it. A proof of
+	// impropriety is no Proof: the full stream then finds the worst
+	// misreport.
+	Proof *Proof
 
 	// maxPointsAsked records that MaxPoints came from the caller, not from
 	// the machine's memory, so that a sampled grid can say why.
@@ -82,8 +95,21 @@ func (s Settings) withDefaults(n int) Settings {
 	if s.Samples <= 0 {
 		s.Samples = DefaultSamples
 	}
-	s.Workers = workers(s.Workers)
+	s.Workers = pool.Workers(s.Workers)
 	return s
+}
+
+// Proof is what a certificate proved, handed to a check.
+type Proof struct {
+	// Verdict is Proper or StrictlyProper.
+	Verdict Verdict
+	// Statement says what proved it, in a sentence (the certificate's).
+	Statement string
+}
+
+// proves reports whether p is a proof the check can rest on.
+func (p *Proof) proves() bool {
+	return p != nil && (p.Verdict == Proper || p.Verdict == StrictlyProper)
 }
 
 // Verdict is the summary of a check.
@@ -122,7 +148,8 @@ type Grid struct {
 	// Interior and Boundary count the points with every coordinate
 	// positive and with some coordinate 0.
 	Interior, Boundary int
-	// Pairs is the number of belief–report pairs streamed.
+	// Pairs is the number of belief–report pairs the check settled: G²,
+	// or fewer when a proof settled the rest (Report.Proof).
 	Pairs int64
 }
 
@@ -213,8 +240,12 @@ type CheckResult struct {
 // Report is the result of CheckRule.
 type Report struct {
 	Verdict Verdict
-	Grid    Grid
-	Checks  []CheckResult
+	// Proof is set when the verdict rests on Settings.Proof (its kind is
+	// then "certified"; the grid checked what the proof does not cover),
+	// nil when the verdict is grid evidence.
+	Proof  *Proof
+	Grid   Grid
+	Checks []CheckResult
 	// Notes are findings worth a sentence that are not failures, such as
 	// infinite effort on the boundary.
 	Notes []string

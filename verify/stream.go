@@ -3,11 +3,8 @@ package verify
 import (
 	"context"
 	"math"
-	"runtime"
-	"sync"
-	"sync/atomic"
-	"time"
 
+	"scorewright/internal/pool"
 	"scorewright/internal/simplex"
 )
 
@@ -112,110 +109,21 @@ type best struct {
 	arg, arg2 int32
 }
 
-// progress counts work done across the phases of a long call and reports
-// it from one goroutine, so the caller's callback is never called
-// concurrently.
-type progress struct {
-	done  atomic.Int64
-	total int64
-	fn    func(done, total int64)
-	stop  chan struct{}
-	wg    sync.WaitGroup
-}
-
-func startProgress(fn func(done, total int64), total int64) *progress {
-	p := &progress{total: total, fn: fn, stop: make(chan struct{})}
-	if fn == nil {
-		return p
-	}
-	p.wg.Add(1)
-	go func() {
-		defer p.wg.Done()
-		t := time.NewTicker(100 * time.Millisecond)
-		defer t.Stop()
-		for {
-			select {
-			case <-p.stop:
-				return
-			case <-t.C:
-				p.fn(min(p.done.Load(), p.total), p.total)
-			}
-		}
-	}()
-	return p
-}
-
-func (p *progress) add(n int64) { p.done.Add(n) }
-
-// finish stops the reporter; a call that completed reports done = total.
-func (p *progress) finish(completed bool) {
-	close(p.stop)
-	p.wg.Wait()
-	if p.fn != nil && completed {
-		p.fn(p.total, p.total)
-	}
-}
-
-func workers(w int) int {
-	if w <= 0 {
-		w = runtime.GOMAXPROCS(0)
-	}
-	return w
-}
-
-// parallel runs body(i) for i in [0, count) on w goroutines, handing out
-// indices in chunks, and stops early (returning ctx.Err()) when ctx is
-// cancelled. It is the one place the checks fan out over cores.
-func parallel(ctx context.Context, w, count, chunk int, body func(worker, lo, hi int)) error {
-	w = workers(w)
-	if chunk < 1 {
-		chunk = 1
-	}
-	var next atomic.Int64
-	var wg sync.WaitGroup
-	done := ctx.Done()
-	var stopped atomic.Bool
-	for id := 0; id < w; id++ {
-		wg.Add(1)
-		go func(id int) {
-			defer wg.Done()
-			for {
-				select {
-				case <-done:
-					stopped.Store(true)
-					return
-				default:
-				}
-				lo := int(next.Add(int64(chunk))) - chunk
-				if lo >= count {
-					return
-				}
-				body(id, lo, min(lo+chunk, count))
-			}
-		}(id)
-	}
-	wg.Wait()
-	if stopped.Load() || ctx.Err() != nil {
-		return ctx.Err()
-	}
-	return nil
-}
-
 // stream finds, for every belief of g, the best and second-best report of
-// the menu by expected effort. It walks the report tree (prune.go), which
-// skips boxes of reports that cannot enter the best two, and returns
-// exactly what streamFull returns. Beliefs are handed out one at a time,
-// so cancellation is seen after at most G pairs; progress counts the G
-// pairs each belief settles, visited or pruned.
-func stream(ctx context.Context, g *simplex.Grid, m *menu, w int, pr *progress) ([]best, error) {
-	t := newReportTree(g, m)
-	return streamWith(ctx, g, m, w, pr, func(q []float64, safe bool) best { return t.scan(q, safe) })
+// the menu by expected effort. It walks the report tree (prune.go,
+// prune_block.go), which skips boxes of reports that cannot enter the best
+// two, and returns exactly what streamFull returns. Beliefs are handed out
+// a leaf (at most leafSize beliefs) at a time, so cancellation is seen
+// after at most leafSize·G pairs; progress counts the G pairs each belief
+// settles, visited or pruned.
+func stream(ctx context.Context, g *simplex.Grid, m *menu, w int, pr *pool.Meter) ([]best, error) {
+	return streamPruned(ctx, g, m, w, pr, nil)
 }
 
 // streamFull is the full pair stream: every grid belief against every grid
 // report, G² pairs. It is the reference the pruned stream is tested and
 // measured against.
-func streamFull(ctx context.Context, g *simplex.Grid, m *menu, w int, pr *progress) ([]best, error) {
+func streamFull(ctx context.Context, g *simplex.Grid, m *menu, w int, pr *pool.Meter) ([]best, error) {
 	return streamWith(ctx, g, m, w, pr, func(q []float64, safe bool) best {
 		if safe {
 			return scan(q, m.safe, m.n)
@@ -226,11 +134,11 @@ func streamFull(ctx context.Context, g *simplex.Grid, m *menu, w int, pr *progre
 
 // streamWith runs find (the best two over the menu's rows, or over its
 // substituted rows when safe) for every belief, choosing the rows by the
-// belief's support: see menu.safe.
-func streamWith(ctx context.Context, g *simplex.Grid, m *menu, w int, pr *progress, find func(q []float64, safe bool) best) ([]best, error) {
+// belief's support: see menu.safe (blockWork.single does the same).
+func streamWith(ctx context.Context, g *simplex.Grid, m *menu, w int, pr *pool.Meter, find func(q []float64, safe bool) best) ([]best, error) {
 	G := g.Len()
 	out := make([]best, G)
-	err := parallel(ctx, w, G, 1, func(_, lo, hi int) {
+	err := pool.Run(ctx, w, G, 1, func(_, lo, hi int) {
 		for i := lo; i < hi; i++ {
 			q := g.Point(i)
 			var b best
@@ -249,7 +157,7 @@ func streamWith(ctx context.Context, g *simplex.Grid, m *menu, w int, pr *progre
 				b = scanSupport(q, m.rows, m.n)
 			}
 			out[i] = b
-			pr.add(int64(G))
+			pr.Add(int64(G))
 		}
 	})
 	return out, err

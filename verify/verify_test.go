@@ -12,6 +12,7 @@ import (
 
 	"scorewright/generator/bregman"
 	"scorewright/generator/payout"
+	"scorewright/internal/pool"
 	"scorewright/internal/simplex"
 	"scorewright/presets"
 )
@@ -645,7 +646,7 @@ func TestSafeRowsMatchSupportScan(t *testing.T) {
 		if m.safe == nil {
 			t.Fatal("no substituted rows for a menu with infinities")
 		}
-		bs, err := stream(context.Background(), g, m, 2, startProgress(nil, 0))
+		bs, err := stream(context.Background(), g, m, 2, pool.NewMeter(nil, 0))
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -4,6 +4,7 @@ import (
 	"bufio"
 	"context"
 	"errors"
+	"flag"
 	"fmt"
 	"io"
 	"math"
@@ -18,6 +19,7 @@ import (
 	"scorewright/contract/backtest/corp"
 	"scorewright/contract/backtest/figure"
 	"scorewright/contract/backtest/history"
+	"scorewright/contract/budget"
 	"scorewright/contract/table"
 	"scorewright/generator/bregman"
 	"scorewright/generator/design"
@@ -29,42 +31,14 @@ const backtestUsage = ruleUsage + " " + budgetUsage + " [--menu FILE] [--clamp P
 	" [--versus-preset NAME | --versus-generator EXPR | --versus-design FILE] [--versus-param name=value]" +
 	" [--sheet NAME] [--bin-width W] [--pay-out FILE.csv] [--forecasters-out FILE.csv] [--by-question] [--figure FILE.svg|png|pdf] [--chart] [--force] [--progress] [--json]"
 
-// money is how one rule turns effort into pay, as its fitted table does.
-type money struct {
-	pay backtest.Payer
-	// onMenu reports whether a forecast is on the report menu; nil when
-	// every forecast is.
-	onMenu func(p []float64) bool
-	// low and high are the payment bounds the budget promises.
-	low, high float64
-	// formula says how pay follows from effort, e.g.
-	// "pay = 12.5 - 25·effort, rounded to the nearest 0.5".
-	formula string
-	// menu describes the report menu, e.g. "reports in steps of 0.05".
-	menu string
-	// budget restates the budget, e.g. "floor 0, cap 10".
-	budget string
-	// decimals is how many decimals payments have; -1 when unrounded.
-	decimals int
-	// adjust, if set, is the report the contract pays for a forecast (the
-	// table's clamp).
-	adjust func(dst, p []float64) []float64
-	// record, if set, is the report the contract records for a forecast
-	// (the menu's report floor).
-	record func(dst, p []float64) []float64
-	// notes are said under the results.
-	notes []string
-	// warning, if set, says the fitted table failed its re-check.
-	warning string
-}
-
-// fitFunc fits a rule to a design's budget. The command uses the table's
-// fit; tests give an explicit A - B·effort.
-type fitFunc func(r *bregman.Rule, d *design.Design) (*money, error)
+// payHook, when set, replaces each rule's pay after the budget fit; tests
+// pay an explicit A - B·effort with it, so the command can be tested apart
+// from the table's budget fitting.
+type payHook func(d *design.Design, s *backtest.Scheme)
 
 func runBacktest(e *env, args []string) error { return backtestWith(e, args, nil) }
 
-// backtestScheme is one rule of a backtest with its money and origin.
+// backtestScheme is one rule of a backtest with the terms it is paid on.
 type backtestScheme struct {
 	id   string // "A", "B"
 	name string // preset name or "generator"
@@ -72,140 +46,196 @@ type backtestScheme struct {
 	// statement is the rule's formula in one line, with its parameters.
 	statement string
 	rule      *bregman.Rule
-	money     *money
+	// terms are the fitted table's; scheme pays as they do (or as the
+	// test hook says).
+	terms  *budget.Terms
+	scheme backtest.Scheme
 }
 
-// backtestWith runs the command; a nil fit means the table's budget fit.
-func backtestWith(e *env, args []string, fit fitFunc) error {
+// backtestFlags are the command's own flags, besides the rule's and the
+// budget's.
+type backtestFlags struct {
+	rule                             *ruleFlags
+	budget                           *budgetFlags
+	history, sheet, forecastersOut   *string
+	vsPreset, vsGen, vsDesign, menu  *string
+	payOut, figPath                  *string
+	binWidth, tol, clamp             *float64
+	strict, byQuestion, chart, force *bool
+	progress, asJSON                 *bool
+	vsParams                         paramFlag
+}
+
+func addBacktestFlags(fs *flag.FlagSet) *backtestFlags {
+	f := &backtestFlags{rule: addRuleFlags(fs), budget: addBudgetFlags(fs), vsParams: paramFlag{}}
+	f.history = fs.String("history", "", "forecast history: .csv, .jsonl (JSON lines) or .xlsx; columns forecaster, question, outcome, optional date, one probability per outcome ('-' reads CSV from stdin)")
+	f.sheet = fs.String("sheet", "", "XLSX history: the sheet to read (default: the first)")
+	f.binWidth = fs.Float64("bin-width", 1.0/backtest.DefaultGrid, "width of the bins of the rule's own decomposition, 1/K for a whole K")
+	f.forecastersOut = fs.String("forecasters-out", "", "write every forecaster's line (totals, ranks, decomposition) to this CSV file; the report lists only the top and bottom ones when there are many")
+	f.strict = fs.Bool("strict", false, "stop at the first bad row (exit 2) instead of skipping it")
+	f.tol = floatFlag(fs, "tolerance", history.DefaultTolerance, "how far from 1 a row's probabilities may sum")
+	f.vsPreset = fs.String("versus-preset", "", "second rule to compare with: a preset name")
+	f.vsGen = fs.String("versus-generator", "", "second rule to compare with: a generator formula")
+	f.vsDesign = fs.String("versus-design", "", "second rule to compare with: a design file (with its own budget, if it has one; else the first rule's)")
+	fs.Var(f.vsParams, "versus-param", "parameter of the second rule's formula, name=value (repeatable)")
+	f.menu = fs.String("menu", "", "read the report menu from a CSV file, as the table command does (instead of --step)")
+	f.clamp = floatFlag(fs, "clamp", 0, "pay every report as if each probability were at least P, as the table command does")
+	f.payOut = fs.String("pay-out", "", "write every forecast's pay under each rule to this CSV file")
+	f.byQuestion = fs.Bool("by-question", false, "also total the pay per question (memory grows with the number of questions)")
+	f.figPath = fs.String("figure", "", "n = 2: write the reliability picture to FILE.svg, .png or .pdf")
+	f.chart = fs.Bool("chart", false, "n = 2: print the reliability picture as a text chart")
+	f.force = fs.Bool("force", false, "replace existing --pay-out and --figure files")
+	f.progress = fs.Bool("progress", false, "show a progress line on stderr even when it is not a terminal")
+	f.asJSON = fs.Bool("json", false, "print JSON")
+	return f
+}
+
+// backtestWith runs the command; hook, when set, replaces the fitted pay.
+func backtestWith(e *env, args []string, hook payHook) error {
 	fs := newFlags("backtest")
-	rf := addRuleFlags(fs)
-	bf := addBudgetFlags(fs)
-	historyPath := fs.String("history", "", "forecast history: .csv, .jsonl (JSON lines) or .xlsx; columns forecaster, question, outcome, optional date, one probability per outcome ('-' reads CSV from stdin)")
-	sheet := fs.String("sheet", "", "XLSX history: the sheet to read (default: the first)")
-	binWidth := fs.Float64("bin-width", 1.0/backtest.DefaultGrid, "width of the bins of the rule's own decomposition, 1/K for a whole K")
-	forecastersOut := fs.String("forecasters-out", "", "write every forecaster's line (totals, ranks, decomposition) to this CSV file; the report lists only the top and bottom ones when there are many")
-	strict := fs.Bool("strict", false, "stop at the first bad row (exit 2) instead of skipping it")
-	tol := floatFlag(fs, "tolerance", history.DefaultTolerance, "how far from 1 a row's probabilities may sum")
-	vsPreset := fs.String("versus-preset", "", "second rule to compare with: a preset name")
-	vsGen := fs.String("versus-generator", "", "second rule to compare with: a generator formula")
-	vsDesign := fs.String("versus-design", "", "second rule to compare with: a design file (with its own budget, if it has one; else the first rule's)")
-	vsParams := paramFlag{}
-	fs.Var(vsParams, "versus-param", "parameter of the second rule's formula, name=value (repeatable)")
-	menuFile := fs.String("menu", "", "read the report menu from a CSV file, as the table command does (instead of --step)")
-	clamp := floatFlag(fs, "clamp", 0, "pay every report as if each probability were at least P, as the table command does")
-	payOut := fs.String("pay-out", "", "write every forecast's pay under each rule to this CSV file")
-	byQuestion := fs.Bool("by-question", false, "also total the pay per question (memory grows with the number of questions)")
-	figPath := fs.String("figure", "", "n = 2: write the reliability picture to FILE.svg, .png or .pdf")
-	chart := fs.Bool("chart", false, "n = 2: print the reliability picture as a text chart")
-	force := fs.Bool("force", false, "replace existing --pay-out and --figure files")
-	progress := fs.Bool("progress", false, "show a progress line on stderr even when it is not a terminal")
-	asJSON := fs.Bool("json", false, "print JSON")
+	f := addBacktestFlags(fs)
 	if err := parseFlags(e, fs, backtestUsage, args, false); err != nil {
 		return err
 	}
-	if *historyPath == "" {
+	if *f.history == "" {
 		return usagef("--history FILE.csv is required")
 	}
-	if fit == nil {
-		fit = budgetFit(fs, *menuFile, *clamp)
+	if !(*f.tol > 0) || *f.tol >= 1 {
+		return usagef("--tolerance %g: want a number in (0, 1)", *f.tol)
 	}
-	if !(*tol > 0) || *tol >= 1 {
-		return usagef("--tolerance %g: want a number in (0, 1)", *tol)
-	}
-	grid, err := binGrid(*binWidth)
+	grid, err := binGrid(*f.binWidth)
 	if err != nil {
 		return err
 	}
-	d1, err := rf.design(e.stderr)
+	schemes, err := f.schemes(e.stderr, fs, hook)
 	if err != nil {
 		return err
 	}
-	if err := bf.apply(fs, d1); err != nil {
+	labels := schemes[0].d.Labels
+	figFormat, err := f.checkOutputs(len(labels))
+	if err != nil {
 		return err
+	}
+	in, size, closeIn, err := openHistory(e, *f.history)
+	if err != nil {
+		return err
+	}
+	defer closeIn()
+	format := history.FormatOf(*f.history)
+	if *f.sheet != "" && format != history.XLSX {
+		return usagef("--sheet is for an .xlsx history")
+	}
+	h, err := history.Open(in, format, labels, history.Options{Tolerance: *f.tol, Sheet: *f.sheet})
+	if err != nil {
+		return usagef("%s: %v", *f.history, err)
+	}
+	return f.run(e, h, size, schemes, grid, figFormat)
+}
+
+// schemes opens the first rule and the one it is compared with, if any,
+// and fits each to its budget.
+func (f *backtestFlags) schemes(notes io.Writer, fs *flag.FlagSet, hook payHook) ([]*backtestScheme, error) {
+	d1, err := f.rule.design(notes)
+	if err != nil {
+		return nil, err
+	}
+	if err := f.budget.apply(fs, d1); err != nil {
+		return nil, err
 	}
 	schemes := []*backtestScheme{{id: "A", d: d1}}
 	vs := 0
-	for _, s := range []string{*vsPreset, *vsGen, *vsDesign} {
+	for _, s := range []string{*f.vsPreset, *f.vsGen, *f.vsDesign} {
 		if s != "" {
 			vs++
 		}
 	}
 	switch {
 	case vs > 1:
-		return usagef("give at most one of --versus-preset, --versus-generator and --versus-design")
-	case vs == 0 && len(vsParams) > 0:
-		return usagef("--versus-param needs --versus-preset, --versus-generator or --versus-design")
+		return nil, usagef("give at most one of --versus-preset, --versus-generator and --versus-design")
+	case vs == 0 && len(f.vsParams) > 0:
+		return nil, usagef("--versus-param needs --versus-preset, --versus-generator or --versus-design")
 	case vs == 1:
-		d2, err := versusDesign(e.stderr, d1, *vsPreset, *vsGen, *vsDesign, vsParams)
+		d2, err := versusDesign(notes, d1, *f.vsPreset, *f.vsGen, *f.vsDesign, f.vsParams)
 		if err != nil {
-			return err
+			return nil, err
 		}
 		schemes = append(schemes, &backtestScheme{id: "B", d: d2})
 	}
-	n := d1.N()
 	for _, s := range schemes {
-		r, err := openRule(s.d)
-		if err != nil {
-			return err
-		}
-		if s.rule, err = r.OverOutcomes(); err != nil {
-			return usagef("%v", err)
-		}
-		s.name, s.statement = ruleName(s.d, r), r.Statement()
-		if s.money, err = fit(s.rule, s.d); err != nil {
-			return fmt.Errorf("rule %s (%s): %w", s.id, s.name, err)
+		if err := s.open(fs, *f.menu, *f.clamp, hook); err != nil {
+			return nil, err
 		}
 	}
-	var figFormat string
-	if *figPath != "" || *chart {
-		if n != 2 {
-			return usagef("the reliability picture is for 2 outcomes; this rule has %d", n)
-		}
-	}
-	if *figPath != "" {
-		if figFormat, err = figure.Format(*figPath); err != nil {
-			return usagef("--figure: %v", err)
-		}
-		if err := refuseExisting(*figPath, *force); err != nil {
-			return err
-		}
-	}
-	if *forecastersOut != "" {
-		if err := refuseExisting(*forecastersOut, *force); err != nil {
-			return err
-		}
-	}
+	return schemes, nil
+}
 
-	in, size, closeIn, err := openHistory(e, *historyPath)
+// open compiles the scheme's design and fits it to its budget.
+func (s *backtestScheme) open(fs *flag.FlagSet, menuFile string, clamp float64, hook payHook) error {
+	r, err := openRule(s.d)
 	if err != nil {
 		return err
 	}
-	defer closeIn()
-	format := history.FormatOf(*historyPath)
-	if *sheet != "" && format != history.XLSX {
-		return usagef("--sheet is for an .xlsx history")
+	if s.rule, err = r.OverOutcomes(); err != nil {
+		return usagef("%v", err)
 	}
-	h, err := history.Open(in, format, d1.Labels, history.Options{Tolerance: *tol, Sheet: *sheet})
-	if err != nil {
-		return usagef("%s: %v", *historyPath, err)
+	s.name, s.statement = ruleName(s.d, r), r.Statement()
+	if s.terms, err = backtestTerms(fs, menuFile, clamp, s.rule, s.d); err != nil {
+		return fmt.Errorf("rule %s (%s): %w", s.id, s.name, err)
 	}
+	s.scheme = backtest.TermsScheme(s.id, s.terms)
+	if hook != nil {
+		hook(s.d, &s.scheme)
+	}
+	return nil
+}
 
-	bs := engineSchemes(schemes)
-	opt := backtest.Options{Strict: *strict, Tally: backtest.TallyOptions{Grid: grid}}
-	if *progress || isTerminal(e.stderr) {
+// checkOutputs refuses, before any reading, a picture for other than two
+// outcomes and output files that exist without --force; it returns the
+// figure's format.
+func (f *backtestFlags) checkOutputs(n int) (figFormat string, err error) {
+	if (*f.figPath != "" || *f.chart) && n != 2 {
+		return "", usagef("the reliability picture is for 2 outcomes; this rule has %d", n)
+	}
+	if *f.figPath != "" {
+		if figFormat, err = figure.Format(*f.figPath); err != nil {
+			return "", usagef("--figure: %v", err)
+		}
+		if err := refuseExisting(*f.figPath, *f.force); err != nil {
+			return "", err
+		}
+	}
+	if *f.forecastersOut != "" {
+		if err := refuseExisting(*f.forecastersOut, *f.force); err != nil {
+			return "", err
+		}
+	}
+	return figFormat, nil
+}
+
+// run replays the history under the schemes, interrupted by ^C, then
+// writes what was asked for.
+func (f *backtestFlags) run(e *env, h *history.Reader, size int64, schemes []*backtestScheme, grid int, figFormat string) error {
+	labels := schemes[0].d.Labels
+	bs := make([]backtest.Scheme, len(schemes))
+	for i, s := range schemes {
+		bs[i] = s.scheme
+	}
+	opt := backtest.Options{Strict: *f.strict, Tally: backtest.TallyOptions{Grid: grid}}
+	if *f.progress || isTerminal(e.stderr) {
 		opt.Progress = newProgressLine(e.progressOut(), size)
 	}
 	var out *payOutFile
-	if *payOut != "" {
-		if out, err = createPayOut(*payOut, *force, d1.Labels, schemes); err != nil {
+	if *f.payOut != "" {
+		var err error
+		if out, err = createPayOut(*f.payOut, *f.force, labels, schemes); err != nil {
 			return err
 		}
 		defer out.abort()
 		opt.OnRow = out.write
 	}
 	var questions *questionTally
-	if *byQuestion {
-		questions = newQuestionTally(d1.Labels)
+	if *f.byQuestion {
+		questions = newQuestionTally(labels)
 		opt.OnRow = bothRows(opt.OnRow, questions.add)
 	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
@@ -214,21 +244,12 @@ func backtestWith(e *env, args []string, fit fitFunc) error {
 	if opt.Progress != nil {
 		fmt.Fprintln(e.stderr)
 	}
-	if err := runError(*historyPath, h, res, err); err != nil {
+	if err := runError(*f.history, h, res, err); err != nil {
 		return err
 	}
 	defer res.Close()
-	return finishBacktest(e, h, schemes, res, backtestOutputs{history: *historyPath, payOut: *payOut, out: out, forecastersOut: *forecastersOut,
-		figPath: *figPath, figFormat: figFormat, force: *force, questions: questions, asJSON: *asJSON, chart: *chart, event: d1.Labels[0]})
-}
-
-// engineSchemes are the schemes as the engine pays them.
-func engineSchemes(schemes []*backtestScheme) []backtest.Scheme {
-	bs := make([]backtest.Scheme, len(schemes))
-	for i, s := range schemes {
-		bs[i] = backtest.Scheme{Name: s.id, Rule: s.rule, Pay: s.money.pay, OnMenu: s.money.onMenu, Low: s.money.low, High: s.money.high, Adjust: s.money.adjust, Record: s.money.record}
-	}
-	return bs
+	return finishBacktest(e, h, schemes, res, backtestOutputs{history: *f.history, payOut: *f.payOut, out: out, forecastersOut: *f.forecastersOut,
+		figPath: *f.figPath, figFormat: figFormat, force: *f.force, questions: questions, asJSON: *f.asJSON, chart: *f.chart, event: labels[0]})
 }
 
 // bothRows calls first (when set), then second, for every row.

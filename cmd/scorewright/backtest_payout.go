@@ -36,7 +36,7 @@ func createPayOut(path string, force bool, labels []string, schemes []*backtestS
 	var decimals []int
 	for _, s := range schemes {
 		head = append(head, "pay "+s.id, "effort "+s.id, "on menu "+s.id)
-		decimals = append(decimals, s.money.decimals)
+		decimals = append(decimals, s.terms.Fit.Decimals())
 	}
 	o, err := createCSVOut(path, force, head, "--pay-out")
 	if err != nil {
@@ -44,8 +44,8 @@ func createPayOut(path string, force bool, labels []string, schemes []*backtestS
 	}
 	o.labels, o.decimals = labels, decimals
 	for _, s := range schemes {
-		if s.money.warning != "" {
-			fmt.Fprintf(o.buf, "# warning: rule %s: %s\n", s.id, s.money.warning)
+		if s.terms.Warning != "" {
+			fmt.Fprintf(o.buf, "# warning: rule %s: %s\n", s.id, s.terms.Warning)
 		}
 	}
 	return o, nil

@@ -35,21 +35,21 @@ func newBacktestReport(path string, h *history.Reader, schemes []*backtestScheme
 	}
 	for i, s := range schemes {
 		m := res.All[i]
-		r.decimals = append(r.decimals, s.money.decimals)
-		rr := ruleReport{ID: s.id, Name: s.name, Formula: s.statement, Pay: s.money.formula,
-			Menu: s.money.menu, Budget: s.money.budget, Count: m.Count, Total: num.Float(m.Total), Mean: num.Float(m.Mean),
+		r.decimals = append(r.decimals, s.terms.Fit.Decimals())
+		rr := ruleReport{ID: s.id, Name: s.name, Formula: s.statement, Pay: s.terms.PayFormula(),
+			Menu: s.terms.MenuDesc(), Budget: s.terms.Fit.BudgetDesc(), Count: m.Count, Total: num.Float(m.Total), Mean: num.Float(m.Mean),
 			Min: num.Float(m.Min), Max: num.Float(m.Max), OffMenu: m.OffMenu, BelowLow: m.BelowLow, AboveHigh: m.AboveHigh,
-			NonFinite: m.NonFinite, MostTotal: num.Float(float64(m.Count) * s.money.high)}
+			NonFinite: m.NonFinite, MostTotal: num.Float(float64(m.Count) * s.scheme.High)}
 		if mp := s.d.Budget.MeanPay; mp != nil {
 			mean, total := num.Float(*mp), num.Float(*mp*float64(m.Count))
 			rr.TargetMean, rr.TargetTotal = &mean, &total
 		}
 		r.Rules = append(r.Rules, rr)
-		for _, n := range s.money.notes {
+		for _, n := range s.terms.Notes {
 			r.Notes = append(r.Notes, fmt.Sprintf("rule %s: %s", s.id, n))
 		}
-		if s.money.warning != "" {
-			r.Warnings = append(r.Warnings, fmt.Sprintf("rule %s: %s", s.id, s.money.warning))
+		if s.terms.Warning != "" {
+			r.Warnings = append(r.Warnings, fmt.Sprintf("rule %s: %s", s.id, s.terms.Warning))
 		}
 		if m.OffMenu > 0 {
 			r.Notes = append(r.Notes, fmt.Sprintf("rule %s: %d of %d forecasts are off the report menu; the table has no row for them, so they are paid by the formula (A - B·L, then rounded as the table is)",
@@ -128,16 +128,42 @@ func (r *backtestReport) writeText(w io.Writer) error {
 		fmt.Fprintf(w, "  %s\n  menu: %s\n  budget: %s\n", rule.Pay, rule.Menu, rule.Budget)
 	}
 	fmt.Fprintln(w)
+	left := r.nameColumn()
+	r.writeForecasterTable(w, left)
+	r.writeTotals(w)
+	r.writeDecomposition(w, left)
+	r.writeCORP(w, left)
+	r.writeMonths(w)
+	if err := r.writeQuestions(w); err != nil {
+		return err
+	}
+	r.writeSkipped(w)
+	fmt.Fprintln(w)
+	for _, n := range r.Notes {
+		fmt.Fprintln(w, "note:", n)
+	}
+	var err error
+	for _, c := range r.Caution {
+		_, err = fmt.Fprintln(w, "caution:", c)
+	}
+	return err
+}
 
-	two := len(r.Rules) > 1
-	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', tabwriter.AlignRight)
-	// Names read left-aligned: pad them to one width before the
-	// right-aligning table sees them.
+// nameColumn pads a forecaster's name to the width of the longest, so
+// that names read left-aligned in the right-aligning tables.
+func (r *backtestReport) nameColumn() func(string) string {
 	nw := len("forecaster")
 	for _, f := range r.Forecasters {
 		nw = max(nw, utf8.RuneCountInString(f.Name))
 	}
-	left := func(s string) string { return s + strings.Repeat(" ", nw-utf8.RuneCountInString(s)) }
+	return func(s string) string { return s + strings.Repeat(" ", nw-utf8.RuneCountInString(s)) }
+}
+
+// writeForecasterTable writes every forecaster's count, totals, means and
+// ranks under each rule, then the line of all forecasts.
+func (r *backtestReport) writeForecasterTable(w io.Writer, left func(string) string) {
+	two := len(r.Rules) > 1
+	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintf(tw, "%s\tforecasts\t", left("forecaster"))
 	for _, rule := range r.Rules {
 		fmt.Fprintf(tw, "total %s\tmean %s\trank %s\t", rule.ID, rule.ID, rule.ID)
@@ -174,7 +200,10 @@ func (r *backtestReport) writeText(w io.Writer) error {
 	tw.Flush()
 	fmt.Fprintln(w, "(ranks by mean pay per forecast, 1 is best; off menu: forecasts not on rule A's report menu)")
 	fmt.Fprintln(w)
+}
 
+// writeTotals writes what each rule paid against its budget.
+func (r *backtestReport) writeTotals(w io.Writer) {
 	fmt.Fprintln(w, "totals against the budget")
 	for i, rule := range r.Rules {
 		fmt.Fprintf(w, "  rule %s: paid %s for %d forecasts (mean %.4g, smallest %s, largest %s); ", rule.ID,
@@ -192,9 +221,13 @@ func (r *backtestReport) writeText(w io.Writer) error {
 		fmt.Fprintln(w)
 	}
 	fmt.Fprintln(w)
+}
 
+// writeDecomposition writes each forecaster's binned decomposition of the
+// mean effort under each rule, and which bins each was cut into.
+func (r *backtestReport) writeDecomposition(w io.Writer, left func(string) string) {
 	fmt.Fprintln(w, "mean effort = uncertainty - resolution + reliability (+ within-bin, zero when bins are the distinct forecasts)")
-	tw = tabwriter.NewWriter(w, 0, 4, 2, ' ', tabwriter.AlignRight)
+	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintf(tw, "rule\t%s\tmean effort\tuncertainty\tresolution\treliability\twithin-bin\t\n", left("forecaster"))
 	for i, rule := range r.Rules {
 		for _, f := range r.Forecasters {
@@ -215,33 +248,21 @@ func (r *backtestReport) writeText(w io.Writer) error {
 	for _, b := range order {
 		fmt.Fprintf(w, "(%s: %s)\n", strings.Join(binnings[b], ", "), b)
 	}
+}
 
-	r.writeCORP(w, left)
-	r.writeMonths(w)
-
-	if err := r.writeQuestions(w); err != nil {
-		return err
+// writeSkipped lists the first skipped rows and why.
+func (r *backtestReport) writeSkipped(w io.Writer) {
+	if r.SkipCount == 0 {
+		return
 	}
-
-	if r.SkipCount > 0 {
-		fmt.Fprintf(w, "\nskipped rows (%d):\n", r.SkipCount)
-		for i, s := range r.Skipped {
-			if i == maxSkippedShown {
-				fmt.Fprintf(w, "  ... and %d more (--json lists the first %d)\n", r.SkipCount-maxSkippedShown, len(r.Skipped))
-				break
-			}
-			fmt.Fprintf(w, "  %s: %s\n", (&history.RowError{Line: s.Line, EndLine: s.EndLine, Unit: r.unit}).Where(), s.Why)
+	fmt.Fprintf(w, "\nskipped rows (%d):\n", r.SkipCount)
+	for i, s := range r.Skipped {
+		if i == maxSkippedShown {
+			fmt.Fprintf(w, "  ... and %d more (--json lists the first %d)\n", r.SkipCount-maxSkippedShown, len(r.Skipped))
+			break
 		}
+		fmt.Fprintf(w, "  %s: %s\n", (&history.RowError{Line: s.Line, EndLine: s.EndLine, Unit: r.unit}).Where(), s.Why)
 	}
-	fmt.Fprintln(w)
-	for _, n := range r.Notes {
-		fmt.Fprintln(w, "note:", n)
-	}
-	var err error
-	for _, c := range r.Caution {
-		_, err = fmt.Fprintln(w, "caution:", c)
-	}
-	return err
 }
 
 // plural writes "1 payment" or "3 payments"; forms gives the singular and,

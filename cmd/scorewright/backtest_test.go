@@ -15,7 +15,6 @@ import (
 	"testing"
 
 	"scorewright/contract/backtest"
-	"scorewright/generator/bregman"
 	"scorewright/generator/design"
 )
 
@@ -24,12 +23,12 @@ const (
 	harvestHistory = "../../testdata/histories/harvest-outlook.csv"
 )
 
-// explicitFit pays A - B·effort with A = cap and B = 5, unrounded, on a
-// menu of multiples of the budget step: a fit written out by hand, so the
+// explicitPay pays A - B·effort with A = cap and B = 5, unrounded, on a
+// menu of multiples of the budget step: a pay written out by hand, so the
 // command can be tested apart from the table's budget fitting.
-func explicitFit(r *bregman.Rule, d *design.Design) (*money, error) {
+func explicitPay(d *design.Design, s *backtest.Scheme) {
 	step := d.Budget.Step
-	on := func(p []float64) bool {
+	s.OnMenu = func(p []float64) bool {
 		for _, x := range p {
 			if math.Abs(x/step-math.Round(x/step)) > 1e-9 {
 				return false
@@ -37,16 +36,15 @@ func explicitFit(r *bregman.Rule, d *design.Design) (*money, error) {
 		}
 		return true
 	}
-	return &money{pay: backtest.Affine{A: d.Budget.Cap, B: 5}, onMenu: on, low: d.Budget.Floor, high: d.Budget.Cap,
-		formula: "pay = cap - 5·effort", menu: "steps of " + strconv.FormatFloat(step, 'g', -1, 64),
-		budget: "floor and cap as given", decimals: -1}, nil
+	s.Pay, s.Low, s.High = backtest.Affine{A: d.Budget.Cap, B: 5}, d.Budget.Floor, d.Budget.Cap
+	s.Adjust, s.Record = nil, nil
 }
 
 func runBacktestCmd(t *testing.T, args ...string) (int, string, string) {
 	t.Helper()
 	var out, errb bytes.Buffer
 	e := &env{stdin: strings.NewReader(""), stdout: &out, stderr: &errb}
-	code := exitCode(e, "backtest", backtestWith(e, args, explicitFit))
+	code := exitCode(e, "backtest", backtestWith(e, args, explicitPay))
 	return code, out.String(), errb.String()
 }
 
@@ -231,7 +229,7 @@ func TestBacktestHarvestStdin(t *testing.T) {
 	e := &env{stdin: bytes.NewReader(data), stdout: &out, stderr: &errb}
 	args := []string{"--outcomes", "below,near,above", "--ordered", "--preset", "ranked", "--floor", "0", "--cap", "20", "--step", "0.05",
 		"--history", "-", "--versus-preset", "quadratic", "--json"}
-	if code := exitCode(e, "backtest", backtestWith(e, args, explicitFit)); code != 0 {
+	if code := exitCode(e, "backtest", backtestWith(e, args, explicitPay)); code != 0 {
 		t.Fatalf("exit %d: %s", code, errb.String())
 	}
 	var got struct {
@@ -417,7 +415,7 @@ func TestBacktestVersusBudget(t *testing.T) {
 		}
 		return got.Rules[1].Max
 	}
-	// explicitFit pays cap - 5·effort, so the largest payment is the cap
+	// explicitPay pays cap - 5·effort, so the largest payment is the cap
 	// (effort 0 for a certain, correct forecast, which the sample has).
 	if m := maxPay("--versus-design", path); m != 12 {
 		t.Errorf("second rule from a design with cap 12 pays at most %g", m)

@@ -22,18 +22,33 @@ type certifiedJSON struct {
 }
 
 // The quadratic rule is strictly proper (Brier 1950): the certificate
-// proves it, and the grid's verdict stays labelled as grid evidence.
+// proves it, so the verdict rests on the proof (kind certified) and the
+// grid streams only the pairs the proof leaves; without --certify the
+// same verdict is grid evidence over all G² pairs.
 func TestCheckCertify(t *testing.T) {
 	code, out, errs := runCmd(t, "check", "--outcomes", "3", "--preset", "quadratic", "--resolution", "20", "--certify", "--deadline", "10s", "--json")
 	if code != 0 {
 		t.Fatalf("exit %d, stderr %q", code, errs)
 	}
-	var v certifiedJSON
+	var v struct {
+		certifiedJSON
+		Grid struct {
+			Points int   `json:"points"`
+			Pairs  int64 `json:"pairs"`
+		} `json:"grid"`
+	}
 	if err := json.Unmarshal([]byte(out), &v); err != nil {
 		t.Fatal(err)
 	}
-	if v.Kind != "grid evidence" || v.Certificate == nil || v.Certificate.Kind != "certified" || v.Certificate.Verdict != "strictly-proper" || v.Certificate.Share != 1 {
+	if v.Verdict != "strictly-proper" || v.Kind != "certified" || v.Certificate == nil || v.Certificate.Kind != "certified" || v.Certificate.Verdict != "strictly-proper" || v.Certificate.Share != 1 {
 		t.Errorf("got %s", out[:min(len(out), 400)])
+	}
+	if G := int64(v.Grid.Points); v.Grid.Pairs <= 0 || v.Grid.Pairs >= G*G {
+		t.Errorf("%d pairs streamed under the proof, of %d", v.Grid.Pairs, G*G)
+	}
+	code, out, _ = runCmd(t, "check", "--outcomes", "3", "--preset", "quadratic", "--resolution", "20", "--json")
+	if code != 0 || !strings.Contains(out, `"kind": "grid evidence"`) || !strings.Contains(out, `"pairs": 53361`) {
+		t.Errorf("without --certify: exit %d %s", code, out[:min(len(out), 400)])
 	}
 }
 

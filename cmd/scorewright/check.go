@@ -10,6 +10,7 @@ import (
 	"scorewright/generator/design"
 	"scorewright/generator/point"
 	"scorewright/presets"
+	"scorewright/verify"
 )
 
 // presetNeeds is what a design's preset says it needs of the interval
@@ -55,6 +56,15 @@ func checkDesign(e *env, d *design.Design, vf *verifyFlags) error {
 	}
 	ctx, stop := interruptible()
 	defer stop()
+	// The certificate goes first: what it proves, the grid need not
+	// stream again (verify.Settings.Proof).
+	cert, proved, err := certificate(ctx, e, r, vf.cert)
+	if err != nil {
+		return err
+	}
+	if cert != nil && (cert.Verdict == verify.Proper || cert.Verdict == verify.StrictlyProper) {
+		s.Proof = &verify.Proof{Verdict: cert.Verdict, Statement: cert.Statement}
+	}
 	found, err := r.Check(ctx, s)
 	var needs *scorewright.NeedsOutcomesError
 	var domain *point.DomainError
@@ -71,10 +81,6 @@ func checkDesign(e *env, d *design.Design, vf *verifyFlags) error {
 		return printPointReport(e, found.Point, vf.asJSON)
 	}
 	rep := found.Rule
-	cert, proved, err := certificate(ctx, e, r, vf.cert)
-	if err != nil {
-		return err
-	}
 	if vf.asJSON {
 		out := toReportJSON(rep)
 		out.Certificate = cert

@@ -3,13 +3,16 @@ package main
 import (
 	"context"
 	"errors"
+	"flag"
 	"fmt"
+	"io"
 	"math"
 	"text/tabwriter"
 
 	"scorewright/contract/budget"
 	"scorewright/contract/risk"
-	"scorewright/contract/risk/riskfit"
+	"scorewright/generator/bregman"
+	"scorewright/generator/design"
 	"scorewright/internal/num"
 )
 
@@ -70,58 +73,23 @@ func runDistort(e *env, args []string) error {
 	if math.IsNaN(*wealth) || math.IsInf(*wealth, 0) {
 		return usagef("--wealth %g is not a finite number", *wealth)
 	}
-	d, err := rf.design(e.stderr)
+	d, rule, fitted, err := distortTerms(e.stderr, fs, rf, bf)
 	if err != nil {
 		return err
-	}
-	r, err := openRule(d)
-	if err != nil {
-		return err
-	}
-	if r.OnInterval() {
-		return usagef("distort works on rules over outcomes; it does not take point-forecast designs")
-	}
-	if err := bf.apply(fs, d); err != nil {
-		return err
-	}
-	rule, err := r.OverOutcomes()
-	if err != nil {
-		return usagef("%v", err)
 	}
 	n := rule.Outcomes()
-	fitted, err := riskfit.New(rule, d.Budget)
-	var ue *budget.UnboundedError
-	var me *riskfit.MenuError
-	switch {
-	case errors.As(err, &me):
-		return usagef("%v", me.Err)
-	case errors.As(err, &ue) && ue.AtZero:
-		// distort has no --clamp: a clamped rule has kinks, and its best
-		// report sits on them; the report floor is the one way out.
-		return usagef("the rule's effort is %v at report %s when %q happens: the rule is unbounded where a report gives an outcome probability 0; give --report-floor P (e.g. 0.01) so that every report gives each outcome at least P",
-			ue.Effort, num.Format(ue.Report), ue.Label)
-	case err != nil:
-		return fitError(err)
-	}
-	solver, err := fitted.Solver(rule, u, *wealth)
+	solver, err := risk.NewSolver(rule, risk.TermsContract(fitted), u, *wealth)
 	if err != nil {
 		return usagef("%v", err)
 	}
-	q := riskfit.Belief(d.Budget, n)
-	if *belief != "" {
-		if q, err = num.ParseDistribution(*belief, n); err != nil {
-			return usagef("--belief: %v", err)
-		}
-	}
-	for _, v := range q {
-		if v < d.Budget.ReportFloor {
-			return usagef("--belief %s gives an outcome less than the report floor %g", num.Format(q), d.Budget.ReportFloor)
-		}
+	q, err := distortBelief(*belief, d, n)
+	if err != nil {
+		return err
 	}
 	best, bestErr := solver.Best(q)
-	pick := fitted.MenuPick(solver, q)
+	pick := risk.MenuPick(fitted, solver, q)
 
-	beliefs, _, along := riskfit.CurveBeliefs(n, d.Budget.ReportFloor)
+	beliefs, _, along := risk.CurveBeliefs(n, d.Budget.ReportFloor)
 	curve, err := solver.Distortion(context.Background(), beliefs, nil)
 	if err != nil {
 		return err
@@ -131,7 +99,7 @@ func runDistort(e *env, args []string) error {
 		if err := writeJSON(e.stdout, out); err != nil {
 			return err
 		}
-	} else if err := printDistort(e, u, *wealth, fitted.PayDesc(), q, best, pick, curve, along, out); err != nil {
+	} else if err := printDistort(e, u, *wealth, risk.PayDesc(fitted), q, best, pick, curve, along, out); err != nil {
 		return err
 	}
 	if len(out.Failed) > 0 {
@@ -140,10 +108,67 @@ func runDistort(e *env, args []string) error {
 	return nil
 }
 
+// distortTerms opens the design of the flags, a rule over outcomes, and
+// fits it to its budget as a risk computation does (budget.StepTerms),
+// wording the errors in the command's flags.
+func distortTerms(notes io.Writer, fs *flag.FlagSet, rf *ruleFlags, bf *budgetFlags) (*design.Design, *bregman.Rule, *budget.Terms, error) {
+	d, err := rf.design(notes)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	r, err := openRule(d)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	if r.OnInterval() {
+		return nil, nil, nil, usagef("distort works on rules over outcomes; it does not take point-forecast designs")
+	}
+	if err := bf.apply(fs, d); err != nil {
+		return nil, nil, nil, err
+	}
+	rule, err := r.OverOutcomes()
+	if err != nil {
+		return nil, nil, nil, usagef("%v", err)
+	}
+	fitted, err := budget.StepTerms(rule, d.Budget)
+	var ue *budget.UnboundedError
+	var me *budget.MenuError
+	switch {
+	case errors.As(err, &me):
+		return nil, nil, nil, usagef("%v", me.Err)
+	case errors.As(err, &ue) && ue.AtZero:
+		// distort has no --clamp: a clamped rule has kinks, and its best
+		// report sits on them; the report floor is the one way out.
+		return nil, nil, nil, usagef("the rule's effort is %v at report %s when %q happens: the rule is unbounded where a report gives an outcome probability 0; give --report-floor P (e.g. 0.01) so that every report gives each outcome at least P",
+			ue.Effort, num.Format(ue.Report), ue.Label)
+	case err != nil:
+		return nil, nil, nil, fitError(err)
+	}
+	return d, rule, fitted, nil
+}
+
+// distortBelief is --belief read over n outcomes, or the budget's default
+// belief; it may give no outcome less than the report floor.
+func distortBelief(belief string, d *design.Design, n int) ([]float64, error) {
+	q := risk.DefaultBelief(d.Budget, n)
+	if belief != "" {
+		var err error
+		if q, err = num.ParseDistribution(belief, n); err != nil {
+			return nil, usagef("--belief: %v", err)
+		}
+	}
+	for _, v := range q {
+		if v < d.Budget.ReportFloor {
+			return nil, usagef("--belief %s gives an outcome less than the report floor %g", num.Format(q), d.Budget.ReportFloor)
+		}
+	}
+	return q, nil
+}
+
 // distortResult gathers what distort reports, for JSON and text alike.
-func distortResult(u risk.Utility, wealth float64, fitted *riskfit.Fitted, q []float64, best *risk.Result, bestErr error, pick []float64, curve *risk.Curve, along string) distortJSON {
+func distortResult(u risk.Utility, wealth float64, fitted *budget.Terms, q []float64, best *risk.Result, bestErr error, pick []float64, curve *risk.Curve, along string) distortJSON {
 	out := distortJSON{Utility: u.String(), Wealth: wealth, A: num.Float(fitted.Fit.A), B: num.Float(fitted.Fit.B),
-		Belief: num.Floats(q), MenuReport: num.Floats(pick), Pay: fitted.PayDesc(),
+		Belief: num.Floats(q), MenuReport: num.Floats(pick), Pay: risk.PayDesc(fitted),
 		Largest: distortPointOf(curve.Largest), Along: along}
 	if bestErr == nil {
 		out.Report, out.Size, out.Status = num.Floats(best.Report), num.Float(best.Size), best.Status
@@ -160,7 +185,7 @@ func distortResult(u risk.Utility, wealth float64, fitted *riskfit.Fitted, q []f
 	if u.Kind == risk.CARA {
 		out.Notes = append(out.Notes, "with CARA utility initial wealth does not change the report")
 	}
-	if fitted.Menu == nil {
+	if fitted.ByFormula {
 		out.Notes = append(out.Notes, "no menu (no --step): every report is paid by the exact formula A - B·effort, unrounded, so there is no menu pick")
 	} else {
 		out.Notes = append(out.Notes, "the best report is over all reports at the exact pay A - B·effort; a forecaster held to the menu picks the menu item whose rounded payments in the table give the largest expected utility (the menu pick)")

@@ -103,100 +103,23 @@ func addRuleFlags(fs *flag.FlagSet) *ruleFlags {
 	return r
 }
 
-// fromFile loads the design file the flags name.
-func (r *ruleFlags) fromFile(notes io.Writer) (*design.Design, error) {
-	if r.generator != "" || r.preset != "" || r.emphasis != "" || r.outcomes != "" {
-		return nil, usagef("--design gives the whole rule; do not combine it with --outcomes, --generator, --preset or --emphasis")
-	}
-	d, err := design.Load(r.file)
-	if err != nil {
-		return nil, usagef("%v", err)
-	}
-	// A preset name over a formula of the design's own is dropped: the
-	// record must name the rule that is computed. The user is told, as
-	// the name is in their file.
-	if note := presets.Settle(d); note != "" {
-		fmt.Fprintf(notes, "scorewright: note: %s: %s\n", r.file, note)
-	}
-	return d, nil
-}
-
 // design builds the design the flags describe. A design file supplies
 // everything; flags given beside it override its parameters. Notes on
 // what was changed in the file's design (a preset name dropped) go to
 // notes.
 func (r *ruleFlags) design(notes io.Writer) (*design.Design, error) {
 	var d *design.Design
+	var err error
 	if r.file != "" {
-		var err error
-		if d, err = r.fromFile(notes); err != nil {
-			return nil, err
-		}
+		d, err = r.fileDesign(notes)
 	} else {
-		d = &design.Design{Version: design.SchemaVersion, Mode: design.ModeGenerator, Ordered: r.ordered}
-		sources := 0
-		for _, s := range []string{r.generator, r.preset, r.emphasis} {
-			if s != "" {
-				sources++
-			}
-		}
-		if sources != 1 {
-			return nil, usagef("give exactly one of --generator, --preset or --emphasis")
-		}
-		if r.interval != "" {
-			if r.emphasis != "" {
-				return nil, usagef("--interval needs --generator EXPR in x or --preset NAME of a point-forecast preset")
-			}
-			iv, err := num.ParseVector(r.interval)
-			if err != nil || len(iv) != 2 || !(iv[0] < iv[1]) {
-				return nil, usagef("--interval wants LO,HI with LO < HI, got %q", r.interval)
-			}
-			d.Mode, d.Interval, d.Formula = design.ModePoint, iv, r.generator
-			if err := applyPointPreset(d, r.preset); err != nil {
-				return nil, err
-			}
-		} else {
-			if r.outcomes == "" {
-				return nil, usagef("--outcomes is required (a count such as 3, or labels such as frost,clear)")
-			}
-			labels, err := design.ParseOutcomes(r.outcomes)
-			if err != nil {
-				return nil, usagef("--outcomes: %v", err)
-			}
-			d.Labels = labels
-			switch {
-			case r.preset != "":
-				d.Preset = r.preset
-				if err := presets.Apply(d); err != nil {
-					return nil, usagef("--preset: %v", err)
-				}
-			case r.emphasis != "":
-				if len(labels) != 2 {
-					return nil, usagef("--emphasis designs rules for 2 outcomes, not %d", len(labels))
-				}
-				d.Mode, d.Formula = design.ModeEmphasis, r.emphasis
-			default:
-				d.Formula = r.generator
-			}
-		}
+		d, err = r.flagDesign()
 	}
-	if r.ordered {
-		d.Ordered = true
+	if err != nil {
+		return nil, err
 	}
-	if len(r.params) > 0 {
-		if d.Params == nil {
-			d.Params = map[string]float64{}
-		}
-		for k, v := range r.params {
-			d.Params[k] = v
-		}
-	}
-	if r.weights != "" {
-		w, err := num.ParseVector(r.weights)
-		if err != nil {
-			return nil, usagef("--weights: %v", err)
-		}
-		d.Weights = w
+	if err := r.override(d); err != nil {
+		return nil, err
 	}
 	if d.Preset != "" && d.Formula == "" {
 		if err := presets.Apply(d); err != nil {
@@ -215,6 +138,99 @@ func (r *ruleFlags) design(notes io.Writer) (*design.Design, error) {
 		return nil, err
 	}
 	return d, nil
+}
+
+// fileDesign reads --design, which gives the whole rule.
+func (r *ruleFlags) fileDesign(notes io.Writer) (*design.Design, error) {
+	if r.generator != "" || r.preset != "" || r.emphasis != "" || r.outcomes != "" {
+		return nil, usagef("--design gives the whole rule; do not combine it with --outcomes, --generator, --preset or --emphasis")
+	}
+	d, err := design.Load(r.file)
+	if err != nil {
+		return nil, usagef("%v", err)
+	}
+	// A preset name over a formula of the design's own is dropped: the
+	// record must name the rule that is computed. The user is told, as
+	// the name is in their file.
+	if note := presets.Settle(d); note != "" {
+		fmt.Fprintf(notes, "scorewright: note: %s: %s\n", r.file, note)
+	}
+	return d, nil
+}
+
+// flagDesign builds the design from exactly one of --generator, --preset
+// and --emphasis, on --interval or over --outcomes.
+func (r *ruleFlags) flagDesign() (*design.Design, error) {
+	d := &design.Design{Version: design.SchemaVersion, Mode: design.ModeGenerator, Ordered: r.ordered}
+	sources := 0
+	for _, s := range []string{r.generator, r.preset, r.emphasis} {
+		if s != "" {
+			sources++
+		}
+	}
+	if sources != 1 {
+		return nil, usagef("give exactly one of --generator, --preset or --emphasis")
+	}
+	if r.interval != "" {
+		if r.emphasis != "" {
+			return nil, usagef("--interval needs --generator EXPR in x or --preset NAME of a point-forecast preset")
+		}
+		iv, err := num.ParseVector(r.interval)
+		if err != nil || len(iv) != 2 || !(iv[0] < iv[1]) {
+			return nil, usagef("--interval wants LO,HI with LO < HI, got %q", r.interval)
+		}
+		d.Mode, d.Interval, d.Formula = design.ModePoint, iv, r.generator
+		if err := applyPointPreset(d, r.preset); err != nil {
+			return nil, err
+		}
+		return d, nil
+	}
+	if r.outcomes == "" {
+		return nil, usagef("--outcomes is required (a count such as 3, or labels such as frost,clear)")
+	}
+	labels, err := design.ParseOutcomes(r.outcomes)
+	if err != nil {
+		return nil, usagef("--outcomes: %v", err)
+	}
+	d.Labels = labels
+	switch {
+	case r.preset != "":
+		d.Preset = r.preset
+		if err := presets.Apply(d); err != nil {
+			return nil, usagef("--preset: %v", err)
+		}
+	case r.emphasis != "":
+		if len(labels) != 2 {
+			return nil, usagef("--emphasis designs rules for 2 outcomes, not %d", len(labels))
+		}
+		d.Mode, d.Formula = design.ModeEmphasis, r.emphasis
+	default:
+		d.Formula = r.generator
+	}
+	return d, nil
+}
+
+// override applies --ordered, --param and --weights over the design.
+func (r *ruleFlags) override(d *design.Design) error {
+	if r.ordered {
+		d.Ordered = true
+	}
+	if len(r.params) > 0 {
+		if d.Params == nil {
+			d.Params = map[string]float64{}
+		}
+		for k, v := range r.params {
+			d.Params[k] = v
+		}
+	}
+	if r.weights != "" {
+		w, err := num.ParseVector(r.weights)
+		if err != nil {
+			return usagef("--weights: %v", err)
+		}
+		d.Weights = w
+	}
+	return nil
 }
 
 // weightsUsed refuses outcome weights that the formula never reads: the
@@ -298,6 +314,7 @@ func (b *budgetFlags) apply(fs *flag.FlagSet, d *design.Design) error {
 	}
 	if set["step"] {
 		bd.Step = b.step
+		bd.Menu = "" // the flag's step grid replaces the design's menu file
 	}
 	if set["unit"] {
 		bd.Unit = b.unit

@@ -14,11 +14,13 @@ import (
 	"strings"
 	"text/tabwriter"
 
+	"scorewright/contract/budget"
 	"scorewright/contract/table"
 	"scorewright/generator/design"
 	"scorewright/generator/point"
 	"scorewright/internal/num"
 	"scorewright/presets"
+	"scorewright/verify"
 	"scorewright/verify/pointcheck"
 )
 
@@ -175,7 +177,7 @@ func pointPayoutDesign(payout, interval string, params map[string]float64) (*des
 }
 
 type pointCheckJSON struct {
-	Verdict    string                 `json:"verdict"`
+	Verdict    verify.Verdict         `json:"verdict"`
 	Grid       pointcheck.Grid        `json:"grid"`
 	Checks     []pointCheckOut        `json:"checks"`
 	Gap        *pointGapOut           `json:"gap,omitempty"`
@@ -287,7 +289,7 @@ type pointRecheckJSON struct {
 	Grid recheckGridJSON `json:"grid"`
 }
 
-func newPointTableSummary(f *point.Table, rc *point.Recheck, tb *table.Table, format, out string) *pointTableSummary {
+func newPointTableSummary(f *budget.PointTable, rc *budget.PointRecheck, tb *table.Table, format, out string) *pointTableSummary {
 	rep := func(i int) []num.Float {
 		if i < 0 {
 			return nil
@@ -321,7 +323,7 @@ func newPointTableSummary(f *point.Table, rc *point.Recheck, tb *table.Table, fo
 // printPointTableSummary writes the fit and the re-check of a point table
 // for a person: the failing reports, or all of them when the menu is
 // short.
-func printPointTableSummary(w io.Writer, f *point.Table, rc *point.Recheck, s *pointTableSummary) error {
+func printPointTableSummary(w io.Writer, f *budget.PointTable, rc *budget.PointRecheck, s *pointTableSummary) error {
 	head := summaryHead{
 		menu:     s.Menu.Desc,
 		payment:  fmt.Sprintf("pay = A - B·D(y, x), A = %s, B = %s", table.FormatNumber(f.A), table.FormatNumber(f.B)),

@@ -218,6 +218,9 @@ func tableMenu(fs *flag.FlagSet, tf *tableFlags, d *design.Design) (*budget.Menu
 		return nil, usagef("give --step or --menu FILE, not both")
 	case tf.menu != "":
 		m, err = budget.FileMenu(tf.menu, d.N())
+	case d.Budget.Menu != "" && !stepSet:
+		// The design's own menu file, as the workbench fits it.
+		m, err = budget.FileMenu(d.Budget.Menu, d.N())
 	case d.Budget.Step > 0:
 		m, err = budget.StepMenu(d.N(), d.Budget.Step, d.Budget.ReportFloor)
 	default:
@@ -230,6 +233,9 @@ func tableMenu(fs *flag.FlagSet, tf *tableFlags, d *design.Design) (*budget.Menu
 		return nil, usagef("--clamp %g must be a probability in [0, 1/%d)", tf.clamp, d.N())
 	}
 	m.Clamp = tf.clamp
+	if m.Clamp == 0 {
+		m.Clamp = d.Budget.Clamp // the design's clamp, unless the flag gives one
+	}
 	return m, nil
 }
 

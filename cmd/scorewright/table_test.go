@@ -256,3 +256,50 @@ unit = 0.01
 		t.Errorf("--cap over a mean-pay design: exit %d, %v, B = %g, %s", code, err, sum.B, errs)
 	}
 }
+
+// A design file's own menu file and clamp are what the table is fitted
+// on, as the workbench fits them. The menu 0.1, 0.5, 0.9 is the one of
+// TestTableMenuFile, with the same pay 70 at 0.5 (derived by hand there);
+// a clamp of 0.2 pays the report (0.1, 0.9) as (0.2, 0.9)/1.1 = (2/11,
+// 9/11), so the efforts run from 2·(2/11)² = 8/121 to 2·(9/11)² = 162/121,
+// B = 100·121/154 and pay(0.5) = 100 - 100·(60.5 - 8)/154 = 65.9, 66 in
+// whole units (derived by hand with the Brier efforts 2(1-p)² and 2p²).
+func TestTableDesignMenuAndClamp(t *testing.T) {
+	dir := t.TempDir()
+	menu := filepath.Join(dir, "menu.csv")
+	os.WriteFile(menu, []byte("0.1\n0.5\n0.9\n"), 0o644)
+	write := func(extra string) string {
+		path := filepath.Join(dir, "frost.toml")
+		os.WriteFile(path, []byte(`version = 1
+outcomes = ["frost", "clear"]
+mode = "generator"
+preset = "quadratic"
+formula = "1 - sum(p^2)"
+
+[budget]
+floor = 0
+cap = 100
+unit = 1
+menu = "`+menu+`"
+`+extra), 0o644)
+		return path
+	}
+	out, errs, code := tableRun(t, "--design", write(""), "--format", "csv")
+	if code != exitOK || !strings.Contains(out, "0.5,0.5,70,70") {
+		t.Errorf("menu from the design: exit %d, %s\n%s", code, errs, out)
+	}
+	out, errs, code = tableRun(t, "--design", write("clamp = 0.2\n"), "--format", "csv")
+	if code != exitOK || !strings.Contains(out, "0.5,0.5,66,66") {
+		t.Errorf("clamp from the design: exit %d, %s\n%s", code, errs, out)
+	}
+	// Both a menu file and a step in one design is refused, naming both.
+	_, errs, code = tableRun(t, "--design", write("step = 0.1\n"), "--format", "csv")
+	if code == exitOK || !strings.Contains(errs, "menu") || !strings.Contains(errs, "step") {
+		t.Errorf("menu and step: exit %d, %q", code, errs)
+	}
+	// The --step flag replaces the design's menu file.
+	out, errs, code = tableRun(t, "--design", write(""), "--step", "0.5", "--format", "csv")
+	if code != exitOK || !strings.Contains(out, "0.5,0.5,") || strings.Contains(out, "0.9,0.1") {
+		t.Errorf("--step over a design menu: exit %d, %s\n%s", code, errs, out)
+	}
+}

@@ -133,8 +133,9 @@ type checkJSON struct {
 
 type reportJSON struct {
 	Verdict verify.Verdict `json:"verdict"`
-	// Kind is always "grid evidence": the grid samples, it never proves;
-	// a proof is the certificate's, under "certificate".
+	// Kind is "grid evidence" (the grid samples, it never proves), or
+	// "certified" when the verdict rests on the certificate, under
+	// "certificate", and the grid checked only what it leaves.
 	Kind        certify.Kind     `json:"kind"`
 	Certificate *certificateJSON `json:"certificate,omitempty"`
 	Grid        gridJSON         `json:"grid"`
@@ -143,7 +144,7 @@ type reportJSON struct {
 }
 
 func toReportJSON(r *verify.Report) reportJSON {
-	out := reportJSON{Verdict: r.Verdict, Kind: certify.GridEvidence, Notes: r.Notes, Grid: gridJSON{
+	out := reportJSON{Verdict: r.Verdict, Kind: verdictKind(r), Notes: r.Notes, Grid: gridJSON{
 		Resolution: r.Grid.Resolution, Points: r.Grid.Points, Tolerance: num.Float(r.Grid.Tolerance), Scale: num.Float(r.Grid.Scale), Slack: num.Float(r.Grid.Slack()), Sampled: r.Grid.Sampled,
 		Interior: r.Grid.Interior, Boundary: r.Grid.Boundary, Pairs: r.Grid.Pairs, Statement: r.Grid.String(),
 	}}
@@ -174,7 +175,7 @@ func toPartJSON(p verify.Part) partJSON {
 // printReport writes the human form of a verification: verdict, grid
 // statement, one block per check, notes.
 func printReport(w io.Writer, r *verify.Report) {
-	fmt.Fprintf(w, "verdict: %s (%s)\n", r.Verdict, certify.GridEvidence)
+	fmt.Fprintf(w, "verdict: %s (%s)\n", r.Verdict, verdictKind(r))
 	fmt.Fprintf(w, "grid:    %s\n\n", r.Grid)
 	for _, c := range r.Checks {
 		status := "passed"
@@ -210,6 +211,14 @@ func printReport(w io.Writer, r *verify.Report) {
 	for _, n := range r.Notes {
 		fmt.Fprintf(w, "note: %s\n", n)
 	}
+}
+
+// verdictKind is what a check's verdict rests on.
+func verdictKind(r *verify.Report) certify.Kind {
+	if r.Proof != nil {
+		return certify.Certified
+	}
+	return certify.GridEvidence
 }
 
 func partLine(p verify.Part) string {

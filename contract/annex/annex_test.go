@@ -16,6 +16,7 @@ import (
 	"scorewright/contract/budget"
 	"scorewright/contract/cost"
 	"scorewright/contract/payform"
+	"scorewright/generator/bregman"
 	"scorewright/generator/design"
 )
 
@@ -41,7 +42,8 @@ func waterDoc(t *testing.T) *Document {
 // docFor is the annex of design d, fitted and re-checked as the command does.
 func docFor(t *testing.T, d *design.Design) *Document {
 	t.Helper()
-	rule, err := d.Rule()
+	gen, err := bregman.NewFormula(d.Formula, bregman.Options{Outcomes: d.N()})
+	rule := &bregman.Rule{Gen: gen, Labels: d.Labels}
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -57,7 +59,8 @@ func docFor(t *testing.T, d *design.Design) *Document {
 	if err != nil {
 		t.Fatal(err)
 	}
-	tb := fit.Table(rc, budget.DesignInfo(d, "test", "2027-01-01"))
+	tb := fit.Table(rc, budget.Info{Title: d.Title, Formula: d.Formula, FormulaRole: "the generator H(p), concave; efforts by the Bregman construction L(p, k) = H(p) + dH_k - <dH, p>",
+		Preset: d.Preset, Version: "test", Date: "2027-01-01", Currency: d.Contract.Currency})
 	f, ok := payform.Find(rule, fit.A, fit.B)
 	if !ok {
 		t.Fatal("no closed form for the quadratic rule")

@@ -482,7 +482,7 @@ func TestRecheckCancelled(t *testing.T) {
 		t.Errorf("cancelled re-check returned %v", err)
 	}
 	calls := 0
-	if _, err := f.Recheck(context.Background(), RecheckSettings{Workers: 1, Progress: func(done, total int) { calls++ }}); err != nil || calls == 0 {
+	if _, err := f.Recheck(context.Background(), RecheckSettings{Workers: 1, Progress: func(done, total int64) { calls++ }}); err != nil || calls == 0 {
 		t.Errorf("progress called %d times, err %v", calls, err)
 	}
 }

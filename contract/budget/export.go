@@ -7,7 +7,6 @@ import (
 	"strings"
 
 	"scorewright/contract/table"
-	"scorewright/generator/design"
 	"scorewright/internal/num"
 )
 
@@ -34,23 +33,6 @@ type Info struct {
 	// verdict is grid evidence.
 	Certificate string
 	Certified   bool
-}
-
-// DesignInfo is the record of where a design's rule came from — title,
-// formula and what it is, preset, parameters, outcome weights and order —
-// so that the command and the workbench write the same record. Version
-// and Date are the caller's.
-func DesignInfo(d *design.Design, version, date string) Info {
-	return Info{Title: d.Title, Formula: d.Formula, FormulaRole: FormulaRole(d.Mode), Preset: d.Preset, Params: d.Params,
-		Weights: d.Weights, Ordered: d.Ordered, Version: version, Date: date, Currency: d.Contract.Currency}
-}
-
-// FormulaRole says, for the record, what a design's formula is.
-func FormulaRole(m design.Mode) string {
-	if m == design.ModeEmphasis {
-		return "the emphasis weight w(c) of a yes/no rule, integrated twice into its generator (Schervish 1989), normalised so that a certain, correct forecast costs 0"
-	}
-	return "the generator H(p), concave; efforts by the Bregman construction L(p, k) = H(p) + dH_k - <dH, p>"
 }
 
 // listItems names up to five menu items, then says how many more.

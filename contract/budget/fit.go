@@ -8,6 +8,7 @@ import (
 	"scorewright/generator/bregman"
 	"scorewright/generator/design"
 	"scorewright/internal/num"
+	"scorewright/internal/simplex"
 )
 
 // Fit is a rule fitted to a budget on a menu: pay = A - B·L(p, k) with
@@ -112,20 +113,7 @@ func (e *UnboundedError) Error() string {
 // b.Rounding.
 func FitRule(r *bregman.Rule, m *Menu, b design.Budget) (*Fit, error) {
 	n := r.Outcomes()
-	if m == nil || len(m.Reports) == 0 {
-		return nil, errors.New("budget: the menu is empty")
-	}
-	for i, p := range m.Reports {
-		if len(p) != n {
-			return nil, fmt.Errorf("budget: menu report %d has %d entries for %d outcomes", i+1, len(p), n)
-		}
-	}
-	if b.ReportFloor > 0 {
-		if err := m.CheckFloor(b.ReportFloor); err != nil {
-			return nil, err
-		}
-	}
-	if err := checkFloor("clamp", m.Clamp, n); err != nil {
+	if err := checkMenu(m, n, b.ReportFloor); err != nil {
 		return nil, err
 	}
 	rd, err := NewRounder(b.Unit, b.Rounding)
@@ -149,76 +137,23 @@ func FitRule(r *bregman.Rule, m *Menu, b design.Budget) (*Fit, error) {
 	for k := range f.Labels {
 		f.Labels[k] = r.Label(k)
 	}
-
 	s := r.NewScorer()
-	cp := make([]float64, n)
-	lmin, lmax := math.Inf(1), math.Inf(-1)
-	f.Efforts = make([][]float64, len(m.Reports))
-	for i, p := range m.Reports {
-		eff := make([]float64, n)
-		s.Efforts(eff, ClampReport(cp, p, m.Clamp))
-		for k, l := range eff {
-			if math.IsNaN(l) || math.IsInf(l, 0) {
-				return nil, &UnboundedError{Report: p, Outcome: k, Label: f.Labels[k], Effort: l, AtZero: cp[k] == 0}
-			}
-			lmin, lmax = math.Min(lmin, l), math.Max(lmax, l)
-		}
-		f.Efforts[i] = eff
+	lmin, lmax, err := f.menuEfforts(s)
+	if err != nil {
+		return nil, err
 	}
-	if !(lmax-lmin > 1e-12*math.Max(1, math.Abs(lmax))) {
-		return nil, fmt.Errorf("budget: the rule's effort is %.10g for every report on the menu and every outcome, so pay cannot depend on the forecast", lmax)
-	}
-
-	ref := b.Reference
-	if ref == nil {
-		ref = make([]float64, n)
-		for k := range ref {
-			ref[k] = 1 / float64(n)
-		}
-	} else if len(ref) != n {
-		return nil, fmt.Errorf("budget: the reference belief has %d entries for %d outcomes", len(ref), n)
-	} else if err := num.CheckDistribution(ref, num.SimplexTolerance); err != nil {
-		return nil, fmt.Errorf("budget: reference belief: %v", err)
+	ref, err := referenceBelief(b.Reference, n)
+	if err != nil {
+		return nil, err
 	}
 	// What a truthful forecaster at the reference is paid for: the report
 	// raised to the report floor (the menu holds no lower entry), then
 	// clamped.
 	f.ReportFloor = b.ReportFloor
-	href := s.Expected(ref, f.paidReport(cp, ref))
-
-	f.base, f.anchor, f.low = b.Floor, lmax, lmin
-	switch {
-	case b.MeanPay != nil:
-		mp := *b.MeanPay
-		if !(mp > b.Floor) || math.IsInf(mp, 0) {
-			return nil, fmt.Errorf("budget: the target mean payment %g must be above the floor %g", mp, b.Floor)
-		}
-		if math.IsNaN(href) || math.IsInf(href, 0) {
-			return nil, fmt.Errorf("budget: the rule's entropy at the reference belief %s is %v", num.Format(ref), href)
-		}
-		den := lmax - href
-		if !(den > 1e-12*math.Max(1, math.Abs(lmax))) {
-			return nil, fmt.Errorf("budget: a truthful forecaster at the reference belief %s already has the menu's largest effort; no B > 0 reaches a mean payment above the floor", num.Format(ref))
-		}
-		f.B = (mp - b.Floor) / den
-		f.MeanPay, f.Reference = &mp, append([]float64(nil), ref...)
-	case b.Cap > b.Floor:
-		f.B = (b.Cap - b.Floor) / (lmax - lmin)
-	default:
-		return nil, errors.New("budget: give a cap above the floor, or a target mean payment with a floor")
+	href := s.Expected(ref, f.paidReport(make([]float64, n), ref))
+	if err := f.scale(b, lmin, lmax, ref, href); err != nil {
+		return nil, err
 	}
-	// A is stated for the efforts of the rule as given.
-	f.A = f.base + f.B*(f.anchor+f.Shift)
-	f.Floor = b.Floor
-	f.Cap = f.base + f.B*(lmax-lmin)
-	if b.MeanPay == nil {
-		f.Cap = b.Cap
-	}
-	f.ReferencePay = f.exact(href)
-	if !(f.B > 0) || math.IsInf(f.B, 0) || math.IsInf(f.A, 0) {
-		return nil, fmt.Errorf("budget: the fit gives B = %g, A = %g; the budget and the rule's range do not fit together", f.B, f.A)
-	}
-
 	f.Pays = make([][]float64, len(f.Efforts))
 	f.MinPay, f.MaxPay = math.Inf(1), math.Inf(-1)
 	for i, eff := range f.Efforts {
@@ -231,6 +166,109 @@ func FitRule(r *bregman.Rule, m *Menu, b design.Budget) (*Fit, error) {
 	}
 	f.Truthful = f.truthfulRange(s)
 	return f, nil
+}
+
+// checkMenu refuses a menu the fit cannot use: empty, of the wrong number
+// of outcomes, below the report floor, or with a clamp out of range.
+func checkMenu(m *Menu, n int, reportFloor float64) error {
+	if m == nil || len(m.Reports) == 0 {
+		return errors.New("budget: the menu is empty")
+	}
+	for i, p := range m.Reports {
+		if len(p) != n {
+			return fmt.Errorf("budget: menu report %d has %d entries for %d outcomes", i+1, len(p), n)
+		}
+	}
+	if reportFloor > 0 {
+		if err := m.CheckFloor(reportFloor); err != nil {
+			return err
+		}
+	}
+	return checkFloor("clamp", m.Clamp, n)
+}
+
+// menuEfforts fills f.Efforts, the effort of every menu report (clamped)
+// for every outcome, and returns their range; an effort that is not
+// finite is an *UnboundedError, and a range of zero an error too.
+func (f *Fit) menuEfforts(s *bregman.Scorer) (lmin, lmax float64, err error) {
+	n := len(f.Labels)
+	cp := make([]float64, n)
+	lmin, lmax = math.Inf(1), math.Inf(-1)
+	f.Efforts = make([][]float64, len(f.Menu.Reports))
+	for i, p := range f.Menu.Reports {
+		eff := make([]float64, n)
+		s.Efforts(eff, ClampReport(cp, p, f.Clamp))
+		for k, l := range eff {
+			if math.IsNaN(l) || math.IsInf(l, 0) {
+				return 0, 0, &UnboundedError{Report: p, Outcome: k, Label: f.Labels[k], Effort: l, AtZero: cp[k] == 0}
+			}
+			lmin, lmax = math.Min(lmin, l), math.Max(lmax, l)
+		}
+		f.Efforts[i] = eff
+	}
+	if !(lmax-lmin > 1e-12*math.Max(1, math.Abs(lmax))) {
+		return 0, 0, fmt.Errorf("budget: the rule's effort is %.10g for every report on the menu and every outcome, so pay cannot depend on the forecast", lmax)
+	}
+	return lmin, lmax, nil
+}
+
+// referenceBelief is the budget's reference belief, checked, or the
+// uniform one.
+func referenceBelief(ref []float64, n int) ([]float64, error) {
+	switch {
+	case ref == nil:
+		ref = make([]float64, n)
+		for k := range ref {
+			ref[k] = 1 / float64(n)
+		}
+	case len(ref) != n:
+		return nil, fmt.Errorf("budget: the reference belief has %d entries for %d outcomes", len(ref), n)
+	default:
+		if err := num.CheckDistribution(ref, num.SimplexTolerance); err != nil {
+			return nil, fmt.Errorf("budget: reference belief: %v", err)
+		}
+	}
+	return ref, nil
+}
+
+// scale sets B (and A, the floor, the cap and the reference pay) so that
+// the payments over the menu's effort range [lmin, lmax] fit the budget:
+// span [floor, cap], or pay a truthful forecaster at the reference
+// (expected effort href) the mean pay with the floor at lmax.
+func (f *Fit) scale(b design.Budget, lmin, lmax float64, ref []float64, href float64) error {
+	f.base, f.anchor, f.low = b.Floor, lmax, lmin
+	switch {
+	case b.MeanPay != nil:
+		mp := *b.MeanPay
+		if !(mp > b.Floor) || math.IsInf(mp, 0) {
+			return fmt.Errorf("budget: the target mean payment %g must be above the floor %g", mp, b.Floor)
+		}
+		if math.IsNaN(href) || math.IsInf(href, 0) {
+			return fmt.Errorf("budget: the rule's entropy at the reference belief %s is %v", num.Format(ref), href)
+		}
+		den := lmax - href
+		if !(den > 1e-12*math.Max(1, math.Abs(lmax))) {
+			return fmt.Errorf("budget: a truthful forecaster at the reference belief %s already has the menu's largest effort; no B > 0 reaches a mean payment above the floor", num.Format(ref))
+		}
+		f.B = (mp - b.Floor) / den
+		f.MeanPay, f.Reference = &mp, append([]float64(nil), ref...)
+	case b.Cap > b.Floor:
+		f.B = (b.Cap - b.Floor) / (lmax - lmin)
+	default:
+		return errors.New("budget: give a cap above the floor, or a target mean payment with a floor")
+	}
+	// A is stated for the efforts of the rule as given.
+	f.A = f.base + f.B*(f.anchor+f.Shift)
+	f.Floor = b.Floor
+	f.Cap = f.base + f.B*(lmax-lmin)
+	if b.MeanPay == nil {
+		f.Cap = b.Cap
+	}
+	f.ReferencePay = f.exact(href)
+	if !(f.B > 0) || math.IsInf(f.B, 0) || math.IsInf(f.A, 0) {
+		return fmt.Errorf("budget: the fit gives B = %g, A = %g; the budget and the rule's range do not fit together", f.B, f.A)
+	}
+	return nil
 }
 
 // paidReport writes into dst the report a truthful forecaster with belief
@@ -313,16 +351,6 @@ func (f *Fit) BestItem(q []float64) int {
 	return best
 }
 
-// beliefResolution is the largest K <= kmax whose simplex grid over n
-// outcomes has at most limit points.
-func beliefResolution(n, kmax int, limit float64) int {
-	K := kmax
-	for K > 1 && gridCount(K, n) > limit {
-		K--
-	}
-	return K
-}
-
 // truthfulRange searches the expected pay of a truthful forecaster,
 // A - B·H(q) (at the report the contract pays for q: raised to the report
 // floor, clamped), over a grid of beliefs. H is concave,
@@ -330,13 +358,13 @@ func beliefResolution(n, kmax int, limit float64) int {
 // smallest is where H peaks, which the grid finds to within its spacing.
 func (f *Fit) truthfulRange(s *bregman.Scorer) TruthfulRange {
 	n := len(f.Labels)
-	K := beliefResolution(n, 1000, 20000)
+	K := simplex.Resolution(n, 1000, 20000)
 	tr := TruthfulRange{Min: math.Inf(1), Max: math.Inf(-1)}
 	cp := make([]float64, n)
 	skipped := 0
 	// The grid, plus the uniform belief (where symmetric generators peak)
 	// and the menu items.
-	beliefs := SimplexGrid(K, n)
+	beliefs := simplex.Vectors(n, K)
 	uniform := make([]float64, n)
 	for k := range uniform {
 		uniform[k] = 1 / float64(n)
@@ -356,7 +384,7 @@ func (f *Fit) truthfulRange(s *bregman.Scorer) TruthfulRange {
 			tr.Max, tr.MaxBelief = v, q
 		}
 	}
-	tr.Grid = fmt.Sprintf("beliefs on a simplex grid of step 1/%d (%.0f points), the uniform belief and the menu items", K, gridCount(K, n))
+	tr.Grid = fmt.Sprintf("beliefs on a simplex grid of step 1/%d (%.0f points), the uniform belief and the menu items", K, gridSize(n, K))
 	if skipped > 0 {
 		tr.Grid += fmt.Sprintf("; %d beliefs where the rule is not finite left out", skipped)
 	}

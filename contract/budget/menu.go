@@ -13,7 +13,19 @@ import (
 	"scorewright/generator/formula"
 	"scorewright/internal/inputfile"
 	"scorewright/internal/num"
+	"scorewright/internal/simplex"
 )
+
+// gridSize is the number of points of the simplex grid of step 1/K over n
+// outcomes, C(K+n-1, n-1), in floating point so that a count too large
+// to enumerate can still be said.
+func gridSize(n, K int) float64 {
+	c := 1.0
+	for i := 1; i < n; i++ {
+		c = c * float64(K+i) / float64(i)
+	}
+	return math.Round(c)
+}
 
 // MaxMenu is the largest menu a table is built for. A contract annex with
 // more rows is unreadable, and the re-check compares every item with every
@@ -66,10 +78,10 @@ func StepMenu(n int, step, reportFloor float64) (*Menu, error) {
 		return nil, err
 	}
 	K := int(k)
-	if c := gridCount(K, n); c > MaxMenu {
-		return nil, fmt.Errorf("menu: a step of 1/%d over %d outcomes gives %.0f reports, more than %d; use a coarser step or a menu file", K, n, c, MaxMenu)
+	if c := simplex.Count(n, K); c < 0 || c > MaxMenu {
+		return nil, fmt.Errorf("menu: a step of 1/%d over %d outcomes gives %.0f reports, more than %d; use a coarser step or a menu file", K, n, gridSize(n, K), MaxMenu)
 	}
-	grid := SimplexGrid(K, n)
+	grid := simplex.Vectors(n, K)
 	m := &Menu{}
 	seen := map[string]bool{}
 	for _, p := range grid {
@@ -147,43 +159,6 @@ func reportKey(p []float64) string {
 		b.WriteByte(',')
 	}
 	return b.String()
-}
-
-// gridCount is the number of points of the simplex grid of step 1/K over
-// n outcomes, C(K+n-1, n-1), in floating point so that it cannot overflow.
-func gridCount(K, n int) float64 {
-	c := 1.0
-	for i := 1; i < n; i++ {
-		c = c * float64(K+i) / float64(i)
-	}
-	return math.Round(c)
-}
-
-// SimplexGrid returns every probability vector over n outcomes whose
-// entries are multiples of 1/K, in lexicographic order of the entries
-// (for n = 2: the event's probability ascending). Entries are computed as
-// i/K, so 7/10 is the float64 nearest 0.7.
-func SimplexGrid(K, n int) [][]float64 {
-	var out [][]float64
-	idx := make([]int, n)
-	var rec func(pos, left int)
-	rec = func(pos, left int) {
-		if pos == n-1 {
-			idx[pos] = left
-			p := make([]float64, n)
-			for i, c := range idx {
-				p[i] = float64(c) / float64(K)
-			}
-			out = append(out, p)
-			return
-		}
-		for c := 0; c <= left; c++ {
-			idx[pos] = c
-			rec(pos+1, left-c)
-		}
-	}
-	rec(0, K)
-	return out
 }
 
 // MaxMenuBytes bounds a menu file: MaxMenu reports of twelve numbers with

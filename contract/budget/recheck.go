@@ -4,11 +4,10 @@ import (
 	"context"
 	"fmt"
 	"math"
-	"runtime"
-	"sync"
-	"sync/atomic"
 
 	"scorewright/generator/bregman"
+	"scorewright/internal/pool"
+	"scorewright/internal/simplex"
 )
 
 // RecheckSettings tune Recheck. The zero value means the defaults.
@@ -23,9 +22,9 @@ type RecheckSettings struct {
 	Tolerance float64
 	// Workers is the number of goroutines; 0 means GOMAXPROCS.
 	Workers int
-	// Progress, when set, is called from the calling goroutine with the
-	// number of beliefs done and the total.
-	Progress func(done, total int)
+	// Progress, when set, is told the number of menu items and beliefs
+	// done and the total, from one goroutine at a time.
+	Progress pool.Progress
 }
 
 // Recheck is the verdict on a fitted, rounded table.
@@ -123,17 +122,8 @@ func (f *Fit) Recheck(ctx context.Context, set RecheckSettings) (*Recheck, error
 	if tol <= 0 {
 		tol = 1e-9 * scale
 	}
-	K := set.Resolution
-	if K <= 0 {
-		if n == 2 {
-			// About ten beliefs per item, at least 1/1000, within the
-			// same work bound as below.
-			K = max(1000, min(10*(M-1), int(5e7/float64(2*M))))
-		} else {
-			K = beliefResolution(n, 200, math.Max(100, math.Min(50000, 5e7/float64(M*n))))
-		}
-	}
-	grid := SimplexGrid(K, n)
+	K := beliefGrid(set.Resolution, n, M)
+	grid := simplex.Vectors(n, K)
 	rc := &Recheck{
 		Margins: make([]float64, M), Rivals: make([]int, M), Cells: make([]Cell, M),
 		Beliefs: len(grid), Tolerance: tol,
@@ -142,24 +132,65 @@ func (f *Fit) Recheck(ctx context.Context, set RecheckSettings) (*Recheck, error
 	best := make([]int, len(grid)) // -1: a tie
 	bestPay := make([]float64, len(grid))
 	total := M + len(grid)
-	err := parallel(ctx, total, set.Workers, set.Progress, func(t int) {
-		if t < M {
-			rc.Margins[t], rc.Rivals[t] = margin(pays, n, m[t], t)
-			return
+	meter := pool.NewMeter(set.Progress, int64(total))
+	err := pool.Run(ctx, set.Workers, total, 64, func(_, lo, hi int) {
+		for t := lo; t < hi; t++ {
+			if t < M {
+				rc.Margins[t], rc.Rivals[t] = margin(pays, n, m[t], t)
+				continue
+			}
+			q := grid[t-M]
+			b, second, bv, sv := top2(pays, n, q)
+			if bv-sv <= tol && second >= 0 {
+				b = -1
+			}
+			best[t-M], bestPay[t-M] = b, bv
 		}
-		q := grid[t-M]
-		b, second, bv, sv := top2(pays, n, q)
-		if bv-sv <= tol && second >= 0 {
-			b = -1
-		}
-		best[t-M], bestPay[t-M] = b, bv
+		meter.Add(int64(hi - lo))
 	})
+	meter.Finish(err == nil)
 	if err != nil {
 		return nil, err
 	}
+	rc.sortMargins()
+	rc.beliefCells(grid, best, bestPay)
+	if n == 2 {
+		binaryCells(rc, pays, tol)
+	}
+	for i, c := range rc.Cells {
+		if c.Beliefs == 0 && !(c.Exact && c.Lo < c.Hi) {
+			rc.NeverChosen = append(rc.NeverChosen, i)
+		}
+	}
+	rc.Passed = len(rc.Ties) == 0 && len(rc.Beaten) == 0
+	if f.Clamp > 0 {
+		if rc.ClampGap, err = f.clampGap(ctx, grid); err != nil {
+			return nil, err
+		}
+	}
+	return rc, nil
+}
+
+// beliefGrid is the resolution K of the re-check's belief grid for n
+// outcomes and M menu items: the one asked for, or for two outcomes about
+// ten beliefs per item and at least 1/1000, for more the finest grid up
+// to 1/200 that keeps beliefs × items × n within the same work bound.
+func beliefGrid(asked, n, M int) int {
+	switch {
+	case asked > 0:
+		return asked
+	case n == 2:
+		return max(1000, min(10*(M-1), int(5e7/float64(2*M))))
+	}
+	return simplex.Resolution(n, 200, math.Max(100, math.Min(50000, 5e7/float64(M*n))))
+}
+
+// sortMargins reads the margins: the smallest and its rival, and the
+// items tied (within the tolerance, set to exactly 0) or beaten.
+func (rc *Recheck) sortMargins() {
 	rc.MinMargin, rc.MinMarginItem, rc.MinMarginRival = rc.Margins[0], 0, rc.Rivals[0]
 	for i, mg := range rc.Margins {
-		if math.Abs(mg) <= tol {
+		if math.Abs(mg) <= rc.Tolerance {
 			// A tie reads as a tie, not as float noise.
 			mg, rc.Margins[i] = 0, 0
 		}
@@ -173,6 +204,12 @@ func (f *Fit) Recheck(ctx context.Context, set RecheckSettings) (*Recheck, error
 			rc.Beaten = append(rc.Beaten, i)
 		}
 	}
+}
+
+// beliefCells gathers, from the best item of every grid belief (-1 for a
+// tie) and its expected pay, each item's cell of beliefs (on the first
+// outcome's probability), the tied beliefs and the range of menu pay.
+func (rc *Recheck) beliefCells(grid [][]float64, best []int, bestPay []float64) {
 	for i := range rc.Cells {
 		rc.Cells[i] = Cell{Lo: math.NaN(), Hi: math.NaN()}
 	}
@@ -200,21 +237,6 @@ func (f *Fit) Recheck(ctx context.Context, set RecheckSettings) (*Recheck, error
 		}
 		c.Beliefs++
 	}
-	if n == 2 {
-		binaryCells(rc, pays, tol)
-	}
-	for i, c := range rc.Cells {
-		if c.Beliefs == 0 && !(c.Exact && c.Lo < c.Hi) {
-			rc.NeverChosen = append(rc.NeverChosen, i)
-		}
-	}
-	rc.Passed = len(rc.Ties) == 0 && len(rc.Beaten) == 0
-	if f.Clamp > 0 {
-		if rc.ClampGap, err = f.clampGap(ctx, grid); err != nil {
-			return nil, err
-		}
-	}
-	return rc, nil
 }
 
 // binaryCells replaces the grid bounds of two-outcome cells with exact
@@ -325,45 +347,6 @@ func top2(pays []float64, n int, q []float64) (best, second int, bv, sv float64)
 		}
 	}
 	return best, second, bv, sv
-}
-
-// parallel runs job(0..total-1) on workers goroutines in chunks, stops
-// early when ctx is cancelled, and reports progress from the calling
-// goroutine.
-func parallel(ctx context.Context, total, workers int, progress func(done, total int), job func(int)) error {
-	if workers <= 0 {
-		workers = runtime.GOMAXPROCS(0)
-	}
-	const chunk = 64
-	var next atomic.Int64
-	done := make(chan int, workers)
-	var wg sync.WaitGroup
-	for range workers {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			for ctx.Err() == nil {
-				start := int(next.Add(chunk)) - chunk
-				if start >= total {
-					return
-				}
-				end := min(start+chunk, total)
-				for t := start; t < end; t++ {
-					job(t)
-				}
-				done <- end - start
-			}
-		}()
-	}
-	go func() { wg.Wait(); close(done) }()
-	count := 0
-	for d := range done {
-		count += d
-		if progress != nil {
-			progress(count, total)
-		}
-	}
-	return ctx.Err()
 }
 
 // clampGap searches the clamp's honesty gap over the grid beliefs that

@@ -8,7 +8,6 @@ import (
 
 	"scorewright/contract/budget"
 	"scorewright/contract/table"
-	"scorewright/generator/point"
 	"scorewright/internal/num"
 	"scorewright/internal/numfmt"
 )
@@ -89,7 +88,7 @@ func RecheckFit(ctx context.Context, f *budget.Fit, t *table.Table) (*budget.Rec
 }
 
 // RecheckPoint is RecheckFit for a point-forecast table made from f.
-func RecheckPoint(ctx context.Context, f *point.Table, t *table.Table) (*point.Recheck, error) {
+func RecheckPoint(ctx context.Context, f *budget.PointTable, t *table.Table) (*budget.PointRecheck, error) {
 	fc := *f
 	fc.Pay, fc.MinPay, fc.MaxPay = t.Values, 0, 1
 	rc, err := fc.Recheck(ctx)
@@ -124,7 +123,7 @@ func ForFit(ctx context.Context, f *budget.Fit, t *table.Table, draws int) (*bud
 }
 
 // ForPoint is ForFit for a point-forecast table.
-func ForPoint(ctx context.Context, f *point.Table, t *table.Table, draws int) (*point.Recheck, error) {
+func ForPoint(ctx context.Context, f *budget.PointTable, t *table.Table, draws int) (*budget.PointRecheck, error) {
 	lo, hi := PointBounds(f)
 	if err := convertDrawable(t, lo, hi, draws); err != nil {
 		return nil, err
@@ -145,6 +144,6 @@ func Bounds(f *budget.Fit) (lo, hi float64) {
 }
 
 // PointBounds are the floor and cap a lottery made from a point table uses.
-func PointBounds(f *point.Table) (lo, hi float64) {
+func PointBounds(f *budget.PointTable) (lo, hi float64) {
 	return math.Min(f.Floor, f.MinPay), math.Max(f.Cap, f.MaxPay)
 }

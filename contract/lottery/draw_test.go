@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"scorewright/contract/budget"
+	"scorewright/generator/bregman"
 	"scorewright/generator/design"
 )
 
@@ -16,7 +17,8 @@ func quadraticFit(t *testing.T, step float64) (*budget.Fit, *budget.Recheck) {
 	t.Helper()
 	d := &design.Design{Version: 1, Labels: []string{"exceeds", "holds"}, Mode: design.ModeGenerator, Formula: "1 - sum(p^2)",
 		Budget: design.Budget{Floor: 75, Cap: 150, Step: step, Unit: 0.01}}
-	rule, err := d.Rule()
+	gen, err := bregman.NewFormula(d.Formula, bregman.Options{Outcomes: d.N()})
+	rule := &bregman.Rule{Gen: gen, Labels: d.Labels}
 	if err != nil {
 		t.Fatal(err)
 	}

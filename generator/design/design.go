@@ -14,7 +14,6 @@ import (
 	"unicode"
 	"unicode/utf8"
 
-	"scorewright/generator/bregman"
 	"scorewright/generator/formula"
 )
 
@@ -39,13 +38,50 @@ const (
 // Modes lists every mode, in the order the workbench cycles through them.
 var Modes = []Mode{ModeGenerator, ModePayout, ModeEmphasis, ModePoint, ModePointPayout}
 
+// modeTraits is what a mode asks of a design, so that the document can be
+// validated without switching on its mode: the one place that turns a
+// mode into engine objects is the root package's Open.
+type modeTraits struct {
+	mode Mode
+	// onInterval: the formula is about a number on Interval (a point
+	// forecast) rather than a distribution over Labels.
+	onInterval bool
+	// payout: the formula is a payout under audit (more is better)
+	// rather than a rule's generator.
+	payout bool
+	// outcomes is the number of outcomes the mode is for; 0 means any
+	// from 2 to formula.MaxOutcomes.
+	outcomes int
+	// withInterval is the mode a design of this mode is when it states an
+	// interval (a payout with an interval was a point-forecast payout in
+	// files written before that mode had its own name).
+	withInterval Mode
+}
+
+// traits describes every mode. It is a function, not a table in a
+// variable, so that nothing can change it.
+func traits(m Mode) (modeTraits, bool) {
+	for _, t := range []modeTraits{
+		{mode: ModeGenerator},
+		{mode: ModePayout, payout: true, withInterval: ModePointPayout},
+		{mode: ModeEmphasis, outcomes: 2},
+		{mode: ModePoint, onInterval: true},
+		{mode: ModePointPayout, onInterval: true, payout: true},
+	} {
+		if t.mode == m {
+			return t, true
+		}
+	}
+	return modeTraits{}, false
+}
+
 // OnInterval reports whether the mode is about a number on an interval
 // (a point forecast) rather than a distribution over outcomes.
-func (m Mode) OnInterval() bool { return m == ModePoint || m == ModePointPayout }
+func (m Mode) OnInterval() bool { t, _ := traits(m); return t.onInterval }
 
 // Payout reports whether the formula of the mode is a payout under audit
 // (more is better) rather than a rule's generator.
-func (m Mode) Payout() bool { return m == ModePayout || m == ModePointPayout }
+func (m Mode) Payout() bool { t, _ := traits(m); return t.payout }
 
 // Budget is how a rule is turned into money. Zero values mean "not set".
 type Budget struct {
@@ -67,6 +103,15 @@ type Budget struct {
 	// ReportFloor is the smallest probability the menu allows (e.g. 0.01),
 	// the way out for rules that are infinite at p_k = 0.
 	ReportFloor float64 `toml:"report_floor,omitempty"`
+	// Clamp, when positive, pays every report as if it gave each outcome
+	// at least Clamp (rescaled to sum to 1): the other way out for rules
+	// that are infinite at p_k = 0. It bends honesty near the boundary,
+	// and the menu re-check says by how much.
+	Clamp float64 `toml:"clamp,omitempty"`
+	// Menu, when set, is a CSV file of the reports the contract allows,
+	// one per line, instead of Step's grid (the two are not set
+	// together). A relative path is read from the working directory.
+	Menu string `toml:"menu,omitempty"`
 }
 
 // Design is everything that defines a scoring rule and its contract.
@@ -196,16 +241,4 @@ func CheckLabel(l string) error {
 		}
 	}
 	return nil
-}
-
-// Rule compiles a generator-mode design into a rule.
-func (d *Design) Rule() (*bregman.Rule, error) {
-	if d.Mode != ModeGenerator && d.Mode != "" {
-		return nil, fmt.Errorf("design is in %s mode, not generator mode", d.Mode)
-	}
-	f, err := bregman.NewFormula(d.Formula, bregman.Options{Outcomes: d.N(), Ordered: d.Ordered, Weights: d.Weights, Params: d.Params})
-	if err != nil {
-		return nil, err
-	}
-	return &bregman.Rule{Gen: f, Labels: d.Labels, Ordered: d.Ordered}, nil
 }

@@ -7,12 +7,13 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"regexp"
-	"slices"
+	"reflect"
 	"strconv"
 	"strings"
+	"unicode/utf8"
 
 	"github.com/BurntSushi/toml"
+	gotoml "github.com/pelletier/go-toml/v2"
 
 	"scorewright/generator/formula"
 	"scorewright/internal/inputfile"
@@ -73,7 +74,7 @@ func Decode(b []byte) (*Design, error) {
 		if errors.As(err, &pe) {
 			return nil, fmt.Errorf("line %d: %s", pe.Position.Line, pe.Message)
 		}
-		return nil, typeError(err)
+		return nil, typeError(b, err)
 	}
 	if und := md.Undecoded(); len(und) > 0 {
 		keys := make([]string, len(und))
@@ -103,16 +104,17 @@ func (d *Design) Validate() error {
 	case d.Version > SchemaVersion:
 		return fmt.Errorf("version: %d is newer than this build understands (%d)", d.Version, SchemaVersion)
 	}
-	if !slices.Contains(Modes, d.Mode) {
+	mt, known := traits(d.Mode)
+	if !known {
 		if d.Mode == "" {
 			return fmt.Errorf("mode: missing; one of %s", modeList())
 		}
 		return fmt.Errorf("mode: %q is not one of %s", d.Mode, modeList())
 	}
-	if d.Mode == ModePayout && d.Interval != nil {
-		return fmt.Errorf(`mode: a payout with an interval is a point-forecast payout; say mode = %q`, ModePointPayout)
+	if mt.withInterval != "" && d.Interval != nil {
+		return fmt.Errorf(`mode: a payout with an interval is a point-forecast payout; say mode = %q`, mt.withInterval)
 	}
-	if !d.Mode.OnInterval() {
+	if !mt.onInterval {
 		if n := d.N(); n < 2 || n > formula.MaxOutcomes {
 			return fmt.Errorf("outcomes: %d labels; need 2..%d", n, formula.MaxOutcomes)
 		}
@@ -127,8 +129,8 @@ func (d *Design) Validate() error {
 			seen[l] = true
 		}
 	}
-	if d.Mode == ModeEmphasis && d.N() != 2 {
-		return fmt.Errorf("mode: emphasis designs are for 2 outcomes, the design has %d", d.N())
+	if mt.outcomes > 0 && d.N() != mt.outcomes {
+		return fmt.Errorf("mode: %s designs are for %d outcomes, the design has %d", d.Mode, mt.outcomes, d.N())
 	}
 	if strings.TrimSpace(d.Formula) == "" && d.Preset == "" {
 		return errors.New("formula: empty, and no preset named")
@@ -152,7 +154,7 @@ func (d *Design) Validate() error {
 			return fmt.Errorf("params.%s: %g is not a finite number", name, v)
 		}
 	}
-	if d.Mode.OnInterval() {
+	if mt.onInterval {
 		if len(d.Interval) != 2 || !(d.Interval[0] < d.Interval[1]) || math.IsInf(d.Interval[0], 0) || math.IsInf(d.Interval[1], 0) {
 			return errors.New("interval: point designs need interval = [lo, hi] with lo < hi")
 		}
@@ -176,8 +178,8 @@ func modeList() string {
 // payout with an interval was a point-forecast payout before that mode
 // had its own name.
 func (d *Design) upgrade() {
-	if d.Mode == ModePayout && len(d.Interval) == 2 {
-		d.Mode = ModePointPayout
+	if t, _ := traits(d.Mode); t.withInterval != "" && len(d.Interval) == 2 {
+		d.Mode = t.withInterval
 	}
 }
 
@@ -186,7 +188,16 @@ func (d *Design) upgrade() {
 // its width), in every other mode a probability step.
 func (d *Design) ValidateBudget() error {
 	if !d.Mode.OnInterval() {
-		return d.Budget.Validate()
+		if err := d.Budget.Validate(); err != nil {
+			return err
+		}
+		if n := d.N(); n >= 2 && d.Budget.Clamp*float64(n) >= 1 {
+			return fmt.Errorf("budget.clamp: %g; with %d outcomes it must be below 1/%d", d.Budget.Clamp, n, n)
+		}
+		return nil
+	}
+	if d.Budget.Clamp != 0 || d.Budget.Menu != "" {
+		return errors.New("budget.clamp and budget.menu are for rules over outcomes; a point-forecast menu is budget.step in the units of the interval")
 	}
 	b := d.Budget
 	step := b.Step
@@ -211,7 +222,7 @@ func (b *Budget) Validate() error {
 	for _, f := range []struct {
 		n string
 		v float64
-	}{{"floor", b.Floor}, {"cap", b.Cap}, {"step", b.Step}, {"unit", b.Unit}, {"report_floor", b.ReportFloor}} {
+	}{{"floor", b.Floor}, {"cap", b.Cap}, {"step", b.Step}, {"unit", b.Unit}, {"report_floor", b.ReportFloor}, {"clamp", b.Clamp}} {
 		if err := fin(f.n, f.v); err != nil {
 			return err
 		}
@@ -225,6 +236,15 @@ func (b *Budget) Validate() error {
 	if b.ReportFloor < 0 || b.ReportFloor >= 0.5 {
 		return fmt.Errorf("budget.report_floor: %g; must be in [0, 0.5)", b.ReportFloor)
 	}
+	if b.Clamp < 0 || b.Clamp >= 0.5 {
+		return fmt.Errorf("budget.clamp: %g; must be in [0, 0.5) (0: none)", b.Clamp)
+	}
+	if err := checkMenuPath(b.Menu); err != nil {
+		return err
+	}
+	if b.Menu != "" && b.Step != 0 {
+		return fmt.Errorf("budget: menu %q and step %g are both set; the menu file replaces the step's grid, so give one", b.Menu, b.Step)
+	}
 	switch b.Rounding {
 	case "", "nearest", "down", "up":
 	default:
@@ -237,6 +257,20 @@ func (b *Budget) Validate() error {
 	}
 	if b.MeanPay == nil && b.Cap != 0 && !(b.Cap > b.Floor) {
 		return fmt.Errorf("budget: cap %g must be above floor %g", b.Cap, b.Floor)
+	}
+	return nil
+}
+
+// MaxMenuPath bounds the menu file's name.
+const MaxMenuPath = 4096
+
+// checkMenuPath says what is wrong with a menu file name, or returns nil.
+func checkMenuPath(p string) error {
+	switch {
+	case len(p) > MaxMenuPath:
+		return fmt.Errorf("budget.menu: a path of %d bytes; at most %d", len(p), MaxMenuPath)
+	case !utf8.ValidString(p) || strings.ContainsAny(p, "\n\r\x00"):
+		return errors.New("budget.menu: the path must be one line of text")
 	}
 	return nil
 }
@@ -264,25 +298,150 @@ func (d *Design) Save(path string, overwrite bool) error {
 	return safefile.Write(path, b, overwrite)
 }
 
-// tomlTypeErr is the TOML decoder's message for a value of the wrong type.
-var tomlTypeErr = regexp.MustCompile(`^toml: line (\d+) \(last key "([^"]+)"\): incompatible types: TOML value has type (\w+); destination has type (\w+)$`)
+// FieldError is a value of the wrong type in a design file, with where it
+// is: "line 3: outcomes: expected a list, found text".
+type FieldError struct {
+	// Line and Column locate the value, from 1.
+	Line, Column int
+	// Key is the value's dotted key, e.g. "budget.cap".
+	Key string
+	// Want and Found say in words what the key takes and what the file
+	// gives ("a list", "text", "a number", ...).
+	Want, Found string
+}
 
-// typeError rewrites the decoder's type-mismatch message in the file's
-// own words ("line 3: outcomes: expected a list, found text"); other
-// errors pass unchanged.
-func typeError(err error) error {
-	m := tomlTypeErr.FindStringSubmatch(err.Error())
-	if m == nil {
+func (e *FieldError) Error() string {
+	return fmt.Sprintf("line %d: %s: expected %s, found %s", e.Line, e.Key, e.Want, e.Found)
+}
+
+// typeError turns err, a value BurntSushi/toml could not store in the
+// design, into a *FieldError. That decoder reports such a value only in
+// the text of a plain error; go-toml/v2 reports it as a *DecodeError with
+// the key and the position, so src is decoded again with it, once, on this
+// error path only. What the key takes is read from the Design type and
+// what the file gives from the document itself. When the second decoder
+// does not name the same kind of fault, err is returned unchanged.
+func typeError(src []byte, err error) error {
+	var de *gotoml.DecodeError
+	if !errors.As(gotoml.Unmarshal(src, new(Design)), &de) || len(de.Key()) == 0 {
 		return err
 	}
-	words := map[string]string{"slice": "a list", "array": "a list", "float": "a number", "float64": "a number",
-		"int": "a whole number", "int64": "a whole number", "integer": "a whole number", "string": "text", "bool": "true or false",
-		"map": "a table", "struct": "a table", "ptr": "a number"}
-	say := func(t string) string {
-		if w, ok := words[t]; ok {
-			return w
-		}
-		return t
+	var doc map[string]any
+	if gotoml.Unmarshal(src, &doc) != nil {
+		return err
 	}
-	return fmt.Errorf("line %s: %s: expected %s, found %s", m[1], m[2], say(m[4]), say(m[3]))
+	want, found, ok := mismatch(reflect.TypeFor[Design](), lookup(doc, de.Key()), de.Key())
+	if !ok {
+		return err
+	}
+	line, col := de.Position()
+	return &FieldError{Line: line, Column: col, Key: strings.Join(de.Key(), "."), Want: want, Found: found}
+}
+
+// lookup is the value at key in a generically decoded document, nil when
+// there is none.
+func lookup(doc map[string]any, key []string) any {
+	var v any = doc
+	for _, k := range key {
+		m, ok := v.(map[string]any)
+		if !ok {
+			return nil
+		}
+		v = m[k]
+	}
+	return v
+}
+
+// mismatch follows key through t by the fields' toml names and says what
+// the field there takes and what v is, descending into the first element
+// of a list that does not fit; ok is false when nothing there is amiss.
+func mismatch(t reflect.Type, v any, key []string) (want, found string, ok bool) {
+	for _, k := range key {
+		t = deref(t)
+		switch t.Kind() {
+		case reflect.Struct:
+			f, has := fieldByTOMLName(t, k)
+			if !has {
+				return "", "", false
+			}
+			t = f.Type
+		case reflect.Map:
+			t = t.Elem()
+		default:
+			return "", "", false
+		}
+	}
+	t = deref(t)
+	if l, isList := v.([]any); isList && (t.Kind() == reflect.Slice || t.Kind() == reflect.Array) {
+		for _, e := range l {
+			if w, f, bad := mismatch(t.Elem(), e, nil); bad {
+				return w, f, true
+			}
+		}
+		return "", "", false
+	}
+	want, found = kindWords(t.Kind()), valueWords(v)
+	if _, whole := v.(int64); whole && want == "a number" {
+		return "", "", false // a float field takes a whole number
+	}
+	return want, found, v != nil && want != found
+}
+
+func deref(t reflect.Type) reflect.Type {
+	for t.Kind() == reflect.Pointer {
+		t = t.Elem()
+	}
+	return t
+}
+
+// fieldByTOMLName is the field of struct t whose toml tag names it k.
+func fieldByTOMLName(t reflect.Type, k string) (reflect.StructField, bool) {
+	for i := range t.NumField() {
+		f := t.Field(i)
+		if name, _, _ := strings.Cut(f.Tag.Get("toml"), ","); name == k {
+			return f, true
+		}
+	}
+	return reflect.StructField{}, false
+}
+
+// kindWords names what a field of kind k takes, in the file's words.
+func kindWords(k reflect.Kind) string {
+	switch k {
+	case reflect.Slice, reflect.Array:
+		return "a list"
+	case reflect.Float32, reflect.Float64:
+		return "a number"
+	case reflect.Int, reflect.Int8, reflect.Int16, reflect.Int32, reflect.Int64:
+		return "a whole number"
+	case reflect.String:
+		return "text"
+	case reflect.Bool:
+		return "true or false"
+	case reflect.Map, reflect.Struct:
+		return "a table"
+	}
+	return k.String()
+}
+
+// valueWords names the kind of a generically decoded TOML value. A whole
+// number is also a number: a float field takes it.
+func valueWords(v any) string {
+	switch v.(type) {
+	case []any:
+		return "a list"
+	case float64:
+		return "a number"
+	case int64:
+		return "a whole number"
+	case string:
+		return "text"
+	case bool:
+		return "true or false"
+	case map[string]any:
+		return "a table"
+	case nil:
+		return "nothing"
+	}
+	return "a date or time"
 }

@@ -50,6 +50,12 @@ func randomDesign(rng *rand.Rand, m Mode) *Design {
 		}
 		d.Budget.ReportFloor = 0.01
 	}
+	if !m.OnInterval() && !m.Payout() && rng.IntN(3) == 0 {
+		d.Budget.Clamp = 0.01
+		if rng.IntN(2) == 0 {
+			d.Budget.Menu, d.Budget.Step = "menus/frost menu.csv", 0
+		}
+	}
 	if rng.IntN(2) == 0 {
 		d.Contract = Contract{Buyer: "A water works", Forecaster: "A forecasting bureau", Currency: "EUR",
 			Start: "2031-04-01", End: "2031-09-30", Forecasts: rng.IntN(400)}
@@ -94,5 +100,32 @@ func TestOlderPointPayoutOpens(t *testing.T) {
 	}
 	if d.Mode != ModePointPayout {
 		t.Errorf("mode %q, want %q", d.Mode, ModePointPayout)
+	}
+}
+
+// Every mode the workbench cycles through is described, and the
+// descriptions say what the modes are (derived from their definitions).
+func TestEveryModeDescribed(t *testing.T) {
+	want := map[Mode][2]bool{ // on an interval, a payout
+		ModeGenerator: {false, false}, ModePayout: {false, true}, ModeEmphasis: {false, false},
+		ModePoint: {true, false}, ModePointPayout: {true, true},
+	}
+	if len(Modes) != len(want) {
+		t.Fatalf("Modes has %d entries, the test knows %d", len(Modes), len(want))
+	}
+	for _, m := range Modes {
+		if _, ok := traits(m); !ok {
+			t.Fatalf("mode %q has no traits", m)
+		}
+		if got := [2]bool{m.OnInterval(), m.Payout()}; got != want[m] {
+			t.Errorf("mode %q: on interval, payout = %v, want %v", m, got, want[m])
+		}
+	}
+	if _, ok := traits("lottery"); ok {
+		t.Fatal("an unknown mode has traits")
+	}
+	d := &Design{Version: SchemaVersion, Mode: ModeEmphasis, Labels: []string{"a", "b", "c"}, Formula: "1"}
+	if err := d.Validate(); err == nil || err.Error() != "mode: emphasis designs are for 2 outcomes, the design has 3" {
+		t.Fatalf("emphasis with 3 outcomes: %v", err)
 	}
 }

@@ -29,6 +29,12 @@ type Enclosure struct {
 	// on the limit convention 0·∞ = 0 (so may jump at the faces). Value
 	// stays a valid enclosure; Grad and Hess hold only where smooth.
 	Kinked bool
+	// Piecewise: Kinked only because a min, max or abs is undecided, and
+	// the program is exactly the min (Max false) or max (Max true) of the
+	// smooth Pieces on the box, each with its own derivatives
+	// (enclose_pieces.go).
+	Piecewise, Max bool
+	Pieces         []Piece
 }
 
 // Encloser evaluates a Program in interval arithmetic. It owns scratch
@@ -53,15 +59,21 @@ type Encloser struct {
 	// x ln x, sqrt or a power at such an argument is a limit at the
 	// boundary, not a kink inside.
 	faceOnly []bool
-	kinked   bool
-	undef    bool
-	order    int
+	// pw holds the branches of piecewise cells (pwSet lists them, next is
+	// the first free scratch cell, past the program's own).
+	pw     []pieceSet
+	pwSet  []int32
+	next   int32
+	kinked bool
+	undef  bool
+	order  int
 }
 
 // NewEncloser returns an Encloser for p.
 func (p *Program) NewEncloser() *Encloser {
 	nv := len(p.varNames)
-	e := &Encloser{prog: p, nv: nv, nd: nv, val: make([]interval.Interval, p.cells), owner: make([]int32, p.cells)}
+	ns := p.cells + scratchCells
+	e := &Encloser{prog: p, nv: nv, nd: nv, val: make([]interval.Interval, ns), owner: make([]int32, ns), pw: make([]pieceSet, ns)}
 	for i := range e.owner {
 		e.owner[i] = -1
 	}
@@ -73,7 +85,7 @@ func (p *Program) NewEncloser() *Encloser {
 	for k, c := range p.consts {
 		e.val[nv+k] = interval.Point(c)
 	}
-	e.faceOnly = faceOnlyCells(p)
+	e.faceOnly = append(faceOnlyCells(p), make([]bool, scratchCells)...)
 	return e
 }
 
@@ -126,6 +138,7 @@ func (e *Encloser) Enclose(dst *Enclosure, box []interval.Interval, order int) {
 	if order > 0 {
 		e.alloc()
 	}
+	e.resetPieces()
 	copy(e.val, box)
 	for j := range e.prog.code {
 		in := &e.prog.code[j]
@@ -134,7 +147,8 @@ func (e *Encloser) Enclose(dst *Enclosure, box []interval.Interval, order int) {
 		}
 	}
 	out := int(e.prog.out)
-	dst.Value, dst.Kinked, dst.Undefined = e.val[out], e.kinked, e.undef
+	e.outputPieces(dst, int32(out))
+	dst.Value, dst.Kinked, dst.Undefined = e.val[out], e.kinked || e.pw[out].cells != nil, e.undef
 	// Variables' and constants' cells carry their fixed derivatives
 	// (unit vectors, zeros), so the output cell is read the same way
 	// whatever wrote it.

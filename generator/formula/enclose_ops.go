@@ -7,10 +7,21 @@ import (
 )
 
 // lane encloses lane l of one instruction: its value and, by the chain
-// rule in interval arithmetic, its gradient and Hessian. A numeric kernel:
-// one case an operation, kept together so the rules can be read side by
-// side with Machine.hessLane.
+// rule in interval arithmetic, its gradient and Hessian; an operand that
+// is a min or max of smooth pieces (enclose_pieces.go) is carried piece
+// by piece where the operation allows.
 func (e *Encloser) lane(in *cell, l int32) {
+	if e.hasPieces(in, l) {
+		e.piecewiseLane(in, l)
+		return
+	}
+	e.smoothLane(in, l)
+}
+
+// smoothLane is lane for smooth operands. A numeric kernel: one case an
+// operation, kept together so the rules can be read side by side with
+// Machine.hessLane.
+func (e *Encloser) smoothLane(in *cell, l int32) {
 	i := in.dst + l
 	ia, ib := in.a+l*in.sa, in.b+l*in.sb
 	a, b := e.val[ia], e.val[ib]
@@ -25,6 +36,10 @@ func (e *Encloser) lane(in *cell, l int32) {
 		e.val[i] = iv.Sub(a, b)
 		e.chain(i, ia, ib, one, iv.Point(-1), zero, zero, zero)
 	case opMul:
+		if x, k, m1, ok := e.timesPower(ia, ib); ok {
+			e.xPower(i, x, k, m1)
+			return
+		}
 		if a.Contains(0) && !b.Bounded() || b.Contains(0) && !a.Bounded() {
 			e.kinked = true
 		}
@@ -95,17 +110,20 @@ func (e *Encloser) lane(in *cell, l int32) {
 	case opXLnX:
 		e.xlnx(i, ia, a, false)
 	case opAbs:
+		// A branch is taken only when the kink lies outside the closed
+		// box (or only on the simplex's faces): a kink on the box's edge
+		// would join two smooth boxes at a corner no Hessian sees.
 		switch {
-		case a.Lo >= 0:
+		case a.Lo > 0 || a.Lo == 0 && e.faceOnly[ia]:
 			e.val[i] = a
 			e.chain1(i, ia, one, zero)
-		case a.Hi <= 0:
+		case a.Hi < 0 || a.Hi == 0 && e.faceOnly[ia]:
 			e.val[i] = iv.Neg(a)
 			e.chain1(i, ia, iv.Point(-1), zero)
 		default:
-			e.kinked = true
 			e.val[i] = iv.Abs(a)
 			e.chain1(i, ia, iv.New(-1, 1), zero)
+			e.absPieces(i, ia)
 		}
 	case opMin, opMax:
 		e.minMax(in.op, i, ia, ib, a, b)
@@ -220,6 +238,52 @@ func (e *Encloser) powerForm(arg int32) (x int32, k float64, ok bool) {
 	return ln.a + (other-ln.dst)*ln.sa, kv, true
 }
 
+// timesPower recognises x·exp(k·ln x) and x·expm1(k·ln x) (either
+// order), the way the power rule writes p·(p^(g-1) - 1) to keep
+// precision: enclosed as x^(k+1) (minus x), its derivatives stay bounded
+// where x reaches 0 and they are finite, which the product of x and an
+// unbounded power cannot show (0·∞).
+func (e *Encloser) timesPower(ia, ib int32) (x int32, k float64, m1, ok bool) {
+	for _, c := range [2][2]int32{{ia, ib}, {ib, ia}} {
+		j := e.owner[c[1]]
+		if j < 0 {
+			continue
+		}
+		in := e.prog.code[j]
+		if in.op != opExp && in.op != opExpm1 {
+			continue
+		}
+		arg := in.a + (c[1]-in.dst)*in.sa
+		if x, k, ok := e.powerForm(arg); ok && x == c[0] {
+			return x, k, in.op == opExpm1, true
+		}
+	}
+	return 0, 0, false, false
+}
+
+// xPower sets cell i to x^(k+1), less x when m1.
+func (e *Encloser) xPower(i, x int32, k float64, m1 bool) {
+	a := e.val[x]
+	a = iv.Interval{Lo: math.Max(a.Lo, 0), Hi: math.Max(a.Hi, 0)}
+	k1 := k + 1
+	z, ok := iv.PowK(a, k1)
+	e.undef = e.undef || !ok
+	whole := k1 == math.Trunc(k1)
+	e.singularAt(x, a.Lo <= 0 && (k1 < 0 || !whole && k1 < 2))
+	d1, _ := iv.PowK(a, k)
+	d1 = iv.Mul(iv.Point(k1), d1)
+	if m1 {
+		z = iv.Sub(z, a)
+		d1 = iv.Sub(d1, iv.Point(1))
+	}
+	e.val[i] = z
+	if e.order == 0 {
+		return
+	}
+	d2, _ := iv.PowK(a, k-1)
+	e.chain1(i, x, d1, iv.Mul(iv.Mul(iv.Point(k1), iv.Point(k)), d2))
+}
+
 func (e *Encloser) expOfLog(i int32, op opcode, x int32, k float64) {
 	a := e.val[x]
 	// ln already reported x below 0; the power is taken where ln is defined.
@@ -256,8 +320,10 @@ func (e *Encloser) xlnx(i, ia int32, a iv.Interval, add bool) {
 }
 
 func (e *Encloser) minMax(op opcode, i, ia, ib int32, a, b iv.Interval) {
-	takeA := a.Hi <= b.Lo
-	takeB := b.Hi <= a.Lo
+	// Strictly apart on the closed box, so the branch also holds next to
+	// it: a tie on the box's edge would hide a kink there.
+	takeA := a.Hi < b.Lo
+	takeB := b.Hi < a.Lo
 	if op == opMax {
 		takeA, takeB = takeB, takeA
 	}
@@ -267,8 +333,8 @@ func (e *Encloser) minMax(op opcode, i, ia, ib int32, a, b iv.Interval) {
 	case takeB:
 		e.copyCell(i, ib)
 	default:
-		e.kinked = true
 		e.hullCells(i, ia, ib)
+		e.startPieces(i, op == opMax, ia, ib)
 		if op == opMin {
 			e.val[i] = iv.Min(a, b)
 		} else {
@@ -278,18 +344,15 @@ func (e *Encloser) minMax(op opcode, i, ia, ib int32, a, b iv.Interval) {
 }
 
 // compare decides a comparison on the box: 1 or 0 when it holds or fails
-// everywhere, else [0, 1] and a possible jump.
+// everywhere with the two sides apart on the closed box, else [0, 1] and
+// a possible jump (a tie on the box's edge is a jump just beside it).
 func (e *Encloser) compare(op opcode, a, b iv.Interval) iv.Interval {
 	var yes, no bool
 	switch op {
-	case opLt:
-		yes, no = a.Hi < b.Lo, a.Lo >= b.Hi
-	case opLe:
-		yes, no = a.Hi <= b.Lo, a.Lo > b.Hi
-	case opGt:
-		yes, no = a.Lo > b.Hi, a.Hi <= b.Lo
-	case opGe:
-		yes, no = a.Lo >= b.Hi, a.Hi < b.Lo
+	case opLt, opLe:
+		yes, no = a.Hi < b.Lo, a.Lo > b.Hi
+	case opGt, opGe:
+		yes, no = a.Lo > b.Hi, a.Hi < b.Lo
 	}
 	switch {
 	case yes:

@@ -48,13 +48,28 @@ func Count(n, k int) int64 {
 	return int64(math.Round(c))
 }
 
+// Resolution is the largest k <= kmax (and at least 1) whose lattice over
+// n outcomes has at most limit points: the finest grid a bounded amount
+// of work can afford.
+func Resolution(n, kmax int, limit float64) int {
+	k := kmax
+	for k > 1 {
+		if c := Count(n, k); c >= 0 && float64(c) <= limit {
+			break
+		}
+		k--
+	}
+	return k
+}
+
 // MaxFull is the most points Full enumerates: 2^26 points keep the
 // coordinates of 12 outcomes under 8 GiB, already more than a pair check
 // can stream in a working day.
 const MaxFull = 1 << 26
 
 // Full returns every lattice point of resolution k over n outcomes, in
-// lexicographic order of their integer coordinates.
+// descending lexicographic order of their integer coordinates (the first
+// vertex first).
 func Full(n, k int) (*Grid, error) {
 	if n < 2 {
 		return nil, fmt.Errorf("simplex: need at least 2 outcomes, got %d", n)
@@ -67,21 +82,49 @@ func Full(n, k int) (*Grid, error) {
 		return nil, fmt.Errorf("simplex: %d outcomes at resolution %d is too many points to enumerate", n, k)
 	}
 	g := &Grid{N: n, K: k, Coords: make([]float64, 0, int(c)*n), Boundary: make([]bool, 0, int(c))}
+	lattice(n, k, true, g.add)
+	return g, nil
+}
+
+// Vectors returns every lattice point of resolution k over n outcomes as
+// its own slice, in ascending lexicographic order of the integer
+// coordinates (for n = 2: the first outcome's probability ascending), the
+// order report menus are listed in. Entries are computed as i/k, so 7/10
+// is the float64 nearest 0.7. The caller bounds the count (Count).
+func Vectors(n, k int) [][]float64 {
+	var out [][]float64
+	lattice(n, k, false, func(comp []int) {
+		p := make([]float64, n)
+		for i, c := range comp {
+			p[i] = float64(c) / float64(k)
+		}
+		out = append(out, p)
+	})
+	return out
+}
+
+// lattice calls visit with the integer coordinates of every lattice point
+// of resolution k over n outcomes, in lexicographic order, descending or
+// ascending; comp is reused between calls.
+func lattice(n, k int, descending bool, visit func(comp []int)) {
 	comp := make([]int, n)
 	var rec func(pos, left int)
 	rec = func(pos, left int) {
 		if pos == n-1 {
 			comp[pos] = left
-			g.add(comp)
+			visit(comp)
 			return
 		}
-		for v := left; v >= 0; v-- {
+		for i := 0; i <= left; i++ {
+			v := i
+			if descending {
+				v = left - i
+			}
 			comp[pos] = v
 			rec(pos+1, left-v)
 		}
 	}
 	rec(0, k)
-	return g, nil
 }
 
 func (g *Grid) add(comp []int) {

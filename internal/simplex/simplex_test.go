@@ -100,3 +100,54 @@ func TestRoundAndSquares(t *testing.T) {
 		t.Errorf("zero maps to %v, want the centre", p)
 	}
 }
+
+// Vectors lists the lattice ascending (the menu order), Full descending;
+// both hold the same C(K+n-1, n-1) points, entries i/K exactly.
+func TestVectorsOrder(t *testing.T) {
+	v := Vectors(2, 4)
+	want := [][]float64{{0, 1}, {0.25, 0.75}, {0.5, 0.5}, {0.75, 0.25}, {1, 0}}
+	if len(v) != len(want) {
+		t.Fatalf("got %v", v)
+	}
+	for i := range want {
+		if v[i][0] != want[i][0] || v[i][1] != want[i][1] {
+			t.Fatalf("point %d: %v, want %v", i, v[i], want[i])
+		}
+	}
+	for _, c := range []struct{ n, k int }{{3, 5}, {4, 3}, {5, 2}} {
+		vs := Vectors(c.n, c.k)
+		g, err := Full(c.n, c.k)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if int64(len(vs)) != Count(c.n, c.k) || g.Len() != len(vs) {
+			t.Fatalf("n %d k %d: %d vectors, %d grid points, count %d", c.n, c.k, len(vs), g.Len(), Count(c.n, c.k))
+		}
+		// Full is Vectors read backwards.
+		for i, p := range vs {
+			q := g.Point(len(vs) - 1 - i)
+			for j := range p {
+				if p[j] != q[j] {
+					t.Fatalf("n %d k %d: vector %d is %v, grid point from the end %v", c.n, c.k, i, p, q)
+				}
+			}
+		}
+	}
+}
+
+// Resolution is the largest k whose lattice fits the limit: C(k+2, 2)
+// points for 3 outcomes, 21 at k = 5 and 28 at k = 6 (derived by hand).
+func TestResolution(t *testing.T) {
+	if k := Resolution(3, 100, 27); k != 5 {
+		t.Fatalf("Resolution(3, 100, 27) = %d, want 5", k)
+	}
+	if k := Resolution(3, 100, 28); k != 6 {
+		t.Fatalf("Resolution(3, 100, 28) = %d, want 6", k)
+	}
+	if k := Resolution(2, 10, 1e9); k != 10 {
+		t.Fatalf("kmax not kept: %d", k)
+	}
+	if k := Resolution(12, 1000, 1); k != 1 {
+		t.Fatalf("at least 1: %d", k)
+	}
+}

@@ -52,6 +52,15 @@ type Store struct {
 	mu     sync.Mutex
 	issued uint64
 	done   map[string]uint64 // per file, the newest ticket carried out
+	closed bool
+}
+
+// Close waits for an operation in progress and makes every later one do
+// nothing, so that nothing is written once the workbench has ended.
+func (s *Store) Close() {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	s.closed = true
 }
 
 // New returns the store in dir, which is created when first written to.
@@ -154,10 +163,10 @@ func (s *Store) Remove(ticket uint64, path string) error {
 	return nil
 }
 
-// current reports whether ticket is not older than the last one carried
-// out for file, and makes it the last; s.mu is held.
+// current reports whether the store is open and ticket is not older than
+// the last one carried out for file, and makes it the last; s.mu is held.
 func (s *Store) current(file string, ticket uint64) bool {
-	if ticket < s.done[file] {
+	if s.closed || ticket < s.done[file] {
 		return false
 	}
 	s.done[file] = ticket

@@ -13,6 +13,17 @@
 //     there, and a direction of strictly positive curvature over a box
 //     proves it improper, with a belief and report whose gain is checked
 //     by interval evaluation;
+//   - where a min, max or abs is undecided on a box, H is there the min
+//     or max of smooth branches (formula.Enclosure.Pieces): a min of
+//     concave branches is concave, of strictly concave ones strictly,
+//     while a max, or a jump of an if, is tested for a chord H falls
+//     below. Branches are taken only where they are apart on the closed
+//     box, so a kink never hides on the edge between two boxes, and boxes
+//     are cut a little off their middle (splitAt) so that a kink at a
+//     round number falls inside a box, where a chord can cross it;
+//   - a generator that is a sum of one-variable terms is proved strictly
+//     concave term by term (separable.go), which decides the vertices
+//     where the power rule's curvature vanishes and no box can;
 //   - a payout is proved honest to within Epsilon when, over pairs of a
 //     belief box and a report box, an upper bound of E_q[pay(r)] -
 //     E_q[pay(q)] is at most Epsilon, and proved dishonest by a pair whose
@@ -121,6 +132,9 @@ type Result struct {
 	Elapsed time.Duration
 	// Outcomes is n.
 	Outcomes int
+	// Method, when set, names the argument that proved the verdict where
+	// it is not the box-by-box one.
+	Method string
 }
 
 // Statement is the one-paragraph account of what was proved. A finished
@@ -131,6 +145,8 @@ func (r *Result) Statement() string {
 	switch {
 	case r.Witness != nil:
 		return fmt.Sprintf("certified improper: %s", r.Witness.Reason)
+	case r.Verdict == verify.StrictlyProper && r.Method != "":
+		return "certified strictly proper over the whole simplex: " + r.Method
 	case r.Verdict == verify.StrictlyProper:
 		return fmt.Sprintf("certified strictly proper over the whole simplex (%d boxes)", r.Boxes)
 	case r.Verdict == verify.Proper && r.Epsilon > 0:
@@ -160,10 +176,16 @@ func (b box) width() (float64, int) {
 	return w, at
 }
 
-// split halves b across its widest side.
+// splitAt is where a box is cut across its widest side, as a fraction of
+// the side: not a half, so that a kink or jump at a round number (p1 =
+// 0.5, 0.25) falls inside a box, where a chord can cross it, rather than
+// on the edge between two boxes for ever.
+const splitAt = 0.4951
+
+// split cuts b across its widest side.
 func (b box) split() (box, box) {
 	_, i := b.width()
-	m := b.lo[i] + (b.hi[i]-b.lo[i])/2
+	m := b.lo[i] + (b.hi[i]-b.lo[i])*splitAt
 	l := box{append([]float64(nil), b.lo...), append([]float64(nil), b.hi...)}
 	r := box{append([]float64(nil), b.lo...), append([]float64(nil), b.hi...)}
 	l.hi[i], r.lo[i] = m, m

@@ -24,16 +24,18 @@ func Rule(ctx context.Context, r *bregman.Rule, s Settings) (*Result, error) {
 
 // genRun is the state of one generator certificate.
 type genRun struct {
-	n       int
-	enc     *formula.Encloser
-	senc    *formula.Encloser
-	en      formula.Enclosure
-	full    formula.Enclosure
-	pt      formula.Enclosure
-	pbox    []iv.Interval
-	res     *Result
-	minW    float64
-	witness *Witness
+	n    int
+	enc  *formula.Encloser
+	senc *formula.Encloser
+	en   formula.Enclosure
+	full formula.Enclosure
+	pt   formula.Enclosure
+	pbox []iv.Interval
+	// fullDone: g.full holds the full Hessian on the current box.
+	fullDone bool
+	res      *Result
+	minW     float64
+	witness  *Witness
 }
 
 // Generator proves concavity of the program prog, a generator over n
@@ -49,6 +51,13 @@ func Generator(ctx context.Context, prog *formula.Program, n int, s Settings) (*
 	ctx, cancel := s.deadline(ctx)
 	defer cancel()
 	start := time.Now()
+	if separableStrict(prog, n) {
+		res := &Result{Kind: Certified, Outcomes: n, Verdict: verify.StrictlyProper, Share: 1, StrictShare: 1,
+			Method: "H is a sum of one-variable terms, each proved strictly concave on [0, 1] (curvature at most 0 there, below 0 on an interval, analytic in between)"}
+		res.Elapsed = time.Since(start)
+		(&ticker{fn: s.Progress, start: start}).tick(1, 0, true)
+		return res, nil
+	}
 	g := &genRun{n: n, enc: prog.NewEncloser(), senc: prog.NewSimplexEncloser(), pbox: make([]iv.Interval, n), minW: s.minWidth(),
 		res: &Result{Kind: Certified, Outcomes: n}}
 	tk := &ticker{fn: s.Progress, start: start}
@@ -168,11 +177,13 @@ func (g *genRun) pBox(b box) []iv.Interval {
 // the simplex by the chain rule (basis e_a - e_n, narrow enclosures);
 // where that does not decide — next to a face where H's curvature is
 // infinite, as the entropy's is, or tends to 0 — it falls back on the
-// full Hessian,
-// bounded by Gershgorin directly (negative definite on all directions is
-// more than enough) and projected on the basis e_a - e_j that eliminates
-// the coordinate farthest from 0.
+// full Hessian (curvature). Where a min, max or abs is undecided, H is
+// the min or max of smooth branches on the box: a min of concave
+// branches is concave (strictly, when every branch is), which is what
+// decides a min of strictly concave generators; a max, or any other
+// kink, is tested for a chord H falls below.
 func (g *genRun) decide(b box) decision {
+	g.fullDone = false
 	pb := g.pBox(b)
 	g.senc.Enclose(&g.en, pb, 2)
 	en := &g.en
@@ -180,27 +191,17 @@ func (g *genRun) decide(b box) decision {
 		return unknown
 	}
 	if en.Kinked {
+		if en.Piecewise && !en.Max {
+			if d := g.decidePieces(b, pb); d != unknown {
+				return d
+			}
+		}
 		if g.chordWitness(b) {
 			return improper
 		}
 		return unknown
 	}
-	d := g.n - 1
-	m, j := en.Hess, d
-	hi, v := curvatureSign(m, d)
-	if hi > 0 && touchesFace(pb) {
-		g.enc.Enclose(&g.full, pb, 2)
-		full := gershgorin(g.full.Hess, g.n)
-		j = 0
-		for k := range pb {
-			if pb[k].Lo > pb[j].Lo {
-				j = k
-			}
-		}
-		m = project(g.full.Hess, g.n, j)
-		hi, v = curvatureSign(m, d)
-		hi = math.Min(hi, full)
-	}
+	hi, m, j, v := g.curvature(en.Hess, pb, func() []iv.Interval { return g.full.Hess })
 	switch {
 	case hi < 0:
 		return strictlyConcave
@@ -212,6 +213,66 @@ func (g *genRun) decide(b box) decision {
 		return improper
 	}
 	return unknown
+}
+
+// curvature bounds the largest eigenvalue of the Hessian along the
+// simplex: from the chain-rule Hessian hess (basis e_a - e_n) and, where
+// that does not decide next to a face, from the full Hessian (which
+// full returns after g.full has been enclosed), bounded by Gershgorin
+// directly (negative definite on all directions is more than enough), as
+// a diagonal (every tangent direction moves two coordinates, so one
+// vanishing entry cannot make it flat) and projected on the basis e_a -
+// e_j that eliminates the coordinate farthest from 0. It returns the
+// bound, the matrix and elimination j it came from, and a direction of
+// positive curvature at the centre, if any.
+func (g *genRun) curvature(hess []iv.Interval, pb []iv.Interval, full func() []iv.Interval) (hi float64, m []iv.Interval, j int, v []float64) {
+	d := g.n - 1
+	m, j = hess, d
+	hi, v = curvatureSign(m, d)
+	if !(hi > 0) || !touchesFace(pb) {
+		return hi, m, j, v
+	}
+	if !g.fullDone {
+		g.enc.Enclose(&g.full, pb, 2)
+		g.fullDone = true
+	}
+	fh := full()
+	if fh == nil {
+		return hi, m, j, v
+	}
+	bound := math.Min(gershgorin(fh, g.n), diagonalTangent(fh, g.n))
+	j = 0
+	for k := range pb {
+		if pb[k].Lo > pb[j].Lo {
+			j = k
+		}
+	}
+	m = project(fh, g.n, j)
+	hi, v = curvatureSign(m, d)
+	return math.Min(hi, bound), m, j, v
+}
+
+// decidePieces decides a box where H is the min of smooth branches: all
+// concave proves concave, all strictly concave strictly.
+func (g *genRun) decidePieces(b box, pb []iv.Interval) decision {
+	pieces := g.en.Pieces
+	worst := math.Inf(-1)
+	for k, pc := range pieces {
+		hi, _, _, _ := g.curvature(pc.Hess, pb, func() []iv.Interval {
+			if !g.full.Piecewise || len(g.full.Pieces) != len(pieces) {
+				return nil
+			}
+			return g.full.Pieces[k].Hess
+		})
+		if !(hi <= 0) {
+			return unknown
+		}
+		worst = math.Max(worst, hi)
+	}
+	if worst < 0 {
+		return strictlyConcave
+	}
+	return concave
 }
 
 // touchesFace reports whether some probability reaches 0 on the box.

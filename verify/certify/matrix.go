@@ -53,6 +53,37 @@ func gershgorin(m []iv.Interval, d int) float64 {
 	return worst
 }
 
+// diagonalTangent bounds the curvature along the simplex of a full
+// Hessian h (n×n) that is diagonal on the box (every off-diagonal entry
+// exactly 0, as for a sum of one-variable terms): vᵀhv = sum h_ii v_i²,
+// and a direction along the simplex (sum v = 0) moves at least two
+// coordinates, so the curvature is strictly negative when every diagonal
+// entry is at most 0 and all but one are strictly negative — even where
+// that one vanishes, on a face. It returns -1 then (a strictly negative
+// stand-in: the sign is what decides), 0 when every entry is at most 0,
+// else +Inf.
+func diagonalTangent(h []iv.Interval, n int) float64 {
+	flat := 0
+	for r := 0; r < n; r++ {
+		for c := 0; c < n; c++ {
+			if r != c && !h[r*n+c].IsZero() {
+				return math.Inf(1)
+			}
+		}
+		switch d := h[r*n+r].Hi; {
+		case d < 0:
+		case d <= 0:
+			flat++
+		default:
+			return math.Inf(1)
+		}
+	}
+	if flat <= 1 {
+		return -1
+	}
+	return 0
+}
+
 // bounded reports whether every entry of m is finite.
 func bounded(m []iv.Interval) bool {
 	for _, v := range m {

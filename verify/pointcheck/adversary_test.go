@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"scorewright/generator/point"
+	"scorewright/verify"
 )
 
 // TestUndefinedIsNotProper: the checks skip grid values that are NaN and
@@ -19,11 +20,11 @@ func TestUndefinedIsNotProper(t *testing.T) {
 	for _, c := range []struct {
 		src     string
 		lo, hi  float64
-		verdict string
+		verdict verify.Verdict
 	}{
-		{"-x*ln(x)", 0, 10, StrictlyProper},
+		{"-x*ln(x)", 0, 10, verify.StrictlyProper},
 	} {
-		r, err := CheckGenerator(ctx, gen(t, c.src, c.lo, c.hi), Settings{Resolution: 20})
+		r, err := CheckGenerator(ctx, gen(t, c.src, c.lo, c.hi), verify.Settings{Resolution: 20})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -35,11 +36,11 @@ func TestUndefinedIsNotProper(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	r, err := AuditPayout(ctx, p, 0, 1, Settings{Resolution: 20}, nil)
+	r, err := AuditPayout(ctx, p, 0, 1, verify.Settings{Resolution: 20}, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
-	if r.Verdict != Improper {
+	if r.Verdict != verify.Improper {
 		t.Errorf("audit 0/0: verdict %s, want improper", r.Verdict)
 	}
 }
@@ -55,7 +56,7 @@ func TestDomainRefused(t *testing.T) {
 		src    string
 		lo, hi float64
 	}{{"ln(x)", 0, 10}, {"sqrt(x - 0.5)", 0, 1}, {"b = -3\n-x^(b+2)/((b+1)*(b+2))", 0, 1}} {
-		_, err := CheckGenerator(context.Background(), gen(t, c.src, c.lo, c.hi), Settings{Resolution: 20})
+		_, err := CheckGenerator(context.Background(), gen(t, c.src, c.lo, c.hi), verify.Settings{Resolution: 20})
 		var de *point.DomainError
 		if !errors.As(err, &de) || de.Y != 0 {
 			t.Errorf("%q on [%g, %g]: error %v, want a domain error at y = 0", c.src, c.lo, c.hi, err)

@@ -9,6 +9,7 @@ import (
 	"scorewright/generator/formula"
 	"scorewright/generator/point"
 	"scorewright/internal/num"
+	"scorewright/verify"
 )
 
 // Candidate is a known generator an audited payout may turn out to be a
@@ -73,18 +74,54 @@ func (p *payer) expected(x float64, ys, ws []float64) float64 {
 // on [lo, hi], and measures the honesty gap
 // max_x E pay(x, Y) - E pay(mean, Y) over the grid's distributions.
 // Candidates, when given, are tried for an exact identification.
-func AuditPayout(ctx context.Context, p *Payout, lo, hi float64, s Settings, candidates []Candidate) (*Report, error) {
+func AuditPayout(ctx context.Context, p *Payout, lo, hi float64, s verify.Settings, candidates []Candidate) (*Report, error) {
 	if !(lo < hi) || math.IsInf(lo, 0) || math.IsInf(hi, 0) {
 		return nil, fmt.Errorf("point: interval [%g, %g] must be finite with lo < hi", lo, hi)
 	}
-	k, tol := s.resolution(), s.tolerance()
-	ys, xs := grids(lo, hi, k)
-	pr := p.newPayer()
-	rep := &Report{Grid: Grid{Resolution: k, Points: len(xs), Tolerance: tol, Lo: lo, Hi: hi}}
-	pm, nonFinite, err := fill(ctx, xs, ys, "pay", func(y, x float64) float64 { return pr.pay(x, y) })
+	k, tol := resolution(s), tolerance(s)
+	a := &payAudit{pr: p.newPayer(), lo: lo, hi: hi, tol: tol}
+	a.ys, a.xs = grids(lo, hi, k)
+	rep := &Report{Grid: Grid{Resolution: k, Points: len(a.xs), Tolerance: tol, Lo: lo, Hi: hi}}
+	pm, nonFinite, err := fill(ctx, a.xs, a.ys, "pay", func(y, x float64) float64 { return a.pr.pay(x, y) })
 	if err != nil {
 		return nil, err
 	}
+	a.pm, a.scale = pm, paySpread(pm)
+	nonneg, affine := a.nonnegativity(), a.affinity()
+	ds := distributions(k)
+	gap, strictMargin, err := a.gap(ctx, s, ds)
+	if err != nil {
+		return nil, err
+	}
+	proper := Check{Name: "properness", What: fmt.Sprintf("largest honesty gap max_x E pay(x, Y) - E pay(mean, Y) over %d two- and three-point distributions and a search over every two-point distribution (support and weight), where the gap of a point report is largest", len(ds)), Worst: gap.Max, At: &At{Outcomes: gap.Outcomes, Weights: gap.Weights, Report: []float64{gap.BestReport}}, Passed: gap.Max <= tol*a.scale}
+	rep.Gap = &gap
+	bounded := Check{Name: "boundedness", What: "number of grid cells where the pay is not finite", Worst: float64(len(nonFinite)), Passed: len(nonFinite) == 0}
+	if len(nonFinite) > 0 {
+		rep.Notes = append(rep.Notes, "not finite at "+joinFirst(nonFinite, 5))
+	}
+	rep.Checks = []Check{nonneg, affine, proper, bounded}
+	a.verdict(rep, strictMargin)
+	if id := identify(pm, a.xs, a.ys, a.scale, tol, candidates); id != nil {
+		rep.Identified = id
+	}
+	rep.Notes = append(rep.Notes, fmt.Sprintf("grid check on %d outcomes and %d reports in [%g, %g], tolerance %g relative to the pay spread %.4g: evidence, not proof", len(a.ys), len(a.xs), lo, hi, tol, a.scale))
+	return rep, nil
+}
+
+// payAudit is a payout evaluated on the grid: pm[i][j] is the pay of
+// report xs[i] when the outcome is ys[j]; scale is the spread of the
+// finite payments, which the tolerance is relative to.
+type payAudit struct {
+	pr         *payer
+	pm         [][]float64
+	xs, ys     []float64
+	lo, hi     float64
+	tol, scale float64
+}
+
+// paySpread is the spread of the finite payments of pm, or, when they
+// are all equal, their size (at least 1).
+func paySpread(pm [][]float64) float64 {
 	minP, maxP := math.Inf(1), math.Inf(-1)
 	for _, row := range pm {
 		for _, v := range row {
@@ -93,71 +130,66 @@ func AuditPayout(ctx context.Context, p *Payout, lo, hi float64, s Settings, can
 			}
 		}
 	}
-	scale := maxP - minP
-	if !(scale > 0) {
-		scale = math.Max(math.Abs(maxP), 1)
+	if scale := maxP - minP; scale > 0 {
+		return scale
 	}
+	return math.Max(math.Abs(maxP), 1)
+}
 
-	// Knowing the outcome for certain, the exact report pays at least as
-	// much as any other: pay(y, y) - pay(x, y) >= 0. Outcome j sits at
-	// report index 4j.
-	worstNN, nnAt := math.Inf(1), At{}
-	for j := range ys {
-		for i := range xs {
-			if d := pm[4*j][j] - pm[i][j]; d < worstNN {
-				worstNN, nnAt = d, At{Outcomes: []float64{ys[j]}, Report: []float64{xs[i]}}
+// nonnegativity: knowing the outcome for certain, the exact report pays
+// at least as much as any other, pay(y, y) - pay(x, y) >= 0. Outcome j
+// sits at report index 4j.
+func (a *payAudit) nonnegativity() Check {
+	worst, at := math.Inf(1), At{}
+	for j := range a.ys {
+		for i := range a.xs {
+			if d := a.pm[4*j][j] - a.pm[i][j]; d < worst {
+				worst, at = d, At{Outcomes: []float64{a.ys[j]}, Report: []float64{a.xs[i]}}
 			}
 		}
 	}
-	nonneg := Check{Name: "nonnegativity", What: "smallest pay(y, y) - pay(x, y): what the exact report gains over report x when the outcome y is certain", Worst: worstNN, At: &nnAt, Passed: worstNN >= -tol*scale}
+	return Check{Name: "nonnegativity", What: "smallest pay(y, y) - pay(x, y): what the exact report gains over report x when the outcome y is certain", Worst: worst, At: &at, Passed: worst >= -a.tol*a.scale}
+}
 
-	// The report-dependent part pay(x, y) - pay(x0, y) must be affine in y.
-	i0 := len(xs) / 2
-	worstAff, affAt := 0.0, At{}
-	for i := range xs {
-		for j := 0; j+2 < len(ys); j++ {
-			f := func(j int) float64 { return pm[i][j] - pm[i0][j] }
+// affinity: the report-dependent part pay(x, y) - pay(x0, y) must be
+// affine in y.
+func (a *payAudit) affinity() Check {
+	i0 := len(a.xs) / 2
+	worst, at := 0.0, At{}
+	for i := range a.xs {
+		f := func(j int) float64 { return a.pm[i][j] - a.pm[i0][j] }
+		for j := 0; j+2 < len(a.ys); j++ {
 			dev := math.Abs(f(j) - 2*f(j+1) + f(j+2))
 			if !finite(dev) {
 				continue // counted under boundedness
 			}
-			if dev > worstAff {
-				worstAff, affAt = dev, At{Outcomes: []float64{ys[j], ys[j+2]}, Report: []float64{xs[i]}}
+			if dev > worst {
+				worst, at = dev, At{Outcomes: []float64{a.ys[j], a.ys[j+2]}, Report: []float64{a.xs[i]}}
 			}
 		}
 	}
-	affine := Check{Name: "affinity", What: fmt.Sprintf("largest second difference in y of pay(x, y) - pay(%g, y); zero when the report-dependent part is affine in the outcome, which eliciting the mean needs", xs[i0]), Worst: worstAff, At: &affAt, Passed: worstAff <= tol*scale}
+	return Check{Name: "affinity", What: fmt.Sprintf("largest second difference in y of pay(x, y) - pay(%g, y); zero when the report-dependent part is affine in the outcome, which eliciting the mean needs", a.xs[i0]), Worst: worst, At: &at, Passed: worst <= a.tol*a.scale}
+}
 
-	ds := distributions(k)
-	step := xs[1] - xs[0]
+// gap is the largest honesty gap over the distributions ds, refined
+// between grid reports and by the search over two-point distributions,
+// and the smallest margin by which the mean beats every report at least
+// two grid steps away (positive when the payout is strictly proper).
+func (a *payAudit) gap(ctx context.Context, s verify.Settings, ds []dist) (Gap, float64, error) {
+	step := a.xs[1] - a.xs[0]
 	gap := Gap{Max: math.Inf(-1)}
 	worstD := -1
 	strictMargin := math.Inf(1)
 	for n, d := range ds {
-		if err := s.tick(ctx, n, len(ds)); err != nil {
-			return nil, err
+		if err := tick(ctx, s, n, len(ds)); err != nil {
+			return Gap{}, 0, err
 		}
-		vals, mean := d.values(ys)
-		atMean := pr.expected(mean, vals, d.w)
+		vals, mean := d.values(a.ys)
+		atMean := a.pr.expected(mean, vals, d.w)
 		if math.IsNaN(atMean) {
 			continue // counted under boundedness
 		}
-		best, bestX, away := math.Inf(-1), 0.0, math.Inf(-1)
-		for i, x := range xs {
-			var e float64
-			for j, yi := range d.idx {
-				e += d.w[j] * pm[i][yi]
-			}
-			if math.IsNaN(e) {
-				continue // a report the payout does not define; counted under boundedness
-			}
-			if e > best {
-				best, bestX = e, x
-			}
-			if math.Abs(x-mean) >= 2*step {
-				away = math.Max(away, e)
-			}
-		}
+		best, bestX, away := a.bestReport(d, mean, step)
 		g := best - atMean
 		if g > gap.Max || math.IsNaN(g) {
 			gap = Gap{Max: g, Outcomes: vals, Weights: d.w, Mean: mean, BestReport: bestX}
@@ -165,38 +197,60 @@ func AuditPayout(ctx context.Context, p *Payout, lo, hi float64, s Settings, can
 		}
 		strictMargin = math.Min(strictMargin, atMean-away)
 	}
-	if s.Progress != nil {
-		s.Progress(len(ds), len(ds))
-	}
+	done(s, len(ds))
 	if worstD >= 0 && gap.Max > 0 {
 		// Refine the best report between its grid neighbours.
 		d := ds[worstD]
-		vals, _ := d.values(ys)
-		x, v := goldenMax(func(x float64) float64 { return pr.expected(x, vals, d.w) }, math.Max(lo, gap.BestReport-step), math.Min(hi, gap.BestReport+step))
-		if v > gap.Max+pr.expected(gap.Mean, vals, d.w) {
-			gap.BestReport, gap.Max = x, v-pr.expected(gap.Mean, vals, d.w)
+		vals, _ := d.values(a.ys)
+		x, v := goldenMax(func(x float64) float64 { return a.pr.expected(x, vals, d.w) }, math.Max(a.lo, gap.BestReport-step), math.Min(a.hi, gap.BestReport+step))
+		if v > gap.Max+a.pr.expected(gap.Mean, vals, d.w) {
+			gap.BestReport, gap.Max = x, v-a.pr.expected(gap.Mean, vals, d.w)
 		}
 	}
-	two, precision, err := worstTwoPoint(ctx, pr, pm, xs, ys)
+	two, precision, err := worstTwoPoint(ctx, a.pr, a.pm, a.xs, a.ys)
 	if err != nil {
-		return nil, err
+		return Gap{}, 0, err
 	}
 	if two.Max > gap.Max {
 		gap = two
 	}
-	if gap.Max > tol*scale && precision != "" {
+	if gap.Max > a.tol*a.scale && precision != "" {
 		gap.Precision = precision
 	}
-	proper := Check{Name: "properness", What: fmt.Sprintf("largest honesty gap max_x E pay(x, Y) - E pay(mean, Y) over %d two- and three-point distributions and a search over every two-point distribution (support and weight), where the gap of a point report is largest", len(ds)), Worst: gap.Max, At: &At{Outcomes: gap.Outcomes, Weights: gap.Weights, Report: []float64{gap.BestReport}}, Passed: gap.Max <= tol*scale}
-	rep.Gap = &gap
-	bounded := Check{Name: "boundedness", What: "number of grid cells where the pay is not finite", Worst: float64(len(nonFinite)), Passed: len(nonFinite) == 0}
-	if len(nonFinite) > 0 {
-		rep.Notes = append(rep.Notes, "not finite at "+joinFirst(nonFinite, 5))
+	return gap, strictMargin, nil
+}
+
+// bestReport is the grid report with the largest expected pay under d,
+// that pay, and the largest expected pay of a report at least two grid
+// steps from the mean.
+func (a *payAudit) bestReport(d dist, mean, step float64) (best, bestX, away float64) {
+	best, away = math.Inf(-1), math.Inf(-1)
+	for i, x := range a.xs {
+		var e float64
+		for j, yi := range d.idx {
+			e += d.w[j] * a.pm[i][yi]
+		}
+		if math.IsNaN(e) {
+			continue // a report the payout does not define; counted under boundedness
+		}
+		if e > best {
+			best, bestX = e, x
+		}
+		if math.Abs(x-mean) >= 2*step {
+			away = math.Max(away, e)
+		}
 	}
-	rep.Checks = []Check{nonneg, affine, proper, bounded}
+	return best, bestX, away
+}
+
+// verdict sets the report's verdict from its checks, with the notes that
+// explain it.
+func (a *payAudit) verdict(rep *Report, strictMargin float64) {
+	nonneg, proper, gap := rep.Checks[0], rep.Checks[2], rep.Gap
+	undefined := countNaN(a.pm[1 : len(a.pm)-1])
 	switch {
 	case !proper.Passed || !nonneg.Passed:
-		rep.Verdict = Improper
+		rep.Verdict = verify.Improper
 		if m, x, ok := num.FormatApart([]float64{gap.Mean}, []float64{gap.BestReport}); ok {
 			rep.Notes = append(rep.Notes, fmt.Sprintf("the mean is not the best report: with outcomes %s weighted %s (mean %s) the report %s earns %.9g more in expectation", num.Format(gap.Outcomes), num.Format(gap.Weights), strings.Trim(m, "()"), strings.Trim(x, "()"), gap.Max))
 		} else {
@@ -205,23 +259,18 @@ func AuditPayout(ctx context.Context, p *Payout, lo, hi float64, s Settings, can
 		if gap.Precision != "" {
 			rep.Notes = append(rep.Notes, gap.Precision)
 		}
-	case countNaN(pm[1:len(pm)-1]) > 0:
+	case undefined > 0:
 		// The other checks skip NaN; a payout undefined for a report
 		// inside the interval cannot be called proper (at the ends, ∞ - ∞
 		// is how an unbounded payout shows, reported under boundedness).
-		rep.Verdict = Improper
-		rep.Notes = append(rep.Notes, fmt.Sprintf("the payout is undefined (NaN) in %d grid cells with a report inside the interval (see boundedness), so it is not proper on [%g, %g]", countNaN(pm[1:len(pm)-1]), lo, hi))
-	case strictMargin > tol*scale:
-		rep.Verdict = StrictlyProper
+		rep.Verdict = verify.Improper
+		rep.Notes = append(rep.Notes, fmt.Sprintf("the payout is undefined (NaN) in %d grid cells with a report inside the interval (see boundedness), so it is not proper on [%g, %g]", undefined, a.lo, a.hi))
+	case strictMargin > a.tol*a.scale:
+		rep.Verdict = verify.StrictlyProper
 	default:
-		rep.Verdict = Proper
+		rep.Verdict = verify.Proper
 		rep.Notes = append(rep.Notes, "some report at least two grid steps from the mean earns as much as the mean: a best report, not always the only one")
 	}
-	if id := identify(pm, xs, ys, scale, tol, candidates); id != nil {
-		rep.Identified = id
-	}
-	rep.Notes = append(rep.Notes, fmt.Sprintf("grid check on %d outcomes and %d reports in [%g, %g], tolerance %g relative to the pay spread %.4g: evidence, not proof", len(ys), len(xs), lo, hi, tol, scale))
-	return rep, nil
 }
 
 // goldenMax maximises f on [a, b] by golden-section search (f unimodal

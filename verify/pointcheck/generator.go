@@ -6,6 +6,7 @@ import (
 	"math"
 
 	"scorewright/generator/point"
+	"scorewright/verify"
 )
 
 // roundoff is the rounding allowance for a result computed from terms
@@ -40,11 +41,11 @@ type genGrid struct {
 // affine between them (phi” = 0 along the whole segment, checked with the
 // exact second derivative, which no affine term disturbs). phi” = 0 at
 // isolated points (-x^4 at 0) leaves phi strictly concave.
-func CheckGenerator(ctx context.Context, g *point.Generator, s Settings) (*Report, error) {
+func CheckGenerator(ctx context.Context, g *point.Generator, s verify.Settings) (*Report, error) {
 	if err := g.Domain(); err != nil {
 		return nil, err
 	}
-	k, tol := s.resolution(), s.tolerance()
+	k, tol := resolution(s), tolerance(s)
 	ev := g.NewEvaluator()
 	gg, err := evaluateGenerator(ctx, ev, g, k, tol)
 	if err != nil {
@@ -68,16 +69,16 @@ func CheckGenerator(ctx context.Context, g *point.Generator, s Settings) (*Repor
 	rep.Checks = []Check{concave, nonneg, affine, best, bounded}
 	switch {
 	case !concave.Passed || !nonneg.Passed || !best.Passed || !affine.Passed:
-		rep.Verdict = Improper
+		rep.Verdict = verify.Improper
 	case gg.undef > 0:
 		// The other checks skip NaN; a rule undefined somewhere on the
 		// interval cannot be called proper there.
-		rep.Verdict = Improper
+		rep.Verdict = verify.Improper
 		rep.Notes = append(rep.Notes, fmt.Sprintf("the rule is undefined (NaN) at %d places with a report inside the interval (see boundedness), so it is not proper on [%g, %g]", gg.undef, g.Lo, g.Hi))
 	default:
-		rep.Verdict = StrictlyProper
+		rep.Verdict = verify.StrictlyProper
 		if a, b, ok := gg.tie(ev); ok {
-			rep.Verdict = Proper
+			rep.Verdict = verify.Proper
 			rep.Notes = append(rep.Notes, fmt.Sprintf("the mean is a best report but not always the only one: for a forecaster certain that y = %g, the reports %g and %g do equally well (phi is affine between them: phi'' = 0 along the segment)", a, a, b))
 		} else if zero := gg.flatAt(); zero == zero {
 			rep.Notes = append(rep.Notes, fmt.Sprintf("phi'' reaches 0 at x = %g, but at isolated points only (phi is strictly concave on the grid): no two reports tie", zero))
@@ -204,12 +205,12 @@ func (gg *genGrid) affinity(ev *point.Evaluator) Check {
 
 // properness: over the two- and three-point distributions, no grid report
 // beats the mean by more than the slack of the terms involved.
-func (gg *genGrid) properness(ctx context.Context, ev *point.Evaluator, s Settings) (Check, error) {
+func (gg *genGrid) properness(ctx context.Context, ev *point.Evaluator, s verify.Settings) (Check, error) {
 	ds := distributions(len(gg.ys) - 1)
 	worst, passed := math.Inf(-1), true
 	var at At
 	for n, d := range ds {
-		if err := s.tick(ctx, n, len(ds)); err != nil {
+		if err := tick(ctx, s, n, len(ds)); err != nil {
 			return Check{}, err
 		}
 		vals, mean := d.values(gg.ys)
@@ -241,9 +242,7 @@ func (gg *genGrid) properness(ctx context.Context, ev *point.Evaluator, s Settin
 			worst, at = gap, At{Outcomes: vals, Weights: d.w, Report: []float64{bestX}}
 		}
 	}
-	if s.Progress != nil {
-		s.Progress(len(ds), len(ds))
-	}
+	done(s, len(ds))
 	return Check{Name: "properness", What: fmt.Sprintf("largest amount by which a report on the grid beats the mean in expected effort, over %d two- and three-point distributions", len(ds)), Worst: worst, At: &at, Passed: passed}, nil
 }
 

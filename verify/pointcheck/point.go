@@ -4,30 +4,25 @@ import (
 	"context"
 	"fmt"
 	"math"
+
+	"scorewright/verify"
 )
 
-// Settings are the grid and tolerance of a check; the zero value means the
-// defaults.
-type Settings struct {
-	// Resolution K puts outcomes at lo + (hi-lo) i/K, i = 0..K, and reports
-	// on a grid four times finer; 0 means 40.
-	Resolution int
-	// Tolerance is relative to the scale of the rule (the largest effort
-	// or payment spread on the grid); 0 means 1e-9.
-	Tolerance float64
-	// Progress, when set, is called with the work done so far and the
-	// total, from the calling goroutine.
-	Progress func(done, total int)
-}
+// The checks take verify's Settings: Resolution K puts outcomes at
+// lo + (hi-lo) i/K, i = 0..K, and reports on a grid four times finer (0
+// means 40); Tolerance is relative to the scale of the rule (the largest
+// effort or payment spread on the grid; 0 means 1e-9); Progress, when set,
+// is told the work done so far and the total, from the calling goroutine.
+// The other fields are for checks over outcomes.
 
-func (s Settings) resolution() int {
+func resolution(s verify.Settings) int {
 	if s.Resolution <= 0 {
 		return 40
 	}
 	return s.Resolution
 }
 
-func (s Settings) tolerance() float64 {
+func tolerance(s verify.Settings) float64 {
 	if s.Tolerance <= 0 {
 		return 1e-9
 	}
@@ -35,22 +30,22 @@ func (s Settings) tolerance() float64 {
 }
 
 // tick reports progress and checks for cancellation every 256 steps.
-func (s Settings) tick(ctx context.Context, n, total int) error {
+func tick(ctx context.Context, s verify.Settings, n, total int) error {
 	if n%256 != 0 {
 		return nil
 	}
 	if s.Progress != nil {
-		s.Progress(n, total)
+		s.Progress(int64(n), int64(total))
 	}
 	return ctx.Err()
 }
 
-// Verdicts.
-const (
-	StrictlyProper = "strictly-proper"
-	Proper         = "proper"
-	Improper       = "improper"
-)
+// done reports the last step of total.
+func done(s verify.Settings, total int) {
+	if s.Progress != nil {
+		s.Progress(int64(total), int64(total))
+	}
+}
 
 // Grid is the grid a report was computed on.
 type Grid struct {
@@ -95,10 +90,10 @@ type Gap struct {
 
 // Report is the result of CheckGenerator or AuditPayout.
 type Report struct {
-	Verdict string  `json:"verdict"`
-	Grid    Grid    `json:"grid"`
-	Checks  []Check `json:"checks"`
-	Gap     *Gap    `json:"gap,omitempty"`
+	Verdict verify.Verdict `json:"verdict"`
+	Grid    Grid           `json:"grid"`
+	Checks  []Check        `json:"checks"`
+	Gap     *Gap           `json:"gap,omitempty"`
 	// Identified is set by an audit that recognised the payout.
 	Identified *Identified `json:"identified,omitempty"`
 	Notes      []string    `json:"notes,omitempty"`

@@ -7,6 +7,7 @@ import (
 
 	"scorewright/generator/point"
 	"scorewright/presets"
+	"scorewright/verify"
 )
 
 func gen(t *testing.T, src string, lo, hi float64) *point.Generator {
@@ -31,38 +32,38 @@ func TestCheckGenerator(t *testing.T) {
 	cases := []struct {
 		src     string
 		lo, hi  float64
-		verdict string
+		verdict verify.Verdict
 		failing []string
 	}{
-		{"-x^2", 0, 500, StrictlyProper, nil},
-		{"ln(x)", 0.5, 20, StrictlyProper, nil},
-		{"a = 1\n-2*exp(a*x) / a^2", -2, 2, StrictlyProper, nil},
+		{"-x^2", 0, 500, verify.StrictlyProper, nil},
+		{"ln(x)", 0.5, 20, verify.StrictlyProper, nil},
+		{"a = 1\n-2*exp(a*x) / a^2", -2, 2, verify.StrictlyProper, nil},
 		// phi'' = -12 x^2 vanishes at x = 0 only: phi is strictly concave,
 		// so the rule is strictly proper (Gneiting & Raftery 2007, Sec. 2).
-		{"-x^4", -1, 1, StrictlyProper, nil},
-		{"-x^4", 0, 1, StrictlyProper, nil},
+		{"-x^4", -1, 1, verify.StrictlyProper, nil},
+		{"-x^4", 0, 1, verify.StrictlyProper, nil},
 		// Patton's b = 1 member, -x^3/6: phi'' = -x, 0 at x = 0 only.
-		{"-x^3/6", 0, 10, StrictlyProper, nil},
+		{"-x^3/6", 0, 10, verify.StrictlyProper, nil},
 		// An affine term never changes a Bregman rule (D is unchanged),
 		// though it makes the cancelling terms 1e8 times larger.
-		{"-x^2 + 1e8*x", 0, 1, StrictlyProper, nil},
+		{"-x^2 + 1e8*x", 0, 1, verify.StrictlyProper, nil},
 		// Affine phi: D = 0 for every pair, every report ties: proper.
-		{"x", 0, 1, Proper, nil},
-		{"3*x+2", 0, 1, Proper, nil},
+		{"x", 0, 1, verify.Proper, nil},
+		{"3*x+2", 0, 1, verify.Proper, nil},
 		// Flat on [0, 1/2], strictly concave after: ties among reports
 		// below 1/2 (derived by hand).
-		{"if(x < 0.5, 0, -(x - 0.5)^2)", 0, 1, Proper, nil},
+		{"if(x < 0.5, 0, -(x - 0.5)^2)", 0, 1, verify.Proper, nil},
 		// Convex: every report but the mean does better.
-		{"x^2", 0, 10, Improper, []string{"concavity", "nonnegativity", "properness"}},
+		{"x^2", 0, 10, verify.Improper, []string{"concavity", "nonnegativity", "properness"}},
 		// Concave up to 5, convex after.
-		{"if(x < 5, -x^2, x^2 - 20*x + 50)", 0, 10, Improper, []string{"concavity", "nonnegativity", "properness"}},
+		{"if(x < 5, -x^2, x^2 - 20*x + 50)", 0, 10, verify.Improper, []string{"concavity", "nonnegativity", "properness"}},
 		// -x ln x (Patton's b = -1) has phi'(0) = +Inf: the report 0 has
 		// infinite effort (a note, not a failure, as for the log rule), every outcome is
 		// finite.
-		{"-x*ln(x)", 0, 10, StrictlyProper, nil},
+		{"-x*ln(x)", 0, 10, verify.StrictlyProper, nil},
 	}
 	for _, tc := range cases {
-		r, err := CheckGenerator(context.Background(), gen(t, tc.src, tc.lo, tc.hi), Settings{Resolution: 20})
+		r, err := CheckGenerator(context.Background(), gen(t, tc.src, tc.lo, tc.hi), verify.Settings{Resolution: 20})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -95,11 +96,11 @@ func TestAuditPayout(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	r, err := AuditPayout(context.Background(), p, 0, 10, Settings{Resolution: 20}, cands)
+	r, err := AuditPayout(context.Background(), p, 0, 10, verify.Settings{Resolution: 20}, cands)
 	if err != nil {
 		t.Fatal(err)
 	}
-	if r.Verdict != StrictlyProper || r.Failed() || r.Gap.Max > 1e-9 {
+	if r.Verdict != verify.StrictlyProper || r.Failed() || r.Gap.Max > 1e-9 {
 		t.Errorf("scaled squared error: %s gap %v %+v", r.Verdict, r.Gap.Max, r.Checks)
 	}
 	if r.Identified == nil || r.Identified.Preset != "squared-error" || math.Abs(r.Identified.Scale-0.5) > 1e-9 || math.Abs(r.Identified.Shift-10) > 1e-9 {
@@ -111,8 +112,8 @@ func TestAuditPayout(t *testing.T) {
 	// and the median 0 pays 10 - 2.5 (derived by hand): a gap of at least
 	// 1.25.
 	p, _ = NewPayout("10 - abs(x - y)", nil)
-	r, _ = AuditPayout(context.Background(), p, 0, 10, Settings{Resolution: 20}, cands)
-	if r.Verdict != Improper || r.Gap.Max < 1.25-1e-9 || r.Identified != nil {
+	r, _ = AuditPayout(context.Background(), p, 0, 10, verify.Settings{Resolution: 20}, cands)
+	if r.Verdict != verify.Improper || r.Gap.Max < 1.25-1e-9 || r.Identified != nil {
 		t.Errorf("absolute error: %s gap %+v identified %+v", r.Verdict, r.Gap, r.Identified)
 	}
 	if check(r, "affinity").Passed {
@@ -120,20 +121,20 @@ func TestAuditPayout(t *testing.T) {
 	}
 	// Reward for closeness that is constant: every report ties (proper, not strict).
 	p, _ = NewPayout("3 + 0*x + y", nil)
-	r, _ = AuditPayout(context.Background(), p, 0, 10, Settings{Resolution: 10}, nil)
-	if r.Verdict != Proper {
+	r, _ = AuditPayout(context.Background(), p, 0, 10, verify.Settings{Resolution: 10}, nil)
+	if r.Verdict != verify.Proper {
 		t.Errorf("constant payout: %s", r.Verdict)
 	}
 	// A QLIKE-type reward -(y/x) - ln x equals -(y/x - ln(y/x) - 1) - ln y - 1
 	// (derived by hand): the qlike effort plus a term in y alone.
 	ql, _ := point.New("ln(x)", 0.5, 10, point.Options{})
 	p, _ = NewPayout("-(y/x) - ln(x)", nil)
-	r, _ = AuditPayout(context.Background(), p, 0.5, 10, Settings{Resolution: 10}, []Candidate{{"squared-error", sq}, {"qlike", ql}})
-	if r.Verdict != StrictlyProper || r.Identified == nil || r.Identified.Preset != "qlike" || !r.Identified.OutcomeTerm || math.Abs(r.Identified.Scale-1) > 1e-9 {
+	r, _ = AuditPayout(context.Background(), p, 0.5, 10, verify.Settings{Resolution: 10}, []Candidate{{"squared-error", sq}, {"qlike", ql}})
+	if r.Verdict != verify.StrictlyProper || r.Identified == nil || r.Identified.Preset != "qlike" || !r.Identified.OutcomeTerm || math.Abs(r.Identified.Scale-1) > 1e-9 {
 		t.Errorf("qlike-type payout: %s %+v", r.Verdict, r.Identified)
 	}
 	// Undefined at x = 0: boundedness fails, the gap stays a number.
-	r, _ = AuditPayout(context.Background(), p, 0, 10, Settings{Resolution: 10}, nil)
+	r, _ = AuditPayout(context.Background(), p, 0, 10, verify.Settings{Resolution: 10}, nil)
 	if check(r, "boundedness").Passed || math.IsNaN(r.Gap.Max) {
 		t.Errorf("undefined at 0: %+v gap %v", check(r, "boundedness"), r.Gap.Max)
 	}
@@ -145,7 +146,7 @@ func TestAuditPayout(t *testing.T) {
 func TestCancel(t *testing.T) {
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()
-	if _, err := CheckGenerator(ctx, gen(t, "-x^2", 0, 1), Settings{}); err == nil {
+	if _, err := CheckGenerator(ctx, gen(t, "-x^2", 0, 1), verify.Settings{}); err == nil {
 		t.Error("cancelled check ran")
 	}
 }
@@ -155,7 +156,7 @@ func BenchmarkCheckGenerator(b *testing.B) {
 	for _, k := range []int{20, 40} {
 		b.Run("K="+itoa(k), func(b *testing.B) {
 			for i := 0; i < b.N; i++ {
-				if _, err := CheckGenerator(context.Background(), g, Settings{Resolution: k}); err != nil {
+				if _, err := CheckGenerator(context.Background(), g, verify.Settings{Resolution: k}); err != nil {
 					b.Fatal(err)
 				}
 			}
@@ -178,8 +179,8 @@ func TestPointPresets(t *testing.T) {
 		if err != nil {
 			t.Fatalf("%s: %v", p.Name, err)
 		}
-		r, err := CheckGenerator(context.Background(), g, Settings{Resolution: 10})
-		if err != nil || r.Verdict != StrictlyProper || r.Failed() {
+		r, err := CheckGenerator(context.Background(), g, verify.Settings{Resolution: 10})
+		if err != nil || r.Verdict != verify.StrictlyProper || r.Failed() {
 			t.Errorf("%s: %v %s %+v", p.Name, err, r.Verdict, r.Checks)
 		}
 	}

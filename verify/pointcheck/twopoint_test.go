@@ -6,6 +6,8 @@ import (
 	"math"
 	"strings"
 	"testing"
+
+	"scorewright/verify"
 )
 
 // The pinball payout of level tau, -(tau - 1{y < x})(y - x), rewards the
@@ -23,13 +25,13 @@ func TestPinballGap(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		r, err := AuditPayout(context.Background(), p, 0, 1, Settings{}, nil)
+		r, err := AuditPayout(context.Background(), p, 0, 1, verify.Settings{}, nil)
 		if err != nil {
 			t.Fatal(err)
 		}
 		want, w := tau*tau/4, 1-tau/2
 		g := r.Gap
-		if r.Verdict != Improper || math.Abs(g.Max-want) > 1e-9*want || math.Abs(g.BestReport-1) > 1e-9 ||
+		if r.Verdict != verify.Improper || math.Abs(g.Max-want) > 1e-9*want || math.Abs(g.BestReport-1) > 1e-9 ||
 			math.Abs(g.Weights[1]-w) > 1e-4 || g.Outcomes[0] != 0 || g.Outcomes[1] != 1 {
 			t.Errorf("tau %g: verdict %s, gap %+v; want %.9g at weight %g on 1, report 1", tau, r.Verdict, g, want, w)
 		}

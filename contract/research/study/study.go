@@ -298,10 +298,11 @@ func addOptimum(ctx context.Context, rep *Report, labels []string, b design.Budg
 		Desc: full.Desc + ", and a report inside each cell of the grid"}
 	mk := func(src, title string) (*design.Design, Row, error) {
 		d := &design.Design{Version: design.SchemaVersion, Title: title, Labels: labels, Mode: design.ModeGenerator, Formula: src, Budget: ob}
-		rule, err := d.Rule()
+		gen, err := bregman.NewFormula(src, bregman.Options{Outcomes: len(labels)})
 		if err != nil {
 			return nil, Row{}, fmt.Errorf("study: the optimum's formula does not compile: %v", err)
 		}
+		rule := &bregman.Rule{Gen: gen, Labels: labels}
 		fit, err := budget.FitRule(rule, omenu, ob)
 		if err != nil {
 			return nil, Row{}, err

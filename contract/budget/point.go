@@ -1,4 +1,4 @@
-package point
+package budget
 
 import (
 	"bytes"
@@ -7,16 +7,16 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"strconv"
 
-	"scorewright/contract/budget"
 	"scorewright/contract/table"
+	"scorewright/generator/point"
 	"scorewright/internal/num"
 )
 
-// TableSpec says how a point-forecast rule is turned into a payment table:
+// PointSpec says how a point-forecast rule (generator/point) is turned into
+// a payment table:
 // rows are the reports on the menu, columns the outcome values.
-type TableSpec struct {
+type PointSpec struct {
 	// Floor and Cap bound every payment in the table. A perfect forecast
 	// (D = 0) is paid Cap, the worst cell Floor.
 	Floor, Cap float64
@@ -26,16 +26,16 @@ type TableSpec struct {
 	Columns int
 	// Unit is the currency rounding unit; 0 means no rounding.
 	Unit float64
-	// Rounding is "nearest" (default), "down" or "up"; see budget.Rounder.
+	// Rounding is "nearest" (default), "down" or "up"; see Rounder.
 	Rounding string
 }
 
-// Table is a point-forecast rule fitted to a budget: Pay[i][j] is what
+// PointTable is a point-forecast rule fitted to a budget: Pay[i][j] is what
 // report Reports[i] earns when the outcome is Outcomes[j], the rule
 // pay = A - B·D(y, x) rounded as the budget says. Between two columns the
 // contract pays by linear interpolation. Recheck says what rounding did
 // to honesty and Export makes the table.Table every format writes.
-type Table struct {
+type PointTable struct {
 	Reports  []float64   `json:"reports"`
 	Outcomes []float64   `json:"outcomes"`
 	Pay      [][]float64 `json:"pay"`
@@ -49,21 +49,21 @@ type Table struct {
 	Step float64
 	// Notes explain how to read the table.
 	Notes []string
-	gen   *Generator
-	round budget.Rounder
+	gen   *point.Generator
+	round Rounder
 }
 
-// ErrUnbounded is returned when D is infinite or NaN somewhere on the
+// ErrPointUnbounded is returned when D is infinite or NaN somewhere on the
 // table, so no finite budget fits.
-var ErrUnbounded = errors.New("point: the effort is not finite on the table")
+var ErrPointUnbounded = errors.New("point: the effort is not finite on the table")
 
-// BuildTable fits the rule to the budget over the menu × outcome grid.
-// It honours ctx between rows.
-func (g *Generator) BuildTable(ctx context.Context, spec TableSpec) (*Table, error) {
+// FitPoint fits the point-forecast rule g to the budget over the menu ×
+// outcome grid. It honours ctx between rows.
+func FitPoint(ctx context.Context, g *point.Generator, spec PointSpec) (*PointTable, error) {
 	if !(spec.Cap > spec.Floor) {
 		return nil, fmt.Errorf("point: cap %g must exceed floor %g", spec.Cap, spec.Floor)
 	}
-	rd, err := budget.NewRounder(spec.Unit, spec.Rounding)
+	rd, err := NewRounder(spec.Unit, spec.Rounding)
 	if err != nil {
 		return nil, fmt.Errorf("point: %v", err)
 	}
@@ -85,7 +85,7 @@ func (g *Generator) BuildTable(ctx context.Context, spec TableSpec) (*Table, err
 	if cols < 2 || cols > 1000 {
 		return nil, fmt.Errorf("point: %d outcome columns; need 2..1000", cols)
 	}
-	f := &Table{Reports: make([]float64, rows), Outcomes: make([]float64, cols), Floor: spec.Floor, Cap: spec.Cap, Step: step, gen: g, round: rd}
+	f := &PointTable{Reports: make([]float64, rows), Outcomes: make([]float64, cols), Floor: spec.Floor, Cap: spec.Cap, Step: step, gen: g, round: rd}
 	for i := range f.Reports {
 		f.Reports[i] = math.Min(g.Lo+float64(i)*step, g.Hi)
 	}
@@ -103,7 +103,7 @@ func (g *Generator) BuildTable(ctx context.Context, spec TableSpec) (*Table, err
 		for j, y := range f.Outcomes {
 			v := ev.Divergence(y, x)
 			if math.IsNaN(v) || math.IsInf(v, 0) {
-				return nil, fmt.Errorf("%w: D(y = %g, x = %g) = %v", ErrUnbounded, y, x, v)
+				return nil, fmt.Errorf("%w: D(y = %g, x = %g) = %v", ErrPointUnbounded, y, x, v)
 			}
 			d[i][j] = v
 			worst = math.Max(worst, v)
@@ -131,7 +131,7 @@ func (g *Generator) BuildTable(ctx context.Context, spec TableSpec) (*Table, err
 	f.Notes = []string{
 		fmt.Sprintf("pay = %.6g - %.6g * D(y, x), D from phi = %s on [%g, %g]", f.A, f.B, g.Source, g.Lo, g.Hi),
 		"for an outcome between two columns, pay by linear interpolation between them: the part of the pay that depends on the report is affine in the outcome, so with interpolation the best menu report is still the one nearest the mean in the rule's divergence D(mean, x)",
-		binNote,
+		pointBinNote,
 	}
 	if spec.Unit > 0 {
 		f.Notes = append(f.Notes, fmt.Sprintf("payments rounded to %g (%s); rounding can make neighbouring reports tie", spec.Unit, rd.Mode()))
@@ -139,9 +139,9 @@ func (g *Generator) BuildTable(ctx context.Context, spec TableSpec) (*Table, err
 	return f, nil
 }
 
-const binNote = "paying each column's value for a whole bin instead makes the best report the mean of the binned outcome, which can differ from the mean by up to half a bin"
+const pointBinNote = "paying each column's value for a whole bin instead makes the best report the mean of the binned outcome, which can differ from the mean by up to half a bin"
 
-// Recheck is what the rounded table does to honesty. Between columns the
+// PointRecheck is what the rounded table does to honesty. Between columns the
 // table pays by linear interpolation, so a forecaster's expected pay for
 // report i is sum_j w_j Pay[i][j] for weights w on the columns whose
 // mean sum_j w_j y_j is the forecaster's mean; the weights that make a
@@ -149,7 +149,7 @@ const binNote = "paying each column's value for a whole bin instead makes the be
 // columns around the mean. The re-check therefore tries, for each item
 // x_i and each rival, every point mass and every two-column mixture with
 // mean x_i: exact, not a grid search.
-type Recheck struct {
+type PointRecheck struct {
 	// Passed is true when every menu item is the strict best report for
 	// every forecaster whose mean is that item.
 	Passed bool
@@ -170,17 +170,17 @@ type Recheck struct {
 	Beliefs int
 }
 
-// maxRecheckWork bounds items² × column pairs.
-const maxRecheckWork = 4e8
+// maxPointRecheckWork bounds items² × column pairs.
+const maxPointRecheckWork = 4e8
 
 // Recheck checks every menu item against every rival on the rounded
 // table; it honours ctx between items.
-func (f *Table) Recheck(ctx context.Context) (*Recheck, error) {
+func (f *PointTable) Recheck(ctx context.Context) (*PointRecheck, error) {
 	R, C := len(f.Reports), len(f.Outcomes)
-	if w := float64(R) * float64(R) * float64(C) * float64(C) / 4; w > maxRecheckWork {
-		return nil, fmt.Errorf("point: the re-check of %d reports × %d columns is too large (%.3g cell pairs; at most %.3g); take a coarser --step", R, C, w, maxRecheckWork)
+	if w := float64(R) * float64(R) * float64(C) * float64(C) / 4; w > maxPointRecheckWork {
+		return nil, fmt.Errorf("point: the re-check of %d reports × %d columns is too large (%.3g cell pairs; at most %.3g); take a coarser --step", R, C, w, maxPointRecheckWork)
 	}
-	rc := &Recheck{Margins: make([]float64, R), Rivals: make([]int, R), MinMargin: math.Inf(1), MinItem: -1, MinRival: -1,
+	rc := &PointRecheck{Margins: make([]float64, R), Rivals: make([]int, R), MinMargin: math.Inf(1), MinItem: -1, MinRival: -1,
 		Tolerance: 1e-9 * math.Max(1, math.Max(math.Abs(f.MaxPay), math.Abs(f.MinPay)))}
 	diff := make([]float64, C)
 	for i, m := range f.Reports {
@@ -242,7 +242,7 @@ func worstMixture(diff, ys []float64, m float64) (worst float64, tried int) {
 }
 
 // Verdict says in one sentence what the re-check found.
-func (rc *Recheck) Verdict(f *Table) string {
+func (rc *PointRecheck) Verdict(f *PointTable) string {
 	M := len(f.Reports)
 	where := ""
 	if rc.MinItem >= 0 && rc.MinRival >= 0 {
@@ -257,8 +257,8 @@ func (rc *Recheck) Verdict(f *Table) string {
 		len(rc.Ties)+len(rc.Beaten), M, scope, len(rc.Ties), len(rc.Beaten), where, rc.Tolerance)
 }
 
-// Info is what a table's record needs beyond the fit.
-type Info struct {
+// PointInfo is what a point table's record needs beyond the fit.
+type PointInfo struct {
 	Title   string
 	Preset  string
 	Params  map[string]float64
@@ -269,7 +269,7 @@ type Info struct {
 // Export builds the export of f with its record: the same metadata block,
 // warnings and cautions as a table over outcomes. A failed re-check (or
 // none, rc nil) puts a warning first.
-func (f *Table) Export(rc *Recheck, info Info) *table.Table {
+func (f *PointTable) Export(rc *PointRecheck, info PointInfo) *table.Table {
 	g := f.gen
 	ys, xs := distinct(f.Outcomes), distinct(f.Reports)
 	lo, hi := ys[0], ys[len(ys)-1]
@@ -297,7 +297,7 @@ func (f *Table) Export(rc *Recheck, info Info) *table.Table {
 		// own lines, so its notes are the ones that say something new.
 		Notes: []string{
 			"with interpolation, the part of the pay that depends on the report is affine in the outcome, so the best report is the mean of the forecaster's distribution (before rounding) and on the menu the one nearest it in D(mean, x)",
-			binNote,
+			pointBinNote,
 			fmt.Sprintf("buyer's worst case per forecast: %s (the largest payment in the table); the smallest is %s", table.FormatNumber(f.MaxPay), table.FormatNumber(f.MinPay)),
 		},
 		Version: info.Version, Date: info.Date,
@@ -322,29 +322,27 @@ func (f *Table) Export(rc *Recheck, info Info) *table.Table {
 	}
 }
 
-func short(v float64) string { return strconv.FormatFloat(v, 'g', 6, 64) }
-
 // write re-checks the table and writes its export in format, for callers
 // that hold no build version or date (the record then has none).
-func (f *Table) write(w io.Writer, format string) error {
+func (f *PointTable) write(w io.Writer, format string) error {
 	rc, err := f.Recheck(context.Background())
 	if err != nil {
 		return err
 	}
-	return f.Export(rc, Info{}).Write(w, format)
+	return f.Export(rc, PointInfo{}).Write(w, format)
 }
 
 // WriteCSV re-checks the table and writes it as CSV with its record.
 // Export(rc, info).Write is the way with a version and date.
-func (f *Table) WriteCSV(w io.Writer) error { return f.write(w, "csv") }
+func (f *PointTable) WriteCSV(w io.Writer) error { return f.write(w, "csv") }
 
 // WriteMarkdown re-checks the table and writes it as Markdown with its
 // record.
-func (f *Table) WriteMarkdown(w io.Writer) error { return f.write(w, "md") }
+func (f *PointTable) WriteMarkdown(w io.Writer) error { return f.write(w, "md") }
 
 // MarshalJSON writes the JSON export (rows and record) rather than the
 // bare numbers, so that encoding a Table carries the caution too.
-func (f *Table) MarshalJSON() ([]byte, error) {
+func (f *PointTable) MarshalJSON() ([]byte, error) {
 	var b bytes.Buffer
 	if err := f.write(&b, "json"); err != nil {
 		return nil, err

@@ -1,4 +1,4 @@
-package riskfit
+package risk
 
 import (
 	"errors"
@@ -7,36 +7,25 @@ import (
 	"testing"
 
 	"scorewright/contract/budget"
-	"scorewright/contract/risk"
-	"scorewright/generator/bregman"
 	"scorewright/generator/design"
 )
 
-func rule(t *testing.T, src string, n int) *bregman.Rule {
-	t.Helper()
-	f, err := bregman.NewFormula(src, bregman.Options{Outcomes: n})
-	if err != nil {
-		t.Fatal(err)
-	}
-	return &bregman.Rule{Gen: f}
-}
-
-func TestNew(t *testing.T) {
+func TestStepTerms(t *testing.T) {
 	// Quadratic rule 1 - sum p^2 on the menu 0, 0.05, ..., 1 paid in
 	// [0, 40]: L ranges over [0, 2] (the certain wrong report), so
 	// B = 40/2 = 20 and A = 40 (derived by hand).
-	f, err := New(rule(t, "1 - sum(p^2)", 2), design.Budget{Floor: 0, Cap: 40, Step: 0.05})
+	f, err := budget.StepTerms(rule(t, "1 - sum(p^2)", 2), design.Budget{Floor: 0, Cap: 40, Step: 0.05})
 	if err != nil {
 		t.Fatal(err)
 	}
-	if c := f.Contract; math.Abs(c.A-40) > 1e-12 || math.Abs(c.B-20) > 1e-12 || c.MinPay != 0 || c.ReportFloor != 0 {
+	if c := TermsContract(f); math.Abs(c.A-40) > 1e-12 || math.Abs(c.B-20) > 1e-12 || c.MinPay != 0 || c.ReportFloor != 0 {
 		t.Errorf("contract %+v, want A 40, B 20, MinPay 0", c)
 	}
-	if len(f.Menu.Reports) != 21 {
-		t.Errorf("menu has %d items, want 21", len(f.Menu.Reports))
+	if len(f.Menu().Reports) != 21 {
+		t.Errorf("menu has %d items, want 21", len(f.Menu().Reports))
 	}
 	// Risk-neutral: the truthful report is best (the rule is proper).
-	s, err := f.Solver(rule(t, "1 - sum(p^2)", 2), risk.Utility{Kind: risk.Linear}, 0)
+	s, err := NewSolver(rule(t, "1 - sum(p^2)", 2), TermsContract(f), Utility{Kind: Linear}, 0)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -46,9 +35,9 @@ func TestNew(t *testing.T) {
 	}
 }
 
-func TestNewErrors(t *testing.T) {
+func TestStepTermsErrors(t *testing.T) {
 	log := rule(t, "-sum(p*ln(p))", 2)
-	var me *MenuError
+	var me *budget.MenuError
 	var ue *budget.UnboundedError
 	for _, c := range []struct {
 		name string
@@ -58,7 +47,7 @@ func TestNewErrors(t *testing.T) {
 		{"step 0.3 is not 1/K", design.Budget{Cap: 10, Step: 0.3, ReportFloor: 0.01}, func(err error) bool { return errors.As(err, &me) }},
 		{"log without a report floor", design.Budget{Cap: 10, Step: 0.05}, func(err error) bool { return errors.As(err, &ue) && ue.AtZero }},
 	} {
-		if _, err := New(log, c.b); !c.is(err) {
+		if _, err := budget.StepTerms(log, c.b); !c.is(err) {
 			t.Errorf("%s: error %v", c.name, err)
 		}
 	}
@@ -81,7 +70,7 @@ func TestCurveBeliefs(t *testing.T) {
 	if b, _, _ := CurveBeliefs(3, 0.05); len(b) != 24 {
 		t.Errorf("n = 3, floor 0.05: %d beliefs, want 24", len(b))
 	}
-	if q := Belief(design.Budget{}, 4); q[3] != 0.25 {
+	if q := DefaultBelief(design.Budget{}, 4); q[3] != 0.25 {
 		t.Errorf("uniform belief %v", q)
 	}
 }
@@ -90,23 +79,23 @@ func TestCurveBeliefs(t *testing.T) {
 // to the exact range of its efforts, [0, 2] (reached at the vertices, which
 // the fitting grid holds), so B = 20 and A = 40 as on a menu, nothing is
 // rounded, and there is no menu pick.
-func TestNewWithoutStep(t *testing.T) {
+func TestStepTermsWithoutStep(t *testing.T) {
 	r := rule(t, "1 - sum(p^2)", 3)
-	f, err := New(r, design.Budget{Floor: 0, Cap: 40, Unit: 1})
+	f, err := budget.StepTerms(r, design.Budget{Floor: 0, Cap: 40, Unit: 1})
 	if err != nil {
 		t.Fatal(err)
 	}
-	if c := f.Contract; math.Abs(c.A-40) > 1e-12 || math.Abs(c.B-20) > 1e-12 || f.Menu != nil || f.Fit.Unit != 0 {
-		t.Errorf("contract %+v, menu %v, unit %v; want A 40, B 20, no menu, no rounding", c, f.Menu, f.Fit.Unit)
+	if c := TermsContract(f); math.Abs(c.A-40) > 1e-12 || math.Abs(c.B-20) > 1e-12 || f.Menu() != nil || f.Fit.Unit != 0 {
+		t.Errorf("contract %+v, menu %v, unit %v; want A 40, B 20, no menu, no rounding", c, f.Menu(), f.Fit.Unit)
 	}
-	s, err := f.Solver(r, risk.Utility{Kind: risk.CARA, Coef: 0.1}, 0)
+	s, err := NewSolver(r, TermsContract(f), Utility{Kind: CARA, Coef: 0.1}, 0)
 	if err != nil {
 		t.Fatal(err)
 	}
-	if pick := f.MenuPick(s, []float64{0.2, 0.3, 0.5}); pick != nil {
+	if pick := MenuPick(f, s, []float64{0.2, 0.3, 0.5}); pick != nil {
 		t.Errorf("menu pick %v without a menu", pick)
 	}
-	if d := f.PayDesc(); !strings.Contains(d, "no menu") || !strings.Contains(d, "exact formula") {
+	if d := PayDesc(f); !strings.Contains(d, "no menu") || !strings.Contains(d, "exact formula") {
 		t.Errorf("pay description %q does not say that the exact formula pays", d)
 	}
 }

@@ -1,0 +1,279 @@
+package tui
+
+import (
+	"context"
+	"os"
+	"path/filepath"
+	"strings"
+	"sync/atomic"
+	"testing"
+	"time"
+
+	tea "github.com/charmbracelet/bubbletea"
+	"github.com/charmbracelet/x/exp/golden"
+	"github.com/charmbracelet/x/exp/teatest"
+
+	"scorewright/generator/design"
+)
+
+// selectBudgetField focuses the budget pane and selects the field
+// labelled label, failing when there is none.
+func selectBudgetField(t *testing.T, m *Model, label string) {
+	t.Helper()
+	m.setFocus(paneBudget)
+	m.layout()
+	for i, f := range budgetFields() {
+		if f.label == label {
+			m.budget.sel = i
+			return
+		}
+	}
+	t.Fatalf("no budget field %q", label)
+}
+
+// typeBudget types text into the field labelled label and presses enter.
+func typeBudget(t *testing.T, m *Model, label, text string) {
+	t.Helper()
+	selectBudgetField(t, m, label)
+	press(t, m, keyEnter)
+	if !m.budget.Typing() {
+		t.Fatalf("%s: enter did not open the input (note %q)", label, m.budget.note)
+	}
+	m.budget.ti.SetValue(text)
+	press(t, m, keyEnter)
+}
+
+// Every field of the budget pane is editable in the pane and lands in the
+// design it names.
+func TestBudgetFieldsEditable(t *testing.T) {
+	menu := filepath.Join(t.TempDir(), "menu.csv")
+	if err := os.WriteFile(menu, []byte("0.1,0.9\n0.3,0.7\n0.5,0.5\n0.7,0.3\n0.9,0.1\n"), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	cases := []struct {
+		label, text string
+		ok          func(d *design.Design) bool
+	}{
+		{"Floor", "2", func(d *design.Design) bool { return d.Budget.Floor == 2 }},
+		{"Cap", "55", func(d *design.Design) bool { return d.Budget.Cap == 55 }},
+		{"Mean", "31", func(d *design.Design) bool { return d.Budget.MeanPay != nil && *d.Budget.MeanPay == 31 }},
+		{"Step", "0.1", func(d *design.Design) bool { return d.Budget.Step == 0.1 }},
+		{"Menu", menu, func(d *design.Design) bool { return d.Budget.Menu == menu && d.Budget.Step == 0 }},
+		{"R.floor", "0.01", func(d *design.Design) bool { return d.Budget.ReportFloor == 0.01 }},
+		{"Clamp", "0.02", func(d *design.Design) bool { return d.Budget.Clamp == 0.02 }},
+		{"Unit", "1", func(d *design.Design) bool { return d.Budget.Unit == 1 }},
+		{"Rounding", "down", func(d *design.Design) bool { return d.Budget.Rounding == "down" }},
+		{"Weights", "1, 2", func(d *design.Design) bool { return len(d.Weights) == 2 && d.Weights[1] == 2 }},
+		{"Currency", "credits", func(d *design.Design) bool { return d.Contract.Currency == "credits" }},
+		{"Forecasts", "90", func(d *design.Design) bool { return d.Contract.Forecasts == 90 }},
+	}
+	if len(cases)+1 != len(budgetFields()) { // Ref. is tested below, with a mean pay
+		t.Fatalf("%d cases for %d fields", len(cases), len(budgetFields()))
+	}
+	for _, c := range cases {
+		m := testModel(t, nil, Settings{})
+		start(t, m, 80, 24)
+		gen := m.Generation()
+		typeBudget(t, m, c.label, c.text)
+		if d := m.Design(); !c.ok(d) || m.Generation() == gen {
+			t.Errorf("%s = %q: not in the design (note %q, budget %+v)", c.label, c.text, m.budget.note, d.Budget)
+		}
+		if m.budget.err != nil || m.budget.table == nil {
+			t.Errorf("%s = %q: no table: %v", c.label, c.text, m.budget.err)
+		}
+	}
+	// The reference belief needs a mean pay; then it is taken.
+	m := testModel(t, nil, Settings{})
+	start(t, m, 80, 24)
+	selectBudgetField(t, m, "Ref.")
+	press(t, m, keyEnter)
+	if m.budget.Typing() || !strings.Contains(m.budget.note, "mean pay") {
+		t.Errorf("reference without a mean pay: typing %v, note %q", m.budget.Typing(), m.budget.note)
+	}
+	typeBudget(t, m, "Mean", "30")
+	typeBudget(t, m, "Ref.", "0.2, 0.8")
+	if d := m.Design(); len(d.Budget.Reference) != 2 || d.Budget.Reference[0] != 0.2 {
+		t.Errorf("reference %v", d.Budget.Reference)
+	}
+}
+
+// The menu file's table is what pay = A - B·L gives on the file's reports.
+// Frost demo, quadratic rule: L(p, k) = 2(1 - p_k)^2 for two outcomes; on
+// the menu 0.1 … 0.9 the efforts run from 0.02 to 1.62, so floor 0 and cap
+// 40 give B = 25, A = 40.5 (derived by hand); row (0.3, 0.7) pays
+// 40.5 - 25·0.98 = 16 if frost and 40.5 - 25·0.18 = 36 if clear.
+func TestBudgetMenuFileTable(t *testing.T) {
+	menu := filepath.Join(t.TempDir(), "menu.csv")
+	if err := os.WriteFile(menu, []byte("0.1,0.9\n0.3,0.7\n0.5,0.5\n0.7,0.3\n0.9,0.1\n"), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	m := testModel(t, nil, Settings{})
+	start(t, m, 80, 24)
+	typeBudget(t, m, "Menu", menu)
+	tv := m.budget.table
+	if tv == nil || len(tv.Rows) != 5 {
+		t.Fatalf("table %+v, err %v", tv, m.budget.err)
+	}
+	if got := strings.Join(tv.Rows[1], " "); got != "(0.3, 0.7) 16.0 36.0" {
+		t.Errorf("row 2: %q", got)
+	}
+	// A step typed again replaces the file.
+	typeBudget(t, m, "Step", "0.25")
+	if d := m.Design(); d.Budget.Menu != "" || len(m.budget.table.Rows) != 5 {
+		t.Errorf("menu %q, %d rows", d.Budget.Menu, len(m.budget.table.Rows))
+	}
+}
+
+// Bad values are refused with a message naming the field, and the design
+// keeps its value; fields that do not apply say so.
+func TestBudgetFieldsRefuse(t *testing.T) {
+	cases := []struct{ label, text, want string }{
+		{"Clamp", "0.6", "budget.clamp"},
+		{"Rounding", "sideways", "budget.rounding"},
+		{"Weights", "1, -1", "weights"},
+		{"Ref.", "0.5, 0.4", "set a mean pay first"},
+		{"Forecasts", "many", "forecasts"},
+		{"Currency", strings.Repeat("x", 40), "contract.currency"},
+		{"Floor", "NaN", "not a finite number"},
+	}
+	for _, c := range cases {
+		m := testModel(t, nil, Settings{})
+		start(t, m, 80, 24)
+		before := m.Design()
+		selectBudgetField(t, m, c.label)
+		press(t, m, keyEnter)
+		if m.budget.Typing() {
+			m.budget.ti.SetValue(c.text)
+			press(t, m, keyEnter)
+		}
+		if !strings.Contains(m.budget.note, c.want) {
+			t.Errorf("%s = %q: note %q, want %q", c.label, c.text, m.budget.note, c.want)
+		}
+		if after := m.Design(); after.Budget.Clamp != before.Budget.Clamp || after.Budget.Rounding != before.Budget.Rounding ||
+			after.Weights != nil || after.Contract.Forecasts != 0 || after.Budget.Floor != 0 {
+			t.Errorf("%s = %q changed the design: %+v", c.label, c.text, after.Budget)
+		}
+	}
+	// A point design's table has no clamp.
+	pd := &design.Design{Version: 1, Title: "milk yield", Mode: design.ModePoint, Formula: "-x^2", Interval: []float64{0, 40},
+		Budget: design.Budget{Floor: 0, Cap: 20, Step: 10}}
+	pm := testModel(t, pd, Settings{})
+	start(t, pm, 80, 24)
+	selectBudgetField(t, pm, "Clamp")
+	press(t, pm, keyRight)
+	if pm.Design().Budget.Clamp != 0 || !strings.Contains(pm.budget.note, "point-forecast") {
+		t.Errorf("point design took a clamp; note %q", pm.budget.note)
+	}
+}
+
+// ←/→ step the listed fields: the rounding mode cycles, forecasts go by 10.
+func TestBudgetFieldsStep(t *testing.T) {
+	m := testModel(t, nil, Settings{})
+	start(t, m, 80, 24)
+	selectBudgetField(t, m, "Rounding")
+	press(t, m, keyRight)
+	if r := m.Design().Budget.Rounding; r != "down" {
+		t.Errorf("nearest → %q, want down", r)
+	}
+	press(t, m, keyLeft, keyLeft)
+	if r := m.Design().Budget.Rounding; r != "up" {
+		t.Errorf("down ←← %q, want up", r)
+	}
+	selectBudgetField(t, m, "Forecasts")
+	press(t, m, keyRight, keyRight)
+	if n := m.Design().Contract.Forecasts; n != 20 {
+		t.Errorf("forecasts %d, want 20", n)
+	}
+	selectBudgetField(t, m, "Clamp")
+	press(t, m, keyRight)
+	if c := m.Design().Budget.Clamp; c != 0.001 {
+		t.Errorf("clamp %v, want 0.001", c)
+	}
+}
+
+// blockingFitter reports progress, then waits for its context to end (an
+// edit) or for release; it counts the runs that were cancelled.
+type blockingFitter struct {
+	release   chan struct{}
+	started   atomic.Int64
+	cancelled atomic.Int64
+}
+
+func (b *blockingFitter) fit(ctx context.Context, d *design.Design, progress func(done, total int64)) (*TableView, error) {
+	b.started.Add(1)
+	progress(3, 6)
+	select {
+	case <-ctx.Done():
+		b.cancelled.Add(1)
+		return nil, ctx.Err()
+	case <-b.release:
+	}
+	return &TableView{Header: []string{"report", "a"}, Rows: [][]string{{"(0, 1)", "1.0"}}, Passed: true, MinMargin: 1}, nil
+}
+
+// The fit runs in the background with progress, and an edit cancels it.
+func TestBudgetFitProgressAndCancel(t *testing.T) {
+	bf := &blockingFitter{release: make(chan struct{})}
+	m := testModel(t, nil, Settings{Fitter: bf.fit, Checker: (&fakeChecker{points: 10}).check})
+	tm := teatest.NewTestModel(t, m, teatest.WithInitialTermSize(80, 24))
+	o := &outputWatch{t: t, tm: tm}
+	for _, k := range []tea.KeyMsg{keyTab, keyTab, keyTab} {
+		tm.Send(k)
+	}
+	o.wait("50% fitting")
+	o.act()
+	tm.Send(keyRight) // the floor goes up: the running fit is for an old design
+	waitFor(t, func() bool { return bf.cancelled.Load() >= 1 && bf.started.Load() >= 2 })
+	close(bf.release)
+	o.wait("menu re-check passed")
+	tm.Send(tea.KeyMsg{Type: tea.KeyCtrlC}) // asks: the floor is unsaved
+	tm.Send(tea.KeyMsg{Type: tea.KeyCtrlC}) // out; the recovery file keeps it
+	fm := tm.FinalModel(t, teatest.WithFinalTimeout(10*time.Second)).(*Model)
+	if fm.Design().Budget.Floor != 1 {
+		t.Errorf("floor %v", fm.Design().Budget.Floor)
+	}
+}
+
+// waitFor polls cond until it holds (20 s at most): a condition, not a
+// timing.
+func waitFor(t *testing.T, cond func() bool) {
+	t.Helper()
+	for end := time.Now().Add(20 * time.Second); !cond(); {
+		if time.Now().After(end) {
+			t.Fatal("condition never held")
+		}
+		time.Sleep(5 * time.Millisecond)
+	}
+}
+
+// The budget pane with its new fields, at both sizes: a value typed
+// into one field, another selected.
+func TestGoldenBudget80x24(t *testing.T) { goldenBudget(t, 80, 24, "Currency", "credits", "Clamp") }
+
+func TestGoldenBudget120x40(t *testing.T) { goldenBudget(t, 120, 40, "Mean", "30", "Ref.") }
+
+func goldenBudget(t *testing.T, w, h int, typed, text, sel string) {
+	m := testModel(t, nil, Settings{})
+	start(t, m, w, h)
+	typeBudget(t, m, typed, text)
+	selectBudgetField(t, m, sel)
+	golden.RequireEqual(t, []byte(m.View()))
+}
+
+// An unbounded rule's table asks for a report floor or a clamp by the
+// pane's own field names, and either one set in the pane gives a table.
+func TestBudgetUnboundedWaysOut(t *testing.T) {
+	for _, field := range []string{"R.floor", "Clamp"} {
+		d := DemoFrost()
+		d.Preset, d.Formula = "", "-sum(p*ln(p))" // the logarithmic rule: effort -ln p_k, infinite at p_k = 0
+		m := testModel(t, d, Settings{})
+		start(t, m, 80, 24)
+		if m.budget.err == nil || !strings.Contains(m.budget.err.Error(), "R.floor") || !strings.Contains(m.budget.err.Error(), "Clamp") {
+			t.Fatalf("error %v", m.budget.err)
+		}
+		typeBudget(t, m, field, "0.01")
+		if m.budget.err != nil || m.budget.table == nil {
+			t.Errorf("%s 0.01: err %v, table %+v", field, m.budget.err, m.budget.table)
+		}
+	}
+}

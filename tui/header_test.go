@@ -1,0 +1,65 @@
+package tui
+
+import (
+	"strings"
+	"testing"
+
+	tea "github.com/charmbracelet/bubbletea"
+)
+
+func headerOf(m *Model) string { return strings.SplitN(m.View(), "\n", 2)[0] }
+
+// The header names the design and states the verdict with its kind: the
+// interval certificate makes it "certified", without one it is "grid
+// evidence"; an edit says it is being checked again and marks the design
+// as edited.
+func TestHeaderStatesVerdictAndKind(t *testing.T) {
+	m := testModel(t, nil, Settings{})
+	start(t, m, 120, 40)
+	h := headerOf(m)
+	if !strings.Contains(h, "Orchard co-operative: frost-night forecasts") || !strings.Contains(h, "✓ strictly proper, certified") || !strings.Contains(h, "not saved yet") {
+		t.Fatalf("header %q", h)
+	}
+	grid := testModel(t, nil, Settings{CertifyDeadline: -1})
+	start(t, grid, 80, 24)
+	if h := headerOf(grid); !strings.Contains(h, "✓ strictly proper, grid evidence") {
+		t.Fatalf("header without a certificate %q", h)
+	}
+	// An edit: the header says checking until the new verdict lands.
+	_, cmd := m.Update(runes("+"))
+	if h := headerOf(m); !strings.Contains(h, "checking") || !strings.Contains(h, "edited") {
+		t.Fatalf("header after an edit %q", h)
+	}
+	settle(t, m, cmd)
+	if h := headerOf(m); !strings.Contains(h, "strictly proper") {
+		t.Fatalf("header once checked %q", h)
+	}
+	// A formula that does not compile is not checked, and says so.
+	press(t, m, keyDown, keyDown, keyDown, keyEnter, keyEnd, runes(" +"), keyEsc)
+	if h := headerOf(m); !strings.Contains(h, "✗ not checked") {
+		t.Fatalf("header for a broken formula %q", h)
+	}
+	// A view that replaces the panes is named, with the way back.
+	press(t, m, tea.KeyMsg{Type: tea.KeyF2})
+	if h := headerOf(m); !strings.Contains(h, "terms (esc: back)") {
+		t.Fatalf("header in the terms view %q", h)
+	}
+}
+
+// The footer is the workbench's own key line: key, what it does, wide
+// gaps, no dots between, and "? all keys" first; it never passes the
+// screen's width.
+func TestFooterKeyLine(t *testing.T) {
+	for _, w := range []int{80, 120} {
+		m := testModel(t, nil, Settings{})
+		start(t, m, w, 24)
+		lines := strings.Split(m.View(), "\n")
+		f := lines[len(lines)-1]
+		if !strings.HasPrefix(f, "? all keys   tab next pane   q quit") || strings.Contains(f, "•") {
+			t.Errorf("footer at %d columns: %q", w, f)
+		}
+		if len([]rune(strings.TrimRight(f, " "))) > w {
+			t.Errorf("footer wider than %d: %q", w, f)
+		}
+	}
+}
