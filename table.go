@@ -9,6 +9,7 @@ import (
 	"scorewright/contract/budget"
 	"scorewright/contract/lottery"
 	"scorewright/contract/table"
+	"scorewright/generator/bregman"
 )
 
 // Errors of Table that callers word in their own terms (flags on the
@@ -55,32 +56,11 @@ func (r *Rule) TableWith(ctx context.Context, menu MenuFunc, progress func(done,
 	if r.point != nil {
 		return r.pointTable(ctx)
 	}
-	rule, err := r.OverOutcomes()
+	rule, m, err := r.menu(menu)
 	if err != nil {
 		return nil, err
 	}
 	b := r.d.Budget
-	var m *budget.Menu
-	switch {
-	case menu != nil:
-		if m, err = menu(r.d.N()); err != nil {
-			return nil, err
-		}
-	case b.Menu != "":
-		if m, err = budget.FileMenu(b.Menu, r.d.N()); err != nil {
-			return nil, err
-		}
-	default:
-		if !(b.Step > 0) {
-			return nil, ErrNoMenu
-		}
-		if m, err = budget.StepMenu(r.d.N(), b.Step, b.ReportFloor); err != nil {
-			return nil, err
-		}
-	}
-	if m.Clamp == 0 {
-		m.Clamp = b.Clamp
-	}
 	fit, err := budget.FitRule(rule, m, b)
 	if err != nil {
 		return nil, err
@@ -90,6 +70,49 @@ func (r *Rule) TableWith(ctx context.Context, menu MenuFunc, progress func(done,
 		return nil, err
 	}
 	return &Table{Fit: fit, Recheck: rc}, nil
+}
+
+// menu is the rule over outcomes and its report menu, as TableWith
+// builds them.
+func (r *Rule) menu(menu MenuFunc) (*bregman.Rule, *budget.Menu, error) {
+	rule, err := r.OverOutcomes()
+	if err != nil {
+		return nil, nil, err
+	}
+	b := r.d.Budget
+	var m *budget.Menu
+	switch {
+	case menu != nil:
+		m, err = menu(r.d.N())
+	case b.Menu != "":
+		m, err = budget.FileMenu(b.Menu, r.d.N())
+	case !(b.Step > 0):
+		return nil, nil, ErrNoMenu
+	default:
+		m, err = budget.StepMenu(r.d.N(), b.Step, b.ReportFloor)
+	}
+	if err != nil {
+		return nil, nil, err
+	}
+	if m.Clamp == 0 {
+		m.Clamp = b.Clamp
+	}
+	return rule, m, nil
+}
+
+// Propose searches for budgets the menu re-check passes with, one field
+// of the design's budget changed (budget.Propose: the coarsest currency
+// unit, and for a failing table the smallest cap or mean pay). Point
+// designs have no proposal.
+func (r *Rule) Propose(ctx context.Context, progress func(done, total int64)) ([]budget.Proposal, error) {
+	if r.point != nil {
+		return nil, errors.New("proposals are for tables over outcomes; a point-forecast table keeps its floor, cap and unit as set")
+	}
+	rule, m, err := r.menu(nil)
+	if err != nil {
+		return nil, err
+	}
+	return budget.Propose(ctx, rule, m, r.d.Budget, progress)
 }
 
 func (r *Rule) pointTable(ctx context.Context) (*Table, error) {

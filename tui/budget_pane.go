@@ -2,6 +2,7 @@ package tui
 
 import (
 	"fmt"
+	"slices"
 	"strings"
 
 	"github.com/charmbracelet/bubbles/cursor"
@@ -34,6 +35,9 @@ type BudgetPane struct {
 	running     bool
 	done, total int64
 	bar         progress.Model
+	// prop is the search for a budget that passes (tui/propose.go); shared
+	// by the copies of the pane.
+	prop *proposal
 }
 
 // NewBudgetPane returns a budget pane; available says whether the build
@@ -45,7 +49,7 @@ func NewBudgetPane(st Styles, keys KeyMap, available bool) BudgetPane {
 	calmEditing(&ti.KeyMap.DeleteAfterCursor, &ti.KeyMap.DeleteBeforeCursor)
 	vp := viewport.New(10, 3)
 	vp.KeyMap = viewport.KeyMap{PageDown: keys.PageDown, PageUp: keys.PageUp}
-	return BudgetPane{st: st, keys: keys, available: available, ti: ti, vp: vp, bar: newBar()}
+	return BudgetPane{st: st, keys: keys, available: available, ti: ti, vp: vp, bar: newBar(), prop: &proposal{}}
 }
 
 // SetSize sets the outer size of the pane.
@@ -73,7 +77,7 @@ func (p BudgetPane) Typing() bool { return p.typing }
 // KeyHelp lists the pane's keys.
 func (p BudgetPane) KeyHelp() []key.Binding {
 	k := p.keys
-	return []key.Binding{k.Up, k.Down, k.Less, k.More, k.Edit, k.PageUp, k.PageDown}
+	return []key.Binding{k.Up, k.Down, k.Less, k.More, k.Edit, k.Propose, k.PageUp, k.PageDown}
 }
 
 // setTable shows a fit result.
@@ -82,7 +86,10 @@ func (p *BudgetPane) setTable(t *TableView, err error) {
 	p.vp.SetContent(p.tableText())
 }
 
-func (p *BudgetPane) edited() { p.stale, p.running = p.table != nil, false }
+func (p *BudgetPane) edited() {
+	p.stale, p.running = p.table != nil, false
+	p.prop.stop()
+}
 
 // fitting marks a fit as begun; progressed moves its bar.
 func (p *BudgetPane) fitting()                     { p.running, p.done, p.total = true, 0, 0 }
@@ -201,32 +208,55 @@ func nextStep(steps []float64, cur float64, up bool) float64 {
 	return steps[0]
 }
 
-// layoutTable lines up the cells of t into text rows, header first. It
-// runs in the background with the fit, so Update only joins the rows.
+// layoutTable lines up the cells of t into text rows, header first: a
+// mark column first when some row fails the re-check (so a narrow pane
+// still shows it), the margin last. It runs in the background with the
+// fit, so Update only joins the rows.
 func layoutTable(t *TableView) {
-	widths := make([]int, len(t.Header))
-	for i, h := range t.Header {
-		widths[i] = len([]rune(h))
+	marked := slices.ContainsFunc(t.Marks, func(s string) bool { return s != "" })
+	cells := func(i int, r []string) []string {
+		var out []string
+		if marked {
+			out = append(out, t.Marks[i])
+		}
+		out = append(out, r...)
+		if t.Margins != nil {
+			out = append(out, t.Margins[i])
+		}
+		return out
 	}
-	for _, r := range t.Rows {
+	head := slices.Clone(t.Header)
+	if marked {
+		head = append([]string{"mark"}, head...)
+	}
+	if t.Margins != nil {
+		head = append(head, "margin")
+	}
+	rows := [][]string{head}
+	for i, r := range t.Rows {
+		rows = append(rows, cells(i, r))
+	}
+	widths := make([]int, len(head))
+	for _, r := range rows {
 		for i, c := range r {
-			if i < len(widths) && len([]rune(c)) > widths[i] {
-				widths[i] = len([]rune(c))
-			}
-		}
-	}
-	row := func(cells []string) string {
-		var parts []string
-		for i, c := range cells {
 			if i < len(widths) {
-				parts = append(parts, fmt.Sprintf("%*s", widths[i], c))
+				widths[i] = max(widths[i], len([]rune(c)))
 			}
 		}
-		return strings.Join(parts, "  ")
 	}
-	t.lines = []string{row(t.Header)}
-	for _, r := range t.Rows {
-		t.lines = append(t.lines, row(r))
+	t.lines = nil
+	for _, r := range rows {
+		parts := make([]string, 0, len(r))
+		for i, c := range r {
+			if i < len(widths) {
+				if marked && i == 0 {
+					parts = append(parts, fmt.Sprintf("%-*s", widths[i], c))
+				} else {
+					parts = append(parts, fmt.Sprintf("%*s", widths[i], c))
+				}
+			}
+		}
+		t.lines = append(t.lines, strings.Join(parts, "  "))
 	}
 }
 
@@ -314,6 +344,7 @@ func (p BudgetPane) View(d *design.Design) string {
 		} else {
 			lines = append(lines, p.verdictLine())
 		}
+		lines = append(lines, p.proposalLines()...)
 		vp := p.vp
 		vp.Height = max(1, p.h-2-len(lines))
 		lines = append(lines, vp.View())

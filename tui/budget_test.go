@@ -2,8 +2,10 @@ package tui
 
 import (
 	"context"
+	"math"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"sync/atomic"
 	"testing"
@@ -14,6 +16,7 @@ import (
 	"github.com/charmbracelet/x/exp/teatest"
 
 	"scorewright/generator/design"
+	"scorewright/internal/num"
 )
 
 // selectBudgetField focuses the budget pane and selects the field
@@ -214,12 +217,7 @@ func (b *blockingFitter) fit(ctx context.Context, d *design.Design, progress fun
 // The fit runs in the background with progress, and an edit cancels it.
 func TestBudgetFitProgressAndCancel(t *testing.T) {
 	bf := &blockingFitter{release: make(chan struct{})}
-	m := testModel(t, nil, Settings{Fitter: bf.fit, Checker: (&fakeChecker{points: 10}).check})
-	tm := teatest.NewTestModel(t, m, teatest.WithInitialTermSize(80, 24))
-	o := &outputWatch{t: t, tm: tm}
-	for _, k := range []tea.KeyMsg{keyTab, keyTab, keyTab} {
-		tm.Send(k)
-	}
+	tm, o := budgetProgram(t, testModel(t, nil, Settings{Fitter: bf.fit, Checker: (&fakeChecker{points: 10}).check}))
 	o.wait("50% fitting")
 	o.act()
 	tm.Send(keyRight) // the floor goes up: the running fit is for an old design
@@ -232,6 +230,16 @@ func TestBudgetFitProgressAndCancel(t *testing.T) {
 	if fm.Design().Budget.Floor != 1 {
 		t.Errorf("floor %v", fm.Design().Budget.Floor)
 	}
+}
+
+// budgetProgram runs m as a real program at 80×24 with the budget pane
+// focused (design → picture → checks → budget).
+func budgetProgram(t *testing.T, m *Model) (*teatest.TestModel, *outputWatch) {
+	tm := teatest.NewTestModel(t, m, teatest.WithInitialTermSize(80, 24))
+	for _, k := range []tea.KeyMsg{keyTab, keyTab, keyTab} {
+		tm.Send(k)
+	}
+	return tm, &outputWatch{t: t, tm: tm}
 }
 
 // waitFor polls cond until it holds (20 s at most): a condition, not a
@@ -276,4 +284,147 @@ func TestBudgetUnboundedWaysOut(t *testing.T) {
 			t.Errorf("%s 0.01: err %v, table %+v", field, m.budget.err, m.budget.table)
 		}
 	}
+}
+
+// bruteRowMargins recomputes each row's margin from the table as shown,
+// by brute force over its rows: for the belief that is row i's report,
+// the expected pay of row i less the best expected pay of any other row.
+// It reads only the printed cells, so it checks the re-check's margins
+// and marks from outside.
+func bruteRowMargins(t *testing.T, tv *TableView) []float64 {
+	t.Helper()
+	var reports, pays [][]float64
+	for _, r := range tv.Rows {
+		p, err := num.ParseVector(strings.Trim(r[0], "()"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		v, err := num.ParseVector(strings.Join(r[1:], ","))
+		if err != nil {
+			t.Fatal(err)
+		}
+		reports, pays = append(reports, p), append(pays, v)
+	}
+	exp := func(q, row []float64) float64 {
+		s := 0.0
+		for k := range q {
+			s += q[k] * row[k]
+		}
+		return s
+	}
+	out := make([]float64, len(reports))
+	for i, q := range reports {
+		best := math.Inf(-1)
+		for j := range reports {
+			if j != i {
+				best = math.Max(best, exp(q, pays[j]))
+			}
+		}
+		out[i] = exp(q, pays[i]) - best
+	}
+	return out
+}
+
+// Rows the rounded table fails are marked TIE or BEATEN, and every row
+// shows its margin; both agree with the brute force over the printed
+// table (frost demo rounded to whole tens: most rows collapse).
+func TestBudgetMarksAgainstBruteForce(t *testing.T) {
+	for _, unit := range []string{"10", "5", "0.1"} {
+		m := testModel(t, nil, Settings{})
+		start(t, m, 80, 24)
+		typeBudget(t, m, "Unit", unit)
+		tv := m.budget.table
+		if tv == nil || len(tv.Marks) != len(tv.Rows) || len(tv.Margins) != len(tv.Rows) {
+			t.Fatalf("unit %s: table %+v", unit, tv)
+		}
+		marked := 0
+		for i, mg := range bruteRowMargins(t, tv) {
+			want := ""
+			switch {
+			case math.Abs(mg) < 1e-9:
+				want = markTie
+			case mg < 0:
+				want = markBeaten
+			}
+			if tv.Marks[i] != want {
+				t.Errorf("unit %s row %v: mark %q, brute-force margin %g", unit, tv.Rows[i], tv.Marks[i], mg)
+			}
+			if got, _ := strconv.ParseFloat(tv.Margins[i], 64); math.Abs(got-mg) > 1e-3*math.Max(1, math.Abs(mg)) {
+				t.Errorf("unit %s row %v: margin %s, brute force %g", unit, tv.Rows[i], tv.Margins[i], mg)
+			}
+			if want != "" {
+				marked++
+			}
+		}
+		if (marked > 0) == tv.Passed {
+			t.Errorf("unit %s: %d marked rows, passed %v", unit, marked, tv.Passed)
+		}
+		if v := m.View(); marked > 0 && !strings.Contains(v, "mark") {
+			t.Errorf("unit %s: the mark column is not shown:\n%s", unit, v)
+		}
+	}
+}
+
+// f searches off the UI goroutine; 1 takes the proposal, and the table
+// then passes. The flow runs a real program, waiting only on lines that
+// change.
+func TestProposeFlow(t *testing.T) {
+	d := DemoFrost()
+	d.Budget.Unit = 10
+	tm, o := budgetProgram(t, testModel(t, d, Settings{}))
+	o.wait("menu re-check FAILED")
+	o.act()
+	tm.Send(runes("f"))
+	o.wait("1 unit 0.1: passes")
+	o.act()
+	tm.Send(runes("1"))
+	o.wait("took the proposal")
+	o.wait("menu re-check passed")
+	tm.Send(tea.KeyMsg{Type: tea.KeyCtrlC})
+	tm.Send(tea.KeyMsg{Type: tea.KeyCtrlC})
+	fm := tm.FinalModel(t, teatest.WithFinalTimeout(10*time.Second)).(*Model)
+	if u := fm.Design().Budget.Unit; u != 0.1 {
+		t.Errorf("unit %v, want 0.1", u)
+	}
+}
+
+// An edit while the search runs cancels it, and its late answer is
+// dropped.
+func TestProposeCancelledByEdit(t *testing.T) {
+	d := DemoFrost()
+	d.Budget.Unit = 10
+	m := testModel(t, d, Settings{})
+	start(t, m, 80, 24)
+	selectBudgetField(t, m, "Unit")
+	old := m.budgetKey(runes("f")) // the search, not yet run
+	if !m.budget.prop.running {
+		t.Fatal("f did not start a search")
+	}
+	press(t, m, keyLeft) // a finer unit: the design changed
+	if m.budget.prop.shown() {
+		t.Fatal("the edit left the search showing")
+	}
+	settle(t, m, old)
+	if m.budget.prop.props != nil || m.budget.prop.running {
+		t.Errorf("the stale search landed: %+v", m.budget.prop)
+	}
+}
+
+// Marks and a proposal on screen, at both sizes.
+func TestGoldenPropose80x24(t *testing.T) { goldenPropose(t, 80, 24) }
+
+func TestGoldenPropose120x40(t *testing.T) { goldenPropose(t, 120, 40) }
+
+func goldenPropose(t *testing.T, w, h int) {
+	d := DemoFrost()
+	d.Budget.Unit = 1
+	d.Budget.Cap = 100
+	m := testModel(t, d, Settings{})
+	start(t, m, w, h)
+	selectBudgetField(t, m, "Unit")
+	settle(t, m, m.budgetKey(runes("f")))
+	if n := len(m.budget.prop.props); n != 2 {
+		t.Fatalf("%d proposals: %+v", n, m.budget.prop)
+	}
+	golden.RequireEqual(t, []byte(m.View()))
 }

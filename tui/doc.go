@@ -111,7 +111,11 @@
 // it replaces the cap, whose row then says it is not used): → from "none" starts at three quarters
 // of the way from floor to cap, ← below the floor or typing 0 clears it. Point designs refuse the
 // fields of rules over outcomes. Every edit cancels the running fit; the next one shows its
-// progress (the re-check's beliefs) in the pane.
+// progress (the re-check's beliefs) in the pane. The table shows each row's re-check margin and
+// marks the rows whose report ties with another (TIE) or is beaten (BEATEN) for its own belief, in a
+// first column so a narrow pane keeps it. The propose key (f, `tui/propose.go`) runs
+// `Rule.Propose` in the background (progress, cancelled by any edit): the coarsest currency unit
+// the re-check passes with, and for a failing table the smallest cap; the digit keys take one.
 //
 // Look (`tui/header.go`, `tui/chrome.go`, `NewStyles`): the header names the design (and its file,
 // or "not saved yet", and whether it is edited), the view shown, and the verdict with its kind —

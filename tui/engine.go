@@ -163,8 +163,38 @@ func budgetFitter(ctx context.Context, d *design.Design, progress func(done, tot
 		}
 		tv.Rows = append(tv.Rows, row)
 	}
+	markRows(tv, rc.Margins, rc.Ties, rc.Beaten)
 	return tv, nil
 }
+
+// markRows gives each row of tv its re-check margin and marks the rows
+// whose report ties with another (TIE) or is beaten by one (BEATEN) for
+// the belief that is the report itself.
+func markRows(tv *TableView, margins []float64, ties, beaten []int) {
+	tv.Marks = make([]string, len(tv.Rows))
+	tv.Margins = make([]string, len(tv.Rows))
+	for i := range tv.Rows {
+		if i < len(margins) {
+			tv.Margins[i] = strconv.FormatFloat(margins[i], 'g', 4, 64)
+		}
+	}
+	for _, i := range ties {
+		if i >= 0 && i < len(tv.Marks) {
+			tv.Marks[i] = markTie
+		}
+	}
+	for _, i := range beaten {
+		if i >= 0 && i < len(tv.Marks) {
+			tv.Marks[i] = markBeaten
+		}
+	}
+}
+
+// The marks of rows that fail the re-check.
+const (
+	markTie    = "TIE"
+	markBeaten = "BEATEN"
+)
 
 // pointTableView is the preview of a point-forecast table: reports down,
 // outcome values across.
@@ -181,6 +211,7 @@ func pointTableView(t *budget.PointTable, rc *budget.PointRecheck) *TableView {
 		}
 		tv.Rows = append(tv.Rows, row)
 	}
+	markRows(tv, rc.Margins, rc.Ties, rc.Beaten)
 	return tv
 }
 

@@ -50,6 +50,9 @@ type TableView struct {
 	// Header and Rows are the payment table preview, as text cells.
 	Header []string
 	Rows   [][]string
+	// Margins[i] is row i's re-check margin and Marks[i] says "TIE" or
+	// "BEATEN" when the row fails it ("" otherwise); nil when unknown.
+	Margins, Marks []string
 	// Passed and MinMargin are the menu re-check: whether every menu item
 	// is the strict best report for a forecaster who believes it, and the
 	// smallest incentive margin in currency.

@@ -22,7 +22,7 @@ type KeyMap struct {
 	// Checks pane.
 	Rerun key.Binding
 	// Budget pane.
-	PageUp, PageDown key.Binding
+	PageUp, PageDown, Propose, TakeFirst, TakeSecond key.Binding
 	// Backtest view.
 	History, StopRun key.Binding
 	// Dialogs.
@@ -83,6 +83,11 @@ func DefaultKeyMap() KeyMap {
 
 		PageUp:   b([]string{"pgup"}, "pgup", "scroll the table up"),
 		PageDown: b([]string{"pgdown"}, "pgdn", "scroll the table down"),
+		// f: find a budget that passes; the digits take the proposal
+		// listed under that number, so taking one is a deliberate choice.
+		Propose:    b([]string{"f"}, "f", "find a unit or cap the re-check passes with"),
+		TakeFirst:  b([]string{"1"}, "1", "take proposal 1"),
+		TakeSecond: b([]string{"2"}, "2", "take proposal 2"),
 
 		History: b([]string{"l"}, "l", "load a forecast history (CSV)"),
 		StopRun: b([]string{"x"}, "x", "stop the backtest"),
@@ -148,7 +153,9 @@ func (k KeyMap) groups() []helpGroup {
 		{title: "Picture pane", keys: []key.Binding{k.Measure, k.BeliefDown, k.BeliefUp, k.Pair}},
 		{title: "Checks pane", keys: []key.Binding{k.Rerun}},
 		{title: "Terms of the annex (" + k.Terms.Help().Key + ")", keys: []key.Binding{k.Up, k.Down, k.Edit, k.Leave}},
-		{title: "Budget pane (arrows and enter as above)", keys: []key.Binding{k.PageUp, k.PageDown}},
+		{title: "Budget pane (arrows and enter as above)", keys: []key.Binding{k.PageUp, k.PageDown, k.Propose, k.TakeFirst, k.TakeSecond}, notes: []string{
+			"rows the re-check fails are marked TIE or BEATEN;",
+			keyList(k.Leave) + " drops the proposals; an edit cancels the search"}},
 		{title: "Backtest view (" + k.Backtest.Help().Key + ")", keys: []key.Binding{k.History, k.StopRun}, notes: []string{
 			keyList(k.Up, k.Down, k.PageUp, k.PageDown) + " scroll, " + keyList(k.Leave, k.Backtest) + " close;",
 			"an edit reruns it and cancels the old run"}},

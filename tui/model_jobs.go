@@ -25,6 +25,8 @@ func (m *Model) wanted(msg tea.Msg) bool {
 		return r.run == m.research.run
 	case fitProgressMsg:
 		return r.gen == m.gen
+	case proposeProgressMsg:
+		return r.run == m.budget.prop.run
 	}
 	return false
 }

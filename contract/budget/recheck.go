@@ -104,13 +104,10 @@ type ClampGap struct {
 	Grid    string
 }
 
-// Recheck checks the rounded table of f: each item against every other
-// for the belief that is that item, then which item each belief on a
-// finer grid picks. It is a grid check: evidence, not proof.
-func (f *Fit) Recheck(ctx context.Context, set RecheckSettings) (*Recheck, error) {
-	m := f.Menu.Reports
-	M, n := len(m), len(f.Labels)
-	pays := make([]float64, 0, M*n)
+// flatPays is the table row after row, and the tie tolerance: tol when
+// positive, else 1e-9 × the largest payment (at least 1e-9).
+func (f *Fit) flatPays(tol float64) (pays []float64, tolerance float64) {
+	pays = make([]float64, 0, len(f.Pays)*len(f.Labels))
 	scale := 1.0
 	for _, row := range f.Pays {
 		pays = append(pays, row...)
@@ -118,10 +115,19 @@ func (f *Fit) Recheck(ctx context.Context, set RecheckSettings) (*Recheck, error
 			scale = math.Max(scale, math.Abs(v))
 		}
 	}
-	tol := set.Tolerance
 	if tol <= 0 {
 		tol = 1e-9 * scale
 	}
+	return pays, tol
+}
+
+// Recheck checks the rounded table of f: each item against every other
+// for the belief that is that item, then which item each belief on a
+// finer grid picks. It is a grid check: evidence, not proof.
+func (f *Fit) Recheck(ctx context.Context, set RecheckSettings) (*Recheck, error) {
+	m := f.Menu.Reports
+	M, n := len(m), len(f.Labels)
+	pays, tol := f.flatPays(set.Tolerance)
 	K := beliefGrid(set.Resolution, n, M)
 	grid := simplex.Vectors(n, K)
 	rc := &Recheck{

@@ -1,0 +1,171 @@
+package budget
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+
+	"scorewright/generator/bregman"
+	"scorewright/generator/design"
+	"scorewright/internal/pool"
+)
+
+// proposalUnits are the currency units a proposal chooses from, coarse to
+// fine: the round amounts a contract is written in.
+func proposalUnits() []float64 {
+	return []float64{100, 50, 25, 20, 10, 5, 2, 1, 0.5, 0.25, 0.2, 0.1, 0.05, 0.02, 0.01, 0.005, 0.002, 0.001}
+}
+
+// capSteps is how many steps of a twentieth of the range from floor to
+// cap the cap search takes at most: up to five times the range.
+const capSteps = 80
+
+// Proposal is a budget the menu re-check passes with, one field changed
+// from the budget asked about.
+type Proposal struct {
+	// Field names what changed: "unit", "cap" or "mean pay". Budget is the
+	// whole budget with the change.
+	Field  string
+	Budget design.Budget
+	// MinMargin is the re-check's smallest margin with Budget.
+	MinMargin float64
+	// Tried is how many budgets were fitted and checked.
+	Tried int
+}
+
+// Describe says the proposal in a line.
+func (p *Proposal) Describe() string {
+	switch p.Field {
+	case "unit":
+		return fmt.Sprintf("unit %g: the coarsest currency unit the re-check passes with (margin %.4g)", p.Budget.Unit, p.MinMargin)
+	case "cap":
+		return fmt.Sprintf("cap %g: the smallest cap the re-check passes with at unit %g (margin %.4g)", p.Budget.Cap, p.Budget.Unit, p.MinMargin)
+	}
+	return fmt.Sprintf("mean pay %g: the smallest the re-check passes with at unit %g (margin %.4g)", *p.Budget.MeanPay, p.Budget.Unit, p.MinMargin)
+}
+
+// ErrNoProposal says that no budget searched passes the re-check.
+var ErrNoProposal = errors.New("no currency unit down to 0.001 and no larger cap (up to five times the range) makes the menu re-check pass; look at the rule or the menu rather than the rounding")
+
+// Propose searches for budgets close to b that the re-check passes with,
+// each changing one field of b:
+//
+//   - the coarsest currency unit of the ladder (at most half the range
+//     from floor to cap), the rest of b kept: a coarser unit is an easier
+//     contract, and it costs the buyer nothing;
+//   - when b itself fails and has a unit, the smallest cap above b's
+//     (steps of a twentieth of the range, up to five times it) at b's
+//     unit, or the smallest mean pay for a mean-pay budget: a larger one
+//     only costs the buyer more.
+//
+// A candidate passes when every menu item is the strict best report for
+// the belief that is that item, which is what decides Recheck's Passed.
+// progress, when set, is told candidates tried of the most there can be.
+// With no candidate passing the error is ErrNoProposal.
+func Propose(ctx context.Context, r *bregman.Rule, m *Menu, b design.Budget, progress pool.Progress) (props []Proposal, err error) {
+	first, err := FitRule(r, m, b)
+	if err != nil {
+		return nil, err
+	}
+	span := first.Cap - first.Floor
+	units := proposalUnits()
+	meter := pool.NewMeter(progress, int64(len(units)+1+capSteps))
+	defer func() { meter.Finish(err == nil) }()
+	s := &search{ctx: ctx, r: r, m: m, meter: meter}
+	for _, u := range units {
+		if u > span/2 {
+			continue
+		}
+		c := b
+		c.Unit = u
+		p, err := s.try("unit", c)
+		if err != nil {
+			return nil, err
+		}
+		if p != nil {
+			props = append(props, *p)
+			break
+		}
+	}
+	now, err := s.try("unit", b)
+	if now != nil && len(props) == 0 {
+		props = append(props, *now) // b's own unit is the coarsest found
+	}
+	if err != nil || now != nil || b.Unit == 0 {
+		return done(props, err)
+	}
+	for k := 1; k <= capSteps; k++ {
+		c, field := b, "cap"
+		if b.MeanPay != nil {
+			// a mean pay as a person writes it
+			mp := math.Round((*b.MeanPay+float64(k)*(*b.MeanPay-b.Floor)/20)*1e6) / 1e6
+			c.MeanPay, field = &mp, "mean pay"
+		} else {
+			c.Cap = math.Round((first.Cap+float64(k)*span/20)*1e6) / 1e6
+		}
+		p, err := s.try(field, c)
+		if err != nil {
+			return nil, err
+		}
+		if p != nil {
+			return append(props, *p), nil
+		}
+	}
+	return done(props, nil)
+}
+
+// done is a search's answer: err, or ErrNoProposal when nothing passed.
+func done(props []Proposal, err error) ([]Proposal, error) {
+	if err == nil && len(props) == 0 {
+		err = ErrNoProposal
+	}
+	if err != nil {
+		return nil, err
+	}
+	return props, nil
+}
+
+// search is one proposal search: the rule and menu, and what it tried.
+type search struct {
+	ctx   context.Context
+	r     *bregman.Rule
+	m     *Menu
+	meter *pool.Meter
+	tried int
+}
+
+// try fits budget c and returns it as a proposal if it passes, nil if not.
+func (s *search) try(field string, c design.Budget) (*Proposal, error) {
+	s.tried++
+	s.meter.Add(1)
+	f, err := FitRule(s.r, s.m, c)
+	if err != nil {
+		return nil, err
+	}
+	mg, ok, err := menuMargin(s.ctx, f)
+	if err != nil || !ok {
+		return nil, err
+	}
+	return &Proposal{Field: field, Budget: c, MinMargin: mg, Tried: s.tried}, nil
+}
+
+// menuMargin is the menu part of the re-check: each item against every
+// other for the belief that is that item, on the rounded table; margins
+// within the tie tolerance count as ties, as in Recheck.
+func menuMargin(ctx context.Context, f *Fit) (least float64, passed bool, err error) {
+	pays, tol := f.flatPays(0)
+	n := len(f.Labels)
+	least = math.Inf(1)
+	for i, p := range f.Menu.Reports {
+		if i%64 == 0 && ctx.Err() != nil {
+			return 0, false, ctx.Err()
+		}
+		mg, _ := margin(pays, n, p, i)
+		if math.Abs(mg) <= tol {
+			mg = 0
+		}
+		least = math.Min(least, mg)
+	}
+	return least, least > 0, nil
+}

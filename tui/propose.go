@@ -1,0 +1,181 @@
+package tui
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"strings"
+
+	"github.com/charmbracelet/bubbles/key"
+	tea "github.com/charmbracelet/bubbletea"
+
+	"scorewright"
+	"scorewright/contract/budget"
+	"scorewright/generator/design"
+)
+
+// proposal is the budget pane's search for budgets the re-check passes
+// with (budget.Propose), run in the background for one generation of the
+// design and cancelled by any edit.
+type proposal struct {
+	run         uint64 // id of the latest search
+	cancel      context.CancelFunc
+	running     bool
+	done, total int64
+	props       []budget.Proposal
+	err         error
+}
+
+// Messages of the proposal search, stamped with its run.
+type (
+	proposeProgressMsg struct {
+		run         uint64
+		done, total int64
+	}
+	proposeDoneMsg struct {
+		run   uint64
+		props []budget.Proposal
+		err   error
+	}
+)
+
+// stop cancels a running search and forgets what it found.
+func (p *proposal) stop() {
+	if p.cancel != nil {
+		p.cancel()
+		p.cancel = nil
+	}
+	p.run++ // answers of the old search are now stale
+	p.running, p.props, p.err = false, nil, nil
+}
+
+// shown reports whether there is anything to show.
+func (p *proposal) shown() bool { return p.running || p.props != nil || p.err != nil }
+
+// proposeCmd searches for budgets that pass for design d (a private copy).
+func proposeCmd(ctx context.Context, run uint64, d *design.Design) tea.Cmd {
+	return runStream(ctx, func(send func(tea.Msg, bool)) {
+		props, err := proposeFor(ctx, d, func(done, total int64) {
+			send(proposeProgressMsg{run: run, done: done, total: total}, false)
+		})
+		send(proposeDoneMsg{run: run, props: props, err: err}, true)
+	})
+}
+
+// proposeFor opens the design and runs the search.
+func proposeFor(ctx context.Context, d *design.Design, progress func(done, total int64)) ([]budget.Proposal, error) {
+	r, err := scorewright.Open(d)
+	if err != nil {
+		return nil, err
+	}
+	return r.Propose(ctx, progress)
+}
+
+// budgetKey handles a key of the budget pane: the proposal keys, then the
+// pane's own.
+func (m *Model) budgetKey(km tea.KeyMsg) tea.Cmd {
+	k, pr := m.keys, m.budget.prop
+	if !m.budget.Typing() {
+		switch {
+		case key.Matches(km, k.Propose):
+			pr.stop()
+			ctx, cancel := context.WithCancel(m.ctx)
+			pr.cancel, pr.running, pr.done, pr.total = cancel, true, 0, 0
+			return proposeCmd(ctx, pr.run, cloneDesign(m.d))
+		case pr.props != nil && (key.Matches(km, k.TakeFirst) || key.Matches(km, k.TakeSecond)):
+			i := 0
+			if key.Matches(km, k.TakeSecond) {
+				i = 1
+			}
+			if i >= len(pr.props) {
+				return nil
+			}
+			return m.takeProposal(pr.props[i])
+		case pr.shown() && key.Matches(km, k.Leave):
+			pr.stop()
+			return nil
+		}
+	}
+	p, cmd, changed := m.budget.Update(km, m.d)
+	m.budget = p
+	return m.paneDone(cmd, changed)
+}
+
+// paneDone is what follows a pane's key: its command, and a new
+// generation when the design changed.
+func (m *Model) paneDone(cmd tea.Cmd, changed bool) tea.Cmd {
+	if changed {
+		return tea.Batch(cmd, m.edited())
+	}
+	return cmd
+}
+
+// takeProposal puts a proposed budget into the design.
+func (m *Model) takeProposal(p budget.Proposal) tea.Cmd {
+	trial := cloneDesign(m.d)
+	trial.Budget = p.Budget
+	if err := trial.ValidateBudget(); err != nil {
+		m.budget.note = err.Error()
+		return nil
+	}
+	m.d.Budget = trial.Budget
+	cmd := m.edited()
+	m.status = "took the proposal: " + p.Describe()
+	return cmd
+}
+
+// proposeMsg takes a message of the search; stale ones are dropped.
+func (m *Model) proposeMsg(msg tea.Msg) {
+	pr := m.budget.prop
+	switch msg := msg.(type) {
+	case proposeProgressMsg:
+		if msg.run == pr.run {
+			pr.done, pr.total = msg.done, msg.total
+		}
+	case proposeDoneMsg:
+		if msg.run != pr.run || errors.Is(msg.err, context.Canceled) {
+			return
+		}
+		pr.running, pr.props, pr.err = false, msg.props, msg.err
+	}
+}
+
+// proposalLines are the search's lines in the pane: progress, the
+// proposals numbered for the keys that take them, or why there are none.
+func (p BudgetPane) proposalLines() []string {
+	st, pr, k := p.st, p.prop, p.keys
+	switch {
+	case pr.running:
+		pct := 0.0
+		if pr.total > 0 {
+			pct = float64(pr.done) / float64(pr.total)
+		}
+		return []string{p.bar.ViewAs(pct) + fmt.Sprintf(" %3.0f%% searching", pct*100)}
+	case pr.err != nil:
+		return strings.Split(st.Error.Width(max(10, p.w-2)).Render("no proposal: "+pr.err.Error()), "\n")
+	case pr.props == nil:
+		return nil
+	}
+	var lines []string
+	for i, q := range pr.props {
+		lines = append(lines, st.Selected.Render(fmt.Sprintf("%d", i+1))+" "+shortProposal(q))
+	}
+	keys := []string{}
+	for i := range pr.props {
+		keys = append(keys, []key.Binding{k.TakeFirst, k.TakeSecond}[i].Help().Key)
+	}
+	return append(lines, st.Dim.Render(strings.Join(keys, " or ")+": take it, "+k.Leave.Help().Key+": drop"))
+}
+
+// shortProposal is a proposal in a pane's width: what changes, and the
+// margin the re-check passes with.
+func shortProposal(q budget.Proposal) string {
+	b := q.Budget
+	switch q.Field {
+	case "unit":
+		return fmt.Sprintf("unit %g: passes, margin %.4g", b.Unit, q.MinMargin)
+	case "cap":
+		return fmt.Sprintf("cap %g at unit %g: passes, margin %.4g", b.Cap, b.Unit, q.MinMargin)
+	}
+	return fmt.Sprintf("mean pay %g at unit %g: passes, margin %.4g", *b.MeanPay, b.Unit, q.MinMargin)
+}
