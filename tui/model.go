@@ -233,9 +233,19 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 			return m, tea.Batch(cmd, msg.next)
 		}
 		return m, cmd
+	case savedMsg, openedMsg, exportedMsg, completedMsg, recoveryFoundMsg, recoveryDoneMsg:
+		return m, m.fileMsg(msg)
+	}
+	return m, m.jobMsg(msg)
+}
+
+// jobMsg takes the answers of background work on the design: compiling,
+// the debounce, the picture, the checks, the fit and the views' runs.
+func (m *Model) jobMsg(msg tea.Msg) tea.Cmd {
+	switch msg := msg.(type) {
 	case compiledMsg:
 		if msg.gen != m.gen {
-			return m, nil
+			return nil
 		}
 		m.comp, m.compGen = msg.c, msg.gen
 		m.designPane.setCompiled(msg.c)
@@ -245,61 +255,69 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 			m.checks.block("the formula does not compile")
 			m.picture.noDesign("nothing to draw until the formula compiles")
 		}
-		return m, tea.Batch(m.requestPicture(), m.maybeStart())
+		return tea.Batch(m.requestPicture(), m.maybeStart())
 	case debounceMsg:
 		if msg.gen != m.gen {
-			return m, nil
+			return nil
 		}
 		m.debouncedGen = msg.gen
-		return m, tea.Batch(m.maybeStart(), m.writeRecovery())
+		return tea.Batch(m.maybeStart(), m.writeRecovery())
 	case pictureMsg:
 		if msg.gen == m.gen {
 			m.picture.show(msg)
 		}
-		return m, nil
+		return nil
 	case checkRunMsg:
 		if msg.run != m.checkRun {
-			return m, nil
+			return nil
 		}
 		switch inner := msg.msg.(type) {
 		case checkProgressMsg:
 			m.checks.progressed(inner.done, inner.total)
 		case checkDoneMsg:
 			if errors.Is(inner.err, context.Canceled) {
-				return m, nil
+				return nil
 			}
 			m.checks.finished(inner.report, inner.err)
 		}
-		return m, nil
+		return nil
 	case proposeProgressMsg, proposeDoneMsg:
 		m.proposeMsg(msg)
-		return m, nil
+		return nil
 	case fitProgressMsg:
 		if msg.gen == m.gen {
 			m.budget.progressed(msg.done, msg.total)
 		}
-		return m, nil
+		return nil
 	case fitMsg:
 		if msg.gen != m.gen || errors.Is(msg.err, context.Canceled) {
-			return m, nil
+			return nil
 		}
 		m.fitGen = msg.gen
 		m.budget.setTable(msg.table, msg.err)
 		if m.comp.ok() {
 			m.picture.setDesign(m.comp.d.N(), m.comp.reward(), m.payFunc() != nil, m.comp.onInterval())
 		}
-		return m, m.requestPicture()
+		return m.requestPicture()
 	case btRunMsg:
-		return m, m.backtestMsg(msg)
+		return m.backtestMsg(msg)
 	case riskRunMsg:
 		m.riskMsg(msg)
-		return m, nil
+		return nil
 	case researchRunMsg:
 		m.research.Msg(msg)
-		return m, nil
+		return nil
+	}
+	return nil
+}
+
+// fileMsg takes the answers of file work: save, open, export, completion
+// and the recovery file.
+func (m *Model) fileMsg(msg tea.Msg) tea.Cmd {
+	switch msg := msg.(type) {
 	case savedMsg:
 		gen := msg.gen
-		return m, m.fileDone(msg.seq, msg.err, func() {
+		return m.fileDone(msg.seq, msg.err, func() {
 			m.path = msg.path
 			m.savedGen = gen
 			if !m.Unsaved() {
@@ -311,7 +329,7 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		if msg.err == nil && msg.gen != m.gen {
 			msg.err = errors.New("the design changed while the file was read; open it again")
 		}
-		return m, m.fileDone(msg.seq, msg.err, func() {
+		return m.fileDone(msg.seq, msg.err, func() {
 			m.dropRecovery() // the user agreed to drop the old design's edits
 			m.status = "opened " + msg.path
 			m.path = msg.path
@@ -320,23 +338,23 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		if m.dialog != nil {
 			m.dialog.completed(msg)
 		}
-		return m, nil
+		return nil
 	case recoveryFoundMsg:
 		m.foundRecovery(msg)
-		return m, nil
+		return nil
 	case recoveryDoneMsg:
 		if msg.err != nil {
 			m.status = msg.err.Error()
 		} else if msg.note != "" {
 			m.status = msg.note
 		}
-		return m, nil
+		return nil
 	case exportedMsg:
-		return m, m.fileDone(msg.seq, msg.err, func() {
+		return m.fileDone(msg.seq, msg.err, func() {
 			m.status = "exported: " + strings.Join(msg.files, ", ")
 		})
 	}
-	return m, nil
+	return nil
 }
 
 // edited starts a new generation after the design changed: running work

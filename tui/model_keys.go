@@ -5,9 +5,14 @@ import (
 	tea "github.com/charmbracelet/bubbletea"
 )
 
-// key routes a key: ctrl+c first, then open overlays, then a focused text
-// input (which sees every printable key), then global shortcuts, then the
-// focused pane.
+// keyRoute is one stage of routing a key: it reports whether the key was
+// its own and the command that follows.
+type keyRoute func(km tea.KeyMsg) (tea.Cmd, bool)
+
+// key routes a key: questions that wait for an answer first, then ctrl+c,
+// then open overlays, then the view that replaces the panes, then global
+// shortcuts (a focused text input sees every printable key before them),
+// then the focused pane.
 func (m *Model) key(km tea.KeyMsg) tea.Cmd {
 	k := m.keys
 	switch {
@@ -19,111 +24,156 @@ func (m *Model) key(km tea.KeyMsg) tea.Cmd {
 		return m.leaveKey(km)
 	case key.Matches(km, k.QuitHard):
 		return m.leave(leaveQuit, km)
+	case m.help:
+		return m.helpKey(km)
+	case m.dialog != nil:
+		return m.dialogKey(km)
 	}
-	if m.help {
-		switch {
-		case key.Matches(km, k.Help), key.Matches(km, k.Leave), key.Matches(km, k.Quit):
-			m.help = false
-		default:
-			var cmd tea.Cmd
-			m.helpView, cmd = m.helpView.Update(km)
+	for _, route := range []keyRoute{m.backtestKey, m.termsKey, m.researchKey, m.riskKey, m.globalKey} {
+		if cmd, ok := route(km); ok {
 			return cmd
 		}
+	}
+	if m.showBT || m.showRisk || m.research.Shown() {
 		return nil
 	}
-	if m.dialog != nil {
-		d, cmd, act := m.dialog.Update(km)
-		m.dialog = &d
-		switch act {
-		case actCancel:
-			m.dialog = nil
-			m.status = "cancelled"
-			if m.afterSave != nil {
-				m.afterSave = nil
-				m.status = "not saved; the design is still open"
-			}
-		case actSubmit:
-			return tea.Batch(cmd, m.submitDialog())
-		}
-		return cmd
+	return m.routeToPane(km)
+}
+
+// helpKey scrolls or closes the help overlay.
+func (m *Model) helpKey(km tea.KeyMsg) tea.Cmd {
+	k := m.keys
+	if key.Matches(km, k.Help) || key.Matches(km, k.Leave) || key.Matches(km, k.Quit) {
+		m.help = false
+		return nil
 	}
-	if m.showBT {
-		switch {
-		case key.Matches(km, k.Leave), key.Matches(km, k.Backtest):
-			m.showBT = false
-			return m.requestPicture()
-		case key.Matches(km, k.History):
-			m.openDialog(dialogHistory)
-			return nil
-		case key.Matches(km, k.StopRun):
-			if m.bt.Running() || m.cancelBt != nil {
-				m.stopBacktest()
-				m.btRun++ // its late answers are dropped
-				m.bt.stop()
-				m.status = "backtest stopped"
-			}
-			return nil
-		case key.Matches(km, k.Up), key.Matches(km, k.Down), key.Matches(km, k.PageUp), key.Matches(km, k.PageDown):
-			m.bt = m.bt.Update(km)
-			return nil
-		case key.Matches(km, k.NextPane), key.Matches(km, k.PrevPane):
-			m.showBT = false
+	var cmd tea.Cmd
+	m.helpView, cmd = m.helpView.Update(km)
+	return cmd
+}
+
+// dialogKey hands a key to the open file dialog.
+func (m *Model) dialogKey(km tea.KeyMsg) tea.Cmd {
+	d, cmd, act := m.dialog.Update(km)
+	m.dialog = &d
+	switch act {
+	case actCancel:
+		m.dialog = nil
+		m.status = "cancelled"
+		if m.afterSave != nil {
+			m.afterSave = nil
+			m.status = "not saved; the design is still open"
 		}
+	case actSubmit:
+		return tea.Batch(cmd, m.submitDialog())
 	}
-	if m.terms.Shown() {
-		if key.Matches(km, k.Terms) {
-			m.terms.Close()
-			return m.requestPicture()
-		}
-		handled, changed, cmd := m.terms.Key(km, m.d)
-		switch {
-		case changed:
-			return tea.Batch(cmd, m.edited())
-		case handled && !m.terms.Shown():
-			return tea.Batch(cmd, m.requestPicture())
-		case handled:
-			return cmd
-		}
+	return cmd
+}
+
+// backtestKey takes the backtest view's keys while it is shown; tab
+// leaves it for the panes and goes on to move the focus.
+func (m *Model) backtestKey(km tea.KeyMsg) (tea.Cmd, bool) {
+	k := m.keys
+	if !m.showBT {
+		return nil, false
 	}
-	if m.research.Shown() {
-		handled, cmd := m.research.Key(m.ctx, km, m.d, m.gen, m.researchReady())
-		if handled {
-			if !m.research.Shown() {
-				return tea.Batch(cmd, m.requestPicture())
-			}
-			return cmd
+	switch {
+	case key.Matches(km, k.Leave), key.Matches(km, k.Backtest):
+		m.showBT = false
+		return m.requestPicture(), true
+	case key.Matches(km, k.History):
+		m.openDialog(dialogHistory)
+		return nil, true
+	case key.Matches(km, k.StopRun):
+		if m.bt.Running() || m.cancelBt != nil {
+			m.stopBacktest()
+			m.btRun++ // its late answers are dropped
+			m.bt.stop()
+			m.status = "backtest stopped"
 		}
+		return nil, true
+	case key.Matches(km, k.Up), key.Matches(km, k.Down), key.Matches(km, k.PageUp), key.Matches(km, k.PageDown):
+		m.bt = m.bt.Update(km)
+		return nil, true
+	case key.Matches(km, k.NextPane), key.Matches(km, k.PrevPane):
+		m.showBT = false
 	}
-	if m.showRisk {
-		switch {
-		case key.Matches(km, k.Leave), key.Matches(km, k.Risk):
-			m.showRisk = false
-			return m.requestPicture()
-		case key.Matches(km, k.Up):
-			m.risk.sel = (m.risk.sel + riskFieldCount - 1) % riskFieldCount
-			return nil
-		case key.Matches(km, k.Down):
-			m.risk.sel = (m.risk.sel + 1) % riskFieldCount
-			return nil
-		case key.Matches(km, k.Less), key.Matches(km, k.More), key.Matches(km, k.LessFine), key.Matches(km, k.MoreFine):
-			up := key.Matches(km, k.More) || key.Matches(km, k.MoreFine)
-			fine := key.Matches(km, k.LessFine) || key.Matches(km, k.MoreFine)
-			if riskStep(&m.riskIn, m.risk.sel, m.d, up, fine, m.riskCoefs) {
-				if m.risk.sel == riskWealth {
-					m.riskSet = true
-				}
-				return m.maybeRisk()
-			}
-			return nil
-		case key.Matches(km, k.NextPane), key.Matches(km, k.PrevPane):
-			m.showRisk = false
+	return nil, false
+}
+
+// termsKey takes the terms view's keys while it is shown.
+func (m *Model) termsKey(km tea.KeyMsg) (tea.Cmd, bool) {
+	if !m.terms.Shown() {
+		return nil, false
+	}
+	if key.Matches(km, m.keys.Terms) {
+		m.terms.Close()
+		return m.requestPicture(), true
+	}
+	handled, changed, cmd := m.terms.Key(km, m.d)
+	switch {
+	case changed:
+		return tea.Batch(cmd, m.edited()), true
+	case handled && !m.terms.Shown():
+		return tea.Batch(cmd, m.requestPicture()), true
+	}
+	return cmd, handled
+}
+
+// researchKey takes the research view's keys while it is shown.
+func (m *Model) researchKey(km tea.KeyMsg) (tea.Cmd, bool) {
+	if !m.research.Shown() {
+		return nil, false
+	}
+	handled, cmd := m.research.Key(m.ctx, km, m.d, m.gen, m.researchReady())
+	if handled && !m.research.Shown() {
+		return tea.Batch(cmd, m.requestPicture()), true
+	}
+	return cmd, handled
+}
+
+// riskKey takes the risk view's keys while it is shown: ↑/↓ choose an
+// input, ←/→ step it (a change reruns the view).
+func (m *Model) riskKey(km tea.KeyMsg) (tea.Cmd, bool) {
+	k := m.keys
+	if !m.showRisk {
+		return nil, false
+	}
+	switch {
+	case key.Matches(km, k.Leave), key.Matches(km, k.Risk):
+		m.showRisk = false
+		return m.requestPicture(), true
+	case key.Matches(km, k.Up):
+		m.risk.sel = (m.risk.sel + riskFieldCount - 1) % riskFieldCount
+		return nil, true
+	case key.Matches(km, k.Down):
+		m.risk.sel = (m.risk.sel + 1) % riskFieldCount
+		return nil, true
+	case key.Matches(km, k.Less), key.Matches(km, k.More), key.Matches(km, k.LessFine), key.Matches(km, k.MoreFine):
+		up := key.Matches(km, k.More) || key.Matches(km, k.MoreFine)
+		fine := key.Matches(km, k.LessFine) || key.Matches(km, k.MoreFine)
+		if !riskStep(&m.riskIn, m.risk.sel, m.d, up, fine, m.riskCoefs) {
+			return nil, true
 		}
+		if m.risk.sel == riskWealth {
+			m.riskSet = true
+		}
+		return m.maybeRisk(), true
+	case key.Matches(km, k.NextPane), key.Matches(km, k.PrevPane):
+		m.showRisk = false
 	}
+	return nil, false
+}
+
+// globalKey takes the keys that work from any pane and view. Printable
+// ones (?, q) only while nothing is being typed.
+func (m *Model) globalKey(km tea.KeyMsg) (tea.Cmd, bool) {
+	k := m.keys
 	typing := m.designPane.Typing() || m.budget.Typing()
 	switch {
 	case km.Type == tea.KeyF1 || (!typing && key.Matches(km, k.Help)):
 		m.openHelp()
-		return nil
+		return nil, true
 	case key.Matches(km, k.NextPane), key.Matches(km, k.PrevPane):
 		step := 1
 		if key.Matches(km, k.PrevPane) {
@@ -131,44 +181,50 @@ func (m *Model) key(km tea.KeyMsg) tea.Cmd {
 		}
 		m.setFocus((m.focus + pane(step)) % paneCount)
 		m.layout()
-		return m.requestPicture()
+		return m.requestPicture(), true
 	case key.Matches(km, k.Save):
 		m.openDialog(dialogSave)
-		return nil
+		return nil, true
 	case key.Matches(km, k.Open):
-		return m.leave(leaveOpen, km)
+		return m.leave(leaveOpen, km), true
 	case key.Matches(km, k.Export):
 		m.openDialog(dialogExport)
-		return nil
+		return nil, true
+	case !typing && key.Matches(km, k.Demo):
+		return m.leave(leaveDemo, km), true
+	case !typing && !m.designPane.Picking() && key.Matches(km, k.Quit):
+		return m.leave(leaveQuit, km), true
+	}
+	return m.viewSwitchKey(km)
+}
+
+// viewSwitchKey opens or closes the views that replace the panes; at most
+// one shows at a time.
+func (m *Model) viewSwitchKey(km tea.KeyMsg) (tea.Cmd, bool) {
+	k := m.keys
+	switch {
 	case key.Matches(km, k.Backtest):
 		m.showRisk = false
 		m.research.Close()
 		m.terms.Close()
-		return m.toggleBacktest()
+		return m.toggleBacktest(), true
 	case key.Matches(km, k.Risk):
 		m.research.Close()
 		m.terms.Close()
-		return m.toggleRisk()
+		return m.toggleRisk(), true
 	case key.Matches(km, k.Terms):
 		m.stopTyping()
 		m.showBT, m.showRisk = false, false
 		m.research.Close()
 		m.terms.Toggle()
-		return nil
+		return nil, true
 	case key.Matches(km, k.Research):
 		m.stopTyping()
 		m.terms.Close()
 		m.showBT, m.showRisk = false, false
-		return m.research.Toggle(m.ctx, m.d, m.gen, m.researchReady())
-	case !typing && key.Matches(km, k.Demo):
-		return m.leave(leaveDemo, km)
-	case !typing && !m.designPane.Picking() && key.Matches(km, k.Quit):
-		return m.leave(leaveQuit, km)
+		return m.research.Toggle(m.ctx, m.d, m.gen, m.researchReady()), true
 	}
-	if m.showBT || m.showRisk || m.research.Shown() {
-		return nil
-	}
-	return m.routeToPane(km)
+	return nil, false
 }
 
 func (m *Model) routeToPane(km tea.KeyMsg) tea.Cmd {

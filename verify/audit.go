@@ -4,7 +4,6 @@ import (
 	"context"
 	"fmt"
 	"math"
-	"math/rand/v2"
 	"sort"
 
 	"scorewright/generator/payout"
@@ -101,17 +100,7 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	if g.Sampled {
 		rep.Notes = append(rep.Notes, sampledNote(s, n, g.Len()))
 	}
-	pays := newMenu(n, G)
-	evs := make([]*payout.Evaluator, s.Workers)
-	for i := range evs {
-		evs[i] = p.NewEvaluator()
-	}
-	err := pool.Run(ctx, s.Workers, G, 256, func(w, lo, hi int) {
-		for j := lo; j < hi; j++ {
-			evs[w].Pays(pays.rows[j*n:(j+1)*n], g.Point(j))
-		}
-		pr.Add(int64(hi-lo) * gradCost)
-	})
+	pays, err := auditPays(ctx, p, g, s, pr)
 	if err != nil {
 		return nil, err
 	}
@@ -140,23 +129,7 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 		honest[i] = m.phi(g.Point(i), i)
 	}
 	prop, _, ties := properness(g, m, honest, bs, s.Tolerance, rep.Grid.Scale)
-
-	rep.Beliefs = make([]BeliefGap, G)
-	for i, b := range bs {
-		q := g.Point(i)
-		bg := BeliefGap{Belief: q, BestReport: q, Honest: -honest[i]}
-		// A gap within the tolerance is rounding: the honest report stands.
-		if m.bad[i] {
-			// The payout is undefined (NaN) at the honest report: there is
-			// no gap to speak of, and properness reports the belief.
-			bg.Gap, bg.Honest = math.NaN(), math.NaN()
-		} else if gap := honest[i] - b.m1; b.arg >= 0 && gap > s.Tolerance && !math.IsInf(honest[i], 1) {
-			bg.Gap, bg.BestReport = gap, g.Point(int(b.arg))
-		} else if math.IsInf(honest[i], 1) && b.arg >= 0 && !math.IsInf(b.m1, 1) {
-			bg.Gap, bg.BestReport = math.Inf(1), g.Point(int(b.arg))
-		}
-		rep.Beliefs[i] = bg
-	}
+	rep.Beliefs = beliefTable(g, m, honest, bs, s.Tolerance)
 	offGain, err := offGridReports(ctx, p, g, rep.Beliefs, s, pr)
 	if err != nil {
 		return nil, err
@@ -173,9 +146,61 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	}); err != nil {
 		return nil, err
 	}
+	largestGap(rep, &prop, p, g, s.Tolerance)
+	auditVerdict(rep, prop, bounded, ties, p, s.Tolerance)
+	fits, err := identify(ctx, g, pays, cands, pr)
+	if err != nil {
+		return nil, err
+	}
+	auditFits(rep, fits)
+	return rep, nil
+}
 
-	// The largest gap, from the per-belief table (which now includes the
-	// refinement), then sharpened jointly over belief and report.
+// auditPays evaluates the payout at every grid report: the menu of pays.
+func auditPays(ctx context.Context, p *payout.Payout, g *simplex.Grid, s Settings, pr *pool.Meter) (*menu, error) {
+	n, G := g.N, g.Len()
+	pays := newMenu(n, G)
+	evs := make([]*payout.Evaluator, s.Workers)
+	for i := range evs {
+		evs[i] = p.NewEvaluator()
+	}
+	err := pool.Run(ctx, s.Workers, G, 256, func(w, lo, hi int) {
+		for j := lo; j < hi; j++ {
+			evs[w].Pays(pays.rows[j*n:(j+1)*n], g.Point(j))
+		}
+		pr.Add(int64(hi-lo) * gradCost)
+	})
+	return pays, err
+}
+
+// beliefTable is the audit's finding at every grid belief from the stream
+// on efforts m = -pay: the honest pay, and the best grid report with its
+// gap where that is more than the tolerance T (within it is rounding: the
+// honest report stands).
+func beliefTable(g *simplex.Grid, m *menu, honest []float64, bs []best, T float64) []BeliefGap {
+	out := make([]BeliefGap, len(bs))
+	for i, b := range bs {
+		q := g.Point(i)
+		bg := BeliefGap{Belief: q, BestReport: q, Honest: -honest[i]}
+		if m.bad[i] {
+			// The payout is undefined (NaN) at the honest report: there is
+			// no gap to speak of, and properness reports the belief.
+			bg.Gap, bg.Honest = math.NaN(), math.NaN()
+		} else if gap := honest[i] - b.m1; b.arg >= 0 && gap > T && !math.IsInf(honest[i], 1) {
+			bg.Gap, bg.BestReport = gap, g.Point(int(b.arg))
+		} else if math.IsInf(honest[i], 1) && b.arg >= 0 && !math.IsInf(b.m1, 1) {
+			bg.Gap, bg.BestReport = math.Inf(1), g.Point(int(b.arg))
+		}
+		out[i] = bg
+	}
+	return out
+}
+
+// largestGap takes the largest gap from the per-belief table (which by now
+// includes the off-grid reports and the refinement) or from the search
+// over reports, sharpens it jointly over belief and report, and makes it
+// properness's witness when it is more than the tolerance T.
+func largestGap(rep *AuditReport, prop *CheckResult, p *payout.Payout, g *simplex.Grid, T float64) {
 	for _, bg := range rep.Beliefs {
 		if bg.Gap != bg.Gap {
 			rep.Undefined++ // no gap where the payout is undefined
@@ -191,17 +216,23 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	if prop.Worst > rep.Gap.Max && prop.Sharpened {
 		rep.Gap = Gap{Max: prop.Worst, Belief: prop.Belief, BestReport: prop.Report}
 	}
-	if rep.Gap.Max > s.Tolerance && !math.IsInf(rep.Gap.Max, 0) {
+	if rep.Gap.Max > T && !math.IsInf(rep.Gap.Max, 0) {
 		ev := p.NewEvaluator()
-		sharpenGap(&rep.Gap, n, cellOf(g), func(q, r []float64) float64 { return ev.Expected(q, r) - ev.Expected(q, q) })
+		sharpenGap(&rep.Gap, g.N, cellOf(g), func(q, r []float64) float64 { return ev.Expected(q, r) - ev.Expected(q, q) })
 	}
 	rep.Gap.Belief, rep.Gap.BestReport = clone(rep.Gap.Belief), clone(rep.Gap.BestReport)
-	if rep.Gap.Max > s.Tolerance && prop.Worst == prop.Worst {
+	if rep.Gap.Max > T && prop.Worst == prop.Worst {
 		prop.Passed, prop.Strict = false, false
 		prop.Worst, prop.Belief, prop.Report = rep.Gap.Max, rep.Gap.Belief, rep.Gap.BestReport
 		prop.Sharpened, prop.GridWorst, prop.Status = rep.Gap.Sharpened, rep.Gap.GridMax, rep.Gap.Status
-		markPart(&prop)
+		markPart(prop)
 	}
+}
+
+// auditVerdict settles strictness (ties confirmed or dismissed), words
+// properness, and sets the checks, the verdict, the direction (n = 2) and
+// the implied expected pay.
+func auditVerdict(rep *AuditReport, prop, bounded CheckResult, ties []tiePair, p *payout.Payout, T float64) {
 	roundingOnly := !prop.Strict && prop.Passed
 	confirmPayoutTie(p, &prop, ties)
 	prop.Note = propernessNote(prop, "pay", "more")
@@ -217,17 +248,17 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	default:
 		rep.Verdict = Proper
 	}
-	if n == 2 {
-		direction(rep, s.Tolerance)
+	if p.Outcomes() == 2 {
+		direction(rep, T)
 	}
 	if rep.Verdict != Improper {
 		rep.Notes = append(rep.Notes, expectedPayNote(rep))
 	}
+}
 
-	fits, err := identify(ctx, g, pays, cands, pr)
-	if err != nil {
-		return nil, err
-	}
+// auditFits records the fits to the candidate rules: the best accepted
+// one is the identification, others that fit as well are noted.
+func auditFits(rep *AuditReport, fits []Identification) {
 	if rep.Verdict == Improper {
 		// An affine image of a proper rule is proper: a fit on the grid
 		// points of an improper payout says only that the two agree there.
@@ -245,94 +276,6 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 			if f.Note == "" {
 				rep.Notes = append(rep.Notes, fmt.Sprintf("the payout also fits %q%s exactly (scale %.6g, shift %.6g): the two rules coincide up to scale and shift here", f.Preset, f.WithParam(), f.Scale, f.Shift))
 			}
-		}
-	}
-	return rep, nil
-}
-
-// offGridReports pits every grid belief against offGridCount(G) random
-// interior reports: a payout can reward a report no grid point is (a
-// jackpot on a thin band, pay 2 when p1 is within 2e-4 of 0.5005), and
-// the grid stream alone would call it strictly proper. A belief whose
-// best random report beats both honesty (by more than the slack) and its
-// best grid report takes that report. It returns how many beliefs did.
-func offGridReports(ctx context.Context, p *payout.Payout, g *simplex.Grid, bgs []BeliefGap, s Settings, pr *pool.Meter) (int, error) {
-	n, G := g.N, g.Len()
-	R := offGridCount(G)
-	reps := randomInterior(n, R, s.Seed, 0x7e90)
-	onFaces(reps, n, s.Seed)
-	pays := make([]float64, R*n)
-	evs := make([]*payout.Evaluator, s.Workers)
-	for i := range evs {
-		evs[i] = p.NewEvaluator()
-	}
-	err := pool.Run(ctx, s.Workers, R, 256, func(w, lo, hi int) {
-		for j := lo; j < hi; j++ {
-			evs[w].Pays(pays[j*n:(j+1)*n], reps[j*n:(j+1)*n])
-		}
-	})
-	if err != nil {
-		return 0, err
-	}
-	gained := make([]bool, G)
-	err = pool.Run(ctx, s.Workers, G, 16, func(_, lo, hi int) {
-		for i := lo; i < hi; i++ {
-			bg := &bgs[i]
-			if bg.Honest != bg.Honest || math.IsInf(bg.Honest, 0) {
-				continue // undefined or infinite honest pay: nothing to compare
-			}
-			q := g.Point(i)
-			best, arg := math.Inf(-1), -1
-			for j := 0; j < R; j++ {
-				row := pays[j*n : (j+1)*n]
-				var v float64
-				for k, x := range q {
-					if x != 0 {
-						v += x * row[k]
-					}
-				}
-				if v > best && !math.IsInf(v, 1) { // NaN never compares greater
-					best, arg = v, j
-				}
-			}
-			// Only a clear gain counts: a tie with the grid's best (the
-			// linear rule's best reports fill whole faces) is not news.
-			if gap := best - bg.Honest; arg >= 0 && gap > s.Tolerance && gap > bg.Gap+s.Tolerance {
-				bg.Gap, bg.BestReport, gained[i] = gap, clone(reps[arg*n:(arg+1)*n]), true
-			}
-		}
-		pr.Add(int64(hi-lo) * int64(R))
-	})
-	count := 0
-	for _, b := range gained {
-		if b {
-			count++
-		}
-	}
-	return count, err
-}
-
-// onFaces moves every fourth of the random reports onto a random face of
-// the simplex (1..n-2 coordinates set to 0, the rest renormalised): a
-// payout can reward a band of reports that rule some outcome out, which
-// no interior report reaches. Vertices are grid points already.
-func onFaces(reps []float64, n int, seed uint64) {
-	if n < 3 {
-		return
-	}
-	rng := rand.New(rand.NewPCG(seed, 0xface))
-	for j := 0; j*n < len(reps); j += 4 {
-		r := reps[j*n : (j+1)*n]
-		zero := 1 + rng.IntN(n-2)
-		for _, k := range rng.Perm(n)[:zero] {
-			r[k] = 0
-		}
-		var sum float64
-		for _, v := range r {
-			sum += v
-		}
-		for k := range r {
-			r[k] /= sum
 		}
 	}
 }

@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"scorewright/generator/bregman"
+	"scorewright/generator/payout"
 	"scorewright/internal/pool"
 	"scorewright/internal/simplex"
 )
@@ -80,4 +81,37 @@ func visitedShare(g *simplex.Grid, m *menu) float64 {
 		panic(err)
 	}
 	return float64(count) / float64(g.Len()) / float64(g.Len())
+}
+
+// BenchmarkAuditAgainstCheck is the audit of the quadratic payout beside
+// the check of the quadratic rule on the same grid (n = 3, K = 200): the
+// target is an audit within 1.5 times the check.
+func BenchmarkAuditAgainstCheck(b *testing.B) {
+	const n, k = 3, 200
+	pay, err := payout.New("10 - 5*sum((p - hit)^2)", payout.Options{Outcomes: n})
+	if err != nil {
+		b.Fatal(err)
+	}
+	f, err := bregman.NewFormula("1 - sum(p^2)", bregman.Options{Outcomes: n})
+	if err != nil {
+		b.Fatal(err)
+	}
+	r := &bregman.Rule{Gen: f}
+	for _, kind := range []string{"check", "audit"} {
+		b.Run(kind, func(b *testing.B) {
+			cpu := cpuSeconds()
+			for range b.N {
+				var err error
+				if kind == "check" {
+					_, err = CheckRule(context.Background(), r, Settings{Resolution: k})
+				} else {
+					_, err = Audit(context.Background(), pay, nil, Settings{Resolution: k})
+				}
+				if err != nil {
+					b.Fatal(err)
+				}
+			}
+			b.ReportMetric((cpuSeconds()-cpu)/float64(b.N), "cpu-s/op")
+		})
+	}
 }

@@ -148,25 +148,8 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	}
 	aff := affinity(g, m, affTol, s.Seed)
 
-	// Sharpen the witnesses of failing checks beyond the grid.
 	sc := scorers[0]
-	effQ, effP := make([]float64, n), make([]float64, n)
-	if !prop.Passed && prop.Belief != nil && prop.Report != nil {
-		sharpenPair(&prop, n, cellOf(g), func(q, p []float64) float64 {
-			sc.Efforts(effQ, q)
-			sc.Efforts(effP, p)
-			return -(bregman.Dot(q, effQ) - bregman.Dot(q, effP))
-		}, -1)
-	}
-	if !nonneg.Passed && nonneg.Belief != nil && nonneg.Report != nil {
-		sharpenPair(&nonneg, n, cellOf(g), func(q, p []float64) float64 {
-			sc.Efforts(effP, p)
-			return bregman.Dot(q, effP) - sc.Entropy(q)
-		}, 1)
-	}
-	if !conc.Passed && conc.Belief != nil && !math.IsInf(conc.Worst, 1) {
-		sharpenConcavity(&conc, r, onBoundary(conc.Belief), cellOf(g))
-	}
+	sharpenWitnesses(&prop, &nonneg, &conc, r, sc, g)
 
 	conc.Note = joinNotes(concavityWitness(conc), conc.Note)
 	if mid := midpoints(g, sc, s.Tolerance, s.Seed); mid.found {
@@ -202,6 +185,29 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 		restOnProof(rep, s.Proof, rep.Grid.Boundary)
 	}
 	return rep, nil
+}
+
+// sharpenWitnesses sharpens the witnesses of failing checks beyond the
+// grid by local optimisation.
+func sharpenWitnesses(prop, nonneg, conc *CheckResult, r *bregman.Rule, sc *bregman.Scorer, g *simplex.Grid) {
+	n := g.N
+	effQ, effP := make([]float64, n), make([]float64, n)
+	if !prop.Passed && prop.Belief != nil && prop.Report != nil {
+		sharpenPair(prop, n, cellOf(g), func(q, p []float64) float64 {
+			sc.Efforts(effQ, q)
+			sc.Efforts(effP, p)
+			return -(bregman.Dot(q, effQ) - bregman.Dot(q, effP))
+		}, -1)
+	}
+	if !nonneg.Passed && nonneg.Belief != nil && nonneg.Report != nil {
+		sharpenPair(nonneg, n, cellOf(g), func(q, p []float64) float64 {
+			sc.Efforts(effP, p)
+			return bregman.Dot(q, effP) - sc.Entropy(q)
+		}, 1)
+	}
+	if !conc.Passed && conc.Belief != nil && !math.IsInf(conc.Worst, 1) {
+		sharpenConcavity(conc, r, onBoundary(conc.Belief), cellOf(g))
+	}
 }
 
 // restOnProof gives a check that streamed only what a proof leaves the
@@ -240,7 +246,10 @@ func sharpenedNote(c CheckResult) string {
 	if !c.Sharpened {
 		return ""
 	}
-	return fmt.Sprintf("sharpened beyond the grid by Nelder–Mead (%s) from %.6g at the unsharpened witness", c.Status, c.GridWorst)
+	if fmt.Sprintf("%.6g", c.Worst) == fmt.Sprintf("%.6g", c.GridWorst) {
+		return fmt.Sprintf("a local search between the grid points, from the grid's worst case, found nothing worse (the search %s)", c.Status)
+	}
+	return fmt.Sprintf("worse between the grid points: a local search from the grid's worst case, %.6g, found %.6g (the search %s)", c.GridWorst, c.Worst, c.Status)
 }
 
 func concavityWitness(c CheckResult) string {

@@ -236,9 +236,9 @@ func (f *fitter) fitParam(ctx context.Context, c Candidate, pr *pool.Meter) (v f
 		return 0, "", err
 	}
 	if !ok {
-		return value(bestU), fmt.Sprintf("Nelder–Mead stopped (%s); the best of %d scanned values kept", status, identScan), nil
+		return value(bestU), fmt.Sprintf("the best of %d values tried; a local search to refine it %s, so it was not used", identScan, status), nil
 	}
-	return value(x[0]), fmt.Sprintf("%d scanned values, then Nelder–Mead (%s)", identScan, status), nil
+	return value(x[0]), fmt.Sprintf("the best of %d values tried, refined by a local search that %s", identScan, status), nil
 }
 
 // identify fits pay = shift + scale × (-L) for every candidate (and its

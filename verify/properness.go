@@ -172,7 +172,7 @@ func searchReports(ctx context.Context, g *simplex.Grid, prop *CheckResult, s Se
 			prop.GridWorst = prop.Worst
 			prop.Worst, prop.Belief, prop.Report = fd.gap, fd.q, fd.p
 			prop.Passed, prop.Strict, prop.Sharpened = false, false, true
-			prop.Status = "found off the sampled grid by Nelder–Mead over reports"
+			prop.Status = "found off the sampled grid by a local search over reports"
 			markPart(prop)
 		}
 	}

@@ -84,34 +84,45 @@ func (t *reportTree) split(g *simplex.Grid, i, lo, hi int) {
 		return
 	}
 	ids := t.idx[lo:hi]
-	axis, wide := 0, -1.0
-	for k := 0; k < g.N; k++ {
-		a, b := math.Inf(1), math.Inf(-1)
-		for _, j := range ids {
-			v := g.Coords[int(j)*g.N+k]
-			a, b = math.Min(a, v), math.Max(b, v)
+	n := g.N
+	var a, b [16]float64 // coordinates lie in [0, 1]
+	for k := range n {
+		a[k], b[k] = 2, -1
+	}
+	for _, j := range ids {
+		for k, v := range g.Coords[int(j)*n : int(j)*n+n] {
+			if v < a[k] {
+				a[k] = v
+			}
+			if v > b[k] {
+				b[k] = v
+			}
 		}
-		if b-a > wide {
-			axis, wide = k, b-a
+	}
+	axis := 0
+	for k := 1; k < n; k++ {
+		if b[k]-a[k] > b[axis]-a[axis] {
+			axis = k
 		}
 	}
 	mid := (hi - lo) / 2
-	selectNth(ids, mid, func(j int32) float64 { return g.Coords[int(j)*g.N+axis] })
+	selectNth(ids, mid, g.Coords[axis:], n)
 	t.split(g, c, lo, lo+mid)
 	t.split(g, c+1, lo+mid, hi)
 }
 
-// selectNth reorders ids so that ids[k] has rank k by key, smaller keys
-// before it and larger after (quickselect, middle pivot; the lattice's
-// many equal keys are split evenly by the three-way partition).
-func selectNth(ids []int32, k int, key func(int32) float64) {
+// selectNth reorders ids so that ids[k] has rank k by key (key[j·stride]
+// for report j), smaller keys before it and larger after (quickselect,
+// middle pivot; the lattice's many equal keys are split evenly by the
+// three-way partition).
+func selectNth(ids []int32, k int, key []float64, stride int) {
 	lo, hi := 0, len(ids)
 	for hi-lo > 1 {
-		p := key(ids[lo+(hi-lo)/2])
+		p := key[int(ids[lo+(hi-lo)/2])*stride]
 		// Three-way partition of [lo, hi) around p.
 		lt, i, gt := lo, lo, hi
 		for i < gt {
-			v := key(ids[i])
+			v := key[int(ids[i])*stride]
 			switch {
 			case v < p:
 				ids[lt], ids[i] = ids[i], ids[lt]
@@ -175,12 +186,19 @@ func (t *reportTree) bounds(rows []float64) []float64 {
 // beliefs (prune_block.go); one belief at a time is left for the beliefs
 // the blocks do not take.
 func (t *reportTree) walk(q []float64, safe bool) (best, int) {
+	return t.walkFrom(q, safe, pruneState{m1: math.Inf(1), m2: math.Inf(1), a1: -1, a2: -1})
+}
+
+// walkFrom is walk from the state st: with st.m1 = st.m2 = c and no
+// reports, it finds the best two among the values below c (c itself
+// where there are fewer), pruning everything at or above c from the
+// start.
+func (t *reportTree) walkFrom(q []float64, safe bool, st pruneState) (best, int) {
 	rows, lo := t.rows, t.lo
 	if safe {
 		rows, lo = t.safe, t.loSafe
 	}
 	n := t.n
-	st := pruneState{m1: math.Inf(1), m2: math.Inf(1), a1: -1, a2: -1}
 	// Depth-first, the child with the lower bound first: it holds the
 	// honest report's neighbourhood, which sets a tight second best early.
 	var stack [64]struct {
