@@ -234,7 +234,7 @@ func (m *Model) viewSwitchKey(km tea.KeyMsg) (tea.Cmd, bool) {
 func (m *Model) routeToPane(km tea.KeyMsg) tea.Cmd {
 	switch m.focus {
 	case paneDesign:
-		if m.designPane.Picking() && key.Matches(km, m.keys.Edit) && handWritten(m.d) && m.Unsaved() {
+		if m.designPane.Picking() && key.Matches(km, m.keys.Edit) && !m.designPane.AsksFirst(m.d) && handWritten(m.d) && m.Unsaved() {
 			return m.leave(leavePreset, km)
 		}
 		return m.designKey(km)
