@@ -12,7 +12,9 @@
 //
 // Five small packages, each usable from the workbench without the command line.
 //
-// **Designing by emphasis (`generator/emphasis`, n = 2).** `emphasis.New(src, emphasis.Options{Params})`
+// # Designing by emphasis: generator/emphasis, n = 2
+//
+// `emphasis.New(src, emphasis.Options{Params})`
 // compiles a weight w(c) (formula scope `Vars: ["c"]`) and returns a `*Generator` that is a
 // `bregman.Generator`, so `bregman.Rule{Gen: g}` and every check, table and backtest take it.
 // L(p, yes) = ∫_p^1 (1-c) w dc and L(p, no) = ∫_0^p c w dc (Schervish 1989), so a certain,
@@ -42,7 +44,9 @@
 // builds it for `ModeEmphasis` (`--emphasis EXPR` or `--preset beta`), refuses a negative weight
 // naming where, and `ruleWarnings(rule)` gives the unbounded-end notes `eval` prints.
 //
-// **Point forecasts of a mean (`generator/point`, `verify/pointcheck`).** `point.New(src, lo, hi,
+// # Point forecasts of a mean: generator/point, verify/pointcheck
+//
+// `point.New(src, lo, hi,
 // point.Options{Params})`, scope `Vars: ["x"]`; an `Evaluator` gives `Phi`, `Derivatives` (exact,
 // from the formula machine), `Line` Phi(y, x) = phi(x) + phi'(x)(y - x), `Divergence` D(y, x) and
 // `Expected(x, ys, ws)`. `verify/pointcheck.CheckGenerator(ctx, g, Settings{Resolution, Tolerance,
@@ -67,7 +71,9 @@
 // one-line hook when the design is in point mode. A point design's `--step` is in the units of
 // the interval: `Design.ValidateBudget` reads the step by mode.
 //
-// **Risk attitude (`contract/risk`, `scorewright distort`).** `risk.ParseUtility("crra:R" |
+// # Risk attitude: contract/risk, scorewright distort
+//
+// `risk.ParseUtility("crra:R" |
 // "cara:A" | "linear")`, `risk.NewSolver(rule, risk.Contract{A, B, MinPay, ReportFloor}, u,
 // wealth)`; `Best(q)` maximises sum_k q_k u(W + A - B L(p, k)) over reports above the report
 // floor, comparing reports by their certainty equivalent (money; log-sum-exp with expm1/log1p, so
@@ -87,7 +93,9 @@
 // no menu and the exact formula pays (`budget.StepTerms` fits over the finest simplex grid of at most
 // `budget.MaxMenu` reports, unrounded).
 //
-// **Lottery payments (`contract/lottery`, `table --lottery`).** `lottery.Convert(t, floor, cap)`
+// # Lottery payments: contract/lottery, table --lottery
+//
+// `lottery.Convert(t, floor, cap)`
 // turns a money `table.Table` into chances (pay - floor)/(cap - floor) (`KindChance`, value name
 // "chance"), rescales the smallest margin, restates the payment, and appends `lottery.Why` (the
 // Hossain & Okui 2013 argument), `lottery.Draw` (how to settle the draw verifiably) and

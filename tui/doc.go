@@ -12,6 +12,13 @@
 // outdated design are dropped. Running checks are cancelled through their
 // context as soon as the design changes.
 //
+// Every kind of background work (checks, fit, picture, backtest, risk) is
+// kept as one job (tui/job.go): the id of its latest run, the generation it
+// is for, and its cancel function; start replaces a run, drop makes its
+// answers stale. The backtest and risk views lay themselves out when a
+// run's message, a key, the size or the design changes, and View only
+// returns what was laid out.
+//
 // Settings, styles and the key map are passed to the panes explicitly;
 // the package keeps no mutable state of its own.
 //

@@ -85,9 +85,8 @@ func (m *Model) backtestKey(km tea.KeyMsg) (tea.Cmd, bool) {
 		m.openDialog(dialogHistory)
 		return nil, true
 	case key.Matches(km, k.StopRun):
-		if m.bt.Running() || m.cancelBt != nil {
-			m.stopBacktest()
-			m.btRun++ // its late answers are dropped
+		if m.bt.Running() || m.btJob.running() {
+			m.btJob.drop() // its late answers are dropped
 			m.bt.stop()
 			m.status = "backtest stopped"
 		}
@@ -139,6 +138,7 @@ func (m *Model) riskKey(km tea.KeyMsg) (tea.Cmd, bool) {
 	if !m.showRisk {
 		return nil, false
 	}
+	defer m.refreshRisk()
 	switch {
 	case key.Matches(km, k.Leave), key.Matches(km, k.Risk):
 		m.showRisk = false
@@ -243,7 +243,7 @@ func (m *Model) routeToPane(km tea.KeyMsg) tea.Cmd {
 	case paneChecks:
 		if key.Matches(km, m.keys.Rerun) {
 			m.debouncedGen = m.gen
-			m.checkGen = 0
+			m.checkJob.gen = 0
 			return m.maybeStart()
 		}
 	case paneBudget:

@@ -169,11 +169,14 @@ type RiskView struct {
 	res     *RiskResult
 	err     error
 	stale   bool // the result is for earlier inputs or an earlier design
+	// body is the view laid out by refresh, when a result, the size, the
+	// inputs or the design changed; View only returns it.
+	body string
 }
 
 // NewRiskView returns an empty risk view.
 func NewRiskView(st Styles, keys KeyMap) RiskView {
-	bar := progress.New(progress.WithFillCharacters('█', '░'), progress.WithoutPercentage(), progress.WithSolidFill("#6FD3B5"))
+	bar := progress.New(progress.WithFillCharacters('█', '░'), progress.WithoutPercentage(), progress.WithSolidFill(barColour))
 	return RiskView{st: st, keys: keys, bar: bar}
 }
 

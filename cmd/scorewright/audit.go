@@ -83,19 +83,12 @@ func runAudit(e *env, args []string) error {
 // auditDesign audits the payout of a design and prints the report;
 // errFailed after printing when the payout is improper or a check failed.
 func auditDesign(e *env, d *design.Design, vf *verifyFlags) error {
-	r, err := openRule(d)
+	v, err := startVerify(e, d, vf)
 	if err != nil {
 		return err
 	}
-	if err := refuseCertifyOnInterval(r, vf.cert); err != nil {
-		return err
-	}
-	s, err := vf.settings(e, d.N())
-	if err != nil {
-		return err
-	}
-	ctx, stop := interruptible()
-	defer stop()
+	defer v.stop()
+	r, s, ctx := v.r, v.s, v.ctx
 	s.Labels = d.Labels
 	found, err := r.Audit(ctx, s)
 	switch {
@@ -111,20 +104,8 @@ func auditDesign(e *env, d *design.Design, vf *verifyFlags) error {
 	if err != nil {
 		return err
 	}
-	if vf.asJSON {
-		out := newAuditJSON(d.Formula, d.Labels, rep)
-		out.Certificate = cert
-		if err := writeJSON(e.stdout, out); err != nil {
-			return err
-		}
-	} else {
-		printAudit(e, d.Formula, d.Labels, found)
-		printCertificate(e.stdout, cert)
-	}
-	if found.Failed() || proved {
-		return errFailed
-	}
-	return nil
+	out := newAuditJSON(d.Formula, d.Labels, rep)
+	return v.finish(e, vf, &out, func() { printAudit(e, d.Formula, d.Labels, found) }, cert, found.Failed(), proved)
 }
 
 // payoutDesign is the design audit builds from --outcomes, --payout,

@@ -2,7 +2,6 @@ package main
 
 import (
 	"bytes"
-	"encoding/csv"
 	"fmt"
 	"math"
 	"os"
@@ -32,16 +31,7 @@ func TestBacktestPaysByFormulaWithoutMenu(t *testing.T) {
 		!strings.Contains(out.String(), "menu: none: reports are paid by the exact formula") {
 		t.Errorf("output does not say the forecasts are paid by the formula:\n%s", out.String())
 	}
-	data, err := os.ReadFile(payOut)
-	if err != nil {
-		t.Fatal(err)
-	}
-	r := csv.NewReader(bytes.NewReader(data))
-	r.Comment = '#'
-	recs, err := r.ReadAll()
-	if err != nil {
-		t.Fatal(err)
-	}
+	recs := readRecords(t, payOut)
 	pay, _ := strconv.ParseFloat(recs[1][4], 64)
 	if want := 10 - 10*0.141659*0.141659; math.Abs(pay-want) > 1e-9 || recs[1][1] != "Tern" || recs[1][6] != "true" {
 		t.Errorf("first row %v: pay %.12g, want %.12g by the formula, on menu true (there is no menu)", recs[1], pay, want)
@@ -78,14 +68,7 @@ func TestBacktestManyForecasters(t *testing.T) {
 	if code, _, stderr := runBacktestCmd(t, append(args, "--forecasters-out", all)...); code != 0 {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
-	data, err := os.ReadFile(all)
-	if err != nil {
-		t.Fatal(err)
-	}
-	r := csv.NewReader(bytes.NewReader(data))
-	r.Comment = '#'
-	recs, err := r.ReadAll()
-	if err != nil || len(recs) != 51 || recs[1][0] != "F00" || recs[50][0] != "F49" {
-		t.Errorf("forecasters file: %d records, %v", len(recs), err)
+	if recs := readRecords(t, all); len(recs) != 51 || recs[1][0] != "F00" || recs[50][0] != "F49" {
+		t.Errorf("forecasters file: %d records", len(recs))
 	}
 }

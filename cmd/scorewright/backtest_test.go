@@ -40,6 +40,23 @@ func explicitPay(d *design.Design, s *backtest.Scheme) {
 	s.Adjust, s.Record = nil, nil
 }
 
+// readRecords reads the CSV file a command wrote, its "# key: value"
+// record skipped.
+func readRecords(t *testing.T, path string) [][]string {
+	t.Helper()
+	data, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	r := csv.NewReader(bytes.NewReader(data))
+	r.Comment = '#'
+	recs, err := r.ReadAll()
+	if err != nil {
+		t.Fatalf("%s: %v", path, err)
+	}
+	return recs
+}
+
 func runBacktestCmd(t *testing.T, args ...string) (int, string, string) {
 	t.Helper()
 	var out, errb bytes.Buffer
@@ -139,16 +156,7 @@ func TestBacktestSampleJSON(t *testing.T) {
 		t.Errorf("rules %+v caution %q: want off-menu forecasts counted and the caution", got.Rules, got.Caution)
 	}
 	// The pay-out file adds up to the same totals.
-	data, err := os.ReadFile(payOut)
-	if err != nil {
-		t.Fatal(err)
-	}
-	pr := csv.NewReader(bytes.NewReader(data))
-	pr.Comment = '#'
-	recs, err := pr.ReadAll()
-	if err != nil {
-		t.Fatal(err)
-	}
+	recs := readRecords(t, payOut)
 	sums := map[string]float64{}
 	for _, rec := range recs[1:] {
 		x, _ := strconv.ParseFloat(rec[4], 64)
@@ -365,13 +373,7 @@ func TestBacktestPaysAsTheTable(t *testing.T) {
 	for i, l := range strings.Split(string(hf), "\n") {
 		hist[strconv.Itoa(i+1)] = strings.Split(l, ",")
 	}
-	data, _ := os.ReadFile(payOut)
-	pr := csv.NewReader(bytes.NewReader(data))
-	pr.Comment = '#'
-	rows, err := pr.ReadAll()
-	if err != nil {
-		t.Fatal(err)
-	}
+	rows := readRecords(t, payOut)
 	checked := 0
 	for _, r := range rows[1:] {
 		if r[6] != "true" {

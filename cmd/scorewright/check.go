@@ -43,19 +43,12 @@ func runCheck(e *env, args []string) error {
 // checkDesign checks a design and prints the report; errFailed after
 // printing when the rule is improper or a check failed.
 func checkDesign(e *env, d *design.Design, vf *verifyFlags) error {
-	r, err := openRule(d)
+	v, err := startVerify(e, d, vf)
 	if err != nil {
 		return err
 	}
-	if err := refuseCertifyOnInterval(r, vf.cert); err != nil {
-		return err
-	}
-	s, err := vf.settings(e, d.N())
-	if err != nil {
-		return err
-	}
-	ctx, stop := interruptible()
-	defer stop()
+	defer v.stop()
+	r, s, ctx := v.r, v.s, v.ctx
 	// The certificate goes first: what it proves, the grid need not
 	// stream again (verify.Settings.Proof).
 	cert, proved, err := certificate(ctx, e, r, vf.cert)
@@ -80,22 +73,11 @@ func checkDesign(e *env, d *design.Design, vf *verifyFlags) error {
 	case found.Point != nil:
 		return printPointReport(e, found.Point, vf.asJSON)
 	}
-	rep := found.Rule
-	if vf.asJSON {
-		out := toReportJSON(rep)
-		out.Certificate = cert
-		if err := writeJSON(e.stdout, out); err != nil {
-			return err
-		}
-	} else {
+	out := toReportJSON(found.Rule)
+	return v.finish(e, vf, &out, func() {
 		fmt.Fprintf(e.stdout, "rule:    %s\n", describeRule(r.Kind(), d))
-		printReport(e.stdout, rep)
-		printCertificate(e.stdout, cert)
-	}
-	if found.Failed() || proved {
-		return errFailed
-	}
-	return nil
+		printReport(e.stdout, found.Rule)
+	}, cert, found.Failed(), proved)
 }
 
 // describeRule is the one-line statement of what was checked: the kind of

@@ -7,8 +7,10 @@ import (
 	"io"
 	"os"
 	"os/signal"
+	"scorewright"
 	"strings"
 
+	"scorewright/generator/design"
 	"scorewright/internal/num"
 	"scorewright/internal/textsafe"
 	"scorewright/verify"
@@ -91,6 +93,53 @@ func interruptible() (context.Context, context.CancelFunc) {
 	return signal.NotifyContext(context.Background(), os.Interrupt)
 }
 
+// verifyRun is what check and audit share around their own work: the
+// design's rule, the settings the flags give, and a context that ^C
+// cancels (stop releases it).
+type verifyRun struct {
+	r    *scorewright.Rule
+	s    verify.Settings
+	ctx  context.Context
+	stop context.CancelFunc
+}
+
+// startVerify opens the design's rule and the flags' settings for it.
+func startVerify(e *env, d *design.Design, vf *verifyFlags) (*verifyRun, error) {
+	r, err := openRule(d)
+	if err != nil {
+		return nil, err
+	}
+	if err := refuseCertifyOnInterval(r, vf.cert); err != nil {
+		return nil, err
+	}
+	s, err := vf.settings(e, d.N())
+	if err != nil {
+		return nil, err
+	}
+	ctx, stop := interruptible()
+	return &verifyRun{r: r, s: s, ctx: ctx, stop: stop}, nil
+}
+
+// finish writes a finished check or audit: with --json out, which is
+// given the certificate, otherwise the text report and then the
+// certificate's lines. It is errFailed when a check failed or the
+// certificate proved the rule improper.
+func (v *verifyRun) finish(e *env, vf *verifyFlags, out interface{ setCertificate(*certificateJSON) }, text func(), cert *certificateJSON, failed, proved bool) error {
+	if vf.asJSON {
+		out.setCertificate(cert)
+		if err := writeJSON(e.stdout, out); err != nil {
+			return err
+		}
+	} else {
+		text()
+		printCertificate(e.stdout, cert)
+	}
+	if failed || proved {
+		return errFailed
+	}
+	return nil
+}
+
 type gridJSON struct {
 	Resolution int       `json:"resolution"`
 	Points     int       `json:"points"`
@@ -142,6 +191,8 @@ type reportJSON struct {
 	Checks      []checkJSON      `json:"checks"`
 	Notes       []string         `json:"notes,omitempty"`
 }
+
+func (r *reportJSON) setCertificate(c *certificateJSON) { r.Certificate = c }
 
 func toReportJSON(r *verify.Report) reportJSON {
 	out := reportJSON{Verdict: r.Verdict, Kind: verdictKind(r), Notes: r.Notes, Grid: gridJSON{

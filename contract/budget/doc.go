@@ -23,7 +23,9 @@
 //	t := f.Table(rc, budget.Info{Formula: ..., Version: ..., Date: ...})
 //	t.Write(w, "csv")                                // csv md json tex svg png pdf
 //
-// **Menus.** `StepMenu` is the simplex grid of step 1/K (K whole; 0.3 is refused) in
+// # Menus
+//
+// `StepMenu` is the simplex grid of step 1/K (K whole; 0.3 is refused) in
 // lexicographic order, so for n = 2 the event probability ascends. A report floor raises every
 // entry below it to the floor and takes the difference from the largest entry; the other grid
 // values stay as they read, so a 0.05 menu with a 1 % floor is 0.01, 0.05, ..., 0.95, 0.99.
@@ -31,7 +33,9 @@
 // comments; every error names file:line; repeats are refused; entries are renormalised as in
 // `num.ParseDistribution`. `MaxMenu` = 5000 items.
 //
-// **Fit.** Over the menu (and every outcome) Lmin and Lmax of L(p, k). Cap mode:
+// # Fit
+//
+// Over the menu (and every outcome) Lmin and Lmax of L(p, k). Cap mode:
 // B = (cap - floor)/(Lmax - Lmin). Mean-pay mode: B = (M - floor)/(Lmax - Phi(ref, ref~)), so a
 // truthful forecaster at the reference belief expects M and the largest effort pays the floor.
 // Pay is computed as `floor + B·(Lmax - L)` (the same line as A - B·L, A = floor + B·Lmax) so that
@@ -45,7 +49,9 @@
 // worst case per forecast, and `Recheck.MenuPay` the range of what a forecaster who picks the best
 // menu item for the belief expects on the rounded table.
 //
-// **Unbounded rules.** Any non-finite effort on the menu is an `*UnboundedError`; with
+// # Unbounded rules
+//
+// Any non-finite effort on the menu is an `*UnboundedError`; with
 // `AtZero` (the report gives the outcome 0) the message offers the two ways out, and the CLI
 // rewrites it with the flags. The clamp is defined on the report, for every generator alike:
 // report p is paid as report p~ = max(p, c) / sum max(p, c) (`ClampReport`); reports with every
@@ -58,13 +64,17 @@
 // verify import. For log, c = 0.01, step 0.05, [0, 50]: gap 0.00027 at belief (0.995, 0.005),
 // best report (1, 0) — the known failure of a clamped log rule, made visible.
 //
-// **Rounding** (`budget.Rounder`, shared by point tables). `nearest` (halves away from zero), `down`, `up` to a unit. Amounts within 1e-6
+// # Rounding
+//
+// `budget.Rounder`, shared by point tables: `nearest` (halves away from zero), `down`, `up` to a unit. Amounts within 1e-6
 // of a unit of a whole number of units (or, for nearest, of a half) count as exactly that:
 // 100 - 100·0.3² is 90.99999999999999 in binary and must read 91 in every mode. When 1/unit is
 // whole, the result is k/(1/unit), the float nearest the decimal amount, so CSV numbers written
 // with the unit's decimals read back bit for bit.
 //
-// **Re-check.** On the rounded table: for each item i, margin_i = E_i[pay(i)] - max_{j != i}
+// # Re-check
+//
+// On the rounded table: for each item i, margin_i = E_i[pay(i)] - max_{j != i}
 // E_i[pay(j)] in currency; ties are |margin| <= tolerance (default 1e-9 × largest payment),
 // beaten are below. Passed iff no ties and none beaten. Belief cells: which item each belief
 // on a finer grid picks as unique best (n = 2: step 1/1000 or about ten beliefs per item,
@@ -78,15 +88,19 @@
 // on [0, 100] passes with step 0.1 and unit 1 (smallest margin 1) but fails with step 0.05
 // (the exact margin between 0 and 0.05 is 50·2·0.05² = 0.25, less than a unit).
 //
-// **Proposals** (`Propose`, the workbench's budget pane key). When rounding breaks the table (or to
-// make it simpler), budgets one field away from the given one: the coarsest unit of a ladder of round
+// # Proposals
+//
+// `Propose`, the workbench's budget pane key: when rounding breaks the table (or to make it
+// simpler), budgets one field away from the given one: the coarsest unit of a ladder of round
 // amounts (100 … 0.001, at most half the range) that passes with the cap kept, and for a failing budget
 // the smallest cap (or mean pay) above it, in twentieths of the range up to five times it, at the given
 // unit — a larger one only costs the buyer more. A candidate passes when every item beats every other
 // for its own belief (the menu part of the re-check, which decides Passed). Tested against an exact
 // integer brute force of the Brier table (propose_test.go).
 //
-// **Tables.** `table.Table` holds Kind (`money`), ValueName (`pay`, heading "pay if frost"), ReportName
+// # Tables
+//
+// `table.Table` holds Kind (`money`), ValueName (`pay`, heading "pay if frost"), ReportName
 // (set for point forecasts: one number per report, Labels then name the outcome columns),
 // Decimals (-1: shortest exact form), Labels, Reports, Values and `Meta` (formula, preset,
 // parameters, outcomes, menu, payment, A, B, budget, rounding, re-check verdict and margin,
@@ -100,7 +114,9 @@
 // metadata block is drawn underneath in a monospaced face, warnings in red; curve legends sit in a
 // strip between the panel and the metadata (up to three columns), never over the data.
 //
-// **Adding a transform (e.g. lottery conversion).** Write a function that takes a
+// # Adding a transform, such as the lottery conversion
+//
+// Write a function that takes a
 // `*table.Table` (and the fit's floor and cap), returns a copy with Values replaced
 // ((pay - floor)/(cap - floor)), `Kind` set to a new kind, `ValueName` to e.g. "chance of the
 // prize", `Decimals` chosen, `Meta.Payment` restated, and one line appended to
@@ -109,7 +125,28 @@
 // transform to `tb` in `runTable` right after `fit.Table(...)`; writing, refusal and the summary
 // need no change.
 //
-// **Command.** `scorewright table RULE BUDGET [--menu FILE] [--clamp P] [--format F] [--out FILE]
+// # Terms
+//
+// `Terms` is the one shape of a fitted table that the backtest, the risk computations, the
+// command and the workbench share: the `Fit`, its `Recheck` (nil when nothing was re-checked),
+// whether the formula pays every forecast (`ByFormula`, no menu), the payment bounds, the report
+// floor forecasts are recorded at, notes and the re-check warning. `TableTerms` is the payment
+// table itself (fit on the menu, re-checked); `FormulaTerms` fits on the grid of `FitStep` and
+// pays every forecast by the formula (the backtest without a menu); `StepTerms` fits on the step
+// menu or, without a step, unrounded over the finest grid of at most `MaxMenu` reports (the risk
+// computations). `backtest.TermsScheme` and `risk.TermsContract` read them.
+//
+// # Point tables
+//
+// `FitPoint(ctx, g, PointSpec)` fits a point-forecast generator (generator/point) to a floor and
+// a cap over reports lo, lo+step, ... and outcome columns, rounding with the same `Rounder`;
+// `PointTable.Recheck` is exact (with pay interpolated between columns the worst belief whose
+// mean is an item is a point mass or a two-column mixture), and `Export` gives the `table.Table`
+// every format writes.
+//
+// # Command
+//
+// `scorewright table RULE BUDGET [--menu FILE] [--clamp P] [--format F] [--out FILE]
 // [--force] [--json]`. Format from `--format`, else the `--out` extension, else Markdown;
 // figures need `--out`. Without `--out` the table goes to stdout; with it, a summary (fit,
 // verdict, notes, per-item margins and cells for short binary menus, failing items otherwise)
@@ -119,14 +156,18 @@
 // existing file is kept unless `--force` (exit 2). `SOURCE_DATE_EPOCH` fixes the export date
 // (reproducible-builds convention).
 //
-// **Tests.** Brier table (A = 100, B = 50, 91/51 at 0.7, derived in the test comment), log rule
+// # Tests
+//
+// Brier table (A = 100, B = 50, 91/51 at 0.7, derived in the test comment), log rule
 // with a 1 % floor against `math.Log`, coarse rounding tie (step 0.2, unit 25: margin exactly 0),
 // mean pay, clamp gap recomputed from -ln, rounding modes, menus, file-menu errors. Golden files:
 // `go test ./contract/table -update` rewrites `contract/table/testdata/*`; review the diff.
 // `.ci/e2e-table.sh` runs the built binary through every format and refusal.
 //
-// **Benchmarks** (`go test ./contract/budget -run '^$' -bench . -benchtime 5x`, 2 shared cores,
-// Brier rule, unit 0.01, default grids): re-check n = 2 with 21 items 0.32 ms, 101 items
+// # Benchmarks
+//
+// Measured with `go test ./contract/budget -run '^$' -bench . -benchtime 5x`, 2 shared cores,
+// Brier rule, unit 0.01, default grids: re-check n = 2 with 21 items 0.32 ms, 101 items
 // 0.75 ms; n = 3 with 66 items 8.6 ms, 231 items 15 ms; n = 4 with 286 items 50 ms. FitRule
 // (log, 1 % floor) n = 2 0.25 ms, n = 3 with 231 items 4.8 ms.
 package budget

@@ -1,9 +1,10 @@
 package risk
 
-import "math"
+import (
+	"math"
 
-// invPhi is 1/φ, the golden section ratio.
-var invPhi = (math.Sqrt(5) - 1) / 2
+	"scorewright/internal/num"
+)
 
 // maximise1 maximises f on [lo, hi] (lo <= t0 <= hi, f0 = f(t0)) by
 // bracketing, a numeric kernel:
@@ -60,24 +61,12 @@ func maximise1(f, df func(float64) float64, lo, hi, t0, f0 float64, cells int, t
 		b = at(bi + 1)
 	}
 	// 2. Golden section.
-	c, d := b-invPhi*(b-a), a+invPhi*(b-a)
-	fc, fd := val(c), val(d)
-	ga, gb := a, b
 	stop := res
 	if df != nil {
 		stop = math.Max(res, 1e-9*(b-a))
 	}
-	for it := 0; it < 300 && gb-ga > stop; it++ {
-		if fc >= fd {
-			gb, d, fd = d, c, fc
-			c = gb - invPhi*(gb-ga)
-			fc = val(c)
-		} else {
-			ga, c, fc = c, d, fd
-			d = ga + invPhi*(gb-ga)
-			fd = val(d)
-		}
-	}
+	g := num.GoldenMax(val, a, b, 300, func(ga, gb float64) bool { return gb-ga > stop })
+	c, fc, d, fd := g.C, g.FC, g.D, g.FD
 	moved := false
 	if fd > fc {
 		c, fc = d, fd

@@ -149,6 +149,8 @@ func (r *Result) Statement() string {
 		return "certified strictly proper over the whole simplex: " + r.Method
 	case r.Verdict == verify.StrictlyProper:
 		return fmt.Sprintf("certified strictly proper over the whole simplex (%d boxes)", r.Boxes)
+	case r.Verdict == verify.Proper && r.Epsilon > 0 && r.Method != "":
+		return fmt.Sprintf("certified: no report gains more than %.3g anywhere: %s (%d boxes)", r.Epsilon, r.Method, r.Boxes)
 	case r.Verdict == verify.Proper && r.Epsilon > 0:
 		return fmt.Sprintf("certified: no report gains more than %.3g anywhere (%d box pairs)", r.Epsilon, r.Boxes)
 	case r.Verdict == verify.Proper:
@@ -165,6 +167,15 @@ func (r *Result) Statement() string {
 
 // box is an axis-parallel box in the first n-1 probabilities.
 type box struct{ lo, hi []float64 }
+
+// wholeBox is [0, 1]^(n-1), which holds the simplex.
+func wholeBox(n int) box {
+	b := box{make([]float64, n-1), make([]float64, n-1)}
+	for i := range b.hi {
+		b.hi[i] = 1
+	}
+	return b
+}
 
 func (b box) width() (float64, int) {
 	w, at := -1.0, 0

@@ -51,30 +51,17 @@ func Generator(ctx context.Context, prog *formula.Program, n int, s Settings) (*
 	ctx, cancel := s.deadline(ctx)
 	defer cancel()
 	start := time.Now()
-	if separableStrict(prog, n) {
-		res := &Result{Kind: Certified, Outcomes: n, Verdict: verify.StrictlyProper, Share: 1, StrictShare: 1,
-			Method: "H is a sum of one-variable terms, each proved strictly concave on [0, 1] (curvature at most 0 there, below 0 on an interval, analytic in between)"}
-		res.Elapsed = time.Since(start)
-		(&ticker{fn: s.Progress, start: start}).tick(1, 0, true)
+	if res := separableResult(prog, n, s, start); res != nil {
 		return res, nil
 	}
 	g := &genRun{n: n, enc: prog.NewEncloser(), senc: prog.NewSimplexEncloser(), pbox: make([]iv.Interval, n), minW: s.minWidth(),
 		res: &Result{Kind: Certified, Outcomes: n}}
 	tk := &ticker{fn: s.Progress, start: start}
-	whole := box{make([]float64, n-1), make([]float64, n-1)}
-	for i := range whole.hi {
-		whole.hi[i] = 1
-	}
-	open := []box{whole}
+	open := []box{wholeBox(n)}
 	var notStrict []box
 	res := g.res
 	for len(open) > 0 || len(notStrict) > 0 {
-		if ctx.Err() != nil {
-			res.Stopped = "deadline reached"
-			break
-		}
-		if len(open)+len(notStrict) > s.maxBoxes() {
-			res.Stopped = "box limit reached"
+		if res.Stopped = limits(ctx, s, len(open)+len(notStrict)); res.Stopped != "" {
 			break
 		}
 		strictPass := len(open) == 0

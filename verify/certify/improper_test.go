@@ -2,6 +2,7 @@ package certify
 
 import (
 	"context"
+	"math"
 	"testing"
 	"time"
 
@@ -133,20 +134,89 @@ func TestJackpotProvedImproper(t *testing.T) {
 }
 
 // The quadratic payout is strictly proper (Brier 1950), so no report
-// gains more than the tolerance anywhere.
+// gains more than the tolerance anywhere; the generator argument proves
+// it at every n at once, and brute force over a lattice of beliefs and
+// reports with the closed form agrees.
 func TestQuadraticPayoutCertified(t *testing.T) {
-	for n := 2; n <= 3; n++ {
-		s := Settings{Deadline: 30 * time.Second}
-		if n == 3 {
-			s.Deadline = 2 * time.Second // only: never improper
+	quad := func(r []float64, y int) float64 {
+		s := 10.0
+		for i, v := range r {
+			d := v
+			if i == y {
+				d--
+			}
+			s -= 5 * d * d
 		}
-		res := certifyPayout(t, "10 - 5*sum((p - hit)^2)", n, s)
+		return s
+	}
+	for n := 2; n <= 4; n++ {
+		res := certifyPayout(t, "10 - 5*sum((p - hit)^2)", n, Settings{Deadline: time.Minute})
 		t.Logf("n=%d: %s share %g", n, res.Statement(), res.Share)
-		if n == 2 && res.Verdict != verify.Proper {
+		if res.Verdict != verify.Proper {
 			t.Errorf("n=%d: %s", n, res.Statement())
 		}
-		if res.Verdict == verify.Improper {
-			t.Errorf("n=%d: %s", n, res.Statement())
+		if g := bruteGain(t, quad, n, 12); g > res.Epsilon {
+			t.Errorf("n=%d: brute force finds a gain %g above the tolerance %g", n, g, res.Epsilon)
+		}
+	}
+}
+
+// bruteGain is the largest gain E_q[pay(r)] - E_q[pay(q)] over a lattice
+// of beliefs q and reports r (steps 1/m), from a closed-form payout.
+func bruteGain(t *testing.T, pay func(r []float64, y int) float64, n, m int) float64 {
+	t.Helper()
+	pts := lattice(t, n, m)
+	expect := func(q, r []float64) float64 {
+		var s float64
+		for y, qy := range q {
+			s += qy * pay(r, y)
+		}
+		return s
+	}
+	worst := math.Inf(-1)
+	for _, q := range pts {
+		honest := expect(q, q)
+		for _, r := range pts {
+			worst = math.Max(worst, expect(q, r)-honest)
+		}
+	}
+	return worst
+}
+
+// A small linear tilt of the quadratic payout, + 0.01 p1, lets a report
+// gain at most 0.01²(1 - 1/n)/20 (derived by hand: maximise 0.01 δ1 -
+// 5|δ|² over moves δ along the simplex), 5e-6·(1 - 1/n). Within a
+// tolerance of 1e-3 the payout is honest; within 1e-6 it is not, and the
+// certificate must never say otherwise.
+func TestTiltedPayoutTolerance(t *testing.T) {
+	const src = "10 - 5*sum((p - hit)^2) + 0.01*p1"
+	for n := 2; n <= 3; n++ {
+		res := certifyPayout(t, src, n, Settings{Deadline: time.Minute, Epsilon: 1e-3})
+		if res.Verdict != verify.Proper {
+			t.Errorf("n=%d eps 1e-3: %s", n, res.Statement())
+		}
+		res = certifyPayout(t, src, n, Settings{Deadline: 5 * time.Second, Epsilon: 1e-6})
+		if res.Verdict == verify.Proper {
+			t.Errorf("n=%d eps 1e-6: %s, but a report gains 5e-6·(1 - 1/n)", n, res.Statement())
+		}
+		if w := res.Witness; w != nil {
+			tilted := func(r []float64, y int) float64 {
+				s := 10 + 0.01*r[0]
+				for i, v := range r {
+					if i == y {
+						v--
+					}
+					s -= 5 * v * v
+				}
+				return s
+			}
+			var gain float64
+			for y, q := range w.Belief {
+				gain += q * (tilted(w.Report, y) - tilted(w.Belief, y))
+			}
+			if !(gain >= w.Gain*(1-1e-6)) || gain > 5e-6 {
+				t.Errorf("n=%d: witness gain %g claimed, closed form %g", n, w.Gain, gain)
+			}
 		}
 	}
 }

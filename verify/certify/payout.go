@@ -14,6 +14,9 @@ import (
 	"scorewright/verify"
 )
 
+// convexMethod names the generator argument (payout_convex.go).
+const convexMethod = "the honest expected pay sum q_y pay_y(q) is proved convex and its first-order condition near enough 0 on every report box"
+
 // PayoutEpsilon is the default payout tolerance relative to the spread
 // of the payments, when no budget gives a rounding unit: a hundredth of a
 // percent of the spread.
@@ -49,7 +52,11 @@ type payRun struct {
 }
 
 // Payout proves that no report gains more than Settings.Epsilon over the
-// honest one for any belief: it bounds, over pairs of a belief box Q and
+// honest one for any belief. It first tries the generator argument
+// (payout_convex.go): one pass over report boxes that proves every belief
+// at once where the honest expected pay is convex and the first-order
+// condition holds closely. The report boxes left, it bounds, over pairs
+// of a belief box Q and
 // a report box R, the gain E_q[pay(r)] - E_q[pay(q)] from above, first
 // directly and then by the mean-value form sum_y q_y ∇pay_y·(r - q) on
 // the hull of the two boxes (which shrinks with the square of the box
@@ -72,11 +79,13 @@ func Payout(ctx context.Context, pay *payout.Payout, s Settings) (*Result, error
 	}
 	res := &Result{Kind: Certified, Outcomes: n, Epsilon: p.eps}
 	tk := &ticker{fn: s.Progress, start: start}
-	whole := box{make([]float64, n-1), make([]float64, n-1)}
-	for i := range whole.hi {
-		whole.hi[i] = 1
-	}
+	whole := wholeBox(n)
 	h := &pairHeap{{q: whole, r: whole, u: math.Inf(1)}}
+	if done := p.convexFirst(ctx, pay, s, res, h, whole, tk); done {
+		res.Elapsed = time.Since(start)
+		tk.tick(res.Share, res.Boxes, true)
+		return res, nil
+	}
 	minW := math.Max(s.minWidth(), 1e-9)
 	for h.Len() > 0 {
 		if ctx.Err() != nil {
@@ -118,6 +127,32 @@ func Payout(ctx context.Context, pay *payout.Payout, s Settings) (*Result, error
 	}
 	tk.tick(res.Share, res.Boxes, true)
 	return res, nil
+}
+
+// convexFirst runs the generator argument (payout_convex.go) and, when
+// it leaves report boxes, puts them in h against every belief. It
+// reports whether res is final: proved, or stopped by the deadline.
+func (p *payRun) convexFirst(ctx context.Context, pay *payout.Payout, s Settings, res *Result, h *pairHeap, whole box, tk *ticker) bool {
+	cr := newConvexRun(pay)
+	if cr == nil {
+		return false
+	}
+	share, left, boxes, stopped := cr.run(ctx, s, p.eps, tk)
+	res.Share, res.Boxes = share, boxes
+	switch {
+	case len(left) == 0 && stopped == "":
+		res.Verdict, res.Share, res.Method = verify.Proper, 1, convexMethod
+		return true
+	case stopped != "":
+		res.Open, res.Stopped, res.Verdict = len(left), stopped, Undecided
+		return true
+	}
+	*h = (*h)[:0]
+	for _, r := range left {
+		*h = append(*h, pair{q: whole, r: r, u: math.Inf(1)})
+	}
+	heap.Init(h)
+	return false
 }
 
 // split replaces pr by its two halves — of the report box when it widens

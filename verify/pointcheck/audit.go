@@ -274,23 +274,11 @@ func (a *payAudit) verdict(rep *Report, strictMargin float64) {
 }
 
 // goldenMax maximises f on [a, b] by golden-section search (f unimodal
-// there is assumed; it is a refinement of a grid maximum).
+// there is assumed; it is a refinement of a grid maximum): the middle of
+// the final bracket and its value.
 func goldenMax(f func(float64) float64, a, b float64) (float64, float64) {
-	const r = 0.6180339887498949
-	c, d := b-r*(b-a), a+r*(b-a)
-	fc, fd := f(c), f(d)
-	for i := 0; i < 60 && b-a > 1e-12*(1+math.Abs(a)); i++ {
-		if fc >= fd {
-			b, d, fd = d, c, fc
-			c = b - r*(b-a)
-			fc = f(c)
-		} else {
-			a, c, fc = c, d, fd
-			d = a + r*(b-a)
-			fd = f(d)
-		}
-	}
-	x := (a + b) / 2
+	g := num.GoldenMax(f, a, b, 60, func(a, b float64) bool { return b-a > 1e-12*(1+math.Abs(a)) })
+	x := (g.A + g.B) / 2
 	return x, f(x)
 }
 
