@@ -108,6 +108,14 @@
 // and the lottery note (the lottery key of the export dialog). Payout and point designs are refused with
 // the reason; an unbounded rule asks for a report floor (the budget pane's R.floor).
 //
+// Parameters: ←/→ (or a typed value) rewrite the parameter's line of the formula and the editor
+// shows the new text (`setParam`, `rewriteParam`: indentation and a trailing comment kept, the text
+// parsed back to be sure), and an override of the same name from the file gives way to the line, so
+// the formula seen is the one checked and saved. The preset picker marks presets that change what
+// the design forecasts ([point] over outcomes, [outcomes] on an interval) and asks before taking
+// one: the first enter puts the question (what is dropped), the second takes it, esc keeps the
+// design; an unsaved hand-written formula is asked about after that.
+//
 // Budget pane fields (`tui/budget_fields.go`, one list): Floor, Cap, Mean, Ref. (the mean pay's
 // reference belief), Step, Menu (a CSV file of reports that replaces the step's grid), R.floor (the
 // report floor), Clamp, Unit, Rounding, Weights, Currency and Forecasts (the last two are terms of

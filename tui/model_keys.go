@@ -60,6 +60,10 @@ func (m *Model) dialogKey(km tea.KeyMsg) tea.Cmd {
 	case actCancel:
 		m.dialog = nil
 		m.status = "cancelled"
+		if d.busy {
+			m.status = "cancelled: the file was not opened"
+		}
+		m.cancelDialogWork()
 		if m.afterSave != nil {
 			m.afterSave = nil
 			m.status = "not saved; the design is still open"
@@ -230,7 +234,7 @@ func (m *Model) viewSwitchKey(km tea.KeyMsg) (tea.Cmd, bool) {
 func (m *Model) routeToPane(km tea.KeyMsg) tea.Cmd {
 	switch m.focus {
 	case paneDesign:
-		if m.designPane.Picking() && key.Matches(km, m.keys.Edit) && handWritten(m.d) && m.Unsaved() {
+		if m.designPane.Picking() && key.Matches(km, m.keys.Edit) && !m.designPane.AsksFirst(m.d) && handWritten(m.d) && m.Unsaved() {
 			return m.leave(leavePreset, km)
 		}
 		return m.designKey(km)

@@ -36,7 +36,12 @@ func waterDesign() *design.Design {
 
 func waterDoc(t *testing.T) *Document {
 	t.Helper()
-	d := waterDesign()
+	return docFor(t, waterDesign())
+}
+
+// docFor is the annex of design d, fitted and re-checked as the command does.
+func docFor(t *testing.T, d *design.Design) *Document {
+	t.Helper()
 	gen, err := bregman.NewFormula(d.Formula, bregman.Options{Outcomes: d.N()})
 	rule := &bregman.Rule{Gen: gen, Labels: d.Labels}
 	if err != nil {
