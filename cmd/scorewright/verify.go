@@ -64,9 +64,9 @@ func (v *verifyFlags) settings(e *env, n int) (verify.Settings, error) {
 	}
 	if isTerminal(e.stderr) {
 		s.Progress = func(done, total int64) {
-			fmt.Fprintf(e.stderr, "\r%3.0f%% ", 100*float64(done)/float64(max(total, 1)))
+			fmt.Fprintf(e.progressOut(), "\r%3.0f%% ", 100*float64(done)/float64(max(total, 1)))
 			if done >= total {
-				fmt.Fprint(e.stderr, "\r     \r")
+				fmt.Fprint(e.progressOut(), "\r     \r")
 			}
 		}
 	}

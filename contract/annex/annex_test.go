@@ -37,7 +37,12 @@ func waterDesign() *design.Design {
 
 func waterDoc(t *testing.T) *Document {
 	t.Helper()
-	d := waterDesign()
+	return docFor(t, waterDesign())
+}
+
+// docFor is the annex of design d, fitted and re-checked as the command does.
+func docFor(t *testing.T, d *design.Design) *Document {
+	t.Helper()
 	rule := bregmantest.Rule(t, d.Formula, bregman.Options{Outcomes: d.N()})
 	rule.Labels = d.Labels
 	menu, err := budget.StepMenu(2, d.Budget.Step, 0)
