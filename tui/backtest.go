@@ -176,11 +176,12 @@ type BacktestView struct {
 	stopped bool // the user stopped the run
 	vp      viewport.Model
 	text    string // the text under the picture, laid out for w
+	picture string // the reliability picture, drawn for w when the result or size changes
 }
 
 // NewBacktestView returns an empty backtest view.
 func NewBacktestView(st Styles, keys KeyMap) BacktestView {
-	bar := progress.New(progress.WithFillCharacters('█', '░'), progress.WithoutPercentage(), progress.WithSolidFill("#6FD3B5"))
+	bar := progress.New(progress.WithFillCharacters('█', '░'), progress.WithoutPercentage(), progress.WithSolidFill(barColour))
 	vp := viewport.New(10, 3)
 	vp.KeyMap = viewport.KeyMap{Up: keys.Up, Down: keys.Down, PageUp: keys.PageUp, PageDown: keys.PageDown}
 	return BacktestView{st: st, keys: keys, bar: bar, vp: vp}
@@ -258,6 +259,13 @@ func (v *BacktestView) relayout() {
 	v.vp.Height = max(1, ih-top)
 	v.text = v.resultText(iw)
 	v.vp.SetContent(v.text)
+	v.picture = ""
+	if v.hasPicture() {
+		pw, ph := v.pictureSize()
+		ch := reliability.New(v.res.Labels[0], v.res.Curves)
+		ch.Styles = reliability.Styles{Axis: v.st.Dim, Label: v.st.Label, Diagonal: v.st.Dim, Series: v.st.Series[:]}
+		v.picture = ch.View(pw, ph)
+	}
 }
 
 // resultText is the scrollable text: pay per forecaster, decomposition,
@@ -338,15 +346,13 @@ func (v BacktestView) statusLine() string {
 	return line + st.Dim.Render(" (current design)")
 }
 
-// View draws the view.
+// View draws the view from what relayout drew when the result or the
+// size changed.
 func (v BacktestView) View() string {
 	st := v.st
 	lines := []string{v.statusLine()}
-	if v.hasPicture() {
-		pw, ph := v.pictureSize()
-		ch := reliability.New(v.res.Labels[0], v.res.Curves)
-		ch.Styles = reliability.Styles{Axis: st.Dim, Label: st.Label, Diagonal: st.Dim, Series: st.Series[:]}
-		lines = append(lines, strings.Split(ch.View(pw, ph), "\n")...)
+	if v.picture != "" {
+		lines = append(lines, strings.Split(v.picture, "\n")...)
 	}
 	lines = append(lines, v.vp.View())
 	return paneFrame(st, "Backtest — what this rule would have paid", true, v.w, v.h, strings.Join(lines, "\n"))

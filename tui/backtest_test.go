@@ -157,13 +157,13 @@ func TestBacktestFollowsTheDesign(t *testing.T) {
 	if before == nil || !strings.Contains(before.Budget, "[0, 40]") {
 		t.Fatalf("first result %+v", before)
 	}
-	oldRun := m.btRun
+	oldRun := m.btJob.run
 	press(t, m, keyEsc)
 	m.setFocus(paneBudget)
 	// Without settling, so that the edit's rerun has not happened yet.
 	m.Update(keyDown)
 	_, cmd := m.Update(keyRight) // cap 40 → 41
-	if m.btRun == oldRun || m.BacktestRunning() {
+	if m.btJob.run == oldRun || m.BacktestRunning() {
 		t.Fatal("the edit did not retire the old run")
 	}
 	if !strings.Contains(m.bt.statusLine(), "previous design") {
@@ -176,8 +176,8 @@ func TestBacktestFollowsTheDesign(t *testing.T) {
 	}
 	settle(t, m, cmd)
 	after := m.Backtest()
-	if after == before || !strings.Contains(after.Budget, "[0, 41]") || m.btGen != m.gen {
-		t.Fatalf("after the edit: %+v (gen %d, run for %d)", after, m.gen, m.btGen)
+	if after == before || !strings.Contains(after.Budget, "[0, 41]") || m.btJob.gen != m.gen {
+		t.Fatalf("after the edit: %+v (gen %d, run for %d)", after, m.gen, m.btJob.gen)
 	}
 	// A mean-pay budget: the view says what it aimed at.
 	press(t, m, keyDown, keyRight) // Mean: none → 31 (three quarters of 0..41)
@@ -196,9 +196,9 @@ func TestBacktestStops(t *testing.T) {
 	_, cmd := m.Update(keyEnter) // the run's command, not yet run
 	m.dialog = nil
 	m.showBT = true
-	run := m.btRun
+	run := m.btJob.run
 	press(t, m, runes("x"))
-	if m.btRun == run || m.cancelBt != nil {
+	if m.btJob.run == run || m.btJob.cancel != nil {
 		t.Fatal("x did not stop the run")
 	}
 	settle(t, m, cmd)

@@ -18,18 +18,25 @@ func (p DesignPane) updatePicker(km tea.KeyMsg, d *design.Design) (DesignPane, t
 	all := presets.All()
 	switch {
 	case key.Matches(km, p.keys.Leave):
-		p.edit = editNone
+		p.edit, p.confirm = editNone, 0
 	case key.Matches(km, p.keys.Up):
-		p.pick = (p.pick + len(all) - 1) % len(all)
+		p.pick, p.confirm = (p.pick+len(all)-1)%len(all), 0
 	case key.Matches(km, p.keys.Down):
-		p.pick = (p.pick + 1) % len(all)
+		p.pick, p.confirm = (p.pick+1)%len(all), 0
 	case key.Matches(km, p.keys.Edit):
 		ps := all[p.pick]
 		if why := presetUnavailable(ps, d); why != "" {
 			p.note = ps.Name + ": " + why
 			return p, nil, false
 		}
-		p.edit = editNone
+		if p.AsksFirst(d) {
+			p.confirm = p.pick + 1 // asked: the next enter takes it
+			return p, nil, false
+		}
+		p.edit, p.confirm = editNone, 0
+		if ps.Kind != presets.KindPoint && d.N() < 2 {
+			d.Labels = design.DefaultLabels(2) // a point design read from a file may name no outcomes
+		}
 		d.Preset = ps.Name
 		d.Params = nil
 		wasPoint := onInterval(d)
@@ -56,6 +63,30 @@ func (p DesignPane) updatePicker(km tea.KeyMsg, d *design.Design) (DesignPane, t
 		return p, nil, true
 	}
 	return p, nil, false
+}
+
+// AsksFirst reports whether enter on the picked preset only asks: the
+// preset changes what the design forecasts (outcomes or a number on an
+// interval) and the question has not been put yet.
+func (p DesignPane) AsksFirst(d *design.Design) bool {
+	return p.edit == editPreset && p.confirm != p.pick+1 && kindQuestion(presets.All()[p.pick], d) != ""
+}
+
+// kindQuestion is the question a preset that changes what the design
+// forecasts asks before it is taken, or "".
+func kindQuestion(ps presets.Preset, d *design.Design) string {
+	toPoint := ps.Kind == presets.KindPoint
+	switch {
+	case toPoint && !onInterval(d):
+		return fmt.Sprintf("%s forecasts a number on an interval: the outcomes %s are dropped.", ps.Name, strings.Join(d.Labels, ", "))
+	case !toPoint && onInterval(d):
+		iv := "the interval"
+		if len(d.Interval) == 2 {
+			iv = fmt.Sprintf("the interval [%g, %g]", d.Interval[0], d.Interval[1])
+		}
+		return fmt.Sprintf("%s pays for outcomes: %s is dropped.", ps.Name, iv)
+	}
+	return ""
 }
 
 // parseInterval reads "lo, hi".
@@ -103,19 +134,43 @@ func freshLabel(labels []string) string {
 	}
 }
 
-// setParam sets parameter name to v: an override already in the design
-// is updated, otherwise the parameter line of the formula is rewritten, so
-// the text stays the one source of the value.
+// setParam sets parameter name to v and shows the new formula in the
+// editor: what the user sees is what is checked and saved.
+func (p *DesignPane) setParam(d *design.Design, name string, v float64) {
+	setParam(d, name, v)
+	p.ta.SetValue(d.Formula)
+}
+
+// setParam sets parameter name to v by rewriting its line of the formula,
+// so the text stays the one source of the value; an override of the same
+// name (from a design file or --param) goes, since the line now says the
+// value. A parameter without a line of its own keeps v as an override.
 func setParam(d *design.Design, name string, v float64) {
-	if _, ok := d.Params[name]; ok {
-		d.Params[name] = v
+	if src, ok := rewriteParam(d.Formula, name, v); ok {
+		d.Formula = src
+		delete(d.Params, name)
+		if len(d.Params) == 0 {
+			d.Params = nil
+		}
 		return
 	}
-	f, err := formula.Parse(d.Formula)
+	if d.Params == nil {
+		d.Params = map[string]float64{}
+	}
+	d.Params[name] = v
+}
+
+// rewriteParam returns src with the line of parameter name saying v,
+// keeping its indentation and a trailing comment. ok is false when there
+// is no such line, or when the new text would not read back as the same
+// formula with name = v.
+func rewriteParam(src, name string, v float64) (string, bool) {
+	f, err := formula.Parse(src)
 	if err != nil {
-		return
+		return "", false
 	}
-	lines := strings.Split(d.Formula, "\n")
+	lines := strings.Split(src, "\n")
+	found := false
 	for _, pl := range f.Params {
 		if pl.Name != name || pl.At.Line < 1 || pl.At.Line > len(lines) {
 			continue
@@ -127,8 +182,36 @@ func setParam(d *design.Design, name string, v float64) {
 		}
 		indent := old[:len(old)-len(strings.TrimLeft(old, " \t"))]
 		lines[pl.At.Line-1] = indent + name + " = " + strconv.FormatFloat(v, 'g', -1, 64) + comment
+		found = true
 	}
-	d.Formula = strings.Join(lines, "\n")
+	out := strings.Join(lines, "\n")
+	back, err := formula.Parse(out)
+	if !found || err != nil || len(back.Params) != len(f.Params) {
+		return "", false
+	}
+	for _, pl := range back.Params {
+		if pl.Name == name && paramLiteral(pl.Value) != v {
+			return "", false
+		}
+	}
+	return out, true
+}
+
+// paramLiteral is the value of a parameter written as a number (or a
+// signed one); NaN for anything else.
+func paramLiteral(n formula.Node) float64 {
+	switch n := n.(type) {
+	case *formula.Num:
+		return n.Value
+	case *formula.Unary:
+		if x, ok := n.X.(*formula.Num); ok && n.Op == "-" {
+			return -x.Value
+		}
+		if x, ok := n.X.(*formula.Num); ok && n.Op == "+" {
+			return x.Value
+		}
+	}
+	return math.NaN()
 }
 
 // pruneParams drops overrides for parameters the formula no longer sets.

@@ -68,15 +68,18 @@ const sampleEmphasis = "# w(c): where the rule puts its incentive\na = 1\nb = 1\
 // DesignPane edits the design: outcomes, order, mode, formula, parameters
 // and preset.
 type DesignPane struct {
-	st       Styles
-	keys     KeyMap
-	w, h     int
-	focused  bool
-	sel      int
-	edit     editing
-	ta       textarea.Model
-	ti       textinput.Model
-	pick     int
+	st      Styles
+	keys    KeyMap
+	w, h    int
+	focused bool
+	sel     int
+	edit    editing
+	ta      textarea.Model
+	ti      textinput.Model
+	pick    int
+	// confirm is 1 + the preset asked about: a pick that drops the
+	// outcomes (or the interval) is taken on the second enter.
+	confirm  int
 	params   []formula.ParamValue
 	err      error // the compile error of the current design
 	warnings []string
@@ -201,7 +204,7 @@ func (p DesignPane) Update(msg tea.Msg, d *design.Design) (DesignPane, tea.Cmd, 
 			return p, cmd, false
 		}
 		d.Formula = p.ta.Value()
-		d.Preset = ""
+		p.dropPreset(d)
 		pruneParams(d)
 		return p, cmd, true
 	case editLabels, editParam:
@@ -303,7 +306,7 @@ func (p DesignPane) updateRows(km tea.KeyMsg, d *design.Design) (DesignPane, tea
 			}
 			pv := p.params[row-int(rowParams)]
 			v := math.Round((pv.Value+step)*1e9) / 1e9
-			setParam(d, pv.Name, v)
+			p.setParam(d, pv.Name, v)
 			p.params[row-int(rowParams)].Value = v
 			p.note = fmt.Sprintf("%s = %s", pv.Name, strconv.FormatFloat(v, 'g', -1, 64))
 			return p, nil, true
@@ -345,7 +348,7 @@ func (p *DesignPane) commitInput(d *design.Design) bool {
 	}
 	i := p.sel - int(rowParams)
 	p.stopEditing()
-	setParam(d, p.params[i].Name, v)
+	p.setParam(d, p.params[i].Name, v)
 	p.params[i].Value = v
 	return true
 }
@@ -404,7 +407,18 @@ func (p *DesignPane) cycleMode(d *design.Design, up bool) {
 	if f != "" {
 		d.Formula = f
 	}
-	d.Preset = ""
+	p.dropPreset(d)
 	pruneParams(d)
 	p.ta.SetValue(d.Formula)
+}
+
+// dropPreset forgets the preset the design was made from, now that its
+// formula is the user's own, and says so once: the record and the exports
+// name the formula, not the preset.
+func (p *DesignPane) dropPreset(d *design.Design) {
+	if d.Preset == "" {
+		return
+	}
+	p.note = fmt.Sprintf("%q preset dropped (edited)", d.Preset)
+	d.Preset = ""
 }

@@ -135,18 +135,34 @@ func (p DesignPane) errorLines(iw int) []string {
 }
 
 func (p DesignPane) pickerLines(d *design.Design) []string {
+	all := presets.All()
+	tail := []string{p.st.Dim.Render("    ↑/↓ choose, enter apply, esc close")}
+	if p.confirm == p.pick+1 {
+		q := kindQuestion(all[p.pick], d) + " " + p.keys.Edit.Help().Key + " again takes it, " + p.keys.Leave.Help().Key + " keeps the design as it is."
+		tail = strings.Split(p.st.Error.Width(max(10, p.w-6)).PaddingLeft(4).Render(q), "\n")
+	}
+	// A window of presets around the pick when the pane is short: five
+	// rows above the picker, the question or hint, and two below it.
+	rows := min(len(all), max(3, p.h-2-5-len(tail)-2))
+	first := min(max(0, p.pick-rows/2), len(all)-rows)
 	var out []string
-	for i, ps := range presets.All() {
+	for i := first; i < first+rows; i++ {
+		ps := all[i]
 		m := "    "
 		name := fmt.Sprintf("%-18s", ps.Name)
 		if i == p.pick {
 			m, name = p.st.Selected.Render("  ▸ "), p.st.Selected.Render(name)
 		}
 		desc := ps.Title
-		if why := presetUnavailable(ps, d); why != "" {
-			desc = p.st.Dim.Render("(" + why + ")")
+		switch {
+		case presetUnavailable(ps, d) != "":
+			desc = p.st.Dim.Render("(" + presetUnavailable(ps, d) + ")")
+		case kindQuestion(ps, d) != "" && ps.Kind == presets.KindPoint:
+			desc = "[point] " + desc
+		case kindQuestion(ps, d) != "":
+			desc = "[outcomes] " + desc
 		}
 		out = append(out, m+name+" "+desc)
 	}
-	return append(out, p.st.Dim.Render("    ↑/↓ choose, enter apply, esc close"))
+	return append(out, tail...)
 }

@@ -12,6 +12,13 @@
 // outdated design are dropped. Running checks are cancelled through their
 // context as soon as the design changes.
 //
+// Every kind of background work (checks, fit, picture, backtest, risk) is
+// kept as one job (tui/job.go): the id of its latest run, the generation it
+// is for, and its cancel function; start replaces a run, drop makes its
+// answers stale. The backtest and risk views lay themselves out when a
+// run's message, a key, the size or the design changes, and View only
+// returns what was laid out.
+//
 // Settings, styles and the key map are passed to the panes explicitly;
 // the package keeps no mutable state of its own.
 //
@@ -100,6 +107,14 @@
 // distortion and where, the chosen belief's best report against the truthful one, expected pay,
 // and the lottery note (the lottery key of the export dialog). Payout and point designs are refused with
 // the reason; an unbounded rule asks for a report floor (the budget pane's R.floor).
+//
+// Parameters: ←/→ (or a typed value) rewrite the parameter's line of the formula and the editor
+// shows the new text (`setParam`, `rewriteParam`: indentation and a trailing comment kept, the text
+// parsed back to be sure), and an override of the same name from the file gives way to the line, so
+// the formula seen is the one checked and saved. The preset picker marks presets that change what
+// the design forecasts ([point] over outcomes, [outcomes] on an interval) and asks before taking
+// one: the first enter puts the question (what is dropped), the second takes it, esc keeps the
+// design; an unsaved hand-written formula is asked about after that.
 //
 // Budget pane fields (`tui/budget_fields.go`, one list): Floor, Cap, Mean, Ref. (the mean pay's
 // reference belief), Step, Menu (a CSV file of reports that replaces the step's grid), R.floor (the

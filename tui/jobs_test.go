@@ -104,7 +104,7 @@ func TestStaleRunDropped(t *testing.T) {
 		_, cmd := m.Update(<-msgs)
 		pump(cmd, msgs)
 	}
-	firstRun := m.checkRun
+	firstRun := m.checkJob.run
 	// Edit: the parameter step.
 	_, cmd = m.Update(keyDown)
 	pump(cmd, msgs)

@@ -47,6 +47,7 @@ type (
 		gen  uint64
 		seq  uint64
 		err  error
+		note string // what opening changed in the file's design
 	}
 	exportedMsg struct {
 		files []string
@@ -67,51 +68,45 @@ type Model struct {
 	path          string // where the design was loaded from or saved to
 	gen           uint64 // generation of the design; bumped on every edit
 	dialogSeq     uint64 // serial number of the last dialog opened
-	comp          *compiled
-	compGen       uint64
-	debouncedGen  uint64
-	checkRun      uint64 // id of the latest check run
-	checkGen      uint64 // generation the latest check run is for
-	fitGen        uint64
+	// stopDialog cancels the read an open dialog started; nil when none.
+	stopDialog   context.CancelFunc
+	comp         *compiled
+	compGen      uint64
+	debouncedGen uint64
+	fitGen       uint64
 
-	ctx        context.Context
-	cancelAll  context.CancelFunc
-	cancelChk  context.CancelFunc
-	cancelPic  context.CancelFunc
-	cancelFit  context.CancelFunc
-	cancelBt   context.CancelFunc
-	btRun      uint64 // id of the latest backtest run
-	btGen      uint64 // generation the latest backtest run is for
-	history    string // the forecast history the backtest replays ("" none)
-	showBT     bool   // the backtest view replaces the panes
-	bt         BacktestView
-	showRisk   bool // the risk view replaces the panes
-	risk       RiskView
-	riskIn     RiskInputs
-	riskSet    bool                  // the user changed the wealth, so it no longer follows the budget
-	riskCoefs  map[risk.Kind]float64 // each family's last coefficient
-	riskRun    uint64                // id of the latest risk run
-	riskGen    uint64                // generation the latest risk run is for
-	riskFor    RiskInputs            // inputs the latest risk run is for
-	cancelRisk context.CancelFunc
-	research   *ResearchRoom // the research view (tui/research.go) replaces the panes when shown
-	terms      *TermsRoom    // the annex's terms (tui/terms.go) replace the panes when shown
-	demoIndex  int
-	savedGen   uint64       // generation last opened or saved
-	leaving    *leavePrompt // the unsaved-changes prompt, when open
-	afterSave  *leavePrompt // an action waiting for the save dialog to succeed
-	rec        *recovery.Store
-	recReady   bool           // the look for a previous run's edits has answered
-	recOffer   *recoveryOffer // edits a previous run left, offered at start
-	recKey     string         // the design path the last recovery write was for
-	recWrote   bool           // a recovery file of this run may exist
-	focus      pane
-	lower      pane // which of checks/budget the small layout shows
-	designPane DesignPane
-	picture    PicturePane
-	checks     ChecksPane
-	budget     BudgetPane
-	dialog     *fileDialog
+	ctx       context.Context
+	cancelAll context.CancelFunc
+	// The background work, one job each (tui/job.go): run ids, the
+	// generation each run is for, and cancellation.
+	checkJob, fitJob, picJob, btJob, riskJob job
+	history                                  string // the forecast history the backtest replays ("" none)
+	showBT                                   bool   // the backtest view replaces the panes
+	bt                                       BacktestView
+	showRisk                                 bool // the risk view replaces the panes
+	risk                                     RiskView
+	riskIn                                   RiskInputs
+	riskSet                                  bool                  // the user changed the wealth, so it no longer follows the budget
+	riskCoefs                                map[risk.Kind]float64 // each family's last coefficient
+	riskFor                                  RiskInputs            // inputs the latest risk run is for
+	research                                 *ResearchRoom         // the research view (tui/research.go) replaces the panes when shown
+	terms                                    *TermsRoom            // the annex's terms (tui/terms.go) replace the panes when shown
+	demoIndex                                int
+	savedGen                                 uint64       // generation last opened or saved
+	leaving                                  *leavePrompt // the unsaved-changes prompt, when open
+	afterSave                                *leavePrompt // an action waiting for the save dialog to succeed
+	rec                                      *recovery.Store
+	recReady                                 bool           // the look for a previous run's edits has answered
+	recOffer                                 *recoveryOffer // edits a previous run left, offered at start
+	recKey                                   string         // the design path the last recovery write was for
+	recWrote                                 bool           // a recovery file of this run may exist
+	focus                                    pane
+	lower                                    pane // which of checks/budget the small layout shows
+	designPane                               DesignPane
+	picture                                  PicturePane
+	checks                                   ChecksPane
+	budget                                   BudgetPane
+	dialog                                   *fileDialog
 	// exportFormat and exportLottery are what the last export asked for,
 	// so the next export dialog starts there.
 	exportFormat  string
@@ -268,7 +263,7 @@ func (m *Model) jobMsg(msg tea.Msg) tea.Cmd {
 		}
 		return nil
 	case checkRunMsg:
-		if msg.run != m.checkRun {
+		if !m.checkJob.current(msg.run) {
 			return nil
 		}
 		switch inner := msg.msg.(type) {
@@ -332,6 +327,9 @@ func (m *Model) fileMsg(msg tea.Msg) tea.Cmd {
 		return m.fileDone(msg.seq, msg.err, func() {
 			m.dropRecovery() // the user agreed to drop the old design's edits
 			m.status = "opened " + msg.path
+			if msg.note != "" {
+				m.status += "; note: " + msg.note
+			}
 			m.path = msg.path
 		}, func() tea.Cmd { return m.replaceDesign(msg.d) })
 	case completedMsg:
@@ -362,19 +360,18 @@ func (m *Model) fileMsg(msg tea.Msg) tea.Cmd {
 // checks wait out the debounce.
 func (m *Model) edited() tea.Cmd {
 	m.gen++
-	m.stopCheck()
-	m.stopFit()
-	m.checkRun++ // answers of the run for the old design are now stale
+	// Answers of the runs for the old design are now stale.
+	m.checkJob.drop()
+	m.fitJob.stop()
 	m.checks.edited()
 	m.budget.edited()
 	if m.history != "" {
-		m.stopBacktest()
-		m.btRun++ // answers of the run for the old design are now stale
+		m.btJob.drop()
 		m.bt.edited()
 	}
-	m.stopRisk()
-	m.riskRun++ // answers of the run for the old design are now stale
+	m.riskJob.drop()
 	m.risk.edited()
+	defer m.refreshRisk()
 	m.research.Edited(m.d)
 	if !m.riskSet {
 		m.riskIn.Wealth = defaultRiskInputs(m.d).Wealth

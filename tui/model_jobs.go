@@ -1,7 +1,6 @@
 package tui
 
 import (
-	"context"
 	"time"
 
 	tea "github.com/charmbracelet/bubbletea"
@@ -16,11 +15,11 @@ func (m *Model) debounce() tea.Cmd {
 func (m *Model) wanted(msg tea.Msg) bool {
 	switch r := msg.(type) {
 	case checkRunMsg:
-		return r.run == m.checkRun
+		return m.checkJob.current(r.run)
 	case btRunMsg:
-		return r.run == m.btRun
+		return m.btJob.current(r.run)
 	case riskRunMsg:
-		return r.run == m.riskRun
+		return m.riskJob.current(r.run)
 	case researchRunMsg:
 		return r.run == m.research.run
 	case fitProgressMsg:
@@ -31,21 +30,6 @@ func (m *Model) wanted(msg tea.Msg) bool {
 	return false
 }
 
-// stopFit cancels a running fit: its design is no longer the one shown.
-func (m *Model) stopFit() {
-	if m.cancelFit != nil {
-		m.cancelFit()
-		m.cancelFit = nil
-	}
-}
-
-func (m *Model) stopCheck() {
-	if m.cancelChk != nil {
-		m.cancelChk()
-		m.cancelChk = nil
-	}
-}
-
 // maybeStart starts the checks and the budget fit once the current
 // generation is compiled and its debounce has passed.
 func (m *Model) maybeStart() tea.Cmd {
@@ -53,27 +37,22 @@ func (m *Model) maybeStart() tea.Cmd {
 		return nil
 	}
 	bt := tea.Batch(m.maybeBacktest(), m.maybeRisk(), m.research.Maybe(m.ctx, m.d, m.gen, m.researchReady()))
-	if m.checkGen == m.gen {
+	if m.checkJob.gen == m.gen {
 		return bt
 	}
 	if !m.comp.ok() {
 		m.checks.block("the formula does not compile")
 		return nil
 	}
-	m.checkGen = m.gen
+	m.checkJob.gen = m.gen
 	var cmds []tea.Cmd
 	if m.set.Checker != nil {
-		m.stopCheck()
-		ctx, cancel := context.WithCancel(m.ctx)
-		m.cancelChk = cancel
-		m.checkRun++
+		ctx, run := m.checkJob.start(m.ctx, m.gen)
 		m.checks.started()
-		cmds = append(cmds, tagRun(m.checkRun, checkCmd(ctx, m.gen, cloneDesign(m.d), m.set, m.set.Checker)))
+		cmds = append(cmds, tagRun(run, checkCmd(ctx, m.gen, cloneDesign(m.d), m.set, m.set.Checker)))
 	}
 	if m.set.Fitter != nil && m.fitGen != m.gen {
-		m.stopFit()
-		ctx, cancel := context.WithCancel(m.ctx)
-		m.cancelFit = cancel
+		ctx, _ := m.fitJob.start(m.ctx, m.gen)
 		m.budget.fitting()
 		cmds = append(cmds, fitCmd(ctx, m.gen, cloneDesign(m.d), m.set.Fitter))
 	}
@@ -113,10 +92,6 @@ func (m *Model) requestPicture() tea.Cmd {
 	if !m.comp.ok() || m.compGen != m.gen || m.width == 0 {
 		return nil
 	}
-	if m.cancelPic != nil {
-		m.cancelPic()
-	}
-	ctx, cancel := context.WithCancel(m.ctx)
-	m.cancelPic = cancel
+	ctx, _ := m.picJob.start(m.ctx, m.gen)
 	return m.picture.request(ctx, m.gen, m.comp, m.payFunc())
 }

@@ -60,6 +60,10 @@ func (m *Model) dialogKey(km tea.KeyMsg) tea.Cmd {
 	case actCancel:
 		m.dialog = nil
 		m.status = "cancelled"
+		if d.busy {
+			m.status = "cancelled: the file was not opened"
+		}
+		m.cancelDialogWork()
 		if m.afterSave != nil {
 			m.afterSave = nil
 			m.status = "not saved; the design is still open"
@@ -85,9 +89,8 @@ func (m *Model) backtestKey(km tea.KeyMsg) (tea.Cmd, bool) {
 		m.openDialog(dialogHistory)
 		return nil, true
 	case key.Matches(km, k.StopRun):
-		if m.bt.Running() || m.cancelBt != nil {
-			m.stopBacktest()
-			m.btRun++ // its late answers are dropped
+		if m.bt.Running() || m.btJob.running() {
+			m.btJob.drop() // its late answers are dropped
 			m.bt.stop()
 			m.status = "backtest stopped"
 		}
@@ -139,6 +142,7 @@ func (m *Model) riskKey(km tea.KeyMsg) (tea.Cmd, bool) {
 	if !m.showRisk {
 		return nil, false
 	}
+	defer m.refreshRisk()
 	switch {
 	case key.Matches(km, k.Leave), key.Matches(km, k.Risk):
 		m.showRisk = false
@@ -230,7 +234,7 @@ func (m *Model) viewSwitchKey(km tea.KeyMsg) (tea.Cmd, bool) {
 func (m *Model) routeToPane(km tea.KeyMsg) tea.Cmd {
 	switch m.focus {
 	case paneDesign:
-		if m.designPane.Picking() && key.Matches(km, m.keys.Edit) && handWritten(m.d) && m.Unsaved() {
+		if m.designPane.Picking() && key.Matches(km, m.keys.Edit) && !m.designPane.AsksFirst(m.d) && handWritten(m.d) && m.Unsaved() {
 			return m.leave(leavePreset, km)
 		}
 		return m.designKey(km)
@@ -243,7 +247,7 @@ func (m *Model) routeToPane(km tea.KeyMsg) tea.Cmd {
 	case paneChecks:
 		if key.Matches(km, m.keys.Rerun) {
 			m.debouncedGen = m.gen
-			m.checkGen = 0
+			m.checkJob.gen = 0
 			return m.maybeStart()
 		}
 	case paneBudget:

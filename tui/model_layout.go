@@ -66,7 +66,7 @@ func (m *Model) View() string {
 	} else if m.showBT {
 		body = m.bt.View()
 	} else if m.showRisk {
-		body = m.risk.View(m.d, m.riskIn)
+		body = m.risk.View()
 	} else if m.large() {
 		left := lipgloss.JoinVertical(lipgloss.Left, m.designPane.View(m.d), m.budget.View(m.d))
 		right := lipgloss.JoinVertical(lipgloss.Left, m.picture.View(), m.checks.View())

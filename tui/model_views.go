@@ -27,25 +27,14 @@ func (m *Model) toggleBacktest() tea.Cmd {
 // cancelling any run before it. The history becomes the loaded one when
 // its header fits (btStartedMsg).
 func (m *Model) startBacktest(path string) tea.Cmd {
-	m.stopBacktest()
-	ctx, cancel := context.WithCancel(m.ctx)
-	m.cancelBt = cancel
-	m.btRun++
-	m.btGen = m.gen
-	return backtestCmd(ctx, m.btRun, m.gen, cloneDesign(m.d), path)
-}
-
-func (m *Model) stopBacktest() {
-	if m.cancelBt != nil {
-		m.cancelBt()
-		m.cancelBt = nil
-	}
+	ctx, run := m.btJob.start(m.ctx, m.gen)
+	return backtestCmd(ctx, run, m.gen, cloneDesign(m.d), path)
 }
 
 // maybeBacktest reruns the loaded history for a design that compiled and
 // waited out its debounce.
 func (m *Model) maybeBacktest() tea.Cmd {
-	if m.history == "" || m.btGen == m.gen || !m.comp.ok() {
+	if m.history == "" || m.btJob.gen == m.gen || !m.comp.ok() {
 		return nil
 	}
 	return m.startBacktest(m.history)
@@ -53,7 +42,7 @@ func (m *Model) maybeBacktest() tea.Cmd {
 
 // backtestMsg takes a message of the current backtest run.
 func (m *Model) backtestMsg(msg btRunMsg) tea.Cmd {
-	if msg.run != m.btRun {
+	if !m.btJob.current(msg.run) {
 		return nil
 	}
 	fromDialog := m.dialog != nil && m.dialog.kind == dialogHistory
@@ -73,7 +62,7 @@ func (m *Model) backtestMsg(msg btRunMsg) tea.Cmd {
 		if errors.Is(inner.err, context.Canceled) {
 			return nil
 		}
-		m.cancelBt = nil
+		m.btJob.finished()
 		if inner.file && fromDialog {
 			m.bt.running = false
 			m.dialog.failed(fileError(inner.err))
@@ -88,6 +77,7 @@ func (m *Model) backtestMsg(msg btRunMsg) tea.Cmd {
 func (m *Model) layoutBacktest() {
 	m.bt.SetSize(m.width, m.height-2)
 	m.risk.SetSize(m.width, m.height-2)
+	m.refreshRisk()
 	m.research.SetSize(m.width, m.height-2)
 	m.terms.SetSize(m.width, m.height-2)
 }
@@ -105,7 +95,16 @@ func (m *Model) toggleRisk() tea.Cmd {
 	}
 	m.stopTyping()
 	m.showBT, m.showRisk = false, true
+	defer m.refreshRisk()
 	return m.maybeRisk()
+}
+
+// refreshRisk lays the risk view out again after something it shows
+// changed; while it is hidden nothing is drawn (opening it refreshes).
+func (m *Model) refreshRisk() {
+	if m.showRisk {
+		m.risk.refresh(m.d, m.riskIn)
+	}
 }
 
 // maybeRisk starts a risk run when the view is open and its last run is
@@ -114,34 +113,26 @@ func (m *Model) maybeRisk() tea.Cmd {
 	if !m.showRisk || m.compGen != m.gen || m.debouncedGen != m.gen {
 		return nil
 	}
-	if m.riskGen == m.gen && sameInputs(m.riskFor, m.riskIn) && (m.risk.Running() || m.risk.Result() != nil || m.risk.err != nil) {
+	if m.riskJob.gen == m.gen && sameInputs(m.riskFor, m.riskIn) && (m.risk.Running() || m.risk.Result() != nil || m.risk.err != nil) {
 		return nil
 	}
-	m.stopRisk()
-	ctx, cancel := context.WithCancel(m.ctx)
-	m.cancelRisk = cancel
-	m.riskRun++
-	m.riskGen, m.riskFor = m.gen, m.riskIn
+	ctx, run := m.riskJob.start(m.ctx, m.gen)
+	m.riskFor = m.riskIn
 	m.risk.started()
-	return riskCmd(ctx, m.riskRun, cloneDesign(m.d), m.riskIn)
+	m.refreshRisk()
+	return riskCmd(ctx, run, cloneDesign(m.d), m.riskIn)
 }
 
 func sameInputs(a, b RiskInputs) bool {
 	return a.Kind == b.Kind && a.Coef == b.Coef && a.Wealth == b.Wealth && (a.Belief == nil) == (b.Belief == nil) && sameVector(a.Belief, b.Belief)
 }
 
-func (m *Model) stopRisk() {
-	if m.cancelRisk != nil {
-		m.cancelRisk()
-		m.cancelRisk = nil
-	}
-}
-
 // riskMsg takes a message of the current risk run.
 func (m *Model) riskMsg(msg riskRunMsg) {
-	if msg.run != m.riskRun {
+	if !m.riskJob.current(msg.run) {
 		return
 	}
+	defer m.refreshRisk()
 	switch inner := msg.msg.(type) {
 	case riskProgressMsg:
 		m.risk.progressed(inner.done, inner.total)
@@ -149,7 +140,7 @@ func (m *Model) riskMsg(msg riskRunMsg) {
 		if errors.Is(inner.err, context.Canceled) {
 			return
 		}
-		m.cancelRisk = nil
+		m.riskJob.finished()
 		m.risk.finished(inner.res, inner.err)
 	}
 }

@@ -73,8 +73,16 @@ func lotteryNote(k KeyMap) string {
 	return "A lottery payment (" + k.Lottery.Help().Key + " in the export dialog: a chance (pay - floor)/(cap - floor) of one prize) removes this distortion for any expected-utility maximiser."
 }
 
-// View draws the view for design d and the current inputs.
-func (v RiskView) View(d *design.Design, in RiskInputs) string {
+// View is the view as last laid out by refresh.
+func (v RiskView) View() string { return v.body }
+
+// refresh lays the view out again for design d and inputs in. The model
+// calls it when something shown changed (a run's message, a key, the size,
+// the design), not on every frame: drawing the curve is work.
+func (v *RiskView) refresh(d *design.Design, in RiskInputs) { v.body = v.render(d, in) }
+
+// render draws the view for design d and the current inputs.
+func (v RiskView) render(d *design.Design, in RiskInputs) string {
 	st := v.st
 	iw, ih := max(4, v.w-2), max(1, v.h-2)
 	lines := []string{v.statusLine(), v.inputsLine(in, d)}

@@ -40,6 +40,10 @@ type Settings struct {
 	Dir string
 }
 
+// barColour fills the progress bars of the views: the palette's ochre
+// (NewStyles), as a plain colour because the bars take one.
+const barColour = "#E0B050"
+
 func (s Settings) debounce() time.Duration {
 	if s.Debounce <= 0 {
 		return 400 * time.Millisecond

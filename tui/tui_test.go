@@ -161,10 +161,12 @@ func TestSetParamKeepsComment(t *testing.T) {
 	if want := "a = 1.5  # weight\nb = 2\nc^(a-1) * (1-c)^(b-1)"; d.Formula != want {
 		t.Fatalf("got %q, want %q", d.Formula, want)
 	}
+	// An override gives way to the line, so the text shown is the value
+	// checked (issue 13: what is seen is what is saved).
 	d.Params = map[string]float64{"b": 3}
 	setParam(d, "b", 4)
-	if d.Params["b"] != 4 || !strings.Contains(d.Formula, "b = 2") {
-		t.Fatalf("an override must be updated in place: %v %q", d.Params, d.Formula)
+	if d.Params != nil || !strings.Contains(d.Formula, "\nb = 4\n") {
+		t.Fatalf("the line must say the value and the override go: %v %q", d.Params, d.Formula)
 	}
 }
 
