@@ -218,7 +218,9 @@ func (t *Tally) means() ([][]float64, map[int32]moneyRec, error) {
 	best := newBounded(t.opt.Show, better)
 	worst := newBounded(t.opt.Show, func(a, b int32) bool { return better(b, a) })
 	picked := map[int32]moneyRec{}
-	keep := func(f int32, m *moneyRec) { picked[f] = moneyRec{count: m.count, s: append([]schemeMoney(nil), m.s...)} }
+	keep := func(f int32, m *moneyRec) {
+		picked[f] = moneyRec{count: m.count, s: append([]schemeMoney(nil), m.s...)}
+	}
 	err := t.scan(true, false, func(f int, m *moneyRec, _ ownEntries) error {
 		for s := range out {
 			out[s][f] = m.s[s].pay.Value() / float64(m.count)
