@@ -8,20 +8,16 @@ import (
 	"testing"
 
 	"scorewright/generator/bregman"
+	"scorewright/generator/bregman/bregmantest"
 	"scorewright/generator/design"
 )
 
 func rule(t testing.TB, src string, n int) *bregman.Rule {
-	t.Helper()
-	f, err := bregman.NewFormula(src, bregman.Options{Outcomes: n})
-	if err != nil {
-		t.Fatal(err)
+	r := bregmantest.Rule(t, src, bregman.Options{Outcomes: n})
+	if n == 2 {
+		r.Labels = []string{"frost", "clear"}
 	}
-	labels := []string{"frost", "clear"}
-	if n != 2 {
-		labels = nil
-	}
-	return &bregman.Rule{Gen: f, Labels: labels}
+	return r
 }
 
 func stepMenu(t testing.TB, n int, step, floor float64) *Menu {
