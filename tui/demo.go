@@ -49,13 +49,14 @@ func demos() []func() *design.Design { return []func() *design.Design{DemoFrost,
 func cloneDesign(d *design.Design) *design.Design { return d.Clone() }
 
 // prepareDesign fills in what a design file may leave out: the formula of
-// a named preset.
-func prepareDesign(d *design.Design) error {
+// a named preset. The note says what it changed (a preset name dropped),
+// or is empty.
+func prepareDesign(d *design.Design) (note string, err error) {
 	// A preset name over a formula of the design's own is dropped, as on
 	// the command line: exports must name the rule computed.
-	presets.Settle(d)
+	note = presets.Settle(d)
 	if strings.TrimSpace(d.Formula) == "" && d.Preset != "" {
-		return presets.Apply(d)
+		return note, presets.Apply(d)
 	}
-	return nil
+	return note, nil
 }

@@ -204,7 +204,7 @@ func (p DesignPane) Update(msg tea.Msg, d *design.Design) (DesignPane, tea.Cmd, 
 			return p, cmd, false
 		}
 		d.Formula = p.ta.Value()
-		d.Preset = ""
+		p.dropPreset(d)
 		pruneParams(d)
 		return p, cmd, true
 	case editLabels, editParam:
@@ -407,7 +407,18 @@ func (p *DesignPane) cycleMode(d *design.Design, up bool) {
 	if f != "" {
 		d.Formula = f
 	}
-	d.Preset = ""
+	p.dropPreset(d)
 	pruneParams(d)
 	p.ta.SetValue(d.Formula)
+}
+
+// dropPreset forgets the preset the design was made from, now that its
+// formula is the user's own, and says so once: the record and the exports
+// name the formula, not the preset.
+func (p *DesignPane) dropPreset(d *design.Design) {
+	if d.Preset == "" {
+		return
+	}
+	p.note = fmt.Sprintf("%q preset dropped (edited)", d.Preset)
+	d.Preset = ""
 }

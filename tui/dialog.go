@@ -116,6 +116,12 @@ func (d *fileDialog) failed(msg string) {
 // Update handles a key.
 func (d fileDialog) Update(km tea.KeyMsg) (fileDialog, tea.Cmd, dialogAction) {
 	if d.busy {
+		// Opening reads a file and changes nothing until it is read, so
+		// esc may leave it (and stops the read); a save or an export
+		// that has started writing is seen through.
+		if d.kind == dialogOpen && key.Matches(km, d.keys.Cancel) {
+			return d, nil, actCancel
+		}
 		return d, nil, actNone
 	}
 	if d.confirm {

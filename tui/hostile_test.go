@@ -1,12 +1,15 @@
 package tui
 
 import (
+	"context"
+	"errors"
 	"path/filepath"
 	"strings"
 	"testing"
 
 	tea "github.com/charmbracelet/bubbletea"
 
+	"scorewright/generator/design"
 	"scorewright/generator/formula"
 )
 
@@ -39,9 +42,10 @@ func TestFormulaEditorNeverCuts(t *testing.T) {
 	}
 }
 
-// A late "open" answer must not replace a design the user moved on from:
-// open, cancel with esc, ctrl+n to the next demo, then the answer arrives.
-func TestLateOpenIgnored(t *testing.T) {
+// withOtherDesign starts a workbench beside a saved design file, other,
+// at path.
+func withOtherDesign(t *testing.T) (*Model, string, *design.Design) {
+	t.Helper()
 	m := testModel(t, nil, Settings{})
 	start(t, m, 120, 40)
 	path := filepath.Join(m.set.Dir, "other.toml")
@@ -50,6 +54,13 @@ func TestLateOpenIgnored(t *testing.T) {
 	if err := other.Save(path, false); err != nil {
 		t.Fatal(err)
 	}
+	return m, path, other
+}
+
+// A late "open" answer must not replace a design the user moved on from:
+// open, cancel with esc, ctrl+n to the next demo, then the answer arrives.
+func TestLateOpenIgnored(t *testing.T) {
+	m, path, other := withOtherDesign(t)
 	m.openDialog(dialogOpen)
 	m.dialog.path.SetValue(path)
 	late := m.submitDialog()
@@ -90,5 +101,67 @@ func TestExportFormatFromExtension(t *testing.T) {
 	d = newFileDialog(testStyles(t), DefaultKeyMap(), dialogExport, "annex.txt", []string{"csv", "md"})
 	if d.formatFromPath(); d.Format() != "csv" {
 		t.Errorf("an unknown extension changed the format to %q", d.Format())
+	}
+}
+
+// esc leaves an open dialog that is still reading its file ("working…"),
+// and stops the read: the answer that comes after says the read was
+// cancelled, and is dropped.
+func TestOpenCancelledWhileReading(t *testing.T) {
+	m, path, _ := withOtherDesign(t)
+	want := m.d.Title
+	m.openDialog(dialogOpen)
+	m.dialog.path.SetValue(path)
+	_, cmd := m.Update(keyEnter) // the read's command, not yet run
+	if m.dialog == nil || !m.dialog.busy {
+		t.Fatal("test setup: the dialog is not reading")
+	}
+	press(t, m, keyEsc)
+	if m.dialog != nil || m.status != "cancelled: the file was not opened" {
+		t.Fatalf("after esc: dialog %v, status %q", m.dialog != nil, m.status)
+	}
+	var opened []openedMsg
+	var collect func(msg tea.Msg)
+	collect = func(msg tea.Msg) {
+		switch msg := msg.(type) {
+		case openedMsg:
+			opened = append(opened, msg)
+		case tea.BatchMsg:
+			for _, c := range msg {
+				if c != nil {
+					collect(c())
+				}
+			}
+		}
+	}
+	collect(cmd())
+	if len(opened) != 1 || !errors.Is(opened[0].err, context.Canceled) {
+		t.Fatalf("the read's answers %+v, want one that says it was cancelled", opened)
+	}
+	_, next := m.Update(opened[0])
+	settle(t, m, next)
+	if m.d.Title != want {
+		t.Errorf("a cancelled open replaced the design: title %q", m.d.Title)
+	}
+}
+
+// Editing the formula of a design made from a preset drops the preset's
+// name, and the pane says so.
+func TestPresetDroppedNote(t *testing.T) {
+	d := DemoFrost()
+	if d.Preset == "" {
+		t.Fatal("test setup: the demo names no preset")
+	}
+	name := d.Preset
+	p := NewDesignPane(testStyles(t), DefaultKeyMap(), d)
+	p.edit = editFormula
+	p.ta.Focus()
+	p.ta.CursorEnd()
+	p, _, changed := p.Update(runes(" + 0"), d)
+	if !changed || d.Preset != "" {
+		t.Fatalf("changed %v, preset %q after editing the formula", changed, d.Preset)
+	}
+	if want := `"` + name + `" preset dropped`; !strings.Contains(p.note, want) {
+		t.Errorf("note %q, want it to say %s", p.note, want)
 	}
 }

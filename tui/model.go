@@ -47,6 +47,7 @@ type (
 		gen  uint64
 		seq  uint64
 		err  error
+		note string // what opening changed in the file's design
 	}
 	exportedMsg struct {
 		files []string
@@ -67,10 +68,12 @@ type Model struct {
 	path          string // where the design was loaded from or saved to
 	gen           uint64 // generation of the design; bumped on every edit
 	dialogSeq     uint64 // serial number of the last dialog opened
-	comp          *compiled
-	compGen       uint64
-	debouncedGen  uint64
-	fitGen        uint64
+	// stopDialog cancels the read an open dialog started; nil when none.
+	stopDialog   context.CancelFunc
+	comp         *compiled
+	compGen      uint64
+	debouncedGen uint64
+	fitGen       uint64
 
 	ctx       context.Context
 	cancelAll context.CancelFunc
@@ -324,6 +327,9 @@ func (m *Model) fileMsg(msg tea.Msg) tea.Cmd {
 		return m.fileDone(msg.seq, msg.err, func() {
 			m.dropRecovery() // the user agreed to drop the old design's edits
 			m.status = "opened " + msg.path
+			if msg.note != "" {
+				m.status += "; note: " + msg.note
+			}
 			m.path = msg.path
 		}, func() tea.Cmd { return m.replaceDesign(msg.d) })
 	case completedMsg:

@@ -1,6 +1,7 @@
 package tui
 
 import (
+	"context"
 	"errors"
 	"path/filepath"
 	"regexp"
@@ -20,6 +21,7 @@ func (m *Model) fileDone(seq uint64, err error, ok func(), then ...func() tea.Cm
 		// The dialog was cancelled (esc) or replaced: the answer is late.
 		return nil
 	}
+	m.cancelDialogWork()
 	switch {
 	case errors.Is(err, safefile.ErrExists):
 		m.dialog.askOverwrite()
@@ -35,6 +37,15 @@ func (m *Model) fileDone(seq uint64, err error, ok func(), then ...func() tea.Cm
 		cmds = append(cmds, f())
 	}
 	return tea.Batch(cmds...)
+}
+
+// cancelDialogWork stops what the dialog started, if it still runs (the
+// read of a file being opened).
+func (m *Model) cancelDialogWork() {
+	if m.stopDialog != nil {
+		m.stopDialog()
+		m.stopDialog = nil
+	}
 }
 
 // Unsaved reports whether the design changed since it was opened or saved.
@@ -67,6 +78,7 @@ func (m *Model) defaultName(ext string) string {
 
 func (m *Model) openDialog(kind dialogKind) {
 	m.designPane.stopEditing()
+	m.cancelDialogWork()
 	switch kind {
 	case dialogSave:
 		d := newFileDialog(m.st, m.keys, kind, m.defaultName("toml"), []string{"toml"})
@@ -128,12 +140,16 @@ func (m *Model) submitDialog() tea.Cmd {
 	case dialogHistory:
 		return m.startBacktest(path)
 	case dialogOpen:
+		ctx, stop := context.WithCancel(m.ctx)
+		m.stopDialog = stop
 		return func() tea.Msg {
-			nd, err := design.Load(path)
+			defer stop()
+			nd, err := design.LoadContext(ctx, path)
+			var note string
 			if err == nil {
-				err = prepareDesign(nd)
+				note, err = prepareDesign(nd)
 			}
-			return openedMsg{path: path, d: nd, gen: gen, seq: seq, err: err}
+			return openedMsg{path: path, d: nd, gen: gen, seq: seq, err: err, note: note}
 		}
 	default:
 		ex, ctx := m.set.Exporter, m.ctx
@@ -145,6 +161,7 @@ func (m *Model) submitDialog() tea.Cmd {
 }
 
 // PrepareDesign readies a loaded design for the workbench: a preset named
-// without a formula gets its formula. It is what `scorewright open` runs
-// after design.Load.
-func PrepareDesign(d *design.Design) error { return prepareDesign(d) }
+// without a formula gets its formula, a preset name over a formula of the
+// design's own is dropped (the note says so). It is what `scorewright
+// open` runs after design.Load.
+func PrepareDesign(d *design.Design) (note string, err error) { return prepareDesign(d) }

@@ -60,6 +60,10 @@ func (m *Model) dialogKey(km tea.KeyMsg) tea.Cmd {
 	case actCancel:
 		m.dialog = nil
 		m.status = "cancelled"
+		if d.busy {
+			m.status = "cancelled: the file was not opened"
+		}
+		m.cancelDialogWork()
 		if m.afterSave != nil {
 			m.afterSave = nil
 			m.status = "not saved; the design is still open"

@@ -52,7 +52,7 @@ func (m *Model) findRecovery() tea.Cmd {
 		}
 		d, err := design.Decode(e.Design)
 		if err == nil {
-			err = prepareDesign(d)
+			_, err = prepareDesign(d)
 		}
 		if err != nil {
 			to, aerr := st.SetAside(e)

@@ -82,13 +82,13 @@ type (
 func riskCmd(ctx context.Context, run uint64, d *design.Design, in RiskInputs) tea.Cmd {
 	tag := func(m tea.Msg) tea.Msg { return riskRunMsg{run: run, msg: m} }
 	return runStream(ctx, func(send func(tea.Msg, bool)) {
-		res, err := riskRun(ctx, d, in, func(done, total int) { send(tag(riskProgressMsg{done, total}), false) })
+		res, err := riskRun(ctx, d, in, func(done, total int64) { send(tag(riskProgressMsg{int(done), int(total)}), false) })
 		send(tag(riskDoneMsg{res: res, err: err}), true)
 	})
 }
 
 // riskRun is the work of riskCmd.
-func riskRun(ctx context.Context, d *design.Design, in RiskInputs, progress func(done, total int)) (*RiskResult, error) {
+func riskRun(ctx context.Context, d *design.Design, in RiskInputs, progress func(done, total int64)) (*RiskResult, error) {
 	rule, err := designRule(d)
 	var needs *scorewright.NeedsOutcomesError
 	if errors.As(err, &needs) {

@@ -115,3 +115,34 @@ func BenchmarkAuditAgainstCheck(b *testing.B) {
 		})
 	}
 }
+
+// BenchmarkKernel is the full stream's kernel alone, per pair and per
+// outcome (CPU ns, which other jobs on the machine disturb less than wall
+// time), at every n the engine takes: the target is
+// every n within 1.5 times n = 3's cost.
+func BenchmarkKernel(b *testing.B) {
+	const reports, beliefs = 4096, 64
+	for n := 2; n <= 12; n++ {
+		b.Run(fmt.Sprintf("n=%d", n), func(b *testing.B) {
+			rows := make([]float64, reports*n)
+			for i := range rows {
+				rows[i] = float64(i%17) / 17
+			}
+			q := make([]float64, beliefs*n)
+			for i := range q {
+				q[i] = 1 / float64(n)
+			}
+			b.ResetTimer()
+			cpu := cpuSeconds()
+			for range b.N {
+				for i := 0; i < beliefs; i++ {
+					kernelSink = scan(q[i*n:(i+1)*n], rows, n)
+				}
+			}
+			per := (cpuSeconds() - cpu) * 1e9 / float64(b.N) / (reports * beliefs * float64(n))
+			b.ReportMetric(per, "cpu-ns/pair-outcome")
+		})
+	}
+}
+
+var kernelSink best

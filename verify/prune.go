@@ -290,16 +290,19 @@ func (s *pruneState) leaf(q, rows []float64, idx []int32, lo, hi, n int) {
 				s.offer(phi, idx[p])
 			}
 		}
-	case 4:
-		q0, q1, q2, q3 := q[0], q[1], q[2], q[3]
-		for p := lo; p < hi; p++ {
-			r := rows[p*4 : p*4+4 : p*4+4]
-			if phi := dot4(q0, q1, q2, q3, r); phi <= s.m2 {
-				s.offer(phi, idx[p])
+	default:
+		p := lo
+		for ; p+4 <= hi; p += 4 {
+			pa, pb, pc, pd := dot4N(q, rows[p*n:(p+4)*n], n)
+			if pa <= s.m2 || pb <= s.m2 || pc <= s.m2 || pd <= s.m2 {
+				for u, phi := range [4]float64{pa, pb, pc, pd} {
+					if phi <= s.m2 {
+						s.offer(phi, idx[p+u])
+					}
+				}
 			}
 		}
-	default:
-		for p := lo; p < hi; p++ {
+		for ; p < hi; p++ {
 			if phi := dotN(q, rows[p*n:(p+1)*n]); phi <= s.m2 {
 				s.offer(phi, idx[p])
 			}

@@ -175,11 +175,38 @@ func scan(q, rows []float64, n int) best {
 		return scan4(q[0], q[1], q[2], q[3], rows)
 	}
 	m1, m2, arg, arg2 := math.Inf(1), math.Inf(1), -1, -1
-	for j, off := 0, 0; off+n <= len(rows); j, off = j+1, off+n {
+	j, off := 0, 0
+	for ; off+4*n <= len(rows); j, off = j+4, off+4*n {
+		pa, pb, pc, pd := dot4N(q, rows[off:off+4*n], n)
+		if pa < m2 || pb < m2 || pc < m2 || pd < m2 {
+			for t, phi := range [4]float64{pa, pb, pc, pd} {
+				m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j+t)
+			}
+		}
+	}
+	for ; off+n <= len(rows); j, off = j+1, off+n {
 		phi := dotN(q, rows[off:off+n:off+n])
 		m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j)
 	}
 	return best{m1, m2, int32(arg), int32(arg2)}
+}
+
+// dot4N is dotN for four consecutive reports at once (r holds their rows,
+// n apart; q may be shorter than n, as dotN allows): four independent sums, so any n runs at the cost per outcome
+// of the unrolled small-n kernels. Each sum is rounded as dotN rounds it.
+func dot4N(q, r []float64, n int) (a, b, c, d float64) {
+	m := len(q)
+	ra, rb, rc, rd := r[0:m:m], r[n:n+m:n+m], r[2*n:2*n+m:2*n+m], r[3*n:3*n+m:3*n+m]
+	x := q[0]
+	a, b, c, d = float64(x*ra[0]), float64(x*rb[0]), float64(x*rc[0]), float64(x*rd[0])
+	for k := 1; k < m; k++ {
+		x := q[k]
+		a = float64(a + float64(x*ra[k]))
+		b = float64(b + float64(x*rb[k]))
+		c = float64(c + float64(x*rc[k]))
+		d = float64(d + float64(x*rd[k]))
+	}
+	return a, b, c, d
 }
 
 func scan2(q0, q1 float64, rows []float64) best {

@@ -11,6 +11,7 @@ import (
 	"testing"
 
 	"scorewright/generator/bregman"
+	"scorewright/generator/bregman/bregmantest"
 	"scorewright/generator/payout"
 	"scorewright/internal/pool"
 	"scorewright/internal/simplex"
@@ -18,12 +19,7 @@ import (
 )
 
 func rule(t *testing.T, src string, n int) *bregman.Rule {
-	t.Helper()
-	f, err := bregman.NewFormula(src, bregman.Options{Outcomes: n})
-	if err != nil {
-		t.Fatalf("%q: %v", src, err)
-	}
-	return &bregman.Rule{Gen: f}
+	return bregmantest.Rule(t, src, bregman.Options{Outcomes: n})
 }
 
 func pay(t *testing.T, src string, n int) *payout.Payout {

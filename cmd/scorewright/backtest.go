@@ -107,7 +107,7 @@ func backtestWith(e *env, args []string, hook payHook) error {
 	if err != nil {
 		return err
 	}
-	schemes, err := f.schemes(fs, hook)
+	schemes, err := f.schemes(e.stderr, fs, hook)
 	if err != nil {
 		return err
 	}
@@ -134,8 +134,8 @@ func backtestWith(e *env, args []string, hook payHook) error {
 
 // schemes opens the first rule and the one it is compared with, if any,
 // and fits each to its budget.
-func (f *backtestFlags) schemes(fs *flag.FlagSet, hook payHook) ([]*backtestScheme, error) {
-	d1, err := f.rule.design()
+func (f *backtestFlags) schemes(notes io.Writer, fs *flag.FlagSet, hook payHook) ([]*backtestScheme, error) {
+	d1, err := f.rule.design(notes)
 	if err != nil {
 		return nil, err
 	}
@@ -155,7 +155,7 @@ func (f *backtestFlags) schemes(fs *flag.FlagSet, hook payHook) ([]*backtestSche
 	case vs == 0 && len(f.vsParams) > 0:
 		return nil, usagef("--versus-param needs --versus-preset, --versus-generator or --versus-design")
 	case vs == 1:
-		d2, err := versusDesign(d1, *f.vsPreset, *f.vsGen, *f.vsDesign, f.vsParams)
+		d2, err := versusDesign(notes, d1, *f.vsPreset, *f.vsGen, *f.vsDesign, f.vsParams)
 		if err != nil {
 			return nil, err
 		}
@@ -222,7 +222,7 @@ func (f *backtestFlags) run(e *env, h *history.Reader, size int64, schemes []*ba
 	}
 	opt := backtest.Options{Strict: *f.strict, Tally: backtest.TallyOptions{Grid: grid}}
 	if *f.progress || isTerminal(e.stderr) {
-		opt.Progress = newProgressLine(e.stderr, size)
+		opt.Progress = newProgressLine(e.progressOut(), size)
 	}
 	var out *payOutFile
 	if *f.payOut != "" {
@@ -360,7 +360,7 @@ func failedIfWarned(r *backtestReport) error {
 // design file keeps its own budget when it states one (a cap or a mean
 // pay); otherwise, and for a preset or generator, the second rule is fitted
 // to the first rule's budget, so that the two are compared on equal money.
-func versusDesign(d1 *design.Design, preset, gen, file string, params paramFlag) (*design.Design, error) {
+func versusDesign(notes io.Writer, d1 *design.Design, preset, gen, file string, params paramFlag) (*design.Design, error) {
 	vr := &ruleFlags{preset: preset, generator: gen, file: file, params: params, ordered: d1.Ordered}
 	if file == "" {
 		vr.outcomes = strings.Join(d1.Labels, ",")
@@ -372,7 +372,7 @@ func versusDesign(d1 *design.Design, preset, gen, file string, params paramFlag)
 			vr.weights = strings.Join(w, ",")
 		}
 	}
-	d2, err := vr.design()
+	d2, err := vr.design(notes)
 	if err != nil {
 		var ue *usageError
 		if errors.As(err, &ue) {

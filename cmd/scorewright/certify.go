@@ -43,10 +43,10 @@ func (c *certifyFlags) settings(e *env) (certify.Settings, error) {
 	if isTerminal(e.stderr) {
 		s.Progress = func(p certify.Progress) {
 			if p.Done {
-				fmt.Fprint(e.stderr, "\r\033[K")
+				fmt.Fprint(e.progressOut(), "\r\033[K")
 				return
 			}
-			fmt.Fprintf(e.stderr, "\rcertifying: %s proved, %d boxes, %s of %s ", pct(p.Share), p.Boxes, p.Elapsed.Round(100*time.Millisecond), c.deadline)
+			fmt.Fprintf(e.progressOut(), "\rcertifying: %s proved, %d boxes, %s of %s ", pct(p.Share), p.Boxes, p.Elapsed.Round(100*time.Millisecond), c.deadline)
 		}
 	}
 	return s, nil

@@ -33,7 +33,7 @@ func runCheck(e *env, args []string) error {
 	if err := parseFlags(e, fs, ruleUsage+" "+verifyUsage, args, false); err != nil {
 		return err
 	}
-	d, err := rf.design()
+	d, err := rf.design(e.stderr)
 	if err != nil {
 		return err
 	}

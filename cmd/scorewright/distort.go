@@ -5,6 +5,7 @@ import (
 	"errors"
 	"flag"
 	"fmt"
+	"io"
 	"math"
 	"text/tabwriter"
 
@@ -72,7 +73,7 @@ func runDistort(e *env, args []string) error {
 	if math.IsNaN(*wealth) || math.IsInf(*wealth, 0) {
 		return usagef("--wealth %g is not a finite number", *wealth)
 	}
-	d, rule, fitted, err := distortTerms(fs, rf, bf)
+	d, rule, fitted, err := distortTerms(e.stderr, fs, rf, bf)
 	if err != nil {
 		return err
 	}
@@ -110,8 +111,8 @@ func runDistort(e *env, args []string) error {
 // distortTerms opens the design of the flags, a rule over outcomes, and
 // fits it to its budget as a risk computation does (budget.StepTerms),
 // wording the errors in the command's flags.
-func distortTerms(fs *flag.FlagSet, rf *ruleFlags, bf *budgetFlags) (*design.Design, *bregman.Rule, *budget.Terms, error) {
-	d, err := rf.design()
+func distortTerms(notes io.Writer, fs *flag.FlagSet, rf *ruleFlags, bf *budgetFlags) (*design.Design, *bregman.Rule, *budget.Terms, error) {
+	d, err := rf.design(notes)
 	if err != nil {
 		return nil, nil, nil, err
 	}

@@ -32,7 +32,7 @@ func runEval(e *env, args []string) error {
 	if err := parseFlags(e, fs, usage, args, false); err != nil {
 		return err
 	}
-	d, err := rf.design()
+	d, err := rf.design(e.stderr)
 	if err != nil {
 		return err
 	}

@@ -104,12 +104,14 @@ func addRuleFlags(fs *flag.FlagSet) *ruleFlags {
 }
 
 // design builds the design the flags describe. A design file supplies
-// everything; flags given beside it override its parameters.
-func (r *ruleFlags) design() (*design.Design, error) {
+// everything; flags given beside it override its parameters. Notes on
+// what was changed in the file's design (a preset name dropped) go to
+// notes.
+func (r *ruleFlags) design(notes io.Writer) (*design.Design, error) {
 	var d *design.Design
 	var err error
 	if r.file != "" {
-		d, err = r.fileDesign()
+		d, err = r.fileDesign(notes)
 	} else {
 		d, err = r.flagDesign()
 	}
@@ -139,7 +141,7 @@ func (r *ruleFlags) design() (*design.Design, error) {
 }
 
 // fileDesign reads --design, which gives the whole rule.
-func (r *ruleFlags) fileDesign() (*design.Design, error) {
+func (r *ruleFlags) fileDesign(notes io.Writer) (*design.Design, error) {
 	if r.generator != "" || r.preset != "" || r.emphasis != "" || r.outcomes != "" {
 		return nil, usagef("--design gives the whole rule; do not combine it with --outcomes, --generator, --preset or --emphasis")
 	}
@@ -148,8 +150,11 @@ func (r *ruleFlags) fileDesign() (*design.Design, error) {
 		return nil, usagef("%v", err)
 	}
 	// A preset name over a formula of the design's own is dropped: the
-	// record must name the rule that is computed.
-	presets.Settle(d)
+	// record must name the rule that is computed. The user is told, as
+	// the name is in their file.
+	if note := presets.Settle(d); note != "" {
+		fmt.Fprintf(notes, "scorewright: note: %s: %s\n", r.file, note)
+	}
 	return d, nil
 }
 

@@ -48,16 +48,33 @@ func commands() map[string]command {
 }
 
 func main() {
-	e := &env{stdin: os.Stdin, stdout: os.Stdout, stderr: os.Stderr}
-	if len(os.Args) > 1 && os.Args[1] != "open" {
-		// Text from files (titles, names in a history) reaches the
-		// terminal; no escape sequence in it may move the cursor or
-		// recolour a line. The workbench draws with escapes of its own;
-		// stderr carries the progress line, which rewrites itself with
-		// "\r", and error messages, which exitCode cleans.
-		e.stdout = terminalSafe(os.Stdout)
+	os.Exit(run(os.Args[1:], newEnv(os.Args[1:], os.Stdin, os.Stdout, os.Stderr)))
+}
+
+// newEnv connects a command to the process's files. Text from files
+// (titles, names in a history) reaches the terminal; no escape sequence
+// in it may move the cursor or recolour a line. stdout is filtered when it
+// is a terminal (files and pipes get the bytes unchanged, as exports must
+// be); stderr, which carries only messages, always is, through the same
+// filter. The workbench draws with escapes of its own, so "open" keeps
+// stdout raw; progress lines, which rewrite themselves with "\r", go
+// around the filter (progressOut).
+func newEnv(args []string, stdin, stdout, stderr *os.File) *env {
+	e := &env{stdin: stdin, stdout: stdout, stderr: textsafe.NewWriter(stderr)}
+	if len(args) > 0 && args[0] != "open" {
+		e.stdout = terminalSafe(stdout)
 	}
-	os.Exit(run(os.Args[1:], e))
+	return e
+}
+
+// progressOut is where a progress line goes: stderr without the filter,
+// since the line rewrites itself with "\r" and certify clears it with an
+// escape. Only numbers and the program's own words go there.
+func (e *env) progressOut() io.Writer {
+	if t, ok := e.stderr.(*textsafe.Writer); ok {
+		return t.Unwrap()
+	}
+	return e.stderr
 }
 
 // terminalSafe filters f through textsafe when f is a terminal; files and

@@ -2,6 +2,8 @@ package main
 
 import (
 	"errors"
+	"fmt"
+	"io"
 	"io/fs"
 
 	"scorewright/generator/design"
@@ -17,7 +19,7 @@ func runOpen(e *env, args []string) error {
 		return usagef("open takes one design file, e.g. scorewright open frost.toml")
 	}
 	path := flags.Arg(0)
-	d, err := loadDesign(path)
+	d, err := loadDesign(path, e.stderr)
 	if err != nil {
 		return err
 	}
@@ -25,8 +27,10 @@ func runOpen(e *env, args []string) error {
 }
 
 // loadDesign reads and validates a design file for the workbench, with a
-// message naming the file and the problem.
-func loadDesign(path string) (*design.Design, error) {
+// message naming the file and the problem; a note on what was changed
+// (a preset name dropped) goes to notes, and stays on the terminal when
+// the workbench closes.
+func loadDesign(path string, notes io.Writer) (*design.Design, error) {
 	d, err := design.Load(path)
 	switch {
 	case errors.Is(err, fs.ErrNotExist):
@@ -34,8 +38,12 @@ func loadDesign(path string) (*design.Design, error) {
 	case err != nil:
 		return nil, usagef("%v", err)
 	}
-	if err := tui.PrepareDesign(d); err != nil {
+	note, err := tui.PrepareDesign(d)
+	if err != nil {
 		return nil, usagef("%s: %v", path, err)
+	}
+	if note != "" {
+		fmt.Fprintf(notes, "scorewright: note: %s: %s\n", path, note)
 	}
 	return d, nil
 }

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"flag"
 	"fmt"
+	"io"
 	"os"
 	"strings"
 
@@ -60,7 +61,7 @@ func runResearch(e *env, args []string) error {
 	if err := parseFlags(e, fs, researchUsage, args, false); err != nil {
 		return err
 	}
-	d, rule, name, err := researchDesign(rf)
+	d, rule, name, err := researchDesign(rf, e.stderr)
 	if err != nil {
 		return err
 	}
@@ -109,7 +110,7 @@ func runResearch(e *env, args []string) error {
 
 // researchDesign builds the design: with a rule source the usual RULE
 // flags, else only the outcomes (the known rules are compared alone).
-func researchDesign(rf *ruleFlags) (*design.Design, *bregman.Rule, string, error) {
+func researchDesign(rf *ruleFlags, notes io.Writer) (*design.Design, *bregman.Rule, string, error) {
 	if rf.file == "" && rf.generator == "" && rf.preset == "" && rf.emphasis == "" {
 		if rf.interval != "" {
 			return nil, nil, "", usagef("research works on rules over outcomes; it does not take --interval")
@@ -123,7 +124,7 @@ func researchDesign(rf *ruleFlags) (*design.Design, *bregman.Rule, string, error
 		}
 		return &design.Design{Version: design.SchemaVersion, Mode: design.ModeGenerator, Labels: labels}, nil, "", nil
 	}
-	d, err := rf.design()
+	d, err := rf.design(notes)
 	if err != nil {
 		return nil, nil, "", err
 	}

@@ -95,7 +95,7 @@ func runTable(e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	d, err := rf.design()
+	d, err := rf.design(e.stderr)
 	if err != nil {
 		return err
 	}

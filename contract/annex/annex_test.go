@@ -17,6 +17,7 @@ import (
 	"scorewright/contract/cost"
 	"scorewright/contract/payform"
 	"scorewright/generator/bregman"
+	"scorewright/generator/bregman/bregmantest"
 	"scorewright/generator/design"
 )
 
@@ -36,12 +37,14 @@ func waterDesign() *design.Design {
 
 func waterDoc(t *testing.T) *Document {
 	t.Helper()
-	d := waterDesign()
-	gen, err := bregman.NewFormula(d.Formula, bregman.Options{Outcomes: d.N()})
-	rule := &bregman.Rule{Gen: gen, Labels: d.Labels}
-	if err != nil {
-		t.Fatal(err)
-	}
+	return docFor(t, waterDesign())
+}
+
+// docFor is the annex of design d, fitted and re-checked as the command does.
+func docFor(t *testing.T, d *design.Design) *Document {
+	t.Helper()
+	rule := bregmantest.Rule(t, d.Formula, bregman.Options{Outcomes: d.N()})
+	rule.Labels = d.Labels
 	menu, err := budget.StepMenu(2, d.Budget.Step, 0)
 	if err != nil {
 		t.Fatal(err)

@@ -8,15 +8,11 @@ import (
 	"gonum.org/v1/gonum/stat"
 
 	"scorewright/generator/bregman"
+	"scorewright/generator/bregman/bregmantest"
 )
 
 func rule(t testing.TB, src string, n int, ordered bool) *bregman.Rule {
-	t.Helper()
-	f, err := bregman.NewFormula(src, bregman.Options{Outcomes: n, Ordered: ordered})
-	if err != nil {
-		t.Fatalf("%s: %v", src, err)
-	}
-	return &bregman.Rule{Gen: f, Ordered: ordered}
+	return bregmantest.Rule(t, src, bregman.Options{Outcomes: n, Ordered: ordered})
 }
 
 // murphySample is a small binary history: forecast f of the event, how

@@ -79,11 +79,17 @@ func (x *finals) close() {
 	}
 }
 
-// encodeFinal writes f's decompositions into v: per scheme uncertainty,
-// resolution and reliability, then per event the six CORP figures.
+// finalWidth is the float64 figures encodeFinal writes for one
+// forecaster: the count, then per scheme seven of money, three of the
+// binned decomposition and six of CORP per event.
+func finalWidth(schemes, events int) int { return 1 + schemes*(10+6*events) }
+
+// encodeFinal writes f's count, money and decompositions into v.
 func encodeFinal(v []float64, f *Forecaster) {
-	v = v[:0]
+	v = append(v[:0], float64(f.Count))
 	for s, d := range f.Decomposition {
+		m := f.Money[s]
+		v = append(v, m.Total, m.MeanEffort, float64(m.OffMenu), float64(m.BelowLow), float64(m.AboveHigh), float64(m.NonFinite), float64(m.FirstNonFinite))
 		v = append(v, d.Uncertainty, d.Resolution, d.Reliability)
 		for _, c := range f.CORP[s] {
 			v = append(v, float64(c.Count), c.BaseRate, c.Score, c.Miscalibration, c.Discrimination, c.Uncertainty)
@@ -91,14 +97,19 @@ func encodeFinal(v []float64, f *Forecaster) {
 	}
 }
 
-// decodeFinal fills f's decompositions from v, as encodeFinal wrote them
-// for events events per scheme; f holds the money already.
-func decodeFinal(f *Forecaster, v []float64, events int) {
-	for s := range f.Money {
-		d := Decomposition{MeanEffort: f.Money[s].MeanEffort, Uncertainty: v[0], Resolution: v[1], Reliability: v[2]}
+// decodeFinal fills f's count, money and decompositions from v, as
+// encodeFinal wrote them.
+func decodeFinal(f *Forecaster, v []float64, schemes, events int) {
+	f.Count = int(v[0])
+	v = v[1:]
+	for range schemes {
+		m := Money{Count: f.Count, Total: v[0], MeanEffort: v[1], OffMenu: int(v[2]), BelowLow: int(v[3]), AboveHigh: int(v[4]),
+			NonFinite: int(v[5]), FirstNonFinite: int(v[6]), Mean: v[0] / float64(f.Count), Min: math.NaN(), Max: math.NaN()}
+		f.Money = append(f.Money, m)
+		d := Decomposition{MeanEffort: m.MeanEffort, Uncertainty: v[7], Resolution: v[8], Reliability: v[9]}
 		d.WithinBin = d.MeanEffort - d.Identity()
 		f.Decomposition = append(f.Decomposition, d)
-		v = v[3:]
+		v = v[10:]
 		cs := make([]corp.Decomposition, events)
 		for k := range cs {
 			cs[k] = corp.Decomposition{Count: int(v[0]), BaseRate: v[1], Score: v[2], Miscalibration: v[3], Discrimination: v[4], Uncertainty: v[5]}

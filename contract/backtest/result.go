@@ -102,15 +102,15 @@ func (r *Result) EachForecaster(fn func(f *Forecaster) error) error {
 	for p, f := range order {
 		pos[f] = int32(p)
 	}
-	width := len(t.schemes) * (3 + 6*t.events())
+	width := finalWidth(len(t.schemes), t.events())
 	fin, err := newFinals(len(order), width, t.opt.finalsLimit, t.opt.SpillDir)
 	if err != nil {
 		return err
 	}
 	defer fin.close()
 	vals := make([]float64, width)
-	err = t.store.scan(func(f int, ids []int32, hits []uint32) error {
-		fr := t.forecasterResult(f, ids, hits, r.ranks, false)
+	err = t.scan(true, func(f int, m *moneyRec, own ownEntries) error {
+		fr := t.forecasterResult(f, m, own, r.ranks, false)
 		encodeFinal(vals, &fr)
 		return fin.put(int(pos[f]), vals)
 	})
@@ -122,8 +122,11 @@ func (r *Result) EachForecaster(fn func(f *Forecaster) error) error {
 		if err := fin.get(p, vals); err != nil {
 			return err
 		}
-		fr := t.forecasterMoney(int(f), r.ranks)
-		decodeFinal(&fr, vals, t.events())
+		fr := Forecaster{Name: t.names.name(int(f)), Binning: t.binning()}
+		decodeFinal(&fr, vals, len(t.schemes), t.events())
+		for s := range t.schemes {
+			fr.Rank = append(fr.Rank, int(r.ranks[s][f]))
+		}
 		if err := fn(&fr); err != nil {
 			return err
 		}
@@ -155,9 +158,14 @@ func (t *Tally) Result() (*Result, error) {
 		r.Months = append(r.Months, mm)
 	}
 	sort.Slice(r.Months, func(i, j int) bool { return r.Months[i].Month < r.Months[j].Month })
+	means, err := t.means()
+	if err != nil {
+		return nil, err
+	}
 	r.ranks = make([][]int32, len(t.schemes))
 	for s := range t.schemes {
-		r.ranks[s] = t.rank(s)
+		r.ranks[s] = rank(means[s])
+		means[s] = nil
 	}
 	shown := t.shown(r.ranks)
 	at := make(map[int32]int, len(shown))
@@ -165,9 +173,9 @@ func (t *Tally) Result() (*Result, error) {
 		at[i] = k
 	}
 	r.Forecasters = make([]Forecaster, len(shown))
-	err := t.store.scan(func(f int, ids []int32, hits []uint32) error {
+	err = t.scan(true, func(f int, m *moneyRec, own ownEntries) error {
 		if k, ok := at[int32(f)]; ok {
-			r.Forecasters[k] = t.forecasterResult(f, ids, hits, r.ranks, true)
+			r.Forecasters[k] = t.forecasterResult(f, m, own, r.ranks, true)
 		}
 		return nil
 	})
@@ -204,13 +212,24 @@ func (t *Tally) shown(ranks [][]int32) []int32 {
 	return out
 }
 
-// rank ranks forecasters by mean pay under scheme s, best first; ties
-// share the better rank and NaN ranks last.
-func (t *Tally) rank(s int) []int32 {
-	mean := make([]float64, t.names.len())
-	for i := range mean {
-		mean[i] = t.money.mean(i, s)
+// means returns every forecaster's mean pay under each scheme.
+func (t *Tally) means() ([][]float64, error) {
+	out := make([][]float64, len(t.schemes))
+	for s := range out {
+		out[s] = make([]float64, t.names.len())
 	}
+	err := t.scan(false, func(f int, m *moneyRec, _ ownEntries) error {
+		for s := range out {
+			out[s][f] = m.s[s].pay.Value() / float64(m.count)
+		}
+		return nil
+	})
+	return out, err
+}
+
+// rank ranks forecasters by their mean pay, best first; ties share the
+// better rank and NaN ranks last.
+func rank(mean []float64) []int32 {
 	order := make([]int32, len(mean))
 	for i := range order {
 		order[i] = int32(i)
@@ -235,27 +254,21 @@ func (t *Tally) rank(s int) []int32 {
 	return ranks
 }
 
-// forecasterMoney is forecaster i's name, money and ranks, without the
-// decompositions.
-func (t *Tally) forecasterMoney(i int, ranks [][]int32) Forecaster {
-	f := Forecaster{Name: t.names.name(i), Count: int(t.money.count[i]), Binning: Binning{Grid: t.opt.Grid}}
+// binning is how the binned decomposition forms its bins.
+func (t *Tally) binning() Binning {
 	if t.opt.Distinct {
-		f.Binning.Grid = 0
+		return Binning{}
 	}
-	for s := range t.schemes {
-		f.Money = append(f.Money, t.money.money(i, s))
-		f.Rank = append(f.Rank, int(ranks[s][i]))
-	}
-	return f
+	return Binning{Grid: t.opt.Grid}
 }
 
-// forecasterResult details forecaster i from its forecast ids and their
-// outcome counts; keep says whether to keep the bins and event groups in
-// the result.
-func (t *Tally) forecasterResult(i int, ids []int32, hits []uint32, ranks [][]int32, keep bool) Forecaster {
-	f := t.forecasterMoney(i, ranks)
-	own := ownEntries{ids: ids, hits: hits}
+// forecasterResult details forecaster i from its money and its forecasts;
+// keep says whether to keep the bins and event groups in the result.
+func (t *Tally) forecasterResult(i int, m *moneyRec, own ownEntries, ranks [][]int32, keep bool) Forecaster {
+	f := Forecaster{Name: t.names.name(i), Count: m.count, Binning: t.binning()}
 	for s := range t.schemes {
+		f.Money = append(f.Money, m.s[s].money(m.count))
+		f.Rank = append(f.Rank, int(ranks[s][i]))
 		// The decompositions split the efforts that were paid: each
 		// forecast as the scheme records and adjusts it.
 		paid := t.paidReport(s)

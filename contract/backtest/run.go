@@ -83,16 +83,7 @@ func Run(ctx context.Context, h *history.Reader, schemes []Scheme, opt Options) 
 		keep = DefaultMaxSkipped
 	}
 	n := len(h.Labels())
-	const inFlight = 4
-	free := make(chan *batch, inFlight)
-	full := make(chan *batch, inFlight)
-	for range inFlight {
-		b := &batch{rows: make([]history.Row, batchRows), ok: make([]bool, batchRows), why: make([]string, batchRows), end: make([]int, batchRows), p: make([]float64, batchRows*n)}
-		for i := range b.rows {
-			b.rows[i].P = b.p[i*n : (i+1)*n]
-		}
-		free <- b
-	}
+	free, full := newBatches(n)
 	done := make(chan struct{})
 	defer close(done)
 	go readBatches(h, n, free, full, done)
@@ -149,6 +140,21 @@ func Run(ctx context.Context, h *history.Reader, schemes []Scheme, opt Options) 
 	kept = true
 	r.SkippedCount, r.Skipped, r.Spans = nSkipped, skipped, h.Spans()
 	return r, nil
+}
+
+// newBatches makes the channels batches travel on, the free one holding
+// the few batches in flight.
+func newBatches(n int) (free, full chan *batch) {
+	const inFlight = 4
+	free, full = make(chan *batch, inFlight), make(chan *batch, inFlight)
+	for range inFlight {
+		b := &batch{rows: make([]history.Row, batchRows), ok: make([]bool, batchRows), why: make([]string, batchRows), end: make([]int, batchRows), p: make([]float64, batchRows*n)}
+		for i := range b.rows {
+			b.rows[i].P = b.p[i*n : (i+1)*n]
+		}
+		free <- b
+	}
+	return free, full
 }
 
 // readBatches fills free batches from h and sends them on full, closing

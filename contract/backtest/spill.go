@@ -4,25 +4,24 @@ import (
 	"bufio"
 	"container/heap"
 	"encoding/binary"
-	"errors"
 	"fmt"
 	"io"
 	"os"
 	"slices"
 )
 
-// spillFile holds the runs of (forecaster, forecast) entries a backtest
-// moved out of memory: each run is a table's entries sorted by key, one
-// record each (the key, then n outcome counts, little-endian). The file
-// is removed as soon as it is made, so that nothing is left behind however
-// the process ends; it lives until closed.
+// spillFile holds what a backtest moved out of memory, as runs of fixed-
+// size records sorted by their first eight bytes (a little-endian key
+// whose high bits are the forecaster): the (forecaster, forecast) entries
+// (the key, then n outcome counts) and the forecasters' money
+// (moneyRecordSize). The file is removed as soon as it is made, so that
+// nothing is left behind however the process ends; it lives until closed.
 type spillFile struct {
 	dir  string
-	n    int
 	f    *os.File
 	w    *bufio.Writer
-	runs []spillRun
 	size int64
+	err  error // the first failure; nothing more is written after it
 }
 
 // spillRun is one run: where it is, how many records, and the generation
@@ -33,48 +32,50 @@ type spillRun struct {
 	gen   int
 }
 
-func (sp *spillFile) recordSize() int { return 8 + 4*sp.n }
+// records is an iterator over fixed-size records: each call writes the
+// next into rec and reports whether there was one.
+type records func(rec []byte) bool
 
-// write appends the entries (keys, and n counts per key) as one run.
-func (sp *spillFile) write(keys []uint64, hits []uint32, gen int) error {
+// writeRun appends the count sorted records of size size that next
+// gives, as one run.
+func (sp *spillFile) writeRun(count, gen, size int, next records) (spillRun, error) {
+	if sp.err != nil {
+		return spillRun{}, sp.err
+	}
 	if sp.f == nil {
 		f, err := os.CreateTemp(sp.dir, "scorewright-backtest-*.tmp")
 		if err != nil {
-			return fmt.Errorf("backtest: too many forecasts to keep in memory, and no temporary file: %w", err)
+			sp.err = fmt.Errorf("backtest: too many forecasts to keep in memory, and no temporary file: %w", err)
+			return spillRun{}, sp.err
 		}
 		os.Remove(f.Name()) // it lives until closed (on systems that allow it)
 		sp.f, sp.w = f, bufio.NewWriterSize(f, 1<<16)
 	}
-	order := make([]int32, len(keys))
-	for i := range order {
-		order[i] = int32(i)
-	}
-	slices.SortFunc(order, func(a, b int32) int {
-		switch x, y := keys[a], keys[b]; {
-		case x < y:
-			return -1
-		case x > y:
-			return 1
-		}
-		return 0
-	})
-	rec := make([]byte, sp.recordSize())
-	for _, e := range order {
-		binary.LittleEndian.PutUint64(rec, keys[e])
-		for k, h := range hits[int(e)*sp.n : (int(e)+1)*sp.n] {
-			binary.LittleEndian.PutUint32(rec[8+4*k:], h)
-		}
+	rec := make([]byte, size)
+	for next(rec) {
 		if _, err := sp.w.Write(rec); err != nil {
-			return sp.fail(err)
+			sp.err = sp.fail(err)
+			return spillRun{}, sp.err
 		}
 	}
-	sp.runs = append(sp.runs, spillRun{off: sp.size, count: len(keys), gen: gen})
-	sp.size += int64(len(keys)) * int64(len(rec))
-	return nil
+	run := spillRun{off: sp.size, count: count, gen: gen}
+	sp.size += int64(count) * int64(size)
+	return run, nil
 }
 
 func (sp *spillFile) fail(err error) error {
 	return fmt.Errorf("backtest: writing the temporary file of forecasts: %w", err)
+}
+
+// flush makes every run readable.
+func (sp *spillFile) flush() error {
+	if sp.err != nil || sp.w == nil {
+		return sp.err
+	}
+	if err := sp.w.Flush(); err != nil {
+		sp.err = sp.fail(err)
+	}
+	return sp.err
 }
 
 func (sp *spillFile) close() error {
@@ -84,48 +85,39 @@ func (sp *spillFile) close() error {
 	name := sp.f.Name()
 	err := sp.f.Close()
 	os.Remove(name) // in case the system kept it when it was made
-	sp.f, sp.w, sp.runs, sp.size = nil, nil, nil, 0
+	sp.f, sp.w, sp.size = nil, nil, 0
 	return err
 }
 
-// cursor reads the entries of one run, or of the table in memory, in key
-// order.
+// cursor reads the records of one run in order, or of a table in memory.
 type cursor struct {
-	r    *bufio.Reader // nil: the table in memory
-	left int
-	rec  []byte
-	// remap takes the run's forecast ids to the current ones (nil: they
-	// are current).
+	r     *bufio.Reader
+	mem   records // the table in memory; r is then nil
+	left  int
+	rec   []byte
+	shift uint // the forecaster is the key >> shift
+	// remap takes a run's forecast ids (the key's low 32 bits) to the
+	// current ones (nil: they are current).
 	remap []int32
-	// in memory: entries in key order and the table they index.
-	order []int32
-	keys  []uint64
-	hits  []uint32
-	// the current entry
-	key uint64
-	cur []uint32
 }
 
-// next moves to the next entry; it reports false at the end.
+func (c *cursor) forecaster() uint64 { return binary.LittleEndian.Uint64(c.rec) >> c.shift }
+
+// next moves to the next record; it reports false at the end.
 func (c *cursor) next() (bool, error) {
+	if c.r == nil {
+		return c.mem(c.rec), nil
+	}
 	if c.left == 0 {
 		return false, nil
 	}
 	c.left--
-	if c.r == nil {
-		e := int(c.order[len(c.order)-c.left-1])
-		c.key, c.cur = c.keys[e], c.hits[e*len(c.cur):(e+1)*len(c.cur)]
-		return true, nil
-	}
 	if _, err := io.ReadFull(c.r, c.rec); err != nil {
-		return false, err
-	}
-	c.key = binary.LittleEndian.Uint64(c.rec)
-	for k := range c.cur {
-		c.cur[k] = binary.LittleEndian.Uint32(c.rec[8+4*k:])
+		return false, fmt.Errorf("backtest: reading the temporary file of forecasts: %w", err)
 	}
 	if c.remap != nil {
-		c.key = c.key&^0xffffffff | uint64(c.remap[uint32(c.key)])
+		key := binary.LittleEndian.Uint64(c.rec)
+		binary.LittleEndian.PutUint64(c.rec, key&^0xffffffff|uint64(c.remap[uint32(key)]))
 	}
 	return true, nil
 }
@@ -134,7 +126,7 @@ func (c *cursor) next() (bool, error) {
 type cursors []*cursor
 
 func (h cursors) Len() int           { return len(h) }
-func (h cursors) Less(i, j int) bool { return h[i].key>>32 < h[j].key>>32 }
+func (h cursors) Less(i, j int) bool { return h[i].forecaster() < h[j].forecaster() }
 func (h cursors) Swap(i, j int)      { h[i], h[j] = h[j], h[i] }
 func (h *cursors) Push(x any)        { *h = append(*h, x.(*cursor)) }
 func (h *cursors) Pop() any {
@@ -144,83 +136,46 @@ func (h *cursors) Pop() any {
 	return c
 }
 
-// scan calls fn for every forecaster with entries, in forecaster order,
-// with its forecast ids and their n outcome counts each (ids distinct).
-// The slices are reused after fn returns.
-func (s *outcomeStore) scan(fn func(f int, ids []int32, hits []uint32) error) error {
-	if s.err != nil {
-		return s.err
-	}
-	h, err := s.cursors()
-	if err != nil {
-		return err
-	}
-	var ids []int32
-	var hits []uint32
-	for h.Len() > 0 {
-		f := h[0].key >> 32
-		ids, hits = ids[:0], hits[:0]
-		for h.Len() > 0 && h[0].key>>32 == f {
-			c := h[0]
-			ids = append(ids, int32(uint32(c.key)))
-			hits = append(hits, c.cur...)
-			ok, err := c.next()
-			if err != nil {
-				return s.spill.fail(err)
-			}
-			if ok {
-				heap.Fix(&h, 0)
-			} else {
-				heap.Pop(&h)
-			}
-		}
-		ids, hits = mergeEntries(ids, hits, s.n)
-		if err := fn(int(f), ids, hits); err != nil {
+// take calls fn with every record of forecaster f at the heap's top,
+// advancing past them.
+func (h *cursors) take(f uint64, fn func(rec []byte)) error {
+	for h.Len() > 0 && (*h)[0].forecaster() == f {
+		c := (*h)[0]
+		fn(c.rec)
+		ok, err := c.next()
+		if err != nil {
 			return err
+		}
+		if ok {
+			heap.Fix(h, 0)
+		} else {
+			heap.Pop(h)
 		}
 	}
 	return nil
 }
 
-// cursors opens one cursor per spilled run and one on the table, each on
-// its first entry.
-func (s *outcomeStore) cursors() (cursors, error) {
-	var h cursors
-	if len(s.spill.runs) > 0 {
-		if err := s.spill.w.Flush(); err != nil {
-			return nil, s.spill.fail(err)
-		}
+// openCursors opens one cursor per run of records of size size in sp,
+// and one on the table in memory, which mem gives, each on its first
+// record.
+func openCursors(sp *spillFile, runs []spillRun, mem records, size int, shift uint, remap func(gen int) []int32) (cursors, error) {
+	if err := sp.flush(); err != nil {
+		return nil, err
 	}
 	// Read buffers shrink with the number of runs, so that a long spill
 	// costs at most a few megabytes to merge.
-	buf := max(4<<10, min(64<<10, (4<<20)/max(1, len(s.spill.runs))))
-	remaps := map[int][]int32{}
-	for _, run := range s.spill.runs {
-		if _, ok := remaps[run.gen]; !ok {
-			remaps[run.gen] = s.composedRemap(run.gen)
-		}
-		size := int64(run.count) * int64(s.spill.recordSize())
-		c := &cursor{r: bufio.NewReaderSize(io.NewSectionReader(s.spill.f, run.off, size), buf), left: run.count,
-			rec: make([]byte, s.spill.recordSize()), cur: make([]uint32, s.n), remap: remaps[run.gen]}
-		h = append(h, c)
+	buf := max(4<<10, min(64<<10, (4<<20)/max(1, len(runs))))
+	var h cursors
+	for _, run := range runs {
+		sec := io.NewSectionReader(sp.f, run.off, int64(run.count)*int64(size))
+		h = append(h, &cursor{r: bufio.NewReaderSize(sec, buf), left: run.count, rec: make([]byte, size), shift: shift, remap: remap(run.gen)})
 	}
-	order := make([]int32, len(s.pairs.keys))
-	for i := range order {
-		order[i] = int32(i)
-	}
-	keys := s.pairs.keys
-	slices.SortFunc(order, func(a, b int32) int {
-		if keys[a] < keys[b] {
-			return -1
-		}
-		return 1 // keys are distinct
-	})
-	h = append(h, &cursor{left: len(order), order: order, keys: keys, hits: s.hits, cur: make([]uint32, s.n)})
+	h = append(h, &cursor{mem: mem, rec: make([]byte, size), shift: shift})
 	live := h[:0]
 	for _, c := range h {
 		ok, err := c.next()
 		if err != nil {
-			return nil, s.spill.fail(err)
+			return nil, err
 		}
 		if ok {
 			live = append(live, c)
@@ -228,6 +183,57 @@ func (s *outcomeStore) cursors() (cursors, error) {
 	}
 	heap.Init(&live)
 	return live, nil
+}
+
+// scan calls fn for every forecaster in forecaster order with its money
+// and, when pairs is set, its distinct forecast ids and their outcome
+// counts. The arguments are reused after fn returns.
+func (t *Tally) scan(pairs bool, fn func(f int, m *moneyRec, own ownEntries) error) error {
+	if err := t.Err(); err != nil {
+		return err
+	}
+	mh, err := openCursors(t.spill, t.money.runs, t.money.records(false), moneyRecordSize(len(t.schemes)), 0, func(int) []int32 { return nil })
+	if err != nil {
+		return err
+	}
+	var ph cursors
+	s := t.store
+	if pairs {
+		remaps := map[int][]int32{}
+		remap := func(gen int) []int32 {
+			if _, ok := remaps[gen]; !ok {
+				remaps[gen] = s.composedRemap(gen)
+			}
+			return remaps[gen]
+		}
+		if ph, err = openCursors(t.spill, s.runs, s.records(), s.recordSize(), 32, remap); err != nil {
+			return err
+		}
+	}
+	var m moneyRec
+	var own ownEntries
+	for mh.Len() > 0 {
+		f := mh[0].forecaster()
+		m.reset(len(t.schemes))
+		if err := mh.take(f, func(rec []byte) { mergeMoney(&m, rec) }); err != nil {
+			return err
+		}
+		own.ids, own.hits = own.ids[:0], own.hits[:0]
+		err := ph.take(f, func(rec []byte) {
+			own.ids = append(own.ids, int32(binary.LittleEndian.Uint32(rec)))
+			for k := range s.n {
+				own.hits = append(own.hits, binary.LittleEndian.Uint32(rec[8+4*k:]))
+			}
+		})
+		if err != nil {
+			return err
+		}
+		own.ids, own.hits = mergeEntries(own.ids, own.hits, s.n)
+		if err := fn(int(f), &m, own); err != nil {
+			return err
+		}
+	}
+	return nil
 }
 
 // composedRemap takes forecast ids of generation gen to the current one
@@ -271,6 +277,3 @@ func mergeEntries(ids []int32, hits []uint32, n int) ([]int32, []uint32) {
 	}
 	return outIDs, outHits
 }
-
-// errStop ends a scan early without an error.
-var errStop = errors.New("stop")

@@ -10,8 +10,12 @@ import (
 )
 
 // spillHistory adds a random history to tl: 60 forecasters taking random
-// turns, forecasts on a tenth menu or, one in four, continuous.
-func spillHistory(tl *Tally, rows int) {
+// turns, forecasts on a tenth menu or, one in four, continuous. It
+// returns what Add said each forecaster earned, summed by the test's own
+// bookkeeping: count, total pay, total effort and off-menu count per
+// scheme.
+func spillHistory(tl *Tally, rows int) map[string][][4]float64 {
+	sums := map[string][][4]float64{}
 	rng := rand.New(rand.NewPCG(7, 11))
 	for i := range rows {
 		var p [3]float64
@@ -23,7 +27,41 @@ func spillHistory(tl *Tally, rows int) {
 			p = [3]float64{float64(min(a, b)) / 10, float64(max(a, b)-min(a, b)) / 10, 0}
 		}
 		p[2] = 1 - p[0] - p[1]
-		tl.Add(fmt.Sprintf("forecaster %02d", rng.IntN(60)), i+2, rng.IntN(3), p[:])
+		name := fmt.Sprintf("forecaster %02d", rng.IntN(60))
+		paid := tl.Add(name, i+2, rng.IntN(3), p[:])
+		if sums[name] == nil {
+			sums[name] = make([][4]float64, len(paid))
+		}
+		for s, pd := range paid {
+			off := 0.0
+			if !pd.OnMenu {
+				off = 1
+			}
+			sums[name][s] = [4]float64{sums[name][s][0] + 1, sums[name][s][1] + pd.Pay, sums[name][s][2] + pd.Effort, sums[name][s][3] + off}
+		}
+	}
+	return sums
+}
+
+// checkMoney compares every forecaster's money with the sums Add
+// returned.
+func checkMoney(t *testing.T, tl *Tally, want map[string][][4]float64) {
+	t.Helper()
+	res := result(t, tl)
+	seen := 0
+	err := res.EachForecaster(func(f *Forecaster) error {
+		seen++
+		for s, m := range f.Money {
+			w := want[f.Name][s]
+			if float64(m.Count) != w[0] || math.Abs(m.Total-w[1]) > 1e-9*math.Abs(w[1]) ||
+				math.Abs(m.MeanEffort*w[0]-w[2]) > 1e-9*math.Abs(w[2]) || float64(m.OffMenu) != w[3] {
+				t.Errorf("%s, scheme %d: money %+v, want count, pay, effort, off menu %v", f.Name, s, m, w)
+			}
+		}
+		return nil
+	})
+	if err != nil || seen != len(want) {
+		t.Errorf("%d forecasters visited of %d: %v", seen, len(want), err)
 	}
 }
 
@@ -80,14 +118,14 @@ func TestSpillChangesNothing(t *testing.T) {
 				t.Fatal(err)
 			}
 			defer tl.Close()
-			spillHistory(tl, 5000)
+			checkMoney(t, tl, spillHistory(tl, 5000))
 			if maxDistinct > 0 && tl.store.quantum == 0 {
 				t.Fatalf("the history was not coarsened at %d distinct forecasts", maxDistinct)
 			}
 			return dump(t, tl)
 		}
 		want := run(TallyOptions{})
-		for _, opt := range []TallyOptions{{MaxPairs: 7}, {MaxPairs: 64, finalsLimit: 1}} {
+		for _, opt := range []TallyOptions{{MaxPairs: 7}, {MaxMoney: 5}, {MaxPairs: 64, MaxMoney: 1, finalsLimit: 1}} {
 			if got := run(opt); got != want {
 				t.Errorf("max distinct %d, %+v: the Result differs from the one kept in memory:\n%s\nin memory:\n%s", maxDistinct, opt, firstDiff(got, want), firstDiff(want, got))
 			}

@@ -1,6 +1,7 @@
 package backtest
 
 import (
+	"encoding/binary"
 	"fmt"
 	"math"
 	"slices"
@@ -41,14 +42,14 @@ type outcomeStore struct {
 	key       []float64
 	last      int // entry found by the last call to entry
 	spill     *spillFile
+	runs      []spillRun
 	// remaps[g] takes the forecast ids of generation g (before its
 	// coarsening) to generation g+1; runs spilled earlier are read
 	// through them.
 	remaps [][]int32
-	err    error // the first failure to spill; the store is then unusable
 }
 
-func newOutcomeStore(n, maxDistinct, maxPairs int, dir string) *outcomeStore {
+func newOutcomeStore(n, maxDistinct, maxPairs int, sp *spillFile) *outcomeStore {
 	if maxDistinct <= 0 {
 		maxDistinct = DefaultMaxDistinct
 	}
@@ -56,7 +57,7 @@ func newOutcomeStore(n, maxDistinct, maxPairs int, dir string) *outcomeStore {
 		maxPairs = DefaultMaxPairs
 	}
 	return &outcomeStore{n: n, maxDistinct: maxDistinct, maxPairs: maxPairs, forecasts: newKeyTable(n),
-		pairs: newPairTable(), key: make([]float64, n), spill: &spillFile{dir: dir, n: n}}
+		pairs: newPairTable(), key: make([]float64, n), spill: sp}
 }
 
 // forecastID interns p, returning its index and whether it is new. When
@@ -81,26 +82,28 @@ func (s *outcomeStore) forecastID(p []float64) (int, bool) {
 }
 
 // add counts outcome y after forecast id by forecaster f.
-func (s *outcomeStore) add(f, id, y int) {
-	if s.err != nil {
-		return
+func (s *outcomeStore) add(f, id, y int) error {
+	if err := s.entry(f, id); err != nil {
+		return err
 	}
-	s.entry(f, id)
 	s.hits[s.last*s.n+y]++
+	return nil
 }
 
 // entry finds or makes the entry of forecaster f and forecast id, leaving
 // its index in s.last; a full table is spilled first.
-func (s *outcomeStore) entry(f, id int) {
+func (s *outcomeStore) entry(f, id int) error {
 	key := uint64(f)<<32 | uint64(id)
 	if len(s.pairs.keys) >= s.maxPairs {
 		if e, _ := s.pairs.find(key, false, 0); e >= 0 {
 			s.last = e
-			return
+			return nil
 		}
-		if s.err = s.spill.write(s.pairs.keys, s.hits, len(s.remaps)); s.err != nil {
-			return
+		run, err := s.spill.writeRun(len(s.pairs.keys), len(s.remaps), s.recordSize(), s.records())
+		if err != nil {
+			return err
 		}
+		s.runs = append(s.runs, run)
 		s.pairs.reset()
 		s.hits = s.hits[:0]
 	}
@@ -109,6 +112,36 @@ func (s *outcomeStore) entry(f, id int) {
 		s.hits = append(s.hits, make([]uint32, s.n)...)
 	}
 	s.last = e
+	return nil
+}
+
+func (s *outcomeStore) recordSize() int { return 8 + 4*s.n }
+
+// records iterates over the table's entries as records sorted by key.
+func (s *outcomeStore) records() records {
+	keys := s.pairs.keys
+	order := make([]int32, len(keys))
+	for i := range order {
+		order[i] = int32(i)
+	}
+	slices.SortFunc(order, func(a, b int32) int {
+		if keys[a] < keys[b] {
+			return -1
+		}
+		return 1 // keys are distinct
+	})
+	return func(rec []byte) bool {
+		if len(order) == 0 {
+			return false
+		}
+		e := int(order[0])
+		order = order[1:]
+		binary.LittleEndian.PutUint64(rec, keys[e])
+		for j, h := range s.hits[e*s.n : (e+1)*s.n] {
+			binary.LittleEndian.PutUint32(rec[8+4*j:], h)
+		}
+		return true
+	}
 }
 
 // firstQuantum is the first grid once forecasts are too many: finer than
@@ -139,6 +172,8 @@ func (s *outcomeStore) coarsen() {
 	s.pairs.reset()
 	s.hits = nil
 	for e, key := range keys {
+		// The merged entries are no more than the table held, so this
+		// never spills and cannot fail.
 		s.entry(int(key>>32), int(remap[uint32(key)]))
 		for k := range s.n {
 			s.hits[s.last*s.n+k] += hits[e*s.n+k]
@@ -148,9 +183,6 @@ func (s *outcomeStore) coarsen() {
 
 // vector returns forecast id.
 func (s *outcomeStore) vector(id int) []float64 { return s.forecasts.keys[id*s.n : (id+1)*s.n] }
-
-// close releases the temporary file, if any.
-func (s *outcomeStore) close() error { return s.spill.close() }
 
 // Grouping says how the decomposition saw forecasts: exactly, or rounded
 // to a grid because there were too many distinct ones.

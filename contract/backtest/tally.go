@@ -135,82 +135,6 @@ func (m *moneyTally) money() Money {
 	return out
 }
 
-// forecasterMoney is every forecaster's money under every scheme in a
-// few flat arrays: the count once per forecaster, a compensated sum of pay
-// and of effort and the off-menu count per forecaster and scheme (36
-// bytes), and the counts that are usually zero (payments out of bounds or
-// not finite) only for the forecasters that have them. The smallest and
-// largest payments are kept only for all forecasts together.
-type forecasterMoney struct {
-	schemes int
-	count   []int32
-	sums    []num.Sum // pay, effort; per forecaster and scheme
-	off     []int32   // per forecaster and scheme
-	rare    map[int32]rareMoney
-}
-
-// rareMoney is what a forecaster's payments under one scheme did wrong.
-type rareMoney struct{ low, high, nonFinite, first int32 }
-
-// grow makes room for one more forecaster.
-func (m *forecasterMoney) grow() {
-	m.count = append(m.count, 0)
-	m.sums = append(m.sums, make([]num.Sum, 2*m.schemes)...)
-	m.off = append(m.off, make([]int32, m.schemes)...)
-}
-
-// add counts forecaster f's payment p under scheme s (of schemes ss).
-func (m *forecasterMoney) add(f, i int, p Paid, line int, s *Scheme) {
-	j := f*m.schemes + i
-	if i == 0 {
-		m.count[f]++
-	}
-	m.sums[2*j].Add(p.Pay)
-	m.sums[2*j+1].Add(p.Effort)
-	if !p.OnMenu {
-		m.off[j]++
-	}
-	bad := math.IsNaN(p.Pay) || math.IsInf(p.Pay, 0)
-	if !bad && p.Pay >= s.Low && p.Pay <= s.High {
-		return
-	}
-	r := m.rare[int32(j)]
-	defer func() { m.rare[int32(j)] = r }()
-	if bad {
-		r.nonFinite++
-		if r.first == 0 {
-			r.first = int32(min(line, math.MaxInt32))
-		}
-	}
-	if p.Pay < s.Low {
-		r.low++
-	} else if p.Pay > s.High {
-		r.high++
-	}
-}
-
-// mean is forecaster f's mean pay under scheme i.
-func (m *forecasterMoney) mean(f, i int) float64 {
-	return m.sums[2*(f*m.schemes+i)].Value() / float64(m.count[f])
-}
-
-// money is forecaster f's Money under scheme i.
-func (m *forecasterMoney) money(f, i int) Money {
-	j := f*m.schemes + i
-	c := int(m.count[f])
-	out := Money{Count: c, Total: m.sums[2*j].Value(), OffMenu: int(m.off[j]), Min: math.NaN(), Max: math.NaN()}
-	if r, ok := m.rare[int32(j)]; ok {
-		out.BelowLow, out.AboveHigh, out.NonFinite, out.FirstNonFinite = int(r.low), int(r.high), int(r.nonFinite), int(r.first)
-	}
-	if c > 0 {
-		out.Mean = out.Total / float64(c)
-		out.MeanEffort = m.sums[2*j+1].Value() / float64(c)
-	} else {
-		out.Mean, out.MeanEffort = math.NaN(), math.NaN()
-	}
-	return out
-}
-
 // Tally accumulates a backtest one forecast at a time, in memory that
 // grows with the number of forecasters (a fixed summary each) and with
 // their distinct forecasts (up to a bound), never with the number of
@@ -223,7 +147,9 @@ type Tally struct {
 	eff     []float64
 	paid    []Paid
 	names   nameIndex
-	money   forecasterMoney
+	money   *moneyTable
+	spill   *spillFile
+	err     error // the first failure to spill; nothing is counted after it
 	last    int
 	all     []moneyTally
 	months  map[history.Month][]moneyTally
@@ -248,11 +174,12 @@ type TallyOptions struct {
 	// Show is how many forecasters at each end of the ranking the Result
 	// details when there are more than 4·Show; 0 means DefaultShow.
 	Show int
-	// MaxPairs bounds the (forecaster, forecast) entries kept in memory;
-	// past it they go to a temporary file in SpillDir (empty: the
-	// system's). 0 means DefaultMaxPairs.
-	MaxPairs int
-	SpillDir string
+	// MaxPairs bounds the (forecaster, forecast) entries kept in memory,
+	// and MaxMoney the forecasters whose money is; past them they go to a
+	// temporary file in SpillDir (empty: the system's). 0 means
+	// DefaultMaxPairs and DefaultMaxMoney.
+	MaxPairs, MaxMoney int
+	SpillDir           string
 	// finalsLimit is the most bytes of decomposition figures EachForecaster
 	// keeps in memory (0: finalsInMemory); tests lower it.
 	finalsLimit int
@@ -278,7 +205,7 @@ func NewTally(schemes []Scheme, opt TallyOptions) (*Tally, error) {
 		opt.Show = DefaultShow
 	}
 	t := &Tally{schemes: schemes, n: n, opt: opt, names: newNameIndex(), last: -1, months: map[history.Month][]moneyTally{},
-		money: forecasterMoney{schemes: len(schemes), rare: map[int32]rareMoney{}}}
+		money: newMoneyTable(len(schemes), opt.MaxMoney), spill: &spillFile{dir: opt.SpillDir}}
 	for i := range schemes {
 		s := &schemes[i]
 		if s.Rule.Outcomes() != n {
@@ -289,7 +216,7 @@ func NewTally(schemes []Scheme, opt TallyOptions) (*Tally, error) {
 		}
 		t.scorers = append(t.scorers, s.Rule.NewScorer())
 	}
-	t.store = newOutcomeStore(n, opt.MaxDistinct, opt.MaxPairs, opt.SpillDir)
+	t.store = newOutcomeStore(n, opt.MaxDistinct, opt.MaxPairs, t.spill)
 	t.eff = make([]float64, n)
 	t.adj = make([]float64, n)
 	t.rec = make([]float64, n)
@@ -322,6 +249,14 @@ func (t *Tally) AddDated(forecaster string, line, y int, p []float64, month hist
 		panic(fmt.Sprintf("backtest: forecast of %d entries, outcome %d, for %d outcomes", len(p), y, t.n))
 	}
 	f := t.forecaster(forecaster)
+	if t.err != nil {
+		return t.zeroPaid()
+	}
+	fm, err := t.money.entry(f, t.spill)
+	if err != nil {
+		t.err = err
+		return t.zeroPaid()
+	}
 	id, made := t.store.forecastID(p)
 	cached := t.store.quantum == 0 && id < cacheEntries
 	width := len(t.schemes) * t.n
@@ -348,13 +283,21 @@ func (t *Tally) AddDated(forecaster string, line, y int, p []float64, month hist
 			pd = t.one[y]
 		}
 		t.paid[i] = pd
-		t.money.add(f, i, pd, line, s)
+		fm[i].add(pd, line, s)
 		t.all[i].add(pd, line, s)
 		if mt != nil {
 			mt[i].add(pd, line, s)
 		}
 	}
-	t.store.add(f, id, y)
+	if err := t.store.add(f, id, y); err != nil {
+		t.err = err
+	}
+	return t.paid
+}
+
+// zeroPaid is what a tally that failed returns for every forecast.
+func (t *Tally) zeroPaid() []Paid {
+	clear(t.paid)
 	return t.paid
 }
 
@@ -388,10 +331,7 @@ func (t *Tally) forecaster(name string) int {
 	if t.last >= 0 && string(t.names.bytes(t.last)) == name {
 		return t.last
 	}
-	i, made := t.names.find(name)
-	if made {
-		t.money.grow()
-	}
+	i, _ := t.names.find(name)
 	t.last = i
 	return i
 }
@@ -399,8 +339,8 @@ func (t *Tally) forecaster(name string) int {
 // Err reports a failure to keep the forecasts (the temporary file they
 // overflow into could not be written); the tally then counts money but
 // no longer the decompositions.
-func (t *Tally) Err() error { return t.store.err }
+func (t *Tally) Err() error { return t.err }
 
 // Close removes the temporary file the tally may have made. The Result
 // needs it until then.
-func (t *Tally) Close() error { return t.store.close() }
+func (t *Tally) Close() error { return t.spill.close() }

@@ -6,6 +6,7 @@ import (
 
 	"scorewright/contract/budget"
 	"scorewright/generator/bregman"
+	"scorewright/generator/bregman/bregmantest"
 	"scorewright/generator/design"
 )
 
@@ -13,11 +14,7 @@ import (
 // the scheme's payer is the fit itself, so this checks the wiring, not the
 // fit.
 func TestTermsSchemePaysTheTable(t *testing.T) {
-	gen, err := bregman.NewFormula("1 - sum(p^2)", bregman.Options{Outcomes: 2})
-	if err != nil {
-		t.Fatal(err)
-	}
-	r := &bregman.Rule{Gen: gen}
+	r := bregmantest.Rule(t, "1 - sum(p^2)", bregman.Options{Outcomes: 2})
 	menu, err := budget.StepMenu(2, 0.1, 0)
 	if err != nil {
 		t.Fatal(err)

@@ -8,6 +8,7 @@ import (
 
 	"scorewright/contract/budget"
 	"scorewright/generator/bregman"
+	"scorewright/generator/bregman/bregmantest"
 	"scorewright/generator/design"
 )
 
@@ -17,11 +18,8 @@ func quadraticFit(t *testing.T, step float64) (*budget.Fit, *budget.Recheck) {
 	t.Helper()
 	d := &design.Design{Version: 1, Labels: []string{"exceeds", "holds"}, Mode: design.ModeGenerator, Formula: "1 - sum(p^2)",
 		Budget: design.Budget{Floor: 75, Cap: 150, Step: step, Unit: 0.01}}
-	gen, err := bregman.NewFormula(d.Formula, bregman.Options{Outcomes: d.N()})
-	rule := &bregman.Rule{Gen: gen, Labels: d.Labels}
-	if err != nil {
-		t.Fatal(err)
-	}
+	rule := bregmantest.Rule(t, d.Formula, bregman.Options{Outcomes: d.N()})
+	rule.Labels = d.Labels
 	m, err := budget.StepMenu(2, step, 0)
 	if err != nil {
 		t.Fatal(err)

@@ -7,6 +7,7 @@ import (
 	"math"
 
 	"scorewright/generator/bregman"
+	"scorewright/internal/pool"
 )
 
 // Contract is the money side: pay = A - B L(p, k), B > 0.
@@ -258,7 +259,7 @@ type Failure struct {
 // Distortion solves Best for every belief, honouring ctx and calling
 // progress (when not nil) after each. A belief that fails goes to
 // Curve.Failed and the curve goes on; only a cancelled ctx is an error.
-func (s *Solver) Distortion(ctx context.Context, beliefs [][]float64, progress func(done, total int)) (*Curve, error) {
+func (s *Solver) Distortion(ctx context.Context, beliefs [][]float64, progress pool.Progress) (*Curve, error) {
 	c := &Curve{Largest: Result{Size: -1}}
 	for i, q := range beliefs {
 		if err := ctx.Err(); err != nil {
@@ -275,7 +276,7 @@ func (s *Solver) Distortion(ctx context.Context, beliefs [][]float64, progress f
 			}
 		}
 		if progress != nil {
-			progress(i+1, len(beliefs))
+			progress(int64(i+1), int64(len(beliefs)))
 		}
 	}
 	return c, nil

@@ -7,16 +7,12 @@ import (
 	"testing"
 
 	"scorewright/generator/bregman"
+	"scorewright/generator/bregman/bregmantest"
 	"scorewright/generator/emphasis"
 )
 
 func rule(t *testing.T, src string, n int) *bregman.Rule {
-	t.Helper()
-	f, err := bregman.NewFormula(src, bregman.Options{Outcomes: n})
-	if err != nil {
-		t.Fatal(err)
-	}
-	return &bregman.Rule{Gen: f}
+	return bregmantest.Rule(t, src, bregman.Options{Outcomes: n})
 }
 
 const (

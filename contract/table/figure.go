@@ -47,39 +47,11 @@ const (
 // Point forecasts: one panel, a curve per outcome column over the report.
 // Curves have their legend in a strip under the panel.
 func (t *Table) writeFigure(w io.Writer, format string) error {
-	n := len(t.Labels)
-	var plots []*plot.Plot
-	var legend []legendEntry
-	var err error
-	switch {
-	case t.ReportName != "":
-		var p *plot.Plot
-		p, legend, err = t.curvePlot(t.ReportName + " (point forecast)")
-		plots = []*plot.Plot{p}
-	case n == 2:
-		var p *plot.Plot
-		p, legend, err = t.curvePlot("report: probability of " + t.Labels[0])
-		plots = []*plot.Plot{p}
-	case n == 3:
-		plots, err = t.trianglePlots()
-	default:
-		plots, err = t.slicePlots()
-	}
+	plots, legend, err := t.panels()
 	if err != nil {
 		return err
 	}
-	cols := min(len(plots), panelCols)
-	rows := (len(plots) + cols - 1) / cols
-	grid := make([][]*plot.Plot, rows)
-	for r := range grid {
-		grid[r] = make([]*plot.Plot, cols)
-		for c := range cols {
-			if i := r*cols + c; i < len(plots) {
-				grid[r][c] = plots[i]
-			}
-		}
-	}
-
+	grid := panelGrid(plots)
 	// The metadata is set in a monospaced face, so that wrapped lines
 	// keep their spacing in every format and the wrap width is exact.
 	mono := font.Font{Typeface: "Liberation", Variant: "Mono"}
@@ -88,17 +60,8 @@ func (t *Table) writeFigure(w io.Writer, format string) error {
 	lines, colours := t.figureText(wrapAt)
 	lineH := sty.Height("Ag") * 1.25
 	textH := lineH*vg.Length(len(lines)) + vg.Centimeter/2
-	ph := panelHeight
-	switch {
-	case t.ReportName != "":
-	case n == 3:
-		// Keep the simplex triangle close to equilateral.
-		ph = trianglePanelHeight
-	case n > 3:
-		ph = slicePanelHeight
-	}
 	legendH := legendHeight(legend)
-	height := ph*vg.Length(rows) + legendH + textH
+	height := t.panelHeight()*vg.Length(len(grid)) + legendH + textH
 
 	cw, err := draw.NewFormattedCanvas(figWidth, height, format)
 	if err != nil {
@@ -114,16 +77,7 @@ func (t *Table) writeFigure(w io.Writer, format string) error {
 	strip := dc
 	strip.Min.Y, strip.Max.Y = dc.Min.Y+textH, dc.Min.Y+textH+legendH
 	drawLegend(strip, legend)
-	tiles := draw.Tiles{Rows: rows, Cols: cols, PadX: vg.Centimeter / 2, PadY: vg.Centimeter / 2,
-		PadTop: vg.Centimeter / 4, PadLeft: vg.Centimeter / 4, PadRight: vg.Centimeter / 2}
-	canvases := plot.Align(grid, tiles, plotArea)
-	for r := range grid {
-		for c := range grid[r] {
-			if grid[r][c] != nil {
-				grid[r][c].Draw(canvases[r][c])
-			}
-		}
-	}
+	drawGrid(grid, plotArea)
 	y := dc.Min.Y + textH - vg.Centimeter/4
 	for i, line := range lines {
 		s := sty
@@ -133,6 +87,68 @@ func (t *Table) writeFigure(w io.Writer, format string) error {
 	}
 	_, err = cw.WriteTo(w)
 	return err
+}
+
+// panels are the figure's plots, by the kind of table, and the legend of
+// its curves (none for the coloured triangles and the slices).
+func (t *Table) panels() ([]*plot.Plot, []legendEntry, error) {
+	n := len(t.Labels)
+	switch {
+	case t.ReportName != "":
+		p, legend, err := t.curvePlot(t.ReportName + " (point forecast)")
+		return []*plot.Plot{p}, legend, err
+	case n == 2:
+		p, legend, err := t.curvePlot("report: probability of " + t.Labels[0])
+		return []*plot.Plot{p}, legend, err
+	case n == 3:
+		plots, err := t.trianglePlots()
+		return plots, nil, err
+	}
+	plots, err := t.slicePlots()
+	return plots, nil, err
+}
+
+// panelHeight is the height of one row of panels: the simplex triangle
+// kept close to equilateral, the slices lower.
+func (t *Table) panelHeight() vg.Length {
+	switch n := len(t.Labels); {
+	case t.ReportName != "":
+	case n == 3:
+		return trianglePanelHeight
+	case n > 3:
+		return slicePanelHeight
+	}
+	return panelHeight
+}
+
+// panelGrid lays the plots out in rows of at most panelCols.
+func panelGrid(plots []*plot.Plot) [][]*plot.Plot {
+	cols := min(len(plots), panelCols)
+	rows := (len(plots) + cols - 1) / cols
+	grid := make([][]*plot.Plot, rows)
+	for r := range grid {
+		grid[r] = make([]*plot.Plot, cols)
+		for c := range cols {
+			if i := r*cols + c; i < len(plots) {
+				grid[r][c] = plots[i]
+			}
+		}
+	}
+	return grid
+}
+
+// drawGrid draws the panels of grid, aligned, in area.
+func drawGrid(grid [][]*plot.Plot, area draw.Canvas) {
+	tiles := draw.Tiles{Rows: len(grid), Cols: len(grid[0]), PadX: vg.Centimeter / 2, PadY: vg.Centimeter / 2,
+		PadTop: vg.Centimeter / 4, PadLeft: vg.Centimeter / 4, PadRight: vg.Centimeter / 2}
+	canvases := plot.Align(grid, tiles, area)
+	for r := range grid {
+		for c := range grid[r] {
+			if grid[r][c] != nil {
+				grid[r][c].Draw(canvases[r][c])
+			}
+		}
+	}
 }
 
 // figureText is the metadata block wrapped to the figure's width, with

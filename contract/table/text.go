@@ -9,6 +9,7 @@ import (
 	"strings"
 
 	"scorewright/internal/num"
+	"scorewright/internal/textsafe"
 )
 
 // Formats lists every export format, text formats first.
@@ -98,7 +99,9 @@ func (t *Table) cells(i int) []string {
 	return row
 }
 
-func oneLine(s string) string { return strings.Join(strings.Fields(s), " ") }
+// oneLine collapses s to one line without control characters or terminal
+// escapes (textsafe.OneLine).
+func oneLine(s string) string { return textsafe.OneLine(s) }
 
 // writeMarkdown writes a heading, warnings as a quote block, the table and
 // the metadata as a list.
@@ -107,7 +110,7 @@ func (t *Table) writeMarkdown(w io.Writer) {
 	if title == "" {
 		title = "Payment table"
 	}
-	fmt.Fprintf(w, "# %s\n\n", mdEscape(title))
+	fmt.Fprintf(w, "# %s\n\n", mdEscape(oneLine(title)))
 	for _, warn := range t.Meta.Warnings {
 		fmt.Fprintf(w, "> **WARNING:** %s\n\n", mdEscape(oneLine(warn)))
 	}
@@ -130,11 +133,15 @@ func (t *Table) writeMarkdown(w io.Writer) {
 	}
 }
 
-// mdEscape keeps user text from becoming table syntax or markup.
-func mdEscape(s string) string {
-	r := strings.NewReplacer(`\`, `\\`, "|", `\|`, "*", `\*`, "_", `\_`, "`", "\\`", "<", "&lt;", ">", "&gt;")
-	return r.Replace(s)
-}
+// mdEscaper keeps user text from becoming table syntax or markup: every
+// character CommonMark or its GFM tables give a meaning inline (emphasis,
+// code, links and images, strikethrough, headings, raw HTML and entities)
+// is backslash-escaped or written as an entity.
+var mdEscaper = strings.NewReplacer(`\`, `\\`, "|", `\|`, "*", `\*`, "_", `\_`, "`", "\\`", "<", "&lt;", ">", "&gt;",
+	"&", "&amp;", "[", `\[`, "]", `\]`, "!", `\!`, "~", `\~`, "#", `\#`)
+
+// mdEscape escapes s for Markdown text (see mdEscaper).
+func mdEscape(s string) string { return mdEscaper.Replace(s) }
 
 type jsonRow struct {
 	Report []num.Float `json:"report"`

@@ -231,6 +231,9 @@ func CheckLabel(l string) error {
 		if unicode.IsControl(r) {
 			return fmt.Errorf("%q has a control character (%U); labels are one line of printable text", l, r)
 		}
+		if unicode.Is(unicode.Bidi_Control, r) {
+			return fmt.Errorf("%q has a bidirectional control character (%U), which can reorder how the label and the text after it display; write the label without it", l, r)
+		}
 	}
 	for _, c := range reservedLabels {
 		if strings.EqualFold(strings.TrimSpace(l), c) {

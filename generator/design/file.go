@@ -2,6 +2,7 @@ package design
 
 import (
 	"bytes"
+	"context"
 	"errors"
 	"fmt"
 	"io"
@@ -26,13 +27,21 @@ const MaxFileBytes = 4 << 20
 
 // Load reads and validates a design file. Only a regular file of at most
 // MaxFileBytes is read: a device or pipe is refused at once.
-func Load(path string) (*Design, error) {
+func Load(path string) (*Design, error) { return LoadContext(context.Background(), path) }
+
+// LoadContext is Load that stops reading when ctx is cancelled (the
+// workbench's open dialog, left with esc).
+func LoadContext(ctx context.Context, path string) (*Design, error) {
 	f, err := inputfile.Open(path)
 	if err != nil {
 		return nil, err
 	}
 	defer f.Close()
-	return Read(f, path)
+	b, err := inputfile.ReadAllContext(ctx, f, path, MaxFileBytes)
+	if err != nil {
+		return nil, err
+	}
+	return decodeNamed(b, path)
 }
 
 // Read reads and validates design TOML from r, at most MaxFileBytes of it;
@@ -42,6 +51,11 @@ func Read(r io.Reader, name string) (*Design, error) {
 	if err != nil {
 		return nil, err
 	}
+	return decodeNamed(b, name)
+}
+
+// decodeNamed is Decode with name in its error.
+func decodeNamed(b []byte, name string) (*Design, error) {
 	d, err := Decode(b)
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", name, err)

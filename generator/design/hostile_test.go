@@ -100,6 +100,7 @@ func TestParseOutcomesRefusesHostileLabels(t *testing.T) {
 	for in, want := range map[string]string{
 		"frost,outcome":                 `label 2 "outcome" is the name of a fixed column`,
 		"a,b\x1b[2J":                    "control character",
+		"yes,\u202eon":                  "bidirectional control character (U+202E)",
 		"a," + strings.Repeat("b", 300): "at most 200",
 	} {
 		if _, err := ParseOutcomes(in); err == nil || !strings.Contains(err.Error(), want) {

@@ -306,67 +306,16 @@ func (c *compiler) ident(n *Ident, x ctx) int32 {
 	if _, _, ok := arity(name); ok {
 		c.fail(n.At, "%s is a function; write %s(...)", name, name)
 	}
-	nOut := c.scope.Outcomes
-	switch name {
-	case "n":
-		if nOut > 0 {
-			return c.konst(float64(nOut))
-		}
-	case "i":
-		if x.inSum || x.inCsum {
-			return c.indexLanes(x.lanes, func(k int) float64 { return float64(k) })
-		}
-		if c.constOnly == "" {
-			c.fail(n.At, "i is the outcome index and exists only inside sum(...) or csum(...)")
-		}
-	case "y":
-		if c.scope.Payout && nOut > 0 {
-			return c.konst(float64(c.scope.Outcome))
-		}
+	if r, ok := c.countName(n, x); ok {
+		return r
 	}
 	if c.constOnly != "" {
 		c.fail(n.At, "%s must be a constant, but uses %q; known here: %s", c.constOnly, name, c.known(x))
 	}
-	switch name {
-	case "p":
-		if x.inSum {
-			return c.outcomeVector()
-		}
-		if nOut == 2 {
-			return c.outcomeVar(1)
-		}
-		if nOut > 0 && !x.inSum {
-			c.fail(n.At, "p alone is the event's probability only when there are 2 outcomes; use p1..p%d, or p inside sum(...)", nOut)
-		}
-	case "w":
-		if x.inSum {
-			if c.scope.Weights == nil {
-				return c.konst(1)
-			}
-			return c.vkonst(c.scope.Weights)
-		}
-		if nOut > 0 {
-			c.fail(n.At, "w is the outcome weight and exists only inside sum(...)")
-		}
-	case "c":
-		if x.inCsum {
-			return x.cum
-		}
-	case "hit":
-		if c.scope.Payout && x.inSum {
-			return c.indexLanes(x.lanes, func(k int) float64 { return b2f(k == c.scope.Outcome) })
-		}
-		if c.scope.Payout {
-			c.fail(n.At, "hit exists only inside sum(...); outside it, compare y with an outcome number")
-		}
-	case "hitc":
-		if c.scope.Payout && x.inCsum {
-			return c.indexLanes(x.lanes, func(k int) float64 { return b2f(c.scope.Outcome <= k) })
-		}
-		if c.scope.Payout {
-			c.fail(n.At, "hitc exists only inside csum(...)")
-		}
+	if r, ok := c.outcomeName(n, x); ok {
+		return r
 	}
+	nOut := c.scope.Outcomes
 	for k, v := range c.scope.Vars {
 		if v == name {
 			return c.push(instr{op: opVar, a: int32(nOut + k)})
@@ -380,4 +329,76 @@ func (c *compiler) ident(n *Ident, x ctx) int32 {
 	}
 	c.fail(n.At, "unknown name %q; known here: %s", name, c.known(x))
 	return 0
+}
+
+// countName resolves the names that are constants of the scope, allowed
+// where only constants are: n (the outcome count), i (the index inside a
+// sum) and y (the outcome of a payout).
+func (c *compiler) countName(n *Ident, x ctx) (int32, bool) {
+	nOut := c.scope.Outcomes
+	switch n.Name {
+	case "n":
+		if nOut > 0 {
+			return c.konst(float64(nOut)), true
+		}
+	case "i":
+		if x.inSum || x.inCsum {
+			return c.indexLanes(x.lanes, func(k int) float64 { return float64(k) }), true
+		}
+		if c.constOnly == "" {
+			c.fail(n.At, "i is the outcome index and exists only inside sum(...) or csum(...)")
+		}
+	case "y":
+		if c.scope.Payout && nOut > 0 {
+			return c.konst(float64(c.scope.Outcome)), true
+		}
+	}
+	return 0, false
+}
+
+// outcomeName resolves the names that stand for one value per outcome:
+// p, w, c, hit and hitc, each where it exists.
+func (c *compiler) outcomeName(n *Ident, x ctx) (int32, bool) {
+	nOut := c.scope.Outcomes
+	switch n.Name {
+	case "p":
+		if x.inSum {
+			return c.outcomeVector(), true
+		}
+		if nOut == 2 {
+			return c.outcomeVar(1), true
+		}
+		if nOut > 0 && !x.inSum {
+			c.fail(n.At, "p alone is the event's probability only when there are 2 outcomes; use p1..p%d, or p inside sum(...)", nOut)
+		}
+	case "w":
+		if x.inSum {
+			if c.scope.Weights == nil {
+				return c.konst(1), true
+			}
+			return c.vkonst(c.scope.Weights), true
+		}
+		if nOut > 0 {
+			c.fail(n.At, "w is the outcome weight and exists only inside sum(...)")
+		}
+	case "c":
+		if x.inCsum {
+			return x.cum, true
+		}
+	case "hit":
+		if c.scope.Payout && x.inSum {
+			return c.indexLanes(x.lanes, func(k int) float64 { return b2f(k == c.scope.Outcome) }), true
+		}
+		if c.scope.Payout {
+			c.fail(n.At, "hit exists only inside sum(...); outside it, compare y with an outcome number")
+		}
+	case "hitc":
+		if c.scope.Payout && x.inCsum {
+			return c.indexLanes(x.lanes, func(k int) float64 { return b2f(c.scope.Outcome <= k) }), true
+		}
+		if c.scope.Payout {
+			c.fail(n.At, "hitc exists only inside csum(...)")
+		}
+	}
+	return 0, false
 }

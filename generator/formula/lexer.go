@@ -45,87 +45,119 @@ func (t token) describe() string {
 // lex splits src into tokens. It never fails: an unknown character becomes
 // a tokBad token, which the parser reports with its position.
 func lex(src string) ([]token, *Error) {
-	var toks []token
-	line, col := 1, 1
-	i := 0
-	for i < len(src) {
-		r, size := utf8.DecodeRuneInString(src[i:])
-		start := Pos{line, col}
+	l := &lexer{src: src, line: 1, col: 1}
+	for l.i < len(src) {
+		r, size := utf8.DecodeRuneInString(src[l.i:])
+		start := Pos{l.line, l.col}
+		var err *Error
 		switch {
 		case r == '\n':
-			toks = append(toks, token{kind: tokNewline, text: "\n", pos: start})
-			i += size
-			line++
-			col = 1
-			continue
+			l.toks = append(l.toks, token{kind: tokNewline, text: "\n", pos: start})
+			l.i += size
+			l.line++
+			l.col = 1
 		case r == '#':
-			for i < len(src) && src[i] != '\n' {
-				c, s := utf8.DecodeRuneInString(src[i:])
-				if c != '\t' && c != '\r' && unicode.IsControl(c) {
-					// A comment is echoed in annexes and on terminals.
-					return nil, newError(src, Pos{line, col}, "control character %U in a comment", c)
-				}
-				i += s
-				col++
-			}
-			continue
+			err = l.comment()
 		case unicode.IsSpace(r):
-			i += size
-			col++
-			continue
+			l.i += size
+			l.col++
 		case r >= '0' && r <= '9' || r == '.':
-			j := scanNumber(src, i)
-			text := src[i:j]
-			v, err := strconv.ParseFloat(text, 64)
-			if err != nil {
-				if ne, ok := err.(*strconv.NumError); ok && ne.Err == strconv.ErrRange {
-					return nil, newError(src, start, "number %s is out of range", text)
-				}
-				return nil, newError(src, start, "malformed number %q", text)
-			}
-			toks = append(toks, token{kind: tokNumber, text: text, num: v, pos: start})
-			col += j - i
-			i = j
-			continue
+			err = l.number(start)
 		case r == '_' || r < utf8.RuneSelf && unicode.IsLetter(r):
-			j := i
-			for j < len(src) {
-				c := src[j]
-				if c == '_' || c >= 'a' && c <= 'z' || c >= 'A' && c <= 'Z' || c >= '0' && c <= '9' {
-					j++
-					continue
-				}
-				break
-			}
-			toks = append(toks, token{kind: tokIdent, text: src[i:j], pos: start})
-			col += j - i
-			i = j
+			l.name(start)
+		default:
+			err = l.op(r, size, start)
+		}
+		if err != nil {
+			return nil, err
+		}
+	}
+	l.toks = append(l.toks, token{kind: tokEOF, pos: Pos{l.line, l.col}})
+	return l.toks, nil
+}
+
+// lexer is the state of lex: the source, the byte offset i and the
+// position of the rune there, and the tokens so far.
+type lexer struct {
+	src       string
+	i         int
+	line, col int
+	toks      []token
+}
+
+// comment skips a comment to the end of its line. A comment is echoed in
+// annexes and on terminals, so a control character in it is refused.
+func (l *lexer) comment() *Error {
+	for l.i < len(l.src) && l.src[l.i] != '\n' {
+		c, s := utf8.DecodeRuneInString(l.src[l.i:])
+		if c != '\t' && c != '\r' && unicode.IsControl(c) {
+			return newError(l.src, Pos{l.line, l.col}, "control character %U in a comment", c)
+		}
+		l.i += s
+		l.col++
+	}
+	return nil
+}
+
+// number reads the number starting at start.
+func (l *lexer) number(start Pos) *Error {
+	j := scanNumber(l.src, l.i)
+	text := l.src[l.i:j]
+	v, err := strconv.ParseFloat(text, 64)
+	if err != nil {
+		if ne, ok := err.(*strconv.NumError); ok && ne.Err == strconv.ErrRange {
+			return newError(l.src, start, "number %s is out of range", text)
+		}
+		return newError(l.src, start, "malformed number %q", text)
+	}
+	l.toks = append(l.toks, token{kind: tokNumber, text: text, num: v, pos: start})
+	l.col += j - l.i
+	l.i = j
+	return nil
+}
+
+// name reads the name starting at start: ASCII letters, digits and _.
+func (l *lexer) name(start Pos) {
+	j := l.i
+	for j < len(l.src) {
+		c := l.src[j]
+		if c == '_' || c >= 'a' && c <= 'z' || c >= 'A' && c <= 'Z' || c >= '0' && c <= '9' {
+			j++
 			continue
 		}
-		switch r {
-		case '<', '>':
-			if i+1 < len(src) && src[i+1] == '=' {
-				toks = append(toks, token{kind: tokOp, text: src[i : i+2], pos: start})
-				i += 2
-				col += 2
-				continue
-			}
-			fallthrough
-		case '+', '-', '*', '/', '^', '(', ')', '[', ']', ',':
-			toks = append(toks, token{kind: tokOp, text: string(r), pos: start})
-		case '=':
-			if i+1 < len(src) && src[i+1] == '=' {
-				return nil, newError(src, start, "\"==\" is not part of the language; compare with <, <=, > or >= inside if(...)")
-			}
-			toks = append(toks, token{kind: tokOp, text: "=", pos: start})
-		default:
-			toks = append(toks, token{kind: tokBad, text: string(r), pos: start})
-		}
-		i += size
-		col++
+		break
 	}
-	toks = append(toks, token{kind: tokEOF, pos: Pos{line, col}})
-	return toks, nil
+	l.toks = append(l.toks, token{kind: tokIdent, text: l.src[l.i:j], pos: start})
+	l.col += j - l.i
+	l.i = j
+}
+
+// op reads the operator or punctuation r (size bytes) at start; any other
+// rune becomes a bad token for the parser to name.
+func (l *lexer) op(r rune, size int, start Pos) *Error {
+	src, i := l.src, l.i
+	switch r {
+	case '<', '>':
+		if i+1 < len(src) && src[i+1] == '=' {
+			l.toks = append(l.toks, token{kind: tokOp, text: src[i : i+2], pos: start})
+			l.i += 2
+			l.col += 2
+			return nil
+		}
+		l.toks = append(l.toks, token{kind: tokOp, text: string(r), pos: start})
+	case '+', '-', '*', '/', '^', '(', ')', '[', ']', ',':
+		l.toks = append(l.toks, token{kind: tokOp, text: string(r), pos: start})
+	case '=':
+		if i+1 < len(src) && src[i+1] == '=' {
+			return newError(src, start, "\"==\" is not part of the language; compare with <, <=, > or >= inside if(...)")
+		}
+		l.toks = append(l.toks, token{kind: tokOp, text: "=", pos: start})
+	default:
+		l.toks = append(l.toks, token{kind: tokBad, text: string(r), pos: start})
+	}
+	l.i += size
+	l.col++
+	return nil
 }
 
 // scanNumber returns the end of the number starting at i: digits, an

@@ -16,9 +16,21 @@ type Machine struct {
 	// aux keeps ln(a) of each opXLnX lane for the backward sweep.
 	aux []float64
 	// Second-order forward mode: gradient and Hessian of every cell,
-	// allocated on first use of Hessian.
+	// allocated on first use of Hessian. hw is the Hessian entries each
+	// cell keeps: nv×nv, or only the nv diagonal ones when diag is set
+	// (a separable program, whose mixed partials are all structural
+	// zeros; machine_hessian.go).
 	grad []float64
 	hess []float64
+	hw   int
+	diag bool
+	// sup is, in diagonal mode, the one variable each cell reads (-1:
+	// none, -2: more than one): a cell's gradient and Hessian are zero
+	// outside it, so the chain rule on it costs O(1), not O(n).
+	sup []int32
+	// nanGrad records that a select with a NaN condition set a whole
+	// gradient to NaN in this pass (see Hessian).
+	nanGrad bool
 }
 
 // NewMachine returns a Machine for p.

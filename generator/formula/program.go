@@ -124,22 +124,7 @@ func (p *Program) Constant() float64 { return p.consts[int(p.out)-len(p.varNames
 // result does not depend on (constants left over from folding, subscripts,
 // parameter values) are dropped.
 func link(code []instr, out int32, varNames []string, vconsts [][]float64) *Program {
-	live := make([]bool, len(code))
-	live[out] = true
-	for i := int(out); i >= 0; i-- {
-		if !live[i] {
-			continue
-		}
-		switch in := code[i]; {
-		case in.op == opConst || in.op == opVar || in.op == opVConst:
-		case in.op.unary():
-			live[in.a] = true
-		case in.op == opSelect:
-			live[in.a], live[in.b], live[in.c] = true, true, true
-		default:
-			live[in.a], live[in.b] = true, true
-		}
-	}
+	live := liveSlots(code, out)
 	nv := int32(len(varNames))
 	p := &Program{varNames: varNames}
 	at := make([]int32, len(code)) // first cell of each slot
@@ -157,12 +142,6 @@ func link(code []instr, out int32, varNames []string, vconsts [][]float64) *Prog
 		}
 	}
 	next := nv + int32(len(p.consts))
-	stride := func(s int32) int32 {
-		if code[s].w > 1 {
-			return 1
-		}
-		return 0
-	}
 	for i, in := range code {
 		if !live[i] {
 			continue
@@ -174,23 +153,9 @@ func link(code []instr, out int32, varNames []string, vconsts [][]float64) *Prog
 			at[i] = in.a
 			continue
 		}
-		w := max(1, in.w)
-		cl := cell{op: in.op, w: w, dst: next, k: in.k}
-		switch {
-		case in.op == opVSum || in.op == opVSumSq || in.op == opVSumXLnX:
-			cl.a, cl.n = at[in.a], code[in.a].w
-		case in.op.unary():
-			cl.a, cl.sa = at[in.a], stride(in.a)
-			cl.b, cl.sb = cl.a, cl.sa
-		case in.op == opSelect:
-			cl.a, cl.b, cl.c = at[in.a], at[in.b], at[in.c]
-			cl.sa, cl.sb, cl.sc = stride(in.a), stride(in.b), stride(in.c)
-		default:
-			cl.a, cl.b = at[in.a], at[in.b]
-			cl.sa, cl.sb = stride(in.a), stride(in.b)
-		}
+		cl := linkCell(code, in, at, next)
 		at[i] = next
-		next += w
+		next += cl.w
 		if in.op == opVSumXLnX {
 			// Cells of its own for ln a of every lane, kept for the
 			// backward sweep (the operand's lanes may belong to another
@@ -203,4 +168,52 @@ func link(code []instr, out int32, varNames []string, vconsts [][]float64) *Prog
 	p.out = at[out]
 	p.cells = int(next)
 	return p
+}
+
+// liveSlots marks the instructions the result at out depends on.
+func liveSlots(code []instr, out int32) []bool {
+	live := make([]bool, len(code))
+	live[out] = true
+	for i := int(out); i >= 0; i-- {
+		if !live[i] {
+			continue
+		}
+		switch in := code[i]; {
+		case in.op == opConst || in.op == opVar || in.op == opVConst:
+		case in.op.unary():
+			live[in.a] = true
+		case in.op == opSelect:
+			live[in.a], live[in.b], live[in.c] = true, true, true
+		default:
+			live[in.a], live[in.b] = true, true
+		}
+	}
+	return live
+}
+
+// linkCell is the cell of instruction in, writing at dst, its operands
+// read at the cells at gives them; a lane operand is read with stride 1,
+// a scalar one with stride 0.
+func linkCell(code []instr, in instr, at []int32, dst int32) cell {
+	stride := func(s int32) int32 {
+		if code[s].w > 1 {
+			return 1
+		}
+		return 0
+	}
+	cl := cell{op: in.op, w: max(1, in.w), dst: dst, k: in.k}
+	switch {
+	case in.op == opVSum || in.op == opVSumSq || in.op == opVSumXLnX:
+		cl.a, cl.n = at[in.a], code[in.a].w
+	case in.op.unary():
+		cl.a, cl.sa = at[in.a], stride(in.a)
+		cl.b, cl.sb = cl.a, cl.sa
+	case in.op == opSelect:
+		cl.a, cl.b, cl.c = at[in.a], at[in.b], at[in.c]
+		cl.sa, cl.sb, cl.sc = stride(in.a), stride(in.b), stride(in.c)
+	default:
+		cl.a, cl.b = at[in.a], at[in.b]
+		cl.sa, cl.sb = stride(in.a), stride(in.b)
+	}
+	return cl
 }

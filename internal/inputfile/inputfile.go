@@ -5,6 +5,7 @@
 package inputfile
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"io"
@@ -72,6 +73,28 @@ func ReadAll(r io.Reader, name string, limit int64) ([]byte, error) {
 		return nil, err
 	}
 	return b, nil
+}
+
+// ReadAllContext is ReadAll that stops with ctx's error, naming name,
+// when ctx is cancelled: the file is read in pieces of at most 64 KiB and
+// ctx is looked at before each, so a slow disk or network share stops at
+// the next piece. (A single read the system holds up cannot be cut
+// short; the caller stops waiting for it.)
+func ReadAllContext(ctx context.Context, r io.Reader, name string, limit int64) ([]byte, error) {
+	return ReadAll(&ctxReader{ctx: ctx, r: r, name: name}, name, limit)
+}
+
+type ctxReader struct {
+	ctx  context.Context
+	r    io.Reader
+	name string
+}
+
+func (c *ctxReader) Read(p []byte) (int, error) {
+	if err := c.ctx.Err(); err != nil {
+		return 0, fmt.Errorf("%s: reading stopped: %w", c.name, err)
+	}
+	return c.r.Read(p[:min(len(p), 64<<10)])
 }
 
 // Limit returns a reader that passes r through until more than limit bytes

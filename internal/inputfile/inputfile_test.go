@@ -1,6 +1,7 @@
 package inputfile
 
 import (
+	"context"
 	"errors"
 	"os"
 	"path/filepath"
@@ -52,4 +53,29 @@ func TestSpecialFilesRefused(t *testing.T) {
 			t.Fatalf("%s: reading blocked", path)
 		}
 	}
+}
+
+// A cancelled read stops at the next piece, with the cause in the error.
+func TestReadAllContextStops(t *testing.T) {
+	ctx, cancel := context.WithCancel(context.Background())
+	r := &cancelAfter{n: 3, cancel: cancel}
+	_, err := ReadAllContext(ctx, r, "slow.toml", 1<<20)
+	if !errors.Is(err, context.Canceled) || !strings.Contains(err.Error(), "slow.toml") || r.reads != 3 {
+		t.Errorf("error %v after %d reads; want the file named, context.Canceled, 3 reads", err, r.reads)
+	}
+}
+
+// cancelAfter gives one byte a read and cancels after n reads.
+type cancelAfter struct {
+	n, reads int
+	cancel   func()
+}
+
+func (c *cancelAfter) Read(p []byte) (int, error) {
+	c.reads++
+	if c.reads == c.n {
+		c.cancel()
+	}
+	p[0] = 'x'
+	return 1, nil
 }

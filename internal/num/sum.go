@@ -29,3 +29,19 @@ func (a Sum) Value() float64 {
 	}
 	return a.s + a.c
 }
+
+// Parts returns the running sum and its compensation, so that a sum can
+// be stored and restored exactly with SumOf.
+func (a Sum) Parts() (s, c float64) { return a.s, a.c }
+
+// SumOf is the Sum whose Parts are s and c.
+func SumOf(s, c float64) Sum { return Sum{s, c} }
+
+// Merge adds the sum b to a, as if b's terms had been added one by one
+// (up to the rounding of the two compensations).
+func (a *Sum) Merge(b Sum) {
+	a.Add(b.s)
+	if !math.IsInf(a.s, 0) && !math.IsNaN(a.s) {
+		a.c += b.c
+	}
+}

@@ -42,9 +42,11 @@ func clean(s string, keepLines bool) bool {
 	return true
 }
 
-// isControl is a C0 or C1 control character, DEL, or an invalid byte.
+// isControl is a C0 or C1 control character, DEL, an invalid byte, or a
+// bidirectional control (U+202E and its kin), which can make "deliaf"
+// display as "failed" or reorder the words of a line.
 func isControl(r rune) bool {
-	return r == utf8.RuneError || unicode.IsControl(r)
+	return r == utf8.RuneError || unicode.IsControl(r) || unicode.Is(unicode.Bidi_Control, r)
 }
 
 // Writer passes text through to an underlying writer with escape

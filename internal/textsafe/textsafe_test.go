@@ -16,6 +16,9 @@ func TestOneLine(t *testing.T) {
 		"bell\x07 and back\bspace":                  "bell and backspace",
 		"c1 \u009b2Jcsi":                            "c1 csi",
 		"ünïcödé stays":                             "ünïcödé stays",
+		"rtl \u202edeliaf\u202c ok":                 "rtl deliaf ok",
+		"isolate \u2067x\u2069 mark \u200f.":        "isolate x mark .",
+		"שלום عربي stays":                           "שלום عربي stays",
 	}
 	for in, want := range cases {
 		if got := OneLine(in); got != want {
