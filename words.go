@@ -5,7 +5,27 @@ import (
 	"math"
 
 	"scorewright/internal/num"
+	"scorewright/internal/numfmt"
+	"scorewright/verify"
 )
+
+// WorstText writes a check's worst value as the command and the workbench
+// print it: six significant digits, and 0 for a value within the slack
+// the check's comparisons allow (grid.Tolerance × grid.Scale, never less
+// than grid.Rounding). What rounding leaves of a cancellation, such as
+// -3.05e-16 from the quadratic rule's effort summed to its generator, is
+// not a finding and must not read as one.
+func WorstText(v float64, g verify.Grid) string {
+	return numfmt.Significant(CleanWorst(v, g), 6)
+}
+
+// CleanWorst is v, or 0 when v is within the slack of g's comparisons.
+func CleanWorst(v float64, g verify.Grid) float64 {
+	if math.Abs(v) <= math.Max(g.Tolerance*g.Scale, g.Rounding) {
+		return 0
+	}
+	return v
+}
 
 // The sentences below are the command line's wording of what an audit
 // found; the workbench shows the same sentences, so the two never say a

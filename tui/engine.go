@@ -63,6 +63,7 @@ func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress f
 		out.Certificate = certifyDesign(ctx, r, s, progress)
 	default:
 		out = fromPoint(found.Point)
+		out.Certificate = certifyDesign(ctx, r, s, progress)
 	}
 	if line := found.IdentifiedLine(); line != "" {
 		out.Notes = append(out.Notes, line)
@@ -99,7 +100,9 @@ func fromVerify(r *verify.Report) *CheckReport {
 	out := &CheckReport{Verdict: string(r.Verdict), Resolution: r.Grid.Resolution, Points: int64(r.Grid.Points),
 		Sampled: r.Grid.Sampled, Tolerance: r.Grid.Tolerance, Notes: r.Notes}
 	for _, c := range r.Checks {
-		out.Rows = append(out.Rows, CheckRow{Name: c.Name, Passed: c.Passed, Worst: c.Worst, Belief: c.Belief, Report: c.Report, Note: c.Note})
+		// The worst value as the command prints it: rounding noise is 0.
+		worst := scorewright.CleanWorst(c.Worst, r.Grid)
+		out.Rows = append(out.Rows, CheckRow{Name: c.Name, Passed: c.Passed, Worst: worst, Belief: c.Belief, Report: c.Report, Note: c.Note})
 	}
 	return out
 }

@@ -160,6 +160,17 @@ type outputWatch struct {
 	mark int
 }
 
+// press marks the output, sends keys and waits until what shows after
+// them: one step of a flow.
+func (o *outputWatch) press(what string, keys ...tea.KeyMsg) {
+	o.t.Helper()
+	o.act()
+	for _, k := range keys {
+		o.tm.Send(k)
+	}
+	o.wait(what)
+}
+
 // act marks the point after which the next waits look.
 func (o *outputWatch) act() { o.mark = len(o.all) }
 

@@ -5,8 +5,10 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+	"time"
 
 	tea "github.com/charmbracelet/bubbletea"
+	"github.com/charmbracelet/x/exp/teatest"
 
 	"scorewright/generator/design"
 )
@@ -250,5 +252,43 @@ func TestOpenDropsTheOldEdits(t *testing.T) {
 	press(t, m, tea_ctrlO(), runes("d"), runes("harvest.toml"), keyEnter)
 	if m.Design().Title != DemoHarvest().Title || recoveryFile(t, rec) != "" {
 		t.Fatalf("open: title %q, recovery file %q", m.Design().Title, recoveryFile(t, rec))
+	}
+}
+
+// A session through a real program: an edit, q asks, s saves first (tab
+// completes the folder typed) and the program then quits; the design is
+// on disk and no recovery file is left.
+func TestLeaveFlow(t *testing.T) {
+	rec, dir := t.TempDir(), t.TempDir()
+	if err := os.Mkdir(filepath.Join(dir, "contracts"), 0o755); err != nil {
+		t.Fatal(err)
+	}
+	m := testModel(t, nil, Settings{Dir: dir, RecoveryDir: rec})
+	tm := teatest.NewTestModel(t, m, teatest.WithInitialTermSize(80, 24))
+	o := &outputWatch{t: t, tm: tm}
+	o.wait("strictly proper")
+	o.press("outcome 3", runes("+"))
+	o.press("would drop unsaved changes", runes("q"))
+	o.press("Save the design", runes("s"))
+	o.act()
+	// Replace the offered path with a folder to complete, then a name.
+	for range 80 {
+		tm.Send(keyBack)
+	}
+	tm.Type(dir + "/contr")
+	tm.Send(keyTab)
+	o.wait("/contracts/")
+	tm.Type("kept.toml")
+	tm.Send(keyEnter)
+	fm := tm.FinalModel(t, teatest.WithFinalTimeout(20*time.Second)).(*Model)
+	if !fm.quitting {
+		t.Fatal("the program did not quit after saving")
+	}
+	d, err := design.Load(filepath.Join(dir, "contracts", "kept.toml"))
+	if err != nil || d.N() != 3 {
+		t.Fatalf("the edit was not saved first: %v", err)
+	}
+	if f := recoveryFile(t, rec); f != "" {
+		t.Errorf("a recovery file outlived the save: %s", f)
 	}
 }

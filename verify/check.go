@@ -88,27 +88,14 @@ func gridInfo(g *simplex.Grid, s Settings) Grid {
 }
 
 func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid, pr *pool.Meter) (*Report, error) {
-	n, G := r.Outcomes(), g.Len()
+	n := r.Outcomes()
 	rep := &Report{Grid: gridInfo(g, s)}
 	rep.Notes = gridNotes(rep.Grid, n)
 	if g.Sampled {
 		rep.Notes = append(rep.Notes, sampledNote(s, n, g.Len())+", with local optimisation over reports")
 	}
 
-	// Efforts of every grid report, and H at every grid point.
-	m := newMenu(n, G)
-	h := make([]float64, G)
-	scorers := make([]*bregman.Scorer, s.Workers)
-	for i := range scorers {
-		scorers[i] = r.NewScorer()
-	}
-	err := pool.Run(ctx, s.Workers, G, 256, func(w, lo, hi int) {
-		sc := scorers[w]
-		for j := lo; j < hi; j++ {
-			h[j] = sc.Efforts(m.rows[j*n:(j+1)*n], g.Point(j))
-		}
-		pr.Add(int64(hi-lo) * gradCost)
-	})
+	m, h, scorers, err := gridEfforts(ctx, r, g, s.Workers, pr)
 	if err != nil {
 		return nil, err
 	}
@@ -167,6 +154,37 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	nonneg.Note = nonnegNote(nonneg)
 	rep.Checks = []CheckResult{conc, prop, nonneg, aff, bounded}
 	rep.Notes = append(rep.Notes, boundaryNotes(conc, bounded, s.Tolerance)...)
+	ruleVerdict(rep, strictNote)
+	if proved {
+		restOnProof(rep, s.Proof, rep.Grid.Boundary)
+	}
+	return rep, nil
+}
+
+// gridEfforts computes the effort of every grid report (the menu's rows)
+// and H at every grid point, with a scorer per worker.
+func gridEfforts(ctx context.Context, r *bregman.Rule, g *simplex.Grid, workers int, pr *pool.Meter) (*menu, []float64, []*bregman.Scorer, error) {
+	n, G := r.Outcomes(), g.Len()
+	m := newMenu(n, G)
+	h := make([]float64, G)
+	scorers := make([]*bregman.Scorer, workers)
+	for i := range scorers {
+		scorers[i] = r.NewScorer()
+	}
+	err := pool.Run(ctx, workers, G, 256, func(w, lo, hi int) {
+		sc := scorers[w]
+		for j := lo; j < hi; j++ {
+			h[j] = sc.Efforts(m.rows[j*n:(j+1)*n], g.Point(j))
+		}
+		pr.Add(int64(hi-lo) * gradCost)
+	})
+	return m, h, scorers, err
+}
+
+// ruleVerdict reads the verdict from the checks of rep (concavity,
+// properness, nonnegativity, affinity first, in that order).
+func ruleVerdict(rep *Report, strictNote string) {
+	conc, prop, nonneg, aff := rep.Checks[0], rep.Checks[1], rep.Checks[2], rep.Checks[3]
 	switch {
 	case !conc.Passed || !prop.Passed || !nonneg.Passed || !aff.Passed:
 		rep.Verdict = Improper
@@ -181,10 +199,6 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	default:
 		rep.Verdict = Proper
 	}
-	if proved {
-		restOnProof(rep, s.Proof, rep.Grid.Boundary)
-	}
-	return rep, nil
 }
 
 // sharpenWitnesses sharpens the witnesses of failing checks beyond the

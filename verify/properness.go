@@ -246,12 +246,7 @@ func affinity(g *simplex.Grid, m *menu, T float64, seed uint64) CheckResult {
 // any infinity in the interior or a NaN.
 func boundedness(g *simplex.Grid, m *menu, limit float64, label func(int) string, what string, sign float64) CheckResult {
 	n, G := g.N, g.Len()
-	type stat struct {
-		lo, hi         float64
-		inf, bdUp, neg int
-		beyond         int
-	}
-	st := make([]stat, n)
+	st := make([]boundStat, n)
 	for k := range st {
 		st[k].lo, st[k].hi = math.Inf(1), math.Inf(-1)
 	}
@@ -300,6 +295,22 @@ func boundedness(g *simplex.Grid, m *menu, limit float64, label func(int) string
 	c.Boundary = bd.result(neg == 0 && nan == 0)
 	c.Passed = c.Interior.Passed && c.Boundary.Passed
 	c.Worst, c.Report = c.Interior.Worst, clone(c.Interior.Report)
+	c.Note = boundNote(st, nan, nanAt, limit, label, what, sign)
+	return c
+}
+
+// boundStat is what boundedness finds for one outcome: the finite range,
+// and how many reports give an infinite value in the interior, an
+// infinite value of the good sign on the boundary (reported, not failed),
+// one of the bad sign (an infinite payment), or one beyond the limit.
+type boundStat struct {
+	lo, hi         float64
+	inf, bdUp, neg int
+	beyond         int
+}
+
+// boundNote says what boundedness found, outcome by outcome.
+func boundNote(st []boundStat, nan int, nanAt []float64, limit float64, label func(int) string, what string, sign float64) string {
 	var notes, ranges, unb []string
 	for k, a := range st {
 		if a.lo <= a.hi {
@@ -330,8 +341,7 @@ func boundedness(g *simplex.Grid, m *menu, limit float64, label func(int) string
 	if len(unb) > 0 {
 		notes = append(notes, "unbounded on the boundary: "+what+" for outcome "+strings.Join(unb, ", ")+", so a report floor (or a clamp, whose effect on honesty must then be checked) is needed before fitting a budget")
 	}
-	c.Note = strings.Join(notes, "; ")
-	return c
+	return strings.Join(notes, "; ")
 }
 
 // boundaryNotes pulls the boundary findings that are not failures into

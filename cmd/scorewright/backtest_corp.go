@@ -129,7 +129,11 @@ func (r *backtestReport) writeMonths(w io.Writer) {
 func writeForecasters(path string, force bool, schemes []*backtestScheme, res *backtest.Result) error {
 	head := []string{"forecaster", "forecasts"}
 	for _, s := range schemes {
-		head = append(head, "total "+s.id, "mean "+s.id, "rank "+s.id, "off menu "+s.id, "mean effort "+s.id)
+		head = append(head, "total "+s.id, "mean "+s.id, "rank "+s.id)
+		if !s.terms.ByFormula { // with no menu nothing is off it
+			head = append(head, "off menu "+s.id)
+		}
+		head = append(head, "mean effort "+s.id)
 	}
 	for k := range res.Outcomes {
 		if res.Outcomes == 2 && k > 0 {
@@ -147,7 +151,11 @@ func writeForecasters(path string, force bool, schemes []*backtestScheme, res *b
 	err = res.EachForecaster(func(f *backtest.Forecaster) error {
 		rec = append(rec[:0], f.Name, strconv.Itoa(f.Count))
 		for i, m := range f.Money {
-			rec = append(rec, g(m.Total), g(m.Mean), strconv.Itoa(f.Rank[i]), strconv.Itoa(m.OffMenu), g(m.MeanEffort))
+			rec = append(rec, g(m.Total), g(m.Mean), strconv.Itoa(f.Rank[i]))
+			if !schemes[i].terms.ByFormula {
+				rec = append(rec, strconv.Itoa(m.OffMenu))
+			}
+			rec = append(rec, g(m.MeanEffort))
 		}
 		for _, d := range f.CORP[0] {
 			rec = append(rec, g(d.Miscalibration), g(d.Discrimination), g(d.Uncertainty))

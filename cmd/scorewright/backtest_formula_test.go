@@ -72,3 +72,37 @@ func TestBacktestManyForecasters(t *testing.T) {
 		t.Errorf("forecasters file: %d records", len(recs))
 	}
 }
+
+// With no menu nothing is off it: the report has no off-menu column of
+// zeros, and its budget and totals speak of the budget, not of a menu or
+// a table; --forecasters-out has no off-menu column either. On a menu
+// (--step) the column and the table's words are back.
+func TestBacktestWithoutMenuSaysNoMenu(t *testing.T) {
+	dir := t.TempDir()
+	base := []string{"--outcomes", "late,on time", "--preset", "quadratic", "--floor", "0", "--cap", "10",
+		"--history", "../../testdata/histories/ferry-departures.csv"}
+	run := func(name string, extra ...string) (string, []string) {
+		all := filepath.Join(dir, name)
+		code, out, stderr := runBacktestCmd(t, append(append(base, "--forecasters-out", all), extra...)...)
+		if code != 0 {
+			t.Fatalf("exit %d: %s", code, stderr)
+		}
+		return out, readRecords(t, all)[0]
+	}
+	out, head := run("formula.csv")
+	for _, bad := range []string{"off menu", "over the menu", "table's"} {
+		if strings.Contains(out, bad) {
+			t.Errorf("the report without a menu says %q:\n%s", bad, out)
+		}
+	}
+	if strings.Contains(strings.Join(head, ","), "off menu") {
+		t.Errorf("--forecasters-out without a menu has an off-menu column: %q", head)
+	}
+	if !strings.Contains(out, "every payment within the budget's range") {
+		t.Errorf("the totals do not speak of the budget:\n%s", out)
+	}
+	out, head = run("menu.csv", "--step", "0.1")
+	if !strings.Contains(out, "off menu") || !strings.Contains(out, "over the menu") || !strings.Contains(strings.Join(head, ","), "off menu A") {
+		t.Errorf("on a menu the off-menu column and the menu's words are missing:\n%s\n%q", out, head)
+	}
+}

@@ -41,12 +41,15 @@ type skippedReport struct {
 }
 
 type ruleReport struct {
-	ID        string    `json:"id"`
-	Name      string    `json:"name"`
-	Formula   string    `json:"formula"`
-	Pay       string    `json:"pay"`
-	Menu      string    `json:"menu"`
-	Budget    string    `json:"budget"`
+	ID      string `json:"id"`
+	Name    string `json:"name"`
+	Formula string `json:"formula"`
+	Pay     string `json:"pay"`
+	Menu    string `json:"menu"`
+	Budget  string `json:"budget"`
+	// ByFormula is set when the rule has no report menu: every forecast
+	// is paid by the formula, and none can be off a menu.
+	ByFormula bool      `json:"by_formula"`
 	Count     int       `json:"count"`
 	Total     num.Float `json:"total"`
 	Mean      num.Float `json:"mean"`

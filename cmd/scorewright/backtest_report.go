@@ -37,7 +37,7 @@ func newBacktestReport(path string, h *history.Reader, schemes []*backtestScheme
 		m := res.All[i]
 		r.decimals = append(r.decimals, s.terms.Fit.Decimals())
 		rr := ruleReport{ID: s.id, Name: s.name, Formula: s.statement, Pay: s.terms.PayFormula(),
-			Menu: s.terms.MenuDesc(), Budget: s.terms.Fit.BudgetDesc(), Count: m.Count, Total: num.Float(m.Total), Mean: num.Float(m.Mean),
+			Menu: s.terms.MenuDesc(), Budget: s.terms.BudgetDesc(), ByFormula: s.terms.ByFormula, Count: m.Count, Total: num.Float(m.Total), Mean: num.Float(m.Mean),
 			Min: num.Float(m.Min), Max: num.Float(m.Max), OffMenu: m.OffMenu, BelowLow: m.BelowLow, AboveHigh: m.AboveHigh,
 			NonFinite: m.NonFinite, MostTotal: num.Float(float64(m.Count) * s.scheme.High)}
 		if mp := s.d.Budget.MeanPay; mp != nil {
@@ -171,7 +171,12 @@ func (r *backtestReport) writeForecasterTable(w io.Writer, left func(string) str
 	if two {
 		fmt.Fprint(tw, "rank A→B\t")
 	}
-	fmt.Fprint(tw, "off menu\t\n")
+	// Without a menu nothing can be off it: no column of zeros.
+	menu := !r.Rules[0].ByFormula
+	if menu {
+		fmt.Fprint(tw, "off menu\t")
+	}
+	fmt.Fprintln(tw)
 	for _, f := range r.Forecasters {
 		fmt.Fprintf(tw, "%s\t%d\t", left(f.Name), f.Count)
 		for i := range r.Rules {
@@ -187,7 +192,10 @@ func (r *backtestReport) writeForecasterTable(w io.Writer, left func(string) str
 			}
 			fmt.Fprintf(tw, "%s\t", change)
 		}
-		fmt.Fprintf(tw, "%d\t\n", f.OffMenu[0])
+		if menu {
+			fmt.Fprintf(tw, "%d\t", f.OffMenu[0])
+		}
+		fmt.Fprintln(tw)
 	}
 	fmt.Fprintf(tw, "%s\t%d\t", left("all"), r.Rows)
 	for i, rule := range r.Rules {
@@ -196,9 +204,16 @@ func (r *backtestReport) writeForecasterTable(w io.Writer, left func(string) str
 	if two {
 		fmt.Fprint(tw, "\t")
 	}
-	fmt.Fprintf(tw, "%d\t\n", r.Rules[0].OffMenu)
+	if menu {
+		fmt.Fprintf(tw, "%d\t", r.Rules[0].OffMenu)
+	}
+	fmt.Fprintln(tw)
 	tw.Flush()
-	fmt.Fprintln(w, "(ranks by mean pay per forecast, 1 is best; off menu: forecasts not on rule A's report menu)")
+	if menu {
+		fmt.Fprintln(w, "(ranks by mean pay per forecast, 1 is best; off menu: forecasts not on rule A's report menu)")
+	} else {
+		fmt.Fprintln(w, "(ranks by mean pay per forecast, 1 is best)")
+	}
 	fmt.Fprintln(w)
 }
 
@@ -208,12 +223,18 @@ func (r *backtestReport) writeTotals(w io.Writer) {
 	for i, rule := range r.Rules {
 		fmt.Fprintf(w, "  rule %s: paid %s for %d forecasts (mean %.4g, smallest %s, largest %s); ", rule.ID,
 			r.cash(i, rule.Total), rule.Count, float64(rule.Mean), r.cash(i, rule.Min), r.cash(i, rule.Max))
-		if rule.BelowLow+rule.AboveHigh == 0 {
-			fmt.Fprintln(w, "every payment within the table's range")
-		} else {
-			fmt.Fprintf(w, "%s below the table's smallest payment, %s above its largest (all off the menu)\n", plural(rule.BelowLow, "payment"), plural(rule.AboveHigh, "payment"))
+		// With no menu there is no table: the bounds are the budget's.
+		span, where, largest := "the table's range", "the table's smallest payment", "the table's largest payment"
+		offMenu := " (all off the menu)"
+		if rule.ByFormula {
+			span, where, largest, offMenu = "the budget's range", "the budget's floor", "the budget's largest payment", ""
 		}
-		fmt.Fprintf(w, "          at most %s had every forecast earned the table's largest payment", r.cash(i, rule.MostTotal))
+		if rule.BelowLow+rule.AboveHigh == 0 {
+			fmt.Fprintln(w, "every payment within "+span)
+		} else {
+			fmt.Fprintf(w, "%s below %s, %s above its largest%s\n", plural(rule.BelowLow, "payment"), where, plural(rule.AboveHigh, "payment"), offMenu)
+		}
+		fmt.Fprintf(w, "          at most %s had every forecast earned %s", r.cash(i, rule.MostTotal), largest)
 		if rule.TargetMean != nil {
 			fmt.Fprintf(w, "; the budget aims at %s per forecast from a truthful forecaster at its reference belief, %s for %d forecasts",
 				r.cash(i, *rule.TargetMean), r.cash(i, *rule.TargetTotal), rule.Count)

@@ -253,8 +253,8 @@ func printReport(w io.Writer, r *verify.Report) {
 		case c.Report != nil:
 			at = " report " + num.Format(c.Report)
 		}
-		fmt.Fprintf(w, "%-14s %s; worst %.6g%s\n", c.Name, status, c.Worst, at)
-		fmt.Fprintf(w, "               interior: %s; boundary: %s\n", partLine(c.Interior), partLine(c.Boundary))
+		fmt.Fprintf(w, "%-14s %s; worst %s%s\n", c.Name, status, scorewright.WorstText(c.Worst, r.Grid), at)
+		fmt.Fprintf(w, "               interior: %s; boundary: %s\n", partLine(c.Interior, r.Grid), partLine(c.Boundary, r.Grid))
 		for _, line := range strings.Split(c.Note, "; ") {
 			fmt.Fprintf(w, "               %s\n", line)
 		}
@@ -272,7 +272,7 @@ func verdictKind(r *verify.Report) certify.Kind {
 	return certify.GridEvidence
 }
 
-func partLine(p verify.Part) string {
+func partLine(p verify.Part, g verify.Grid) string {
 	if p.Count == 0 {
 		return "nothing examined"
 	}
@@ -280,5 +280,5 @@ func partLine(p verify.Part) string {
 	if !p.Passed {
 		s = "FAILED"
 	}
-	return fmt.Sprintf("%s (worst %.6g over %d)", s, p.Worst, p.Count)
+	return fmt.Sprintf("%s (worst %s over %d)", s, scorewright.WorstText(p.Worst, g), p.Count)
 }

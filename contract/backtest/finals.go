@@ -132,9 +132,20 @@ func newBounded(k int, before func(a, b int32) bool) *bounded {
 	return &bounded{k: k, before: before}
 }
 
+// holds reports whether x is kept.
+func (b *bounded) holds(x int32) bool {
+	for _, y := range b.items {
+		if y == x {
+			return true
+		}
+	}
+	return false
+}
+
 // offer keeps x if it comes before the last item kept (or fewer than k are
-// kept).
-func (b *bounded) offer(x int32) {
+// kept); it reports whether x was kept and which item it put out (-1:
+// none).
+func (b *bounded) offer(x int32) (kept bool, out int32) {
 	if len(b.items) < b.k {
 		b.items = append(b.items, x)
 		for i := len(b.items) - 1; i > 0; {
@@ -145,11 +156,12 @@ func (b *bounded) offer(x int32) {
 			b.items[p], b.items[i] = b.items[i], b.items[p]
 			i = p
 		}
-		return
+		return true, -1
 	}
 	if b.k == 0 || !b.before(x, b.items[0]) {
-		return
+		return false, -1
 	}
+	out = b.items[0]
 	b.items[0] = x
 	for i := 0; ; {
 		l, r, m := 2*i+1, 2*i+2, i
@@ -160,7 +172,7 @@ func (b *bounded) offer(x int32) {
 			m = r
 		}
 		if m == i {
-			return
+			return true, out
 		}
 		b.items[i], b.items[m] = b.items[m], b.items[i]
 		i = m

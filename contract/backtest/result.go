@@ -109,7 +109,7 @@ func (r *Result) EachForecaster(fn func(f *Forecaster) error) error {
 	}
 	defer fin.close()
 	vals := make([]float64, width)
-	err = t.scan(true, func(f int, m *moneyRec, own ownEntries) error {
+	err = t.scan(true, true, func(f int, m *moneyRec, own ownEntries) error {
 		fr := t.forecasterResult(f, m, own, r.ranks, false)
 		encodeFinal(vals, &fr)
 		return fin.put(int(pos[f]), vals)
@@ -158,7 +158,7 @@ func (t *Tally) Result() (*Result, error) {
 		r.Months = append(r.Months, mm)
 	}
 	sort.Slice(r.Months, func(i, j int) bool { return r.Months[i].Month < r.Months[j].Month })
-	means, err := t.means()
+	means, picked, err := t.means()
 	if err != nil {
 		return nil, err
 	}
@@ -167,15 +167,23 @@ func (t *Tally) Result() (*Result, error) {
 		r.ranks[s] = rank(means[s])
 		means[s] = nil
 	}
-	shown := t.shown(r.ranks)
+	// The detailed forecasters, in name order, from their forecasts: the
+	// money of each was kept by means, so this pass reads no money.
+	var shown []int32
+	for _, i := range t.names.sorted() {
+		if _, ok := picked[i]; ok {
+			shown = append(shown, i)
+		}
+	}
 	at := make(map[int32]int, len(shown))
 	for k, i := range shown {
 		at[i] = k
 	}
 	r.Forecasters = make([]Forecaster, len(shown))
-	err = t.scan(true, func(f int, m *moneyRec, own ownEntries) error {
+	err = t.scan(false, true, func(f int, _ *moneyRec, own ownEntries) error {
 		if k, ok := at[int32(f)]; ok {
-			r.Forecasters[k] = t.forecasterResult(f, m, own, r.ranks, true)
+			m := picked[int32(f)]
+			r.Forecasters[k] = t.forecasterResult(f, &m, own, r.ranks, true)
 		}
 		return nil
 	})
@@ -185,46 +193,53 @@ func (t *Tally) Result() (*Result, error) {
 	return r, nil
 }
 
-// shown picks the forecasters a Result details, in name order: all of
-// them, or the Show best and Show worst under the first scheme.
-func (t *Tally) shown(ranks [][]int32) []int32 {
-	all := t.names.sorted()
-	if len(all) <= 4*t.opt.Show || len(ranks) == 0 {
-		return all
-	}
-	rk := ranks[0]
-	worst := newBounded(t.opt.Show, func(a, b int32) bool { return rk[a] > rk[b] || rk[a] == rk[b] && a > b })
-	best := newBounded(t.opt.Show, func(a, b int32) bool { return rk[a] < rk[b] || rk[a] == rk[b] && a < b })
-	for i := range int32(len(rk)) {
-		best.offer(i)
-		worst.offer(i)
-	}
-	pick := map[int32]bool{}
-	for _, i := range append(best.items, worst.items...) {
-		pick[i] = true
-	}
-	var out []int32
-	for _, i := range all {
-		if pick[i] {
-			out = append(out, i)
-		}
-	}
-	return out
-}
-
-// means returns every forecaster's mean pay under each scheme.
-func (t *Tally) means() ([][]float64, error) {
+// means returns every forecaster's mean pay under each scheme, and the
+// money of the forecasters a Result details: all of them when there are
+// at most 4·Show, else the Show best and the Show worst by mean pay under
+// the first scheme (ties broken by first appearance, NaN last, as the
+// ranks order them), kept by bounded heaps as the pass goes.
+func (t *Tally) means() ([][]float64, map[int32]moneyRec, error) {
 	out := make([][]float64, len(t.schemes))
 	for s := range out {
 		out[s] = make([]float64, t.names.len())
 	}
-	err := t.scan(false, func(f int, m *moneyRec, _ ownEntries) error {
+	all := t.names.len() <= 4*t.opt.Show
+	m0 := out[0]
+	better := func(a, b int32) bool {
+		x, y := m0[a], m0[b]
+		switch {
+		case math.IsNaN(x) || math.IsNaN(y):
+			return !math.IsNaN(x) && math.IsNaN(y) || math.IsNaN(x) == math.IsNaN(y) && a < b
+		case x != y:
+			return x > y
+		}
+		return a < b
+	}
+	best := newBounded(t.opt.Show, better)
+	worst := newBounded(t.opt.Show, func(a, b int32) bool { return better(b, a) })
+	picked := map[int32]moneyRec{}
+	keep := func(f int32, m *moneyRec) {
+		picked[f] = moneyRec{count: m.count, s: append([]schemeMoney(nil), m.s...)}
+	}
+	err := t.scan(true, false, func(f int, m *moneyRec, _ ownEntries) error {
 		for s := range out {
 			out[s][f] = m.s[s].pay.Value() / float64(m.count)
 		}
+		if all {
+			keep(int32(f), m)
+			return nil
+		}
+		for _, b := range []*bounded{best, worst} {
+			if kept, gone := b.offer(int32(f)); kept {
+				keep(int32(f), m)
+				if gone >= 0 && !best.holds(gone) && !worst.holds(gone) {
+					delete(picked, gone)
+				}
+			}
+		}
 		return nil
 	})
-	return out, err
+	return out, picked, err
 }
 
 // rank ranks forecasters by their mean pay, best first; ties share the

@@ -6,6 +6,7 @@ import (
 	"encoding/binary"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"slices"
 )
@@ -185,18 +186,21 @@ func openCursors(sp *spillFile, runs []spillRun, mem records, size int, shift ui
 	return live, nil
 }
 
-// scan calls fn for every forecaster in forecaster order with its money
-// and, when pairs is set, its distinct forecast ids and their outcome
-// counts. The arguments are reused after fn returns.
-func (t *Tally) scan(pairs bool, fn func(f int, m *moneyRec, own ownEntries) error) error {
+// scan calls fn for every forecaster in forecaster order with, when money
+// is set, its money and, when pairs is set, its distinct forecast ids and
+// their outcome counts (each left empty otherwise). The arguments are
+// reused after fn returns.
+func (t *Tally) scan(money, pairs bool, fn func(f int, m *moneyRec, own ownEntries) error) error {
 	if err := t.Err(); err != nil {
 		return err
 	}
-	mh, err := openCursors(t.spill, t.money.runs, t.money.records(false), moneyRecordSize(len(t.schemes)), 0, func(int) []int32 { return nil })
-	if err != nil {
-		return err
+	var mh, ph cursors
+	var err error
+	if money {
+		if mh, err = openCursors(t.spill, t.money.runs, t.money.records(false), moneyRecordSize(len(t.schemes)), 0, func(int) []int32 { return nil }); err != nil {
+			return err
+		}
 	}
-	var ph cursors
 	s := t.store
 	if pairs {
 		remaps := map[int][]int32{}
@@ -212,8 +216,14 @@ func (t *Tally) scan(pairs bool, fn func(f int, m *moneyRec, own ownEntries) err
 	}
 	var m moneyRec
 	var own ownEntries
-	for mh.Len() > 0 {
-		f := mh[0].forecaster()
+	for mh.Len() > 0 || ph.Len() > 0 {
+		f := uint64(math.MaxUint64)
+		if mh.Len() > 0 {
+			f = mh[0].forecaster()
+		}
+		if ph.Len() > 0 {
+			f = min(f, ph[0].forecaster())
+		}
 		m.reset(len(t.schemes))
 		if err := mh.take(f, func(rec []byte) { mergeMoney(&m, rec) }); err != nil {
 			return err

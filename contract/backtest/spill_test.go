@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"os"
+	"sort"
 	"strings"
 	"testing"
 )
@@ -161,5 +162,75 @@ func TestSpillFailure(t *testing.T) {
 	}
 	if _, err := tl.Result(); err == nil || !strings.Contains(err.Error(), "temporary file") {
 		t.Errorf("Result: error %v, want the spill's", err)
+	}
+}
+
+// The detailed forecasters are the ten best and ten worst by mean pay
+// under the first scheme, ties broken by first appearance: checked
+// against a sort of every forecaster's mean from the test's own sums, with
+// and without spilling.
+func TestShownAreTheBestAndWorst(t *testing.T) {
+	q := rule(t, "1 - sum(p^2)", 3, false)
+	for _, opt := range []TallyOptions{{}, {MaxMoney: 3, MaxPairs: 5}} {
+		opt.SpillDir = t.TempDir()
+		// Pay rounded to 0 or 10, ten forecasts each: the means tie in
+		// crowds, at the ends of the lists too.
+		tl, err := NewTally([]Scheme{{Name: "q", Rule: q, Pay: roundedAffine{10, 5, 10}, Low: 0, High: 10}}, opt)
+		if err != nil {
+			t.Fatal(err)
+		}
+		rng := rand.New(rand.NewPCG(1, 2))
+		sums := map[string][][4]float64{}
+		for i := range 600 {
+			name := fmt.Sprintf("f%02d", (i*7)%60)
+			a := float64(rng.IntN(11)) / 10
+			paid := tl.Add(name, i+2, rng.IntN(3), []float64{a, (1 - a) / 2, (1 - a) / 2})
+			if sums[name] == nil {
+				sums[name] = make([][4]float64, 1)
+			}
+			sums[name][0][0]++
+			sums[name][0][1] += paid[0].Pay
+		}
+		type fc struct {
+			name  string
+			mean  float64
+			first int
+		}
+		var all []fc
+		res := result(t, tl)
+		err = res.EachForecaster(func(f *Forecaster) error {
+			w := sums[f.Name][0]
+			all = append(all, fc{f.Name, w[1] / w[0], 0})
+			return nil
+		})
+		if err != nil {
+			t.Fatal(err)
+		}
+		order := map[string]int{}
+		for i := range tl.names.len() {
+			order[tl.names.name(i)] = i
+		}
+		for i := range all {
+			all[i].first = order[all[i].name]
+		}
+		sort.Slice(all, func(i, j int) bool {
+			if all[i].mean != all[j].mean {
+				return all[i].mean > all[j].mean
+			}
+			return all[i].first < all[j].first
+		})
+		want := map[string]bool{}
+		for _, f := range append(all[:DefaultShow], all[len(all)-DefaultShow:]...) {
+			want[f.name] = true
+		}
+		if len(res.Forecasters) != 2*DefaultShow {
+			t.Fatalf("%d detailed, want %d", len(res.Forecasters), 2*DefaultShow)
+		}
+		for _, f := range res.Forecasters {
+			if !want[f.Name] {
+				t.Errorf("%+v: %s is detailed but is neither among the best nor the worst %d", opt, f.Name, DefaultShow)
+			}
+		}
+		tl.Close()
 	}
 }

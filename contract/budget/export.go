@@ -78,10 +78,13 @@ func (rc *Recheck) Verdict(f *Fit) string {
 func (f *Fit) BudgetDesc() string {
 	if f.MeanPay != nil {
 		return fmt.Sprintf("expected pay of a truthful forecaster at the reference belief %s is %s (before rounding); the largest menu effort pays the floor %s; the fit's largest payment is %s",
-			num.Format(f.Reference), table.FormatNumber(*f.MeanPay), table.FormatNumber(f.Floor), table.FormatNumber(f.Cap))
+			f.referenceText(), table.FormatNumber(*f.MeanPay), table.FormatNumber(f.Floor), table.FormatNumber(f.Cap))
 	}
 	return fmt.Sprintf("payments span [%s, %s] over the menu and every outcome (before rounding)", table.FormatNumber(f.Floor), table.FormatNumber(f.Cap))
 }
+
+// referenceText writes the reference belief of a mean-pay budget.
+func (f *Fit) referenceText() string { return num.Format(f.Reference) }
 
 // MenuDesc describes the menu, clamp included.
 func (f *Fit) MenuDesc() string {

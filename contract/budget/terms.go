@@ -213,6 +213,22 @@ func (t *Terms) PayFormula() string {
 
 // MenuDesc describes the menu forecasts are held to, or says there is
 // none.
+// BudgetDesc states the budget the pay was fitted to: over the menu's
+// reports, or, with no menu, over the grid A and B were fitted on (the
+// pay is then the formula at each forecast, with no menu to span).
+func (t *Terms) BudgetDesc() string {
+	if !t.ByFormula {
+		return t.Fit.BudgetDesc()
+	}
+	grid := "reports in steps of " + table.FormatNumber(FitStep(len(t.Fit.Menu.Reports[0])))
+	if t.Fit.MeanPay != nil {
+		return fmt.Sprintf("expected pay of a truthful forecaster at the reference belief %s is %s (before rounding); A and B were fitted on %s: the largest effort there pays the floor %s, the smallest %s",
+			t.Fit.referenceText(), table.FormatNumber(*t.Fit.MeanPay), grid, table.FormatNumber(t.Fit.Floor), table.FormatNumber(t.Fit.Cap))
+	}
+	return fmt.Sprintf("payments span [%s, %s] over %s and every outcome, the grid A and B were fitted on (before rounding)", table.FormatNumber(t.Fit.Floor), table.FormatNumber(t.Fit.Cap), grid)
+}
+
+// MenuDesc describes the report menu, or says there is none.
 func (t *Terms) MenuDesc() string {
 	if t.ByFormula {
 		return "none: reports are paid by the exact formula"
