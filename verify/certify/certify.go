@@ -31,7 +31,7 @@
 //
 // On a line (line.go), an emphasis weight w on [0, 1] is certified by its
 // sign (Schervish 1989) and a point forecast's generator phi by the sign
-// of phi'' (Savage 1971; Gneiting 2011). A point-forecast payout has no
+// of phi” (Savage 1971; Gneiting 2011). A point-forecast payout has no
 // certificate: its honesty is over every distribution on the interval.
 //
 // Every result says its kind (certified), what share of the simplex (by
