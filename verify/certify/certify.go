@@ -172,8 +172,12 @@ func (r *Result) Statement() string {
 	if r.Epsilon > 0 {
 		what = fmt.Sprintf("honest to within %.3g", r.Epsilon)
 	}
-	return fmt.Sprintf("not certified: %s of the simplex proved %s, %d boxes left undecided (%s after %d boxes, %s)",
-		pct(r.Share), what, r.Open, r.Stopped, r.Boxes, r.Elapsed.Round(time.Millisecond))
+	where := ""
+	if r.Method != "" {
+		where = "; " + r.Method
+	}
+	return fmt.Sprintf("not certified: %s of the simplex proved %s, %d boxes left undecided (%s after %d boxes, %s)%s",
+		pct(r.Share), what, r.Open, r.Stopped, r.Boxes, r.Elapsed.Round(time.Millisecond), where)
 }
 
 // lineStatement is Statement for a certificate on an interval.
