@@ -148,7 +148,7 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	}
 	largestGap(rep, &prop, p, g, s.Tolerance)
 	auditVerdict(rep, prop, bounded, ties, p, s.Tolerance)
-	fits, err := identify(ctx, g, pays, cands, pr)
+	fits, err := identify(ctx, g, pays, cands, s.Workers, pr)
 	if err != nil {
 		return nil, err
 	}
