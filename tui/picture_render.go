@@ -183,9 +183,9 @@ func renderBinary(ctx context.Context, st Styles, c *compiled, s *sampler, spec 
 }
 
 // binaryAt is what the two-outcome picture shows at p = (x, 1-x) for
-// measure: effort (or pay) per outcome, the generator, the emphasis
-// weight -H'' or the honesty gap on the grid, by measure m (the second
-// value is used only by the first).
+// measure m: effort (or pay) per outcome, the generator, the emphasis
+// weight (minus the second derivative of H) or the honesty gap on the
+// grid (the second value is used only by the first).
 func binaryAt(s *sampler, sc interface {
 	Binary(float64) (float64, float64, float64)
 }, scores [][]float64, m measure, pay func(float64) float64, x float64) (float64, float64) {

@@ -31,7 +31,7 @@
 //
 // On a line (line.go), an emphasis weight w on [0, 1] is certified by its
 // sign (Schervish 1989) and a point forecast's generator phi by the sign
-// of phi'' (Savage 1971; Gneiting 2011). A point-forecast payout has no
+// of phi” (Savage 1971; Gneiting 2011). A point-forecast payout has no
 // certificate: its honesty is over every distribution on the interval.
 //
 // Every result says its kind (certified), what share of the simplex (by
@@ -172,8 +172,12 @@ func (r *Result) Statement() string {
 	if r.Epsilon > 0 {
 		what = fmt.Sprintf("honest to within %.3g", r.Epsilon)
 	}
-	return fmt.Sprintf("not certified: %s of the simplex proved %s, %d boxes left undecided (%s after %d boxes, %s)",
-		pct(r.Share), what, r.Open, r.Stopped, r.Boxes, r.Elapsed.Round(time.Millisecond))
+	where := ""
+	if r.Method != "" {
+		where = "; " + r.Method
+	}
+	return fmt.Sprintf("not certified: %s of the simplex proved %s, %d boxes left undecided (%s after %d boxes, %s)%s",
+		pct(r.Share), what, r.Open, r.Stopped, r.Boxes, r.Elapsed.Round(time.Millisecond), where)
 }
 
 // lineStatement is Statement for a certificate on an interval.
