@@ -120,7 +120,7 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 		m.rows[i] = -v
 	}
 	m.seal()
-	bs, err := stream(ctx, g, m, s.Workers, pr)
+	bs, err := pairStream(ctx, g, m, s, pr)
 	if err != nil {
 		return nil, err
 	}
