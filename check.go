@@ -6,6 +6,7 @@ import (
 	"fmt"
 
 	"scorewright/generator/bregman"
+	"scorewright/generator/emphasis"
 	"scorewright/presets"
 	"scorewright/verify"
 	"scorewright/verify/certify"
@@ -108,19 +109,27 @@ func (r *Rule) Examine(ctx context.Context, s verify.Settings) (*Findings, error
 // verdict stays grid evidence.
 var ErrNoCertificate = errors.New("no certificate method applies to this rule; its verdict is grid evidence")
 
-// Certify proves the design's verdict over the whole simplex by interval
-// arithmetic (verify/certify): a generator formula's concavity (proper,
-// strictly proper or improper), or a payout's honesty to within
-// s.Epsilon. Within the deadline it may only prove a share of the
-// simplex; the result says so. An emphasis weight (integrated twice, not
-// a formula in p) and point forecasts give ErrNoCertificate.
+// Certify proves the design's verdict by interval arithmetic
+// (verify/certify): over the whole simplex, a generator formula's
+// concavity (proper, strictly proper or improper) or a payout's honesty
+// to within s.Epsilon; over [0, 1], an emphasis weight's sign (Schervish
+// 1989); over the interval, a point forecast's generator's concavity.
+// Within the deadline it may only prove a share; the result says so. A
+// point-forecast payout gives ErrNoCertificate: its honesty is a
+// statement about every distribution on the interval, not a box search
+// over reports, and only the grid's evidence stands for it.
 func (r *Rule) Certify(ctx context.Context, s certify.Settings) (*certify.Result, error) {
 	switch {
 	case r.payout != nil:
 		return certify.Payout(ctx, r.payout, s)
+	case r.point != nil:
+		return certify.Point(ctx, r.point.Program(), r.point.Lo, r.point.Hi, s)
 	case r.outcomes != nil:
-		if _, ok := r.outcomes.Gen.(*bregman.Formula); ok {
+		switch g := r.outcomes.Gen.(type) {
+		case *bregman.Formula:
 			return certify.Rule(ctx, r.outcomes, s)
+		case *emphasis.Generator:
+			return certify.Emphasis(ctx, g.Program(), s)
 		}
 	}
 	return nil, fmt.Errorf("%s design: %w", r.Kind(), ErrNoCertificate)

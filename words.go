@@ -19,6 +19,15 @@ func WorstText(v float64, g verify.Grid) string {
 	return numfmt.Significant(CleanWorst(v, g), 6)
 }
 
+// PayText writes an expected pay, a mean of amounts and so finer than the
+// table's currency, as the command and the workbench print it: six
+// significant digits, without binary noise.
+func PayText(v float64) string { return numfmt.Significant(v, 6) }
+
+// PointsText writes a distortion of a report in probability points as both
+// front ends print it: three significant digits.
+func PointsText(v float64) string { return numfmt.Significant(v, 3) }
+
 // CleanWorst is v, or 0 when v is within the slack of g's comparisons.
 func CleanWorst(v float64, g verify.Grid) float64 {
 	if math.Abs(v) <= math.Max(g.Tolerance*g.Scale, g.Rounding) {

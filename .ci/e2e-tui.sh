@@ -86,6 +86,30 @@ wait_for "Largest distortion 9.52 probability points"
 key Escape
 wait_for "Picture"
 
+# Budget pane: rounding to whole fives breaks the frost table (rows are
+# marked TIE or BEATEN); f proposes the coarsest unit that passes and 1
+# takes it. Then the checks pane opens a check's full text.
+key Tab; key Tab; key Tab
+wait_for "Budget and table · field 1 of"
+for _ in $(seq 1 8); do key Down; done
+wait_for "field 9 of"
+key Right; key Right; key Right; key Right
+wait_for "menu re-check FAILED"
+wait_for "BEATEN"
+key f
+wait_for "1 unit 0.1: passes"
+key 1
+wait_for "took the proposal"
+wait_for "menu re-check passed"
+key BTab
+key Down
+key Enter
+wait_for "Checks · full text"
+wait_for "what it measures"
+key Escape
+key Tab; key Tab
+wait_for "┏ Design"
+
 # The harvest demo draws a ternary picture; the edits above are unsaved,
 # so ctrl+n asks first and d switches without saving.
 key C-n

@@ -30,8 +30,8 @@ func (s Settings) certifyDeadline() time.Duration {
 }
 
 // certifyDesign runs the certificate of a design after its grid check,
-// reporting progress as the share of the simplex proved; nil when no
-// certificate method applies (an emphasis weight, point forecasts) or
+// reporting progress as the share of the simplex (or interval) proved;
+// nil when no certificate method applies (a point-forecast payout) or
 // certificates are off (a negative deadline). A cancelled context ends it
 // at once.
 func certifyDesign(ctx context.Context, r *scorewright.Rule, s Settings, progress func(done, total int64)) *CertificateView {

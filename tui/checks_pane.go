@@ -6,8 +6,6 @@ import (
 
 	"github.com/charmbracelet/bubbles/key"
 	"github.com/charmbracelet/bubbles/progress"
-
-	"scorewright/internal/num"
 )
 
 // ChecksPane shows the checks of the current design and their progress.
@@ -25,6 +23,11 @@ type ChecksPane struct {
 	err         error
 	stale       bool // the report is for an earlier design
 	blocked     string
+	// sel is the selected entry: a check row, or len(Rows) for the
+	// verdict and notes; detail shows its full text, scrolled by scroll.
+	sel    int
+	detail bool
+	scroll int
 }
 
 // NewChecksPane returns a checks pane; available says whether the build
@@ -51,7 +54,17 @@ func (p *ChecksPane) Focus() { p.focused = true }
 func (p *ChecksPane) Blur() { p.focused = false }
 
 // KeyHelp lists the pane's keys.
-func (p ChecksPane) KeyHelp() []key.Binding { return []key.Binding{p.keys.Rerun} }
+func (p ChecksPane) KeyHelp() []key.Binding {
+	k := p.keys
+	as := func(b key.Binding, desc string) key.Binding {
+		return key.NewBinding(key.WithKeys(b.Keys()...), key.WithHelp(b.Help().Key, desc))
+	}
+	if p.detail {
+		scroll := key.NewBinding(key.WithKeys(append(k.Up.Keys(), k.Down.Keys()...)...), key.WithHelp(k.Up.Help().Key+"/"+k.Down.Help().Key, "scroll"))
+		return []key.Binding{scroll, as(k.Less, "previous check"), as(k.More, "next check"), as(k.Leave, "back to the list")}
+	}
+	return []key.Binding{k.Up, k.Down, as(k.Edit, "full text"), k.Rerun}
+}
 
 // edited marks the shown report as stale and waits for the debounce.
 func (p *ChecksPane) edited() {
@@ -73,6 +86,9 @@ func (p *ChecksPane) progressed(done, total int64) { p.done, p.total = done, tot
 
 func (p *ChecksPane) finished(r *CheckReport, err error) {
 	p.running, p.report, p.err, p.stale = false, r, err, false
+	if r != nil {
+		p.sel = min(p.sel, len(r.Rows))
+	}
 }
 
 // Running reports whether a check is in progress.
@@ -122,35 +138,10 @@ func (p ChecksPane) View() string {
 		// terminal shows both kinds of verdict before any detail.
 		lines = append(lines, certificateLines(st, r.Certificate)...)
 		lines = append(lines, st.Dim.Render(gridLine(r)))
-		// Each check's note only when there is room for all of them.
-		notes := p.h-2 >= len(lines)+2*len(r.Rows)+len(r.Notes)+1
-		for _, c := range r.Rows {
-			mark := st.Pass.Render("✓")
-			if !c.Passed {
-				mark = st.Fail.Render("✗")
-			}
-			line := fmt.Sprintf("%s %-13s worst %.3g", mark, c.Name, c.Worst)
-			switch {
-			case c.Belief != nil && c.Report != nil:
-				b, r, ok := num.Witness(c.Belief, c.Report, !c.Passed)
-				line += " at q=" + b
-				if ok {
-					line += " p=" + r
-				}
-			case c.Belief != nil:
-				line += " at q=" + num.Format(c.Belief)
-			case c.Report != nil:
-				line += " p=" + num.Format(c.Report)
-			}
-			lines = append(lines, line)
-			if c.Note != "" && notes {
-				lines = append(lines, st.Dim.Render("  "+c.Note))
-			}
+		if p.detail {
+			return paneFrame(st, "Checks · full text", p.focused, p.w, p.h, strings.Join(p.detailView(), "\n"))
 		}
-		for _, n := range r.Notes {
-			lines = append(lines, st.Dim.Render(n))
-		}
-		lines = append(lines, st.Dim.Render("A grid check is evidence, not proof."))
+		lines = append(lines, p.rowLines(r, p.h-2-len(lines))...)
 	} else if !p.running && p.err == nil && p.blocked == "" && !p.waiting {
 		lines = append(lines, st.Dim.Render("no checks run yet"))
 	}

@@ -374,7 +374,7 @@ func (p *DesignPane) cycleMode(d *design.Design, up bool) {
 		} else {
 			i = (i + len(ms) - 1) % len(ms)
 		}
-		if ms[i] != design.ModeEmphasis || d.N() == 2 {
+		if k := ms[i].Outcomes(); k == 0 || k == d.N() {
 			break
 		}
 	}

@@ -141,8 +141,15 @@
 // (pass, fail); nothing depends on colour alone. The footer is our own key line: each key and what it
 // does with wide gaps, "? all keys" first, cut with … where it does not fit.
 //
-// Layout: below 120×40 the design pane fills the left half, the picture sits top right over
-// whichever of checks and budget was focused last; from 120×40 all four panes show. Below 80×24
+// Checks pane (`tui/checks_detail.go`): one line per check and a last entry for the verdict and
+// notes; ↑/↓ choose (the list scrolls to keep the choice in view and says how much is hidden),
+// enter opens the entry's full text wrapped to the pane (witnesses to ten digits, the check's note,
+// the certificate's whole statement, every note), scrolled with ↑/↓ pgup/pgdn, ←/→ the other
+// entries, esc back; r runs the checks again from the list.
+//
+// Layout: below 120×40 the design pane fills the left half, the picture sits top right (half the
+// height, whichever pane has the focus, so it stays readable at 80×24) over whichever of checks
+// and budget was focused last; from 120×40 all four panes show. Below 80×24
 // the screen says how big it must be. Pictures: n = 2 effort (or fitted pay) per outcome,
 // generator, emphasis weight −H″, honesty gap (ntcharts line chart, one marker rune per series
 // so it reads without colour); n = 3 a ternary shading (our own drawing — no library draws a

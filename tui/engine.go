@@ -63,6 +63,7 @@ func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress f
 		out.Certificate = certifyDesign(ctx, r, s, progress)
 	default:
 		out = fromPoint(found.Point)
+		out.Certificate = certifyDesign(ctx, r, s, progress)
 	}
 	if line := found.IdentifiedLine(); line != "" {
 		out.Notes = append(out.Notes, line)

@@ -35,10 +35,11 @@ func (m *Model) headerLine() string {
 	room := m.width - lipgloss.Width(left) - lipgloss.Width(right) - 1
 	name := st.Header.Render(title) + st.Dim.Render(" ("+where+")")
 	if lipgloss.Width(name) > room { // too narrow for the file: a star marks unsaved edits
-		name = st.Header.Render(title)
+		star := ""
 		if m.Unsaved() {
-			name += st.Dim.Render(" *")
+			star = " *"
 		}
+		name = st.Header.Render(ansi.Truncate(title, max(0, room-len(star)), "…")) + st.Dim.Render(star)
 	}
 	name = ansi.Truncate(name, max(0, room), "…")
 	gap := m.width - lipgloss.Width(left) - lipgloss.Width(name) - lipgloss.Width(right)

@@ -151,7 +151,10 @@ func (k KeyMap) groups() []helpGroup {
 			"while edits are unsaved they are kept in a recovery file,",
 			"offered at the next start"}},
 		{title: "Picture pane", keys: []key.Binding{k.Measure, k.BeliefDown, k.BeliefUp, k.Pair}},
-		{title: "Checks pane", keys: []key.Binding{k.Rerun}},
+		{title: "Checks pane", keys: []key.Binding{k.Rerun}, notes: []string{
+			keyList(k.Up, k.Down) + " choose a check (the list scrolls), " + keyList(k.Edit) + " its full text;",
+			"there " + keyList(k.Up, k.Down, k.PageUp, k.PageDown) + " scroll, " + keyList(k.Less, k.More) + " the other checks,",
+			keyList(k.Leave) + " back to the list"}},
 		{title: "Terms of the annex (" + k.Terms.Help().Key + ")", keys: []key.Binding{k.Up, k.Down, k.Edit, k.Leave}},
 		{title: "Budget pane (arrows and enter as above)", keys: []key.Binding{k.PageUp, k.PageDown, k.Propose, k.TakeFirst, k.TakeSecond}, notes: []string{
 			"rows the re-check fails are marked TIE or BEATEN;",

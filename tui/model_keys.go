@@ -245,11 +245,7 @@ func (m *Model) routeToPane(km tea.KeyMsg) tea.Cmd {
 			return m.requestPicture()
 		}
 	case paneChecks:
-		if key.Matches(km, m.keys.Rerun) {
-			m.debouncedGen = m.gen
-			m.checkJob.gen = 0
-			return m.maybeStart()
-		}
+		return m.checksKey(km)
 	case paneBudget:
 		return m.budgetKey(km)
 	}

@@ -23,7 +23,6 @@ func renderPicture(ctx context.Context, st Styles, c *compiled, spec pictureSpec
 	}
 	n := c.d.N()
 	s := c.newSampler()
-	w, h := spec.w, spec.h
 	orient := "effort"
 	if c.reward() {
 		orient = "pay"
@@ -32,83 +31,97 @@ func renderPicture(ctx context.Context, st Styles, c *compiled, spec pictureSpec
 	case n == 2:
 		return renderBinary(ctx, st, c, s, spec, pay, orient)
 	case n == 3:
-		rows := max(3, min(h-5, (w-1)/2)) // vertex labels, legend, remarks and a note take five lines
-		t := newTernaryCells(rows, max(2*rows+1, min(w-1, 4*rows+1)))
-		vals := make([][]float64, t.rows)
-		var what, note string
-		var worst float64
-		var worstAt []float64
-		scores := gridScores(s, n, pictureGrid)
-		for r := range vals {
-			if ctx.Err() != nil {
-				return "(cancelled)"
-			}
-			vals[r] = make([]float64, t.cols)
-			for col, q := range t.p[r] {
-				if q == nil {
-					continue
-				}
-				var v float64
-				if spec.measure == mGap {
-					v = gapOnGrid(s, scores, q)
-					if v > worst {
-						worst, worstAt = v, q
-					}
-				} else {
-					v = cleanZero(s.regret(spec.belief, q))
-				}
-				vals[r][col] = v
-			}
-		}
-		var mark []float64
-		if spec.measure == mGap {
-			what = "gap by belief"
-			if worstAt != nil {
-				note = fmt.Sprintf("largest %s at belief %s", fmtTick(worst), num.Format(round2(worstAt)))
-			} else {
-				note = "no gain from misreporting (1/40 grid)"
-			}
-		} else {
-			what = "loss by report"
-			mark = spec.belief
-			note = fmt.Sprintf("belief %s (%s: [ ] to move, p to pick)", num.Format(round2(spec.belief)), c.d.Labels[spec.active])
-		}
-		pic := drawTernary(st, t, vals, c.d.Labels, mark, what)
-		return pic + "\n" + st.Dim.Render(note)
+		return renderTernary(ctx, st, c, s, spec)
 	default:
-		pr := pairs(n)[spec.pair%len(pairs(n))]
-		i, j := pr[0], pr[1]
-		base := spec.belief
-		m := base[i] + base[j]
-		cols := max(10, w-8)
-		var ss []series
-		p := make([]float64, n)
-		eff := make([]float64, n)
-		if spec.measure == mScores {
-			ss = []series{{name: orient + " if " + c.d.Labels[i], y: make([]float64, cols)}, {name: orient + " if " + c.d.Labels[j], y: make([]float64, cols)}}
-		} else {
-			ss = []series{{name: "loss for the belief", y: make([]float64, cols)}}
-		}
-		for k := 0; k < cols; k++ {
-			t := (float64(k) + 0.5) / float64(cols)
-			copy(p, base)
-			p[i], p[j] = t*m, (1-t)*m
-			if spec.measure == mScores {
-				s.scores(eff, p)
-				ss[0].y[k], ss[1].y[k] = eff[i], eff[j]
-			} else {
-				ss[0].y[k] = cleanZero(s.regret(base, p))
-			}
-		}
-		chart, clipped := drawLines(st, w, max(4, h-3), 0, 1, ss, base[i]/m)
-		head := st.Dim.Render(fmt.Sprintf("slice %s–%s (p: next pair), rest at belief", c.d.Labels[i], c.d.Labels[j]))
-		lg := legend(st, ss)
-		if clipped {
-			lg += st.Dim.Render("  (y cut)")
-		}
-		foot := fmt.Sprintf("x: share of %s in the pair; belief %s", c.d.Labels[i], num.Format(round2(base)))
-		return head + "\n" + lg + "\n" + chart + "\n" + foot
+		return renderSlice(st, c, s, spec, orient)
 	}
+}
+
+// renderTernary shades the simplex of three outcomes: the honesty gap by
+// belief, or the loss by report for the chosen belief.
+func renderTernary(ctx context.Context, st Styles, c *compiled, s *sampler, spec pictureSpec) string {
+	n, w, h := c.d.N(), spec.w, spec.h
+	rows := max(3, min(h-5, (w-1)/2)) // vertex labels, legend, remarks and a note take five lines
+	t := newTernaryCells(rows, max(2*rows+1, min(w-1, 4*rows+1)))
+	vals := make([][]float64, t.rows)
+	var what, note string
+	var worst float64
+	var worstAt []float64
+	scores := gridScores(s, n, pictureGrid)
+	for r := range vals {
+		if ctx.Err() != nil {
+			return "(cancelled)"
+		}
+		vals[r] = make([]float64, t.cols)
+		for col, q := range t.p[r] {
+			if q == nil {
+				continue
+			}
+			var v float64
+			if spec.measure == mGap {
+				v = gapOnGrid(s, scores, q)
+				if v > worst {
+					worst, worstAt = v, q
+				}
+			} else {
+				v = cleanZero(s.regret(spec.belief, q))
+			}
+			vals[r][col] = v
+		}
+	}
+	var mark []float64
+	if spec.measure == mGap {
+		what = "gap by belief"
+		if worstAt != nil {
+			note = fmt.Sprintf("largest %s at belief %s", fmtTick(worst), num.Format(round2(worstAt)))
+		} else {
+			note = "no gain from misreporting (1/40 grid)"
+		}
+	} else {
+		what = "loss by report"
+		mark = spec.belief
+		note = fmt.Sprintf("belief %s (%s: [ ] to move, p to pick)", num.Format(round2(spec.belief)), c.d.Labels[spec.active])
+	}
+	pic := drawTernary(st, t, vals, c.d.Labels, mark, what)
+	return pic + "\n" + st.Dim.Render(note)
+}
+
+// renderSlice draws n > 3 outcomes along a pair of them, the rest at the
+// belief: effort (or pay) per outcome, or the loss for the belief.
+func renderSlice(st Styles, c *compiled, s *sampler, spec pictureSpec, orient string) string {
+	n, w, h := c.d.N(), spec.w, spec.h
+	pr := pairs(n)[spec.pair%len(pairs(n))]
+	i, j := pr[0], pr[1]
+	base := spec.belief
+	m := base[i] + base[j]
+	cols := max(10, w-8)
+	var ss []series
+	p := make([]float64, n)
+	eff := make([]float64, n)
+	if spec.measure == mScores {
+		ss = []series{{name: orient + " if " + c.d.Labels[i], y: make([]float64, cols)}, {name: orient + " if " + c.d.Labels[j], y: make([]float64, cols)}}
+	} else {
+		ss = []series{{name: "loss for the belief", y: make([]float64, cols)}}
+	}
+	for k := 0; k < cols; k++ {
+		t := (float64(k) + 0.5) / float64(cols)
+		copy(p, base)
+		p[i], p[j] = t*m, (1-t)*m
+		if spec.measure == mScores {
+			s.scores(eff, p)
+			ss[0].y[k], ss[1].y[k] = eff[i], eff[j]
+		} else {
+			ss[0].y[k] = cleanZero(s.regret(base, p))
+		}
+	}
+	chart, clipped := drawLines(st, w, max(4, h-3), 0, 1, ss, base[i]/m)
+	head := st.Dim.Render(fmt.Sprintf("slice %s–%s (p: next pair), rest at belief", c.d.Labels[i], c.d.Labels[j]))
+	lg := legend(st, ss)
+	if clipped {
+		lg += st.Dim.Render("  (y cut)")
+	}
+	foot := fmt.Sprintf("x: share of %s in the pair; belief %s", c.d.Labels[i], num.Format(round2(base)))
+	return head + "\n" + lg + "\n" + chart + "\n" + foot
 }
 
 func renderBinary(ctx context.Context, st Styles, c *compiled, s *sampler, spec pictureSpec, pay func(float64) float64, orient string) string {
@@ -116,8 +129,6 @@ func renderBinary(ctx context.Context, st Styles, c *compiled, s *sampler, spec 
 	cols := max(10, w-8)
 	var ss []series
 	l := c.d.Labels
-	p := make([]float64, 2)
-	eff := make([]float64, 2)
 	var sc interface {
 		Binary(float64) (float64, float64, float64)
 	}
@@ -140,47 +151,24 @@ func renderBinary(ctx context.Context, st Styles, c *compiled, s *sampler, spec 
 		ss, ylabel = []series{{name: "gap", y: make([]float64, cols)}}, "gap"
 		scores = gridScores(s, 2, 200)
 	}
+	at := func(x float64) (float64, float64) { return binaryAt(s, sc, scores, spec.measure, pay, x) }
 	for k := 0; k < cols; k++ {
 		if ctx.Err() != nil {
 			return "(cancelled)"
 		}
-		x := (float64(k) + 0.5) / float64(cols)
-		p[0], p[1] = x, 1-x
-		switch spec.measure {
-		case mScores, mPay:
-			s.scores(eff, p)
-			if spec.measure == mPay && pay != nil {
-				eff[0], eff[1] = pay(eff[0]), pay(eff[1])
-			}
-			ss[0].y[k], ss[1].y[k] = eff[0], eff[1]
-		case mGenerator:
-			ss[0].y[k], _, _ = sc.Binary(x)
-		case mEmphasis:
-			_, _, ss[0].y[k] = sc.Binary(x)
-		case mGap:
-			ss[0].y[k] = gapOnGrid(s, scores, p)
+		a, b := at((float64(k) + 0.5) / float64(cols))
+		ss[0].y[k] = a
+		if len(ss) > 1 {
+			ss[1].y[k] = b
 		}
 	}
 	q := spec.belief[0]
 	chart, clipped := drawLines(st, w, max(4, h-2), 0, 1, ss, q)
 	// Values at the belief mark, so the picture can be read exactly.
-	p[0], p[1] = q, 1-q
-	var at string
-	switch spec.measure {
-	case mScores, mPay:
-		s.scores(eff, p)
-		if spec.measure == mPay && pay != nil {
-			eff[0], eff[1] = pay(eff[0]), pay(eff[1])
-		}
-		at = fmt.Sprintf("%s / %s", fmtTick(eff[0]), fmtTick(eff[1]))
-	case mGenerator:
-		v, _, _ := sc.Binary(q)
-		at = fmtTick(v)
-	case mEmphasis:
-		_, _, v := sc.Binary(q)
-		at = fmtTick(v)
-	case mGap:
-		at = fmtTick(gapOnGrid(s, scores, p))
+	va, vb := at(q)
+	value := fmtTick(va)
+	if len(ss) > 1 {
+		value += " / " + fmtTick(vb)
 	}
 	xl := "report"
 	if spec.measure == mGap {
@@ -190,8 +178,36 @@ func renderBinary(ctx context.Context, st Styles, c *compiled, s *sampler, spec 
 	if clipped {
 		head += st.Dim.Render("  (y cut)")
 	}
-	foot := fmt.Sprintf("x: %s p(%s) ┊ %.2f: %s", xl, l[0], q, at)
+	foot := fmt.Sprintf("x: %s p(%s) ┊ %.2f: %s", xl, l[0], q, value)
 	return head + "\n" + chart + "\n" + foot
+}
+
+// binaryAt is what the two-outcome picture shows at p = (x, 1-x) for
+// measure m: effort (or pay) per outcome, the generator, the emphasis
+// weight (minus the second derivative of H) or the honesty gap on the
+// grid (the second value is used only by the first).
+func binaryAt(s *sampler, sc interface {
+	Binary(float64) (float64, float64, float64)
+}, scores [][]float64, m measure, pay func(float64) float64, x float64) (float64, float64) {
+	p := []float64{x, 1 - x}
+	switch m {
+	case mScores, mPay:
+		eff := make([]float64, 2)
+		s.scores(eff, p)
+		if m == mPay && pay != nil {
+			eff[0], eff[1] = pay(eff[0]), pay(eff[1])
+		}
+		return eff[0], eff[1]
+	case mGenerator:
+		v, _, _ := sc.Binary(x)
+		return v, 0
+	case mEmphasis:
+		_, _, v := sc.Binary(x)
+		return v, 0
+	case mGap:
+		return gapOnGrid(s, scores, p), 0
+	}
+	return 0, 0
 }
 
 // gridScores evaluates the scores of every report on the simplex grid of

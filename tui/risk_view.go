@@ -5,6 +5,7 @@ import (
 	"math"
 	"strings"
 
+	"scorewright"
 	"scorewright/contract/risk"
 	"scorewright/generator/design"
 )
@@ -149,15 +150,16 @@ func (v RiskView) resultText(r *RiskResult, width int) []string {
 		where = fmt.Sprintf("belief %s (toward %q)", reportText(lg.Belief, r.Labels), r.Labels[r.Toward[i]])
 	}
 	if len(r.Curve.Points) > 0 {
-		out = append(out, wrap(fmt.Sprintf("Largest distortion %.3g probability points, at %s: best report %s.", lg.Size, where, reportText(lg.Report, r.Labels)))...)
+		out = append(out, wrap(fmt.Sprintf("Largest distortion %s probability points, at %s: best report %s.", scorewright.PointsText(lg.Size), where, reportText(lg.Report, r.Labels)))...)
 	}
 	if c := r.Chosen; c != nil {
 		pick := "no menu"
 		if r.MenuPick != nil {
 			pick = "menu pick " + reportText(r.MenuPick, r.Labels)
 		}
-		out = append(out, wrap(fmt.Sprintf("Chosen belief %s: best report %s (truthful %s), %.3g points away; %s; expected pay %.4g (truthful %.4g).",
-			reportText(c.Belief, r.Labels), reportText(c.Report, r.Labels), reportText(c.Belief, r.Labels), c.Size, pick, c.ExpectedPay, c.TruthfulPay))...)
+		out = append(out, wrap(fmt.Sprintf("Chosen belief %s: best report %s (truthful %s), %s points away; %s; expected pay %s (truthful %s).",
+			reportText(c.Belief, r.Labels), reportText(c.Report, r.Labels), reportText(c.Belief, r.Labels), scorewright.PointsText(c.Size), pick,
+			scorewright.PayText(c.ExpectedPay), scorewright.PayText(c.TruthfulPay)))...)
 	} else if r.ChosenErr != nil {
 		out = append(out, wrap("Chosen belief: unsolved: "+r.ChosenErr.Error())...)
 	}

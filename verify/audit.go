@@ -120,7 +120,7 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 		m.rows[i] = -v
 	}
 	m.seal()
-	bs, err := stream(ctx, g, m, s.Workers, pr)
+	bs, err := pairStream(ctx, g, m, s, pr)
 	if err != nil {
 		return nil, err
 	}
@@ -148,7 +148,7 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	}
 	largestGap(rep, &prop, p, g, s.Tolerance)
 	auditVerdict(rep, prop, bounded, ties, p, s.Tolerance)
-	fits, err := identify(ctx, g, pays, cands, pr)
+	fits, err := identify(ctx, g, pays, cands, s.Workers, pr)
 	if err != nil {
 		return nil, err
 	}

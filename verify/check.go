@@ -118,7 +118,7 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	if proved {
 		bs, rep.Grid.Pairs, err = provedStream(ctx, g, m, s.Workers, pr)
 	} else {
-		bs, err = stream(ctx, g, m, s.Workers, pr)
+		bs, err = pairStream(ctx, g, m, s, pr)
 	}
 	if err != nil {
 		return nil, err

@@ -244,36 +244,36 @@ func (f *fitter) fitParam(ctx context.Context, c Candidate, pr *pool.Meter) (v f
 // identify fits pay = shift + scale × (-L) for every candidate (and its
 // parameter, for a family) by least squares over the grid reports and
 // outcomes where both are finite.
-func identify(ctx context.Context, g *simplex.Grid, pays *menu, cands []Candidate, pr *pool.Meter) ([]Identification, error) {
-	n, G := g.N, g.Len()
-	f := newFitter(g, pays)
+//
+// The candidates are fitted on w goroutines, each with its own fitter;
+// the fits come back in the candidates' order whatever the schedule.
+func identify(ctx context.Context, g *simplex.Grid, pays *menu, cands []Candidate, w int, pr *pool.Meter) ([]Identification, error) {
+	n := g.N
+	w = pool.Workers(w)
+	fitters := make([]*fitter, w)
+	for i := range fitters {
+		fitters[i] = newFitter(g, pays)
+	}
+	slots := make([]*Identification, len(cands))
+	errs := make([]error, len(cands))
+	err := pool.Run(ctx, w, len(cands), 1, func(wk, lo, hi int) {
+		for i := lo; i < hi; i++ {
+			if c := cands[i]; c.Rule != nil && c.Rule.Outcomes() == n {
+				slots[i], errs[i] = fitters[wk].candidate(ctx, c, pr)
+			}
+		}
+	})
+	if err != nil {
+		return nil, err
+	}
 	var fits []Identification
-	for _, c := range cands {
-		if err := ctx.Err(); err != nil {
-			return nil, err
+	for i, id := range slots {
+		if errs[i] != nil {
+			return nil, errs[i]
 		}
-		if c.Rule == nil || c.Rule.Outcomes() != n {
-			continue
+		if id != nil {
+			fits = append(fits, *id)
 		}
-		id := Identification{Preset: c.Name}
-		r := c.Rule
-		if c.At != nil && c.Lo < c.Hi {
-			v, status, err := f.fitParam(ctx, c, pr)
-			if err != nil {
-				return nil, err
-			}
-			id.Param, id.Value, id.Status = c.Param, v, status
-			if m, err := c.At(v); err == nil && m != nil && m.Outcomes() == n {
-				r = m
-			} else {
-				// Only when no member could be built: report the rule
-				// at its own value.
-				id.Value, id.Status = c.Value, status+"; no member could be built, so the rule at its default value was fitted"
-			}
-		}
-		l := f.fit(r, 1)
-		pr.Add(int64(G) * gradCost)
-		fits = append(fits, judge(id, l))
 	}
 	// Accepted fits keep the candidates' order (several rules coincide up
 	// to scale for n = 2, and the caller lists the plainest first); the
@@ -286,6 +286,32 @@ func identify(ctx context.Context, g *simplex.Grid, pays *menu, cands []Candidat
 		return fits[a].Residual < fits[b].Residual
 	})
 	return fits, nil
+}
+
+// candidate fits one candidate: its parameter first, for a family, then
+// the rule (or the member found) on every grid report.
+func (f *fitter) candidate(ctx context.Context, c Candidate, pr *pool.Meter) (*Identification, error) {
+	n, G := f.g.N, f.g.Len()
+	id := Identification{Preset: c.Name}
+	r := c.Rule
+	if c.At != nil && c.Lo < c.Hi {
+		v, status, err := f.fitParam(ctx, c, pr)
+		if err != nil {
+			return nil, err
+		}
+		id.Param, id.Value, id.Status = c.Param, v, status
+		if m, err := c.At(v); err == nil && m != nil && m.Outcomes() == n {
+			r = m
+		} else {
+			// Only when no member could be built: report the rule
+			// at its own value.
+			id.Value, id.Status = c.Value, status+"; no member could be built, so the rule at its default value was fitted"
+		}
+	}
+	l := f.fit(r, 1)
+	pr.Add(int64(G) * gradCost)
+	id = judge(id, l)
+	return &id, nil
 }
 
 // judge fills id from the fit l and notes why it is not accepted, if it

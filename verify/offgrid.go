@@ -36,6 +36,9 @@ func offGridReports(ctx context.Context, p *payout.Payout, g *simplex.Grid, bgs 
 	}
 	gained := make([]bool, G)
 	bestOf := newOffGridBest(reps, pays, n)
+	if s.everyPair {
+		bestOf = func(q []float64, _ float64) (float64, int) { return offGridScan(q, pays, n) }
+	}
 	err = pool.Run(ctx, s.Workers, G, 16, func(_, lo, hi int) {
 		for i := lo; i < hi; i++ {
 			bg := &bgs[i]

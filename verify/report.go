@@ -52,6 +52,10 @@ type Settings struct {
 	// maxPointsAsked records that MaxPoints came from the caller, not from
 	// the machine's memory, so that a sampled grid can say why.
 	maxPointsAsked bool
+	// everyPair makes the check and the audit visit every pair (the full
+	// stream, the plain off-grid scan) instead of pruning: the reference
+	// the tests hold the pruned runs to, report for report.
+	everyPair bool
 }
 
 // Defaults.

@@ -120,6 +120,14 @@ func stream(ctx context.Context, g *simplex.Grid, m *menu, w int, pr *pool.Meter
 	return streamPruned(ctx, g, m, w, pr, nil)
 }
 
+// pairStream is stream, or streamFull when s asks for every pair.
+func pairStream(ctx context.Context, g *simplex.Grid, m *menu, s Settings, pr *pool.Meter) ([]best, error) {
+	if s.everyPair {
+		return streamFull(ctx, g, m, s.Workers, pr)
+	}
+	return stream(ctx, g, m, s.Workers, pr)
+}
+
 // streamFull is the full pair stream: every grid belief against every grid
 // report, G² pairs. It is the reference the pruned stream is tested and
 // measured against.

@@ -97,7 +97,7 @@ func auditDesign(e *env, d *design.Design, vf *verifyFlags) error {
 	case err != nil:
 		return usagef("audit: %v", err)
 	case found.Point != nil:
-		return printPointReport(e, found.Point, vf.asJSON)
+		return printPointReport(e, found.Point, vf.asJSON, nil, false)
 	}
 	rep := found.Audit
 	cert, proved, err := certificate(ctx, e, r, vf.cert)

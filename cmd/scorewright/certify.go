@@ -118,10 +118,11 @@ func certificate(ctx context.Context, e *env, r *scorewright.Rule, c *certifyFla
 }
 
 // refuseCertifyOnInterval is the usage error for --certify on a point
-// forecast, which the certificate does not cover.
+// forecast's payout, which the certificate does not cover (a point
+// generator it does).
 func refuseCertifyOnInterval(r *scorewright.Rule, c *certifyFlags) error {
-	if c != nil && c.on && r.OnInterval() {
-		return usagef("--certify covers rules and payouts over outcomes; point forecasts on an interval are checked on the grid only")
+	if c != nil && c.on && r.OnInterval() && r.IsPayout() {
+		return usagef("--certify covers generators (over outcomes or on an interval), emphasis weights and payouts over outcomes; a point-forecast payout is checked on the grid only, since its honesty is over every distribution on the interval")
 	}
 	return nil
 }

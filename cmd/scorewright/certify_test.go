@@ -75,10 +75,31 @@ func TestAuditCertifyCatchesJackpot(t *testing.T) {
 	}
 }
 
-func TestCertifyRefusesPointMode(t *testing.T) {
-	code, _, errs := runCmd(t, "check", "--interval", "0,1", "--generator", "-x^2", "--certify")
-	if code != 2 || !strings.Contains(errs, "--certify") {
+// A point generator is certified on its interval: -x^4 is strictly
+// concave on [0, 1] (its curvature -12x² vanishes only at 0), so
+// strictly proper (issue 10; Savage 1971); x^3 is convex there, improper
+// (exit 1). A point-forecast payout is refused with the reason.
+func TestCertifyPointMode(t *testing.T) {
+	code, out, errs := runCmd(t, "check", "--interval", "0,1", "--generator", "-x^4", "--certify")
+	if code != 0 || !strings.Contains(out, "certificate (certified): strictly-proper") {
+		t.Errorf("exit %d: %s%s", code, out, errs)
+	}
+	code, out, _ = runCmd(t, "check", "--interval", "0,1", "--generator", "x^3", "--certify")
+	if code != 1 || !strings.Contains(out, "certificate (certified): improper") {
+		t.Errorf("exit %d: %s", code, out)
+	}
+	code, _, errs = runCmd(t, "audit", "--interval", "0,1", "--payout", "-(x - y)^2", "--certify")
+	if code != 2 || !strings.Contains(errs, "grid only") {
 		t.Errorf("exit %d: %s", code, errs)
+	}
+}
+
+// An emphasis weight is certified by its sign (Schervish 1989): the
+// step 0 below 0.3, 1 above, is proper but not strictly.
+func TestCertifyEmphasis(t *testing.T) {
+	code, out, errs := runCmd(t, "check", "--outcomes", "2", "--emphasis", "if(c < 0.3, 0, 1)", "--certify")
+	if code != 0 || !strings.Contains(out, "certificate (certified): proper") || !strings.Contains(out, "ties") {
+		t.Errorf("exit %d: %s%s", code, out, errs)
 	}
 }
 

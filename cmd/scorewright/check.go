@@ -71,7 +71,7 @@ func checkDesign(e *env, d *design.Design, vf *verifyFlags) error {
 	case err != nil:
 		return usagef("check: %v", err)
 	case found.Point != nil:
-		return printPointReport(e, found.Point, vf.asJSON)
+		return printPointReport(e, found.Point, vf.asJSON, cert, proved)
 	}
 	out := toReportJSON(found.Rule)
 	return v.finish(e, vf, &out, func() {

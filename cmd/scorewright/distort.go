@@ -9,6 +9,7 @@ import (
 	"math"
 	"text/tabwriter"
 
+	"scorewright"
 	"scorewright/contract/budget"
 	"scorewright/contract/risk"
 	"scorewright/generator/bregman"
@@ -205,17 +206,17 @@ func printDistort(e *env, u risk.Utility, wealth float64, pay string, q []float6
 		if pick != nil {
 			menu = "; menu pick " + num.Format(pick)
 		}
-		fmt.Fprintf(e.stdout, "belief %s: best report %s, %.3g probability points away%s\n", num.Format(best.Belief), num.Format(best.Report), best.Size, menu)
-		fmt.Fprintf(e.stdout, "expected pay %.6g against %.6g for the truthful report: what the forecaster gives up in expected pay for the risk they prefer\n", best.ExpectedPay, best.TruthfulPay)
+		fmt.Fprintf(e.stdout, "belief %s: best report %s, %s probability points away%s\n", num.Format(best.Belief), num.Format(best.Report), scorewright.PointsText(best.Size), menu)
+		fmt.Fprintf(e.stdout, "expected pay %s against %s for the truthful report: what the forecaster gives up in expected pay for the risk they prefer\n", scorewright.PayText(best.ExpectedPay), scorewright.PayText(best.TruthfulPay))
 	}
 	if len(curve.Points) > 0 {
-		fmt.Fprintf(e.stdout, "distortion curve over %d beliefs (%s): largest %.3g points, belief %s -> report %s\n", len(curve.Points), along, curve.Largest.Size, num.Format(curve.Largest.Belief), num.Format(curve.Largest.Report))
+		fmt.Fprintf(e.stdout, "distortion curve over %d beliefs (%s): largest %s points, belief %s -> report %s\n", len(curve.Points), along, scorewright.PointsText(curve.Largest.Size), num.Format(curve.Largest.Belief), num.Format(curve.Largest.Report))
 		tw := tabwriter.NewWriter(e.stdout, 0, 4, 2, ' ', 0)
 		fmt.Fprintln(tw, "  belief\treport\tpoints")
 		every := max(1, len(curve.Points)/12)
 		for i, p := range curve.Points {
 			if i%every == 0 || i == len(curve.Points)-1 {
-				fmt.Fprintf(tw, "  %s\t%s\t%.3g\n", num.Format(p.Belief), num.Format(p.Report), p.Size)
+				fmt.Fprintf(tw, "  %s\t%s\t%s\n", num.Format(p.Belief), num.Format(p.Report), scorewright.PointsText(p.Size))
 			}
 		}
 		if err := tw.Flush(); err != nil {

@@ -183,6 +183,8 @@ type pointCheckJSON struct {
 	Gap        *pointGapOut           `json:"gap,omitempty"`
 	Identified *pointcheck.Identified `json:"identified,omitempty"`
 	Notes      []string               `json:"notes,omitempty"`
+	// Certificate is what --certify proved about a point generator.
+	Certificate *certificateJSON `json:"certificate,omitempty"`
 }
 
 type pointCheckOut struct {
@@ -202,9 +204,12 @@ type pointGapOut struct {
 	Precision  string    `json:"precision,omitempty"`
 }
 
-func printPointReport(e *env, rep *pointcheck.Report, asJSON bool) error {
+// printPointReport prints a point check's report and, when --certify
+// ran, the certificate under it; errFailed when a check failed or the
+// certificate proved the rule improper.
+func printPointReport(e *env, rep *pointcheck.Report, asJSON bool, cert *certificateJSON, improper bool) error {
 	if asJSON {
-		out := pointCheckJSON{Verdict: rep.Verdict, Grid: rep.Grid, Identified: rep.Identified, Notes: rep.Notes}
+		out := pointCheckJSON{Verdict: rep.Verdict, Grid: rep.Grid, Identified: rep.Identified, Notes: rep.Notes, Certificate: cert}
 		for _, c := range rep.Checks {
 			out.Checks = append(out.Checks, pointCheckOut{c.Name, c.Passed, num.Float(c.Worst), c.At, c.What})
 		}
@@ -245,8 +250,9 @@ func printPointReport(e *env, rep *pointcheck.Report, asJSON bool) error {
 		for _, n := range rep.Notes {
 			fmt.Fprintln(e.stdout, "note:", n)
 		}
+		printCertificate(e.stdout, cert)
 	}
-	if rep.Failed() {
+	if rep.Failed() || improper {
 		return errFailed
 	}
 	return nil

@@ -194,3 +194,16 @@ func TestHostileCSVJSONSVG(t *testing.T) {
 		}
 	}
 }
+
+// A lone ampersand is plain text in CommonMark (spec, "Entity and numeric
+// character references"), so the Markdown file keeps it as written and a
+// reader of the raw file sees the label they typed; one that could start
+// an entity is escaped (the hostile title's "&amp;" above).
+func TestMarkdownKeepsLoneAmpersand(t *testing.T) {
+	tb := build(t, "1 - sum(p^2)", []string{"rain & hail", "dry"}, 0.25, design.Budget{Floor: 0, Cap: 100, Unit: 1})
+	tb.Meta.Title = "Hail & rain &copy;"
+	raw := string(render(t, tb, "md"))
+	if !strings.Contains(raw, "rain & hail") || !strings.Contains(raw, `Hail & rain \&copy;`) {
+		t.Errorf("Markdown:\n%s", raw)
+	}
+}

@@ -133,15 +133,48 @@ func (t *Table) writeMarkdown(w io.Writer) {
 	}
 }
 
-// mdEscaper keeps user text from becoming table syntax or markup: every
-// character CommonMark or its GFM tables give a meaning inline (emphasis,
-// code, links and images, strikethrough, headings, raw HTML and entities)
-// is backslash-escaped or written as an entity.
-var mdEscaper = strings.NewReplacer(`\`, `\\`, "|", `\|`, "*", `\*`, "_", `\_`, "`", "\\`", "<", "&lt;", ">", "&gt;",
-	"&", "&amp;", "[", `\[`, "]", `\]`, "!", `\!`, "~", `\~`, "#", `\#`)
+// mdEscapeByte keeps user text from becoming table syntax or markup:
+// every character CommonMark or its GFM tables give a meaning inline
+// (emphasis, code, links and images, strikethrough, headings, raw HTML)
+// is backslash-escaped or written as an entity. The ampersand is
+// mdEscape's own case.
+func mdEscapeByte(c byte) (string, bool) {
+	switch c {
+	case '<':
+		return "&lt;", true
+	case '>':
+		return "&gt;", true
+	case '\\', '|', '*', '_', '`', '[', ']', '!', '~', '#':
+		return `\` + string(c), true
+	}
+	return "", false
+}
 
-// mdEscape escapes s for Markdown text (see mdEscaper).
-func mdEscape(s string) string { return mdEscaper.Replace(s) }
+// mdEscape escapes s for Markdown text (see mdEscapeByte). An ampersand
+// followed by a letter, digit or # could begin an entity reference
+// ("&amp;"), so it is backslash-escaped; any other one ("A & B") is plain
+// text in CommonMark and is kept as written, so the file reads the same
+// as text and rendered.
+func mdEscape(s string) string {
+	var b strings.Builder
+	for i := 0; i < len(s); i++ {
+		c := s[i]
+		switch e, ok := mdEscapeByte(c); {
+		case ok:
+			b.WriteString(e)
+		case c == '&' && i+1 < len(s) && isEntityStart(s[i+1]):
+			b.WriteString(`\&`)
+		default:
+			b.WriteByte(c)
+		}
+	}
+	return b.String()
+}
+
+// isEntityStart reports whether c can follow the & of an entity reference.
+func isEntityStart(c byte) bool {
+	return c == '#' || c >= '0' && c <= '9' || c >= 'a' && c <= 'z' || c >= 'A' && c <= 'Z'
+}
 
 type jsonRow struct {
 	Report []num.Float `json:"report"`

@@ -83,6 +83,10 @@ func (m Mode) OnInterval() bool { t, _ := traits(m); return t.onInterval }
 // (more is better) rather than a rule's generator.
 func (m Mode) Payout() bool { t, _ := traits(m); return t.payout }
 
+// Outcomes is the number of outcomes the mode is for (2 for an emphasis
+// weight), or 0 when it takes any number a design may have.
+func (m Mode) Outcomes() int { t, _ := traits(m); return t.outcomes }
+
 // Budget is how a rule is turned into money. Zero values mean "not set".
 type Budget struct {
 	// Floor and Cap bound every payment over the report menu.

@@ -129,3 +129,17 @@ func TestEveryModeDescribed(t *testing.T) {
 		t.Fatalf("emphasis with 3 outcomes: %v", err)
 	}
 }
+
+// Only an emphasis weight asks for a number of outcomes (2, by its
+// definition in Schervish 1989: a weight on the probability of one event).
+func TestModeOutcomes(t *testing.T) {
+	for _, m := range Modes {
+		want := 0
+		if m == ModeEmphasis {
+			want = 2
+		}
+		if got := m.Outcomes(); got != want {
+			t.Errorf("mode %q asks for %d outcomes, want %d", m, got, want)
+		}
+	}
+}

@@ -105,6 +105,13 @@ func (p *Program) NewSimplexEncloser() *Encloser {
 	return e
 }
 
+// AtEdge declares that variable k (in the order of VarNames) stays >= 0
+// on the domain and reaches 0 only at the domain's end, as a point
+// forecast's x does on [0, hi]: a singular point of ln, sqrt or a power
+// at x = 0 is then a limit at the edge, not a kink inside, as it is for
+// a coordinate p_k at a face of the simplex.
+func (e *Encloser) AtEdge(k int) { e.faceOnly[k] = true }
+
 // Program returns the program the encloser runs.
 func (e *Encloser) Program() *Program { return e.prog }
 

@@ -36,8 +36,14 @@ func (e *Encloser) smoothLane(in *cell, l int32) {
 		e.val[i] = iv.Sub(a, b)
 		e.chain(i, ia, ib, one, iv.Point(-1), zero, zero, zero)
 	case opMul:
-		if x, k, m1, ok := e.timesPower(ia, ib); ok {
+		if x, k, m1, neg, ok := e.timesPower(ia, ib); ok {
 			e.xPower(i, x, k, m1)
+			e.negateIf(i, neg)
+			return
+		}
+		if x, neg, ok := e.timesLog(ia, ib); ok {
+			e.xlnx(i, x, e.val[x], false)
+			e.negateIf(i, neg)
 			return
 		}
 		if a.Contains(0) && !b.Bounded() || b.Contains(0) && !a.Bounded() {
@@ -219,6 +225,10 @@ func (e *Encloser) pow(i, ia, ib int32, a, b iv.Interval) {
 func (e *Encloser) powerForm(arg int32) (x int32, k float64, ok bool) {
 	code := e.prog.code
 	j := e.owner[arg]
+	if j >= 0 && code[j].op == opLn {
+		// exp(ln x): the power 1, once the constant has folded away.
+		return code[j].a + (arg-code[j].dst)*code[j].sa, 1, true
+	}
 	if j < 0 || code[j].op != opMul {
 		return 0, 0, false
 	}
@@ -238,12 +248,58 @@ func (e *Encloser) powerForm(arg int32) (x int32, k float64, ok bool) {
 	return ln.a + (other-ln.dst)*ln.sa, kv, true
 }
 
+// timesLog recognises x·ln(x) (either order, x perhaps negated, as -x
+// parses), enclosed as the fused x ln x, whose second derivative 1/x
+// keeps its sign where the product rule's 2/x - x/x² cannot show one.
+func (e *Encloser) timesLog(ia, ib int32) (x int32, neg, ok bool) {
+	for _, c := range [2][2]int32{{ia, ib}, {ib, ia}} {
+		if j := e.owner[c[1]]; j >= 0 {
+			in := e.prog.code[j]
+			x, neg := e.unNeg(c[0])
+			if in.op == opLn && in.a+(c[1]-in.dst)*in.sa == x {
+				return x, neg, true
+			}
+		}
+	}
+	return 0, false, false
+}
+
+// unNeg returns the cell c negates, or c itself.
+func (e *Encloser) unNeg(c int32) (int32, bool) {
+	if j := e.owner[c]; j >= 0 && e.prog.code[j].op == opNeg {
+		in := e.prog.code[j]
+		return in.a + (c-in.dst)*in.sa, true
+	}
+	return c, false
+}
+
+// negateIf makes cell i its own negative when neg.
+func (e *Encloser) negateIf(i int32, neg bool) {
+	if !neg {
+		return
+	}
+	e.val[i] = iv.Neg(e.val[i])
+	if e.order == 0 {
+		return
+	}
+	g := e.cellGrad(i)
+	for k := range g {
+		g[k] = iv.Neg(g[k])
+	}
+	if e.order >= 2 {
+		h := e.cellHess(i)
+		for k := range h {
+			h[k] = iv.Neg(h[k])
+		}
+	}
+}
+
 // timesPower recognises x·exp(k·ln x) and x·expm1(k·ln x) (either
-// order), the way the power rule writes p·(p^(g-1) - 1) to keep
-// precision: enclosed as x^(k+1) (minus x), its derivatives stay bounded
-// where x reaches 0 and they are finite, which the product of x and an
-// unbounded power cannot show (0·∞).
-func (e *Encloser) timesPower(ia, ib int32) (x int32, k float64, m1, ok bool) {
+// order, x perhaps negated), the way the power rule writes p·(p^(g-1) -
+// 1) to keep precision: enclosed as x^(k+1) (minus x), its derivatives
+// stay bounded where x reaches 0 and they are finite, which the product
+// of x and an unbounded power cannot show (0·∞).
+func (e *Encloser) timesPower(ia, ib int32) (x int32, k float64, m1, neg, ok bool) {
 	for _, c := range [2][2]int32{{ia, ib}, {ib, ia}} {
 		j := e.owner[c[1]]
 		if j < 0 {
@@ -254,11 +310,12 @@ func (e *Encloser) timesPower(ia, ib int32) (x int32, k float64, m1, ok bool) {
 			continue
 		}
 		arg := in.a + (c[1]-in.dst)*in.sa
-		if x, k, ok := e.powerForm(arg); ok && x == c[0] {
-			return x, k, in.op == opExpm1, true
+		base, neg := e.unNeg(c[0])
+		if x, k, ok := e.powerForm(arg); ok && x == base {
+			return x, k, in.op == opExpm1, neg, true
 		}
 	}
-	return 0, 0, false, false
+	return 0, 0, false, false, false
 }
 
 // xPower sets cell i to x^(k+1), less x when m1.

@@ -29,8 +29,13 @@
 //     E_q[pay(q)] is at most Epsilon, and proved dishonest by a pair whose
 //     lower bound exceeds it.
 //
+// On a line (line.go), an emphasis weight w on [0, 1] is certified by its
+// sign (Schervish 1989) and a point forecast's generator phi by the sign
+// of phi” (Savage 1971; Gneiting 2011). A point-forecast payout has no
+// certificate: its honesty is over every distribution on the interval.
+//
 // Every result says its kind (certified), what share of the simplex (by
-// volume) it proved, and what it could not.
+// volume, or of the interval by length) it proved, and what it could not.
 package certify
 
 import (
@@ -133,8 +138,11 @@ type Result struct {
 	// Outcomes is n.
 	Outcomes int
 	// Method, when set, names the argument that proved the verdict where
-	// it is not the box-by-box one.
+	// it is not the box-by-box one, or (Line) what was not proved.
 	Method string
+	// Line: a certificate on an interval (an emphasis weight, a point
+	// forecast), where Share is of the interval's length.
+	Line bool
 }
 
 // Statement is the one-paragraph account of what was proved. A finished
@@ -142,6 +150,9 @@ type Result struct {
 // records it is reproducible.
 func (r *Result) Statement() string {
 	pct := func(x float64) string { return fmt.Sprintf("%.6g%%", 100*x) }
+	if r.Line {
+		return r.lineStatement(pct)
+	}
 	switch {
 	case r.Witness != nil:
 		return fmt.Sprintf("certified improper: %s", r.Witness.Reason)
@@ -161,8 +172,26 @@ func (r *Result) Statement() string {
 	if r.Epsilon > 0 {
 		what = fmt.Sprintf("honest to within %.3g", r.Epsilon)
 	}
-	return fmt.Sprintf("not certified: %s of the simplex proved %s, %d boxes left undecided (%s after %d boxes, %s)",
-		pct(r.Share), what, r.Open, r.Stopped, r.Boxes, r.Elapsed.Round(time.Millisecond))
+	where := ""
+	if r.Method != "" {
+		where = "; " + r.Method
+	}
+	return fmt.Sprintf("not certified: %s of the simplex proved %s, %d boxes left undecided (%s after %d boxes, %s)%s",
+		pct(r.Share), what, r.Open, r.Stopped, r.Boxes, r.Elapsed.Round(time.Millisecond), where)
+}
+
+// lineStatement is Statement for a certificate on an interval.
+func (r *Result) lineStatement(pct func(float64) string) string {
+	switch {
+	case r.Witness != nil:
+		return "certified improper: " + r.Witness.Reason
+	case r.Verdict == verify.StrictlyProper:
+		return fmt.Sprintf("certified strictly proper over the whole interval (%d pieces)", r.Boxes)
+	case r.Verdict == verify.Proper:
+		return fmt.Sprintf("certified proper over the whole interval; %s (%d pieces)", r.Method, r.Boxes)
+	}
+	return fmt.Sprintf("not certified: %s of the interval decided; %s (%s after %d pieces, %s)",
+		pct(r.Share), r.Method, r.Stopped, r.Boxes, r.Elapsed.Round(time.Millisecond))
 }
 
 // box is an axis-parallel box in the first n-1 probabilities.

@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"strings"
 	"time"
 
 	"scorewright/generator/bregman"
@@ -36,6 +37,8 @@ type genRun struct {
 	res      *Result
 	minW     float64
 	witness  *Witness
+	// stuck holds the boxes left undecided at the smallest width.
+	stuck []box
 }
 
 // Generator proves concavity of the program prog, a generator over n
@@ -105,7 +108,7 @@ func Generator(ctx context.Context, prog *formula.Program, n int, s Settings) (*
 				continue
 			}
 			if w, _ := b.width(); w < g.minW {
-				res.Open++
+				g.stuck = append(g.stuck, b)
 				res.Stopped = "smallest box reached"
 				continue
 			}
@@ -113,11 +116,46 @@ func Generator(ctx context.Context, prog *formula.Program, n int, s Settings) (*
 			open = append(open, l, r)
 		}
 	}
-	res.Open += len(open)
+	res.Open = len(g.stuck) + len(open)
 	res.Elapsed = time.Since(start)
 	conclude(res, len(notStrict))
+	if res.Verdict == Undecided {
+		res.Method = g.region(append(g.stuck, open...))
+	}
 	tk.tick(res.Share, res.Boxes, true)
 	return res, nil
+}
+
+// region says where the undecided boxes lie: next to the faces, where a
+// curvature that tends to 0 (the pseudospherical rule's, along e_k - p)
+// leaves every interval Hessian bound touching 0, or else the hull of
+// the boxes.
+func (g *genRun) region(boxes []box) string {
+	near := 0.0
+	lo, hi := make([]float64, g.n), make([]float64, g.n)
+	for k := range lo {
+		lo[k], hi[k] = 1, 0
+	}
+	for _, b := range boxes {
+		if !b.tighten() {
+			continue
+		}
+		pb := g.pBox(b)
+		d := 1.0
+		for k, v := range pb {
+			d = math.Min(d, v.Hi)
+			lo[k], hi[k] = math.Min(lo[k], v.Lo), math.Max(hi[k], v.Hi)
+		}
+		near = math.Max(near, d)
+	}
+	if near <= 0.25 {
+		return fmt.Sprintf("the undecided boxes lie next to the faces, some p_k <= %.3g at each of their points: there the interval curvature bound cannot be decided (the curvature tends to 0 at a face, or is unbounded)", near)
+	}
+	var parts []string
+	for k := range lo {
+		parts = append(parts, fmt.Sprintf("p%d in [%.6g, %.6g]", k+1, lo[k], hi[k]))
+	}
+	return "the undecided boxes lie within " + strings.Join(parts, ", ")
 }
 
 // conclude sets the verdict of a finished or stopped generator run:

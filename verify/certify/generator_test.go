@@ -3,6 +3,7 @@ package certify
 import (
 	"context"
 	"math"
+	"strings"
 	"testing"
 	"time"
 
@@ -62,6 +63,11 @@ func TestPresetsCertified(t *testing.T) {
 			case res.Verdict == verify.Improper:
 				t.Errorf("%s n=%d called improper: %s", p.Name, n, res.Statement())
 			case p.Name == "pseudospherical":
+				// Undecided only next to the faces (at n = 2 it finishes:
+				// the boxes left are within 1e-6 of the ends), and it says so.
+				if n == 2 && !strings.Contains(res.Statement(), "next to the faces") {
+					t.Errorf("%s n=%d: %s", p.Name, n, res.Statement())
+				}
 			case strict[p.Name] && res.Verdict != verify.StrictlyProper:
 				t.Errorf("%s n=%d: %s", p.Name, n, res.Statement())
 			case res.Verdict != verify.Proper && res.Verdict != verify.StrictlyProper:

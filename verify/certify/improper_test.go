@@ -220,3 +220,59 @@ func TestTiltedPayoutTolerance(t *testing.T) {
 		}
 	}
 }
+
+// A hole instead of a jackpot: reports near p1 = 0.3141 lose up to 5,
+// so a forecaster who believes p1 = 0.3141 gains almost 5 by reporting
+// outside it (derived by hand: the quadratic penalty for a move of 0.05
+// is 5·2·0.0025 = 0.025). The honest expected pay dips there, so it is
+// not convex, and the one-pass argument over reports must not be used
+// for any report — not even those far from the hole, which are the ones
+// that gain: the certificate must find the dishonesty, with a witness
+// whose gain the closed form confirms. Both a sharp hole (an if) and a
+// smooth one (a Gaussian dip, which no kink flags).
+func TestHolePayoutImproper(t *testing.T) {
+	for _, c := range []struct {
+		src  string
+		hole func(p1 float64) float64
+	}{
+		{"10 - 5*sum((p - hit)^2) - if(abs(p1 - 0.3141) < 1e-3, 5, 0)", func(p1 float64) float64 {
+			if math.Abs(p1-0.3141) < 1e-3 {
+				return 5
+			}
+			return 0
+		}},
+		{"10 - 5*sum((p - hit)^2) - 5*exp(-(p1 - 0.3141)^2/1e-4)", func(p1 float64) float64 {
+			return 5 * math.Exp(-(p1-0.3141)*(p1-0.3141)/1e-4)
+		}},
+	} {
+		holePayoutImproper(t, c.src, c.hole)
+	}
+}
+
+func holePayoutImproper(t *testing.T, src string, dip func(float64) float64) {
+	t.Helper()
+	hole := func(r []float64, y int) float64 {
+		s := 10.0
+		for i, v := range r {
+			if i == y {
+				v--
+			}
+			s -= 5 * v * v
+		}
+		return s - dip(r[0])
+	}
+	for n := 2; n <= 3; n++ {
+		res := certifyPayout(t, src, n, Settings{Deadline: time.Minute})
+		if res.Verdict != verify.Improper || res.Witness == nil {
+			t.Fatalf("%s n=%d: %s", src, n, res.Statement())
+		}
+		w := res.Witness
+		var gain float64
+		for y, q := range w.Belief {
+			gain += q * (hole(w.Report, y) - hole(w.Belief, y))
+		}
+		if !(gain >= w.Gain*(1-1e-9)) {
+			t.Errorf("n=%d: witness gain %g claimed, closed form %g", n, w.Gain, gain)
+		}
+	}
+}

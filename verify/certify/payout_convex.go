@@ -24,7 +24,9 @@ import (
 // whose maximum is |t|²/(2c) (or √2|t| - c when |t|/c > √2). So one pass
 // over report boxes, bounding G's curvature from below and |t| from
 // above, proves the payout honest to within Epsilon for every belief at
-// once — boxes in n-1 dimensions instead of pairs in 2(n-1). |t| is
+// once — boxes in n-1 dimensions instead of pairs in 2(n-1). The bound
+// needs G convex along every segment, so it is used only once G is
+// proved convex on the whole simplex; else every box goes to the pairs. |t| is
 // bounded by the mean-value form t(c) + J_t(R)(R - c) around a point c of
 // the box, which for an honest payout (t ≡ 0) shrinks with the square of
 // the box side. Report boxes this does not decide (a kink, a jump, an
@@ -271,6 +273,13 @@ func (c *convexRun) run(ctx context.Context, s Settings, eps float64, tk *ticker
 			l, r := b.split()
 			queue = append(queue, l, r)
 		}
+	}
+	if len(left) > 0 {
+		// G is not proved convex everywhere, and a segment from a report
+		// to a belief may cross where it is not: the bound below needs
+		// convexity along the whole segment, so every box goes to the
+		// pair search.
+		return share, append(left, boxesOf(store)...), boxes, ""
 	}
 	// Phase B: |t| small enough on every box for the curvature found.
 	for len(store) > 0 {

@@ -1,0 +1,103 @@
+package tui
+
+import (
+	"strings"
+	"testing"
+
+	"github.com/charmbracelet/x/ansi"
+	"github.com/charmbracelet/x/exp/golden"
+)
+
+// checksText is the checks pane's body as plain text.
+func checksText(m *Model) string { return ansi.Strip(m.checks.View()) }
+
+// At 80×24 the checks do not all fit; each one is reachable with ↓, and
+// enter shows its full text, every line of which can be scrolled into
+// view; ←/→ reach the verdict and notes entry too.
+func TestChecksPaneReachesEveryCheck(t *testing.T) {
+	m := testModel(t, nil, Settings{})
+	start(t, m, 80, 24)
+	press(t, m, keyTab, keyTab)
+	r := m.CheckReport()
+	if r == nil || len(r.Rows) < 4 {
+		t.Fatalf("report %+v", r)
+	}
+	if v := checksText(m); !strings.Contains(v, "more (↑/↓, enter: full text)") {
+		t.Fatalf("a cut list does not say so:\n%s", v)
+	}
+	for i, c := range r.Rows {
+		if v := checksText(m); !strings.Contains(v, "›✓ "+c.Name) && !strings.Contains(v, "›✗ "+c.Name) {
+			t.Errorf("check %d (%s) selected but not shown:\n%s", i, c.Name, v)
+		}
+		press(t, m, keyEnter)
+		seen := map[string]bool{}
+		for range 40 { // scroll through the whole text
+			for _, l := range strings.Split(checksText(m), "\n") {
+				seen[strings.Trim(l, "│┃╎ ")] = true
+			}
+			press(t, m, keyDown)
+		}
+		for _, l := range m.checks.detailLines() {
+			if !seen[strings.TrimSpace(l)] {
+				t.Errorf("check %s: line %q of its full text never shows", c.Name, l)
+			}
+		}
+		if !strings.Contains(strings.Join(m.checks.detailText(), "\n"), c.Note) {
+			t.Errorf("check %s: full text lacks its note %q", c.Name, c.Note)
+		}
+		press(t, m, keyEsc, keyDown)
+	}
+	// The last entry is the verdict and notes, with the certificate's
+	// whole statement.
+	press(t, m, keyEnter)
+	if txt := strings.Join(m.checks.detailText(), " "); !strings.Contains(txt, r.Certificate.Statement) || !strings.Contains(txt, "grid evidence") {
+		t.Errorf("verdict entry: %q", txt)
+	}
+	press(t, m, keyRight)
+	if m.checks.sel != 0 || !strings.Contains(checksText(m), "Check 1 of") {
+		t.Errorf("→ from the last entry: sel %d\n%s", m.checks.sel, checksText(m))
+	}
+}
+
+// The picture keeps a readable height at 80×24 whichever pane has the
+// focus, and the screen still fits.
+func TestPictureHeightAt80x24(t *testing.T) {
+	m := testModel(t, nil, Settings{})
+	start(t, m, 80, 24)
+	for p := range int(paneCount) {
+		m.setFocus(pane(p))
+		m.layout()
+		if h := m.picture.h; h < 11 {
+			t.Errorf("focus %d: picture %d rows high", p, h)
+		}
+		if lines := strings.Split(m.View(), "\n"); len(lines) != 24 {
+			t.Errorf("focus %d: %d lines", p, len(lines))
+		}
+	}
+}
+
+// The full text of a check, at both sizes.
+func TestGoldenChecksDetail80x24(t *testing.T) { goldenChecksDetail(t, 80, 24) }
+
+func TestGoldenChecksDetail120x40(t *testing.T) { goldenChecksDetail(t, 120, 40) }
+
+func goldenChecksDetail(t *testing.T, w, h int) {
+	m := testModel(t, nil, Settings{})
+	start(t, m, w, h)
+	m.setFocus(paneChecks)
+	m.layout()
+	press(t, m, keyDown, keyDown, keyDown, keyEnter)
+	golden.RequireEqual(t, []byte(m.View()))
+}
+
+// The help lists the keys this pane and the budget pane added.
+func TestHelpNamesNewKeys(t *testing.T) {
+	m := testModel(t, nil, Settings{})
+	txt := ansi.Strip(helpText(m.st, m.keys, 70))
+	for _, want := range []string{"find a unit or cap the re-check passes with", "take proposal 1", "take proposal 2",
+		"its full text", "the other checks", "TIE or BEATEN"} {
+		if !strings.Contains(txt, want) {
+			t.Errorf("help lacks %q", want)
+		}
+	}
+}
