@@ -25,7 +25,7 @@ func selectBudgetField(t *testing.T, m *Model, label string) {
 	t.Helper()
 	m.setFocus(paneBudget)
 	m.layout()
-	for i, f := range budgetFields() {
+	for i, f := range fieldsFor(m.d) {
 		if f.label == label {
 			m.budget.sel = i
 			return
@@ -162,10 +162,15 @@ func TestBudgetFieldsRefuse(t *testing.T) {
 		Budget: design.Budget{Floor: 0, Cap: 20, Step: 10}}
 	pm := testModel(t, pd, Settings{})
 	start(t, pm, 80, 24)
-	selectBudgetField(t, pm, "Clamp")
-	press(t, pm, keyRight)
-	if pm.Design().Budget.Clamp != 0 || !strings.Contains(pm.budget.note, "point-forecast") {
-		t.Errorf("point design took a clamp; note %q", pm.budget.note)
+	for _, f := range fieldsFor(pm.d) {
+		if f.label == "Clamp" || f.label == "Mean" || f.label == "Menu" {
+			t.Errorf("a point design lists %s", f.label)
+		}
+	}
+	pm.setFocus(paneBudget)
+	pm.layout()
+	if v := pm.View(); strings.Contains(v, "Clamp") || !strings.Contains(v, "Step") {
+		t.Errorf("point budget pane:\n%s", v)
 	}
 }
 
