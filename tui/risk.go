@@ -189,26 +189,19 @@ func NewRiskView(st Styles, keys KeyMap, d *design.Design) RiskView {
 // Key takes the view's own keys: ↑/↓ choose an input, ←/→ step it (shift:
 // a tenth). changed says the inputs changed, so a run is due.
 func (v *RiskView) Key(km tea.KeyMsg, d *design.Design) (handled, changed bool) {
-	k := v.keys
+	moved, step, up, fine := fieldKey(v.keys, km, &v.sel, riskFieldCount)
 	switch {
-	case key.Matches(km, k.Up):
-		v.sel = (v.sel + riskFieldCount - 1) % riskFieldCount
+	case moved:
 		return true, false
-	case key.Matches(km, k.Down):
-		v.sel = (v.sel + 1) % riskFieldCount
+	case !step:
+		return false, false
+	case !riskStep(&v.in, v.sel, d, up, fine, v.coefs):
 		return true, false
-	case key.Matches(km, k.Less), key.Matches(km, k.More), key.Matches(km, k.LessFine), key.Matches(km, k.MoreFine):
-		up := key.Matches(km, k.More) || key.Matches(km, k.MoreFine)
-		fine := key.Matches(km, k.LessFine) || key.Matches(km, k.MoreFine)
-		if !riskStep(&v.in, v.sel, d, up, fine, v.coefs) {
-			return true, false
-		}
-		if v.sel == riskWealth {
-			v.wealthSet = true
-		}
-		return true, true
 	}
-	return false, false
+	if v.sel == riskWealth {
+		v.wealthSet = true
+	}
+	return true, true
 }
 
 // designChanged keeps the inputs fitting an edited design: the wealth
