@@ -212,6 +212,7 @@ func sharpenGap(gap *Gap, n int, cell float64, gain func(q, r []float64) float64
 		ps.cell *= 2
 	}
 	if moved {
+		best, q, r = snapWitness(best, q, r, gain)
 		gap.GridMax, gap.Max, gap.Belief, gap.BestReport, gap.Sharpened = gap.Max, best, q, r, true
 	}
 	switch {
@@ -222,6 +223,50 @@ func sharpenGap(gap *Gap, n int, cell float64, gain func(q, r []float64) float64
 	default:
 		gap.Precision = fmt.Sprintf("sharpening stopped after %s still improving the gap: fewer than 9 significant digits are settled", searches(runs))
 	}
+}
+
+// snapLimit is the size below which a coordinate of a sharpened witness
+// is tried as exactly 0. The search works through the squares map, so a
+// maximum on a face is approached as x^2 with x ~ 1e-10 and reads as
+// 2.75e-19, noise that a witness must not print.
+const snapLimit = 1e-9
+
+// snapWitness sets the coordinates of q and r below snapLimit to 0 (and
+// renormalises) and keeps the snapped pair when its gain is no smaller
+// than best beyond rounding; the gain returned is the snapped pair's own,
+// so that the witness and its amount always agree.
+func snapWitness(best float64, q, r []float64, gain func(q, r []float64) float64) (float64, []float64, []float64) {
+	sq, okq := snapped(q)
+	sr, okr := snapped(r)
+	if !okq && !okr {
+		return best, q, r
+	}
+	v := gain(sq, sr)
+	if v >= best-1e-13*math.Abs(best) {
+		return v, sq, sr
+	}
+	return best, q, r
+}
+
+// snapped returns x with coordinates below snapLimit set to 0 and the rest
+// rescaled to sum 1, and whether anything changed.
+func snapped(x []float64) ([]float64, bool) {
+	out := clone(x)
+	var sum float64
+	changed := false
+	for k, v := range out {
+		if v != 0 && v < snapLimit {
+			out[k], changed = 0, true
+		}
+		sum += out[k]
+	}
+	if !changed || sum <= 0 {
+		return x, false
+	}
+	for k := range out {
+		out[k] /= sum
+	}
+	return out, true
 }
 
 // onEdge reports whether x touches the edge of the box of half-width cell
