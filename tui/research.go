@@ -312,24 +312,18 @@ func (r *ResearchRoom) Key(ctx context.Context, km tea.KeyMsg, d *design.Design,
 	case key.Matches(km, k.Leave), key.Matches(km, k.Research):
 		r.shown = false
 		return true, nil
-	case key.Matches(km, k.Up):
-		r.sel = (r.sel + researchFieldCount - 1) % researchFieldCount
-		return true, nil
-	case key.Matches(km, k.Down):
-		r.sel = (r.sel + 1) % researchFieldCount
-		return true, nil
-	case key.Matches(km, k.Less), key.Matches(km, k.More), key.Matches(km, k.LessFine), key.Matches(km, k.MoreFine):
-		up := key.Matches(km, k.More) || key.Matches(km, k.MoreFine)
-		fine := key.Matches(km, k.LessFine) || key.Matches(km, k.MoreFine)
-		if researchStep(&r.in, r.sel, d, up, fine) {
-			return true, r.Maybe(ctx, d, gen, ready)
-		}
-		return true, nil
 	case key.Matches(km, k.NextPane), key.Matches(km, k.PrevPane):
 		r.shown = false
 		return false, nil
 	}
-	return false, nil
+	moved, step, up, fine := fieldKey(k, km, &r.sel, researchFieldCount)
+	switch {
+	case moved:
+		return true, nil
+	case step && researchStep(&r.in, r.sel, d, up, fine):
+		return true, r.Maybe(ctx, d, gen, ready)
+	}
+	return step, nil
 }
 
 // researchStep moves one input a step; false when it is at its end or has
