@@ -288,3 +288,19 @@ func TestAllReliabilityCurves(t *testing.T) {
 		tl.Close()
 	}
 }
+
+// A Result whose temporary file was closed says so instead of failing
+// somewhere deeper.
+func TestClosedResult(t *testing.T) {
+	q := rule(t, "1 - sum(p^2)", 3, false)
+	tl, err := NewTally([]Scheme{{Name: "q", Rule: q, Pay: Affine{A: 1, B: 1}}}, TallyOptions{MaxPairs: 4, MaxMoney: 2, SpillDir: t.TempDir()})
+	if err != nil {
+		t.Fatal(err)
+	}
+	spillHistory(tl, 200)
+	res := result(t, tl)
+	res.Close()
+	if err := res.EachForecaster(func(*Forecaster) error { return nil }); err == nil || !strings.Contains(err.Error(), "closed") {
+		t.Errorf("EachForecaster after Close: %v, want an error saying the result was closed", err)
+	}
+}
