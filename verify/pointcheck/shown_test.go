@@ -13,7 +13,7 @@ import (
 // worst of those three checks is 0, and what the grid finds beyond 0 is
 // the rounding of terms that cancel. It must read 0, not the -5.6e-17 or
 // 4.4e-16 that read as a report beating the mean. Concavity's worst is
-// phi''(10) = -1/(4 * 10^1.5) = -0.0079057 (derived by hand) and stays.
+// phi”(10) = -1/(4 * 10^1.5) = -0.0079057 (derived by hand) and stays.
 func TestShownWorstIsZeroWithinSlack(t *testing.T) {
 	r, err := CheckGenerator(context.Background(), gen(t, "sqrt(x)", 0, 10), verify.Settings{})
 	if err != nil {
