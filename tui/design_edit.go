@@ -239,7 +239,7 @@ func foldParams(d *design.Design) []string {
 // formula, so the changed text is not a surprise.
 func (p *DesignPane) foldedNote(names []string) {
 	if len(names) > 0 {
-		p.note = "the file's values for " + strings.Join(names, ", ") + " are written into the formula's lines"
+		p.note = "now in the formula's lines: " + strings.Join(names, ", ")
 	}
 }
 
