@@ -10,6 +10,7 @@ import (
 	"scorewright/contract/lottery"
 	"scorewright/contract/table"
 	"scorewright/generator/bregman"
+	"scorewright/generator/design"
 )
 
 // Errors of Table that callers word in their own terms (flags on the
@@ -102,11 +103,26 @@ func (r *Rule) menu(menu MenuFunc) (*bregman.Rule, *budget.Menu, error) {
 
 // Propose searches for budgets the menu re-check passes with, one field
 // of the design's budget changed (budget.Propose: the coarsest currency
-// unit, and for a failing table the smallest cap or mean pay). Point
-// designs have no proposal.
+// unit, and for a failing table the smallest cap or mean pay); for a
+// point-forecast table the same search over its own re-check.
 func (r *Rule) Propose(ctx context.Context, progress func(done, total int64)) ([]budget.Proposal, error) {
 	if r.point != nil {
-		return nil, errors.New("proposals are for tables over outcomes; a point-forecast table keeps its floor, cap and unit as set")
+		b := r.d.Budget
+		if err := pointBudget(b); err != nil {
+			return nil, err
+		}
+		passes := func(ctx context.Context, c design.Budget) (float64, bool, error) {
+			t, err := r.pointFit(ctx, c)
+			if err != nil {
+				return 0, false, err
+			}
+			rc, err := t.Recheck(ctx)
+			if err != nil {
+				return 0, false, err
+			}
+			return rc.MinMargin, rc.Passed, nil
+		}
+		return budget.Search(ctx, b, b.Cap, passes, progress)
 	}
 	rule, m, err := r.menu(nil)
 	if err != nil {
@@ -115,18 +131,32 @@ func (r *Rule) Propose(ctx context.Context, progress func(done, total int64)) ([
 	return budget.Propose(ctx, rule, m, r.d.Budget, progress)
 }
 
-func (r *Rule) pointTable(ctx context.Context) (*Table, error) {
-	b := r.d.Budget
+// pointBudget checks that b is a budget a point-forecast table is fitted
+// to: a floor and a cap above it.
+func pointBudget(b design.Budget) error {
 	switch {
 	case b.MeanPay != nil:
-		return nil, ErrMeanPayOnInterval
+		return ErrMeanPayOnInterval
 	case !(b.Cap > b.Floor):
-		return nil, ErrNoCap
+		return ErrNoCap
 	}
+	return nil
+}
+
+// pointFit is the point-forecast table of budget b.
+func (r *Rule) pointFit(ctx context.Context, b design.Budget) (*budget.PointTable, error) {
 	t, err := budget.FitPoint(ctx, r.point, budget.PointSpec{Floor: b.Floor, Cap: b.Cap, Step: b.Step, Unit: b.Unit, Rounding: b.Rounding})
 	if errors.Is(err, budget.ErrPointUnbounded) {
 		return nil, fmt.Errorf("%w; narrow the interval so the effort stays finite", err)
 	}
+	return t, err
+}
+
+func (r *Rule) pointTable(ctx context.Context) (*Table, error) {
+	if err := pointBudget(r.d.Budget); err != nil {
+		return nil, err
+	}
+	t, err := r.pointFit(ctx, r.d.Budget)
 	if err != nil {
 		return nil, err
 	}

@@ -83,12 +83,30 @@ func notOnInterval(d *design.Design) string {
 	return ""
 }
 
+// fieldsFor lists the fields that apply to d: a point-forecast table has
+// no mean pay, menu file, report floor, clamp or weights, so those rows go.
+func fieldsFor(d *design.Design) []budgetField {
+	var out []budgetField
+	for _, f := range budgetFields() {
+		if f.off == nil || f.off(d) != notOnInterval(d) || !d.Mode.OnInterval() {
+			out = append(out, f)
+		}
+	}
+	return out
+}
+
 // budgetFields lists the pane's fields, fresh on each call.
 func budgetFields() []budgetField {
 	floor := numberField("Floor", "smallest payment", func(d *design.Design) *float64 { return &d.Budget.Floor }, 1, nil)
 	capf := numberField("Cap", "largest payment", func(d *design.Design) *float64 { return &d.Budget.Cap }, 1, nil)
 	step := numberField("Step", "report menu step", func(d *design.Design) *float64 { return &d.Budget.Step }, 0, probSteps)
 	step.step = stepMenuStep
+	step.show = func(d *design.Design) string {
+		if d.Mode.OnInterval() && d.Budget.Step == 0 {
+			return "auto" // the table's default: a twentieth of the interval
+		}
+		return fmtNum(d.Budget.Step)
+	}
 	step.parse = func(d *design.Design, s string) error {
 		v, err := parseNum(s)
 		d.Budget.Step = v

@@ -56,7 +56,7 @@ func NewBudgetPane(st Styles, keys KeyMap, available bool) BudgetPane {
 func (p *BudgetPane) SetSize(w, h int) {
 	p.w, p.h = w, h
 	p.vp.Width = max(4, w-2)
-	p.vp.Height = max(1, h-2-p.fieldRows()-1)
+	p.vp.Height = max(1, h-2-p.fieldRows(len(budgetFields()))-1)
 	p.bar.Width = max(10, w-20)
 	p.vp.SetContent(p.tableText())
 	p.ti.Width = max(6, w-20)
@@ -102,7 +102,8 @@ func (p BudgetPane) Update(msg tea.Msg, d *design.Design) (BudgetPane, tea.Cmd, 
 		return p, nil, false
 	}
 	k := p.keys
-	fields := budgetFields()
+	fields := fieldsFor(d)
+	p.sel = min(p.sel, len(fields)-1)
 	f := fields[p.sel]
 	if p.typing {
 		switch {
@@ -284,13 +285,13 @@ func (p BudgetPane) tableText() string {
 
 // fieldRows is how many field lines the pane shows: the rest of its
 // height goes to the verdict and the table.
-func (p BudgetPane) fieldRows() int {
-	return min(len(budgetFields()), max(3, (p.h-4)/2))
+func (p BudgetPane) fieldRows(n int) int {
+	return min(n, max(3, (p.h-4)/2))
 }
 
 // fieldWindow is the first field shown, so that the selected one is.
-func (p BudgetPane) fieldWindow() int {
-	n, rows := len(budgetFields()), p.fieldRows()
+func (p BudgetPane) fieldWindow(n int) int {
+	rows := p.fieldRows(n)
 	return min(max(0, p.sel-rows/2), n-rows)
 }
 
@@ -321,9 +322,10 @@ func (p BudgetPane) fieldLine(i int, f budgetField, d *design.Design) string {
 func (p BudgetPane) View(d *design.Design) string {
 	st := p.st
 	var lines []string
-	fields := budgetFields()
-	first := p.fieldWindow()
-	for i := first; i < first+p.fieldRows(); i++ {
+	fields := fieldsFor(d)
+	p.sel = min(p.sel, len(fields)-1)
+	first := p.fieldWindow(len(fields))
+	for i := first; i < first+p.fieldRows(len(fields)); i++ {
 		lines = append(lines, p.fieldLine(i, fields[i], d))
 	}
 	iw := max(10, p.w-2)

@@ -15,6 +15,7 @@ import (
 	"github.com/charmbracelet/x/exp/golden"
 	"github.com/charmbracelet/x/exp/teatest"
 
+	"scorewright/contract/budget"
 	"scorewright/generator/design"
 	"scorewright/internal/num"
 )
@@ -25,7 +26,7 @@ func selectBudgetField(t *testing.T, m *Model, label string) {
 	t.Helper()
 	m.setFocus(paneBudget)
 	m.layout()
-	for i, f := range budgetFields() {
+	for i, f := range fieldsFor(m.d) {
 		if f.label == label {
 			m.budget.sel = i
 			return
@@ -162,10 +163,15 @@ func TestBudgetFieldsRefuse(t *testing.T) {
 		Budget: design.Budget{Floor: 0, Cap: 20, Step: 10}}
 	pm := testModel(t, pd, Settings{})
 	start(t, pm, 80, 24)
-	selectBudgetField(t, pm, "Clamp")
-	press(t, pm, keyRight)
-	if pm.Design().Budget.Clamp != 0 || !strings.Contains(pm.budget.note, "point-forecast") {
-		t.Errorf("point design took a clamp; note %q", pm.budget.note)
+	for _, f := range fieldsFor(pm.d) {
+		if f.label == "Clamp" || f.label == "Mean" || f.label == "Menu" {
+			t.Errorf("a point design lists %s", f.label)
+		}
+	}
+	pm.setFocus(paneBudget)
+	pm.layout()
+	if v := pm.View(); strings.Contains(v, "Clamp") || !strings.Contains(v, "Step") {
+		t.Errorf("point budget pane:\n%s", v)
 	}
 }
 
@@ -427,4 +433,104 @@ func goldenPropose(t *testing.T, w, h int) {
 		t.Fatalf("%d proposals: %+v", n, m.budget.prop)
 	}
 	golden.RequireEqual(t, []byte(m.View()))
+}
+
+// Over three ordered outcomes (the harvest demo, ranked probability
+// rule) the proposed unit passes by brute force over the printed table,
+// and every coarser unit of the ladder fails by it.
+func TestProposeHarvestBruteForce(t *testing.T) {
+	d := DemoHarvest()
+	d.Budget.Unit = 5
+	checkCoarsestUnit(t, d, func(tv *TableView) bool {
+		for _, mg := range bruteRowMargins(t, tv) {
+			if mg <= 1e-9 {
+				return false
+			}
+		}
+		return true
+	})
+}
+
+// checkCoarsestUnit asks the budget pane of design d for proposals and
+// checks the first, a unit, with brute: the table passes at it, and at
+// every coarser unit of the ladder up to half the range it fails.
+func checkCoarsestUnit(t *testing.T, d *design.Design, brute func(tv *TableView) bool) {
+	t.Helper()
+	m := testModel(t, d, Settings{})
+	start(t, m, 120, 40)
+	selectBudgetField(t, m, "Unit")
+	settle(t, m, m.budgetKey(runes("f")))
+	props := m.budget.prop.props
+	if len(props) == 0 || props[0].Field != "unit" {
+		t.Fatalf("proposals %+v, err %v", props, m.budget.prop.err)
+	}
+	u := props[0].Budget.Unit
+	passes := func(unit float64) bool {
+		t.Helper()
+		m.d.Budget.Unit = unit
+		settle(t, m, m.edited())
+		return brute(m.budget.table)
+	}
+	if !passes(u) {
+		t.Errorf("proposed unit %g fails by brute force", u)
+	}
+	for _, c := range budget.ProposalUnits() {
+		if c > u && c <= (d.Budget.Cap-d.Budget.Floor)/2 && passes(c) {
+			t.Errorf("unit %g passes by brute force and is coarser than the proposed %g", c, u)
+		}
+	}
+}
+
+// pointPasses decides by brute force over a printed point-forecast table
+// whether every report is the strict best for every belief whose mean it
+// is, among point masses and mixtures of two outcome columns (the beliefs
+// the table's re-check tries): reports down, outcome values across.
+func pointPasses(t *testing.T, tv *TableView) bool {
+	t.Helper()
+	ys, err := num.ParseVector(strings.Join(tv.Header[1:], ","))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var xs []float64
+	var pays [][]float64
+	for _, r := range tv.Rows {
+		v, err := num.ParseVector(strings.Join(r, ","))
+		if err != nil {
+			t.Fatal(err)
+		}
+		xs, pays = append(xs, v[0]), append(pays, v[1:])
+	}
+	for i, x := range xs {
+		for a := range ys {
+			for b := a; b < len(ys); b++ {
+				if ys[a] > x || ys[b] < x || (a == b && ys[a] != x) {
+					continue
+				}
+				w := 1.0 // weight on column a, so the mean is x
+				if b != a {
+					w = (ys[b] - x) / (ys[b] - ys[a])
+				}
+				exp := func(row []float64) float64 { return w*row[a] + (1-w)*row[b] }
+				for j := range xs {
+					if j != i && exp(pays[j]) >= exp(pays[i])-1e-9 {
+						return false
+					}
+				}
+			}
+		}
+	}
+	return true
+}
+
+// A point-forecast table gets proposals too: the proposed unit passes by
+// brute force over the printed table and every coarser unit fails by it.
+func TestProposePointBruteForce(t *testing.T) {
+	d := &design.Design{Version: 1, Title: "milk yield", Mode: design.ModePoint, Formula: "-x^2", Interval: []float64{0, 40},
+		Budget: design.Budget{Floor: 0, Cap: 20, Step: 4, Unit: 5}}
+	checkCoarsestUnit(t, d, func(tv *TableView) bool {
+		if tv == nil || tv.Passed != pointPasses(t, tv) {
+			t.Fatalf("the re-check and the brute force disagree on %+v", tv)
+		}
+		return pointPasses(t, tv)
+	})
 }

@@ -130,7 +130,8 @@
 // marks the rows whose report ties with another (TIE) or is beaten (BEATEN) for its own belief, in a
 // first column so a narrow pane keeps it. The propose key (f, `tui/propose.go`) runs
 // `Rule.Propose` in the background (progress, cancelled by any edit): the coarsest currency unit
-// the re-check passes with, and for a failing table the smallest cap; the digit keys take one.
+// the re-check passes with, and for a failing table the smallest cap (point-forecast tables too, on
+// their own re-check); the digit keys take one.
 //
 // Look (`tui/header.go`, `tui/chrome.go`, `NewStyles`): the header names the design (and its file,
 // or "not saved yet", and whether it is edited), the view shown, and the verdict with its kind —

@@ -5,6 +5,7 @@ import (
 
 	"github.com/charmbracelet/bubbles/key"
 	"github.com/charmbracelet/bubbles/textarea"
+	tea "github.com/charmbracelet/bubbletea"
 )
 
 // KeyMap is the workbench's own key map. Keys that print a character are
@@ -180,4 +181,21 @@ func calmEditing(after, before *key.Binding) {
 	after.SetHelp("alt+end", "cut to the end of the line")
 	before.SetKeys("alt+home")
 	before.SetHelp("alt+home", "cut to the start of the line")
+}
+
+// fieldKey reads the keys of a view whose inputs are a list of n fields:
+// ↑/↓ move the selection sel (moved), ←/→ ask for a step of the selected
+// field (step, with its direction up and fine for the shifted small step).
+func fieldKey[F ~int](k KeyMap, km tea.KeyMsg, sel *F, n F) (moved, step, up, fine bool) {
+	switch {
+	case key.Matches(km, k.Up):
+		*sel = (*sel + n - 1) % n
+		return true, false, false, false
+	case key.Matches(km, k.Down):
+		*sel = (*sel + 1) % n
+		return true, false, false, false
+	case key.Matches(km, k.Less), key.Matches(km, k.More), key.Matches(km, k.LessFine), key.Matches(km, k.MoreFine):
+		return false, true, key.Matches(km, k.More) || key.Matches(km, k.MoreFine), key.Matches(km, k.LessFine) || key.Matches(km, k.MoreFine)
+	}
+	return false, false, false, false
 }

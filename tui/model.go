@@ -8,7 +8,6 @@ import (
 	"github.com/charmbracelet/bubbles/viewport"
 	tea "github.com/charmbracelet/bubbletea"
 
-	"scorewright/contract/risk"
 	"scorewright/generator/design"
 	"scorewright/tui/recovery"
 )
@@ -85,12 +84,8 @@ type Model struct {
 	bt                                       BacktestView
 	showRisk                                 bool // the risk view replaces the panes
 	risk                                     RiskView
-	riskIn                                   RiskInputs
-	riskSet                                  bool                  // the user changed the wealth, so it no longer follows the budget
-	riskCoefs                                map[risk.Kind]float64 // each family's last coefficient
-	riskFor                                  RiskInputs            // inputs the latest risk run is for
-	research                                 *ResearchRoom         // the research view (tui/research.go) replaces the panes when shown
-	terms                                    *TermsRoom            // the annex's terms (tui/terms.go) replace the panes when shown
+	research                                 *ResearchRoom // the research view (tui/research.go) replaces the panes when shown
+	terms                                    *TermsRoom    // the annex's terms (tui/terms.go) replace the panes when shown
 	demoIndex                                int
 	savedGen                                 uint64       // generation last opened or saved
 	leaving                                  *leavePrompt // the unsaved-changes prompt, when open
@@ -146,9 +141,7 @@ func New(d *design.Design, path string, set Settings, st Styles) *Model {
 		budget:     NewBudgetPane(st, keys, set.Fitter != nil),
 		helpView:   viewport.New(40, 10),
 		bt:         NewBacktestView(st, keys),
-		risk:       NewRiskView(st, keys),
-		riskIn:     defaultRiskInputs(d),
-		riskCoefs:  map[risk.Kind]float64{},
+		risk:       NewRiskView(st, keys, d),
 		research:   NewResearchRoom(st, keys, d),
 		terms:      NewTermsRoom(st, keys),
 	}
@@ -197,7 +190,7 @@ func (m *Model) Risk() *RiskResult { return m.risk.Result() }
 func (m *Model) RiskRunning() bool { return m.risk.Running() }
 
 // RiskInputs are the risk view's current inputs.
-func (m *Model) RiskInputs() RiskInputs { return m.riskIn }
+func (m *Model) RiskInputs() RiskInputs { return m.risk.in }
 
 // Status is the status line's message.
 func (m *Model) Status() string { return m.status }
@@ -373,12 +366,7 @@ func (m *Model) edited() tea.Cmd {
 	m.risk.edited()
 	defer m.refreshRisk()
 	m.research.Edited(m.d)
-	if !m.riskSet {
-		m.riskIn.Wealth = defaultRiskInputs(m.d).Wealth
-	}
-	if m.riskIn.Belief != nil && len(m.riskIn.Belief) != m.d.N() {
-		m.riskIn.Belief = nil
-	}
+	m.risk.designChanged(m.d)
 	m.status = ""
 	return tea.Batch(compileCmd(m.gen, cloneDesign(m.d)), m.debounce())
 }
@@ -388,7 +376,7 @@ func (m *Model) replaceDesign(d *design.Design) tea.Cmd {
 	m.d = cloneDesign(d)
 	m.designPane.reset(m.d)
 	// A new design's wealth follows its budget again.
-	m.riskSet, m.riskIn.Belief = false, nil
+	m.risk.newDesign()
 	m.budget.setTable(nil, nil)
 	cmd := m.edited()
 	m.savedGen = m.gen

@@ -21,7 +21,7 @@ func (m *Model) wanted(msg tea.Msg) bool {
 	case riskRunMsg:
 		return m.riskJob.current(r.run)
 	case researchRunMsg:
-		return r.run == m.research.run
+		return m.research.job.current(r.run)
 	case fitProgressMsg:
 		return r.gen == m.gen
 	case proposeProgressMsg:

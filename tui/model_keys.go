@@ -147,26 +147,15 @@ func (m *Model) riskKey(km tea.KeyMsg) (tea.Cmd, bool) {
 	case key.Matches(km, k.Leave), key.Matches(km, k.Risk):
 		m.showRisk = false
 		return m.requestPicture(), true
-	case key.Matches(km, k.Up):
-		m.risk.sel = (m.risk.sel + riskFieldCount - 1) % riskFieldCount
-		return nil, true
-	case key.Matches(km, k.Down):
-		m.risk.sel = (m.risk.sel + 1) % riskFieldCount
-		return nil, true
-	case key.Matches(km, k.Less), key.Matches(km, k.More), key.Matches(km, k.LessFine), key.Matches(km, k.MoreFine):
-		up := key.Matches(km, k.More) || key.Matches(km, k.MoreFine)
-		fine := key.Matches(km, k.LessFine) || key.Matches(km, k.MoreFine)
-		if !riskStep(&m.riskIn, m.risk.sel, m.d, up, fine, m.riskCoefs) {
-			return nil, true
-		}
-		if m.risk.sel == riskWealth {
-			m.riskSet = true
-		}
-		return m.maybeRisk(), true
 	case key.Matches(km, k.NextPane), key.Matches(km, k.PrevPane):
 		m.showRisk = false
+		return nil, false
 	}
-	return nil, false
+	handled, changed := m.risk.Key(km, m.d)
+	if changed {
+		return m.maybeRisk(), true
+	}
+	return nil, handled
 }
 
 // globalKey takes the keys that work from any pane and view. Printable

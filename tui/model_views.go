@@ -103,7 +103,7 @@ func (m *Model) toggleRisk() tea.Cmd {
 // changed; while it is hidden nothing is drawn (opening it refreshes).
 func (m *Model) refreshRisk() {
 	if m.showRisk {
-		m.risk.refresh(m.d, m.riskIn)
+		m.risk.refresh(m.d)
 	}
 }
 
@@ -113,14 +113,13 @@ func (m *Model) maybeRisk() tea.Cmd {
 	if !m.showRisk || m.compGen != m.gen || m.debouncedGen != m.gen {
 		return nil
 	}
-	if m.riskJob.gen == m.gen && sameInputs(m.riskFor, m.riskIn) && (m.risk.Running() || m.risk.Result() != nil || m.risk.err != nil) {
+	if m.riskJob.gen == m.gen && !m.risk.inputsChanged() && (m.risk.Running() || m.risk.Result() != nil || m.risk.err != nil) {
 		return nil
 	}
 	ctx, run := m.riskJob.start(m.ctx, m.gen)
-	m.riskFor = m.riskIn
 	m.risk.started()
 	m.refreshRisk()
-	return riskCmd(ctx, run, cloneDesign(m.d), m.riskIn)
+	return riskCmd(ctx, run, cloneDesign(m.d), m.risk.in)
 }
 
 func sameInputs(a, b RiskInputs) bool {

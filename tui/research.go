@@ -173,11 +173,9 @@ type ResearchRoom struct {
 	in    ResearchInputs
 	sel   researchField
 
-	run     uint64
-	forGen  uint64
+	job     job // the latest study's run id and cancel (tui/job.go)
 	forIn   ResearchInputs
 	started bool
-	cancel  context.CancelFunc
 
 	running     bool
 	stage       string
@@ -248,19 +246,11 @@ func historyModel(path string, labels []string) (*research.Posterior, error) {
 // the previous design; the base rate goes back to the design's when the
 // outcome count changed.
 func (r *ResearchRoom) Edited(d *design.Design) {
-	r.stop()
-	r.run++
+	r.job.drop()
 	r.running = false
 	r.stale = r.res != nil
 	if r.res != nil && len(r.res.Labels) != d.N() {
 		r.in.Base = 0
-	}
-}
-
-func (r *ResearchRoom) stop() {
-	if r.cancel != nil {
-		r.cancel()
-		r.cancel = nil
 	}
 }
 
@@ -270,22 +260,19 @@ func (r *ResearchRoom) Maybe(ctx context.Context, d *design.Design, gen uint64, 
 	if !r.shown || !ready {
 		return nil
 	}
-	if r.started && r.forGen == gen && r.forIn == r.in {
+	if r.started && r.job.gen == gen && r.forIn == r.in {
 		return nil
 	}
-	r.stop()
-	c, cancel := context.WithCancel(ctx)
-	r.cancel = cancel
-	r.run++
-	r.started, r.forGen, r.forIn = true, gen, r.in
+	c, run := r.job.start(ctx, gen)
+	r.started, r.forIn = true, r.in
 	r.running, r.stage, r.done, r.total, r.err = true, "starting", 0, 0, nil
 	r.stale = r.res != nil
-	return researchCmd(c, r.run, cloneDesign(d), r.in)
+	return researchCmd(c, run, cloneDesign(d), r.in)
 }
 
 // Msg takes a message of a study; those of an older run are dropped.
 func (r *ResearchRoom) Msg(msg researchRunMsg) {
-	if msg.run != r.run {
+	if !r.job.current(msg.run) {
 		return
 	}
 	switch inner := msg.msg.(type) {
@@ -295,7 +282,8 @@ func (r *ResearchRoom) Msg(msg researchRunMsg) {
 		if errors.Is(inner.err, context.Canceled) {
 			return
 		}
-		r.cancel, r.running = nil, false
+		r.job.finished()
+		r.running = false
 		if inner.err != nil {
 			r.err = inner.err
 			return
@@ -312,24 +300,18 @@ func (r *ResearchRoom) Key(ctx context.Context, km tea.KeyMsg, d *design.Design,
 	case key.Matches(km, k.Leave), key.Matches(km, k.Research):
 		r.shown = false
 		return true, nil
-	case key.Matches(km, k.Up):
-		r.sel = (r.sel + researchFieldCount - 1) % researchFieldCount
-		return true, nil
-	case key.Matches(km, k.Down):
-		r.sel = (r.sel + 1) % researchFieldCount
-		return true, nil
-	case key.Matches(km, k.Less), key.Matches(km, k.More), key.Matches(km, k.LessFine), key.Matches(km, k.MoreFine):
-		up := key.Matches(km, k.More) || key.Matches(km, k.MoreFine)
-		fine := key.Matches(km, k.LessFine) || key.Matches(km, k.MoreFine)
-		if researchStep(&r.in, r.sel, d, up, fine) {
-			return true, r.Maybe(ctx, d, gen, ready)
-		}
-		return true, nil
 	case key.Matches(km, k.NextPane), key.Matches(km, k.PrevPane):
 		r.shown = false
 		return false, nil
 	}
-	return false, nil
+	moved, step, up, fine := fieldKey(k, km, &r.sel, researchFieldCount)
+	switch {
+	case moved:
+		return true, nil
+	case step && researchStep(&r.in, r.sel, d, up, fine):
+		return true, r.Maybe(ctx, d, gen, ready)
+	}
+	return step, nil
 }
 
 // researchStep moves one input a step; false when it is at its end or has

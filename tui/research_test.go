@@ -99,12 +99,12 @@ func TestResearchStaleRun(t *testing.T) {
 	m := testModel(t, nil, Settings{})
 	start(t, m, 80, 24)
 	openResearch(t, m)
-	old := m.research.run
+	old := m.research.job.run
 	_, cmd := m.Update(keyDown)
 	settle(t, m, cmd)
 	_, cmd = m.Update(keyRight) // starts a new run; not settled yet
-	if m.research.run == old || !m.research.Running() {
-		t.Fatalf("no new run after a step (run %d, running %v)", m.research.run, m.research.Running())
+	if m.research.job.run == old || !m.research.Running() {
+		t.Fatalf("no new run after a step (run %d, running %v)", m.research.job.run, m.research.Running())
 	}
 	late := researchRunMsg{run: old, msg: researchDoneMsg{rep: &study.Report{Labels: []string{"x", "y"}}}}
 	m.Update(late)

@@ -36,7 +36,7 @@ func (r *ResearchRoom) statusLine() string {
 		// Naming the model studied tells which inputs the table is for,
 		// and changes the line whenever a new study lands.
 		model, strength := r.forIn.modelWords()
-		return st.Pass.Render("✓ study done: "+model+", "+strength) + st.Dim.Render(" · ↑/↓ choose, ←/→ step, esc back")
+		return st.Pass.Render("✓ study done: "+model+", "+strength) + st.Dim.Render("   ↑/↓ choose   ←/→ step   esc back")
 	}
 	return st.Dim.Render("waiting for the design to compile")
 }

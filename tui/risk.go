@@ -172,13 +172,56 @@ type RiskView struct {
 	// body is the view laid out by refresh, when a result, the size, the
 	// inputs or the design changed; View only returns it.
 	body string
+	// in are the inputs shown; runFor those of the latest run. wealthSet
+	// says the user stepped the wealth, so it no longer follows the
+	// budget; coefs keeps each family's last coefficient.
+	in, runFor RiskInputs
+	wealthSet  bool
+	coefs      map[risk.Kind]float64
 }
 
-// NewRiskView returns an empty risk view.
-func NewRiskView(st Styles, keys KeyMap) RiskView {
+// NewRiskView returns an empty risk view with the default inputs for d.
+func NewRiskView(st Styles, keys KeyMap, d *design.Design) RiskView {
 	bar := progress.New(progress.WithFillCharacters('█', '░'), progress.WithoutPercentage(), progress.WithSolidFill(barColour))
-	return RiskView{st: st, keys: keys, bar: bar}
+	return RiskView{st: st, keys: keys, bar: bar, in: defaultRiskInputs(d), coefs: map[risk.Kind]float64{}}
 }
+
+// Key takes the view's own keys: ↑/↓ choose an input, ←/→ step it (shift:
+// a tenth). changed says the inputs changed, so a run is due.
+func (v *RiskView) Key(km tea.KeyMsg, d *design.Design) (handled, changed bool) {
+	moved, step, up, fine := fieldKey(v.keys, km, &v.sel, riskFieldCount)
+	switch {
+	case moved:
+		return true, false
+	case !step:
+		return false, false
+	case !riskStep(&v.in, v.sel, d, up, fine, v.coefs):
+		return true, false
+	}
+	if v.sel == riskWealth {
+		v.wealthSet = true
+	}
+	return true, true
+}
+
+// designChanged keeps the inputs fitting an edited design: the wealth
+// follows the budget until the user steps it, and a belief for another
+// number of outcomes is dropped.
+func (v *RiskView) designChanged(d *design.Design) {
+	if !v.wealthSet {
+		v.in.Wealth = defaultRiskInputs(d).Wealth
+	}
+	if v.in.Belief != nil && len(v.in.Belief) != d.N() {
+		v.in.Belief = nil
+	}
+}
+
+// newDesign lets the wealth follow the budget of a design put in place of
+// the old one, and drops the belief.
+func (v *RiskView) newDesign() { v.wealthSet, v.in.Belief = false, nil }
+
+// inputsChanged reports whether the inputs differ from the latest run's.
+func (v RiskView) inputsChanged() bool { return !sameInputs(v.runFor, v.in) }
 
 // SetSize sets the outer size of the view.
 func (v *RiskView) SetSize(w, h int) {
@@ -200,7 +243,9 @@ func (v RiskView) Result() *RiskResult { return v.res }
 // Running reports whether a risk run is in progress.
 func (v RiskView) Running() bool { return v.running }
 
-func (v *RiskView) started() { v.running, v.done, v.err, v.stale = true, 0, nil, v.res != nil }
+func (v *RiskView) started() {
+	v.running, v.done, v.err, v.stale, v.runFor = true, 0, nil, v.res != nil, v.in
+}
 
 // edited marks the result as being for an earlier design.
 func (v *RiskView) edited() {

@@ -235,3 +235,39 @@ func TestRiskCRRANeedsWealth(t *testing.T) {
 		t.Errorf("view:\n%s", v)
 	}
 }
+
+// The risk view is a component: it owns its inputs and steps them on its
+// own keys, says when a run is due, and keeps the wealth the user chose
+// through an edit of the design (while an untouched wealth follows the
+// budget).
+func TestRiskViewOwnsItsInputs(t *testing.T) {
+	d := DemoFrost()
+	v := NewRiskView(testStyles(t), DefaultKeyMap(), d)
+	before := v.in
+	if h, c := v.Key(keyDown, d); !h || c || v.sel != riskCoef {
+		t.Fatalf("↓ chose %v (handled %v, changed %v)", v.sel, h, c)
+	}
+	if _, c := v.Key(keyRight, d); !c || !(v.in.Coef > before.Coef) || !v.inputsChanged() {
+		t.Fatalf("→ on the coefficient: %+v, changed %v", v.in, c)
+	}
+	v.started()
+	if v.inputsChanged() {
+		t.Fatal("a started run is not for the inputs shown")
+	}
+	wider := d.Clone()
+	wider.Budget.Cap *= 2
+	v.designChanged(wider)
+	if v.in.Wealth != defaultRiskInputs(wider).Wealth {
+		t.Fatalf("an untouched wealth did not follow the budget: %v", v.in.Wealth)
+	}
+	v.Key(keyDown, d) // wealth
+	v.Key(keyRight, d)
+	chosen := v.in.Wealth
+	v.designChanged(d)
+	if v.in.Wealth != chosen {
+		t.Fatalf("the wealth the user chose moved with the budget: %v, want %v", v.in.Wealth, chosen)
+	}
+	if h, _ := v.Key(runes("q"), d); h {
+		t.Fatal("the view took q, which must reach the workbench")
+	}
+}

@@ -80,7 +80,7 @@ func (v RiskView) View() string { return v.body }
 // refresh lays the view out again for design d and inputs in. The model
 // calls it when something shown changed (a run's message, a key, the size,
 // the design), not on every frame: drawing the curve is work.
-func (v *RiskView) refresh(d *design.Design, in RiskInputs) { v.body = v.render(d, in) }
+func (v *RiskView) refresh(d *design.Design) { v.body = v.render(d, v.in) }
 
 // render draws the view for design d and the current inputs.
 func (v RiskView) render(d *design.Design, in RiskInputs) string {

@@ -123,7 +123,8 @@ func (t *TermsRoom) SetSize(w, h int) {
 // KeyHelp lists the view's keys.
 func (t *TermsRoom) KeyHelp() []key.Binding {
 	k := t.keys
-	return []key.Binding{k.Up, k.Down, k.Edit, k.Leave}
+	return []key.Binding{k.Up, k.Down, key.NewBinding(key.WithKeys(k.Edit.Keys()...), key.WithHelp(k.Edit.Help().Key, "edit the term")),
+		key.NewBinding(key.WithKeys(k.Leave.Keys()...), key.WithHelp(k.Leave.Help().Key, "back to the panes"))}
 }
 
 // Key handles a key while the view is shown: handled says it was the
@@ -194,7 +195,7 @@ func (t *TermsRoom) apply(d *design.Design, f termsField, v string) bool {
 // shown as a line to write on, as the annex prints it.
 func (t *TermsRoom) View(d *design.Design) string {
 	var b strings.Builder
-	b.WriteString(t.st.Header.Render("Terms of the annex") + t.st.Dim.Render("  ↑/↓ choose · enter edit · esc back") + "\n\n")
+	b.WriteString(t.st.Header.Render("Terms of the annex") + t.st.Dim.Render("   "+keyList(t.keys.Up, t.keys.Down)+" choose   "+t.keys.Edit.Help().Key+" edit   "+t.keys.Leave.Help().Key+" back") + "\n\n")
 	for i, f := range termsFields() {
 		mark := "  "
 		if i == t.sel {

@@ -304,6 +304,13 @@ func refineBeliefs(ctx context.Context, p *payout.Payout, g *simplex.Grid, bgs [
 		for _, i := range idx[lo:hi] {
 			bg := &bgs[i]
 			_, r, v, _, ok := ps.run(func(q, r []float64) float64 { return -ev.Expected(q, r) }, bg.Belief, bg.BestReport)
+			if sr, moved := snapped(r); ok && moved {
+				// A face read as 1e-17 is noise: keep the exact face
+				// when it pays no less (snapWitness).
+				if e := ev.Expected(bg.Belief, sr); e >= -v-1e-13*math.Abs(v) {
+					r, v = sr, -e
+				}
+			}
 			if gap := -v - bg.Honest; ok && gap > bg.Gap {
 				bg.Gap, bg.BestReport = gap, r
 			}

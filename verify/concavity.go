@@ -393,7 +393,7 @@ func sharpenConcavity(c *CheckResult, r *bregman.Rule, boundary bool, cell float
 			return math.Inf(1)
 		}
 		return -l
-	}, x0, sharpenEvals)
+	}, x0, sharpenEvals, cellSimplex(cell))
 	c.Status = status
 	if !ok || !improves(-v, c.Worst, true) {
 		return

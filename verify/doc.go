@@ -44,11 +44,18 @@
 //     rounded like the pair sums (no fused multiply-adds), so it never exceeds a computed pair
 //     value, and ties go to the smaller grid index: the result is bit for bit that of the full
 //     stream (`streamFull`, `scan2..4`, generic `scan`: every pair, four reports per step), which
-//     the tests hold it to. At n = 3, K = 400 it evaluates about 2.6 % of the pairs.
-//     No G² memory, one belief row per work item, so cancellation is seen
-//     within G pairs. Beliefs with zero coordinates use `menu.safe` (±Inf replaced by ±1e300, exact
-//     in order because 0 × 1e300 = 0; winners' values recomputed with 0·Inf = 0), or
-//     `scanSupport` when a finite effort is too large for that.
+//     the tests hold it to (stream for stream, and whole reports against a run visiting every
+//     pair). Beliefs go a leaf of the tree at a time (prune_block.go): one walk per block with a
+//     bound valid for all its beliefs, then each belief through the candidate boxes, sorted.
+//     At n = 3, K = 400 it evaluates about 5 % of the pairs. No G² memory; a block is at most
+//     64 beliefs, so cancellation is seen within 64·G pairs. Beliefs with zero coordinates use
+//     `menu.safe` (±Inf replaced by ±1e300, exact in order because 0 × 1e300 = 0; winners'
+//     values recomputed with 0·Inf = 0), or `scanSupport` when a finite effort is too large for
+//     that. With `Settings.Proof` (a certificate's proof of properness) only what the proof
+//     leaves is streamed: boundary beliefs against every report, interior beliefs against the
+//     boundary reports (`provedStream`); the verdict is then of kind certified. An audit's
+//     off-grid pass (offgrid.go) walks a tree of its random reports the same way, capped at the
+//     honest pay.
 //  4. Reductions. T is `Grid.Slack()`: `Tolerance` × `Grid.Scale`, the scale being the spread
 //     of the finite efforts or payments on the grid (largest − smallest; 1 when they are all
 //     equal), but at least `Grid.Rounding` = 2·n·ε × the largest finite |value|. So the rule in

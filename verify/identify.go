@@ -231,7 +231,7 @@ func (f *fitter) fitParam(ctx context.Context, c Candidate, pr *pool.Meter) (v f
 	if err := ctx.Err(); err != nil {
 		return 0, "", err
 	}
-	x, _, status, ok := minimise(func(x []float64) float64 { return cost(x[0]) }, []float64{bestU}, identEvals)
+	x, _, status, ok := minimise(func(x []float64) float64 { return cost(x[0]) }, []float64{bestU}, identEvals, simplexSize)
 	if err := ctx.Err(); err != nil {
 		return 0, "", err
 	}

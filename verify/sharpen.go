@@ -14,13 +14,16 @@ import (
 // at n <= 12, small enough to stay a fraction of the grid's cost.
 const sharpenEvals = 4000
 
-// minimise runs Nelder–Mead on f from x0 and returns the best point and
+// simplexSize is Nelder–Mead's first step where no cell bounds the search.
+const simplexSize = 0.02
+
+// minimise runs Nelder–Mead on f from x0, with first steps of size, and returns the best point and
 // value it saw with the optimiser's status. A NaN value counts as +Inf so
 // that a region where the formula is undefined repels the search rather
 // than derailing it (such regions are reported by other checks). ok is
 // false when the optimiser failed outright; the caller then keeps its grid
 // witness.
-func minimise(f func(x []float64) float64, x0 []float64, evals int) (x []float64, fx float64, status string, ok bool) {
+func minimise(f func(x []float64) float64, x0 []float64, evals int, size float64) (x []float64, fx float64, status string, ok bool) {
 	bestX := clone(x0)
 	bestF := math.Inf(1)
 	wrapped := func(x []float64) float64 {
@@ -38,7 +41,7 @@ func minimise(f func(x []float64) float64, x0 []float64, evals int) (x []float64
 	res, err := optimize.Minimize(optimize.Problem{Func: wrapped}, clone(x0), &optimize.Settings{
 		FuncEvaluations: evals,
 		Converger:       &optimize.FunctionConverge{Absolute: 1e-15, Relative: 1e-15, Iterations: 40},
-	}, &optimize.NelderMead{SimplexSize: 0.02})
+	}, &optimize.NelderMead{SimplexSize: size})
 	if res == nil {
 		return bestX, bestF, "optimiser gave no result: " + errString(err), false
 	}
@@ -123,7 +126,11 @@ func (s *pairSearch) run(f func(q, p []float64) float64, q0, p0 []float64) (q, p
 		}
 		return f(s.q, s.p)
 	}
-	x, v, status, ok := minimise(obj, x0, s.evals)
+	// The first simplex must fit the cell: through the squares map a step
+	// dx moves a coordinate by up to 2dx, and a simplex whose every vertex
+	// leaves the cell (+Inf) looks converged where it started (p[y]^2 over
+	// 3 outcomes stopped at 0.368189762, 7 digits short of 0.368189833).
+	x, v, status, ok := minimise(obj, x0, s.evals, cellSimplex(s.cell))
 	q, p = make([]float64, n), make([]float64, n)
 	if s.fixBelief {
 		copy(q, q0)
@@ -133,6 +140,15 @@ func (s *pairSearch) run(f func(q, p []float64) float64, q0, p0 []float64) (q, p
 		simplex.FromSquares(p, x[n:])
 	}
 	return q, p, v, status, ok
+}
+
+// cellSimplex is the first step of a search confined to a cell of
+// half-width cell (0: no cell).
+func cellSimplex(cell float64) float64 {
+	if cell > 0 {
+		return math.Min(simplexSize, cell/4)
+	}
+	return simplexSize
 }
 
 // inCell reports whether x lies within half-width cell of centre in every
@@ -212,6 +228,7 @@ func sharpenGap(gap *Gap, n int, cell float64, gain func(q, r []float64) float64
 		ps.cell *= 2
 	}
 	if moved {
+		best, q, r = snapWitness(best, q, r, gain)
 		gap.GridMax, gap.Max, gap.Belief, gap.BestReport, gap.Sharpened = gap.Max, best, q, r, true
 	}
 	switch {
@@ -222,6 +239,50 @@ func sharpenGap(gap *Gap, n int, cell float64, gain func(q, r []float64) float64
 	default:
 		gap.Precision = fmt.Sprintf("sharpening stopped after %s still improving the gap: fewer than 9 significant digits are settled", searches(runs))
 	}
+}
+
+// snapLimit is the size below which a coordinate of a sharpened witness
+// is tried as exactly 0. The search works through the squares map, so a
+// maximum on a face is approached as x^2 with x ~ 1e-10 and reads as
+// 2.75e-19, noise that a witness must not print.
+const snapLimit = 1e-9
+
+// snapWitness sets the coordinates of q and r below snapLimit to 0 (and
+// renormalises) and keeps the snapped pair when its gain is no smaller
+// than best beyond rounding; the gain returned is the snapped pair's own,
+// so that the witness and its amount always agree.
+func snapWitness(best float64, q, r []float64, gain func(q, r []float64) float64) (float64, []float64, []float64) {
+	sq, okq := snapped(q)
+	sr, okr := snapped(r)
+	if !okq && !okr {
+		return best, q, r
+	}
+	v := gain(sq, sr)
+	if v >= best-1e-13*math.Abs(best) {
+		return v, sq, sr
+	}
+	return best, q, r
+}
+
+// snapped returns x with coordinates below snapLimit set to 0 and the rest
+// rescaled to sum 1, and whether anything changed.
+func snapped(x []float64) ([]float64, bool) {
+	out := clone(x)
+	var sum float64
+	changed := false
+	for k, v := range out {
+		if v != 0 && v < snapLimit {
+			out[k], changed = 0, true
+		}
+		sum += out[k]
+	}
+	if !changed || sum <= 0 {
+		return x, false
+	}
+	for k := range out {
+		out[k] /= sum
+	}
+	return out, true
 }
 
 // onEdge reports whether x touches the edge of the box of half-width cell

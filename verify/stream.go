@@ -204,7 +204,9 @@ func scan(q, rows []float64, n int) best {
 // of the unrolled small-n kernels. Each sum is rounded as dotN rounds it.
 func dot4N(q, r []float64, n int) (a, b, c, d float64) {
 	m := len(q)
-	ra, rb, rc, rd := r[0:m:m], r[n:n+m:n+m], r[2*n:2*n+m:2*n+m], r[3*n:3*n+m:3*n+m]
+	// Each slice is cut to length m in a second step, so the compiler
+	// knows its length and the loop below runs without bounds checks.
+	ra, rb, rc, rd := r[:m:m], r[n:][:m:m], r[2*n:][:m:m], r[3*n:][:m:m]
 	x := q[0]
 	a, b, c, d = float64(x*ra[0]), float64(x*rb[0]), float64(x*rc[0]), float64(x*rd[0])
 	for k := 1; k < m; k++ {

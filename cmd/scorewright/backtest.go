@@ -29,7 +29,7 @@ import (
 
 const backtestUsage = ruleUsage + " " + budgetUsage + " [--menu FILE] [--clamp P] --history FILE.csv [--strict] [--tolerance T]" +
 	" [--versus-preset NAME | --versus-generator EXPR | --versus-design FILE] [--versus-param name=value]" +
-	" [--sheet NAME] [--bin-width W] [--pay-out FILE.csv] [--forecasters-out FILE.csv] [--by-question] [--figure FILE.svg|png|pdf] [--chart] [--force] [--progress] [--json]"
+	" [--sheet NAME] [--bin-width W] [--pay-out FILE.csv] [--forecasters-out FILE.csv] [--by-question] [--figure FILE.svg|png|pdf] [--chart] [--all-curves] [--force] [--progress] [--json]"
 
 // payHook, when set, replaces each rule's pay after the budget fit; tests
 // pay an explicit A - B·effort with it, so the command can be tested apart
@@ -62,7 +62,7 @@ type backtestFlags struct {
 	payOut, figPath                  *string
 	binWidth, tol, clamp             *float64
 	strict, byQuestion, chart, force *bool
-	progress, asJSON                 *bool
+	progress, asJSON, allCurves      *bool
 	vsParams                         paramFlag
 }
 
@@ -84,6 +84,7 @@ func addBacktestFlags(fs *flag.FlagSet) *backtestFlags {
 	f.byQuestion = fs.Bool("by-question", false, "also total the pay per question (memory grows with the number of questions)")
 	f.figPath = fs.String("figure", "", "n = 2: write the reliability picture to FILE.svg, .png or .pdf")
 	f.chart = fs.Bool("chart", false, "n = 2: print the reliability picture as a text chart")
+	f.allCurves = fs.Bool("all-curves", false, "n = 2: the JSON and --figure carry every forecaster's reliability curve, not only the listed ones")
 	f.force = fs.Bool("force", false, "replace existing --pay-out and --figure files")
 	f.progress = fs.Bool("progress", false, "show a progress line on stderr even when it is not a terminal")
 	f.asJSON = fs.Bool("json", false, "print JSON")
@@ -193,7 +194,7 @@ func (s *backtestScheme) open(fs *flag.FlagSet, menuFile string, clamp float64, 
 // outcomes and output files that exist without --force; it returns the
 // figure's format.
 func (f *backtestFlags) checkOutputs(n int) (figFormat string, err error) {
-	if (*f.figPath != "" || *f.chart) && n != 2 {
+	if (*f.figPath != "" || *f.chart || *f.allCurves) && n != 2 {
 		return "", usagef("the reliability picture is for 2 outcomes; this rule has %d", n)
 	}
 	if *f.figPath != "" {
@@ -249,7 +250,7 @@ func (f *backtestFlags) run(e *env, h *history.Reader, size int64, schemes []*ba
 	}
 	defer res.Close()
 	return finishBacktest(e, h, schemes, res, backtestOutputs{history: *f.history, payOut: *f.payOut, out: out, forecastersOut: *f.forecastersOut,
-		figPath: *f.figPath, figFormat: figFormat, force: *f.force, questions: questions, asJSON: *f.asJSON, chart: *f.chart, event: labels[0]})
+		figPath: *f.figPath, figFormat: figFormat, force: *f.force, questions: questions, asJSON: *f.asJSON, chart: *f.chart, allCurves: *f.allCurves, event: labels[0]})
 }
 
 // bothRows calls first (when set), then second, for every row.
@@ -296,7 +297,7 @@ type backtestOutputs struct {
 	history, payOut, forecastersOut, figPath, figFormat, event string
 	out                                                        *payOutFile
 	questions                                                  *questionTally
-	force, asJSON, chart                                       bool
+	force, asJSON, chart, allCurves                            bool
 }
 
 // finishBacktest writes a finished backtest: the pay-out file, the
@@ -308,6 +309,15 @@ func finishBacktest(e *env, h *history.Reader, schemes []*backtestScheme, res *b
 		}
 	}
 	report := newBacktestReport(o.history, h, schemes, res)
+	chartCurves := report.curves // the text chart draws the listed forecasters
+	if o.allCurves && !res.Shown() {
+		curves, err := backtest.AllReliabilityCurves(res, 0)
+		if err != nil {
+			return usagef("--all-curves: %v", err)
+		}
+		report.setCurves(curves)
+		report.Notes = append(report.Notes, fmt.Sprintf("the reliability curves of all %d forecasters are in the JSON and the figure (--all-curves); the text lists %d", res.ForecasterCount, len(res.Forecasters)))
+	}
 	if o.forecastersOut != "" {
 		if err := writeForecasters(o.forecastersOut, o.force, schemes, res); err != nil {
 			return err
@@ -341,7 +351,7 @@ func finishBacktest(e *env, h *history.Reader, schemes []*backtestScheme, res *b
 	}
 	if o.chart {
 		fmt.Fprintln(e.stdout)
-		fmt.Fprintln(e.stdout, reliability.New(o.event, report.curves).View(72, 22))
+		fmt.Fprintln(e.stdout, reliability.New(o.event, chartCurves).View(72, 22))
 	}
 	return failedIfWarned(report)
 }

@@ -58,7 +58,12 @@ func (r *backtestReport) addCurves(res *backtest.Result) {
 	if len(r.Outcomes) != 2 {
 		return
 	}
-	r.curves = backtest.ReliabilityCurves(res, 0)
+	r.setCurves(backtest.ReliabilityCurves(res, 0))
+}
+
+// setCurves makes curves the reliability picture's, in the JSON too.
+func (r *backtestReport) setCurves(curves []backtest.Curve) {
+	r.curves, r.Reliability = curves, nil
 	for _, c := range r.curves {
 		rr := reliabilityReport{Forecaster: c.Name, Outcome: r.Outcomes[0], Method: "PAV recalibration at each distinct forecast, consistency bands from outcomes redrawn under calibration",
 			BandLevel: corp.DefaultLevel, Resamples: corp.DefaultResamples, Seed: corp.DefaultSeed, Points: []pointJSON{}}

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"encoding/json"
 	"fmt"
 	"math"
 	"os"
@@ -70,6 +71,31 @@ func TestBacktestManyForecasters(t *testing.T) {
 	}
 	if recs := readRecords(t, all); len(recs) != 51 || recs[1][0] != "F00" || recs[50][0] != "F49" {
 		t.Errorf("forecasters file: %d records", len(recs))
+	}
+	// The JSON's reliability curves: the 20 listed, or with --all-curves
+	// all 50 (and the SVG figure draws as many).
+	for _, c := range []struct {
+		extra []string
+		want  int
+	}{{nil, 20}, {[]string{"--all-curves"}, 50}} {
+		fig := filepath.Join(dir, fmt.Sprintf("fig%d.svg", c.want))
+		code, out, stderr := runBacktestCmd(t, append(append(args, "--json", "--figure", fig), c.extra...)...)
+		if code != 0 {
+			t.Fatalf("exit %d: %s", code, stderr)
+		}
+		var rep struct {
+			Reliability []struct{ Forecaster string }
+		}
+		if err := json.Unmarshal([]byte(out), &rep); err != nil {
+			t.Fatal(err)
+		}
+		if len(rep.Reliability) != c.want || rep.Reliability[0].Forecaster != "F00" {
+			t.Errorf("%v: %d curves in the JSON, want %d", c.extra, len(rep.Reliability), c.want)
+		}
+		svg, _ := os.ReadFile(fig)
+		if n := strings.Count(string(svg), ">F"); n < c.want {
+			t.Errorf("%v: the figure names %d forecasters, want %d", c.extra, n, c.want)
+		}
 	}
 }
 

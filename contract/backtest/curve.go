@@ -1,6 +1,7 @@
 package backtest
 
 import (
+	"fmt"
 	"math"
 
 	"scorewright/contract/backtest/corp"
@@ -55,6 +56,31 @@ func ReliabilityCurves(res *Result, k int) []Curve {
 		}
 	}
 	return curves
+}
+
+// AllReliabilityCurves are every forecaster's PAV curves for event k,
+// with consistency bands, in name order: ReliabilityCurves for all, not
+// only the detailed ones. It reads the forecasts once more, and holds
+// every curve (a point per distinct forecast of each forecaster) in
+// memory.
+func AllReliabilityCurves(res *Result, k int) ([]Curve, error) {
+	t := res.t
+	if k < 0 || k >= t.events() {
+		return nil, fmt.Errorf("backtest: event %d of %d", k, t.events())
+	}
+	curves := make([]Curve, t.names.len())
+	err := t.scan(false, true, func(f int, _ *moneyRec, own ownEntries) error {
+		curves[f] = PAVCurve(t.names.name(f), t.eventGroups(own, t.paidReport(0))[k], true)
+		return nil
+	})
+	if err != nil {
+		return nil, err
+	}
+	out := make([]Curve, 0, len(curves))
+	for _, i := range t.names.sorted() {
+		out = append(out, curves[i])
+	}
+	return out, nil
 }
 
 // Banded reports whether a point has a band.

@@ -47,10 +47,20 @@
 //
 // Design notes:
 //
-//   - Constant memory. `encoding/csv` with `ReuseRecord`; the only allocation per row is the one
-//     string `encoding/csv` makes per record (tested with `testing.AllocsPerRun`). Memory grows with
-//     the number of forecasters and their distinct forecasts (bounded), never with rows. Skipped rows
-//     are all counted, the first 1000 kept.
+//   - Small memory. `encoding/csv` with `ReuseRecord`; the only allocation per row is the one
+//     string `encoding/csv` makes per record (tested with `testing.AllocsPerRun`). Memory never
+//     grows with rows, and past bounds not with forecasters either: a forecaster is its name in
+//     one byte arena and an index (names.go, ~16 bytes beside the name); the money of the first
+//     `DefaultMaxMoney` forecasters sits in flat arrays, later ones in a table of as many entries;
+//     the (forecaster, forecast) outcome counts in a table of `DefaultMaxPairs` entries. A full
+//     table is written to one temporary file (removed as soon as it is made, so nothing is left
+//     behind) as a run sorted by forecaster (spill.go); the Result merges the runs back in
+//     forecaster order with a heap of cursors, one pass for the ranks (keeping the money of the
+//     best and worst by bounded heaps), one for the detailed forecasters' decompositions, and
+//     `EachForecaster` one more, keeping each forecaster's figures (in memory, or in a second
+//     temporary file when many) until they are visited by name (finals.go). Spilling is checked
+//     bit for bit against the tables kept in memory, also across a coarsening of forecasts
+//     between runs (spill_test.go). Skipped rows are all counted, the first 1000 kept.
 //   - Speed. `Run` reads and validates in one goroutine and scores in the caller's, batches of 512
 //     rows in flight. What every distinct forecast earns under every scheme and outcome is cached
 //     (16384 forecasts at most), so a history written on a menu evaluates each generator once per

@@ -4,6 +4,7 @@ import (
 	"bufio"
 	"container/heap"
 	"encoding/binary"
+	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -22,7 +23,7 @@ type spillFile struct {
 	f    *os.File
 	w    *bufio.Writer
 	size int64
-	err  error // the first failure; nothing more is written after it
+	err  error // the first failure, or closing; nothing more is written after it
 }
 
 // spillRun is one run: where it is, how many records, and the generation
@@ -86,7 +87,9 @@ func (sp *spillFile) close() error {
 	name := sp.f.Name()
 	err := sp.f.Close()
 	os.Remove(name) // in case the system kept it when it was made
-	sp.f, sp.w, sp.size = nil, nil, 0
+	sp.f, sp.w = nil, nil
+	// Runs already written point into the file: a new one must not start.
+	sp.err = errors.New("backtest: the tally was closed, and its temporary file with it")
 	return err
 }
 
@@ -162,6 +165,9 @@ func (h *cursors) take(f uint64, fn func(rec []byte)) error {
 func openCursors(sp *spillFile, runs []spillRun, mem records, size int, shift uint, remap func(gen int) []int32) (cursors, error) {
 	if err := sp.flush(); err != nil {
 		return nil, err
+	}
+	if len(runs) > 0 && sp.f == nil {
+		return nil, errors.New("backtest: the result was closed, and its temporary file with it")
 	}
 	// Read buffers shrink with the number of runs, so that a long spill
 	// costs at most a few megabytes to merge.

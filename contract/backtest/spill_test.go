@@ -234,3 +234,73 @@ func TestShownAreTheBestAndWorst(t *testing.T) {
 		tl.Close()
 	}
 }
+
+// Every forecaster's reliability curve, not only the detailed ones: one
+// per forecaster in name order, a point per distinct forecast with the
+// count the test counted itself, the detailed ones as ReliabilityCurves
+// draws them; the same with the forecasts spilled.
+func TestAllReliabilityCurves(t *testing.T) {
+	q := rule(t, "1 - sum(p^2)", 2, false)
+	for _, opt := range []TallyOptions{{}, {MaxMoney: 4, MaxPairs: 9}} {
+		opt.SpillDir = t.TempDir()
+		tl, err := NewTally([]Scheme{{Name: "q", Rule: q, Pay: Affine{A: 1, B: 1}}}, opt)
+		if err != nil {
+			t.Fatal(err)
+		}
+		rng := rand.New(rand.NewPCG(5, 6))
+		counts := map[string]map[float64]int{}
+		for i := range 2000 {
+			name := fmt.Sprintf("g%02d", rng.IntN(50))
+			x := float64(rng.IntN(21)) / 20
+			tl.Add(name, i+2, rng.IntN(2), []float64{x, 1 - x})
+			if counts[name] == nil {
+				counts[name] = map[float64]int{}
+			}
+			counts[name][x]++
+		}
+		res := result(t, tl)
+		all, err := AllReliabilityCurves(res, 0)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if len(all) != len(counts) || len(res.Forecasters) == len(all) {
+			t.Fatalf("%d curves for %d forecasters (%d detailed)", len(all), len(counts), len(res.Forecasters))
+		}
+		byName := map[string]Curve{}
+		for i, c := range all {
+			if i > 0 && all[i-1].Name >= c.Name {
+				t.Fatalf("curves not in name order: %s before %s", all[i-1].Name, c.Name)
+			}
+			byName[c.Name] = c
+			got := map[float64]int{}
+			for _, p := range c.Points {
+				got[p.Forecast] = p.Count
+			}
+			if fmt.Sprint(got) != fmt.Sprint(counts[c.Name]) {
+				t.Errorf("%s: points %v, want the forecasts %v", c.Name, got, counts[c.Name])
+			}
+		}
+		for _, c := range ReliabilityCurves(res, 0) {
+			if fmt.Sprintf("%+v", c) != fmt.Sprintf("%+v", byName[c.Name]) {
+				t.Errorf("%s: the curve differs from the detailed one", c.Name)
+			}
+		}
+		tl.Close()
+	}
+}
+
+// A Result whose temporary file was closed says so instead of failing
+// somewhere deeper.
+func TestClosedResult(t *testing.T) {
+	q := rule(t, "1 - sum(p^2)", 3, false)
+	tl, err := NewTally([]Scheme{{Name: "q", Rule: q, Pay: Affine{A: 1, B: 1}}}, TallyOptions{MaxPairs: 4, MaxMoney: 2, SpillDir: t.TempDir()})
+	if err != nil {
+		t.Fatal(err)
+	}
+	spillHistory(tl, 200)
+	res := result(t, tl)
+	res.Close()
+	if err := res.EachForecaster(func(*Forecaster) error { return nil }); err == nil || !strings.Contains(err.Error(), "closed") {
+		t.Errorf("EachForecaster after Close: %v, want an error saying the result was closed", err)
+	}
+}

@@ -11,9 +11,9 @@ import (
 	"scorewright/internal/pool"
 )
 
-// proposalUnits are the currency units a proposal chooses from, coarse to
+// ProposalUnits are the currency units a proposal chooses from, coarse to
 // fine: the round amounts a contract is written in.
-func proposalUnits() []float64 {
+func ProposalUnits() []float64 {
 	return []float64{100, 50, 25, 20, 10, 5, 2, 1, 0.5, 0.25, 0.2, 0.1, 0.05, 0.02, 0.01, 0.005, 0.002, 0.001}
 }
 
@@ -63,16 +63,36 @@ var ErrNoProposal = errors.New("no currency unit down to 0.001 and no larger cap
 // the belief that is that item, which is what decides Recheck's Passed.
 // progress, when set, is told candidates tried of the most there can be.
 // With no candidate passing the error is ErrNoProposal.
-func Propose(ctx context.Context, r *bregman.Rule, m *Menu, b design.Budget, progress pool.Progress) (props []Proposal, err error) {
+func Propose(ctx context.Context, r *bregman.Rule, m *Menu, b design.Budget, progress pool.Progress) ([]Proposal, error) {
 	first, err := FitRule(r, m, b)
 	if err != nil {
 		return nil, err
 	}
-	span := first.Cap - first.Floor
-	units := proposalUnits()
+	passes := func(ctx context.Context, c design.Budget) (float64, bool, error) {
+		f, err := FitRule(r, m, c)
+		if err != nil {
+			return 0, false, err
+		}
+		return menuMargin(ctx, f)
+	}
+	return Search(ctx, b, first.Cap, passes, progress)
+}
+
+// Passes fits budget c and says whether its rounded table passes the
+// re-check, with the smallest margin.
+type Passes func(ctx context.Context, c design.Budget) (margin float64, passed bool, err error)
+
+// Search is Propose's search over the budgets near b for any table that
+// passes decides: units of the ladder up to half the range from b's floor
+// to capNow (the cap the table has; a mean-pay fit's largest payment),
+// then caps (or mean pays) above it. Point-forecast tables use it with
+// their own re-check.
+func Search(ctx context.Context, b design.Budget, capNow float64, passes Passes, progress pool.Progress) (props []Proposal, err error) {
+	span := capNow - b.Floor
+	units := ProposalUnits()
 	meter := pool.NewMeter(progress, int64(len(units)+1+capSteps))
 	defer func() { meter.Finish(err == nil) }()
-	s := &search{ctx: ctx, r: r, m: m, meter: meter}
+	s := &search{ctx: ctx, passes: passes, meter: meter}
 	for _, u := range units {
 		if u > span/2 {
 			continue
@@ -102,7 +122,7 @@ func Propose(ctx context.Context, r *bregman.Rule, m *Menu, b design.Budget, pro
 			mp := math.Round((*b.MeanPay+float64(k)*(*b.MeanPay-b.Floor)/20)*1e6) / 1e6
 			c.MeanPay, field = &mp, "mean pay"
 		} else {
-			c.Cap = math.Round((first.Cap+float64(k)*span/20)*1e6) / 1e6
+			c.Cap = math.Round((capNow+float64(k)*span/20)*1e6) / 1e6
 		}
 		p, err := s.try(field, c)
 		if err != nil {
@@ -126,24 +146,23 @@ func done(props []Proposal, err error) ([]Proposal, error) {
 	return props, nil
 }
 
-// search is one proposal search: the rule and menu, and what it tried.
+// search is one proposal search: its test and what it tried.
 type search struct {
-	ctx   context.Context
-	r     *bregman.Rule
-	m     *Menu
-	meter *pool.Meter
-	tried int
+	ctx    context.Context
+	passes Passes
+	meter  *pool.Meter
+	tried  int
 }
 
-// try fits budget c and returns it as a proposal if it passes, nil if not.
+// try checks budget c and returns it as a proposal if it passes, nil if
+// not.
 func (s *search) try(field string, c design.Budget) (*Proposal, error) {
 	s.tried++
 	s.meter.Add(1)
-	f, err := FitRule(s.r, s.m, c)
-	if err != nil {
+	if err := s.ctx.Err(); err != nil {
 		return nil, err
 	}
-	mg, ok, err := menuMargin(s.ctx, f)
+	mg, ok, err := s.passes(s.ctx, c)
 	if err != nil || !ok {
 		return nil, err
 	}

@@ -79,7 +79,7 @@ func TestProposeAgainstBruteForce(t *testing.T) {
 			if !bruteMenuPasses(c2, in4000(p.Budget.Unit)) {
 				t.Errorf("cap %g: proposed unit %g does not pass by brute force", c, p.Budget.Unit)
 			}
-			for _, u := range proposalUnits() {
+			for _, u := range ProposalUnits() {
 				if u > p.Budget.Unit && u <= c/2 && bruteMenuPasses(c2, in4000(u)) {
 					t.Errorf("cap %g: unit %g passes by brute force and is coarser than the proposed %g", c, u, p.Budget.Unit)
 				}

@@ -206,3 +206,28 @@ func (s *Scorer) boundaryEfforts(dst, p []float64, h float64) {
 		dst[k] += 0 // -0 (from -1·0) reads as a negative effort; make it 0
 	}
 }
+
+// boundaryValue is H at a boundary point p as the limit from the interior
+// along the segment towards the centre, extrapolated as the efforts are.
+// It is used only where the formula itself gives no number at p: written
+// with an implicit last coordinate (1-p1-p2), a face point can round to
+// just outside the simplex, where ln or a fractional power is undefined.
+// A concave H that is continuous on the closed simplex equals this limit.
+func (s *Scorer) boundaryValue(p []float64) float64 {
+	if s.pt == nil {
+		s.pt = make([]float64, s.n)
+	}
+	pt := s.pt
+	var st limitState
+	c := 1 / float64(s.n)
+	scale := segmentScale(p)
+	for step := 0; step < limitSteps && !st.done; step++ {
+		t := scale * math.Ldexp(1, -limitFirst-2*step)
+		for j, x := range p {
+			pt[j] = x + t*(c-x)
+		}
+		v := s.ev.Value(pt)
+		st.offer(v, math.Abs(v))
+	}
+	return st.result()
+}

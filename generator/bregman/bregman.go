@@ -144,10 +144,17 @@ func (s *Scorer) check(name string, v []float64) {
 	}
 }
 
-// Entropy returns H(q).
+// Entropy returns H(q). On the boundary, where the formula may leave its
+// domain by rounding (1-p1-p2 is -5.6e-17 at (0.07, 0.93, 0)), a value
+// that is not a number is replaced by the limit from the interior
+// (boundary.go).
 func (s *Scorer) Entropy(q []float64) float64 {
 	s.check("belief", q)
-	return s.ev.Value(q)
+	h := s.ev.Value(q)
+	if h != h && onBoundary(q) {
+		h = s.boundaryValue(q)
+	}
+	return h
 }
 
 // Efforts writes L(p, k) for every outcome k into dst and returns H(p).
@@ -161,6 +168,9 @@ func (s *Scorer) Efforts(dst, p []float64) float64 {
 	h := s.ev.Gradient(s.grad, p)
 	if onBoundary(p) {
 		s.boundaryEfforts(dst, p, h)
+		if h != h {
+			h = s.boundaryValue(p)
+		}
 		return h
 	}
 	gp := Dot(s.grad, p)

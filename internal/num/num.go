@@ -222,7 +222,9 @@ func Witness(belief, report []float64, failed bool) (b, r string, named bool) {
 	b, r = Format(belief), Format(report)
 	named = b != r
 	if !named && failed {
-		b, r, named = FormatApart(belief, report)
+		if ab, ar, ok := FormatApart(belief, report); ok {
+			b, r, named = ab, ar, true
+		}
 	}
 	return b, r, named
 }

@@ -43,3 +43,19 @@ func TestFormatApart(t *testing.T) {
 		t.Error("equal vectors told apart")
 	}
 }
+
+// A failed check whose worst place is a belief with itself as the report
+// (the divergence D(q, q) of -6e-16 that rounding leaves) names no report,
+// and the belief reads with six digits: 0.94, not the 17-digit
+// 0.93999999999999995 the search for telling-apart digits ends on.
+func TestWitnessSamePointReadsShort(t *testing.T) {
+	q := []float64{0.94, 0.05, 0.01}
+	b, _, named := Witness(q, q, true)
+	if named || b != "(0.94, 0.05, 0.01)" {
+		t.Errorf("Witness(q, q) = %q named %v, want (0.94, 0.05, 0.01) not named", b, named)
+	}
+	b, r, named := Witness(q, []float64{0.94, 0.05, 0.010000000001}, true)
+	if !named || b == r {
+		t.Errorf("distinct points read %q and %q (named %v), want two readings", b, r, named)
+	}
+}

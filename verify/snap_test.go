@@ -1,0 +1,88 @@
+package verify
+
+import (
+	"context"
+	"math"
+	"testing"
+)
+
+// pay(r, y) = 10 + 10 (r_y - 1/2)|r_y - 1/2| over two outcomes: with t =
+// q - 1/2 the expected pay is 10 + 20 t (r - 1/2)|r - 1/2|, increasing in
+// r for t > 0, so the best report is exactly (1, 0) and the gap is
+// 20 t (1/4 - t^2), largest at t = 1/sqrt(12): 5/(3 sqrt 3) = 0.9622504486
+// (derived by hand). The sharpened witness must read (1, 0), not the
+// (1, 2.75e-19) the squares map of the local search leaves, and the
+// properness check must name the same report.
+func TestSharpenedWitnessOnTheFace(t *testing.T) {
+	a, err := Audit(context.Background(), pay(t, "10 + 10*(p[y] - 0.5)*abs(p[y]-0.5)", 2), nil, Settings{Resolution: 200})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := 5 / (3 * math.Sqrt(3))
+	if math.Abs(a.Gap.Max-want) > 1e-9*want {
+		t.Errorf("gap %.12g, want %.12g", a.Gap.Max, want)
+	}
+	r := a.Gap.BestReport
+	if len(r) != 2 || r[0] != 1 || r[1] != 0 {
+		t.Errorf("best report %v, want exactly (1, 0)", r)
+	}
+	if c := a.Check(NameProperness); c.Report != nil && (c.Report[0] != 1 || c.Report[1] != 0) {
+		t.Errorf("properness witness report %v, want exactly (1, 0)", c.Report)
+	}
+	if math.Abs(a.Gap.Belief[0]-(0.5+1/math.Sqrt(12))) > 1e-6 {
+		t.Errorf("gap belief %v, want %.9g", a.Gap.Belief, 0.5+1/math.Sqrt(12))
+	}
+}
+
+// pay(r, y) = r_y^2 over three outcomes: a vertex report e_1 earns q_1 and
+// the honest report sum q_k^3, and for a fixed q_1 the sum is smallest at
+// q_2 = q_3, so the gap is max_x x - x^3 - (1-x)^3/4, at the root of
+// 1 - 3x^2 + 3(1-x)^2/4 (x = 0.6094757, gap 0.368189833; derived by hand,
+// maximised by golden section). A first search simplex wider than the
+// witness's cell stopped at 0.368189762 while claiming 9 digits.
+func TestSharpenedGapNineDigitsSquaredPayout(t *testing.T) {
+	a, err := Audit(context.Background(), pay(t, "p[y]^2", 3), nil, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	f := func(x float64) float64 { return x - x*x*x - (1-x)*(1-x)*(1-x)/4 }
+	lo, hi := 0.4, 0.9
+	for i := 0; i < 200; i++ {
+		m1, m2 := lo+(hi-lo)/3, hi-(hi-lo)/3
+		if f(m1) < f(m2) {
+			lo = m1
+		} else {
+			hi = m2
+		}
+	}
+	want := f(lo)
+	if math.Abs(a.Gap.Max-want) > 5e-10*want {
+		t.Errorf("gap %.12g, want %.12g (%s)", a.Gap.Max, want, a.Gap.Precision)
+	}
+	if b := a.Gap.Belief; math.Abs(b[1]-b[2]) > 1e-6 || math.Abs(b[0]-lo) > 1e-6 {
+		t.Errorf("gap belief %v, want (%.7f, %.7f, %.7f)", b, lo, (1-lo)/2, (1-lo)/2)
+	}
+}
+
+// pay(r, y) = -|1 - r_y| over two outcomes: a report r for outcome 1
+// expects -q(1-r) - (1-q)r, largest at r = 1 for q > 1/2, against the
+// honest -2q(1-q): the gap (1-q)(2q-1) is 1/8 at q = 3/4 (derived by
+// hand). The grid's own witness is exact; the per-belief refinement must
+// not swap it for the (1, 5.8e-17) its squares map reaches.
+func TestRefinedReportOnTheFace(t *testing.T) {
+	a, err := Audit(context.Background(), pay(t, "-abs(1-p[y])", 2), nil, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if math.Abs(a.Gap.Max-0.125) > 1e-12 {
+		t.Errorf("gap %.12g, want 0.125", a.Gap.Max)
+	}
+	if r := a.Gap.BestReport; r[0] != 1 || r[1] != 0 {
+		t.Errorf("best report %v, want exactly (1, 0)", r)
+	}
+	for _, bg := range a.Beliefs {
+		if r := bg.BestReport; bg.Gap > 1e-9 && bg.Belief[0] > 0.5 && (r[0] != 1 || r[1] != 0) {
+			t.Fatalf("belief %v: best report %v, want exactly (1, 0)", bg.Belief, r)
+		}
+	}
+}
