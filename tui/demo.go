@@ -41,6 +41,20 @@ func DemoHarvest() *design.Design {
 	}
 }
 
+// NewDesign is the blank design the new-design key starts: two outcomes,
+// no title (files are named "design" until the terms give one), and the
+// quadratic rule written out, with a comment saying it is there to be
+// replaced, so the design checks from the first moment.
+func NewDesign() *design.Design {
+	return &design.Design{
+		Version: design.SchemaVersion,
+		Labels:  []string{"yes", "no"},
+		Mode:    design.ModeGenerator,
+		Formula: "# write H(p) here; this is the quadratic rule\n1 - sum(p^2)",
+		Budget:  design.Budget{Floor: 0, Cap: 100, Step: 0.05, Unit: 0.01, Rounding: "nearest"},
+	}
+}
+
 // demos lists the demo designs in the order the demo key cycles them.
 func demos() []func() *design.Design { return []func() *design.Design{DemoFrost, DemoHarvest} }
 

@@ -66,8 +66,8 @@
 // the dialog naming the file ("no file …; check the name").
 //
 // Unsaved changes (`tui/leave.go`, `tui/recover.go`, `tui/recovery`): every key that leaves or
-// replaces the design — q, ctrl+c, the next demo, opening a file, a preset over a formula written by
-// hand — asks first when there are unsaved edits: s saves and then goes on, d goes on without
+// replaces the design — q, ctrl+c, the next demo, F3 (a new, blank design: `NewDesign`), opening a
+// file, a preset over a formula written by hand — asks first when there are unsaved edits: s saves and then goes on, d goes on without
 // saving, esc keeps editing (ctrl+c twice leaves at once). While edits are unsaved they are written,
 // once they settle, atomically to a recovery file in the user's state directory
 // (`Settings.RecoveryDir`); saving or dropping them removes it, and the next start offers what a run

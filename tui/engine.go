@@ -87,7 +87,7 @@ func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress f
 func fromPoint(rep *pointcheck.Report) *CheckReport {
 	out := &CheckReport{Verdict: string(rep.Verdict), Resolution: rep.Grid.Resolution, Points: int64(rep.Grid.Points), Tolerance: rep.Grid.Tolerance, Notes: rep.Notes}
 	for _, ck := range rep.Checks {
-		row := CheckRow{Name: ck.Name, Passed: ck.Passed, Worst: ck.Worst, Note: ck.What}
+		row := CheckRow{Name: ck.Name, Passed: ck.Passed, Worst: ck.Shown(), Note: ck.What}
 		if ck.At != nil {
 			row.Report = ck.At.Report
 		}

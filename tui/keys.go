@@ -13,7 +13,7 @@ import (
 // printable key first.
 type KeyMap struct {
 	// Global.
-	Quit, QuitHard, Help, NextPane, PrevPane, Save, Open, Export, Demo, Backtest, Risk, Research, Terms key.Binding
+	Quit, QuitHard, Help, NextPane, PrevPane, Save, Open, Export, Demo, New, Backtest, Risk, Research, Terms key.Binding
 	// Moving inside a pane and changing the selected item.
 	Up, Down, Less, More, LessFine, MoreFine, Edit, Leave, Toggle key.Binding
 	// Design pane.
@@ -55,6 +55,8 @@ func DefaultKeyMap() KeyMap {
 		Open:     b([]string{"ctrl+f"}, "ctrl+f", "open a design file"),
 		Export:   b([]string{"ctrl+e"}, "ctrl+e", "export the table"),
 		Demo:     b([]string{"ctrl+n"}, "ctrl+n", "next demo design"),
+		// F3: a function key, like the terms' F2, so it works while typing.
+		New:      b([]string{"f3"}, "F3", "new, blank design"),
 		Backtest: b([]string{"ctrl+d"}, "ctrl+d", "backtest a forecast history (data)"),
 		Risk:     b([]string{"ctrl+r"}, "ctrl+r", "risk attitude view"),
 		Research: b([]string{"ctrl+y"}, "ctrl+y", "research view: what research is worth"),
@@ -137,12 +139,12 @@ func (k KeyMap) groups() []helpGroup {
 	f := fieldKeys()
 	join := func(b key.Binding) string { return strings.Join(b.Keys(), "/") }
 	return []helpGroup{
-		{title: "Anywhere", keys: []key.Binding{k.QuitHard, k.Quit, k.Help, k.NextPane, k.PrevPane, k.Save, k.Open, k.Export, k.Demo, k.Backtest, k.Risk, k.Research, k.Terms}},
+		{title: "Anywhere", keys: []key.Binding{k.QuitHard, k.Quit, k.Help, k.NextPane, k.PrevPane, k.Save, k.Open, k.Export, k.Demo, k.New, k.Backtest, k.Risk, k.Research, k.Terms}},
 		{title: "Design pane", keys: []key.Binding{k.Up, k.Down, k.Edit, k.Leave, k.Less, k.More, k.LessFine, k.MoreFine, k.Toggle, k.AddOutcome, k.DropOutcome}},
 		{title: "While typing (formula, labels, values)", notes: []string{
 			"printable keys are text, never shortcuts;",
 			k.Leave.Help().Key + " stops, " + k.NextPane.Help().Key + " moves on; still working:",
-			keyList(k.QuitHard, k.Save, k.Open, k.Export, k.Backtest, k.Risk, k.Research, k.Terms) + " F1",
+			keyList(k.QuitHard, k.Save, k.Open, k.Export, k.Backtest, k.Risk, k.Research, k.Terms, k.New) + " F1",
 			"editor: arrows, home/end, enter new line,",
 			join(f.WordBackward) + " / " + join(f.WordForward) + " word,",
 			join(f.DeleteAfterCursor) + " / " + join(f.DeleteBeforeCursor) + " cut to line end / start,",

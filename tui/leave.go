@@ -22,6 +22,7 @@ const (
 	leaveDemo                      // the next demo design
 	leaveOpen                      // open a design file
 	leavePreset                    // a preset's formula over one written by hand
+	leaveNew                       // a new, blank design
 )
 
 // what names the action in the prompt.
@@ -33,6 +34,8 @@ func (a leaveAction) what() string {
 		return "Opening another design"
 	case leavePreset:
 		return "Taking the preset's formula"
+	case leaveNew:
+		return "Starting a new design"
 	}
 	return "Quitting"
 }
@@ -46,6 +49,8 @@ func (a leaveAction) goOn() string {
 		return "choose a file without saving"
 	case leavePreset:
 		return "replace the formula"
+	case leaveNew:
+		return "start it without saving"
 	}
 	return "quit without saving"
 }
@@ -110,6 +115,14 @@ func (m *Model) doLeave(p leavePrompt, discarded bool) tea.Cmd {
 		m.path = ""
 		cmd := m.replaceDesign(demos()[m.demoIndex]())
 		m.status = "demo design: " + m.d.Title
+		return cmd
+	case leaveNew:
+		if discarded {
+			m.dropRecovery()
+		}
+		m.path = ""
+		cmd := m.replaceDesign(NewDesign())
+		m.status = "a new design: name it in the terms (" + m.keys.Terms.Help().Key + "), write H(p) in the formula"
 		return cmd
 	case leaveOpen:
 		// The design is dropped only once the new one is read; its

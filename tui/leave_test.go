@@ -38,6 +38,7 @@ var leavePaths = []struct {
 	{"next demo", []tea.KeyMsg{keyCtrlN}, func(m *Model) bool { return m.Design().Title == DemoHarvest().Title }},
 	{"open", []tea.KeyMsg{tea_ctrlO()}, func(m *Model) bool { return m.dialog != nil && m.dialog.kind == dialogOpen }},
 	{"preset", []tea.KeyMsg{keyEnter, keyEnter}, func(m *Model) bool { return m.Design().Preset != "" }},
+	{"new", []tea.KeyMsg{{Type: tea.KeyF3}}, func(m *Model) bool { return m.Design().Formula == NewDesign().Formula }},
 }
 
 // Every key that would drop unsaved edits asks first: esc keeps the
@@ -70,7 +71,7 @@ func TestEveryLeaveKeyAsks(t *testing.T) {
 
 // With nothing unsaved, the same keys act at once.
 func TestNothingToLoseNoQuestion(t *testing.T) {
-	for _, lp := range leavePaths[:4] {
+	for _, lp := range append(leavePaths[:4:4], leavePaths[5]) {
 		m := testModel(t, nil, Settings{})
 		start(t, m, 80, 24)
 		press(t, m, lp.keys...)
@@ -290,5 +291,25 @@ func TestLeaveFlow(t *testing.T) {
 	}
 	if f := recoveryFile(t, rec); f != "" {
 		t.Errorf("a recovery file outlived the save: %s", f)
+	}
+}
+
+// A new design is valid, checks at once and is named by no demo: its
+// files are "design.*" until the terms give it a title.
+func TestNewDesign(t *testing.T) {
+	if err := NewDesign().Validate(); err != nil {
+		t.Fatal(err)
+	}
+	m := testModel(t, nil, Settings{})
+	start(t, m, 80, 24)
+	press(t, m, tea.KeyMsg{Type: tea.KeyF3})
+	if m.Design().Title != "" || filepath.Base(m.defaultName("csv")) != "design.csv" {
+		t.Fatalf("new design titled %q, exported as %s", m.Design().Title, m.defaultName("csv"))
+	}
+	if r := m.CheckReport(); r == nil || r.Verdict != "strictly-proper" {
+		t.Fatalf("the new design's check: %+v", r)
+	}
+	if h := headerOf(m); !strings.Contains(h, "untitled design") {
+		t.Fatalf("header %q", h)
 	}
 }

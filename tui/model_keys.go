@@ -185,6 +185,8 @@ func (m *Model) globalKey(km tea.KeyMsg) (tea.Cmd, bool) {
 		return nil, true
 	case !typing && key.Matches(km, k.Demo):
 		return m.leave(leaveDemo, km), true
+	case key.Matches(km, k.New):
+		return m.leave(leaveNew, km), true
 	case !typing && !m.designPane.Picking() && key.Matches(km, k.Quit):
 		return m.leave(leaveQuit, km), true
 	}

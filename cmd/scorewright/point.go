@@ -238,7 +238,7 @@ func printPointReport(e *env, rep *pointcheck.Report, asJSON bool, cert *certifi
 					at += " weighted " + num.Format(c.At.Weights)
 				}
 			}
-			fmt.Fprintf(tw, "%s\t%s\t%.4g\t%s\n", mark, c.Name, c.Worst, at)
+			fmt.Fprintf(tw, "%s\t%s\t%.4g\t%s\n", mark, c.Name, c.Shown(), at)
 			fmt.Fprintf(tw, "\t\t\t  (%s)\n", c.What)
 		}
 		if err := tw.Flush(); err != nil {

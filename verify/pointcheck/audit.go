@@ -93,7 +93,7 @@ func AuditPayout(ctx context.Context, p *Payout, lo, hi float64, s verify.Settin
 	if err != nil {
 		return nil, err
 	}
-	proper := Check{Name: "properness", What: fmt.Sprintf("largest honesty gap max_x E pay(x, Y) - E pay(mean, Y) over %d two- and three-point distributions and a search over every two-point distribution (support and weight), where the gap of a point report is largest", len(ds)), Worst: gap.Max, At: &At{Outcomes: gap.Outcomes, Weights: gap.Weights, Report: []float64{gap.BestReport}}, Passed: gap.Max <= tol*a.scale}
+	proper := Check{Name: "properness", What: fmt.Sprintf("largest honesty gap max_x E pay(x, Y) - E pay(mean, Y) over %d two- and three-point distributions and a search over every two-point distribution (support and weight), where the gap of a point report is largest", len(ds)), Worst: gap.Max, At: &At{Outcomes: gap.Outcomes, Weights: gap.Weights, Report: []float64{gap.BestReport}}, Passed: gap.Max <= tol*a.scale, Slack: tol * a.scale}
 	rep.Gap = &gap
 	bounded := Check{Name: "boundedness", What: "number of grid cells where the pay is not finite", Worst: float64(len(nonFinite)), Passed: len(nonFinite) == 0}
 	if len(nonFinite) > 0 {
@@ -148,7 +148,7 @@ func (a *payAudit) nonnegativity() Check {
 			}
 		}
 	}
-	return Check{Name: "nonnegativity", What: "smallest pay(y, y) - pay(x, y): what the exact report gains over report x when the outcome y is certain", Worst: worst, At: &at, Passed: worst >= -a.tol*a.scale}
+	return Check{Name: "nonnegativity", What: "smallest pay(y, y) - pay(x, y): what the exact report gains over report x when the outcome y is certain", Worst: worst, At: &at, Passed: worst >= -a.tol*a.scale, Slack: a.tol * a.scale}
 }
 
 // affinity: the report-dependent part pay(x, y) - pay(x0, y) must be
@@ -168,7 +168,7 @@ func (a *payAudit) affinity() Check {
 			}
 		}
 	}
-	return Check{Name: "affinity", What: fmt.Sprintf("largest second difference in y of pay(x, y) - pay(%g, y); zero when the report-dependent part is affine in the outcome, which eliciting the mean needs", a.xs[i0]), Worst: worst, At: &at, Passed: worst <= a.tol*a.scale}
+	return Check{Name: "affinity", What: fmt.Sprintf("largest second difference in y of pay(x, y) - pay(%g, y); zero when the report-dependent part is affine in the outcome, which eliciting the mean needs", a.xs[i0]), Worst: worst, At: &at, Passed: worst <= a.tol*a.scale, Slack: a.tol * a.scale}
 }
 
 // gap is the largest honesty gap over the distributions ds, refined

@@ -150,7 +150,8 @@ func (gg *genGrid) concavity() Check {
 		}
 	}
 	c := Check{Name: "concavity", What: "largest phi''(x) on the report grid (<= 0 for a concave generator)", Worst: maxD2, At: &At{Report: []float64{at}}}
-	c.Passed = maxD2 <= gg.tol*math.Max(gg.scaleD2, 1)
+	c.Slack = gg.tol * math.Max(gg.scaleD2, 1)
+	c.Passed = maxD2 <= c.Slack
 	if math.IsInf(maxD2, -1) {
 		c.Passed, c.Worst, c.At = false, math.NaN(), nil
 	}
@@ -158,7 +159,7 @@ func (gg *genGrid) concavity() Check {
 }
 
 func (gg *genGrid) nonnegativity() Check {
-	minD, passed := math.Inf(1), true
+	minD, passed, slack := math.Inf(1), true, 0.0
 	var at At
 	for i, x := range gg.xs {
 		for j, y := range gg.ys {
@@ -167,20 +168,20 @@ func (gg *genGrid) nonnegativity() Check {
 				continue
 			}
 			if v < minD {
-				minD, at = v, At{Outcomes: []float64{y}, Report: []float64{x}}
+				minD, at, slack = v, At{Outcomes: []float64{y}, Report: []float64{x}}, gg.slack(gg.size[i][j])
 			}
 			if v < -gg.slack(gg.size[i][j]) {
 				passed = false
 			}
 		}
 	}
-	return Check{Name: "nonnegativity", What: "smallest effort D(y, x) on the grid (>= 0)", Worst: minD, At: &at, Passed: passed}
+	return Check{Name: "nonnegativity", What: "smallest effort D(y, x) on the grid (>= 0)", Worst: minD, At: &at, Passed: passed, Slack: slack}
 }
 
 // affinity: Phi(y, x) at the midpoint of two outcomes equals the mean of
 // its values there, for every report on the grid.
 func (gg *genGrid) affinity(ev *point.Evaluator) Check {
-	worst, passed := 0.0, true
+	worst, passed, slack := 0.0, true, 0.0
 	var at At
 	ys := gg.ys
 	for _, x := range gg.xs {
@@ -196,18 +197,18 @@ func (gg *genGrid) affinity(ev *point.Evaluator) Check {
 				passed = false
 			}
 			if dev > worst {
-				worst, at = dev, At{Outcomes: []float64{ys[j], ys[j+2]}, Report: []float64{x}}
+				worst, at, slack = dev, At{Outcomes: []float64{ys[j], ys[j+2]}, Report: []float64{x}}, gg.slack(size)
 			}
 		}
 	}
-	return Check{Name: "affinity", What: "largest departure of the expected-effort line Phi(y, x) from affine in y", Worst: worst, At: &at, Passed: passed}
+	return Check{Name: "affinity", What: "largest departure of the expected-effort line Phi(y, x) from affine in y", Worst: worst, At: &at, Passed: passed, Slack: slack}
 }
 
 // properness: over the two- and three-point distributions, no grid report
 // beats the mean by more than the slack of the terms involved.
 func (gg *genGrid) properness(ctx context.Context, ev *point.Evaluator, s verify.Settings) (Check, error) {
 	ds := distributions(len(gg.ys) - 1)
-	worst, passed := math.Inf(-1), true
+	worst, passed, slack := math.Inf(-1), true, 0.0
 	var at At
 	for n, d := range ds {
 		if err := tick(ctx, s, n, len(ds)); err != nil {
@@ -239,11 +240,11 @@ func (gg *genGrid) properness(ctx context.Context, ev *point.Evaluator, s verify
 			passed = false
 		}
 		if gap > worst {
-			worst, at = gap, At{Outcomes: vals, Weights: d.w, Report: []float64{bestX}}
+			worst, at, slack = gap, At{Outcomes: vals, Weights: d.w, Report: []float64{bestX}}, gg.slack(sizeMean+bestSize)
 		}
 	}
 	done(s, len(ds))
-	return Check{Name: "properness", What: fmt.Sprintf("largest amount by which a report on the grid beats the mean in expected effort, over %d two- and three-point distributions", len(ds)), Worst: worst, At: &at, Passed: passed}, nil
+	return Check{Name: "properness", What: fmt.Sprintf("largest amount by which a report on the grid beats the mean in expected effort, over %d two- and three-point distributions", len(ds)), Worst: worst, At: &at, Passed: passed, Slack: slack}, nil
 }
 
 // tieSamples is how many points of a segment between neighbouring

@@ -73,6 +73,20 @@ type Check struct {
 	At     *At     `json:"at,omitempty"`
 	// What says in words what Worst measures.
 	What string `json:"what"`
+	// Slack is the allowance of the comparison at the worst place: the
+	// tolerance plus the rounding of the terms that cancel there. A
+	// passed check whose Worst is within it found nothing but rounding.
+	Slack float64 `json:"slack,omitempty"`
+}
+
+// Shown is Worst as the front ends print it: 0 for a value within the
+// comparison's Slack (the -5.6e-17 that rounding leaves of D(y, x) is not
+// a finding and must not read as a report beating the mean).
+func (c Check) Shown() float64 {
+	if math.Abs(c.Worst) <= c.Slack {
+		return 0
+	}
+	return c.Worst
 }
 
 // Gap is the largest honesty gap of a payout: how much more than the mean
