@@ -26,7 +26,7 @@ const certifyUsage = "[--certify [--deadline 30s] [--epsilon E]]"
 
 func addCertifyFlags(fs *flag.FlagSet) *certifyFlags {
 	c := &certifyFlags{}
-	fs.BoolVar(&c.on, "certify", false, "also prove the verdict over the whole simplex by interval arithmetic, or say what share of it was proved")
+	fs.BoolVar(&c.on, "certify", false, "also prove the verdict over the whole simplex (or interval) by interval arithmetic, or say what share of it was proved")
 	fs.DurationVar(&c.deadline, "deadline", certify.DefaultDeadline, "time allowed for --certify")
 	fs.Float64Var(&c.epsilon, "epsilon", 0, "audit --certify: the gain a report may have and still count as honest (0: a hundredth of a percent of the payments' spread)")
 	return c

@@ -174,14 +174,3 @@ func quadForm(m []iv.Interval, v []float64) iv.Interval {
 	}
 	return s
 }
-
-// centreMax is the largest eigenvalue of the midpoint matrix of m (not a
-// bound: a guide to where the enclosure's bound should end up).
-func centreMax(m []iv.Interval, d int) float64 {
-	var eig mat.EigenSym
-	if !bounded(m) || !eig.Factorize(centre(m, d), false) {
-		return math.NaN()
-	}
-	vals := eig.Values(nil)
-	return vals[d-1]
-}

@@ -52,11 +52,13 @@ type payRun struct {
 }
 
 // Payout proves that no report gains more than Settings.Epsilon over the
-// honest one for any belief. It first tries the generator argument
-// (payout_convex.go): one pass over report boxes that proves every belief
-// at once where the honest expected pay is convex and the first-order
-// condition holds closely. The report boxes left, it bounds, over pairs
-// of a belief box Q and
+// honest one for any belief. It first tries, briefly, the generator
+// argument (payout_convex.go): one pass over report boxes that proves
+// every belief at once where the honest expected pay is convex and the
+// first-order condition holds closely; then a short hunt for a witness
+// over pairs; then the generator argument with most of the time left.
+// The report boxes that leaves (or everything, if it did not finish), it
+// bounds over pairs of a belief box Q and
 // a report box R, the gain E_q[pay(r)] - E_q[pay(q)] from above, first
 // directly and then by the mean-value form sum_y q_y ∇pay_y·(r - q) on
 // the hull of the two boxes (which shrinks with the square of the box
@@ -80,53 +82,99 @@ func Payout(ctx context.Context, pay *payout.Payout, s Settings) (*Result, error
 	res := &Result{Kind: Certified, Outcomes: n, Epsilon: p.eps}
 	tk := &ticker{fn: s.Progress, start: start}
 	whole := wholeBox(n)
-	h := &pairHeap{{q: whole, r: whole, u: math.Inf(1)}}
-	if done := p.convexFirst(ctx, pay, s, res, h, whole, tk); done {
+	// The one-pass argument first, briefly: it proves a smooth honest
+	// payout such as the quadratic on a few boxes. If it needs longer, a
+	// short hunt for a witness over pairs, so that a dishonest payout is
+	// caught before the one-pass argument spends the time; then the
+	// one-pass argument with the time left, and the pairs take what it
+	// leaves.
+	h := &pairHeap{}
+	found := false
+	quick, stop := context.WithTimeout(ctx, runTime(s)/20)
+	done := p.convexFirst(quick, pay, s, res, h, whole, tk)
+	stop()
+	if done && res.Verdict == Undecided && ctx.Err() == nil {
+		fresh := func() { *res = Result{Kind: Certified, Outcomes: n, Epsilon: p.eps, Boxes: res.Boxes} }
+		fresh()
+		*h = pairHeap{{q: whole, r: whole, u: math.Inf(1)}}
+		hunt, stop := context.WithTimeout(ctx, runTime(s)/10)
+		found = p.pairs(hunt, s, h, res, tk)
+		stop()
+		if !found && res.Stopped != "" && ctx.Err() == nil {
+			// The one-pass argument may take most of the time left; if it
+			// does not finish, the pairs start again over everything.
+			fresh()
+			*h = (*h)[:0]
+			left, _ := ctx.Deadline()
+			most, stop := context.WithTimeout(ctx, time.Until(left)*4/5)
+			done = p.convexFirst(most, pay, s, res, h, whole, tk)
+			stop()
+			if done && res.Verdict == Undecided && ctx.Err() == nil {
+				fresh()
+				*h, done = pairHeap{{q: whole, r: whole, u: math.Inf(1)}}, false
+			}
+		} else {
+			done = true
+		}
+	}
+	if !done {
+		found = p.pairs(ctx, s, h, res, tk)
+	}
+	if res.Verdict == verify.Proper {
 		res.Elapsed = time.Since(start)
-		tk.tick(res.Share, res.Boxes, true)
+		tk.tick(1, res.Boxes, true)
 		return res, nil
 	}
+	res.Elapsed = time.Since(start)
+	switch {
+	case found:
+	case res.Verdict == Undecided && res.Stopped != "":
+	case res.Open > 0:
+		res.Verdict = Undecided
+		if res.Stopped == "" {
+			res.Stopped = "smallest box reached"
+		}
+	default:
+		res.Verdict, res.Share = verify.Proper, 1
+	}
+	tk.tick(res.Share, res.Boxes, true)
+	return res, nil
+}
+
+// runTime is the run's time, which the phases share.
+func runTime(s Settings) time.Duration {
+	if s.Deadline <= 0 {
+		return DefaultDeadline
+	}
+	return s.Deadline
+}
+
+// pairs runs the pair search on h until it is empty, the context ends
+// or a witness is found (then it returns true, with res.Witness set).
+func (p *payRun) pairs(ctx context.Context, s Settings, h *pairHeap, res *Result, tk *ticker) bool {
 	minW := math.Max(s.minWidth(), 1e-9)
 	for h.Len() > 0 {
-		if ctx.Err() != nil {
-			res.Stopped = "deadline reached"
-			break
-		}
-		if h.Len() > s.maxBoxes() {
-			res.Stopped = "box limit reached"
+		if res.Stopped = limits(ctx, s, h.Len()); res.Stopped != "" {
 			break
 		}
 		pr := heap.Pop(h).(pair)
 		res.Boxes++
 		tk.tick(res.Share, res.Boxes, false)
-		u := p.bound(pr.q, pr.r, false, false)
-		if u <= p.eps {
+		if u := p.bound(pr.q, pr.r, false, false); u <= p.eps {
 			res.Share += pr.q.simplexShare() * pr.r.simplexShare()
 			continue
 		}
 		if w := p.witness(pr.q, pr.r); w != nil {
 			res.Witness, res.Verdict = w, verify.Improper
 			res.Open = h.Len()
-			res.Elapsed = time.Since(start)
-			tk.tick(res.Share, res.Boxes, true)
-			return res, nil
+			return true
 		}
 		if !p.split(h, pr, minW, res) {
 			res.Open++
 		}
 	}
 	res.Open += h.Len()
-	res.Elapsed = time.Since(start)
-	if res.Open > 0 {
-		res.Verdict = Undecided
-		if res.Stopped == "" {
-			res.Stopped = "smallest box reached"
-		}
-	} else {
-		res.Verdict, res.Share = verify.Proper, 1
-	}
-	tk.tick(res.Share, res.Boxes, true)
-	return res, nil
+	return false
 }
 
 // convexFirst runs the generator argument (payout_convex.go) and, when
@@ -135,10 +183,12 @@ func Payout(ctx context.Context, pay *payout.Payout, s Settings) (*Result, error
 func (p *payRun) convexFirst(ctx context.Context, pay *payout.Payout, s Settings, res *Result, h *pairHeap, whole box, tk *ticker) bool {
 	cr := newConvexRun(pay)
 	if cr == nil {
+		*h = pairHeap{{q: whole, r: whole, u: math.Inf(1)}}
 		return false
 	}
 	share, left, boxes, stopped := cr.run(ctx, s, p.eps, tk)
-	res.Share, res.Boxes = share, boxes
+	res.Share = share
+	res.Boxes += boxes
 	switch {
 	case len(left) == 0 && stopped == "":
 		res.Verdict, res.Share, res.Method = verify.Proper, 1, convexMethod

@@ -95,15 +95,14 @@ func dp(y, b, d int) float64 {
 }
 
 // examine bounds, on report box b, G's curvature along the simplex from
-// below (curv; negative when not proved convex) and at b's centre
-// matrix (mid), |t| from above (tau), and |t| at one point x0 of the box
-// from below (at). ok is false when the payments cannot be enclosed
+// below (curv; negative when not proved convex) and above (top), |t|
+// from above (tau), and |t| at one point x0 of the box from below (at). ok is false when the payments cannot be enclosed
 // smoothly. Every sum over outcomes that cancels for an honest payout —
 // sum_y ∂p_y ∇pay_y and sum_y p_y ∇²pay_y against the same sums at x0 —
 // is taken in centred form around x0 (value at x0 plus the Hessians
 // times R - x0) and intersected with the direct form: the quadratic
 // payout's sums then come out exact instead of as wide as the box.
-func (c *convexRun) examine(b box) (curv, mid, tau, at float64, ok bool) {
+func (c *convexRun) examine(b box) (curv, top, tau, at float64, ok bool) {
 	d := c.n - 1
 	x0 := inside(b)
 	for k := range x0 {
@@ -158,8 +157,12 @@ func (c *convexRun) examine(b box) (curv, mid, tau, at float64, ok bool) {
 		}
 	}
 	hi, _ := curvatureSign(neg, d)
+	pos := make([]iv.Interval, d*d)
+	for k, v := range neg {
+		pos[k] = iv.Neg(v)
+	}
 	tau, at = c.residual(b, x0, pt, pb, jt)
-	return -hi, -centreMax(neg, d), tau, at, true
+	return -hi, gershgorin(pos, d), tau, at, true
 }
 
 // residual bounds |t| on b from above, by the mean-value form around x0
@@ -242,37 +245,9 @@ const (
 // boxes examined, and whether the deadline or box limit stopped it
 // (then left also holds what was not examined).
 func (c *convexRun) run(ctx context.Context, s Settings, eps float64, tk *ticker) (share float64, left []box, boxes int, stopped string) {
-	whole := wholeBox(c.n)
-	cglob := math.Inf(1)
-	var store []rbox
-	// Phase A: G convex, box by box; the least curvature found is a
-	// lower bound of G's curvature over the whole simplex.
-	queue := []box{whole}
-	for len(queue) > 0 {
-		if stopped = limits(ctx, s, len(queue)); stopped != "" {
-			return share, append(left, append(queue, boxesOf(store)...)...), boxes, stopped
-		}
-		b := queue[0]
-		queue = queue[1:]
-		boxes++
-		tk.tick(share, boxes, false)
-		if !b.tighten() || b.simplexShare() <= 0 {
-			continue
-		}
-		curv, mid, tau, _, ok := c.examine(b)
-		w, _ := b.width()
-		switch {
-		// Kept once the bound is near the curvature at the centre, so
-		// the least bound over the boxes is near G's least curvature.
-		case ok && curv >= 0 && (curv >= mid/2 || w < handConvex):
-			cglob = math.Min(cglob, curv)
-			store = append(store, rbox{b, tau})
-		case w < handConvex || ok && mid < 0 || !ok && w < handKink:
-			left = append(left, b)
-		default:
-			l, r := b.split()
-			queue = append(queue, l, r)
-		}
+	cglob, store, left, boxes, stopped := c.convexity(ctx, s, eps, tk)
+	if stopped != "" {
+		return 0, append(left, boxesOf(store)...), boxes, stopped
 	}
 	if len(left) > 0 {
 		// G is not proved convex everywhere, and a segment from a report
@@ -316,6 +291,51 @@ func (c *convexRun) run(ctx context.Context, s Settings, eps float64, tk *ticker
 		}
 	}
 	return share, left, boxes, ""
+}
+
+// convexity is the first phase of run: G proved convex box by box; the
+// least curvature found (cglob) is a lower bound of G's curvature over
+// the whole simplex when no box is left.
+func (c *convexRun) convexity(ctx context.Context, s Settings, eps float64, tk *ticker) (cglob float64, store []rbox, left []box, boxes int, stopped string) {
+	cglob = math.Inf(1)
+	queue := []box{wholeBox(c.n)}
+	for len(queue) > 0 {
+		if stopped = limits(ctx, s, len(queue)); stopped != "" {
+			return cglob, store, append(left, queue...), boxes, stopped
+		}
+		b := queue[0]
+		queue = queue[1:]
+		boxes++
+		tk.tick(0, boxes, false)
+		if !b.tighten() || b.simplexShare() <= 0 {
+			continue
+		}
+		curv, top, tau, at0, ok := c.examine(b)
+		w, _ := b.width()
+		// The curvature at a point of the box, for comparison: a box is
+		// kept once its bound is within a factor 8 of it (so the least
+		// bound over the boxes is near G's least curvature), and handed
+		// to the pair search at once where G visibly curves downward.
+		at := math.NaN()
+		if ok {
+			x := inside(b)
+			at, _, _, _, _ = c.examine(box{x, x})
+		}
+		switch {
+		case ok && curv >= 0 && (curv >= at/8 || w < handConvex):
+			cglob = math.Min(cglob, curv)
+			store = append(store, rbox{b, tau})
+		// Where t at a point is large enough that a small step gains
+		// about at0²/(2 top) > eps, the payout is visibly dishonest: the
+		// pair search takes over and finds the witness.
+		case w < handConvex || ok && (at < 0 || at0*at0 > 8*eps*top) || !ok && w < handKink:
+			left = append(left, b)
+		default:
+			l, r := b.split()
+			queue = append(queue, l, r)
+		}
+	}
+	return cglob, store, left, boxes, ""
 }
 
 // limits says why a run must stop now, or "".
