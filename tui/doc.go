@@ -111,7 +111,8 @@
 // Parameters: ←/→ (or a typed value) rewrite the parameter's line of the formula and the editor
 // shows the new text (`setParam`, `rewriteParam`: indentation and a trailing comment kept, the text
 // parsed back to be sure), and an override of the same name from the file gives way to the line, so
-// the formula seen is the one checked and saved. The preset picker marks presets that change what
+// the formula seen is the one checked and saved; a design opened with overrides gets them
+// written into their lines the same way (`foldParams`), with a note. The preset picker marks presets that change what
 // the design forecasts ([point] over outcomes, [outcomes] on an interval) and asks before taking
 // one: the first enter puts the question (what is dropped), the second takes it, esc keeps the
 // design; an unsaved hand-written formula is asked about after that.
