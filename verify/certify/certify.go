@@ -165,7 +165,9 @@ func (r *Result) Statement() string {
 	case r.Verdict == verify.Proper && r.Epsilon > 0:
 		return fmt.Sprintf("certified: no report gains more than %.3g anywhere (%d box pairs)", r.Epsilon, r.Boxes)
 	case r.Verdict == verify.Proper:
-		return fmt.Sprintf("certified proper over the whole simplex; strictly concave proved on %s of it, the rest (next to the faces, where the curvature tends to 0) only concave (%d boxes)",
+		// Where strictness was not shown is not known to be next to the
+		// faces: min(p, 1-p) and p1 (1 - p1) are flat in the interior.
+		return fmt.Sprintf("certified proper over the whole simplex; strictly concave proved on %s of it, the rest only concave (no box there showed curvature below 0: H is flat along some direction, or its curvature tends to 0 at a face) (%d boxes)",
 			pct(r.StrictShare), r.Boxes)
 	}
 	what := "concave"
