@@ -3,6 +3,7 @@ package tui
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -212,6 +213,34 @@ func paramLiteral(n formula.Node) float64 {
 		}
 	}
 	return math.NaN()
+}
+
+// foldParams writes every parameter override of d (from a design file or
+// --param) into its line of the formula, so that the editor shows the
+// values that are checked; it returns the names folded, sorted.
+// Overrides of parameters without a line stay overrides.
+func foldParams(d *design.Design) []string {
+	var names []string
+	for name := range d.Params {
+		names = append(names, name)
+	}
+	slices.Sort(names)
+	var folded []string
+	for _, name := range names {
+		setParam(d, name, d.Params[name])
+		if _, still := d.Params[name]; !still {
+			folded = append(folded, name)
+		}
+	}
+	return folded
+}
+
+// foldedNote tells that parameter overrides were written into the
+// formula, so the changed text is not a surprise.
+func (p *DesignPane) foldedNote(names []string) {
+	if len(names) > 0 {
+		p.note = "now in the formula's lines: " + strings.Join(names, ", ")
+	}
 }
 
 // pruneParams drops overrides for parameters the formula no longer sets.

@@ -111,7 +111,8 @@
 // Parameters: ←/→ (or a typed value) rewrite the parameter's line of the formula and the editor
 // shows the new text (`setParam`, `rewriteParam`: indentation and a trailing comment kept, the text
 // parsed back to be sure), and an override of the same name from the file gives way to the line, so
-// the formula seen is the one checked and saved. The preset picker marks presets that change what
+// the formula seen is the one checked and saved; a design opened with overrides gets them
+// written into their lines the same way (`foldParams`), with a note. The preset picker marks presets that change what
 // the design forecasts ([point] over outcomes, [outcomes] on an interval) and asks before taking
 // one: the first enter puts the question (what is dropped), the second takes it, esc keeps the
 // design; an unsaved hand-written formula is asked about after that.
@@ -174,7 +175,11 @@
 // with the same inputs (largest 9.52 points at belief 0.14), coefficient 0 showing none, shading
 // toward 1/2 at every belief, a CARA best report against the first-order condition derived by
 // hand, the harvest table, an edit and a replaced run, golden risk views, and a teatest flow
-// (open, CRRA 2, wait for the curve, coefficient 0, quit). `.ci/e2e-tui.sh` drives the real binary in tmux, including loading the frost
+// (open, CRRA 2, wait for the curve, coefficient 0, quit). `tui/leave_test.go`: every leave path (q, ctrl+c, the next demo, F3, opening a file, a
+// preset over a hand-written formula) asks and esc keeps the design, s saves first, the recovery
+// file follows the edits, is offered after ctrl+c twice (restore, drop, keep aside) and for a
+// design file, and a teatest flow saves first with a tab-completed path and quits.
+// `tui/header_test.go`: the header's verdict and kind, and the key line. `.ci/e2e-tui.sh` drives the real binary in tmux, including loading the frost
 // history and waiting for the reliability picture. `go test ./tui -run '^$' -bench 'Update|View'` measures Update while a check runs, Update
 // for a typed key, and drawing the screen.
 package tui

@@ -132,6 +132,8 @@ func New(d *design.Design, path string, set Settings, st Styles) *Model {
 	}
 	keys := DefaultKeyMap()
 	ctx, cancel := context.WithCancel(context.Background())
+	d = cloneDesign(d)
+	folded := foldParams(d)
 	m := &Model{
 		set: set, st: st, keys: keys, d: cloneDesign(d), path: path,
 		ctx: ctx, cancelAll: cancel, gen: 1, savedGen: 1, lower: paneChecks,
@@ -150,6 +152,7 @@ func New(d *design.Design, path string, set Settings, st Styles) *Model {
 	}
 	m.helpView.KeyMap = viewport.KeyMap{Up: keys.Up, Down: keys.Down, PageUp: keys.PageUp, PageDown: keys.PageDown}
 	m.designPane.Focus()
+	m.designPane.foldedNote(folded)
 	m.checks.edited()
 	return m
 }
@@ -374,7 +377,9 @@ func (m *Model) edited() tea.Cmd {
 // replaceDesign swaps in a whole new design (opened or demo).
 func (m *Model) replaceDesign(d *design.Design) tea.Cmd {
 	m.d = cloneDesign(d)
+	folded := foldParams(m.d)
 	m.designPane.reset(m.d)
+	m.designPane.foldedNote(folded)
 	// A new design's wealth follows its budget again.
 	m.risk.newDesign()
 	m.budget.setTable(nil, nil)

@@ -82,3 +82,29 @@ func goldenParamStep(t *testing.T, w, h int) {
 	press(t, m, keyRight, keyRight, keyRight)
 	golden.RequireEqual(t, []byte(m.View()))
 }
+
+// A design opened with parameter overrides shows their values in the
+// formula's lines: the editor holds the formula that is checked, and the
+// pane says what happened. The design is not marked as edited.
+func TestOverridesFoldedOnOpen(t *testing.T) {
+	d := DemoFrost()
+	d.Params = map[string]float64{"g": 3}
+	m := testModel(t, d, Settings{})
+	start(t, m, 80, 24)
+	got := m.Design()
+	if got.Params != nil || !strings.Contains(got.Formula, "\ng = 3\n") || m.designPane.ta.Value() != got.Formula {
+		t.Fatalf("formula %q, params %v, editor %q", got.Formula, got.Params, m.designPane.ta.Value())
+	}
+	if pv := m.comp.params; len(pv) != 1 || pv[0].Value != 3 {
+		t.Errorf("compiled %+v, want g = 3", pv)
+	}
+	if !strings.Contains(m.designPane.note, "g") || m.Unsaved() {
+		t.Errorf("note %q, unsaved %v", m.designPane.note, m.Unsaved())
+	}
+	// The same through replaceDesign (a file opened, a demo).
+	d.Params = map[string]float64{"g": 1.5}
+	settle(t, m, m.replaceDesign(d))
+	if f := m.Design().Formula; !strings.Contains(f, "\ng = 1.5\n") || m.designPane.ta.Value() != f {
+		t.Errorf("replaced: formula %q, editor %q", f, m.designPane.ta.Value())
+	}
+}

@@ -287,7 +287,10 @@ func propernessNote(c CheckResult, what, better string) string {
 	case c.Strict:
 		return fmt.Sprintf("at every grid belief the honest report is the unique best grid report, and the closest other report falls short by %.6g, at belief %s (strictness judged against the rounding floor %g, relative)", c.Margin, num.Format(c.MarginBelief), StrictFloor)
 	}
-	return fmt.Sprintf("the honest report is a best report at every grid belief, but not the only one: at belief %s the report %s does as well (difference %.3g)", num.Format(c.MarginBelief), num.Format(c.MarginReport), c.Margin)
+	// The tie is confirmed (strictness.go: H is affine on the segment), so
+	// the computed difference, within StrictFloor of 0, is rounding; its
+	// -8.3e-17 must not read as one report doing better.
+	return fmt.Sprintf("the honest report is a best report at every grid belief, but not the only one: at belief %s the report %s does as well (difference 0 up to rounding)", num.Format(c.MarginBelief), num.Format(c.MarginReport))
 }
 
 // gainNote says what a forecaster gains by a misreport, naming belief and

@@ -3,6 +3,7 @@ package verify
 import (
 	"context"
 	"math"
+	"strings"
 	"testing"
 )
 
@@ -84,5 +85,26 @@ func TestRefinedReportOnTheFace(t *testing.T) {
 		if r := bg.BestReport; bg.Gap > 1e-9 && bg.Belief[0] > 0.5 && (r[0] != 1 || r[1] != 0) {
 			t.Fatalf("belief %v: best report %v, want exactly (1, 0)", bg.Belief, r)
 		}
+	}
+}
+
+// H = p1 (1 - p1) over three outcomes depends on p1 alone, so it is affine
+// along every segment that keeps p1 fixed: (0.88, 0.06, 0.06) and
+// (0.88, 0.12, 0) tie exactly (derived by hand). The tie's note must say
+// the difference is 0, not print the -8.3e-17 rounding leaves.
+func TestTieNoteReadsZero(t *testing.T) {
+	rep, err := CheckRule(context.Background(), rule(t, "p1*(1-p1)", 3), Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	c := rep.Check(NameProperness)
+	if !c.Passed || c.Strict {
+		t.Fatalf("properness passed %v strict %v; want proper, not strict", c.Passed, c.Strict)
+	}
+	if c.MarginBelief[0] != c.MarginReport[0] {
+		t.Errorf("tie witness %v / %v changes p1; H is not affine there", c.MarginBelief, c.MarginReport)
+	}
+	if !strings.Contains(c.Note, "difference 0 up to rounding") || strings.Contains(c.Note, "e-1") {
+		t.Errorf("note %q", c.Note)
 	}
 }
