@@ -248,6 +248,21 @@ func faceOnlyCells(p *Program) []bool {
 		}
 		out[c] = pos || neg
 	}
+	// A product (or positive power) of such cells keeps one sign too,
+	// and vanishes only where a factor does: on the faces (p1*p2).
+	for _, in := range p.code {
+		for l := int32(0); l < in.w; l++ {
+			a, b := in.a+l*in.sa, in.b+l*in.sb
+			switch in.op {
+			case opMul:
+				out[in.dst+l] = out[in.dst+l] || out[a] && out[b]
+			case opSq:
+				out[in.dst+l] = out[in.dst+l] || out[a]
+			case opPowK:
+				out[in.dst+l] = out[in.dst+l] || out[a] && in.k > 0
+			}
+		}
+	}
 	return out
 }
 

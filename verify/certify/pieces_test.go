@@ -214,3 +214,29 @@ func TestPowerRuleStrictEverywhere(t *testing.T) {
 }
 
 func ftoa(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
+
+// sqrt(p1*p2) (issue 10): for two outcomes H = sqrt(p(1-p)) is strictly
+// concave, its curvature unbounded at both ends — a limit at the faces,
+// since p1*p2 vanishes only there — so it is proved strictly proper, and
+// brute force over reports with the closed form agrees. For three
+// outcomes it is homogeneous of degree 1 in (p1, p2), so affine along
+// rays from the vertex p3 = 1 (derived by hand): proper but never
+// strictly, and the certificate must not say either strictly proper or
+// improper.
+func TestGeometricMeanGenerator(t *testing.T) {
+	gm := closedForm{
+		h: func(p []float64) float64 { return math.Sqrt(p[0] * p[1]) },
+		grad: func(p []float64) []float64 {
+			return []float64{0.5 * math.Sqrt(p[1]/p[0]), 0.5 * math.Sqrt(p[0]/p[1])}
+		},
+	}
+	res := certifyFormula(t, "sqrt(p1*p2)", 2, Settings{Deadline: time.Minute})
+	if res.Verdict != verify.StrictlyProper {
+		t.Fatalf("n=2: %s", res.Statement())
+	}
+	bruteStrict(t, "sqrt(p1*p2)", gm, 2, 40)
+	res = certifyFormula(t, "sqrt(p1*p2)", 3, Settings{Deadline: 2 * time.Second})
+	if res.Verdict == verify.StrictlyProper || res.Verdict == verify.Improper {
+		t.Fatalf("n=3: %s", res.Statement())
+	}
+}
