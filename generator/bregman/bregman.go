@@ -154,7 +154,7 @@ func (s *Scorer) Entropy(q []float64) float64 {
 	if h != h && onBoundary(q) {
 		h = s.boundaryValue(q)
 	}
-	return h
+	return h + 0 // -0 (the power rule's (1-1-0)/(g-1) at a vertex) reads as a negative entropy
 }
 
 // Efforts writes L(p, k) for every outcome k into dst and returns H(p).
@@ -171,7 +171,7 @@ func (s *Scorer) Efforts(dst, p []float64) float64 {
 		if h != h {
 			h = s.boundaryValue(p)
 		}
-		return h
+		return h + 0 // -0 reads as a negative entropy
 	}
 	gp := Dot(s.grad, p)
 	for k := range dst {
@@ -230,7 +230,7 @@ func (s *Scorer) Binary(p float64) (h, dh, w float64) {
 		return b.Binary(p)
 	}
 	x := [2]float64{p, 1 - p}
-	h = s.ev.Hessian(s.hess, s.grad, x[:])
+	h = s.ev.Hessian(s.hess, s.grad, x[:]) + 0 // -0 reads as a negative entropy
 	dh = s.grad[0] - s.grad[1]
 	// 0 - x, not -x: a linear h has weight +0, not the -0 that reads as
 	// a negative weight wherever it is printed.

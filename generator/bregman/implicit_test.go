@@ -43,3 +43,21 @@ func TestImplicitLastCoordinateOnFace(t *testing.T) {
 		t.Fatal("no face point rounds outside the simplex: the test no longer tests the NaN case")
 	}
 }
+
+// The power generator with g = 1/2, H = (1 - p^0.5 - (1-p)^0.5)/(0.5-1),
+// is 0 at a vertex (derived by hand); the formula's arithmetic gives -0
+// there, which prints as "-0", a negative entropy. Every path that returns
+// H must give +0.
+func TestEntropyAtVertexIsPositiveZero(t *testing.T) {
+	s := scorer(t, "(1 - p^0.5 - (1-p)^0.5)/(0.5-1)", 2, nil)
+	eff := make([]float64, 2)
+	v := []float64{1, 0}
+	h1 := s.Entropy(v)
+	h2 := s.Efforts(eff, v)
+	h3, _, _ := s.Binary(1)
+	for i, h := range []float64{h1, h2, h3} {
+		if h != 0 || math.Signbit(h) {
+			t.Errorf("path %d: H(1, 0) = %v (sign bit %v), want +0", i+1, h, math.Signbit(h))
+		}
+	}
+}
