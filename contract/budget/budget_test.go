@@ -384,3 +384,19 @@ func TestFitHitsFloorAndCapExactly(t *testing.T) {
 		}
 	}
 }
+
+// With a report floor the truthful forecaster at the vertex (1, 0) is paid
+// for the floored report (0.99, 0.01): A + B ln 0.99 = 50, the cap, not
+// A - B·H(1, 0) = A (derived by hand from the fit above). The note must
+// name the formula that gives its number.
+func TestTruthfulNoteNamesTheFlooredReport(t *testing.T) {
+	m := stepMenu(t, 2, 0.05, 0.01)
+	f, rc := fit(t, rule(t, "-sum(p*ln(p))", 2), m, design.Budget{Floor: 0, Cap: 50, Unit: 0.01, ReportFloor: 0.01})
+	if math.Abs(f.Truthful.Max-50) > 1e-9 {
+		t.Errorf("truthful maximum %.12g, want 50", f.Truthful.Max)
+	}
+	note := f.Notes(rc)[0]
+	if strings.Contains(note, "A - B·H(q)") || !strings.Contains(note, "raised to the report floor") {
+		t.Errorf("note %q", note)
+	}
+}

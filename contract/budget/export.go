@@ -101,9 +101,16 @@ const gridCaveat = "; a grid search: evidence, not proof"
 // Notes are the findings a table's record carries besides the verdict.
 func (f *Fit) Notes(rc *Recheck) []string {
 	tr := f.Truthful
+	// The truthful forecaster is paid for the report raised to the floor
+	// and clamped (paidReport), so the formula names what is paid.
 	formula := "A - B·H(q)"
-	if f.Clamp > 0 {
+	switch {
+	case f.Clamp > 0 && f.ReportFloor > 0:
+		formula = "A - B·Phi(q, q raised to the report floor and clamped)"
+	case f.Clamp > 0:
 		formula = "A - B·Phi(q, clamped q)"
+	case f.ReportFloor > 0:
+		formula = "A - B·Phi(q, q raised to the report floor)"
 	}
 	notes := []string{
 		fmt.Sprintf("expected pay of a truthful forecaster under the exact rule, %s before rounding and menu, ranges from %s (belief %s) to %s (belief %s), over %s",
