@@ -51,6 +51,9 @@ func (f *Findings) IdentifiedLine() string {
 	case f.Point != nil && f.Point.Identified != nil && f.Point.Identified.OutcomeTerm:
 		id := f.Point.Identified
 		return fmt.Sprintf("identified: g(y) - %.6g * (effort of preset %s), with a term g in the outcome alone that changes no incentive", id.Scale, id.Preset)
+	case f.Point != nil && f.Point.Identified != nil && f.Point.Identified.Shift == 0:
+		id := f.Point.Identified
+		return fmt.Sprintf("identified: -%.6g * (effort of preset %s)", id.Scale, id.Preset)
 	case f.Point != nil && f.Point.Identified != nil:
 		id := f.Point.Identified
 		return fmt.Sprintf("identified: %.6g - %.6g * (effort of preset %s)", id.Shift, id.Scale, id.Preset)

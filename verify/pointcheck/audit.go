@@ -334,7 +334,11 @@ func identify(pm [][]float64, xs, ys []float64, scale, tol float64, cands []Cand
 		}
 		id := &Identified{Preset: c.Name, Scale: s}
 		if gmax-gmin <= limit {
-			id.Shift = (gmin + gmax) / 2
+			// A shift within the fit's tolerance of 0 is rounding: the
+			// squared-error payout's 1.4e-17 must read 0.
+			if id.Shift = (gmin + gmax) / 2; math.Abs(id.Shift) <= limit {
+				id.Shift = 0
+			}
 		} else {
 			id.OutcomeTerm = true
 		}

@@ -5,6 +5,7 @@ import (
 	"math"
 	"testing"
 
+	"scorewright/generator/point"
 	"scorewright/verify"
 )
 
@@ -41,5 +42,23 @@ func TestShownWorstIsZeroWithinSlack(t *testing.T) {
 		if (c.Name == "concavity" || c.Name == "nonnegativity") && (c.Passed || c.Shown() == 0) {
 			t.Errorf("x^3: %s passed %v shown %g; want a failure with its amount", c.Name, c.Passed, c.Shown())
 		}
+	}
+}
+
+// -(x - y)^2 on [0, 1] is the squared-error effort with scale 1 and no
+// shift (derived by hand); the fitted shift, (gmin + gmax)/2 of values
+// that are 0 up to rounding, must read 0, not 1.4e-17.
+func TestIdentifiedShiftZero(t *testing.T) {
+	sq, _ := point.New("-x^2", 0, 1, point.Options{})
+	p, err := NewPayout("-(x-y)^2", nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	r, err := AuditPayout(context.Background(), p, 0, 1, verify.Settings{}, []Candidate{{"squared-error", sq}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if id := r.Identified; id == nil || id.Shift != 0 || math.Abs(id.Scale-1) > 1e-9 {
+		t.Errorf("identified %+v, want squared-error, scale 1, shift exactly 0", id)
 	}
 }
