@@ -3,6 +3,8 @@
 # written: the CORP lines it quotes, the same report from the CSV and the
 # JSON lines copy, the figure, and a quote left open named by its lines.
 set -euo pipefail
+# A failed step names its line, so a silent grep -q says where it stopped.
+trap 'echo "e2e-backtest: failed at line $LINENO: $BASH_COMMAND" >&2' ERR
 cd "$(dirname "$0")/.."
 root=$PWD
 work=$(mktemp -d)
@@ -17,7 +19,7 @@ hist="$root/testdata/histories"
 grep -q '^  Gannet       late  rule A       0.26    0.176828  0.0339002  0.241872  0.3848$' jsonl.txt
 grep -q '^  Tern         late  rule A       0.26    0.193369  0.0319807  0.223411  0.3848$' jsonl.txt
 grep -q '^  2026-01         54   492.74$' jsonl.txt
-grep -q '^  Gannet            150  1367.43   9.116       1         0$' jsonl.txt
+grep -q '^  Gannet            150  1367.43   9.116       1$' jsonl.txt
 grep -q 'no report menu was given: every forecast is paid by the exact formula' jsonl.txt
 head -c 8 ferry.png | grep -q 'PNG'
 

@@ -3,6 +3,8 @@
 # binary, export an orchard co-operative's frost-night table in every
 # format, and check the refusals and exit statuses the CLI contract fixes.
 set -euo pipefail
+# A failed step names its line, so a silent grep -q says where it stopped.
+trap 'echo "e2e-table: failed at line $LINENO: $BASH_COMMAND" >&2' ERR
 cd "$(dirname "$0")/.."
 work=$(mktemp -d)
 trap 'rm -rf "$work"' EXIT

@@ -4,6 +4,8 @@
 # the window is resized to 80x24 and 60x20, and the program quits. The
 # risk view is opened on both demos.
 set -euo pipefail
+# A failed step names its line, so a silent grep -q says where it stopped.
+trap 'echo "e2e-tui: failed at line $LINENO: $BASH_COMMAND" >&2' ERR
 cd "$(dirname "$0")/.."
 
 if ! command -v tmux >/dev/null 2>&1; then

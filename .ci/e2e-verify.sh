@@ -4,6 +4,8 @@
 # harvest outlook, audit payout formulas, and check the exit statuses and
 # JSON fields the CLI contract fixes.
 set -euo pipefail
+# A failed step names its line, so a silent grep -q says where it stopped.
+trap 'echo "e2e-verify: failed at line $LINENO: $BASH_COMMAND" >&2' ERR
 cd "$(dirname "$0")/.."
 work=$(mktemp -d)
 trap 'rm -rf "$work"' EXIT
