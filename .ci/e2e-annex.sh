@@ -6,7 +6,7 @@
 # poppler-utils when missing.
 set -euo pipefail
 # A failed step names its line, so a silent grep -q says where it stopped.
-trap 'echo "e2e-annex: failed at line $LINENO: $BASH_COMMAND" >&2' ERR
+trap '[[ $- != *e* ]] || echo "e2e-annex: failed at line $LINENO: $BASH_COMMAND" >&2' ERR
 cd "$(dirname "$0")/.."
 if ! command -v pdftotext >/dev/null || ! command -v pdftoppm >/dev/null || ! command -v pdfdetach >/dev/null; then
   (apt-get install -y poppler-utils >/dev/null 2>&1 || { apt-get update >/dev/null && apt-get install -y poppler-utils >/dev/null; })

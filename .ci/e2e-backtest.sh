@@ -4,7 +4,7 @@
 # JSON lines copy, the figure, and a quote left open named by its lines.
 set -euo pipefail
 # A failed step names its line, so a silent grep -q says where it stopped.
-trap 'echo "e2e-backtest: failed at line $LINENO: $BASH_COMMAND" >&2' ERR
+trap '[[ $- != *e* ]] || echo "e2e-backtest: failed at line $LINENO: $BASH_COMMAND" >&2' ERR
 cd "$(dirname "$0")/.."
 root=$PWD
 work=$(mktemp -d)

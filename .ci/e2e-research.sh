@@ -3,7 +3,7 @@
 # lines the README quotes checked, and the command's refusals.
 set -euo pipefail
 # A failed step names its line, so a silent grep -q says where it stopped.
-trap 'echo "e2e-research: failed at line $LINENO: $BASH_COMMAND" >&2' ERR
+trap '[[ $- != *e* ]] || echo "e2e-research: failed at line $LINENO: $BASH_COMMAND" >&2' ERR
 cd "$(dirname "$0")/.."
 work=$(mktemp -d)
 trap 'rm -rf "$work"' EXIT

@@ -5,7 +5,7 @@
 # risk view is opened on both demos.
 set -euo pipefail
 # A failed step names its line, so a silent grep -q says where it stopped.
-trap 'echo "e2e-tui: failed at line $LINENO: $BASH_COMMAND" >&2' ERR
+trap '[[ $- != *e* ]] || echo "e2e-tui: failed at line $LINENO: $BASH_COMMAND" >&2' ERR
 cd "$(dirname "$0")/.."
 
 if ! command -v tmux >/dev/null 2>&1; then
