@@ -15,6 +15,7 @@ import (
 	"github.com/charmbracelet/bubbles/viewport"
 	tea "github.com/charmbracelet/bubbletea"
 
+	"scorewright"
 	"scorewright/contract/backtest"
 	"scorewright/contract/backtest/history"
 	"scorewright/contract/budget"
@@ -65,7 +66,7 @@ type (
 )
 
 // backtestCmd replays the history at path under design d, paid as its
-// fitted table pays (budget.TableTerms, as `scorewright
+// fitted table pays (Rule.FitMenu, as `scorewright
 // backtest` pays), sending a start, progress and the result.
 func backtestCmd(ctx context.Context, run, gen uint64, d *design.Design, path string) tea.Cmd {
 	tag := func(m tea.Msg) tea.Msg { return btRunMsg{run: run, gen: gen, msg: m} }
@@ -93,7 +94,7 @@ func backtestCmd(ctx context.Context, run, gen uint64, d *design.Design, path st
 
 // replay fits d to its budget and runs the history through it.
 func replay(ctx context.Context, d *design.Design, h *history.Reader, path string, size int64, progress func(float64)) (*BacktestResult, error) {
-	r, err := designRule(d)
+	r, err := outcomesRule(d)
 	if err != nil {
 		return nil, fmt.Errorf("a backtest replays a rule over outcomes: %w", err)
 	}
@@ -104,7 +105,7 @@ func replay(ctx context.Context, d *design.Design, h *history.Reader, path strin
 	if err != nil {
 		return nil, err
 	}
-	fitted, err := budget.TableTerms(ctx, r, menu, d.Budget, true)
+	fitted, err := r.FitMenu(ctx, menu, d.Budget, true)
 	if err != nil {
 		return nil, err
 	}
@@ -112,7 +113,7 @@ func replay(ctx context.Context, d *design.Design, h *history.Reader, path strin
 	if size > 0 {
 		opt.Progress = func(p backtest.Progress) { progress(min(1, float64(p.Offset)/float64(size))) }
 	}
-	res, err := backtest.Run(ctx, h, []backtest.Scheme{backtest.TermsScheme("A", fitted)}, opt)
+	res, err := scorewright.Backtest(ctx, h, []backtest.Scheme{scorewright.Scheme("A", fitted)}, opt)
 	if err != nil {
 		return nil, err
 	}

@@ -37,11 +37,25 @@ type compiled struct {
 
 // designRule builds the Bregman rule of a generator or emphasis design.
 func designRule(d *design.Design) (*bregman.Rule, error) {
-	r, err := scorewright.Open(d)
+	r, err := outcomesRule(d)
 	if err != nil {
 		return nil, err
 	}
 	return r.OverOutcomes()
+}
+
+// outcomesRule opens d as a rule over outcomes for the money side (fits,
+// backtests, risk); a design of another kind gives a
+// *scorewright.NeedsOutcomesError.
+func outcomesRule(d *design.Design) (*scorewright.Rule, error) {
+	r, err := scorewright.Open(d)
+	if err != nil {
+		return nil, err
+	}
+	if _, err := r.OverOutcomes(); err != nil {
+		return nil, err
+	}
+	return r, nil
 }
 
 // compileDesign compiles a copy of d. It never panics; trouble is in err.

@@ -78,7 +78,7 @@ type (
 
 // riskCmd computes, for design d and the inputs, the chosen belief's best
 // report and the distortion curve, fitted as `scorewright distort` fits
-// (contract/budget.StepTerms, contract/risk).
+// (Rule.FitSteps, Rule.Distort).
 func riskCmd(ctx context.Context, run uint64, d *design.Design, in RiskInputs) tea.Cmd {
 	tag := func(m tea.Msg) tea.Msg { return riskRunMsg{run: run, msg: m} }
 	return runStream(ctx, func(send func(tea.Msg, bool)) {
@@ -89,14 +89,14 @@ func riskCmd(ctx context.Context, run uint64, d *design.Design, in RiskInputs) t
 
 // riskRun is the work of riskCmd.
 func riskRun(ctx context.Context, d *design.Design, in RiskInputs, progress func(done, total int64)) (*RiskResult, error) {
-	rule, err := designRule(d)
+	rule, err := outcomesRule(d)
 	var needs *scorewright.NeedsOutcomesError
 	if errors.As(err, &needs) {
 		return nil, fmt.Errorf("the risk view works on rules over outcomes (generator or emphasis designs); this is a %s design", modeName(d))
 	} else if err != nil {
 		return nil, err
 	}
-	fitted, err := budget.StepTerms(rule, d.Budget)
+	fitted, err := rule.FitSteps(d.Budget)
 	var ue *budget.UnboundedError
 	switch {
 	case errors.As(err, &ue) && ue.AtZero:
@@ -104,11 +104,10 @@ func riskRun(ctx context.Context, d *design.Design, in RiskInputs, progress func
 	case err != nil:
 		return nil, err
 	}
-	c := risk.TermsContract(fitted)
-	if in.Kind == risk.CRRA && in.Coef >= 1 && !(in.Wealth+c.MinPay > 0) {
-		return nil, fmt.Errorf("CRRA utility needs positive final wealth: initial wealth %g plus the smallest payment %g is not positive; raise the wealth", in.Wealth, c.MinPay)
+	if minPay := scorewright.SmallestPay(fitted); in.Kind == risk.CRRA && in.Coef >= 1 && !(in.Wealth+minPay > 0) {
+		return nil, fmt.Errorf("CRRA utility needs positive final wealth: initial wealth %g plus the smallest payment %g is not positive; raise the wealth", in.Wealth, minPay)
 	}
-	solver, err := risk.NewSolver(rule, c, in.Utility(), in.Wealth)
+	solver, err := rule.Distort(fitted, in.Utility(), in.Wealth)
 	if err != nil {
 		return nil, err
 	}
@@ -119,14 +118,8 @@ func riskRun(ctx context.Context, d *design.Design, in RiskInputs, progress func
 	// A belief the search cannot settle is shown on its own line; it
 	// never takes the rest of the view with it.
 	chosen, chosenErr := solver.Best(q)
-	fit := fitted.Fit
 	out := &RiskResult{Inputs: in, Labels: append([]string(nil), d.Labels...), Chosen: chosen, ChosenErr: chosenErr,
-		MenuPick: risk.MenuPick(fitted, solver, q)}
-	if menu := fitted.Menu(); menu != nil {
-		out.Pay = fmt.Sprintf("pay = %.6g - %.6g × effort, fitted on the %d-report menu", fit.A, fit.B, len(menu.Reports))
-	} else {
-		out.Pay = fmt.Sprintf("pay = %.6g - %.6g × effort for every report (no menu step: the exact formula pays)", fit.A, fit.B)
-	}
+		MenuPick: solver.MenuPick(q), Pay: solver.PayLine()}
 	beliefs, toward, along := risk.CurveBeliefs(d.N(), d.Budget.ReportFloor)
 	out.Along = along
 	if out.Curve, err = solver.Distortion(ctx, beliefs, progress); err != nil {

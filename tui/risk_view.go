@@ -71,7 +71,8 @@ func describe(in RiskInputs) string {
 // lotteryNote is the remedy, said under every result, naming the export
 // dialog's lottery key.
 func lotteryNote(k KeyMap) string {
-	return "A lottery payment (" + k.Lottery.Help().Key + " in the export dialog: a chance (pay - floor)/(cap - floor) of one prize) removes this distortion for any expected-utility maximiser."
+	// Two lines at 80 columns: the risk view has no line to spare there.
+	return "Paying a chance (pay - floor)/(cap - floor) of one prize (" + k.Lottery.Help().Key + " in the export dialog) removes this distortion for any expected-utility maximiser."
 }
 
 // View is the view as last laid out by refresh.

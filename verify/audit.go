@@ -104,6 +104,10 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	if err != nil {
 		return nil, err
 	}
+	// Identification reads only the pays, so it runs beside the stream
+	// and the off-grid passes, filling the cores their serial steps leave.
+	fitsc, stopFits := identifyAsync(ctx, g, pays, cands, s.Workers, pr)
+	defer stopFits()
 	label := func(k int) string {
 		if len(s.Labels) == n {
 			return s.Labels[k]
@@ -148,12 +152,34 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	}
 	largestGap(rep, &prop, p, g, s.Tolerance)
 	auditVerdict(rep, prop, bounded, ties, p, s.Tolerance)
-	fits, err := identify(ctx, g, pays, cands, s.Workers, pr)
-	if err != nil {
-		return nil, err
+	fr := <-fitsc
+	if fr.err != nil {
+		return nil, fr.err
 	}
-	auditFits(rep, fits)
+	auditFits(rep, fr.fits)
 	return rep, nil
+}
+
+// fitsResult is identify's answer, passed back from its goroutine.
+type fitsResult struct {
+	fits []Identification
+	err  error
+}
+
+// identifyAsync starts identify on its own goroutine. The channel carries
+// its one result; stop cancels it and waits for it to end, so an audit
+// that returns early (an error, a cancelled context) leaves nothing
+// running.
+func identifyAsync(ctx context.Context, g *simplex.Grid, pays *menu, cands []Candidate, w int, pr *pool.Meter) (<-chan fitsResult, func()) {
+	ctx, cancel := context.WithCancel(ctx)
+	out := make(chan fitsResult, 1)
+	done := make(chan struct{})
+	go func() {
+		defer close(done)
+		fits, err := identify(ctx, g, pays, cands, w, pr)
+		out <- fitsResult{fits, err}
+	}()
+	return out, func() { cancel(); <-done }
 }
 
 // auditPays evaluates the payout at every grid report: the menu of pays.

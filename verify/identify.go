@@ -201,16 +201,25 @@ func (f *fitter) fitParam(ctx context.Context, c Candidate, pr *pool.Meter) (v f
 		}
 		return c.Lo + (c.Hi-c.Lo)*u
 	}
+	// The scan's best is the local search's start, which evaluates it
+	// again, and Nelder–Mead revisits points as its simplex shrinks (a
+	// sixth of its evaluations on the presets): a member's fit depends on
+	// u alone, so each u is compiled and fitted once.
+	memo := make(map[float64]float64, identScan+identEvals)
 	cost := func(u float64) float64 {
 		if !(u >= 0 && u <= 1) || ctx.Err() != nil {
 			return math.Inf(1)
 		}
-		pr.Add(pts * gradCost)
-		r, err := c.At(value(u))
-		if err != nil || r == nil || r.Outcomes() != f.g.N {
-			return math.Inf(1)
+		if b, ok := memo[u]; ok {
+			return b
 		}
-		return f.fit(r, step).badness()
+		pr.Add(pts * gradCost)
+		b := math.Inf(1)
+		if r, err := c.At(value(u)); err == nil && r != nil && r.Outcomes() == f.g.N {
+			b = f.fit(r, step).badness()
+		}
+		memo[u] = b
+		return b
 	}
 	bestU, best := 0.0, math.Inf(1)
 	try := func(u float64) {

@@ -21,7 +21,6 @@ import (
 	"scorewright/contract/backtest/history"
 	"scorewright/contract/budget"
 	"scorewright/contract/table"
-	"scorewright/generator/bregman"
 	"scorewright/generator/design"
 	"scorewright/internal/safefile"
 	"scorewright/tui/reliability"
@@ -45,7 +44,7 @@ type backtestScheme struct {
 	d    *design.Design
 	// statement is the rule's formula in one line, with its parameters.
 	statement string
-	rule      *bregman.Rule
+	rule      *scorewright.Rule
 	// terms are the fitted table's; scheme pays as they do (or as the
 	// test hook says).
 	terms  *budget.Terms
@@ -176,14 +175,14 @@ func (s *backtestScheme) open(fs *flag.FlagSet, menuFile string, clamp float64, 
 	if err != nil {
 		return err
 	}
-	if s.rule, err = r.OverOutcomes(); err != nil {
+	if _, err = r.OverOutcomes(); err != nil {
 		return usagef("%v", err)
 	}
-	s.name, s.statement = ruleName(s.d, r), r.Statement()
+	s.rule, s.name, s.statement = r, ruleName(s.d, r), r.Statement()
 	if s.terms, err = backtestTerms(fs, menuFile, clamp, s.rule, s.d); err != nil {
 		return fmt.Errorf("rule %s (%s): %w", s.id, s.name, err)
 	}
-	s.scheme = backtest.TermsScheme(s.id, s.terms)
+	s.scheme = scorewright.Scheme(s.id, s.terms)
 	if hook != nil {
 		hook(s.d, &s.scheme)
 	}
@@ -241,7 +240,7 @@ func (f *backtestFlags) run(e *env, h *history.Reader, size int64, schemes []*ba
 	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
-	res, err := backtest.Run(ctx, h, bs, opt)
+	res, err := scorewright.Backtest(ctx, h, bs, opt)
 	if opt.Progress != nil {
 		fmt.Fprintln(e.stderr)
 	}

@@ -12,7 +12,6 @@ import (
 	"scorewright"
 	"scorewright/contract/budget"
 	"scorewright/contract/risk"
-	"scorewright/generator/bregman"
 	"scorewright/generator/design"
 	"scorewright/internal/num"
 )
@@ -78,8 +77,8 @@ func runDistort(e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	n := rule.Outcomes()
-	solver, err := risk.NewSolver(rule, risk.TermsContract(fitted), u, *wealth)
+	n := d.N()
+	solver, err := rule.Distort(fitted, u, *wealth)
 	if err != nil {
 		return usagef("%v", err)
 	}
@@ -88,19 +87,19 @@ func runDistort(e *env, args []string) error {
 		return err
 	}
 	best, bestErr := solver.Best(q)
-	pick := risk.MenuPick(fitted, solver, q)
+	pick := solver.MenuPick(q)
 
 	beliefs, _, along := risk.CurveBeliefs(n, d.Budget.ReportFloor)
 	curve, err := solver.Distortion(context.Background(), beliefs, nil)
 	if err != nil {
 		return err
 	}
-	out := distortResult(u, *wealth, fitted, q, best, bestErr, pick, curve, along)
+	out := distortResult(u, *wealth, fitted, solver.PayLine(), q, best, bestErr, pick, curve, along)
 	if *asJSON {
 		if err := writeJSON(e.stdout, out); err != nil {
 			return err
 		}
-	} else if err := printDistort(e, u, *wealth, risk.PayDesc(fitted), q, best, pick, curve, along, out); err != nil {
+	} else if err := printDistort(e, u, *wealth, out.Pay, q, best, pick, curve, along, out); err != nil {
 		return err
 	}
 	if len(out.Failed) > 0 {
@@ -110,9 +109,9 @@ func runDistort(e *env, args []string) error {
 }
 
 // distortTerms opens the design of the flags, a rule over outcomes, and
-// fits it to its budget as a risk computation does (budget.StepTerms),
+// fits it to its budget as a risk computation does (Rule.FitSteps),
 // wording the errors in the command's flags.
-func distortTerms(notes io.Writer, fs *flag.FlagSet, rf *ruleFlags, bf *budgetFlags) (*design.Design, *bregman.Rule, *budget.Terms, error) {
+func distortTerms(notes io.Writer, fs *flag.FlagSet, rf *ruleFlags, bf *budgetFlags) (*design.Design, *scorewright.Rule, *budget.Terms, error) {
 	d, err := rf.design(notes)
 	if err != nil {
 		return nil, nil, nil, err
@@ -127,11 +126,10 @@ func distortTerms(notes io.Writer, fs *flag.FlagSet, rf *ruleFlags, bf *budgetFl
 	if err := bf.apply(fs, d); err != nil {
 		return nil, nil, nil, err
 	}
-	rule, err := r.OverOutcomes()
-	if err != nil {
+	if _, err := r.OverOutcomes(); err != nil {
 		return nil, nil, nil, usagef("%v", err)
 	}
-	fitted, err := budget.StepTerms(rule, d.Budget)
+	fitted, err := r.FitSteps(d.Budget)
 	var ue *budget.UnboundedError
 	var me *budget.MenuError
 	switch {
@@ -145,7 +143,7 @@ func distortTerms(notes io.Writer, fs *flag.FlagSet, rf *ruleFlags, bf *budgetFl
 	case err != nil:
 		return nil, nil, nil, fitError(err)
 	}
-	return d, rule, fitted, nil
+	return d, r, fitted, nil
 }
 
 // distortBelief is --belief read over n outcomes, or the budget's default
@@ -167,9 +165,9 @@ func distortBelief(belief string, d *design.Design, n int) ([]float64, error) {
 }
 
 // distortResult gathers what distort reports, for JSON and text alike.
-func distortResult(u risk.Utility, wealth float64, fitted *budget.Terms, q []float64, best *risk.Result, bestErr error, pick []float64, curve *risk.Curve, along string) distortJSON {
+func distortResult(u risk.Utility, wealth float64, fitted *budget.Terms, pay string, q []float64, best *risk.Result, bestErr error, pick []float64, curve *risk.Curve, along string) distortJSON {
 	out := distortJSON{Utility: u.String(), Wealth: wealth, A: num.Float(fitted.Fit.A), B: num.Float(fitted.Fit.B),
-		Belief: num.Floats(q), MenuReport: num.Floats(pick), Pay: risk.PayDesc(fitted),
+		Belief: num.Floats(q), MenuReport: num.Floats(pick), Pay: pay,
 		Largest: distortPointOf(curve.Largest), Along: along}
 	if bestErr == nil {
 		out.Report, out.Size, out.Status = num.Floats(best.Report), num.Float(best.Size), best.Status

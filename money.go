@@ -1,0 +1,94 @@
+package scorewright
+
+import (
+	"context"
+
+	"scorewright/contract/backtest"
+	"scorewright/contract/backtest/history"
+	"scorewright/contract/budget"
+	"scorewright/contract/risk"
+	"scorewright/generator/design"
+)
+
+// The money side of a rule over outcomes: fits to a budget, backtests and
+// risk. cmd and tui call these, not contract/budget, contract/backtest or
+// contract/risk, so that what a fit, a replay or a risk run means is
+// decided here once; both front ends only print what comes back.
+
+// FitFormula fits the rule to budget b with every report paid by the
+// exact formula A - B·L at the report as written, clamped at clamp when it
+// is above 0 (budget.FormulaTerms). A rule not over outcomes gives a
+// *NeedsOutcomesError.
+func (r *Rule) FitFormula(b design.Budget, clamp float64) (*budget.Terms, error) {
+	rule, err := r.OverOutcomes()
+	if err != nil {
+		return nil, err
+	}
+	return budget.FormulaTerms(rule, b, clamp)
+}
+
+// FitMenu fits the rule to budget b on menu m as the payment table is
+// fitted (budget.TableTerms): a report on the menu is paid its table
+// entry, one off it the same formula rounded. recordFloor says forecasts
+// are recorded at the report floor (a menu built from the step).
+func (r *Rule) FitMenu(ctx context.Context, m *budget.Menu, b design.Budget, recordFloor bool) (*budget.Terms, error) {
+	rule, err := r.OverOutcomes()
+	if err != nil {
+		return nil, err
+	}
+	return budget.TableTerms(ctx, rule, m, b, recordFloor)
+}
+
+// FitSteps fits the rule to budget b as a risk computation does
+// (budget.StepTerms): on the step's menu when b has a step, else by the
+// exact formula.
+func (r *Rule) FitSteps(b design.Budget) (*budget.Terms, error) {
+	rule, err := r.OverOutcomes()
+	if err != nil {
+		return nil, err
+	}
+	return budget.StepTerms(rule, b)
+}
+
+// Scheme is how a backtest pays under fitted terms t, named name in its
+// report (backtest.TermsScheme).
+func Scheme(name string, t *budget.Terms) backtest.Scheme { return backtest.TermsScheme(name, t) }
+
+// Backtest replays history h under the schemes (backtest.Run).
+func Backtest(ctx context.Context, h *history.Reader, schemes []backtest.Scheme, opt backtest.Options) (*backtest.Result, error) {
+	return backtest.Run(ctx, h, schemes, opt)
+}
+
+// Distortion is a risk computation for a rule fitted to its budget: the
+// solver of the best report for a forecaster of utility u, and the terms
+// it was fitted on.
+type Distortion struct {
+	*risk.Solver
+	terms *budget.Terms
+}
+
+// Distort sets up the risk computation of the rule under fitted terms t
+// (from FitSteps) for utility u over initial wealth plus pay.
+func (r *Rule) Distort(t *budget.Terms, u risk.Utility, wealth float64) (*Distortion, error) {
+	rule, err := r.OverOutcomes()
+	if err != nil {
+		return nil, err
+	}
+	s, err := risk.NewSolver(rule, risk.TermsContract(t), u, wealth)
+	if err != nil {
+		return nil, err
+	}
+	return &Distortion{Solver: s, terms: t}, nil
+}
+
+// SmallestPay is the smallest payment terms t can make, as a risk
+// computation counts it (below the floor only where rounding put one).
+func SmallestPay(t *budget.Terms) float64 { return risk.TermsContract(t).MinPay }
+
+// MenuPick is the menu item a forecaster held to the rounded table picks
+// for belief q, nil without a menu.
+func (d *Distortion) MenuPick(q []float64) []float64 { return risk.MenuPick(d.terms, d.Solver, q) }
+
+// PayLine says in words how pay follows from effort and what it was
+// fitted on: the one wording of the command and the workbench.
+func (d *Distortion) PayLine() string { return risk.PayDesc(d.terms) }
