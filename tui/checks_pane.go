@@ -6,6 +6,8 @@ import (
 
 	"github.com/charmbracelet/bubbles/key"
 	"github.com/charmbracelet/bubbles/progress"
+
+	"scorewright/verify"
 )
 
 // ChecksPane shows the checks of the current design and their progress.
@@ -89,6 +91,21 @@ func (p *ChecksPane) finished(r *CheckReport, err error) {
 	if r != nil {
 		p.sel = min(p.sel, len(r.Rows))
 	}
+}
+
+// proof is what an export records of the certificate: its statement when
+// the report is for the design as it stands (no edit since, no run in
+// progress), and whether it proved the rule proper over the whole
+// simplex.
+func (p ChecksPane) proof() (statement string, certified bool) {
+	if p.report == nil || p.stale || p.waiting || p.running || p.blocked != "" {
+		return "", false
+	}
+	c := p.report.Certificate
+	if c == nil {
+		return "", false
+	}
+	return c.Statement, c.Verdict == string(verify.Proper) || c.Verdict == string(verify.StrictlyProper)
 }
 
 // Running reports whether a check is in progress.

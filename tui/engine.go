@@ -245,6 +245,12 @@ func (te tableExporter) Export(ctx context.Context, d *design.Design, req Export
 		return nil, refused(t.MinMargin())
 	}
 	tb := r.Export(t, te.version, date)
+	if req.Certificate != "" {
+		tb.Meta.Certificate = req.Certificate
+		if req.Certified {
+			tb.Meta.VerdictKind = table.Certified
+		}
+	}
 	a, b, clamp := t.PayLine()
 	ax, err := annex.InputFor(d, tb, r.Outcomes(), a, b, clamp, te.version)
 	if err != nil {

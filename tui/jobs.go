@@ -98,6 +98,13 @@ type ExportRequest struct {
 	// Lottery pays a chance of winning one prize instead of money
 	// (contract/lottery, as `scorewright table --lottery`).
 	Lottery bool
+	// Certificate is the statement of the interval certificate the
+	// checks ran on this very design ("" when none ran or the design
+	// changed since); Certified says it proved the rule proper over the
+	// whole simplex, so the record's verdict kind is "certified", as
+	// `scorewright table --certify` writes it.
+	Certificate string
+	Certified   bool
 }
 
 // Messages answering the workbench's background work. Each carries the

@@ -153,8 +153,10 @@ func (m *Model) submitDialog() tea.Cmd {
 		}
 	default:
 		ex, ctx := m.set.Exporter, m.ctx
+		req := ExportRequest{Format: format, Path: path, Overwrite: overwrite, Lottery: lot}
+		req.Certificate, req.Certified = m.checks.proof()
 		return func() tea.Msg {
-			files, err := ex.Export(ctx, d, ExportRequest{Format: format, Path: path, Overwrite: overwrite, Lottery: lot})
+			files, err := ex.Export(ctx, d, req)
 			return exportedMsg{files: files, gen: gen, seq: seq, err: err}
 		}
 	}

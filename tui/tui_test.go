@@ -7,6 +7,7 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+	"time"
 
 	tea "github.com/charmbracelet/bubbletea"
 	"github.com/charmbracelet/x/ansi"
@@ -730,6 +731,47 @@ func TestMeanPayBudget(t *testing.T) {
 	for _, f := range fieldsFor(pm.d) {
 		if f.label == "Mean" {
 			t.Fatal("a point design offers a mean pay")
+		}
+	}
+}
+
+// An export records what the checks proved of the design as it stands:
+// the demo's quadratic rule is strictly proper (a textbook fact: its
+// generator 1 - sum(p^2) has Hessian -2I), the certificate proves it, and
+// the record's verdict kind is "certified" with the statement beside it,
+// as `scorewright table --certify` writes it. The pseudospherical rule is
+// strictly proper too (Gneiting and Raftery 2007, JASA, section 3), but its
+// curvature vanishes on the faces, so in a short deadline the certificate
+// leaves it undecided and the record stays grid evidence.
+func TestExportRecordsTheCertificate(t *testing.T) {
+	for _, tc := range []struct {
+		preset, kind string
+	}{{"", "certified"}, {"pseudospherical", "grid evidence"}} {
+		dir := t.TempDir()
+		d := DemoFrost()
+		if tc.preset != "" {
+			d.Preset, d.Formula, d.Params = tc.preset, "", nil
+			d.Budget.Unit = 0.001 // fine enough for its re-check to pass
+			if _, err := PrepareDesign(d); err != nil {
+				t.Fatal(err)
+			}
+		}
+		m := testModel(t, d, Settings{Dir: dir, Version: "test", CertifyDeadline: 200 * time.Millisecond})
+		start(t, m, 80, 24)
+		r := m.CheckReport()
+		if r == nil || r.Certificate == nil {
+			t.Fatalf("%s: no certificate ran: %+v", tc.kind, r)
+		}
+		press(t, m, tea_ctrlX(), keyDown, keyEnter) // csv → md, export
+		b, err := os.ReadFile(filepath.Join(dir, "orchard-co-operative-frost-night-forecasts.md"))
+		if err != nil {
+			t.Fatalf("%v: %s", err, m.Status())
+		}
+		if !strings.Contains(string(b), "**verdict kind:** "+tc.kind) {
+			t.Errorf("%s (certificate %s): record:\n%s", tc.kind, r.Certificate.Verdict, b)
+		}
+		if tc.kind == "certified" && !strings.Contains(string(b), "certified strictly proper") {
+			t.Errorf("record lacks the certificate's statement:\n%s", b)
 		}
 	}
 }
