@@ -103,16 +103,21 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	rep.Grid.Scale, rep.Grid.Rounding = scaleOf(m)
 	m.seal()
 	affTol := s.Tolerance
-	s.Tolerance = rep.Grid.Slack()
 
 	// Curvature does not see an added constant, so concavity is judged
-	// against the spread alone, without the rounding floor of the sums.
+	// against the spread alone, without the rounding floor of the sums
+	// (the rounding of the Hessian's own terms is allowed point by point).
 	cs := s
 	cs.Tolerance = affTol * rep.Grid.Scale
-	conc, err := concavity(ctx, r, g, cs, scorers, pr)
+	conc, effRound, err := concavity(ctx, r, g, cs, scorers, pr)
 	if err != nil {
 		return nil, err
 	}
+	// The pair checks compare efforts, whose gradients can sum terms far
+	// larger than the result: allow twice the largest bound on their
+	// rounding (one effort on each side of a comparison).
+	rep.Grid.Rounding = math.Max(rep.Grid.Rounding, 2*effRound)
+	s.Tolerance = rep.Grid.Slack()
 	proved := s.Proof.proves()
 	var bs []best
 	if proved {
@@ -123,7 +128,7 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	if err != nil {
 		return nil, err
 	}
-	prop, nonneg, ties := properness(g, m, h, bs, s.Tolerance, rep.Grid.Scale)
+	prop, nonneg, ties := properness(g, m, h, bs, s.Tolerance, rep.Grid.Scale, rep.Grid.Rounding)
 	if g.Sampled && !proved {
 		if err := searchReports(ctx, g, &prop, s, func(int) func(q, p []float64) float64 {
 			sc := r.NewScorer()

@@ -21,7 +21,11 @@ import (
 //
 // Numeric kernel: one pass over the grid (or the lanes) kept whole so
 // the arithmetic reads in one place; it stays longer than 80 lines on purpose.
-func concavity(ctx context.Context, r *bregman.Rule, g *simplex.Grid, s Settings, scorers []*bregman.Scorer, pr *pool.Meter) (CheckResult, error) {
+//
+// It also returns the largest bound on the rounding of an effort over the
+// interior points it examined (projector.effRound), which the pair checks
+// allow for.
+func concavity(ctx context.Context, r *bregman.Rule, g *simplex.Grid, s Settings, scorers []*bregman.Scorer, pr *pool.Meter) (CheckResult, float64, error) {
 	n, G := r.Outcomes(), g.Len()
 	lam := make([]float64, G)
 	projs := make([]*projector, s.Workers)
@@ -36,11 +40,17 @@ func concavity(ctx context.Context, r *bregman.Rule, g *simplex.Grid, s Settings
 		pr.Add(int64(hi-lo) * gradCost)
 	})
 	if err != nil {
-		return CheckResult{}, err
+		return CheckResult{}, 0, err
+	}
+	// Only the grid's efforts meet in the pair checks: the random points
+	// below (some far nearer the boundary) do not count.
+	var effRound float64
+	for _, pj := range projs {
+		effRound = math.Max(effRound, pj.effRound)
 	}
 	off, offLam, err := offGrid(ctx, n, G, s, projs, scorers, pr)
 	if err != nil {
-		return CheckResult{}, err
+		return CheckResult{}, 0, err
 	}
 	T := s.Tolerance
 	var in, bd, between part
@@ -123,7 +133,7 @@ func concavity(ctx context.Context, r *bregman.Rule, g *simplex.Grid, s Settings
 		notes = append(notes, fmt.Sprintf("the Hessian is not finite at %d boundary points (e.g. %s), where the pair checks stand in for curvature", nonFiniteBd, num.Format(nfBd)))
 	}
 	c.Note = strings.Join(notes, "; ")
-	return c, nil
+	return c, effRound, nil
 }
 
 // kink is the worst midpoint violation of concavity: along the segment
@@ -279,11 +289,16 @@ type projector struct {
 	sym  *mat.SymDense
 	eig  mat.EigenSym
 	vals []float64
+	// herr bounds the rounding of each Hessian entry at the last point;
+	// effRound is the largest bound on the rounding of an effort over
+	// the interior points this projector has seen (bregman.Scorer.Rounding).
+	herr     []float64
+	effRound float64
 }
 
 func newProjector(n int) *projector {
 	pj := &projector{n: n, u: make([]float64, n*(n-1)), hess: make([]float64, n*n), tmp: make([]float64, n*(n-1)),
-		sym: mat.NewSymDense(n-1, nil), vals: make([]float64, n-1)}
+		sym: mat.NewSymDense(n-1, nil), vals: make([]float64, n-1), herr: make([]float64, n*n)}
 	// Helmert basis: column c has c+1 entries 1, then -(c+1), scaled.
 	for c := 0; c < n-1; c++ {
 		sc := 1 / math.Sqrt(float64((c+1)*(c+2)))
@@ -296,8 +311,37 @@ func newProjector(n int) *projector {
 }
 
 // largest returns the largest eigenvalue of U^T Hess U at p, or NaN/Inf
-// when the Hessian is not finite there.
+// when the Hessian is not finite there. An eigenvalue within what the
+// rounding of the Hessian's own terms can do is 0: the projection is
+// orthonormal, so an error matrix E moves every eigenvalue by at most
+// ‖E‖₂ ≤ ‖E‖_F (Weyl), and the machine bounds |E| entrywise. A flat 1e-9
+// would be both too loose for a rule with curvature 1e-10 and too tight
+// for a constant written as p·exp(-ln p), whose Hessian sums terms of
+// size 1/p² that cancel to 0.
 func (pj *projector) largest(sc *bregman.Scorer, p []float64) float64 {
+	l := pj.eigen(sc, p)
+	if !(l == l) || math.IsInf(l, 0) || onBoundary(p) {
+		return l
+	}
+	eff, ok := sc.Rounding(pj.herr, p)
+	if !ok {
+		return l
+	}
+	if eff == eff && !math.IsInf(eff, 0) {
+		pj.effRound = math.Max(pj.effRound, eff)
+	}
+	var f float64
+	for _, e := range pj.herr {
+		f += e * e
+	}
+	if math.Abs(l) <= math.Sqrt(f) {
+		return 0
+	}
+	return l
+}
+
+// eigen is largest before rounding is allowed for.
+func (pj *projector) eigen(sc *bregman.Scorer, p []float64) float64 {
 	n, m := pj.n, pj.n-1
 	if h := sc.Hessian(pj.hess, p); h != h {
 		// H itself is undefined here: its derivatives can still come out

@@ -58,10 +58,15 @@
 //     honest pay.
 //  4. Reductions. T is `Grid.Slack()`: `Tolerance` × `Grid.Scale`, the scale being the spread
 //     of the finite efforts or payments on the grid (largest − smallest; 1 when they are all
-//     equal), but at least `Grid.Rounding` = 2·n·ε × the largest finite |value|. So the rule in
+//     equal), but at least `Grid.Rounding` = 2·n·ε × the largest finite |value|, and in a check
+//     at least twice the largest bound on an effort's rounding from the size of the terms its
+//     gradient sums (`bregman.Scorer.Rounding`, `formula.Machine.HessianRounding`: p·(1/p − 1)
+//     is constant, but its gradient is 1/p − 1 − 1/p). So the rule in
 //     millionths and in millions, or with 1e12 added, gets the same verdict (a spread-free
 //     max(1, |value|) scale once called `1e-12*p[y]` proper). Concavity uses Tolerance × Scale
-//     alone (curvature does not see an added constant). properness: gap = Phi(q, q) − min_p
+//     alone (curvature does not see an added constant), and an eigenvalue within the Frobenius
+//     norm of the Hessian's own rounding bound counts as 0. A margin within `Grid.Rounding` is
+//     a candidate tie, confirmed along the segment with the same bound. properness: gap = Phi(q, q) − min_p
 //     Phi(q, p) from L, must be ≤ T; strict when
 //     every other report is worse by more than `StrictFloor`·(Scale + |Phi(q,q)|) (a rounding floor,
 //     1e-13, deliberately far below T: near a vertex the closest grid report of a strictly proper

@@ -30,8 +30,9 @@ type tiePair struct {
 // Numeric kernel: one pass over the grid (or the lanes) kept whole so
 // the arithmetic reads in one place; it stays longer than 80 lines on purpose.
 // The candidate ties it returns are confirmed or dismissed by the check
-// (strictness.go).
-func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T, scale float64) (prop, nonneg CheckResult, ties []tiePair) {
+// (strictness.go). A margin within round (the rounding bound of the
+// compared values, Grid.Rounding) is a tie too: rounding alone can make it.
+func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T, scale, round float64) (prop, nonneg CheckResult, ties []tiePair) {
 	var gapIn, gapBd, negIn, negBd part
 	marginMin := math.Inf(1)
 	var marginQ, marginP []float64
@@ -78,7 +79,7 @@ func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T, scale float
 		if margin < marginMin || marginQ == nil && oarg >= 0 {
 			marginMin, marginQ, marginP = margin, q, op
 		}
-		if !(margin > StrictFloor*(scale+math.Abs(honest))) {
+		if !(margin > math.Max(StrictFloor*(scale+math.Abs(honest)), round)) {
 			if strict || margin < tieMargin {
 				tieMargin, tieQ, tieP = margin, q, op
 			}

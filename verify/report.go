@@ -140,7 +140,11 @@ type Grid struct {
 	// Rounding is the floor of the allowed slack: what rounding can do to
 	// a sum of n values as large as the largest finite |value| (2·n·ε
 	// times it). It matters when the values are far from 0 compared with
-	// their spread (1e12 + 1e-3·L).
+	// their spread (1e12 + 1e-3·L). In a check it is also at least twice
+	// the largest bound on the rounding of an effort at a grid point,
+	// from the size of the terms its gradient sums (bregman
+	// Scorer.Rounding): a constant written as p·(1/p - 1) has efforts
+	// that are sums of ±1/p.
 	Rounding float64
 	// Sampled is true when the points are a random sample of the lattice.
 	Sampled bool

@@ -23,7 +23,9 @@ import (
 // candidate is confirmed with the exact second derivative of H along the
 // segment, which no large or affine part of H disturbs: at flatSamples
 // points of [q, p] the quadratic form v'∇²H v (v = p - q) must vanish up
-// to the rounding of its own terms. For the power rule every term has one
+// to the rounding of its own terms, and of the terms each Hessian entry
+// sums (bregman.Scorer.Rounding: p·exp(-ln p) is affine, but its Hessian
+// entries are sums of ±2/p² that cancel only to rounding). For the power rule every term has one
 // sign, so it never does; for sqrt(p1 p2) along a ray, or a formula flat
 // on a piece, it does.
 
@@ -37,6 +39,7 @@ const flatSamples = 9
 // confirmed.
 func flatSegment(sc *bregman.Scorer, hess, z, a, b []float64) bool {
 	n := len(a)
+	herr := make([]float64, n*n)
 	seen := false
 	for t := 0; t < flatSamples; t++ {
 		f := float64(t) / (flatSamples - 1)
@@ -45,6 +48,16 @@ func flatSegment(sc *bregman.Scorer, hess, z, a, b []float64) bool {
 		}
 		if h := sc.Hessian(hess, z); h != h {
 			return false
+		}
+		bound := 0.0
+		if _, ok := sc.Rounding(herr, z); ok {
+			for i := 0; i < n; i++ {
+				for j := 0; j < n; j++ {
+					if e := math.Abs(b[i]-a[i]) * herr[i*n+j] * math.Abs(b[j]-a[j]); e == e && !math.IsInf(e, 0) {
+						bound += e
+					}
+				}
+			}
 		}
 		var q, size float64
 		finite := true
@@ -71,7 +84,7 @@ func flatSegment(sc *bregman.Scorer, hess, z, a, b []float64) bool {
 			continue
 		}
 		seen = true
-		if math.Abs(q) > 64*0x1p-52*size {
+		if math.Abs(q) > 64*0x1p-52*size+bound {
 			return false
 		}
 	}

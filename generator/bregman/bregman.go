@@ -10,6 +10,7 @@ package bregman
 
 import (
 	"fmt"
+	"math"
 
 	"scorewright/generator/formula"
 )
@@ -195,6 +196,43 @@ func (s *Scorer) Hessian(dst, p []float64) float64 {
 		panic(fmt.Sprintf("bregman: Hessian needs %d entries, got %d", s.n*s.n, len(dst)))
 	}
 	return s.ev.Hessian(dst, s.grad, p)
+}
+
+// RoundingEvaluator is an Evaluator that can also bound the rounding of
+// the derivatives it computes (formula.Machine.HessianRounding). The
+// terms a derivative sums can cancel to far less than their size (a
+// constant written as p·(1/p - 1)); a tolerance must allow for their
+// size, not only the result's.
+type RoundingEvaluator interface {
+	HessianRounding(hess, grad, p []float64) float64
+}
+
+// Rounding writes into dst (n×n, row-major) a bound on the rounding error
+// of each Hessian entry at the interior point p, and returns a bound on
+// the rounding error of every effort L(p, k): the gradient's own bound,
+// plus one rounding of each of the terms H, g_k and <g, p> that the
+// effort sums. ok is false when the evaluator cannot bound its rounding.
+func (s *Scorer) Rounding(dst, p []float64) (effort float64, ok bool) {
+	re, ok := s.ev.(RoundingEvaluator)
+	if !ok {
+		return 0, false
+	}
+	s.check("report", p)
+	h := s.ev.Gradient(s.grad, p)
+	gp := Dot(s.grad, p)
+	re.HessianRounding(dst, s.eff, p)
+	var ge float64
+	for k, e := range s.eff {
+		ge += e * p[k]
+	}
+	u := 0x1p-52
+	for k, e := range s.eff {
+		b := e + ge + u*(3*math.Abs(h)+math.Abs(s.grad[k])+math.Abs(gp))
+		if b > effort {
+			effort = b
+		}
+	}
+	return effort, true
 }
 
 // Expected returns Phi(q, p) = sum_k q_k L(p, k), the expected effort of

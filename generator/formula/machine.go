@@ -31,6 +31,10 @@ type Machine struct {
 	// nanGrad records that a select with a NaN condition set a whole
 	// gradient to NaN in this pass (see Hessian).
 	nanGrad bool
+	// abs makes the chain rule add the absolute value of every term it
+	// forms (HessianRounding): the size of what the derivatives sum,
+	// which bounds what their rounding can do.
+	abs bool
 }
 
 // NewMachine returns a Machine for p.

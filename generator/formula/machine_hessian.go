@@ -47,6 +47,30 @@ func (m *Machine) Hessian(hess, grad, vars []float64) float64 {
 	return m.val[out]
 }
 
+// HessianRounding writes into hess and grad a bound on the rounding error
+// of each entry Hessian (and Gradient) computes at vars, and returns the
+// value. Every derivative is a sum of chain-rule terms; the pass forms the
+// same terms with absolute values (|f'|·|Gu|, |f”|·|Gu||Gu|ᵀ, ...), so it
+// gives Σ|terms|, and the bound is (cells + 1)·ε times it — the running
+// error bound of a sum (Higham 2002, Sec. 3.1, γ_k·Σ|x_i| to first order),
+// with one rounding per cell. Terms that cancel exactly, as in
+// p·(1/p - 1) whose gradient is 1/p - 1 - 1/p, leave their size here
+// though the derivative is 0: that size, not the result, is what a
+// tolerance must allow for.
+func (m *Machine) HessianRounding(hess, grad, vars []float64) float64 {
+	m.abs = true
+	v := m.Hessian(hess, grad, vars)
+	m.abs = false
+	u := float64(m.prog.cells+1) * 0x1p-53
+	for k := range grad {
+		grad[k] *= u
+	}
+	for k := range hess {
+		hess[k] *= u
+	}
+	return v
+}
+
 // secondOrder allocates the second-order store, dense or diagonal.
 // Variables have unit gradients and constants zero ones; both are fixed,
 // so they are set once here.
@@ -217,6 +241,9 @@ func (m *Machine) addCell(G, H []float64, s int) {
 // Terms whose coefficient is exactly zero are skipped so that a structural
 // zero never meets an infinite factor.
 func (m *Machine) unary(i, u int, fu, fuu float64) {
+	if m.abs {
+		fu, fuu = math.Abs(fu), math.Abs(fuu)
+	}
 	nv, hw := m.nv, m.hw
 	G := m.grad[i*nv : (i+1)*nv]
 	H := m.hess[i*hw : (i+1)*hw]
@@ -235,6 +262,9 @@ func (m *Machine) unary(i, u int, fu, fuu float64) {
 // binary applies the chain rule for z = f(a, b) with partials fa, fb and
 // second partials faa, fbb, fab.
 func (m *Machine) binary(i, ia, ib int, fa, fb, faa, fbb, fab float64) {
+	if m.abs {
+		fa, fb, faa, fbb, fab = math.Abs(fa), math.Abs(fb), math.Abs(faa), math.Abs(fbb), math.Abs(fab)
+	}
 	nv, hw := m.nv, m.hw
 	G := m.grad[i*nv : (i+1)*nv]
 	H := m.hess[i*hw : (i+1)*hw]
