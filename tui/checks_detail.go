@@ -170,15 +170,22 @@ func (p ChecksPane) detailText() []string {
 		if c.Note != "" {
 			out = append(out, "what it measures: "+c.Note)
 		}
-		return append(out, gridLine(r), "A grid check is evidence, not proof.")
+		return append(out, gridLine(r), kindLine(r))
 	}
-	kind := "grid evidence"
-	out := []string{"Verdict " + r.Verdict + " (" + kind + ")"}
+	out := []string{"Verdict " + r.Verdict + " (" + r.Kind() + ")"}
 	if c := r.Certificate; c != nil {
 		out = append(out, "Certificate "+c.Verdict+" ("+c.Kind+"): "+c.Statement)
 	}
 	out = append(out, gridLine(r))
-	return append(append(out, r.Notes...), "A grid check is evidence, not proof.")
+	return append(append(out, r.Notes...), kindLine(r))
+}
+
+// kindLine closes the full text with what the verdict rests on.
+func kindLine(r *CheckReport) string {
+	if r.Certified {
+		return "The verdict rests on the certificate's proof; the grid checked only what the proof leaves (boundary beliefs and reports)."
+	}
+	return "A grid check is evidence, not proof."
 }
 
 // detailLines is the selected entry's full text wrapped to the pane.

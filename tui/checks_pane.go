@@ -146,7 +146,7 @@ func (p ChecksPane) View() string {
 		if strings.Contains(verdict, "improper") || !allPassed(r) {
 			vs = st.Fail
 		}
-		head := "Verdict " + vs.Render(verdict) + st.Dim.Render(" (grid evidence)")
+		head := "Verdict " + vs.Render(verdict) + st.Dim.Render(" ("+r.Kind()+")")
 		if p.stale {
 			head = st.Dim.Render("previous design's verdict: " + verdict)
 		}

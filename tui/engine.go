@@ -48,6 +48,17 @@ func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress f
 		return nil, err
 	}
 	vs := verify.Settings{Resolution: s.Resolution, Tolerance: s.Tolerance, Workers: workers(s), Progress: progress}
+	// The certificate goes first, as `check --certify` runs it: what it
+	// proves the grid need not stream again (verify.Settings.Proof), and
+	// the verdict is then certified, not grid evidence. It runs in the
+	// same job, so an edit cancels it with the grid.
+	cert := certifyDesign(ctx, r, s, progress)
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
+	if cert != nil && (cert.Verdict == string(verify.Proper) || cert.Verdict == string(verify.StrictlyProper)) {
+		vs.Proof = &verify.Proof{Verdict: verify.Verdict(cert.Verdict), Statement: cert.Statement}
+	}
 	found, err := r.Examine(ctx, vs)
 	if err != nil {
 		return nil, err
@@ -56,15 +67,14 @@ func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress f
 	switch {
 	case found.Rule != nil:
 		out = fromVerify(found.Rule)
-		out.Certificate = certifyDesign(ctx, r, s, progress)
+		out.Certificate = cert
 		return out, nil
 	case found.Audit != nil:
 		out = fromVerify(&found.Audit.Report)
-		out.Certificate = certifyDesign(ctx, r, s, progress)
 	default:
 		out = fromPoint(found.Point)
-		out.Certificate = certifyDesign(ctx, r, s, progress)
 	}
+	out.Certificate = cert
 	if line := found.IdentifiedLine(); line != "" {
 		out.Notes = append(out.Notes, line)
 	}
@@ -98,7 +108,7 @@ func fromPoint(rep *pointcheck.Report) *CheckReport {
 
 func fromVerify(r *verify.Report) *CheckReport {
 	out := &CheckReport{Verdict: string(r.Verdict), Resolution: r.Grid.Resolution, Points: int64(r.Grid.Points),
-		Sampled: r.Grid.Sampled, Tolerance: r.Grid.Tolerance, Notes: r.Notes}
+		Sampled: r.Grid.Sampled, Tolerance: r.Grid.Tolerance, Notes: r.Notes, Certified: r.Proof != nil}
 	for _, c := range r.Checks {
 		// The worst value as the command prints it: rounding noise is 0.
 		worst := scorewright.CleanWorst(c.Worst, r.Grid)

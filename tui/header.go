@@ -84,7 +84,7 @@ func (m *Model) verdictWords() string {
 		return st.Dim.Render("not checked yet")
 	}
 	r := c.report
-	verdict, kind := r.Verdict, "grid evidence"
+	verdict, kind := r.Verdict, r.Kind()
 	if cert := r.Certificate; cert != nil && cert.Verdict != "" && cert.Verdict != "undecided" {
 		verdict, kind = cert.Verdict, "certified"
 	}

@@ -22,11 +22,23 @@ type CheckReport struct {
 	// not the full grid; the pane says which.
 	Sampled   bool
 	Tolerance float64
+	// Certified is true when the verdict rests on the certificate's
+	// proof (the grid checked only what the proof leaves); false when it
+	// is grid evidence.
+	Certified bool
 	Rows      []CheckRow
 	Notes     []string
 	// Certificate is what the interval certificate proved; nil when none
 	// was run.
 	Certificate *CertificateView
+}
+
+// Kind is the verdict's kind in words: "certified" or "grid evidence".
+func (r *CheckReport) Kind() string {
+	if r.Certified {
+		return "certified"
+	}
+	return "grid evidence"
 }
 
 // CheckRow is one check: pass or fail and its worst witness.

@@ -1,7 +1,6 @@
 package tui
 
 import (
-	"errors"
 	"math"
 	"os"
 	"path/filepath"
@@ -13,10 +12,7 @@ import (
 	"github.com/charmbracelet/x/ansi"
 	"github.com/charmbracelet/x/exp/golden"
 
-	"scorewright/contract/annex"
-	"scorewright/contract/lottery"
 	"scorewright/generator/design"
-	"scorewright/internal/safefile"
 	"scorewright/presets"
 )
 
@@ -272,23 +268,6 @@ func TestOutcomesEditAndCount(t *testing.T) {
 	}
 }
 
-func TestModeSwitchOffersAPayout(t *testing.T) {
-	m := testModel(t, nil, Settings{})
-	start(t, m, 80, 24)
-	press(t, m, keyDown, keyDown, keyRight)
-	d := m.Design()
-	if d.Mode != design.ModePayout || !strings.Contains(d.Formula, "hit") {
-		t.Fatalf("mode %s formula %q", d.Mode, d.Formula)
-	}
-	if !strings.Contains(m.View(), "pay per outcome") {
-		t.Fatal("picture does not show pay for a payout")
-	}
-	press(t, m, keyLeft)
-	if got := m.Design().Formula; got != DemoFrost().Formula {
-		t.Fatalf("back in generator mode the formula is %q", got)
-	}
-}
-
 func TestSaveAsksBeforeOverwriting(t *testing.T) {
 	dir := t.TempDir()
 	m := testModel(t, nil, Settings{Dir: dir})
@@ -356,214 +335,6 @@ func TestResizeKeepsWorking(t *testing.T) {
 	}
 }
 
-// Emphasis mode: the beta weight with a = b = 1 is the quadratic rule up
-// to scale (Buja, Stuetzle & Shen 2005), so the workbench draws it, the
-// checks pass and the budget fits.
-func TestEmphasisMode(t *testing.T) {
-	m := testModel(t, nil, Settings{})
-	start(t, m, 120, 40)
-	press(t, m, keyDown, keyDown, keyRight, keyRight) // generator → payout → emphasis
-	d := m.Design()
-	if d.Mode != design.ModeEmphasis || !strings.Contains(d.Formula, "c^(a-1)") {
-		t.Fatalf("mode %s formula %q", d.Mode, d.Formula)
-	}
-	v := m.View()
-	for _, want := range []string{"emphasis weight w(c)", "✓ compiles", "Verdict strictly-proper", "menu re-check passed"} {
-		if !strings.Contains(v, want) {
-			t.Errorf("view lacks %q:\n%s", want, v)
-		}
-	}
-	// Half squared error (Buja et al. 2005, a = b = 1): at report 0.3 the
-	// efforts are (1-0.3)^2/2 = 0.245 and 0.3^2/2 = 0.045.
-	eff := make([]float64, 2)
-	m.comp.newSampler().scores(eff, []float64{0.3, 0.7})
-	if math.Abs(eff[0]-0.245) > 1e-9 || math.Abs(eff[1]-0.045) > 1e-9 {
-		t.Errorf("efforts at 0.3: %v, want 0.245, 0.045", eff)
-	}
-	// With three outcomes the emphasis mode is skipped.
-	press(t, m, keyLeft, keyLeft, keyUp, keyUp, runes("+"), keyDown, keyDown, keyRight, keyRight)
-	if got := m.Design().Mode; got == design.ModeEmphasis {
-		t.Fatal("emphasis offered for 3 outcomes")
-	}
-}
-
-// Point mode: squared error on [0, 100] (Savage 1971; Gneiting 2011):
-// the effort of report x when y happens is (y - x)^2, the checks pass and
-// the budget pane shows the point table.
-func TestPointMode(t *testing.T) {
-	m := testModel(t, nil, Settings{})
-	start(t, m, 120, 40)
-	press(t, m, keyDown, keyDown, keyRight, keyRight, keyRight) // → point
-	d := m.Design()
-	if d.Mode != design.ModePoint || d.Formula != samplePoint || len(d.Interval) != 2 {
-		t.Fatalf("mode %s formula %q interval %v", d.Mode, d.Formula, d.Interval)
-	}
-	v := m.View()
-	for _, want := range []string{"Interval", "[0, 100]", "effort by report", "Verdict strictly-proper", "report \\ outcome"} {
-		if !strings.Contains(v, want) {
-			t.Errorf("view lacks %q:\n%s", want, v)
-		}
-	}
-	// D(y, x) = (y - x)^2 for phi = -x^2 (derived by hand: phi(x) - 2x(y - x) + y^2).
-	ev := m.comp.point.NewEvaluator()
-	if got := ev.Divergence(75, 30); math.Abs(got-2025) > 1e-9 {
-		t.Errorf("D(75, 30) = %v, want 2025", got)
-	}
-	// Edit the interval.
-	press(t, m, keyUp, keyUp, keyEnter)
-	for i := 0; i < 10; i++ {
-		press(t, m, keyBack)
-	}
-	press(t, m, runes("10, 20"), keyEnter)
-	if iv := m.Design().Interval; iv[0] != 10 || iv[1] != 20 {
-		t.Fatalf("interval %v", iv)
-	}
-	golden.RequireEqual(t, []byte(m.View()))
-	// Next, the point payout audit keeps the interval; then back to
-	// outcomes: the probability step comes back.
-	press(t, m, keyDown, keyDown, keyRight)
-	if d := m.Design(); d.Mode != design.ModePointPayout || len(d.Interval) != 2 || d.Interval[0] != 10 {
-		t.Fatalf("after point: mode %s interval %v", d.Mode, d.Interval)
-	}
-	press(t, m, keyRight)
-	if d := m.Design(); d.Mode != design.ModeGenerator || d.Budget.Step != 0.05 {
-		t.Fatalf("back to generator: mode %s step %v", d.Mode, d.Budget.Step)
-	}
-}
-
-// The export dialog: tab changes the format and the file's extension;
-// an existing file is replaced only after y; the status says where.
-func TestExportDialog(t *testing.T) {
-	dir := t.TempDir()
-	m := testModel(t, nil, Settings{Dir: dir, Version: "test"})
-	start(t, m, 80, 24)
-	press(t, m, tea_ctrlX(), keyDown) // csv → md
-	if m.dialog == nil || m.dialog.Format() != "md" || !strings.HasSuffix(m.dialog.Path(), ".md") {
-		t.Fatalf("format change: %+v", m.dialog.Path())
-	}
-	press(t, m, keyEnter)
-	path := filepath.Join(dir, "orchard-co-operative-frost-night-forecasts.md")
-	b, err := os.ReadFile(path)
-	if err != nil || !strings.Contains(string(b), "| ") {
-		t.Fatalf("markdown export: %v\n%s", err, b)
-	}
-	if !strings.Contains(m.Status(), path) {
-		t.Fatalf("status %q does not say where", m.Status())
-	}
-	press(t, m, tea_ctrlX(), keyEnter) // the dialog keeps md, the format chosen last
-	if m.dialog == nil || !m.dialog.confirm {
-		t.Fatal("no question before replacing an export")
-	}
-	press(t, m, runes("y"))
-	if m.dialog != nil {
-		t.Fatalf("dialog still open: %s", m.dialog.msg)
-	}
-}
-
-// The workbench writes the same record as the table command: an ordered
-// design's outcomes say so, and the formula says what it is.
-func TestExportRecordOrdered(t *testing.T) {
-	dir := t.TempDir()
-	m := testModel(t, DemoHarvest(), Settings{Dir: dir, Version: "test"})
-	start(t, m, 80, 24)
-	press(t, m, tea_ctrlX(), keyDown, keyEnter) // csv → md, export
-	b, err := os.ReadFile(filepath.Join(dir, "orchard-co-operative-harvest-outlook.md"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	for _, want := range []string{"below, near, above (ordered)", "the generator H(p), concave"} {
-		if !strings.Contains(string(b), want) {
-			t.Errorf("record lacks %q:\n%s", want, b)
-		}
-	}
-}
-
-// A point design exports its own table in every format, with the
-// re-check in the budget pane; a table that fails the re-check is refused
-// as a table over outcomes is.
-func TestPointExport(t *testing.T) {
-	dir := t.TempDir()
-	d := &design.Design{Version: 1, Title: "milk yield", Mode: design.ModePoint, Formula: "-x^2", Interval: []float64{0, 40},
-		Budget: design.Budget{Floor: 0, Cap: 20, Step: 10}}
-	ex := defaultExporter("test")
-	if got := ex.Formats(d); strings.Join(got, ",") != strings.Join(annex.ExportFormats(), ",") {
-		t.Fatalf("formats %v", got)
-	}
-	for _, f := range ex.Formats(d) {
-		path := filepath.Join(dir, "milk."+f)
-		files, err := ex.Export(t.Context(), d, ExportRequest{Format: f, Path: path})
-		if err != nil || len(files) != 1 {
-			t.Fatalf("%s export: %v %v", f, files, err)
-		}
-		b, _ := os.ReadFile(path)
-		if len(b) == 0 {
-			t.Fatalf("%s export is empty", f)
-		}
-		if f == "csv" {
-			// Five reports 0, 10, ..., 40; a perfect forecast is paid the cap.
-			if !strings.Contains(string(b), "20") || strings.Count(string(b), "\n") < 5 || !strings.Contains(strings.ToLower(string(b)), "counsel") {
-				t.Fatalf("csv:\n%s", b)
-			}
-		}
-	}
-	if _, err := ex.Export(t.Context(), d, ExportRequest{Format: "csv", Path: filepath.Join(dir, "milk.csv")}); !errors.Is(err, safefile.ErrExists) {
-		t.Fatalf("an existing file was replaced without being asked: %v", err)
-	}
-
-	// Squared error on [0, 10], cap 100: pay = 100 - (y - x)^2, rounded
-	// to 25; a forecaster sure of y = 5 gets 100 from x = 5 and from
-	// x = 4 (99 rounds to 100), a tie (derived by hand; the same case as
-	// the table command's test), so the re-check fails.
-	bad := &design.Design{Version: 1, Title: "milk yield", Mode: design.ModePoint, Formula: "-x^2", Interval: []float64{0, 10},
-		Budget: design.Budget{Floor: 0, Cap: 100, Step: 1, Unit: 25}}
-	path := filepath.Join(dir, "refused.csv")
-	if _, err := ex.Export(t.Context(), bad, ExportRequest{Format: "csv", Path: path}); err == nil || !strings.Contains(err.Error(), "re-check failed") {
-		t.Fatalf("a failing point table was exported: %v", err)
-	}
-	if _, err := os.Stat(path); !os.IsNotExist(err) {
-		t.Fatalf("a refused table was written: %v", err)
-	}
-	m := testModel(t, bad, Settings{})
-	start(t, m, 120, 40)
-	if v := m.View(); !strings.Contains(v, "menu re-check FAILED") || strings.Contains(v, "no menu re-check") {
-		t.Fatalf("budget pane does not show the failed re-check:\n%s", v)
-	}
-	good := testModel(t, d, Settings{})
-	start(t, good, 120, 40)
-	if v := good.View(); !strings.Contains(v, "menu re-check passed, margin") {
-		t.Fatalf("budget pane does not show the passed re-check:\n%s", v)
-	}
-}
-
-// Payout audit: the sample payout 10 - 5 sum (p - hit)^2 is the quadratic
-// rule scaled by 5 and shifted by 10 (its effort is the Brier sum, Brier
-// 1950), so the audit passes and names it; the linear rule p[y] is
-// improper (common practice).
-func TestPayoutAudit(t *testing.T) {
-	m := testModel(t, nil, Settings{})
-	start(t, m, 120, 40)
-	press(t, m, keyDown, keyDown, keyRight)
-	r := m.CheckReport()
-	if r == nil || r.Verdict == "improper" {
-		t.Fatalf("sample payout: %+v", r)
-	}
-	if !strings.Contains(strings.Join(r.Notes, "\n"), "quadratic") {
-		t.Errorf("not identified as the quadratic rule: %q", r.Notes)
-	}
-	press(t, m, keyDown, keyEnter)
-	for i := 0; i < 80; i++ {
-		press(t, m, keyBack)
-	}
-	press(t, m, runes("p[y]"), keyEsc)
-	r = m.CheckReport()
-	if r == nil || r.Verdict != "improper" {
-		t.Fatalf("linear payout verdict: %+v", r)
-	}
-	if !strings.Contains(m.View(), "✗ properness") {
-		t.Errorf("the failing check is not shown:\n%s", m.View())
-	}
-}
-
 // Keys that would lose unsaved work ask first (tui/leave_test.go has
 // every path); ctrl+n is the editor's own key while typing, never the demo
 // switch, and the global keys that are not text still work while typing.
@@ -604,78 +375,6 @@ func TestPictureDrawsFittedPay(t *testing.T) {
 	v := m.View()
 	if !strings.Contains(v, "Picture · pay per outcome") || !strings.Contains(v, "┊ 0.30: 20.4 / 36.4") {
 		t.Fatalf("fitted pay not drawn:\n%s", v)
-	}
-}
-
-// The linear rule over three outcomes, as the workbench shows it. Derived
-// by hand: under belief q the best report is the vertex of the likeliest
-// outcome, so the gap is max_k q_k - sum_k q_k^2; at q = (2/3, 1/6, 1/6)
-// that is 2/3 - 1/2 = 1/6.
-func TestGoldenLinearAudit80x24(t *testing.T) {
-	d := DemoHarvest()
-	d.Mode, d.Formula, d.Preset = design.ModePayout, "p[y]", ""
-	m := testModel(t, d, Settings{})
-	start(t, m, 80, 24)
-	s := m.comp.newSampler()
-	if got := gapOnGrid(s, gridScores(s, 3, 6), []float64{2.0 / 3, 1.0 / 6, 1.0 / 6}); math.Abs(got-1.0/6) > 1e-12 {
-		t.Errorf("gap %v, want 1/6", got)
-	}
-	if r := m.CheckReport(); r == nil || r.Verdict != "improper" {
-		t.Fatalf("verdict: %+v", r)
-	}
-	golden.RequireEqual(t, []byte(m.View()))
-}
-
-// The export dialog's lottery option writes chances of one prize, as
-// `scorewright table --lottery` does, and says the gambling caution in
-// the dialog and in the file. Frost demo: floor 0, cap 40, so a cell's
-// chance is pay/40 (contract/lottery) and the prize is 40.
-func TestLotteryExport(t *testing.T) {
-	dir := t.TempDir()
-	m := testModel(t, nil, Settings{Dir: dir, Version: "test"})
-	start(t, m, 80, 24)
-	press(t, m, tea_ctrlX(), tea.KeyMsg{Type: tea.KeyCtrlT})
-	if m.dialog == nil || !m.dialog.lottery {
-		t.Fatal("ctrl+t did not choose the lottery")
-	}
-	if v := m.View(); !strings.Contains(v, "[lottery]") || !strings.Contains(v, "gambling") {
-		t.Fatalf("the dialog does not show the lottery and its caution:\n%s", v)
-	}
-	golden.RequireEqual(t, []byte(m.View()))
-	press(t, m, keyEnter)
-	b, err := os.ReadFile(filepath.Join(dir, "orchard-co-operative-frost-night-forecasts.csv"))
-	if err != nil {
-		t.Fatalf("no export: %v (status %q)", err, m.Status())
-	}
-	text := string(b)
-	if !strings.Contains(text, lottery.Caution) || !strings.Contains(strings.ToLower(text), "counsel") {
-		t.Errorf("the file lacks the lottery or the general caution:\n%s", text)
-	}
-	// The report (0.5, 0.5) pays 30 in money when either outcome happens
-	// (40 - 20·0.5, quadratic effort 0.5): a chance of 30/40 = 0.75, written
-	// in whole thousandths.
-	if !strings.Contains(text, "\n0.5,0.5,0.750,0.750\n") || !strings.Contains(text, "chance if frost") {
-		t.Errorf("no chance 0.75 for the even report:\n%s", text)
-	}
-	// A point table too: squared error on [0, 40], floor 0, cap 20.
-	pd := &design.Design{Version: 1, Title: "milk yield", Mode: design.ModePoint, Formula: "-x^2", Interval: []float64{0, 40},
-		Budget: design.Budget{Floor: 0, Cap: 20, Step: 10}}
-	pp := filepath.Join(dir, "milk-lottery.md")
-	if _, err := defaultExporter("test").Export(t.Context(), pd, ExportRequest{Format: "md", Path: pp, Lottery: true}); err != nil {
-		t.Fatal(err)
-	}
-	if b, _ := os.ReadFile(pp); !strings.Contains(string(b), lottery.Caution) || !strings.Contains(string(b), "chance") {
-		t.Errorf("point lottery export:\n%s", b)
-	}
-	// The next export dialog keeps the lottery chosen last; ctrl+t goes
-	// back to money.
-	press(t, m, tea_ctrlX())
-	if !m.dialog.lottery {
-		t.Fatal("the export dialog forgot the lottery")
-	}
-	press(t, m, tea.KeyMsg{Type: tea.KeyCtrlT})
-	if m.dialog.lottery {
-		t.Fatal("ctrl+t did not go back to money")
 	}
 }
 

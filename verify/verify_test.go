@@ -3,9 +3,7 @@ package verify
 import (
 	"context"
 	"errors"
-	"fmt"
 	"math"
-	"math/rand/v2"
 	"strings"
 	"sync/atomic"
 	"testing"
@@ -13,8 +11,6 @@ import (
 	"scorewright/generator/bregman"
 	"scorewright/generator/bregman/bregmantest"
 	"scorewright/generator/payout"
-	"scorewright/internal/pool"
-	"scorewright/internal/simplex"
 	"scorewright/presets"
 )
 
@@ -289,163 +285,6 @@ func TestFlatPieceIsProperNotStrict(t *testing.T) {
 	}
 }
 
-// TestIdentifyFittedParameter: payouts built from the power and
-// pseudospherical rules at parameters other than the presets' defaults
-// (g = 3, a = 3) are identified with the parameter fitted.
-//
-// Derived by hand. Gneiting & Raftery (2007), Sec. 3, give the power score
-// S = g p_y^(g-1) - (g-1) sum_i p_i^g and the pseudospherical score
-// S = p_y^(a-1) / ||p||_a^(a-1), with ||p||_a = (sum_i p_i^a)^(1/a).
-// The power preset's generator is H = (1 - sum p^g) / (g - 1), with
-// dH/dp_i = -g p_i^(g-1) / (g - 1), so its effort is
-// L(p, k) = H + dH/dp_k - sum_i p_i dH/dp_i, which is
-// (1 + (g-1) sum p^g - g p_k^(g-1)) / (g - 1),
-// and its score -L = (S - 1) / (g - 1): the normalisation that makes
-// g -> 1 the log rule. Hence 5 + 2 S = 7 + 2 (g - 1) (-L): scale 2(g-1)
-// (1 at g = 1.5) and shift 7, not 2 and 5. The pseudospherical preset's
-// generator H = -||p||_a has dH/dp_i = -(p_i / ||p||_a)^(a-1), so
-// L = -||p||_a - (p_k/||p||_a)^(a-1) + ||p||_a = -S exactly: 5 + 2 S has
-// scale 2 and shift 5.
-func TestIdentifyFittedParameter(t *testing.T) {
-	cases := []struct {
-		src, preset, param string
-		n                  int
-		value              float64
-		scale, shift       float64
-	}{
-		{"5 + 2*(1.5*p[y]^0.5 - 0.5*sum(p^1.5))", "power", "g", 3, 1.5, 1, 7},
-		{"5 + 2*(1.5*p[y]^0.5 - 0.5*sum(p^1.5))", "power", "g", 2, 1.5, 1, 7},
-		{"5 + 2*(4*p[y]^3 - 3*sum(p^4))", "power", "g", 3, 4, 6, 7},
-		// g = 0.5 < 1: S then rewards the opposite (its honest expectation
-		// sum q^g is concave), so the payout subtracts it:
-		// 7 - 2 S = 5 - 2(g - 1)(-L) = 5 + 1·(-L), scale 1, shift 5.
-		{"7 - 2*(0.5*p[y]^(-0.5) + 0.5*sum(p^0.5))", "power", "g", 3, 0.5, 1, 5},
-		{"5 + 2*p[y]^1.5/sum(p^2.5)^(1.5/2.5)", "pseudospherical", "a", 3, 2.5, 2, 5},
-		{"5 + 2*p[y]^1.5/sum(p^2.5)^(1.5/2.5)", "pseudospherical", "a", 4, 2.5, 2, 5},
-		{"5 + 2*p[y]^0.5/sum(p^1.5)^(0.5/1.5)", "pseudospherical", "a", 3, 1.5, 2, 5},
-	}
-	for _, c := range cases {
-		rep, err := Audit(context.Background(), pay(t, c.src, c.n), presetCandidates(t, c.n), Settings{Resolution: map[int]int{2: 200, 3: 40, 4: 12}[c.n]})
-		if err != nil {
-			t.Fatal(err)
-		}
-		id := rep.Identified
-		if rep.Verdict == Improper || id == nil {
-			t.Errorf("%q n=%d: verdict %s, not identified; fits %+v", c.src, c.n, rep.Verdict, rep.Fits)
-			continue
-		}
-		if id.Preset != c.preset || id.Param != c.param || math.Abs(id.Value-c.value) > 1e-6 ||
-			math.Abs(id.Scale-c.scale) > 1e-6 || math.Abs(id.Shift-c.shift) > 1e-6 {
-			t.Errorf("%q n=%d: identified %+v, want %s with %s = %g, scale %g, shift %g", c.src, c.n, *id, c.preset, c.param, c.value, c.scale, c.shift)
-		}
-		if want := fmt.Sprintf(" with %s = %g", c.param, c.value); id.WithParam() != want {
-			t.Errorf("%q: WithParam %q, want %q", c.src, id.WithParam(), want)
-		}
-	}
-}
-
-// TestIdentifyNotInAnyFamily: strictly proper payouts that are no affine
-// image of any candidate, whatever its parameter, stay unidentified.
-//
-// Derived by hand. (1) The weighted Brier payout -sum_i w_i (p_i - hit_i)^2
-// with w = (1, 2, 3) is strictly proper (the Bregman rule of
-// sum w p (1 - p)), but not symmetric: at p = (1, 0, 0), y = 2 it pays
-// -(1 + 2) = -3, at the mirrored p = (0, 0, 1), y = 2 it pays -(2 + 3) =
-// -5, while every candidate (log, quadratic, spherical, and the power and
-// pseudospherical families) scores mirrored pairs alike, and so does
-// any shift + scale × its score. (2) ln p_y - sum (p - hit)^2 mixes the log
-// and quadratic rules: along an edge its generator's curvature is
-// -(1/p_1 + 1/p_2) - 4, which blows up like 1/p_1 near a vertex; a power
-// member's, -g (p_1^(g-2) + p_2^(g-2)), does so only as g -> 1, the log
-// rule, whose curvature has no constant part; the pseudospherical ones
-// only as a -> 1, where the rule degenerates; the quadratic and spherical
-// rules' stay bounded.
-func TestIdentifyNotInAnyFamily(t *testing.T) {
-	weighted, err := payout.New("-sum(w*(p - hit)^2)", payout.Options{Outcomes: 3, Weights: []float64{1, 2, 3}})
-	if err != nil {
-		t.Fatal(err)
-	}
-	for name, p := range map[string]*payout.Payout{"weighted Brier": weighted, "log + quadratic": pay(t, "ln(p[y]) - sum((p - hit)^2)", 3)} {
-		rep, err := Audit(context.Background(), p, presetCandidates(t, 3), Settings{Resolution: 40})
-		if err != nil {
-			t.Fatal(err)
-		}
-		if rep.Verdict == Improper || rep.Identified != nil {
-			t.Errorf("%s: verdict %s, identified %+v", name, rep.Verdict, rep.Identified)
-		}
-		// Not a near miss either: the families' best members stay far
-		// above the tolerance.
-		params := 0
-		for _, f := range rep.Fits {
-			if f.Note == "" {
-				t.Errorf("%s: fit %+v accepted", name, f)
-			}
-			if f.Param != "" {
-				params++
-				if !(f.Residual > 1e-3) {
-					t.Errorf("%s: %s%s comes within %g", name, f.Preset, f.WithParam(), f.Residual)
-				}
-			}
-		}
-		if params != 2 {
-			t.Errorf("%s: %d fits with a fitted parameter, want 2 (power, pseudospherical): %+v", name, params, rep.Fits)
-		}
-	}
-}
-
-func TestIdentifyScaledQuadratic(t *testing.T) {
-	// Derived by hand: the quadratic generator H = 1 - sum p^2 has effort
-	// L(p, k) = sum_i (p_i - [i = k])^2 (Brier 1950, multi-category), so
-	// pay = 7 - 3 * sum((p - hit)^2) = 7 - 3 L: shift 7, scale 3.
-	for _, n := range []int{2, 3, 4} {
-		rep, err := Audit(context.Background(), pay(t, "7 - 3*sum((p-hit)^2)", n), presetCandidates(t, n), Settings{Resolution: map[int]int{2: 200, 3: 40, 4: 12}[n]})
-		if err != nil {
-			t.Fatal(err)
-		}
-		if rep.Verdict != StrictlyProper {
-			t.Errorf("n=%d: verdict %s", n, rep.Verdict)
-		}
-		id := rep.Identified
-		if id == nil {
-			t.Fatalf("n=%d: not identified; fits %+v", n, rep.Fits)
-		}
-		if id.Preset != "quadratic" || math.Abs(id.Scale-3) > 1e-9 || math.Abs(id.Shift-7) > 1e-9 {
-			t.Errorf("n=%d: identified %+v, want quadratic with scale 3, shift 7", n, *id)
-		}
-		if rep.Gap.Max > 1e-9 {
-			t.Errorf("n=%d: gap %g for a proper payout", n, rep.Gap.Max)
-		}
-	}
-	// The same in large currency units: 1e9 - 5e8 L (derived as above).
-	// Rounding in values of 1e9 is about 1e-7, so the tolerance scales with
-	// the values and the verdict stays strictly proper.
-	big, err := Audit(context.Background(), pay(t, "1e9 - 5e8*sum((p-hit)^2)", 2), presetCandidates(t, 2), Settings{Resolution: 400})
-	if err != nil {
-		t.Fatal(err)
-	}
-	if big.Verdict != StrictlyProper || big.Grid.Scale != 1e9 || big.Identified == nil || big.Identified.Preset != "quadratic" ||
-		math.Abs(big.Identified.Scale/5e8-1) > 1e-9 || math.Abs(big.Identified.Shift/1e9-1) > 1e-9 {
-		t.Errorf("large units: verdict %s, scale %g, identified %+v", big.Verdict, big.Grid.Scale, big.Identified)
-	}
-	// The log score ln p_y is the log rule with scale 1, shift 0
-	// (L = -ln p_k, Good 1952); its infinities match the rule's.
-	rep, err := Audit(context.Background(), pay(t, "ln(p[y])", 3), presetCandidates(t, 3), Settings{Resolution: 30})
-	if err != nil {
-		t.Fatal(err)
-	}
-	if id := rep.Identified; id == nil || id.Preset != "log" || math.Abs(id.Scale-1) > 1e-9 || math.Abs(id.Shift) > 1e-9 {
-		t.Errorf("ln(p[y]): identified %+v, fits %+v", rep.Identified, rep.Fits)
-	}
-	// The linear rule is no preset.
-	rep, err = Audit(context.Background(), pay(t, "p[y]", 3), presetCandidates(t, 3), Settings{Resolution: 30})
-	if err != nil {
-		t.Fatal(err)
-	}
-	if rep.Identified != nil {
-		t.Errorf("p[y] identified as %+v", *rep.Identified)
-	}
-}
-
 func TestBoundaryReportedApart(t *testing.T) {
 	// Derived by hand. Power rule g = 3: H = (1 - sum p^3)/2 has Hessian
 	// diag(-3 p_k). At the vertex (0, 0, 1) the tangent direction
@@ -566,94 +405,5 @@ func TestNaNIsReported(t *testing.T) {
 	}
 	if !rep.Failed() {
 		t.Error("a rule with undefined efforts should fail")
-	}
-}
-
-func TestScanDoesNotAllocate(t *testing.T) {
-	rows := make([]float64, 3*1000)
-	for i := range rows {
-		rows[i] = float64(i % 7)
-	}
-	q := []float64{0.2, 0.3, 0.5}
-	for _, n := range []int{2, 3, 5} {
-		allocs := testing.AllocsPerRun(20, func() { scan(q[:min(n, 3)], rows, n) })
-		if allocs != 0 {
-			t.Errorf("n=%d: %v allocations per scan", n, allocs)
-		}
-	}
-	if a := testing.AllocsPerRun(20, func() { scanSupport(q, rows, 3) }); a != 0 {
-		t.Errorf("scanSupport: %v allocations", a)
-	}
-}
-
-func TestScanMatchesNaive(t *testing.T) {
-	// The unrolled kernels against the obvious loop, with a length that is
-	// not a multiple of four, ties and infinities.
-	rng := rand.New(rand.NewPCG(1, 2))
-	for _, n := range []int{2, 3, 4, 5} {
-		for _, G := range []int{1, 3, 4, 7, 1003} {
-			rows := make([]float64, n*G)
-			for i := range rows {
-				rows[i] = float64(rng.IntN(50)) / 7
-				if rng.IntN(40) == 0 {
-					rows[i] = math.Inf(1)
-				}
-			}
-			q := make([]float64, n)
-			for k := range q {
-				q[k] = rng.Float64() + 0.01
-			}
-			got := scan(q, rows, n)
-			want := best{math.Inf(1), math.Inf(1), -1, -1}
-			for j := 0; j < G; j++ {
-				var phi float64
-				for k := range q {
-					phi += q[k] * rows[j*n+k]
-				}
-				switch {
-				case phi < want.m1:
-					want = best{phi, want.m1, int32(j), want.arg}
-				case phi < want.m2:
-					want.m2, want.arg2 = phi, int32(j)
-				}
-			}
-			if got != want {
-				t.Errorf("n=%d G=%d: scan %+v, naive %+v", n, G, got, want)
-			}
-		}
-	}
-}
-
-func TestSafeRowsMatchSupportScan(t *testing.T) {
-	// Boundary beliefs against a menu with infinite efforts (the log rule,
-	// -ln 0 = +Inf): the substituted rows must give exactly the winners and
-	// values of the scan that skips the belief's zero coordinates.
-	for _, n := range []int{2, 3, 4, 6} {
-		g, err := simplex.Full(n, 12)
-		if err != nil {
-			t.Fatal(err)
-		}
-		sc := rule(t, "-sum(p*ln(p))", n).NewScorer()
-		m := newMenu(n, g.Len())
-		for j := 0; j < g.Len(); j++ {
-			sc.Efforts(m.rows[j*n:(j+1)*n], g.Point(j))
-		}
-		m.seal()
-		if m.safe == nil {
-			t.Fatal("no substituted rows for a menu with infinities")
-		}
-		bs, err := stream(context.Background(), g, m, 2, pool.NewMeter(nil, 0))
-		if err != nil {
-			t.Fatal(err)
-		}
-		for i := 0; i < g.Len(); i++ {
-			if !g.Boundary[i] {
-				continue
-			}
-			want := scanSupport(g.Point(i), m.rows, n)
-			if bs[i] != want {
-				t.Fatalf("n=%d belief %v: stream %+v, support scan %+v", n, g.Point(i), bs[i], want)
-			}
-		}
 	}
 }
