@@ -8,7 +8,6 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
-	"text/tabwriter"
 
 	"github.com/charmbracelet/bubbles/key"
 	"github.com/charmbracelet/bubbles/progress"
@@ -284,16 +283,15 @@ func (v BacktestView) resultText(width int) string {
 		b.WriteString(wrap.Render(fmt.Sprintf("no reliability picture: it is drawn for 2 outcomes and this design has %d; totals and the decomposition follow", len(r.Labels))) + "\n")
 	}
 	b.WriteString(wrap.Render(r.Pay+"; "+r.Budget+"; "+r.Menu) + "\n")
-	tw := tabwriter.NewWriter(&b, 0, 4, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprint(tw, "forecaster\tcount\ttotal\tmean\trank\teffort\tuncert.\tresol.\treliab.\t\n")
+	rows := [][]string{{"forecaster", "count", "total", "mean", "rank", "effort", "uncert.", "resol.", "reliab."}}
 	for _, f := range res.Forecasters {
 		d := f.Decomposition[0]
-		fmt.Fprintf(tw, "%s\t%d\t%s\t%.4g\t%d\t%.4g\t%.4g\t%.4g\t%.4g\t\n", f.Name, f.Count, r.cash(f.Money[0].Total), f.Money[0].Mean, f.Rank[0],
-			d.MeanEffort, d.Uncertainty, d.Resolution, d.Reliability)
+		rows = append(rows, []string{f.Name, fmt.Sprint(f.Count), r.cash(f.Money[0].Total), g4(f.Money[0].Mean), fmt.Sprint(f.Rank[0]),
+			g4(d.MeanEffort), g4(d.Uncertainty), g4(d.Resolution), g4(d.Reliability)})
 	}
 	all := res.All[0]
-	fmt.Fprintf(tw, "all\t%d\t%s\t%.4g\t\t%.4g\t\t\t\t\n", res.Rows, r.cash(all.Total), all.Mean, all.MeanEffort)
-	tw.Flush()
+	rows = append(rows, []string{"all", fmt.Sprint(res.Rows), r.cash(all.Total), g4(all.Mean), "", g4(all.MeanEffort), "", "", ""})
+	b.WriteString(rightTable(rows))
 	b.WriteString(wrap.Render("total and mean pay per forecast; rank by mean pay, 1 best; effort is the mean effort = uncertainty - resolution + reliability; "+res.Forecasters[0].Binning.String()) + "\n")
 	b.WriteString("\n" + corpTable(r))
 	if res.SkippedCount > 0 {
@@ -369,13 +367,15 @@ func corpTable(r *BacktestResult) string {
 	} else {
 		b.WriteString("CORP per outcome against the rest, squared error: score = MCB - DSC + UNC\n")
 	}
-	tw := tabwriter.NewWriter(&b, 0, 4, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprint(tw, "forecaster\tevent\tscore\tMCB\tDSC\tUNC\t\n")
+	rows := [][]string{{"forecaster", "event", "score", "MCB", "DSC", "UNC"}}
 	for _, f := range r.Result.Forecasters {
 		for k, d := range f.CORP[0] {
-			fmt.Fprintf(tw, "%s\t%s\t%.4g\t%.4g\t%.4g\t%.4g\t\n", f.Name, r.Labels[k], d.Score, d.Miscalibration, d.Discrimination, d.Uncertainty)
+			rows = append(rows, []string{f.Name, r.Labels[k], g4(d.Score), g4(d.Miscalibration), g4(d.Discrimination), g4(d.Uncertainty)})
 		}
 	}
-	tw.Flush()
+	b.WriteString(rightTable(rows))
 	return b.String()
 }
+
+// g4 is v to four significant digits, as the tables show it.
+func g4(v float64) string { return fmt.Sprintf("%.4g", v) }

@@ -237,23 +237,16 @@ func layoutTable(t *TableView) {
 	for i, r := range t.Rows {
 		rows = append(rows, cells(i, r))
 	}
-	widths := make([]int, len(head))
-	for _, r := range rows {
-		for i, c := range r {
-			if i < len(widths) {
-				widths[i] = max(widths[i], len([]rune(c)))
-			}
-		}
-	}
+	widths := columnWidths(rows)[:len(head)]
 	t.lines = nil
 	for _, r := range rows {
 		parts := make([]string, 0, len(r))
 		for i, c := range r {
 			if i < len(widths) {
 				if marked && i == 0 {
-					parts = append(parts, fmt.Sprintf("%-*s", widths[i], c))
+					parts = append(parts, padRight(c, widths[i]))
 				} else {
-					parts = append(parts, fmt.Sprintf("%*s", widths[i], c))
+					parts = append(parts, padLeft(c, widths[i]))
 				}
 			}
 		}

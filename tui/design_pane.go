@@ -235,35 +235,7 @@ func (p DesignPane) updateRows(km tea.KeyMsg, d *design.Design) (DesignPane, tea
 	case key.Matches(km, k.Down):
 		p.sel = min(p.presetRow(), p.sel+1)
 	case key.Matches(km, k.Edit):
-		switch {
-		case row == int(rowOutcomes):
-			p.edit = editLabels
-			p.ti.SetValue(strings.Join(d.Labels, ", "))
-			if onInterval(d) {
-				p.ti.SetValue(fmt.Sprintf("%g, %g", d.Interval[0], d.Interval[1]))
-			}
-			p.ti.CursorEnd()
-			return p, p.ti.Focus(), false
-		case row == int(rowOrder) && !onInterval(d):
-			d.Ordered = !d.Ordered
-			return p, nil, true
-		case row == int(rowFormula):
-			p.edit = editFormula
-			return p, p.ta.Focus(), false
-		case row >= int(rowParams) && row < p.presetRow():
-			p.edit = editParam
-			p.ti.SetValue(strconv.FormatFloat(p.params[row-int(rowParams)].Value, 'g', -1, 64))
-			p.ti.CursorEnd()
-			return p, p.ti.Focus(), false
-		case row == p.presetRow():
-			p.edit = editPreset
-			p.pick = 0
-			for i, ps := range presets.All() {
-				if ps.Name == d.Preset {
-					p.pick = i
-				}
-			}
-		}
+		return p.editRow(d)
 	case key.Matches(km, k.Toggle) && row == int(rowOrder) && !onInterval(d):
 		d.Ordered = !d.Ordered
 		return p, nil, true
@@ -287,30 +259,75 @@ func (p DesignPane) updateRows(km tea.KeyMsg, d *design.Design) (DesignPane, tea
 		p.dropWeights(d)
 		return p, nil, true
 	case key.Matches(km, k.Less), key.Matches(km, k.More), key.Matches(km, k.LessFine), key.Matches(km, k.MoreFine):
-		up := key.Matches(km, k.More) || key.Matches(km, k.MoreFine)
-		fine := key.Matches(km, k.LessFine) || key.Matches(km, k.MoreFine)
-		switch {
-		case row == int(rowMode):
-			p.cycleMode(d, up)
-			return p, nil, true
-		case row == int(rowOrder) && !onInterval(d):
-			d.Ordered = !d.Ordered
-			return p, nil, true
-		case row >= int(rowParams) && row < p.presetRow():
-			step := 0.1
-			if fine {
-				step = 0.01
-			}
-			if !up {
-				step = -step
-			}
-			pv := p.params[row-int(rowParams)]
-			v := math.Round((pv.Value+step)*1e9) / 1e9
-			p.setParam(d, pv.Name, v)
-			p.params[row-int(rowParams)].Value = v
-			p.note = fmt.Sprintf("%s = %s", pv.Name, strconv.FormatFloat(v, 'g', -1, 64))
-			return p, nil, true
+		return p.stepRow(km, d)
+	}
+	return p, nil, false
+}
+
+// editRow starts editing the selected row (enter): a text field, the
+// formula editor, the preset picker, or the order toggled in place.
+func (p DesignPane) editRow(d *design.Design) (DesignPane, tea.Cmd, bool) {
+	row := p.sel
+	switch {
+	case row == int(rowOutcomes):
+		p.edit = editLabels
+		p.ti.SetValue(strings.Join(d.Labels, ", "))
+		if onInterval(d) {
+			p.ti.SetValue(fmt.Sprintf("%g, %g", d.Interval[0], d.Interval[1]))
 		}
+		p.ti.CursorEnd()
+		return p, p.ti.Focus(), false
+	case row == int(rowOrder) && !onInterval(d):
+		d.Ordered = !d.Ordered
+		return p, nil, true
+	case row == int(rowFormula):
+		p.edit = editFormula
+		return p, p.ta.Focus(), false
+	case row >= int(rowParams) && row < p.presetRow():
+		p.edit = editParam
+		p.ti.SetValue(strconv.FormatFloat(p.params[row-int(rowParams)].Value, 'g', -1, 64))
+		p.ti.CursorEnd()
+		return p, p.ti.Focus(), false
+	case row == p.presetRow():
+		p.edit = editPreset
+		p.pick = 0
+		for i, ps := range presets.All() {
+			if ps.Name == d.Preset {
+				p.pick = i
+			}
+		}
+	}
+	return p, nil, false
+}
+
+// stepRow steps the selected row (←/→, shift: finer): the mode, the
+// order, or a parameter by 0.1 (0.01).
+func (p DesignPane) stepRow(km tea.KeyMsg, d *design.Design) (DesignPane, tea.Cmd, bool) {
+	k := p.keys
+	row := p.sel
+	up := key.Matches(km, k.More) || key.Matches(km, k.MoreFine)
+	fine := key.Matches(km, k.LessFine) || key.Matches(km, k.MoreFine)
+	switch {
+	case row == int(rowMode):
+		p.cycleMode(d, up)
+		return p, nil, true
+	case row == int(rowOrder) && !onInterval(d):
+		d.Ordered = !d.Ordered
+		return p, nil, true
+	case row >= int(rowParams) && row < p.presetRow():
+		step := 0.1
+		if fine {
+			step = 0.01
+		}
+		if !up {
+			step = -step
+		}
+		pv := p.params[row-int(rowParams)]
+		v := math.Round((pv.Value+step)*1e9) / 1e9
+		p.setParam(d, pv.Name, v)
+		p.params[row-int(rowParams)].Value = v
+		p.note = fmt.Sprintf("%s = %s", pv.Name, strconv.FormatFloat(v, 'g', -1, 64))
+		return p, nil, true
 	}
 	return p, nil, false
 }

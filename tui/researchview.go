@@ -104,7 +104,7 @@ func (r *ResearchRoom) table(rep *study.Report, width int) []string {
 	if width < 70 {
 		nameW = 14
 	}
-	head := fmt.Sprintf("%-*s %9s %10s %9s", nameW, "rule", "gain", "per season", "cost")
+	head := padRight("rule", nameW) + fmt.Sprintf(" %9s %10s %9s", "gain", "per season", "cost")
 	if steps {
 		head += fmt.Sprintf(" %5s %6s", "obs", "error")
 	}
@@ -112,7 +112,7 @@ func (r *ResearchRoom) table(rep *study.Report, width int) []string {
 	best := rep.Best()
 	for i, row := range rows {
 		g := row.Gain
-		line := fmt.Sprintf("%-*s %9.4g %10.4g %9.4g", nameW, ansi.Truncate(row.Name, nameW, "…"), g.PerForecast, g.Season.Gain, g.CostWith)
+		line := padRight(ansi.Truncate(row.Name, nameW, "…"), nameW) + fmt.Sprintf(" %9.4g %10.4g %9.4g", g.PerForecast, g.Season.Gain, g.CostWith)
 		if steps && row.Steps != nil {
 			line += fmt.Sprintf(" %5.3g %6.3g", row.Steps.Steps, row.Steps.Error)
 		}

@@ -5,6 +5,8 @@ import (
 	"math"
 	"strings"
 
+	"github.com/charmbracelet/x/ansi"
+
 	"scorewright"
 	"scorewright/contract/risk"
 	"scorewright/generator/design"
@@ -206,7 +208,7 @@ func (v RiskView) directionTable(r *RiskResult, width int) []string {
 	out = append(out, st.Label.Render(head+"  largest"))
 	n := len(r.Labels)
 	for k := 0; k < n; k++ {
-		row := fmt.Sprintf("%-12s", clipText(r.Labels[k], 11))
+		row := padRight(ansi.Truncate(r.Labels[k], 11, "…"), 12)
 		largest := 0.0
 		for s := 1; s < risk.CurveSteps; s++ {
 			t := float64(s) / risk.CurveSteps
@@ -222,11 +224,4 @@ func (v RiskView) directionTable(r *RiskResult, width int) []string {
 		out = append(out, row+fmt.Sprintf("  %7.3g", largest))
 	}
 	return out
-}
-
-func clipText(s string, n int) string {
-	if r := []rune(s); len(r) > n {
-		return string(r[:n-1]) + "…"
-	}
-	return s
 }

@@ -183,59 +183,7 @@ func faceOnlyCells(p *Program) []bool {
 	if n == 0 {
 		return out
 	}
-	// aff[c] = coefficients of 1, p1..pn, or nil.
-	aff := make([][]float64, p.cells)
-	nv := len(p.varNames)
-	for k := 0; k < n; k++ {
-		aff[k] = make([]float64, n+1)
-		aff[k][k+1] = 1
-	}
-	for k, c := range p.consts {
-		aff[nv+k] = make([]float64, n+1)
-		aff[nv+k][0] = c
-	}
-	comb := func(x []float64, s float64, y []float64, t float64) []float64 {
-		if x == nil || y == nil {
-			return nil
-		}
-		r := make([]float64, n+1)
-		for i := range r {
-			r[i] = s*x[i] + t*y[i]
-		}
-		return r
-	}
-	for _, in := range p.code {
-		for l := int32(0); l < in.w; l++ {
-			a, b := in.a+l*in.sa, in.b+l*in.sb
-			var r []float64
-			switch in.op {
-			case opAdd:
-				r = comb(aff[a], 1, aff[b], 1)
-			case opSub:
-				r = comb(aff[a], 1, aff[b], -1)
-			case opNeg:
-				r = comb(aff[a], -1, aff[a], 0)
-			case opMul:
-				if k, ok := constCell(p, b); ok {
-					r = comb(aff[a], k, aff[a], 0)
-				} else if k, ok := constCell(p, a); ok {
-					r = comb(aff[b], k, aff[b], 0)
-				}
-			case opCumsum:
-				r = aff[a]
-				if l > 0 {
-					r = comb(aff[in.dst+l-1], 1, aff[a], 1)
-				}
-			case opVSum:
-				r = aff[in.a]
-				for s := int32(1); s < in.n && r != nil; s++ {
-					r = comb(r, 1, aff[in.a+s], 1)
-				}
-			}
-			aff[in.dst+l] = r
-		}
-	}
-	for c, f := range aff {
+	for c, f := range affineCells(p, n) {
 		if f == nil {
 			continue
 		}
@@ -264,6 +212,66 @@ func faceOnlyCells(p *Program) []bool {
 		}
 	}
 	return out
+}
+
+// affineCells are, for each cell of p, its coefficients of 1, p1..pn when
+// the cell is affine in the first n variables (through sums, differences,
+// negation and products with a constant), else nil.
+func affineCells(p *Program, n int) [][]float64 {
+	aff := make([][]float64, p.cells)
+	nv := len(p.varNames)
+	for k := 0; k < n; k++ {
+		aff[k] = make([]float64, n+1)
+		aff[k][k+1] = 1
+	}
+	for k, c := range p.consts {
+		aff[nv+k] = make([]float64, n+1)
+		aff[nv+k][0] = c
+	}
+	for _, in := range p.code {
+		for l := int32(0); l < in.w; l++ {
+			a, b := in.a+l*in.sa, in.b+l*in.sb
+			var r []float64
+			switch in.op {
+			case opAdd:
+				r = combine(aff[a], 1, aff[b], 1)
+			case opSub:
+				r = combine(aff[a], 1, aff[b], -1)
+			case opNeg:
+				r = combine(aff[a], -1, aff[a], 0)
+			case opMul:
+				if k, ok := constCell(p, b); ok {
+					r = combine(aff[a], k, aff[a], 0)
+				} else if k, ok := constCell(p, a); ok {
+					r = combine(aff[b], k, aff[b], 0)
+				}
+			case opCumsum:
+				r = aff[a]
+				if l > 0 {
+					r = combine(aff[in.dst+l-1], 1, aff[a], 1)
+				}
+			case opVSum:
+				r = aff[in.a]
+				for s := int32(1); s < in.n && r != nil; s++ {
+					r = combine(r, 1, aff[in.a+s], 1)
+				}
+			}
+			aff[in.dst+l] = r
+		}
+	}
+	return aff
+}
+
+// combine is s·x + t·y of two coefficient vectors, nil when either is.
+func combine(x []float64, s float64, y []float64, t float64) []float64 {
+	if x == nil || y == nil {
+		return nil
+	}
+	r := make([]float64, len(x))
+	for i := range r {
+		r[i] = s*x[i] + t*y[i]
+	}
+	return r
 }
 
 // constCell reports whether cell c is a constant, and its value.
