@@ -143,10 +143,19 @@ func (d *Design) Validate() error {
 		if len(d.Weights) != d.N() {
 			return fmt.Errorf("weights: %d given for %d outcomes", len(d.Weights), d.N())
 		}
+		// A zero weight still gives a proper rule (a nonnegative
+		// combination of concave terms is concave); it is strict only
+		// where the remaining terms are, which the checks decide. An
+		// all-zero vector leaves no rule.
+		positive := false
 		for i, w := range d.Weights {
-			if !(w > 0) || math.IsInf(w, 0) {
-				return fmt.Errorf("weights: entry %d is %g; weights must be positive and finite", i+1, w)
+			if !(w >= 0) || math.IsInf(w, 0) {
+				return fmt.Errorf("weights: entry %d is %g; weights must be nonnegative and finite", i+1, w)
 			}
+			positive = positive || w > 0
+		}
+		if !positive {
+			return errors.New("weights: every entry is 0; at least one weight must be positive")
 		}
 	}
 	for name, v := range d.Params {
