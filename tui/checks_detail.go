@@ -127,7 +127,7 @@ func (p ChecksPane) rowLines(r *CheckReport, room int) []string {
 	for _, n := range r.Notes {
 		lines = append(lines, st.Dim.Render("  "+n))
 	}
-	lines = append(lines, st.Dim.Render("A grid check is evidence, not proof."))
+	lines = append(lines, st.Dim.Render(shortKindLine(r)))
 	if len(lines) <= room {
 		return lines
 	}
@@ -178,6 +178,14 @@ func (p ChecksPane) detailText() []string {
 	}
 	out = append(out, gridLine(r))
 	return append(append(out, r.Notes...), kindLine(r))
+}
+
+// shortKindLine is kindLine for the pane's list, where a line is narrow.
+func shortKindLine(r *CheckReport) string {
+	if r.Certified {
+		return "Proved; the grid checked what the proof leaves."
+	}
+	return "A grid check is evidence, not proof."
 }
 
 // kindLine closes the full text with what the verdict rests on.

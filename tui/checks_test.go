@@ -1,6 +1,7 @@
 package tui
 
 import (
+	"context"
 	"strings"
 	"testing"
 
@@ -98,6 +99,31 @@ func TestHelpNamesNewKeys(t *testing.T) {
 		"its full text", "the other checks", "TIE or BEATEN"} {
 		if !strings.Contains(txt, want) {
 			t.Errorf("help lacks %q", want)
+		}
+	}
+}
+
+// The workbench hands a certificate's proof to the grid, as check
+// --certify does: a proved rule's verdict is certified; a rule the
+// certificate does not prove proper stays grid evidence.
+// The verdicts are the textbook ones (from memory): 1 - sum(p^2) is
+// strictly proper, sum(p^2) (a convex H) improper.
+func TestCheckerRestsOnProof(t *testing.T) {
+	for _, c := range []struct {
+		formula   string
+		certified bool
+	}{{"1 - sum(p^2)", true}, {"sum(p^2)", false}} {
+		d := DemoFrost()
+		d.Preset, d.Formula = "", c.formula
+		r, err := verifyChecker(context.Background(), d, Settings{Resolution: 40}, nil)
+		if err != nil {
+			t.Fatalf("%s: %v", c.formula, err)
+		}
+		if r.Certified != c.certified || r.Certificate == nil {
+			t.Errorf("%s: certified %v (want %v), certificate %+v", c.formula, r.Certified, c.certified, r.Certificate)
+		}
+		if want := map[bool]string{true: "certified", false: "grid evidence"}[c.certified]; r.Kind() != want {
+			t.Errorf("%s: kind %q, want %q", c.formula, r.Kind(), want)
 		}
 	}
 }
