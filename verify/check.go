@@ -99,6 +99,11 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	if err != nil {
 		return nil, err
 	}
+	// Worst extrapolation error over the boundary reports (their limits
+	// from the interior; bregman.Scorer.LimitError).
+	for _, sc := range scorers {
+		rep.Grid.Extrapolation = math.Max(rep.Grid.Extrapolation, sc.MaxLimitError())
+	}
 	bounded := boundedness(g, m, s.Limit, r.Label, "effort", 1)
 	rep.Grid.Scale, rep.Grid.Rounding = scaleOf(m)
 	m.seal()
@@ -128,7 +133,7 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	if err != nil {
 		return nil, err
 	}
-	prop, nonneg, ties := properness(g, m, h, bs, s.Tolerance, rep.Grid.Scale, rep.Grid.Rounding)
+	prop, nonneg, ties := properness(g, m, h, bs, s.Tolerance, rep.Grid.Scale, rep.Grid.Rounding, rep.Grid.Extrapolation)
 	if g.Sampled && !proved {
 		if err := searchReports(ctx, g, &prop, s, func(int) func(q, p []float64) float64 {
 			sc := r.NewScorer()

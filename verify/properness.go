@@ -32,7 +32,11 @@ type tiePair struct {
 // The candidate ties it returns are confirmed or dismissed by the check
 // (strictness.go). A margin within round (the rounding bound of the
 // compared values, Grid.Rounding) is a tie too: rounding alone can make it.
-func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T, scale, round float64) (prop, nonneg CheckResult, ties []tiePair) {
+// ext is the error estimate of the efforts extrapolated at boundary
+// reports (Grid.Extrapolation): a gap or divergence that rests on such a
+// report and exceeds T by no more than ext is within that error, and
+// counts as 0.
+func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T, scale, round, ext float64) (prop, nonneg CheckResult, ties []tiePair) {
 	var gapIn, gapBd, negIn, negBd part
 	marginMin := math.Inf(1)
 	var marginQ, marginP []float64
@@ -55,8 +59,13 @@ func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T, scale, roun
 			gap = math.NaN()
 		}
 		var rp []float64
+		limitReport := false
 		if b.arg >= 0 {
 			rp = g.Point(int(b.arg))
+			limitReport = g.Boundary[b.arg]
+		}
+		if (limitReport || g.Boundary[i]) && gap > T && gap <= T+ext {
+			gap = 0
 		}
 		if g.Boundary[i] {
 			gapBd.offer(gap, q, rp)
@@ -91,6 +100,9 @@ func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T, scale, roun
 		d := b.m1 - h[i]
 		if b.arg < 0 {
 			d = math.Inf(1)
+		}
+		if limitReport && d < -T && d >= -T-ext {
+			d = 0
 		}
 		if g.Boundary[i] {
 			negBd.offer(-d, q, rp)

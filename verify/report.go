@@ -146,6 +146,11 @@ type Grid struct {
 	// Scorer.Rounding): a constant written as p·(1/p - 1) has efforts
 	// that are sums of ±1/p.
 	Rounding float64
+	// Extrapolation is the largest error estimate of the efforts at
+	// boundary reports, which are limits extrapolated from the interior
+	// (they converge like sqrt(h) for sqrt(c(1-c))); a comparison that
+	// rests on one allows it on top of the slack.
+	Extrapolation float64
 	// Sampled is true when the points are a random sample of the lattice.
 	Sampled bool
 	// Lattice is the number of points of the full lattice at this
@@ -174,6 +179,9 @@ func (g Grid) String() string {
 	}
 	if g.Rounding > g.Tolerance*g.Scale {
 		tol += fmt.Sprintf(", raised to %.3g for rounding", g.Rounding)
+	}
+	if g.Extrapolation > 0 {
+		tol += fmt.Sprintf(", plus %.3g where a boundary report's effort is an extrapolated limit", g.Extrapolation)
 	}
 	return fmt.Sprintf("%s at resolution %d (coordinates in steps of 1/%d): %d points (%d interior, %d on the boundary), %d pairs, %s; a grid check is evidence, not a proof",
 		kind, g.Resolution, g.Resolution, g.Points, g.Interior, g.Boundary, g.Pairs, tol)

@@ -47,6 +47,13 @@ type limitState struct {
 	done     bool
 	value    float64
 	diverged bool
+	// err estimates the error of the limit: twice the tail the Aitken
+	// estimates still have to move (from their last change and its ratio
+	// to the one before), or the rounding noise when the differences
+	// themselves vanished. Convergence like sqrt(h) leaves 1e-8 after
+	// the last step; a comparison resting on the limit must allow for it.
+	err float64
+	ch  float64 // last change of the Aitken estimates
 }
 
 // offer takes the effort v at the next step, with m the size of the terms
@@ -88,11 +95,26 @@ func (st *limitState) offer(v, m float64) {
 	if st.steps >= 4 && math.Abs(a-st.a) <= 1e3*0x1p-52*(m+math.Abs(a)) {
 		st.agree = prevAgree + 1
 	}
+	st.err = noise
+	if st.steps >= 4 {
+		// The Aitken estimates approach the limit with changes that
+		// shrink by about r a step; what is left is the geometric tail
+		// change·r/(1 - r), counted at least as one more change, doubled.
+		ch := math.Abs(a - st.a)
+		tail := ch
+		if st.ch > 0 {
+			if r := math.Min(ch/st.ch, 0.99); r > 0.5 {
+				tail = ch * r / (1 - r)
+			}
+		}
+		st.err = math.Max(noise, 2*tail)
+		st.ch = ch
+	}
 	switch {
 	case math.Abs(d) <= noise:
 		st.done, st.value = true, v
 	case st.grow >= 3:
-		st.done, st.diverged, st.value = true, true, math.Copysign(math.Inf(1), d)
+		st.done, st.diverged, st.value, st.err = true, true, math.Copysign(math.Inf(1), d), 0
 	case st.agree >= 2:
 		st.done, st.value = true, a
 	}
@@ -187,9 +209,13 @@ func (s *Scorer) boundaryEfforts(dst, p []float64, h float64) {
 			break
 		}
 	}
+	s.limitErr = 0
 	for k := range dst {
 		lim := st[k].result()
 		formal := dst[k]
+		if e := st[k].err; lim == lim && !math.IsInf(lim, 0) && e > s.limitErr {
+			s.limitErr = e
+		}
 		switch {
 		case lim != lim:
 			// The segment leaves the formula's domain: keep the formal
@@ -205,6 +231,7 @@ func (s *Scorer) boundaryEfforts(dst, p []float64, h float64) {
 		}
 		dst[k] += 0 // -0 (from -1·0) reads as a negative effort; make it 0
 	}
+	s.maxLimitErr = math.Max(s.maxLimitErr, s.limitErr)
 }
 
 // boundaryValue is H at a boundary point p as the limit from the interior

@@ -131,6 +131,9 @@ type Scorer struct {
 	// Scratch for the limit at boundary reports, made on first use.
 	limit []limitState
 	pt    []float64
+	// limitErr is the error estimate of the last Efforts call's limits,
+	// maxLimitErr the largest over every call.
+	limitErr, maxLimitErr float64
 }
 
 // NewScorer returns a Scorer for r.
@@ -167,6 +170,7 @@ func (s *Scorer) Efforts(dst, p []float64) float64 {
 	s.check("report", p)
 	s.check("effort", dst)
 	h := s.ev.Gradient(s.grad, p)
+	s.limitErr = 0
 	if onBoundary(p) {
 		s.boundaryEfforts(dst, p, h)
 		if h != h {
@@ -180,6 +184,15 @@ func (s *Scorer) Efforts(dst, p []float64) float64 {
 	}
 	return h
 }
+
+// LimitError is the error estimate of the efforts the last Efforts call
+// extrapolated (a boundary report's limits from the interior,
+// boundary.go): the largest over its finite efforts, 0 at an interior
+// report or where every limit was exact to rounding.
+func (s *Scorer) LimitError() float64 { return s.limitErr }
+
+// MaxLimitError is the largest LimitError over every Efforts call so far.
+func (s *Scorer) MaxLimitError() float64 { return s.maxLimitErr }
 
 // Gradient writes grad H(p) into dst and returns H(p).
 func (s *Scorer) Gradient(dst, p []float64) float64 {
