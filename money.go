@@ -3,6 +3,8 @@ package scorewright
 import (
 	"context"
 
+	"gonum.org/v1/gonum/floats"
+
 	"scorewright/contract/backtest"
 	"scorewright/contract/backtest/history"
 	"scorewright/contract/budget"
@@ -65,6 +67,7 @@ func Backtest(ctx context.Context, h *history.Reader, schemes []backtest.Scheme,
 type Distortion struct {
 	*risk.Solver
 	terms *budget.Terms
+	n     int
 }
 
 // Distort sets up the risk computation of the rule under fitted terms t
@@ -78,7 +81,7 @@ func (r *Rule) Distort(t *budget.Terms, u risk.Utility, wealth float64) (*Distor
 	if err != nil {
 		return nil, err
 	}
-	return &Distortion{Solver: s, terms: t}, nil
+	return &Distortion{Solver: s, terms: t, n: rule.Outcomes()}, nil
 }
 
 // SmallestPay is the smallest payment terms t can make, as a risk
@@ -92,3 +95,50 @@ func (d *Distortion) MenuPick(q []float64) []float64 { return risk.MenuPick(d.te
 // PayLine says in words how pay follows from effort and what it was
 // fitted on: the one wording of the command and the workbench.
 func (d *Distortion) PayLine() string { return risk.PayDesc(d.terms) }
+
+// Curve is the distortion over the beliefs risk.CurveBeliefs gives for the
+// outcomes and the terms' report floor: the best report of each belief
+// solved (a belief not settled is in Curve.Failed). toward[i] is the
+// outcome Curve.Points[i] heads for (n > 2; nil for n = 2); along says in
+// words what the beliefs are.
+func (d *Distortion) Curve(ctx context.Context, progress func(done, total int64)) (curve *risk.Curve, toward []int, along string, err error) {
+	beliefs, to, along := risk.CurveBeliefs(d.n, d.terms.Fit.ReportFloor)
+	if curve, err = d.Distortion(ctx, beliefs, progress); err != nil {
+		return nil, nil, "", err
+	}
+	// toward follows the solved points only.
+	for i, j := 0, 0; i < len(beliefs) && j < len(curve.Points) && to != nil; i++ {
+		if floats.EqualApprox(beliefs[i], curve.Points[j].Belief, 1e-12) {
+			toward = append(toward, to[i])
+			j++
+		}
+	}
+	return curve, toward, along, nil
+}
+
+// DefaultBelief is the belief a risk computation shows when none is
+// given: budget b's reference belief, else the uniform one over n.
+func DefaultBelief(b design.Budget, n int) []float64 { return risk.DefaultBelief(b, n) }
+
+// ReliabilityCurves are the PAV reliability curves, with consistency
+// bands, of the forecasters a backtest result details, for event 0 of a
+// two-outcome design (backtest.ReliabilityCurves).
+func ReliabilityCurves(res *backtest.Result) []backtest.Curve {
+	return backtest.ReliabilityCurves(res, 0)
+}
+
+// AllReliabilityCurves are ReliabilityCurves for every forecaster, not
+// only the detailed ones; it reads the forecasts once more.
+func AllReliabilityCurves(res *backtest.Result) ([]backtest.Curve, error) {
+	return backtest.AllReliabilityCurves(res, 0)
+}
+
+// StepMenu is the report menu of budget b's step over n outcomes, reports
+// below b's report floor left out (budget.StepMenu).
+func StepMenu(n int, b design.Budget) (*budget.Menu, error) {
+	return budget.StepMenu(n, b.Step, b.ReportFloor)
+}
+
+// FileMenu is the report menu read from the CSV file at path, for n
+// outcomes (budget.FileMenu).
+func FileMenu(path string, n int) (*budget.Menu, error) { return budget.FileMenu(path, n) }

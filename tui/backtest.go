@@ -17,7 +17,6 @@ import (
 	"scorewright"
 	"scorewright/contract/backtest"
 	"scorewright/contract/backtest/history"
-	"scorewright/contract/budget"
 	"scorewright/generator/design"
 	"scorewright/tui/reliability"
 )
@@ -100,7 +99,7 @@ func replay(ctx context.Context, d *design.Design, h *history.Reader, path strin
 	if d.Budget.Step <= 0 {
 		return nil, errors.New("set a report menu step (Step) in the budget: the backtest pays as the table does")
 	}
-	menu, err := budget.StepMenu(d.N(), d.Budget.Step, d.Budget.ReportFloor)
+	menu, err := scorewright.StepMenu(d.N(), d.Budget)
 	if err != nil {
 		return nil, err
 	}
@@ -130,7 +129,7 @@ func replay(ctx context.Context, d *design.Design, h *history.Reader, path strin
 	out := &BacktestResult{Path: path, Labels: append([]string(nil), d.Labels...), Result: res, Pay: fitted.PayFormula(),
 		Menu: fit.MenuDesc(), Budget: fit.BudgetDesc(), Notes: fitted.Notes, decimal: fit.Decimals()}
 	if len(d.Labels) == 2 {
-		out.Curves = backtest.ReliabilityCurves(res, 0)
+		out.Curves = scorewright.ReliabilityCurves(res)
 	}
 	if fitted.Warning != "" {
 		out.Notes = append(out.Notes, fitted.Warning)

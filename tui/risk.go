@@ -113,24 +113,15 @@ func riskRun(ctx context.Context, d *design.Design, in RiskInputs, progress func
 	}
 	q := in.Belief
 	if q == nil {
-		q = risk.DefaultBelief(d.Budget, d.N())
+		q = scorewright.DefaultBelief(d.Budget, d.N())
 	}
 	// A belief the search cannot settle is shown on its own line; it
 	// never takes the rest of the view with it.
 	chosen, chosenErr := solver.Best(q)
 	out := &RiskResult{Inputs: in, Labels: append([]string(nil), d.Labels...), Chosen: chosen, ChosenErr: chosenErr,
 		MenuPick: solver.MenuPick(q), Pay: solver.PayLine()}
-	beliefs, toward, along := risk.CurveBeliefs(d.N(), d.Budget.ReportFloor)
-	out.Along = along
-	if out.Curve, err = solver.Distortion(ctx, beliefs, progress); err != nil {
+	if out.Curve, out.Toward, out.Along, err = solver.Curve(ctx, progress); err != nil {
 		return nil, err
-	}
-	// Toward follows the solved points only.
-	for i, j := 0, 0; i < len(beliefs) && j < len(out.Curve.Points) && toward != nil; i++ {
-		if sameVector(beliefs[i], out.Curve.Points[j].Belief) {
-			out.Toward = append(out.Toward, toward[i])
-			j++
-		}
 	}
 	return out, nil
 }
@@ -337,7 +328,7 @@ func stepBelief(in *RiskInputs, d *design.Design, up, fine bool) bool {
 	floor := math.Max(d.Budget.ReportFloor, 0.01)
 	q := in.Belief
 	if q == nil {
-		q = risk.DefaultBelief(d.Budget, d.N())
+		q = scorewright.DefaultBelief(d.Budget, d.N())
 	}
 	if d.N() == 2 {
 		st := 0.05
@@ -356,7 +347,7 @@ func stepBelief(in *RiskInputs, d *design.Design, up, fine bool) bool {
 		return true
 	}
 	beliefs, _, _ := risk.CurveBeliefs(d.N(), d.Budget.ReportFloor)
-	list := append([][]float64{risk.DefaultBelief(d.Budget, d.N())}, beliefs...)
+	list := append([][]float64{scorewright.DefaultBelief(d.Budget, d.N())}, beliefs...)
 	at := 0
 	for i, b := range list {
 		if sameVector(b, q) {

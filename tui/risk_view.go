@@ -33,7 +33,7 @@ func (v RiskView) inputsLine(in RiskInputs, d *design.Design) string {
 	st := v.st
 	q := in.Belief
 	if q == nil {
-		q = risk.DefaultBelief(d.Budget, d.N())
+		q = scorewright.DefaultBelief(d.Budget, d.N())
 	}
 	belief := reportText(q, d.Labels)
 	if d.N() == 2 {

@@ -304,7 +304,7 @@ func finishBacktest(e *env, h *history.Reader, schemes []*backtestScheme, res *b
 	report := newBacktestReport(o.history, h, schemes, res)
 	chartCurves := report.curves // the text chart draws the listed forecasters
 	if o.allCurves && !res.Shown() {
-		curves, err := backtest.AllReliabilityCurves(res, 0)
+		curves, err := scorewright.AllReliabilityCurves(res)
 		if err != nil {
 			return usagef("--all-curves: %v", err)
 		}

@@ -7,6 +7,7 @@ import (
 	"strconv"
 	"text/tabwriter"
 
+	"scorewright"
 	"scorewright/contract/backtest"
 	"scorewright/contract/backtest/corp"
 	"scorewright/internal/num"
@@ -58,7 +59,7 @@ func (r *backtestReport) addCurves(res *backtest.Result) {
 	if len(r.Outcomes) != 2 {
 		return
 	}
-	r.setCurves(backtest.ReliabilityCurves(res, 0))
+	r.setCurves(scorewright.ReliabilityCurves(res))
 }
 
 // setCurves makes curves the reliability picture's, in the JSON too.

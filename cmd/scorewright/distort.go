@@ -89,8 +89,7 @@ func runDistort(e *env, args []string) error {
 	best, bestErr := solver.Best(q)
 	pick := solver.MenuPick(q)
 
-	beliefs, _, along := risk.CurveBeliefs(n, d.Budget.ReportFloor)
-	curve, err := solver.Distortion(context.Background(), beliefs, nil)
+	curve, _, along, err := solver.Curve(context.Background(), nil)
 	if err != nil {
 		return err
 	}
@@ -149,7 +148,7 @@ func distortTerms(notes io.Writer, fs *flag.FlagSet, rf *ruleFlags, bf *budgetFl
 // distortBelief is --belief read over n outcomes, or the budget's default
 // belief; it may give no outcome less than the report floor.
 func distortBelief(belief string, d *design.Design, n int) ([]float64, error) {
-	q := risk.DefaultBelief(d.Budget, n)
+	q := scorewright.DefaultBelief(d.Budget, n)
 	if belief != "" {
 		var err error
 		if q, err = num.ParseDistribution(belief, n); err != nil {

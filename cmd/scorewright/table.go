@@ -217,12 +217,12 @@ func tableMenu(fs *flag.FlagSet, tf *tableFlags, d *design.Design) (*budget.Menu
 	case tf.menu != "" && stepSet:
 		return nil, usagef("give --step or --menu FILE, not both")
 	case tf.menu != "":
-		m, err = budget.FileMenu(tf.menu, d.N())
+		m, err = scorewright.FileMenu(tf.menu, d.N())
 	case d.Budget.Menu != "" && !stepSet:
 		// The design's own menu file, as the workbench fits it.
-		m, err = budget.FileMenu(d.Budget.Menu, d.N())
+		m, err = scorewright.FileMenu(d.Budget.Menu, d.N())
 	case d.Budget.Step > 0:
-		m, err = budget.StepMenu(d.N(), d.Budget.Step, d.Budget.ReportFloor)
+		m, err = scorewright.StepMenu(d.N(), d.Budget)
 	default:
 		return nil, usagef("the report menu is missing: give --step S (e.g. 0.05; 1/K for a simplex grid when n > 2) or --menu FILE")
 	}
