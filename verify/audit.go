@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"runtime"
 	"sort"
 
 	"scorewright/generator/payout"
@@ -105,8 +106,12 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 		return nil, err
 	}
 	// Identification reads only the pays, so it runs beside the stream
-	// and the off-grid passes, filling the cores their serial steps leave.
-	fitsc, stopFits := identifyAsync(ctx, g, pays, cands, s.Workers, pr)
+	// and the off-grid passes, filling the cores their serial steps leave
+	// — but only when the caller gave the audit every core: a caller that
+	// keeps cores free (the workbench keeps one for the screen) gets
+	// identification after the stream, so no more than s.Workers
+	// goroutines work at once.
+	waitFits, stopFits := identifyAsync(ctx, g, pays, cands, s.Workers, s.Workers >= runtime.GOMAXPROCS(0), pr)
 	defer stopFits()
 	label := func(k int) string {
 		if len(s.Labels) == n {
@@ -152,7 +157,7 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	}
 	largestGap(rep, &prop, p, g, s.Tolerance)
 	auditVerdict(rep, prop, bounded, ties, p, s.Tolerance)
-	fr := <-fitsc
+	fr := waitFits()
 	if fr.err != nil {
 		return nil, fr.err
 	}
@@ -166,20 +171,26 @@ type fitsResult struct {
 	err  error
 }
 
-// identifyAsync starts identify on its own goroutine. The channel carries
-// its one result; stop cancels it and waits for it to end, so an audit
-// that returns early (an error, a cancelled context) leaves nothing
-// running.
-func identifyAsync(ctx context.Context, g *simplex.Grid, pays *menu, cands []Candidate, w int, pr *pool.Meter) (<-chan fitsResult, func()) {
+// identifyAsync starts identify on its own goroutine when beside is
+// true; otherwise identify runs when wait is called. wait gives its one
+// result; stop cancels it and waits for it to end, so an audit that
+// returns early (an error, a cancelled context) leaves nothing running.
+func identifyAsync(ctx context.Context, g *simplex.Grid, pays *menu, cands []Candidate, w int, beside bool, pr *pool.Meter) (wait func() fitsResult, stop func()) {
 	ctx, cancel := context.WithCancel(ctx)
+	run := func() fitsResult {
+		fits, err := identify(ctx, g, pays, cands, w, pr)
+		return fitsResult{fits, err}
+	}
+	if !beside {
+		return run, cancel
+	}
 	out := make(chan fitsResult, 1)
 	done := make(chan struct{})
 	go func() {
 		defer close(done)
-		fits, err := identify(ctx, g, pays, cands, w, pr)
-		out <- fitsResult{fits, err}
+		out <- run()
 	}()
-	return out, func() { cancel(); <-done }
+	return func() fitsResult { return <-out }, func() { cancel(); <-done }
 }
 
 // auditPays evaluates the payout at every grid report: the menu of pays.
