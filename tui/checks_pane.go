@@ -105,7 +105,8 @@ func (p ChecksPane) proof() (statement string, certified bool) {
 	if c == nil {
 		return "", false
 	}
-	return c.Statement, c.Verdict == string(verify.Proper) || c.Verdict == string(verify.StrictlyProper)
+	proved := c.Verdict == string(verify.Proper) || c.Verdict == string(verify.StrictlyProper)
+	return c.Statement, proved && !contradicted(p.report)
 }
 
 // Running reports whether a check is in progress.

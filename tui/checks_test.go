@@ -7,6 +7,8 @@ import (
 
 	"github.com/charmbracelet/x/ansi"
 	"github.com/charmbracelet/x/exp/golden"
+
+	"scorewright/generator/design"
 )
 
 // checksText is the checks pane's body as plain text.
@@ -125,5 +127,24 @@ func TestCheckerRestsOnProof(t *testing.T) {
 		if want := map[bool]string{true: "certified", false: "grid evidence"}[c.certified]; r.Kind() != want {
 			t.Errorf("%s: kind %q, want %q", c.formula, r.Kind(), want)
 		}
+	}
+}
+
+// Should the grid ever find a witness against a proof, the header shows
+// the grid's improper verdict as grid evidence, not the certificate's
+// "certified", and an export does not record the rule as certified.
+func TestHeaderShowsAContradictedProofAsImproper(t *testing.T) {
+	contradicting := func(ctx context.Context, d *design.Design, s Settings, progress func(done, total int64)) (*CheckReport, error) {
+		return &CheckReport{Verdict: "improper", Resolution: 10, Points: 11,
+			Rows:        []CheckRow{{Name: "properness", Passed: false, Worst: 0.5}},
+			Certificate: &CertificateView{Kind: "certified", Verdict: "strictly-proper", Statement: "certified strictly proper"}}, nil
+	}
+	m := testModel(t, nil, Settings{Checker: contradicting})
+	start(t, m, 80, 24)
+	if h := ansi.Strip(m.verdictWords()); !strings.Contains(h, "improper, grid evidence") {
+		t.Errorf("header verdict %q", h)
+	}
+	if _, certified := m.checks.proof(); certified {
+		t.Error("an export would record a contradicted proof as certified")
 	}
 }

@@ -85,7 +85,10 @@ func (m *Model) verdictWords() string {
 	}
 	r := c.report
 	verdict, kind := r.Verdict, r.Kind()
-	if cert := r.Certificate; cert != nil && cert.Verdict != "" && cert.Verdict != "undecided" {
+	// The certificate's verdict stands in the header unless the grid found
+	// the rule improper where the proof says proper: then the header shows
+	// the grid's witness-backed verdict, as the checks pane does.
+	if cert := r.Certificate; cert != nil && cert.Verdict != "" && cert.Verdict != "undecided" && !contradicted(r) {
 		verdict, kind = cert.Verdict, "certified"
 	}
 	words := strings.ReplaceAll(verdict, "-", " ")
@@ -173,4 +176,11 @@ func (m *Model) footerKeys() []key.Binding {
 		}
 	}
 	return append(keys, as(k.Save, k.Save.Help().Key, "save"), as(k.Export, k.Export.Help().Key, "export"))
+}
+
+// contradicted reports whether the grid found r's rule improper while its
+// certificate says proper.
+func contradicted(r *CheckReport) bool {
+	c := r.Certificate
+	return c != nil && strings.Contains(r.Verdict, "improper") && !strings.Contains(c.Verdict, "improper")
 }

@@ -222,7 +222,7 @@ func drawResearch(st Styles, w, h int, rep *study.Report) string {
 	}
 	event := rep.Labels[0]
 	lines := []string{ansi.Truncate(fmt.Sprintf("what a posterior is worth (currency), base rate %.3g", rep.Prior[0]), w, "…"), lc.View(),
-		ansi.Truncate(fmt.Sprintf("%*s", plotW, fmt.Sprintf("posterior: probability of %q", event)), w, "…"),
+		ansi.Truncate(padLeft(fmt.Sprintf("posterior: probability of %q", event), plotW), w, "…"),
 		ansi.Truncate(strings.Join(legend, "  "), w, "…")}
 	return strings.Join(lines, "\n")
 }

@@ -69,7 +69,7 @@ func drawDistortion(st Styles, w, h int, r *RiskResult) string {
 		}
 	}
 	lines := []string{ansi.Truncate(fmt.Sprintf("best report: probability of %q", event), w, "…"), strings.Join(plot, "\n"),
-		ansi.Truncate(fmt.Sprintf("%*s", plotW, fmt.Sprintf("belief: probability of %q", event)), w, "…"),
+		ansi.Truncate(padLeft(fmt.Sprintf("belief: probability of %q", event), plotW), w, "…"),
 		ansi.Truncate(legend, w, "…")}
 	return strings.Join(lines, "\n")
 }

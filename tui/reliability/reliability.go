@@ -87,7 +87,7 @@ func (c Chart) View(width, height int) string {
 	}
 	lines := []string{clip(fmt.Sprintf("observed frequency of %q", c.Outcome), width)}
 	lines = append(lines, lc.View())
-	lines = append(lines, clip(fmt.Sprintf("%*s", plotW, fmt.Sprintf("forecast probability of %q", c.Outcome)), width))
+	lines = append(lines, clip(alignRight(fmt.Sprintf("forecast probability of %q", c.Outcome), plotW), width))
 	lines = append(lines, legend...)
 	for range height - 2 - len(legend) - plotH {
 		lines = append(lines, "")
@@ -143,3 +143,9 @@ func (c Chart) legend(width int) []string {
 func clamp01(x float64) float64 { return math.Min(1, math.Max(0, x)) }
 
 func clip(s string, width int) string { return ansi.Truncate(s, width, "…") }
+
+// alignRight right-aligns s in display width w: the outcome's name is the
+// user's, and %*s would count its runes, not the cells they take.
+func alignRight(s string, w int) string {
+	return strings.Repeat(" ", max(0, w-ansi.StringWidth(s))) + s
+}
