@@ -99,11 +99,7 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	if err != nil {
 		return nil, err
 	}
-	// Worst extrapolation error over the boundary reports (their limits
-	// from the interior; bregman.Scorer.LimitError).
-	for _, sc := range scorers {
-		rep.Grid.Extrapolation = math.Max(rep.Grid.Extrapolation, sc.MaxLimitError())
-	}
+	rep.Grid.Extrapolation = worstLimitError(scorers)
 	bounded := boundedness(g, m, s.Limit, r.Label, "effort", 1)
 	rep.Grid.Scale, rep.Grid.Rounding = scaleOf(m)
 	m.seal()
@@ -135,11 +131,7 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	}
 	prop, nonneg, ties := properness(g, m, h, bs, s.Tolerance, rep.Grid.Scale, rep.Grid.Rounding, rep.Grid.Extrapolation)
 	if g.Sampled && !proved {
-		if err := searchReports(ctx, g, &prop, s, func(int) func(q, p []float64) float64 {
-			sc := r.NewScorer()
-			eff := make([]float64, n)
-			return func(q, p []float64) float64 { sc.Efforts(eff, p); return bregman.Dot(q, eff) }
-		}); err != nil {
+		if err := searchEfforts(ctx, r, g, &prop, s); err != nil {
 			return nil, err
 		}
 	}
@@ -169,6 +161,29 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 		restOnProof(rep, s.Proof, rep.Grid.Boundary)
 	}
 	return rep, nil
+}
+
+// worstLimitError is the worst extrapolation error over the boundary
+// reports (their efforts are limits from the interior;
+// bregman.Scorer.LimitError), over every worker's scorer.
+func worstLimitError(scorers []*bregman.Scorer) float64 {
+	worst := 0.0
+	for _, sc := range scorers {
+		worst = math.Max(worst, sc.MaxLimitError())
+	}
+	return worst
+}
+
+// searchEfforts looks between the points of a sampled grid for a report
+// with less expected effort than the honest one (searchReports, with a
+// scorer per worker).
+func searchEfforts(ctx context.Context, r *bregman.Rule, g *simplex.Grid, prop *CheckResult, s Settings) error {
+	n := r.Outcomes()
+	return searchReports(ctx, g, prop, s, func(int) func(q, p []float64) float64 {
+		sc := r.NewScorer()
+		eff := make([]float64, n)
+		return func(q, p []float64) float64 { sc.Efforts(eff, p); return bregman.Dot(q, eff) }
+	})
 }
 
 // gridEfforts computes the effort of every grid report (the menu's rows)
