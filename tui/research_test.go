@@ -148,7 +148,7 @@ func TestResearchRefusesPayout(t *testing.T) {
 	m := testModel(t, d, Settings{})
 	start(t, m, 80, 24)
 	press(t, m, keyCtrlY)
-	if v := m.View(); !strings.Contains(v, "works on rules over outcomes") {
+	if v := m.View(); !strings.Contains(v, "works on rules over outcomes") || strings.Contains(v, "waiting for the design") {
 		t.Errorf("view:\n%s", v)
 	}
 }

@@ -37,6 +37,8 @@ func (r *ResearchRoom) statusLine() string {
 		// and changes the line whenever a new study lands.
 		model, strength := r.forIn.modelWords()
 		return st.Pass.Render("✓ study done: "+model+", "+strength) + st.Dim.Render("   ↑/↓ choose   ←/→ step   esc back")
+	case r.err != nil:
+		return st.Dim.Render("no study: see below   esc back")
 	}
 	return st.Dim.Render("waiting for the design to compile")
 }
