@@ -54,6 +54,14 @@ grep -q "$fp" "$txt"
 cmp "$work/again.csv" "$work/first.csv"
 pdfinfo "$work/water.pdf" | grep -q '^Producer: *scorewright'
 
+# Terms without a season length: the cost table has no season column
+# (its cell once ran over the amounts beside it) and a sentence says why.
+"$sw" table --outcomes frost,clear --preset quadratic --floor 0 --cap 40 --step 0.05 --unit 0.1 --out "$work/noseason.pdf" >/dev/null
+pdftotext -layout "$work/noseason.pdf" "$work/noseason.txt"
+grep -q 'do not state the forecasts per season, so no season total is given' "$work/noseason.txt"
+if grep -q 'forecasts per season not stated' "$work/noseason.txt"; then echo "e2e-annex: a season cell in a table without a season"; exit 1; fi
+grep -Eq '^ *a forecaster who only reports the base rate +30\.0 units$' "$work/noseason.txt"
+
 pdftoppm -f 1 -l 1 -r 60 -png "$work/water.pdf" "$work/page"
 test -s "$work/page-1.png"
 head -c 2 "$work/water.xlsx" | grep -q PK

@@ -179,9 +179,15 @@ func (d *Document) pdfCost(pdf *fpdf.Fpdf) {
 		season = fmt.Sprintf("over %d forecasts", c.Season.Forecasts)
 	}
 	d.pdfPara(pdf, "Expected pay at the buyer's base rate "+d.CostBaseRate()+".")
-	widths := []float64{90, 35, 45}
+	// Without a season length there is no season total: the column is
+	// left out and a sentence says why, rather than a cell too wide for
+	// its column running over the amounts beside it.
+	heads, widths := []string{"", "per forecast", season}, []float64{100, 30, 40}
+	if c.Season.Forecasts == 0 {
+		heads, widths = heads[:2], []float64{135, 35}
+	}
 	pdf.SetFont(sans, "B", bodySize)
-	for i, h := range []string{"", "per forecast", season} {
+	for i, h := range heads {
 		align := "R"
 		if i == 0 {
 			align = "L"
@@ -191,11 +197,20 @@ func (d *Document) pdfCost(pdf *fpdf.Fpdf) {
 	pdf.Ln(rowH)
 	pdf.SetFont(sans, "", bodySize)
 	for _, l := range c.Lines() {
-		pdf.CellFormat(widths[0], rowH, l.Who, "", 0, "L", false, 0, "")
-		pdf.CellFormat(widths[1], rowH, l.PerForecast, "", 0, "R", false, 0, "")
-		pdf.CellFormat(widths[2], rowH, l.Season, "", 1, "R", false, 0, "")
+		cells := []string{l.Who, l.PerForecast, l.Season}
+		for i := range heads {
+			align := "R"
+			if i == 0 {
+				align = "L"
+			}
+			pdf.CellFormat(widths[i], rowH, cells[i], "", 0, align, false, 0, "")
+		}
+		pdf.Ln(rowH)
 	}
 	pdf.Ln(1.5)
+	if c.Season.Forecasts == 0 {
+		d.pdfPara(pdf, "The terms do not state the forecasts per season, so no season total is given.")
+	}
 	d.pdfPara(pdf, "The perfect forecaster is priced at the base rate too: over a season the outcomes come as the base rate says, and each forecast is paid the largest amount for the outcome that happened.")
 }
 
