@@ -4,7 +4,6 @@ import (
 	"flag"
 	"fmt"
 	"io"
-	"text/tabwriter"
 
 	"scorewright/contract/annex"
 	"scorewright/contract/cost"
@@ -13,6 +12,7 @@ import (
 	"scorewright/generator/design"
 	"scorewright/internal/num"
 	"scorewright/internal/numfmt"
+	"scorewright/internal/textcol"
 )
 
 const contractUsage = "[--title T] [--buyer NAME] [--forecaster NAME] [--currency C] [--start DATE] [--end DATE] [--signed DATE] [--forecasts N] [--base-rate q1,...]"
@@ -105,7 +105,7 @@ func printCost(w io.Writer, c *costJSON) error {
 	if c == nil {
 		return nil
 	}
-	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', 0)
+	tw := textcol.NewWriter(w, 0)
 	fmt.Fprintf(tw, "cost	at the base rate %s (%s), per forecast and per season:\n", num.Format(floats(c.BaseRate)), c.BaseRateFrom)
 	for _, l := range c.Lines {
 		fmt.Fprintf(tw, "\t  %s\n", l)

@@ -5,12 +5,12 @@ import (
 	"io"
 	"math"
 	"strconv"
-	"text/tabwriter"
 
 	"scorewright"
 	"scorewright/contract/backtest"
 	"scorewright/contract/backtest/corp"
 	"scorewright/internal/num"
+	"scorewright/internal/textcol"
 )
 
 // corpReport is one CORP decomposition: a rule (or, for more than two
@@ -94,7 +94,7 @@ func (r *backtestReport) writeCORP(w io.Writer, left func(string) string) {
 		fmt.Fprintln(w, "\nCORP decomposition per outcome against the rest, under the squared error of the event's probability (isotonic recalibration by PAV):")
 	}
 	fmt.Fprintln(w, "mean score = miscalibration - discrimination + uncertainty (exact; MCB >= 0, DSC >= 0)")
-	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', tabwriter.AlignRight)
+	tw := textcol.NewWriter(w, textcol.AlignRight)
 	fmt.Fprintf(tw, "%s\tevent\tscore\tbase rate\tmean score\tMCB\tDSC\tUNC\t\n", left("forecaster"))
 	for _, f := range r.Forecasters {
 		for _, c := range f.CORP {
@@ -114,7 +114,7 @@ func (r *backtestReport) writeMonths(w io.Writer) {
 		return
 	}
 	fmt.Fprintln(w, "\npay by month of the date column")
-	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', tabwriter.AlignRight)
+	tw := textcol.NewWriter(w, textcol.AlignRight)
 	fmt.Fprint(tw, "month\t")
 	for _, rule := range r.Rules {
 		fmt.Fprintf(tw, "forecasts\ttotal %s\t", rule.ID)

@@ -4,11 +4,11 @@ import (
 	"fmt"
 	"io"
 	"strings"
-	"text/tabwriter"
 
 	"scorewright/contract/backtest"
 	"scorewright/contract/backtest/history"
 	"scorewright/internal/num"
+	"scorewright/internal/textcol"
 )
 
 // questionTally adds up what each question cost the buyer under each rule.
@@ -82,7 +82,7 @@ func (r *backtestReport) writeQuestions(w io.Writer) error {
 		return nil
 	}
 	fmt.Fprintln(w, "\npaid per question")
-	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', tabwriter.AlignRight)
+	tw := textcol.NewWriter(w, textcol.AlignRight)
 	head := "question\toutcome\tforecasts\t"
 	for _, rr := range r.Rules {
 		head += "total " + rr.ID + "\t"

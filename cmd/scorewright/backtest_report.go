@@ -5,13 +5,13 @@ import (
 	"io"
 	"math"
 	"strings"
-	"text/tabwriter"
 	"unicode/utf8"
 
 	"scorewright/contract/backtest"
 	"scorewright/contract/backtest/history"
 	"scorewright/contract/table"
 	"scorewright/internal/num"
+	"scorewright/internal/textcol"
 )
 
 // maxSkippedShown caps the skipped rows the text report lists; --json
@@ -163,7 +163,7 @@ func (r *backtestReport) nameColumn() func(string) string {
 // ranks under each rule, then the line of all forecasts.
 func (r *backtestReport) writeForecasterTable(w io.Writer, left func(string) string) {
 	two := len(r.Rules) > 1
-	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', tabwriter.AlignRight)
+	tw := textcol.NewWriter(w, textcol.AlignRight)
 	fmt.Fprintf(tw, "%s\tforecasts\t", left("forecaster"))
 	for _, rule := range r.Rules {
 		fmt.Fprintf(tw, "total %s\tmean %s\trank %s\t", rule.ID, rule.ID, rule.ID)
@@ -248,7 +248,7 @@ func (r *backtestReport) writeTotals(w io.Writer) {
 // mean effort under each rule, and which bins each was cut into.
 func (r *backtestReport) writeDecomposition(w io.Writer, left func(string) string) {
 	fmt.Fprintln(w, "mean effort = uncertainty - resolution + reliability (+ within-bin, zero when bins are the distinct forecasts)")
-	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', tabwriter.AlignRight)
+	tw := textcol.NewWriter(w, textcol.AlignRight)
 	fmt.Fprintf(tw, "rule\t%s\tmean effort\tuncertainty\tresolution\treliability\twithin-bin\t\n", left("forecaster"))
 	for i, rule := range r.Rules {
 		for _, f := range r.Forecasters {

@@ -7,13 +7,13 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"text/tabwriter"
 
 	"scorewright"
 	"scorewright/contract/budget"
 	"scorewright/contract/risk"
 	"scorewright/generator/design"
 	"scorewright/internal/num"
+	"scorewright/internal/textcol"
 )
 
 const distortUsage = "RULE BUDGET (without --step every report is paid by the exact formula) --utility crra:R|cara:A|linear [--wealth W] [--belief q1,q2,...] [--json]\n\nRULE: " + outcomeRuleUsage + "\nBUDGET: " + budgetUsage
@@ -208,7 +208,7 @@ func printDistort(e *env, u risk.Utility, wealth float64, pay string, q []float6
 	}
 	if len(curve.Points) > 0 {
 		fmt.Fprintf(e.stdout, "distortion curve over %d beliefs (%s): largest %s points, belief %s -> report %s\n", len(curve.Points), along, scorewright.PointsText(curve.Largest.Size), num.Format(curve.Largest.Belief), num.Format(curve.Largest.Report))
-		tw := tabwriter.NewWriter(e.stdout, 0, 4, 2, ' ', 0)
+		tw := textcol.NewWriter(e.stdout, 0)
 		fmt.Fprintln(tw, "  belief\treport\tpoints")
 		every := max(1, len(curve.Points)/12)
 		for i, p := range curve.Points {

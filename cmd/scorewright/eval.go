@@ -3,9 +3,9 @@ package main
 import (
 	"fmt"
 	"math"
-	"text/tabwriter"
 
 	"scorewright/internal/num"
+	"scorewright/internal/textcol"
 )
 
 type evalJSON struct {
@@ -79,7 +79,7 @@ func runEval(e *env, args []string) error {
 	if *asJSON {
 		return writeJSON(e.stdout, out)
 	}
-	tw := tabwriter.NewWriter(e.stdout, 0, 4, 2, ' ', 0)
+	tw := textcol.NewWriter(e.stdout, 0)
 	fmt.Fprintf(tw, "report\t%s\n", num.Format(p))
 	fmt.Fprintf(tw, "entropy H(report)\t%.10g\n", h)
 	for k, l := range eff {

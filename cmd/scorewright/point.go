@@ -12,13 +12,13 @@ import (
 	"scorewright"
 	"strconv"
 	"strings"
-	"text/tabwriter"
 
 	"scorewright/contract/budget"
 	"scorewright/contract/table"
 	"scorewright/generator/design"
 	"scorewright/generator/point"
 	"scorewright/internal/num"
+	"scorewright/internal/textcol"
 	"scorewright/presets"
 	"scorewright/verify"
 	"scorewright/verify/pointcheck"
@@ -138,7 +138,7 @@ func runEvalPoint(e *env, g *point.Generator, report, belief string, asJSON bool
 	if asJSON {
 		return writeJSON(e.stdout, out)
 	}
-	tw := tabwriter.NewWriter(e.stdout, 0, 4, 2, ' ', 0)
+	tw := textcol.NewWriter(e.stdout, 0)
 	fmt.Fprintf(tw, "report x\t%.10g (interval [%g, %g])\n", x, g.Lo, g.Hi)
 	fmt.Fprintf(tw, "phi(x), phi'(x), phi''(x)\t%.10g, %.10g, %.10g\n", phi, d1, d2)
 	for j, y := range out.Outcomes {
@@ -222,7 +222,7 @@ func printPointReport(e *env, rep *pointcheck.Report, asJSON bool, cert *certifi
 	} else {
 		fmt.Fprintf(e.stdout, "verdict: %s\n", rep.Verdict)
 		fmt.Fprintf(e.stdout, "grid: [%g, %g], resolution %d (%d reports), tolerance %g\n", rep.Grid.Lo, rep.Grid.Hi, rep.Grid.Resolution, rep.Grid.Points, rep.Grid.Tolerance)
-		tw := tabwriter.NewWriter(e.stdout, 0, 4, 2, ' ', 0)
+		tw := textcol.NewWriter(e.stdout, 0)
 		for _, c := range rep.Checks {
 			mark := "pass"
 			if !c.Passed {
@@ -349,7 +349,7 @@ func printPointTableSummary(w io.Writer, f *budget.PointTable, rc *budget.PointR
 	}
 	if len(rows) > 0 {
 		fmt.Fprintln(w)
-		tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', 0)
+		tw := textcol.NewWriter(w, 0)
 		fmt.Fprintf(tw, "report x\tmargin\t\tclosest rival\n")
 		for _, i := range rows[:min(len(rows), maxItemRows)] {
 			mark := marginMark(rc.Margins[i], rc.Tolerance)

@@ -3,8 +3,8 @@ package main
 import (
 	"fmt"
 	"strings"
-	"text/tabwriter"
 
+	"scorewright/internal/textcol"
 	"scorewright/presets"
 )
 
@@ -33,7 +33,7 @@ func runPresets(e *env, args []string) error {
 		}
 		return writeJSON(e.stdout, map[string]any{"presets": out})
 	}
-	tw := tabwriter.NewWriter(e.stdout, 0, 4, 2, ' ', 0)
+	tw := textcol.NewWriter(e.stdout, 0)
 	for _, p := range all {
 		var notes []string
 		if p.Kind != presets.KindGenerator {

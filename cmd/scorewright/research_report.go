@@ -2,10 +2,10 @@ package main
 
 import (
 	"fmt"
-	"text/tabwriter"
 
 	"scorewright/contract/research/study"
 	"scorewright/internal/num"
+	"scorewright/internal/textcol"
 )
 
 type researchStepsJSON struct {
@@ -105,7 +105,7 @@ func printResearch(e *env, rep *study.Report, verdicts map[string]string, writte
 	if len(rows) > 0 {
 		season = rows[0].Gain.Season.Forecasts
 	}
-	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', tabwriter.AlignRight)
+	tw := textcol.NewWriter(w, textcol.AlignRight)
 	fmt.Fprintf(tw, "rule\tgain/forecast\tcost with\tcost without\tgain/season (%d)\tcost/season\t", season)
 	steps := len(rows) > 0 && rows[0].Steps != nil
 	if steps {

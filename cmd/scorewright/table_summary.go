@@ -5,11 +5,11 @@ import (
 	"io"
 	"math"
 	"strconv"
-	"text/tabwriter"
 
 	"scorewright/contract/budget"
 	"scorewright/contract/table"
 	"scorewright/internal/num"
+	"scorewright/internal/textcol"
 )
 
 // tableSummary is what --json prints.
@@ -226,7 +226,7 @@ type summaryHead struct {
 }
 
 func (h summaryHead) print(w io.Writer) error {
-	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', 0)
+	tw := textcol.NewWriter(w, 0)
 	fmt.Fprintf(tw, "menu\t%s\n", h.menu)
 	fmt.Fprintf(tw, "payment\t%s\n", h.payment)
 	printLottery(tw, h.lottery)
@@ -276,7 +276,7 @@ func printItems(w io.Writer, f *budget.Fit, rc *budget.Recheck) error {
 		rows, more = rows[:maxItemRows], len(rows)-maxItemRows
 	}
 	fmt.Fprintln(w)
-	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', 0)
+	tw := textcol.NewWriter(w, 0)
 	cellHead := "beliefs that pick it"
 	if binary {
 		cellHead = fmt.Sprintf("beliefs in %q that pick it", f.Labels[0])
