@@ -95,17 +95,7 @@ func dump(t *testing.T, tl *Tally) string {
 func TestSpillChangesNothing(t *testing.T) {
 	q := rule(t, "1 - sum(p^2)", 3, false)
 	lg := rule(t, "-sum(p*ln(p))", 3, false)
-	clamp := func(dst, p []float64) []float64 {
-		var s float64
-		for i, x := range p {
-			dst[i] = math.Max(x, 0.01)
-			s += dst[i]
-		}
-		for i := range dst {
-			dst[i] /= s
-		}
-		return dst
-	}
+	clamp := clampAt(0.01)
 	schemes := []Scheme{
 		{Name: "q", Rule: q, Pay: Affine{A: 10, B: 5}, OnMenu: stepMenu(10), Low: 0, High: 10},
 		{Name: "l", Rule: lg, Pay: Affine{A: 10, B: 1}, Adjust: clamp, Low: 0, High: 10},

@@ -176,17 +176,7 @@ func TestRunSkipsAndStrict(t *testing.T) {
 // be +Inf).
 func TestAdjust(t *testing.T) {
 	lg := rule(t, "-sum(p*ln(p))", 2, false)
-	clamp := func(dst, p []float64) []float64 {
-		var s float64
-		for i, x := range p {
-			dst[i] = math.Max(x, 0.01)
-			s += dst[i]
-		}
-		for i := range dst {
-			dst[i] /= s
-		}
-		return dst
-	}
+	clamp := clampAt(0.01)
 	tl, _ := NewTally([]Scheme{{Name: "log", Rule: lg, Pay: Affine{A: 10, B: 1}, Adjust: clamp, Low: 0, High: 10}}, TallyOptions{})
 	paid := tl.Add("Birch", 2, 1, []float64{1, 0})
 	if math.Abs(paid[0].Effort-math.Log(101)) > 1e-12 || math.Abs(paid[0].Pay-(10-math.Log(101))) > 1e-12 {
@@ -266,5 +256,21 @@ func TestCacheOverflow(t *testing.T) {
 	}
 	if n := len(tl.cache) / tl.n; n != cacheEntries {
 		t.Errorf("cache holds %d forecasts, want the bound %d", n, cacheEntries)
+	}
+}
+
+// clampAt is a report clamp for the tests: every probability raised to at
+// least c, then the report renormalised (the clamp the budget applies).
+func clampAt(c float64) func(dst, p []float64) []float64 {
+	return func(dst, p []float64) []float64 {
+		var s float64
+		for i, x := range p {
+			dst[i] = math.Max(x, c)
+			s += dst[i]
+		}
+		for i := range dst {
+			dst[i] /= s
+		}
+		return dst
 	}
 }
