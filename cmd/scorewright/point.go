@@ -21,6 +21,7 @@ import (
 	"scorewright/internal/textcol"
 	"scorewright/presets"
 	"scorewright/verify"
+	"scorewright/verify/certify"
 	"scorewright/verify/pointcheck"
 )
 
@@ -177,7 +178,10 @@ func pointPayoutDesign(payout, interval string, params map[string]float64) (*des
 }
 
 type pointCheckJSON struct {
-	Verdict    verify.Verdict         `json:"verdict"`
+	Verdict verify.Verdict `json:"verdict"`
+	// Kind is the grid verdict's kind: always grid evidence (what the
+	// certificate proves is in Certificate).
+	Kind       certify.Kind           `json:"kind"`
 	Grid       pointcheck.Grid        `json:"grid"`
 	Checks     []pointCheckOut        `json:"checks"`
 	Gap        *pointGapOut           `json:"gap,omitempty"`
@@ -209,7 +213,7 @@ type pointGapOut struct {
 // certificate proved the rule improper.
 func printPointReport(e *env, rep *pointcheck.Report, asJSON bool, cert *certificateJSON, improper bool) error {
 	if asJSON {
-		out := pointCheckJSON{Verdict: rep.Verdict, Grid: rep.Grid, Identified: rep.Identified, Notes: rep.Notes, Certificate: cert}
+		out := pointCheckJSON{Verdict: rep.Verdict, Kind: certify.GridEvidence, Grid: rep.Grid, Identified: rep.Identified, Notes: rep.Notes, Certificate: cert}
 		for _, c := range rep.Checks {
 			out.Checks = append(out.Checks, pointCheckOut{c.Name, c.Passed, num.Float(c.Worst), c.At, c.What})
 		}
@@ -220,7 +224,7 @@ func printPointReport(e *env, rep *pointcheck.Report, asJSON bool, cert *certifi
 			return err
 		}
 	} else {
-		fmt.Fprintf(e.stdout, "verdict: %s\n", rep.Verdict)
+		fmt.Fprintf(e.stdout, "verdict: %s (%s)\n", rep.Verdict, certify.GridEvidence)
 		fmt.Fprintf(e.stdout, "grid: [%g, %g], resolution %d (%d reports), tolerance %g\n", rep.Grid.Lo, rep.Grid.Hi, rep.Grid.Resolution, rep.Grid.Points, rep.Grid.Tolerance)
 		tw := textcol.NewWriter(e.stdout, 0)
 		for _, c := range rep.Checks {
