@@ -19,13 +19,13 @@ func gen(t *testing.T, src string, lo, hi float64) *point.Generator {
 	return g
 }
 
-func check(r *Report, name string) Check {
+func check(r *Report, name string) verify.CheckResult {
 	for _, c := range r.Checks {
 		if c.Name == name {
 			return c
 		}
 	}
-	return Check{Name: "missing " + name}
+	return verify.CheckResult{Name: "missing " + name}
 }
 
 func TestCheckGenerator(t *testing.T) {
