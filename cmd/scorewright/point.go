@@ -21,6 +21,7 @@ import (
 	"scorewright/internal/textcol"
 	"scorewright/presets"
 	"scorewright/verify"
+	"scorewright/verify/certify"
 	"scorewright/verify/pointcheck"
 )
 
@@ -177,7 +178,10 @@ func pointPayoutDesign(payout, interval string, params map[string]float64) (*des
 }
 
 type pointCheckJSON struct {
-	Verdict    verify.Verdict      `json:"verdict"`
+	Verdict verify.Verdict `json:"verdict"`
+	// Kind is the grid verdict's kind: always grid evidence (what the
+	// certificate proves is in Certificate).
+	Kind       certify.Kind        `json:"kind"`
 	Grid       pointGridJSON       `json:"grid"`
 	Checks     []pointCheckOut     `json:"checks"`
 	Gap        *pointGapOut        `json:"gap,omitempty"`
@@ -242,7 +246,7 @@ type pointGapOut struct {
 func printPointReport(e *env, rep *pointcheck.Report, asJSON bool, cert *certificateJSON, improper bool) error {
 	if asJSON {
 		g := rep.Grid
-		out := pointCheckJSON{Verdict: rep.Verdict, Grid: pointGridJSON{g.Resolution, g.Points, g.Tolerance, g.Lo, g.Hi}, Notes: rep.Notes, Certificate: cert}
+		out := pointCheckJSON{Verdict: rep.Verdict, Kind: certify.GridEvidence, Grid: pointGridJSON{g.Resolution, g.Points, g.Tolerance, g.Lo, g.Hi}, Notes: rep.Notes, Certificate: cert}
 		if id := rep.Identified; id != nil {
 			out.Identified = &pointIdentifiedOut{id.Preset, id.Scale, id.Shift, id.OutcomeTerm}
 		}
@@ -256,7 +260,7 @@ func printPointReport(e *env, rep *pointcheck.Report, asJSON bool, cert *certifi
 			return err
 		}
 	} else {
-		fmt.Fprintf(e.stdout, "verdict: %s\n", rep.Verdict)
+		fmt.Fprintf(e.stdout, "verdict: %s (%s)\n", rep.Verdict, certify.GridEvidence)
 		fmt.Fprintf(e.stdout, "grid: [%g, %g], resolution %d (%d reports), tolerance %g\n", rep.Grid.Lo, rep.Grid.Hi, rep.Grid.Resolution, rep.Grid.Points, rep.Grid.Tolerance)
 		tw := textcol.NewWriter(e.stdout, 0)
 		for _, c := range rep.Checks {

@@ -28,6 +28,11 @@ type genGrid struct {
 	nonFinte []string
 	endInf   []float64 // end reports whose effort is +Inf (infinite slope there)
 	undef    int
+	// endErr is the error estimate of a finite end slope taken as the
+	// limit from the interior (point.Evaluator.EndSlopeError): an effort
+	// D(y, x) at an end report is known only to endErr·|y - x|, allowed
+	// for in that report's comparisons.
+	endErr float64
 }
 
 // CheckGenerator checks a point-forecast generator on the grid. A
@@ -84,7 +89,11 @@ func CheckGenerator(ctx context.Context, g *point.Generator, s verify.Settings) 
 			rep.Notes = append(rep.Notes, fmt.Sprintf("phi'' reaches 0 at x = %g, but at isolated points only (phi is strictly concave on the grid): no two reports tie", zero))
 		}
 	}
-	rep.Notes = append(rep.Notes, fmt.Sprintf("grid check on %d outcomes and %d reports in [%g, %g], tolerance %g relative to the largest effort %.4g plus rounding in proportion to the terms that cancel: evidence, not proof", len(gg.ys), len(gg.xs), g.Lo, g.Hi, tol, gg.scale))
+	extra := ""
+	if gg.endErr > 0 {
+		extra = fmt.Sprintf(", plus %.3g·|y - x| where an end report's slope is a limit from the interior (extrapolated)", gg.endErr)
+	}
+	rep.Notes = append(rep.Notes, fmt.Sprintf("grid check on %d outcomes and %d reports in [%g, %g], tolerance %g relative to the largest effort %.4g plus rounding in proportion to the terms that cancel%s: evidence, not proof", len(gg.ys), len(gg.xs), g.Lo, g.Hi, tol, gg.scale, extra))
 	return rep, nil
 }
 
@@ -92,7 +101,8 @@ func CheckGenerator(ctx context.Context, g *point.Generator, s verify.Settings) 
 // sizes per report and outcome.
 func evaluateGenerator(ctx context.Context, ev *point.Evaluator, g *point.Generator, k int, tol float64) (*genGrid, error) {
 	ys, xs := grids(g.Lo, g.Hi, k)
-	gg := &genGrid{ys: ys, xs: xs, tol: tol, d2: make([]float64, len(xs)), d: make([][]float64, len(xs)), size: make([][]float64, len(xs))}
+	gg := &genGrid{ys: ys, xs: xs, tol: tol, d2: make([]float64, len(xs)), d: make([][]float64, len(xs)), size: make([][]float64, len(xs)),
+		endErr: ev.EndSlopeError()}
 	// undef counts the interior reports where phi, a derivative or D is
 	// NaN. At an end of the interval ∞ - ∞ is how an unbounded rule such
 	// as -x ln x at 0 shows, reported under boundedness, not failed.
@@ -121,6 +131,10 @@ func evaluateGenerator(ctx context.Context, ev *point.Evaluator, g *point.Genera
 		gg.d[i], gg.size[i] = make([]float64, len(ys)), make([]float64, len(ys))
 		for j, y := range ys {
 			v, m := ev.DivergenceTerms(y, x)
+			if !inner {
+				// The limit's error as a size whose roundoff is that error.
+				m += gg.endErr * math.Abs(y-x) / roundoff(1)
+			}
 			gg.d[i][j], gg.size[i][j] = v, m
 			switch {
 			case v != v && inner:
