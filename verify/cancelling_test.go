@@ -7,7 +7,7 @@ import (
 
 // A generator whose value is computed from large terms that cancel: H =
 // (1e8 - p1^2 - p2^2) - 1e8 is the quadratic rule's -p1^2 - p2^2 (a
-// constant never changes a Bregman rule), strictly concave (H'' = -4,
+// constant never changes a Bregman rule), strictly concave (H” = -4,
 // derived by hand), so strictly proper (Savage 1971). Its values are
 // known only to about an ulp of 1e8 (7e-9 at worst), which the midpoint
 // test once took for a convex kink ("7.45e-09 below the mean of its
