@@ -13,6 +13,7 @@ import (
 	"math"
 
 	"scorewright/generator/formula"
+	"scorewright/internal/num"
 )
 
 // Evaluator computes a generator and its exact derivatives at a point of
@@ -129,7 +130,7 @@ type Scorer struct {
 	eff  []float64
 	hess []float64
 	// Scratch for the limit at boundary reports, made on first use.
-	limit []limitState
+	limit []num.Limit
 	pt    []float64
 	// limitErr is the error estimate of the last Efforts call's limits,
 	// maxLimitErr the largest over every call.
