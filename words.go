@@ -7,7 +7,20 @@ import (
 	"scorewright/internal/num"
 	"scorewright/internal/numfmt"
 	"scorewright/verify"
+	"scorewright/verify/certify"
 )
+
+// CertificateHeadline is a certificate's verdict as both front ends head
+// it: the verdict, and for a payout proved honest to within epsilon its
+// epsilon and what that means, "epsilon-proper to 0.001 (no report gains
+// more than 0.001 anywhere)", so it never reads as plainly proper and the
+// number comes first where a pane cuts the line.
+func CertificateHeadline(verdict verify.Verdict, epsilon float64) string {
+	if verdict == certify.EpsilonProper {
+		return certify.EpsilonVerdict(epsilon) + " (" + certify.EpsilonClaim(epsilon) + ")"
+	}
+	return string(verdict)
+}
 
 // WorstText writes a check's worst value as the command and the workbench
 // print it: six significant digits, and 0 for a value within the slack

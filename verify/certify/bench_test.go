@@ -63,7 +63,7 @@ func BenchmarkCertifyPayout(b *testing.B) {
 		b.Run(fmt.Sprintf("quadratic/n=%d/certificate", n), func(b *testing.B) {
 			for range b.N {
 				res, err := Payout(context.Background(), pay, Settings{Deadline: time.Minute})
-				if err != nil || res.Verdict != verify.Proper {
+				if err != nil || res.Verdict != EpsilonProper {
 					b.Fatalf("%v %v", err, res.Statement())
 				}
 			}
