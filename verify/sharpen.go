@@ -241,6 +241,22 @@ func sharpenGap(gap *Gap, n int, cell float64, gain func(q, r []float64) float64
 	}
 }
 
+// roundingDigits caps the precision claimed for a settled gap by what the
+// payments' rounding allows: a gap computed as the difference of expected
+// payments of size 1e10 (a payout with the term 1e10·y) is known only to
+// rounding (about 1e-5 there), however well the search settled, so 0.01125
+// has three significant digits, not nine.
+func roundingDigits(gap *Gap, rounding float64) {
+	if !(rounding > 0) || !(gap.Max > 0) || math.IsInf(gap.Max, 0) || rounding <= settleDigits*gap.Max {
+		return
+	}
+	d := math.Floor(math.Log10(gap.Max / rounding))
+	if d < 0 {
+		d = 0
+	}
+	gap.Precision += fmt.Sprintf("; but the payments are known only to %.3g (the rounding of the terms they sum), so only %.0f significant digits of the gap are sure", rounding, d)
+}
+
 // snapLimit is the size below which a coordinate of a sharpened witness
 // is tried as exactly 0. The search works through the squares map, so a
 // maximum on a face is approached as x^2 with x ~ 1e-10 and reads as
