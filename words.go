@@ -29,17 +29,17 @@ func CertificateHeadline(verdict verify.Verdict, epsilon float64) string {
 // -3.05e-16 from the quadratic rule's effort summed to its generator, is
 // not a finding and must not read as one.
 func WorstText(v float64, g verify.Grid) string {
-	return numfmt.Significant(CleanWorst(v, g), 6)
+	return numfmt.Effort(CleanWorst(v, g))
 }
 
 // PayText writes an expected pay, a mean of amounts and so finer than the
 // table's currency, as the command and the workbench print it: six
 // significant digits, without binary noise.
-func PayText(v float64) string { return numfmt.Significant(v, 6) }
+func PayText(v float64) string { return numfmt.Pay(v) }
 
 // PointsText writes a distortion of a report in probability points as both
 // front ends print it: three significant digits.
-func PointsText(v float64) string { return numfmt.Significant(v, 3) }
+func PointsText(v float64) string { return numfmt.Points(v) }
 
 // LotteryRemedy is the sentence under every distortion both front ends
 // show: paid in chances of one fixed prize instead of money, expected
