@@ -28,6 +28,18 @@ func PayText(v float64) string { return numfmt.Significant(v, 6) }
 // front ends print it: three significant digits.
 func PointsText(v float64) string { return numfmt.Significant(v, 3) }
 
+// LotteryRemedy is the sentence under every distortion both front ends
+// show: paid in chances of one fixed prize instead of money, expected
+// utility is affine in the chance, so the report that maximises expected
+// pay is best whatever the utility (contract/lottery says why). how names
+// the way to ask for it ("table --lottery"). It is said of the best report
+// over all reports, as the distortion is; the menu pick then is the row a
+// risk-neutral forecaster picks. Short enough for two lines of the
+// workbench at 80 columns.
+func LotteryRemedy(how string) string {
+	return "Paid as a chance (pay - floor)/(cap - floor) of one fixed prize (" + how + "), any expected-utility maximiser reports the truth."
+}
+
 // CleanWorst is v, or 0 when v is within the slack of g's comparisons.
 func CleanWorst(v float64, g verify.Grid) float64 {
 	if math.Abs(v) <= math.Max(g.Tolerance*g.Scale, g.Rounding) {

@@ -97,9 +97,9 @@ func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress f
 func fromPoint(rep *pointcheck.Report) *CheckReport {
 	out := &CheckReport{Verdict: string(rep.Verdict), Resolution: rep.Grid.Resolution, Points: int64(rep.Grid.Points), Tolerance: rep.Grid.Tolerance, Notes: rep.Notes}
 	for _, ck := range rep.Checks {
-		row := CheckRow{Name: ck.Name, Passed: ck.Passed, Worst: ck.Shown(), Note: ck.What}
-		if ck.At != nil {
-			row.Report = ck.At.Report
+		row := CheckRow{Name: ck.Name, Passed: ck.Passed, Worst: pointcheck.Shown(ck), Note: ck.Note}
+		if len(ck.Report) > 0 {
+			row.Report = ck.Report
 		}
 		out.Rows = append(out.Rows, row)
 	}

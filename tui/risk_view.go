@@ -74,7 +74,7 @@ func describe(in RiskInputs) string {
 // dialog's lottery key.
 func lotteryNote(k KeyMap) string {
 	// Two lines at 80 columns: the risk view has no line to spare there.
-	return "Paying a chance (pay - floor)/(cap - floor) of one prize (" + k.Lottery.Help().Key + " in the export dialog) removes this distortion for any expected-utility maximiser."
+	return scorewright.LotteryRemedy(k.Lottery.Help().Key + " when exporting")
 }
 
 // View is the view as last laid out by refresh.

@@ -164,6 +164,10 @@ type Grid struct {
 	// Pairs is the number of belief–report pairs the check settled: G²,
 	// or fewer when a proof settled the rest (Report.Proof).
 	Pairs int64
+	// Lo and Hi are the interval of a point check (verify/pointcheck),
+	// whose grid has Resolution+1 outcomes and Points reports on it; both
+	// are 0 over the simplex.
+	Lo, Hi float64
 }
 
 // String states the grid the way every verdict must: resolution, points,
@@ -251,6 +255,14 @@ type CheckResult struct {
 	GridWorst float64
 	// Status is the optimiser's status when it was run.
 	Status string
+	// Outcomes, in a point check (verify/pointcheck), are the outcome
+	// values of the worst place: the support of the forecaster's
+	// distribution, whose weights are then Belief.
+	Outcomes []float64
+	// Slack, in a point check, is the allowance of the comparison at the
+	// worst place: the tolerance plus the rounding of the terms that
+	// cancel there (over the simplex it is the grid's, Grid.Slack).
+	Slack float64
 }
 
 // Report is the result of CheckRule.

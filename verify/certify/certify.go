@@ -24,6 +24,11 @@
 //   - a generator that is a sum of one-variable terms is proved strictly
 //     concave term by term (separable.go), which decides the vertices
 //     where the power rule's curvature vanishes and no box can;
+//   - a generator that is, as a whole formula, a negated power of a
+//     weighted a-norm plus affine terms (the spherical and pseudospherical
+//     rules) is proved strictly concave by Minkowski's inequality
+//     (norm.go), which decides the faces where the pseudospherical rule's
+//     curvature vanishes;
 //   - a payout is proved honest to within Epsilon when, over pairs of a
 //     belief box and a report box, an upper bound of E_q[pay(r)] -
 //     E_q[pay(q)] is at most Epsilon, and proved dishonest by a pair whose

@@ -24,10 +24,9 @@ type Candidate struct {
 // g(y) - Scale * D(y, x) with a term g in the outcome alone (which changes
 // no incentive) and Shift is 0.
 type Identified struct {
-	Preset      string  `json:"preset"`
-	Scale       float64 `json:"scale"`
-	Shift       float64 `json:"shift"`
-	OutcomeTerm bool    `json:"outcome_term,omitempty"`
+	Preset       string
+	Scale, Shift float64
+	OutcomeTerm  bool
 }
 
 // Payout is a compiled payout formula pay(x, y) for point forecasts.
@@ -81,7 +80,7 @@ func AuditPayout(ctx context.Context, p *Payout, lo, hi float64, s verify.Settin
 	k, tol := resolution(s), tolerance(s)
 	a := &payAudit{pr: p.newPayer(), lo: lo, hi: hi, tol: tol}
 	a.ys, a.xs = grids(lo, hi, k)
-	rep := &Report{Grid: Grid{Resolution: k, Points: len(a.xs), Tolerance: tol, Lo: lo, Hi: hi}}
+	rep := &Report{Report: verify.Report{Grid: verify.Grid{Resolution: k, Points: len(a.xs), Tolerance: tol, Lo: lo, Hi: hi}}}
 	pm, nonFinite, err := fill(ctx, a.xs, a.ys, "pay", func(y, x float64) float64 { return a.pr.pay(x, y) })
 	if err != nil {
 		return nil, err
@@ -93,13 +92,14 @@ func AuditPayout(ctx context.Context, p *Payout, lo, hi float64, s verify.Settin
 	if err != nil {
 		return nil, err
 	}
-	proper := Check{Name: "properness", What: fmt.Sprintf("largest honesty gap max_x E pay(x, Y) - E pay(mean, Y) over %d two- and three-point distributions and a search over every two-point distribution (support and weight), where the gap of a point report is largest", len(ds)), Worst: gap.Max, At: &At{Outcomes: gap.Outcomes, Weights: gap.Weights, Report: []float64{gap.BestReport}}, Passed: gap.Max <= tol*a.scale, Slack: tol * a.scale}
+	proper := result("properness", fmt.Sprintf("largest honesty gap max_x E pay(x, Y) - E pay(mean, Y) over %d two- and three-point distributions and a search over every two-point distribution (support and weight), where the gap of a point report is largest", len(ds)),
+		gap.Max, gap.Max <= tol*a.scale, tol*a.scale, &place{gap.Outcomes, gap.Weights, []float64{gap.BestReport}})
 	rep.Gap = &gap
-	bounded := Check{Name: "boundedness", What: "number of grid cells where the pay is not finite", Worst: float64(len(nonFinite)), Passed: len(nonFinite) == 0}
+	bounded := result("boundedness", "number of grid cells where the pay is not finite", float64(len(nonFinite)), len(nonFinite) == 0, 0, nil)
 	if len(nonFinite) > 0 {
 		rep.Notes = append(rep.Notes, "not finite at "+joinFirst(nonFinite, 5))
 	}
-	rep.Checks = []Check{nonneg, affine, proper, bounded}
+	rep.Checks = []verify.CheckResult{nonneg, affine, proper, bounded}
 	a.verdict(rep, strictMargin)
 	if id := identify(pm, a.xs, a.ys, a.scale, tol, candidates); id != nil {
 		rep.Identified = id
@@ -139,23 +139,23 @@ func paySpread(pm [][]float64) float64 {
 // nonnegativity: knowing the outcome for certain, the exact report pays
 // at least as much as any other, pay(y, y) - pay(x, y) >= 0. Outcome j
 // sits at report index 4j.
-func (a *payAudit) nonnegativity() Check {
-	worst, at := math.Inf(1), At{}
+func (a *payAudit) nonnegativity() verify.CheckResult {
+	worst, at := math.Inf(1), place{}
 	for j := range a.ys {
 		for i := range a.xs {
 			if d := a.pm[4*j][j] - a.pm[i][j]; d < worst {
-				worst, at = d, At{Outcomes: []float64{a.ys[j]}, Report: []float64{a.xs[i]}}
+				worst, at = d, place{outcomes: []float64{a.ys[j]}, report: []float64{a.xs[i]}}
 			}
 		}
 	}
-	return Check{Name: "nonnegativity", What: "smallest pay(y, y) - pay(x, y): what the exact report gains over report x when the outcome y is certain", Worst: worst, At: &at, Passed: worst >= -a.tol*a.scale, Slack: a.tol * a.scale}
+	return result("nonnegativity", "smallest pay(y, y) - pay(x, y): what the exact report gains over report x when the outcome y is certain", worst, worst >= -a.tol*a.scale, a.tol*a.scale, &at)
 }
 
 // affinity: the report-dependent part pay(x, y) - pay(x0, y) must be
 // affine in y.
-func (a *payAudit) affinity() Check {
+func (a *payAudit) affinity() verify.CheckResult {
 	i0 := len(a.xs) / 2
-	worst, at := 0.0, At{}
+	worst, at := 0.0, place{}
 	for i := range a.xs {
 		f := func(j int) float64 { return a.pm[i][j] - a.pm[i0][j] }
 		for j := 0; j+2 < len(a.ys); j++ {
@@ -164,11 +164,12 @@ func (a *payAudit) affinity() Check {
 				continue // counted under boundedness
 			}
 			if dev > worst {
-				worst, at = dev, At{Outcomes: []float64{a.ys[j], a.ys[j+2]}, Report: []float64{a.xs[i]}}
+				worst, at = dev, place{outcomes: []float64{a.ys[j], a.ys[j+2]}, report: []float64{a.xs[i]}}
 			}
 		}
 	}
-	return Check{Name: "affinity", What: fmt.Sprintf("largest second difference in y of pay(x, y) - pay(%g, y); zero when the report-dependent part is affine in the outcome, which eliciting the mean needs", a.xs[i0]), Worst: worst, At: &at, Passed: worst <= a.tol*a.scale, Slack: a.tol * a.scale}
+	return result("affinity", fmt.Sprintf("largest second difference in y of pay(x, y) - pay(%g, y); zero when the report-dependent part is affine in the outcome, which eliciting the mean needs", a.xs[i0]),
+		worst, worst <= a.tol*a.scale, a.tol*a.scale, &at)
 }
 
 // gap is the largest honesty gap over the distributions ds, refined

@@ -1,3 +1,7 @@
+// The backtest report's sections after the money table: the CORP
+// decompositions, pay by month, the reliability curves, and the
+// forecasters' CSV that --forecasters-out writes.
+
 package main
 
 import (
@@ -12,26 +16,6 @@ import (
 	"scorewright/internal/num"
 	"scorewright/internal/textcol"
 )
-
-// corpReport is one CORP decomposition: a rule (or, for more than two
-// outcomes, the squared error) on one event.
-type corpReport struct {
-	Rule     string    `json:"rule"`
-	Event    string    `json:"event"`
-	Score    string    `json:"score_rule"`
-	Count    int       `json:"count"`
-	BaseRate num.Float `json:"base_rate"`
-	Mean     num.Float `json:"mean_score"`
-	MCB      num.Float `json:"miscalibration"`
-	DSC      num.Float `json:"discrimination"`
-	UNC      num.Float `json:"uncertainty"`
-}
-
-type monthReport struct {
-	Month  string      `json:"month"`
-	Counts []int       `json:"counts"`
-	Totals []num.Float `json:"totals"`
-}
 
 // corpReports lists a forecaster's CORP decompositions: under each rule
 // for two outcomes, once per outcome under the squared error for more.
