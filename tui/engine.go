@@ -8,6 +8,7 @@ import (
 	"path/filepath"
 	"runtime"
 	"scorewright"
+	"scorewright/internal/numfmt"
 	"strconv"
 	"strings"
 	"time"
@@ -278,7 +279,7 @@ func (te tableExporter) Export(ctx context.Context, d *design.Design, req Export
 // refused is the error of an export whose table failed its re-check: as
 // `scorewright table` does without --force, nothing is written.
 func refused(margin float64) error {
-	return fmt.Errorf("the menu re-check failed (smallest margin %.4g), so nothing was written; change the budget or the step", margin)
+	return fmt.Errorf("the menu re-check failed (smallest margin %s), so nothing was written; change the budget or the step", numfmt.Margin(margin))
 }
 
 // writeExport writes an export atomically and returns its absolute path.

@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"scorewright/internal/numfmt"
 	"strings"
 
 	"github.com/charmbracelet/bubbles/key"
@@ -173,9 +174,9 @@ func shortProposal(q budget.Proposal) string {
 	b := q.Budget
 	switch q.Field {
 	case "unit":
-		return fmt.Sprintf("unit %g: passes, margin %.4g", b.Unit, q.MinMargin)
+		return fmt.Sprintf("unit %g: passes, margin %s", b.Unit, numfmt.Margin(q.MinMargin))
 	case "cap":
-		return fmt.Sprintf("cap %g at unit %g: passes, margin %.4g", b.Cap, b.Unit, q.MinMargin)
+		return fmt.Sprintf("cap %g at unit %g: passes, margin %s", b.Cap, b.Unit, numfmt.Margin(q.MinMargin))
 	}
-	return fmt.Sprintf("mean pay %g at unit %g: passes, margin %.4g", *b.MeanPay, b.Unit, q.MinMargin)
+	return fmt.Sprintf("mean pay %g at unit %g: passes, margin %s", *b.MeanPay, b.Unit, numfmt.Margin(q.MinMargin))
 }

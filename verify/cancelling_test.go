@@ -2,6 +2,8 @@ package verify
 
 import (
 	"context"
+	"math"
+	"strings"
 	"testing"
 )
 
@@ -42,5 +44,47 @@ func TestCancellingConstantInTheValue(t *testing.T) {
 	}
 	if rep.Verdict != Improper {
 		t.Errorf("upward jump: verdict %s, want improper", rep.Verdict)
+	}
+}
+
+// A term that depends on the outcome alone changes no comparison (an
+// affine a·p in H adds a_k to every effort for outcome k; a payout's
+// c·y adds c·y to every payment for y), but measured across outcomes it
+// made the scale of the tolerance 1e10 and the slack 10: the convex
+// 1e10·p1 + p1^2 passed as strictly proper. Verdicts derived by hand:
+// the entropy plus an affine term is strictly proper (Good 1952; a
+// Bregman rule ignores affine terms), p1^2 is convex (improper), and the
+// payout 2·p[y] - sum(p^2) + 1e10·y + 0.3·p1 has the honesty gap
+// 0.5·4·0.075^2 = 0.01125 (its expected pay has curvature -4 and its
+// best report is q1 + 0.075).
+func TestOutcomeOnlyTermsLeaveTheScale(t *testing.T) {
+	cases := []struct {
+		src  string
+		want Verdict
+	}{
+		{"1e10*p1 + p1^2", Improper},
+		{"1e10*p1 - p1*ln(p1) - p2*ln(p2)", StrictlyProper},
+		{"1e10*p1 - p1*ln(p1) - p2*ln(p2) + max(0, 0.5*(p1 - 0.4))", Improper},
+	}
+	for _, c := range cases {
+		rep, err := CheckRule(context.Background(), rule(t, c.src, 2), Settings{Resolution: 1000})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if rep.Verdict != c.want {
+			t.Errorf("%s: verdict %s, want %s (slack %g)", c.src, rep.Verdict, c.want, rep.Grid.Slack())
+		}
+	}
+	rep, err := Audit(context.Background(), pay(t, "2*p[y] - sum(p^2) + 1e10*y + 0.3*p1", 2), nil, Settings{Resolution: 1000})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rep.Verdict != Improper || math.Abs(rep.Gap.Max-0.01125) > 1e-4 {
+		t.Errorf("payout with 1e10·y: verdict %s, gap %+v, want improper with gap 0.01125", rep.Verdict, rep.Gap)
+	}
+	// Payments of size 1e10 are known to about 1e-5: the gap cannot have
+	// 9 sure digits, and the precision says so.
+	if !strings.Contains(rep.Gap.Precision, "significant digits of the gap are sure") {
+		t.Errorf("payout with 1e10·y: precision %q claims more than rounding allows", rep.Gap.Precision)
 	}
 }

@@ -131,8 +131,10 @@ type Grid struct {
 	// Resolution K, number of grid points, and the tolerance asked for.
 	Resolution, Points int
 	Tolerance          float64
-	// Scale is the spread of the rule's values on the grid (largest
-	// finite effort or payment minus the smallest): a rule and its
+	// Scale is the spread of the rule's values on the grid, outcome by
+	// outcome (the largest over outcomes of the largest finite effort or
+	// payment for it minus the smallest; a term that depends on the
+	// outcome alone changes no comparison, see scaleOf): a rule and its
 	// affine image pay - A = B × rule get the same verdict whatever A and
 	// B > 0 are. Comparisons allow Tolerance × Scale, but never less than
 	// Rounding.
@@ -179,7 +181,7 @@ func (g Grid) String() string {
 	}
 	tol := fmt.Sprintf("tolerance %g", g.Tolerance)
 	if g.Scale != 1 {
-		tol += fmt.Sprintf(" × scale %.4g (the spread of the values) = %.3g", g.Scale, g.Tolerance*g.Scale)
+		tol += fmt.Sprintf(" × scale %.4g (the largest spread of one outcome's values) = %.3g", g.Scale, g.Tolerance*g.Scale)
 	}
 	if g.Rounding > g.Tolerance*g.Scale {
 		tol += fmt.Sprintf(", raised to %.3g for rounding", g.Rounding)

@@ -8,6 +8,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"scorewright/internal/numfmt"
 	"strconv"
 
 	"scorewright"
@@ -86,8 +87,9 @@ func (r *backtestReport) writeCORP(w io.Writer, left func(string) string) {
 			if len(r.Outcomes) > 2 {
 				score = "sq. error"
 			}
-			fmt.Fprintf(tw, "%s\t%s\t%s\t%.4g\t%.6g\t%.6g\t%.6g\t%.6g\t\n", left(f.Name), c.Event, score, float64(c.BaseRate), float64(c.Mean),
-				float64(c.MCB), float64(c.DSC), float64(c.UNC))
+			s := math.Max(math.Abs(float64(c.Mean)), math.Abs(float64(c.UNC)))
+			fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t\n", left(f.Name), c.Event, score, numfmt.Statistic(float64(c.BaseRate), 1),
+				numfmt.Statistic(float64(c.Mean), s), numfmt.Statistic(float64(c.MCB), s), numfmt.Statistic(float64(c.DSC), s), numfmt.Statistic(float64(c.UNC), s))
 		}
 	}
 	tw.Flush()

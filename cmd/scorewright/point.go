@@ -10,6 +10,7 @@ import (
 	"io"
 	"math"
 	"scorewright"
+	"scorewright/internal/numfmt"
 	"strconv"
 	"strings"
 
@@ -278,7 +279,7 @@ func printPointReport(e *env, rep *pointcheck.Report, asJSON bool, cert *certifi
 					at += " weighted " + num.Format(c.Belief)
 				}
 			}
-			fmt.Fprintf(tw, "%s\t%s\t%.4g\t%s\n", mark, c.Name, pointcheck.Shown(c), at)
+			fmt.Fprintf(tw, "%s\t%s\t%s\t%s\n", mark, c.Name, numfmt.Effort(pointcheck.Shown(c)), at)
 			fmt.Fprintf(tw, "\t\t\t  (%s)\n", c.Note)
 		}
 		if err := tw.Flush(); err != nil {
@@ -397,7 +398,7 @@ func printPointTableSummary(w io.Writer, f *budget.PointTable, rc *budget.PointR
 			if r := rc.Rivals[i]; r >= 0 {
 				rival = table.FormatNumber(f.Reports[r])
 			}
-			fmt.Fprintf(tw, "%s\t%s\t%s\t%s\n", table.FormatNumber(f.Reports[i]), table.FormatNumber(rc.Margins[i]), mark, rival)
+			fmt.Fprintf(tw, "%s\t%s\t%s\t%s\n", table.FormatNumber(f.Reports[i]), numfmt.Margin(rc.Margins[i]), mark, rival)
 		}
 		if err := tw.Flush(); err != nil {
 			return err

@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"scorewright/internal/numfmt"
 
 	"scorewright/contract/table"
 	"scorewright/generator/bregman"
@@ -66,7 +67,7 @@ func TableTerms(ctx context.Context, r *bregman.Rule, m *Menu, b design.Budget, 
 		return nil, err
 	}
 	if !t.Recheck.Passed {
-		t.Warning = fmt.Sprintf("the table this rule fits to fails its re-check (smallest incentive margin %s): after scaling and rounding some menu items are not the strict best report for a forecaster who believes them, so the table command would refuse to export it; see scorewright table", table.FormatNumber(t.Recheck.MinMargin))
+		t.Warning = fmt.Sprintf("the table this rule fits to fails its re-check (smallest incentive margin %s): after scaling and rounding some menu items are not the strict best report for a forecaster who believes them, so the table command would refuse to export it; see scorewright table", numfmt.Margin(t.Recheck.MinMargin))
 	}
 	if f := b.ReportFloor; f > 0 && recordFloor {
 		// The menu gives no outcome less than the floor; a forecast that
