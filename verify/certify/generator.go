@@ -57,6 +57,9 @@ func Generator(ctx context.Context, prog *formula.Program, n int, s Settings) (*
 	if res := separableResult(prog, n, s, start); res != nil {
 		return res, nil
 	}
+	if res := breakResult(ctx, prog, n, s, start); res != nil {
+		return res, nil
+	}
 	if res := normResult(prog, n, s, start); res != nil {
 		return res, nil
 	}
