@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"scorewright/internal/numfmt"
 	"strings"
 	"unicode/utf8"
 
@@ -12,6 +11,7 @@ import (
 	"scorewright/contract/backtest/history"
 	"scorewright/contract/table"
 	"scorewright/internal/num"
+	"scorewright/internal/numfmt"
 	"scorewright/internal/textcol"
 )
 
