@@ -5,10 +5,8 @@ import (
 	"slices"
 	"strings"
 
-	"github.com/charmbracelet/bubbles/cursor"
 	"github.com/charmbracelet/bubbles/key"
 	"github.com/charmbracelet/bubbles/progress"
-	"github.com/charmbracelet/bubbles/textinput"
 	"github.com/charmbracelet/bubbles/viewport"
 	tea "github.com/charmbracelet/bubbletea"
 
@@ -25,7 +23,7 @@ type BudgetPane struct {
 	available bool
 	sel       int
 	typing    bool
-	ti        textinput.Model
+	ti        valueInput
 	vp        viewport.Model
 	table     *TableView
 	err       error
@@ -43,10 +41,7 @@ type BudgetPane struct {
 // NewBudgetPane returns a budget pane; available says whether the build
 // can fit budgets.
 func NewBudgetPane(st Styles, keys KeyMap, available bool) BudgetPane {
-	ti := textinput.New()
-	ti.Prompt = "› "
-	ti.Cursor.SetMode(cursor.CursorStatic)
-	calmEditing(&ti.KeyMap.DeleteAfterCursor, &ti.KeyMap.DeleteBeforeCursor)
+	ti := newValueInput(st.Selected.Reverse(true))
 	vp := viewport.New(10, 3)
 	vp.KeyMap = viewport.KeyMap{PageDown: keys.PageDown, PageUp: keys.PageUp}
 	return BudgetPane{st: st, keys: keys, available: available, ti: ti, vp: vp, bar: newBar(), prop: &proposal{}}
@@ -140,9 +135,7 @@ func (p BudgetPane) Update(msg tea.Msg, d *design.Design) (BudgetPane, tea.Cmd, 
 		if edit == nil {
 			edit = f.show
 		}
-		p.ti.SetValue(edit(d))
-		p.ti.CursorEnd()
-		return p, p.ti.Focus(), false
+		return p, p.ti.Start(edit(d)), false
 	case key.Matches(km, k.Less), key.Matches(km, k.More), key.Matches(km, k.LessFine), key.Matches(km, k.MoreFine):
 		if f.step == nil {
 			p.note = f.label + ": " + errNoStep.Error()
@@ -322,8 +315,14 @@ func (p BudgetPane) View(d *design.Design) string {
 		lines = append(lines, p.fieldLine(i, fields[i], d))
 	}
 	iw := max(10, p.w-2)
-	if p.typing && fields[p.sel].hint != "" && p.note == "" {
-		lines = append(lines, strings.Split(st.Dim.Width(iw).Render(fields[p.sel].hint), "\n")...)
+	if p.typing && p.note == "" {
+		hint := fields[p.sel].hint
+		if p.ti.Whole() {
+			hint = strings.TrimPrefix(hint+"; typing replaces the value, ←/→ edit it", "; ")
+		}
+		if hint != "" {
+			lines = append(lines, strings.Split(st.Dim.Width(iw).Render(hint), "\n")...)
+		}
 	}
 	if p.note != "" {
 		lines = append(lines, strings.Split(st.Error.Width(iw).Render(p.note), "\n")...)

@@ -34,7 +34,9 @@ func selectBudgetField(t *testing.T, m *Model, label string) {
 	t.Fatalf("no budget field %q", label)
 }
 
-// typeBudget types text into the field labelled label and presses enter.
+// typeBudget types text into the field labelled label key by key, as a
+// user does (the value shown is replaced by the first key), and presses
+// enter.
 func typeBudget(t *testing.T, m *Model, label, text string) {
 	t.Helper()
 	selectBudgetField(t, m, label)
@@ -42,7 +44,9 @@ func typeBudget(t *testing.T, m *Model, label, text string) {
 	if !m.budget.Typing() {
 		t.Fatalf("%s: enter did not open the input (note %q)", label, m.budget.note)
 	}
-	m.budget.ti.SetValue(text)
+	for _, r := range text {
+		press(t, m, runes(string(r)))
+	}
 	press(t, m, keyEnter)
 }
 
