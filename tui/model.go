@@ -3,6 +3,7 @@ package tui
 import (
 	"context"
 	"errors"
+	"path/filepath"
 	"strings"
 
 	"github.com/charmbracelet/bubbles/viewport"
@@ -310,6 +311,10 @@ func (m *Model) fileMsg(msg tea.Msg) tea.Cmd {
 		gen := msg.gen
 		return m.fileDone(msg.seq, msg.err, func() {
 			m.path = msg.path
+			// The file's folder is the design's now: a relative menu path
+			// is rewritten to name the same file from there, as Save
+			// wrote it.
+			m.d.MoveTo(filepath.Dir(msg.path))
 			m.savedGen = gen
 			if !m.Unsaved() {
 				m.dropRecovery()
