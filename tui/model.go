@@ -79,7 +79,7 @@ type Model struct {
 	cancelAll context.CancelFunc
 	// The background work, one job each (tui/job.go): run ids, the
 	// generation each run is for, and cancellation.
-	checkJob, fitJob, picJob, btJob, riskJob job
+	checkJob, certJob, fitJob, picJob, btJob, riskJob job
 	history                                  string // the forecast history the backtest replays ("" none)
 	showBT                                   bool   // the backtest view replaces the panes
 	bt                                       BacktestView
@@ -124,6 +124,11 @@ func New(d *design.Design, path string, set Settings, st Styles) *Model {
 	}
 	if set.Checker == nil {
 		set.Checker = defaultChecker()
+		// The certificate goes with the build's checks; a test's own
+		// checker gets one only when it sets a Certifier too.
+		if set.Certifier == nil {
+			set.Certifier = defaultCertifier()
+		}
 	}
 	if set.Fitter == nil {
 		set.Fitter = defaultFitter()
@@ -271,7 +276,13 @@ func (m *Model) jobMsg(msg tea.Msg) tea.Cmd {
 				return nil
 			}
 			m.checks.finished(inner.report, inner.err)
+			if inner.err == nil {
+				return m.startCertificate()
+			}
 		}
+		return nil
+	case certRunMsg:
+		m.certMsg(msg)
 		return nil
 	case proposeProgressMsg, proposeDoneMsg:
 		m.proposeMsg(msg)
@@ -363,6 +374,7 @@ func (m *Model) edited() tea.Cmd {
 	m.gen++
 	// Answers of the runs for the old design are now stale.
 	m.checkJob.drop()
+	m.certJob.drop()
 	m.fitJob.stop()
 	m.checks.edited()
 	m.budget.edited()
