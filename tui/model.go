@@ -80,29 +80,29 @@ type Model struct {
 	// The background work, one job each (tui/job.go): run ids, the
 	// generation each run is for, and cancellation.
 	checkJob, certJob, fitJob, picJob, btJob, riskJob job
-	history                                  string // the forecast history the backtest replays ("" none)
-	showBT                                   bool   // the backtest view replaces the panes
-	bt                                       BacktestView
-	showRisk                                 bool // the risk view replaces the panes
-	risk                                     RiskView
-	research                                 *ResearchRoom // the research view (tui/research.go) replaces the panes when shown
-	terms                                    *TermsRoom    // the annex's terms (tui/terms.go) replace the panes when shown
-	demoIndex                                int
-	savedGen                                 uint64       // generation last opened or saved
-	leaving                                  *leavePrompt // the unsaved-changes prompt, when open
-	afterSave                                *leavePrompt // an action waiting for the save dialog to succeed
-	rec                                      *recovery.Store
-	recReady                                 bool           // the look for a previous run's edits has answered
-	recOffer                                 *recoveryOffer // edits a previous run left, offered at start
-	recKey                                   string         // the design path the last recovery write was for
-	recWrote                                 bool           // a recovery file of this run may exist
-	focus                                    pane
-	lower                                    pane // which of checks/budget the small layout shows
-	designPane                               DesignPane
-	picture                                  PicturePane
-	checks                                   ChecksPane
-	budget                                   BudgetPane
-	dialog                                   *fileDialog
+	history                                           string // the forecast history the backtest replays ("" none)
+	showBT                                            bool   // the backtest view replaces the panes
+	bt                                                BacktestView
+	showRisk                                          bool // the risk view replaces the panes
+	risk                                              RiskView
+	research                                          *ResearchRoom // the research view (tui/research.go) replaces the panes when shown
+	terms                                             *TermsRoom    // the annex's terms (tui/terms.go) replace the panes when shown
+	demoIndex                                         int
+	savedGen                                          uint64       // generation last opened or saved
+	leaving                                           *leavePrompt // the unsaved-changes prompt, when open
+	afterSave                                         *leavePrompt // an action waiting for the save dialog to succeed
+	rec                                               *recovery.Store
+	recReady                                          bool           // the look for a previous run's edits has answered
+	recOffer                                          *recoveryOffer // edits a previous run left, offered at start
+	recKey                                            string         // the design path the last recovery write was for
+	recWrote                                          bool           // a recovery file of this run may exist
+	focus                                             pane
+	lower                                             pane // which of checks/budget the small layout shows
+	designPane                                        DesignPane
+	picture                                           PicturePane
+	checks                                            ChecksPane
+	budget                                            BudgetPane
+	dialog                                            *fileDialog
 	// exportFormat and exportLottery are what the last export asked for,
 	// so the next export dialog starts there.
 	exportFormat  string
