@@ -7,7 +7,20 @@ import (
 	"scorewright/internal/num"
 	"scorewright/internal/numfmt"
 	"scorewright/verify"
+	"scorewright/verify/certify"
 )
+
+// CertificateHeadline is a certificate's verdict as both front ends head
+// it: the verdict, and for a payout proved honest to within epsilon its
+// epsilon and what that means, "epsilon-proper to 0.001 (no report gains
+// more than 0.001 anywhere)", so it never reads as plainly proper and the
+// number comes first where a pane cuts the line.
+func CertificateHeadline(verdict verify.Verdict, epsilon float64) string {
+	if verdict == certify.EpsilonProper {
+		return certify.EpsilonVerdict(epsilon) + " (" + certify.EpsilonClaim(epsilon) + ")"
+	}
+	return string(verdict)
+}
 
 // WorstText writes a check's worst value as the command and the workbench
 // print it: six significant digits, and 0 for a value within the slack
@@ -16,17 +29,29 @@ import (
 // -3.05e-16 from the quadratic rule's effort summed to its generator, is
 // not a finding and must not read as one.
 func WorstText(v float64, g verify.Grid) string {
-	return numfmt.Significant(CleanWorst(v, g), 6)
+	return numfmt.Effort(CleanWorst(v, g))
 }
 
 // PayText writes an expected pay, a mean of amounts and so finer than the
 // table's currency, as the command and the workbench print it: six
 // significant digits, without binary noise.
-func PayText(v float64) string { return numfmt.Significant(v, 6) }
+func PayText(v float64) string { return numfmt.Pay(v) }
 
 // PointsText writes a distortion of a report in probability points as both
 // front ends print it: three significant digits.
-func PointsText(v float64) string { return numfmt.Significant(v, 3) }
+func PointsText(v float64) string { return numfmt.Points(v) }
+
+// LotteryRemedy is the sentence under every distortion both front ends
+// show: paid in chances of one fixed prize instead of money, expected
+// utility is affine in the chance, so the report that maximises expected
+// pay is best whatever the utility (contract/lottery says why). how names
+// the way to ask for it ("table --lottery"). It is said of the best report
+// over all reports, as the distortion is; the menu pick then is the row a
+// risk-neutral forecaster picks. Short enough for two lines of the
+// workbench at 80 columns.
+func LotteryRemedy(how string) string {
+	return "Paid as a chance (pay - floor)/(cap - floor) of one fixed prize (" + how + "), any expected-utility maximiser reports the truth."
+}
 
 // CleanWorst is v, or 0 when v is within the slack of g's comparisons.
 func CleanWorst(v float64, g verify.Grid) float64 {

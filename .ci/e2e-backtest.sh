@@ -16,8 +16,8 @@ hist="$root/testdata/histories"
 
 "$sw" backtest --outcomes late,"on time" --preset quadratic --floor 0 --cap 10 \
   --unit 0.01 --history "$hist/ferry-departures.jsonl" --figure ferry.png >jsonl.txt
-grep -q '^  Gannet       late  rule A       0.26    0.176828  0.0339002  0.241872  0.3848$' jsonl.txt
-grep -q '^  Tern         late  rule A       0.26    0.193369  0.0319807  0.223411  0.3848$' jsonl.txt
+grep -q '^  Gannet       late  rule A       0.26      0.1768   0.0339  0.2419  0.3848$' jsonl.txt
+grep -q '^  Tern         late  rule A       0.26      0.1934  0.03198  0.2234  0.3848$' jsonl.txt
 grep -q '^  2026-01         54   492.74$' jsonl.txt
 grep -q '^  Gannet            150  1367.43   9.116       1$' jsonl.txt
 grep -q 'no report menu was given: every forecast is paid by the exact formula' jsonl.txt

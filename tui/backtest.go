@@ -5,8 +5,10 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"math"
 	"os"
 	"path/filepath"
+	"scorewright/internal/numfmt"
 	"strings"
 
 	"github.com/charmbracelet/bubbles/key"
@@ -285,11 +287,12 @@ func (v BacktestView) resultText(width int) string {
 	rows := [][]string{{"forecaster", "count", "total", "mean", "rank", "effort", "uncert.", "resol.", "reliab."}}
 	for _, f := range res.Forecasters {
 		d := f.Decomposition[0]
-		rows = append(rows, []string{f.Name, fmt.Sprint(f.Count), r.cash(f.Money[0].Total), g4(f.Money[0].Mean), fmt.Sprint(f.Rank[0]),
-			g4(d.MeanEffort), g4(d.Uncertainty), g4(d.Resolution), g4(d.Reliability)})
+		s := math.Max(math.Abs(d.MeanEffort), math.Abs(d.Uncertainty))
+		rows = append(rows, []string{f.Name, fmt.Sprint(f.Count), r.cash(f.Money[0].Total), numfmt.Statistic(f.Money[0].Mean, 0), fmt.Sprint(f.Rank[0]),
+			numfmt.Statistic(d.MeanEffort, s), numfmt.Statistic(d.Uncertainty, s), numfmt.Statistic(d.Resolution, s), numfmt.Statistic(d.Reliability, s)})
 	}
 	all := res.All[0]
-	rows = append(rows, []string{"all", fmt.Sprint(res.Rows), r.cash(all.Total), g4(all.Mean), "", g4(all.MeanEffort), "", "", ""})
+	rows = append(rows, []string{"all", fmt.Sprint(res.Rows), r.cash(all.Total), numfmt.Statistic(all.Mean, 0), "", numfmt.Statistic(all.MeanEffort, 0), "", "", ""})
 	b.WriteString(rightTable(rows))
 	b.WriteString(wrap.Render("total and mean pay per forecast; rank by mean pay, 1 best; effort is the mean effort = uncertainty - resolution + reliability; "+res.Forecasters[0].Binning.String()) + "\n")
 	b.WriteString("\n" + corpTable(r))
@@ -313,10 +316,7 @@ func (v BacktestView) resultText(width int) string {
 
 // cash formats a payment with the table's currency decimals.
 func (r *BacktestResult) cash(x float64) string {
-	if r.decimal >= 0 {
-		return fmt.Sprintf("%.*f", r.decimal, x)
-	}
-	return fmt.Sprintf("%.6g", x)
+	return numfmt.Amount(x, r.decimal)
 }
 
 // statusLine says where the view's content stands.
@@ -369,12 +369,10 @@ func corpTable(r *BacktestResult) string {
 	rows := [][]string{{"forecaster", "event", "score", "MCB", "DSC", "UNC"}}
 	for _, f := range r.Result.Forecasters {
 		for k, d := range f.CORP[0] {
-			rows = append(rows, []string{f.Name, r.Labels[k], g4(d.Score), g4(d.Miscalibration), g4(d.Discrimination), g4(d.Uncertainty)})
+			s := math.Max(math.Abs(d.Score), math.Abs(d.Uncertainty))
+			rows = append(rows, []string{f.Name, r.Labels[k], numfmt.Statistic(d.Score, s), numfmt.Statistic(d.Miscalibration, s), numfmt.Statistic(d.Discrimination, s), numfmt.Statistic(d.Uncertainty, s)})
 		}
 	}
 	b.WriteString(rightTable(rows))
 	return b.String()
 }
-
-// g4 is v to four significant digits, as the tables show it.
-func g4(v float64) string { return fmt.Sprintf("%.4g", v) }

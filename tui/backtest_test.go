@@ -3,6 +3,7 @@ package tui
 import (
 	"fmt"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"testing"
 	"time"
@@ -67,6 +68,15 @@ func TestBacktestFrost(t *testing.T) {
 			}
 			if got := r.cash(res.All[0].Total); got != "6049.2" {
 				t.Errorf("all paid %s, the command says 6049.2", got)
+			}
+			// One quantity, the same digits in both front ends: the mean pay,
+			// the decomposition and the CORP terms as the same command prints
+			// them (run by hand; Alder's row).
+			text := m.bt.resultText(200)
+			for _, s := range []string{"34.66", "0.2669", "0.324", "0.0854", "0.03173", "0.02459", "0.08168"} {
+				if !regexp.MustCompile(`(^|\s)` + regexp.QuoteMeta(s) + `(\s|$)`).MatchString(text) {
+					t.Errorf("the backtest view lacks the cell %q, which the command prints:\n%s", s, text)
+				}
 			}
 			v := m.View()
 			for _, s := range []string{`observed frequency of "frost"`, "perfect reliability", "● Alder", "176 forecasts, 4 rows skipped", "(current design)", "forecaster"} {

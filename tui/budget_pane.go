@@ -2,6 +2,7 @@ package tui
 
 import (
 	"fmt"
+	"scorewright/internal/numfmt"
 	"slices"
 	"strings"
 
@@ -406,7 +407,7 @@ func (p BudgetPane) verdictLine() string {
 	if !t.Passed {
 		v = st.Fail.Render("menu re-check FAILED")
 	}
-	v += fmt.Sprintf(", margin %.4g", t.MinMargin)
+	v += ", margin " + numfmt.Margin(t.MinMargin)
 	if t.NoRecheck != "" {
 		v = st.Dim.Render(t.NoRecheck)
 	}

@@ -13,9 +13,13 @@ import (
 // interval certificate (verify/certify) proved about the design.
 type CertificateView struct {
 	// Kind is "certified"; Verdict the certificate's (strictly-proper,
-	// proper, improper or undecided); Statement says what was proved, or
-	// what share of the simplex when time ran out.
+	// proper, epsilon-proper, improper or undecided); Statement says what
+	// was proved, or what share of the simplex when time ran out.
 	Kind, Verdict, Statement string
+	// Headline is the verdict as the pane heads it
+	// (scorewright.CertificateHeadline): for an epsilon-proper payout,
+	// with what epsilon-proper means.
+	Headline string
 }
 
 // defaultCertifyDeadline keeps the pane responsive: the grid's verdict
@@ -54,7 +58,8 @@ func certifySettings(s Settings, progress func(done, total int64)) certify.Setti
 }
 
 func certificateView(res *certify.Result) *CertificateView {
-	return &CertificateView{Kind: string(res.Kind), Verdict: string(res.Verdict), Statement: res.Statement()}
+	return &CertificateView{Kind: string(res.Kind), Verdict: string(res.Verdict), Statement: res.Statement(),
+		Headline: scorewright.CertificateHeadline(res.Verdict, res.Epsilon)}
 }
 
 // certificateLines are the pane's lines for c.
@@ -70,7 +75,16 @@ func certificateLines(st Styles, c *CertificateView) []string {
 		vs = st.Dim
 	}
 	return []string{
-		fmt.Sprintf("Certificate %s (%s)", vs.Render(c.Verdict), c.Kind),
+		fmt.Sprintf("Certificate %s (%s)", vs.Render(c.headline()), c.Kind),
 		st.Dim.Render("  " + c.Statement),
 	}
+}
+
+// headline is the verdict as the pane heads it; a view built without one
+// shows the bare verdict.
+func (c *CertificateView) headline() string {
+	if c.Headline != "" {
+		return c.Headline
+	}
+	return c.Verdict
 }

@@ -2,6 +2,7 @@ package tui
 
 import (
 	"fmt"
+	"scorewright/internal/numfmt"
 	"strconv"
 	"strings"
 
@@ -85,7 +86,7 @@ func (p ChecksPane) checkLine(c CheckRow) string {
 	if !c.Passed {
 		mark = st.Fail.Render("✗")
 	}
-	line := fmt.Sprintf("%s %-13s worst %.3g", mark, c.Name, c.Worst)
+	line := fmt.Sprintf("%s %-13s worst %s", mark, c.Name, numfmt.Effort(c.Worst))
 	switch {
 	case c.Belief != nil && c.Report != nil:
 		b, r, ok := num.Witness(c.Belief, c.Report, !c.Passed)
@@ -160,7 +161,7 @@ func (p ChecksPane) detailText() []string {
 			verdict = "FAILED"
 		}
 		out := []string{fmt.Sprintf("Check %d of %d: %s — %s", p.sel+1, len(r.Rows), c.Name, verdict),
-			"worst value found: " + strconv.FormatFloat(c.Worst, 'g', 6, 64)}
+			"worst value found: " + numfmt.Effort(c.Worst)}
 		if c.Belief != nil {
 			out = append(out, "at belief q = "+full(c.Belief))
 		}

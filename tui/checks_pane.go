@@ -8,6 +8,7 @@ import (
 	"github.com/charmbracelet/bubbles/progress"
 
 	"scorewright/verify"
+	"scorewright/verify/certify"
 )
 
 // ChecksPane shows the checks of the current design and their progress.
@@ -123,8 +124,7 @@ func (p ChecksPane) proof() (statement string, certified bool) {
 	if c == nil {
 		return "", false
 	}
-	proved := c.Verdict == string(verify.Proper) || c.Verdict == string(verify.StrictlyProper)
-	return c.Statement, proved && !contradicted(p.report)
+	return c.Statement, certify.Proved(verify.Verdict(c.Verdict)) && !contradicted(p.report)
 }
 
 // Running reports whether a check is in progress.

@@ -42,27 +42,10 @@ const (
 // skipped unless there are 2 outcomes.
 func modes() []design.Mode { return design.Modes }
 
-// samplePoint is the generator offered the first time a design switches
-// to point mode: phi = -x^2, squared error.
-const samplePoint = "-x^2"
-
 // defaultInterval is the interval a design gets when it first becomes a
-// point-forecast design.
+// point-forecast design (the point payout's sample, design.Mode.Sample,
+// pays 0 to 50 on it).
 func defaultInterval() []float64 { return []float64{0, 100} }
-
-// samplePayout is the formula offered the first time a design switches to
-// payout mode: a scaled quadratic payment, to be replaced by the payout
-// under audit.
-const samplePayout = "# pay(p, y): the payment when outcome y happens\n10 - 5*sum((p - hit)^2)"
-
-// samplePointPayout is the formula offered the first time a design
-// switches to auditing a point-forecast payout: a scaled squared error on
-// the default interval [0, 100], paying 0 to 50.
-const samplePointPayout = "# pay(x, y): the payment for report x when the outcome is y\n50 - (x - y)^2 / 200"
-
-// sampleEmphasis is the weight offered the first time a design switches
-// to emphasis mode: the beta family, a = b = 1 the quadratic rule.
-const sampleEmphasis = "# w(c): where the rule puts its incentive\na = 1\nb = 1\nc^(a-1) * (1-c)^(b-1)"
 
 // DesignPane edits the design: outcomes, order, mode, formula, parameters
 // and preset.
@@ -402,7 +385,7 @@ func (p *DesignPane) cycleMode(d *design.Design, up bool) {
 	}
 	f, ok := p.byMode[ms[i]]
 	if !ok {
-		f = modeRows[d.Mode].sample
+		f = d.Mode.Sample()
 	}
 	// The menu step means a probability step over outcomes and a step in
 	// the interval's units for point forecasts; each kind keeps its own.

@@ -89,25 +89,17 @@ func (p DesignPane) View(d *design.Design) string {
 	return paneFrame(st, title, p.focused, p.w, p.h, strings.Join(lines, "\n"))
 }
 
-// modeText is what the mode row says about a mode, and the formula a
-// design first switched to it is given (none for generator mode, which
-// keeps the formula it has).
-type modeText struct{ row, sample string }
-
-// modeRows holds the mode row's words for every mode.
-var modeRows = map[design.Mode]modeText{
-	design.ModeGenerator:   {row: "generator (concave H; ←/→)"},
-	design.ModePayout:      {row: "payout audit (pay(p, y); ←/→)", sample: samplePayout},
-	design.ModeEmphasis:    {row: "emphasis weight w(c) (←/→)", sample: sampleEmphasis},
-	design.ModePoint:       {row: "point forecast phi(x) (←/→)", sample: samplePoint},
-	design.ModePointPayout: {row: "point payout audit (pay(x, y); ←/→)", sample: samplePointPayout},
-}
-
+// modeLine is what the mode row says about a mode: its title and hint
+// (generator/design) with the keys that change it.
 func modeLine(m design.Mode) string {
-	if t, ok := modeRows[m]; ok {
-		return t.row
+	switch title, hint := m.Title(); {
+	case title == "":
+		return string(m) + " (not computed by this build)"
+	case hint != "":
+		return title + " (" + hint + "; ←/→)"
+	default:
+		return title + " (←/→)"
 	}
-	return string(m) + " (not computed by this build)"
 }
 
 // errorLines shows the compile error under the formula, with a caret at

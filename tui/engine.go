@@ -8,6 +8,7 @@ import (
 	"path/filepath"
 	"runtime"
 	"scorewright"
+	"scorewright/internal/numfmt"
 	"strconv"
 	"strings"
 	"time"
@@ -86,9 +87,9 @@ func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress f
 func fromPoint(rep *pointcheck.Report) *CheckReport {
 	out := &CheckReport{Verdict: string(rep.Verdict), Resolution: rep.Grid.Resolution, Points: int64(rep.Grid.Points), Tolerance: rep.Grid.Tolerance, Notes: rep.Notes}
 	for _, ck := range rep.Checks {
-		row := CheckRow{Name: ck.Name, Passed: ck.Passed, Worst: ck.Shown(), Note: ck.What}
-		if ck.At != nil {
-			row.Report = ck.At.Report
+		row := CheckRow{Name: ck.Name, Passed: ck.Passed, Worst: pointcheck.Shown(ck), Note: ck.Note}
+		if len(ck.Report) > 0 {
+			row.Report = ck.Report
 		}
 		out.Rows = append(out.Rows, row)
 	}
@@ -266,7 +267,7 @@ func (te tableExporter) Export(ctx context.Context, d *design.Design, req Export
 // refused is the error of an export whose table failed its re-check: as
 // `scorewright table` does without --force, nothing is written.
 func refused(margin float64) error {
-	return fmt.Errorf("the menu re-check failed (smallest margin %.4g), so nothing was written; change the budget or the step", margin)
+	return fmt.Errorf("the menu re-check failed (smallest margin %s), so nothing was written; change the budget or the step", numfmt.Margin(margin))
 }
 
 // writeExport writes an export atomically and returns its absolute path.

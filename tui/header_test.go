@@ -5,6 +5,8 @@ import (
 	"testing"
 
 	tea "github.com/charmbracelet/bubbletea"
+
+	"scorewright/generator/design"
 )
 
 func headerOf(m *Model) string { return strings.SplitN(m.View(), "\n", 2)[0] }
@@ -61,5 +63,29 @@ func TestFooterKeyLine(t *testing.T) {
 		if len([]rune(strings.TrimRight(f, " "))) > w {
 			t.Errorf("footer wider than %d: %q", w, f)
 		}
+	}
+}
+
+// A payout's certificate proves honesty only to within epsilon: the
+// quadratic payout is proper (Brier 1950), and the header and the checks
+// pane say "epsilon proper" with what it means, never plainly "proper,
+// certified".
+func TestHeaderSaysEpsilonProper(t *testing.T) {
+	d := DemoHarvest()
+	d.Mode, d.Formula, d.Preset = design.ModePayout, "10 - 5*sum((p - hit)^2)", ""
+	m := testModel(t, d, Settings{})
+	start(t, m, 120, 40)
+	r := m.CheckReport()
+	if r == nil || r.Certificate == nil || r.Certificate.Verdict != "epsilon-proper" {
+		t.Fatalf("certificate: %+v", r)
+	}
+	if h := headerOf(m); !strings.Contains(h, "✓ epsilon proper, certified") {
+		t.Errorf("header %q", h)
+	}
+	if v := m.View(); !strings.Contains(v, "Certificate epsilon-proper to 0.001 (no report gains more than") {
+		t.Errorf("checks pane:\n%s", v)
+	}
+	if !strings.HasPrefix(r.Certificate.Statement, "certified epsilon-proper to 0.001: no report gains more than 0.001 anywhere") {
+		t.Errorf("statement %q", r.Certificate.Statement)
 	}
 }

@@ -113,7 +113,7 @@ func (m *Model) termsKey(km tea.KeyMsg) (tea.Cmd, bool) {
 		m.terms.Close()
 		return m.requestPicture(), true
 	}
-	handled, changed, cmd := m.terms.Key(km, m.d)
+	handled, changed, cmd := m.terms.Update(km, m.d)
 	switch {
 	case changed:
 		return tea.Batch(cmd, m.edited()), true
@@ -128,7 +128,7 @@ func (m *Model) researchKey(km tea.KeyMsg) (tea.Cmd, bool) {
 	if !m.research.Shown() {
 		return nil, false
 	}
-	handled, cmd := m.research.Key(m.ctx, km, m.d, m.gen, m.researchReady())
+	handled, cmd := m.research.Update(m.ctx, km, m.d, m.gen, m.researchReady())
 	if handled && !m.research.Shown() {
 		return tea.Batch(cmd, m.requestPicture()), true
 	}
@@ -151,7 +151,7 @@ func (m *Model) riskKey(km tea.KeyMsg) (tea.Cmd, bool) {
 		m.showRisk = false
 		return nil, false
 	}
-	handled, changed := m.risk.Key(km, m.d)
+	handled, changed := m.risk.Update(km, m.d)
 	if changed {
 		return m.maybeRisk(), true
 	}

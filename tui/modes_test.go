@@ -66,7 +66,7 @@ func TestPointMode(t *testing.T) {
 	start(t, m, 120, 40)
 	press(t, m, keyDown, keyDown, keyRight, keyRight, keyRight) // → point
 	d := m.Design()
-	if d.Mode != design.ModePoint || d.Formula != samplePoint || len(d.Interval) != 2 {
+	if d.Mode != design.ModePoint || d.Formula != design.ModePoint.Sample() || len(d.Interval) != 2 {
 		t.Fatalf("mode %s formula %q interval %v", d.Mode, d.Formula, d.Interval)
 	}
 	v := m.View()

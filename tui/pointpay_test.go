@@ -19,7 +19,7 @@ func TestPointPayoutAudit(t *testing.T) {
 	// generator -> payout -> emphasis -> point -> point payout.
 	press(t, m, keyDown, keyDown, keyRight, keyRight, keyRight, keyRight)
 	d := m.Design()
-	if d.Mode != design.ModePointPayout || len(d.Interval) != 2 || d.Formula != samplePointPayout {
+	if d.Mode != design.ModePointPayout || len(d.Interval) != 2 || d.Formula != design.ModePointPayout.Sample() {
 		t.Fatalf("mode %s interval %v formula %q", d.Mode, d.Interval, d.Formula)
 	}
 	// 50 - (x - y)^2/200 is 50 - 0.005·D for squared error, D = (y - x)^2

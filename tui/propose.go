@@ -13,6 +13,7 @@ import (
 	"scorewright"
 	"scorewright/contract/budget"
 	"scorewright/generator/design"
+	"scorewright/internal/numfmt"
 )
 
 // proposal is the budget pane's search for budgets the re-check passes
@@ -182,7 +183,7 @@ func shortProposal(q budget.Proposal, w int) string {
 	default:
 		s = fmt.Sprintf("mean pay %g, the smallest that passes", *b.MeanPay)
 	}
-	if m := fmt.Sprintf(" (margin %.4g)", q.MinMargin); ansi.StringWidth(s+m) <= w {
+	if m := " (margin " + numfmt.Margin(q.MinMargin) + ")"; ansi.StringWidth(s+m) <= w {
 		s += m
 	}
 	return s

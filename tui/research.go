@@ -292,9 +292,9 @@ func (r *ResearchRoom) Msg(msg researchRunMsg) {
 	}
 }
 
-// Key handles a key while the view is open. handled false means the root
+// Update handles a key while the view is open. handled false means the root
 // should treat it (global keys).
-func (r *ResearchRoom) Key(ctx context.Context, km tea.KeyMsg, d *design.Design, gen uint64, ready bool) (handled bool, cmd tea.Cmd) {
+func (r *ResearchRoom) Update(ctx context.Context, km tea.KeyMsg, d *design.Design, gen uint64, ready bool) (handled bool, cmd tea.Cmd) {
 	k := r.keys
 	switch {
 	case key.Matches(km, k.Leave), key.Matches(km, k.Research):

@@ -170,9 +170,9 @@ func NewRiskView(st Styles, keys KeyMap, d *design.Design) RiskView {
 	return RiskView{st: st, keys: keys, bar: bar, in: defaultRiskInputs(d), coefs: map[risk.Kind]float64{}}
 }
 
-// Key takes the view's own keys: ↑/↓ choose an input, ←/→ step it (shift:
+// Update takes the view's own keys: ↑/↓ choose an input, ←/→ step it (shift:
 // a tenth). changed says the inputs changed, so a run is due.
-func (v *RiskView) Key(km tea.KeyMsg, d *design.Design) (handled, changed bool) {
+func (v *RiskView) Update(km tea.KeyMsg, d *design.Design) (handled, changed bool) {
 	moved, step, up, fine := fieldKey(v.keys, km, &v.sel, riskFieldCount)
 	switch {
 	case moved:

@@ -244,10 +244,10 @@ func TestRiskViewOwnsItsInputs(t *testing.T) {
 	d := DemoFrost()
 	v := NewRiskView(testStyles(t), DefaultKeyMap(), d)
 	before := v.in
-	if h, c := v.Key(keyDown, d); !h || c || v.sel != riskCoef {
+	if h, c := v.Update(keyDown, d); !h || c || v.sel != riskCoef {
 		t.Fatalf("↓ chose %v (handled %v, changed %v)", v.sel, h, c)
 	}
-	if _, c := v.Key(keyRight, d); !c || !(v.in.Coef > before.Coef) || !v.inputsChanged() {
+	if _, c := v.Update(keyRight, d); !c || !(v.in.Coef > before.Coef) || !v.inputsChanged() {
 		t.Fatalf("→ on the coefficient: %+v, changed %v", v.in, c)
 	}
 	v.started()
@@ -260,14 +260,14 @@ func TestRiskViewOwnsItsInputs(t *testing.T) {
 	if v.in.Wealth != defaultRiskInputs(wider).Wealth {
 		t.Fatalf("an untouched wealth did not follow the budget: %v", v.in.Wealth)
 	}
-	v.Key(keyDown, d) // wealth
-	v.Key(keyRight, d)
+	v.Update(keyDown, d) // wealth
+	v.Update(keyRight, d)
 	chosen := v.in.Wealth
 	v.designChanged(d)
 	if v.in.Wealth != chosen {
 		t.Fatalf("the wealth the user chose moved with the budget: %v, want %v", v.in.Wealth, chosen)
 	}
-	if h, _ := v.Key(runes("q"), d); h {
+	if h, _ := v.Update(runes("q"), d); h {
 		t.Fatal("the view took q, which must reach the workbench")
 	}
 }

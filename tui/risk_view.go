@@ -3,6 +3,8 @@ package tui
 import (
 	"fmt"
 	"math"
+	"scorewright/internal/num"
+	"scorewright/internal/numfmt"
 	"strings"
 
 	"github.com/charmbracelet/x/ansi"
@@ -35,7 +37,14 @@ func (v RiskView) inputsLine(in RiskInputs, d *design.Design) string {
 	if q == nil {
 		q = scorewright.DefaultBelief(d.Budget, d.N())
 	}
-	belief := reportText(q, d.Labels)
+	// The input row shows the stepped belief short, so that the row fits
+	// 80 columns for three outcomes; the result lines below give it in
+	// full, as the command does.
+	parts3 := make([]string, len(q))
+	for i, x := range q {
+		parts3[i] = numfmt.Significant(x, 3)
+	}
+	belief := "(" + strings.Join(parts3, ", ") + ")"
 	if d.N() == 2 {
 		belief = fmt.Sprintf("%g %s", q[0], d.Labels[0])
 	}
@@ -74,7 +83,7 @@ func describe(in RiskInputs) string {
 // dialog's lottery key.
 func lotteryNote(k KeyMap) string {
 	// Two lines at 80 columns: the risk view has no line to spare there.
-	return "Paying a chance (pay - floor)/(cap - floor) of one prize (" + k.Lottery.Help().Key + " in the export dialog) removes this distortion for any expected-utility maximiser."
+	return scorewright.LotteryRemedy(k.Lottery.Help().Key + " when exporting")
 }
 
 // View is the view as last laid out by refresh.
@@ -148,7 +157,7 @@ func (v RiskView) resultText(r *RiskResult, width int) []string {
 	lg := r.Curve.Largest
 	where := "belief " + reportText(lg.Belief, r.Labels)
 	if len(r.Labels) == 2 {
-		where = fmt.Sprintf("belief %g in %q", lg.Belief[0], r.Labels[0])
+		where = fmt.Sprintf("belief %s in %q", numfmt.Probability(lg.Belief[0]), r.Labels[0])
 	} else if i := indexOf(r.Curve.Points, lg); i >= 0 && i < len(r.Toward) {
 		where = fmt.Sprintf("belief %s (toward %q)", reportText(lg.Belief, r.Labels), r.Labels[r.Toward[i]])
 	}
@@ -177,13 +186,9 @@ func (v RiskView) resultText(r *RiskResult, width int) []string {
 // probability of the first outcome alone.
 func reportText(p []float64, labels []string) string {
 	if len(labels) == 2 {
-		return fmt.Sprintf("%.3g", p[0])
+		return numfmt.Probability(p[0])
 	}
-	parts := make([]string, len(p))
-	for i, v := range p {
-		parts[i] = fmt.Sprintf("%.3g", v)
-	}
-	return "(" + strings.Join(parts, ", ") + ")"
+	return num.Format(p)
 }
 
 func indexOf(ps []risk.Result, r risk.Result) int {

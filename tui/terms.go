@@ -123,9 +123,9 @@ func (t *TermsRoom) KeyHelp() []key.Binding {
 		key.NewBinding(key.WithKeys(k.Leave.Keys()...), key.WithHelp(k.Leave.Help().Key, "back to the panes"))}
 }
 
-// Key handles a key while the view is shown: handled says it was the
+// Update handles a key while the view is shown: handled says it was the
 // view's, changed that d was edited (the caller starts a new generation).
-func (t *TermsRoom) Key(km tea.KeyMsg, d *design.Design) (handled, changed bool, cmd tea.Cmd) {
+func (t *TermsRoom) Update(km tea.KeyMsg, d *design.Design) (handled, changed bool, cmd tea.Cmd) {
 	k := t.keys
 	fields := termsFields()
 	if t.typing {

@@ -256,6 +256,7 @@ func largestGap(rep *AuditReport, prop *CheckResult, p *payout.Payout, g *simple
 	if rep.Gap.Max > T && !math.IsInf(rep.Gap.Max, 0) {
 		ev := p.NewEvaluator()
 		sharpenGap(&rep.Gap, g.N, cellOf(g), func(q, r []float64) float64 { return ev.Expected(q, r) - ev.Expected(q, q) })
+		roundingDigits(&rep.Gap, rep.Grid.Rounding)
 	}
 	rep.Gap.Belief, rep.Gap.BestReport = clone(rep.Gap.Belief), clone(rep.Gap.BestReport)
 	if rep.Gap.Max > T && prop.Worst == prop.Worst {

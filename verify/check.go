@@ -362,22 +362,33 @@ func markPart(c *CheckResult) {
 }
 
 // scaleOf measures a menu of values (before seal) for the tolerance: the
-// spread of the finite values (largest minus smallest), and the rounding
-// floor 2·n·ε × the largest finite |value|. The spread, not the size,
-// is what an affine change pay = A - B·L multiplies, so a rule paid in
-// millionths and the same rule paid in millions get the same verdict; the
-// floor keeps values far from 0 (1e12 + small) from being judged finer
-// than they can be computed. A menu with no spread (a constant rule) has
-// scale 1, so that its slack is the plain tolerance.
+// largest spread of one outcome's finite values over the reports (largest
+// minus smallest), and the rounding floor 2·n·ε × the largest finite
+// |value|. The spread, not the size, is what an affine change pay = A -
+// B·L multiplies, so a rule paid in millionths and the same rule paid in
+// millions get the same verdict. It is taken outcome by outcome because a
+// term that depends on the outcome alone (an affine term a·p in H adds
+// a_k to every effort for outcome k) changes no comparison: measured
+// across outcomes, 1e10·p + p^2 had a spread of 1e10, a slack of 10, and
+// its convex H passed. The floor keeps values far from 0 (1e12 + small)
+// from being judged finer than they can be computed. A menu with no
+// spread (a constant rule) has scale 1, so that its slack is the plain
+// tolerance.
 func scaleOf(m *menu) (scale, rounding float64) {
-	lo, hi, big := math.Inf(1), math.Inf(-1), 0.0
-	for _, v := range m.rows {
-		if v != v || math.IsInf(v, 0) {
-			continue
+	var big float64
+	for k := 0; k < m.n; k++ {
+		lo, hi := math.Inf(1), math.Inf(-1)
+		for i := k; i < len(m.rows); i += m.n {
+			v := m.rows[i]
+			if v != v || math.IsInf(v, 0) {
+				continue
+			}
+			lo, hi, big = math.Min(lo, v), math.Max(hi, v), math.Max(big, math.Abs(v))
 		}
-		lo, hi, big = math.Min(lo, v), math.Max(hi, v), math.Max(big, math.Abs(v))
+		if hi-lo > scale {
+			scale = hi - lo
+		}
 	}
-	scale = hi - lo
 	if !(scale > 0) || math.IsInf(scale, 0) {
 		scale = 1
 	}

@@ -177,9 +177,13 @@ func midpoints(g *simplex.Grid, sc *bregman.Scorer, T float64, seed uint64) kink
 			}
 			k.tests++
 			d := (sc.Entropy(a)+sc.Entropy(b))/2 - sc.Entropy(m)
+			// Each value is known only to the rounding of the terms
+			// that cancel in it, which can be far above T (a large
+			// constant added and taken away again).
+			slack := T + (sc.ValueRounding(a)+sc.ValueRounding(b))/2 + sc.ValueRounding(m)
 			// The worst is the largest implied curvature, so that a kink
 			// seen on a short segment is not outranked by a long one.
-			if d > T && (!k.found || d/l2 > k.deficit/k.l2) {
+			if d > slack && (!k.found || d/l2 > k.deficit/k.l2) {
 				k = kink{found: true, deficit: d, curvature: 8 * d / l2, l2: l2, mid: clone(m), a: clone(a), b: clone(b), tests: k.tests, onBoundary: onBoundary(m)}
 			}
 		}

@@ -131,8 +131,10 @@ type Grid struct {
 	// Resolution K, number of grid points, and the tolerance asked for.
 	Resolution, Points int
 	Tolerance          float64
-	// Scale is the spread of the rule's values on the grid (largest
-	// finite effort or payment minus the smallest): a rule and its
+	// Scale is the spread of the rule's values on the grid, outcome by
+	// outcome (the largest over outcomes of the largest finite effort or
+	// payment for it minus the smallest; a term that depends on the
+	// outcome alone changes no comparison, see scaleOf): a rule and its
 	// affine image pay - A = B × rule get the same verdict whatever A and
 	// B > 0 are. Comparisons allow Tolerance × Scale, but never less than
 	// Rounding.
@@ -164,6 +166,10 @@ type Grid struct {
 	// Pairs is the number of belief–report pairs the check settled: G²,
 	// or fewer when a proof settled the rest (Report.Proof).
 	Pairs int64
+	// Lo and Hi are the interval of a point check (verify/pointcheck),
+	// whose grid has Resolution+1 outcomes and Points reports on it; both
+	// are 0 over the simplex.
+	Lo, Hi float64
 }
 
 // String states the grid the way every verdict must: resolution, points,
@@ -175,7 +181,7 @@ func (g Grid) String() string {
 	}
 	tol := fmt.Sprintf("tolerance %g", g.Tolerance)
 	if g.Scale != 1 {
-		tol += fmt.Sprintf(" × scale %.4g (the spread of the values) = %.3g", g.Scale, g.Tolerance*g.Scale)
+		tol += fmt.Sprintf(" × scale %.4g (the largest spread of one outcome's values) = %.3g", g.Scale, g.Tolerance*g.Scale)
 	}
 	if g.Rounding > g.Tolerance*g.Scale {
 		tol += fmt.Sprintf(", raised to %.3g for rounding", g.Rounding)
@@ -251,6 +257,14 @@ type CheckResult struct {
 	GridWorst float64
 	// Status is the optimiser's status when it was run.
 	Status string
+	// Outcomes, in a point check (verify/pointcheck), are the outcome
+	// values of the worst place: the support of the forecaster's
+	// distribution, whose weights are then Belief.
+	Outcomes []float64
+	// Slack, in a point check, is the allowance of the comparison at the
+	// worst place: the tolerance plus the rounding of the terms that
+	// cancel there (over the simplex it is the grid's, Grid.Slack).
+	Slack float64
 }
 
 // Report is the result of CheckRule.

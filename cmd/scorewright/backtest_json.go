@@ -5,7 +5,8 @@ import (
 	"scorewright/internal/num"
 )
 
-// backtestReport is what the command prints (and its JSON).
+// backtestReport is what the command prints (and its JSON); this file
+// holds every record of the JSON.
 type backtestReport struct {
 	// Warnings say that a rule's table fails its re-check; the command
 	// then exits 1, as table does.
@@ -113,4 +114,24 @@ type pointJSON struct {
 	Lo         num.Float `json:"band_low"`
 	Hi         num.Float `json:"band_high"`
 	Count      int       `json:"count"`
+}
+
+// corpReport is one CORP decomposition: a rule (or, for more than two
+// outcomes, the squared error) on one event.
+type corpReport struct {
+	Rule     string    `json:"rule"`
+	Event    string    `json:"event"`
+	Score    string    `json:"score_rule"`
+	Count    int       `json:"count"`
+	BaseRate num.Float `json:"base_rate"`
+	Mean     num.Float `json:"mean_score"`
+	MCB      num.Float `json:"miscalibration"`
+	DSC      num.Float `json:"discrimination"`
+	UNC      num.Float `json:"uncertainty"`
+}
+
+type monthReport struct {
+	Month  string      `json:"month"`
+	Counts []int       `json:"counts"`
+	Totals []num.Float `json:"totals"`
 }

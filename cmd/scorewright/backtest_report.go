@@ -4,8 +4,10 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"scorewright/internal/numfmt"
 	"strings"
-	"unicode/utf8"
+
+	"github.com/charmbracelet/x/ansi"
 
 	"scorewright/contract/backtest"
 	"scorewright/contract/backtest/history"
@@ -102,14 +104,7 @@ func newBacktestReport(path string, h *history.Reader, schemes []*backtestScheme
 
 // cash formats a payment with the rule's currency decimals.
 func (r *backtestReport) cash(rule int, v num.Float) string {
-	x := float64(v)
-	if math.IsNaN(x) || math.IsInf(x, 0) {
-		return fmt.Sprint(x)
-	}
-	if d := r.decimals[rule]; d >= 0 {
-		return fmt.Sprintf("%.*f", d, x)
-	}
-	return fmt.Sprintf("%.6g", x)
+	return numfmt.Amount(float64(v), r.decimals[rule])
 }
 
 func (r *backtestReport) writeText(w io.Writer) error {
@@ -149,14 +144,16 @@ func (r *backtestReport) writeText(w io.Writer) error {
 	return err
 }
 
-// nameColumn pads a forecaster's name to the width of the longest, so
-// that names read left-aligned in the right-aligning tables.
+// nameColumn pads a forecaster's name to the display width of the
+// widest, so that names read left-aligned in the right-aligning tables
+// (textcol measures cells by display width; a rune count would pad a name
+// in wide characters too far).
 func (r *backtestReport) nameColumn() func(string) string {
 	nw := len("forecaster")
 	for _, f := range r.Forecasters {
-		nw = max(nw, utf8.RuneCountInString(f.Name))
+		nw = max(nw, ansi.StringWidth(f.Name))
 	}
-	return func(s string) string { return s + strings.Repeat(" ", nw-utf8.RuneCountInString(s)) }
+	return func(s string) string { return s + strings.Repeat(" ", max(0, nw-ansi.StringWidth(s))) }
 }
 
 // writeForecasterTable writes every forecaster's count, totals, means and
@@ -180,7 +177,7 @@ func (r *backtestReport) writeForecasterTable(w io.Writer, left func(string) str
 	for _, f := range r.Forecasters {
 		fmt.Fprintf(tw, "%s\t%d\t", left(f.Name), f.Count)
 		for i := range r.Rules {
-			fmt.Fprintf(tw, "%s\t%.4g\t%d\t", r.cash(i, f.Totals[i]), float64(f.Means[i]), f.Ranks[i])
+			fmt.Fprintf(tw, "%s\t%s\t%d\t", r.cash(i, f.Totals[i]), numfmt.Statistic(float64(f.Means[i]), 0), f.Ranks[i])
 		}
 		if two {
 			change := "="
@@ -199,7 +196,7 @@ func (r *backtestReport) writeForecasterTable(w io.Writer, left func(string) str
 	}
 	fmt.Fprintf(tw, "%s\t%d\t", left("all"), r.Rows)
 	for i, rule := range r.Rules {
-		fmt.Fprintf(tw, "%s\t%.4g\t\t", r.cash(i, rule.Total), float64(rule.Mean))
+		fmt.Fprintf(tw, "%s\t%s\t\t", r.cash(i, rule.Total), numfmt.Statistic(float64(rule.Mean), 0))
 	}
 	if two {
 		fmt.Fprint(tw, "\t")
@@ -221,8 +218,8 @@ func (r *backtestReport) writeForecasterTable(w io.Writer, left func(string) str
 func (r *backtestReport) writeTotals(w io.Writer) {
 	fmt.Fprintln(w, "totals against the budget")
 	for i, rule := range r.Rules {
-		fmt.Fprintf(w, "  rule %s: paid %s for %d forecasts (mean %.4g, smallest %s, largest %s); ", rule.ID,
-			r.cash(i, rule.Total), rule.Count, float64(rule.Mean), r.cash(i, rule.Min), r.cash(i, rule.Max))
+		fmt.Fprintf(w, "  rule %s: paid %s for %d forecasts (mean %s, smallest %s, largest %s); ", rule.ID,
+			r.cash(i, rule.Total), rule.Count, numfmt.Statistic(float64(rule.Mean), 0), r.cash(i, rule.Min), r.cash(i, rule.Max))
 		// With no menu there is no table: the bounds are the budget's.
 		span, where, largest := "the table's range", "the table's smallest payment", "the table's largest payment"
 		offMenu := " (all off the menu)"
@@ -253,8 +250,9 @@ func (r *backtestReport) writeDecomposition(w io.Writer, left func(string) strin
 	for i, rule := range r.Rules {
 		for _, f := range r.Forecasters {
 			d := f.Decomposition[i]
-			fmt.Fprintf(tw, "%s\t%s\t%.6g\t%.6g\t%.6g\t%.6g\t%.2g\t\n", rule.ID, left(f.Name), float64(d.MeanEffort), float64(d.Uncertainty),
-				float64(d.Resolution), float64(d.Reliability), float64(d.WithinBin))
+			s := math.Max(math.Abs(float64(d.MeanEffort)), math.Abs(float64(d.Uncertainty)))
+			fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t\n", rule.ID, left(f.Name), numfmt.Statistic(float64(d.MeanEffort), s), numfmt.Statistic(float64(d.Uncertainty), s),
+				numfmt.Statistic(float64(d.Resolution), s), numfmt.Statistic(float64(d.Reliability), s), numfmt.Statistic(float64(d.WithinBin), s))
 		}
 	}
 	tw.Flush()

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"scorewright/internal/numfmt"
 
 	"scorewright"
 
@@ -49,6 +50,6 @@ func printLottery(w io.Writer, l *lotteryJSON) {
 		if l.Passed {
 			verdict = "passed"
 		}
-		fmt.Fprintf(w, "lottery re-check\t%s on the rounded chances, smallest margin %s (the re-check line below is of the money table)\n", verdict, table.FormatNumber(float64(l.MinMargin)))
+		fmt.Fprintf(w, "lottery re-check\t%s on the rounded chances, smallest margin %s (the re-check line below is of the money table)\n", verdict, numfmt.Margin(float64(l.MinMargin)))
 	}
 }

@@ -132,14 +132,18 @@ func printCertificate(w io.Writer, c *certificateJSON) {
 	if c == nil {
 		return
 	}
-	fmt.Fprintf(w, "\ncertificate (%s): %s\n", c.Kind, c.Verdict)
+	var eps float64
+	if c.Epsilon != nil {
+		eps = float64(*c.Epsilon)
+	}
+	fmt.Fprintf(w, "\ncertificate (%s): %s\n", c.Kind, scorewright.CertificateHeadline(c.Verdict, eps))
 	fmt.Fprintf(w, "               %s\n", c.Statement)
 }
 
 // certifyRecord runs the certificate for a table when asked and writes
 // what it proved into the table's record: the verdict kind becomes
-// "certified" only when the rule was proved proper over the whole
-// simplex; otherwise it stays "grid evidence" with the certificate's
+// "certified" only when the rule was proved proper (or, a payout,
+// epsilon-proper, as its statement says) over the whole simplex; otherwise it stays "grid evidence" with the certificate's
 // statement beside it.
 func certifyRecord(e *env, r *scorewright.Rule, m *table.Meta, c *certifyFlags) error {
 	if c == nil || !c.on {
@@ -155,7 +159,7 @@ func certifyRecord(e *env, r *scorewright.Rule, m *table.Meta, c *certifyFlags) 
 		return err
 	}
 	m.Certificate = cert.Statement
-	if cert.Verdict == verify.Proper || cert.Verdict == verify.StrictlyProper {
+	if certify.Proved(cert.Verdict) {
 		m.VerdictKind = table.Certified
 	}
 	return nil

@@ -18,6 +18,7 @@ type certifiedJSON struct {
 			Report []float64 `json:"report"`
 			Gain   float64   `json:"gain"`
 		} `json:"witness"`
+		Statement string `json:"statement"`
 	} `json:"certificate"`
 }
 
@@ -71,6 +72,28 @@ func TestAuditCertifyCatchesJackpot(t *testing.T) {
 		t.Fatal(err)
 	}
 	if code != 1 || v.Certificate == nil || v.Certificate.Verdict != "improper" || v.Certificate.Witness == nil || v.Certificate.Witness.Gain < 4 {
+		t.Errorf("exit %d: %s", code, out[:min(len(out), 600)])
+	}
+}
+
+// A payout certificate proves honesty only to within epsilon, and says
+// so wherever it is printed: the quadratic payout 10 - 5·sum((p - hit)^2)
+// is proper (Brier 1950), and the certificate proves that no report gains
+// more than its tolerance, 1e-3 as --epsilon sets it. Neither the text
+// nor the JSON may call it plainly proper.
+func TestAuditCertificateSaysEpsilon(t *testing.T) {
+	args := []string{"audit", "--outcomes", "3", "--payout", "10 - 5*sum((p - hit)^2)", "--certify", "--epsilon", "0.001"}
+	code, out, errs := runCmd(t, args...)
+	if code != 0 || !strings.Contains(out, "certificate (certified): epsilon-proper to 0.001 (no report gains more than 0.001 anywhere)\n") ||
+		!strings.Contains(out, "certified epsilon-proper to 0.001: no report gains more than 0.001 anywhere (a smaller gain is not ruled out)") {
+		t.Errorf("exit %d: %s%s", code, out, errs)
+	}
+	code, out, _ = runCmd(t, append(args, "--json")...)
+	var v certifiedJSON
+	if err := json.Unmarshal([]byte(out), &v); err != nil {
+		t.Fatal(err)
+	}
+	if code != 0 || v.Certificate == nil || v.Certificate.Verdict != "epsilon-proper" || !strings.HasPrefix(v.Certificate.Statement, "certified epsilon-proper to 0.001: ") {
 		t.Errorf("exit %d: %s", code, out[:min(len(out), 600)])
 	}
 }

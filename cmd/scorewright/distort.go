@@ -189,7 +189,7 @@ func distortResult(u risk.Utility, wealth float64, fitted *budget.Terms, pay str
 		out.Notes = append(out.Notes, "the best report is over all reports at the exact pay A - B·effort; a forecaster held to the menu picks the menu item whose rounded payments in the table give the largest expected utility (the menu pick)")
 	}
 	out.Notes = append(out.Notes,
-		"paying a fixed prize with probability (pay - floor)/(cap - floor) instead of money (table --lottery) makes the truthful report best for any expected-utility maximiser",
+		scorewright.LotteryRemedy("table --lottery"),
 	)
 	return out
 }

@@ -10,6 +10,7 @@ import (
 	"io"
 	"math"
 	"scorewright"
+	"scorewright/internal/numfmt"
 	"strconv"
 	"strings"
 
@@ -21,6 +22,7 @@ import (
 	"scorewright/internal/textcol"
 	"scorewright/presets"
 	"scorewright/verify"
+	"scorewright/verify/certify"
 	"scorewright/verify/pointcheck"
 )
 
@@ -177,22 +179,57 @@ func pointPayoutDesign(payout, interval string, params map[string]float64) (*des
 }
 
 type pointCheckJSON struct {
-	Verdict    verify.Verdict         `json:"verdict"`
-	Grid       pointcheck.Grid        `json:"grid"`
-	Checks     []pointCheckOut        `json:"checks"`
-	Gap        *pointGapOut           `json:"gap,omitempty"`
-	Identified *pointcheck.Identified `json:"identified,omitempty"`
-	Notes      []string               `json:"notes,omitempty"`
+	Verdict verify.Verdict `json:"verdict"`
+	// Kind is the grid verdict's kind: always grid evidence (what the
+	// certificate proves is in Certificate).
+	Kind       certify.Kind        `json:"kind"`
+	Grid       pointGridJSON       `json:"grid"`
+	Checks     []pointCheckOut     `json:"checks"`
+	Gap        *pointGapOut        `json:"gap,omitempty"`
+	Identified *pointIdentifiedOut `json:"identified,omitempty"`
+	Notes      []string            `json:"notes,omitempty"`
 	// Certificate is what --certify proved about a point generator.
 	Certificate *certificateJSON `json:"certificate,omitempty"`
 }
 
+type pointGridJSON struct {
+	Resolution int     `json:"resolution"`
+	Points     int     `json:"points"`
+	Tolerance  float64 `json:"tolerance"`
+	Lo         float64 `json:"lo"`
+	Hi         float64 `json:"hi"`
+}
+
 type pointCheckOut struct {
-	Name   string         `json:"name"`
-	Passed bool           `json:"passed"`
-	Worst  num.Float      `json:"worst"`
-	At     *pointcheck.At `json:"at,omitempty"`
-	What   string         `json:"what"`
+	Name   string      `json:"name"`
+	Passed bool        `json:"passed"`
+	Worst  num.Float   `json:"worst"`
+	At     *pointAtOut `json:"at,omitempty"`
+	What   string      `json:"what"`
+}
+
+// pointAtOut is where a point check found its worst value: the
+// forecaster's outcomes and their weights, and the report.
+type pointAtOut struct {
+	Outcomes []float64 `json:"outcomes,omitempty"`
+	Weights  []float64 `json:"weights,omitempty"`
+	Report   []float64 `json:"report,omitempty"`
+}
+
+// pointAt is the place a point check located its worst value at, nil
+// for a check that locates none.
+func pointAt(c verify.CheckResult) *pointAtOut {
+	if c.Report == nil {
+		return nil
+	}
+	return &pointAtOut{c.Outcomes, c.Belief, c.Report}
+}
+
+type pointIdentifiedOut struct {
+	Preset      string  `json:"preset"`
+	Scale       float64 `json:"scale"`
+	Shift       float64 `json:"shift"`
+	OutcomeTerm bool    `json:"outcome_term,omitempty"`
 }
 
 type pointGapOut struct {
@@ -209,9 +246,13 @@ type pointGapOut struct {
 // certificate proved the rule improper.
 func printPointReport(e *env, rep *pointcheck.Report, asJSON bool, cert *certificateJSON, improper bool) error {
 	if asJSON {
-		out := pointCheckJSON{Verdict: rep.Verdict, Grid: rep.Grid, Identified: rep.Identified, Notes: rep.Notes, Certificate: cert}
+		g := rep.Grid
+		out := pointCheckJSON{Verdict: rep.Verdict, Kind: certify.GridEvidence, Grid: pointGridJSON{g.Resolution, g.Points, g.Tolerance, g.Lo, g.Hi}, Notes: rep.Notes, Certificate: cert}
+		if id := rep.Identified; id != nil {
+			out.Identified = &pointIdentifiedOut{id.Preset, id.Scale, id.Shift, id.OutcomeTerm}
+		}
 		for _, c := range rep.Checks {
-			out.Checks = append(out.Checks, pointCheckOut{c.Name, c.Passed, num.Float(c.Worst), c.At, c.What})
+			out.Checks = append(out.Checks, pointCheckOut{c.Name, c.Passed, num.Float(c.Worst), pointAt(c), c.Note})
 		}
 		if g := rep.Gap; g != nil {
 			out.Gap = &pointGapOut{num.Float(g.Max), g.Outcomes, g.Weights, num.Float(g.Mean), num.Float(g.BestReport), g.Precision}
@@ -220,7 +261,7 @@ func printPointReport(e *env, rep *pointcheck.Report, asJSON bool, cert *certifi
 			return err
 		}
 	} else {
-		fmt.Fprintf(e.stdout, "verdict: %s\n", rep.Verdict)
+		fmt.Fprintf(e.stdout, "verdict: %s (%s)\n", rep.Verdict, certify.GridEvidence)
 		fmt.Fprintf(e.stdout, "grid: [%g, %g], resolution %d (%d reports), tolerance %g\n", rep.Grid.Lo, rep.Grid.Hi, rep.Grid.Resolution, rep.Grid.Points, rep.Grid.Tolerance)
 		tw := textcol.NewWriter(e.stdout, 0)
 		for _, c := range rep.Checks {
@@ -229,17 +270,17 @@ func printPointReport(e *env, rep *pointcheck.Report, asJSON bool, cert *certifi
 				mark = "FAIL"
 			}
 			at := ""
-			if c.At != nil && len(c.At.Report) > 0 {
-				at = fmt.Sprintf("at report %.6g", c.At.Report[0])
-				if len(c.At.Outcomes) > 0 {
-					at += ", outcomes " + num.Format(c.At.Outcomes)
+			if len(c.Report) > 0 {
+				at = fmt.Sprintf("at report %.6g", c.Report[0])
+				if len(c.Outcomes) > 0 {
+					at += ", outcomes " + num.Format(c.Outcomes)
 				}
-				if len(c.At.Weights) > 0 {
-					at += " weighted " + num.Format(c.At.Weights)
+				if len(c.Belief) > 0 {
+					at += " weighted " + num.Format(c.Belief)
 				}
 			}
-			fmt.Fprintf(tw, "%s\t%s\t%.4g\t%s\n", mark, c.Name, c.Shown(), at)
-			fmt.Fprintf(tw, "\t\t\t  (%s)\n", c.What)
+			fmt.Fprintf(tw, "%s\t%s\t%s\t%s\n", mark, c.Name, numfmt.Effort(pointcheck.Shown(c)), at)
+			fmt.Fprintf(tw, "\t\t\t  (%s)\n", c.Note)
 		}
 		if err := tw.Flush(); err != nil {
 			return err
@@ -357,7 +398,7 @@ func printPointTableSummary(w io.Writer, f *budget.PointTable, rc *budget.PointR
 			if r := rc.Rivals[i]; r >= 0 {
 				rival = table.FormatNumber(f.Reports[r])
 			}
-			fmt.Fprintf(tw, "%s\t%s\t%s\t%s\n", table.FormatNumber(f.Reports[i]), table.FormatNumber(rc.Margins[i]), mark, rival)
+			fmt.Fprintf(tw, "%s\t%s\t%s\t%s\n", table.FormatNumber(f.Reports[i]), numfmt.Margin(rc.Margins[i]), mark, rival)
 		}
 		if err := tw.Flush(); err != nil {
 			return err

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"scorewright/internal/numfmt"
 	"strconv"
 
 	"scorewright/contract/budget"
@@ -236,7 +237,7 @@ func (h summaryHead) print(w io.Writer) error {
 	if h.passed {
 		verdict = "passed"
 	}
-	fmt.Fprintf(tw, "re-check\t%s, smallest margin %s\n", verdict, table.FormatNumber(h.margin))
+	fmt.Fprintf(tw, "re-check\t%s, smallest margin %s\n", verdict, numfmt.Margin(h.margin))
 	if err := tw.Flush(); err != nil {
 		return err
 	}
@@ -298,7 +299,7 @@ func printItems(w io.Writer, f *budget.Fit, rc *budget.Recheck) error {
 		case c.Beliefs > 0:
 			cell = fmt.Sprintf("%d of %d", c.Beliefs, rc.Beliefs)
 		}
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\n", num.Format(reps[i]), table.FormatNumber(rc.Margins[i]), verdict, rival, cell)
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\n", num.Format(reps[i]), numfmt.Margin(rc.Margins[i]), verdict, rival, cell)
 	}
 	if err := tw.Flush(); err != nil {
 		return err

@@ -141,6 +141,17 @@ func New(in Input) (*Document, error) {
 	return doc, nil
 }
 
+// RunningHead is the line at the top of every page after the first: the
+// title and what the document is, said once. A title that already names
+// an annex (the default title of an untitled design, "Frost payment
+// annex") is not followed by "payment annex" again.
+func (d *Document) RunningHead() string {
+	if strings.Contains(strings.ToLower(d.Title), "annex") {
+		return d.Title
+	}
+	return d.Title + " — payment annex"
+}
+
 // Canonical is the design as a file, version set: the bytes the
 // fingerprint is taken over.
 func Canonical(d *design.Design) ([]byte, error) {

@@ -281,3 +281,22 @@ func text(n *html.Node) string {
 	})
 	return strings.TrimSpace(b.String())
 }
+
+// An untitled design's pages once ran under "Payment annex — payment
+// annex"; a title that names an annex is said once, any other title is
+// followed by what the document is.
+func TestRunningHeadSaysAnnexOnce(t *testing.T) {
+	d := waterDesign()
+	d.Title = ""
+	untitled := docFor(t, d)
+	if got := untitled.RunningHead(); got != "Payment annex" {
+		t.Errorf("untitled head %q, want %q", got, "Payment annex")
+	}
+	d.Title = "Frost payment annex"
+	if got := docFor(t, d).RunningHead(); got != "Frost payment annex" {
+		t.Errorf("head %q repeats the annex", got)
+	}
+	if got := waterDoc(t).RunningHead(); got != "Daily capacity forecasts — Kestrel Vale Water — payment annex" {
+		t.Errorf("titled head %q", got)
+	}
+}

@@ -118,7 +118,7 @@ func (d *Document) pdfHead(pdf *fpdf.Fpdf) {
 	}
 	pdf.SetFont(sans, "", smallSize)
 	pdf.SetTextColor(90, 90, 90)
-	pdf.CellFormat(0, smallLineH, d.Title+" — payment annex", "", 0, "L", false, 0, "")
+	pdf.CellFormat(0, smallLineH, d.RunningHead(), "", 0, "L", false, 0, "")
 	pdf.CellFormat(0, smallLineH, "design "+d.Short(), "", 1, "R", false, 0, "")
 	pdf.SetTextColor(0, 0, 0)
 	pdf.Ln(3)

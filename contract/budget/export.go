@@ -3,6 +3,7 @@ package budget
 import (
 	"fmt"
 	"math"
+	"scorewright/internal/numfmt"
 	"strconv"
 	"strings"
 
@@ -56,7 +57,7 @@ func (rc *Recheck) Verdict(f *Fit) string {
 	M := len(f.Menu.Reports)
 	where := ""
 	if rc.MinMarginRival >= 0 {
-		where = fmt.Sprintf(" (smallest margin %s at item %s against %s)", table.FormatNumber(rc.MinMargin),
+		where = fmt.Sprintf(" (smallest margin %s at item %s against %s)", numfmt.Margin(rc.MinMargin),
 			num.Format(f.Menu.Reports[rc.MinMarginItem]), num.Format(f.Menu.Reports[rc.MinMarginRival]))
 	}
 	if rc.Passed {

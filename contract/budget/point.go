@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"scorewright/internal/numfmt"
 
 	"scorewright/contract/table"
 	"scorewright/generator/point"
@@ -247,7 +248,7 @@ func (rc *PointRecheck) Verdict(f *PointTable) string {
 	where := ""
 	if rc.MinItem >= 0 && rc.MinRival >= 0 {
 		xs := distinct(f.Reports)
-		where = fmt.Sprintf(" (smallest margin %s at report %s against %s)", table.FormatNumber(rc.MinMargin), xs[rc.MinItem], xs[rc.MinRival])
+		where = fmt.Sprintf(" (smallest margin %s at report %s against %s)", numfmt.Margin(rc.MinMargin), xs[rc.MinItem], xs[rc.MinRival])
 	}
 	scope := "every forecaster whose mean is that report (every point mass and two-column mixture with that mean, pay interpolated between columns; exact), after scaling and rounding"
 	if rc.Passed {

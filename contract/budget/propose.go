@@ -8,6 +8,7 @@ import (
 
 	"scorewright/generator/bregman"
 	"scorewright/generator/design"
+	"scorewright/internal/numfmt"
 	"scorewright/internal/pool"
 )
 
@@ -39,11 +40,11 @@ type Proposal struct {
 func (p *Proposal) Describe() string {
 	switch p.Field {
 	case "unit":
-		return fmt.Sprintf("unit %g: the coarsest currency unit the re-check passes with (margin %.4g)", p.Budget.Unit, p.MinMargin)
+		return fmt.Sprintf("unit %g: the coarsest currency unit the re-check passes with (margin %s)", p.Budget.Unit, numfmt.Margin(p.MinMargin))
 	case "cap":
-		return fmt.Sprintf("cap %g: the smallest cap the re-check passes with at unit %g (margin %.4g)", p.Budget.Cap, p.Budget.Unit, p.MinMargin)
+		return fmt.Sprintf("cap %g: the smallest cap the re-check passes with at unit %g (margin %s)", p.Budget.Cap, p.Budget.Unit, numfmt.Margin(p.MinMargin))
 	}
-	return fmt.Sprintf("mean pay %g: the smallest mean pay the re-check passes with at unit %g (margin %.4g)", *p.Budget.MeanPay, p.Budget.Unit, p.MinMargin)
+	return fmt.Sprintf("mean pay %g: the smallest mean pay the re-check passes with at unit %g (margin %s)", *p.Budget.MeanPay, p.Budget.Unit, numfmt.Margin(p.MinMargin))
 }
 
 // ErrNoProposal says that no budget searched passes the re-check.

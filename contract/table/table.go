@@ -3,6 +3,7 @@ package table
 import (
 	"fmt"
 	"math"
+	"scorewright/internal/numfmt"
 	"sort"
 	"strconv"
 	"strings"
@@ -159,7 +160,7 @@ func (m *Meta) Fields() []Field {
 		verdict = "passed"
 	}
 	add("re-check", verdict+": "+m.Verdict)
-	add("smallest margin", FormatNumber(float64(m.MinMargin)))
+	add("smallest margin", numfmt.Margin(float64(m.MinMargin)))
 	add("verdict kind", m.VerdictKind)
 	add("certificate", m.Certificate)
 	for _, n := range m.Notes {

@@ -115,35 +115,6 @@ func TestBoundaryPowerClosedForm(t *testing.T) {
 	}
 }
 
-// The extrapolation itself on sequences whose limits are known: a power
-// law approach of exponent 0.1 (slow, ratio 0.87 per step), a constant,
-// and a logarithmic divergence.
-func TestLimitState(t *testing.T) {
-	cases := []struct {
-		name string
-		f    func(h float64) float64
-		want float64
-	}{
-		{"h^0.1", func(h float64) float64 { return 2 + 3*math.Pow(h, 0.1) }, 2},
-		{"sqrt h + h", func(h float64) float64 { return -1 + math.Sqrt(h) + h }, -1},
-		{"h ln h", func(h float64) float64 { return 0.5 + h*math.Log(h) }, 0.5},
-		{"constant", func(float64) float64 { return 0.25 }, 0.25},
-		{"-ln h", func(h float64) float64 { return -math.Log(h) }, math.Inf(1)},
-		{"h^-0.5", func(h float64) float64 { return -1 / math.Sqrt(h) }, math.Inf(-1)},
-	}
-	for _, c := range cases {
-		var st limitState
-		for step := 0; step < limitSteps && !st.done; step++ {
-			v := c.f(math.Ldexp(1, -limitFirst-2*step))
-			st.offer(v, math.Abs(v))
-		}
-		got := st.result()
-		if math.IsInf(c.want, 0) && got != c.want || !math.IsInf(c.want, 0) && math.Abs(got-c.want) > 1e-9 {
-			t.Errorf("%s: limit %v, want %v", c.name, got, c.want)
-		}
-	}
-}
-
 // A report on a face whose other coordinates are small but positive: the
 // log rule's effort for an outcome with p_k > 0 is -ln p_k (Good 1952),
 // finite, and only the outcome the report rules out costs +Inf. A segment

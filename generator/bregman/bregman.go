@@ -13,6 +13,7 @@ import (
 	"math"
 
 	"scorewright/generator/formula"
+	"scorewright/internal/num"
 )
 
 // Evaluator computes a generator and its exact derivatives at a point of
@@ -129,7 +130,7 @@ type Scorer struct {
 	eff  []float64
 	hess []float64
 	// Scratch for the limit at boundary reports, made on first use.
-	limit []limitState
+	limit []num.Limit
 	pt    []float64
 	// limitErr is the error estimate of the last Efforts call's limits,
 	// maxLimitErr the largest over every call.
@@ -220,11 +221,32 @@ type RoundingEvaluator interface {
 	HessianRounding(hess, grad, p []float64) float64
 }
 
+// ValueRoundingEvaluator is an Evaluator that can bound the rounding of
+// the value it computes (formula.Machine.ValueRounding): H written as
+// (1e8 - sum(p^2)) - 1e8 is near 1 but known only to about 1e-8.
+type ValueRoundingEvaluator interface {
+	ValueRounding(p []float64) (float64, bool)
+}
+
+// ValueRounding bounds the rounding error of H(p) by the size of the terms
+// that cancel in it; where the evaluator gives no bound, a few ulps of
+// |H(p)| (all that is known without one).
+func (s *Scorer) ValueRounding(p []float64) float64 {
+	s.check("belief", p)
+	if re, ok := s.ev.(ValueRoundingEvaluator); ok {
+		if b, ok := re.ValueRounding(p); ok {
+			return b
+		}
+	}
+	return 4 * 0x1p-52 * math.Abs(s.ev.Value(p))
+}
+
 // Rounding writes into dst (n×n, row-major) a bound on the rounding error
 // of each Hessian entry at the interior point p, and returns a bound on
 // the rounding error of every effort L(p, k): the gradient's own bound,
-// plus one rounding of each of the terms H, g_k and <g, p> that the
-// effort sums. ok is false when the evaluator cannot bound its rounding.
+// the bound on H's own value (ValueRounding), plus one rounding of each of
+// the terms H, g_k and <g, p> that the effort sums. ok is false when the
+// evaluator cannot bound its rounding.
 func (s *Scorer) Rounding(dst, p []float64) (effort float64, ok bool) {
 	re, ok := s.ev.(RoundingEvaluator)
 	if !ok {
@@ -238,9 +260,10 @@ func (s *Scorer) Rounding(dst, p []float64) (effort float64, ok bool) {
 	for k, e := range s.eff {
 		ge += e * p[k]
 	}
+	hr := s.ValueRounding(p)
 	u := 0x1p-52
 	for k, e := range s.eff {
-		b := e + ge + u*(3*math.Abs(h)+math.Abs(s.grad[k])+math.Abs(gp))
+		b := e + ge + hr + u*(3*math.Abs(h)+math.Abs(s.grad[k])+math.Abs(gp))
 		if b > effort {
 			effort = b
 		}

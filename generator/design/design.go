@@ -56,17 +56,30 @@ type modeTraits struct {
 	// interval (a payout with an interval was a point-forecast payout in
 	// files written before that mode had its own name).
 	withInterval Mode
+	// title and hint are what a mode is called where a user picks it, and
+	// what its formula is in ("" for no hint).
+	title, hint string
+	// sample is the formula a design is first given when it is switched
+	// to the mode; "" keeps the formula it has.
+	sample string
 }
 
 // traits describes every mode. It is a function, not a table in a
 // variable, so that nothing can change it.
 func traits(m Mode) (modeTraits, bool) {
 	for _, t := range []modeTraits{
-		{mode: ModeGenerator},
-		{mode: ModePayout, payout: true, withInterval: ModePointPayout},
-		{mode: ModeEmphasis, outcomes: 2},
-		{mode: ModePoint, onInterval: true},
-		{mode: ModePointPayout, onInterval: true, payout: true},
+		{mode: ModeGenerator, title: "generator", hint: "concave H"},
+		{mode: ModePayout, payout: true, withInterval: ModePointPayout, title: "payout audit", hint: "pay(p, y)",
+			// A scaled quadratic payment, to be replaced by the payout under audit.
+			sample: "# pay(p, y): the payment when outcome y happens\n10 - 5*sum((p - hit)^2)"},
+		{mode: ModeEmphasis, outcomes: 2, title: "emphasis weight w(c)",
+			// The beta family; a = b = 1 is the quadratic rule.
+			sample: "# w(c): where the rule puts its incentive\na = 1\nb = 1\nc^(a-1) * (1-c)^(b-1)"},
+		{mode: ModePoint, onInterval: true, title: "point forecast phi(x)",
+			sample: "-x^2"}, // squared error
+		{mode: ModePointPayout, onInterval: true, payout: true, title: "point payout audit", hint: "pay(x, y)",
+			// A scaled squared error on [0, 100], paying 0 to 50.
+			sample: "# pay(x, y): the payment for report x when the outcome is y\n50 - (x - y)^2 / 200"},
 	} {
 		if t.mode == m {
 			return t, true
@@ -78,6 +91,15 @@ func traits(m Mode) (modeTraits, bool) {
 // OnInterval reports whether the mode is about a number on an interval
 // (a point forecast) rather than a distribution over outcomes.
 func (m Mode) OnInterval() bool { t, _ := traits(m); return t.onInterval }
+
+// Title is what the mode is called where a user picks it ("" for a mode
+// this build does not know), and Hint what its formula is in ("" when
+// the title says it).
+func (m Mode) Title() (title, hint string) { t, _ := traits(m); return t.title, t.hint }
+
+// Sample is the formula a design is first given when it is switched to
+// the mode, "" when it keeps the formula it has.
+func (m Mode) Sample() string { t, _ := traits(m); return t.sample }
 
 // Payout reports whether the formula of the mode is a payout under audit
 // (more is better) rather than a rule's generator.

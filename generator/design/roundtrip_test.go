@@ -120,6 +120,9 @@ func TestEveryModeDescribed(t *testing.T) {
 		if got := [2]bool{m.OnInterval(), m.Payout()}; got != want[m] {
 			t.Errorf("mode %q: on interval, payout = %v, want %v", m, got, want[m])
 		}
+		if title, _ := m.Title(); title == "" {
+			t.Errorf("mode %q has no title for the mode row", m)
+		}
 	}
 	if _, ok := traits("lottery"); ok {
 		t.Fatal("an unknown mode has traits")

@@ -35,6 +35,8 @@ type Machine struct {
 	// forms (HessianRounding): the size of what the derivatives sum,
 	// which bounds what their rounding can do.
 	abs bool
+	// vround is ValueRounding's interval evaluation, made on first use.
+	vround *valueRounding
 }
 
 // NewMachine returns a Machine for p.

@@ -21,6 +21,7 @@ import (
 	"gonum.org/v1/gonum/integrate/quad"
 
 	"scorewright/generator/formula"
+	"scorewright/internal/num"
 )
 
 // Options are the settings of New; the zero value means the defaults.
@@ -66,6 +67,17 @@ type Evaluator struct {
 	g             *Generator
 	m             *formula.Machine
 	v, grad, hess [1]float64
+	// ends caches phi' and phi'' at Lo and Hi as limits from the
+	// interior (endLimits).
+	ends [2]endDerivs
+}
+
+// endDerivs are the derivatives at one end of the interval.
+type endDerivs struct {
+	done   bool
+	d1, d2 float64
+	// err is the extrapolation's error estimate of a finite d1.
+	err float64
 }
 
 // Gauss-Legendre nodes and weights on [0, 1], 8 and 16 points, for the
@@ -89,19 +101,94 @@ func (e *Evaluator) Phi(x float64) float64 {
 	return e.m.Value(e.v[:])
 }
 
-// Derivatives returns phi(x), phi'(x) and phi”(x).
+// Derivatives returns phi(x), phi'(x) and phi”(x). At an end of the
+// interval the derivatives are the one-sided limits from the interior
+// (endLimits).
 func (e *Evaluator) Derivatives(x float64) (phi, d1, d2 float64) {
 	e.v[0] = x
 	phi = e.m.Hessian(e.hess[:], e.grad[:], e.v[:])
-	return phi, e.grad[0], e.hess[0]
+	d1, d2 = e.grad[0], e.hess[0]
+	if end := e.end(x); end != nil {
+		d1, d2 = end.d1, end.d2
+	}
+	return phi, d1, d2
 }
+
+// slope returns phi(x) and phi'(x), at an end of the interval the limit
+// from the interior.
+func (e *Evaluator) slope(x float64) (phi, d1 float64) {
+	e.v[0] = x
+	phi = e.m.Gradient(e.grad[:], e.v[:])
+	d1 = e.grad[0]
+	if end := e.end(x); end != nil {
+		d1 = end.d1
+	}
+	return phi, d1
+}
+
+// EndSlopeError is the error estimate of phi' at the ends of the interval
+// where it is a finite extrapolated limit (endLimits), 0 where the formal
+// derivative agreed with the limit to rounding or the limit is infinite.
+// An effort resting on an end report's slope is known only to this times
+// |y - x|.
+func (e *Evaluator) EndSlopeError() float64 {
+	e.end(e.g.Lo)
+	e.end(e.g.Hi)
+	return math.Max(e.ends[0].err, e.ends[1].err)
+}
+
+// end returns the derivatives at x when x is an end of the interval, else
+// nil.
+func (e *Evaluator) end(x float64) *endDerivs {
+	var i int
+	switch x {
+	case e.g.Lo:
+		i = 0
+	case e.g.Hi:
+		i = 1
+	default:
+		return nil
+	}
+	if !e.ends[i].done {
+		e.ends[i] = e.endLimits(x, 1-2*float64(i))
+	}
+	return &e.ends[i]
+}
+
+// endLimits takes phi' and phi” at the end x as the limits from the
+// interior, towards which side points: the formal derivative at an end
+// can be wrong where the formula reads 0·Inf there (exp(0.5·ln x) has the
+// formal slope 0 at x = 0, where its slope tends to +Inf, and calling
+// that slope 0 makes reporting 0 look cheap). For a concave phi the slope
+// is monotone, so the one-sided limit exists, possibly infinite; it is
+// extrapolated (num.Limit) from points at distances (Hi - Lo)·2^-6 down
+// to (Hi - Lo)·2^-40, and the formal value kept where it agrees.
+func (e *Evaluator) endLimits(x, side float64) endDerivs {
+	e.v[0] = x
+	e.m.Hessian(e.hess[:], e.grad[:], e.v[:])
+	f1, f2 := e.grad[0], e.hess[0]
+	var l1, l2 num.Limit
+	w := e.g.Hi - e.g.Lo
+	for step := 0; step < num.LimitSteps && !(l1.Done() && l2.Done()); step++ {
+		e.v[0] = x + side*num.LimitStep(w, step)
+		e.m.Hessian(e.hess[:], e.grad[:], e.v[:])
+		l1.Offer(e.grad[0], math.Abs(e.grad[0]))
+		l2.Offer(e.hess[0], math.Abs(e.hess[0]))
+	}
+	out := endDerivs{done: true, d1: l1.KeepFormal(f1), d2: l2.KeepFormal(f2)}
+	if out.d1 != f1 && finite(out.d1) {
+		out.err = l1.Err()
+	}
+	return out
+}
+
+func finite(v float64) bool { return v == v && !math.IsInf(v, 0) }
 
 // Line returns Phi(y, x) = phi(x) + phi'(x)(y - x), the expected effort
 // line of report x evaluated at outcome y.
 func (e *Evaluator) Line(y, x float64) float64 {
-	e.v[0] = x
-	phi := e.m.Gradient(e.grad[:], e.v[:])
-	return phi + mul0(e.grad[0], y-x)
+	phi, d1 := e.slope(x)
+	return phi + mul0(d1, y-x)
 }
 
 // Divergence returns D(y, x) = Phi(y, x) - phi(y), the effort of report x
@@ -124,9 +211,8 @@ func (e *Evaluator) Divergence(y, x float64) float64 {
 	if x == y {
 		return 0
 	}
-	e.v[0] = x
-	px := e.m.Gradient(e.grad[:], e.v[:])
-	lin := mul0(e.grad[0], y-x)
+	px, d1 := e.slope(x)
+	lin := mul0(d1, y-x)
 	py := e.Phi(y)
 	direct := px + lin - py
 	directErr := 4 * 0x1p-52 * (math.Abs(px) + math.Abs(lin) + math.Abs(py))
@@ -158,9 +244,8 @@ func (e *Evaluator) curvature(y, x float64, g gaussNodes) float64 {
 // error. An affine part of phi (1e8·x) leaves D alone but makes those
 // terms, and so the rounding, large.
 func (e *Evaluator) DivergenceTerms(y, x float64) (d, size float64) {
-	e.v[0] = x
-	phi := e.m.Gradient(e.grad[:], e.v[:])
-	slope := mul0(e.grad[0], y-x)
+	phi, d1 := e.slope(x)
+	slope := mul0(d1, y-x)
 	py := e.Phi(y)
 	return phi + slope - py, math.Abs(phi) + math.Abs(slope) + math.Abs(py)
 }
@@ -172,9 +257,7 @@ func (e *Evaluator) Expected(x float64, ys, ws []float64) float64 {
 	if len(ys) != len(ws) {
 		panic("point: outcomes and weights differ in length")
 	}
-	e.v[0] = x
-	phi := e.m.Gradient(e.grad[:], e.v[:])
-	d := e.grad[0]
+	phi, d := e.slope(x)
 	var s float64
 	for j, y := range ys {
 		if ws[j] == 0 {

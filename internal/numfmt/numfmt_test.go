@@ -41,3 +41,18 @@ func TestFixedSmallDecimals(t *testing.T) {
 		t.Errorf("Clean = %v", v)
 	}
 }
+
+// Each kind keeps its digits and drops binary noise; expected strings
+// derived by hand.
+func TestKinds(t *testing.T) {
+	for _, c := range []struct{ got, want string }{
+		{Amount(143.25000000000003, 2), "143.25"}, {Amount(150, 2), "150.00"}, {Amount(1.0/3, -1), "0.333333"},
+		{Pay(8.638813559322034), "8.63881"}, {Effort(-2.0 / 3), "-0.666667"}, {Effort(0.1 + 0.2), "0.3"},
+		{Probability(0.30000000000000004), "0.3"}, {Margin(0.024999999999999998), "0.025"}, {Margin(1.0 / 60), "0.01667"},
+		{Points(9.5238), "9.52"}, {Statistic(8.638813559322034, 1), "8.639"}, {Statistic(3.15e-17, 0.25), "0"}, {Statistic(0.0339002, 0.3848), "0.0339"},
+	} {
+		if c.got != c.want {
+			t.Errorf("got %q, want %q", c.got, c.want)
+		}
+	}
+}

@@ -24,6 +24,11 @@
 //   - a generator that is a sum of one-variable terms is proved strictly
 //     concave term by term (separable.go), which decides the vertices
 //     where the power rule's curvature vanishes and no box can;
+//   - a generator that is, as a whole formula, a negated power of a
+//     weighted a-norm plus affine terms (the spherical and pseudospherical
+//     rules) is proved strictly concave by Minkowski's inequality
+//     (norm.go), which decides the faces where the pseudospherical rule's
+//     curvature vanishes;
 //   - a payout is proved honest to within Epsilon when, over pairs of a
 //     belief box and a report box, an upper bound of E_q[pay(r)] -
 //     E_q[pay(q)] is at most Epsilon, and proved dishonest by a pair whose
@@ -61,6 +66,30 @@ const (
 
 // Undecided is the verdict when the certificate could not finish.
 const Undecided verify.Verdict = "undecided"
+
+// EpsilonProper is a payout certificate's verdict when it proved that no
+// report gains more than Result.Epsilon anywhere: honest to within
+// epsilon, which is less than proper (a smaller gain is not ruled out).
+const EpsilonProper verify.Verdict = "epsilon-proper"
+
+// Proved reports whether v is a verdict of honesty a certificate proved
+// over the whole simplex or interval: proper, strictly proper, or
+// epsilon-proper.
+func Proved(v verify.Verdict) bool {
+	return v == verify.Proper || v == verify.StrictlyProper || v == EpsilonProper
+}
+
+// EpsilonVerdict names an epsilon-proper verdict with its epsilon,
+// "epsilon-proper to 0.001", as every front end writes it.
+func EpsilonVerdict(epsilon float64) string {
+	return fmt.Sprintf("%s to %.3g", EpsilonProper, epsilon)
+}
+
+// EpsilonClaim is what an epsilon-proper verdict proved, in the words
+// every front end uses beside the verdict.
+func EpsilonClaim(epsilon float64) string {
+	return fmt.Sprintf("no report gains more than %.3g anywhere", epsilon)
+}
 
 // DefaultDeadline bounds a run when neither Settings nor the context do.
 const DefaultDeadline = 30 * time.Second
@@ -117,7 +146,8 @@ type Witness struct {
 type Result struct {
 	// Kind is Certified: the verdict below is proved, or Undecided.
 	Kind Kind
-	// Verdict: strictly-proper, proper, improper, or undecided.
+	// Verdict: strictly-proper, proper, epsilon-proper (a payout, honest
+	// to within Epsilon), improper, or undecided.
 	Verdict verify.Verdict
 	// Share is the part of the simplex (by volume) proved: concave for a
 	// generator, honest to within Epsilon for a payout.
@@ -160,10 +190,10 @@ func (r *Result) Statement() string {
 		return "certified strictly proper over the whole simplex: " + r.Method
 	case r.Verdict == verify.StrictlyProper:
 		return fmt.Sprintf("certified strictly proper over the whole simplex (%d boxes)", r.Boxes)
-	case r.Verdict == verify.Proper && r.Epsilon > 0 && r.Method != "":
-		return fmt.Sprintf("certified: no report gains more than %.3g anywhere: %s (%d boxes)", r.Epsilon, r.Method, r.Boxes)
-	case r.Verdict == verify.Proper && r.Epsilon > 0:
-		return fmt.Sprintf("certified: no report gains more than %.3g anywhere (%d box pairs)", r.Epsilon, r.Boxes)
+	case r.Verdict == EpsilonProper && r.Method != "":
+		return fmt.Sprintf("certified %s: %s (a smaller gain is not ruled out): %s (%d boxes)", EpsilonVerdict(r.Epsilon), EpsilonClaim(r.Epsilon), r.Method, r.Boxes)
+	case r.Verdict == EpsilonProper:
+		return fmt.Sprintf("certified %s: %s (a smaller gain is not ruled out) (%d box pairs)", EpsilonVerdict(r.Epsilon), EpsilonClaim(r.Epsilon), r.Boxes)
 	case r.Verdict == verify.Proper:
 		// Where strictness was not shown is not known to be next to the
 		// faces: min(p, 1-p) and p1 (1 - p1) are flat in the interior.

@@ -57,6 +57,9 @@ func Generator(ctx context.Context, prog *formula.Program, n int, s Settings) (*
 	if res := separableResult(prog, n, s, start); res != nil {
 		return res, nil
 	}
+	if res := normResult(prog, n, s, start); res != nil {
+		return res, nil
+	}
 	g := &genRun{n: n, enc: prog.NewEncloser(), senc: prog.NewSimplexEncloser(), pbox: make([]iv.Interval, n), minW: s.minWidth(),
 		res: &Result{Kind: Certified, Outcomes: n}}
 	tk := &ticker{fn: s.Progress, start: start}

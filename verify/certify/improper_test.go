@@ -152,7 +152,7 @@ func TestQuadraticPayoutCertified(t *testing.T) {
 	for n := 2; n <= 4; n++ {
 		res := certifyPayout(t, "10 - 5*sum((p - hit)^2)", n, Settings{Deadline: time.Minute})
 		t.Logf("n=%d: %s share %g", n, res.Statement(), res.Share)
-		if res.Verdict != verify.Proper {
+		if res.Verdict != EpsilonProper {
 			t.Errorf("n=%d: %s", n, res.Statement())
 		}
 		if g := bruteGain(t, quad, n, 12); g > res.Epsilon {
@@ -192,11 +192,11 @@ func TestTiltedPayoutTolerance(t *testing.T) {
 	const src = "10 - 5*sum((p - hit)^2) + 0.01*p1"
 	for n := 2; n <= 3; n++ {
 		res := certifyPayout(t, src, n, Settings{Deadline: time.Minute, Epsilon: 1e-3})
-		if res.Verdict != verify.Proper {
+		if res.Verdict != EpsilonProper {
 			t.Errorf("n=%d eps 1e-3: %s", n, res.Statement())
 		}
 		res = certifyPayout(t, src, n, Settings{Deadline: 5 * time.Second, Epsilon: 1e-6})
-		if res.Verdict == verify.Proper {
+		if res.Verdict == EpsilonProper {
 			t.Errorf("n=%d eps 1e-6: %s, but a report gains 5e-6·(1 - 1/n)", n, res.Statement())
 		}
 		if w := res.Witness; w != nil {

@@ -120,7 +120,7 @@ func Payout(ctx context.Context, pay *payout.Payout, s Settings) (*Result, error
 	if !done {
 		found = p.pairs(ctx, s, h, res, tk)
 	}
-	if res.Verdict == verify.Proper {
+	if res.Verdict == EpsilonProper {
 		res.Elapsed = time.Since(start)
 		tk.tick(1, res.Boxes, true)
 		return res, nil
@@ -135,7 +135,7 @@ func Payout(ctx context.Context, pay *payout.Payout, s Settings) (*Result, error
 			res.Stopped = "smallest box reached"
 		}
 	default:
-		res.Verdict, res.Share = verify.Proper, 1
+		res.Verdict, res.Share = EpsilonProper, 1
 	}
 	tk.tick(res.Share, res.Boxes, true)
 	return res, nil
@@ -191,7 +191,7 @@ func (p *payRun) convexFirst(ctx context.Context, pay *payout.Payout, s Settings
 	res.Boxes += boxes
 	switch {
 	case len(left) == 0 && stopped == "":
-		res.Verdict, res.Share, res.Method = verify.Proper, 1, convexMethod
+		res.Verdict, res.Share, res.Method = EpsilonProper, 1, convexMethod
 		return true
 	case stopped != "":
 		res.Open, res.Stopped, res.Verdict = len(left), stopped, Undecided

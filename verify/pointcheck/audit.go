@@ -24,10 +24,9 @@ type Candidate struct {
 // g(y) - Scale * D(y, x) with a term g in the outcome alone (which changes
 // no incentive) and Shift is 0.
 type Identified struct {
-	Preset      string  `json:"preset"`
-	Scale       float64 `json:"scale"`
-	Shift       float64 `json:"shift"`
-	OutcomeTerm bool    `json:"outcome_term,omitempty"`
+	Preset       string
+	Scale, Shift float64
+	OutcomeTerm  bool
 }
 
 // Payout is a compiled payout formula pay(x, y) for point forecasts.
@@ -81,81 +80,114 @@ func AuditPayout(ctx context.Context, p *Payout, lo, hi float64, s verify.Settin
 	k, tol := resolution(s), tolerance(s)
 	a := &payAudit{pr: p.newPayer(), lo: lo, hi: hi, tol: tol}
 	a.ys, a.xs = grids(lo, hi, k)
-	rep := &Report{Grid: Grid{Resolution: k, Points: len(a.xs), Tolerance: tol, Lo: lo, Hi: hi}}
+	rep := &Report{Report: verify.Report{Grid: verify.Grid{Resolution: k, Points: len(a.xs), Tolerance: tol, Lo: lo, Hi: hi}}}
 	pm, nonFinite, err := fill(ctx, a.xs, a.ys, "pay", func(y, x float64) float64 { return a.pr.pay(x, y) })
 	if err != nil {
 		return nil, err
 	}
-	a.pm, a.scale = pm, paySpread(pm)
+	a.pm, a.scale, a.round = pm, paySpread(pm), payRounding(pm)
 	nonneg, affine := a.nonnegativity(), a.affinity()
 	ds := distributions(k)
 	gap, strictMargin, err := a.gap(ctx, s, ds)
 	if err != nil {
 		return nil, err
 	}
-	proper := Check{Name: "properness", What: fmt.Sprintf("largest honesty gap max_x E pay(x, Y) - E pay(mean, Y) over %d two- and three-point distributions and a search over every two-point distribution (support and weight), where the gap of a point report is largest", len(ds)), Worst: gap.Max, At: &At{Outcomes: gap.Outcomes, Weights: gap.Weights, Report: []float64{gap.BestReport}}, Passed: gap.Max <= tol*a.scale, Slack: tol * a.scale}
+	proper := result("properness", fmt.Sprintf("largest honesty gap max_x E pay(x, Y) - E pay(mean, Y) over %d two- and three-point distributions and a search over every two-point distribution (support and weight), where the gap of a point report is largest", len(ds)),
+		gap.Max, gap.Max <= a.slack(), a.slack(), &place{gap.Outcomes, gap.Weights, []float64{gap.BestReport}})
 	rep.Gap = &gap
-	bounded := Check{Name: "boundedness", What: "number of grid cells where the pay is not finite", Worst: float64(len(nonFinite)), Passed: len(nonFinite) == 0}
+	bounded := result("boundedness", "number of grid cells where the pay is not finite", float64(len(nonFinite)), len(nonFinite) == 0, 0, nil)
 	if len(nonFinite) > 0 {
 		rep.Notes = append(rep.Notes, "not finite at "+joinFirst(nonFinite, 5))
 	}
-	rep.Checks = []Check{nonneg, affine, proper, bounded}
+	rep.Checks = []verify.CheckResult{nonneg, affine, proper, bounded}
 	a.verdict(rep, strictMargin)
 	if id := identify(pm, a.xs, a.ys, a.scale, tol, candidates); id != nil {
 		rep.Identified = id
 	}
-	rep.Notes = append(rep.Notes, fmt.Sprintf("grid check on %d outcomes and %d reports in [%g, %g], tolerance %g relative to the pay spread %.4g: evidence, not proof", len(a.ys), len(a.xs), lo, hi, tol, a.scale))
+	raised := ""
+	if a.round > tol*a.scale {
+		raised = fmt.Sprintf(", raised to %.3g for the rounding of payments as large as they are", a.round)
+	}
+	rep.Notes = append(rep.Notes, fmt.Sprintf("grid check on %d outcomes and %d reports in [%g, %g], tolerance %g relative to the pay spread %.4g (the largest over outcomes of the spread over reports)%s: evidence, not proof", len(a.ys), len(a.xs), lo, hi, tol, a.scale, raised))
 	return rep, nil
 }
 
 // payAudit is a payout evaluated on the grid: pm[i][j] is the pay of
 // report xs[i] when the outcome is ys[j]; scale is the spread of the
-// finite payments, which the tolerance is relative to.
+// finite payments outcome by outcome, which the tolerance is relative
+// to, and round the rounding floor of the comparisons.
 type payAudit struct {
-	pr         *payer
-	pm         [][]float64
-	xs, ys     []float64
-	lo, hi     float64
-	tol, scale float64
+	pr                *payer
+	pm                [][]float64
+	xs, ys            []float64
+	lo, hi            float64
+	tol, scale, round float64
 }
 
-// paySpread is the spread of the finite payments of pm, or, when they
-// are all equal, their size (at least 1).
+// slack is what a comparison of expected payments allows: the tolerance
+// relative to the spread, never less than the rounding of the payments.
+func (a *payAudit) slack() float64 { return math.Max(a.tol*a.scale, a.round) }
+
+// paySpread is the largest spread of the finite payments of pm for one
+// outcome (over the reports), or, when they are all equal, their size (at
+// least 1). A term in the outcome alone (1e10·y) changes no incentive;
+// measured across outcomes it made the slack 10 and hid the gap 0.000625
+// of -(x - y)^2 + 1e10·y + 0.05·x.
 func paySpread(pm [][]float64) float64 {
-	minP, maxP := math.Inf(1), math.Inf(-1)
+	var scale, size float64
+	for j := range pm[0] {
+		minP, maxP := math.Inf(1), math.Inf(-1)
+		for _, row := range pm {
+			if v := row[j]; finite(v) {
+				minP, maxP = math.Min(minP, v), math.Max(maxP, v)
+				size = math.Max(size, math.Abs(v))
+			}
+		}
+		if maxP-minP > scale {
+			scale = maxP - minP
+		}
+	}
+	if scale > 0 {
+		return scale
+	}
+	return math.Max(size, 1)
+}
+
+// payRounding is the rounding floor of a comparison of expected payments:
+// a few ulps (8ε, for the sums of two- and three-point expectations and
+// their difference) of the largest finite payment.
+func payRounding(pm [][]float64) float64 {
+	var size float64
 	for _, row := range pm {
 		for _, v := range row {
 			if finite(v) {
-				minP, maxP = math.Min(minP, v), math.Max(maxP, v)
+				size = math.Max(size, math.Abs(v))
 			}
 		}
 	}
-	if scale := maxP - minP; scale > 0 {
-		return scale
-	}
-	return math.Max(math.Abs(maxP), 1)
+	return 8 * 0x1p-52 * size
 }
 
 // nonnegativity: knowing the outcome for certain, the exact report pays
 // at least as much as any other, pay(y, y) - pay(x, y) >= 0. Outcome j
 // sits at report index 4j.
-func (a *payAudit) nonnegativity() Check {
-	worst, at := math.Inf(1), At{}
+func (a *payAudit) nonnegativity() verify.CheckResult {
+	worst, at := math.Inf(1), place{}
 	for j := range a.ys {
 		for i := range a.xs {
 			if d := a.pm[4*j][j] - a.pm[i][j]; d < worst {
-				worst, at = d, At{Outcomes: []float64{a.ys[j]}, Report: []float64{a.xs[i]}}
+				worst, at = d, place{outcomes: []float64{a.ys[j]}, report: []float64{a.xs[i]}}
 			}
 		}
 	}
-	return Check{Name: "nonnegativity", What: "smallest pay(y, y) - pay(x, y): what the exact report gains over report x when the outcome y is certain", Worst: worst, At: &at, Passed: worst >= -a.tol*a.scale, Slack: a.tol * a.scale}
+	return result("nonnegativity", "smallest pay(y, y) - pay(x, y): what the exact report gains over report x when the outcome y is certain", worst, worst >= -a.slack(), a.slack(), &at)
 }
 
 // affinity: the report-dependent part pay(x, y) - pay(x0, y) must be
 // affine in y.
-func (a *payAudit) affinity() Check {
+func (a *payAudit) affinity() verify.CheckResult {
 	i0 := len(a.xs) / 2
-	worst, at := 0.0, At{}
+	worst, at := 0.0, place{}
 	for i := range a.xs {
 		f := func(j int) float64 { return a.pm[i][j] - a.pm[i0][j] }
 		for j := 0; j+2 < len(a.ys); j++ {
@@ -164,11 +196,12 @@ func (a *payAudit) affinity() Check {
 				continue // counted under boundedness
 			}
 			if dev > worst {
-				worst, at = dev, At{Outcomes: []float64{a.ys[j], a.ys[j+2]}, Report: []float64{a.xs[i]}}
+				worst, at = dev, place{outcomes: []float64{a.ys[j], a.ys[j+2]}, report: []float64{a.xs[i]}}
 			}
 		}
 	}
-	return Check{Name: "affinity", What: fmt.Sprintf("largest second difference in y of pay(x, y) - pay(%g, y); zero when the report-dependent part is affine in the outcome, which eliciting the mean needs", a.xs[i0]), Worst: worst, At: &at, Passed: worst <= a.tol*a.scale, Slack: a.tol * a.scale}
+	return result("affinity", fmt.Sprintf("largest second difference in y of pay(x, y) - pay(%g, y); zero when the report-dependent part is affine in the outcome, which eliciting the mean needs", a.xs[i0]),
+		worst, worst <= a.slack(), a.slack(), &at)
 }
 
 // gap is the largest honesty gap over the distributions ds, refined
@@ -214,8 +247,8 @@ func (a *payAudit) gap(ctx context.Context, s verify.Settings, ds []dist) (Gap, 
 	if two.Max > gap.Max {
 		gap = two
 	}
-	if gap.Max > a.tol*a.scale && precision != "" {
-		gap.Precision = precision
+	if gap.Max > a.slack() && precision != "" {
+		gap.Precision = precision + verify.SureDigits(gap.Max, a.round)
 	}
 	return gap, strictMargin, nil
 }
@@ -265,7 +298,7 @@ func (a *payAudit) verdict(rep *Report, strictMargin float64) {
 		// is how an unbounded payout shows, reported under boundedness).
 		rep.Verdict = verify.Improper
 		rep.Notes = append(rep.Notes, fmt.Sprintf("the payout is undefined (NaN) in %d grid cells with a report inside the interval (see boundedness), so it is not proper on [%g, %g]", undefined, a.lo, a.hi))
-	case strictMargin > a.tol*a.scale:
+	case strictMargin > a.slack():
 		rep.Verdict = verify.StrictlyProper
 	default:
 		rep.Verdict = verify.Proper

@@ -9,4 +9,10 @@
 // sub-grid; reports range over a grid four times finer than the outcomes,
 // plus the mean itself. A grid check is evidence, not proof: every report
 // states its grid, resolution and tolerance.
+//
+// The findings are verify's types (verify.Report, verify.Grid with the
+// interval, a verify.CheckResult per check), so the front ends read a
+// point check as they read any other; only the audit's honesty gap over
+// distributions on the interval and its identification are this
+// package's own. The JSON shapes are the command's.
 package pointcheck

@@ -28,6 +28,11 @@ type genGrid struct {
 	nonFinte []string
 	endInf   []float64 // end reports whose effort is +Inf (infinite slope there)
 	undef    int
+	// endErr is the error estimate of a finite end slope taken as the
+	// limit from the interior (point.Evaluator.EndSlopeError): an effort
+	// D(y, x) at an end report is known only to endErr·|y - x|, allowed
+	// for in that report's comparisons.
+	endErr float64
 }
 
 // CheckGenerator checks a point-forecast generator on the grid. A
@@ -51,7 +56,7 @@ func CheckGenerator(ctx context.Context, g *point.Generator, s verify.Settings) 
 	if err != nil {
 		return nil, err
 	}
-	rep := &Report{Grid: Grid{Resolution: k, Points: len(gg.xs), Tolerance: tol, Lo: g.Lo, Hi: g.Hi}}
+	rep := &Report{Report: verify.Report{Grid: verify.Grid{Resolution: k, Points: len(gg.xs), Tolerance: tol, Lo: g.Lo, Hi: g.Hi}}}
 	concave := gg.concavity()
 	nonneg := gg.nonnegativity()
 	affine := gg.affinity(ev)
@@ -59,14 +64,14 @@ func CheckGenerator(ctx context.Context, g *point.Generator, s verify.Settings) 
 	if err != nil {
 		return nil, err
 	}
-	bounded := Check{Name: "boundedness", What: "number of grid points where phi, its derivatives or the effort are not finite", Worst: float64(len(gg.nonFinte)), Passed: len(gg.nonFinte) == 0}
+	bounded := result("boundedness", "number of grid points where phi, its derivatives or the effort are not finite", float64(len(gg.nonFinte)), len(gg.nonFinte) == 0, 0, nil)
 	if len(gg.nonFinte) > 0 {
 		rep.Notes = append(rep.Notes, "not finite at "+joinFirst(gg.nonFinte, 5))
 	}
 	if len(gg.endInf) > 0 {
 		rep.Notes = append(rep.Notes, fmt.Sprintf("unbounded at the end: phi' is infinite at x = %g, so reporting it costs infinite effort for every other outcome; a table needs reports inside the interval", gg.endInf[0]))
 	}
-	rep.Checks = []Check{concave, nonneg, affine, best, bounded}
+	rep.Checks = []verify.CheckResult{concave, nonneg, affine, best, bounded}
 	switch {
 	case !concave.Passed || !nonneg.Passed || !best.Passed || !affine.Passed:
 		rep.Verdict = verify.Improper
@@ -84,7 +89,11 @@ func CheckGenerator(ctx context.Context, g *point.Generator, s verify.Settings) 
 			rep.Notes = append(rep.Notes, fmt.Sprintf("phi'' reaches 0 at x = %g, but at isolated points only (phi is strictly concave on the grid): no two reports tie", zero))
 		}
 	}
-	rep.Notes = append(rep.Notes, fmt.Sprintf("grid check on %d outcomes and %d reports in [%g, %g], tolerance %g relative to the largest effort %.4g plus rounding in proportion to the terms that cancel: evidence, not proof", len(gg.ys), len(gg.xs), g.Lo, g.Hi, tol, gg.scale))
+	extra := ""
+	if gg.endErr > 0 {
+		extra = fmt.Sprintf(", plus %.3g·|y - x| where an end report's slope is a limit from the interior (extrapolated)", gg.endErr)
+	}
+	rep.Notes = append(rep.Notes, fmt.Sprintf("grid check on %d outcomes and %d reports in [%g, %g], tolerance %g relative to the largest effort %.4g plus rounding in proportion to the terms that cancel%s: evidence, not proof", len(gg.ys), len(gg.xs), g.Lo, g.Hi, tol, gg.scale, extra))
 	return rep, nil
 }
 
@@ -92,7 +101,8 @@ func CheckGenerator(ctx context.Context, g *point.Generator, s verify.Settings) 
 // sizes per report and outcome.
 func evaluateGenerator(ctx context.Context, ev *point.Evaluator, g *point.Generator, k int, tol float64) (*genGrid, error) {
 	ys, xs := grids(g.Lo, g.Hi, k)
-	gg := &genGrid{ys: ys, xs: xs, tol: tol, d2: make([]float64, len(xs)), d: make([][]float64, len(xs)), size: make([][]float64, len(xs))}
+	gg := &genGrid{ys: ys, xs: xs, tol: tol, d2: make([]float64, len(xs)), d: make([][]float64, len(xs)), size: make([][]float64, len(xs)),
+		endErr: ev.EndSlopeError()}
 	// undef counts the interior reports where phi, a derivative or D is
 	// NaN. At an end of the interval ∞ - ∞ is how an unbounded rule such
 	// as -x ln x at 0 shows, reported under boundedness, not failed.
@@ -121,6 +131,10 @@ func evaluateGenerator(ctx context.Context, ev *point.Evaluator, g *point.Genera
 		gg.d[i], gg.size[i] = make([]float64, len(ys)), make([]float64, len(ys))
 		for j, y := range ys {
 			v, m := ev.DivergenceTerms(y, x)
+			if !inner {
+				// The limit's error as a size whose roundoff is that error.
+				m += gg.endErr * math.Abs(y-x) / roundoff(1)
+			}
 			gg.d[i][j], gg.size[i][j] = v, m
 			switch {
 			case v != v && inner:
@@ -142,25 +156,24 @@ func evaluateGenerator(ctx context.Context, ev *point.Evaluator, g *point.Genera
 // slack is the allowance of a comparison whose terms add up to size.
 func (gg *genGrid) slack(size float64) float64 { return gg.tol*gg.scale + roundoff(size) }
 
-func (gg *genGrid) concavity() Check {
+func (gg *genGrid) concavity() verify.CheckResult {
 	maxD2, at := math.Inf(-1), 0.0
 	for i, d2 := range gg.d2 {
 		if d2 == d2 && d2 > maxD2 {
 			maxD2, at = d2, gg.xs[i]
 		}
 	}
-	c := Check{Name: "concavity", What: "largest phi''(x) on the report grid (<= 0 for a concave generator)", Worst: maxD2, At: &At{Report: []float64{at}}}
-	c.Slack = gg.tol * math.Max(gg.scaleD2, 1)
-	c.Passed = maxD2 <= c.Slack
+	const what = "largest phi''(x) on the report grid (<= 0 for a concave generator)"
+	slack := gg.tol * math.Max(gg.scaleD2, 1)
 	if math.IsInf(maxD2, -1) {
-		c.Passed, c.Worst, c.At = false, math.NaN(), nil
+		return result("concavity", what, math.NaN(), false, slack, nil)
 	}
-	return c
+	return result("concavity", what, maxD2, maxD2 <= slack, slack, &place{report: []float64{at}})
 }
 
-func (gg *genGrid) nonnegativity() Check {
+func (gg *genGrid) nonnegativity() verify.CheckResult {
 	minD, passed, slack := math.Inf(1), true, 0.0
-	var at At
+	var at place
 	for i, x := range gg.xs {
 		for j, y := range gg.ys {
 			v := gg.d[i][j]
@@ -168,21 +181,21 @@ func (gg *genGrid) nonnegativity() Check {
 				continue
 			}
 			if v < minD {
-				minD, at, slack = v, At{Outcomes: []float64{y}, Report: []float64{x}}, gg.slack(gg.size[i][j])
+				minD, at, slack = v, place{outcomes: []float64{y}, report: []float64{x}}, gg.slack(gg.size[i][j])
 			}
 			if v < -gg.slack(gg.size[i][j]) {
 				passed = false
 			}
 		}
 	}
-	return Check{Name: "nonnegativity", What: "smallest effort D(y, x) on the grid (>= 0)", Worst: minD, At: &at, Passed: passed, Slack: slack}
+	return result("nonnegativity", "smallest effort D(y, x) on the grid (>= 0)", minD, passed, slack, &at)
 }
 
 // affinity: Phi(y, x) at the midpoint of two outcomes equals the mean of
 // its values there, for every report on the grid.
-func (gg *genGrid) affinity(ev *point.Evaluator) Check {
+func (gg *genGrid) affinity(ev *point.Evaluator) verify.CheckResult {
 	worst, passed, slack := 0.0, true, 0.0
-	var at At
+	var at place
 	ys := gg.ys
 	for _, x := range gg.xs {
 		phi, d1, _ := ev.Derivatives(x)
@@ -197,22 +210,22 @@ func (gg *genGrid) affinity(ev *point.Evaluator) Check {
 				passed = false
 			}
 			if dev > worst {
-				worst, at, slack = dev, At{Outcomes: []float64{ys[j], ys[j+2]}, Report: []float64{x}}, gg.slack(size)
+				worst, at, slack = dev, place{outcomes: []float64{ys[j], ys[j+2]}, report: []float64{x}}, gg.slack(size)
 			}
 		}
 	}
-	return Check{Name: "affinity", What: "largest departure of the expected-effort line Phi(y, x) from affine in y", Worst: worst, At: &at, Passed: passed, Slack: slack}
+	return result("affinity", "largest departure of the expected-effort line Phi(y, x) from affine in y", worst, passed, slack, &at)
 }
 
 // properness: over the two- and three-point distributions, no grid report
 // beats the mean by more than the slack of the terms involved.
-func (gg *genGrid) properness(ctx context.Context, ev *point.Evaluator, s verify.Settings) (Check, error) {
+func (gg *genGrid) properness(ctx context.Context, ev *point.Evaluator, s verify.Settings) (verify.CheckResult, error) {
 	ds := distributions(len(gg.ys) - 1)
 	worst, passed, slack := math.Inf(-1), true, 0.0
-	var at At
+	var at place
 	for n, d := range ds {
 		if err := tick(ctx, s, n, len(ds)); err != nil {
-			return Check{}, err
+			return verify.CheckResult{}, err
 		}
 		vals, mean := d.values(gg.ys)
 		var atMean, sizeMean float64
@@ -240,11 +253,11 @@ func (gg *genGrid) properness(ctx context.Context, ev *point.Evaluator, s verify
 			passed = false
 		}
 		if gap > worst {
-			worst, at, slack = gap, At{Outcomes: vals, Weights: d.w, Report: []float64{bestX}}, gg.slack(sizeMean+bestSize)
+			worst, at, slack = gap, place{vals, d.w, []float64{bestX}}, gg.slack(sizeMean+bestSize)
 		}
 	}
 	done(s, len(ds))
-	return Check{Name: "properness", What: fmt.Sprintf("largest amount by which a report on the grid beats the mean in expected effort, over %d two- and three-point distributions", len(ds)), Worst: worst, At: &at, Passed: passed, Slack: slack}, nil
+	return result("properness", fmt.Sprintf("largest amount by which a report on the grid beats the mean in expected effort, over %d two- and three-point distributions", len(ds)), worst, passed, slack, &at), nil
 }
 
 // tieSamples is how many points of a segment between neighbouring

@@ -47,42 +47,35 @@ func done(s verify.Settings, total int) {
 	}
 }
 
-// Grid is the grid a report was computed on.
-type Grid struct {
-	Resolution int     `json:"resolution"`
-	Points     int     `json:"points"`
-	Tolerance  float64 `json:"tolerance"`
-	// Lo and Hi are the interval.
-	Lo float64 `json:"lo"`
-	Hi float64 `json:"hi"`
+// A point check's findings are verify's types: a verify.CheckResult per
+// check, on a verify.Grid with the interval in Lo and Hi. A check that
+// locates its worst place has a non-nil Report (empty when it found no
+// place); its Outcomes are the outcome values there and Belief their
+// weights, when the check is about a distribution.
+
+// place is where a check found its worst value.
+type place struct {
+	outcomes, weights, report []float64
 }
 
-// At is where a check found its worst value. Outcomes and Weights are the
-// forecaster's distribution; Report is the report.
-type At struct {
-	Outcomes []float64 `json:"outcomes,omitempty"`
-	Weights  []float64 `json:"weights,omitempty"`
-	Report   []float64 `json:"report,omitempty"`
+// result is a named check's finding, located at where when where is not
+// nil.
+func result(name, what string, worst float64, passed bool, slack float64, where *place) verify.CheckResult {
+	c := verify.CheckResult{Name: name, Note: what, Worst: worst, Passed: passed, Slack: slack}
+	if where != nil {
+		c.Outcomes, c.Belief, c.Report = where.outcomes, where.weights, where.report
+		if c.Report == nil {
+			c.Report = []float64{}
+		}
+	}
+	return c
 }
 
-// Check is one named check.
-type Check struct {
-	Name   string  `json:"name"`
-	Passed bool    `json:"passed"`
-	Worst  float64 `json:"worst"`
-	At     *At     `json:"at,omitempty"`
-	// What says in words what Worst measures.
-	What string `json:"what"`
-	// Slack is the allowance of the comparison at the worst place: the
-	// tolerance plus the rounding of the terms that cancel there. A
-	// passed check whose Worst is within it found nothing but rounding.
-	Slack float64 `json:"slack,omitempty"`
-}
-
-// Shown is Worst as the front ends print it: 0 for a value within the
-// comparison's Slack (the -5.6e-17 that rounding leaves of D(y, x) is not
-// a finding and must not read as a report beating the mean).
-func (c Check) Shown() float64 {
+// Shown is a check's Worst as the front ends print it: 0 for a value
+// within the comparison's Slack (the -5.6e-17 that rounding leaves of
+// D(y, x) is not a finding and must not read as a report beating the
+// mean).
+func Shown(c verify.CheckResult) float64 {
 	if math.Abs(c.Worst) <= c.Slack {
 		return 0
 	}
@@ -93,34 +86,23 @@ func (c Check) Shown() float64 {
 // the best report earns in expectation, for the distribution where that is
 // largest.
 type Gap struct {
-	Max        float64   `json:"max"`
-	Outcomes   []float64 `json:"outcomes"`
-	Weights    []float64 `json:"weights"`
-	Mean       float64   `json:"mean"`
-	BestReport float64   `json:"best_report"`
+	Max        float64
+	Outcomes   []float64
+	Weights    []float64
+	Mean       float64
+	BestReport float64
 	// Precision says how far the search settled the gap (audits).
-	Precision string `json:"precision,omitempty"`
+	Precision string
 }
 
-// Report is the result of CheckGenerator or AuditPayout.
+// Report is the result of CheckGenerator or AuditPayout: verify's report
+// (verdict, grid, checks, notes) with what an audit adds.
 type Report struct {
-	Verdict verify.Verdict `json:"verdict"`
-	Grid    Grid           `json:"grid"`
-	Checks  []Check        `json:"checks"`
-	Gap     *Gap           `json:"gap,omitempty"`
+	verify.Report
+	// Gap is set by an audit.
+	Gap *Gap
 	// Identified is set by an audit that recognised the payout.
-	Identified *Identified `json:"identified,omitempty"`
-	Notes      []string    `json:"notes,omitempty"`
-}
-
-// Failed reports whether any check failed.
-func (r *Report) Failed() bool {
-	for _, c := range r.Checks {
-		if !c.Passed {
-			return true
-		}
-	}
-	return false
+	Identified *Identified
 }
 
 // dist is a finite distribution of the outcome.

@@ -19,13 +19,13 @@ func gen(t *testing.T, src string, lo, hi float64) *point.Generator {
 	return g
 }
 
-func check(r *Report, name string) Check {
+func check(r *Report, name string) verify.CheckResult {
 	for _, c := range r.Checks {
 		if c.Name == name {
 			return c
 		}
 	}
-	return Check{Name: "missing " + name}
+	return verify.CheckResult{Name: "missing " + name}
 }
 
 func TestCheckGenerator(t *testing.T) {
@@ -61,6 +61,13 @@ func TestCheckGenerator(t *testing.T) {
 		// infinite effort (a note, not a failure, as for the log rule), every outcome is
 		// finite.
 		{"-x*ln(x)", 0, 10, verify.StrictlyProper, nil},
+		// sqrt(x) written so that its formal slope at 0 is 0·Inf = 0:
+		// the slope there is the limit +Inf from the interior, and the
+		// rule strictly concave (derived by hand: phi'' = -x^(-3/2)/4).
+		// So is Patton's b = -1.5 member, 4 sqrt(x) up to an affine term.
+		{"exp(0.5*ln(x))", 0, 10, verify.StrictlyProper, nil},
+		{"exp(0.5*ln(10 - x))", 0, 10, verify.StrictlyProper, nil},
+		{"b = -1.5\n-expm1((b + 2)*ln(x)) / ((b + 1)*(b + 2))", 0, 10, verify.StrictlyProper, nil},
 	}
 	for _, tc := range cases {
 		r, err := CheckGenerator(context.Background(), gen(t, tc.src, tc.lo, tc.hi), verify.Settings{Resolution: 20})

@@ -1,9 +1,14 @@
+// The backtest report's sections after the money table: the CORP
+// decompositions, pay by month, the reliability curves, and the
+// forecasters' CSV that --forecasters-out writes.
+
 package main
 
 import (
 	"fmt"
 	"io"
 	"math"
+	"scorewright/internal/numfmt"
 	"strconv"
 
 	"scorewright"
@@ -12,26 +17,6 @@ import (
 	"scorewright/internal/num"
 	"scorewright/internal/textcol"
 )
-
-// corpReport is one CORP decomposition: a rule (or, for more than two
-// outcomes, the squared error) on one event.
-type corpReport struct {
-	Rule     string    `json:"rule"`
-	Event    string    `json:"event"`
-	Score    string    `json:"score_rule"`
-	Count    int       `json:"count"`
-	BaseRate num.Float `json:"base_rate"`
-	Mean     num.Float `json:"mean_score"`
-	MCB      num.Float `json:"miscalibration"`
-	DSC      num.Float `json:"discrimination"`
-	UNC      num.Float `json:"uncertainty"`
-}
-
-type monthReport struct {
-	Month  string      `json:"month"`
-	Counts []int       `json:"counts"`
-	Totals []num.Float `json:"totals"`
-}
 
 // corpReports lists a forecaster's CORP decompositions: under each rule
 // for two outcomes, once per outcome under the squared error for more.
@@ -102,8 +87,9 @@ func (r *backtestReport) writeCORP(w io.Writer, left func(string) string) {
 			if len(r.Outcomes) > 2 {
 				score = "sq. error"
 			}
-			fmt.Fprintf(tw, "%s\t%s\t%s\t%.4g\t%.6g\t%.6g\t%.6g\t%.6g\t\n", left(f.Name), c.Event, score, float64(c.BaseRate), float64(c.Mean),
-				float64(c.MCB), float64(c.DSC), float64(c.UNC))
+			s := math.Max(math.Abs(float64(c.Mean)), math.Abs(float64(c.UNC)))
+			fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t\n", left(f.Name), c.Event, score, numfmt.Statistic(float64(c.BaseRate), 1),
+				numfmt.Statistic(float64(c.Mean), s), numfmt.Statistic(float64(c.MCB), s), numfmt.Statistic(float64(c.DSC), s), numfmt.Statistic(float64(c.UNC), s))
 		}
 	}
 	tw.Flush()
