@@ -114,7 +114,8 @@ func TestHelpNamesNewKeys(t *testing.T) {
 // decides are "certified" in the checks pane and the header; with the
 // certificate off they are grid evidence. The verdicts are the textbook
 // ones (from memory): 1 - sum(p^2) is strictly proper, sum(p^2) (a convex
-// H) improper, the quadratic payout 10 - 5·sum((p - hit)^2) proper, the linear payout p[y] improper, and phi(x) = -x^2 (the squared
+// H) improper, the quadratic payout 10 - 5·sum((p - hit)^2) strictly proper (proved
+// epsilon-proper by the certificate), the linear payout p[y] improper, and phi(x) = -x^2 (the squared
 // error) strictly proper for a mean.
 func TestCertificateKindEveryMode(t *testing.T) {
 	point := &design.Design{Version: 1, Title: "loaves", Mode: design.ModePoint, Formula: "-x^2", Interval: []float64{0, 40},
@@ -128,9 +129,9 @@ func TestCertificateKindEveryMode(t *testing.T) {
 		{"quadratic", withFormula(design.ModeGenerator, "1 - sum(p^2)"), "strictly-proper", ""},
 		{"convex", withFormula(design.ModeGenerator, "sum(p^2)"), "improper", ""},
 		// The payout certificate proves that no report gains more than its
-		// epsilon: proper, not strictly (the grid's "strictly" stays grid
+		// epsilon, not strict properness (the grid's "strictly" stays grid
 		// evidence, in the full text).
-		{"quadratic payout", withFormula(design.ModePayout, "10 - 5*sum((p - hit)^2)"), "proper", "strictly-proper"},
+		{"quadratic payout", withFormula(design.ModePayout, "10 - 5*sum((p - hit)^2)"), "epsilon-proper", "strictly-proper"},
 		{"linear payout", withFormula(design.ModePayout, "p[y]"), "improper", ""},
 		{"point", point, "strictly-proper", ""},
 	} {
