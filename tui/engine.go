@@ -115,7 +115,8 @@ func fitTable(ctx context.Context, d *design.Design, progress func(done, total i
 	if err != nil {
 		return nil, nil, err
 	}
-	t, err := r.TableWith(ctx, nil, progress)
+	// The re-check, like the checks, leaves a core to the screen.
+	t, err := r.TableWith(ctx, nil, scorewright.TableSettings{Progress: progress, Workers: workers(Settings{})})
 	var ue *budget.UnboundedError
 	switch {
 	case errors.Is(err, scorewright.ErrNoMenu):

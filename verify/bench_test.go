@@ -9,6 +9,7 @@ import (
 	"scorewright/generator/payout"
 	"scorewright/internal/pool"
 	"scorewright/internal/simplex"
+	"scorewright/presets"
 )
 
 // benchMenu builds the grid and the effort menu of the quadratic rule.
@@ -85,7 +86,8 @@ func visitedShare(g *simplex.Grid, m *menu) float64 {
 
 // BenchmarkAuditAgainstCheck is the audit of the quadratic payout beside
 // the check of the quadratic rule on the same grid (n = 3, K = 200): the
-// target is an audit within 1.5 times the check.
+// target is an audit within 1.5 times the check. "audit-presets" also
+// fits every preset, as the command does.
 func BenchmarkAuditAgainstCheck(b *testing.B) {
 	const n, k = 3, 200
 	pay, err := payout.New("10 - 5*sum((p - hit)^2)", payout.Options{Outcomes: n})
@@ -97,7 +99,11 @@ func BenchmarkAuditAgainstCheck(b *testing.B) {
 		b.Fatal(err)
 	}
 	r := &bregman.Rule{Gen: f}
-	for _, kind := range []string{"check", "audit"} {
+	var cands []Candidate
+	for _, c := range presets.Rules(n, false, nil) {
+		cands = append(cands, Candidate(c))
+	}
+	for _, kind := range []string{"check", "audit", "audit-presets"} {
 		b.Run(kind, func(b *testing.B) {
 			cpu := cpuSeconds()
 			for range b.N {
@@ -105,7 +111,11 @@ func BenchmarkAuditAgainstCheck(b *testing.B) {
 				if kind == "check" {
 					_, err = CheckRule(context.Background(), r, Settings{Resolution: k})
 				} else {
-					_, err = Audit(context.Background(), pay, nil, Settings{Resolution: k})
+					var cs []Candidate
+					if kind == "audit-presets" {
+						cs = cands
+					}
+					_, err = Audit(context.Background(), pay, cs, Settings{Resolution: k})
 				}
 				if err != nil {
 					b.Fatal(err)
