@@ -2,7 +2,6 @@ package tui
 
 import (
 	"fmt"
-	"scorewright/internal/numfmt"
 	"slices"
 	"strings"
 
@@ -13,6 +12,7 @@ import (
 	"github.com/charmbracelet/lipgloss"
 
 	"scorewright/generator/design"
+	"scorewright/internal/numfmt"
 )
 
 // BudgetPane edits the budget and shows the payment table preview and the

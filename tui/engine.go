@@ -7,12 +7,11 @@ import (
 	"fmt"
 	"path/filepath"
 	"runtime"
-	"scorewright"
-	"scorewright/internal/numfmt"
 	"strconv"
 	"strings"
 	"time"
 
+	"scorewright"
 	"scorewright/contract/annex"
 	"scorewright/contract/budget"
 	"scorewright/contract/cost"
@@ -20,6 +19,7 @@ import (
 	"scorewright/contract/table"
 	"scorewright/generator/design"
 	"scorewright/internal/num"
+	"scorewright/internal/numfmt"
 	"scorewright/internal/safefile"
 	"scorewright/verify"
 	"scorewright/verify/pointcheck"
@@ -242,10 +242,14 @@ func (te tableExporter) Export(ctx context.Context, d *design.Design, req Export
 			tb.Meta.VerdictKind = table.Certified
 		}
 	}
-	a, b, clamp := t.PayLine()
-	ax, err := annex.InputFor(d, tb, r.Outcomes(), a, b, clamp, te.version)
-	if err != nil {
-		return nil, err
+	var ax *annex.Input
+	if t.Point != nil {
+		ax = annex.InputForPoint(d, tb, r.Point(), t.Point.A, t.Point.B, te.version)
+	} else {
+		a, b, clamp := t.PayLine()
+		if ax, err = annex.InputFor(d, tb, r.Outcomes(), a, b, clamp, te.version); err != nil {
+			return nil, err
+		}
 	}
 	if req.Lottery {
 		// The same lottery as `scorewright table --lottery`: whole
