@@ -50,6 +50,19 @@ type lineBreak struct {
 	holds func(q float64) bool
 }
 
+// structuralResult is the first proof without the box search that
+// applies: term by term (separable.go), cut at the formula's breaks
+// (here), or as a negated norm (norm.go); nil when none does.
+func structuralResult(ctx context.Context, prog *formula.Program, n int, s Settings, start time.Time) *Result {
+	if res := separableResult(prog, n, s, start); res != nil {
+		return res
+	}
+	if res := breakResult(ctx, prog, n, s, start); res != nil {
+		return res
+	}
+	return normResult(prog, n, s, start)
+}
+
 // breakResult is the certificate of a two-outcome generator proved
 // concave piece by piece between its breaks (strictly proper when every
 // piece is strictly concave, else proper), or nil.
