@@ -46,14 +46,23 @@ type MenuFunc func(n int) (*budget.Menu, error)
 // menu is always the budget's step in the units of the interval. A
 // payout under audit has no table (a *NeedsOutcomesError).
 func (r *Rule) Table(ctx context.Context, menu MenuFunc) (*Table, error) {
-	return r.TableWith(ctx, menu, nil)
+	return r.TableWith(ctx, menu, TableSettings{})
 }
 
-// TableWith is Table reporting the re-check's progress (beliefs done of
-// the total) to progress when it is not nil. Without menu the budget's
-// menu file is read when it names one, else its step's grid is built;
-// the budget's clamp applies to a menu that has none of its own.
-func (r *Rule) TableWith(ctx context.Context, menu MenuFunc, progress func(done, total int64)) (*Table, error) {
+// TableSettings tune TableWith. The zero value means the defaults.
+type TableSettings struct {
+	// Progress, when set, is told the re-check's beliefs done of the total.
+	Progress func(done, total int64)
+	// Workers is how many goroutines the re-check may use; 0 means every
+	// core (the workbench keeps one for the screen).
+	Workers int
+}
+
+// TableWith is Table with settings: the re-check's progress and cores.
+// Without menu the budget's menu file is read when it names one, else its
+// step's grid is built; the budget's clamp applies to a menu that has
+// none of its own.
+func (r *Rule) TableWith(ctx context.Context, menu MenuFunc, set TableSettings) (*Table, error) {
 	if r.point != nil {
 		return r.pointTable(ctx)
 	}
@@ -66,7 +75,7 @@ func (r *Rule) TableWith(ctx context.Context, menu MenuFunc, progress func(done,
 	if err != nil {
 		return nil, err
 	}
-	rc, err := fit.Recheck(ctx, budget.RecheckSettings{Progress: progress})
+	rc, err := fit.Recheck(ctx, budget.RecheckSettings{Progress: set.Progress, Workers: set.Workers})
 	if err != nil {
 		return nil, err
 	}

@@ -2,7 +2,6 @@ package tui
 
 import (
 	"fmt"
-	"scorewright/internal/numfmt"
 	"slices"
 	"strings"
 
@@ -14,6 +13,7 @@ import (
 	tea "github.com/charmbracelet/bubbletea"
 
 	"scorewright/generator/design"
+	"scorewright/internal/numfmt"
 )
 
 // BudgetPane edits the budget and shows the payment table preview and the

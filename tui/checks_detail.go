@@ -2,7 +2,6 @@ package tui
 
 import (
 	"fmt"
-	"scorewright/internal/numfmt"
 	"strconv"
 	"strings"
 
@@ -11,6 +10,7 @@ import (
 	"github.com/charmbracelet/x/ansi"
 
 	"scorewright/internal/num"
+	"scorewright/internal/numfmt"
 )
 
 // The checks pane lists one line per check, then an entry for the verdict

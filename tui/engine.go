@@ -7,12 +7,11 @@ import (
 	"fmt"
 	"path/filepath"
 	"runtime"
-	"scorewright"
-	"scorewright/internal/numfmt"
 	"strconv"
 	"strings"
 	"time"
 
+	"scorewright"
 	"scorewright/contract/annex"
 	"scorewright/contract/budget"
 	"scorewright/contract/cost"
@@ -20,6 +19,7 @@ import (
 	"scorewright/contract/table"
 	"scorewright/generator/design"
 	"scorewright/internal/num"
+	"scorewright/internal/numfmt"
 	"scorewright/internal/safefile"
 	"scorewright/verify"
 	"scorewright/verify/pointcheck"
@@ -126,7 +126,8 @@ func fitTable(ctx context.Context, d *design.Design, progress func(done, total i
 	if err != nil {
 		return nil, nil, err
 	}
-	t, err := r.TableWith(ctx, nil, progress)
+	// The re-check, like the checks, leaves a core to the screen.
+	t, err := r.TableWith(ctx, nil, scorewright.TableSettings{Progress: progress, Workers: workers(Settings{})})
 	var ue *budget.UnboundedError
 	switch {
 	case errors.Is(err, scorewright.ErrNoMenu):
@@ -252,10 +253,14 @@ func (te tableExporter) Export(ctx context.Context, d *design.Design, req Export
 			tb.Meta.VerdictKind = table.Certified
 		}
 	}
-	a, b, clamp := t.PayLine()
-	ax, err := annex.InputFor(d, tb, r.Outcomes(), a, b, clamp, te.version)
-	if err != nil {
-		return nil, err
+	var ax *annex.Input
+	if t.Point != nil {
+		ax = annex.InputForPoint(d, tb, r.Point(), t.Point.A, t.Point.B, te.version)
+	} else {
+		a, b, clamp := t.PayLine()
+		if ax, err = annex.InputFor(d, tb, r.Outcomes(), a, b, clamp, te.version); err != nil {
+			return nil, err
+		}
 	}
 	if req.Lottery {
 		// The same lottery as `scorewright table --lottery`: whole

@@ -4,7 +4,6 @@ import (
 	"context"
 	"errors"
 	"fmt"
-	"scorewright/internal/numfmt"
 	"strings"
 
 	"github.com/charmbracelet/bubbles/key"
@@ -13,6 +12,7 @@ import (
 	"scorewright"
 	"scorewright/contract/budget"
 	"scorewright/generator/design"
+	"scorewright/internal/numfmt"
 )
 
 // proposal is the budget pane's search for budgets the re-check passes

@@ -129,7 +129,16 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 		m.rows[i] = -v
 	}
 	m.seal()
-	bs, err := pairStream(ctx, g, m, s, pr)
+	// The pruned stream's tree over the grid also blocks the beliefs for
+	// the off-grid pass.
+	var tree *reportTree
+	var bs []best
+	if s.everyPair {
+		bs, err = streamFull(ctx, g, m, s.Workers, pr)
+	} else {
+		tree = newReportTree(g, m)
+		bs, err = streamTree(ctx, tree, g, m, s.Workers, pr, nil)
+	}
 	if err != nil {
 		return nil, err
 	}
@@ -139,7 +148,7 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	}
 	prop, _, ties := properness(g, m, honest, bs, s.Tolerance, rep.Grid.Scale, rep.Grid.Rounding, 0)
 	rep.Beliefs = beliefTable(g, m, honest, bs, s.Tolerance)
-	offGain, err := offGridReports(ctx, p, g, rep.Beliefs, s, pr)
+	offGain, err := offGridReports(ctx, p, g, tree, rep.Beliefs, s, pr)
 	if err != nil {
 		return nil, err
 	}

@@ -9,6 +9,7 @@ import (
 	"scorewright/generator/payout"
 	"scorewright/internal/pool"
 	"scorewright/internal/simplex"
+	"scorewright/presets"
 )
 
 // benchMenu builds the grid and the effort menu of the quadratic rule.
@@ -33,8 +34,12 @@ func benchMenu(b *testing.B, n, k int) (*simplex.Grid, *menu) {
 
 var benchSizes = []struct{ n, k int }{{3, 200}, {4, 40}}
 
-// streamSizes adds the sizes of the performance targets to benchSizes.
-var streamSizes = append([]struct{ n, k int }{{2, 20000}, {3, 400}}, benchSizes...)
+// largerSizes are grids past n = 4, where every n has its own kernel.
+var largerSizes = []struct{ n, k int }{{6, 12}, {8, 7}}
+
+// streamSizes adds the sizes of the performance targets, and larger n,
+// to benchSizes.
+var streamSizes = append(append([]struct{ n, k int }{{2, 20000}, {3, 400}}, benchSizes...), largerSizes...)
 
 // BenchmarkStream is the pair stream, best and second best tracked for
 // every grid belief, on all cores: "full" visits every pair, "pruned" is
@@ -85,7 +90,8 @@ func visitedShare(g *simplex.Grid, m *menu) float64 {
 
 // BenchmarkAuditAgainstCheck is the audit of the quadratic payout beside
 // the check of the quadratic rule on the same grid (n = 3, K = 200): the
-// target is an audit within 1.5 times the check.
+// target is an audit within 1.5 times the check. "audit-presets" also
+// fits every preset, as the command does.
 func BenchmarkAuditAgainstCheck(b *testing.B) {
 	const n, k = 3, 200
 	pay, err := payout.New("10 - 5*sum((p - hit)^2)", payout.Options{Outcomes: n})
@@ -97,7 +103,11 @@ func BenchmarkAuditAgainstCheck(b *testing.B) {
 		b.Fatal(err)
 	}
 	r := &bregman.Rule{Gen: f}
-	for _, kind := range []string{"check", "audit"} {
+	var cands []Candidate
+	for _, c := range presets.Rules(n, false, nil) {
+		cands = append(cands, Candidate(c))
+	}
+	for _, kind := range []string{"check", "audit", "audit-presets"} {
 		b.Run(kind, func(b *testing.B) {
 			cpu := cpuSeconds()
 			for range b.N {
@@ -105,7 +115,11 @@ func BenchmarkAuditAgainstCheck(b *testing.B) {
 				if kind == "check" {
 					_, err = CheckRule(context.Background(), r, Settings{Resolution: k})
 				} else {
-					_, err = Audit(context.Background(), pay, nil, Settings{Resolution: k})
+					var cs []Candidate
+					if kind == "audit-presets" {
+						cs = cands
+					}
+					_, err = Audit(context.Background(), pay, cs, Settings{Resolution: k})
 				}
 				if err != nil {
 					b.Fatal(err)

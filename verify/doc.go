@@ -43,7 +43,7 @@
 //     whose bound sum_k q_k lo_k is above the second best so far is skipped whole. The bound is
 //     rounded like the pair sums (no fused multiply-adds), so it never exceeds a computed pair
 //     value, and ties go to the smaller grid index: the result is bit for bit that of the full
-//     stream (`streamFull`, `scan2..4`, generic `scan`: every pair, four reports per step), which
+//     stream (`streamFull`, `scan`: every pair, four reports per step), which
 //     the tests hold it to (stream for stream, and whole reports against a run visiting every
 //     pair). Beliefs go a leaf of the tree at a time (prune_block.go): one walk per block with a
 //     bound valid for all its beliefs, then each belief through the candidate boxes, sorted.
@@ -54,8 +54,12 @@
 //     that. With `Settings.Proof` (a certificate's proof of properness) only what the proof
 //     leaves is streamed: boundary beliefs against every report, interior beliefs against the
 //     boundary reports (`provedStream`); the verdict is then of kind certified. An audit's
-//     off-grid pass (offgrid.go) walks a tree of its random reports the same way, capped at the
-//     honest pay.
+//     off-grid pass (offgrid.go) takes the same blocks of beliefs through a tree of its random
+//     reports by the same walk, each belief capped at its honest pay. Every n from 2 to 12
+//     has its own pair kernels (`scanN` for the full stream, `leafN` for a leaf; kernels_scan.go
+//     and kernels_leaf.go, written by `go generate` from internal/kernelgen): the belief in
+//     locals and each sum spelled out in dotN's order, so any n costs about what n = 3 costs
+//     per pair and outcome, and the values stay dotN's bit for bit.
 //  4. Reductions. T is `Grid.Slack()`: `Tolerance` × `Grid.Scale`, the scale being the spread
 //     of the finite efforts or payments on the grid (largest − smallest; 1 when they are all
 //     equal), but at least `Grid.Rounding` = 2·n·ε × the largest finite |value|, and in a check
@@ -142,7 +146,7 @@
 // Tests (`verify/verify_test.go`): the hand-derived values are in comments beside each case
 // (linear payout gap 1/8 at (3/4, 1/4) and 1/6 for n = 3; h = p² − 4(p − ½)⁴ not concave on
 // (0.2959, 0.7041); the flat piece of min(p1 p2, 0.16) on [0.2, 0.8]; 7 − 3L identified;
-// power-3 flat on the boundary). Kernel tests compare the unrolled loops and the substituted
+// power-3 flat on the boundary). Kernel tests compare the generated loops (n = 2..12) and the substituted
 // rows with the obvious loops, and check zero allocation. `.ci/e2e-verify.sh` runs both
 // commands as a user would and checks exit statuses and the JSON fields of the contract.
 package verify

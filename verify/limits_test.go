@@ -71,3 +71,22 @@ func TestStepWeightIsProper(t *testing.T) {
 		t.Errorf("tie witness belief %v, report %v: want two different reports at or below 0.3", q, p)
 	}
 }
+
+// An emphasis weight written with terms that cancel, (1e12 + c) - 1e12, is
+// w = c >= 0, positive on (0, 1): strictly proper (Schervish 1989). Its
+// computed values are a staircase of steps 1.2e-4 (an ulp of 1e12), which
+// the midpoint test took for convex kinks until the efforts' bounds
+// allowed for the weight's own rounding.
+func TestNoisyWeightIsStrictlyProper(t *testing.T) {
+	g, err := emphasis.New("(1e12 + c) - 1e12", emphasis.Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	rep, err := CheckRule(context.Background(), &bregman.Rule{Gen: g}, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rep.Verdict != StrictlyProper {
+		t.Fatalf("verdict %s, want %s (%+v)", rep.Verdict, StrictlyProper, rep.Checks)
+	}
+}

@@ -16,7 +16,10 @@ import (
 // the grid stream alone would call it strictly proper. A belief whose
 // best random report beats both honesty (by more than the slack) and its
 // best grid report takes that report. It returns how many beliefs did.
-func offGridReports(ctx context.Context, p *payout.Payout, g *simplex.Grid, bgs []BeliefGap, s Settings, pr *pool.Meter) (int, error) {
+// beliefs is the main stream's report tree over g, whose leaves are the
+// blocks of nearby beliefs the pruned pass walks; nil when every pair is
+// to be scanned.
+func offGridReports(ctx context.Context, p *payout.Payout, g *simplex.Grid, beliefs *reportTree, bgs []BeliefGap, s Settings, pr *pool.Meter) (int, error) {
 	n, G := g.N, g.Len()
 	R := offGridCount(G)
 	reps := randomInterior(n, R, s.Seed, 0x7e90)
@@ -34,58 +37,73 @@ func offGridReports(ctx context.Context, p *payout.Payout, g *simplex.Grid, bgs 
 	if err != nil {
 		return 0, err
 	}
-	gained := make([]bool, G)
-	bestOf := newOffGridBest(reps, pays, n)
-	if s.everyPair {
-		bestOf = func(q []float64, _ float64) (float64, int) { return offGridScan(q, pays, n) }
+	honest := make([]float64, G)
+	for i := range bgs {
+		honest[i] = bgs[i].Honest
 	}
-	err = pool.Run(ctx, s.Workers, G, 16, func(_, lo, hi int) {
-		for i := lo; i < hi; i++ {
-			bg := &bgs[i]
-			if bg.Honest != bg.Honest || math.IsInf(bg.Honest, 0) {
-				continue // undefined or infinite honest pay: nothing to compare
-			}
-			best, arg := bestOf(g.Point(i), bg.Honest)
-			// Only a clear gain counts: a tie with the grid's best (the
-			// linear rule's best reports fill whole faces) is not news.
-			if gap := best - bg.Honest; arg >= 0 && gap > s.Tolerance && gap > bg.Gap+s.Tolerance {
-				bg.Gap, bg.BestReport, gained[i] = gap, clone(reps[arg*n:(arg+1)*n]), true
-			}
-		}
-		pr.Add(int64(hi-lo) * int64(R))
-	})
+	found, err := offGridBests(ctx, g, beliefs, reps, pays, honest, s.Workers, pr)
+	if err != nil {
+		return 0, err
+	}
 	count := 0
-	for _, b := range gained {
-		if b {
+	for i, f := range found {
+		bg := &bgs[i]
+		// Only a clear gain counts: a tie with the grid's best (the
+		// linear rule's best reports fill whole faces) is not news.
+		if gap := f.pay - bg.Honest; f.arg >= 0 && gap > s.Tolerance && gap > bg.Gap+s.Tolerance {
+			bg.Gap, bg.BestReport = gap, clone(reps[f.arg*n:(f.arg+1)*n])
 			count++
 		}
 	}
-	return count, err
+	return count, nil
 }
 
-// newOffGridBest returns the function that gives, for a belief q and its
-// honest expected pay h, the largest expected pay above h over the random
-// reports (pays: n per report) and the first report reaching it, or -1
-// when none is above h or counts (offGridScan says which do): only a pay
-// above h can be a gain (gap = pay - h > Tolerance > 0), and the largest
-// above h is the largest of all when there is one. When every pay is
-// finite and far from overflow, it is the pruned walk of the main stream
-// over a report tree of the random reports, on efforts -pay and starting
-// from the cap -h: the same value (negation is exact and the sums are
-// rounded alike) and the same report (ties go to the lower index in
-// both); otherwise it is offGridScan itself.
-func newOffGridBest(reps, pays []float64, n int) func(q []float64, h float64) (float64, int) {
-	R := len(pays) / n
+// offBest is the best random report for one belief: its expected pay, and
+// its index (-1 for none).
+type offBest struct {
+	pay float64
+	arg int
+}
+
+// offGridBests gives, for every grid belief i with a finite honest pay
+// h[i], the largest expected pay above h[i] over the random reports (pays:
+// n per report) and the first report reaching it, or arg -1 when none is
+// above h[i] or counts (offGridScan says which do): only a pay above h can
+// be a gain (gap = pay - h > Tolerance > 0), and the largest above h is the
+// largest of all when there is one.
+//
+// When every pay is finite and far from overflow and beliefs is not nil,
+// this is the main stream's pruned block walk (prune_block.go) over a
+// report tree of the random reports, on efforts -pay, every belief of a
+// block starting from its cap -h[i]: the same value (negation is exact
+// and the sums are rounded alike) and the same report (ties go to the
+// lower index in both). Otherwise it is offGridScan for every belief.
+func offGridBests(ctx context.Context, g *simplex.Grid, beliefs *reportTree, reps, pays, h []float64, w int, pr *pool.Meter) ([]offBest, error) {
+	n, G, R := g.N, g.Len(), len(pays)/g.N
+	out := make([]offBest, G)
+	for i := range out {
+		out[i] = offBest{math.Inf(-1), -1}
+	}
+	finite := func(x float64) bool { return x == x && !math.IsInf(x, 0) }
+	scanAll := beliefs == nil
 	for _, v := range pays {
 		if !(math.Abs(v) <= safeLimit) {
-			return func(q []float64, h float64) (float64, int) {
-				v, a := offGridScan(q, pays, n)
-				if !(v > h) {
-					return math.Inf(-1), -1
-				}
-				return v, a
-			}
+			scanAll = true
+			break
 		}
+	}
+	if scanAll {
+		return out, pool.Run(ctx, w, G, 16, func(_, lo, hi int) {
+			for i := lo; i < hi; i++ {
+				if !finite(h[i]) {
+					continue // undefined or infinite honest pay: nothing to compare
+				}
+				if v, a := offGridScan(g.Point(i), pays, n); v > h[i] {
+					out[i] = offBest{v, a}
+				}
+			}
+			pr.Add(int64(hi-lo) * int64(R))
+		})
 	}
 	m := newMenu(n, R)
 	for i, v := range pays {
@@ -93,13 +111,27 @@ func newOffGridBest(reps, pays []float64, n int) func(q []float64, h float64) (f
 	}
 	m.seal()
 	t := newReportTree(&simplex.Grid{N: n, Coords: reps, Boundary: make([]bool, R)}, m)
-	return func(q []float64, h float64) (float64, int) {
-		b, _ := t.walkFrom(q, false, pruneState{m1: -h, m2: -h, a1: -1, a2: -1})
-		if b.arg < 0 {
-			return math.Inf(-1), -1
-		}
-		return -b.m1, int(b.arg)
+	w = pool.Workers(w)
+	work := make([]*blockWork, w)
+	for i := range work {
+		work[i] = newBlockWork(n)
 	}
+	return out, beliefs.eachLeaf(ctx, w, func(id, node int) {
+		bw := work[id]
+		bw.reset()
+		for p := beliefs.start[node]; p < beliefs.end[node]; p++ {
+			if i := beliefs.idx[p]; finite(h[i]) {
+				bw.hold(i, pruneState{m1: -h[i], m2: -h[i], a1: -1, a2: -1}, g.Point(int(i)))
+			}
+		}
+		bw.settleHeld(t, g, -1)
+		for _, b := range bw.held {
+			if b.st.a1 >= 0 {
+				out[b.i] = offBest{-b.st.m1, int(b.st.a1)}
+			}
+		}
+		pr.Add(int64(beliefs.end[node]-beliefs.start[node]) * int64(R))
+	})
 }
 
 // offGridScan is every random report against q: the largest expected pay

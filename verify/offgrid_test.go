@@ -1,17 +1,20 @@
 package verify
 
 import (
+	"context"
 	"math"
 	"testing"
 
+	"scorewright/internal/pool"
 	"scorewright/internal/simplex"
 )
 
-// TestOffGridBestIsTheScan: the pruned walk the audit's off-grid pass now
-// uses gives, at every grid belief and for caps at, below and above a pay,
-// the value and the report of the plain scan over every random report
-// (when that is above the cap), on payouts with ties (linear, a step),
-// kinks, singular faces (the scan itself then runs) and smooth ones.
+// TestOffGridBestIsTheScan: the pruned block walk the audit's off-grid
+// pass uses gives, at every grid belief and for caps at, below and above a
+// pay, the value and the report of the plain scan over every random
+// report (when that is above the cap; none for an infinite cap), on
+// payouts with ties (linear, a step), kinks, singular faces (the scan
+// itself then runs) and smooth ones, at n = 2 to 12.
 func TestOffGridBestIsTheScan(t *testing.T) {
 	srcs := []string{
 		"10 - 5*sum((p - hit)^2)",
@@ -21,8 +24,9 @@ func TestOffGridBestIsTheScan(t *testing.T) {
 		"ln(p[y])",
 		"2*p[y] - sum(p^2) + 3*max(p1, 0.3)",
 	}
-	for n := 2; n <= 5; n++ {
-		g, err := simplex.Full(n, map[int]int{2: 200, 3: 16, 4: 8, 5: 6}[n])
+	res := map[int]int{2: 200, 3: 16, 4: 8, 5: 6, 6: 4}
+	for n := 2; n <= 12; n++ {
+		g, err := simplex.Full(n, max(res[n], 2))
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -35,22 +39,27 @@ func TestOffGridBestIsTheScan(t *testing.T) {
 			for j := 0; j < R; j++ {
 				ev.Pays(pays[j*n:(j+1)*n], reps[j*n:(j+1)*n])
 			}
-			bestOf := newOffGridBest(reps, pays, n)
-			for i := 0; i < g.Len(); i++ {
-				q := g.Point(i)
-				// the honest pay, and values around it, as the cap
-				var h float64
-				for k, x := range q {
-					h += x * pays[(i%R)*n+k]
+			// the honest pay, and values around it, as the cap
+			h := make([]float64, g.Len())
+			for i := range h {
+				for k, x := range g.Point(i) {
+					h[i] += x * pays[(i%R)*n+k]
 				}
-				h += []float64{0, -1, 1e-3, math.Inf(-1)}[i%4]
-				v, a := bestOf(q, h)
-				wv, wa := offGridScan(q, pays, n)
-				if !(wv > h) {
+				h[i] += []float64{0, -1, 1e-3, math.Inf(-1), math.NaN()}[i%5]
+			}
+			m := newMenu(n, g.Len()) // the beliefs' blocks: any menu's tree
+			m.seal()
+			got, err := offGridBests(context.Background(), g, newReportTree(g, m), reps, pays, h, 2, pool.NewMeter(nil, 0))
+			if err != nil {
+				t.Fatal(err)
+			}
+			for i, f := range got {
+				wv, wa := offGridScan(g.Point(i), pays, n)
+				if !(wv > h[i]) || math.IsInf(h[i], 0) || h[i] != h[i] {
 					wv, wa = math.Inf(-1), -1
 				}
-				if a != wa || v != wv && !(math.IsInf(v, -1) && math.IsInf(wv, -1)) {
-					t.Fatalf("n=%d %s belief %v: walk (%v, %d), scan (%v, %d)", n, src, q, v, a, wv, wa)
+				if f.arg != wa || f.pay != wv && !(math.IsInf(f.pay, -1) && math.IsInf(wv, -1)) {
+					t.Fatalf("n=%d %s belief %v cap %v: walk (%v, %d), scan (%v, %d)", n, src, g.Point(i), h[i], f.pay, f.arg, wv, wa)
 				}
 			}
 		}

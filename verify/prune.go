@@ -186,14 +186,7 @@ func (t *reportTree) bounds(rows []float64) []float64 {
 // beliefs (prune_block.go); one belief at a time is left for the beliefs
 // the blocks do not take.
 func (t *reportTree) walk(q []float64, safe bool) (best, int) {
-	return t.walkFrom(q, safe, pruneState{m1: math.Inf(1), m2: math.Inf(1), a1: -1, a2: -1})
-}
-
-// walkFrom is walk from the state st: with st.m1 = st.m2 = c and no
-// reports, it finds the best two among the values below c (c itself
-// where there are fewer), pruning everything at or above c from the
-// start.
-func (t *reportTree) walkFrom(q []float64, safe bool, st pruneState) (best, int) {
+	st := pruneState{m1: math.Inf(1), m2: math.Inf(1), a1: -1, a2: -1}
 	rows, lo := t.rows, t.lo
 	if safe {
 		rows, lo = t.safe, t.loSafe
@@ -256,56 +249,16 @@ func (s *pruneState) offer(phi float64, j int32) {
 }
 
 // leaf evaluates tree positions [lo, hi): the same arithmetic as the full
-// stream's kernels (dot), so the values agree bit for bit.
+// stream's kernels (dotN's sum), so the values agree bit for bit. Every n
+// the engine takes has its own kernel (kernels_leaf.go); the loop below is
+// only for an n beyond them.
 func (s *pruneState) leaf(q, rows []float64, idx []int32, lo, hi, n int) {
-	switch n {
-	case 2:
-		q0, q1 := q[0], q[1]
-		for p := lo; p < hi; p++ {
-			r := rows[p*2 : p*2+2 : p*2+2]
-			if phi := dot2(q0, q1, r); phi <= s.m2 {
-				s.offer(phi, idx[p])
-			}
-		}
-	case 3:
-		q0, q1, q2 := q[0], q[1], q[2]
-		p := lo
-		// Four reports per step, one test in the common case that none of
-		// them reaches the second best.
-		for ; p+4 <= hi; p += 4 {
-			r := rows[p*3 : p*3+12 : p*3+12]
-			pa, pb := dot3(q0, q1, q2, r[0:3]), dot3(q0, q1, q2, r[3:6])
-			pc, pd := dot3(q0, q1, q2, r[6:9]), dot3(q0, q1, q2, r[9:12])
-			if pa <= s.m2 || pb <= s.m2 || pc <= s.m2 || pd <= s.m2 {
-				for u, phi := range [4]float64{pa, pb, pc, pd} {
-					if phi <= s.m2 {
-						s.offer(phi, idx[p+u])
-					}
-				}
-			}
-		}
-		for ; p < hi; p++ {
-			r := rows[p*3 : p*3+3 : p*3+3]
-			if phi := dot3(q0, q1, q2, r); phi <= s.m2 {
-				s.offer(phi, idx[p])
-			}
-		}
-	default:
-		p := lo
-		for ; p+4 <= hi; p += 4 {
-			pa, pb, pc, pd := dot4N(q, rows[p*n:(p+4)*n], n)
-			if pa <= s.m2 || pb <= s.m2 || pc <= s.m2 || pd <= s.m2 {
-				for u, phi := range [4]float64{pa, pb, pc, pd} {
-					if phi <= s.m2 {
-						s.offer(phi, idx[p+u])
-					}
-				}
-			}
-		}
-		for ; p < hi; p++ {
-			if phi := dotN(q, rows[p*n:(p+1)*n]); phi <= s.m2 {
-				s.offer(phi, idx[p])
-			}
+	if s.leafFixed(q, rows, idx, lo, hi, n) {
+		return
+	}
+	for p := lo; p < hi; p++ {
+		if phi := dotN(q, rows[p*n:(p+1)*n]); phi <= s.m2 {
+			s.offer(phi, idx[p])
 		}
 	}
 }

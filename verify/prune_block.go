@@ -40,7 +40,10 @@ type candidate struct {
 type blockWork struct {
 	cands []candidate
 	held  []heldBelief
+	// a, b bound the held beliefs' coordinates; T is the largest of their
+	// second bests so far.
 	a, b  []float64
+	T     float64
 	stack []candidate
 	// visited counts the pairs evaluated (for the benchmark's share).
 	visited int64
@@ -51,25 +54,27 @@ type heldBelief struct {
 	st pruneState
 }
 
+func newBlockWork(n int) *blockWork {
+	return &blockWork{a: make([]float64, n), b: make([]float64, n)}
+}
+
 // streamPruned is the pruned stream: the same result as streamFull.
 func streamPruned(ctx context.Context, g *simplex.Grid, m *menu, w int, pr *pool.Meter, count *int64) ([]best, error) {
-	t := newReportTree(g, m)
+	return streamTree(ctx, newReportTree(g, m), g, m, w, pr, count)
+}
+
+// streamTree is streamPruned on the tree t of the menu m over g.
+func streamTree(ctx context.Context, t *reportTree, g *simplex.Grid, m *menu, w int, pr *pool.Meter, count *int64) ([]best, error) {
 	G := g.Len()
 	out := make([]best, G)
 	w = pool.Workers(w)
 	work := make([]*blockWork, w)
 	for i := range work {
-		work[i] = &blockWork{a: make([]float64, m.n), b: make([]float64, m.n)}
+		work[i] = newBlockWork(m.n)
 	}
-	leaves := (len(t.start) + 1) / 2
-	first := len(t.start) - leaves
-	err := pool.Run(ctx, w, leaves, 1, func(id, lo, hi int) {
-		bw := work[id]
-		for l := lo; l < hi; l++ {
-			node := first + l
-			bw.block(t, g, m, node, out)
-			pr.Add(int64(t.end[node]-t.start[node]) * int64(G))
-		}
+	err := t.eachLeaf(ctx, w, func(id, node int) {
+		work[id].block(t, g, m, node, out)
+		pr.Add(int64(t.end[node]-t.start[node]) * int64(G))
 	})
 	if count != nil {
 		for _, bw := range work {
@@ -79,15 +84,23 @@ func streamPruned(ctx context.Context, g *simplex.Grid, m *menu, w int, pr *pool
 	return out, err
 }
 
-// block settles every belief of one leaf.
+// eachLeaf calls do(worker, node) for every leaf of t, on w goroutines.
+func (t *reportTree) eachLeaf(ctx context.Context, w int, do func(worker, node int)) error {
+	leaves := (len(t.start) + 1) / 2
+	first := len(t.start) - leaves
+	return pool.Run(ctx, w, leaves, 1, func(id, lo, hi int) {
+		for l := lo; l < hi; l++ {
+			do(id, first+l)
+		}
+	})
+}
+
+// block settles every belief of one leaf: each first takes the best two
+// of the leaf's own reports, then the other leaves settle (settleHeld).
 func (bw *blockWork) block(t *reportTree, g *simplex.Grid, m *menu, leaf int, out []best) {
 	n := t.n
 	lo, hi := int(t.start[leaf]), int(t.end[leaf])
-	for k := range bw.a {
-		bw.a[k], bw.b[k] = math.Inf(1), math.Inf(-1)
-	}
-	bw.held = bw.held[:0]
-	T := math.Inf(-1)
+	bw.reset()
 	for p := lo; p < hi; p++ {
 		i := t.idx[p]
 		q := g.Point(int(i))
@@ -98,20 +111,45 @@ func (bw *blockWork) block(t *reportTree, g *simplex.Grid, m *menu, leaf int, ou
 		st := pruneState{m1: math.Inf(1), m2: math.Inf(1), a1: -1, a2: -1}
 		st.leaf(q, t.rows, t.idx, lo, hi, n)
 		bw.visited += int64(hi - lo)
-		bw.held = append(bw.held, heldBelief{i, st})
-		T = max(T, st.m2)
-		for k, x := range q {
-			bw.a[k], bw.b[k] = min(bw.a[k], x), max(bw.b[k], x)
-		}
+		bw.hold(i, st, q)
 	}
+	bw.settleHeld(t, g, leaf)
+	for _, h := range bw.held {
+		out[h.i] = best{h.st.m1, h.st.m2, h.st.a1, h.st.a2}
+	}
+}
+
+// reset empties the held beliefs.
+func (bw *blockWork) reset() {
+	for k := range bw.a {
+		bw.a[k], bw.b[k] = math.Inf(1), math.Inf(-1)
+	}
+	bw.held = bw.held[:0]
+	bw.T = math.Inf(-1)
+}
+
+// hold adds grid belief i (coordinates q) with its best two so far.
+func (bw *blockWork) hold(i int32, st pruneState, q []float64) {
+	bw.held = append(bw.held, heldBelief{i, st})
+	bw.T = max(bw.T, st.m2)
+	for k, x := range q {
+		bw.a[k], bw.b[k] = min(bw.a[k], x), max(bw.b[k], x)
+	}
+}
+
+// settleHeld finishes every held belief against the leaves of t other
+// than own (-1: none is theirs already): the candidate leaves whose block
+// bound is not above T, in the order of that bound, each belief stopping
+// at the first above its own second best.
+func (bw *blockWork) settleHeld(t *reportTree, g *simplex.Grid, own int) {
 	if len(bw.held) == 0 {
 		return
 	}
-	bw.collect(t, T, leaf)
+	n := t.n
+	bw.collect(t, bw.T, own)
 	for h := range bw.held {
 		st := &bw.held[h].st
-		i := int(bw.held[h].i)
-		q := g.Point(i)
+		q := g.Point(int(bw.held[h].i))
 		for _, c := range bw.cands {
 			if c.b > st.m2 {
 				break // sorted: every later candidate is as high
@@ -123,7 +161,6 @@ func (bw *blockWork) block(t *reportTree, g *simplex.Grid, m *menu, leaf int, ou
 			st.leaf(q, t.rows, t.idx, int(t.start[nd]), int(t.end[nd]), n)
 			bw.visited += int64(t.end[nd] - t.start[nd])
 		}
-		out[i] = best{st.m1, st.m2, st.a1, st.a2}
 	}
 }
 

@@ -242,19 +242,23 @@ func sharpenGap(gap *Gap, n int, cell float64, gain func(q, r []float64) float64
 }
 
 // roundingDigits caps the precision claimed for a settled gap by what the
-// payments' rounding allows: a gap computed as the difference of expected
-// payments of size 1e10 (a payout with the term 1e10·y) is known only to
-// rounding (about 1e-5 there), however well the search settled, so 0.01125
-// has three significant digits, not nine.
+// payments' rounding allows (SureDigits).
 func roundingDigits(gap *Gap, rounding float64) {
-	if !(rounding > 0) || !(gap.Max > 0) || math.IsInf(gap.Max, 0) || rounding <= settleDigits*gap.Max {
-		return
+	gap.Precision += SureDigits(gap.Max, rounding)
+}
+
+// SureDigits is what a gap's precision must add when rounding, the bound
+// on the rounding of the payments it is computed from, is above its ninth
+// significant digit: a gap computed as the difference of expected
+// payments of size 1e10 (a payout with the term 1e10·y) is known only to
+// about 1e-5, however well a search settled it, so 0.01125 has two or
+// three sure digits, not nine. "" when the rounding is below that.
+func SureDigits(gap, rounding float64) string {
+	if !(rounding > 0) || !(gap > 0) || math.IsInf(gap, 0) || rounding <= settleDigits*gap {
+		return ""
 	}
-	d := math.Floor(math.Log10(gap.Max / rounding))
-	if d < 0 {
-		d = 0
-	}
-	gap.Precision += fmt.Sprintf("; but the payments are known only to %.3g (the rounding of the terms they sum), so only %.0f significant digits of the gap are sure", rounding, d)
+	d := math.Max(math.Floor(math.Log10(gap/rounding)), 0)
+	return fmt.Sprintf("; but the payments are known only to %.3g (the rounding of the terms they sum), so only %.0f significant digits of the gap are sure", rounding, d)
 }
 
 // snapLimit is the size below which a coordinate of a sharpened witness

@@ -171,120 +171,19 @@ func streamWith(ctx context.Context, g *simplex.Grid, m *menu, w int, pr *pool.M
 	return out, err
 }
 
-// scan is the inner loop: every report against one belief. It allocates
-// nothing and is specialised for the common small n.
+// scan is the inner loop: every report against one belief (q has n
+// coordinates). It allocates nothing; every n the engine takes has its own
+// kernel (kernels_scan.go, written by kernelgen), and the loop below is
+// only for an n beyond them.
+//
+//go:generate go run ./internal/kernelgen -dir .
 func scan(q, rows []float64, n int) best {
-	switch n {
-	case 2:
-		return scan2(q[0], q[1], rows)
-	case 3:
-		return scan3(q[0], q[1], q[2], rows)
-	case 4:
-		return scan4(q[0], q[1], q[2], q[3], rows)
+	if b, ok := scanFixed(q, rows, n); ok {
+		return b
 	}
 	m1, m2, arg, arg2 := math.Inf(1), math.Inf(1), -1, -1
-	j, off := 0, 0
-	for ; off+4*n <= len(rows); j, off = j+4, off+4*n {
-		pa, pb, pc, pd := dot4N(q, rows[off:off+4*n], n)
-		if pa < m2 || pb < m2 || pc < m2 || pd < m2 {
-			for t, phi := range [4]float64{pa, pb, pc, pd} {
-				m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j+t)
-			}
-		}
-	}
-	for ; off+n <= len(rows); j, off = j+1, off+n {
+	for j, off := 0, 0; off+n <= len(rows); j, off = j+1, off+n {
 		phi := dotN(q, rows[off:off+n:off+n])
-		m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j)
-	}
-	return best{m1, m2, int32(arg), int32(arg2)}
-}
-
-// dot4N is dotN for four consecutive reports at once (r holds their rows,
-// n apart; q may be shorter than n, as dotN allows): four independent sums, so any n runs at the cost per outcome
-// of the unrolled small-n kernels. Each sum is rounded as dotN rounds it.
-func dot4N(q, r []float64, n int) (a, b, c, d float64) {
-	m := len(q)
-	// Each slice is cut to length m in a second step, so the compiler
-	// knows its length and the loop below runs without bounds checks.
-	ra, rb, rc, rd := r[:m:m], r[n:][:m:m], r[2*n:][:m:m], r[3*n:][:m:m]
-	x := q[0]
-	a, b, c, d = float64(x*ra[0]), float64(x*rb[0]), float64(x*rc[0]), float64(x*rd[0])
-	for k := 1; k < m; k++ {
-		x := q[k]
-		a = float64(a + float64(x*ra[k]))
-		b = float64(b + float64(x*rb[k]))
-		c = float64(c + float64(x*rc[k]))
-		d = float64(d + float64(x*rd[k]))
-	}
-	return a, b, c, d
-}
-
-func scan2(q0, q1 float64, rows []float64) best {
-	m1, m2, arg, arg2 := math.Inf(1), math.Inf(1), -1, -1
-	j, rest := 0, rows
-	for ; len(rest) >= 8; j, rest = j+4, rest[8:] {
-		r := rest[:8:8]
-		pa := dot2(q0, q1, r[0:2])
-		pb := dot2(q0, q1, r[2:4])
-		pc := dot2(q0, q1, r[4:6])
-		pd := dot2(q0, q1, r[6:8])
-		if pa < m2 || pb < m2 || pc < m2 || pd < m2 {
-			for t, phi := range [4]float64{pa, pb, pc, pd} {
-				m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j+t)
-			}
-		}
-	}
-	for ; len(rest) >= 2; j, rest = j+1, rest[2:] {
-		r := rest[:2:2]
-		phi := dot2(q0, q1, r)
-		m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j)
-	}
-	return best{m1, m2, int32(arg), int32(arg2)}
-}
-
-// scan3 and its siblings take four reports per step: one well-predicted
-// test in the common case that none of them beats the second best so far.
-func scan3(q0, q1, q2 float64, rows []float64) best {
-	m1, m2, arg, arg2 := math.Inf(1), math.Inf(1), -1, -1
-	j, rest := 0, rows
-	for ; len(rest) >= 12; j, rest = j+4, rest[12:] {
-		r := rest[:12:12]
-		pa := dot3(q0, q1, q2, r[0:3])
-		pb := dot3(q0, q1, q2, r[3:6])
-		pc := dot3(q0, q1, q2, r[6:9])
-		pd := dot3(q0, q1, q2, r[9:12])
-		if pa < m2 || pb < m2 || pc < m2 || pd < m2 {
-			for t, phi := range [4]float64{pa, pb, pc, pd} {
-				m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j+t)
-			}
-		}
-	}
-	for ; len(rest) >= 3; j, rest = j+1, rest[3:] {
-		r := rest[:3:3]
-		phi := dot3(q0, q1, q2, r)
-		m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j)
-	}
-	return best{m1, m2, int32(arg), int32(arg2)}
-}
-
-func scan4(q0, q1, q2, q3 float64, rows []float64) best {
-	m1, m2, arg, arg2 := math.Inf(1), math.Inf(1), -1, -1
-	j, rest := 0, rows
-	for ; len(rest) >= 16; j, rest = j+4, rest[16:] {
-		r := rest[:16:16]
-		pa := dot4(q0, q1, q2, q3, r[0:4])
-		pb := dot4(q0, q1, q2, q3, r[4:8])
-		pc := dot4(q0, q1, q2, q3, r[8:12])
-		pd := dot4(q0, q1, q2, q3, r[12:16])
-		if pa < m2 || pb < m2 || pc < m2 || pd < m2 {
-			for t, phi := range [4]float64{pa, pb, pc, pd} {
-				m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j+t)
-			}
-		}
-	}
-	for ; len(rest) >= 4; j, rest = j+1, rest[4:] {
-		r := rest[:4:4]
-		phi := dot4(q0, q1, q2, q3, r)
 		m1, m2, arg, arg2 = fold(m1, m2, arg, arg2, phi, j)
 	}
 	return best{m1, m2, int32(arg), int32(arg2)}
@@ -326,23 +225,12 @@ func scanSupport(q, rows []float64, n int) best {
 	return best{m1, m2, int32(arg), int32(arg2)}
 }
 
-// dot2, dot3, dot4 and dotN are phi(q, report) = sum_k q_k r_k, summed from
-// k = 0 up with every product and sum rounded once: the explicit float64
-// conversions forbid fused multiply-adds, so the full stream, the pruned
-// one and the bounds of prune.go compute the same values on every
-// platform (see prune.go for why that makes the pruning exact).
-func dot2(q0, q1 float64, r []float64) float64 {
-	return float64(float64(q0*r[0]) + float64(q1*r[1]))
-}
-
-func dot3(q0, q1, q2 float64, r []float64) float64 {
-	return float64(float64(float64(q0*r[0])+float64(q1*r[1])) + float64(q2*r[2]))
-}
-
-func dot4(q0, q1, q2, q3 float64, r []float64) float64 {
-	return float64(float64(float64(float64(q0*r[0])+float64(q1*r[1]))+float64(q2*r[2])) + float64(q3*r[3]))
-}
-
+// dotN is phi(q, report) = sum_k q_k r_k, summed from k = 0 up with
+// every product and sum rounded once: the explicit float64 conversions
+// forbid fused multiply-adds, so the full stream, the pruned one, the
+// bounds of prune.go and the kernels (which spell out this same sum)
+// compute the same values on every platform (see prune.go for why that
+// makes the pruning exact).
 func dotN(q, r []float64) float64 {
 	r = r[:len(q)]
 	s := float64(q[0] * r[0])

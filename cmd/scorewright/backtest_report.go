@@ -4,14 +4,15 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"scorewright/internal/numfmt"
 	"strings"
-	"unicode/utf8"
+
+	"github.com/charmbracelet/x/ansi"
 
 	"scorewright/contract/backtest"
 	"scorewright/contract/backtest/history"
 	"scorewright/contract/table"
 	"scorewright/internal/num"
+	"scorewright/internal/numfmt"
 	"scorewright/internal/textcol"
 )
 
@@ -143,14 +144,16 @@ func (r *backtestReport) writeText(w io.Writer) error {
 	return err
 }
 
-// nameColumn pads a forecaster's name to the width of the longest, so
-// that names read left-aligned in the right-aligning tables.
+// nameColumn pads a forecaster's name to the display width of the
+// widest, so that names read left-aligned in the right-aligning tables
+// (textcol measures cells by display width; a rune count would pad a name
+// in wide characters too far).
 func (r *backtestReport) nameColumn() func(string) string {
 	nw := len("forecaster")
 	for _, f := range r.Forecasters {
-		nw = max(nw, utf8.RuneCountInString(f.Name))
+		nw = max(nw, ansi.StringWidth(f.Name))
 	}
-	return func(s string) string { return s + strings.Repeat(" ", nw-utf8.RuneCountInString(s)) }
+	return func(s string) string { return s + strings.Repeat(" ", max(0, nw-ansi.StringWidth(s))) }
 }
 
 // writeForecasterTable writes every forecaster's count, totals, means and

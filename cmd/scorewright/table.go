@@ -10,11 +10,11 @@ import (
 	"math"
 	"os"
 	"path/filepath"
-	"scorewright"
 	"strconv"
 	"strings"
 	"time"
 
+	"scorewright"
 	"scorewright/contract/annex"
 	"scorewright/contract/budget"
 	"scorewright/contract/lottery"
@@ -132,7 +132,7 @@ func tableOf(e *env, fs *flag.FlagSet, d *design.Design, format string, tf *tabl
 		return err
 	}
 	if t.Point != nil {
-		return writePointTable(e, d, t, tb, format, tf)
+		return writePointTable(e, d, t, tb, format, tf, r.Point())
 	}
 	fit, rc := t.Fit, t.Recheck
 	a, b, clamp := t.PayLine()

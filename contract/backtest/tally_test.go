@@ -190,16 +190,7 @@ func TestAdjust(t *testing.T) {
 // hand), and that is its effort.
 func TestRecord(t *testing.T) {
 	lg := rule(t, "-sum(p*ln(p))", 2, false)
-	floor := func(dst, p []float64) []float64 {
-		copy(dst, p)
-		for i := range dst {
-			if dst[i] < 0.01 {
-				dst[1-i] -= 0.01 - dst[i]
-				dst[i] = 0.01
-			}
-		}
-		return dst
-	}
+	floor := floorAt(0.01)
 	onMenu := func(p []float64) bool { return math.Abs(p[0]-0.99) < 1e-12 }
 	tl, _ := NewTally([]Scheme{{Name: "log", Rule: lg, Pay: Affine{A: 10, B: 1}, Record: floor, OnMenu: onMenu, Low: 0, High: 10}}, TallyOptions{})
 	paid := tl.Add("Birch", 2, 1, []float64{1, 0})
@@ -218,16 +209,7 @@ func TestRecord(t *testing.T) {
 // identity adds up to.
 func TestDecompositionOfPaidForecasts(t *testing.T) {
 	lg := rule(t, "-sum(p*ln(p))", 2, false)
-	floor := func(dst, p []float64) []float64 {
-		copy(dst, p)
-		for i := range dst {
-			if dst[i] < 0.01 {
-				dst[1-i] -= 0.01 - dst[i]
-				dst[i] = 0.01
-			}
-		}
-		return dst
-	}
+	floor := floorAt(0.01)
 	tl, _ := NewTally([]Scheme{{Name: "log", Rule: lg, Pay: Affine{A: 10, B: 1}, Record: floor, Low: 0, High: 10}}, TallyOptions{})
 	tl.Add("Birch", 2, 0, []float64{1, 0})
 	tl.Add("Birch", 3, 1, []float64{1, 0})
@@ -270,6 +252,21 @@ func clampAt(c float64) func(dst, p []float64) []float64 {
 		}
 		for i := range dst {
 			dst[i] /= s
+		}
+		return dst
+	}
+}
+
+// floorAt records a two-outcome forecast as a menu with report floor f
+// records it: an entry below f is raised to f, the other lowered to match.
+func floorAt(f float64) func(dst, p []float64) []float64 {
+	return func(dst, p []float64) []float64 {
+		copy(dst, p)
+		for i := range dst {
+			if dst[i] < f {
+				dst[1-i] -= f - dst[i]
+				dst[i] = f
+			}
 		}
 		return dst
 	}

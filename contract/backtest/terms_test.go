@@ -2,6 +2,7 @@ package backtest
 
 import (
 	"context"
+	"math"
 	"testing"
 
 	"scorewright/contract/budget"
@@ -43,5 +44,36 @@ func TestTermsSchemePaysTheTable(t *testing.T) {
 	}
 	if f := TermsScheme("B", ft); f.OnMenu != nil || f.Adjust != nil || f.Record != nil {
 		t.Fatal("formula terms hold forecasts to no menu and change no report")
+	}
+}
+
+// Without a menu but with a report floor, A and B are fitted on reports
+// no lower than the floor, so a forecast below it is paid as those
+// reports are: under the log rule with floor 0 and cap 10 and report floor
+// 0.01, the forecast (0, 1) is recorded as (0.01, 0.99) and paid the
+// floor 0 if outcome 1 happens (derived by hand: the fitted pay A - B·(-ln
+// p_k) is smallest, at the budget's floor, at p_k = 0.01), not -Inf; its
+// effort, and so the decomposition, is -ln 0.01 = 4.60517, not +Inf.
+func TestFormulaTermsPayTheFlooredForecast(t *testing.T) {
+	r := bregmantest.Rule(t, "-sum(p*ln(p))", bregman.Options{Outcomes: 2})
+	ft, err := budget.FormulaTerms(r, design.Budget{Floor: 0, Cap: 10, ReportFloor: 0.01}, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := TermsScheme("A", ft)
+	if s.Record == nil {
+		t.Fatal("formula terms with a report floor record forecasts as written")
+	}
+	p := s.Record(make([]float64, 2), []float64{0, 1})
+	if math.Abs(p[0]-0.01) > 1e-15 || math.Abs(p[1]-0.99) > 1e-15 {
+		t.Fatalf("forecast (0, 1) recorded as %v, want (0.01, 0.99)", p)
+	}
+	eff := make([]float64, 2)
+	r.NewScorer().Efforts(eff, p)
+	if math.Abs(eff[0]-math.Log(100)) > 1e-12 {
+		t.Errorf("effort if 1: %v, want ln 100", eff[0])
+	}
+	if pay := s.Pay.Pay(eff[0]); math.Abs(pay) > 1e-9 {
+		t.Errorf("pay if 1: %v, want the budget's floor 0", pay)
 	}
 }

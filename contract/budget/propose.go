@@ -5,10 +5,10 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"scorewright/internal/numfmt"
 
 	"scorewright/generator/bregman"
 	"scorewright/generator/design"
+	"scorewright/internal/numfmt"
 	"scorewright/internal/pool"
 )
 

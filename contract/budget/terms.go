@@ -4,12 +4,12 @@ import (
 	"context"
 	"fmt"
 	"math"
-	"scorewright/internal/numfmt"
 
 	"scorewright/contract/table"
 	"scorewright/generator/bregman"
 	"scorewright/generator/design"
 	"scorewright/generator/formula"
+	"scorewright/internal/numfmt"
 	"scorewright/internal/simplex"
 )
 
@@ -94,7 +94,8 @@ func FitStep(n int) float64 {
 // FormulaTerms fits rule r to budget b without a report menu: A and B are
 // fitted on the grid of FitStep, and every forecast is paid A - B·effort
 // at the forecast as written (rounded to the budget's unit, if any), never
-// moved to a menu item; clamp, if positive, pays as if each probability
+// moved to a menu item, but raised to the budget's report floor, if any,
+// as the fit's reports were; clamp, if positive, pays as if each probability
 // were at least clamp, as the table command does. Payments beyond the
 // budget (a forecast between grid points can reach past the grid's
 // extremes) are counted by the backtest, not hidden. There is no table,
@@ -111,8 +112,16 @@ func FormulaTerms(r *bregman.Rule, b design.Budget, clamp float64) (*Terms, erro
 	if err != nil {
 		return nil, err
 	}
-	return &Terms{Fit: fit, ByFormula: true, Low: b.Floor, High: fit.Cap,
-		Notes: []string{fmt.Sprintf("no report menu was given: every forecast is paid by the exact formula at the forecast as written (A and B fitted to the budget on reports in steps of %s)", table.FormatNumber(step))}}, nil
+	t := &Terms{Fit: fit, ByFormula: true, Low: b.Floor, High: fit.Cap,
+		Notes: []string{fmt.Sprintf("no report menu was given: every forecast is paid by the exact formula at the forecast as written (A and B fitted to the budget on reports in steps of %s)", table.FormatNumber(step))}}
+	if f := b.ReportFloor; f > 0 {
+		// A and B were fitted on reports no lower than the floor: a
+		// forecast below it is paid (and decomposed) as those reports
+		// are, not at the -Inf the log rule gives a forecast of 0.
+		t.RecordFloor = f
+		t.Notes = append(t.Notes, fmt.Sprintf("forecasts giving an outcome less than the report floor %s are paid as the fit priced its reports: raised to %s, the difference taken from the largest entry", table.FormatNumber(f), table.FormatNumber(f)))
+	}
+	return t, nil
 }
 
 // MenuError is a step menu the budget's step and report floor cannot make.

@@ -49,6 +49,8 @@ type Generator struct {
 	// Power-law fits of the two integrands at both ends.
 	yesLo, yesHi, noLo, noHi EndFit
 	diag                     Diagnostics
+	// wRound bounds the rounding of the weight formula (rounding.go).
+	wRound float64
 }
 
 // New compiles the weight formula src (a function of c) and integrates it
@@ -72,6 +74,7 @@ func New(src string, opt Options) (*Generator, error) {
 	g.yesHi = fitEnd(func(s float64) float64 { return ev.fYes(1 - s) }, hiCut)
 	g.noHi = fitEnd(func(s float64) float64 { return ev.fNo(1 - s) }, hiCut)
 	g.diag = diagnose(ev, opt.Grid)
+	g.wRound = weightRounding(ev)
 	g.diag.YesAtZero = g.yesLo
 	g.diag.NoAtOne = g.noHi
 	if g.yesHi.Diverges() {

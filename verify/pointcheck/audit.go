@@ -85,7 +85,7 @@ func AuditPayout(ctx context.Context, p *Payout, lo, hi float64, s verify.Settin
 	if err != nil {
 		return nil, err
 	}
-	a.pm, a.scale = pm, paySpread(pm)
+	a.pm, a.scale, a.round = pm, paySpread(pm), payRounding(pm)
 	nonneg, affine := a.nonnegativity(), a.affinity()
 	ds := distributions(k)
 	gap, strictMargin, err := a.gap(ctx, s, ds)
@@ -93,7 +93,7 @@ func AuditPayout(ctx context.Context, p *Payout, lo, hi float64, s verify.Settin
 		return nil, err
 	}
 	proper := result("properness", fmt.Sprintf("largest honesty gap max_x E pay(x, Y) - E pay(mean, Y) over %d two- and three-point distributions and a search over every two-point distribution (support and weight), where the gap of a point report is largest", len(ds)),
-		gap.Max, gap.Max <= tol*a.scale, tol*a.scale, &place{gap.Outcomes, gap.Weights, []float64{gap.BestReport}})
+		gap.Max, gap.Max <= a.slack(), a.slack(), &place{gap.Outcomes, gap.Weights, []float64{gap.BestReport}})
 	rep.Gap = &gap
 	bounded := result("boundedness", "number of grid cells where the pay is not finite", float64(len(nonFinite)), len(nonFinite) == 0, 0, nil)
 	if len(nonFinite) > 0 {
@@ -104,36 +104,68 @@ func AuditPayout(ctx context.Context, p *Payout, lo, hi float64, s verify.Settin
 	if id := identify(pm, a.xs, a.ys, a.scale, tol, candidates); id != nil {
 		rep.Identified = id
 	}
-	rep.Notes = append(rep.Notes, fmt.Sprintf("grid check on %d outcomes and %d reports in [%g, %g], tolerance %g relative to the pay spread %.4g: evidence, not proof", len(a.ys), len(a.xs), lo, hi, tol, a.scale))
+	raised := ""
+	if a.round > tol*a.scale {
+		raised = fmt.Sprintf(", raised to %.3g for the rounding of payments as large as they are", a.round)
+	}
+	rep.Notes = append(rep.Notes, fmt.Sprintf("grid check on %d outcomes and %d reports in [%g, %g], tolerance %g relative to the pay spread %.4g (the largest over outcomes of the spread over reports)%s: evidence, not proof", len(a.ys), len(a.xs), lo, hi, tol, a.scale, raised))
 	return rep, nil
 }
 
 // payAudit is a payout evaluated on the grid: pm[i][j] is the pay of
 // report xs[i] when the outcome is ys[j]; scale is the spread of the
-// finite payments, which the tolerance is relative to.
+// finite payments outcome by outcome, which the tolerance is relative
+// to, and round the rounding floor of the comparisons.
 type payAudit struct {
-	pr         *payer
-	pm         [][]float64
-	xs, ys     []float64
-	lo, hi     float64
-	tol, scale float64
+	pr                *payer
+	pm                [][]float64
+	xs, ys            []float64
+	lo, hi            float64
+	tol, scale, round float64
 }
 
-// paySpread is the spread of the finite payments of pm, or, when they
-// are all equal, their size (at least 1).
+// slack is what a comparison of expected payments allows: the tolerance
+// relative to the spread, never less than the rounding of the payments.
+func (a *payAudit) slack() float64 { return math.Max(a.tol*a.scale, a.round) }
+
+// paySpread is the largest spread of the finite payments of pm for one
+// outcome (over the reports), or, when they are all equal, their size (at
+// least 1). A term in the outcome alone (1e10·y) changes no incentive;
+// measured across outcomes it made the slack 10 and hid the gap 0.000625
+// of -(x - y)^2 + 1e10·y + 0.05·x.
 func paySpread(pm [][]float64) float64 {
-	minP, maxP := math.Inf(1), math.Inf(-1)
+	var scale, size float64
+	for j := range pm[0] {
+		minP, maxP := math.Inf(1), math.Inf(-1)
+		for _, row := range pm {
+			if v := row[j]; finite(v) {
+				minP, maxP = math.Min(minP, v), math.Max(maxP, v)
+				size = math.Max(size, math.Abs(v))
+			}
+		}
+		if maxP-minP > scale {
+			scale = maxP - minP
+		}
+	}
+	if scale > 0 {
+		return scale
+	}
+	return math.Max(size, 1)
+}
+
+// payRounding is the rounding floor of a comparison of expected payments:
+// a few ulps (8ε, for the sums of two- and three-point expectations and
+// their difference) of the largest finite payment.
+func payRounding(pm [][]float64) float64 {
+	var size float64
 	for _, row := range pm {
 		for _, v := range row {
 			if finite(v) {
-				minP, maxP = math.Min(minP, v), math.Max(maxP, v)
+				size = math.Max(size, math.Abs(v))
 			}
 		}
 	}
-	if scale := maxP - minP; scale > 0 {
-		return scale
-	}
-	return math.Max(math.Abs(maxP), 1)
+	return 8 * 0x1p-52 * size
 }
 
 // nonnegativity: knowing the outcome for certain, the exact report pays
@@ -148,7 +180,7 @@ func (a *payAudit) nonnegativity() verify.CheckResult {
 			}
 		}
 	}
-	return result("nonnegativity", "smallest pay(y, y) - pay(x, y): what the exact report gains over report x when the outcome y is certain", worst, worst >= -a.tol*a.scale, a.tol*a.scale, &at)
+	return result("nonnegativity", "smallest pay(y, y) - pay(x, y): what the exact report gains over report x when the outcome y is certain", worst, worst >= -a.slack(), a.slack(), &at)
 }
 
 // affinity: the report-dependent part pay(x, y) - pay(x0, y) must be
@@ -169,7 +201,7 @@ func (a *payAudit) affinity() verify.CheckResult {
 		}
 	}
 	return result("affinity", fmt.Sprintf("largest second difference in y of pay(x, y) - pay(%g, y); zero when the report-dependent part is affine in the outcome, which eliciting the mean needs", a.xs[i0]),
-		worst, worst <= a.tol*a.scale, a.tol*a.scale, &at)
+		worst, worst <= a.slack(), a.slack(), &at)
 }
 
 // gap is the largest honesty gap over the distributions ds, refined
@@ -215,8 +247,8 @@ func (a *payAudit) gap(ctx context.Context, s verify.Settings, ds []dist) (Gap, 
 	if two.Max > gap.Max {
 		gap = two
 	}
-	if gap.Max > a.tol*a.scale && precision != "" {
-		gap.Precision = precision
+	if gap.Max > a.slack() && precision != "" {
+		gap.Precision = precision + verify.SureDigits(gap.Max, a.round)
 	}
 	return gap, strictMargin, nil
 }
@@ -266,7 +298,7 @@ func (a *payAudit) verdict(rep *Report, strictMargin float64) {
 		// is how an unbounded payout shows, reported under boundedness).
 		rep.Verdict = verify.Improper
 		rep.Notes = append(rep.Notes, fmt.Sprintf("the payout is undefined (NaN) in %d grid cells with a report inside the interval (see boundedness), so it is not proper on [%g, %g]", undefined, a.lo, a.hi))
-	case strictMargin > a.tol*a.scale:
+	case strictMargin > a.slack():
 		rep.Verdict = verify.StrictlyProper
 	default:
 		rep.Verdict = verify.Proper
