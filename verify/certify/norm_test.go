@@ -118,6 +118,8 @@ func TestNormTheoremRefuses(t *testing.T) {
 		{"a weight too few", formula.NormForm{Coef: -1, Weights: []float64{1, 1}, Inner: 3, Outer: third}, ""},
 		{"an infinite factor", formula.NormForm{Coef: math.Inf(-1), Weights: ones, Inner: 3, Outer: third}, ""},
 		{"an exponent past the limit", formula.NormForm{Coef: -1, Weights: ones, Inner: 1000, Outer: 1e-3}, ""},
+		{"weights that underflow", formula.NormForm{Coef: -1, Weights: []float64{1e-300, 1e-300, 1e-300}, Inner: 3, Outer: third}, "-sum(1e-300*p^3)^(1/3)"},
+		{"a value that overflows", formula.NormForm{Coef: -1e300, Weights: []float64{1e200, 1e200, 1e200}, Inner: 3, Outer: 1}, ""},
 	} {
 		if m, ok := normTheorem(c.nf, 3); ok {
 			t.Errorf("%s: certified: %s", c.why, m)
