@@ -54,10 +54,7 @@ func Generator(ctx context.Context, prog *formula.Program, n int, s Settings) (*
 	ctx, cancel := s.deadline(ctx)
 	defer cancel()
 	start := time.Now()
-	if res := separableResult(prog, n, s, start); res != nil {
-		return res, nil
-	}
-	if res := normResult(prog, n, s, start); res != nil {
+	if res := structuralResult(ctx, prog, n, s, start); res != nil {
 		return res, nil
 	}
 	g := &genRun{n: n, enc: prog.NewEncloser(), senc: prog.NewSimplexEncloser(), pbox: make([]iv.Interval, n), minW: s.minWidth(),
