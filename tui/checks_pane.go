@@ -21,7 +21,7 @@ type ChecksPane struct {
 	bar         progress.Model
 	running     bool
 	waiting     bool // an edit is waiting out the debounce
-	done, total int64
+	done, total float64
 	report      *CheckReport
 	err         error
 	stale       bool // the report is for an earlier design
@@ -85,7 +85,7 @@ func (p *ChecksPane) started() {
 	p.waiting, p.running, p.done, p.total, p.blocked = false, true, 0, 0, ""
 }
 
-func (p *ChecksPane) progressed(done, total int64) { p.done, p.total = done, total }
+func (p *ChecksPane) progressed(done, total float64) { p.done, p.total = done, total }
 
 func (p *ChecksPane) finished(r *CheckReport, err error) {
 	p.running, p.report, p.err, p.stale = false, r, err, false
@@ -132,7 +132,7 @@ func (p ChecksPane) View() string {
 	case p.running:
 		pct := 0.0
 		if p.total > 0 {
-			pct = float64(p.done) / float64(p.total)
+			pct = p.done / p.total
 		}
 		lines = append(lines, p.bar.ViewAs(pct)+fmt.Sprintf(" %3.0f%% checking", pct*100))
 	case p.waiting:

@@ -9,6 +9,7 @@ import (
 	"github.com/charmbracelet/x/exp/golden"
 
 	"scorewright/generator/design"
+	"scorewright/internal/pool"
 )
 
 // checksText is the checks pane's body as plain text.
@@ -134,7 +135,7 @@ func TestCheckerRestsOnProof(t *testing.T) {
 // the grid's improper verdict as grid evidence, not the certificate's
 // "certified", and an export does not record the rule as certified.
 func TestHeaderShowsAContradictedProofAsImproper(t *testing.T) {
-	contradicting := func(ctx context.Context, d *design.Design, s Settings, progress func(done, total int64)) (*CheckReport, error) {
+	contradicting := func(ctx context.Context, d *design.Design, s Settings, progress pool.Progress) (*CheckReport, error) {
 		return &CheckReport{Verdict: "improper", Resolution: 10, Points: 11,
 			Rows:        []CheckRow{{Name: "properness", Passed: false, Worst: 0.5}},
 			Certificate: &CertificateView{Kind: "certified", Verdict: "strictly-proper", Statement: "certified strictly proper"}}, nil
