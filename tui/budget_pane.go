@@ -93,7 +93,7 @@ func (p *BudgetPane) edited() {
 }
 
 // fitting marks a fit as begun; progressed moves its bar.
-func (p *BudgetPane) fitting()                     { p.running, p.done, p.total = true, 0, 0 }
+func (p *BudgetPane) fitting()                       { p.running, p.done, p.total = true, 0, 0 }
 func (p *BudgetPane) progressed(done, total float64) { p.done, p.total = done, total }
 
 // Update handles a key, editing d's budget in place.
