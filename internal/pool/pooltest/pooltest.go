@@ -32,10 +32,24 @@ func (r *Recorder) Steps() []pool.Step {
 }
 
 // Check says what is wrong with the reports of a job that ran to its end
-// (nil when nothing): there must be at least one; all in unit; Done never
-// falls, stays within a known Total and Total never changes once known;
-// only the final report is Last, and it has Done = Total.
+// and did all its work (nil when nothing): Monotone, and the final report
+// has Done = Total.
 func (r *Recorder) Check(unit pool.Unit) error {
+	if err := r.Monotone(unit); err != nil {
+		return err
+	}
+	steps := r.Steps()
+	if last := steps[len(steps)-1]; !(last.Total > 0) || last.Done != last.Total {
+		return fmt.Errorf("the last step is %g of %g, want its total", last.Done, last.Total)
+	}
+	return nil
+}
+
+// Monotone says what is wrong with the reports of a job that ran to its
+// end, done or not (a certificate out of time): there must be at least
+// one; all in unit; Done never falls, stays within a known Total and Total
+// never changes once known; only the final report is Last.
+func (r *Recorder) Monotone(unit pool.Unit) error {
 	steps := r.Steps()
 	if len(steps) == 0 {
 		return fmt.Errorf("no progress reported")
@@ -61,9 +75,6 @@ func (r *Recorder) Check(unit pool.Unit) error {
 		case s.Items < p.Items || s.Skipped < p.Skipped:
 			return fmt.Errorf("step %d of %d: items or skipped fell: %+v after %+v", i, len(steps), s, p)
 		}
-	}
-	if last := steps[len(steps)-1]; !(last.Total > 0) || last.Done != last.Total {
-		return fmt.Errorf("the last step is %g of %g, want its total", last.Done, last.Total)
 	}
 	return nil
 }
