@@ -99,7 +99,7 @@ key Right; key Right; key Right; key Right
 wait_for "menu re-check FAILED"
 wait_for "BEATEN"
 key f
-wait_for "1 unit 0.1: passes"
+wait_for "1 unit 0.1, the coarsest that passes"
 key 1
 wait_for "took the proposal"
 wait_for "menu re-check passed"

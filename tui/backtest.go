@@ -8,7 +8,6 @@ import (
 	"math"
 	"os"
 	"path/filepath"
-	"scorewright/internal/numfmt"
 	"strings"
 
 	"github.com/charmbracelet/bubbles/key"
@@ -20,6 +19,7 @@ import (
 	"scorewright/contract/backtest"
 	"scorewright/contract/backtest/history"
 	"scorewright/generator/design"
+	"scorewright/internal/numfmt"
 	"scorewright/internal/pool"
 	"scorewright/tui/reliability"
 )

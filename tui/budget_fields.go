@@ -243,7 +243,7 @@ func distOrBlank(s string, n int, what string) ([]float64, error) {
 
 // menuField names a CSV file of reports that replaces the step's grid.
 func menuField() budgetField {
-	return budgetField{label: "Menu", help: "CSV of reports", hint: "a CSV file, one report a line (blank: the step's grid)", off: notOnInterval,
+	return budgetField{label: "Menu", help: "CSV of reports", hint: "a CSV file, one report a line, relative to the design file's folder (blank: the step's grid)", off: notOnInterval,
 		show: func(d *design.Design) string {
 			if d.Budget.Menu == "" {
 				return "step grid"

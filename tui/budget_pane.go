@@ -2,18 +2,17 @@ package tui
 
 import (
 	"fmt"
-	"scorewright/internal/numfmt"
 	"slices"
 	"strings"
 
-	"github.com/charmbracelet/bubbles/cursor"
 	"github.com/charmbracelet/bubbles/key"
 	"github.com/charmbracelet/bubbles/progress"
-	"github.com/charmbracelet/bubbles/textinput"
 	"github.com/charmbracelet/bubbles/viewport"
 	tea "github.com/charmbracelet/bubbletea"
+	"github.com/charmbracelet/lipgloss"
 
 	"scorewright/generator/design"
+	"scorewright/internal/numfmt"
 )
 
 // BudgetPane edits the budget and shows the payment table preview and the
@@ -26,7 +25,7 @@ type BudgetPane struct {
 	available bool
 	sel       int
 	typing    bool
-	ti        textinput.Model
+	ti        valueInput
 	vp        viewport.Model
 	table     *TableView
 	err       error
@@ -44,12 +43,10 @@ type BudgetPane struct {
 // NewBudgetPane returns a budget pane; available says whether the build
 // can fit budgets.
 func NewBudgetPane(st Styles, keys KeyMap, available bool) BudgetPane {
-	ti := textinput.New()
-	ti.Prompt = "› "
-	ti.Cursor.SetMode(cursor.CursorStatic)
-	calmEditing(&ti.KeyMap.DeleteAfterCursor, &ti.KeyMap.DeleteBeforeCursor)
+	ti := newValueInput(st.Selected.Reverse(true))
 	vp := viewport.New(10, 3)
-	vp.KeyMap = viewport.KeyMap{PageDown: keys.PageDown, PageUp: keys.PageUp}
+	vp.KeyMap = viewport.KeyMap{PageDown: keys.PageDown, PageUp: keys.PageUp, Left: keys.TableLeft, Right: keys.TableRight}
+	vp.SetHorizontalStep(8)
 	return BudgetPane{st: st, keys: keys, available: available, ti: ti, vp: vp, bar: newBar(), prop: &proposal{}}
 }
 
@@ -78,7 +75,11 @@ func (p BudgetPane) Typing() bool { return p.typing }
 // KeyHelp lists the pane's keys.
 func (p BudgetPane) KeyHelp() []key.Binding {
 	k := p.keys
-	return []key.Binding{k.Up, k.Down, k.Less, k.More, k.Edit, k.Propose, k.PageUp, k.PageDown}
+	out := []key.Binding{k.Up, k.Down, k.Less, k.More, k.Edit, k.Propose}
+	if p.prop.props != nil {
+		out = append(out, k.TakeFirst, k.TakeSecond)
+	}
+	return append(out, k.PageUp, k.PageDown, k.TableLeft, k.TableRight)
 }
 
 // setTable shows a fit result.
@@ -141,9 +142,7 @@ func (p BudgetPane) Update(msg tea.Msg, d *design.Design) (BudgetPane, tea.Cmd, 
 		if edit == nil {
 			edit = f.show
 		}
-		p.ti.SetValue(edit(d))
-		p.ti.CursorEnd()
-		return p, p.ti.Focus(), false
+		return p, p.ti.Start(edit(d)), false
 	case key.Matches(km, k.Less), key.Matches(km, k.More), key.Matches(km, k.LessFine), key.Matches(km, k.MoreFine):
 		if f.step == nil {
 			p.note = f.label + ": " + errNoStep.Error()
@@ -152,7 +151,7 @@ func (p BudgetPane) Update(msg tea.Msg, d *design.Design) (BudgetPane, tea.Cmd, 
 		up := key.Matches(km, k.More) || key.Matches(km, k.MoreFine)
 		fine := key.Matches(km, k.LessFine) || key.Matches(km, k.MoreFine)
 		return p, nil, p.apply(d, f, func(t *design.Design) error { return f.step(t, up, fine) })
-	case key.Matches(km, k.PageUp), key.Matches(km, k.PageDown):
+	case key.Matches(km, k.PageUp), key.Matches(km, k.PageDown), key.Matches(km, k.TableLeft), key.Matches(km, k.TableRight):
 		var cmd tea.Cmd
 		p.vp, cmd = p.vp.Update(km)
 		return p, cmd, false
@@ -210,35 +209,33 @@ func nextStep(steps []float64, cur float64, up bool) float64 {
 	return steps[0]
 }
 
-// layoutTable lines up the cells of t into text rows, header first: a
-// mark column first when some row fails the re-check (so a narrow pane
-// still shows it), the margin last. It runs in the background with the
-// fit, so Update only joins the rows.
+// layoutTable lines up the cells of t into text rows, header first: the
+// row's mark (TIE, BEATEN) when some row has one, then its re-check
+// margin, then the report and its pays, so that a narrow pane, or a
+// point table with many outcome columns, still shows what each row's
+// verdict is (the pays scroll sideways). It runs in the background with
+// the fit, so Update only joins the rows.
 func layoutTable(t *TableView) {
 	marked := slices.ContainsFunc(t.Marks, func(s string) bool { return s != "" })
-	cells := func(i int, r []string) []string {
+	var lead []string // the header cells before the report's
+	if marked {
+		lead = append(lead, "mark")
+	}
+	if t.Margins != nil {
+		lead = append(lead, "margin")
+	}
+	rows := [][]string{append(slices.Clone(lead), t.Header...)}
+	for i, r := range t.Rows {
 		var out []string
 		if marked {
 			out = append(out, t.Marks[i])
 		}
-		out = append(out, r...)
 		if t.Margins != nil {
 			out = append(out, t.Margins[i])
 		}
-		return out
+		rows = append(rows, append(out, r...))
 	}
-	head := slices.Clone(t.Header)
-	if marked {
-		head = append([]string{"mark"}, head...)
-	}
-	if t.Margins != nil {
-		head = append(head, "margin")
-	}
-	rows := [][]string{head}
-	for i, r := range t.Rows {
-		rows = append(rows, cells(i, r))
-	}
-	widths := columnWidths(rows)[:len(head)]
+	widths := columnWidths(rows)[:len(rows[0])]
 	t.lines = nil
 	for _, r := range rows {
 		parts := make([]string, 0, len(r))
@@ -277,15 +274,15 @@ func (p BudgetPane) tableText() string {
 	return b.String()
 }
 
-// fieldRows is how many field lines the pane shows: the rest of its
-// height goes to the verdict and the table.
+// fieldRows is how many field lines the pane shows at most: the rest of
+// its height goes to the verdict and the table.
 func (p BudgetPane) fieldRows(n int) int {
 	return min(n, max(3, (p.h-4)/2))
 }
 
-// fieldWindow is the first field shown, so that the selected one is.
-func (p BudgetPane) fieldWindow(n int) int {
-	rows := p.fieldRows(n)
+// fieldWindow is the first of rows fields shown, so that the selected one
+// is.
+func (p BudgetPane) fieldWindow(n, rows int) int {
 	return min(max(0, p.sel-rows/2), n-rows)
 }
 
@@ -312,43 +309,82 @@ func (p BudgetPane) fieldLine(i int, f budgetField, d *design.Design) string {
 	return m + ls.Render(fmt.Sprintf("%-9s", f.label)) + " " + fmt.Sprintf("%-8s", val) + " " + st.Dim.Render(help)
 }
 
-// View draws the pane for design d.
+// minTableLines is the table's head and the rows it keeps at the least
+// before the fields and proposals get their full room: a table of one or
+// two rows says nothing at 80×24 (where the pane has nine lines inside).
+const minTableLines = 5
+
+// View draws the pane for design d. The height is shared in this order:
+// the selected field, a refusal or the typing hint, the verdict and the
+// proposals, the table's head and first rows, the proposal keys, the
+// other fields; what is left goes to the table.
 func (p BudgetPane) View(d *design.Design) string {
 	st := p.st
-	var lines []string
 	fields := fieldsFor(d)
 	p.sel = min(p.sel, len(fields)-1)
-	first := p.fieldWindow(len(fields))
-	for i := first; i < first+p.fieldRows(len(fields)); i++ {
-		lines = append(lines, p.fieldLine(i, fields[i], d))
-	}
 	iw := max(10, p.w-2)
-	if p.typing && fields[p.sel].hint != "" && p.note == "" {
-		lines = append(lines, strings.Split(st.Dim.Width(iw).Render(fields[p.sel].hint), "\n")...)
-	}
+	wrapped := func(s lipgloss.Style, text string) []string { return strings.Split(s.Width(iw).Render(text), "\n") }
+	var note, hint, status, props, keys []string
 	if p.note != "" {
-		lines = append(lines, strings.Split(st.Error.Width(iw).Render(p.note), "\n")...)
+		note = wrapped(st.Error, p.note)
+	} else if p.typing {
+		if h := p.typingHint(fields[p.sel]); h != "" {
+			hint = wrapped(st.Dim, h)
+		}
 	}
+	table := false
 	switch {
 	case !p.available:
-		lines = append(lines, st.Dim.Render("The payment table (package contract/budget)"), st.Dim.Render("is not part of this build yet."))
+		status = []string{st.Dim.Render("The payment table (package contract/budget)"), st.Dim.Render("is not part of this build yet.")}
 	case p.err != nil && !p.running:
-		lines = append(lines, strings.Split(st.Error.Width(iw).Render("✗ "+p.err.Error()), "\n")...)
+		status = wrapped(st.Error, "✗ "+p.err.Error())
 	case p.table != nil || p.running:
+		table = true
 		if p.running {
-			lines = append(lines, p.progressLine())
+			status = []string{p.progressLine()}
 		} else {
-			lines = append(lines, p.verdictLine())
+			status = []string{p.verdictLine()}
 		}
-		lines = append(lines, p.proposalLines()...)
+		props, keys = p.proposalLines()
+	default:
+		status = []string{st.Dim.Render("fitting…")}
+	}
+	floor := 0 // the table's lines kept first
+	if table && p.table != nil {
+		floor = min(minTableLines, len(p.table.lines))
+	}
+	room := p.h - 2 - 1 - len(note) - len(hint) - len(status) - len(props) - floor
+	if len(keys) > room {
+		keys = nil // the footer lists them too
+	}
+	room -= len(keys)
+	nf := min(p.fieldRows(len(fields)), 1+max(0, room))
+	var lines []string
+	first := p.fieldWindow(len(fields), nf)
+	for i := first; i < first+nf; i++ {
+		lines = append(lines, p.fieldLine(i, fields[i], d))
+	}
+	lines = append(lines, note...)
+	lines = append(lines, hint...)
+	lines = append(lines, status...)
+	lines = append(lines, props...)
+	lines = append(lines, keys...)
+	if table {
 		vp := p.vp
 		vp.Height = max(1, p.h-2-len(lines))
 		lines = append(lines, vp.View())
-	default:
-		lines = append(lines, st.Dim.Render("fitting…"))
 	}
 	title := fmt.Sprintf("Budget and table · field %d of %d", p.sel+1, len(fields))
 	return paneFrame(st, title, p.focused, p.w, p.h, strings.Join(lines, "\n"))
+}
+
+// typingHint is the help under the input of field f: its own, and while
+// the value stands whole, that typing replaces it.
+func (p BudgetPane) typingHint(f budgetField) string {
+	if !p.ti.Whole() {
+		return f.hint
+	}
+	return strings.TrimPrefix(f.hint+"; typing replaces the value, ←/→ edit it", "; ")
 }
 
 // progressLine is the fit's progress: the re-check's beliefs done.

@@ -35,7 +35,9 @@ func selectBudgetField(t *testing.T, m *Model, label string) {
 	t.Fatalf("no budget field %q", label)
 }
 
-// typeBudget types text into the field labelled label and presses enter.
+// typeBudget types text into the field labelled label key by key, as a
+// user does (the value shown is replaced by the first key), and presses
+// enter.
 func typeBudget(t *testing.T, m *Model, label, text string) {
 	t.Helper()
 	selectBudgetField(t, m, label)
@@ -43,7 +45,9 @@ func typeBudget(t *testing.T, m *Model, label, text string) {
 	if !m.budget.Typing() {
 		t.Fatalf("%s: enter did not open the input (note %q)", label, m.budget.note)
 	}
-	m.budget.ti.SetValue(text)
+	for _, r := range text {
+		press(t, m, runes(string(r)))
+	}
 	press(t, m, keyEnter)
 }
 
@@ -368,5 +372,65 @@ func TestBudgetMarksAgainstBruteForce(t *testing.T) {
 		if v := m.View(); marked > 0 && !strings.Contains(v, "mark") {
 			t.Errorf("unit %s: the mark column is not shown:\n%s", unit, v)
 		}
+	}
+}
+
+// A menu file named relative in a design is beside the design file, not
+// in the working directory: a design opened from its folder fits on its
+// menu (the tests run in tui/, where there is no menu.csv), a name typed
+// into the Menu field means the same, and saving into another folder
+// writes the path so it still names that file.
+func TestBudgetMenuRelativeToTheDesign(t *testing.T) {
+	root := t.TempDir()
+	home, elsewhere := filepath.Join(root, "bakery"), filepath.Join(root, "archive", "2027")
+	for _, dir := range []string{home, elsewhere} {
+		if err := os.MkdirAll(dir, 0o700); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if err := os.WriteFile(filepath.Join(home, "menu.csv"), []byte("0.1\n0.3\n0.5\n0.7\n0.9\n"), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(filepath.Join(home, "short.csv"), []byte("0.2\n0.5\n0.8\n"), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	d := DemoFrost()
+	d.Budget.Step, d.Budget.Menu, d.Dir = 0, "menu.csv", home
+	file := filepath.Join(home, "sells-out.toml")
+	if err := d.Save(file, false); err != nil {
+		t.Fatal(err)
+	}
+	opened, err := design.Load(file)
+	if err != nil {
+		t.Fatal(err)
+	}
+	m := testModel(t, opened, Settings{Dir: root})
+	start(t, m, 80, 24)
+	if tv := m.budget.table; tv == nil || len(tv.Rows) != 5 {
+		t.Fatalf("the design's own menu.csv was not read: table %+v, err %v", tv, m.budget.err)
+	}
+	typeBudget(t, m, "Menu", "short.csv")
+	if tv := m.budget.table; tv == nil || len(tv.Rows) != 3 || m.Design().Budget.Menu != "short.csv" {
+		t.Fatalf("a typed relative menu was not read beside the design: table %+v, err %v", tv, m.budget.err)
+	}
+	press(t, m, keyCtrlS)
+	if m.dialog == nil {
+		t.Fatal("ctrl+s opened no dialog")
+	}
+	moved := filepath.Join(elsewhere, "sells-out.toml")
+	m.dialog.path.SetValue(moved)
+	press(t, m, keyEnter)
+	text, err := os.ReadFile(moved)
+	if err != nil {
+		t.Fatalf("not saved: %v (status %q)", err, m.status)
+	}
+	if !strings.Contains(string(text), `menu = "../../bakery/short.csv"`) {
+		t.Errorf("the menu path does not name the same file from the new folder:\n%s", text)
+	}
+	if got := m.Design().MenuPath(); got != filepath.Join(home, "short.csv") {
+		t.Errorf("after the save the workbench reads the menu from %q", got)
+	}
+	if m.Unsaved() {
+		t.Error("rewriting the menu path for the new folder left the design unsaved")
 	}
 }

@@ -64,15 +64,16 @@ func certificateLines(st Styles, c *CertificateView) []string {
 	if c == nil {
 		return nil
 	}
-	vs := st.Pass
+	vs, kind := st.Pass, c.Kind
 	switch c.Verdict {
 	case "improper":
 		vs = st.Fail
 	case string(certify.Undecided):
-		vs = st.Dim
+		// Nothing was proved: the line must not read "(certified)".
+		vs, kind = st.Dim, "not certified"
 	}
 	return []string{
-		fmt.Sprintf("Certificate %s (%s)", vs.Render(c.headline()), c.Kind),
+		fmt.Sprintf("Certificate %s (%s)", vs.Render(c.headline()), kind),
 		st.Dim.Render("  " + c.Statement),
 	}
 }

@@ -2,7 +2,6 @@ package tui
 
 import (
 	"fmt"
-	"scorewright/internal/numfmt"
 	"strconv"
 	"strings"
 
@@ -11,6 +10,7 @@ import (
 	"github.com/charmbracelet/x/ansi"
 
 	"scorewright/internal/num"
+	"scorewright/internal/numfmt"
 )
 
 // The checks pane lists one line per check, then an entry for the verdict
@@ -173,7 +173,10 @@ func (p ChecksPane) detailText() []string {
 		}
 		return append(out, gridLine(r), kindLine(r))
 	}
-	out := []string{"Verdict " + r.Verdict + " (" + r.Kind() + ")"}
+	out := []string{"Verdict " + r.Final() + " (" + r.Kind() + ")"}
+	if r.Final() != r.Verdict {
+		out = append(out, "Grid verdict "+r.Verdict+" (grid evidence)")
+	}
 	if c := r.Certificate; c != nil {
 		out = append(out, "Certificate "+c.Verdict+" ("+c.Kind+"): "+c.Statement)
 	}
@@ -184,7 +187,7 @@ func (p ChecksPane) detailText() []string {
 // shortKindLine is kindLine for the pane's list, where a line is narrow.
 func shortKindLine(r *CheckReport) string {
 	if r.Certified {
-		return "Proved; the grid checked what the proof leaves."
+		return "Proved; the grid check agrees."
 	}
 	return "A grid check is evidence, not proof."
 }
@@ -192,7 +195,7 @@ func shortKindLine(r *CheckReport) string {
 // kindLine closes the full text with what the verdict rests on.
 func kindLine(r *CheckReport) string {
 	if r.Certified {
-		return "The verdict rests on the certificate's proof; the grid checked only what the proof leaves (boundary beliefs and reports)."
+		return "The verdict rests on the certificate's proof; the grid check, run in full before it, found nothing against it."
 	}
 	return "A grid check is evidence, not proof."
 }

@@ -26,6 +26,10 @@ type ChecksPane struct {
 	err         error
 	stale       bool // the report is for an earlier design
 	blocked     string
+	// proving is the certificate running after the grid, certDone of
+	// certTotal its share proved.
+	proving             bool
+	certDone, certTotal float64
 	// sel is the selected entry: a check row, or len(Rows) for the
 	// verdict and notes; detail shows its full text, scrolled by scroll.
 	sel    int
@@ -72,7 +76,21 @@ func (p ChecksPane) KeyHelp() []key.Binding {
 // edited marks the shown report as stale and waits for the debounce.
 func (p *ChecksPane) edited() {
 	p.stale = p.report != nil || p.err != nil
-	p.waiting, p.running, p.blocked = true, false, ""
+	p.waiting, p.running, p.blocked, p.proving = true, false, "", false
+}
+
+// certifying marks the certificate as begun for the shown report.
+func (p *ChecksPane) certifying() { p.proving, p.certDone, p.certTotal = true, 0, 0 }
+
+// certified puts the certificate into the shown report, and with it the
+// kind of its verdict: certified when the certificate decided and the grid
+// does not contradict it.
+func (p *ChecksPane) certified(c *CertificateView) {
+	p.proving = false
+	if r := p.report; r != nil {
+		r.Certificate = c
+		r.Certified = c != nil && c.Verdict != "" && c.Verdict != "undecided" && !contradicted(r)
+	}
 }
 
 // block says the checks cannot run for the current design, and why.
@@ -88,7 +106,7 @@ func (p *ChecksPane) started() {
 func (p *ChecksPane) progressed(done, total float64) { p.done, p.total = done, total }
 
 func (p *ChecksPane) finished(r *CheckReport, err error) {
-	p.running, p.report, p.err, p.stale = false, r, err, false
+	p.running, p.report, p.err, p.stale, p.proving = false, r, err, false, false
 	if r != nil {
 		p.sel = min(p.sel, len(r.Rows))
 	}
@@ -142,7 +160,7 @@ func (p ChecksPane) View() string {
 		lines = append(lines, strings.Split(st.Error.Width(max(10, p.w-2)).Render("✗ "+p.err.Error()), "\n")...)
 	}
 	if r := p.report; r != nil {
-		verdict := r.Verdict
+		verdict := r.Final()
 		vs := st.Pass
 		if strings.Contains(verdict, "improper") || !allPassed(r) {
 			vs = st.Fail
@@ -152,6 +170,13 @@ func (p ChecksPane) View() string {
 			head = st.Dim.Render("previous design's verdict: " + verdict)
 		}
 		lines = append(lines, head)
+		if p.proving && !p.stale {
+			pct := 0.0
+			if p.certTotal > 0 {
+				pct = p.certDone / p.certTotal
+			}
+			lines = append(lines, p.bar.ViewAs(pct)+fmt.Sprintf(" %3.0f%% proving", pct*100))
+		}
 		// The certificate right under the grid verdict, so that a small
 		// terminal shows both kinds of verdict before any detail.
 		lines = append(lines, certificateLines(st, r.Certificate)...)

@@ -3,10 +3,13 @@ package tui
 import (
 	"context"
 	"strings"
+	"sync/atomic"
 	"testing"
+	"time"
 
 	"github.com/charmbracelet/x/ansi"
 	"github.com/charmbracelet/x/exp/golden"
+	"github.com/charmbracelet/x/exp/teatest"
 
 	"scorewright/generator/design"
 	"scorewright/internal/pool"
@@ -106,28 +109,104 @@ func TestHelpNamesNewKeys(t *testing.T) {
 	}
 }
 
-// The workbench hands a certificate's proof to the grid, as check
-// --certify does: a proved rule's verdict is certified; a rule the
-// certificate does not prove proper stays grid evidence.
-// The verdicts are the textbook ones (from memory): 1 - sum(p^2) is
-// strictly proper, sum(p^2) (a convex H) improper.
-func TestCheckerRestsOnProof(t *testing.T) {
+// The certificate runs as its own job after the grid and gives every
+// mode's verdict its kind, as `check --certify` and `audit --certify`
+// state it: a rule, a payout audit and a point forecast the certificate
+// decides are "certified" in the checks pane and the header; with the
+// certificate off they are grid evidence. The verdicts are the textbook
+// ones (from memory): 1 - sum(p^2) is strictly proper, sum(p^2) (a convex
+// H) improper, the quadratic payout 10 - 5·sum((p - hit)^2) strictly proper (proved
+// epsilon-proper by the certificate), the linear payout p[y] improper, and phi(x) = -x^2 (the squared
+// error) strictly proper for a mean.
+func TestCertificateKindEveryMode(t *testing.T) {
+	point := &design.Design{Version: 1, Title: "loaves", Mode: design.ModePoint, Formula: "-x^2", Interval: []float64{0, 40},
+		Budget: design.Budget{Floor: 0, Cap: 20}}
 	for _, c := range []struct {
-		formula   string
-		certified bool
-	}{{"1 - sum(p^2)", true}, {"sum(p^2)", false}} {
-		d := DemoFrost()
-		d.Preset, d.Formula = "", c.formula
-		r, err := verifyChecker(context.Background(), d, Settings{Resolution: 40}, nil)
-		if err != nil {
-			t.Fatalf("%s: %v", c.formula, err)
+		name    string
+		d       *design.Design
+		verdict string
+		grid    string // the grid's verdict, when it is not the certificate's
+	}{
+		{"quadratic", withFormula(design.ModeGenerator, "1 - sum(p^2)"), "strictly-proper", ""},
+		{"convex", withFormula(design.ModeGenerator, "sum(p^2)"), "improper", ""},
+		// The payout certificate proves that no report gains more than its
+		// epsilon, not strict properness (the grid's "strictly" stays grid
+		// evidence, in the full text).
+		{"quadratic payout", withFormula(design.ModePayout, "10 - 5*sum((p - hit)^2)"), "epsilon-proper", "strictly-proper"},
+		{"linear payout", withFormula(design.ModePayout, "p[y]"), "improper", ""},
+		{"point", point, "strictly-proper", ""},
+	} {
+		for _, off := range []bool{false, true} {
+			set := Settings{Resolution: 40}
+			if off {
+				set.CertifyDeadline = -1
+			}
+			m := testModel(t, c.d.Clone(), set)
+			start(t, m, 120, 40)
+			r := m.checks.report
+			if r == nil {
+				t.Fatalf("%s: no report (err %v)", c.name, m.checks.err)
+			}
+			want, verdict := "certified", c.verdict
+			if off {
+				want = "grid evidence"
+				if c.grid != "" {
+					verdict = c.grid
+				}
+			}
+			if r.Kind() != want || r.Final() != verdict {
+				t.Errorf("%s (certificate off %v): %s (%s), want %s (%s); certificate %+v", c.name, off, r.Final(), r.Kind(), verdict, want, r.Certificate)
+			}
+			if h := ansi.Strip(m.View()); !strings.Contains(h, strings.ReplaceAll(verdict, "-", " ")+", "+want) {
+				t.Errorf("%s: the header does not say %q:\n%s", c.name, verdict+", "+want, h)
+			}
 		}
-		if r.Certified != c.certified || r.Certificate == nil {
-			t.Errorf("%s: certified %v (want %v), certificate %+v", c.formula, r.Certified, c.certified, r.Certificate)
+	}
+}
+
+// withFormula is the frost demo with its own formula in mode.
+func withFormula(mode design.Mode, formula string) *design.Design {
+	d := DemoFrost()
+	d.Mode, d.Preset, d.Formula = mode, "", formula
+	return d
+}
+
+// The grid's verdict shows as soon as the grid ends, while the
+// certificate still runs (held open here): the header says the proof is
+// running; an edit cancels the certificate job, and the next one's answer
+// lands.
+func TestGridVerdictBeforeCertificate(t *testing.T) {
+	hold := make(chan struct{})
+	var stopped atomic.Int64
+	cert := func(ctx context.Context, d *design.Design, s Settings, progress pool.Progress) (*CertificateView, error) {
+		progress(pool.Step{Done: 0.25, Total: 1, Unit: pool.UnitShare})
+		select {
+		case <-hold:
+			return &CertificateView{Kind: "certified", Verdict: "strictly-proper", Statement: "held open by the test"}, nil
+		case <-ctx.Done():
+			stopped.Add(1)
+			return nil, ctx.Err()
 		}
-		if want := map[bool]string{true: "certified", false: "grid evidence"}[c.certified]; r.Kind() != want {
-			t.Errorf("%s: kind %q, want %q", c.formula, r.Kind(), want)
-		}
+	}
+	fc := &fakeChecker{points: 100}
+	m := testModel(t, nil, Settings{Checker: fc.check, Certifier: cert})
+	tm := teatest.NewTestModel(t, m, teatest.WithInitialTermSize(120, 40))
+	o := &outputWatch{t: t, tm: tm}
+	o.wait("test-pass")
+	o.wait("proof running")
+	o.act()
+	tm.Send(runes("+")) // an outcome more: a new design
+	waitFor(t, func() bool { return stopped.Load() == 1 })
+	o.wait("outcome 3")
+	o.wait("proof running") // the new design's grid is done, its proof runs
+	o.act()
+	close(hold)
+	o.wait("held open by the test")
+	tm.Send(keyCtrlC)
+	tm.Send(keyCtrlC)
+	fm := tm.FinalModel(t, teatest.WithFinalTimeout(10*time.Second)).(*Model)
+	if r := fm.checks.report; r == nil || r.Kind() != "certified" || fm.Design().N() != 3 {
+		t.Errorf("after the proof: %+v", r)
 	}
 }
 

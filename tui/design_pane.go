@@ -9,7 +9,6 @@ import (
 	"github.com/charmbracelet/bubbles/cursor"
 	"github.com/charmbracelet/bubbles/key"
 	"github.com/charmbracelet/bubbles/textarea"
-	"github.com/charmbracelet/bubbles/textinput"
 	tea "github.com/charmbracelet/bubbletea"
 
 	"scorewright/generator/design"
@@ -58,7 +57,7 @@ type DesignPane struct {
 	sel     int
 	edit    editing
 	ta      textarea.Model
-	ti      textinput.Model
+	ti      valueInput
 	pick    int
 	// confirm is 1 + the preset asked about: a pick that drops the
 	// outcomes (or the interval) is taken on the second enter.
@@ -92,10 +91,7 @@ func NewDesignPane(st Styles, keys KeyMap, d *design.Design) DesignPane {
 	ta.FocusedStyle.CursorLine = st.Header.UnsetBold()
 	ta.BlurredStyle.Text = st.Dim
 	ta.SetValue(d.Formula)
-	ti := textinput.New()
-	ti.Prompt = "› "
-	ti.Cursor.SetMode(cursor.CursorStatic)
-	calmEditing(&ti.KeyMap.DeleteAfterCursor, &ti.KeyMap.DeleteBeforeCursor)
+	ti := newValueInput(st.Selected.Reverse(true))
 	return DesignPane{st: st, keys: keys, ta: ta, ti: ti, byMode: map[design.Mode]string{}, stepByMode: map[bool]float64{}}
 }
 
@@ -254,12 +250,11 @@ func (p DesignPane) editRow(d *design.Design) (DesignPane, tea.Cmd, bool) {
 	switch {
 	case row == int(rowOutcomes):
 		p.edit = editLabels
-		p.ti.SetValue(strings.Join(d.Labels, ", "))
+		value := strings.Join(d.Labels, ", ")
 		if onInterval(d) {
-			p.ti.SetValue(fmt.Sprintf("%g, %g", d.Interval[0], d.Interval[1]))
+			value = fmt.Sprintf("%g, %g", d.Interval[0], d.Interval[1])
 		}
-		p.ti.CursorEnd()
-		return p, p.ti.Focus(), false
+		return p, p.ti.Start(value), false
 	case row == int(rowOrder) && !onInterval(d):
 		d.Ordered = !d.Ordered
 		return p, nil, true
@@ -268,9 +263,7 @@ func (p DesignPane) editRow(d *design.Design) (DesignPane, tea.Cmd, bool) {
 		return p, p.ta.Focus(), false
 	case row >= int(rowParams) && row < p.presetRow():
 		p.edit = editParam
-		p.ti.SetValue(strconv.FormatFloat(p.params[row-int(rowParams)].Value, 'g', -1, 64))
-		p.ti.CursorEnd()
-		return p, p.ti.Focus(), false
+		return p, p.ti.Start(strconv.FormatFloat(p.params[row-int(rowParams)].Value, 'g', -1, 64)), false
 	case row == p.presetRow():
 		p.edit = editPreset
 		p.pick = 0

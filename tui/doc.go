@@ -12,7 +12,7 @@
 // outdated design are dropped. Running checks are cancelled through their
 // context as soon as the design changes.
 //
-// Every kind of background work (checks, fit, picture, backtest, risk) is
+// Every kind of background work (checks, certificate, fit, picture, backtest, risk) is
 // kept as one job (tui/job.go): the id of its latest run, the generation it
 // is for, and its cancel function; start replaces a run, drop makes its
 // answers stale. The backtest and risk views lay themselves out when a
@@ -118,26 +118,38 @@
 // design; an unsaved hand-written formula is asked about after that.
 //
 // Budget pane fields (`tui/budget_fields.go`, one list): Floor, Cap, Mean, Ref. (the mean pay's
-// reference belief), Step, Menu (a CSV file of reports that replaces the step's grid), R.floor (the
+// reference belief), Step, Menu (a CSV file of reports that replaces the step's grid; a relative
+// path is relative to the design file's folder, `Design.MenuPath`, and saving elsewhere rewrites
+// it so it names the same file), R.floor (the
 // report floor), Clamp, Unit, Rounding, Weights, Currency and Forecasts (the last two are terms of
 // the annex too). The pane shows a window of the fields around the selected one; ←/→ step a field
-// (a list, a mode cycle, ±1 or ±10), enter types a value, and a value that would make the design
+// (a list, a mode cycle, ±1 or ±10), enter types a value (`tui/valueinput.go`, as for parameters,
+// outcomes and terms: the value opened stands whole, so the first typed key or a paste replaces it
+// and backspace clears it, while a cursor key keeps it to edit), and a value that would make the design
 // invalid is refused with the design file's message. Mean is a mean-pay budget (`Budget.MeanPay`:
 // the expected pay of a truthful forecaster at the reference belief, uniform unless Ref. names one;
 // it replaces the cap, whose row then says it is not used): → from "none" starts at three quarters
 // of the way from floor to cap, ← below the floor or typing 0 clears it. Point designs refuse the
 // fields of rules over outcomes. Every edit cancels the running fit; the next one shows its
 // progress (the re-check's beliefs) in the pane. The table shows each row's re-check margin and
-// marks the rows whose report ties with another (TIE) or is beaten (BEATEN) for its own belief, in a
-// first column so a narrow pane keeps it. The propose key (f, `tui/propose.go`) runs
+// marks the rows whose report ties with another (TIE) or is beaten (BEATEN) for its own belief; the
+// mark and the margin come first so a narrow pane keeps them, and the pays scroll sideways with
+// < and >. The pane's height goes first to the selected field, a refusal or the typing hint, the
+// verdict and proposals, then the table's head and four rows, then the other fields, so at 80×24 the
+// table stays readable. The propose key (f, `tui/propose.go`) runs
 // `Rule.Propose` in the background (progress, cancelled by any edit): the coarsest currency unit
-// the re-check passes with, and for a failing table the smallest cap (point-forecast tables too, on
-// their own re-check); the digit keys take one.
+// the re-check passes with, and for a failing table the smallest cap (every whole step of
+// `budget.CapGrain` is tried; point-forecast tables too, on their own re-check), each line saying
+// which it is; the digit keys take one.
 //
 // Look (`tui/header.go`, `tui/chrome.go`, `NewStyles`): the header names the design (and its file,
 // or "not saved yet", and whether it is edited), the view shown, and the verdict with its kind —
 // "certified" when the interval certificate decided it, "grid evidence" otherwise — or that a check
-// runs. Panes are brackets, not boxes: a rule down the left and along the bottom, heavy for the
+// runs. The grid's verdict shows when the grid check ends; the certificate then runs as its own
+// job (`tui/certjob.go`, `Settings.Certifier`, "proof running" in the header, a "proving" bar in
+// the checks pane, dropped by an edit), and once it decides and the grid does not contradict it,
+// the verdict that stands is the certificate's (`CheckReport.Final`) for every mode: rules, payout
+// audits, point forecasts. Panes are brackets, not boxes: a rule down the left and along the bottom, heavy for the
 // focused pane and light and dashed for the others, the title on the first line. Dialogs have a
 // half-block edge. The palette is ochre (focus, keys), slate (frames, secondary text), sage and brick
 // (pass, fail); nothing depends on colour alone. The footer is our own key line: each key and what it

@@ -7,12 +7,11 @@ import (
 	"fmt"
 	"path/filepath"
 	"runtime"
-	"scorewright"
-	"scorewright/internal/numfmt"
 	"strconv"
 	"strings"
 	"time"
 
+	"scorewright"
 	"scorewright/contract/annex"
 	"scorewright/contract/budget"
 	"scorewright/contract/cost"
@@ -20,6 +19,7 @@ import (
 	"scorewright/contract/table"
 	"scorewright/generator/design"
 	"scorewright/internal/num"
+	"scorewright/internal/numfmt"
 	"scorewright/internal/pool"
 	"scorewright/internal/safefile"
 	"scorewright/verify"
@@ -49,18 +49,10 @@ func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress p
 	if err != nil {
 		return nil, err
 	}
+	// The grid alone: the certificate is a job of its own that starts
+	// when this ends (tui/certjob.go), so a slow proof never holds back
+	// the grid's verdict, and it sets the verdict's kind for every mode.
 	vs := verify.Settings{Resolution: s.Resolution, Tolerance: s.Tolerance, Workers: workers(s), Progress: progress}
-	// The certificate goes first, as `check --certify` runs it: what it
-	// proves the grid need not stream again (verify.Settings.Proof), and
-	// the verdict is then certified, not grid evidence. It runs in the
-	// same job, so an edit cancels it with the grid.
-	cert := certifyDesign(ctx, r, s, progress)
-	if err := ctx.Err(); err != nil {
-		return nil, err
-	}
-	if cert != nil && (cert.Verdict == string(verify.Proper) || cert.Verdict == string(verify.StrictlyProper)) {
-		vs.Proof = &verify.Proof{Verdict: verify.Verdict(cert.Verdict), Statement: cert.Statement}
-	}
 	found, err := r.Examine(ctx, vs)
 	if err != nil {
 		return nil, err
@@ -68,15 +60,12 @@ func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress p
 	var out *CheckReport
 	switch {
 	case found.Rule != nil:
-		out = fromVerify(found.Rule)
-		out.Certificate = cert
-		return out, nil
+		return fromVerify(found.Rule), nil
 	case found.Audit != nil:
 		out = fromVerify(&found.Audit.Report)
 	default:
 		out = fromPoint(found.Point)
 	}
-	out.Certificate = cert
 	if line := found.IdentifiedLine(); line != "" {
 		out.Notes = append(out.Notes, line)
 	}
@@ -110,7 +99,7 @@ func fromPoint(rep *pointcheck.Report) *CheckReport {
 
 func fromVerify(r *verify.Report) *CheckReport {
 	out := &CheckReport{Verdict: string(r.Verdict), Resolution: r.Grid.Resolution, Points: int64(r.Grid.Points),
-		Sampled: r.Grid.Sampled, Tolerance: r.Grid.Tolerance, Notes: r.Notes, Certified: r.Proof != nil}
+		Sampled: r.Grid.Sampled, Tolerance: r.Grid.Tolerance, Notes: r.Notes}
 	for _, c := range r.Checks {
 		// The worst value as the command prints it: rounding noise is 0.
 		worst := scorewright.CleanWorst(c.Worst, r.Grid)
@@ -254,10 +243,14 @@ func (te tableExporter) Export(ctx context.Context, d *design.Design, req Export
 			tb.Meta.VerdictKind = table.Certified
 		}
 	}
-	a, b, clamp := t.PayLine()
-	ax, err := annex.InputFor(d, tb, r.Outcomes(), a, b, clamp, te.version)
-	if err != nil {
-		return nil, err
+	var ax *annex.Input
+	if t.Point != nil {
+		ax = annex.InputForPoint(d, tb, r.Point(), t.Point.A, t.Point.B, te.version)
+	} else {
+		a, b, clamp := t.PayLine()
+		if ax, err = annex.InputFor(d, tb, r.Outcomes(), a, b, clamp, te.version); err != nil {
+			return nil, err
+		}
 	}
 	if req.Lottery {
 		// The same lottery as `scorewright table --lottery`: whole

@@ -84,12 +84,12 @@ func (m *Model) verdictWords() string {
 		return st.Dim.Render("not checked yet")
 	}
 	r := c.report
-	verdict, kind := r.Verdict, r.Kind()
-	// The certificate's verdict stands in the header unless the grid found
-	// the rule improper where the proof says proper: then the header shows
-	// the grid's witness-backed verdict, as the checks pane does.
-	if cert := r.Certificate; cert != nil && cert.Verdict != "" && cert.Verdict != "undecided" && !contradicted(r) {
-		verdict, kind = cert.Verdict, "certified"
+	// The certificate's verdict stands once it decided, unless the grid
+	// found the rule improper where the proof says proper: then the grid's
+	// witness-backed verdict, as in the checks pane (CheckReport.Final).
+	verdict, kind := r.Final(), r.Kind()
+	if c.proving {
+		kind += ", proof running"
 	}
 	words := strings.ReplaceAll(verdict, "-", " ")
 	if strings.Contains(verdict, "improper") || !allPassed(r) {

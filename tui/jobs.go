@@ -24,14 +24,23 @@ type CheckReport struct {
 	Sampled   bool
 	Tolerance float64
 	// Certified is true when the verdict rests on the certificate's
-	// proof (the grid checked only what the proof leaves); false when it
-	// is grid evidence.
+	// proof (it decided, and the grid found nothing against it); false
+	// when it is grid evidence.
 	Certified bool
 	Rows      []CheckRow
 	Notes     []string
 	// Certificate is what the interval certificate proved; nil when none
 	// was run.
 	Certificate *CertificateView
+}
+
+// Final is the verdict that stands: the certificate's when it decided and
+// the grid does not contradict it (Certified), the grid's otherwise.
+func (r *CheckReport) Final() string {
+	if r.Certified && r.Certificate != nil {
+		return r.Certificate.Verdict
+	}
+	return r.Verdict
 }
 
 // Kind is the verdict's kind in words: "certified" or "grid evidence".

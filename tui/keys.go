@@ -23,7 +23,7 @@ type KeyMap struct {
 	// Checks pane.
 	Rerun key.Binding
 	// Budget pane.
-	PageUp, PageDown, Propose, TakeFirst, TakeSecond key.Binding
+	PageUp, PageDown, TableLeft, TableRight, Propose, TakeFirst, TakeSecond key.Binding
 	// Backtest view.
 	History, StopRun key.Binding
 	// Dialogs.
@@ -86,6 +86,9 @@ func DefaultKeyMap() KeyMap {
 
 		PageUp:   b([]string{"pgup"}, "pgup", "scroll the table up"),
 		PageDown: b([]string{"pgdown"}, "pgdn", "scroll the table down"),
+		// < and >: the table's columns sideways (←/→ step the field).
+		TableLeft:  b([]string{"<"}, "<", "scroll the table left"),
+		TableRight: b([]string{">"}, ">", "scroll the table right"),
 		// f: find a budget that passes; the digits take the proposal
 		// listed under that number, so taking one is a deliberate choice.
 		Propose:    b([]string{"f"}, "f", "find a unit or cap the re-check passes with"),
@@ -159,7 +162,7 @@ func (k KeyMap) groups() []helpGroup {
 			"there " + keyList(k.Up, k.Down, k.PageUp, k.PageDown) + " scroll, " + keyList(k.Less, k.More) + " the other checks,",
 			keyList(k.Leave) + " back to the list"}},
 		{title: "Terms of the annex (" + k.Terms.Help().Key + ")", keys: []key.Binding{k.Up, k.Down, k.Edit, k.Leave}},
-		{title: "Budget pane (arrows and enter as above)", keys: []key.Binding{k.PageUp, k.PageDown, k.Propose, k.TakeFirst, k.TakeSecond}, notes: []string{
+		{title: "Budget pane (arrows and enter as above)", keys: []key.Binding{k.PageUp, k.PageDown, k.TableLeft, k.TableRight, k.Propose, k.TakeFirst, k.TakeSecond}, notes: []string{
 			"rows the re-check fails are marked TIE or BEATEN;",
 			keyList(k.Leave) + " drops the proposals; an edit cancels the search"}},
 		{title: "Backtest view (" + k.Backtest.Help().Key + ")", keys: []key.Binding{k.History, k.StopRun}, notes: []string{

@@ -3,6 +3,7 @@ package tui
 import (
 	"context"
 	"errors"
+	"path/filepath"
 	"strings"
 
 	"github.com/charmbracelet/bubbles/viewport"
@@ -78,30 +79,30 @@ type Model struct {
 	cancelAll context.CancelFunc
 	// The background work, one job each (tui/job.go): run ids, the
 	// generation each run is for, and cancellation.
-	checkJob, fitJob, picJob, btJob, riskJob job
-	history                                  string // the forecast history the backtest replays ("" none)
-	showBT                                   bool   // the backtest view replaces the panes
-	bt                                       BacktestView
-	showRisk                                 bool // the risk view replaces the panes
-	risk                                     RiskView
-	research                                 *ResearchRoom // the research view (tui/research.go) replaces the panes when shown
-	terms                                    *TermsRoom    // the annex's terms (tui/terms.go) replace the panes when shown
-	demoIndex                                int
-	savedGen                                 uint64       // generation last opened or saved
-	leaving                                  *leavePrompt // the unsaved-changes prompt, when open
-	afterSave                                *leavePrompt // an action waiting for the save dialog to succeed
-	rec                                      *recovery.Store
-	recReady                                 bool           // the look for a previous run's edits has answered
-	recOffer                                 *recoveryOffer // edits a previous run left, offered at start
-	recKey                                   string         // the design path the last recovery write was for
-	recWrote                                 bool           // a recovery file of this run may exist
-	focus                                    pane
-	lower                                    pane // which of checks/budget the small layout shows
-	designPane                               DesignPane
-	picture                                  PicturePane
-	checks                                   ChecksPane
-	budget                                   BudgetPane
-	dialog                                   *fileDialog
+	checkJob, certJob, fitJob, picJob, btJob, riskJob job
+	history                                           string // the forecast history the backtest replays ("" none)
+	showBT                                            bool   // the backtest view replaces the panes
+	bt                                                BacktestView
+	showRisk                                          bool // the risk view replaces the panes
+	risk                                              RiskView
+	research                                          *ResearchRoom // the research view (tui/research.go) replaces the panes when shown
+	terms                                             *TermsRoom    // the annex's terms (tui/terms.go) replace the panes when shown
+	demoIndex                                         int
+	savedGen                                          uint64       // generation last opened or saved
+	leaving                                           *leavePrompt // the unsaved-changes prompt, when open
+	afterSave                                         *leavePrompt // an action waiting for the save dialog to succeed
+	rec                                               *recovery.Store
+	recReady                                          bool           // the look for a previous run's edits has answered
+	recOffer                                          *recoveryOffer // edits a previous run left, offered at start
+	recKey                                            string         // the design path the last recovery write was for
+	recWrote                                          bool           // a recovery file of this run may exist
+	focus                                             pane
+	lower                                             pane // which of checks/budget the small layout shows
+	designPane                                        DesignPane
+	picture                                           PicturePane
+	checks                                            ChecksPane
+	budget                                            BudgetPane
+	dialog                                            *fileDialog
 	// exportFormat and exportLottery are what the last export asked for,
 	// so the next export dialog starts there.
 	exportFormat  string
@@ -123,6 +124,11 @@ func New(d *design.Design, path string, set Settings, st Styles) *Model {
 	}
 	if set.Checker == nil {
 		set.Checker = defaultChecker()
+		// The certificate goes with the build's checks; a test's own
+		// checker gets one only when it sets a Certifier too.
+		if set.Certifier == nil {
+			set.Certifier = defaultCertifier()
+		}
 	}
 	if set.Fitter == nil {
 		set.Fitter = defaultFitter()
@@ -270,7 +276,13 @@ func (m *Model) jobMsg(msg tea.Msg) tea.Cmd {
 				return nil
 			}
 			m.checks.finished(inner.report, inner.err)
+			if inner.err == nil {
+				return m.startCertificate()
+			}
 		}
+		return nil
+	case certRunMsg:
+		m.certMsg(msg)
 		return nil
 	case proposeProgressMsg, proposeDoneMsg:
 		m.proposeMsg(msg)
@@ -310,6 +322,10 @@ func (m *Model) fileMsg(msg tea.Msg) tea.Cmd {
 		gen := msg.gen
 		return m.fileDone(msg.seq, msg.err, func() {
 			m.path = msg.path
+			// The file's folder is the design's now: a relative menu path
+			// is rewritten to name the same file from there, as Save
+			// wrote it.
+			m.d.MoveTo(filepath.Dir(msg.path))
 			m.savedGen = gen
 			if !m.Unsaved() {
 				m.dropRecovery()
@@ -358,6 +374,7 @@ func (m *Model) edited() tea.Cmd {
 	m.gen++
 	// Answers of the runs for the old design are now stale.
 	m.checkJob.drop()
+	m.certJob.drop()
 	m.fitJob.stop()
 	m.checks.edited()
 	m.budget.edited()

@@ -16,6 +16,8 @@ func (m *Model) wanted(msg tea.Msg) bool {
 	switch r := msg.(type) {
 	case checkRunMsg:
 		return m.checkJob.current(r.run)
+	case certRunMsg:
+		return m.certJob.current(r.run)
 	case btRunMsg:
 		return m.btJob.current(r.run)
 	case riskRunMsg:
@@ -48,6 +50,7 @@ func (m *Model) maybeStart() tea.Cmd {
 	var cmds []tea.Cmd
 	if m.set.Checker != nil {
 		ctx, run := m.checkJob.start(m.ctx, m.gen)
+		m.certJob.drop() // a run again: the certificate follows the new grid
 		m.checks.started()
 		cmds = append(cmds, tagRun(run, checkCmd(ctx, m.gen, cloneDesign(m.d), m.set, m.set.Checker)))
 	}

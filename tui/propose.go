@@ -4,15 +4,16 @@ import (
 	"context"
 	"errors"
 	"fmt"
-	"scorewright/internal/numfmt"
 	"strings"
 
 	"github.com/charmbracelet/bubbles/key"
 	tea "github.com/charmbracelet/bubbletea"
+	"github.com/charmbracelet/x/ansi"
 
 	"scorewright"
 	"scorewright/contract/budget"
 	"scorewright/generator/design"
+	"scorewright/internal/numfmt"
 	"scorewright/internal/pool"
 )
 
@@ -143,8 +144,9 @@ func (m *Model) proposeMsg(msg tea.Msg) {
 }
 
 // proposalLines are the search's lines in the pane: progress, the
-// proposals numbered for the keys that take them, or why there are none.
-func (p BudgetPane) proposalLines() []string {
+// proposals numbered for the keys that take them, or why there are none;
+// keys is the line naming the keys, shown where there is room.
+func (p BudgetPane) proposalLines() (lines, keys []string) {
 	st, pr, k := p.st, p.prop, p.keys
 	switch {
 	case pr.running:
@@ -152,32 +154,38 @@ func (p BudgetPane) proposalLines() []string {
 		if pr.total > 0 {
 			pct = pr.done / pr.total
 		}
-		return []string{p.bar.ViewAs(pct) + fmt.Sprintf(" %3.0f%% searching", pct*100)}
+		return []string{p.bar.ViewAs(pct) + fmt.Sprintf(" %3.0f%% searching", pct*100)}, nil
 	case pr.err != nil:
-		return strings.Split(st.Error.Width(max(10, p.w-2)).Render("no proposal: "+pr.err.Error()), "\n")
+		return strings.Split(st.Error.Width(max(10, p.w-2)).Render("no proposal: "+pr.err.Error()), "\n"), nil
 	case pr.props == nil:
-		return nil
+		return nil, nil
 	}
-	var lines []string
 	for i, q := range pr.props {
-		lines = append(lines, st.Selected.Render(fmt.Sprintf("%d", i+1))+" "+shortProposal(q))
+		lines = append(lines, st.Selected.Render(fmt.Sprintf("%d", i+1))+" "+shortProposal(q, p.w-4))
 	}
-	keys := []string{}
+	var take []string
 	for i := range pr.props {
-		keys = append(keys, []key.Binding{k.TakeFirst, k.TakeSecond}[i].Help().Key)
+		take = append(take, []key.Binding{k.TakeFirst, k.TakeSecond}[i].Help().Key)
 	}
-	return append(lines, st.Dim.Render(strings.Join(keys, " or ")+": take it, "+k.Leave.Help().Key+": drop"))
+	return lines, []string{st.Dim.Render(strings.Join(take, " or ") + ": take it, " + k.Leave.Help().Key + ": drop")}
 }
 
-// shortProposal is a proposal in a pane's width: what changes, and the
-// margin the re-check passes with.
-func shortProposal(q budget.Proposal) string {
+// shortProposal is a proposal in width w: what changes and that it is
+// the coarsest unit or the smallest cap (or mean pay) the re-check passes
+// with, then its margin where there is room.
+func shortProposal(q budget.Proposal, w int) string {
 	b := q.Budget
+	var s string
 	switch q.Field {
 	case "unit":
-		return fmt.Sprintf("unit %g: passes, margin %s", b.Unit, numfmt.Margin(q.MinMargin))
+		s = fmt.Sprintf("unit %g, the coarsest that passes", b.Unit)
 	case "cap":
-		return fmt.Sprintf("cap %g at unit %g: passes, margin %s", b.Cap, b.Unit, numfmt.Margin(q.MinMargin))
+		s = fmt.Sprintf("cap %g, the smallest that passes", b.Cap)
+	default:
+		s = fmt.Sprintf("mean pay %g, the smallest that passes", *b.MeanPay)
 	}
-	return fmt.Sprintf("mean pay %g at unit %g: passes, margin %s", *b.MeanPay, b.Unit, numfmt.Margin(q.MinMargin))
+	if m := " (margin " + numfmt.Margin(q.MinMargin) + ")"; ansi.StringWidth(s+m) <= w {
+		s += m
+	}
+	return s
 }

@@ -24,7 +24,7 @@ func TestProposeFlow(t *testing.T) {
 	o.wait("menu re-check FAILED")
 	o.act()
 	tm.Send(runes("f"))
-	o.wait("1 unit 0.1: passes")
+	o.wait("1 unit 0.1, the coarsest")
 	o.act()
 	tm.Send(runes("1"))
 	o.wait("took the proposal")
@@ -176,4 +176,46 @@ func TestProposePointBruteForce(t *testing.T) {
 		}
 		return pointPasses(t, tv)
 	})
+}
+
+// At 80×24 with two proposals showing, the table keeps its head and at
+// least four rows, and each row's margin and mark are on screen (they
+// come first; the pays scroll sideways with < and >).
+func TestBudgetTableRoomAt80x24(t *testing.T) {
+	d := DemoFrost()
+	d.Budget.Unit = 1
+	d.Budget.Cap = 100
+	m := testModel(t, d, Settings{})
+	start(t, m, 80, 24)
+	selectBudgetField(t, m, "Unit")
+	settle(t, m, m.budgetKey(runes("f")))
+	if len(m.budget.prop.props) != 2 {
+		t.Fatalf("proposals %+v", m.budget.prop)
+	}
+	view := m.View()
+	rows, head := 0, false
+	for _, l := range strings.Split(view, "\n") {
+		head = head || strings.Contains(l, "mark  margin  report")
+		if strings.Contains(l, "(0") && strings.Contains(l, ")") {
+			rows++
+		}
+	}
+	if !head || rows < 4 {
+		t.Errorf("head shown %v, %d table rows at 80×24:\n%s", head, rows, view)
+	}
+	headLine := func() string {
+		for _, l := range strings.Split(m.View(), "\n") {
+			if strings.Contains(l, "pay if") {
+				return l
+			}
+		}
+		return ""
+	}
+	if strings.Contains(headLine(), "clear") {
+		t.Fatalf("the table fits the pane; the sideways scroll is not tested:\n%s", m.View())
+	}
+	press(t, m, runes(">"))
+	if !strings.Contains(headLine(), "clear") {
+		t.Errorf("> did not scroll the table to its last column:\n%s", m.View())
+	}
 }

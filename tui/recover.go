@@ -143,6 +143,9 @@ func (m *Model) recoveryKey(km tea.KeyMsg) tea.Cmd {
 	case key.Matches(km, k.Restore):
 		m.recOffer = nil
 		m.path = o.entry.Of
+		if m.path != "" {
+			o.d.Dir = filepath.Dir(absPath(m.path)) // a relative menu path is the file's
+		}
 		cmd := m.replaceDesign(o.d)
 		m.savedGen = 0 // the restored edits are still unsaved
 		m.status = fmt.Sprintf("restored the unsaved edits of %s from %s; save them with %s", offerName(o), o.entry.Written.Local().Format("2 Jan 15:04"), k.Save.Help().Key)

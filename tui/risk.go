@@ -5,12 +5,12 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"scorewright"
 
 	"github.com/charmbracelet/bubbles/key"
 	"github.com/charmbracelet/bubbles/progress"
 	tea "github.com/charmbracelet/bubbletea"
 
+	"scorewright"
 	"scorewright/contract/budget"
 	"scorewright/contract/risk"
 	"scorewright/generator/design"

@@ -3,8 +3,6 @@ package tui
 import (
 	"fmt"
 	"math"
-	"scorewright/internal/num"
-	"scorewright/internal/numfmt"
 	"strings"
 
 	"github.com/charmbracelet/x/ansi"
@@ -12,6 +10,8 @@ import (
 	"scorewright"
 	"scorewright/contract/risk"
 	"scorewright/generator/design"
+	"scorewright/internal/num"
+	"scorewright/internal/numfmt"
 )
 
 // statusLine says where the view's content stands.

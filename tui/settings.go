@@ -22,6 +22,9 @@ type Settings struct {
 	// CertifyDeadline bounds the interval certificate run after the grid
 	// checks (0: 3 s; negative: no certificate).
 	CertifyDeadline time.Duration
+	// Certifier runs the interval certificate, as a job of its own after
+	// the grid check; nil with the default Checker means the build's.
+	Certifier Certifier
 	// Checker runs the checks; nil means the build's default, which may be
 	// none (the checks pane then says so).
 	Checker Checker

@@ -5,9 +5,7 @@ import (
 	"strconv"
 	"strings"
 
-	"github.com/charmbracelet/bubbles/cursor"
 	"github.com/charmbracelet/bubbles/key"
-	"github.com/charmbracelet/bubbles/textinput"
 	tea "github.com/charmbracelet/bubbletea"
 
 	"scorewright/generator/design"
@@ -78,16 +76,14 @@ type TermsRoom struct {
 	shown  bool
 	sel    int
 	typing bool
-	ti     textinput.Model
+	ti     valueInput
 	note   string
 }
 
 // NewTermsRoom returns a hidden terms view.
 func NewTermsRoom(st Styles, keys KeyMap) *TermsRoom {
-	ti := textinput.New()
-	ti.Prompt = "› "
+	ti := newValueInput(st.Selected.Reverse(true))
 	ti.CharLimit = 200
-	ti.Cursor.SetMode(cursor.CursorStatic)
 	return &TermsRoom{st: st, keys: keys, ti: ti}
 }
 
@@ -157,9 +153,7 @@ func (t *TermsRoom) Update(km tea.KeyMsg, d *design.Design) (handled, changed bo
 		t.sel = (t.sel + 1) % len(fields)
 	case key.Matches(km, k.Edit):
 		t.typing, t.note = true, ""
-		t.ti.SetValue(fields[t.sel].get(d))
-		t.ti.CursorEnd()
-		return true, false, t.ti.Focus()
+		return true, false, t.ti.Start(fields[t.sel].get(d))
 	case key.Matches(km, k.Quit), key.Matches(km, k.Help):
 		return false, false, nil // as everywhere else: q quits (asking first), ? shows the keys
 	case km.Type == tea.KeyRunes || km.Type == tea.KeySpace || km.Type == tea.KeyLeft || km.Type == tea.KeyRight:

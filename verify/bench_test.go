@@ -34,8 +34,12 @@ func benchMenu(b *testing.B, n, k int) (*simplex.Grid, *menu) {
 
 var benchSizes = []struct{ n, k int }{{3, 200}, {4, 40}}
 
-// streamSizes adds the sizes of the performance targets to benchSizes.
-var streamSizes = append([]struct{ n, k int }{{2, 20000}, {3, 400}}, benchSizes...)
+// largerSizes are grids past n = 4, where every n has its own kernel.
+var largerSizes = []struct{ n, k int }{{6, 12}, {8, 7}}
+
+// streamSizes adds the sizes of the performance targets, and larger n,
+// to benchSizes.
+var streamSizes = append(append([]struct{ n, k int }{{2, 20000}, {3, 400}}, benchSizes...), largerSizes...)
 
 // BenchmarkStream is the pair stream, best and second best tracked for
 // every grid belief, on all cores: "full" visits every pair, "pruned" is

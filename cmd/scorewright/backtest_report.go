@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"scorewright/internal/numfmt"
 	"strings"
 
 	"github.com/charmbracelet/x/ansi"
@@ -13,6 +12,7 @@ import (
 	"scorewright/contract/backtest/history"
 	"scorewright/contract/table"
 	"scorewright/internal/num"
+	"scorewright/internal/numfmt"
 	"scorewright/internal/textcol"
 )
 

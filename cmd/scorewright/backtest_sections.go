@@ -8,13 +8,13 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"scorewright/internal/numfmt"
 	"strconv"
 
 	"scorewright"
 	"scorewright/contract/backtest"
 	"scorewright/contract/backtest/corp"
 	"scorewright/internal/num"
+	"scorewright/internal/numfmt"
 	"scorewright/internal/textcol"
 )
 

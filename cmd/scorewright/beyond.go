@@ -5,12 +5,11 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"scorewright/internal/numfmt"
 
 	"scorewright"
-
 	"scorewright/contract/table"
 	"scorewright/internal/num"
+	"scorewright/internal/numfmt"
 )
 
 // lotteryJSON is the lottery part of a table summary.

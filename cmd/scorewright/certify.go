@@ -137,7 +137,13 @@ func printCertificate(w io.Writer, c *certificateJSON) {
 	if c.Epsilon != nil {
 		eps = float64(*c.Epsilon)
 	}
-	fmt.Fprintf(w, "\ncertificate (%s): %s\n", c.Kind, scorewright.CertificateHeadline(c.Verdict, eps))
+	// An undecided certificate proved no verdict: its line must not
+	// read "(certified)".
+	kind := string(c.Kind)
+	if c.Verdict == certify.Undecided {
+		kind = "not certified"
+	}
+	fmt.Fprintf(w, "\ncertificate (%s): %s\n", kind, scorewright.CertificateHeadline(c.Verdict, eps))
 	fmt.Fprintf(w, "               %s\n", c.Statement)
 }
 

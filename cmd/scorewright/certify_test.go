@@ -138,3 +138,13 @@ func TestTableRecordsVerdictKind(t *testing.T) {
 		t.Errorf("exit %d\n%s", code, out)
 	}
 }
+
+// A certificate that proves nothing says so: the spherical payout over 4
+// outcomes is not decided in 50 ms (it was not in 60 s), and its line must
+// not read "(certified)" for the verdict undecided.
+func TestUndecidedCertificateIsNotCalledCertified(t *testing.T) {
+	code, out, errs := runCmd(t, "audit", "--outcomes", "4", "--payout", "p[y]/sqrt(sum(p^2))", "--resolution", "8", "--certify", "--deadline", "50ms")
+	if code != 0 || !strings.Contains(out, "certificate (not certified): undecided") || strings.Contains(out, "(certified): undecided") {
+		t.Errorf("exit %d: %s%s", code, out, errs)
+	}
+}

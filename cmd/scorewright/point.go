@@ -9,16 +9,17 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"scorewright"
-	"scorewright/internal/numfmt"
 	"strconv"
 	"strings"
 
+	"scorewright"
+	"scorewright/contract/annex"
 	"scorewright/contract/budget"
 	"scorewright/contract/table"
 	"scorewright/generator/design"
 	"scorewright/generator/point"
 	"scorewright/internal/num"
+	"scorewright/internal/numfmt"
 	"scorewright/internal/textcol"
 	"scorewright/presets"
 	"scorewright/verify"
@@ -302,12 +303,10 @@ func printPointReport(e *env, rep *pointcheck.Report, asJSON bool, cert *certifi
 // writePointTable exports the table of a point design (the menu of
 // reports against outcome columns) and prints its summary, like any other
 // table.
-func writePointTable(e *env, d *design.Design, t *scorewright.Table, tb *table.Table, format string, tf *tableFlags) error {
+func writePointTable(e *env, d *design.Design, t *scorewright.Table, tb *table.Table, format string, tf *tableFlags, g *point.Generator) error {
 	fit, rc := t.Point, t.PointRecheck
-	ax, err := annexInput(d, tb, nil, 0, 0, 0)
-	if err != nil {
-		return err
-	}
+	ax := annex.InputForPoint(d, tb, g, fit.A, fit.B, version)
+	var err error
 	sum := newPointTableSummary(fit, rc, tb, format, tf.out)
 	if tf.lottery {
 		if sum.Lottery, err = lotteryTable(tb, t, tf.draws); err != nil {

@@ -10,11 +10,11 @@ import (
 	"math"
 	"os"
 	"path/filepath"
-	"scorewright"
 	"strconv"
 	"strings"
 	"time"
 
+	"scorewright"
 	"scorewright/contract/annex"
 	"scorewright/contract/budget"
 	"scorewright/contract/lottery"
@@ -132,7 +132,7 @@ func tableOf(e *env, fs *flag.FlagSet, d *design.Design, format string, tf *tabl
 		return err
 	}
 	if t.Point != nil {
-		return writePointTable(e, d, t, tb, format, tf)
+		return writePointTable(e, d, t, tb, format, tf, r.Point())
 	}
 	fit, rc := t.Fit, t.Recheck
 	a, b, clamp := t.PayLine()
@@ -220,7 +220,7 @@ func tableMenu(fs *flag.FlagSet, tf *tableFlags, d *design.Design) (*budget.Menu
 		m, err = scorewright.FileMenu(tf.menu, d.N())
 	case d.Budget.Menu != "" && !stepSet:
 		// The design's own menu file, as the workbench fits it.
-		m, err = scorewright.FileMenu(d.Budget.Menu, d.N())
+		m, err = scorewright.FileMenu(d.MenuPath(), d.N())
 	case d.Budget.Step > 0:
 		m, err = scorewright.StepMenu(d.N(), d.Budget)
 	default:

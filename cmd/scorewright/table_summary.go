@@ -4,12 +4,12 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"scorewright/internal/numfmt"
 	"strconv"
 
 	"scorewright/contract/budget"
 	"scorewright/contract/table"
 	"scorewright/internal/num"
+	"scorewright/internal/numfmt"
 	"scorewright/internal/textcol"
 )
 

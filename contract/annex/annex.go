@@ -27,6 +27,7 @@ import (
 	"scorewright/contract/payform"
 	"scorewright/contract/table"
 	"scorewright/generator/design"
+	"scorewright/internal/numfmt"
 )
 
 // Formats lists the annex formats.
@@ -79,6 +80,10 @@ type Document struct {
 	// Currency labels amounts ("" when the table holds chances).
 	Currency string
 	Cost     *cost.Cost
+	// CostNote says what the contract costs when Cost cannot (a point
+	// table: no distribution of the outcome is stated): the buyer's worst
+	// case; beside Cost, how a lottery's cost relates to it.
+	CostNote string
 	// Record is the verification record, in the order every format
 	// writes it.
 	Record   []table.Field
@@ -131,6 +136,12 @@ func New(in Input) (*Document, error) {
 		doc.OffMenu = offMenu
 	}
 	doc.FormulaLines, doc.FormulaNote = formulaText(in.Formula, t)
+	switch {
+	case in.Cost == nil:
+		doc.CostNote = worstCase(t, c)
+	case t.Kind != table.KindMoney:
+		doc.CostNote = lotteryCost(t, c.Currency)
+	}
 	for _, f := range t.Meta.Fields() {
 		switch f.Key {
 		case "WARNING", "title", "caution":
@@ -150,6 +161,34 @@ func (d *Document) RunningHead() string {
 		return d.Title
 	}
 	return d.Title + " — payment annex"
+}
+
+// worstCase is the cost sentence of a table without a base rate: the
+// expected cost needs a distribution of the outcome, so only the buyer's
+// worst case, the largest amount for every forecast, is stated.
+func worstCase(t *table.Table, c design.Contract) string {
+	most := math.Inf(-1)
+	for _, row := range t.Values {
+		for _, v := range row {
+			most = math.Max(most, v)
+		}
+	}
+	unit := ""
+	if t.Kind == table.KindMoney {
+		unit = " units"
+		if c.Currency != "" {
+			unit = " " + c.Currency
+		}
+	}
+	s := "The expected cost is not stated: it needs a distribution of the outcome, which the design does not give. The buyer's worst case is the largest amount in the table for every forecast: " + t.Value(most) + unit + " per forecast"
+	if t.Kind != table.KindMoney {
+		s = "The expected cost is not stated: it needs a distribution of the outcome, which the design does not give. At worst the buyer gives the largest chance in the table, " + t.Value(most) + ", for every forecast"
+		return s + "."
+	}
+	if c.Forecasts > 0 {
+		s += fmt.Sprintf(", %s%s over %d forecasts", t.Value(most*float64(c.Forecasts)), unit, c.Forecasts)
+	}
+	return s + "."
 }
 
 // Canonical is the design as a file, version set: the bytes the
@@ -208,8 +247,34 @@ func clause(t *table.Table, currency string) (string, string) {
 		}
 		return "For each forecast, the forecaster reports " + row + " before the outcome is known. When the outcome is known, the buyer pays the forecaster the amount" + cur + " in that row's column for the outcome that happened.", ""
 	}
-	c := "For each forecast, the forecaster reports " + row + " before the outcome is known. When the outcome is known, the forecaster receives the chance in that row's column for the outcome that happened of winning the prize stated in the record, settled by the draw below."
+	floor, prize := float64(t.Meta.Floor), float64(t.Meta.Cap-t.Meta.Floor)
+	certain := ""
+	if floor != 0 {
+		certain = "the buyer pays the forecaster " + amount(floor, currency) + " and "
+	}
+	c := "For each forecast, the forecaster reports " + row + " before the outcome is known. When the outcome is known, " + certain + "the forecaster receives the chance in that row's column for the outcome that happened of winning a prize of " + amount(prize, currency) + ", settled by the draw below."
 	return c, drawText(t)
+}
+
+// lotteryCost relates the money table's cost to the lottery's: the floor
+// for certain and the prize when won cost the same in expectation, up to
+// the rounding of the chances to whole 1/10^Decimals.
+func lotteryCost(t *table.Table, currency string) string {
+	prize := float64(t.Meta.Cap - t.Meta.Floor)
+	s := "These are the amounts of the money table. Paid as the lottery, each forecast costs the buyer " + amount(float64(t.Meta.Floor), currency) + ", and the prize of " + amount(prize, currency) + " when it is won: in expectation the same"
+	if t.Decimals >= 1 && t.Decimals <= 6 {
+		s += ", up to the rounding of the chances (at most " + amount(prize*math.Pow10(-t.Decimals)/2, currency) + " per forecast)"
+	}
+	return s + "."
+}
+
+// amount writes an amount of money in the annex's prose with its currency
+// label ("units" when the design names none).
+func amount(v float64, currency string) string {
+	if currency == "" {
+		currency = "units"
+	}
+	return numfmt.Readable(v) + " " + currency
 }
 
 // drawText states the draw of a lottery table: a whole number when its
@@ -226,13 +291,19 @@ func drawText(t *table.Table) string {
 // there is none.
 func formulaText(f *payform.Formula, t *table.Table) ([]string, string) {
 	rounding := t.Meta.Rounding
+	if f == nil && t.ReportName != "" {
+		return nil, "This rule has no short closed formula here; each amount is A − B·D(y, x) with D(y, x) = phi(x) + phi′(x)·(y − x) − phi(y), phi the generator in the record, x the reported value and y the outcome's column, " + rounding + ". The design below computes it again."
+	}
 	if f == nil {
 		return nil, "This rule has no short closed formula here; each amount is A − B·L(p, k) with the effort L of the generator in the record (and the clamp, if any), " + rounding + ". The design below computes it again."
 	}
 	lines := append([]string(nil), f.Lines...)
 	note := "(" + f.Family + " rule) " + f.Where + ". The table's amounts are these values " + rounding + "; where a rounded amount and the formula differ, the table governs."
+	if t.ReportName != "" {
+		note += " An outcome between two columns is paid as the verification record states."
+	}
 	if t.Kind != table.KindMoney {
-		note += " The chances are (pay − " + table.FormatNumber(float64(t.Meta.Floor)) + ") divided by the prize."
+		note += " The chances are (pay − " + amount(float64(t.Meta.Floor), t.Meta.Currency) + ") divided by the prize of " + amount(float64(t.Meta.Cap-t.Meta.Floor), t.Meta.Currency) + "."
 	}
 	return lines, note
 }

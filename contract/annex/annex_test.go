@@ -15,6 +15,7 @@ import (
 
 	"scorewright/contract/budget"
 	"scorewright/contract/cost"
+	"scorewright/contract/lottery"
 	"scorewright/contract/payform"
 	"scorewright/generator/bregman"
 	"scorewright/generator/bregman/bregmantest"
@@ -298,5 +299,38 @@ func TestRunningHeadSaysAnnexOnce(t *testing.T) {
 	}
 	if got := waterDoc(t).RunningHead(); got != "Daily capacity forecasts — Kestrel Vale Water — payment annex" {
 		t.Errorf("titled head %q", got)
+	}
+}
+
+// A lottery annex says in its clause what is paid for certain and what
+// the prize is, each with the currency, and how its cost relates to the
+// money table's: the water table (75 to 150 EUR) as chances of a prize of
+// 75 EUR besides 75 EUR for certain, drawn in thousandths, so rounding a
+// chance moves the expected cost by at most 75/2000 = 0.0375 EUR (derived
+// by hand).
+func TestLotteryAnnexStatesPrizeAndCost(t *testing.T) {
+	d := waterDesign()
+	base := docFor(t, d)
+	tb := base.Table
+	if err := lottery.Convert(tb, 75, 150); err != nil {
+		t.Fatal(err)
+	}
+	if err := lottery.Drawable(tb, 0); err != nil {
+		t.Fatal(err)
+	}
+	doc, err := New(Input{Design: d, Table: tb, Cost: base.Cost, Version: "test"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{"the buyer pays the forecaster 75 EUR and", "winning a prize of 75 EUR"} {
+		if !strings.Contains(doc.Clause, want) {
+			t.Errorf("clause %q lacks %q", doc.Clause, want)
+		}
+	}
+	if !strings.Contains(doc.Draw, "from 1 to 1000") {
+		t.Errorf("draw %q", doc.Draw)
+	}
+	if !strings.Contains(doc.CostNote, "at most 0.0375 EUR per forecast") {
+		t.Errorf("cost note %q", doc.CostNote)
 	}
 }

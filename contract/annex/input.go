@@ -9,6 +9,7 @@ import (
 	"scorewright/contract/table"
 	"scorewright/generator/bregman"
 	"scorewright/generator/design"
+	"scorewright/generator/point"
 	"scorewright/internal/num"
 )
 
@@ -33,6 +34,18 @@ func InputFor(d *design.Design, tb *table.Table, rule *bregman.Rule, a, b, clamp
 		tb.Meta.Notes = append(tb.Meta.Notes, c.Sentence(num.Format(c.Season.BaseRate)))
 	}
 	return in, nil
+}
+
+// InputForPoint gathers the annex of a point-forecast table: the closed
+// formula when the generator g is a quadratic (payform.FindPoint); no
+// expected cost, which would need a distribution of the outcome that a
+// point design does not state (the annex gives the buyer's worst case).
+func InputForPoint(d *design.Design, tb *table.Table, g *point.Generator, a, b float64, version string) *Input {
+	in := &Input{Design: d, Table: tb, Version: version}
+	if f, ok := payform.FindPoint(g, a, b); ok {
+		in.Formula = f
+	}
+	return in
 }
 
 // ExportFormats are the table's own formats, the PDF figure aside (pdf

@@ -96,9 +96,12 @@ func (d *Document) pdfBody(pdf *fpdf.Fpdf) {
 		pdf.MultiCell(0, lineH+0.5, l, "", "L", false)
 	}
 	d.pdfPara(pdf, d.FormulaNote)
+	d.pdfSection(pdf, "4. What the contract costs")
 	if d.Cost != nil {
-		d.pdfSection(pdf, "4. What the contract costs")
 		d.pdfCost(pdf)
+	}
+	if d.CostNote != "" {
+		d.pdfPara(pdf, d.CostNote)
 	}
 	d.pdfSectionKeep(pdf, "5. The payment table", tableKeep)
 	d.pdfTable(pdf)

@@ -136,6 +136,9 @@ func (d *Document) RecordRows() [][2]string {
 		rows = append(rows, [2]string{"pay per outcome", l})
 	}
 	rows = append(rows, [2]string{"about the formula", d.FormulaNote})
+	if d.CostNote != "" {
+		rows = append(rows, [2]string{"cost", d.CostNote})
+	}
 	if d.Cost != nil {
 		rows = append(rows, [2]string{"cost at the base rate", d.CostBaseRate()})
 		for _, l := range d.Cost.Lines() {

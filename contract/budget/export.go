@@ -3,12 +3,12 @@ package budget
 import (
 	"fmt"
 	"math"
-	"scorewright/internal/numfmt"
 	"strconv"
 	"strings"
 
 	"scorewright/contract/table"
 	"scorewright/internal/num"
+	"scorewright/internal/numfmt"
 )
 
 // Info is what a table's record needs beyond the fit: where the rule came

@@ -7,11 +7,11 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"scorewright/internal/numfmt"
 
 	"scorewright/contract/table"
 	"scorewright/generator/point"
 	"scorewright/internal/num"
+	"scorewright/internal/numfmt"
 )
 
 // PointSpec says how a point-forecast rule (generator/point) is turned into

@@ -5,10 +5,10 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"scorewright/internal/numfmt"
 
 	"scorewright/generator/bregman"
 	"scorewright/generator/design"
+	"scorewright/internal/numfmt"
 	"scorewright/internal/pool"
 )
 
@@ -18,9 +18,10 @@ func ProposalUnits() []float64 {
 	return []float64{100, 50, 25, 20, 10, 5, 2, 1, 0.5, 0.25, 0.2, 0.1, 0.05, 0.02, 0.01, 0.005, 0.002, 0.001}
 }
 
-// capSteps is how many steps of a twentieth of the range from floor to
-// cap the cap search takes at most: up to five times the range.
-const capSteps = 80
+// capSteps is how many steps the cap search takes at most: steps of a
+// hundredth of the range from floor to cap (rounded up to whole rounding
+// units), up to five times the range.
+const capSteps = 500
 
 // Proposal is a budget the menu re-check passes with, one field changed
 // from the budget asked about.
@@ -43,7 +44,7 @@ func (p *Proposal) Describe() string {
 	case "cap":
 		return fmt.Sprintf("cap %g: the smallest cap the re-check passes with at unit %g (margin %s)", p.Budget.Cap, p.Budget.Unit, numfmt.Margin(p.MinMargin))
 	}
-	return fmt.Sprintf("mean pay %g: the smallest the re-check passes with at unit %g (margin %s)", *p.Budget.MeanPay, p.Budget.Unit, numfmt.Margin(p.MinMargin))
+	return fmt.Sprintf("mean pay %g: the smallest mean pay the re-check passes with at unit %g (margin %s)", *p.Budget.MeanPay, p.Budget.Unit, numfmt.Margin(p.MinMargin))
 }
 
 // ErrNoProposal says that no budget searched passes the re-check.
@@ -55,10 +56,12 @@ var ErrNoProposal = errors.New("no currency unit down to 0.001 and no larger cap
 //   - the coarsest currency unit of the ladder (at most half the range
 //     from floor to cap), the rest of b kept: a coarser unit is an easier
 //     contract, and it costs the buyer nothing;
-//   - when b itself fails and has a unit, the smallest cap above b's
-//     (steps of a twentieth of the range, up to five times it) at b's
-//     unit, or the smallest mean pay for a mean-pay budget: a larger one
-//     only costs the buyer more.
+//   - when b itself fails and has a unit, the smallest cap above b's at
+//     b's unit, or the smallest mean pay for a mean-pay budget: a larger
+//     one only costs the buyer more. Every multiple of CapGrain above b's
+//     is tried in turn, up to five times the range, so no smaller cap of
+//     that grain passes (passing need not be monotone in the cap, so the
+//     search does not skip).
 //
 // A candidate passes when every menu item is the strict best report for
 // the belief that is that item, which is what decides Recheck's Passed.
@@ -116,14 +119,23 @@ func Search(ctx context.Context, b design.Budget, capNow float64, passes Passes,
 	if err != nil || now != nil || b.Unit == 0 {
 		return done(props, err)
 	}
-	for k := 1; k <= capSteps; k++ {
-		c, field := b, "cap"
+	from, field := capNow, "cap"
+	if b.MeanPay != nil {
+		from, field = *b.MeanPay, "mean pay"
+	}
+	grain := CapGrain(from-b.Floor, b.Unit)
+	first := math.Floor(from/grain+1e-9) + 1 // the first multiple above
+	for k := 0; k < capSteps; k++ {
+		c := b
+		// a cap (or mean pay) as a person writes it: a whole number of grains
+		v := math.Round((first+float64(k))*grain*1e6) / 1e6
+		if v > from+4*(from-b.Floor)+1e-9 {
+			break // five times the range
+		}
 		if b.MeanPay != nil {
-			// a mean pay as a person writes it
-			mp := math.Round((*b.MeanPay+float64(k)*(*b.MeanPay-b.Floor)/20)*1e6) / 1e6
-			c.MeanPay, field = &mp, "mean pay"
+			c.MeanPay = &v
 		} else {
-			c.Cap = math.Round((capNow+float64(k)*span/20)*1e6) / 1e6
+			c.Cap = v
 		}
 		p, err := s.try(field, c)
 		if err != nil {
@@ -134,6 +146,16 @@ func Search(ctx context.Context, b design.Budget, capNow float64, passes Passes,
 		}
 	}
 	return done(props, nil)
+}
+
+// CapGrain is the step of the cap search over a range span at rounding
+// unit: a whole number of units, the smallest at least a hundredth of the
+// range, so that five times the range is at most capSteps steps.
+func CapGrain(span, unit float64) float64 {
+	if !(unit > 0) {
+		return span / 100
+	}
+	return unit * math.Max(1, math.Ceil(span/100/unit-1e-9))
 }
 
 // done is a search's answer: err, or ErrNoProposal when nothing passed.

@@ -14,17 +14,17 @@ const quarter = 4000
 
 // brierPay is the pay of report p = i/20 when outcome k happens, in
 // 1/4000ths, on the quadratic rule's frost table with floor 0 and cap
-// c2/2, computed without this package: the effort is L(p, frost) = 2(1-p)²
-// and L(p, clear) = 2p² (Brier 1950, the two-outcome score), the largest
-// effort 2 pays 0 and effort 0 pays the cap, so pay = cap·(1 - L/2); at
-// p = i/20 that is cap·(1 - j²/400) with j = 20 - i for frost, i for
-// clear, which is 2000·c2 - 5·c2·j² in 1/4000ths (derived by hand).
-func brierPay(c2, i, k int) int {
+// c10/10, computed without this package: the effort is L(p, frost) =
+// 2(1-p)² and L(p, clear) = 2p² (Brier 1950, the two-outcome score), the
+// largest effort 2 pays 0 and effort 0 pays the cap, so pay = cap·(1 -
+// L/2); at p = i/20 that is cap·(1 - j²/400) with j = 20 - i for frost, i
+// for clear, which is 400·c10 - c10·j² in 1/4000ths (derived by hand).
+func brierPay(c10, i, k int) int {
 	j := 20 - i
 	if k == 1 {
 		j = i
 	}
-	return 2000*c2 - 5*c2*j*j
+	return 400*c10 - c10*j*j
 }
 
 // roundTo rounds v to a multiple of u (both in 1/4000ths), halves up (all
@@ -34,13 +34,13 @@ func roundTo(v, u int) int { return (2*v + u) / (2 * u) * u }
 
 // bruteMenuPasses decides by brute force over the menu whether every item
 // is the strict best report for the belief that is that item, on the
-// table of cap c2/2 rounded to u/4000: expected pay ×20 is i·pay(frost) +
-// (20-i)·pay(clear), a whole number, so the comparison is exact.
-func bruteMenuPasses(c2, u int) bool {
+// table of cap c10/10 rounded to u/4000: expected pay ×20 is i·pay(frost)
+// + (20-i)·pay(clear), a whole number, so the comparison is exact.
+func bruteMenuPasses(c10, u int) bool {
 	var pay [21][2]int
 	for i := 0; i <= 20; i++ {
 		for k := 0; k < 2; k++ {
-			pay[i][k] = roundTo(brierPay(c2, i, k), u)
+			pay[i][k] = roundTo(brierPay(c10, i, k), u)
 		}
 	}
 	for i := 0; i <= 20; i++ {
@@ -54,18 +54,23 @@ func bruteMenuPasses(c2, u int) bool {
 	return true
 }
 
+// tenths is a cap in tenths of the currency.
+func tenths(x float64) int { return int(x*10 + 0.5) }
+
 // in4000 is an amount in 1/4000ths.
 func in4000(x float64) int { return int(x*quarter + 0.5) }
 
 // The proposal is the coarsest unit of the ladder that passes, checked by
 // brute force over the menu: it passes, and every coarser unit tried
-// fails. When the cap must move instead, the proposed cap passes and every
-// smaller cap of the search fails.
+// fails. When the cap must move instead, the proposed cap passes and
+// every cap between the budget's and it, in whole steps of the search's
+// grain, fails by brute force: it is the smallest cap of that grain.
 func TestProposeAgainstBruteForce(t *testing.T) {
 	r := rule(t, "1 - sum(p^2)", 2)
 	m := stepMenu(t, 2, 0.05, 0)
+	capProposals := 0
 	for _, c := range []float64{10, 40, 100} {
-		for _, unit := range []float64{5, 1, 0.1} {
+		for _, unit := range []float64{5, 1, 0.5, 0.1} {
 			b := design.Budget{Floor: 0, Cap: c, Step: 0.05, Unit: unit}
 			props, err := Propose(context.Background(), r, m, b, nil)
 			if err != nil {
@@ -75,46 +80,48 @@ func TestProposeAgainstBruteForce(t *testing.T) {
 			if p.Field != "unit" || p.Budget.Cap != c {
 				t.Fatalf("cap %g unit %g: first proposal %+v", c, unit, p)
 			}
-			c2 := int(2 * c)
-			if !bruteMenuPasses(c2, in4000(p.Budget.Unit)) {
+			c10 := tenths(c)
+			if !bruteMenuPasses(c10, in4000(p.Budget.Unit)) {
 				t.Errorf("cap %g: proposed unit %g does not pass by brute force", c, p.Budget.Unit)
 			}
 			for _, u := range ProposalUnits() {
-				if u > p.Budget.Unit && u <= c/2 && bruteMenuPasses(c2, in4000(u)) {
+				if u > p.Budget.Unit && u <= c/2 && bruteMenuPasses(c10, in4000(u)) {
 					t.Errorf("cap %g: unit %g passes by brute force and is coarser than the proposed %g", c, u, p.Budget.Unit)
 				}
 			}
-			// A cap proposal comes only with a failing budget, and then
-			// it is the smallest cap of the search (steps of c/20) that
-			// passes; without one, no cap of the search passes.
-			failing := !bruteMenuPasses(c2, in4000(unit))
+			failing := !bruteMenuPasses(c10, in4000(unit))
 			if len(props) == 2 && !failing {
 				t.Errorf("cap %g unit %g: a cap proposal for a passing budget", c, unit)
 			}
-			found := 0.0
+			if !failing {
+				continue
+			}
+			// The brute force walks every cap of the grain above c, up to
+			// five times the range: the first that passes is the answer.
+			grain := tenths(CapGrain(c, unit))
+			want := 0
+			for ck := (c10/grain + 1) * grain; ck <= 5*c10; ck += grain {
+				if bruteMenuPasses(ck, in4000(unit)) {
+					want = ck
+					break
+				}
+			}
+			got := 0
 			if len(props) == 2 {
 				q := props[1]
 				if q.Field != "cap" || q.Budget.Unit != unit {
 					t.Fatalf("cap proposal %+v", q)
 				}
-				found = q.Budget.Cap
-				if !bruteMenuPasses(int(2*found+0.5), in4000(unit)) {
-					t.Errorf("cap %g unit %g: proposed cap %g fails by brute force", c, unit, found)
-				}
+				got = tenths(q.Budget.Cap)
+				capProposals++
 			}
-			if !failing {
-				continue
-			}
-			for k := 1; k <= capSteps; k++ {
-				ck := c + float64(k)*c/20
-				if found != 0 && ck >= found {
-					break
-				}
-				if bruteMenuPasses(int(2*ck+0.5), in4000(unit)) {
-					t.Errorf("cap %g unit %g: cap %g passes by brute force, proposed %v", c, unit, ck, props)
-				}
+			if got != want {
+				t.Errorf("cap %g unit %g: proposed cap %g, the smallest passing by brute force is %g (0: none)", c, unit, float64(got)/10, float64(want)/10)
 			}
 		}
+	}
+	if capProposals == 0 {
+		t.Error("no case needed a cap proposal; the cap search went untested")
 	}
 }
 

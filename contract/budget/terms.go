@@ -4,12 +4,12 @@ import (
 	"context"
 	"fmt"
 	"math"
-	"scorewright/internal/numfmt"
 
 	"scorewright/contract/table"
 	"scorewright/generator/bregman"
 	"scorewright/generator/design"
 	"scorewright/generator/formula"
+	"scorewright/internal/numfmt"
 	"scorewright/internal/simplex"
 )
 

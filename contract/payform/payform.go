@@ -27,12 +27,21 @@ type Formula struct {
 	Where string
 	// effort is the family's effort L(p, k), kept for Pay.
 	effort func(p []float64, k int) float64
+	// point is the pay of a point-forecast formula (FindPoint), nil for
+	// one over outcomes.
+	point  func(x, y float64) float64
 	a, b   float64
 	binary bool
 }
 
-// Pay is the exact (unrounded) pay A − B·L(p, k) the formula states.
-func (f *Formula) Pay(p []float64, k int) float64 { return f.a - f.b*f.effort(p, k) }
+// Pay is the exact (unrounded) pay A − B·L(p, k) the formula states; NaN
+// for a point formula (PayAt).
+func (f *Formula) Pay(p []float64, k int) float64 {
+	if f.effort == nil {
+		return math.NaN()
+	}
+	return f.a - f.b*f.effort(p, k)
+}
 
 // family is one closed form: its effort, and its pay written for n = 2
 // (in p, the probability the report gives the outcome that happened) and

@@ -3,12 +3,12 @@ package table
 import (
 	"fmt"
 	"math"
-	"scorewright/internal/numfmt"
 	"sort"
 	"strconv"
 	"strings"
 
 	"scorewright/internal/num"
+	"scorewright/internal/numfmt"
 )
 
 // Kind says what the values of a table are.

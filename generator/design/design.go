@@ -136,7 +136,8 @@ type Budget struct {
 	Clamp float64 `toml:"clamp,omitempty"`
 	// Menu, when set, is a CSV file of the reports the contract allows,
 	// one per line, instead of Step's grid (the two are not set
-	// together). A relative path is read from the working directory.
+	// together). A relative path is relative to the design file's
+	// folder (Design.MenuPath), and saving elsewhere rewrites it.
 	Menu string `toml:"menu,omitempty"`
 }
 
@@ -166,6 +167,10 @@ type Design struct {
 	Budget Budget `toml:"budget"`
 	// Contract is who pays whom, in which currency, over which season.
 	Contract Contract `toml:"contract,omitempty"`
+	// Dir is the folder of the file the design was opened from or saved
+	// to, where a relative Budget.Menu is read from (MenuPath); "" for a
+	// design never saved. It is not part of the file.
+	Dir string `toml:"-" json:"-"`
 }
 
 // SchemaVersion is the design file version this build writes.

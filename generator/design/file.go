@@ -41,7 +41,12 @@ func LoadContext(ctx context.Context, path string) (*Design, error) {
 	if err != nil {
 		return nil, err
 	}
-	return decodeNamed(b, path)
+	d, err := decodeNamed(b, path)
+	if err != nil {
+		return nil, err
+	}
+	d.Dir = folderOf(path)
+	return d, nil
 }
 
 // Read reads and validates design TOML from r, at most MaxFileBytes of it;
@@ -296,15 +301,24 @@ func (d *Design) Encode() ([]byte, error) {
 
 // Save writes d to path atomically. An existing file is replaced only when
 // overwrite is true; otherwise Save returns an error wrapping safefile.ErrExists.
+// A relative menu path is written relative to the new file's folder, so
+// that it names the same menu file; once written, d takes that folder and
+// path (and the schema version when it had none).
 func (d *Design) Save(path string, overwrite bool) error {
-	if d.Version == 0 {
-		d.Version = SchemaVersion
+	c := d.Clone()
+	c.MoveTo(folderOf(path))
+	if c.Version == 0 {
+		c.Version = SchemaVersion
 	}
-	b, err := d.Encode()
+	b, err := c.Encode()
 	if err != nil {
 		return err
 	}
-	return safefile.Write(path, b, overwrite)
+	if err := safefile.Write(path, b, overwrite); err != nil {
+		return err
+	}
+	d.Version, d.Dir, d.Budget.Menu = c.Version, c.Dir, c.Budget.Menu
+	return nil
 }
 
 // FieldError is a value of the wrong type in a design file, with where it

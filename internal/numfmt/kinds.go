@@ -17,7 +17,7 @@ import "math"
 //	statistic of a history: mean pay per forecast,     Statistic    4 significant
 //	  mean effort and its decomposition, CORP terms,
 //	  an observed base rate
-//	re-check margin (how far a row beats its rivals)   Margin       4 significant
+//	re-check margin (how far a row beats its rivals)   Margin       6 significant
 //	distortion of a report, in probability points      Points       3 significant
 
 // Amount writes an amount of money with decimals decimals, the currency
@@ -54,8 +54,11 @@ func Statistic(v, scale float64) string {
 func Probability(v float64) string { return Significant(v, 6) }
 
 // Margin writes a re-check margin: the least by which a row's expected
-// pay beats its closest rival for a forecaster who believes the row.
-func Margin(v float64) string { return Significant(v, 4) }
+// pay beats its closest rival for a forecaster who believes the row. It is
+// exact arithmetic on rounded amounts (0.21875 for amounts in halves), not
+// a sample, so it keeps six digits: four would show one margin as 0.2188
+// and its mirror image, a rounding error below it, as 0.2187.
+func Margin(v float64) string { return Significant(v, 6) }
 
 // Points writes a distortion of a report in probability points.
 func Points(v float64) string { return Significant(v, 3) }

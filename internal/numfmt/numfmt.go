@@ -19,6 +19,12 @@ func Significant(v float64, digits int) string {
 	if v == 0 {
 		return "0"
 	}
+	// Binary noise goes first (Clean), so that two values a rounding error
+	// apart on either side of a halfway point (0.21875 and
+	// 0.21874999999999997) read the same.
+	if digits < 12 {
+		v = Clean(v)
+	}
 	r, _ := strconv.ParseFloat(strconv.FormatFloat(v, 'g', digits, 64), 64)
 	if a := math.Abs(r); a >= 1e-6 && a < 1e15 {
 		return strconv.FormatFloat(r, 'f', -1, 64)
