@@ -67,6 +67,8 @@ type Encloser struct {
 	kinked bool
 	undef  bool
 	order  int
+	// forced holds the comparisons forced to one side (enclose_force.go).
+	forced map[int32]bool
 }
 
 // NewEncloser returns an Encloser for p.

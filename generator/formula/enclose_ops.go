@@ -134,7 +134,11 @@ func (e *Encloser) smoothLane(in *cell, l int32) {
 	case opMin, opMax:
 		e.minMax(in.op, i, ia, ib, a, b)
 	case opLt, opLe, opGt, opGe:
-		e.val[i] = e.compare(in.op, a, b)
+		if v, ok := e.forcedComparison(i); ok {
+			e.val[i] = v
+		} else {
+			e.val[i] = e.compare(in.op, a, b)
+		}
 		e.clearCell(i)
 	case opSelect:
 		c := e.val[in.c+l*in.sc]

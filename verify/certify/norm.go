@@ -44,6 +44,10 @@ const outerTolerance = 0x1p-52
 // program no longer computes the norm it writes.
 const maxNormExponent = 100
 
+// minNormTerm bounds the terms of the sum from below (and 1/minNormTerm
+// the weights from above), far from where doubles underflow or overflow.
+const minNormTerm = 1e-250
+
 // normResult is the certificate of a generator recognised as a negated
 // power of a weighted norm, or nil.
 func normResult(prog *formula.Program, n int, s Settings, start time.Time) *Result {
@@ -59,17 +63,27 @@ func normResult(prog *formula.Program, n int, s Settings, start time.Time) *Resu
 }
 
 // normTheorem checks the conditions of the argument above on a
-// recognised shape over n outcomes and returns what was proved.
+// recognised shape over n outcomes, and that the program's doubles
+// neither underflow nor overflow there (minNormTerm), and returns what
+// was proved.
 func normTheorem(nf formula.NormForm, n int) (string, bool) {
 	finite := func(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
 	a, e, c := nf.Inner, nf.Outer, nf.Coef
 	if len(nf.Weights) != n || !finite(c) || c >= 0 || !finite(a) || a <= 1 || a > maxNormExponent || !finite(e) || e <= 0 {
 		return "", false
 	}
+	var total float64
 	for _, w := range nf.Weights {
-		if !finite(w) || w <= 0 {
+		// In double precision the sum must stay a normal number on the
+		// whole simplex (each term is at least w_k·n^-a somewhere near
+		// the centre), or the program computes 0 or Inf, not the norm.
+		if !finite(w) || w <= 0 || w*math.Pow(float64(n), -a) < minNormTerm || w > 1/minNormTerm {
 			return "", false
 		}
+		total += w
+	}
+	if !finite(math.Abs(c) * math.Pow(total, e)) {
+		return "", false
 	}
 	// a·e - 1 with one rounding: its sign is exact.
 	gap := math.FMA(a, e, -1)
