@@ -17,6 +17,7 @@ import (
 
 	"scorewright/generator/design"
 	"scorewright/internal/num"
+	"scorewright/internal/pool"
 )
 
 // selectBudgetField focuses the budget pane and selects the field
@@ -211,9 +212,9 @@ type blockingFitter struct {
 	cancelled atomic.Int64
 }
 
-func (b *blockingFitter) fit(ctx context.Context, d *design.Design, progress func(done, total int64)) (*TableView, error) {
+func (b *blockingFitter) fit(ctx context.Context, d *design.Design, progress pool.Progress) (*TableView, error) {
 	b.started.Add(1)
-	progress(3, 6)
+	progress(pool.Step{Done: 3, Total: 6, Unit: pool.UnitWork})
 	select {
 	case <-ctx.Done():
 		b.cancelled.Add(1)

@@ -277,7 +277,7 @@ func (s *Solver) Distortion(ctx context.Context, beliefs [][]float64, progress p
 			}
 		}
 		if progress != nil {
-			progress(int64(i+1), int64(len(beliefs)))
+			progress(pool.Step{Done: float64(i + 1), Total: float64(len(beliefs)), Unit: pool.UnitWork, Last: i == len(beliefs)-1})
 		}
 	}
 	return c, nil
