@@ -2,6 +2,7 @@ package tui
 
 import (
 	"fmt"
+	"reflect"
 	"slices"
 	"strings"
 
@@ -186,8 +187,11 @@ func (p *BudgetPane) apply(d *design.Design, f budgetField, change func(t *desig
 		p.note = err.Error()
 		return false
 	}
-	*d = *trial
 	p.note = ""
+	if reflect.DeepEqual(trial, d) {
+		return false // the same value typed again is no edit: nothing to save
+	}
+	*d = *trial
 	return true
 }
 

@@ -175,17 +175,20 @@ func (p BudgetPane) proposalLines() (lines, keys []string) {
 // with, then its margin where there is room.
 func shortProposal(q budget.Proposal, w int) string {
 	b := q.Budget
-	var s string
+	what, long, short := "", "the smallest that passes", "smallest passing"
 	switch q.Field {
 	case "unit":
-		s = fmt.Sprintf("unit %g, the coarsest that passes", b.Unit)
+		what, long, short = fmt.Sprintf("unit %g", b.Unit), "the coarsest that passes", "coarsest passing"
 	case "cap":
-		s = fmt.Sprintf("cap %g, the smallest that passes", b.Cap)
+		what = fmt.Sprintf("cap %g", b.Cap)
 	default:
-		s = fmt.Sprintf("mean pay %g, the smallest that passes", *b.MeanPay)
+		what = fmt.Sprintf("mean pay %g", *b.MeanPay)
 	}
-	if m := " (margin " + numfmt.Margin(q.MinMargin) + ")"; ansi.StringWidth(s+m) <= w {
-		s += m
+	margin := " (margin " + numfmt.Margin(q.MinMargin) + ")"
+	for _, s := range []string{what + ", " + long + margin, what + ", " + long, what + ", " + short} {
+		if ansi.StringWidth(s) <= w {
+			return s
+		}
 	}
-	return s
+	return what + ", " + short
 }
