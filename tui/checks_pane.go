@@ -89,7 +89,7 @@ func (p *ChecksPane) certified(c *CertificateView) {
 	p.proving = false
 	if r := p.report; r != nil {
 		r.Certificate = c
-		r.Certified = c != nil && c.Verdict != "" && c.Verdict != "undecided" && !contradicted(r)
+		r.Certified = c != nil && c.Verdict != "" && c.Verdict != "undecided" && !contradicted(r) && !weaker(r)
 	}
 }
 

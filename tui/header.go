@@ -178,6 +178,16 @@ func (m *Model) footerKeys() []key.Binding {
 	return append(keys, as(k.Save, k.Save.Help().Key, "save"), as(k.Export, k.Export.Help().Key, "export"))
 }
 
+// weaker reports whether r's certificate proved only proper where the
+// grid found the rule strictly proper: a certificate that proved
+// strictness on part of the simplex only has not shown two reports that
+// tie, so its "proper" must not replace the grid's verdict (which then
+// stands, as grid evidence).
+func weaker(r *CheckReport) bool {
+	c := r.Certificate
+	return c != nil && c.Verdict == "proper" && r.Verdict == "strictly-proper"
+}
+
 // contradicted reports whether the grid found r's rule improper while its
 // certificate says proper.
 func contradicted(r *CheckReport) bool {

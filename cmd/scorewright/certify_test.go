@@ -148,3 +148,16 @@ func TestUndecidedCertificateIsNotCalledCertified(t *testing.T) {
 		t.Errorf("exit %d: %s%s", code, out, errs)
 	}
 }
+
+// A certificate that proves concavity but strictness only on part of the
+// simplex does not make the verdict "proper": -(p1 - p2)^4 is strictly
+// concave (its curvature -48(2p - 1)^2 vanishes at p = 1/2 only, an
+// isolated zero; derived by hand), so strictly proper, which the grid
+// finds; the verdict line keeps it, as grid evidence, under a
+// certificate that proved proper.
+func TestPartlyStrictCertificateKeepsTheGridsStrictness(t *testing.T) {
+	code, out, errs := runCmd(t, "check", "--outcomes", "2", "--generator", "-(p1-p2)^4", "--resolution", "200", "--certify")
+	if code != 0 || !strings.Contains(out, "verdict: strictly-proper (grid evidence)") || strings.Contains(out, "verdict: proper") {
+		t.Errorf("exit %d: %s%s", code, out, errs)
+	}
+}
