@@ -69,4 +69,11 @@ for f in ferry lottery harbour; do
   pages=$(pdfinfo "$work/$f.pdf" | awk '/^Pages:/ {print $2}')
   test "$(ls "$work/$f-page"-*.png | wc -l)" -eq "$pages"
 done
+# The README's picture of the water annex's first page is the page the
+# current build makes.
+"$sw" table --design "$designs/water.toml" --out "$work/water.pdf" >/dev/null
+pdftoppm -f 1 -l 1 -r 80 -png "$work/water.pdf" "$work/water-page"
+if ! cmp -s "$work/water-page-1.png" testdata/annex/page-1.png; then
+  fail "testdata/annex/page-1.png (the README's annex page) is not the current first page; make it again with: SOURCE_DATE_EPOCH=1767225600 scorewright table --design testdata/designs/water.toml --out water.pdf && pdftoppm -f 1 -l 1 -r 80 -png water.pdf page && cp page-1.png testdata/annex/page-1.png"
+fi
 echo "e2e-annex-designs: ok"
