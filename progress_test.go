@@ -88,6 +88,16 @@ func TestEveryJobReportsMonotoneProgress(t *testing.T) {
 		{"backtest of a file", pool.UnitBytes, func(p pool.Progress) error { return replay(quad, budget, p, int64(len(frostNights))) }},
 		{"backtest of a pipe", pool.UnitBytes, func(p pool.Progress) error { return replay(quad, budget, p, 0) }},
 	}
+	// A payout certificate that runs out of time turns from argument to
+	// argument (the spherical payout at n = 3 takes longer than a second):
+	// its boxes count on across them.
+	sphPay := openFor(t, &design.Design{Mode: design.ModePayout, Labels: []string{"a", "b", "c"}, Formula: "10*p[y]/sqrt(sum(p^2))"})
+	var rec pooltest.Recorder
+	if _, err := sphPay.Certify(ctx, certify.Settings{Deadline: time.Second, Progress: rec.Progress}); err != nil {
+		t.Error(err)
+	} else if err := rec.Monotone(pool.UnitShare); err != nil {
+		t.Errorf("payout certificate out of time: %v", err)
+	}
 	for _, j := range jobs {
 		var rec pooltest.Recorder
 		if err := j.run(rec.Progress); err != nil {

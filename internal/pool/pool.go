@@ -40,7 +40,10 @@ type Progress func(Step)
 // count and byte offset below 2^53 exactly.
 type Step struct {
 	// Done of Total is how far the job has gone, in Unit. Done never
-	// decreases within a job and never exceeds Total when Total is known.
+	// exceeds Total when Total is known, and never decreases within a
+	// job, with one exception: a payout certificate that gives up one
+	// argument for the next (verify/certify) shows the share the new one
+	// has proved, which starts again from 0.
 	// Total is 0 while the size is not known in advance (a backtest
 	// reading a pipe); the last Step of such a job gives Total = Done.
 	Done, Total float64

@@ -112,7 +112,9 @@ type Settings struct {
 	// the end (Last), from the calling goroutine: Done is the share of the
 	// simplex (or interval) by volume decided so far, of Total 1
 	// (pool.UnitShare); Items the boxes examined; Elapsed the time since
-	// the start.
+	// the start. A payout run that turns from one argument to the next
+	// shows the share the new one has proved, from 0 again; the boxes
+	// count on.
 	Progress pool.Progress
 }
 
@@ -326,6 +328,11 @@ type ticker struct {
 	fn    pool.Progress
 	start time.Time
 	last  time.Time
+	// base is the boxes examined by earlier phases of the run, added to
+	// those of a phase that counts its own from 0 (the payout's one-pass
+	// argument when it runs a second time), so that the boxes shown never
+	// fall.
+	base int
 }
 
 func (t *ticker) tick(share float64, boxes int, done bool) {
@@ -337,5 +344,5 @@ func (t *ticker) tick(share float64, boxes int, done bool) {
 		return
 	}
 	t.last = now
-	t.fn(pool.Step{Done: math.Min(1, share), Total: 1, Unit: pool.UnitShare, Items: int64(boxes), Elapsed: now.Sub(t.start), Last: done})
+	t.fn(pool.Step{Done: math.Min(1, share), Total: 1, Unit: pool.UnitShare, Items: int64(t.base + boxes), Elapsed: now.Sub(t.start), Last: done})
 }

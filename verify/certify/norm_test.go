@@ -65,8 +65,8 @@ func midpointGaps(t *testing.T, src string, n int) (worst, median float64) {
 	return worst, gaps[len(gaps)/2]
 }
 
-// TestNormCertified: negated powers of weighted a-norms with a > 1 are
-// strictly concave on the simplex (Minkowski's inequality; Hardy,
+// TestNormCertified: negated powers of weighted a-norms with a > 1, and
+// sums of them, are strictly concave on the simplex (Minkowski's inequality; Hardy,
 // Littlewood & Pólya, Inequalities, Theorem 24), so their rules are
 // strictly proper (Gneiting & Raftery 2007, Theorem 1 and Sec. 3 for the
 // pseudospherical rule). The certificate must prove them so, for n = 2..4,
@@ -81,6 +81,8 @@ func TestNormCertified(t *testing.T) {
 		"-sqrt(sum(p^2))",
 		"-sum(w*p^3)^(1/3) + 2*p1 - 1",
 		"-sum(p^3)^(1/2)", // a·e = 1.5: the norm to the power 1.5
+		"-sum(p^3)^(1/3) - sum(p^4)^(1/4)",
+		"1 - sum(p^2) - 0.5*sqrt(sum(w*p^2)) + p1",
 	} {
 		for n := 2; n <= 4; n++ {
 			res := certifyFormula(t, src, n, Settings{Deadline: time.Second})
@@ -129,6 +131,12 @@ func TestNormTheoremRefuses(t *testing.T) {
 		}
 		if res := certifyFormula(t, c.src, 3, Settings{Deadline: 200 * time.Millisecond}); byNorm(res) {
 			t.Errorf("%s (%q): %s", c.why, c.src, res.Statement())
+		}
+	}
+	// A sum of terms is certified only when every term is.
+	for _, src := range []string{"-sum(p^3)^(1/3) + sum(p^4)^(1/4)", "-sum(p^3)^(1/3) - 0.001*sum(p^0.5)^2", "-sum(p^3)^(1/3) - (p1^3 + p2^3)^(1/3)"} {
+		if res := certifyFormula(t, src, 3, Settings{Deadline: 200 * time.Millisecond}); byNorm(res) {
+			t.Errorf("%q: %s", src, res.Statement())
 		}
 	}
 	// The conditions are met one unit of 1/3's last place either side,
