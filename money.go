@@ -10,6 +10,7 @@ import (
 	"scorewright/contract/budget"
 	"scorewright/contract/risk"
 	"scorewright/generator/design"
+	"scorewright/internal/pool"
 )
 
 // The money side of a rule over outcomes: fits to a budget, backtests and
@@ -101,7 +102,7 @@ func (d *Distortion) PayLine() string { return risk.PayDesc(d.terms) }
 // solved (a belief not settled is in Curve.Failed). toward[i] is the
 // outcome Curve.Points[i] heads for (n > 2; nil for n = 2); along says in
 // words what the beliefs are.
-func (d *Distortion) Curve(ctx context.Context, progress func(done, total int64)) (curve *risk.Curve, toward []int, along string, err error) {
+func (d *Distortion) Curve(ctx context.Context, progress pool.Progress) (curve *risk.Curve, toward []int, along string, err error) {
 	beliefs, to, along := risk.CurveBeliefs(d.n, d.terms.Fit.ReportFloor)
 	if curve, err = d.Distortion(ctx, beliefs, progress); err != nil {
 		return nil, nil, "", err

@@ -11,6 +11,7 @@ import (
 	"scorewright/contract/table"
 	"scorewright/generator/bregman"
 	"scorewright/generator/design"
+	"scorewright/internal/pool"
 )
 
 // Errors of Table that callers word in their own terms (flags on the
@@ -52,7 +53,7 @@ func (r *Rule) Table(ctx context.Context, menu MenuFunc) (*Table, error) {
 // TableSettings tune TableWith. The zero value means the defaults.
 type TableSettings struct {
 	// Progress, when set, is told the re-check's beliefs done of the total.
-	Progress func(done, total int64)
+	Progress pool.Progress
 	// Workers is how many goroutines the re-check may use; 0 means every
 	// core (the workbench keeps one for the screen).
 	Workers int
@@ -114,7 +115,7 @@ func (r *Rule) menu(menu MenuFunc) (*bregman.Rule, *budget.Menu, error) {
 // of the design's budget changed (budget.Propose: the coarsest currency
 // unit, and for a failing table the smallest cap or mean pay); for a
 // point-forecast table the same search over its own re-check.
-func (r *Rule) Propose(ctx context.Context, progress func(done, total int64)) ([]budget.Proposal, error) {
+func (r *Rule) Propose(ctx context.Context, progress pool.Progress) ([]budget.Proposal, error) {
 	if r.point != nil {
 		b := r.d.Budget
 		if err := pointBudget(b); err != nil {

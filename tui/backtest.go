@@ -20,6 +20,7 @@ import (
 	"scorewright/contract/backtest/history"
 	"scorewright/generator/design"
 	"scorewright/internal/numfmt"
+	"scorewright/internal/pool"
 	"scorewright/tui/reliability"
 )
 
@@ -87,13 +88,13 @@ func backtestCmd(ctx context.Context, run, gen uint64, d *design.Design, path st
 			return
 		}
 		send(tag(btStartedMsg{path: path}), true)
-		res, err := replay(ctx, d, h, path, size, func(done float64) { send(tag(btProgressMsg{done: done}), false) })
+		res, err := replay(ctx, d, h, path, size, func(p pool.Step) { send(tag(btProgressMsg{done: p.Fraction()}), false) })
 		send(tag(btDoneMsg{res: res, err: err}), true)
 	})
 }
 
 // replay fits d to its budget and runs the history through it.
-func replay(ctx context.Context, d *design.Design, h *history.Reader, path string, size int64, progress func(float64)) (*BacktestResult, error) {
+func replay(ctx context.Context, d *design.Design, h *history.Reader, path string, size int64, progress pool.Progress) (*BacktestResult, error) {
 	r, err := outcomesRule(d)
 	if err != nil {
 		return nil, fmt.Errorf("a backtest replays a rule over outcomes: %w", err)
@@ -109,9 +110,9 @@ func replay(ctx context.Context, d *design.Design, h *history.Reader, path strin
 	if err != nil {
 		return nil, err
 	}
-	opt := backtest.Options{}
+	opt := backtest.Options{Size: size}
 	if size > 0 {
-		opt.Progress = func(p backtest.Progress) { progress(min(1, float64(p.Offset)/float64(size))) }
+		opt.Progress = progress
 	}
 	res, err := scorewright.Backtest(ctx, h, []backtest.Scheme{scorewright.Scheme("A", fitted)}, opt)
 	if err != nil {

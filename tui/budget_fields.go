@@ -105,6 +105,9 @@ func budgetFields() []budgetField {
 		if d.Mode.OnInterval() && d.Budget.Step == 0 {
 			return "auto" // the table's default: a twentieth of the interval
 		}
+		if d.Budget.Menu != "" && d.Budget.Step == 0 {
+			return "menu file" // the Menu field's file replaces the grid
+		}
 		return fmtNum(d.Budget.Step)
 	}
 	step.parse = func(d *design.Design, s string) error {
@@ -119,7 +122,12 @@ func budgetFields() []budgetField {
 	unit.hint = "payments are whole multiples of this (0: no rounding)"
 	step.hint = "reports on a grid of this step (1/K); replaces a menu file"
 	rfloor := numberField("R.floor", "smallest report p", func(d *design.Design) *float64 { return &d.Budget.ReportFloor }, 0, floorSteps)
-	rfloor.off = notOnInterval
+	rfloor.off = func(d *design.Design) string {
+		if d.Budget.Menu != "" && !d.Mode.OnInterval() {
+			return "not used with a menu file"
+		}
+		return notOnInterval(d)
+	}
 	rfloor.hint = "each report gives every outcome at least this (0: none)"
 	clamp := numberField("Clamp", "pay each p as ≥ it", func(d *design.Design) *float64 { return &d.Budget.Clamp }, 0, floorSteps)
 	clamp.off = notOnInterval

@@ -2,6 +2,7 @@ package tui
 
 import (
 	"fmt"
+	"reflect"
 	"slices"
 	"strings"
 
@@ -33,7 +34,7 @@ type BudgetPane struct {
 	note      string
 	// running is a fit in the background, done of total beliefs re-checked.
 	running     bool
-	done, total int64
+	done, total float64
 	bar         progress.Model
 	// prop is the search for a budget that passes (tui/propose.go); shared
 	// by the copies of the pane.
@@ -94,8 +95,8 @@ func (p *BudgetPane) edited() {
 }
 
 // fitting marks a fit as begun; progressed moves its bar.
-func (p *BudgetPane) fitting()                     { p.running, p.done, p.total = true, 0, 0 }
-func (p *BudgetPane) progressed(done, total int64) { p.done, p.total = done, total }
+func (p *BudgetPane) fitting()                       { p.running, p.done, p.total = true, 0, 0 }
+func (p *BudgetPane) progressed(done, total float64) { p.done, p.total = done, total }
 
 // Update handles a key, editing d's budget in place.
 func (p BudgetPane) Update(msg tea.Msg, d *design.Design) (BudgetPane, tea.Cmd, bool) {
@@ -186,8 +187,11 @@ func (p *BudgetPane) apply(d *design.Design, f budgetField, change func(t *desig
 		p.note = err.Error()
 		return false
 	}
-	*d = *trial
 	p.note = ""
+	if reflect.DeepEqual(trial, d) {
+		return false // the same value typed again is no edit: nothing to save
+	}
+	*d = *trial
 	return true
 }
 
@@ -391,7 +395,7 @@ func (p BudgetPane) typingHint(f budgetField) string {
 func (p BudgetPane) progressLine() string {
 	pct := 0.0
 	if p.total > 0 {
-		pct = float64(p.done) / float64(p.total)
+		pct = p.done / p.total
 	}
 	line := p.bar.ViewAs(pct) + fmt.Sprintf(" %3.0f%% fitting", pct*100)
 	if p.table != nil {

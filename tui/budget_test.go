@@ -17,6 +17,7 @@ import (
 
 	"scorewright/generator/design"
 	"scorewright/internal/num"
+	"scorewright/internal/pool"
 )
 
 // selectBudgetField focuses the budget pane and selects the field
@@ -211,9 +212,9 @@ type blockingFitter struct {
 	cancelled atomic.Int64
 }
 
-func (b *blockingFitter) fit(ctx context.Context, d *design.Design, progress func(done, total int64)) (*TableView, error) {
+func (b *blockingFitter) fit(ctx context.Context, d *design.Design, progress pool.Progress) (*TableView, error) {
 	b.started.Add(1)
-	progress(3, 6)
+	progress(pool.Step{Done: 3, Total: 6, Unit: pool.UnitWork})
 	select {
 	case <-ctx.Done():
 		b.cancelled.Add(1)
@@ -431,5 +432,30 @@ func TestBudgetMenuRelativeToTheDesign(t *testing.T) {
 	}
 	if m.Unsaved() {
 		t.Error("rewriting the menu path for the new folder left the design unsaved")
+	}
+}
+
+// The workbench states what the contract costs, as the command and the
+// annex do, with the currency on every amount: the water utility's design
+// (testdata/designs/water.toml) costs 52286.25 EUR over 365 forecasts
+// from a forecaster who only reports the base rate 0.1 (row 0.1 pays 89.25
+// or 149.25; 0.1·89.25 + 0.9·149.25 = 143.25 a day, derived by hand),
+// 54750.00 EUR from a perfect one and at worst.
+func TestBudgetStatesTheCost(t *testing.T) {
+	d, err := design.Load(filepath.Join("..", "testdata", "designs", "water.toml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	m := testModel(t, d, Settings{})
+	start(t, m, 120, 40)
+	tv := m.budget.table
+	if tv == nil {
+		t.Fatal("no table in the budget pane")
+	}
+	notes := strings.Join(tv.Notes, "\n")
+	for _, want := range []string{"52286.25 EUR for a forecaster who only reports the base rate", "54750.00 EUR for a perfect forecaster", "54750.00 EUR at worst"} {
+		if !strings.Contains(notes, want) {
+			t.Errorf("the budget pane's notes lack %q:\n%s", want, notes)
+		}
 	}
 }

@@ -6,6 +6,7 @@ import (
 	"time"
 
 	"scorewright"
+	"scorewright/internal/pool"
 	"scorewright/verify/certify"
 )
 
@@ -38,7 +39,7 @@ func (s Settings) certifyDeadline() time.Duration {
 // nil when no certificate method applies (a point-forecast payout) or
 // certificates are off (a negative deadline). A cancelled context ends it
 // at once.
-func certifyDesign(ctx context.Context, r *scorewright.Rule, s Settings, progress func(done, total int64)) *CertificateView {
+func certifyDesign(ctx context.Context, r *scorewright.Rule, s Settings, progress pool.Progress) *CertificateView {
 	if s.certifyDeadline() < 0 {
 		return nil
 	}
@@ -49,12 +50,8 @@ func certifyDesign(ctx context.Context, r *scorewright.Rule, s Settings, progres
 	return certificateView(res)
 }
 
-func certifySettings(s Settings, progress func(done, total int64)) certify.Settings {
-	cs := certify.Settings{Deadline: s.certifyDeadline()}
-	if progress != nil {
-		cs.Progress = func(p certify.Progress) { progress(int64(1e6*p.Share), 1e6) }
-	}
-	return cs
+func certifySettings(s Settings, progress pool.Progress) certify.Settings {
+	return certify.Settings{Deadline: s.certifyDeadline(), Progress: progress}
 }
 
 func certificateView(res *certify.Result) *CertificateView {

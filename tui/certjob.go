@@ -8,17 +8,18 @@ import (
 
 	"scorewright"
 	"scorewright/generator/design"
+	"scorewright/internal/pool"
 )
 
 // Certifier runs the interval certificate of a design (verify/certify): nil
 // with no error when no certificate applies or certificates are off. It
 // must return soon after ctx is cancelled and may call progress (the share
-// proved, of 1e6) from any goroutine.
-type Certifier func(ctx context.Context, d *design.Design, s Settings, progress func(done, total int64)) (*CertificateView, error)
+// proved, of 1) from any goroutine.
+type Certifier func(ctx context.Context, d *design.Design, s Settings, progress pool.Progress) (*CertificateView, error)
 
 // defaultCertifier is the build's certificate, as `check --certify` runs it.
 func defaultCertifier() Certifier {
-	return func(ctx context.Context, d *design.Design, s Settings, progress func(done, total int64)) (*CertificateView, error) {
+	return func(ctx context.Context, d *design.Design, s Settings, progress pool.Progress) (*CertificateView, error) {
 		r, err := scorewright.Open(d)
 		if err != nil {
 			return nil, err
@@ -36,7 +37,7 @@ type (
 		run uint64
 		msg tea.Msg
 	}
-	certProgressMsg struct{ done, total int64 }
+	certProgressMsg struct{ done, total float64 }
 	certDoneMsg     struct {
 		cert *CertificateView
 		err  error
@@ -47,8 +48,8 @@ type (
 func certCmd(ctx context.Context, run uint64, d *design.Design, s Settings, certifier Certifier) tea.Cmd {
 	tag := func(m tea.Msg) tea.Msg { return certRunMsg{run: run, msg: m} }
 	return runStream(ctx, func(send func(tea.Msg, bool)) {
-		cert, err := certifier(ctx, d, s, func(done, total int64) {
-			send(tag(certProgressMsg{done: done, total: total}), false)
+		cert, err := certifier(ctx, d, s, func(p pool.Step) {
+			send(tag(certProgressMsg{done: p.Done, total: p.Total}), false)
 		})
 		send(tag(certDoneMsg{cert: cert, err: err}), true)
 	})

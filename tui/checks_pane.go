@@ -21,7 +21,7 @@ type ChecksPane struct {
 	bar         progress.Model
 	running     bool
 	waiting     bool // an edit is waiting out the debounce
-	done, total int64
+	done, total float64
 	report      *CheckReport
 	err         error
 	stale       bool // the report is for an earlier design
@@ -29,7 +29,7 @@ type ChecksPane struct {
 	// proving is the certificate running after the grid, certDone of
 	// certTotal its share proved.
 	proving             bool
-	certDone, certTotal int64
+	certDone, certTotal float64
 	// sel is the selected entry: a check row, or len(Rows) for the
 	// verdict and notes; detail shows its full text, scrolled by scroll.
 	sel    int
@@ -103,7 +103,7 @@ func (p *ChecksPane) started() {
 	p.waiting, p.running, p.done, p.total, p.blocked = false, true, 0, 0, ""
 }
 
-func (p *ChecksPane) progressed(done, total int64) { p.done, p.total = done, total }
+func (p *ChecksPane) progressed(done, total float64) { p.done, p.total = done, total }
 
 func (p *ChecksPane) finished(r *CheckReport, err error) {
 	p.running, p.report, p.err, p.stale, p.proving = false, r, err, false, false
@@ -150,7 +150,7 @@ func (p ChecksPane) View() string {
 	case p.running:
 		pct := 0.0
 		if p.total > 0 {
-			pct = float64(p.done) / float64(p.total)
+			pct = p.done / p.total
 		}
 		lines = append(lines, p.bar.ViewAs(pct)+fmt.Sprintf(" %3.0f%% checking", pct*100))
 	case p.waiting:
@@ -173,7 +173,7 @@ func (p ChecksPane) View() string {
 		if p.proving && !p.stale {
 			pct := 0.0
 			if p.certTotal > 0 {
-				pct = float64(p.certDone) / float64(p.certTotal)
+				pct = p.certDone / p.certTotal
 			}
 			lines = append(lines, p.bar.ViewAs(pct)+fmt.Sprintf(" %3.0f%% proving", pct*100))
 		}

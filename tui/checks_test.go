@@ -12,6 +12,7 @@ import (
 	"github.com/charmbracelet/x/exp/teatest"
 
 	"scorewright/generator/design"
+	"scorewright/internal/pool"
 )
 
 // checksText is the checks pane's body as plain text.
@@ -177,8 +178,8 @@ func withFormula(mode design.Mode, formula string) *design.Design {
 func TestGridVerdictBeforeCertificate(t *testing.T) {
 	hold := make(chan struct{})
 	var stopped atomic.Int64
-	cert := func(ctx context.Context, d *design.Design, s Settings, progress func(done, total int64)) (*CertificateView, error) {
-		progress(1, 4)
+	cert := func(ctx context.Context, d *design.Design, s Settings, progress pool.Progress) (*CertificateView, error) {
+		progress(pool.Step{Done: 0.25, Total: 1, Unit: pool.UnitShare})
 		select {
 		case <-hold:
 			return &CertificateView{Kind: "certified", Verdict: "strictly-proper", Statement: "held open by the test"}, nil
@@ -213,7 +214,7 @@ func TestGridVerdictBeforeCertificate(t *testing.T) {
 // the grid's improper verdict as grid evidence, not the certificate's
 // "certified", and an export does not record the rule as certified.
 func TestHeaderShowsAContradictedProofAsImproper(t *testing.T) {
-	contradicting := func(ctx context.Context, d *design.Design, s Settings, progress func(done, total int64)) (*CheckReport, error) {
+	contradicting := func(ctx context.Context, d *design.Design, s Settings, progress pool.Progress) (*CheckReport, error) {
 		return &CheckReport{Verdict: "improper", Resolution: 10, Points: 11,
 			Rows:        []CheckRow{{Name: "properness", Passed: false, Worst: 0.5}},
 			Certificate: &CertificateView{Kind: "certified", Verdict: "strictly-proper", Statement: "certified strictly proper"}}, nil

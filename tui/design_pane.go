@@ -3,6 +3,7 @@ package tui
 import (
 	"fmt"
 	"math"
+	"reflect"
 	"strconv"
 	"strings"
 
@@ -193,8 +194,10 @@ func (p DesignPane) Update(msg tea.Msg, d *design.Design) (DesignPane, tea.Cmd, 
 			p.note = "not changed"
 			return p, nil, false
 		case key.Matches(km, p.keys.Edit):
+			before := d.Clone()
 			changed := p.commitInput(d)
-			return p, nil, changed
+			// The same value entered again is no edit: nothing to save.
+			return p, nil, changed && !reflect.DeepEqual(before, d)
 		}
 		var cmd tea.Cmd
 		p.ti, cmd = p.ti.Update(km)

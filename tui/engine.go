@@ -20,6 +20,7 @@ import (
 	"scorewright/generator/design"
 	"scorewright/internal/num"
 	"scorewright/internal/numfmt"
+	"scorewright/internal/pool"
 	"scorewright/internal/safefile"
 	"scorewright/verify"
 	"scorewright/verify/pointcheck"
@@ -43,7 +44,7 @@ func workers(s Settings) int {
 
 // verifyChecker checks a rule design and audits a payout design through
 // scorewright.Rule.Examine, as `scorewright check` and `audit` do.
-func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress func(done, total int64)) (*CheckReport, error) {
+func verifyChecker(ctx context.Context, d *design.Design, s Settings, progress pool.Progress) (*CheckReport, error) {
 	r, err := scorewright.Open(d)
 	if err != nil {
 		return nil, err
@@ -110,7 +111,7 @@ func fromVerify(r *verify.Report) *CheckReport {
 // fitTable fits a design to its budget on its menu and re-checks the
 // rounded table (scorewright.Rule.Table), in the workbench's words for
 // what is missing.
-func fitTable(ctx context.Context, d *design.Design, progress func(done, total int64)) (*scorewright.Rule, *scorewright.Table, error) {
+func fitTable(ctx context.Context, d *design.Design, progress pool.Progress) (*scorewright.Rule, *scorewright.Table, error) {
 	r, err := scorewright.Open(d)
 	if err != nil {
 		return nil, nil, err
@@ -134,7 +135,7 @@ func fitTable(ctx context.Context, d *design.Design, progress func(done, total i
 }
 
 // budgetFitter is the default Fitter.
-func budgetFitter(ctx context.Context, d *design.Design, progress func(done, total int64)) (*TableView, error) {
+func budgetFitter(ctx context.Context, d *design.Design, progress pool.Progress) (*TableView, error) {
 	r, t, err := fitTable(ctx, d, progress)
 	if err != nil {
 		return nil, err
@@ -177,9 +178,12 @@ func budgetFitter(ctx context.Context, d *design.Design, progress func(done, tot
 func markRows(tv *TableView, margins []float64, ties, beaten []int) {
 	tv.Marks = make([]string, len(tv.Rows))
 	tv.Margins = make([]string, len(tv.Rows))
+	// One count of decimals for the column, so margins line up and read
+	// as one quantity (0.240 beside 0.235, not 0.24).
+	dec := numfmt.Decimals(margins, 6)
 	for i := range tv.Rows {
 		if i < len(margins) {
-			tv.Margins[i] = strconv.FormatFloat(margins[i], 'g', 4, 64)
+			tv.Margins[i] = numfmt.Fixed(margins[i], dec)
 		}
 	}
 	for _, i := range ties {

@@ -73,7 +73,7 @@ func (m *Model) verdictWords() string {
 	case c.running:
 		pct := 0.0
 		if c.total > 0 {
-			pct = 100 * float64(c.done) / float64(c.total)
+			pct = 100 * c.done / c.total
 		}
 		return st.Dim.Render(fmt.Sprintf("checking %.0f%%", pct))
 	case c.waiting || c.stale:

@@ -15,6 +15,7 @@ import (
 	"github.com/muesli/termenv"
 
 	"scorewright/generator/design"
+	"scorewright/internal/pool"
 )
 
 // testStyles pins the colour profile so views are plain text.
@@ -119,7 +120,7 @@ type fakeChecker struct {
 	running atomic.Bool
 }
 
-func (f *fakeChecker) check(ctx context.Context, d *design.Design, s Settings, progress func(done, total int64)) (*CheckReport, error) {
+func (f *fakeChecker) check(ctx context.Context, d *design.Design, s Settings, progress pool.Progress) (*CheckReport, error) {
 	f.started.Add(1)
 	f.running.Store(true)
 	defer f.running.Store(false)
@@ -129,7 +130,7 @@ func (f *fakeChecker) check(ctx context.Context, d *design.Design, s Settings, p
 			return nil, ctx.Err()
 		}
 		if i%64 == 0 || i == f.points {
-			progress(i, f.points)
+			progress(pool.Step{Done: float64(i), Total: float64(f.points), Unit: pool.UnitWork, Last: i == f.points})
 		}
 	}
 	if f.block != nil {

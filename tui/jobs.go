@@ -6,11 +6,12 @@ import (
 	tea "github.com/charmbracelet/bubbletea"
 
 	"scorewright/generator/design"
+	"scorewright/internal/pool"
 )
 
 // Checker runs the checks of a design in the background. It must return
 // soon after ctx is cancelled and may call progress from any goroutine.
-type Checker func(ctx context.Context, d *design.Design, s Settings, progress func(done, total int64)) (*CheckReport, error)
+type Checker func(ctx context.Context, d *design.Design, s Settings, progress pool.Progress) (*CheckReport, error)
 
 // CheckReport is what the checks pane shows: a verdict with its grid and
 // tolerance, and one row per check.
@@ -64,7 +65,7 @@ type CheckRow struct {
 // re-check of the report menu. It must return soon after ctx is cancelled
 // and may call progress (beliefs re-checked of the total) from any
 // goroutine.
-type Fitter func(ctx context.Context, d *design.Design, progress func(done, total int64)) (*TableView, error)
+type Fitter func(ctx context.Context, d *design.Design, progress pool.Progress) (*TableView, error)
 
 // TableView is the budget pane's content.
 type TableView struct {
@@ -126,7 +127,7 @@ type (
 	debounceMsg      struct{ gen uint64 }
 	checkProgressMsg struct {
 		gen         uint64
-		done, total int64
+		done, total float64
 	}
 	checkDoneMsg struct {
 		gen    uint64
@@ -140,7 +141,7 @@ type (
 	}
 	fitProgressMsg struct {
 		gen         uint64
-		done, total int64
+		done, total float64
 	}
 )
 
@@ -195,8 +196,8 @@ func listen(ch <-chan tea.Msg) tea.Cmd {
 // checkCmd runs checker on d under ctx, reporting progress.
 func checkCmd(ctx context.Context, gen uint64, d *design.Design, s Settings, checker Checker) tea.Cmd {
 	return runStream(ctx, func(send func(tea.Msg, bool)) {
-		rep, err := checker(ctx, d, s, func(done, total int64) {
-			send(checkProgressMsg{gen: gen, done: done, total: total}, false)
+		rep, err := checker(ctx, d, s, func(p pool.Step) {
+			send(checkProgressMsg{gen: gen, done: p.Done, total: p.Total}, false)
 		})
 		send(checkDoneMsg{gen: gen, report: rep, err: err}, true)
 	})
@@ -205,8 +206,8 @@ func checkCmd(ctx context.Context, gen uint64, d *design.Design, s Settings, che
 // fitCmd fits d to its budget, reporting the re-check's progress.
 func fitCmd(ctx context.Context, gen uint64, d *design.Design, fitter Fitter) tea.Cmd {
 	return runStream(ctx, func(send func(tea.Msg, bool)) {
-		t, err := fitter(ctx, d, func(done, total int64) {
-			send(fitProgressMsg{gen: gen, done: done, total: total}, false)
+		t, err := fitter(ctx, d, func(p pool.Step) {
+			send(fitProgressMsg{gen: gen, done: p.Done, total: p.Total}, false)
 		})
 		if t != nil {
 			layoutTable(t)

@@ -14,6 +14,7 @@ import (
 	"scorewright/contract/budget"
 	"scorewright/generator/design"
 	"scorewright/internal/numfmt"
+	"scorewright/internal/pool"
 )
 
 // proposal is the budget pane's search for budgets the re-check passes
@@ -23,7 +24,7 @@ type proposal struct {
 	run         uint64 // id of the latest search
 	cancel      context.CancelFunc
 	running     bool
-	done, total int64
+	done, total float64
 	props       []budget.Proposal
 	err         error
 }
@@ -32,7 +33,7 @@ type proposal struct {
 type (
 	proposeProgressMsg struct {
 		run         uint64
-		done, total int64
+		done, total float64
 	}
 	proposeDoneMsg struct {
 		run   uint64
@@ -57,15 +58,15 @@ func (p *proposal) shown() bool { return p.running || p.props != nil || p.err !=
 // proposeCmd searches for budgets that pass for design d (a private copy).
 func proposeCmd(ctx context.Context, run uint64, d *design.Design) tea.Cmd {
 	return runStream(ctx, func(send func(tea.Msg, bool)) {
-		props, err := proposeFor(ctx, d, func(done, total int64) {
-			send(proposeProgressMsg{run: run, done: done, total: total}, false)
+		props, err := proposeFor(ctx, d, func(p pool.Step) {
+			send(proposeProgressMsg{run: run, done: p.Done, total: p.Total}, false)
 		})
 		send(proposeDoneMsg{run: run, props: props, err: err}, true)
 	})
 }
 
 // proposeFor opens the design and runs the search.
-func proposeFor(ctx context.Context, d *design.Design, progress func(done, total int64)) ([]budget.Proposal, error) {
+func proposeFor(ctx context.Context, d *design.Design, progress pool.Progress) ([]budget.Proposal, error) {
 	r, err := scorewright.Open(d)
 	if err != nil {
 		return nil, err
@@ -151,7 +152,7 @@ func (p BudgetPane) proposalLines() (lines, keys []string) {
 	case pr.running:
 		pct := 0.0
 		if pr.total > 0 {
-			pct = float64(pr.done) / float64(pr.total)
+			pct = pr.done / pr.total
 		}
 		return []string{p.bar.ViewAs(pct) + fmt.Sprintf(" %3.0f%% searching", pct*100)}, nil
 	case pr.err != nil:
@@ -174,17 +175,20 @@ func (p BudgetPane) proposalLines() (lines, keys []string) {
 // with, then its margin where there is room.
 func shortProposal(q budget.Proposal, w int) string {
 	b := q.Budget
-	var s string
+	what, long, short := "", "the smallest that passes", "smallest passing"
 	switch q.Field {
 	case "unit":
-		s = fmt.Sprintf("unit %g, the coarsest that passes", b.Unit)
+		what, long, short = fmt.Sprintf("unit %g", b.Unit), "the coarsest that passes", "coarsest passing"
 	case "cap":
-		s = fmt.Sprintf("cap %g, the smallest that passes", b.Cap)
+		what = fmt.Sprintf("cap %g", b.Cap)
 	default:
-		s = fmt.Sprintf("mean pay %g, the smallest that passes", *b.MeanPay)
+		what = fmt.Sprintf("mean pay %g", *b.MeanPay)
 	}
-	if m := " (margin " + numfmt.Margin(q.MinMargin) + ")"; ansi.StringWidth(s+m) <= w {
-		s += m
+	margin := " (margin " + numfmt.Margin(q.MinMargin) + ")"
+	for _, s := range []string{what + ", " + long + margin, what + ", " + long, what + ", " + short} {
+		if ansi.StringWidth(s) <= w {
+			return s
+		}
 	}
-	return s
+	return what + ", " + short
 }

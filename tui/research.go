@@ -17,6 +17,7 @@ import (
 	"scorewright/contract/research"
 	"scorewright/contract/research/study"
 	"scorewright/generator/design"
+	"scorewright/internal/pool"
 )
 
 // researchField is one adjustable input of the research view, in ↑/↓
@@ -99,15 +100,15 @@ type (
 func researchCmd(ctx context.Context, run uint64, d *design.Design, in ResearchInputs) tea.Cmd {
 	tag := func(m tea.Msg) tea.Msg { return researchRunMsg{run: run, msg: m} }
 	return runStream(ctx, func(send func(tea.Msg, bool)) {
-		rep, err := researchRun(ctx, d, in, func(stage string, done, total int) {
-			send(tag(researchProgressMsg{stage, done, total}), false)
+		rep, err := researchRun(ctx, d, in, func(p pool.Step) {
+			send(tag(researchProgressMsg{p.Stage, int(p.Done), int(p.Total)}), false)
 		})
 		send(tag(researchDoneMsg{rep: rep, err: err}), true)
 	})
 }
 
 // researchRun is the work of researchCmd.
-func researchRun(ctx context.Context, d *design.Design, in ResearchInputs, progress func(string, int, int)) (*study.Report, error) {
+func researchRun(ctx context.Context, d *design.Design, in ResearchInputs, progress pool.Progress) (*study.Report, error) {
 	rule, err := designRule(d)
 	var needs *scorewright.NeedsOutcomesError
 	if errors.As(err, &needs) {

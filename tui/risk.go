@@ -15,6 +15,7 @@ import (
 	"scorewright/contract/risk"
 	"scorewright/generator/design"
 	"scorewright/internal/num"
+	"scorewright/internal/pool"
 )
 
 // riskField is one adjustable input of the risk view, in ↑/↓ order.
@@ -65,7 +66,7 @@ type RiskResult struct {
 
 // Messages of a risk run, each wrapped in a riskRunMsg with its run id.
 type (
-	riskProgressMsg struct{ done, total int }
+	riskProgressMsg struct{ done, total float64 }
 	riskDoneMsg     struct {
 		res *RiskResult
 		err error
@@ -82,13 +83,13 @@ type (
 func riskCmd(ctx context.Context, run uint64, d *design.Design, in RiskInputs) tea.Cmd {
 	tag := func(m tea.Msg) tea.Msg { return riskRunMsg{run: run, msg: m} }
 	return runStream(ctx, func(send func(tea.Msg, bool)) {
-		res, err := riskRun(ctx, d, in, func(done, total int64) { send(tag(riskProgressMsg{int(done), int(total)}), false) })
+		res, err := riskRun(ctx, d, in, func(p pool.Step) { send(tag(riskProgressMsg{p.Done, p.Total}), false) })
 		send(tag(riskDoneMsg{res: res, err: err}), true)
 	})
 }
 
 // riskRun is the work of riskCmd.
-func riskRun(ctx context.Context, d *design.Design, in RiskInputs, progress func(done, total int64)) (*RiskResult, error) {
+func riskRun(ctx context.Context, d *design.Design, in RiskInputs, progress pool.Progress) (*RiskResult, error) {
 	rule, err := outcomesRule(d)
 	var needs *scorewright.NeedsOutcomesError
 	if errors.As(err, &needs) {
@@ -237,9 +238,9 @@ func (v *RiskView) edited() {
 	v.running = false
 }
 
-func (v *RiskView) progressed(done, total int) {
+func (v *RiskView) progressed(done, total float64) {
 	if total > 0 {
-		v.done = float64(done) / float64(total)
+		v.done = done / total
 	}
 }
 

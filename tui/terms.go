@@ -2,6 +2,7 @@ package tui
 
 import (
 	"fmt"
+	"reflect"
 	"strconv"
 	"strings"
 
@@ -134,11 +135,11 @@ func (t *TermsRoom) Update(km tea.KeyMsg, d *design.Design) (handled, changed bo
 			t.stopTyping()
 			return true, false, nil
 		case key.Matches(km, k.Edit):
-			ok := t.apply(d, fields[t.sel], strings.TrimSpace(t.ti.Value()))
+			ok, changed := t.apply(d, fields[t.sel], strings.TrimSpace(t.ti.Value()))
 			if ok {
 				t.stopTyping()
 			}
-			return true, ok, nil
+			return true, changed, nil
 		}
 		t.ti, cmd = t.ti.Update(km)
 		return true, false, cmd
@@ -166,8 +167,9 @@ func (t *TermsRoom) Update(km tea.KeyMsg, d *design.Design) (handled, changed bo
 }
 
 // apply sets a field when the design stays valid, saying why not
-// otherwise; the design is untouched on failure.
-func (t *TermsRoom) apply(d *design.Design, f termsField, v string) bool {
+// otherwise; the design is untouched on failure. changed is false for the
+// value the field already had.
+func (t *TermsRoom) apply(d *design.Design, f termsField, v string) (ok, changed bool) {
 	c := d.Clone()
 	err := f.set(c, v)
 	if err == nil && strings.ContainsAny(c.Title, "\n\r") {
@@ -178,11 +180,12 @@ func (t *TermsRoom) apply(d *design.Design, f termsField, v string) bool {
 	}
 	if err != nil {
 		t.note = err.Error()
-		return false
+		return false, false
 	}
+	changed = c.Title != d.Title || !reflect.DeepEqual(c.Contract, d.Contract)
 	d.Title, d.Contract = c.Title, c.Contract
 	t.note = f.label + " set"
-	return true
+	return true, changed
 }
 
 // View draws the terms, one a line, the selected one marked, and a blank

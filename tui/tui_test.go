@@ -438,16 +438,16 @@ func TestMeanPayBudget(t *testing.T) {
 // the demo's quadratic rule is strictly proper (a textbook fact: its
 // generator 1 - sum(p^2) has Hessian -2I), the certificate proves it, and
 // the record's verdict kind is "certified" with the statement beside it,
-// as `scorewright table --certify` writes it. The sum of two negated
-// norms -||p||_3 - ||p||_4 is strictly concave too (each is, by
-// Minkowski's inequality), but it is not one norm, so no structural
-// argument applies, and its curvature vanishes on the faces, so in a short
-// deadline the certificate leaves it undecided and the record stays grid
-// evidence.
+// as `scorewright table --certify` writes it. -(||p||_3^(1/2))^2 is the
+// pseudospherical generator -||p||_3, strictly proper too (Gneiting and
+// Raftery 2007, JASA, section 3), but written as a power of a power it is
+// not the norm shape the structural argument reads, and its curvature
+// vanishes on the faces, so in a short deadline the certificate leaves it
+// undecided and the record stays grid evidence.
 func TestExportRecordsTheCertificate(t *testing.T) {
 	for _, tc := range []struct {
 		formula, kind string
-	}{{"", "certified"}, {"-sum(p^3)^(1/3) - sum(p^4)^(1/4)", "grid evidence"}} {
+	}{{"", "certified"}, {"-(sum(p^3)^(1/6))^2", "grid evidence"}} {
 		dir := t.TempDir()
 		d := DemoFrost()
 		if tc.formula != "" {

@@ -1,6 +1,7 @@
 package tui
 
 import (
+	"strings"
 	"testing"
 	"time"
 
@@ -75,5 +76,46 @@ func TestBudgetTypingReplacesFlow(t *testing.T) {
 	fm := tm.FinalModel(t, teatest.WithFinalTimeout(10*time.Second)).(*Model)
 	if b := fm.Design().Budget; b.ReportFloor != 0.02 || b.Cap != 400 {
 		t.Errorf("report floor %v, cap %v; want 0.02 and 400", b.ReportFloor, b.Cap)
+	}
+}
+
+// Entering the value a field already has is no edit: the design stays
+// saved (before, enter on Forecasts and enter again marked it unsaved).
+func TestSameValueIsNoEdit(t *testing.T) {
+	m := testModel(t, nil, Settings{})
+	start(t, m, 80, 24)
+	m.savedGen = m.gen
+	typeBudget(t, m, "Cap", "40")
+	selectBudgetField(t, m, "Forecasts")
+	press(t, m, keyEnter, keyEnter)
+	if m.Unsaved() {
+		t.Error("the budget's own values entered again marked the design unsaved")
+	}
+	m.setFocus(paneDesign)
+	press(t, m, keyEnter, keyEnter) // the outcomes as they are
+	if m.Unsaved() {
+		t.Error("the outcomes entered again marked the design unsaved")
+	}
+	press(t, m, tea.KeyMsg{Type: tea.KeyF2}, keyEnter, keyEnter)
+	if m.Unsaved() {
+		t.Error("the title entered again marked the design unsaved")
+	}
+	press(t, m, keyEsc)
+	typeBudget(t, m, "Cap", "41")
+	if !m.Unsaved() {
+		t.Error("a new cap did not mark the design unsaved")
+	}
+}
+
+// With a menu file the step reads "menu file" and the report floor,
+// which only shapes the step's grid, says it is not used.
+func TestMenuFileFieldsSayWhy(t *testing.T) {
+	m := testModel(t, nil, Settings{})
+	start(t, m, 120, 40)
+	m.d.Budget.Step, m.d.Budget.Menu = 0, "menu.csv"
+	selectBudgetField(t, m, "Menu")
+	v := m.budget.View(m.d)
+	if !strings.Contains(v, "menu file") || !strings.Contains(v, "not used with a menu file") {
+		t.Errorf("with a menu file:\n%s", v)
 	}
 }

@@ -147,7 +147,8 @@
 // power with g ≈ 1 (the limit), which the "also fits" note says.
 //
 // Progress: one goroutine calls `Settings.Progress` about ten times a second (never
-// concurrently) and once with done = total at the end. The command prints it on stderr only
+// concurrently) with a `pool.Step` in `pool.UnitWork`, and once with Done = Total and Last at
+// the end. The command prints it on stderr only
 // when stderr is a terminal; Ctrl-C cancels through the context.
 //
 // Tests (`verify/verify_test.go`): the hand-derived values are in comments beside each case

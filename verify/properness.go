@@ -322,12 +322,24 @@ type boundStat struct {
 	beyond         int
 }
 
+// roundingZero is v, or 0 when v is within a relative 1e-12 of scale: the
+// size of what rounding leaves of terms of that size that cancel.
+func roundingZero(v, scale float64) float64 {
+	if math.Abs(v) <= 1e-12*scale {
+		return 0
+	}
+	return v
+}
+
 // boundNote says what boundedness found, outcome by outcome.
 func boundNote(st []boundStat, nan int, nanAt []float64, limit float64, label func(int) string, what string, sign float64) string {
 	var notes, ranges, unb []string
 	for k, a := range st {
 		if a.lo <= a.hi {
-			ranges = append(ranges, fmt.Sprintf("%s: [%.6g, %.6g]", label(k), a.lo, a.hi))
+			// What a cancellation leaves (2.5e-16 for the spherical
+			// rule's effort at a vertex) is 0, not a finding.
+			s := math.Max(math.Abs(a.lo), math.Abs(a.hi))
+			ranges = append(ranges, fmt.Sprintf("%s: [%.6g, %.6g]", label(k), roundingZero(a.lo, s), roundingZero(a.hi, s)))
 		} else {
 			ranges = append(ranges, fmt.Sprintf("%s: no finite value", label(k)))
 		}

@@ -11,6 +11,7 @@ import (
 	"scorewright/generator/bregman"
 	"scorewright/generator/bregman/bregmantest"
 	"scorewright/generator/payout"
+	"scorewright/internal/pool"
 	"scorewright/presets"
 )
 
@@ -344,9 +345,9 @@ func TestCancellation(t *testing.T) {
 	ctx, cancel = context.WithCancel(context.Background())
 	defer cancel()
 	var last, total atomic.Int64
-	_, err := CheckRule(ctx, r, Settings{Resolution: 330, MaxPoints: 1 << 20, Progress: func(done, tot int64) {
-		last.Store(done)
-		total.Store(tot)
+	_, err := CheckRule(ctx, r, Settings{Resolution: 330, MaxPoints: 1 << 20, Progress: func(p pool.Step) {
+		last.Store(int64(p.Done))
+		total.Store(int64(p.Total))
 		cancel()
 	}})
 	if !errors.Is(err, context.Canceled) {
@@ -359,10 +360,10 @@ func TestCancellation(t *testing.T) {
 
 func TestProgressReachesTotal(t *testing.T) {
 	var calls, done, total atomic.Int64
-	_, err := CheckRule(context.Background(), rule(t, "1 - sum(p^2)", 2), Settings{Resolution: 200, Progress: func(d, tot int64) {
+	_, err := CheckRule(context.Background(), rule(t, "1 - sum(p^2)", 2), Settings{Resolution: 200, Progress: func(p pool.Step) {
 		calls.Add(1)
-		done.Store(d)
-		total.Store(tot)
+		done.Store(int64(p.Done))
+		total.Store(int64(p.Total))
 	}})
 	if err != nil {
 		t.Fatal(err)

@@ -214,7 +214,7 @@ func (f *backtestFlags) run(e *env, h *history.Reader, size int64, schemes []*ba
 	for i, s := range schemes {
 		bs[i] = s.scheme
 	}
-	opt := backtest.Options{Strict: *f.strict, Tally: backtest.TallyOptions{Grid: grid}}
+	opt := backtest.Options{Strict: *f.strict, Tally: backtest.TallyOptions{Grid: grid}, Size: size}
 	if *f.progress || isTerminal(e.stderr) {
 		opt.Progress = newProgressLine(e.progressOut(), size)
 	}

@@ -15,6 +15,7 @@ import (
 	"scorewright/contract/backtest/corp"
 	"scorewright/contract/backtest/figure"
 	"scorewright/contract/table"
+	"scorewright/internal/pool"
 	"scorewright/internal/safefile"
 )
 
@@ -38,21 +39,21 @@ func openHistory(e *env, path string) (io.Reader, int64, func(), error) {
 
 // newProgressLine returns a progress callback that rewrites one stderr
 // line at most four times a second.
-func newProgressLine(w io.Writer, size int64) func(backtest.Progress) {
+func newProgressLine(w io.Writer, size int64) pool.Progress {
 	start := time.Now()
 	var last time.Time
-	return func(p backtest.Progress) {
+	return func(p pool.Step) {
 		now := time.Now()
-		if now.Sub(last) < 250*time.Millisecond && p.Offset < size {
+		if now.Sub(last) < 250*time.Millisecond && p.Done < float64(size) {
 			return
 		}
 		last = now
-		rate := float64(p.Rows) / math.Max(now.Sub(start).Seconds(), 1e-9)
+		rate := float64(p.Items) / math.Max(now.Sub(start).Seconds(), 1e-9)
 		part := ""
 		if size > 0 {
-			part = fmt.Sprintf(" (%.0f%% of %s)", 100*float64(p.Offset)/float64(size), byteSize(size))
+			part = fmt.Sprintf(" (%.0f%% of %s)", 100*p.Done/float64(size), byteSize(size))
 		}
-		fmt.Fprintf(w, "\rbacktest: %d rows read%s, %d skipped, %.2f million rows/s   ", p.Rows, part, p.Skipped, rate/1e6)
+		fmt.Fprintf(w, "\rbacktest: %d rows read%s, %d skipped, %.2f million rows/s   ", p.Items, part, p.Skipped, rate/1e6)
 	}
 }
 

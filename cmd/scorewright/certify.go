@@ -11,6 +11,7 @@ import (
 	"scorewright"
 	"scorewright/contract/table"
 	"scorewright/internal/num"
+	"scorewright/internal/pool"
 	"scorewright/verify"
 	"scorewright/verify/certify"
 )
@@ -41,12 +42,12 @@ func (c *certifyFlags) settings(e *env) (certify.Settings, error) {
 	}
 	s := certify.Settings{Deadline: c.deadline, Epsilon: c.epsilon}
 	if isTerminal(e.stderr) {
-		s.Progress = func(p certify.Progress) {
-			if p.Done {
+		s.Progress = func(p pool.Step) {
+			if p.Last {
 				fmt.Fprint(e.progressOut(), "\r\033[K")
 				return
 			}
-			fmt.Fprintf(e.progressOut(), "\rcertifying: %s proved, %d boxes, %s of %s ", pct(p.Share), p.Boxes, p.Elapsed.Round(100*time.Millisecond), c.deadline)
+			fmt.Fprintf(e.progressOut(), "\rcertifying: %s proved, %d boxes, %s of %s ", pct(p.Done), p.Items, p.Elapsed.Round(100*time.Millisecond), c.deadline)
 		}
 	}
 	return s, nil

@@ -2,6 +2,7 @@ package main
 
 import (
 	"fmt"
+	"strings"
 
 	"scorewright/contract/research/study"
 	"scorewright/internal/num"
@@ -98,7 +99,7 @@ func researchJSONOf(rep *study.Report, verdicts map[string]string, written strin
 
 func printResearch(e *env, rep *study.Report, verdicts map[string]string, written string) error {
 	w := e.stdout
-	fmt.Fprintf(w, "base rate %s over %v; budget [%g, %g] on the menu of step %g\n", num.Format(rep.Prior), rep.Labels, rep.Budget.Floor, rep.Budget.Cap, rep.Budget.Step)
+	fmt.Fprintf(w, "base rate %s over %s; budget [%g, %g] on the menu of step %g\n", num.Format(rep.Prior), strings.Join(rep.Labels, ", "), rep.Budget.Floor, rep.Budget.Cap, rep.Budget.Step)
 	fmt.Fprintf(w, "research model: %s\n\n", rep.Model)
 	rows := rep.All()
 	season := 1

@@ -12,6 +12,7 @@ import (
 
 	"scorewright/generator/design"
 	"scorewright/internal/num"
+	"scorewright/internal/pool"
 	"scorewright/internal/textsafe"
 	"scorewright/verify"
 	"scorewright/verify/certify"
@@ -63,9 +64,9 @@ func (v *verifyFlags) settings(e *env, n int) (verify.Settings, error) {
 		return verify.Settings{}, usagef("--%v", err)
 	}
 	if isTerminal(e.stderr) {
-		s.Progress = func(done, total int64) {
-			fmt.Fprintf(e.progressOut(), "\r%3.0f%% ", 100*float64(done)/float64(max(total, 1)))
-			if done >= total {
+		s.Progress = func(p pool.Step) {
+			fmt.Fprintf(e.progressOut(), "\r%3.0f%% ", 100*p.Done/max(p.Total, 1))
+			if p.Done >= p.Total {
 				fmt.Fprint(e.progressOut(), "\r     \r")
 			}
 		}

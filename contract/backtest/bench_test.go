@@ -16,6 +16,7 @@ import (
 	"testing"
 
 	"scorewright/contract/backtest/history"
+	"scorewright/internal/pool"
 )
 
 // The backtest benchmarks read a generated history of three ordered
@@ -109,7 +110,7 @@ func (r roundedAffine) Pay(l float64) float64 { return math.Round((r.a-r.b*l)/r.
 // peakHeap samples the live heap at every progress call.
 type peakHeap struct{ max uint64 }
 
-func (p *peakHeap) sample(Progress) {
+func (p *peakHeap) sample(pool.Step) {
 	var m runtime.MemStats
 	runtime.ReadMemStats(&m)
 	p.max = max(p.max, m.HeapInuse)
@@ -260,7 +261,7 @@ func benchBacktest(b *testing.B, every bool) {
 			err = res.EachForecaster(func(f *Forecaster) error {
 				seen++
 				if seen%progressEvery == 0 {
-					peak.sample(Progress{})
+					peak.sample(pool.Step{})
 				}
 				return nil
 			})

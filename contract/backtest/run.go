@@ -7,6 +7,7 @@ import (
 	"io"
 
 	"scorewright/contract/backtest/history"
+	"scorewright/internal/pool"
 )
 
 // DefaultMaxSkipped is how many skipped rows a Result keeps when
@@ -18,15 +19,6 @@ const DefaultMaxSkipped = 1000
 // nothing.
 const progressEvery = 1 << 16
 
-// Progress is how far a backtest has read.
-type Progress struct {
-	// Rows read so far (valid or not), and how many were skipped.
-	Rows, Skipped int
-	// Offset is the number of bytes of input consumed (read ahead of the
-	// rows counted by at most a few batches).
-	Offset int64
-}
-
 // Options tune Run. The zero value means the defaults.
 type Options struct {
 	Tally TallyOptions
@@ -35,8 +27,15 @@ type Options struct {
 	// MaxSkipped bounds the skipped rows kept in the Result; 0 means
 	// DefaultMaxSkipped, negative keeps none.
 	MaxSkipped int
-	// Progress, if set, is called every 65536 rows and once at the end.
-	Progress func(Progress)
+	// Progress, if set, is called every 65536 rows and once at the end
+	// (Last): Done is the bytes of input consumed (read ahead of the rows
+	// counted by at most a few batches) of Total = Size (pool.UnitBytes),
+	// Items the rows read (valid or not) and Skipped those skipped.
+	Progress pool.Progress
+	// Size is the length of the input in bytes when known (a regular
+	// file), 0 when not (a pipe): the progress Total. The last report of
+	// an input of unknown size gives Total = Done.
+	Size int64
 	// OnRow, if set, sees every valid row with what it earns under each
 	// scheme; both are reused after it returns. An error it returns stops
 	// the run.
@@ -91,10 +90,16 @@ func Run(ctx context.Context, h *history.Reader, schemes []Scheme, opt Options) 
 	var skipped []Skipped
 	var rows, nSkipped int
 	var offset int64
-	report := func() {
-		if opt.Progress != nil {
-			opt.Progress(Progress{Rows: rows, Skipped: nSkipped, Offset: offset})
+	report := func(last bool) {
+		if opt.Progress == nil {
+			return
 		}
+		total := opt.Size
+		if last && total == 0 {
+			total = offset
+		}
+		opt.Progress(pool.Step{Done: float64(offset), Total: float64(total), Unit: pool.UnitBytes,
+			Items: int64(rows), Skipped: int64(nSkipped), Last: last})
 	}
 	for b := range full {
 		if b.err != nil {
@@ -107,7 +112,7 @@ func Run(ctx context.Context, h *history.Reader, schemes []Scheme, opt Options) 
 				if err := cmp.Or(ctx.Err(), t.Err()); err != nil {
 					return nil, err
 				}
-				report()
+				report(false)
 			}
 			row := &b.rows[i]
 			if !b.ok[i] {
@@ -132,7 +137,7 @@ func Run(ctx context.Context, h *history.Reader, schemes []Scheme, opt Options) 
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
-	report()
+	report(true)
 	r, err := t.Result()
 	if err != nil {
 		return nil, err

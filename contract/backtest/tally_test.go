@@ -8,6 +8,7 @@ import (
 	"testing"
 
 	"scorewright/contract/backtest/history"
+	"scorewright/internal/pool"
 )
 
 // stepMenu is an explicit report menu for tests: multiples of 1/k.
@@ -136,10 +137,10 @@ func TestRunSkipsAndStrict(t *testing.T) {
 		return h
 	}
 	var seen []string
-	var last Progress
+	var last pool.Step
 	res, err := Run(context.Background(), open(), schemes, Options{
 		OnRow:    func(r *history.Row, paid []Paid) error { seen = append(seen, r.Forecaster+"/"+r.Question); return nil },
-		Progress: func(p Progress) { last = p },
+		Progress: func(p pool.Step) { last = p },
 	})
 	if err != nil {
 		t.Fatal(err)
@@ -147,7 +148,8 @@ func TestRunSkipsAndStrict(t *testing.T) {
 	if res.Rows != 2 || res.SkippedCount != 2 || res.Skipped[0].Line != 3 || res.Skipped[1].Line != 5 {
 		t.Errorf("rows %d, skipped %+v, want 2 rows and lines 3 and 5 skipped", res.Rows, res.Skipped)
 	}
-	if strings.Join(seen, " ") != "Alder/n1 Birch/n1" || last.Rows != 4 || last.Skipped != 2 || last.Offset != int64(len(runHistory)) {
+	if strings.Join(seen, " ") != "Alder/n1 Birch/n1" || last.Items != 4 || last.Skipped != 2 || last.Done != float64(len(runHistory)) ||
+		last.Total != last.Done || !last.Last || last.Unit != pool.UnitBytes {
 		t.Errorf("rows seen %v, last progress %+v", seen, last)
 	}
 	// Alder: 0.7 and frost, effort 2·0.09 = 0.18, pay 10 - 0.9 = 9.1;

@@ -185,7 +185,7 @@ func (f *Fit) Table(rc *Recheck, info Info) *table.Table {
 		A: num.Float(f.A), B: num.Float(f.B),
 		Budget: f.BudgetDesc(), Rounding: f.RoundingDesc(),
 		Unit: num.Float(f.Unit), RoundingMode: f.Rounding, Floor: num.Float(f.Floor), Cap: num.Float(f.Cap),
-		Passed: rc.Passed, Verdict: rc.Verdict(f), MinMargin: num.Float(rc.MinMargin),
+		Passed: rc.Passed, Verdict: rc.Verdict(f), MinMargin: num.Float(numfmt.Clean(rc.MinMargin)),
 		VerdictKind: table.GridEvidence, Certificate: info.Certificate,
 		Notes:   notes,
 		Version: info.Version, Date: info.Date, Currency: info.Currency,

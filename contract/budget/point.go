@@ -312,7 +312,7 @@ func (f *PointTable) Export(rc *PointRecheck, info PointInfo) *table.Table {
 		meta.Verdict, meta.MinMargin = "not re-checked", num.Float(math.NaN())
 		meta.Warnings = []string{"this table was NOT re-checked after scaling and rounding; do not sign it before it is."}
 	default:
-		meta.Passed, meta.Verdict, meta.MinMargin = rc.Passed, rc.Verdict(f), num.Float(rc.MinMargin)
+		meta.Passed, meta.Verdict, meta.MinMargin = rc.Passed, rc.Verdict(f), num.Float(numfmt.Clean(rc.MinMargin))
 		if !rc.Passed {
 			meta.Warnings = []string{"this table FAILED the menu re-check after scaling and rounding and was exported only on request (--force): some forecasters would gain by not reporting their mean. Do not sign it as it stands."}
 		}

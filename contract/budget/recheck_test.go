@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"scorewright/generator/design"
+	"scorewright/internal/pool"
 )
 
 // The clamp lets the log rule price a menu that includes 0 and 1, and
@@ -129,7 +130,7 @@ func TestRecheckCancelled(t *testing.T) {
 		t.Errorf("cancelled re-check returned %v", err)
 	}
 	calls := 0
-	if _, err := f.Recheck(context.Background(), RecheckSettings{Workers: 1, Progress: func(done, total int64) { calls++ }}); err != nil || calls == 0 {
+	if _, err := f.Recheck(context.Background(), RecheckSettings{Workers: 1, Progress: func(pool.Step) { calls++ }}); err != nil || calls == 0 {
 		t.Errorf("progress called %d times, err %v", calls, err)
 	}
 }

@@ -7,6 +7,7 @@ import (
 	"math"
 
 	"scorewright/generator/bregman"
+	"scorewright/internal/num"
 	"scorewright/internal/pool"
 )
 
@@ -147,7 +148,7 @@ func (s *Solver) Best(q []float64) (*Result, error) {
 	truth, truthPay := s.setBelief(q)
 	p, v := s.search(truth)
 	if math.IsInf(v, -1) || math.IsNaN(v) {
-		return nil, fmt.Errorf("%w: no report has a defined utility for belief %v", ErrNotConverged, q)
+		return nil, fmt.Errorf("%w: no report has a defined utility for belief %s", ErrNotConverged, num.Format(q))
 	}
 	status, err := s.confirm(p)
 	if err != nil {
@@ -190,7 +191,7 @@ func (s *Solver) confirm(p []float64) (string, error) {
 	}
 	res /= big
 	if !(res <= foc) {
-		return "", fmt.Errorf("%w: the first-order condition is off by %.2g (relative to the curvature) at report %v", ErrNotConverged, res, p)
+		return "", fmt.Errorf("%w: the first-order condition is off by %.2g (relative to the curvature) at report %s", ErrNotConverged, res, num.Format(p))
 	}
 	return fmt.Sprintf("first-order condition met (residual %.1g relative to the curvature)", res), nil
 }
@@ -276,7 +277,7 @@ func (s *Solver) Distortion(ctx context.Context, beliefs [][]float64, progress p
 			}
 		}
 		if progress != nil {
-			progress(int64(i+1), int64(len(beliefs)))
+			progress(pool.Step{Done: float64(i + 1), Total: float64(len(beliefs)), Unit: pool.UnitWork, Last: i == len(beliefs)-1})
 		}
 	}
 	return c, nil

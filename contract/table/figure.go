@@ -1,6 +1,7 @@
 package table
 
 import (
+	"bytes"
 	"fmt"
 	"image/color"
 	"io"
@@ -85,7 +86,19 @@ func (t *Table) writeFigure(w io.Writer, format string) error {
 		dc.FillText(s, vg.Point{X: dc.Min.X + vg.Centimeter/2, Y: y}, line)
 		y -= lineH
 	}
-	_, err = cw.WriteTo(w)
+	if format != "png" {
+		_, err = cw.WriteTo(w)
+		return err
+	}
+	var img bytes.Buffer
+	if _, err := cw.WriteTo(&img); err != nil {
+		return err
+	}
+	named, err := withSoftware(img.Bytes(), "scorewright "+t.Meta.Version)
+	if err != nil {
+		return err
+	}
+	_, err = w.Write(named)
 	return err
 }
 

@@ -3,9 +3,11 @@ package table_test
 import (
 	"bytes"
 	"context"
+	"encoding/binary"
 	"encoding/csv"
 	"encoding/json"
 	"flag"
+	"hash/crc32"
 	"image/png"
 	"os"
 	"path/filepath"
@@ -238,5 +240,30 @@ func TestTransformFriendly(t *testing.T) {
 		if !strings.Contains(md, want) {
 			t.Errorf("transformed table lacks %q", want)
 		}
+	}
+}
+
+// A PNG figure names its producer in a tEXt "Software" chunk whose CRC is
+// right (PNG 1.2, 11.3.4.3; the CRC checked with hash/crc32 over the
+// chunk's type and data), and still decodes.
+func TestPNGNamesProducer(t *testing.T) {
+	b := render(t, brier(t), "png")
+	if _, err := png.Decode(bytes.NewReader(b)); err != nil {
+		t.Fatal(err)
+	}
+	found := ""
+	for i := 8; i+12 <= len(b); {
+		n := int(binary.BigEndian.Uint32(b[i:]))
+		typ, data := string(b[i+4:i+8]), b[i+8:i+8+n]
+		if crc := binary.BigEndian.Uint32(b[i+8+n:]); crc != crc32.ChecksumIEEE(b[i+4:i+8+n]) {
+			t.Fatalf("chunk %s: bad CRC", typ)
+		}
+		if typ == "tEXt" && bytes.HasPrefix(data, []byte("Software\x00")) {
+			found = string(data[len("Software\x00"):])
+		}
+		i += 12 + n
+	}
+	if !strings.HasPrefix(found, "scorewright") {
+		t.Errorf("Software chunk %q", found)
 	}
 }

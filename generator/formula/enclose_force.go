@@ -71,7 +71,8 @@ func (e *Encloser) forcedComparison(i int32) (interval.Interval, bool) {
 
 // ComparisonSwitch reports whether switching quantity j is a comparison a
 // op b whose sides are both affine in the program's outcome variables
-// p1..pn (through sums, differences and constant multiples): its
+// p1..pn, or in all its variables when it has no outcome variables
+// (through sums, differences and constant multiples): its
 // quantity a - b is then affine on the simplex, so it changes sign at
 // most once along any segment, and a break found between two adjacent
 // floating-point numbers is the only one on that segment. holds reports
@@ -87,7 +88,9 @@ func (p *Program) ComparisonSwitch(j int) (affine bool, holds func(q float64) bo
 		n++
 	}
 	if n == 0 {
-		return false, nil
+		// A formula in other variables (x of a point forecast): affine
+		// in all of them.
+		n = len(p.varNames)
 	}
 	in := p.code[e.ownerOf(cell)]
 	l := cell - in.dst

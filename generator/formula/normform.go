@@ -1,8 +1,9 @@
 package formula
 
-// NormForm is the shape Program.NormForm recognises:
+// NormForm is one term of the shape Program.NormTerms recognises, a sum
+// of such terms plus an affine function of the variables:
 //
-//	Coef · (sum_k Weights[k] · p_k^Inner)^Outer + (an affine function of the variables)
+//	Coef · (sum_k Weights[k] · p_k^Inner)^Outer
 //
 // It says only what the program computes, by its structure; whether that
 // is concave is the caller's question (a certificate asks that Coef < 0,
@@ -30,30 +31,32 @@ const (
 	shConst             // a number, its value known
 	shAffine            // an affine function of the variables (constants too)
 	shPowSum            // sum of w_k p_k^a, every w_k >= 0, some > 0
-	shNorm              // c · (power sum)^k + affine
+	shNorm              // a sum of terms c · (power sum)^k, plus affine
 )
 
 // normCell is one cell's shape with what it carries.
 type normCell struct {
 	shape normShape
-	val   float64   // shConst
-	w     []float64 // shPowSum, shNorm: the weights of the sum
-	a     float64   // shPowSum, shNorm: the inner exponent
-	c, k  float64   // shNorm: the factor and the outer exponent
+	val   float64    // shConst
+	w     []float64  // shPowSum: the weights of the sum
+	a     float64    // shPowSum: the inner exponent
+	terms []NormForm // shNorm
 }
 
-// NormForm reports whether the whole program is, by its structure,
-// c·(sum_k w_k p_k^a)^k plus an affine function, and if so its parts.
+// NormTerms reports whether the whole program is, by its structure, a sum
+// of terms c·(sum_k w_k p_k^a)^e plus an affine function, and if so the
+// terms.
 // It follows the cells exactly: variables and numbers; a variable to a
 // constant power (or squared) as a term of a sum, terms of one exponent
 // added (or summed over lanes) and multiplied or divided by positive
-// numbers; the sum to a constant power (powk, sq, sqrt); that times or
-// divided by a nonzero number, negated, and plus or minus affine
-// functions (variables, numbers, their sums, differences and multiples).
-// Anything else — another function, a product of two variable cells, a
-// min, an if, a second sum of powers — leaves it unrecognised, so a
-// formula that differs from the shape by any term is not matched.
-func (p *Program) NormForm() (NormForm, bool) {
+// numbers; the sum to a constant power (powk, sq, sqrt); such terms
+// times or divided by a nonzero number, negated, added to one another and
+// plus or minus affine functions (variables, numbers, their sums,
+// differences and multiples). Anything else — another function, a
+// product of two variable cells, a min, an if, a power of a term — leaves
+// it unrecognised, so a formula that differs from the shape by any term
+// is not matched.
+func (p *Program) NormTerms() ([]NormForm, bool) {
 	nv := len(p.varNames)
 	cells := make([]normCell, p.cells)
 	for k := 0; k < nv; k++ {
@@ -69,9 +72,9 @@ func (p *Program) NormForm() (NormForm, bool) {
 	}
 	out := cells[p.out]
 	if out.shape != shNorm {
-		return NormForm{}, false
+		return nil, false
 	}
-	return NormForm{Coef: out.c, Weights: out.w, Inner: out.a, Outer: out.k}, true
+	return out.terms, true
 }
 
 // normStep is the shape of lane l of instruction in.
@@ -158,7 +161,7 @@ func raise(x normCell, k float64) normCell {
 	if x.shape != shPowSum {
 		return normCell{}
 	}
-	return normCell{shape: shNorm, w: x.w, a: x.a, c: 1, k: k}
+	return normTerm(NormForm{Coef: 1, Weights: x.w, Inner: x.a, Outer: k})
 }
 
 // scale is s·x. A power sum keeps its shape only under a positive factor
@@ -182,29 +185,31 @@ func scale(x normCell, s float64) normCell {
 			return normCell{shape: shPowSum, w: w, a: x.a}
 		}
 		if s < 0 {
-			return normCell{shape: shNorm, w: x.w, a: x.a, c: s, k: 1}
+			return normTerm(NormForm{Coef: s, Weights: x.w, Inner: x.a, Outer: 1})
 		}
 	case shNorm:
 		if s != 0 {
-			x.c *= s
-			return x
+			terms := make([]NormForm, len(x.terms))
+			for i, t := range x.terms {
+				t.Coef *= s
+				terms[i] = t
+			}
+			return normCell{shape: shNorm, terms: terms}
 		}
 	}
 	return normCell{}
 }
 
-// add is x + y: affine plus affine, power sums of one exponent, and the
-// norm shape (a power sum counts as one with factor 1) plus affine.
+// add is x + y: affine plus affine, power sums of one exponent, and sums
+// of norm terms (a power sum counts as one with factor 1) plus one
+// another or affine.
 func add(x, y normCell) normCell {
 	switch {
 	case x.shape == shConst && y.shape == shConst:
 		return numberCell(x.val + y.val)
 	case affineLike(x) && affineLike(y):
 		return normCell{shape: shAffine}
-	case x.shape == shPowSum && y.shape == shPowSum:
-		if x.a != y.a {
-			return normCell{}
-		}
+	case x.shape == shPowSum && y.shape == shPowSum && x.a == y.a:
 		w := make([]float64, len(x.w))
 		for i := range w {
 			w[i] = x.w[i] + y.w[i]
@@ -215,15 +220,22 @@ func add(x, y normCell) normCell {
 	case affineLike(x):
 		return asNorm(y)
 	}
-	return normCell{}
+	nx, ny := asNorm(x), asNorm(y)
+	if nx.shape != shNorm || ny.shape != shNorm {
+		return normCell{}
+	}
+	return normCell{shape: shNorm, terms: append(append([]NormForm(nil), nx.terms...), ny.terms...)}
 }
 
-// asNorm reads a power sum as the norm shape c·S^1, and passes the norm
-// shape through (the affine addend it gains is not tracked).
+// normTerm is a sum of one norm term.
+func normTerm(t NormForm) normCell { return normCell{shape: shNorm, terms: []NormForm{t}} }
+
+// asNorm reads a power sum as the norm term 1·S^1, and passes a sum of
+// norm terms through (the affine addend it gains is not tracked).
 func asNorm(x normCell) normCell {
 	switch x.shape {
 	case shPowSum:
-		return normCell{shape: shNorm, w: x.w, a: x.a, c: 1, k: 1}
+		return normTerm(NormForm{Coef: 1, Weights: x.w, Inner: x.a, Outer: 1})
 	case shNorm:
 		return x
 	}

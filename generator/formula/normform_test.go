@@ -30,6 +30,25 @@ var normCases = []struct {
 	{"-(p1^3 + p2^3)^(1/3)", 3, -1, []float64{1, 1, 0}, 3, 1.0 / 3},
 }
 
+// TestNormTermsSum: a sum of norm terms gives each term, in the order
+// the formula writes them (read off by hand).
+func TestNormTermsSum(t *testing.T) {
+	p, err := CompileString("2 - sum(p^3)^(1/3) + p1 - 3*sqrt(sum(p^2)) - sum(p^4)", Scope{Outcomes: 3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	terms, ok := p.NormTerms()
+	want := []NormForm{{-1, nil, 3, 1.0 / 3}, {-3, nil, 2, 0.5}, {-1, nil, 4, 1}}
+	if !ok || len(terms) != len(want) {
+		t.Fatalf("got %+v %v", terms, ok)
+	}
+	for j, w := range want {
+		if g := terms[j]; g.Coef != w.Coef || g.Inner != w.Inner || g.Outer != w.Outer || len(g.Weights) != 3 || g.Weights[0] != 1 {
+			t.Errorf("term %d: %+v, want %+v", j, g, w)
+		}
+	}
+}
+
 // TestNormFormParts: the recogniser returns the parts the formula writes.
 func TestNormFormParts(t *testing.T) {
 	for _, c := range normCases {
@@ -37,11 +56,12 @@ func TestNormFormParts(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		nf, ok := p.NormForm()
-		if !ok {
-			t.Errorf("%q: not recognised", c.src)
+		terms, ok := p.NormTerms()
+		if !ok || len(terms) != 1 {
+			t.Errorf("%q: not recognised as one term: %+v", c.src, terms)
 			continue
 		}
+		nf := terms[0]
 		close := func(x, y float64) bool { return math.Abs(x-y) <= 1e-15*math.Abs(y) }
 		if !close(nf.Coef, c.coef) || !close(nf.Inner, c.inner) || !close(nf.Outer, c.outer) || len(nf.Weights) != c.n {
 			t.Errorf("%q: got %+v", c.src, nf)
@@ -56,24 +76,40 @@ func TestNormFormParts(t *testing.T) {
 }
 
 // TestNormFormMatchesTheProgram checks the claim independently of the
-// recogniser: what the program computes minus c·(sum w_k p_k^a)^e, both
-// evaluated at points of the simplex, must be affine there — its value at
-// the midpoint of a segment the mean of its values at the ends.
+// recogniser: what the program computes minus the sum of its terms
+// c·(sum w_k p_k^a)^e, both evaluated at points of the simplex, must be
+// affine there — its value at the midpoint of a segment the mean of its
+// values at the ends.
 func TestNormFormMatchesTheProgram(t *testing.T) {
 	rng := rand.New(rand.NewPCG(7, 11))
+	type formulaCase struct {
+		src string
+		n   int
+	}
+	srcs := []formulaCase{{"2 - sum(p^3)^(1/3) + p1 - 3*sqrt(sum(p^2)) - sum(p^4)", 3}, {"-sum(w*p^1.5)^(1/1.5) - (p1^3 + 2*p2^3)^0.5 + 2*p2", 2}}
 	for _, c := range normCases {
+		srcs = append(srcs, formulaCase{c.src, c.n})
+	}
+	for _, c := range srcs {
 		p, err := CompileString(c.src, Scope{Outcomes: c.n, Weights: []float64{1, 2, 3, 4}[:c.n]})
 		if err != nil {
 			t.Fatal(err)
 		}
-		nf, _ := p.NormForm()
+		terms, ok := p.NormTerms()
+		if !ok {
+			t.Fatalf("%q: not recognised", c.src)
+		}
 		m := p.NewMachine()
 		rest := func(x []float64) float64 {
-			var s float64
-			for k, w := range nf.Weights {
-				s += w * math.Pow(x[k], nf.Inner)
+			v := m.Value(x)
+			for _, nf := range terms {
+				var s float64
+				for k, w := range nf.Weights {
+					s += w * math.Pow(x[k], nf.Inner)
+				}
+				v -= nf.Coef * math.Pow(s, nf.Outer)
 			}
-			return m.Value(x) - nf.Coef*math.Pow(s, nf.Outer)
+			return v
 		}
 		for trial := 0; trial < 200; trial++ {
 			x, y := randomPoint(rng, c.n, trial), randomPoint(rng, c.n, trial+1)
@@ -96,7 +132,9 @@ func TestNormFormRefuses(t *testing.T) {
 	for _, src := range []string{
 		"-sum(p^3)^(1/3) + 1e-12*p1*p2",                         // a product of two variables
 		"-sum(p^3)^(1/3) + 1e-9*exp(-(p1 - 0.3)^2/1e-10)",       // a bump
-		"-sum(p^3)^(1/3) - sum(p^4)^(1/4)",                      // two norms
+		"-sum(p^3)^(1/3) * sum(p^4)^(1/4)",                      // a product of two norms
+		"-(sum(p^3) + sum(p^4))^(1/3)",                          // two inner exponents in one sum
+		"-(sum(p^3)^(1/6))^2",                                   // a power of a term
 		"-(p1^3 - 0.5*p2^3 + p3^3)^(1/3)",                       // a negative weight
 		"-(p1^3 + 0*p2^3 + p3^3)^(1/3)",                         // a zero factor
 		"-(p1^3 + p2^2 + p3^3)^(1/3)",                           // two inner exponents
@@ -117,7 +155,7 @@ func TestNormFormRefuses(t *testing.T) {
 			t.Logf("%q does not compile (%v); skipped", src, err)
 			continue
 		}
-		if nf, ok := p.NormForm(); ok {
+		if nf, ok := p.NormTerms(); ok {
 			t.Errorf("%q recognised as %+v", src, nf)
 		}
 	}

@@ -49,19 +49,19 @@ func TestRunCancelled(t *testing.T) {
 
 // A finished meter says "all done" last; one that did not finish does not.
 func TestMeterFinish(t *testing.T) {
-	var last [2]int64
-	m := NewMeter(func(done, total int64) { last = [2]int64{done, total} }, 50)
+	var last Step
+	m := NewMeter(func(s Step) { last = s }, 50)
 	m.Add(20)
 	m.Finish(true)
-	if last != [2]int64{50, 50} {
-		t.Fatalf("last report %v, want [50 50]", last)
+	if last != (Step{Done: 50, Total: 50, Unit: UnitWork, Last: true}) {
+		t.Fatalf("last report %+v, want 50 of 50, last", last)
 	}
-	last = [2]int64{}
-	m = NewMeter(func(done, total int64) { last = [2]int64{done, total} }, 50)
+	last = Step{}
+	m = NewMeter(func(s Step) { last = s }, 50)
 	m.Add(20)
 	m.Finish(false)
-	if last[0] == 50 {
-		t.Fatalf("an unfinished call reported %v", last)
+	if last.Done == 50 || last.Last {
+		t.Fatalf("an unfinished call reported %+v", last)
 	}
 	NewMeter(nil, 5).Finish(true) // counts only; must not block or panic
 }

@@ -67,33 +67,19 @@ func structuralResult(ctx context.Context, prog *formula.Program, n int, s Setti
 // concave piece by piece between its breaks (strictly proper when every
 // piece is strictly concave, else proper), or nil.
 func breakResult(ctx context.Context, prog *formula.Program, n int, s Settings, start time.Time) *Result {
-	if n != 2 || prog.Switches() == 0 {
+	if n != 2 {
 		return nil
 	}
-	bs, ok := lineBreaks(prog)
-	if !ok || len(bs) == 0 {
+	bp := &breakProof{enc: prog.NewSimplexEncloser(), lo: 0, hi: 1,
+		vars: func(x float64) []float64 { return []float64{x, 1 - x} },
+		box: func(a, b float64) []iv.Interval {
+			x := iv.Interval{Lo: a, Hi: b}
+			last := iv.Sub(iv.Point(1), x)
+			return []iv.Interval{x, {Lo: math.Max(0, last.Lo), Hi: math.Min(1, math.Max(0, last.Hi))}}
+		}}
+	strict, at, ok := bp.run(ctx, prog)
+	if !ok {
 		return nil
-	}
-	bp := &breakProof{prog: prog, enc: prog.NewSimplexEncloser(), m: prog.NewMachine(), qs: make([]float64, prog.Switches()), bs: bs}
-	ends := []float64{0}
-	for _, b := range bs {
-		ends = append(ends, b.at)
-	}
-	ends = append(ends, 1)
-	var strict float64
-	for i := 0; i+1 < len(ends); i++ {
-		ok, st := bp.piece(ctx, ends[i], ends[i+1])
-		if ctx.Err() != nil || !ok {
-			return nil
-		}
-		strict += st
-	}
-	var at []string
-	for i, b := range bs {
-		if !bp.join(b, ends[i], ends[i+1], ends[i+2]) {
-			return nil
-		}
-		at = append(at, fmt.Sprintf("%.10g", b.at))
 	}
 	if strict < 1-1e-12 {
 		// Concave everywhere, strictly only on part: proper, as the
@@ -103,37 +89,92 @@ func breakResult(ctx context.Context, prog *formula.Program, n int, s Settings, 
 		(&ticker{fn: s.Progress, start: start}).tick(1, bp.boxes, true)
 		return res
 	}
-	res := provedStrict(n, fmt.Sprintf("H is smooth between the breaks of its if at p1 = %s; each piece proved strictly concave (interval Hessian below 0, %d boxes), and at each break the two branches take the same value and the slope does not rise (checked exactly at the break), so H is strictly concave across it", strings.Join(at, ", "), bp.boxes), s, start)
+	res := provedStrict(n, fmt.Sprintf("H is smooth between the breaks of its if at p1 = %s; each piece proved strictly concave (interval Hessian below 0, %d boxes), and at each break the two branches take the same value and the slope does not rise (checked exactly at the break), so H is strictly concave across it", at, bp.boxes), s, start)
 	res.Boxes = bp.boxes
 	return res
 }
 
-// breakProof is the state of one breakResult run.
-type breakProof struct {
-	prog  *formula.Program
-	enc   *formula.Encloser
-	m     *formula.Machine
-	qs    []float64
-	bs    []lineBreak
-	en    formula.Enclosure
-	boxes int
+// pointBreakResult is the certificate of a point generator phi on [lo,
+// hi] proved concave piece by piece between its breaks, or nil.
+func pointBreakResult(ctx context.Context, prog *formula.Program, enc *formula.Encloser, lo, hi float64, start time.Time) *Result {
+	bp := &breakProof{enc: enc, lo: lo, hi: hi,
+		vars: func(x float64) []float64 { return []float64{x} },
+		box:  func(a, b float64) []iv.Interval { return []iv.Interval{{Lo: a, Hi: b}} }}
+	strict, at, ok := bp.run(ctx, prog)
+	if !ok {
+		return nil
+	}
+	res := &Result{Kind: Certified, Verdict: verify.StrictlyProper, Share: 1, StrictShare: 1, Boxes: bp.boxes, Line: true, Elapsed: time.Since(start)}
+	if strict < (1-1e-12)*(hi-lo) {
+		res.Verdict, res.StrictShare = verify.Proper, strict/(hi-lo)
+		res.Method = fmt.Sprintf("phi is smooth between the breaks of its if at x = %s and concave on each piece, and at each break the branches meet with a slope that does not rise; phi'' is proved below 0 on %.6g%% of the interval only, so strictness is not proved", at, 100*res.StrictShare)
+	}
+	return res
 }
 
-// lineBreaks scans (0, 1) for the points where a switching quantity
+// breakProof is the state of one run on a line: the interval [lo, hi]
+// of one variable, the machine's variables at a point of it, and the
+// encloser's box over a stretch of it.
+type breakProof struct {
+	enc    *formula.Encloser
+	lo, hi float64
+	vars   func(x float64) []float64
+	box    func(a, b float64) []iv.Interval
+	m      *formula.Machine
+	qs     []float64
+	bs     []lineBreak
+	en     formula.Enclosure
+	boxes  int
+}
+
+// run proves the program concave piece by piece between its breaks and
+// across them; it returns the length proved strictly concave and the
+// breaks in words, ok false when it proved less than concavity
+// everywhere.
+func (bp *breakProof) run(ctx context.Context, prog *formula.Program) (strict float64, at string, ok bool) {
+	if prog.Switches() == 0 {
+		return 0, "", false
+	}
+	bp.m, bp.qs = prog.NewMachine(), make([]float64, prog.Switches())
+	if bp.bs, ok = bp.lineBreaks(prog); !ok || len(bp.bs) == 0 {
+		return 0, "", false
+	}
+	ends := []float64{bp.lo}
+	for _, b := range bp.bs {
+		ends = append(ends, b.at)
+	}
+	ends = append(ends, bp.hi)
+	for i := 0; i+1 < len(ends); i++ {
+		ok, st := bp.piece(ctx, ends[i], ends[i+1])
+		if ctx.Err() != nil || !ok {
+			return 0, "", false
+		}
+		strict += st
+	}
+	var where []string
+	for i, b := range bp.bs {
+		if !bp.join(b, ends[i], ends[i+1], ends[i+2]) {
+			return 0, "", false
+		}
+		where = append(where, fmt.Sprintf("%.10g", b.at))
+	}
+	return strict, strings.Join(where, ", "), true
+}
+
+// lineBreaks scans (lo, hi) for the points where a switching quantity
 // changes sign and narrows each to adjacent floats; ok is false when one
 // is not an affine comparison (or changes sign twice, which an affine one
 // cannot).
-func lineBreaks(prog *formula.Program) ([]lineBreak, bool) {
+func (bp *breakProof) lineBreaks(prog *formula.Program) ([]lineBreak, bool) {
 	ns := prog.Switches()
-	m := prog.NewMachine()
-	at := func(x float64, dst []float64) { m.Switches(dst, []float64{x, 1 - x}) }
+	at := func(x float64, dst []float64) { bp.m.Switches(dst, bp.vars(x)) }
+	point := func(i float64) float64 { return bp.lo + (bp.hi-bp.lo)*i/breakScan }
 	prev, cur, buf := make([]float64, ns), make([]float64, ns), make([]float64, ns)
-	x0 := 0.5 / breakScan
-	at(x0, prev)
+	at(point(0.5), prev)
 	seen := make([]bool, ns)
 	var out []lineBreak
 	for i := 1; i < breakScan; i++ {
-		x := (float64(i) + 0.5) / breakScan
+		x := point(float64(i) + 0.5)
 		at(x, cur)
 		for j := range cur {
 			if prev[j] != prev[j] || cur[j] != cur[j] || (prev[j] < 0) == (cur[j] < 0) {
@@ -144,7 +185,7 @@ func lineBreaks(prog *formula.Program) ([]lineBreak, bool) {
 				return nil, false
 			}
 			seen[j] = true
-			lo, hi := x-1.0/breakScan, x
+			lo, hi := point(float64(i)-0.5), x
 			for {
 				mid := lo + (hi-lo)/2
 				if mid <= lo || mid >= hi {
@@ -169,18 +210,15 @@ func lineBreaks(prog *formula.Program) ([]lineBreak, bool) {
 // where no affine quantity with its zero elsewhere changes sign).
 func (bp *breakProof) force(x float64) {
 	bp.enc.ClearForced()
-	bp.m.Switches(bp.qs, []float64{x, 1 - x})
+	bp.m.Switches(bp.qs, bp.vars(x))
 	for _, b := range bp.bs {
 		bp.enc.ForceComparison(b.j, b.holds(bp.qs[b.j]))
 	}
 }
 
-// enclose encloses H (forced) on p1 in [a, b], to the given order.
+// enclose encloses the program (forced) on [a, b], to the given order.
 func (bp *breakProof) enclose(a, b float64, order int) {
-	x := iv.Interval{Lo: a, Hi: b}
-	last := iv.Sub(iv.Point(1), x)
-	box := []iv.Interval{x, {Lo: math.Max(0, last.Lo), Hi: math.Min(1, math.Max(0, last.Hi))}}
-	bp.enc.Enclose(&bp.en, box, order)
+	bp.enc.Enclose(&bp.en, bp.box(a, b), order)
 }
 
 // piece proves the branch of the piece [lo, hi] concave, and returns the
@@ -206,10 +244,10 @@ func (bp *breakProof) piece(ctx context.Context, lo, hi float64) (ok bool, stric
 			strict += x[1] - x[0]
 		case c.Hi <= 0:
 			// Concave here; cut it while strictness may still show.
-			if x[1]-x[0] > 1.0/1024 {
+			if x[1]-x[0] > (bp.hi-bp.lo)/1024 {
 				open = append(open, [2]float64{x[0], m}, [2]float64{m, x[1]})
 			}
-		case c.Lo > 0 || x[1]-x[0] < breakMinWidth:
+		case c.Lo > 0 || x[1]-x[0] < breakMinWidth*(bp.hi-bp.lo):
 			// Convex somewhere, or not decided: the generic search
 			// finds the witness or says what it could not prove.
 			return false, 0

@@ -1,8 +1,11 @@
 package certify
 
 import (
+	"context"
 	"testing"
+	"time"
 
+	"scorewright/generator/formula"
 	"scorewright/verify"
 )
 
@@ -37,6 +40,37 @@ func TestCertifyAtTheFormulasBreaks(t *testing.T) {
 		res := certifyFormula(t, c.src, 2, Settings{})
 		if res.Verdict != c.want || res.Kind != Certified {
 			t.Errorf("%s: %s %s, want certified %s (%s)", c.src, res.Kind, res.Verdict, c.want, res.Statement())
+		}
+	}
+}
+
+// The same for point generators on an interval (Savage 1971: concave phi
+// is proper; verdicts derived by hand): C1 joins of strictly concave
+// pieces (at 0.5, and at 3 where -x^2 continues as -9 - 6(x-3) -
+// 2(x-3)^2) are strictly proper; -x^2 continued by its tangent 0.25 - x
+// is proper, strictly concave on [0, 0.5] only (a tenth of [0, 5]); a
+// slope rising from -0.9 to -0.8 at 0.5 is improper.
+func TestPointCertificateAtTheBreaks(t *testing.T) {
+	cases := []struct {
+		src  string
+		want verify.Verdict
+	}{
+		{"if(x < 0.5, -(x-0.5)^2, -2*(x-0.5)^2)", verify.StrictlyProper},
+		{"if(x < 3, -x^2, -9 - 6*(x-3) - 2*(x-3)^2)", verify.StrictlyProper},
+		{"if(x < 0.5, -x^2, 0.25 - x)", verify.Proper},
+		{"if(x < 0.5, -(x-0.5)^2 + 0.1*x, -2*(x-0.5)^2 + 0.2*x)", verify.Improper},
+	}
+	for _, c := range cases {
+		prog, err := formula.CompileString(c.src, formula.Scope{Vars: []string{"x"}})
+		if err != nil {
+			t.Fatal(err)
+		}
+		res, err := Point(context.Background(), prog, 0, 5, Settings{Deadline: 10 * time.Second})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if res.Verdict != c.want {
+			t.Errorf("%s: %s, want %s (%s)", c.src, res.Verdict, c.want, res.Statement())
 		}
 	}
 }

@@ -49,6 +49,7 @@ import (
 	"math"
 	"time"
 
+	"scorewright/internal/pool"
 	"scorewright/verify"
 )
 
@@ -108,25 +109,18 @@ type Settings struct {
 	// DefaultEpsilon times the spread of the payments.
 	Epsilon float64
 	// Progress, when set, is called about ten times a second and once at
-	// the end, from the calling goroutine.
-	Progress func(Progress)
+	// the end (Last), from the calling goroutine: Done is the share of the
+	// simplex (or interval) by volume decided so far, of Total 1
+	// (pool.UnitShare); Items the boxes examined; Elapsed the time since
+	// the start. A payout run that turns from one argument to the next
+	// shows the share the new one has proved, from 0 again; the boxes
+	// count on.
+	Progress pool.Progress
 }
 
 // DefaultEpsilon is the payout tolerance relative to the spread of the
 // payments when no budget sets one (a hundredth of the rounding unit).
 const DefaultEpsilon = 1e-6
-
-// Progress reports a run under way.
-type Progress struct {
-	// Share is the part of the simplex (by volume) decided so far, 0..1.
-	Share float64
-	// Boxes is the number of boxes examined.
-	Boxes int
-	// Elapsed is the time since the start.
-	Elapsed time.Duration
-	// Done is set on the last call.
-	Done bool
-}
 
 // Witness is a belief and a report that prove a rule dishonest, each
 // checked by interval evaluation.
@@ -331,9 +325,14 @@ func (s Settings) maxBoxes() int {
 
 // ticker calls Progress about ten times a second.
 type ticker struct {
-	fn    func(Progress)
+	fn    pool.Progress
 	start time.Time
 	last  time.Time
+	// base is the boxes examined by earlier phases of the run, added to
+	// those of a phase that counts its own from 0 (the payout's one-pass
+	// argument when it runs a second time), so that the boxes shown never
+	// fall.
+	base int
 }
 
 func (t *ticker) tick(share float64, boxes int, done bool) {
@@ -345,5 +344,5 @@ func (t *ticker) tick(share float64, boxes int, done bool) {
 		return
 	}
 	t.last = now
-	t.fn(Progress{Share: math.Min(1, share), Boxes: boxes, Elapsed: now.Sub(t.start), Done: done})
+	t.fn(pool.Step{Done: math.Min(1, share), Total: 1, Unit: pool.UnitShare, Items: int64(t.base + boxes), Elapsed: now.Sub(t.start), Last: done})
 }

@@ -245,6 +245,10 @@ func Point(ctx context.Context, prog *formula.Program, lo, hi float64, s Setting
 	if lo >= 0 {
 		enc.AtEdge(0)
 	}
+	if res := pointBreakResult(ctx, prog, enc, lo, hi, start); res != nil {
+		tk.tick(1, res.Boxes, true)
+		return res, nil
+	}
 	var en formula.Enclosure
 	box := make([]iv.Interval, 1)
 	eval := func(x iv.Interval) (lineClass, bool) {

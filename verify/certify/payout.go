@@ -186,7 +186,9 @@ func (p *payRun) convexFirst(ctx context.Context, pay *payout.Payout, s Settings
 		*h = pairHeap{{q: whole, r: whole, u: math.Inf(1)}}
 		return false
 	}
+	tk.base = res.Boxes
 	share, left, boxes, stopped := cr.run(ctx, s, p.eps, tk)
+	tk.base = 0
 	res.Share = share
 	res.Boxes += boxes
 	switch {

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 
+	"scorewright/internal/pool"
 	"scorewright/verify"
 )
 
@@ -35,15 +36,16 @@ func tick(ctx context.Context, s verify.Settings, n, total int) error {
 		return nil
 	}
 	if s.Progress != nil {
-		s.Progress(int64(n), int64(total))
+		s.Progress(pool.Step{Done: float64(n), Total: float64(total), Unit: pool.UnitWork})
 	}
 	return ctx.Err()
 }
 
-// done reports the last step of total.
+// done reports the last step of total: the sweep over distributions is a
+// point check's only long part, so it ends the job's progress.
 func done(s verify.Settings, total int) {
 	if s.Progress != nil {
-		s.Progress(int64(total), int64(total))
+		s.Progress(pool.Step{Done: float64(total), Total: float64(total), Unit: pool.UnitWork, Last: true})
 	}
 }
 

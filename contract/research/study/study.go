@@ -21,6 +21,7 @@ import (
 	"scorewright/generator/bregman"
 	"scorewright/generator/design"
 	"scorewright/internal/num"
+	"scorewright/internal/pool"
 	"scorewright/presets"
 )
 
@@ -51,8 +52,10 @@ type Spec struct {
 	Optimum bool
 	Grid    int
 	Mix     float64
-	// Progress, when set, is told each stage as it starts.
-	Progress func(stage string, done, total int)
+	// Progress, when set, is told each stage as it starts: Stage names
+	// it, Done is the stages finished of Total (pool.UnitStages); the
+	// last, "done", has Done = Total and Last.
+	Progress pool.Progress
 }
 
 // Row is one compared rule.
@@ -146,7 +149,7 @@ func Run(ctx context.Context, labels []string, b design.Budget, s Spec) (*Report
 	total := len(named) + 2
 	stage := func(what string, i int) {
 		if s.Progress != nil {
-			s.Progress(what, i, total)
+			s.Progress(pool.Step{Done: float64(i), Total: float64(total), Unit: pool.UnitStages, Stage: what, Last: i == total})
 		}
 	}
 	if n == 2 {
