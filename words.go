@@ -53,9 +53,16 @@ func LotteryRemedy(how string) string {
 	return "Paid as a chance (pay - floor)/(cap - floor) of one fixed prize (" + how + "), any expected-utility maximiser reports the truth."
 }
 
-// CleanWorst is v, or 0 when v is within the slack of g's comparisons.
+// CleanWorst is v, or 0 when v is within the slack every comparison of g
+// allows (noise, not a finding).
 func CleanWorst(v float64, g verify.Grid) float64 {
-	if math.Abs(v) <= math.Max(g.Tolerance*g.Scale, g.Rounding) {
+	round := g.Rounding
+	if g.Floor > 0 {
+		// Comparisons allow their own rows' rounding, which can be far
+		// below the worst: only the values' floor is noise everywhere.
+		round = g.Floor
+	}
+	if math.Abs(v) <= math.Max(g.Tolerance*g.Scale, round) {
 		return 0
 	}
 	return v

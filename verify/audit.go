@@ -146,7 +146,7 @@ func audit(ctx context.Context, p *payout.Payout, cands []Candidate, s Settings,
 	for i := range honest {
 		honest[i] = m.phi(g.Point(i), i)
 	}
-	prop, _, ties := properness(g, m, honest, bs, s.Tolerance, rep.Grid.Scale, rep.Grid.Rounding, 0)
+	prop, _, ties := properness(g, m, honest, bs, globalSlack(s.Tolerance), rep.Grid.Scale, rep.Grid.Rounding, 0)
 	rep.Beliefs = beliefTable(g, m, honest, bs, s.Tolerance)
 	offGain, err := offGridReports(ctx, p, g, tree, rep.Beliefs, s, pr)
 	if err != nil {

@@ -88,3 +88,30 @@ func TestOutcomeOnlyTermsLeaveTheScale(t *testing.T) {
 		t.Errorf("payout with 1e10·y: precision %q claims more than rounding allows", rep.Gap.Precision)
 	}
 }
+
+// The slack of a comparison follows the rounding of its own two rows, not
+// the worst row's: p1·(1e12/p1 - 1) - 1e12 is -p1 (affine, changing
+// nothing), but its gradient sums terms of size 1e12/p1, whose rounding
+// near p1 = 0.001 is about 10. With one global slack that hid a convex
+// kink of slope jump 1 at p1 = 0.5 (a concave H has none, derived by
+// hand: the gap there is about 1/16), whose rows carry only about 1e-3 of
+// rounding; without the kink the rule is the quadratic one, strictly
+// proper (Brier 1950).
+func TestSlackComparisonByComparison(t *testing.T) {
+	const noisy = "-p1^2 - p2^2 + p1*(1e12/p1 - 1) - 1e12"
+	for _, c := range []struct {
+		src  string
+		want Verdict
+	}{
+		{noisy, StrictlyProper},
+		{noisy + " + max(0, p1 - 0.5)", Improper},
+	} {
+		rep, err := CheckRule(context.Background(), rule(t, c.src, 2), Settings{Resolution: 1000})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if rep.Verdict != c.want {
+			t.Errorf("%s: verdict %s, want %s (slack %g)", c.src, rep.Verdict, c.want, rep.Grid.Slack())
+		}
+	}
+}

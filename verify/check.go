@@ -110,15 +110,12 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	// (the rounding of the Hessian's own terms is allowed point by point).
 	cs := s
 	cs.Tolerance = affTol * rep.Grid.Scale
-	conc, effRound, err := concavity(ctx, r, g, cs, scorers, pr)
+	conc, effR, err := concavity(ctx, r, g, cs, scorers, pr)
 	if err != nil {
 		return nil, err
 	}
-	// The pair checks compare efforts, whose gradients can sum terms far
-	// larger than the result: allow twice the largest bound on their
-	// rounding (one effort on each side of a comparison).
-	rep.Grid.Rounding = math.Max(rep.Grid.Rounding, 2*effRound)
-	s.Tolerance = rep.Grid.Slack()
+	ps := comparisonSlack(&rep.Grid, effR, cs.Tolerance)
+	s.Tolerance = ps.global
 	proved := s.Proof.proves()
 	var bs []best
 	if proved {
@@ -129,7 +126,7 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	if err != nil {
 		return nil, err
 	}
-	prop, nonneg, ties := properness(g, m, h, bs, s.Tolerance, rep.Grid.Scale, rep.Grid.Rounding, rep.Grid.Extrapolation)
+	prop, nonneg, ties := properness(g, m, h, bs, ps, rep.Grid.Scale, rep.Grid.Rounding, rep.Grid.Extrapolation)
 	if g.Sampled && !proved {
 		if err := searchEfforts(ctx, r, g, &prop, s); err != nil {
 			return nil, err
@@ -141,7 +138,9 @@ func checkRule(ctx context.Context, r *bregman.Rule, s Settings, g *simplex.Grid
 	sharpenWitnesses(&prop, &nonneg, &conc, r, sc, g)
 
 	conc.Note = joinNotes(concavityWitness(conc), conc.Note)
-	if mid := midpoints(g, sc, s.Tolerance, s.Seed); mid.found {
+	// Each midpoint test allows the rounding of its own three values,
+	// besides the tolerance and the values' rounding floor.
+	if mid := midpoints(g, sc, math.Max(cs.Tolerance, rep.Grid.Floor), s.Seed); mid.found {
 		mid.apply(&conc)
 	}
 	prop.Note = propernessNote(prop, "effort", "less")

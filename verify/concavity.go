@@ -22,12 +22,12 @@ import (
 // Numeric kernel: one pass over the grid (or the lanes) kept whole so
 // the arithmetic reads in one place; it stays longer than 80 lines on purpose.
 //
-// It also returns the largest bound on the rounding of an effort over the
-// interior points it examined (projector.effRound), which the pair checks
-// allow for.
-func concavity(ctx context.Context, r *bregman.Rule, g *simplex.Grid, s Settings, scorers []*bregman.Scorer, pr *pool.Meter) (CheckResult, float64, error) {
+// It also returns, for every grid point, the bound on the rounding of an
+// effort there (projector.lastEff; 0 on the boundary, where none is
+// known), which the pair checks allow for comparison by comparison.
+func concavity(ctx context.Context, r *bregman.Rule, g *simplex.Grid, s Settings, scorers []*bregman.Scorer, pr *pool.Meter) (CheckResult, []float64, error) {
 	n, G := r.Outcomes(), g.Len()
-	lam := make([]float64, G)
+	lam, effR := make([]float64, G), make([]float64, G)
 	projs := make([]*projector, s.Workers)
 	for i := range projs {
 		projs[i] = newProjector(n)
@@ -36,21 +36,18 @@ func concavity(ctx context.Context, r *bregman.Rule, g *simplex.Grid, s Settings
 		pj, sc := projs[w], scorers[w]
 		for j := lo; j < hi; j++ {
 			lam[j] = pj.largest(sc, g.Point(j))
+			effR[j] = pj.lastEff
 		}
 		pr.Add(int64(hi-lo) * gradCost)
 	})
 	if err != nil {
-		return CheckResult{}, 0, err
+		return CheckResult{}, nil, err
 	}
 	// Only the grid's efforts meet in the pair checks: the random points
 	// below (some far nearer the boundary) do not count.
-	var effRound float64
-	for _, pj := range projs {
-		effRound = math.Max(effRound, pj.effRound)
-	}
 	off, offLam, err := offGrid(ctx, n, G, s, projs, scorers, pr)
 	if err != nil {
-		return CheckResult{}, 0, err
+		return CheckResult{}, nil, err
 	}
 	T := s.Tolerance
 	var in, bd, between part
@@ -133,7 +130,7 @@ func concavity(ctx context.Context, r *bregman.Rule, g *simplex.Grid, s Settings
 		notes = append(notes, fmt.Sprintf("the Hessian is not finite at %d boundary points (e.g. %s), where the pair checks stand in for curvature", nonFiniteBd, num.Format(nfBd)))
 	}
 	c.Note = strings.Join(notes, "; ")
-	return c, effRound, nil
+	return c, effR, nil
 }
 
 // kink is the worst midpoint violation of concavity: along the segment
@@ -294,10 +291,10 @@ type projector struct {
 	eig  mat.EigenSym
 	vals []float64
 	// herr bounds the rounding of each Hessian entry at the last point;
-	// effRound is the largest bound on the rounding of an effort over
-	// the interior points this projector has seen (bregman.Scorer.Rounding).
-	herr     []float64
-	effRound float64
+	// lastEff bounds the rounding of an effort there (bregman.Scorer.
+	// Rounding; 0 where none is known).
+	herr    []float64
+	lastEff float64
 }
 
 func newProjector(n int) *projector {
@@ -323,6 +320,7 @@ func newProjector(n int) *projector {
 // for a constant written as p·exp(-ln p), whose Hessian sums terms of
 // size 1/p² that cancel to 0.
 func (pj *projector) largest(sc *bregman.Scorer, p []float64) float64 {
+	pj.lastEff = 0
 	l := pj.eigen(sc, p)
 	if !(l == l) || math.IsInf(l, 0) || onBoundary(p) {
 		return l
@@ -332,7 +330,7 @@ func (pj *projector) largest(sc *bregman.Scorer, p []float64) float64 {
 		return l
 	}
 	if eff == eff && !math.IsInf(eff, 0) {
-		pj.effRound = math.Max(pj.effRound, eff)
+		pj.lastEff = eff
 	}
 	var f float64
 	for _, e := range pj.herr {

@@ -36,8 +36,11 @@ type tiePair struct {
 // reports (Grid.Extrapolation): a gap or divergence that rests on such a
 // report and exceeds T by no more than ext is within that error, and
 // counts as 0.
-func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T, scale, round, ext float64) (prop, nonneg CheckResult, ties []tiePair) {
+func properness(g *simplex.Grid, m *menu, h []float64, bs []best, ps pairSlack, scale, round, ext float64) (prop, nonneg CheckResult, ties []tiePair) {
 	var gapIn, gapBd, negIn, negBd part
+	// failing[k] holds the comparisons beyond their own slack (gap in,
+	// gap on the boundary, divergence in, on the boundary).
+	var failing [4]part
 	marginMin := math.Inf(1)
 	var marginQ, marginP []float64
 	strict, tieMargin := true, math.Inf(1)
@@ -64,13 +67,19 @@ func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T, scale, roun
 			rp = g.Point(int(b.arg))
 			limitReport = g.Boundary[b.arg]
 		}
+		T := ps.at(g, i, int(b.arg))
 		if (limitReport || g.Boundary[i]) && gap > T && gap <= T+ext {
 			gap = 0
 		}
+		bd := 0
 		if g.Boundary[i] {
+			bd = 1
 			gapBd.offer(gap, q, rp)
 		} else {
 			gapIn.offer(gap, q, rp)
+		}
+		if !(gap <= T) {
+			failing[bd].offer(gap, q, rp)
 		}
 		// Margin: how much worse the best other report is.
 		other, oarg := b.m1, b.arg
@@ -88,7 +97,11 @@ func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T, scale, roun
 		if margin < marginMin || marginQ == nil && oarg >= 0 {
 			marginMin, marginQ, marginP = margin, q, op
 		}
-		if !(margin > math.Max(StrictFloor*(scale+math.Abs(honest)), round)) {
+		tieRound := round
+		if ps.eff != nil && oarg >= 0 {
+			tieRound = math.Min(round, ps.at(g, i, int(oarg)))
+		}
+		if !(margin > math.Max(StrictFloor*(scale+math.Abs(honest)), tieRound)) {
 			if strict || margin < tieMargin {
 				tieMargin, tieQ, tieP = margin, q, op
 			}
@@ -109,10 +122,13 @@ func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T, scale, roun
 		} else {
 			negIn.offer(-d, q, rp)
 		}
+		if !(-d <= T) {
+			failing[2+bd].offer(-d, q, rp)
+		}
 	}
 	prop = CheckResult{Name: NameProperness}
-	prop.Interior = gapIn.result(gapIn.Worst <= T)
-	prop.Boundary = gapBd.result(gapBd.Worst <= T)
+	prop.Interior = judged(gapIn, failing[0])
+	prop.Boundary = judged(gapBd, failing[1])
 	prop.Passed = prop.Interior.Passed && prop.Boundary.Passed
 	pickWorst(&prop, gapIn, gapBd)
 	prop.Margin, prop.MarginBelief, prop.MarginReport = marginMin, clone(marginQ), clone(marginP)
@@ -121,8 +137,8 @@ func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T, scale, roun
 		prop.Margin, prop.MarginBelief, prop.MarginReport = tieMargin, clone(tieQ), clone(tieP)
 	}
 	nonneg = CheckResult{Name: NameNonnegativity}
-	nonneg.Interior = flip(negIn.result(negIn.Worst <= T))
-	nonneg.Boundary = flip(negBd.result(negBd.Worst <= T))
+	nonneg.Interior = flip(judged(negIn, failing[2]))
+	nonneg.Boundary = flip(judged(negBd, failing[3]))
 	nonneg.Passed = nonneg.Interior.Passed && nonneg.Boundary.Passed
 	pickWorst(&nonneg, negIn, negBd)
 	nonneg.Worst = -nonneg.Worst
@@ -130,6 +146,18 @@ func properness(g *simplex.Grid, m *menu, h []float64, bs []best, T, scale, roun
 		ties = append(ties, tiePair{tieQ, tieP, tieMargin})
 	}
 	return prop, nonneg, ties
+}
+
+// judged is a region's part: failed, with the worst of the comparisons
+// beyond their own slack as its witness, when there is one; else passed
+// with the region's worst amount.
+func judged(all, failing part) Part {
+	if !failing.seen {
+		return all.result(true)
+	}
+	out := failing.result(false)
+	out.Count = all.Count
+	return out
 }
 
 // pickWorst sets the witness of c from the interior part unless the

@@ -148,6 +148,12 @@ type Grid struct {
 	// Scorer.Rounding): a constant written as p·(1/p - 1) has efforts
 	// that are sums of ±1/p.
 	Rounding float64
+	// Floor, in a check, is the rounding floor of the values alone (2·n·ε
+	// times the largest |value|), below Rounding where the efforts' own
+	// bounds raised it: each comparison allows the bounds of its own two
+	// rows (verify's pairSlack), so an amount above Floor but within
+	// Rounding can fail. 0 where Rounding is one number for all.
+	Floor float64
 	// Extrapolation is the largest error estimate of the efforts at
 	// boundary reports, which are limits extrapolated from the interior
 	// (they converge like sqrt(h) for sqrt(c(1-c))); a comparison that
