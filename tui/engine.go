@@ -137,6 +137,11 @@ func fitTable(ctx context.Context, d *design.Design, progress pool.Progress) (*s
 // budgetFitter is the default Fitter.
 func budgetFitter(ctx context.Context, d *design.Design, progress pool.Progress) (*TableView, error) {
 	r, t, err := fitTable(ctx, d, progress)
+	var needs *scorewright.NeedsOutcomesError
+	if errors.As(err, &needs) {
+		// The engine's words name a command; here it is the mode.
+		return nil, fmt.Errorf("no payment table in %s mode: a table is fitted from a generator rule or a point forecast; switch the Mode row to fit one", needs.Mode)
+	}
 	if err != nil {
 		return nil, err
 	}
