@@ -62,6 +62,7 @@ grep -q 'pay = 100 − 6.25·(y − x)²' "$t"
 grep -q '4. What the contract costs' "$t"
 grep -q '36500.0' "$t"
 grep -q 'Gullhaven Harbour Office' "$t"
+grep -q '^verdict kind: grid evidence' "$t"
 
 # Every page renders.
 for f in ferry lottery harbour; do

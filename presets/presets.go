@@ -165,6 +165,22 @@ func Apply(d *design.Design) error {
 	return nil
 }
 
+// withoutComments is a formula's text without its comments ('#' to the end
+// of a line) and blank lines, each line trimmed: a preset's formula under a
+// comment of the user's ("# quadratic rule") is still the preset's.
+func withoutComments(src string) string {
+	var lines []string
+	for _, l := range strings.Split(src, "\n") {
+		if i := strings.IndexByte(l, '#'); i >= 0 {
+			l = l[:i]
+		}
+		if l = strings.TrimSpace(l); l != "" {
+			lines = append(lines, l)
+		}
+	}
+	return strings.Join(lines, "\n")
+}
+
 // Settle makes a design's preset name agree with its formula: when the
 // design names a preset but gives a formula of its own that is not the
 // preset's, the formula is what is computed, so the name is dropped (a
@@ -175,7 +191,7 @@ func Settle(d *design.Design) string {
 		return ""
 	}
 	p, err := Lookup(d.Preset)
-	if err == nil && strings.TrimSpace(p.Formula) == strings.TrimSpace(d.Formula) {
+	if err == nil && withoutComments(p.Formula) == withoutComments(d.Formula) {
 		return ""
 	}
 	name := d.Preset

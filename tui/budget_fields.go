@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"scorewright/generator/design"
+	"scorewright/generator/formula"
 	"scorewright/internal/num"
 )
 
@@ -314,6 +315,11 @@ func weightsField() budgetField {
 			w, err := num.ParseVector(s)
 			if err != nil {
 				return fmt.Errorf("weights: %v", err)
+			}
+			// As `scorewright table` refuses them: weights the formula never
+			// reads change nothing, and a saved design would not run there.
+			if f, err := formula.Parse(d.Formula); err == nil && !f.Uses("w") {
+				return errors.New("weights: the formula does not use the outcome weights w, so they would change nothing; use a weighted preset or a formula with w inside sum")
 			}
 			d.Weights = w
 			return nil

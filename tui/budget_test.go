@@ -79,7 +79,11 @@ func TestBudgetFieldsEditable(t *testing.T) {
 		t.Fatalf("%d cases for %d fields", len(cases), len(budgetFields()))
 	}
 	for _, c := range cases {
-		m := testModel(t, nil, Settings{})
+		d := DemoFrost()
+		if c.label == "Weights" {
+			d.Preset, d.Formula = "", "1 - sum(w*p^2)" // weights need a formula that reads w
+		}
+		m := testModel(t, d, Settings{})
 		start(t, m, 80, 24)
 		gen := m.Generation()
 		typeBudget(t, m, c.label, c.text)
@@ -139,6 +143,7 @@ func TestBudgetFieldsRefuse(t *testing.T) {
 		{"Clamp", "0.6", "budget.clamp"},
 		{"Rounding", "sideways", "budget.rounding"},
 		{"Weights", "1, -1", "weights"},
+		{"Weights", "1, 2", "does not use the outcome weights"},
 		{"Ref.", "0.5, 0.4", "set a mean pay first"},
 		{"Forecasts", "many", "forecasts"},
 		{"Currency", strings.Repeat("x", 40), "contract.currency"},

@@ -137,6 +137,11 @@ func fitTable(ctx context.Context, d *design.Design, progress pool.Progress) (*s
 // budgetFitter is the default Fitter.
 func budgetFitter(ctx context.Context, d *design.Design, progress pool.Progress) (*TableView, error) {
 	r, t, err := fitTable(ctx, d, progress)
+	var needs *scorewright.NeedsOutcomesError
+	if errors.As(err, &needs) {
+		// The engine's words name a command; here it is the mode.
+		return nil, fmt.Errorf("no payment table in %s mode: a table is fitted from a generator rule or a point forecast; switch the Mode row to fit one", needs.Mode)
+	}
 	if err != nil {
 		return nil, err
 	}
@@ -178,14 +183,8 @@ func budgetFitter(ctx context.Context, d *design.Design, progress pool.Progress)
 func markRows(tv *TableView, margins []float64, ties, beaten []int) {
 	tv.Marks = make([]string, len(tv.Rows))
 	tv.Margins = make([]string, len(tv.Rows))
-	// One count of decimals for the column, so margins line up and read
-	// as one quantity (0.240 beside 0.235, not 0.24).
-	dec := numfmt.Decimals(margins, 6)
-	for i := range tv.Rows {
-		if i < len(margins) {
-			tv.Margins[i] = numfmt.Fixed(margins[i], dec)
-		}
-	}
+	// One count of decimals for the column, as the command writes it.
+	copy(tv.Margins, numfmt.MarginColumn(margins[:min(len(margins), len(tv.Rows))]))
 	for _, i := range ties {
 		if i >= 0 && i < len(tv.Marks) {
 			tv.Marks[i] = markTie

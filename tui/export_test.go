@@ -6,6 +6,7 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+	"time"
 
 	tea "github.com/charmbracelet/bubbletea"
 	"github.com/charmbracelet/x/exp/golden"
@@ -170,5 +171,22 @@ func TestLotteryExport(t *testing.T) {
 	press(t, m, tea.KeyMsg{Type: tea.KeyCtrlT})
 	if m.dialog.lottery {
 		t.Fatal("ctrl+t did not go back to money")
+	}
+}
+
+// A design opened from a folder other than the working one exports beside
+// its file by default, whatever the export format.
+func TestExportDefaultsBesideTheDesign(t *testing.T) {
+	dir := t.TempDir()
+	file := filepath.Join(dir, "sells-out.toml")
+	m := New(DemoFrost(), file, Settings{Dir: t.TempDir(), Debounce: time.Millisecond, RecoveryDir: t.TempDir()}, testStyles(t))
+	t.Cleanup(m.Close)
+	start(t, m, 80, 24)
+	press(t, m, tea.KeyMsg{Type: tea.KeyCtrlE})
+	if m.dialog == nil {
+		t.Fatal("no export dialog")
+	}
+	if got := m.dialog.Path(); filepath.Dir(got) != dir || !strings.HasPrefix(filepath.Base(got), "sells-out.") {
+		t.Errorf("export path %q, want sells-out.* in %s", got, dir)
 	}
 }

@@ -61,7 +61,10 @@ func (m *Model) openHelp() {
 
 var slugChars = regexp.MustCompile(`[^a-z0-9]+`)
 
-// defaultName is a file name made from the design's title.
+// defaultName is a file name made from the design's title, or for a
+// design with a file, that file's name beside it: an export of a design
+// opened from another folder lands with the design, not in the working
+// directory.
 func (m *Model) defaultName(ext string) string {
 	if m.path != "" && ext == "toml" {
 		return m.path
@@ -70,10 +73,12 @@ func (m *Model) defaultName(ext string) string {
 	if base == "" {
 		base = "design"
 	}
+	dir := m.set.Dir
 	if m.path != "" {
 		base = strings.TrimSuffix(filepath.Base(m.path), filepath.Ext(m.path))
+		dir = filepath.Dir(m.path)
 	}
-	return filepath.Join(m.set.Dir, base+"."+ext)
+	return filepath.Join(dir, base+"."+ext)
 }
 
 func (m *Model) openDialog(kind dialogKind) {

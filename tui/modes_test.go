@@ -149,3 +149,15 @@ func TestGoldenLinearAudit80x24(t *testing.T) {
 	}
 	golden.RequireEqual(t, []byte(m.View()))
 }
+
+// In payout mode the budget pane says why there is no table in the
+// workbench's words, not a command's.
+func TestPayoutModeBudgetSaysWhy(t *testing.T) {
+	d := DemoFrost()
+	d.Mode, d.Preset, d.Formula = design.ModePayout, "", "10 - 5*sum((p - hit)^2)"
+	m := testModel(t, d, Settings{})
+	start(t, m, 80, 24)
+	if err := m.budget.err; err == nil || strings.Contains(err.Error(), "command") || !strings.Contains(err.Error(), "Mode row") {
+		t.Errorf("budget pane error: %v", err)
+	}
+}

@@ -139,7 +139,7 @@ func (r *ResearchRoom) notes(rep *study.Report) []string {
 		out = append(out, fmt.Sprintf("best bounded rule: %d pieces, gain %.4g per forecast; mixing %g %% quadratic (strictly proper) costs %.4g", len(o.Result.Pieces), o.Result.Gain, 100*o.Mix, o.MixCost))
 	}
 	if len(rep.Labels) == 2 && len(rep.Rows) > 0 && rep.Rows[0].Steps != nil {
-		out = append(out, fmt.Sprintf("obs: observations bought at this price; error: E|report - true chance| (without research %.3g)", rep.Rows[0].Steps.Before))
+		out = append(out, fmt.Sprintf("obs: observations bought at this price; error: E|report - true chance| (without research %.4g)", rep.Rows[0].Steps.Before))
 	}
 	for _, l := range rep.LeftOut {
 		out = append(out, "left out: "+l)

@@ -126,15 +126,22 @@
 // log limit, is undefined as written and simply scores +Inf). Per family, on at most 400 grid
 // reports (every k-th), `fitParam` minimises first the count of report–outcome pairs whose
 // infinities differ, then the relative residual (at most 1 with a fitted shift), over the
-// parameter: 33 values spread geometrically over the range plus the default, then Nelder–Mead in
-// that coordinate from the best (the existing `minimise`, gonum `optimize`, ≤ 100 evaluations;
-// derivative-free because the engine has no derivative in a parameter and takes no finite
-// differences). The refined value is kept only for a convergence or budget status, else the
-// scan's best, and `Identification.Status` says which. The chosen member is then fitted on every
-// grid report and judged by the same rule as a fixed one (residual < 1e-6, positive scale,
+// parameter, in two stages: located on a coarse sub-lattice of those reports (every 8th, at
+// least 40 reports) — 33 values spread geometrically over the range plus the default, then
+// Nelder–Mead in that coordinate from the best (the existing `minimise`, gonum `optimize`, ≤ 100
+// evaluations; derivative-free because the engine has no derivative in a parameter and takes no
+// finite differences) — then polished on all of them by Nelder–Mead (≤ 12 evaluations). An exact
+// member's residual is 0 on any subset, so the coarse stage finds its parameter. A stage's value
+// is kept only for a convergence or budget status, else the one it started from, and
+// `Identification.Status` says which. The chosen member (and every fixed rule) is fitted on the
+// subset first: when its infinities already differ there, or its least sum of squared misfits
+// (which no fit on more points goes below) exceeds (10 × 1e-6)² times the spread of all the
+// grid's finite payments (an upper bound on the spread a whole-grid fit is judged against), the
+// whole grid cannot fit to within 1e-5 and that subset fit is reported, its note saying so.
+// Otherwise it is fitted on every grid report and judged by the same rule as a fixed one (residual < 1e-6, positive scale,
 // matching infinities); `Identification.Param`/`Value` carry it, `WithParam()` phrases it, the
 // JSON has `identified.params: {"g": 1.5}`. It finds g and a to about 1e-14 for n = 2..6 (g from
-// 0.5 to 8, a from 1.2 to 8) and adds about 50–90 ms to a default audit (two families, 2 cores).
+// 0.5 to 8, a from 1.2 to 8); its cost is in BENCHMARKS.md (audit against check).
 // Note the power preset's normalisation: its score is (S − 1)/(g − 1) with S Gneiting & Raftery's
 // power score, so 5 + 2S is identified with scale 2(g − 1) and shift 7. A log payout also fits
 // power with g ≈ 1 (the limit), which the "also fits" note says.

@@ -167,7 +167,8 @@ func TestHarbourPointAnnexReadsBack(t *testing.T) {
 	}
 	path := exportAnnex(t, "harbour", "html")
 	text := htmlText(t, path)
-	mustContain(t, "the point annex", text, "Payment annex", "pay = 100 − 6.25·(y − x)²", "100.0 NOK per forecast", "36500.0 NOK over 365 forecasts")
+	mustContain(t, "the point annex", text, "Payment annex", "pay = 100 − 6.25·(y − x)²", "100.0 NOK per forecast", "36500.0 NOK over 365 forecasts",
+		"verdict kind: grid evidence", "mathematics, not law", "qualified counsel")
 	if strings.Contains(text, "Payment annex — payment annex") {
 		t.Error("the untitled annex says 'payment annex' twice")
 	}

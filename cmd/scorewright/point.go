@@ -391,13 +391,19 @@ func printPointTableSummary(w io.Writer, f *budget.PointTable, rc *budget.PointR
 		fmt.Fprintln(w)
 		tw := textcol.NewWriter(w, 0)
 		fmt.Fprintf(tw, "report x\tmargin\t\tclosest rival\n")
-		for _, i := range rows[:min(len(rows), maxItemRows)] {
+		rows = rows[:min(len(rows), maxItemRows)]
+		shown := make([]float64, len(rows))
+		for j, i := range rows {
+			shown[j] = rc.Margins[i]
+		}
+		margins := numfmt.MarginColumn(shown)
+		for j, i := range rows {
 			mark := marginMark(rc.Margins[i], rc.Tolerance)
 			rival := "-"
 			if r := rc.Rivals[i]; r >= 0 {
 				rival = table.FormatNumber(f.Reports[r])
 			}
-			fmt.Fprintf(tw, "%s\t%s\t%s\t%s\n", table.FormatNumber(f.Reports[i]), numfmt.Margin(rc.Margins[i]), mark, rival)
+			fmt.Fprintf(tw, "%s\t%s\t%s\t%s\n", table.FormatNumber(f.Reports[i]), margins[j], mark, rival)
 		}
 		if err := tw.Flush(); err != nil {
 			return err

@@ -283,7 +283,12 @@ func printItems(w io.Writer, f *budget.Fit, rc *budget.Recheck) error {
 		cellHead = fmt.Sprintf("beliefs in %q that pick it", f.Labels[0])
 	}
 	fmt.Fprintf(tw, "report\tmargin\t\tclosest rival\t%s\n", cellHead)
-	for _, i := range rows {
+	shown := make([]float64, len(rows))
+	for j, i := range rows {
+		shown[j] = rc.Margins[i]
+	}
+	margins := numfmt.MarginColumn(shown)
+	for j, i := range rows {
 		verdict := marginMark(rc.Margins[i], rc.Tolerance)
 		rival := "-"
 		if r := rc.Rivals[i]; r >= 0 {
@@ -299,7 +304,7 @@ func printItems(w io.Writer, f *budget.Fit, rc *budget.Recheck) error {
 		case c.Beliefs > 0:
 			cell = fmt.Sprintf("%d of %d", c.Beliefs, rc.Beliefs)
 		}
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\n", num.Format(reps[i]), numfmt.Margin(rc.Margins[i]), verdict, rival, cell)
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\n", num.Format(reps[i]), margins[j], verdict, rival, cell)
 	}
 	if err := tw.Flush(); err != nil {
 		return err

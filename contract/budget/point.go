@@ -294,6 +294,9 @@ func (f *PointTable) Export(rc *PointRecheck, info PointInfo) *table.Table {
 		Budget:   fmt.Sprintf("payments span [%s, %s] over the menu and the outcome columns (before rounding): a perfect forecast pays the cap, the worst cell the floor", table.FormatNumber(f.Floor), table.FormatNumber(f.Cap)),
 		Rounding: f.round.Describe(), Unit: num.Float(f.round.Unit()), RoundingMode: f.round.Mode(),
 		Floor: num.Float(f.Floor), Cap: num.Float(f.Cap),
+		// What the generator's verdict rests on; the command raises it to
+		// certified when a certificate proves the generator.
+		VerdictKind: table.GridEvidence,
 		// The record states A, B, the formula and the rounding in their
 		// own lines, so its notes are the ones that say something new.
 		Notes: []string{

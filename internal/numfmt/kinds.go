@@ -60,5 +60,18 @@ func Probability(v float64) string { return Significant(v, 6) }
 // and its mirror image, a rounding error below it, as 0.2187.
 func Margin(v float64) string { return Significant(v, 6) }
 
+// MarginColumn writes a column of margins (a table's rows) with one count
+// of decimals, the fewest that write every one of them up to binary noise
+// (at most six), so that the column reads as one quantity: 0.240 beside
+// 0.235, not 0.24.
+func MarginColumn(vs []float64) []string {
+	d := Decimals(vs, 6)
+	out := make([]string, len(vs))
+	for i, v := range vs {
+		out[i] = Fixed(v, d)
+	}
+	return out
+}
+
 // Points writes a distortion of a report in probability points.
 func Points(v float64) string { return Significant(v, 3) }

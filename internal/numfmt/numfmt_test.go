@@ -57,3 +57,14 @@ func TestKinds(t *testing.T) {
 		}
 	}
 }
+
+// A column of margins shares one count of decimals (derived by hand).
+func TestMarginColumn(t *testing.T) {
+	got := MarginColumn([]float64{1.6, 1.475, 1.65, 0.024999999999999998})
+	want := []string{"1.600", "1.475", "1.650", "0.025"}
+	for i := range want {
+		if got[i] != want[i] {
+			t.Errorf("MarginColumn[%d] = %q, want %q", i, got[i], want[i])
+		}
+	}
+}
