@@ -62,6 +62,6 @@ func provedStream(ctx context.Context, g *simplex.Grid, m *menu, w int, pr *pool
 
 // provedNote words properness when a proof settled the interior pairs.
 func provedNote(c CheckResult, p *Proof, boundaryReports int) string {
-	return fmt.Sprintf("proved over the whole simplex: %s; on the grid the pairs the proof leaves were streamed (every boundary belief against every report, every interior belief against the %d boundary reports): no report beat the honest one there, the closest other falling short by %.6g at belief %s",
+	return fmt.Sprintf("%s; on the grid the pairs the proof leaves were streamed (every boundary belief against every report, every interior belief against the %d boundary reports): no report beat the honest one there, the closest other falling short by %.6g at belief %s",
 		p.Statement, boundaryReports, c.Margin, num.Format(c.MarginBelief))
 }
