@@ -7,7 +7,6 @@ import (
 	"github.com/charmbracelet/bubbles/key"
 	"github.com/charmbracelet/bubbles/progress"
 
-	"scorewright/verify"
 	"scorewright/verify/certify"
 )
 
@@ -83,13 +82,11 @@ func (p *ChecksPane) edited() {
 func (p *ChecksPane) certifying() { p.proving, p.certDone, p.certTotal = true, 0, 0 }
 
 // certified puts the certificate into the shown report, and with it the
-// kind of its verdict: certified when the certificate decided and the grid
-// does not contradict it.
+// verdict that stands and its kind (CheckReport.Standing).
 func (p *ChecksPane) certified(c *CertificateView) {
 	p.proving = false
 	if r := p.report; r != nil {
 		r.Certificate = c
-		r.Certified = c != nil && c.Verdict != "" && c.Verdict != "undecided" && !contradicted(r) && !weaker(r)
 	}
 }
 
@@ -124,7 +121,8 @@ func (p ChecksPane) proof() (statement string, certified bool) {
 	if c == nil {
 		return "", false
 	}
-	return c.Statement, certify.Proved(verify.Verdict(c.Verdict)) && !contradicted(p.report)
+	st := p.report.Standing()
+	return c.Statement, st.Kind == certify.Certified && certify.Proved(st.Verdict)
 }
 
 // Running reports whether a check is in progress.

@@ -57,7 +57,7 @@ func TestChecksPaneReachesEveryCheck(t *testing.T) {
 	// The last entry is the verdict and notes, with the certificate's
 	// whole statement.
 	press(t, m, keyEnter)
-	if txt := strings.Join(m.checks.detailText(), " "); !strings.Contains(txt, r.Certificate.Statement) || !strings.Contains(txt, "("+r.Kind()+")") || r.Certified != (r.Certificate.Verdict == "strictly-proper" || r.Certificate.Verdict == "proper") {
+	if txt := strings.Join(m.checks.detailText(), " "); !strings.Contains(txt, r.Certificate.Statement) || !strings.Contains(txt, "("+r.Kind()+")") || r.Certified() != (r.Certificate.Verdict == "strictly-proper" || r.Certificate.Verdict == "proper") {
 		t.Errorf("verdict entry: %q", txt)
 	}
 	press(t, m, keyRight)
