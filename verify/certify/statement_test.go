@@ -12,8 +12,8 @@ import (
 // must not make.
 var oneThings = regexp.MustCompile(`\b1 (more )?(pieces|boxes|box pairs)\b`)
 
-// -x^2 on [0, 1] has phi'' = -2 everywhere (derived by hand), so the first
-// enclosure of phi'' over the whole interval, [-2, -2], decides it: one
+// -x^2 on [0, 1] has second derivative -2 everywhere (derived by hand), so
+// the first enclosure of it over the whole interval, [-2, -2], decides it: one
 // piece, and the statement says "1 piece", never "1 pieces".
 func TestStatementCountsOnePieceInTheSingular(t *testing.T) {
 	res, err := Point(context.Background(), lineProgram(t, "-x^2", "x"), 0, 1, Settings{Deadline: 10 * time.Second})
