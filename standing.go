@@ -1,6 +1,7 @@
 package scorewright
 
 import (
+	"scorewright/contract/table"
 	"scorewright/verify"
 	"scorewright/verify/certify"
 )
@@ -69,4 +70,24 @@ func (s Standing) Words() string {
 		return v + " (" + string(s.Kind) + ": " + s.Basis + ")"
 	}
 	return v + " (" + string(s.Kind) + ")"
+}
+
+// RecordedKind is the verdict kind a payment table records once a
+// certificate ran on its rule: "certified strictly proper", "certified
+// proper" or "certified epsilon-proper to 0.001", as the certificate
+// proved it, so a record never says "certified" without saying whether
+// strictness was proved. It is table.GridEvidence when the certificate
+// proved no honesty (undecided, improper) or the grid's witness of
+// impropriety stands against it (grid "" when no grid check ran).
+func RecordedKind(grid, cert verify.Verdict, epsilon float64) string {
+	if !certify.Proved(cert) || grid == verify.Improper {
+		return table.GridEvidence
+	}
+	switch cert {
+	case verify.StrictlyProper:
+		return "certified strictly proper"
+	case certify.EpsilonProper:
+		return "certified " + certify.EpsilonVerdict(epsilon)
+	}
+	return "certified proper"
 }

@@ -7,7 +7,8 @@ import (
 	"github.com/charmbracelet/bubbles/key"
 	"github.com/charmbracelet/bubbles/progress"
 
-	"scorewright/verify/certify"
+	"scorewright"
+	"scorewright/verify"
 )
 
 // ChecksPane shows the checks of the current design and their progress.
@@ -111,18 +112,17 @@ func (p *ChecksPane) finished(r *CheckReport, err error) {
 
 // proof is what an export records of the certificate: its statement when
 // the report is for the design as it stands (no edit since, no run in
-// progress), and whether it proved the rule proper over the whole
-// simplex.
-func (p ChecksPane) proof() (statement string, certified bool) {
+// progress), and the verdict kind it makes (scorewright.RecordedKind,
+// as `scorewright table --certify` records it).
+func (p ChecksPane) proof() (statement, kind string) {
 	if p.report == nil || p.stale || p.waiting || p.running || p.blocked != "" {
-		return "", false
+		return "", ""
 	}
 	c := p.report.Certificate
 	if c == nil {
-		return "", false
+		return "", ""
 	}
-	st := p.report.Standing()
-	return c.Statement, st.Kind == certify.Certified && certify.Proved(st.Verdict)
+	return c.Statement, scorewright.RecordedKind(verify.Verdict(p.report.Verdict), verify.Verdict(c.Verdict), c.Epsilon)
 }
 
 // Running reports whether a check is in progress.

@@ -112,11 +112,11 @@ type ExportRequest struct {
 	Lottery bool
 	// Certificate is the statement of the interval certificate the
 	// checks ran on this very design ("" when none ran or the design
-	// changed since); Certified says it proved the rule proper over the
-	// whole simplex, so the record's verdict kind is "certified", as
-	// `scorewright table --certify` writes it.
+	// changed since); VerdictKind is the record's verdict kind it makes
+	// (scorewright.RecordedKind: "certified strictly proper", "certified
+	// proper", ...), as `scorewright table --certify` writes it.
 	Certificate string
-	Certified   bool
+	VerdictKind string
 }
 
 // Messages answering the workbench's background work. Each carries the

@@ -138,11 +138,19 @@ func TestCertifyEmphasis(t *testing.T) {
 	}
 }
 
-// table --certify records the verdict kind: certified for the quadratic
-// rule (Brier 1950, strictly proper), grid evidence without the flag.
+// table --certify records the verdict kind with what was certified:
+// "certified strictly proper" for the quadratic rule (Brier 1950, strictly
+// proper); "certified proper" for -(p1 - p2)^4, whose curvature
+// -48(2p1 - 1)^2 vanishes at p1 = 1/2 (derived by hand), so the
+// certificate proves concavity everywhere but strictness only off a
+// neighbourhood of that point; grid evidence without the flag.
 func TestTableRecordsVerdictKind(t *testing.T) {
 	code, out, errs := runCmd(t, "table", "--outcomes", "3", "--preset", "quadratic", "--floor", "0", "--cap", "100", "--step", "0.25", "--format", "csv", "--certify")
-	if code != 0 || !strings.Contains(out, "# verdict kind: certified\n") || !strings.Contains(out, "# certificate: certified strictly proper") {
+	if code != 0 || !strings.Contains(out, "# verdict kind: certified strictly proper\n") || !strings.Contains(out, "# certificate: certified strictly proper") {
+		t.Errorf("exit %d %s\n%s", code, errs, out)
+	}
+	code, out, errs = runCmd(t, "table", "--outcomes", "2", "--generator", "-(p1-p2)^4", "--floor", "0", "--cap", "100", "--step", "0.25", "--format", "csv", "--certify")
+	if code != 0 || !strings.Contains(out, "# verdict kind: certified proper\n") || !strings.Contains(out, "# certificate: certified proper over the whole simplex") {
 		t.Errorf("exit %d %s\n%s", code, errs, out)
 	}
 	code, out, _ = runCmd(t, "table", "--outcomes", "3", "--preset", "quadratic", "--floor", "0", "--cap", "100", "--step", "0.25", "--format", "csv")
