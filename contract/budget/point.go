@@ -113,6 +113,10 @@ func FitPoint(ctx context.Context, g *point.Generator, spec PointSpec) (*PointTa
 	if worst == 0 {
 		return nil, errors.New("point: the effort is zero everywhere on the table; the generator is affine")
 	}
+	if rd, err = rd.Within(spec.Floor, spec.Cap); err != nil {
+		return nil, fmt.Errorf("point: %w", err)
+	}
+	f.round = rd
 	f.A, f.B = spec.Cap, (spec.Cap-spec.Floor)/worst
 	f.Pay = make([][]float64, rows)
 	f.MinPay, f.MaxPay = math.Inf(1), math.Inf(-1)
