@@ -281,23 +281,56 @@ func (t *Tally) binning() Binning {
 // keep says whether to keep the bins and event groups in the result.
 func (t *Tally) forecasterResult(i int, m *moneyRec, own ownEntries, ranks [][]int32, keep bool) Forecaster {
 	f := Forecaster{Name: t.names.name(i), Count: m.count, Binning: t.binning()}
+	g := groupings{t: t, own: own, grid: f.Binning.Grid}
 	for s := range t.schemes {
 		f.Money = append(f.Money, m.s[s].money(m.count))
 		f.Rank = append(f.Rank, int(ranks[s][i]))
 		// The decompositions split the efforts that were paid: each
 		// forecast as the scheme records and adjusts it.
 		paid := t.paidReport(s)
-		d := Decompose(t.scorers[s], t.bins(own, f.Binning.Grid, paid))
+		d := Decompose(t.scorers[s], g.bins(paid))
 		d.MeanEffort = f.Money[s].MeanEffort
 		d.WithinBin = d.MeanEffort - d.Identity()
 		f.Decomposition = append(f.Decomposition, d)
-		f.CORP = append(f.CORP, t.corpOf(s, t.eventGroups(own, paid)))
+		f.CORP = append(f.CORP, t.corpOf(s, g.events(paid)))
 	}
 	if keep {
 		// Bins and events are kept as the first scheme pays them.
-		f.Bins, f.Events = t.bins(own, f.Binning.Grid, t.paidReport(0)), t.eventGroups(own, t.paidReport(0))
+		f.Bins, f.Events = g.bins(t.paidReport(0)), g.events(t.paidReport(0))
 	}
 	return f
+}
+
+// groupings makes one forecaster's bins and event groups, once for all
+// the schemes that pay forecasts as written (paid nil): they group the
+// same forecasts the same way, and neither decomposition changes them.
+type groupings struct {
+	t          *Tally
+	own        ownEntries
+	grid       int
+	bins0      []Bin
+	events0    [][]corp.Group
+	done0, ev0 bool
+}
+
+func (g *groupings) bins(paid func([]float64) []float64) []Bin {
+	if paid != nil {
+		return g.t.bins(g.own, g.grid, paid)
+	}
+	if !g.done0 {
+		g.bins0, g.done0 = g.t.bins(g.own, g.grid, nil), true
+	}
+	return g.bins0
+}
+
+func (g *groupings) events(paid func([]float64) []float64) [][]corp.Group {
+	if paid != nil {
+		return g.t.eventGroups(g.own, paid)
+	}
+	if !g.ev0 {
+		g.events0, g.ev0 = g.t.eventGroups(g.own, nil), true
+	}
+	return g.events0
 }
 
 // ownEntries are one forecaster's distinct forecast ids with n outcome
@@ -350,7 +383,15 @@ func (t *Tally) events() int {
 // the first outcome for two outcomes, every outcome for more.
 func (t *Tally) eventGroups(own ownEntries, paid func([]float64) []float64) [][]corp.Group {
 	ne := t.events()
-	raw := make([][]corp.Group, ne)
+	// The groups are gathered in buffers the Tally keeps from one
+	// forecaster to the next (corp.Sorted copies them out).
+	if len(t.groupBuf) < ne {
+		t.groupBuf = make([][]corp.Group, ne)
+	}
+	raw := t.groupBuf[:ne]
+	for k := range raw {
+		raw[k] = raw[k][:0]
+	}
 	t.entries(own, paid, func(p []float64, hits []uint32) {
 		var c int
 		for _, h := range hits {
@@ -360,12 +401,13 @@ func (t *Tally) eventGroups(own ownEntries, paid func([]float64) []float64) [][]
 			raw[k] = append(raw[k], corp.Group{X: math.Min(1, math.Max(0, p[k])), Count: c, Hits: int(hits[k])})
 		}
 	})
+	out := make([][]corp.Group, ne)
 	for k := range raw {
 		// Sorted merges equal probabilities; every group is valid by
 		// construction, so it cannot fail.
-		raw[k], _ = corp.Sorted(raw[k])
+		out[k], _ = corp.Sorted(raw[k])
 	}
-	return raw
+	return out
 }
 
 // corpOf is the CORP decomposition of every event under scheme s: its own

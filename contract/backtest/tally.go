@@ -5,6 +5,7 @@ import (
 	"math"
 	"scorewright/internal/num"
 
+	"scorewright/contract/backtest/corp"
 	"scorewright/contract/backtest/history"
 	"scorewright/generator/bregman"
 )
@@ -140,24 +141,25 @@ func (m *moneyTally) money() Money {
 // their distinct forecasts (up to a bound), never with the number of
 // rows. It is used by one goroutine.
 type Tally struct {
-	schemes []Scheme
-	scorers []*bregman.Scorer
-	n       int
-	opt     TallyOptions
-	eff     []float64
-	paid    []Paid
-	names   nameIndex
-	money   *moneyTable
-	spill   *spillFile
-	err     error // the first failure to spill; nothing is counted after it
-	last    int
-	all     []moneyTally
-	months  map[history.Month][]moneyTally
-	store   *outcomeStore
-	cache   []Paid    // schemes × n per cached forecast, by forecast id
-	one     []Paid    // scratch: one scheme, every outcome
-	adj     []float64 // scratch: adjusted report
-	rec     []float64 // scratch: recorded report
+	schemes  []Scheme
+	scorers  []*bregman.Scorer
+	n        int
+	opt      TallyOptions
+	eff      []float64
+	paid     []Paid
+	names    nameIndex
+	money    *moneyTable
+	spill    *spillFile
+	err      error // the first failure to spill; nothing is counted after it
+	last     int
+	all      []moneyTally
+	months   map[history.Month][]moneyTally
+	store    *outcomeStore
+	cache    []Paid         // schemes × n per cached forecast, by forecast id
+	one      []Paid         // scratch: one scheme, every outcome
+	adj      []float64      // scratch: adjusted report
+	rec      []float64      // scratch: recorded report
+	groupBuf [][]corp.Group // scratch: a forecaster's event groups before sorting
 }
 
 // TallyOptions tune the decomposition. The zero value means the defaults.

@@ -23,8 +23,8 @@ package corp
 import (
 	"fmt"
 	"math"
+
 	"scorewright/internal/num"
-	"sort"
 )
 
 // Group is every forecast that gave the event one probability.
@@ -57,7 +57,7 @@ func Sorted(groups []Group) ([]Group, error) {
 			out = append(out, g)
 		}
 	}
-	sort.Slice(out, func(i, j int) bool { return out[i].X < out[j].X })
+	out = sortByX(out)
 	merged := out[:0]
 	for _, g := range out {
 		if k := len(merged) - 1; k >= 0 && merged[k].X == g.X {

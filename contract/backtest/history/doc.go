@@ -6,8 +6,9 @@
 // same rows and name bad records by the same line (row) numbers.
 //
 // The reader streams. It keeps one record in memory, reuses it for the
-// next row and allocates nothing per row beyond what the decoder itself
-// does, so a file of any length is read in constant memory. Every read is
+// next row and allocates at most one string per row (quote-free lines, the
+// usual ones, share one string per block of lines), so a file of any
+// length is read in constant memory. Every read is
 // bounded: a field over MaxFieldBytes or a record over MaxRecordBytes is
 // an error that ends the reading (it is not data), and a quoted field that
 // runs across lines is named with the span of lines it covers, so that a

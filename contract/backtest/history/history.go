@@ -45,8 +45,8 @@ type Options struct {
 
 // Row is one valid forecast. The Row and its P belong to the reader and
 // are overwritten by the next call to Next; the strings are ordinary Go
-// strings and stay valid (each holds on to its record's text, so clone a
-// name you keep for long).
+// strings and stay valid (each holds on to the text it was cut from, up to
+// 64 KiB of lines, so clone a name you keep for long).
 type Row struct {
 	// Line is the 1-based line (XLSX: row) the record starts on.
 	Line int
@@ -317,7 +317,11 @@ func (h *Reader) probabilities(rec []string, p []float64) error {
 	var sum float64
 	for k, col := range h.colP {
 		s := strings.TrimSpace(rec[col])
-		x, err := strconv.ParseFloat(s, 64)
+		x, ok := parseDecimal(s)
+		var err error
+		if !ok {
+			x, err = strconv.ParseFloat(s, 64)
+		}
 		if err != nil {
 			if s == "" {
 				return fmt.Errorf("probability of %q is empty", h.labels[k])
