@@ -51,6 +51,8 @@ type reportTree struct {
 	start, end []int32
 	// lo and loSafe hold n per node: the smallest row entry per outcome.
 	lo, loSafe []float64
+	// models bound each leaf's rows more tightly (prune_linear.go).
+	models *leafModels
 }
 
 // newReportTree builds the tree for the menu m over the grid g.
@@ -68,6 +70,7 @@ func newReportTree(g *simplex.Grid, m *menu) *reportTree {
 	t.split(g, 0, 0, G)
 	t.rows = permute(m.rows, t.idx, n)
 	t.lo = t.bounds(t.rows)
+	t.models = newLeafModels(t, g.Coords)
 	if m.safe != nil {
 		t.safe = permute(m.safe, t.idx, n)
 		t.loSafe = t.bounds(t.safe)
