@@ -70,7 +70,9 @@ func newReportTree(g *simplex.Grid, m *menu) *reportTree {
 	t.split(g, 0, 0, G)
 	t.rows = permute(m.rows, t.idx, n)
 	t.lo = t.bounds(t.rows)
-	t.models = newLeafModels(t, g.Coords)
+	if leafWidth(n, G) <= modelWidth {
+		t.models = newLeafModels(t, g.Coords)
+	}
 	if m.safe != nil {
 		t.safe = permute(m.safe, t.idx, n)
 		t.loSafe = t.bounds(t.safe)

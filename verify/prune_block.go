@@ -155,7 +155,7 @@ func (bw *blockWork) settleHeld(t *reportTree, g *simplex.Grid, own int) {
 				break // sorted: every later candidate is as high
 			}
 			nd := int(c.node)
-			if dotN(q, t.lo[nd*n:(nd+1)*n]) > st.m2 || t.models.bound(nd, q) > st.m2 {
+			if dotN(q, t.lo[nd*n:(nd+1)*n]) > st.m2 || t.models != nil && t.models.bound(nd, q) > st.m2 {
 				continue
 			}
 			st.leaf(q, t.rows, t.idx, int(t.start[nd]), int(t.end[nd]), n)

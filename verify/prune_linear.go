@@ -44,6 +44,24 @@ type leafModels struct {
 	c, m, ulo, uhi, delta []float64
 }
 
+// modelWidth is the widest typical leaf (leafWidth) that gets models: the
+// bound costs about n² operations a leaf and belief, and gains only where a
+// leaf is narrow enough that its width squared is well below its width
+// (measured: at n = 6, K = 12 and n = 8, K = 7, leaves about 0.4 and 0.6
+// wide, the stream was slower with models; at n = 4, K = 40, 0.17, no
+// slower; at n = 3, K = 200 and 400, 0.06 and 0.03, 1.4 and 1.7 times
+// faster; BenchmarkStream).
+const modelWidth = 0.2
+
+// leafWidth is a typical leaf's width in one coordinate for G reports
+// spread over the (n-1)-dimensional simplex, leafSize to a leaf.
+func leafWidth(n, G int) float64 {
+	if n < 2 || G <= leafSize {
+		return 1
+	}
+	return math.Pow(float64(leafSize)/float64(G), 1/float64(n-1))
+}
+
 // modelLimit is the largest effort a leaf model takes: far from overflow
 // in the fit's squares and products.
 const modelLimit = 1e100

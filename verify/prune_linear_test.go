@@ -73,6 +73,7 @@ func TestLeafBoundBelowEveryValue(t *testing.T) {
 			copy(m.rows, rows)
 			m.seal()
 			tr := newReportTree(g, m)
+			tr.models = newLeafModels(tr, g.Coords) // at every size, for the test
 			models := 0
 			for node := tr.models.first; node < len(tr.start); node++ {
 				if !tr.models.ok[node-tr.models.first] {
