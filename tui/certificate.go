@@ -21,6 +21,8 @@ type CertificateView struct {
 	// (scorewright.CertificateHeadline): for an epsilon-proper payout,
 	// with what epsilon-proper means.
 	Headline string
+	// Epsilon is an epsilon-proper payout's epsilon.
+	Epsilon float64
 }
 
 // defaultCertifyDeadline keeps the pane responsive: the grid's verdict
@@ -56,7 +58,7 @@ func certifySettings(s Settings, progress pool.Progress) certify.Settings {
 
 func certificateView(res *certify.Result) *CertificateView {
 	return &CertificateView{Kind: string(res.Kind), Verdict: string(res.Verdict), Statement: res.Statement(),
-		Headline: scorewright.CertificateHeadline(res.Verdict, res.Epsilon)}
+		Headline: scorewright.CertificateHeadline(res.Verdict, res.Epsilon), Epsilon: res.Epsilon}
 }
 
 // certificateLines are the pane's lines for c.

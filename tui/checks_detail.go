@@ -11,6 +11,7 @@ import (
 
 	"scorewright/internal/num"
 	"scorewright/internal/numfmt"
+	"scorewright/verify/certify"
 )
 
 // The checks pane lists one line per check, then an entry for the verdict
@@ -173,7 +174,11 @@ func (p ChecksPane) detailText() []string {
 		}
 		return append(out, gridLine(r), kindLine(r))
 	}
-	out := []string{"Verdict " + r.Final() + " (" + r.Kind() + ")"}
+	kind := r.Kind()
+	if b := r.Standing().Basis; b != "" {
+		kind += ": " + b
+	}
+	out := []string{"Verdict " + r.Final() + " (" + kind + ")"}
 	if r.Final() != r.Verdict {
 		out = append(out, "Grid verdict "+r.Verdict+" (grid evidence)")
 	}
@@ -186,7 +191,10 @@ func (p ChecksPane) detailText() []string {
 
 // shortKindLine is kindLine for the pane's list, where a line is narrow.
 func shortKindLine(r *CheckReport) string {
-	if r.Certified {
+	switch st := r.Standing(); {
+	case st.Kind == certify.Certified && st.Basis != "":
+		return "Proved by the certificate's witness; the grid missed it."
+	case st.Kind == certify.Certified:
 		return "Proved; the grid check agrees."
 	}
 	return "A grid check is evidence, not proof."
@@ -194,7 +202,10 @@ func shortKindLine(r *CheckReport) string {
 
 // kindLine closes the full text with what the verdict rests on.
 func kindLine(r *CheckReport) string {
-	if r.Certified {
+	switch st := r.Standing(); {
+	case st.Kind == certify.Certified && st.Basis != "":
+		return "The verdict rests on the certificate's witness, checked in interval arithmetic; the grid check, which samples, missed it."
+	case st.Kind == certify.Certified:
 		return "The verdict rests on the certificate's proof; the grid check, run in full before it, found nothing against it."
 	}
 	return "A grid check is evidence, not proof."

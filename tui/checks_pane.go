@@ -7,8 +7,8 @@ import (
 	"github.com/charmbracelet/bubbles/key"
 	"github.com/charmbracelet/bubbles/progress"
 
+	"scorewright"
 	"scorewright/verify"
-	"scorewright/verify/certify"
 )
 
 // ChecksPane shows the checks of the current design and their progress.
@@ -83,13 +83,11 @@ func (p *ChecksPane) edited() {
 func (p *ChecksPane) certifying() { p.proving, p.certDone, p.certTotal = true, 0, 0 }
 
 // certified puts the certificate into the shown report, and with it the
-// kind of its verdict: certified when the certificate decided and the grid
-// does not contradict it.
+// verdict that stands and its kind (CheckReport.Standing).
 func (p *ChecksPane) certified(c *CertificateView) {
 	p.proving = false
 	if r := p.report; r != nil {
 		r.Certificate = c
-		r.Certified = c != nil && c.Verdict != "" && c.Verdict != "undecided" && !contradicted(r) && !weaker(r)
 	}
 }
 
@@ -114,17 +112,17 @@ func (p *ChecksPane) finished(r *CheckReport, err error) {
 
 // proof is what an export records of the certificate: its statement when
 // the report is for the design as it stands (no edit since, no run in
-// progress), and whether it proved the rule proper over the whole
-// simplex.
-func (p ChecksPane) proof() (statement string, certified bool) {
+// progress), and the verdict kind it makes (scorewright.RecordedKind,
+// as `scorewright table --certify` records it).
+func (p ChecksPane) proof() (statement, kind string) {
 	if p.report == nil || p.stale || p.waiting || p.running || p.blocked != "" {
-		return "", false
+		return "", ""
 	}
 	c := p.report.Certificate
 	if c == nil {
-		return "", false
+		return "", ""
 	}
-	return c.Statement, certify.Proved(verify.Verdict(c.Verdict)) && !contradicted(p.report)
+	return c.Statement, scorewright.RecordedKind(verify.Verdict(p.report.Verdict), verify.Verdict(c.Verdict), c.Epsilon)
 }
 
 // Running reports whether a check is in progress.

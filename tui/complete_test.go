@@ -85,7 +85,8 @@ func TestDialogCompletesAndRemembers(t *testing.T) {
 	if m.dialog.Format() != want || !strings.HasSuffix(m.dialog.Path(), "."+want) {
 		t.Fatalf("the export dialog forgot the format: %s %s", m.dialog.Format(), m.dialog.Path())
 	}
-	press(t, m, keyBack, keyBack, keyBack, keyBack, runes("html"))
+	// end keeps the suggested name to edit (a key typed first replaces it).
+	press(t, m, keyEnd, keyBack, keyBack, keyBack, keyBack, runes("html"))
 	if m.dialog.Format() != "html" {
 		t.Fatalf("typing .html left the format at %s", m.dialog.Format())
 	}

@@ -5,9 +5,7 @@ import (
 	"path/filepath"
 	"strings"
 
-	"github.com/charmbracelet/bubbles/cursor"
 	"github.com/charmbracelet/bubbles/key"
-	"github.com/charmbracelet/bubbles/textinput"
 	tea "github.com/charmbracelet/bubbletea"
 	"github.com/charmbracelet/lipgloss"
 
@@ -36,12 +34,16 @@ const (
 // fileDialog asks for a path (and, for exports, a format), and for
 // permission before a file is replaced.
 type fileDialog struct {
-	st        Styles
-	keys      KeyMap
-	kind      dialogKind
-	formats   []string
-	format    int
-	path      textinput.Model
+	st      Styles
+	keys    KeyMap
+	kind    dialogKind
+	formats []string
+	format  int
+	// path is the path field. A save or an export suggests a file name,
+	// which stands whole, so the first key typed replaces it, as a value
+	// input does, and a cursor key (or tab) keeps it to edit in place; an
+	// open or a history load suggests a folder, which typing extends.
+	path      valueInput
 	confirm   bool // waiting for y/n on an existing file
 	overwrite bool
 	msg       string
@@ -61,14 +63,14 @@ type fileDialog struct {
 }
 
 func newFileDialog(st Styles, keys KeyMap, kind dialogKind, path string, formats []string) fileDialog {
-	ti := textinput.New()
+	ti := newValueInput(st.Selected.Reverse(true))
 	ti.Prompt = "path › "
-	ti.Cursor.SetMode(cursor.CursorStatic)
-	calmEditing(&ti.KeyMap.DeleteAfterCursor, &ti.KeyMap.DeleteBeforeCursor)
 	ti.Width = 44
-	ti.SetValue(path)
-	ti.CursorEnd()
-	ti.Focus()
+	ti.Start(path) // static cursor: no blink to run
+	if kind == dialogOpen || kind == dialogHistory {
+		// These suggest a folder, to type a name into: it is kept.
+		ti.keep()
+	}
 	exts := formats
 	switch kind {
 	case dialogSave, dialogOpen:
@@ -174,6 +176,7 @@ func (d *fileDialog) completed(msg completedMsg) {
 	}
 	d.path.SetValue(msg.c.value)
 	d.path.CursorEnd()
+	d.path.keep() // a completed path is the user's, to extend
 	d.cands, d.more = msg.c.cands, msg.c.more
 	d.msg = msg.c.note
 	d.formatFromPath()

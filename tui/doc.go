@@ -62,8 +62,10 @@
 // File dialogs (`tui/dialog.go`, `tui/complete.go`): tab completes the path (in the background, as
 // far as every match agrees; the names still open show under it; the open dialog offers designs and
 // folders, the history dialog histories), ↑/↓ change the export format and a typed extension chooses
-// it at once; the export dialog starts with the format and pay chosen last. A failure is one line in
-// the dialog naming the file ("no file …; check the name").
+// it at once; the export dialog starts with the format and pay chosen last. The save and export
+// dialogs' suggested name stands whole, as a value does (`tui/valueinput.go`): the first typed key
+// replaces it, a cursor key keeps it to edit; the open and history dialogs suggest a folder, which
+// typing extends. A failure is one line in the dialog naming the file ("no file …; check the name").
 //
 // Unsaved changes (`tui/leave.go`, `tui/recover.go`, `tui/recovery`): every key that leaves or
 // replaces the design — q, ctrl+c, the next demo, F3 (a new, blank design: `NewDesign`), opening a
@@ -173,7 +175,8 @@
 //
 // Key map: DefaultKeyMap in keys.go is the one list of keys (printable keys are text while an
 // input has focus); the help overlay and the footer are generated from it, so they cannot
-// drift. Run the workbench and press ? to read it.
+// drift. Run the workbench and press ? to read it; esc or ? closes it, and q there does nothing
+// (it is listed as quit, and must not mean close as well).
 //
 // Tests: `go test ./tui` — golden views in `tui/testdata` at 80×24 and 120×40 (colour profile
 // pinned to ASCII; regenerate with `go test ./tui -update`), key-routing tests, random key

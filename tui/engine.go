@@ -241,8 +241,8 @@ func (te tableExporter) Export(ctx context.Context, d *design.Design, req Export
 	tb := r.Export(t, te.version, date)
 	if req.Certificate != "" {
 		tb.Meta.Certificate = req.Certificate
-		if req.Certified {
-			tb.Meta.VerdictKind = table.Certified
+		if req.VerdictKind != "" {
+			tb.Meta.VerdictKind = req.VerdictKind
 		}
 	}
 	var ax *annex.Input

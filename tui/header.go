@@ -84,9 +84,9 @@ func (m *Model) verdictWords() string {
 		return st.Dim.Render("not checked yet")
 	}
 	r := c.report
-	// The certificate's verdict stands once it decided, unless the grid
-	// found the rule improper where the proof says proper: then the grid's
-	// witness-backed verdict, as in the checks pane (CheckReport.Final).
+	// The verdict that stands over the grid's and the certificate's, as the
+	// command's verdict line says it (CheckReport.Standing): a proof of
+	// impropriety heads the screen even where the grid missed it.
 	verdict, kind := r.Final(), r.Kind()
 	if c.proving {
 		kind += ", proof running"
@@ -176,21 +176,4 @@ func (m *Model) footerKeys() []key.Binding {
 		}
 	}
 	return append(keys, as(k.Save, k.Save.Help().Key, "save"), as(k.Export, k.Export.Help().Key, "export"))
-}
-
-// weaker reports whether r's certificate proved only proper where the
-// grid found the rule strictly proper: a certificate that proved
-// strictness on part of the simplex only has not shown two reports that
-// tie, so its "proper" must not replace the grid's verdict (which then
-// stands, as grid evidence).
-func weaker(r *CheckReport) bool {
-	c := r.Certificate
-	return c != nil && c.Verdict == "proper" && r.Verdict == "strictly-proper"
-}
-
-// contradicted reports whether the grid found r's rule improper while its
-// certificate says proper.
-func contradicted(r *CheckReport) bool {
-	c := r.Certificate
-	return c != nil && strings.Contains(r.Verdict, "improper") && !strings.Contains(c.Verdict, "improper")
 }

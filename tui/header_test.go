@@ -3,6 +3,7 @@ package tui
 import (
 	"strings"
 	"testing"
+	"time"
 
 	tea "github.com/charmbracelet/bubbletea"
 
@@ -87,5 +88,30 @@ func TestHeaderSaysEpsilonProper(t *testing.T) {
 	}
 	if !strings.HasPrefix(r.Certificate.Statement, "certified epsilon-proper to 0.001: no report gains more than 0.001 anywhere") {
 		t.Errorf("statement %q", r.Certificate.Statement)
+	}
+}
+
+// A bump of width 1e-6 between the grid points makes the rule improper
+// (its curvature 2·1e-10/1e-12 = 200 beats the quadratic's -2, derived by
+// hand): the grid misses it, the certificate proves it, and the header and
+// the verdict entry say improper, certified, resting on the certificate's
+// witness, as `scorewright check --certify` does.
+func TestHeaderSaysCertifiedImproperWhereTheGridMissed(t *testing.T) {
+	d := NewDesign()
+	d.Formula = "1 - sum(p^2) + 1e-10*exp(-(p1 - 0.3141)^2/1e-12)"
+	m := testModel(t, d, Settings{CertifyDeadline: 10 * time.Second})
+	start(t, m, 80, 24)
+	r := m.CheckReport()
+	if r == nil || r.Verdict != "strictly-proper" || r.Certificate == nil || r.Certificate.Verdict != "improper" {
+		t.Fatalf("grid and certificate: %+v", r)
+	}
+	if h := headerOf(m); !strings.Contains(h, "✗ improper, certified") {
+		t.Errorf("header %q", h)
+	}
+	sel := m.checks
+	sel.sel = len(r.Rows) // the verdict and notes entry
+	txt := strings.Join(sel.detailText(), "\n")
+	if !strings.Contains(txt, "Verdict improper (certified: the certificate's witness") || !strings.Contains(txt, "Grid verdict strictly-proper (grid evidence)") {
+		t.Errorf("verdict entry:\n%s", txt)
 	}
 }

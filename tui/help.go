@@ -8,6 +8,13 @@ import (
 	"github.com/charmbracelet/lipgloss"
 )
 
+// helpTitle heads the help overlay with the keys that close it (and only
+// they do: q, listed below as quit, neither quits nor closes from here).
+func helpTitle(k KeyMap) string {
+	return "Keys — " + k.Leave.Help().Key + " or " + k.Help.Help().Key + " closes this help; " +
+		k.Up.Help().Key + "/" + k.Down.Help().Key + " " + k.PageUp.Help().Key + "/" + k.PageDown.Help().Key + " scroll"
+}
+
 // helpText lays out every key of km in columns that fit width. It is
 // generated from the key map's groups, so help and keys cannot drift.
 func helpText(st Styles, km KeyMap, width int) string {

@@ -5,8 +5,11 @@ import (
 
 	tea "github.com/charmbracelet/bubbletea"
 
+	"scorewright"
 	"scorewright/generator/design"
 	"scorewright/internal/pool"
+	"scorewright/verify"
+	"scorewright/verify/certify"
 )
 
 // Checker runs the checks of a design in the background. It must return
@@ -23,10 +26,6 @@ type CheckReport struct {
 	// not the full grid; the pane says which.
 	Sampled   bool
 	Tolerance float64
-	// Certified is true when the verdict rests on the certificate's
-	// proof (it decided, and the grid found nothing against it); false
-	// when it is grid evidence.
-	Certified bool
 	Rows      []CheckRow
 	Notes     []string
 	// Certificate is what the interval certificate proved; nil when none
@@ -34,22 +33,25 @@ type CheckReport struct {
 	Certificate *CertificateView
 }
 
-// Final is the verdict that stands: the certificate's when it decided and
-// the grid does not contradict it (Certified), the grid's otherwise.
-func (r *CheckReport) Final() string {
-	if r.Certified && r.Certificate != nil {
-		return r.Certificate.Verdict
+// Standing is the verdict that stands over the grid's and the
+// certificate's, with its kind: scorewright.StandingVerdict, the one place
+// the command and the workbench combine the two.
+func (r *CheckReport) Standing() scorewright.Standing {
+	var cert verify.Verdict
+	if r.Certificate != nil {
+		cert = verify.Verdict(r.Certificate.Verdict)
 	}
-	return r.Verdict
+	return scorewright.StandingVerdict(verify.Verdict(r.Verdict), cert, 0)
 }
 
+// Final is the verdict that stands (Standing).
+func (r *CheckReport) Final() string { return string(r.Standing().Verdict) }
+
 // Kind is the verdict's kind in words: "certified" or "grid evidence".
-func (r *CheckReport) Kind() string {
-	if r.Certified {
-		return "certified"
-	}
-	return "grid evidence"
-}
+func (r *CheckReport) Kind() string { return string(r.Standing().Kind) }
+
+// Certified reports whether the verdict rests on the certificate.
+func (r *CheckReport) Certified() bool { return r.Standing().Kind == certify.Certified }
 
 // CheckRow is one check: pass or fail and its worst witness.
 type CheckRow struct {
@@ -110,11 +112,11 @@ type ExportRequest struct {
 	Lottery bool
 	// Certificate is the statement of the interval certificate the
 	// checks ran on this very design ("" when none ran or the design
-	// changed since); Certified says it proved the rule proper over the
-	// whole simplex, so the record's verdict kind is "certified", as
-	// `scorewright table --certify` writes it.
+	// changed since); VerdictKind is the record's verdict kind it makes
+	// (scorewright.RecordedKind: "certified strictly proper", "certified
+	// proper", ...), as `scorewright table --certify` writes it.
 	Certificate string
-	Certified   bool
+	VerdictKind string
 }
 
 // Messages answering the workbench's background work. Each carries the

@@ -159,7 +159,7 @@ func (m *Model) submitDialog() tea.Cmd {
 	default:
 		ex, ctx := m.set.Exporter, m.ctx
 		req := ExportRequest{Format: format, Path: path, Overwrite: overwrite, Lottery: lot}
-		req.Certificate, req.Certified = m.checks.proof()
+		req.Certificate, req.VerdictKind = m.checks.proof()
 		return func() tea.Msg {
 			files, err := ex.Export(ctx, d, req)
 			return exportedMsg{files: files, gen: gen, seq: seq, err: err}

@@ -40,10 +40,16 @@ func (m *Model) key(km tea.KeyMsg) tea.Cmd {
 	return m.routeToPane(km)
 }
 
-// helpKey scrolls or closes the help overlay.
+// helpKey scrolls or closes the help overlay: esc or the help key closes
+// it, as its title says. q does neither: it is listed in the help as
+// quit, so closing help with it would be one key meaning two things, and
+// quitting from help would lose the screen the user was reading about.
 func (m *Model) helpKey(km tea.KeyMsg) tea.Cmd {
 	k := m.keys
-	if key.Matches(km, k.Help) || key.Matches(km, k.Leave) || key.Matches(km, k.Quit) {
+	if key.Matches(km, k.Quit) {
+		return nil
+	}
+	if key.Matches(km, k.Help) || key.Matches(km, k.Leave) {
 		m.help = false
 		return nil
 	}

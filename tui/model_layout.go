@@ -82,7 +82,7 @@ func (m *Model) View() string {
 	screen := header + "\n" + body + "\n" + m.footerLine()
 	switch {
 	case m.help:
-		box := m.st.Dialog.Render(m.st.Header.Render("Keys — esc or ? to close, ↑/↓ pgup/pgdn to scroll") + "\n" + m.helpView.View())
+		box := m.st.Dialog.Render(m.st.Header.Render(helpTitle(m.keys)) + "\n" + m.helpView.View())
 		screen = lipgloss.Place(m.width, m.height, lipgloss.Center, lipgloss.Center, box)
 	case m.recOffer != nil:
 		screen = overlay(screen, m.recoveryView(), m.width, m.height)

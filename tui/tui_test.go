@@ -437,7 +437,8 @@ func TestMeanPayBudget(t *testing.T) {
 // An export records what the checks proved of the design as it stands:
 // the demo's quadratic rule is strictly proper (a textbook fact: its
 // generator 1 - sum(p^2) has Hessian -2I), the certificate proves it, and
-// the record's verdict kind is "certified" with the statement beside it,
+// the record's verdict kind is "certified strictly proper" with the
+// statement beside it,
 // as `scorewright table --certify` writes it. -(||p||_3^(1/2))^2 is the
 // pseudospherical generator -||p||_3, strictly proper too (Gneiting and
 // Raftery 2007, JASA, section 3), but written as a power of a power it is
@@ -447,7 +448,7 @@ func TestMeanPayBudget(t *testing.T) {
 func TestExportRecordsTheCertificate(t *testing.T) {
 	for _, tc := range []struct {
 		formula, kind string
-	}{{"", "certified"}, {"-(sum(p^3)^(1/6))^2", "grid evidence"}} {
+	}{{"", "certified strictly proper"}, {"-(sum(p^3)^(1/6))^2", "grid evidence"}} {
 		dir := t.TempDir()
 		d := DemoFrost()
 		if tc.formula != "" {
@@ -471,7 +472,7 @@ func TestExportRecordsTheCertificate(t *testing.T) {
 		if !strings.Contains(string(b), "**verdict kind:** "+tc.kind) {
 			t.Errorf("%s (certificate %s): record:\n%s", tc.kind, r.Certificate.Verdict, b)
 		}
-		if tc.kind == "certified" && !strings.Contains(string(b), "certified strictly proper") {
+		if tc.kind != "grid evidence" && !strings.Contains(string(b), "**certificate:** certified strictly proper") {
 			t.Errorf("record lacks the certificate's statement:\n%s", b)
 		}
 	}

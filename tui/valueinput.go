@@ -63,6 +63,13 @@ func (v valueInput) Update(msg tea.Msg) (valueInput, tea.Cmd) {
 	return v, cmd
 }
 
+// keep makes the value the user's to edit in place: the next key no
+// longer replaces it.
+func (v *valueInput) keep() {
+	v.whole = false
+	v.TextStyle = v.textStyle
+}
+
 // Blur ends the input and forgets that the value stood whole.
 func (v *valueInput) Blur() {
 	v.whole = false

@@ -104,8 +104,9 @@ func auditDesign(e *env, d *design.Design, vf *verifyFlags) error {
 	if err != nil {
 		return err
 	}
-	out := newAuditJSON(d.Formula, d.Labels, rep)
-	return v.finish(e, vf, &out, func() { printAudit(e, d.Formula, d.Labels, found) }, cert, found.Failed(), proved)
+	st := standing(rep.Verdict, cert)
+	out := newAuditJSON(d.Formula, d.Labels, rep, st)
+	return v.finish(e, vf, &out, func() { printAudit(e, d.Formula, d.Labels, found, st) }, cert, found.Failed(), proved)
 }
 
 // payoutDesign is the design audit builds from --outcomes, --payout,
@@ -139,8 +140,8 @@ func payoutDesign(outcomes, src, weights string, ordered bool, params map[string
 }
 
 // newAuditJSON is what audit --json prints for a payout over outcomes.
-func newAuditJSON(src string, labels []string, rep *verify.AuditReport) auditJSON {
-	out := auditJSON{reportJSON: toReportJSON(&rep.Report), Payout: src, Outcomes: labels, Direction: rep.Direction, Caution: auditCaution, Undefined: rep.Undefined,
+func newAuditJSON(src string, labels []string, rep *verify.AuditReport, st scorewright.Standing) auditJSON {
+	out := auditJSON{reportJSON: toReportJSON(&rep.Report, st), Payout: src, Outcomes: labels, Direction: rep.Direction, Caution: auditCaution, Undefined: rep.Undefined,
 		Gap: gapJSON{Max: num.Float(rep.Gap.Max), Belief: vector(rep.Gap.Belief), BestReport: vector(rep.Gap.BestReport), Sharpened: rep.Gap.Sharpened}}
 	if id := rep.Identified; id != nil {
 		j := toIdentJSON(*id)
@@ -152,10 +153,10 @@ func newAuditJSON(src string, labels []string, rep *verify.AuditReport) auditJSO
 	return out
 }
 
-func printAudit(e *env, src string, labels []string, found *scorewright.Findings) {
+func printAudit(e *env, src string, labels []string, found *scorewright.Findings, st scorewright.Standing) {
 	w, rep := e.stdout, found.Audit
 	fmt.Fprintf(w, "payout:  %q over %d outcomes (%s) (reward: more is better)\n", src, len(labels), strings.Join(labels, ", "))
-	printReport(w, &rep.Report)
+	printReport(w, &rep.Report, st)
 	fmt.Fprintln(w)
 	if line := found.GapLine(); line != "" {
 		fmt.Fprintln(w, line)

@@ -148,10 +148,11 @@ func printCertificate(w io.Writer, c *certificateJSON) {
 }
 
 // certifyRecord runs the certificate for a table when asked and writes
-// what it proved into the table's record: the verdict kind becomes
-// "certified" only when the rule was proved proper (or, a payout,
-// epsilon-proper, as its statement says) over the whole simplex; otherwise it stays "grid evidence" with the certificate's
-// statement beside it.
+// what it proved into the table's record: the verdict kind says what was
+// certified (scorewright.RecordedKind: "certified strictly proper",
+// "certified proper", for a payout "certified epsilon-proper to E") when
+// the rule was proved honest over the whole simplex; otherwise it stays
+// "grid evidence" with the certificate's statement beside it.
 func certifyRecord(e *env, r *scorewright.Rule, m *table.Meta, c *certifyFlags) error {
 	if c == nil || !c.on {
 		return nil
@@ -165,9 +166,11 @@ func certifyRecord(e *env, r *scorewright.Rule, m *table.Meta, c *certifyFlags) 
 	if err != nil {
 		return err
 	}
-	m.Certificate = cert.Statement
-	if certify.Proved(cert.Verdict) {
-		m.VerdictKind = table.Certified
+	var eps float64
+	if cert.Epsilon != nil {
+		eps = float64(*cert.Epsilon)
 	}
+	m.Certificate = cert.Statement
+	m.VerdictKind = scorewright.RecordedKind("", cert.Verdict, eps)
 	return nil
 }

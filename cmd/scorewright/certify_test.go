@@ -55,11 +55,23 @@ func TestCheckCertify(t *testing.T) {
 
 // A bump of width 1e-6 the grid cannot see makes the rule improper (its
 // curvature 2·1e-10/1e-12 = 200 beats the quadratic's -2, derived by
-// hand): the grid says strictly proper, the certificate improper, exit 1.
+// hand): the grid sees nothing, the certificate proves it improper, and
+// the verdict heading the report, in text and JSON, is the certificate's
+// (kind certified, resting on its witness), exit 1.
 func TestCheckCertifyCatchesNarrowBump(t *testing.T) {
-	code, out, _ := runCmd(t, "check", "--outcomes", "2", "--generator", "1 - sum(p^2) + 1e-10*exp(-(p1 - 0.3141)^2/1e-12)", "--certify", "--deadline", "10s")
-	if code != 1 || !strings.Contains(out, "verdict: strictly-proper (grid evidence)") || !strings.Contains(out, "certificate (certified): improper") {
+	args := []string{"check", "--outcomes", "2", "--generator", "1 - sum(p^2) + 1e-10*exp(-(p1 - 0.3141)^2/1e-12)", "--certify", "--deadline", "10s"}
+	code, out, _ := runCmd(t, args...)
+	if code != 1 || !strings.Contains(out, "\nverdict: improper (certified: the certificate's witness; the grid, which samples, found none)\n") ||
+		!strings.Contains(out, "certificate (certified): improper") || !strings.Contains(out, "properness     passed") {
 		t.Errorf("exit %d\n%s", code, out)
+	}
+	code, out, _ = runCmd(t, append(args, "--json")...)
+	var v certifiedJSON
+	if err := json.Unmarshal([]byte(out), &v); err != nil {
+		t.Fatal(err)
+	}
+	if code != 1 || v.Verdict != "improper" || v.Kind != "certified" || v.Certificate == nil || v.Certificate.Witness == nil {
+		t.Errorf("exit %d: %s", code, out[:min(len(out), 600)])
 	}
 }
 
@@ -104,7 +116,7 @@ func TestAuditCertificateSaysEpsilon(t *testing.T) {
 // (exit 1). A point-forecast payout is refused with the reason.
 func TestCertifyPointMode(t *testing.T) {
 	code, out, errs := runCmd(t, "check", "--interval", "0,1", "--generator", "-x^4", "--certify")
-	if code != 0 || !strings.Contains(out, "certificate (certified): strictly-proper") {
+	if code != 0 || !strings.Contains(out, "certificate (certified): strictly-proper") || !strings.Contains(out, "verdict: strictly-proper (certified)\n") {
 		t.Errorf("exit %d: %s%s", code, out, errs)
 	}
 	code, out, _ = runCmd(t, "check", "--interval", "0,1", "--generator", "x^3", "--certify")
@@ -126,11 +138,19 @@ func TestCertifyEmphasis(t *testing.T) {
 	}
 }
 
-// table --certify records the verdict kind: certified for the quadratic
-// rule (Brier 1950, strictly proper), grid evidence without the flag.
+// table --certify records the verdict kind with what was certified:
+// "certified strictly proper" for the quadratic rule (Brier 1950, strictly
+// proper); "certified proper" for -(p1 - p2)^4, whose curvature
+// -48(2p1 - 1)^2 vanishes at p1 = 1/2 (derived by hand), so the
+// certificate proves concavity everywhere but strictness only off a
+// neighbourhood of that point; grid evidence without the flag.
 func TestTableRecordsVerdictKind(t *testing.T) {
 	code, out, errs := runCmd(t, "table", "--outcomes", "3", "--preset", "quadratic", "--floor", "0", "--cap", "100", "--step", "0.25", "--format", "csv", "--certify")
-	if code != 0 || !strings.Contains(out, "# verdict kind: certified\n") || !strings.Contains(out, "# certificate: certified strictly proper") {
+	if code != 0 || !strings.Contains(out, "# verdict kind: certified strictly proper\n") || !strings.Contains(out, "# certificate: certified strictly proper") {
+		t.Errorf("exit %d %s\n%s", code, errs, out)
+	}
+	code, out, errs = runCmd(t, "table", "--outcomes", "2", "--generator", "-(p1-p2)^4", "--floor", "0", "--cap", "100", "--step", "0.25", "--format", "csv", "--certify")
+	if code != 0 || !strings.Contains(out, "# verdict kind: certified proper\n") || !strings.Contains(out, "# certificate: certified proper over the whole simplex") {
 		t.Errorf("exit %d %s\n%s", code, errs, out)
 	}
 	code, out, _ = runCmd(t, "table", "--outcomes", "3", "--preset", "quadratic", "--floor", "0", "--cap", "100", "--step", "0.25", "--format", "csv")
@@ -157,7 +177,7 @@ func TestUndecidedCertificateIsNotCalledCertified(t *testing.T) {
 // certificate that proved proper.
 func TestPartlyStrictCertificateKeepsTheGridsStrictness(t *testing.T) {
 	code, out, errs := runCmd(t, "check", "--outcomes", "2", "--generator", "-(p1-p2)^4", "--resolution", "200", "--certify")
-	if code != 0 || !strings.Contains(out, "verdict: strictly-proper (grid evidence)") || strings.Contains(out, "verdict: proper") {
+	if code != 0 || !strings.Contains(out, "verdict: strictly-proper (grid evidence: the certificate proved proper; strictness is the grid's)") || strings.Contains(out, "verdict: proper") {
 		t.Errorf("exit %d: %s%s", code, out, errs)
 	}
 }

@@ -79,10 +79,11 @@ func checkDesign(e *env, d *design.Design, vf *verifyFlags) error {
 	case found.Point != nil:
 		return printPointReport(e, found.Point, vf.asJSON, cert, proved)
 	}
-	out := toReportJSON(found.Rule)
+	st := standing(found.Rule.Verdict, cert)
+	out := toReportJSON(found.Rule, st)
 	return v.finish(e, vf, &out, func() {
 		fmt.Fprintf(e.stdout, "rule:    %s\n", describeRule(r.Kind(), d))
-		printReport(e.stdout, found.Rule)
+		printReport(e.stdout, found.Rule, st)
 	}, cert, found.Failed(), proved)
 }
 

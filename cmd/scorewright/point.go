@@ -181,9 +181,11 @@ func pointPayoutDesign(payout, interval string, params map[string]float64) (*des
 
 type pointCheckJSON struct {
 	Verdict verify.Verdict `json:"verdict"`
-	// Kind is the grid verdict's kind: always grid evidence (what the
-	// certificate proves is in Certificate).
+	// Kind is the verdict's kind: certified when it rests on the
+	// certificate, under Certificate; Basis says which of the two it rests
+	// on when the grid and the certificate disagree (scorewright.Standing).
 	Kind       certify.Kind        `json:"kind"`
+	Basis      string              `json:"basis,omitempty"`
 	Grid       pointGridJSON       `json:"grid"`
 	Checks     []pointCheckOut     `json:"checks"`
 	Gap        *pointGapOut        `json:"gap,omitempty"`
@@ -246,9 +248,10 @@ type pointGapOut struct {
 // ran, the certificate under it; errFailed when a check failed or the
 // certificate proved the rule improper.
 func printPointReport(e *env, rep *pointcheck.Report, asJSON bool, cert *certificateJSON, improper bool) error {
+	st := standing(rep.Verdict, cert)
 	if asJSON {
 		g := rep.Grid
-		out := pointCheckJSON{Verdict: rep.Verdict, Kind: certify.GridEvidence, Grid: pointGridJSON{g.Resolution, g.Points, g.Tolerance, g.Lo, g.Hi}, Notes: rep.Notes, Certificate: cert}
+		out := pointCheckJSON{Verdict: st.Verdict, Kind: st.Kind, Basis: st.Basis, Grid: pointGridJSON{g.Resolution, g.Points, g.Tolerance, g.Lo, g.Hi}, Notes: rep.Notes, Certificate: cert}
 		if id := rep.Identified; id != nil {
 			out.Identified = &pointIdentifiedOut{id.Preset, id.Scale, id.Shift, id.OutcomeTerm}
 		}
@@ -262,7 +265,7 @@ func printPointReport(e *env, rep *pointcheck.Report, asJSON bool, cert *certifi
 			return err
 		}
 	} else {
-		fmt.Fprintf(e.stdout, "verdict: %s (%s)\n", rep.Verdict, certify.GridEvidence)
+		fmt.Fprintf(e.stdout, "verdict: %s\n", st.Words())
 		fmt.Fprintf(e.stdout, "grid: [%g, %g], resolution %d (%d reports), tolerance %g\n", rep.Grid.Lo, rep.Grid.Hi, rep.Grid.Resolution, rep.Grid.Points, rep.Grid.Tolerance)
 		tw := textcol.NewWriter(e.stdout, 0)
 		for _, c := range rep.Checks {

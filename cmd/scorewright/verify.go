@@ -186,7 +186,10 @@ type reportJSON struct {
 	// Kind is "grid evidence" (the grid samples, it never proves), or
 	// "certified" when the verdict rests on the certificate, under
 	// "certificate", and the grid checked only what it leaves.
-	Kind        certify.Kind     `json:"kind"`
+	Kind certify.Kind `json:"kind"`
+	// Basis says which of the grid and the certificate the verdict rests
+	// on when they disagree (scorewright.Standing).
+	Basis       string           `json:"basis,omitempty"`
 	Certificate *certificateJSON `json:"certificate,omitempty"`
 	Grid        gridJSON         `json:"grid"`
 	Checks      []checkJSON      `json:"checks"`
@@ -195,8 +198,8 @@ type reportJSON struct {
 
 func (r *reportJSON) setCertificate(c *certificateJSON) { r.Certificate = c }
 
-func toReportJSON(r *verify.Report) reportJSON {
-	out := reportJSON{Verdict: r.Verdict, Kind: verdictKind(r), Notes: r.Notes, Grid: gridJSON{
+func toReportJSON(r *verify.Report, st scorewright.Standing) reportJSON {
+	out := reportJSON{Verdict: st.Verdict, Kind: st.Kind, Basis: st.Basis, Notes: r.Notes, Grid: gridJSON{
 		Resolution: r.Grid.Resolution, Points: r.Grid.Points, Tolerance: num.Float(r.Grid.Tolerance), Scale: num.Float(r.Grid.Scale), Slack: num.Float(r.Grid.Slack()), Sampled: r.Grid.Sampled,
 		Interior: r.Grid.Interior, Boundary: r.Grid.Boundary, Pairs: r.Grid.Pairs, Statement: r.Grid.String(),
 	}}
@@ -224,10 +227,11 @@ func toPartJSON(p verify.Part) partJSON {
 	return partJSON{Count: p.Count, Passed: p.Passed, Worst: num.Float(p.Worst), At: atJSON{num.Floats(p.Belief), num.Floats(p.Report)}}
 }
 
-// printReport writes the human form of a verification: verdict, grid
+// printReport writes the human form of a verification: the verdict that
+// stands (st, the grid's combined with the certificate's), grid
 // statement, one block per check, notes.
-func printReport(w io.Writer, r *verify.Report) {
-	fmt.Fprintf(w, "verdict: %s (%s)\n", r.Verdict, verdictKind(r))
+func printReport(w io.Writer, r *verify.Report, st scorewright.Standing) {
+	fmt.Fprintf(w, "verdict: %s\n", st.Words())
 	fmt.Fprintf(w, "grid:    %s\n\n", r.Grid)
 	for _, c := range r.Checks {
 		status := "passed"
@@ -265,12 +269,18 @@ func printReport(w io.Writer, r *verify.Report) {
 	}
 }
 
-// verdictKind is what a check's verdict rests on.
-func verdictKind(r *verify.Report) certify.Kind {
-	if r.Proof != nil {
-		return certify.Certified
+// standing is the verdict that stands over a grid verdict and the
+// certificate c (nil when none ran): scorewright.StandingVerdict, the one
+// place the two are combined for the text, the JSON and the workbench.
+func standing(grid verify.Verdict, c *certificateJSON) scorewright.Standing {
+	if c == nil {
+		return scorewright.StandingVerdict(grid, "", 0)
 	}
-	return certify.GridEvidence
+	var eps float64
+	if c.Epsilon != nil {
+		eps = float64(*c.Epsilon)
+	}
+	return scorewright.StandingVerdict(grid, c.Verdict, eps)
 }
 
 func partLine(p verify.Part, g verify.Grid) string {

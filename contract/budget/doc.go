@@ -42,6 +42,9 @@
 // the floor comes out exactly. `Fit.Pay(effort)` is what the table pays; `Fit.Exact` skips
 // rounding. Off-menu reports (backtest): use `f.NewPayer().Pay(dst, report)`, which applies
 // the clamp before the effort; `Pay(effort)` alone is right only when `f.Clamp == 0`.
+// Rounding (`Rounder`, bounded by `Rounder.Within`) never takes a payment in [floor, cap] out of
+// it: where the mode would go below the floor or above the cap, the payment is the nearest
+// multiple of the unit inside; a budget with no multiple inside is a `*NoRoomError`.
 // `f.BestItem(q)` is the menu item a forecaster with belief q picks on the rounded table, for a
 // contract that accepts only menu reports.
 // `Truthful` is A - B·H(q) over a belief grid (1/1000 for n = 2, at most 20000 points

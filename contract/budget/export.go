@@ -29,11 +29,12 @@ type Info struct {
 	// Date is written as given, so tests can fix it.
 	Date string
 	// Certificate is the statement of an interval certificate run on the
-	// rule (verify/certify), and Certified whether it proved the rule
-	// proper; empty when none was run: the table then records that its
-	// verdict is grid evidence.
+	// rule (verify/certify), and VerdictKind what it proved, in the words
+	// the record writes ("certified strictly proper", "certified proper");
+	// empty when none was run: the table then records that its verdict is
+	// grid evidence.
 	Certificate string
-	Certified   bool
+	VerdictKind string
 }
 
 // listItems names up to five menu items, then says how many more.
@@ -191,8 +192,8 @@ func (f *Fit) Table(rc *Recheck, info Info) *table.Table {
 		Version: info.Version, Date: info.Date, Currency: info.Currency,
 		Cautions: table.Caution(),
 	}
-	if info.Certified {
-		meta.VerdictKind = table.Certified
+	if info.VerdictKind != "" {
+		meta.VerdictKind = info.VerdictKind
 	}
 	switch {
 	case !checked:

@@ -154,6 +154,16 @@ func FitRule(r *bregman.Rule, m *Menu, b design.Budget) (*Fit, error) {
 	if err := f.scale(b, lmin, lmax, ref, href); err != nil {
 		return nil, err
 	}
+	// Rounding keeps every payment within what the budget promises: the
+	// floor, and the cap when one was given (a mean-pay fit promises none;
+	// its top payment is where the fit lands).
+	top := f.Cap
+	if b.MeanPay != nil {
+		top = math.Inf(1)
+	}
+	if f.round, err = f.round.Within(f.Floor, top); err != nil {
+		return nil, fmt.Errorf("budget: %w", err)
+	}
 	f.Pays = make([][]float64, len(f.Efforts))
 	f.MinPay, f.MaxPay = math.Inf(1), math.Inf(-1)
 	for i, eff := range f.Efforts {

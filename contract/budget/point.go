@@ -58,6 +58,26 @@ type PointTable struct {
 // table, so no finite budget fits.
 var ErrPointUnbounded = errors.New("point: the effort is not finite on the table")
 
+// payCells fills the rounded payments A - B·D of the divergences d, and
+// the smallest and largest of them.
+func (f *PointTable) payCells(d [][]float64, worst float64) {
+	f.Pay = make([][]float64, len(d))
+	f.MinPay, f.MaxPay = math.Inf(1), math.Inf(-1)
+	for i := range d {
+		f.Pay[i] = make([]float64, len(d[i]))
+		for j, v := range d[i] {
+			// The worst cell pays the floor exactly, whatever the float
+			// noise in A - B·worst.
+			pay := f.A - f.B*v
+			if v == worst {
+				pay = f.Floor
+			}
+			f.Pay[i][j] = f.round.Round(pay)
+			f.MinPay, f.MaxPay = math.Min(f.MinPay, f.Pay[i][j]), math.Max(f.MaxPay, f.Pay[i][j])
+		}
+	}
+}
+
 // FitPoint fits the point-forecast rule g to the budget over the menu ×
 // outcome grid. It honours ctx between rows.
 func FitPoint(ctx context.Context, g *point.Generator, spec PointSpec) (*PointTable, error) {
@@ -113,22 +133,12 @@ func FitPoint(ctx context.Context, g *point.Generator, spec PointSpec) (*PointTa
 	if worst == 0 {
 		return nil, errors.New("point: the effort is zero everywhere on the table; the generator is affine")
 	}
-	f.A, f.B = spec.Cap, (spec.Cap-spec.Floor)/worst
-	f.Pay = make([][]float64, rows)
-	f.MinPay, f.MaxPay = math.Inf(1), math.Inf(-1)
-	for i := range d {
-		f.Pay[i] = make([]float64, cols)
-		for j, v := range d[i] {
-			// The worst cell pays the floor exactly, whatever the float
-			// noise in A - B·worst.
-			pay := f.A - f.B*v
-			if v == worst {
-				pay = spec.Floor
-			}
-			f.Pay[i][j] = rd.Round(pay)
-			f.MinPay, f.MaxPay = math.Min(f.MinPay, f.Pay[i][j]), math.Max(f.MaxPay, f.Pay[i][j])
-		}
+	if rd, err = rd.Within(spec.Floor, spec.Cap); err != nil {
+		return nil, fmt.Errorf("point: %w", err)
 	}
+	f.round = rd
+	f.A, f.B = spec.Cap, (spec.Cap-spec.Floor)/worst
+	f.payCells(d, worst)
 	f.Notes = []string{
 		fmt.Sprintf("pay = %.6g - %.6g * D(y, x), D from phi = %s on [%g, %g]", f.A, f.B, g.Source, g.Lo, g.Hi),
 		"for an outcome between two columns, pay by linear interpolation between them: the part of the pay that depends on the report is affine in the outcome, so with interpolation the best menu report is still the one nearest the mean in the rule's divergence D(mean, x)",

@@ -145,20 +145,21 @@ func TestTableWritersCarryTheRecord(t *testing.T) {
 	}
 }
 
-// TestRoundingUpPastTheCap: cap 40 rounded up to units of 3 pays 42 for a
-// perfect forecast (40/3 = 13.33 -> 14 units; derived by hand), and the
-// record says the budget was left.
-func TestRoundingUpPastTheCap(t *testing.T) {
+// TestRoundingUpStopsAtTheCap: cap 40 rounded up to units of 3 would pay
+// 42 for a perfect forecast (40/3 = 13.33 -> 14 units); rounding never
+// takes a payment above the cap, so it pays the largest multiple of 3 at
+// or below 40, 39 (derived by hand), and no note says the budget was
+// left.
+func TestRoundingUpStopsAtTheCap(t *testing.T) {
 	g, _ := point.New("-x^2", 0, 10, point.Options{})
 	tb, err := FitPoint(context.Background(), g, PointSpec{Floor: 0, Cap: 40, Step: 5, Columns: 3, Unit: 3, Rounding: "up"})
 	if err != nil {
 		t.Fatal(err)
 	}
-	if tb.MaxPay != 42 {
-		t.Errorf("largest payment %v, want 42", tb.MaxPay)
+	if tb.MaxPay != 39 || tb.MinPay != 0 {
+		t.Errorf("payments from %v to %v, want 0 to 39", tb.MinPay, tb.MaxPay)
 	}
-	notes := strings.Join(tb.Export(nil, PointInfo{}).Meta.Notes, " ")
-	if !strings.Contains(notes, "outside the budget: from 0 to 42") {
+	if notes := strings.Join(tb.Export(nil, PointInfo{}).Meta.Notes, " "); strings.Contains(notes, "outside the budget") {
 		t.Errorf("notes %q", notes)
 	}
 }

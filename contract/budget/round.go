@@ -34,6 +34,13 @@ type Rounder struct {
 	// so that k·0.3 reads back as the decimal it is (0.9, not
 	// 0.8999999999999999).
 	pow10 float64
+	// bounded says lo and hi are set (Within): the multiples of the unit
+	// that lie in the budget's [floor, cap], which an amount in that range
+	// is never rounded out of.
+	bounded bool
+	lo, hi  float64
+	// floor and cap are the range Within was given, for Describe.
+	floor, cap float64
 }
 
 // NewRounder returns a Rounder for unit (0: no rounding) and mode ("" is
@@ -57,12 +64,57 @@ func NewRounder(unit float64, mode string) (Rounder, error) {
 	return r, nil
 }
 
-// Round returns x rounded to the unit in the rounder's mode; with unit 0
-// it returns x.
+// NoRoomError is a budget whose [floor, cap] holds no multiple of the
+// rounding unit: every rounded payment would fall outside it.
+type NoRoomError struct{ Unit, Floor, Cap float64 }
+
+func (e *NoRoomError) Error() string {
+	return fmt.Sprintf("rounding: no multiple of the unit %s lies between the floor %s and the cap %s; choose a smaller unit or a wider budget",
+		short(e.Unit), short(e.Floor), short(e.Cap))
+}
+
+// Within returns r bounded to [floor, cap]: an amount in that range is
+// rounded in r's mode, but never out of it; where the mode would take it
+// below the floor (5 rounded down to a unit of 10 is 0) it is paid the
+// smallest multiple of the unit at or above the floor (10), and where it
+// would take it above the cap, the largest multiple at or below the cap.
+// A contract promises the floor and the cap; rounding is not allowed to
+// break either. Amounts outside [floor, cap] (an off-menu report) are
+// rounded as before. A range holding no multiple of the unit is a
+// *NoRoomError. With no rounding (unit 0) r is returned as it is.
+func (r Rounder) Within(floor, cap float64) (Rounder, error) {
+	if r.unit == 0 {
+		return r, nil
+	}
+	up, down := r, r
+	up.mode, down.mode = RoundUp, RoundDown
+	lo, hi := up.Round(floor), down.Round(cap)
+	if lo > hi {
+		return Rounder{}, &NoRoomError{Unit: r.unit, Floor: floor, Cap: cap}
+	}
+	r.bounded, r.lo, r.hi, r.floor, r.cap = true, lo, hi, floor, cap
+	return r, nil
+}
+
+// Round returns x rounded to the unit in the rounder's mode, kept within
+// the bounds of Within; with unit 0 it returns x.
 func (r Rounder) Round(x float64) float64 {
 	if r.unit == 0 || math.IsNaN(x) || math.IsInf(x, 0) {
 		return x
 	}
+	v := r.round(x)
+	switch {
+	case !r.bounded:
+	case v < r.lo && x >= r.floor:
+		v = r.lo
+	case v > r.hi && x <= r.cap:
+		v = r.hi
+	}
+	return v
+}
+
+// round is Round without the bounds.
+func (r Rounder) round(x float64) float64 {
 	v := x / r.unit
 	if w := math.Round(v); math.Abs(v-w) < snapUnits {
 		v = w
@@ -115,7 +167,11 @@ func (r Rounder) Describe() string {
 		RoundDown:    "down",
 		RoundUp:      "up",
 	}[r.mode]
-	return fmt.Sprintf("to multiples of %s, %s", short(r.unit), mode)
+	s := fmt.Sprintf("to multiples of %s, %s", short(r.unit), mode)
+	if r.bounded && (r.lo != r.floor || r.hi != r.cap) {
+		s += fmt.Sprintf(", never out of [%s, %s], the multiples within the floor and the cap", short(r.lo), short(r.hi))
+	}
+	return s
 }
 
 // Unit is the rounding unit (0: none).

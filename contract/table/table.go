@@ -92,9 +92,10 @@ type Meta struct {
 	// Verdict explains the re-check in one sentence.
 	Verdict string `json:"recheck_verdict"`
 	// VerdictKind records what the rule's verdict rests on: GridEvidence
-	// (the menu re-check and the grid checks sample beliefs) or Certified
-	// (an interval certificate proved the rule proper over the whole
-	// simplex; Certificate then says what it proved).
+	// (the menu re-check and the grid checks sample beliefs), or what an
+	// interval certificate proved over the whole simplex, "certified
+	// strictly proper" or "certified proper" (a payout's "certified
+	// epsilon-proper to E"); Certificate then says how.
 	VerdictKind string `json:"verdict_kind"`
 	Certificate string `json:"certificate,omitempty"`
 	// MinMargin is the smallest incentive margin, in the table's values.
@@ -110,11 +111,9 @@ type Meta struct {
 	Cautions []string `json:"caution"`
 }
 
-// Verdict kinds a table records (Meta.VerdictKind).
-const (
-	GridEvidence = "grid evidence"
-	Certified    = "certified"
-)
+// GridEvidence is the verdict kind a table records when no certificate
+// proved its rule honest (Meta.VerdictKind).
+const GridEvidence = "grid evidence"
 
 // Field is one line of the metadata block.
 type Field struct{ Key, Value string }

@@ -89,7 +89,7 @@ func breakResult(ctx context.Context, prog *formula.Program, n int, s Settings, 
 		(&ticker{fn: s.Progress, start: start}).tick(1, bp.boxes, true)
 		return res
 	}
-	res := provedStrict(n, fmt.Sprintf("H is smooth between the breaks of its if at p1 = %s; each piece proved strictly concave (interval Hessian below 0, %d boxes), and at each break the two branches take the same value and the slope does not rise (checked exactly at the break), so H is strictly concave across it", at, bp.boxes), s, start)
+	res := provedStrict(n, fmt.Sprintf("H is smooth between the breaks of its if at p1 = %s; each piece proved strictly concave (interval Hessian below 0, %s), and at each break the two branches take the same value and the slope does not rise (checked exactly at the break), so H is strictly concave across it", at, counted(bp.boxes, "box", "boxes")), s, start)
 	res.Boxes = bp.boxes
 	return res
 }

@@ -183,16 +183,16 @@ func (r *Result) Statement() string {
 	case r.Verdict == verify.StrictlyProper && r.Method != "":
 		return "certified strictly proper over the whole simplex: " + r.Method
 	case r.Verdict == verify.StrictlyProper:
-		return fmt.Sprintf("certified strictly proper over the whole simplex (%d boxes)", r.Boxes)
+		return fmt.Sprintf("certified strictly proper over the whole simplex (%s)", counted(r.Boxes, "box", "boxes"))
 	case r.Verdict == EpsilonProper && r.Method != "":
-		return fmt.Sprintf("certified %s: %s (a smaller gain is not ruled out): %s (%d boxes)", EpsilonVerdict(r.Epsilon), EpsilonClaim(r.Epsilon), r.Method, r.Boxes)
+		return fmt.Sprintf("certified %s: %s (a smaller gain is not ruled out): %s (%s)", EpsilonVerdict(r.Epsilon), EpsilonClaim(r.Epsilon), r.Method, counted(r.Boxes, "box", "boxes"))
 	case r.Verdict == EpsilonProper:
-		return fmt.Sprintf("certified %s: %s (a smaller gain is not ruled out) (%d box pairs)", EpsilonVerdict(r.Epsilon), EpsilonClaim(r.Epsilon), r.Boxes)
+		return fmt.Sprintf("certified %s: %s (a smaller gain is not ruled out) (%s)", EpsilonVerdict(r.Epsilon), EpsilonClaim(r.Epsilon), counted(r.Boxes, "box pair", "box pairs"))
 	case r.Verdict == verify.Proper:
 		// Where strictness was not shown is not known to be next to the
 		// faces: min(p, 1-p) and p1 (1 - p1) are flat in the interior.
-		return fmt.Sprintf("certified proper over the whole simplex; strictly concave proved on %s of it, the rest only concave (no box there showed curvature below 0: H is flat along some direction, or its curvature tends to 0 at a face) (%d boxes)",
-			pct(r.StrictShare), r.Boxes)
+		return fmt.Sprintf("certified proper over the whole simplex; strictly concave proved on %s of it, the rest only concave (no box there showed curvature below 0: H is flat along some direction, or its curvature tends to 0 at a face) (%s)",
+			pct(r.StrictShare), counted(r.Boxes, "box", "boxes"))
 	}
 	what := "concave"
 	if r.Epsilon > 0 {
@@ -202,8 +202,8 @@ func (r *Result) Statement() string {
 	if r.Method != "" {
 		where = "; " + r.Method
 	}
-	return fmt.Sprintf("not certified: %s of the simplex proved %s, %d boxes left undecided (%s after %d boxes, %s)%s",
-		pct(r.Share), what, r.Open, r.Stopped, r.Boxes, r.Elapsed.Round(time.Millisecond), where)
+	return fmt.Sprintf("not certified: %s of the simplex proved %s, %s left undecided (%s after %s, %s)%s",
+		pct(r.Share), what, counted(r.Open, "box", "boxes"), r.Stopped, counted(r.Boxes, "box", "boxes"), r.Elapsed.Round(time.Millisecond), where)
 }
 
 // lineStatement is Statement for a certificate on an interval.
@@ -212,12 +212,22 @@ func (r *Result) lineStatement(pct func(float64) string) string {
 	case r.Witness != nil:
 		return "certified improper: " + r.Witness.Reason
 	case r.Verdict == verify.StrictlyProper:
-		return fmt.Sprintf("certified strictly proper over the whole interval (%d pieces)", r.Boxes)
+		return fmt.Sprintf("certified strictly proper over the whole interval (%s)", counted(r.Boxes, "piece", "pieces"))
 	case r.Verdict == verify.Proper:
-		return fmt.Sprintf("certified proper over the whole interval; %s (%d pieces)", r.Method, r.Boxes)
+		return fmt.Sprintf("certified proper over the whole interval; %s (%s)", r.Method, counted(r.Boxes, "piece", "pieces"))
 	}
-	return fmt.Sprintf("not certified: %s of the interval decided; %s (%s after %d pieces, %s)",
-		pct(r.Share), r.Method, r.Stopped, r.Boxes, r.Elapsed.Round(time.Millisecond))
+	return fmt.Sprintf("not certified: %s of the interval decided; %s (%s after %s, %s)",
+		pct(r.Share), r.Method, r.Stopped, counted(r.Boxes, "piece", "pieces"), r.Elapsed.Round(time.Millisecond))
+}
+
+// counted is a count with its noun, singular for one: "1 piece",
+// "21 boxes". A statement is read by the people who sign on it, and
+// "(1 pieces)" reads as a slip.
+func counted(n int, one, many string) string {
+	if n == 1 {
+		return "1 " + one
+	}
+	return fmt.Sprintf("%d %s", n, many)
 }
 
 // box is an axis-parallel box in the first n-1 probabilities.

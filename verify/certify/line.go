@@ -152,7 +152,7 @@ func lineResult(segs []segment, boxes int, stopped string, start time.Time, what
 		if res.Stopped == "" {
 			res.Stopped = "smallest piece reached"
 		}
-		res.Method = fmt.Sprintf("%s not decided on [%.10g, %.10g] and %d more pieces", what, at.lo, at.hi, open-1)
+		res.Method = fmt.Sprintf("%s not decided on [%.10g, %.10g] and %s", what, at.lo, at.hi, counted(open-1, "more piece", "more pieces"))
 	case verify.StrictlyProper:
 		res.Share, res.StrictShare = 1, 1
 	case verify.Proper:
