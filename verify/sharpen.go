@@ -4,8 +4,7 @@ import (
 	"fmt"
 	"math"
 
-	"gonum.org/v1/gonum/optimize"
-
+	"scorewright/internal/num"
 	"scorewright/internal/simplex"
 )
 
@@ -38,33 +37,11 @@ func minimise(f func(x []float64) float64, x0 []float64, evals int, size float64
 		return v
 	}
 	wrapped(x0)
-	res, err := optimize.Minimize(optimize.Problem{Func: wrapped}, clone(x0), &optimize.Settings{
-		FuncEvaluations: evals,
-		Converger:       &optimize.FunctionConverge{Absolute: 1e-15, Relative: 1e-15, Iterations: 40},
-	}, &optimize.NelderMead{SimplexSize: size})
-	if res == nil {
-		return bestX, bestF, "optimiser gave no result: " + errString(err), false
-	}
-	status = statusWords(res.Status)
-	if err != nil {
-		status += " (" + err.Error() + ")"
-	}
-	// Trust the status, not just the error: a run that stopped for a
+	st, _ := num.NelderMeadMin(wrapped, x0, num.NMSettings{Evals: evals, Absolute: 1e-15, Relative: 1e-15, Iterations: 40, Size: size})
+	// Trust the status, not just the values: a run that stopped for a
 	// failure is not a witness, only a run that converged or used its
 	// budget while improving.
-	switch res.Status {
-	case optimize.Success, optimize.FunctionConvergence, optimize.FunctionEvaluationLimit,
-		optimize.IterationLimit, optimize.FunctionThreshold, optimize.StepConvergence:
-		ok = true
-	}
-	return bestX, bestF, status, ok
-}
-
-func errString(err error) string {
-	if err == nil {
-		return "no error"
-	}
-	return err.Error()
+	return bestX, bestF, statusWords(st), st == num.NMConverged || st == num.NMBudget
 }
 
 // pairSearch optimises over a belief–report pair (q, p) on the simplex,
@@ -325,16 +302,15 @@ func searches(n int) string {
 }
 
 // statusWords says in plain words how the search ended, for notes a
-// person reads; the optimiser's own names (FunctionConvergence) mean
-// nothing to them.
-func statusWords(s optimize.Status) string {
+// person reads.
+func statusWords(s num.NMStatus) string {
 	switch s {
-	case optimize.Success, optimize.FunctionConvergence, optimize.StepConvergence, optimize.GradientThreshold:
+	case num.NMConverged:
 		return "converged"
-	case optimize.FunctionThreshold:
-		return "reached its target value"
-	case optimize.FunctionEvaluationLimit, optimize.IterationLimit, optimize.RuntimeLimit:
+	case num.NMBudget:
 		return "stopped at its work limit"
+	case num.NMNonFiniteStart:
+		return "stopped without converging (its starting value is not finite)"
 	}
 	return "stopped without converging"
 }
