@@ -47,3 +47,13 @@ func TestParseDecimalIsParseFloat(t *testing.T) {
 		t.Errorf("accepted %d of %d cases: the test hardly exercises the fast path", accepted, len(cases))
 	}
 }
+
+// trim trims what strings.TrimSpace trims, on fields with ASCII and
+// Unicode spaces at either end or none.
+func TestTrimIsTrimSpace(t *testing.T) {
+	for _, s := range []string{"", " ", "a", " a", "a ", "\ta\r", "\u00a0a", "a\u00a0", "\u2003x\u2003", "é", "0.25", "\x7f", "a b"} {
+		if got, want := trim(s), strings.TrimSpace(s); got != want {
+			t.Errorf("trim(%q) = %q, strings.TrimSpace gives %q", s, got, want)
+		}
+	}
+}

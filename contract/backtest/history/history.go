@@ -277,8 +277,8 @@ func (h *Reader) Next() (*Row, error) {
 	}
 	r := &h.row
 	r.Line = line
-	r.Forecaster = strings.TrimSpace(rec[h.colF])
-	r.Question = strings.TrimSpace(rec[h.colQ])
+	r.Forecaster = trim(rec[h.colF])
+	r.Question = trim(rec[h.colQ])
 	if r.Forecaster == "" {
 		return nil, bad("forecaster is empty")
 	}
@@ -288,13 +288,13 @@ func (h *Reader) Next() (*Row, error) {
 	if r.Question == "" {
 		return nil, bad("question is empty")
 	}
-	o := strings.TrimSpace(rec[h.colO])
+	o := trim(rec[h.colO])
 	if r.Outcome = h.outcome(o); r.Outcome < 0 {
 		return nil, bad("outcome %q is neither one of %s nor an index 1..%d", clip(o), quoteList(h.labels), len(h.labels))
 	}
 	r.Month = 0
 	if h.colD >= 0 {
-		d := strings.TrimSpace(rec[h.colD])
+		d := trim(rec[h.colD])
 		if r.Month, err = ParseMonth(d); err != nil {
 			return nil, bad("%v", err)
 		}
@@ -316,7 +316,7 @@ func (h *Reader) Next() (*Row, error) {
 func (h *Reader) probabilities(rec []string, p []float64) error {
 	var sum float64
 	for k, col := range h.colP {
-		s := strings.TrimSpace(rec[col])
+		s := trim(rec[col])
 		x, ok := parseDecimal(s)
 		var err error
 		if !ok {
@@ -404,4 +404,14 @@ func columns(names []string) string {
 		return "column " + quoteList(names)
 	}
 	return "columns " + quoteList(names)
+}
+
+// trim is strings.TrimSpace, skipping the call for the usual field that
+// starts and ends with a printable ASCII byte (no space to trim, ASCII or
+// Unicode).
+func trim(s string) string {
+	if n := len(s); n > 0 && s[0] > ' ' && s[0] < 0x80 && s[n-1] > ' ' && s[n-1] < 0x80 {
+		return s
+	}
+	return strings.TrimSpace(s)
 }
