@@ -334,3 +334,27 @@ func TestLotteryAnnexStatesPrizeAndCost(t *testing.T) {
 		t.Errorf("cost note %q", doc.CostNote)
 	}
 }
+
+// The cost statement calls its base rate the buyer's only when the design
+// states one: without it the rate is a uniform default, and a signed annex
+// must not say "the buyer's base rate (uniform; no base rate stated)".
+func TestCostIntroSaysWhoseBaseRate(t *testing.T) {
+	stated := waterDoc(t)
+	if got := stated.CostIntro(); strings.Count(got, "buyer's base rate") != 1 {
+		t.Errorf("with a stated base rate the intro reads %q, want the buyer's base rate named once", got)
+	}
+	d := waterDesign()
+	d.Contract.BaseRate = nil
+	doc := docFor(t, d)
+	var buf bytes.Buffer
+	if err := doc.WriteHTML(&buf); err != nil {
+		t.Fatal(err)
+	}
+	page := html.UnescapeString(buf.String())
+	if !strings.Contains(page, "Expected pay at the base rate (0.5, 0.5)") || !strings.Contains(page, "uniform; no base rate stated") {
+		t.Errorf("HTML cost statement lacks the uniform base rate: %q", doc.CostIntro())
+	}
+	if strings.Contains(page, "buyer's base rate") {
+		t.Errorf("HTML calls an unstated base rate the buyer's: %q", doc.CostIntro())
+	}
+}

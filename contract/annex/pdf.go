@@ -181,7 +181,7 @@ func (d *Document) pdfCost(pdf *fpdf.Fpdf) {
 	if c.Season.Forecasts > 0 {
 		season = fmt.Sprintf("over %d forecasts", c.Season.Forecasts)
 	}
-	d.pdfPara(pdf, "Expected pay at the buyer's base rate "+d.CostBaseRate()+".")
+	d.pdfPara(pdf, d.CostIntro())
 	// Without a season length there is no season total: the column is
 	// left out and a sentence says why, rather than a cell too wide for
 	// its column running over the amounts beside it.
