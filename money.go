@@ -2,6 +2,7 @@ package scorewright
 
 import (
 	"context"
+	"fmt"
 
 	"gonum.org/v1/gonum/floats"
 
@@ -143,3 +144,15 @@ func StepMenu(n int, b design.Budget) (*budget.Menu, error) {
 // FileMenu is the report menu read from the CSV file at path, for n
 // outcomes (budget.FileMenu).
 func FileMenu(path string, n int) (*budget.Menu, error) { return budget.FileMenu(path, n) }
+
+// DesignMenu is the report menu of the file design d names in its budget
+// (Budget.Menu, read relative to the design's folder). An error says it
+// is the design's menu: a bare "open x.csv: no such file" after a design
+// was given would not say which setting named the file.
+func DesignMenu(d *design.Design) (*budget.Menu, error) {
+	m, err := budget.FileMenu(d.MenuPath(), d.N())
+	if err != nil {
+		return nil, fmt.Errorf("the design's report menu (menu = %q under [budget]): %w", d.Budget.Menu, err)
+	}
+	return m, nil
+}
