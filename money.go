@@ -43,6 +43,21 @@ func (r *Rule) FitMenu(ctx context.Context, m *budget.Menu, b design.Budget, rec
 	return budget.TableTerms(ctx, rule, m, b, recordFloor)
 }
 
+// FitTable fits the rule to its design's budget on the menu its payment
+// table is made on (the design's menu file, else its step; the design's
+// clamp either way), as FitMenu does: the terms a backtest of the design
+// pays by, so that it pays what the table would. ErrNoMenu when the
+// budget has neither a menu file nor a step.
+func (r *Rule) FitTable(ctx context.Context) (*budget.Terms, error) {
+	rule, m, err := r.menu(nil)
+	if err != nil {
+		return nil, err
+	}
+	// Forecasts are recorded at the report floor only on a step's menu,
+	// as the command's backtest records them.
+	return budget.TableTerms(ctx, rule, m, r.d.Budget, r.d.Budget.Menu == "")
+}
+
 // FitSteps fits the rule to budget b as a risk computation does
 // (budget.StepTerms): on the step's menu when b has a step, else by the
 // exact formula.
