@@ -358,3 +358,27 @@ func TestCostIntroSaysWhoseBaseRate(t *testing.T) {
 		t.Errorf("HTML calls an unstated base rate the buyer's: %q", doc.CostIntro())
 	}
 }
+
+// The annex attaches the design file but not a menu file it names; the
+// sentence on making the table again says the menu file is needed, so a
+// reader who runs design.toml alone is not told it will work. Without a
+// menu file the sentence stays as it was.
+func TestRemakeNamesAMenuFile(t *testing.T) {
+	plain := waterDoc(t)
+	if plain.Remake != "Running scorewright table --design design.toml makes this table again." {
+		t.Errorf("step menu: %q", plain.Remake)
+	}
+	d := waterDesign()
+	d.Budget.Menu = "levels.csv"
+	doc := docFor(t, d)
+	var buf bytes.Buffer
+	if err := doc.WriteHTML(&buf); err != nil {
+		t.Fatal(err)
+	}
+	page := html.UnescapeString(buf.String())
+	for _, want := range []string{`with the menu file "levels.csv" it names beside it`, "which this annex does not include"} {
+		if !strings.Contains(page, want) {
+			t.Errorf("HTML lacks %q: %q", want, doc.Remake)
+		}
+	}
+}
