@@ -73,6 +73,11 @@ func (c *Contract) Validate(n int) error {
 			continue
 		}
 		if _, err := time.Parse(DateLayout, d.v); err != nil {
+			// Written in the layout but not a day (2027-02-30): saying
+			// "not written YYYY-MM-DD" would contradict what the user sees.
+			if len(d.v) == len(DateLayout) && strings.Count(d.v, "-") == 2 && d.v[4] == '-' && d.v[7] == '-' && strings.Trim(d.v, "0123456789-") == "" {
+				return fmt.Errorf("contract.%s: %q is not a day of the calendar", d.name, d.v)
+			}
 			return fmt.Errorf("contract.%s: %q is not a date written YYYY-MM-DD", d.name, d.v)
 		}
 	}
