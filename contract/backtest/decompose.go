@@ -135,8 +135,12 @@ func fmix(h uint64) uint64 {
 // find returns the entry of key, adding it when add is set; made reports
 // a new entry, and i is -1 when key is absent and not added.
 func (t *keyTable) find(key []float64, add bool) (i int, made bool) {
+	return t.findHashed(key, hashKey(key), add)
+}
+
+// findHashed is find of a key whose hashKey is h.
+func (t *keyTable) findHashed(key []float64, h uint64, add bool) (i int, made bool) {
 	mask := uint64(len(t.slots) - 1)
-	h := hashKey(key)
 	tag := slotTag(h, mask)
 	for s := h & mask; ; s = (s + 1) & mask {
 		v := t.slots[s]

@@ -89,10 +89,11 @@ func (s *outcomeStore) lookup(f int, p []float64) (int, bool) {
 		s.found = e
 		return int(uint32(s.pairs.keys[e])), false
 	}
-	id, made := s.forecastID(p)
-	if s.quantum == 0 { // not grouped meanwhile: id is the forecast k
-		s.hashed, s.hash = id, hk
+	if s.forecasts.len() >= s.maxDistinct {
+		return s.forecastID(p) // may group the forecasts
 	}
+	id, made := s.forecasts.findHashed(k, hk, true)
+	s.hashed, s.hash = id, hk
 	return id, made
 }
 
