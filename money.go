@@ -2,6 +2,7 @@ package scorewright
 
 import (
 	"context"
+	"fmt"
 
 	"gonum.org/v1/gonum/floats"
 
@@ -40,6 +41,21 @@ func (r *Rule) FitMenu(ctx context.Context, m *budget.Menu, b design.Budget, rec
 		return nil, err
 	}
 	return budget.TableTerms(ctx, rule, m, b, recordFloor)
+}
+
+// FitTable fits the rule to its design's budget on the menu its payment
+// table is made on (the design's menu file, else its step; the design's
+// clamp either way), as FitMenu does: the terms a backtest of the design
+// pays by, so that it pays what the table would. ErrNoMenu when the
+// budget has neither a menu file nor a step.
+func (r *Rule) FitTable(ctx context.Context) (*budget.Terms, error) {
+	rule, m, err := r.menu(nil)
+	if err != nil {
+		return nil, err
+	}
+	// Forecasts are recorded at the report floor only on a step's menu,
+	// as the command's backtest records them.
+	return budget.TableTerms(ctx, rule, m, r.d.Budget, r.d.Budget.Menu == "")
 }
 
 // FitSteps fits the rule to budget b as a risk computation does
@@ -143,3 +159,15 @@ func StepMenu(n int, b design.Budget) (*budget.Menu, error) {
 // FileMenu is the report menu read from the CSV file at path, for n
 // outcomes (budget.FileMenu).
 func FileMenu(path string, n int) (*budget.Menu, error) { return budget.FileMenu(path, n) }
+
+// DesignMenu is the report menu of the file design d names in its budget
+// (Budget.Menu, read relative to the design's folder). An error says it
+// is the design's menu: a bare "open x.csv: no such file" after a design
+// was given would not say which setting named the file.
+func DesignMenu(d *design.Design) (*budget.Menu, error) {
+	m, err := budget.FileMenu(d.MenuPath(), d.N())
+	if err != nil {
+		return nil, fmt.Errorf("the design's report menu (menu = %q under [budget]): %w", d.Budget.Menu, err)
+	}
+	return m, nil
+}

@@ -96,7 +96,7 @@ func (r *Rule) menu(menu MenuFunc) (*bregman.Rule, *budget.Menu, error) {
 	case menu != nil:
 		m, err = menu(r.d.N())
 	case b.Menu != "":
-		m, err = budget.FileMenu(r.d.MenuPath(), r.d.N())
+		m, err = DesignMenu(r.d)
 	case !(b.Step > 0):
 		return nil, nil, ErrNoMenu
 	default:

@@ -99,14 +99,13 @@ func replay(ctx context.Context, d *design.Design, h *history.Reader, path strin
 	if err != nil {
 		return nil, fmt.Errorf("a backtest replays a rule over outcomes: %w", err)
 	}
-	if d.Budget.Step <= 0 {
-		return nil, errors.New("set a report menu step (Step) in the budget: the backtest pays as the table does")
+	// The table's own menu (a menu file, else the step) and clamp: the
+	// backtest pays as the table does, and as `scorewright backtest
+	// --design` pays.
+	fitted, err := r.FitTable(ctx)
+	if errors.Is(err, scorewright.ErrNoMenu) {
+		return nil, errors.New("set a report menu step (Step) or a menu file (Menu) in the budget: the backtest pays as the table does")
 	}
-	menu, err := scorewright.StepMenu(d.N(), d.Budget)
-	if err != nil {
-		return nil, err
-	}
-	fitted, err := r.FitMenu(ctx, menu, d.Budget, true)
 	if err != nil {
 		return nil, err
 	}

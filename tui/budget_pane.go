@@ -76,7 +76,9 @@ func (p BudgetPane) Typing() bool { return p.typing }
 // KeyHelp lists the pane's keys.
 func (p BudgetPane) KeyHelp() []key.Binding {
 	k := p.keys
-	out := []key.Binding{k.Up, k.Down, k.Less, k.More, k.Edit, k.Propose}
+	// The map's ←/→ and enter speak of the design pane (modes, presets);
+	// here they step and edit the selected budget value.
+	out := []key.Binding{k.Up, k.Down, relabel(k.Less, "step down"), relabel(k.More, "step up"), relabel(k.Edit, "edit"), k.Propose}
 	if p.prop.props != nil {
 		out = append(out, k.TakeFirst, k.TakeSecond)
 	}

@@ -120,6 +120,13 @@ type helpGroup struct {
 	notes []string
 }
 
+// relabel is binding b under another description, for a pane where the
+// key does something the map's general wording would misname (← and →
+// step a budget value there, not the design's mode).
+func relabel(b key.Binding, desc string) key.Binding {
+	return key.NewBinding(key.WithKeys(b.Keys()...), key.WithHelp(b.Help().Key, desc))
+}
+
 // keyList joins the help labels of bindings, for notes.
 func keyList(bs ...key.Binding) string {
 	var ks []string
@@ -161,8 +168,8 @@ func (k KeyMap) groups() []helpGroup {
 			keyList(k.Up, k.Down) + " choose a check (the list scrolls), " + keyList(k.Edit) + " its full text;",
 			"there " + keyList(k.Up, k.Down, k.PageUp, k.PageDown) + " scroll, " + keyList(k.Less, k.More) + " the other checks,",
 			keyList(k.Leave) + " back to the list"}},
-		{title: "Terms of the annex (" + k.Terms.Help().Key + ")", keys: []key.Binding{k.Up, k.Down, k.Edit, k.Leave}},
-		{title: "Budget pane (arrows and enter as above)", keys: []key.Binding{k.PageUp, k.PageDown, k.TableLeft, k.TableRight, k.Propose, k.TakeFirst, k.TakeSecond}, notes: []string{
+		{title: "Terms of the annex (" + k.Terms.Help().Key + ")", keys: []key.Binding{k.Up, k.Down, relabel(k.Edit, "edit the field"), k.Leave}},
+		{title: "Budget pane (↑/↓ as above)", keys: []key.Binding{relabel(k.Less, "step down"), relabel(k.More, "step up"), relabel(k.Edit, "edit"), k.PageUp, k.PageDown, k.TableLeft, k.TableRight, k.Propose, k.TakeFirst, k.TakeSecond}, notes: []string{
 			"rows the re-check fails are marked TIE or BEATEN;",
 			keyList(k.Leave) + " drops the proposals; an edit cancels the search"}},
 		{title: "Backtest view (" + k.Backtest.Help().Key + ")", keys: []key.Binding{k.History, k.StopRun}, notes: []string{

@@ -8,6 +8,7 @@ import (
 	"time"
 
 	tea "github.com/charmbracelet/bubbletea"
+	"github.com/charmbracelet/lipgloss"
 	"github.com/charmbracelet/x/exp/teatest"
 
 	"scorewright/generator/design"
@@ -311,5 +312,36 @@ func TestNewDesign(t *testing.T) {
 	}
 	if h := headerOf(m); !strings.Contains(h, "untitled design") {
 		t.Fatalf("header %q", h)
+	}
+}
+
+// On a terminal below 80×24 the notice that a question about unsaved
+// edits waits is wrapped to the width, never cut at the edge, and does
+// not offer q, which the question does not take.
+func TestTooSmallNoticeWraps(t *testing.T) {
+	m := testModel(t, nil, Settings{})
+	start(t, m, 80, 24)
+	handWrite(t, m)
+	press(t, m, runes("q"))
+	if m.leaving == nil {
+		t.Fatal("q with unsaved edits did not ask")
+	}
+	for _, w := range []int{60, 40} {
+		_, cmd := m.Update(tea.WindowSizeMsg{Width: w, Height: 15})
+		settle(t, m, cmd)
+		v := m.View()
+		for i, l := range strings.Split(v, "\n") {
+			if n := lipgloss.Width(l); n > w {
+				t.Errorf("%d wide: line %d is %d wide: %q", w, i, n, l)
+			}
+		}
+		flat := strings.Join(strings.Fields(v), " ")
+		if !strings.Contains(flat, "a question about unsaved edits waits to be answered.") {
+			t.Errorf("%d wide: the notice lost its end:\n%s", w, v)
+		}
+		// q does not quit while the question waits, so it is not offered.
+		if strings.Contains(flat, "press q") {
+			t.Errorf("%d wide: the notice offers q, which the waiting question does not take:\n%s", w, v)
+		}
 	}
 }

@@ -53,8 +53,13 @@ func (m *Model) View() string {
 	if m.tooSmall() {
 		msg := fmt.Sprintf("The workbench needs a terminal of at least %d×%d;\nthis one is %d×%d. Enlarge it, or press q to quit.", MinWidth, MinHeight, m.width, m.height)
 		if m.leaving != nil || m.recOffer != nil {
-			msg += "\nA question about unsaved edits waits; enlarge the terminal to answer it."
+			// q is not taken while the question waits: do not offer it.
+			msg = fmt.Sprintf("The workbench needs a terminal of at least %d×%d;\nthis one is %d×%d. Enlarge it:", MinWidth, MinHeight, m.width, m.height) +
+				"\na question about unsaved edits waits to be answered."
 		}
+		// Wrapped to the terminal, however narrow: a line cut at the edge
+		// would drop the end of the sentence that says what to do.
+		msg = lipgloss.NewStyle().Width(max(1, min(m.width, 60))).Align(lipgloss.Center).Render(msg)
 		return lipgloss.Place(m.width, m.height, lipgloss.Center, lipgloss.Center, msg)
 	}
 	header := m.headerLine()

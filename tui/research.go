@@ -14,6 +14,7 @@ import (
 	"github.com/charmbracelet/bubbles/key"
 	tea "github.com/charmbracelet/bubbletea"
 
+	"scorewright/contract/cost"
 	"scorewright/contract/research"
 	"scorewright/contract/research/study"
 	"scorewright/generator/design"
@@ -69,14 +70,25 @@ func (in ResearchInputs) baseRate(d *design.Design) []float64 {
 	if n == 2 && in.Base > 0 {
 		return []float64{in.Base, 1 - in.Base}
 	}
-	if r := d.Budget.Reference; len(r) == n {
-		return append([]float64(nil), r...)
+	// The base rate the annex's cost is priced at, as the command's
+	// research takes it: the contract's, else the budget's reference
+	// belief, else uniform.
+	return cost.SeasonOf(d).BaseRate
+}
+
+// baseRateFrom says where the design's base rate comes from, briefly,
+// for the inputs line; "" when the inputs give their own.
+func (in ResearchInputs) baseRateFrom(d *design.Design) string {
+	n := d.N()
+	switch {
+	case n == 2 && in.Base > 0:
+		return ""
+	case len(d.Contract.BaseRate) == n:
+		return " (the buyer's)"
+	case len(d.Budget.Reference) == n:
+		return " (the budget's reference)"
 	}
-	q := make([]float64, n)
-	for k := range q {
-		q[k] = 1 / float64(n)
-	}
-	return q
+	return " (uniform)"
 }
 
 // Messages of a research run, each wrapped with its run id.
@@ -412,10 +424,7 @@ func clampIndex(i, n int) int { return min(max(i, 0), n-1) }
 func (r *ResearchRoom) inputsLine(d *design.Design) []string {
 	in := r.in
 	model, strength := in.modelWords()
-	base := "base rate " + formatBelief(in.baseRate(d))
-	if d.N() != 2 {
-		base += " (the design's)"
-	}
+	base := "base rate " + formatBelief(in.baseRate(d)) + in.baseRateFrom(d)
 	if in.Kind == "history" {
 		base = "base rate: the mean forecast"
 		if r := r.res; r != nil && len(r.Prior) == d.N() {

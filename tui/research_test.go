@@ -236,3 +236,26 @@ func TestResearchHistoryModel(t *testing.T) {
 		t.Errorf("view:\n%s", m.View())
 	}
 }
+
+// The research view starts from the base rate the annex prices the
+// contract at, and says where it came from: the contract's, else the
+// budget's reference belief, else uniform (never "the design's" for a
+// default the design does not state).
+func TestResearchBaseRateFromTheContract(t *testing.T) {
+	d := &design.Design{Labels: []string{"low", "mid", "high"}, Contract: design.Contract{BaseRate: []float64{0.2, 0.5, 0.3}}}
+	in := defaultResearchInputs(d)
+	if got := in.baseRate(d); len(got) != 3 || got[0] != 0.2 || got[1] != 0.5 || got[2] != 0.3 {
+		t.Errorf("base rate %v, want the contract's (0.2, 0.5, 0.3)", got)
+	}
+	if got := in.baseRateFrom(d); got != " (the buyer's)" {
+		t.Errorf("source %q", got)
+	}
+	d.Contract.BaseRate = nil
+	if got := in.baseRateFrom(d); got != " (uniform)" {
+		t.Errorf("source of the uniform default %q", got)
+	}
+	d.Budget.Reference = []float64{0.1, 0.6, 0.3}
+	if got := in.baseRate(d); got[1] != 0.6 || in.baseRateFrom(d) != " (the budget's reference)" {
+		t.Errorf("base rate %v from %q, want the reference belief", got, in.baseRateFrom(d))
+	}
+}

@@ -132,7 +132,10 @@ func (t *TermsRoom) Update(km tea.KeyMsg, d *design.Design) (handled, changed bo
 	if t.typing {
 		switch {
 		case key.Matches(km, k.Leave):
+			// The field keeps its value, so a refusal of what was typed
+			// no longer applies: it must not stay on screen as if it did.
 			t.stopTyping()
+			t.note = ""
 			return true, false, nil
 		case key.Matches(km, k.Edit):
 			ok, changed := t.apply(d, fields[t.sel], strings.TrimSpace(t.ti.Value()))

@@ -72,3 +72,22 @@ func TestTermsViewLetsQQuit(t *testing.T) {
 		t.Fatal("q in the terms view does not quit")
 	}
 }
+
+// A refused value dropped with esc takes its refusal with it: the field
+// shows its old value, and the message about the typed one is gone.
+func TestTermsEscClearsARefusal(t *testing.T) {
+	m := testModel(t, nil, Settings{})
+	start(t, m, 80, 24)
+	enter, esc, down := tea.KeyMsg{Type: tea.KeyEnter}, tea.KeyMsg{Type: tea.KeyEsc}, tea.KeyMsg{Type: tea.KeyDown}
+	press(t, m, tea.KeyMsg{Type: tea.KeyF2}, down, down, down, down, enter, runes("2027-02-30"), enter)
+	if !strings.Contains(m.View(), `contract.start: "2027-02-30"`) {
+		t.Fatalf("the bad date was not refused:\n%s", m.View())
+	}
+	press(t, m, esc)
+	if v := m.View(); strings.Contains(v, "2027-02-30") {
+		t.Errorf("after esc the refusal of a value no longer typed stays:\n%s", v)
+	}
+	if !m.terms.Shown() || m.d.Contract.Start != "" {
+		t.Errorf("esc left the terms or changed the start %q", m.d.Contract.Start)
+	}
+}

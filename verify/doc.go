@@ -46,8 +46,10 @@
 //     stream (`streamFull`, `scan`: every pair, four reports per step), which
 //     the tests hold it to (stream for stream, and whole reports against a run visiting every
 //     pair). Beliefs go a leaf of the tree at a time (prune_block.go): one walk per block with a
-//     bound valid for all its beliefs, then each belief through the candidate boxes, sorted.
-//     At n = 3, K = 400 it evaluates about 5 % of the pairs. No G² memory; a block is at most
+//     bound valid for all its beliefs, then each belief through the candidate boxes, sorted;
+//     a narrow leaf also bounds its efforts by a fitted plane plus the least remainder, less a
+//     rounding margin (prune_linear.go), which a proper rule's flat slope makes tight.
+//     At n = 3, K = 400 it evaluates about 0.5 % of the pairs. No G² memory; a block is at most
 //     64 beliefs, so cancellation is seen within 64·G pairs. Beliefs with zero coordinates use
 //     `menu.safe` (±Inf replaced by ±1e300, exact in order because 0 × 1e300 = 0; winners'
 //     values recomputed with 0·Inf = 0), or `scanSupport` when a finite effort is too large for

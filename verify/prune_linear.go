@@ -42,6 +42,11 @@ type leafModels struct {
 	// Per leaf: c (n, c_k + elo_k), m (n·(n-1), M_ki at k·(n-1)+i),
 	// ulo and uhi (n-1 each), delta.
 	c, m, ulo, uhi, delta []float64
+	// packed holds each leaf's c, M, ulo, uhi and delta side by side
+	// (stride floats a leaf) for the bound's loads; a leaf without a
+	// model has zeros and delta +Inf, so its bound is -Inf.
+	packed []float64
+	stride int
 }
 
 // modelWidth is the widest typical leaf (leafWidth) that gets models: the
@@ -82,7 +87,27 @@ func newLeafModels(t *reportTree, coords []float64) *leafModels {
 	for l := range leaves {
 		lm.ok[l] = lm.fit(f, t, coords, l)
 	}
+	lm.pack(leaves)
 	return lm
+}
+
+// pack lays the leaves' models out for bound.
+func (lm *leafModels) pack(leaves int) {
+	n, d := lm.n, lm.n-1
+	lm.stride = n + n*d + 2*d + 1
+	lm.packed = make([]float64, leaves*lm.stride)
+	for l := range leaves {
+		p := lm.packed[l*lm.stride : (l+1)*lm.stride]
+		if !lm.ok[l] {
+			p[len(p)-1] = math.Inf(1)
+			continue
+		}
+		p = append(p[:0], lm.c[l*n:(l+1)*n]...)
+		p = append(p, lm.m[l*n*d:(l+1)*n*d]...)
+		p = append(p, lm.ulo[l*d:(l+1)*d]...)
+		p = append(p, lm.uhi[l*d:(l+1)*d]...)
+		_ = append(p, lm.delta[l])
+	}
 }
 
 // leafFit is scratch space for fitting leaves.
@@ -214,23 +239,32 @@ func (lm *leafModels) remainders(t *reportTree, coords []float64, l int, f *leaf
 }
 
 // bound is the plane bound of leaf node for the belief q (-Inf where the
-// leaf has no model). A numeric kernel, in one piece for speed.
+// leaf has no model). The margin delta covers the rounding of any order
+// of the sums, so they need not follow dotN's order. A numeric kernel,
+// with a path of its own for n = 3, the commonest case.
 func (lm *leafModels) bound(node int, q []float64) float64 {
 	l := node - lm.first
-	if !lm.ok[l] {
-		return math.Inf(-1)
+	p := lm.packed[l*lm.stride : (l+1)*lm.stride]
+	if lm.n == 3 && len(q) == 3 && len(p) == 14 {
+		// c 0..2; M row k at 3+2k; ulo 9, 10; uhi 11, 12; delta 13.
+		s := q[0]*p[0] + q[1]*p[1] + q[2]*p[2]
+		g0 := q[0]*p[3] + q[1]*p[5] + q[2]*p[7]
+		g1 := q[0]*p[4] + q[1]*p[6] + q[2]*p[8]
+		return s + min(g0*p[9], g0*p[11]) + min(g1*p[10], g1*p[12]) - p[13]
 	}
 	n, d := lm.n, lm.n-1
-	c := lm.c[l*n : (l+1)*n]
-	M := lm.m[l*n*d : (l+1)*n*d]
-	ulo, uhi := lm.ulo[l*d:(l+1)*d], lm.uhi[l*d:(l+1)*d]
-	s := dotN(q, c)
+	M := p[n : n+n*d]
+	ulo, uhi := p[n+n*d:n+n*d+d], p[n+n*d+d:n+n*d+2*d]
+	var s float64
+	for k, x := range q {
+		s += x * p[k]
+	}
 	for i := range d {
 		var g float64
-		for k := range n {
-			g += q[k] * M[k*d+i]
+		for k, x := range q {
+			g += x * M[k*d+i]
 		}
 		s += min(g*ulo[i], g*uhi[i])
 	}
-	return s - lm.delta[l]
+	return s - p[len(p)-1]
 }

@@ -100,11 +100,12 @@ func TestPrunedStreamIsFullStream(t *testing.T) {
 }
 
 // TestPrunedStreamRandomMenus: menus of random values with many exact ties,
-// infinities of either sign and NaN, where no smoothness helps the bounds.
+// infinities of either sign and NaN, where no smoothness helps the bounds,
+// at every n the engine takes.
 func TestPrunedStreamRandomMenus(t *testing.T) {
 	rng := rand.New(rand.NewPCG(3, 4))
-	for n := 2; n <= 6; n++ {
-		g, err := simplex.Full(n, map[int]int{2: 200, 3: 20, 4: 9, 5: 6, 6: 5}[n])
+	for n := 2; n <= 12; n++ {
+		g, err := simplex.Full(n, map[int]int{2: 200, 3: 20, 4: 9, 5: 6, 6: 5, 7: 4, 8: 4, 9: 3, 10: 3, 11: 3, 12: 3}[n])
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -143,9 +144,20 @@ func comparePruned(t *testing.T, name string, g *simplex.Grid, m *menu) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	// The same walk with a plane model on every leaf, however wide (the
+	// stream itself models only narrow leaves, which small grids lack).
+	tr := newReportTree(g, m)
+	tr.models = newLeafModels(tr, g.Coords)
+	modelled, err := streamTree(context.Background(), tr, g, m, 2, pr, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
 	for i := range want {
 		if !sameBest(got[i], want[i]) {
 			t.Fatalf("%s: belief %v: pruned %+v, full %+v", name, g.Point(i), got[i], want[i])
+		}
+		if !sameBest(modelled[i], want[i]) {
+			t.Fatalf("%s: belief %v: pruned with leaf models %+v, full %+v", name, g.Point(i), modelled[i], want[i])
 		}
 		if m.infinite && g.Boundary[i] {
 			continue // the support scan is compared in TestSafeRowsMatchSupportScan

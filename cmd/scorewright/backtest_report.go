@@ -116,8 +116,16 @@ func (r *backtestReport) writeText(w io.Writer) error {
 	if len(r.Warnings) > 0 {
 		fmt.Fprintln(w)
 	}
-	fmt.Fprintf(w, "history %s: %d forecasts scored, %d rows skipped (a row's probabilities must lie in [0, 1] and sum to 1 within %g)\n\n",
-		r.History, r.Rows, r.SkipCount, r.Tolerance)
+	// The probability rule is stated apart from the count: rows are
+	// skipped for other reasons too (an unknown outcome, a bad date), each
+	// given in the list below, and a parenthesis after the count would
+	// read as the reason for all of them.
+	skipped := "no rows skipped"
+	if r.SkipCount > 0 {
+		skipped = plural(r.SkipCount, "row") + ` skipped (the reasons are under "skipped rows" below)`
+	}
+	fmt.Fprintf(w, "history %s: %s scored, %s; a row's probabilities must lie in [0, 1] and sum to 1 within %g\n\n",
+		r.History, plural(r.Rows, "forecast"), skipped, r.Tolerance)
 	for _, rule := range r.Rules {
 		fmt.Fprintf(w, "rule %s: %s, %s\n", rule.ID, rule.Name, rule.Formula)
 		fmt.Fprintf(w, "  %s\n  menu: %s\n  budget: %s\n", rule.Pay, rule.Menu, rule.Budget)

@@ -434,3 +434,28 @@ func headerOnly(t *testing.T) string {
 	}
 	return path
 }
+
+// The summary line counts the skipped rows without pinning one reason on
+// all of them: here a row is skipped for an unknown outcome, not for its
+// probabilities, and the line must not read as if it were.
+func TestBacktestSkipLineNamesNoWrongReason(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "h.csv")
+	rows := "forecaster,question,outcome,frost,clear\nAlder,n1,frost,0.6,0.4\nAlder,n2,hail,0.5,0.5\n"
+	if err := os.WriteFile(path, []byte(rows), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	code, out, stderr := runBacktestCmd(t, append(append([]string{}, frostRule...), "--history", path)...)
+	if code != 0 {
+		t.Fatalf("exit %d, stderr %s", code, stderr)
+	}
+	head, _, _ := strings.Cut(out, "\n")
+	if !strings.Contains(head, `1 forecast scored, 1 row skipped (the reasons are under "skipped rows" below)`) {
+		t.Errorf("summary line %q", head)
+	}
+	if strings.Contains(head, "skipped (a row's probabilities") {
+		t.Errorf("summary line gives the probability rule as the reason: %q", head)
+	}
+	if !strings.Contains(out, `line 3: outcome "hail"`) {
+		t.Errorf("the skipped row's own reason is missing:\n%s", out)
+	}
+}

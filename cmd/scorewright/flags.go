@@ -32,7 +32,13 @@ func newFlags(name string) *flag.FlagSet {
 func parseFlags(e *env, fs *flag.FlagSet, usage string, args []string, positional bool) error {
 	if err := fs.Parse(args); err != nil {
 		if errors.Is(err, flag.ErrHelp) {
-			fmt.Fprintf(e.stdout, "usage: scorewright %s %s\n\noptions:\n", fs.Name(), usage)
+			fmt.Fprintf(e.stdout, "usage: scorewright %s %s\n", fs.Name(), usage)
+			// A command without options (open) gets no empty heading.
+			n := 0
+			fs.VisitAll(func(*flag.Flag) { n++ })
+			if n > 0 {
+				fmt.Fprint(e.stdout, "\noptions:\n")
+			}
 			fs.VisitAll(func(f *flag.Flag) {
 				arg, help := flag.UnquoteUsage(f)
 				if arg != "" {

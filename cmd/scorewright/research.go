@@ -9,6 +9,7 @@ import (
 	"os"
 	"strings"
 
+	"scorewright/contract/cost"
 	"scorewright/contract/research"
 	"scorewright/contract/research/optimum"
 	"scorewright/contract/research/study"
@@ -31,7 +32,7 @@ type researchFlags struct {
 
 func addResearchFlags(fs *flag.FlagSet) *researchFlags {
 	r := &researchFlags{}
-	fs.StringVar(&r.baseRate, "base-rate", "", "the buyer's base rate q0, the belief before research (default: the budget's reference belief, else uniform)")
+	fs.StringVar(&r.baseRate, "base-rate", "", "the buyer's base rate q0, the belief before research (default: the design's contract base rate, else the budget's reference belief, else uniform)")
 	fs.StringVar(&r.model, "model", "dirichlet", "research model: dirichlet (beta for n = 2) with --kappa, signal with --accuracy or --confusion, or history with --history")
 	floatVar(fs, &r.kappa, "kappa", 10, "dirichlet: concentration of the posterior around the base rate (research worth kappa past cases)")
 	floatVar(fs, &r.accuracy, "accuracy", 0, "signal: the chance the signal names the true outcome (the others share the rest)")
@@ -146,17 +147,13 @@ func researchDesign(rf *ruleFlags, notes io.Writer) (*design.Design, *bregman.Ru
 // spec turns the research flags into a study spec, with the model built.
 func (x *researchFlags) spec(d *design.Design) (study.Spec, error) {
 	n := d.N()
-	q0 := d.Budget.Reference
+	// The base rate the annex's cost is priced at: the contract's, else
+	// the budget's reference belief, else uniform.
+	q0 := cost.SeasonOf(d).BaseRate
 	if x.baseRate != "" {
 		var err error
 		if q0, err = num.ParseDistribution(x.baseRate, n); err != nil {
 			return study.Spec{}, usagef("--base-rate: %v", err)
-		}
-	}
-	if q0 == nil {
-		q0 = make([]float64, n)
-		for k := range q0 {
-			q0[k] = 1 / float64(n)
 		}
 	}
 	model, err := x.buildModel(d.Labels, q0)

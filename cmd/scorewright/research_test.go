@@ -157,3 +157,33 @@ func TestResearchBaseRateBeyondMenu(t *testing.T) {
 		t.Errorf("best: B %g, gain %g; want B 1, gain %g", best.B, best.Gain, want)
 	}
 }
+
+// research --design takes the design's contract base rate as the belief
+// before research, as the annex prices the contract at it; --base-rate
+// still overrides it.
+func TestResearchTakesTheContractBaseRate(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "d.toml")
+	src := "version = 1\noutcomes = [\"ice\", \"open\"]\nmode = \"generator\"\nformula = \"1 - sum(p^2)\"\n\n[budget]\nfloor = 0\ncap = 100\nstep = 0.1\n\n[contract]\nbase_rate = [0.3, 0.7]\n"
+	if err := os.WriteFile(path, []byte(src), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct {
+		extra []string
+		want  float64
+	}{{nil, 0.3}, {[]string{"--base-rate", "0.4,0.6"}, 0.4}} {
+		args := append([]string{"research", "--design", path, "--kappa", "20", "--json"}, c.extra...)
+		code, out, stderr := runCmd(t, args...)
+		if code != 0 {
+			t.Fatalf("%v: exit %d, stderr %s", c.extra, code, stderr)
+		}
+		var got struct {
+			BaseRate []float64 `json:"base_rate"`
+		}
+		if err := json.Unmarshal([]byte(out), &got); err != nil {
+			t.Fatal(err)
+		}
+		if len(got.BaseRate) != 2 || math.Abs(got.BaseRate[0]-c.want) > 1e-12 {
+			t.Errorf("%v: base rate %v, want (%g, %g)", c.extra, got.BaseRate, c.want, 1-c.want)
+		}
+	}
+}

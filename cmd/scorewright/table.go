@@ -220,7 +220,7 @@ func tableMenu(fs *flag.FlagSet, tf *tableFlags, d *design.Design) (*budget.Menu
 		m, err = scorewright.FileMenu(tf.menu, d.N())
 	case d.Budget.Menu != "" && !stepSet:
 		// The design's own menu file, as the workbench fits it.
-		m, err = scorewright.FileMenu(d.MenuPath(), d.N())
+		m, err = scorewright.DesignMenu(d)
 	case d.Budget.Step > 0:
 		m, err = scorewright.StepMenu(d.N(), d.Budget)
 	default:

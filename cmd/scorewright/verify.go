@@ -12,7 +12,6 @@ import (
 
 	"scorewright/generator/design"
 	"scorewright/internal/num"
-	"scorewright/internal/pool"
 	"scorewright/internal/textsafe"
 	"scorewright/verify"
 	"scorewright/verify/certify"
@@ -64,12 +63,7 @@ func (v *verifyFlags) settings(e *env, n int) (verify.Settings, error) {
 		return verify.Settings{}, usagef("--%v", err)
 	}
 	if isTerminal(e.stderr) {
-		s.Progress = func(p pool.Step) {
-			fmt.Fprintf(e.progressOut(), "\r%3.0f%% ", 100*p.Done/max(p.Total, 1))
-			if p.Done >= p.Total {
-				fmt.Fprint(e.progressOut(), "\r     \r")
-			}
-		}
+		s.Progress = gridProgress(e.progressOut(), "grid")
 	}
 	return s, nil
 }

@@ -92,6 +92,10 @@ type Document struct {
 	// in hex.
 	DesignText  string
 	Fingerprint string
+	// Remake says how the table is made again from the design file; a
+	// design that reads its menu from a file needs that file beside it,
+	// which the annex does not attach, and the sentence says so.
+	Remake string
 	// Producer names the program that made the annex.
 	Producer string
 	Date     string
@@ -122,6 +126,7 @@ func New(in Input) (*Document, error) {
 		DesignText: string(canon), Fingerprint: hex.EncodeToString(sum[:]),
 		Producer: "scorewright " + in.Version, Date: t.Meta.Date,
 	}
+	doc.Remake = remake(in.Design.Budget.Menu)
 	doc.reportDecimals = ReportDecimals(t)
 	if doc.Title == "" {
 		doc.Title = "Payment annex"
@@ -150,6 +155,16 @@ func New(in Input) (*Document, error) {
 		doc.Record = append(doc.Record, f)
 	}
 	return doc, nil
+}
+
+// remake is the sentence that says how the design file makes the table
+// again; menu is the design's menu file, if any.
+func remake(menu string) string {
+	if menu == "" {
+		return "Running scorewright table --design design.toml makes this table again."
+	}
+	return fmt.Sprintf("Running scorewright table --design design.toml makes this table again with the menu file %q it names beside it, "+
+		"which this annex does not include: one line per row of the payment table, the row's report probabilities in order, as in section 5.", menu)
 }
 
 // RunningHead is the line at the top of every page after the first: the

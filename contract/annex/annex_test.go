@@ -334,3 +334,51 @@ func TestLotteryAnnexStatesPrizeAndCost(t *testing.T) {
 		t.Errorf("cost note %q", doc.CostNote)
 	}
 }
+
+// The cost statement calls its base rate the buyer's only when the design
+// states one: without it the rate is a uniform default, and a signed annex
+// must not say "the buyer's base rate (uniform; no base rate stated)".
+func TestCostIntroSaysWhoseBaseRate(t *testing.T) {
+	stated := waterDoc(t)
+	if got := stated.CostIntro(); strings.Count(got, "buyer's base rate") != 1 {
+		t.Errorf("with a stated base rate the intro reads %q, want the buyer's base rate named once", got)
+	}
+	d := waterDesign()
+	d.Contract.BaseRate = nil
+	doc := docFor(t, d)
+	var buf bytes.Buffer
+	if err := doc.WriteHTML(&buf); err != nil {
+		t.Fatal(err)
+	}
+	page := html.UnescapeString(buf.String())
+	if !strings.Contains(page, "Expected pay at the base rate (0.5, 0.5)") || !strings.Contains(page, "uniform; no base rate stated") {
+		t.Errorf("HTML cost statement lacks the uniform base rate: %q", doc.CostIntro())
+	}
+	if strings.Contains(page, "buyer's base rate") {
+		t.Errorf("HTML calls an unstated base rate the buyer's: %q", doc.CostIntro())
+	}
+}
+
+// The annex attaches the design file but not a menu file it names; the
+// sentence on making the table again says the menu file is needed, so a
+// reader who runs design.toml alone is not told it will work. Without a
+// menu file the sentence stays as it was.
+func TestRemakeNamesAMenuFile(t *testing.T) {
+	plain := waterDoc(t)
+	if plain.Remake != "Running scorewright table --design design.toml makes this table again." {
+		t.Errorf("step menu: %q", plain.Remake)
+	}
+	d := waterDesign()
+	d.Budget.Menu = "levels.csv"
+	doc := docFor(t, d)
+	var buf bytes.Buffer
+	if err := doc.WriteHTML(&buf); err != nil {
+		t.Fatal(err)
+	}
+	page := html.UnescapeString(buf.String())
+	for _, want := range []string{`with the menu file "levels.csv" it names beside it`, "which this annex does not include"} {
+		if !strings.Contains(page, want) {
+			t.Errorf("HTML lacks %q: %q", want, doc.Remake)
+		}
+	}
+}

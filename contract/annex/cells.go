@@ -86,6 +86,14 @@ func (d *Document) CostBaseRate() string {
 	return num.Format(d.Cost.Season.BaseRate) + " over " + strings.Join(quoted(d.Table.Labels), ", ") + " (" + d.Cost.Season.BaseRateFrom + ")"
 }
 
+// CostIntro is the sentence that opens the cost statement. It names the
+// base rate without calling it the buyer's: CostBaseRate says where it
+// came from, which may be the budget's reference belief or a uniform
+// default when the design states no base rate.
+func (d *Document) CostIntro() string {
+	return "Expected pay at the base rate " + d.CostBaseRate() + "."
+}
+
 // CostLines are the cost statement's rows, or nil.
 func (d *Document) CostLines() []cost.Line {
 	if d.Cost == nil {

@@ -181,7 +181,7 @@ func (d *Document) pdfCost(pdf *fpdf.Fpdf) {
 	if c.Season.Forecasts > 0 {
 		season = fmt.Sprintf("over %d forecasts", c.Season.Forecasts)
 	}
-	d.pdfPara(pdf, "Expected pay at the buyer's base rate "+d.CostBaseRate()+".")
+	d.pdfPara(pdf, d.CostIntro())
 	// Without a season length there is no season total: the column is
 	// left out and a sentence says why, rather than a cell too wide for
 	// its column running over the amounts beside it.
@@ -250,7 +250,7 @@ func (d *Document) pdfSignatures(pdf *fpdf.Fpdf) {
 // attached to the PDF as design.toml).
 func (d *Document) pdfDesign(pdf *fpdf.Fpdf) {
 	d.pdfSection(pdf, "8. The design and its fingerprint")
-	d.pdfPara(pdf, "SHA-256 of the design file below, exactly as printed (UTF-8, one line feed after each line); the same file is attached to this PDF as design.toml. Running scorewright table --design design.toml makes this table again.")
+	d.pdfPara(pdf, "SHA-256 of the design file below, exactly as printed (UTF-8, one line feed after each line); the same file is attached to this PDF as design.toml. "+d.Remake)
 	pdf.SetFont(mono, "", bodySize-1)
 	pdf.MultiCell(0, lineH, d.Fingerprint, "", "L", false)
 	pdf.Ln(2)

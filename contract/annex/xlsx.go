@@ -151,7 +151,7 @@ func (d *Document) RecordRows() [][2]string {
 	for _, c := range d.Cautions {
 		rows = append(rows, [2]string{"caution", c})
 	}
-	rows = append(rows, [2]string{"design SHA-256", d.Fingerprint})
+	rows = append(rows, [2]string{"design SHA-256", d.Fingerprint}, [2]string{"made again", d.Remake})
 	for _, l := range strings.Split(strings.TrimRight(d.DesignText, "\n"), "\n") {
 		rows = append(rows, [2]string{"design file", l})
 	}

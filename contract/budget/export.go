@@ -72,8 +72,12 @@ func (rc *Recheck) Verdict(f *Fit) string {
 	if len(rc.Beaten) > 0 {
 		why = append(why, "beaten by another item: "+f.listItems(rc.Beaten))
 	}
-	return fmt.Sprintf("%d of the %d menu items are not the strict best report for a forecaster whose belief is that item, after scaling and rounding (%s)%s; tie tolerance %.3g",
-		len(rc.Ties)+len(rc.Beaten), M, strings.Join(why, "; "), where, rc.Tolerance)
+	are := "are"
+	if len(rc.Ties)+len(rc.Beaten) == 1 {
+		are = "is"
+	}
+	return fmt.Sprintf("%d of the %d menu items %s not the strict best report for a forecaster whose belief is that item, after scaling and rounding (%s)%s; tie tolerance %.3g",
+		len(rc.Ties)+len(rc.Beaten), M, are, strings.Join(why, "; "), where, rc.Tolerance)
 }
 
 // BudgetDesc says what the fit aimed at.
@@ -136,7 +140,11 @@ func (f *Fit) Notes(rc *Recheck) []string {
 			if mp.Exact {
 				where = "(exact)"
 			}
-			notes = append(notes, fmt.Sprintf("%d menu items are the unique best report for no belief %s: %s", len(rc.NeverChosen), where, f.listItems(rc.NeverChosen)))
+			items := "menu items are"
+			if len(rc.NeverChosen) == 1 {
+				items = "menu item is"
+			}
+			notes = append(notes, fmt.Sprintf("%d %s the unique best report for no belief %s: %s", len(rc.NeverChosen), items, where, f.listItems(rc.NeverChosen)))
 		}
 		if rc.TiedBeliefs > 0 {
 			notes = append(notes, fmt.Sprintf("%d of %d grid beliefs sit where two menu items tie for the best report (cell boundaries)", rc.TiedBeliefs, rc.Beliefs))

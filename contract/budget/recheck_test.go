@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"math"
+	"strings"
 	"testing"
 
 	"scorewright/generator/design"
@@ -215,5 +216,31 @@ func TestClampGapAgainstClosedForm(t *testing.T) {
 	}
 	if math.Abs(lo-2.47e-5*f.B) > 0.01e-5*f.B {
 		t.Errorf("f(c/2)·B = %g; the hand value is 2.47e-5·B = %g", lo, 2.47e-5*f.B)
+	}
+}
+
+// One failing item is written in the singular. Quadratic rule on [0, 100]
+// (A = 100, B = 50), menu 0, 0.45, 0.5, 0.55, 1, unit 5, by hand: 0.45
+// pays (69.75, 79.75) -> (70, 80), 0.5 pays (75, 75), 0.55 pays
+// (79.75, 69.75) -> (80, 70). At belief 0.5 the item 0.5 ties with 0.45
+// and 0.55 (75 each), and everywhere the better of those two pays at
+// least 75: 0.5 is the only failing item and the only one never chosen.
+func TestOneFailingItemIsSingular(t *testing.T) {
+	m := &Menu{Reports: [][]float64{{0, 1}, {0.45, 0.55}, {0.5, 0.5}, {0.55, 0.45}, {1, 0}}}
+	f, rc := fit(t, rule(t, "1 - sum(p^2)", 2), m, design.Budget{Floor: 0, Cap: 100, Unit: 5})
+	if rc.Passed || len(rc.Ties)+len(rc.Beaten) != 1 || len(rc.NeverChosen) != 1 {
+		t.Fatalf("want one tie and one item never chosen: ties %v beaten %v never %v", rc.Ties, rc.Beaten, rc.NeverChosen)
+	}
+	if v := rc.Verdict(f); !strings.HasPrefix(v, "1 of the 5 menu items is not the strict best report") {
+		t.Errorf("verdict %q", v)
+	}
+	var note string
+	for _, n := range f.Notes(rc) {
+		if strings.Contains(n, "unique best report for no belief") {
+			note = n
+		}
+	}
+	if !strings.HasPrefix(note, "1 menu item is the unique best report for no belief") {
+		t.Errorf("never-chosen note %q", note)
 	}
 }

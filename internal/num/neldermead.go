@@ -91,6 +91,17 @@ func (st *nmState) eval(x []float64) (float64, *errStop) {
 	return v, nil
 }
 
+// place evaluates x and makes it vertex i (unsorted).
+func (st *nmState) place(i int, x []float64) *errStop {
+	v, stop := st.eval(x)
+	if stop != nil {
+		return stop
+	}
+	copy(st.vertices[i], x)
+	st.values[i] = v
+	return nil
+}
+
 // major is a major iteration at the best vertex: the convergence test.
 func (st *nmState) major() *errStop {
 	f := st.values[0]
@@ -155,12 +166,9 @@ func (st *nmState) run(x0 []float64) *errStop {
 	for i := 0; i < dim; i++ {
 		copy(x, st.vertices[dim])
 		x[i] += st.s.Size
-		v, stop := st.eval(x)
-		if stop != nil {
+		if stop := st.place(i, x); stop != nil {
 			return stop
 		}
-		copy(st.vertices[i], x)
-		st.values[i] = v
 	}
 	st.sortSimplex()
 	return st.iterate(x)
@@ -226,12 +234,9 @@ func (st *nmState) iterate(x []float64) *errStop {
 			for k := range x {
 				x[k] = float64(shrink*(st.vertices[i][k]-st.vertices[0][k])) + st.vertices[0][k]
 			}
-			v, stop := st.eval(x)
-			if stop != nil {
+			if stop := st.place(i, x); stop != nil {
 				return stop
 			}
-			copy(st.vertices[i], x)
-			st.values[i] = v
 		}
 		st.sortSimplex()
 	}
