@@ -67,8 +67,12 @@
 //     (16384 forecasts at most), so a history written on a menu evaluates each generator once per
 //     menu item rather than once per row. Payers and menu tests must therefore be pure functions.
 //     Forecasters and bins are found without Go maps on the hot path where it mattered (an
-//     open-addressing table keyed by the forecast's bits, murmur3's finaliser as hash; the
-//     forecaster's map lookup is skipped when consecutive rows share a forecaster). On one core
+//     open-addressing table keyed by the forecast's bits, one multiplication a word and murmur3's
+//     finaliser as hash, a tag of the hash in each slot so that a probe rarely reads another key;
+//     the forecaster's map lookup is skipped when consecutive rows share a forecaster). The
+//     (forecaster, forecast) table is hashed by the forecast's bits too, so a forecast the
+//     forecaster made before is found there by one lookup, without the table of all distinct
+//     forecasts; full tables are sorted by radix before they are spilled. On one core
 //     the cost is the sum of the two goroutines, so the reading is cheap too: quote-free lines are
 //     cut at their commas by the history reader itself (checked against `encoding/csv` on random
 //     text) and plain decimals read exactly without `strconv` (history/decimal.go). The Result

@@ -31,7 +31,7 @@ func (m *schemeMoney) add(p Paid, line int, s *Scheme) {
 	if !p.OnMenu {
 		m.off++
 	}
-	if math.IsNaN(p.Pay) || math.IsInf(p.Pay, 0) {
+	if p.Pay-p.Pay != 0 { // ±Inf or NaN (finite x - x is exactly 0)
 		m.nonFinite++
 		if m.first == 0 {
 			m.first = int32(min(line, math.MaxInt32))

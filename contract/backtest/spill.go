@@ -273,11 +273,20 @@ func mergeEntries(ids []int32, hits []uint32, n int) ([]int32, []uint32) {
 	if len(ids) < 2 {
 		return ids, hits
 	}
-	order := make([]int32, len(ids))
-	for i := range order {
-		order[i] = int32(i)
+	var order []int32
+	if len(ids) < radixFrom { // most forecasters: no keys to allocate
+		order = make([]int32, len(ids))
+		for i := range order {
+			order[i] = int32(i)
+		}
+		slices.SortFunc(order, func(a, b int32) int { return int(ids[a]) - int(ids[b]) })
+	} else {
+		keys := make([]uint64, len(ids))
+		for i, id := range ids {
+			keys[i] = uint64(uint32(id)) // ids are not negative
+		}
+		order = radixOrder(keys)
 	}
-	slices.SortFunc(order, func(a, b int32) int { return int(ids[a]) - int(ids[b]) })
 	outIDs := make([]int32, 0, len(ids))
 	outHits := make([]uint32, 0, len(hits))
 	for _, e := range order {

@@ -49,6 +49,12 @@ type outcomeStore struct {
 	// coarsening) to generation g+1; runs spilled earlier are read
 	// through them.
 	remaps [][]int32
+	// found is the entry lookup found for the forecast it returned, or
+	// -1: add then needs no second lookup. hashed is the forecast whose
+	// bits lookup hashed to hash (-1: none), so that add making a new
+	// entry does not hash them again.
+	found, hashed int
+	hash          uint64
 }
 
 func newOutcomeStore(n, maxDistinct, maxPairs int, sp *spillFile) *outcomeStore {
@@ -59,7 +65,36 @@ func newOutcomeStore(n, maxDistinct, maxPairs int, sp *spillFile) *outcomeStore 
 		maxPairs = DefaultMaxPairs
 	}
 	return &outcomeStore{n: n, maxDistinct: maxDistinct, maxPairs: maxPairs, forecasts: newKeyTable(n),
-		pairs: newPairTable(), key: make([]float64, n), spill: sp}
+		pairs: newPairTable(), key: make([]float64, n), spill: sp, found: -1, hashed: -1}
+}
+
+// lookup returns the id of forecaster f's forecast p and whether the
+// forecast is new to the store, remembering the (f, p) entry when there is
+// one so that add needs no second lookup. The (forecaster, forecast) table
+// is hashed by the forecast's bits, so a forecast the forecaster made
+// before is found by one probe of that small table, without the table of
+// all distinct forecasts (larger than a processor's cache when forecasts
+// are continuous).
+func (s *outcomeStore) lookup(f int, p []float64) (int, bool) {
+	s.found, s.hashed = -1, -1
+	if s.quantum > 0 {
+		return s.forecastID(p)
+	}
+	k := s.key
+	for i, x := range p {
+		k[i] = x + 0 // -0 and +0 are one forecast
+	}
+	hk := hashKey(k)
+	if e := s.pairs.findForecast(uint32(f), k, pairHash(f, hk), &s.forecasts); e >= 0 {
+		s.found = e
+		return int(uint32(s.pairs.keys[e])), false
+	}
+	if s.forecasts.len() >= s.maxDistinct {
+		return s.forecastID(p) // may group the forecasts
+	}
+	id, made := s.forecasts.findHashed(k, hk, true)
+	s.hashed, s.hash = id, hk
+	return id, made
 }
 
 // forecastID interns p, returning its index and whether it is new. When
@@ -85,19 +120,31 @@ func (s *outcomeStore) forecastID(p []float64) (int, bool) {
 
 // add counts outcome y after forecast id by forecaster f.
 func (s *outcomeStore) add(f, id, y int) error {
-	if err := s.entry(f, id); err != nil {
-		return err
+	key := uint64(f)<<32 | uint64(id)
+	found, hashed, hk := s.found, s.hashed, s.hash
+	s.found, s.hashed = -1, -1
+	if found >= 0 && s.pairs.keys[found] == key {
+		s.last = found
+	} else {
+		if hashed != id {
+			hk = hashKey(s.vector(id))
+		}
+		if err := s.entry(f, id, hk); err != nil {
+			return err
+		}
 	}
 	s.hits[s.last*s.n+y]++
 	return nil
 }
 
-// entry finds or makes the entry of forecaster f and forecast id, leaving
-// its index in s.last; a full table is spilled first.
-func (s *outcomeStore) entry(f, id int) error {
+// entry finds or makes the entry of forecaster f and forecast id, whose
+// bits hash to hk, leaving its index in s.last; a full table is spilled
+// first.
+func (s *outcomeStore) entry(f, id int, hk uint64) error {
 	key := uint64(f)<<32 | uint64(id)
+	h := pairHash(f, hk)
 	if len(s.pairs.keys) >= s.maxPairs {
-		if e, _ := s.pairs.find(key, false, 0); e >= 0 {
+		if e, _ := s.pairs.find(key, h, false, 0, &s.forecasts); e >= 0 {
 			s.last = e
 			return nil
 		}
@@ -109,7 +156,7 @@ func (s *outcomeStore) entry(f, id int) error {
 		s.pairs.reset()
 		s.hits = s.hits[:0]
 	}
-	e, made := s.pairs.find(key, true, len(s.pairs.keys))
+	e, made := s.pairs.find(key, h, true, len(s.pairs.keys), &s.forecasts)
 	if made {
 		s.hits = append(s.hits, make([]uint32, s.n)...)
 	}
@@ -122,16 +169,7 @@ func (s *outcomeStore) recordSize() int { return 8 + 4*s.n }
 // records iterates over the table's entries as records sorted by key.
 func (s *outcomeStore) records() records {
 	keys := s.pairs.keys
-	order := make([]int32, len(keys))
-	for i := range order {
-		order[i] = int32(i)
-	}
-	slices.SortFunc(order, func(a, b int32) int {
-		if keys[a] < keys[b] {
-			return -1
-		}
-		return 1 // keys are distinct
-	})
+	order := radixOrder(keys)
 	return func(rec []byte) bool {
 		if len(order) == 0 {
 			return false
@@ -176,7 +214,8 @@ func (s *outcomeStore) coarsen() {
 	for e, key := range keys {
 		// The merged entries are no more than the table held, so this
 		// never spills and cannot fail.
-		s.entry(int(key>>32), int(remap[uint32(key)]))
+		id := int(remap[uint32(key)])
+		s.entry(int(key>>32), id, hashKey(s.vector(id)))
 		for k := range s.n {
 			s.hits[s.last*s.n+k] += hits[e*s.n+k]
 		}
@@ -195,7 +234,11 @@ func (s *outcomeStore) Grouping() string {
 	return fmt.Sprintf("forecasts rounded to multiples of %g (more than %d distinct forecasts)", s.quantum, s.maxDistinct)
 }
 
-// pairTable maps a 64-bit key to an entry index by open addressing.
+// pairTable maps a (forecaster, forecast id) key, forecaster<<32 | id, to
+// an entry index by open addressing. Its slots are chosen by pairHash of
+// the forecaster and the forecast's bits (not its id), so that a forecast
+// can be looked up before it is interned (findForecast); the forecasts'
+// table gives the bits of an id.
 type pairTable struct {
 	slots []int32 // entry + 1; 0 is empty
 	keys  []uint64
@@ -203,17 +246,24 @@ type pairTable struct {
 
 func newPairTable() pairTable { return pairTable{slots: make([]int32, 16)} }
 
+// pairHash is the slot hash of forecaster f's forecast whose bits hash to
+// hk (hashKey, already mixed): the forecaster spread by a multiplication
+// by an odd constant, so that one forecast by many forecasters fills
+// different slots.
+func pairHash(f int, hk uint64) uint64 { return hk ^ uint64(f)*0x9e3779b97f4a7c15 }
+
 // reset empties the table, keeping its memory for the next run.
 func (t *pairTable) reset() {
 	clear(t.slots)
 	t.keys = t.keys[:0]
 }
 
-// find returns the entry of key, adding it as entry next when add is set;
-// made reports a new entry, and the index is -1 when absent and not added.
-func (t *pairTable) find(key uint64, add bool, next int) (int, bool) {
+// find returns the entry of key, whose pairHash is h, adding it as entry
+// next when add is set; made reports a new entry, and the index is -1 when
+// absent and not added.
+func (t *pairTable) find(key, h uint64, add bool, next int, fc *keyTable) (int, bool) {
 	mask := uint64(len(t.slots) - 1)
-	for s := fmix(key) & mask; ; s = (s + 1) & mask {
+	for s := h & mask; ; s = (s + 1) & mask {
 		j := int(t.slots[s]) - 1
 		if j < 0 {
 			if !add {
@@ -222,7 +272,7 @@ func (t *pairTable) find(key uint64, add bool, next int) (int, bool) {
 			t.slots[s] = int32(next + 1)
 			t.keys = append(t.keys, key)
 			if 2*len(t.keys) > len(t.slots) {
-				t.rehash(2 * len(t.slots))
+				t.rehash(2*len(t.slots), fc)
 			}
 			return next, true
 		}
@@ -232,11 +282,26 @@ func (t *pairTable) find(key uint64, add bool, next int) (int, bool) {
 	}
 }
 
-func (t *pairTable) rehash(size int) {
+// findForecast returns the entry of forecaster f and the forecast whose
+// bits are k (pairHash h), or -1.
+func (t *pairTable) findForecast(f uint32, k []float64, h uint64, fc *keyTable) int {
+	mask := uint64(len(t.slots) - 1)
+	for s := h & mask; ; s = (s + 1) & mask {
+		j := int(t.slots[s]) - 1
+		if j < 0 {
+			return -1
+		}
+		if key := t.keys[j]; uint32(key>>32) == f && equal(fc.key(int(uint32(key))), k) {
+			return j
+		}
+	}
+}
+
+func (t *pairTable) rehash(size int, fc *keyTable) {
 	t.slots = make([]int32, size)
 	mask := uint64(size - 1)
 	for j, k := range t.keys {
-		s := fmix(k) & mask
+		s := pairHash(int(k>>32), hashKey(fc.key(int(uint32(k))))) & mask
 		for t.slots[s] != 0 {
 			s = (s + 1) & mask
 		}

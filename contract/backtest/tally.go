@@ -106,7 +106,7 @@ func (m *moneyTally) add(p Paid, line int, s *Scheme) {
 		m.off++
 	}
 	switch {
-	case math.IsNaN(p.Pay) || math.IsInf(p.Pay, 0):
+	case p.Pay-p.Pay != 0: // ±Inf or NaN (finite x - x is exactly 0)
 		m.nonFinite++
 		if m.firstNonFin == 0 {
 			m.firstNonFin = line
@@ -259,7 +259,7 @@ func (t *Tally) AddDated(forecaster string, line, y int, p []float64, month hist
 		t.err = err
 		return t.zeroPaid()
 	}
-	id, made := t.store.forecastID(p)
+	id, made := t.store.lookup(f, p)
 	cached := t.store.quantum == 0 && id < cacheEntries
 	width := len(t.schemes) * t.n
 	if cached && made {
