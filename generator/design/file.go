@@ -77,7 +77,10 @@ func Decode(b []byte) (*Design, error) {
 	if err != nil {
 		var pe toml.ParseError
 		if errors.As(err, &pe) {
-			return nil, fmt.Errorf("line %d: %s", pe.Position.Line, pe.Message)
+			// "TOML syntax" says what kind of file was expected: a CSV or a
+			// table opened by mistake otherwise reads as a puzzle about
+			// dots and equals signs.
+			return nil, fmt.Errorf("line %d: TOML syntax: %s (a design file is TOML, as scorewright saves it)", pe.Position.Line, pe.Message)
 		}
 		return nil, typeError(b, err)
 	}
