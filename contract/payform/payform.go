@@ -1,7 +1,8 @@
 // Package payform states the pay per outcome of a fitted rule as a closed
 // formula in the report, for the families that have one (quadratic, log,
-// spherical, power, pseudospherical), so that an annex can say what each
-// row's amount is in words a reader can recompute by hand.
+// spherical, power, ranked probability, pseudospherical), so that an
+// annex can say what each row's amount is in words a reader can
+// recompute by hand.
 //
 // A family is named only after its effort formula has been compared with
 // the rule's own effort at probe reports: a design whose formula was
@@ -53,6 +54,27 @@ type family struct {
 	// binary and general write the pay from A and B (already formatted
 	// as numbers) and the parameter.
 	binary, general func(a, b, g float64) string
+	// ordered marks a family over ordered outcomes, whose general form is
+	// written in cumulative probabilities and needs its own key.
+	ordered bool
+}
+
+// cumulative is the effort of the ranked probability rule, the squared
+// distance between the report's and the outcome's cumulative
+// probabilities, Σ_{j<n} (C_j − [k ≤ j])² with C_j = p_1 + ... + p_j
+// (Epstein 1969; the Bregman effort of H = Σ_j C_j (1 − C_j), derived by
+// hand).
+func cumulative(p []float64, k int) float64 {
+	s, c := 0.0, 0.0
+	for j := 0; j < len(p)-1; j++ {
+		c += p[j]
+		hit := 0.0
+		if k <= j {
+			hit = 1
+		}
+		s += (c - hit) * (c - hit)
+	}
+	return s
 }
 
 func sumPow(p []float64, g float64) float64 {
@@ -85,6 +107,11 @@ var families = []family{
 		general: func(a, b, g float64) string {
 			return lin(a, -b/(g-1), fmt.Sprintf("(1 − %s·p_k^%s + %s·Σ p_i^%s)", num(g), num(g-1), num(g-1), num(g)))
 		}},
+	{name: "ranked probability", ordered: true, effort: func(p []float64, k int, _ float64) float64 { return cumulative(p, k) },
+		// For two outcomes the one cumulative probability is p_1: the
+		// effort is (1 − p)², p the probability of what happened.
+		binary:  func(a, b, _ float64) string { return lin(a, -b, "(1 − p)²") },
+		general: func(a, b, _ float64) string { return lin(a, -b, "Σ (C_j − [k ≤ j])²") }},
 	{name: "pseudospherical", param: "a", effort: func(p []float64, k int, g float64) float64 {
 		return -math.Pow(p[k]/math.Pow(sumPow(p, g), 1/g), g-1)
 	},
@@ -203,5 +230,8 @@ func build(rule *bregman.Rule, fam family, g, a, b float64) *Formula {
 		names = append(names, fmt.Sprintf("k = %d: %q", k+1, rule.Label(k)))
 	}
 	f.Where = "where p_i is the probability the reported row gives outcome i, p_k the one it gives the outcome that happened, Σ runs over all outcomes (" + strings.Join(names, ", ") + ")"
+	if fam.ordered {
+		f.Where = "where the outcomes are in their order (" + strings.Join(names, ", ") + "), C_j = p_1 + ... + p_j is the probability the reported row gives outcomes 1 to j, [k ≤ j] is 1 when the outcome that happened, k, is among them and 0 otherwise, and Σ runs over j = 1 to " + fmt.Sprint(n-1)
+	}
 	return f
 }

@@ -10,7 +10,8 @@ import (
 
 func compile(t *testing.T, src string, n int, params map[string]float64) *bregman.Rule {
 	t.Helper()
-	f, err := bregman.NewFormula(src, bregman.Options{Outcomes: n, Params: params})
+	// csum needs ordered outcomes.
+	f, err := bregman.NewFormula(src, bregman.Options{Outcomes: n, Params: params, Ordered: strings.Contains(src, "csum")})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -63,6 +64,8 @@ func TestFamiliesAgainstEngine(t *testing.T) {
 		{"g = 3\n(1 - sum(p^g)) / (g - 1)", "power, g = 3", 3},
 		{"g = 1.5\n(1 - sum(p^g)) / (g - 1)", "power, g = 1.5", 2},
 		{"a = 3\n-sum(p^a)^(1/a)", "pseudospherical, a = 3", 4},
+		{"csum(c*(1-c))", "ranked probability", 4},
+		{"csum(c*(1-c))", "ranked probability", 3},
 	}
 	for _, c := range cases {
 		rule := compile(t, c.src, c.n, nil)
@@ -102,5 +105,32 @@ func TestParameterOverride(t *testing.T) {
 	f, ok := Find(compile(t, "g = 3\n(1 - sum(p^g)) / (g - 1)", 2, map[string]float64{"g": 4}), 1, 1)
 	if !ok || f.Family != "power, g = 4" || !strings.Contains(f.Lines[0], "p^3") {
 		t.Fatalf("got %v %+v", ok, f)
+	}
+}
+
+// The ranked probability rule over four ordered bands, fitted A = 100,
+// B = 80/3 as a 20..100 budget fits it (largest effort 3), states its pay
+// in cumulative probabilities. By hand: report (0.2, 0.3, 0.3, 0.2) has
+// C = (0.2, 0.5, 0.8); if the lowest band happens the effort is
+// 0.8² + 0.5² + 0.2² = 0.93, and the pay 100 − 80/3·0.93 = 75.2.
+func TestRankedText(t *testing.T) {
+	rule := compile(t, "csum(c*(1-c))", 4, nil)
+	f, ok := Find(rule, 100, 80.0/3)
+	if !ok || f.Family != "ranked probability" {
+		t.Fatalf("ranked rule not recognised: %v %+v", ok, f)
+	}
+	if want := "pay if outcome k happens = 100 − 26.66666667·Σ (C_j − [k ≤ j])²"; f.Lines[0] != want {
+		t.Errorf("got %q, want %q", f.Lines[0], want)
+	}
+	if !strings.Contains(f.Where, "C_j = p_1 + ... + p_j") || !strings.HasSuffix(f.Where, "Σ runs over j = 1 to 3") {
+		t.Errorf("where %q does not say what C_j is", f.Where)
+	}
+	if got := f.Pay([]float64{0.2, 0.3, 0.3, 0.2}, 0); math.Abs(got-75.2) > 1e-12 {
+		t.Errorf("pay %v, want 75.2", got)
+	}
+	// The quadratic rule is not taken for the ranked one, nor the
+	// reverse, at n = 2 where the two differ by a factor 2.
+	if f, ok := Find(compile(t, "csum(c*(1-c))", 2, nil), 1, 1); !ok || f.Family != "ranked probability" || f.Lines[0] != `pay if "exceeds" = 1 − (1 − p)²` {
+		t.Errorf("binary ranked: %v %+v", ok, f)
 	}
 }
