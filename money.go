@@ -169,5 +169,9 @@ func DesignMenu(d *design.Design) (*budget.Menu, error) {
 	if err != nil {
 		return nil, fmt.Errorf("the design's report menu (menu = %q under [budget]): %w", d.Budget.Menu, err)
 	}
+	// The record names the file as the design does, beside the design,
+	// not by this machine's absolute path: the record goes into annexes
+	// that other people sign and keep.
+	m.Desc = fmt.Sprintf("%d reports listed in %s (the design's menu file)", len(m.Reports), d.Budget.Menu)
 	return m, nil
 }

@@ -40,3 +40,32 @@ func TestMissingDesignMenuNamesTheSetting(t *testing.T) {
 		t.Errorf("stderr %q", stderr)
 	}
 }
+
+// An exported table names the design's menu file as the design does,
+// not by the absolute path of the machine that made it: the record goes
+// into annexes other people keep.
+func TestDesignMenuRecordedAsNamed(t *testing.T) {
+	dir := t.TempDir()
+	if err := os.WriteFile(filepath.Join(dir, "m.csv"), []byte("0\n0.5\n1\n"), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	path := filepath.Join(dir, "d.toml")
+	src := "version = 1\noutcomes = [\"wet\", \"dry\"]\nmode = \"generator\"\nformula = \"1 - sum(p^2)\"\n\n[budget]\nfloor = 0\ncap = 10\nunit = 1\nmenu = \"m.csv\"\n"
+	if err := os.WriteFile(path, []byte(src), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(dir, "t.csv")
+	if code, _, stderr := runCmd(t, "table", "--design", path, "--out", out); code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	b, err := os.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(string(b), "# menu: 3 reports listed in m.csv (the design's menu file)\n") {
+		t.Errorf("menu line missing:\n%s", b)
+	}
+	if strings.Contains(string(b), dir) {
+		t.Errorf("the table records the folder %s:\n%s", dir, b)
+	}
+}
