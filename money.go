@@ -59,12 +59,29 @@ func (r *Rule) FitTable(ctx context.Context) (*budget.Terms, error) {
 }
 
 // FitSteps fits the rule to budget b as a risk computation does
-// (budget.StepTerms): on the step's menu when b has a step, else by the
-// exact formula.
+// (budget.StepTerms): on the step's menu when b has a step, else on the
+// design's menu file when b names one (the menu the table is made on,
+// with b's clamp), else by the exact formula.
 func (r *Rule) FitSteps(b design.Budget) (*budget.Terms, error) {
 	rule, err := r.OverOutcomes()
 	if err != nil {
 		return nil, err
+	}
+	if b.Menu != "" && !(b.Step > 0) {
+		// The contract pays only the file's reports: a forecaster held
+		// to them picks among them, so they are the risk's menu too.
+		d := *r.d
+		d.Budget = b
+		m, err := DesignMenu(&d)
+		if err != nil {
+			return nil, err
+		}
+		m.Clamp = b.Clamp
+		fit, err := budget.FitRule(rule, m, b)
+		if err != nil {
+			return nil, err
+		}
+		return &budget.Terms{Fit: fit, Low: fit.MinPay, High: fit.MaxPay}, nil
 	}
 	return budget.StepTerms(rule, b)
 }

@@ -16,7 +16,7 @@ import (
 	"scorewright/internal/textcol"
 )
 
-const distortUsage = "RULE BUDGET (without --step every report is paid by the exact formula) --utility crra:R|cara:A|linear [--wealth W] [--belief q1,q2,...] [--json]\n\nRULE: " + outcomeRuleUsage + "\nBUDGET: " + budgetUsage
+const distortUsage = "RULE BUDGET (without --step, or a menu file in the design's budget, every report is paid by the exact formula) --utility crra:R|cara:A|linear [--wealth W] [--belief q1,q2,...] [--json]\n\nRULE: " + outcomeRuleUsage + "\nBUDGET: " + budgetUsage
 
 type distortPoint struct {
 	Belief []num.Float `json:"belief"`

@@ -69,3 +69,31 @@ func TestDesignMenuRecordedAsNamed(t *testing.T) {
 		t.Errorf("the table records the folder %s:\n%s", dir, b)
 	}
 }
+
+// distort --design on a design whose budget names a menu file holds the
+// forecaster to that menu, as the contract does, instead of saying "no
+// menu". By hand, quadratic rule on [0, 10], unit 1, menu 0, 0.5, 1: the
+// rows pay (0, 10), (8, 8) (7.5 rounded half away from zero) and (10, 0),
+// so at belief (0.5, 0.5) a risk-neutral forecaster expects 5, 8 and 5
+// and picks 0.5.
+func TestDistortUsesTheDesignsMenuFile(t *testing.T) {
+	dir := t.TempDir()
+	if err := os.WriteFile(filepath.Join(dir, "m.csv"), []byte("0\n0.5\n1\n"), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	path := filepath.Join(dir, "d.toml")
+	src := "version = 1\noutcomes = [\"wet\", \"dry\"]\nmode = \"generator\"\nformula = \"1 - sum(p^2)\"\n\n[budget]\nfloor = 0\ncap = 10\nunit = 1\nmenu = \"m.csv\"\n"
+	if err := os.WriteFile(path, []byte(src), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	code, out, stderr := runCmd(t, "distort", "--design", path, "--utility", "linear", "--belief", "0.5,0.5")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	if strings.Contains(out, "no menu") || !strings.Contains(out, "on the menu: 3 reports listed in m.csv") {
+		t.Errorf("the design's menu is not the risk's:\n%s", out)
+	}
+	if !strings.Contains(out, "menu pick (0.5, 0.5)") {
+		t.Errorf("menu pick missing or wrong:\n%s", out)
+	}
+}
