@@ -73,7 +73,9 @@ func renderTernary(ctx context.Context, st Styles, c *compiled, s *sampler, spec
 	if spec.measure == mGap {
 		what = "gap by belief"
 		if worstAt != nil {
-			note = fmt.Sprintf("largest %s at belief %s", fmtTick(worst), num.Format(round2(worstAt)))
+			// The cells drawn are a coarse sample of beliefs: this is the largest
+			// shown, not the checks' worst case, and says so.
+			note = fmt.Sprintf("largest shown %s at belief %s", fmtTick(worst), num.Format(round2(worstAt)))
 		} else {
 			note = "no gain from misreporting (1/40 grid)"
 		}
