@@ -244,3 +244,18 @@ func TestOneFailingItemIsSingular(t *testing.T) {
 		t.Errorf("never-chosen note %q", note)
 	}
 }
+
+// StepTerms (the fit of a risk computation) applies the budget's clamp as
+// the table does: the log rule on a step menu from 0 to 1 is then
+// bounded. By hand: the clamped efforts run from ln 1.01 (report 1 when
+// it happens) to ln 101 (report 0 when the event happens), so fitting
+// [0, 10] gives B = 10 / ln 100.
+func TestStepTermsAppliesTheClamp(t *testing.T) {
+	tm, err := StepTerms(rule(t, "-sum(p*ln(p))", 2), design.Budget{Floor: 0, Cap: 10, Step: 0.1, Clamp: 0.01})
+	if err != nil {
+		t.Fatalf("clamped log rule refused: %v", err)
+	}
+	if want := 10 / math.Log(100); math.Abs(tm.Fit.B-want) > 1e-9 {
+		t.Errorf("B = %.12g, want 10/ln 100 = %.12g", tm.Fit.B, want)
+	}
+}

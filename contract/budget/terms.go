@@ -134,7 +134,8 @@ func (e *MenuError) Unwrap() error { return e.Err }
 
 // StepTerms fits rule r to b on its step menu, or, when the budget has no
 // step, over the finest simplex grid of at most MaxMenu reports with no
-// rounding, every report then paid by the exact formula (ByFormula). The
+// rounding, every report then paid by the exact formula (ByFormula); b's
+// clamp applies either way. The
 // table is not re-checked. Errors: a *MenuError, or the fit's error as
 // FitRule returned it (an *UnboundedError for a rule infinite where a
 // report gives an outcome 0).
@@ -150,6 +151,10 @@ func StepTerms(r *bregman.Rule, b design.Budget) (*Terms, error) {
 	if err != nil {
 		return nil, &MenuError{err}
 	}
+	// The budget's clamp, as the table applies it: without it a rule
+	// infinite at 0 (the log rule) would be refused here although its
+	// clamped table pays.
+	menu.Clamp = b.Clamp
 	fit, err := FitRule(r, menu, b)
 	if err != nil {
 		return nil, err
