@@ -109,7 +109,7 @@ func TestTieNoteReadsZero(t *testing.T) {
 	}
 }
 
-// H = 1 - sum(p^3) + 0.9 p1^2 over three outcomes is improper (H” in p1
+// H = 1 - sum(p^3) + 0.9 p1^2 over three outcomes is improper (its second derivative in p1
 // is 1.8 - 6 p1 > 0 near p1 = 0). The check's sharpened witness lies on the
 // face p2 = 0 for the belief and p1 = 0 for the report; it must read with
 // exact zeros there, not the 1e-16 the squares map leaves, and its amount
