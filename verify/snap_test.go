@@ -108,3 +108,54 @@ func TestTieNoteReadsZero(t *testing.T) {
 		t.Errorf("note %q", c.Note)
 	}
 }
+
+// H = 1 - sum(p^3) + 0.9 p1^2 over three outcomes is improper (its second derivative in p1
+// is 1.8 - 6 p1 > 0 near p1 = 0). The check's sharpened witness lies on the
+// face p2 = 0 for the belief and p1 = 0 for the report; it must read with
+// exact zeros there, not the 1e-16 the squares map leaves, and its amount
+// must be -D(q, p) = H(q) - H(p) - grad H(p)·(q - p), computed here from
+// the formula by hand, and no smaller than the best report on that face
+// for the same belief, found by brute force over 10^5 reports.
+func TestSharpenedCheckWitnessOnTheFace(t *testing.T) {
+	rep, err := CheckRule(context.Background(), rule(t, "1 - sum(p^3) + 0.9*p1^2", 3), Settings{Resolution: 100})
+	if err != nil {
+		t.Fatal(err)
+	}
+	c := rep.Check(NameProperness)
+	if c == nil || c.Passed || !c.Sharpened {
+		t.Fatalf("properness: %+v", c)
+	}
+	q, p := c.Belief, c.Report
+	zeros := 0
+	for _, x := range append(append([]float64{}, q...), p...) {
+		if x != 0 && x < 1e-9 {
+			t.Fatalf("witness q %v, p %v has a coordinate that is zero but for noise", q, p)
+		}
+		if x == 0 {
+			zeros++
+		}
+	}
+	if zeros == 0 {
+		t.Fatalf("witness q %v, p %v is not on a face", q, p)
+	}
+	H := func(x []float64) float64 { return 1 - x[0]*x[0]*x[0] - x[1]*x[1]*x[1] - x[2]*x[2]*x[2] + 0.9*x[0]*x[0] }
+	negD := func(q, p []float64) float64 {
+		g := []float64{-3*p[0]*p[0] + 1.8*p[0], -3 * p[1] * p[1], -3 * p[2] * p[2]}
+		v := H(q) - H(p)
+		for k := range q {
+			v -= g[k] * (q[k] - p[k])
+		}
+		return v
+	}
+	if want := negD(q, p); math.Abs(c.Worst-want) > 1e-9*want {
+		t.Errorf("worst %.12g at q %v, p %v; the formula gives %.12g", c.Worst, q, p, want)
+	}
+	brute := 0.0
+	for i := 1; i < 100000; i++ {
+		a := float64(i) / 100000
+		brute = math.Max(brute, negD(q, []float64{0, a, 1 - a}))
+	}
+	if brute > c.Worst*(1+1e-9) {
+		t.Errorf("worst %.12g, but a report on the face gains %.12g", c.Worst, brute)
+	}
+}
