@@ -335,7 +335,13 @@ func boundedness(g *simplex.Grid, m *menu, limit float64, label func(int) string
 	c.Interior = in.result(inOK && nan == 0)
 	c.Boundary = bd.result(neg == 0 && nan == 0)
 	c.Passed = c.Interior.Passed && c.Boundary.Passed
+	// The headline is the largest payment anywhere on the grid: a boundary
+	// report's (finite, or of the bad sign) counts as much as an interior
+	// one's, though only the interior is held to the limit.
 	c.Worst, c.Report = c.Interior.Worst, clone(c.Interior.Report)
+	if c.Boundary.Worst > c.Worst || c.Worst != c.Worst && c.Boundary.Worst == c.Boundary.Worst {
+		c.Worst, c.Report = c.Boundary.Worst, clone(c.Boundary.Report)
+	}
 	c.Note = boundNote(st, nan, nanAt, limit, label, what, sign)
 	return c
 }

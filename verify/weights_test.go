@@ -2,6 +2,7 @@ package verify
 
 import (
 	"context"
+	"math"
 	"testing"
 
 	"scorewright/generator/bregman"
@@ -78,5 +79,27 @@ func TestZeroWeights(t *testing.T) {
 		if d > 1e-12 || near(q, p, 1e-12) {
 			t.Errorf("weights %v: witness %v / %v is no tie (D = %g)", c.w, q, p, d)
 		}
+	}
+}
+
+// The boundedness headline is the largest payment anywhere on the grid,
+// boundary reports included: the quadratic rule's effort (1 - p_y)^2 +
+// sum_{k != y} p_k^2 is largest, 2, at a vertex for another outcome, and
+// the linear payout 10 p_y pays 10 at a vertex (both derived by hand);
+// the interior alone would say 1.9406 and 8.5.
+func TestBoundednessHeadlineIsTheLargestAnywhere(t *testing.T) {
+	rep, err := CheckRule(t.Context(), rule(t, "1 - sum(p^2)", 3), Settings{Resolution: 100})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if c := rep.Check(NameBoundedness); c == nil || math.Abs(c.Worst-2) > 1e-12 || !(c.Interior.Worst < c.Worst) {
+		t.Errorf("quadratic rule: boundedness %+v, want worst 2", c)
+	}
+	ar, err := Audit(t.Context(), pay(t, "10*p[y]", 4), nil, Settings{Resolution: 20})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if c := ar.Check(NameBoundedness); c == nil || c.Worst != 10 {
+		t.Errorf("linear payout: boundedness %+v, want worst 10", c)
 	}
 }
