@@ -85,6 +85,14 @@ func (r *Rule) TableWith(ctx context.Context, menu MenuFunc, set TableSettings) 
 
 // menu is the rule over outcomes and its report menu, as TableWith
 // builds them.
+// TableMenu is the menu the rule's payment table is made on, as FitTable
+// fits on it: the design's menu file, else its step; the design's clamp
+// either way. ErrNoMenu when the budget has neither.
+func (r *Rule) TableMenu() (*budget.Menu, error) {
+	_, m, err := r.menu(nil)
+	return m, err
+}
+
 func (r *Rule) menu(menu MenuFunc) (*bregman.Rule, *budget.Menu, error) {
 	rule, err := r.OverOutcomes()
 	if err != nil {

@@ -155,6 +155,18 @@ func researchRun(ctx context.Context, d *design.Design, in ResearchInputs, progr
 	}
 	b := d.Budget
 	spec := study.Spec{Model: model, Rule: rule, RuleName: name, Forecasts: in.Forecasts, Optimum: true, Progress: progress}
+	if b.Menu != "" {
+		// The design's menu file is the menu its table is made on and the
+		// contract pays, as the backtest pays on it: the rules are
+		// compared on it too.
+		r, err := outcomesRule(d)
+		if err != nil {
+			return nil, err
+		}
+		if spec.Menu, err = r.TableMenu(); err != nil {
+			return nil, err
+		}
+	}
 	if d.N() == 2 && in.Cost > 0 {
 		spec.Steps, spec.Cost = true, in.Cost*(b.Cap-b.Floor)
 	}
@@ -164,7 +176,7 @@ func researchRun(ctx context.Context, d *design.Design, in ResearchInputs, progr
 	case errors.Is(err, study.ErrMeanPay):
 		return nil, errors.New("rules are compared at one floor and cap: give the budget a cap instead of a mean pay")
 	case errors.Is(err, study.ErrNoStep):
-		return nil, errors.New("set a report menu step (Step) in the budget: the rules are fitted on the menu, as the table is")
+		return nil, errors.New("set a report menu step (Step) or a menu file (Menu) in the budget: the rules are fitted on the menu, as the table is")
 	case errors.As(err, &re):
 		return nil, fmt.Errorf("the design's rule does not fit the budget: %v", re.Err)
 	}

@@ -259,3 +259,25 @@ func TestResearchBaseRateFromTheContract(t *testing.T) {
 		t.Errorf("base rate %v from %q, want the reference belief", got, in.baseRateFrom(d))
 	}
 }
+
+// A design whose budget names a menu file (and no step) is studied on
+// that menu, the one its table is made on, instead of asking for a step.
+// By hand: the quadratic rule 1 - sum p^2 on [5, 45] over the menu 0.25,
+// 0.75 has loss sum (p_i - [i = k])^2 from 1/8 to 9/8, so B = 40.
+func TestResearchOnTheDesignsMenuFile(t *testing.T) {
+	dir := t.TempDir()
+	if err := os.WriteFile(filepath.Join(dir, "m.csv"), []byte("0.25\n0.75\n"), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	d := &design.Design{Version: design.SchemaVersion, Labels: []string{"wet", "dry"}, Mode: design.ModeGenerator,
+		Formula: "1 - sum(p^2)", Budget: design.Budget{Floor: 5, Cap: 45, Menu: "m.csv"}, Dir: dir}
+	m := testModel(t, d, Settings{})
+	start(t, m, 80, 24)
+	rep := openResearch(t, m)
+	if rep.MenuFile != "2 reports listed in m.csv (the design's menu file)" {
+		t.Errorf("menu %q", rep.MenuFile)
+	}
+	if b := row(t, rep, "this design").Fit.B; math.Abs(b-40) > 1e-9 {
+		t.Errorf("B = %v, want 40 (the menu file's)", b)
+	}
+}

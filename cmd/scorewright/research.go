@@ -74,13 +74,23 @@ func runResearch(e *env, args []string) error {
 		return err
 	}
 	spec.Rule, spec.RuleName = rule, name
+	stepSet := false
+	fs.Visit(func(f *flag.Flag) { stepSet = stepSet || f.Name == "step" })
+	if d.Budget.Menu != "" && !stepSet {
+		// The design's menu file is the menu its table is made on and the
+		// contract pays: the rules are compared on it, as table --design
+		// fits on it, unless --step asks for a step menu instead.
+		if spec.Menu, err = tableMenu(fs, &tableFlags{}, d); err != nil {
+			return err
+		}
+	}
 	rep, err := study.Run(context.Background(), d.Labels, d.Budget, spec)
 	var re *study.RuleError
 	switch {
 	case errors.Is(err, study.ErrMeanPay):
 		return usagef("rules are compared at the same floor and cap: give --cap C instead of --mean-pay")
 	case errors.Is(err, study.ErrNoStep):
-		return usagef("the report menu is missing: give --step S (e.g. 0.05; 1/K for a simplex grid when n > 2)")
+		return usagef("the report menu is missing: give --step S (e.g. 0.05; 1/K for a simplex grid when n > 2), or name a menu file in the design's budget")
 	case errors.As(err, &re):
 		return fitError(re.Err)
 	case err != nil:

@@ -99,7 +99,11 @@ func researchJSONOf(rep *study.Report, verdicts map[string]string, written strin
 
 func printResearch(e *env, rep *study.Report, verdicts map[string]string, written string) error {
 	w := e.stdout
-	fmt.Fprintf(w, "base rate %s over %s; budget [%g, %g] on the menu of step %g\n", num.Format(rep.Prior), strings.Join(rep.Labels, ", "), rep.Budget.Floor, rep.Budget.Cap, rep.Budget.Step)
+	menu := fmt.Sprintf("the menu of step %g", rep.Budget.Step)
+	if rep.MenuFile != "" {
+		menu = rep.MenuFile
+	}
+	fmt.Fprintf(w, "base rate %s over %s; budget [%g, %g] on %s\n", num.Format(rep.Prior), strings.Join(rep.Labels, ", "), rep.Budget.Floor, rep.Budget.Cap, menu)
 	fmt.Fprintf(w, "research model: %s\n\n", rep.Model)
 	rows := rep.All()
 	season := 1

@@ -187,3 +187,37 @@ func TestResearchTakesTheContractBaseRate(t *testing.T) {
 		}
 	}
 }
+
+// research --design on a design whose budget names a menu file (and no
+// step) compares the rules on that menu, as table --design fits on it,
+// instead of asking for --step; --step still asks for the step menu. By
+// hand, quadratic rule on [5, 45], menu 0.25, 0.75: the loss sum (p_i -
+// [i = k])^2 runs from 1/8 to 9/8, so B = 40; on the step-1/2 menu from 0
+// to 2, so B = 20.
+func TestResearchUsesTheDesignsMenuFile(t *testing.T) {
+	dir := t.TempDir()
+	if err := os.WriteFile(filepath.Join(dir, "m.csv"), []byte("0.25\n0.75\n"), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	path := filepath.Join(dir, "d.toml")
+	src := "version = 1\noutcomes = [\"wet\", \"dry\"]\nmode = \"generator\"\nformula = \"1 - sum(p^2)\"\n\n[budget]\nfloor = 5\ncap = 45\nmenu = \"m.csv\"\n"
+	if err := os.WriteFile(path, []byte(src), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	code, out, stderr := runCmd(t, "research", "--design", path, "--kappa", "8", "--compare", "none", "--no-optimum")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	if !strings.Contains(out, "on 2 reports listed in m.csv (the design's menu file)") {
+		t.Errorf("the design's menu is not named:\n%s", out)
+	}
+	for _, c := range []struct {
+		args []string
+		b    float64
+	}{{nil, 40}, {[]string{"--step", "0.5"}, 20}} {
+		j := researchJSONRun(t, append([]string{"--design", path, "--kappa", "8", "--compare", "none", "--no-optimum"}, c.args...)...)
+		if len(j.Rules) != 1 || math.Abs(float64(j.Rules[0].B)-c.b) > 1e-9 {
+			t.Errorf("%v: rules %+v, want B = %g", c.args, j.Rules, c.b)
+		}
+	}
+}

@@ -38,6 +38,10 @@ type Spec struct {
 	Compare []string
 	// Forecasts is the number of forecasts per season (default 1).
 	Forecasts int
+	// Menu, when set, is the report menu the rules are fitted on: a
+	// design's menu file (scorewright.DesignMenu, with the budget's
+	// clamp), the menu its table is made on. Nil: the budget's step menu.
+	Menu *budget.Menu
 	// Cost is the price of one observation for step-by-step research
 	// (n = 2); Steps turns that part on. StepsKappa is the concentration of
 	// the forecaster's Beta belief before the observations when the model
@@ -86,13 +90,16 @@ type Optimum struct {
 
 // Report is a study's result.
 type Report struct {
-	Labels  []string
-	Prior   []float64
-	Model   string
-	Budget  design.Budget
-	Rows    []Row
-	LeftOut []string
-	Optimum *Optimum
+	Labels []string
+	Prior  []float64
+	Model  string
+	Budget design.Budget
+	// MenuFile describes the Spec's menu the rules were fitted on
+	// (Menu.Desc); empty when they were fitted on the budget's step menu.
+	MenuFile string
+	Rows     []Row
+	LeftOut  []string
+	Optimum  *Optimum
 	// Beliefs are the event probabilities of the curves (n = 2).
 	Beliefs []float64
 	// StepsPrior is the Beta belief step-by-step research starts from.
@@ -104,7 +111,8 @@ type Report struct {
 // floor and cap.
 var ErrMeanPay = errors.New("study: rules are compared at the same floor and cap; the budget gives a target mean payment instead of a cap")
 
-// ErrNoStep says the budget has no report menu step to fit the rules on.
+// ErrNoStep says the budget has no report menu step, and the Spec no
+// menu, to fit the rules on.
 var ErrNoStep = errors.New("study: the budget has no report menu step")
 
 // RuleError says the design's own rule does not fit the budget.
@@ -127,15 +135,18 @@ func Run(ctx context.Context, labels []string, b design.Budget, s Spec) (*Report
 	if b.MeanPay != nil {
 		return nil, ErrMeanPay
 	}
-	if !(b.Step > 0) {
+	if s.Menu == nil && !(b.Step > 0) {
 		return nil, ErrNoStep
 	}
 	if !(b.Cap > b.Floor) {
 		return nil, fmt.Errorf("study: the cap %g must be above the floor %g", b.Cap, b.Floor)
 	}
-	menu, err := budget.StepMenu(n, b.Step, b.ReportFloor)
-	if err != nil {
-		return nil, err
+	menu := s.Menu
+	if menu == nil {
+		var err error
+		if menu, err = budget.StepMenu(n, b.Step, b.ReportFloor); err != nil {
+			return nil, err
+		}
 	}
 	if s.Forecasts <= 0 {
 		s.Forecasts = 1
@@ -144,6 +155,9 @@ func Run(ctx context.Context, labels []string, b design.Budget, s Spec) (*Report
 		s.Mix = 0.1
 	}
 	rep := &Report{Labels: labels, Prior: s.Model.Prior, Model: s.Model.Describe, Budget: b}
+	if s.Menu != nil {
+		rep.MenuFile = s.Menu.Desc
+	}
 	named, left := candidates(labels, s)
 	rep.LeftOut = left
 	total := len(named) + 2
@@ -293,7 +307,7 @@ func addOptimum(ctx context.Context, rep *Report, labels []string, b design.Budg
 	// cap).
 	ob := b
 	ob.ReportFloor = 0
-	full, err := budget.StepMenu(len(labels), b.Step, 0)
+	full, err := optimumBase(len(labels), b, s.Menu)
 	if err != nil {
 		return err
 	}
@@ -327,6 +341,22 @@ func addOptimum(ctx context.Context, rep *Report, labels []string, b design.Budg
 	o.MixCost = o.Row.Gain.PerForecast - o.MixRow.Gain.PerForecast
 	rep.Optimum = o
 	return nil
+}
+
+// optimumBase is the menu the best rule's fit starts from: the step menu
+// without a report floor, or the given menu's reports with the vertices
+// added (the best rule's pieces reach them, and the fit must see them).
+func optimumBase(n int, b design.Budget, m *budget.Menu) (*budget.Menu, error) {
+	if m == nil {
+		return budget.StepMenu(n, b.Step, 0)
+	}
+	reports := append([][]float64(nil), m.Reports...)
+	for i := 0; i < n; i++ {
+		v := make([]float64, n)
+		v[i] = 1
+		reports = append(reports, v)
+	}
+	return &budget.Menu{Reports: reports, Desc: m.Desc + " and the vertices"}, nil
 }
 
 func notes(rep *Report, s Spec, b design.Budget) []string {

@@ -7,6 +7,7 @@ import (
 	"strings"
 	"testing"
 
+	"scorewright/contract/budget"
 	"scorewright/contract/research"
 	"scorewright/generator/design"
 )
@@ -64,5 +65,42 @@ func TestRunErrors(t *testing.T) {
 	}
 	if _, err := Run(context.Background(), []string{"a", "b", "c"}, design.Budget{Floor: 0, Cap: 10, Step: 0.1}, Spec{Model: p}); err == nil {
 		t.Error("a model for 2 outcomes accepted for 3")
+	}
+}
+
+// A menu in the Spec (a design's menu file) is what the rules are fitted
+// on when the budget has no step. On the menu {(1/4, 3/4), (3/4, 1/4)} the
+// quadratic loss sum_i (p_i - [i = k])^2 runs from 1/8 to 9/8, a spread
+// of 1, so B = cap - floor = 40; on the step-1/2 menu (the vertices among
+// its reports) it runs from 0 to 2 and B = 20 (derived by hand).
+func TestRunOnTheSpecsMenu(t *testing.T) {
+	p, err := research.Dirichlet([]float64{0.4, 0.6}, 8, research.Quadrature{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	labels := []string{"rain", "dry"}
+	menu := &budget.Menu{Reports: [][]float64{{0.25, 0.75}, {0.75, 0.25}}, Desc: "2 reports listed in m.csv (the design's menu file)"}
+	b := design.Budget{Floor: 5, Cap: 45}
+	rep, err := Run(context.Background(), labels, b, Spec{Model: p, Compare: []string{"quadratic"}, Menu: menu, Optimum: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rep.Rows) != 1 || math.Abs(rep.Rows[0].Fit.B-40) > 1e-9 {
+		t.Fatalf("rows %+v, want the quadratic with B = 40", rep.Rows)
+	}
+	if rep.MenuFile != menu.Desc || rep.Optimum == nil {
+		t.Errorf("menu %q, optimum %v", rep.MenuFile, rep.Optimum)
+	}
+	b.Step = 0.5
+	step, err := Run(context.Background(), labels, b, Spec{Model: p, Compare: []string{"quadratic"}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if math.Abs(step.Rows[0].Fit.B-20) > 1e-9 || step.MenuFile != "" {
+		t.Errorf("step menu: B = %v, menu %q; want 20 and none", step.Rows[0].Fit.B, step.MenuFile)
+	}
+	// The gain is B·E[D(q, q0)] (no clamp): twice the B, twice the gain.
+	if g, h := rep.Rows[0].Gain.PerForecast, step.Rows[0].Gain.PerForecast; math.Abs(g-2*h) > 1e-9*g {
+		t.Errorf("gain %v on the menu, %v on the step menu; want twice", g, h)
 	}
 }
