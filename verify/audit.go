@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"runtime"
+	"slices"
 	"sort"
 
 	"scorewright/generator/payout"
@@ -39,11 +40,12 @@ type BeliefGap struct {
 	Honest float64
 }
 
-// Direction of the best misreport for yes/no events.
+// Direction of the best misreport (for yes/no events: away from 1/2,
+// toward it, or to its other side).
 const (
-	Exaggerates = "exaggerates" // away from 1/2
-	Hedges      = "hedges"      // toward 1/2
-	Flips       = "flips"       // to the other side of 1/2
+	Exaggerates = "exaggerates" // further from the uniform forecast
+	Hedges      = "hedges"      // no further from it
+	Flips       = "flips"       // another outcome ranked first
 	Mixed       = "mixed"       // different at different beliefs
 )
 
@@ -52,10 +54,10 @@ const (
 type AuditReport struct {
 	Report
 	Gap Gap
-	// Direction, for n = 2, is where the best misreport goes (one of the
-	// constants above), "" when there is no misreport to gain from.
+	// Direction is where the best misreport goes (one of the constants
+	// above, classify), "" when there is no misreport to gain from.
 	Direction string
-	// Exaggerate, Hedge and Flip count the beliefs of each kind (n = 2).
+	// Exaggerate, Hedge and Flip count the beliefs of each kind.
 	Exaggerate, Hedge, Flip int
 	// Identified is the best accepted fit, nil when none fits.
 	Identified *Identification
@@ -295,9 +297,7 @@ func auditVerdict(rep *AuditReport, prop, bounded CheckResult, ties []tiePair, p
 	default:
 		rep.Verdict = Proper
 	}
-	if p.Outcomes() == 2 {
-		direction(rep, T)
-	}
+	direction(rep, T)
 	if rep.Verdict != Improper {
 		rep.Notes = append(rep.Notes, expectedPayNote(rep))
 	}
@@ -366,14 +366,14 @@ func refineBeliefs(ctx context.Context, p *payout.Payout, g *simplex.Grid, bgs [
 	})
 }
 
-// direction classifies, for n = 2, where the best misreport goes at every
+// direction classifies where the best misreport goes at every
 // improper belief, and summarises.
 func direction(rep *AuditReport, T float64) {
 	for _, bg := range rep.Beliefs {
 		if !(bg.Gap > T) {
 			continue
 		}
-		switch classify(bg.Belief[0], bg.BestReport[0]) {
+		switch classify(bg.Belief, bg.BestReport) {
 		case Exaggerates:
 			rep.Exaggerate++
 		case Hedges:
@@ -400,18 +400,38 @@ func direction(rep *AuditReport, T float64) {
 	}
 }
 
-// classify compares a belief q and report r (probabilities of outcome 1)
-// by their distance from 1/2.
-func classify(q, r float64) string {
-	dq, dr := q-0.5, r-0.5
+// classify compares a belief q with its best report r. The report flips
+// when it ranks first only outcomes the belief does not rank first;
+// otherwise it exaggerates when it lies further from the uniform forecast
+// than the belief (more confident), and hedges when it lies no further.
+// For two outcomes these are the sides of 1/2 and the distance from it.
+func classify(q, r []float64) string {
+	n := float64(len(q))
+	var dq, dr float64
+	for k := range q {
+		dq += (q[k] - 1/n) * (q[k] - 1/n)
+		dr += (r[k] - 1/n) * (r[k] - 1/n)
+	}
 	switch {
-	case dq*dr < 0:
+	case !sharesFirst(q, r):
 		return Flips
-	case math.Abs(dr) > math.Abs(dq):
+	case dr > dq:
 		return Exaggerates
 	default:
 		return Hedges
 	}
+}
+
+// sharesFirst reports whether some outcome is ranked first (a largest
+// probability, ties included) by both q and r.
+func sharesFirst(q, r []float64) bool {
+	mq, mr := slices.Max(q), slices.Max(r)
+	for k := range q {
+		if q[k] == mq && r[k] == mr {
+			return true
+		}
+	}
+	return false
 }
 
 // expectedPayNote describes the implied expected-pay function of a proper

@@ -74,11 +74,11 @@ func TestLinearPayoutIsImproper(t *testing.T) {
 		resolution int
 	}{
 		{n: 2, gap: 1.0 / 8, belief: []float64{0.75, 0.25}, best: []float64{1, 0}, beliefTol: 1e-4, direction: Exaggerates},
-		{n: 3, gap: 1.0 / 6, belief: []float64{2.0 / 3, 1.0 / 6, 1.0 / 6}, best: []float64{1, 0, 0}, beliefTol: 1e-3, resolution: 60},
+		{n: 3, gap: 1.0 / 6, belief: []float64{2.0 / 3, 1.0 / 6, 1.0 / 6}, best: []float64{1, 0, 0}, beliefTol: 1e-3, direction: Exaggerates, resolution: 60},
 		// The default grid (K = 100): the grid's witness (0.67, 0.17,
 		// 0.16) has the maximiser outside its cell, where sharpening once
 		// stopped at the cell's corner with 0.1666625.
-		{n: 3, gap: 1.0 / 6, belief: []float64{2.0 / 3, 1.0 / 6, 1.0 / 6}, best: []float64{1, 0, 0}, beliefTol: 1e-4},
+		{n: 3, gap: 1.0 / 6, belief: []float64{2.0 / 3, 1.0 / 6, 1.0 / 6}, best: []float64{1, 0, 0}, beliefTol: 1e-4, direction: Exaggerates},
 	}
 	for _, c := range cases {
 		rep, err := Audit(context.Background(), pay(t, "p[y]", c.n), nil, Settings{Resolution: c.resolution})
@@ -97,7 +97,7 @@ func TestLinearPayoutIsImproper(t *testing.T) {
 		if rep.Direction != c.direction {
 			t.Errorf("n=%d: direction %q, want %q", c.n, rep.Direction, c.direction)
 		}
-		if c.n == 2 && (rep.Hedge != 0 || rep.Flip != 0 || rep.Exaggerate == 0) {
+		if rep.Hedge != 0 || rep.Flip != 0 || rep.Exaggerate == 0 {
 			t.Errorf("linear rule: %d exaggerate, %d hedge, %d flip; every improper belief should exaggerate", rep.Exaggerate, rep.Hedge, rep.Flip)
 		}
 		if c.n == 2 {

@@ -167,8 +167,13 @@ func printAudit(e *env, src string, labels []string, found *scorewright.Findings
 	case rep.Undefined > 0:
 		fmt.Fprintf(w, "the payout is undefined (NaN) at the honest report for %d of %d grid beliefs: no gap can be computed there, and the gap above covers only the others\n", rep.Undefined, len(rep.Beliefs))
 	}
-	if len(labels) == 2 && rep.Direction != "" {
+	switch {
+	case rep.Direction == "":
+	case len(labels) == 2:
 		fmt.Fprintf(w, "best misreport %s: %d beliefs exaggerate (away from 1/2), %d hedge (toward 1/2), %d flip to the other side\n",
+			rep.Direction, rep.Exaggerate, rep.Hedge, rep.Flip)
+	default:
+		fmt.Fprintf(w, "best misreport %s: %d beliefs exaggerate (a report further from the uniform forecast), %d hedge (one no further from it), %d flip (another outcome ranked first)\n",
 			rep.Direction, rep.Exaggerate, rep.Hedge, rep.Flip)
 	}
 	if rep.Verdict != verify.Improper && len(labels) == 2 {
