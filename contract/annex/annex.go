@@ -59,6 +59,10 @@ type Input struct {
 	Cost *cost.Cost
 	// Version is the build that made the annex.
 	Version string
+	// MenuFile is the design's menu file as read (InputFor reads it), nil
+	// without one: the PDF attaches it beside design.toml under MenuName,
+	// so that the attachments alone make the table again.
+	MenuFile []byte
 }
 
 // Term is one line of the terms block; an empty Value is a blank to fill in.
@@ -94,8 +98,15 @@ type Document struct {
 	Fingerprint string
 	// Remake says how the table is made again from the design file; a
 	// design that reads its menu from a file needs that file beside it,
-	// which the annex does not attach, and the sentence says so.
-	Remake string
+	// which the workbook and the page do not carry, and the sentence says
+	// so. RemakePDF is the PDF's sentence: the PDF attaches the menu file
+	// when the input has it.
+	Remake, RemakePDF string
+	// MenuName is the menu file's name in the printed design ("" without
+	// one); MenuFile its bytes, attached to the PDF under that name (nil
+	// when the input did not read it).
+	MenuName string
+	MenuFile []byte
 	// Producer names the program that made the annex.
 	Producer string
 	Date     string
@@ -114,7 +125,12 @@ func New(in Input) (*Document, error) {
 	if err := in.Table.Check(); err != nil {
 		return nil, err
 	}
-	canon, err := Canonical(in.Design)
+	// The printed design names its menu file as the PDF attaches it.
+	shown, menuName, err := withMenuName(in.Design)
+	if err != nil {
+		return nil, err
+	}
+	canon, err := Canonical(shown)
 	if err != nil {
 		return nil, err
 	}
@@ -126,7 +142,11 @@ func New(in Input) (*Document, error) {
 		DesignText: string(canon), Fingerprint: hex.EncodeToString(sum[:]),
 		Producer: "scorewright " + in.Version, Date: t.Meta.Date,
 	}
-	doc.Remake = remake(in.Design.Budget.Menu)
+	if menuName != "" {
+		doc.MenuName, doc.MenuFile = menuName, in.MenuFile
+	}
+	doc.Remake = remake(menuName, false)
+	doc.RemakePDF = remake(menuName, doc.MenuFile != nil)
 	doc.reportDecimals = ReportDecimals(t)
 	if doc.Title == "" {
 		doc.Title = "Payment annex"
@@ -155,16 +175,6 @@ func New(in Input) (*Document, error) {
 		doc.Record = append(doc.Record, f)
 	}
 	return doc, nil
-}
-
-// remake is the sentence that says how the design file makes the table
-// again; menu is the design's menu file, if any.
-func remake(menu string) string {
-	if menu == "" {
-		return "Running scorewright table --design design.toml makes this table again."
-	}
-	return fmt.Sprintf("Running scorewright table --design design.toml makes this table again with the menu file %q it names beside it, "+
-		"which this annex does not include: one line per row of the payment table, the row's report probabilities in order, as in section 5.", menu)
 }
 
 // RunningHead is the line at the top of every page after the first: the

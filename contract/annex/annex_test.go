@@ -7,6 +7,7 @@ import (
 	"encoding/hex"
 	"fmt"
 	"math"
+	"os"
 	"strings"
 	"testing"
 
@@ -359,26 +360,99 @@ func TestCostIntroSaysWhoseBaseRate(t *testing.T) {
 	}
 }
 
-// The annex attaches the design file but not a menu file it names; the
-// sentence on making the table again says the menu file is needed, so a
-// reader who runs design.toml alone is not told it will work. Without a
-// menu file the sentence stays as it was.
+// A design that reads its menu from a file: the workbook and the page,
+// which attach nothing, say the menu file is needed beside the design and
+// not included; the PDF, given the file's bytes, attaches it and says the
+// two attachments make the table again. The printed design names the
+// menu by its base name, the name it is attached under, whatever folder
+// the design named. Without a menu file the sentence stays as it was.
 func TestRemakeNamesAMenuFile(t *testing.T) {
 	plain := waterDoc(t)
-	if plain.Remake != "Running scorewright table --design design.toml makes this table again." {
-		t.Errorf("step menu: %q", plain.Remake)
+	if plain.Remake != "Running scorewright table --design design.toml makes this table again." || plain.RemakePDF != plain.Remake {
+		t.Errorf("step menu: %q / %q", plain.Remake, plain.RemakePDF)
 	}
 	d := waterDesign()
-	d.Budget.Menu = "levels.csv"
+	d.Budget.Menu = "../menus/levels.csv"
 	doc := docFor(t, d)
 	var buf bytes.Buffer
 	if err := doc.WriteHTML(&buf); err != nil {
 		t.Fatal(err)
 	}
 	page := html.UnescapeString(buf.String())
-	for _, want := range []string{`with the menu file "levels.csv" it names beside it`, "which this annex does not include"} {
+	for _, want := range []string{`with the menu file "levels.csv" it names beside it`, "which this annex does not include", `menu = "levels.csv"`} {
 		if !strings.Contains(page, want) {
 			t.Errorf("HTML lacks %q: %q", want, doc.Remake)
 		}
+	}
+	if d.Budget.Menu != "../menus/levels.csv" {
+		t.Errorf("the annex changed the caller's design: menu %q", d.Budget.Menu)
+	}
+	if doc.MenuFile != nil || strings.Contains(doc.RemakePDF, "attached") {
+		t.Errorf("no menu bytes given, yet the PDF says it attaches them: %q", doc.RemakePDF)
+	}
+	in := Input{Design: d, Table: doc.Table, Version: "test", MenuFile: []byte("0\n1\n")}
+	withFile, err := New(in)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := `The menu file the design names is attached beside it as "levels.csv"; running scorewright table --design design.toml in a folder that holds both attachments makes this table again.`
+	if withFile.RemakePDF != want || withFile.MenuName != "levels.csv" || withFile.Remake != doc.Remake {
+		t.Errorf("PDF sentence %q, menu name %q", withFile.RemakePDF, withFile.MenuName)
+	}
+	if withFile.Fingerprint != doc.Fingerprint {
+		t.Error("the fingerprint depends on whether the menu bytes were given")
+	}
+}
+
+// MenuName keeps only the file name of a menu path, under either
+// separator, and refuses one with no file name to attach.
+func TestMenuName(t *testing.T) {
+	for in, want := range map[string]string{"a.csv": "a.csv", "m/a.csv": "a.csv", `C:\menus\a.csv`: "a.csv", "/abs/a b.csv": "a b.csv"} {
+		if got, err := MenuName(in); err != nil || got != want {
+			t.Errorf("MenuName(%q) = %q, %v; want %q", in, got, err, want)
+		}
+	}
+	for _, bad := range []string{"menus/", "..", "x/.", "design.toml", "sub/design.toml"} {
+		if got, err := MenuName(bad); err == nil {
+			t.Errorf("MenuName(%q) = %q, want an error", bad, got)
+		}
+	}
+}
+
+// The annex attaches the menu file only while it still lists the table's
+// reports: a file rewritten after the table was made is refused, and a
+// file beyond the menu bound is refused before it is parsed.
+func TestInputForReadsTheMenuTheTableUsed(t *testing.T) {
+	dir := t.TempDir()
+	d := waterDesign()
+	d.Budget.Step, d.Budget.Menu, d.Dir = 0, "levels.csv", dir
+	tb := waterDoc(t).Table
+	var csv strings.Builder
+	for _, r := range tb.Reports {
+		fmt.Fprintf(&csv, "%v\n", r[0])
+	}
+	path := dir + "/levels.csv"
+	if err := os.WriteFile(path, []byte(csv.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	rule := bregmantest.Rule(t, d.Formula, bregman.Options{Outcomes: d.N()})
+	in, err := InputFor(d, tb, rule, 150, 75, 0, "test")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if string(in.MenuFile) != csv.String() {
+		t.Errorf("attached menu %q, want the file as written", in.MenuFile)
+	}
+	if err := os.WriteFile(path, []byte("0\n0.5\n1\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := InputFor(d, tb, rule, 150, 75, 0, "test"); err == nil || !strings.Contains(err.Error(), "no longer lists the table's reports") {
+		t.Errorf("a changed menu file: %v", err)
+	}
+	if err := os.WriteFile(path, bytes.Repeat([]byte("0\n"), budget.MaxMenuBytes/2+1), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := InputFor(d, tb, rule, 150, 75, 0, "test"); err == nil || !strings.Contains(err.Error(), "too large") {
+		t.Errorf("an oversized menu file: %v", err)
 	}
 }

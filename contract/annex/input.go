@@ -16,10 +16,18 @@ import (
 // InputFor gathers what an annex needs besides a money table made from
 // d: the closed formula of the pay A − B·L of rule (none with a clamp,
 // which bends the rule, or for a point table, rule nil) and the season's
-// cost, which it also states in the table's record. Call it before a
+// cost, which it also states in the table's record; and the menu file d
+// names, if any, for the PDF to attach. Call it before a
 // lottery conversion: the cost is in money.
 func InputFor(d *design.Design, tb *table.Table, rule *bregman.Rule, a, b, clamp float64, version string) (*Input, error) {
 	in := &Input{Design: d, Table: tb, Version: version}
+	if d.Budget.Menu != "" {
+		b, err := readMenuFile(d, tb)
+		if err != nil {
+			return nil, err
+		}
+		in.MenuFile = b
+	}
 	if rule != nil && clamp == 0 {
 		if f, ok := payform.Find(rule, a, b); ok {
 			in.Formula = f

@@ -51,8 +51,13 @@ func (d *Document) WritePDF(w io.Writer) error {
 		pdf.SetCreationDate(t)
 		pdf.SetModificationDate(t)
 	}
-	pdf.SetAttachments([]fpdf.Attachment{{Content: []byte(d.DesignText), Filename: "design.toml",
-		Description: "the design this annex was made from; SHA-256 " + d.Fingerprint}})
+	files := []fpdf.Attachment{{Content: []byte(d.DesignText), Filename: "design.toml",
+		Description: "the design this annex was made from; SHA-256 " + d.Fingerprint}}
+	if d.MenuFile != nil {
+		files = append(files, fpdf.Attachment{Content: d.MenuFile, Filename: d.MenuName,
+			Description: "the report menu the design names; one report per row of the payment table"})
+	}
+	pdf.SetAttachments(files)
 	pdf.AliasNbPages("{nb}")
 	pdf.SetHeaderFunc(func() { d.pdfHead(pdf) })
 	pdf.SetFooterFunc(func() { d.pdfFoot(pdf) })
@@ -250,7 +255,7 @@ func (d *Document) pdfSignatures(pdf *fpdf.Fpdf) {
 // attached to the PDF as design.toml).
 func (d *Document) pdfDesign(pdf *fpdf.Fpdf) {
 	d.pdfSection(pdf, "8. The design and its fingerprint")
-	d.pdfPara(pdf, "SHA-256 of the design file below, exactly as printed (UTF-8, one line feed after each line); the same file is attached to this PDF as design.toml. "+d.Remake)
+	d.pdfPara(pdf, "SHA-256 of the design file below, exactly as printed (UTF-8, one line feed after each line); the same file is attached to this PDF as design.toml. "+d.RemakePDF)
 	pdf.SetFont(mono, "", bodySize-1)
 	pdf.MultiCell(0, lineH, d.Fingerprint, "", "L", false)
 	pdf.Ln(2)
