@@ -7,6 +7,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 
 	"scorewright"
@@ -60,8 +61,26 @@ var (
 	researchCosts = []float64{0, 0.0005, 0.001, 0.002, 0.005, 0.01, 0.02, 0.05}
 )
 
+// defaultResearchInputs starts at the contract's forecasts a season when
+// the design states them (what its season costs), else at 100.
 func defaultResearchInputs(d *design.Design) ResearchInputs {
-	return ResearchInputs{Kappa: 10, Accuracy: 0.75, Forecasts: 100}
+	in := ResearchInputs{Kappa: 10, Accuracy: 0.75, Forecasts: 100}
+	if d != nil && d.Contract.Forecasts > 0 {
+		in.Forecasts = d.Contract.Forecasts
+	}
+	return in
+}
+
+// forecastSteps are the forecasts a season the view steps through: the
+// round numbers and the contract's own, so that the view can always come
+// back to the contract's season.
+func forecastSteps(d *design.Design) []int {
+	list := append([]int(nil), researchForecasts...)
+	if f := d.Contract.Forecasts; f > 0 && !slices.Contains(list, f) {
+		list = append(list, f)
+		slices.Sort(list)
+	}
+	return list
 }
 
 // baseRate is the base rate the inputs give for design d.
@@ -385,8 +404,7 @@ func researchStep(in *ResearchInputs, f researchField, d *design.Design, up, fin
 		}
 		in.Base = math.Min(0.99, math.Max(0.01, math.Round((b+sign(up)*step)*100)/100))
 	case researchSeason:
-		i := indexInt(researchForecasts, in.Forecasts)
-		in.Forecasts = researchForecasts[clampIndex(i+int(sign(up)), len(researchForecasts))]
+		in.Forecasts = stepInt(forecastSteps(d), in.Forecasts, up)
 	case researchCost:
 		if n != 2 {
 			return false
@@ -421,16 +439,25 @@ func stepList(list []float64, v float64, up bool) float64 {
 	return list[0]
 }
 
-func indexInt(list []int, v int) int {
-	for i, x := range list {
-		if x >= v {
-			return i
+// stepInt moves v to the next or previous value of a sorted list, v
+// itself at its end; a v between two values moves to the neighbour
+// that way, never past it.
+func stepInt(list []int, v int, up bool) int {
+	if up {
+		for _, x := range list {
+			if x > v {
+				return x
+			}
+		}
+		return v
+	}
+	for i := len(list) - 1; i >= 0; i-- {
+		if list[i] < v {
+			return list[i]
 		}
 	}
-	return len(list) - 1
+	return v
 }
-
-func clampIndex(i, n int) int { return min(max(i, 0), n-1) }
 
 // inputsLine shows the inputs, the selected one marked.
 func (r *ResearchRoom) inputsLine(d *design.Design) []string {

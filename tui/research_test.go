@@ -281,3 +281,29 @@ func TestResearchOnTheDesignsMenuFile(t *testing.T) {
 		t.Errorf("B = %v, want 40 (the menu file's)", b)
 	}
 }
+
+// The view starts at the contract's forecasts a season when the design
+// states them, and the season steps reach that number again from either
+// side (12 lies between the round steps 10 and 20).
+func TestResearchSeasonStartsAtTheContracts(t *testing.T) {
+	d := &design.Design{Version: design.SchemaVersion, Labels: []string{"wet", "dry"}, Mode: design.ModeGenerator,
+		Formula: "1 - sum(p^2)", Budget: design.Budget{Floor: 5, Cap: 45, Step: 0.1}, Contract: design.Contract{Forecasts: 12}}
+	m := testModel(t, d, Settings{})
+	start(t, m, 80, 24)
+	rep := openResearch(t, m)
+	if f := row(t, rep, "this design").Gain.Season.Forecasts; f != 12 || !strings.Contains(m.View(), "12 a season") {
+		t.Fatalf("season of %d forecasts, want the contract's 12:\n%s", f, m.View())
+	}
+	for range researchSeason {
+		press(t, m, keyDown)
+	}
+	for i, c := range []struct {
+		k    tea.KeyMsg
+		want int
+	}{{keyRight, 20}, {keyLeft, 12}, {keyLeft, 10}, {keyRight, 12}} {
+		press(t, m, c.k)
+		if got := m.research.Inputs().Forecasts; got != c.want {
+			t.Fatalf("step %d: %d a season, want %d", i, got, c.want)
+		}
+	}
+}
