@@ -141,8 +141,9 @@
 // table stays readable. The propose key (f, `tui/propose.go`) runs
 // `Rule.Propose` in the background (progress, cancelled by any edit): the coarsest currency unit
 // the re-check passes with, and for a failing table the smallest cap (every whole step of
-// `budget.CapGrain` is tried; point-forecast tables too, on their own re-check), each line saying
-// which it is; the digit keys take one.
+// `budget.CapGrain` is tried up to five times the range; point-forecast tables too, on their own
+// re-check), each line saying which it is, and a line saying when no cap searched passes
+// (`Proposal.NoLarger`); the digit keys take one.
 //
 // Look (`tui/header.go`, `tui/chrome.go`, `NewStyles`): the header names the design (and its file,
 // or "not saved yet", and whether it is edited), the view shown, and the verdict with its kind —

@@ -163,6 +163,11 @@ func (p BudgetPane) proposalLines() (lines, keys []string) {
 	for i, q := range pr.props {
 		lines = append(lines, st.Selected.Render(fmt.Sprintf("%d", i+1))+" "+shortProposal(q, p.w-4))
 	}
+	if nl := pr.props[0].NoLarger; nl != nil {
+		// The table fails and only the unit moves: say that the cap
+		// search found nothing, and where it looked.
+		lines = append(lines, strings.Split(st.Error.Width(max(10, p.w-2)).Render(nl.Describe()), "\n")...)
+	}
 	var take []string
 	for i := range pr.props {
 		take = append(take, []key.Binding{k.TakeFirst, k.TakeSecond}[i].Help().Key)

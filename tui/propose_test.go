@@ -6,6 +6,7 @@ import (
 	"time"
 
 	tea "github.com/charmbracelet/bubbletea"
+	"github.com/charmbracelet/x/ansi"
 	"github.com/charmbracelet/x/exp/golden"
 	"github.com/charmbracelet/x/exp/teatest"
 
@@ -218,4 +219,31 @@ func TestBudgetTableRoomAt80x24(t *testing.T) {
 	if !strings.Contains(headLine(), "clear") {
 		t.Errorf("> did not scroll the table to its last column:\n%s", m.View())
 	}
+}
+
+// A failing table whose cap search finds nothing gets the unit proposal
+// and a line saying that no larger cap passes, and which caps were tried:
+// the frost demo at unit 10 (floor 0, cap 40) is searched over caps 50 to 200
+// in steps of 10 (five times the range, at whole units: derived by hand
+// from CapGrain), as TestProposeAgainstBruteForce checks against brute
+// force for the same rule.
+func TestProposeSaysNoCapPasses(t *testing.T) {
+	d := DemoFrost()
+	d.Budget.Unit = 10
+	m := testModel(t, d, Settings{})
+	start(t, m, 80, 24)
+	selectBudgetField(t, m, "Unit")
+	settle(t, m, m.budgetKey(runes("f")))
+	props := m.budget.prop.props
+	if len(props) != 1 || props[0].Field != "unit" {
+		t.Fatalf("proposals %+v, want the unit alone", props)
+	}
+	if nl := props[0].NoLarger; nl == nil || nl.From != 50 || nl.To != 200 || nl.Grain != 10 {
+		t.Errorf("cap search %+v, want caps 50 to 200 in steps of 10", nl)
+	}
+	v := ansi.Strip(m.View())
+	if !strings.Contains(v, "no larger cap passes at unit 10") || !strings.Contains(v, "five times the range") {
+		t.Errorf("the pane does not say that no cap passes:\n%s", v)
+	}
+	golden.RequireEqual(t, []byte(m.View()))
 }

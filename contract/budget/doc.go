@@ -97,7 +97,8 @@
 // simpler), budgets one field away from the given one: the coarsest unit of a ladder of round
 // amounts (100 … 0.001, at most half the range) that passes with the cap kept, and for a failing budget
 // the smallest cap (or mean pay) above it, every whole step of CapGrain (a hundredth of the range in whole units) up to five times it, at the given
-// unit — a larger one only costs the buyer more. A candidate passes when every item beats every other
+// unit — a larger one only costs the buyer more; when none passes, the unit proposal's NoLarger
+// says which were tried. A candidate passes when every item beats every other
 // for its own belief (the menu part of the re-check, which decides Passed). Tested against an exact
 // integer brute force of the Brier table (propose_test.go).
 //

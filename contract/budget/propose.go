@@ -34,13 +34,36 @@ type Proposal struct {
 	MinMargin float64
 	// Tried is how many budgets were fitted and checked.
 	Tried int
+	// NoLarger, when set, says that the budget asked about fails and no
+	// larger cap (or mean pay) searched at its unit passes: this
+	// proposal changes the unit only.
+	NoLarger *CapSearch
+}
+
+// CapSearch is the cap (or mean pay) search of a failing budget that
+// found nothing: every multiple of Grain from From to To was tried at
+// Unit, To being the most the search goes to (five times the range);
+// Tried is how many.
+type CapSearch struct {
+	Field                 string
+	From, To, Grain, Unit float64
+	Tried                 int
+}
+
+// Describe says in a line that nothing searched passes.
+func (c *CapSearch) Describe() string {
+	return fmt.Sprintf("no larger %s passes at unit %g: %ss %g to %g tried in steps of %g (up to five times the range)", c.Field, c.Unit, c.Field, c.From, c.To, c.Grain)
 }
 
 // Describe says the proposal in a line.
 func (p *Proposal) Describe() string {
 	switch p.Field {
 	case "unit":
-		return fmt.Sprintf("unit %g: the coarsest currency unit the re-check passes with (margin %s)", p.Budget.Unit, numfmt.Margin(p.MinMargin))
+		s := fmt.Sprintf("unit %g: the coarsest currency unit the re-check passes with (margin %s)", p.Budget.Unit, numfmt.Margin(p.MinMargin))
+		if p.NoLarger != nil {
+			s += "; " + p.NoLarger.Describe()
+		}
+		return s
 	case "cap":
 		return fmt.Sprintf("cap %g: the smallest cap the re-check passes with at unit %g (margin %s)", p.Budget.Cap, p.Budget.Unit, numfmt.Margin(p.MinMargin))
 	}
@@ -125,6 +148,7 @@ func Search(ctx context.Context, b design.Budget, capNow float64, passes Passes,
 	}
 	grain := CapGrain(from-b.Floor, b.Unit)
 	first := math.Floor(from/grain+1e-9) + 1 // the first multiple above
+	tried := &CapSearch{Field: field, Grain: grain, Unit: b.Unit}
 	for k := 0; k < capSteps; k++ {
 		c := b
 		// a cap (or mean pay) as a person writes it: a whole number of grains
@@ -132,6 +156,10 @@ func Search(ctx context.Context, b design.Budget, capNow float64, passes Passes,
 		if v > from+4*(from-b.Floor)+1e-9 {
 			break // five times the range
 		}
+		if k == 0 {
+			tried.From = v
+		}
+		tried.To, tried.Tried = v, k+1
 		if b.MeanPay != nil {
 			c.MeanPay = &v
 		} else {
@@ -143,6 +171,11 @@ func Search(ctx context.Context, b design.Budget, capNow float64, passes Passes,
 		}
 		if p != nil {
 			return append(props, *p), nil
+		}
+	}
+	if tried.Tried > 0 {
+		for i := range props {
+			props[i].NoLarger = tried
 		}
 	}
 	return done(props, nil)

@@ -3,6 +3,7 @@ package budget
 import (
 	"context"
 	"errors"
+	"strings"
 	"testing"
 
 	"scorewright/generator/design"
@@ -68,7 +69,7 @@ func in4000(x float64) int { return int(x*quarter + 0.5) }
 func TestProposeAgainstBruteForce(t *testing.T) {
 	r := rule(t, "1 - sum(p^2)", 2)
 	m := stepMenu(t, 2, 0.05, 0)
-	capProposals := 0
+	capProposals, noneCases := 0, 0
 	for _, c := range []float64{10, 40, 100} {
 		for _, unit := range []float64{5, 1, 0.5, 0.1} {
 			b := design.Budget{Floor: 0, Cap: c, Step: 0.05, Unit: unit}
@@ -118,7 +119,26 @@ func TestProposeAgainstBruteForce(t *testing.T) {
 			if got != want {
 				t.Errorf("cap %g unit %g: proposed cap %g, the smallest passing by brute force is %g (0: none)", c, unit, float64(got)/10, float64(want)/10)
 			}
+			// With none passing the proposal says so, naming the caps the
+			// brute force walked: the first grain above c to the last at
+			// most five times the range.
+			nl := props[0].NoLarger
+			if want != 0 {
+				if nl != nil {
+					t.Errorf("cap %g unit %g: a cap passes, yet the proposal says none does: %+v", c, unit, nl)
+				}
+				continue
+			}
+			noneCases++
+			last := (5 * c10 / grain) * grain
+			if nl == nil || nl.Field != "cap" || nl.Unit != unit || tenths(nl.From) != (c10/grain+1)*grain || tenths(nl.To) != last ||
+				!strings.Contains(props[0].Describe(), "no larger cap passes at unit") {
+				t.Errorf("cap %g unit %g: no cap passes by brute force up to %g; the proposal says %+v: %s", c, unit, float64(last)/10, nl, props[0].Describe())
+			}
 		}
+	}
+	if noneCases == 0 {
+		t.Error("no case found no cap passing; the note went untested")
 	}
 	if capProposals == 0 {
 		t.Error("no case needed a cap proposal; the cap search went untested")
