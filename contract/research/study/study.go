@@ -135,18 +135,9 @@ func Run(ctx context.Context, labels []string, b design.Budget, s Spec) (*Report
 	if b.MeanPay != nil {
 		return nil, ErrMeanPay
 	}
-	if s.Menu == nil && !(b.Step > 0) {
-		return nil, ErrNoStep
-	}
-	if !(b.Cap > b.Floor) {
-		return nil, fmt.Errorf("study: the cap %g must be above the floor %g", b.Cap, b.Floor)
-	}
-	menu := s.Menu
-	if menu == nil {
-		var err error
-		if menu, err = budget.StepMenu(n, b.Step, b.ReportFloor); err != nil {
-			return nil, err
-		}
+	menu, err := studyMenu(n, b, s)
+	if err != nil {
+		return nil, err
 	}
 	if s.Forecasts <= 0 {
 		s.Forecasts = 1
@@ -341,6 +332,21 @@ func addOptimum(ctx context.Context, rep *Report, labels []string, b design.Budg
 	o.MixCost = o.Row.Gain.PerForecast - o.MixRow.Gain.PerForecast
 	rep.Optimum = o
 	return nil
+}
+
+// studyMenu is the menu the rules are fitted on: the Spec's, else the
+// budget's step menu (ErrNoStep with neither).
+func studyMenu(n int, b design.Budget, s Spec) (*budget.Menu, error) {
+	if s.Menu == nil && !(b.Step > 0) {
+		return nil, ErrNoStep
+	}
+	if !(b.Cap > b.Floor) {
+		return nil, fmt.Errorf("study: the cap %g must be above the floor %g", b.Cap, b.Floor)
+	}
+	if s.Menu != nil {
+		return s.Menu, nil
+	}
+	return budget.StepMenu(n, b.Step, b.ReportFloor)
 }
 
 // optimumBase is the menu the best rule's fit starts from: the step menu
