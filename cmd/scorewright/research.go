@@ -39,7 +39,7 @@ func addResearchFlags(fs *flag.FlagSet) *researchFlags {
 	fs.StringVar(&r.confusion, "confusion", "", "signal: chance of each signal given each outcome, rows per outcome separated by ';' (e.g. '0.8,0.2;0.3,0.7')")
 	fs.StringVar(&r.history, "history", "", "history: a forecast-history CSV whose forecasts stand for the posteriors")
 	fs.StringVar(&r.compare, "compare", "", "known rules to compare, comma-separated preset names, or none (default: every generator preset that fits)")
-	intVar(fs, &r.forecasts, "forecasts", 1, "forecasts per season, for the season totals")
+	intVar(fs, &r.forecasts, "forecasts", 0, "forecasts per season, for the season totals (default: the design's contract, else 1)")
 	floatVar(fs, &r.cost, "cost", -1, "n = 2: price of one observation; turns on step-by-step research")
 	intVar(fs, &r.maxSteps, "max-steps", 0, "step by step: the most observations a forecaster may buy (default 1000)")
 	floatVar(fs, &r.stepsKappa, "steps-kappa", 2, "step by step, signal and history models: concentration of the forecaster's Beta belief before observing")
@@ -68,6 +68,11 @@ func runResearch(e *env, args []string) error {
 	}
 	if err := bf.apply(fs, d); err != nil {
 		return err
+	}
+	forecastsSet := false
+	fs.Visit(func(f *flag.Flag) { forecastsSet = forecastsSet || f.Name == "forecasts" })
+	if !forecastsSet {
+		xf.forecasts = max(d.Contract.Forecasts, 1)
 	}
 	spec, err := xf.spec(d)
 	if err != nil {

@@ -221,3 +221,31 @@ func TestResearchUsesTheDesignsMenuFile(t *testing.T) {
 		}
 	}
 }
+
+// The season totals count the contract's forecasts when --forecasts is
+// not given (12 here), one without a contract, and --forecasts when it is;
+// a season's gain is that many forecasts' gain (derived by hand: the
+// totals are per-forecast figures times the count).
+func TestResearchSeasonIsTheContracts(t *testing.T) {
+	dir := t.TempDir()
+	base := "version = 1\noutcomes = [\"wet\", \"dry\"]\nmode = \"generator\"\nformula = \"1 - sum(p^2)\"\n\n[budget]\nfloor = 5\ncap = 45\nstep = 0.25\n"
+	for _, c := range []struct {
+		contract string
+		args     []string
+		want     int
+	}{
+		{"\n[contract]\nforecasts = 12\n", nil, 12},
+		{"", nil, 1},
+		{"\n[contract]\nforecasts = 12\n", []string{"--forecasts", "5"}, 5},
+	} {
+		path := filepath.Join(dir, "d.toml")
+		if err := os.WriteFile(path, []byte(base+c.contract), 0o600); err != nil {
+			t.Fatal(err)
+		}
+		j := researchJSONRun(t, append([]string{"--design", path, "--kappa", "8", "--compare", "quadratic", "--no-optimum"}, c.args...)...)
+		r := ruleNamed(t, j, "quadratic")
+		if r.Season.Forecasts != c.want || math.Abs(float64(r.Season.Gain)-float64(c.want)*float64(r.Gain)) > 1e-9*math.Abs(float64(r.Season.Gain)) {
+			t.Errorf("%q %v: season %+v, gain per forecast %v; want %d forecasts", c.contract, c.args, r.Season, r.Gain, c.want)
+		}
+	}
+}

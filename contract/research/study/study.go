@@ -367,7 +367,11 @@ func optimumBase(n int, b design.Budget, m *budget.Menu) (*budget.Menu, error) {
 
 func notes(rep *Report, s Spec, b design.Budget) []string {
 	var out []string
-	out = append(out, fmt.Sprintf("gain = E[G(q)] - G(q0), G(q) = A - B·H(q) the truthful expected pay by the formula (unrounded); equal to B·E[D(q, q0)] without a clamp; per season: %d forecasts", max(s.Forecasts, 1)))
+	per := "1 forecast"
+	if f := max(s.Forecasts, 1); f > 1 {
+		per = fmt.Sprintf("%d forecasts", f)
+	}
+	out = append(out, "gain = E[G(q)] - G(q0), G(q) = A - B·H(q) the truthful expected pay by the formula (unrounded); equal to B·E[D(q, q0)] without a clamp; per season: "+per)
 	if below := s.Model.BelowFloor(b.ReportFloor); below > 0 {
 		out = append(out, fmt.Sprintf("%.3g %% of the posteriors give an outcome less than the report floor %g: those reports are off the menu, paid by the formula, and may pay outside [floor, cap]", 100*below, b.ReportFloor))
 	}
