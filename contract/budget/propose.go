@@ -70,8 +70,23 @@ func (p *Proposal) Describe() string {
 	return fmt.Sprintf("mean pay %g: the smallest mean pay the re-check passes with at unit %g (margin %s)", *p.Budget.MeanPay, p.Budget.Unit, numfmt.Margin(p.MinMargin))
 }
 
-// ErrNoProposal says that no budget searched passes the re-check.
-var ErrNoProposal = errors.New("no currency unit down to 0.001 and no larger cap (up to five times the range) makes the menu re-check pass; look at the rule or the menu rather than the rounding")
+// ErrNoProposal says that no budget searched passes the re-check; the
+// error Propose returns wraps it with what was searched.
+var ErrNoProposal = errors.New("no budget searched makes the menu re-check pass")
+
+// noProposal is ErrNoProposal with the words for what was searched.
+type noProposal struct{ rounded bool }
+
+func (e noProposal) Error() string {
+	if e.rounded {
+		return "no currency unit down to 0.001 and no larger cap (up to five times the range) makes the menu re-check pass; look at the rule or the menu rather than the rounding"
+	}
+	// Unrounded, a larger cap only rescales the table (pay = A - B·L with
+	// a larger B), and a positive rescaling keeps every report's rank.
+	return "no currency unit down to 0.001 makes the menu re-check pass, and without a rounding unit a larger cap only rescales the table, which leaves the re-check as it is; look at the rule or the menu"
+}
+
+func (e noProposal) Is(target error) bool { return target == ErrNoProposal }
 
 // Propose searches for budgets close to b that the re-check passes with,
 // each changing one field of b:
@@ -140,7 +155,7 @@ func Search(ctx context.Context, b design.Budget, capNow float64, passes Passes,
 		props = append(props, *now) // b's own unit is the coarsest found
 	}
 	if err != nil || now != nil || b.Unit == 0 {
-		return done(props, err)
+		return done(props, err, b.Unit > 0)
 	}
 	from, field := capNow, "cap"
 	if b.MeanPay != nil {
@@ -178,7 +193,7 @@ func Search(ctx context.Context, b design.Budget, capNow float64, passes Passes,
 			props[i].NoLarger = tried
 		}
 	}
-	return done(props, nil)
+	return done(props, nil, true)
 }
 
 // CapGrain is the step of the cap search over a range span at rounding
@@ -191,10 +206,11 @@ func CapGrain(span, unit float64) float64 {
 	return unit * math.Max(1, math.Ceil(span/100/unit-1e-9))
 }
 
-// done is a search's answer: err, or ErrNoProposal when nothing passed.
-func done(props []Proposal, err error) ([]Proposal, error) {
+// done is a search's answer: err, or ErrNoProposal when nothing passed
+// (rounded: the search had a unit, so larger caps were tried too).
+func done(props []Proposal, err error, rounded bool) ([]Proposal, error) {
 	if err == nil && len(props) == 0 {
-		err = ErrNoProposal
+		err = noProposal{rounded}
 	}
 	if err != nil {
 		return nil, err

@@ -145,18 +145,26 @@ func TestProposeAgainstBruteForce(t *testing.T) {
 	}
 }
 
-// A rule that is not strictly proper fails at every unit and cap: the
-// linear payout p_y ties everywhere along the menu's reports (expected
-// effort is linear in the report), and the answer says the search found
-// nothing.
+// A rule that is not strictly proper fails at every unit and cap: H =
+// 1 - max(p1, p2) is linear on each half of the line, so the menu's reports
+// on one side tie for every belief there (derived by hand), and the answer
+// says the search found nothing — and, without a unit, that larger caps
+// were not tried, since they only rescale the unrounded table.
 func TestProposeNothingPasses(t *testing.T) {
-	r := rule(t, "0*p1", 2) // H = 0: every report pays the same
+	r := rule(t, "1 - max(p1, p2)", 2)
 	m := stepMenu(t, 2, 0.25, 0)
-	_, err := Propose(context.Background(), r, m, design.Budget{Floor: 0, Cap: 10, Step: 0.25, Unit: 1}, nil)
-	if err == nil {
-		t.Fatal("a constant rule got a proposal")
-	}
-	if !errors.Is(err, ErrNoProposal) {
-		t.Logf("error: %v", err)
+	for _, unit := range []float64{1, 0} {
+		_, err := Propose(context.Background(), r, m, design.Budget{Floor: 0, Cap: 10, Step: 0.25, Unit: unit}, nil)
+		if err == nil {
+			t.Fatalf("unit %g: a constant rule got a proposal", unit)
+		}
+		if !errors.Is(err, ErrNoProposal) {
+			t.Errorf("unit %g: error %v is not ErrNoProposal", unit, err)
+		}
+		// Only a search with a unit tries larger caps, and only its
+		// message may say so.
+		if says := strings.Contains(err.Error(), "no larger cap"); says != (unit > 0) {
+			t.Errorf("unit %g: %v", unit, err)
+		}
 	}
 }
