@@ -39,14 +39,19 @@ import (
 type leafModels struct {
 	n, first int
 	ok       []bool
-	// Per leaf: c (n, c_k + elo_k), m (n·(n-1), M_ki at k·(n-1)+i),
-	// ulo and uhi (n-1 each), delta.
-	c, m, ulo, uhi, delta []float64
-	// packed holds each leaf's c, M, ulo, uhi and delta side by side
-	// (stride floats a leaf) for the bound's loads; a leaf without a
+	// packed holds each leaf's model side by side, stride floats a leaf
+	// (model gives the parts): c (n, c_k + elo_k), M (n·(n-1), M_ki at
+	// k·(n-1)+i), ulo and uhi (n-1 each) and delta last. A leaf without a
 	// model has zeros and delta +Inf, so its bound is -Inf.
 	packed []float64
 	stride int
+}
+
+// model is leaf l's slot in packed and its parts (delta is slot's last).
+func (lm *leafModels) model(l int) (slot, c, M, ulo, uhi []float64) {
+	n, d := lm.n, lm.n-1
+	slot = lm.packed[l*lm.stride : (l+1)*lm.stride]
+	return slot, slot[:n], slot[n : n+n*d], slot[n+n*d : n+n*d+d], slot[n+n*d+d : n+n*d+2*d]
 }
 
 // modelWidth is the widest typical leaf (leafWidth) that gets models: the
@@ -72,42 +77,27 @@ func leafWidth(n, G int) float64 {
 const modelLimit = 1e100
 
 // newLeafModels fits every leaf of t, whose reports' coordinates are
-// coords (n per grid report, by grid index).
+// coords (n per grid report, by grid index); nil for one outcome, which
+// has no plane to fit.
 func newLeafModels(t *reportTree, coords []float64) *leafModels {
 	n := t.n
+	if n < 2 {
+		return nil
+	}
 	leaves := (len(t.start) + 1) / 2
 	d := n - 1
+	stride := n + n*d + 2*d + 1
 	lm := &leafModels{n: n, first: len(t.start) - leaves, ok: make([]bool, leaves),
-		c: make([]float64, leaves*n), m: make([]float64, leaves*n*d),
-		ulo: make([]float64, leaves*d), uhi: make([]float64, leaves*d), delta: make([]float64, leaves)}
-	if d == 0 {
-		return lm
-	}
+		packed: make([]float64, leaves*stride), stride: stride}
 	f := newLeafFit(d)
 	for l := range leaves {
-		lm.ok[l] = lm.fit(f, t, coords, l)
-	}
-	lm.pack(leaves)
-	return lm
-}
-
-// pack lays the leaves' models out for bound.
-func (lm *leafModels) pack(leaves int) {
-	n, d := lm.n, lm.n-1
-	lm.stride = n + n*d + 2*d + 1
-	lm.packed = make([]float64, leaves*lm.stride)
-	for l := range leaves {
-		p := lm.packed[l*lm.stride : (l+1)*lm.stride]
-		if !lm.ok[l] {
-			p[len(p)-1] = math.Inf(1)
-			continue
+		if lm.ok[l] = lm.fit(f, t, coords, l); !lm.ok[l] {
+			slot, _, _, _, _ := lm.model(l)
+			clear(slot)
+			slot[len(slot)-1] = math.Inf(1)
 		}
-		p = append(p[:0], lm.c[l*n:(l+1)*n]...)
-		p = append(p, lm.m[l*n*d:(l+1)*n*d]...)
-		p = append(p, lm.ulo[l*d:(l+1)*d]...)
-		p = append(p, lm.uhi[l*d:(l+1)*d]...)
-		_ = append(p, lm.delta[l])
 	}
+	return lm
 }
 
 // leafFit is scratch space for fitting leaves.
@@ -168,7 +158,7 @@ func (lm *leafModels) fit(f *leafFit, t *reportTree, coords []float64, l int) bo
 	for i := range d {
 		f.a.SetSym(i, i, f.a.At(i, i)+1e-12*trace+1e-300)
 	}
-	M := lm.m[l*n*d : (l+1)*n*d]
+	_, _, M, _, _ := lm.model(l)
 	if f.chol.Factorize(f.a) {
 		for k := range n {
 			for i := range d {
@@ -198,12 +188,10 @@ func (lm *leafModels) remainders(t *reportTree, coords []float64, l int, f *leaf
 	n, d := lm.n, lm.n-1
 	node := lm.first + l
 	lo, hi := int(t.start[node]), int(t.end[node])
-	M := lm.m[l*n*d : (l+1)*n*d]
-	ulo, uhi := lm.ulo[l*d:(l+1)*d], lm.uhi[l*d:(l+1)*d]
+	slot, c, M, ulo, uhi := lm.model(l)
 	for i := range d {
 		ulo[i], uhi[i] = math.Inf(1), math.Inf(-1)
 	}
-	c := lm.c[l*n : (l+1)*n]
 	emax := make([]float64, n)
 	for k := range n {
 		c[k] = math.Inf(1)
@@ -234,7 +222,7 @@ func (lm *leafModels) remainders(t *reportTree, coords []float64, l int, f *leaf
 	if !(mag <= modelLimit) {
 		return false
 	}
-	lm.delta[l] = float64(8*n+8)*0x1p-53*mag*1.01 + 1e-300
+	slot[len(slot)-1] = float64(8*n+8)*0x1p-53*mag*1.01 + 1e-300
 	return true
 }
 
