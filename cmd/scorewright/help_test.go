@@ -45,15 +45,8 @@ func TestMissingDesignMenuNamesTheSetting(t *testing.T) {
 // not by the absolute path of the machine that made it: the record goes
 // into annexes other people keep.
 func TestDesignMenuRecordedAsNamed(t *testing.T) {
-	dir := t.TempDir()
-	if err := os.WriteFile(filepath.Join(dir, "m.csv"), []byte("0\n0.5\n1\n"), 0o600); err != nil {
-		t.Fatal(err)
-	}
-	path := filepath.Join(dir, "d.toml")
-	src := "version = 1\noutcomes = [\"wet\", \"dry\"]\nmode = \"generator\"\nformula = \"1 - sum(p^2)\"\n\n[budget]\nfloor = 0\ncap = 10\nunit = 1\nmenu = \"m.csv\"\n"
-	if err := os.WriteFile(path, []byte(src), 0o600); err != nil {
-		t.Fatal(err)
-	}
+	path := writeMenuDesign(t, "0\n0.5\n1\n", "floor = 0\ncap = 10\nunit = 1\n")
+	dir := filepath.Dir(path)
 	out := filepath.Join(dir, "t.csv")
 	if code, _, stderr := runCmd(t, "table", "--design", path, "--out", out); code != 0 {
 		t.Fatalf("exit %d: %s", code, stderr)
@@ -77,15 +70,7 @@ func TestDesignMenuRecordedAsNamed(t *testing.T) {
 // so at belief (0.5, 0.5) a risk-neutral forecaster expects 5, 8 and 5
 // and picks 0.5.
 func TestDistortUsesTheDesignsMenuFile(t *testing.T) {
-	dir := t.TempDir()
-	if err := os.WriteFile(filepath.Join(dir, "m.csv"), []byte("0\n0.5\n1\n"), 0o600); err != nil {
-		t.Fatal(err)
-	}
-	path := filepath.Join(dir, "d.toml")
-	src := "version = 1\noutcomes = [\"wet\", \"dry\"]\nmode = \"generator\"\nformula = \"1 - sum(p^2)\"\n\n[budget]\nfloor = 0\ncap = 10\nunit = 1\nmenu = \"m.csv\"\n"
-	if err := os.WriteFile(path, []byte(src), 0o600); err != nil {
-		t.Fatal(err)
-	}
+	path := writeMenuDesign(t, "0\n0.5\n1\n", "floor = 0\ncap = 10\nunit = 1\n")
 	code, out, stderr := runCmd(t, "distort", "--design", path, "--utility", "linear", "--belief", "0.5,0.5")
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, stderr)

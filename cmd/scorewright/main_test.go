@@ -4,6 +4,8 @@ import (
 	"bytes"
 	"encoding/json"
 	"math"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 )
@@ -109,4 +111,22 @@ func TestPresetsList(t *testing.T) {
 			t.Errorf("preset %q missing or without formula and source", want)
 		}
 	}
+}
+
+// writeMenuDesign writes, in a fresh folder, the menu file m.csv (one report's
+// first probability a line) and a design d.toml of the quadratic rule over
+// wet and dry whose budget (the lines given) names it; it returns the
+// design's path.
+func writeMenuDesign(t *testing.T, menu, budget string) string {
+	t.Helper()
+	dir := t.TempDir()
+	if err := os.WriteFile(filepath.Join(dir, "m.csv"), []byte(menu), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	path := filepath.Join(dir, "d.toml")
+	src := "version = 1\noutcomes = [\"wet\", \"dry\"]\nmode = \"generator\"\nformula = \"1 - sum(p^2)\"\n\n[budget]\n" + budget + "menu = \"m.csv\"\n"
+	if err := os.WriteFile(path, []byte(src), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	return path
 }

@@ -195,15 +195,7 @@ func TestResearchTakesTheContractBaseRate(t *testing.T) {
 // [i = k])^2 runs from 1/8 to 9/8, so B = 40; on the step-1/2 menu from 0
 // to 2, so B = 20.
 func TestResearchUsesTheDesignsMenuFile(t *testing.T) {
-	dir := t.TempDir()
-	if err := os.WriteFile(filepath.Join(dir, "m.csv"), []byte("0.25\n0.75\n"), 0o600); err != nil {
-		t.Fatal(err)
-	}
-	path := filepath.Join(dir, "d.toml")
-	src := "version = 1\noutcomes = [\"wet\", \"dry\"]\nmode = \"generator\"\nformula = \"1 - sum(p^2)\"\n\n[budget]\nfloor = 5\ncap = 45\nmenu = \"m.csv\"\n"
-	if err := os.WriteFile(path, []byte(src), 0o600); err != nil {
-		t.Fatal(err)
-	}
+	path := writeMenuDesign(t, "0.25\n0.75\n", "floor = 5\ncap = 45\n")
 	code, out, stderr := runCmd(t, "research", "--design", path, "--kappa", "8", "--compare", "none", "--no-optimum")
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, stderr)
