@@ -419,34 +419,15 @@ func sharpenPair(c *CheckResult, n int, cell float64, f func(q, p []float64) flo
 	if !ok {
 		return
 	}
-	amount := sign * v
 	// A witness on a face comes out of the squares map with coordinates
-	// like 1e-16 for its zeros: try them as exact zeros and keep the
-	// snapped pair when it is as bad beyond rounding.
-	sq, okq := snapped(q)
-	sp, okp := snapped(p)
-	if okq || okp {
-		if vs := sign * f(sq, sp); asBad(vs, amount, sign < 0) {
-			q, p, amount = sq, sp, vs
-		}
-	}
+	// like 1e-16 for its zeros: snapWitness tries them as exact zeros. The
+	// search minimises f, so -f is the gain it keeps no smaller.
+	negV, q, p := snapWitness(-v, q, p, func(q, p []float64) float64 { return -f(q, p) })
+	amount := sign * -negV
 	if improves(amount, c.Worst, sign < 0) {
 		c.GridWorst = c.Worst
 		c.Worst, c.Belief, c.Report, c.Sharpened = amount, q, p, true
 	}
-}
-
-// asBad reports whether a snapped witness's amount is at least as bad as
-// the one found, up to rounding (1e-13 relative, as snapWitness allows).
-func asBad(snapped, found float64, biggerWorse bool) bool {
-	if snapped != snapped {
-		return false
-	}
-	slack := 1e-13 * math.Abs(found)
-	if biggerWorse {
-		return snapped >= found-slack
-	}
-	return snapped <= found+slack
 }
 
 // improves reports whether a sharpened amount is worse (so a better
